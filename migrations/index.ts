@@ -1,0 +1,36 @@
+import { Umzug, SequelizeStorage } from 'umzug';
+import type { QueryInterface } from 'sequelize';
+import { db } from '@/models';
+import * as initial from './0001-initial';
+
+/**
+ * The ordered list of schema changes. Listed explicitly (not globbed) so the same list works in the Next.js server
+ * bundle, under tsx and in tests. Add a new file and append it here; never edit one that has shipped.
+ */
+const MIGRATIONS = [{ name: '0001-initial', ...initial }];
+
+async function migrator(): Promise<Umzug<QueryInterface>> {
+  const sequelize = await db();
+  return new Umzug({
+    migrations: MIGRATIONS.map(({ name, up, down }) => ({ name, up, down })),
+    context: sequelize.getQueryInterface(),
+    storage: new SequelizeStorage({ sequelize, tableName: 'schema_migrations' }),
+    logger: undefined,
+  });
+}
+
+/** Applies every pending migration; a no-op when the schema is current, so it is safe at every start. */
+export async function migrateUp(): Promise<string[]> {
+  const applied = await (await migrator()).up();
+  return applied.map((m) => m.name);
+}
+
+/** Reverts migrations down to (and excluding) `to`, or all of them. */
+export async function migrateDown(to: string | 0 = 0): Promise<string[]> {
+  const reverted = await (await migrator()).down({ to });
+  return reverted.map((m) => m.name);
+}
+
+export async function pendingMigrations(): Promise<string[]> {
+  return (await (await migrator()).pending()).map((m) => m.name);
+}

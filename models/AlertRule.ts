@@ -1,0 +1,48 @@
+import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize';
+
+export type Severity = 'watch' | 'warning';
+
+/** When a series' evidence counts as an early warning. A rule with no series is a default copied to new series. */
+export class AlertRule extends Model<InferAttributes<AlertRule>, InferCreationAttributes<AlertRule>> {
+  declare id: CreationOptional<number>;
+  declare seriesId: number | null;
+  declare indicator: string;
+  declare minTau: number;
+  declare maxSurrogateP: number | null;
+  declare maxKendallP: number | null;
+  declare levelThreshold: number | null;
+  declare levelDirection: CreationOptional<'above' | 'below'>;
+  declare persistence: CreationOptional<number>;
+  declare severity: Severity;
+  declare quietPeriodHours: CreationOptional<number>;
+  /** When set, surrogate p-values of one cycle are judged together (Benjamini–Hochberg) at this false-discovery rate. */
+  declare fdrLevel: number | null;
+  declare active: CreationOptional<boolean>;
+  declare createdBy: number | null;
+  declare createdAt: CreationOptional<Date>;
+  declare updatedAt: CreationOptional<Date>;
+
+  static initModel(sequelize: Sequelize): void {
+    AlertRule.init(
+      {
+        id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+        seriesId: { type: DataTypes.INTEGER, allowNull: true },
+        indicator: { type: DataTypes.STRING, allowNull: false },
+        minTau: { type: DataTypes.DOUBLE, allowNull: false },
+        maxSurrogateP: { type: DataTypes.DOUBLE, allowNull: true },
+        maxKendallP: { type: DataTypes.DOUBLE, allowNull: true },
+        levelThreshold: { type: DataTypes.DOUBLE, allowNull: true },
+        levelDirection: { type: DataTypes.STRING, allowNull: false, defaultValue: 'above' },
+        persistence: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 1 },
+        severity: { type: DataTypes.STRING, allowNull: false, validate: { isIn: [['watch', 'warning']] } },
+        quietPeriodHours: { type: DataTypes.DOUBLE, allowNull: false, defaultValue: 0 },
+        fdrLevel: { type: DataTypes.DOUBLE, allowNull: true },
+        active: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: true },
+        createdBy: { type: DataTypes.INTEGER, allowNull: true },
+        createdAt: DataTypes.DATE,
+        updatedAt: DataTypes.DATE,
+      },
+      { sequelize, tableName: 'alert_rules' },
+    );
+  }
+}

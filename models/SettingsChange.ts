@@ -1,0 +1,23 @@
+import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize';
+
+/** History of a series' analysis settings: who saved which settings, and when. */
+export class SettingsChange extends Model<InferAttributes<SettingsChange>, InferCreationAttributes<SettingsChange>> {
+  declare id: CreationOptional<number>;
+  declare seriesId: number;
+  declare settings: Record<string, unknown>;
+  declare changedBy: number | null;
+  declare createdAt: CreationOptional<Date>;
+
+  static initModel(sequelize: Sequelize): void {
+    SettingsChange.init(
+      {
+        id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+        seriesId: { type: DataTypes.INTEGER, allowNull: false },
+        settings: { type: DataTypes.JSON, allowNull: false },
+        changedBy: { type: DataTypes.INTEGER, allowNull: true },
+        createdAt: DataTypes.DATE,
+      },
+      { sequelize, tableName: 'settings_changes', updatedAt: false },
+    );
+  }
+}

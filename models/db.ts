@@ -1,0 +1,80 @@
+import fs from 'node:fs';
+import path from 'node:path';
+import sqlite3 from 'sqlite3';
+import { Sequelize, Transaction } from 'sequelize';
+import { busyTimeoutMs, databasePath } from '@/lib/config';
+
+type Cached = { sequelize: Sequelize; path: string; ready: Promise<void> };
+const globalCache = globalThis as unknown as { __brinkwatchDb?: Cached };
+
+interface RawSqliteConnection {
+  configure(option: 'busyTimeout', value: number): void;
+}
+
+/**
+ * Sequelize's SQLite dialect opens a fresh connection per transaction and offers no connect hook, so the busy
+ * timeout is applied here to every connection it hands out; otherwise a second writer fails at once with
+ * SQLITE_BUSY instead of waiting its turn.
+ */
+function applyBusyTimeout(sequelize: Sequelize): void {
+  const manager = sequelize.connectionManager as unknown as {
+    getConnection(options?: unknown): Promise<RawSqliteConnection>;
+  };
+  const open = manager.getConnection.bind(manager);
+  const configured = new WeakSet<RawSqliteConnection>();
+  manager.getConnection = async (options?: unknown) => {
+    const connection = await open(options);
+    if (!configured.has(connection)) {
+      connection.configure('busyTimeout', busyTimeoutMs());
+      configured.add(connection);
+    }
+    return connection;
+  };
+}
+
+/** The one Sequelize instance of this process (cached on globalThis so dev reloads and test files share it per path). */
+export function getSequelize(): Sequelize {
+  const file = databasePath();
+  const cached = globalCache.__brinkwatchDb;
+  if (cached && cached.path === file) return cached.sequelize;
+  fs.mkdirSync(path.dirname(file), { recursive: true });
+  const sequelize = new Sequelize({
+    dialect: 'sqlite',
+    dialectModule: sqlite3,
+    storage: file,
+    logging: process.env.DB_LOG === '1' ? console.log : false,
+    define: { underscored: true },
+    retry: { max: 5, match: [/SQLITE_BUSY/] },
+  });
+  applyBusyTimeout(sequelize);
+  const ready = (async () => {
+    await sequelize.query('PRAGMA journal_mode=WAL');
+    await sequelize.query('PRAGMA synchronous=NORMAL');
+  })();
+  globalCache.__brinkwatchDb = { sequelize, path: file, ready };
+  return sequelize;
+}
+
+/** Resolves once the connection pragmas (WAL, synchronous) are set. */
+export async function databaseReady(): Promise<Sequelize> {
+  const sequelize = getSequelize();
+  await globalCache.__brinkwatchDb!.ready;
+  return sequelize;
+}
+
+/** Closes the cached instance (tests and scripts that exit). */
+export async function closeDatabase(): Promise<void> {
+  const cached = globalCache.__brinkwatchDb;
+  if (!cached) return;
+  globalCache.__brinkwatchDb = undefined;
+  await cached.sequelize.close();
+}
+
+/**
+ * Runs `work` in an IMMEDIATE transaction: SQLite takes the write lock at BEGIN, so two writers queue on the busy
+ * timeout instead of one failing on lock upgrade half-way through.
+ */
+export async function writeTransaction<T>(work: (transaction: Transaction) => Promise<T>): Promise<T> {
+  const sequelize = await databaseReady();
+  return sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, work);
+}

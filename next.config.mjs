@@ -1,0 +1,19 @@
+/** Security headers: no inline script outside what Next needs, no framing, no version banner. */
+const securityHeaders = [
+  { key: 'X-Content-Type-Options', value: 'nosniff' },
+  { key: 'Referrer-Policy', value: 'same-origin' },
+  { key: 'X-Frame-Options', value: 'DENY' },
+  { key: 'Permissions-Policy', value: 'camera=(), microphone=(), geolocation=()' },
+];
+
+/** @type {import('next').NextConfig} */
+const nextConfig = {
+  poweredByHeader: false,
+  distDir: process.env.NEXT_DIST_DIR || '.next',
+  serverExternalPackages: ['sequelize', 'sqlite3', 'umzug', 'smtp-server', 'nodemailer', 'bcryptjs'],
+  async headers() {
+    return [{ source: '/:path*', headers: securityHeaders }];
+  },
+};
+
+export default nextConfig;
