@@ -9,6 +9,8 @@ const securityHeaders = [
 /** @type {import('next').NextConfig} */
 const nextConfig = {
   poweredByHeader: false,
+  // Types are checked by `tsc --noEmit` in the test suite (tests/typecheck.test.ts), once, for the whole tree.
+  typescript: { ignoreBuildErrors: true },
   distDir: process.env.NEXT_DIST_DIR || '.next',
   serverExternalPackages: ['sequelize', 'sqlite3', 'umzug', 'smtp-server', 'nodemailer', 'bcryptjs'],
   async headers() {

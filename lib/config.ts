@@ -5,19 +5,19 @@ import path from 'node:path';
  * temp DATA_DIR. Every variable here is listed in `.env.example` and the README.
  */
 export function dataDir(): string {
-  return path.resolve(process.env.DATA_DIR || './data');
+  return path.resolve(/*turbopackIgnore: true*/ process.env.DATA_DIR || './data');
 }
 
 export function databasePath(): string {
-  return path.resolve(process.env.DATABASE_PATH || path.join(dataDir(), 'brinkwatch.sqlite'));
+  return path.resolve(/*turbopackIgnore: true*/ process.env.DATABASE_PATH || path.join(dataDir(), 'brinkwatch.sqlite'));
 }
 
 export function dropDir(): string {
-  return path.resolve(process.env.DROP_DIR || path.join(dataDir(), 'drops'));
+  return path.resolve(/*turbopackIgnore: true*/ process.env.DROP_DIR || path.join(dataDir(), 'drops'));
 }
 
 export function mailboxDir(): string {
-  return path.join(dataDir(), 'mailbox');
+  return path.join(/*turbopackIgnore: true*/ dataDir(), 'mailbox');
 }
 
 export function appPort(): number {

@@ -1,0 +1,77 @@
+import { spawnSync } from 'node:child_process';
+import crypto from 'node:crypto';
+import fs from 'node:fs';
+import path from 'node:path';
+
+const ROOT = process.cwd();
+/** Everything that changes what `next build` produces. */
+const BUILD_INPUTS = ['app', 'components', 'lib', 'models', 'migrations', 'types', 'proxy.ts', 'next.config.mjs',
+  'tailwind.config.ts', 'postcss.config.mjs', 'tsconfig.json', 'package-lock.json'];
+
+function distDir(): string {
+  return path.join(ROOT, process.env.NEXT_DIST_DIR || '.next');
+}
+
+function walk(entry: string, files: string[]): void {
+  const full = path.join(ROOT, entry);
+  if (!fs.existsSync(full)) return;
+  if (fs.statSync(full).isDirectory()) {
+    for (const child of fs.readdirSync(full).sort()) walk(path.join(entry, child), files);
+  } else {
+    files.push(entry);
+  }
+}
+
+/** A digest of the build inputs' contents, so a build is redone exactly when a source changed. */
+export function sourceDigest(): string {
+  const files: string[] = [];
+  for (const entry of BUILD_INPUTS) walk(entry, files);
+  const hash = crypto.createHash('sha256');
+  for (const file of files) {
+    hash.update(file);
+    hash.update(fs.readFileSync(path.join(ROOT, file)));
+  }
+  return hash.digest('hex');
+}
+
+function sleep(ms: number): Promise<void> {
+  return new Promise((resolve) => setTimeout(resolve, ms));
+}
+
+/**
+ * Runs `next build` when the production build is missing or older than the sources. A lock directory keeps
+ * concurrent callers (test files in parallel, a start beside a test) from building over each other.
+ */
+export async function buildIfNeeded(log: (line: string) => void = console.log): Promise<void> {
+  const stamp = path.join(distDir(), 'brinkwatch-source-digest');
+  const lock = path.join(ROOT, '.next-build-lock');
+  for (;;) {
+    const digest = sourceDigest();
+    if (fs.existsSync(stamp) && fs.readFileSync(stamp, 'utf8') === digest && fs.existsSync(path.join(distDir(), 'BUILD_ID'))) return;
+    try {
+      fs.mkdirSync(lock);
+    } catch {
+      const age = Date.now() - fs.statSync(lock, { throwIfNoEntry: false })!.mtimeMs;
+      if (age > 15 * 60 * 1000) fs.rmSync(lock, { recursive: true, force: true });
+      await sleep(1000);
+      continue;
+    }
+    try {
+      log('Building the application (first start or sources changed)…');
+      const result = spawnSync(process.execPath, [path.join(ROOT, 'node_modules/next/dist/bin/next'), 'build'], {
+        cwd: ROOT,
+        stdio: ['ignore', 'pipe', 'pipe'],
+        env: { ...process.env, NEXT_TELEMETRY_DISABLED: '1' },
+        encoding: 'utf8',
+        maxBuffer: 64 * 1024 * 1024,
+      });
+      if (result.status !== 0) {
+        throw new Error(`next build failed:\n${result.stdout}\n${result.stderr}`);
+      }
+      fs.writeFileSync(stamp, digest);
+      return;
+    } finally {
+      fs.rmSync(lock, { recursive: true, force: true });
+    }
+  }
+}

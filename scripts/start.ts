@@ -1,0 +1,88 @@
+import { spawn, type ChildProcess } from 'node:child_process';
+import path from 'node:path';
+import { appPort, dataDir, databasePath } from '@/lib/config';
+import { ensureAuthSecret } from '@/lib/runtime/secret';
+import { buildIfNeeded } from '@/lib/runtime/build';
+import { startMailSink } from '@/lib/mail/sink';
+import { migrateUp } from '@/migrations';
+import { closeDatabase } from '@/models';
+import { DEMO_USERS, seedIfEmpty } from '@/lib/demo/seed';
+
+const ROOT = process.cwd();
+const log = (line: string) => console.log(`[brinkwatch] ${line}`);
+
+/**
+ * `npm start`: the whole product from a fresh clone. Migrates, seeds once, builds when needed, then runs the web
+ * server and the scheduler as child processes (restarting the scheduler if it dies) and, without SMTP_URL, a local
+ * SMTP stand-in.
+ */
+async function main(): Promise<void> {
+  process.env.DATA_DIR = dataDir();
+  process.env.NEXTAUTH_SECRET = ensureAuthSecret();
+  const port = appPort();
+  const host = process.env.HOST || '127.0.0.1';
+  process.env.NEXTAUTH_URL ||= `http://localhost:${port}`;
+  const password = process.env.DEMO_PASSWORD || 'brinkwatch-demo';
+
+  const applied = await migrateUp();
+  if (applied.length) log(`applied migrations: ${applied.join(', ')}`);
+  const seeded = await seedIfEmpty({ demo: process.env.SEED_DEMO !== '0', password });
+  await closeDatabase();
+  if (seeded) log('seeded the demo network');
+
+  if (process.env.SKIP_BUILD !== '1') await buildIfNeeded(log);
+
+  const children: ChildProcess[] = [];
+  let stopping = false;
+  const sink = process.env.SMTP_URL ? null : await startMailSink(Number(process.env.MAIL_SINK_PORT || 2525));
+  if (sink) log(`local mail sink on smtp://127.0.0.1:${process.env.MAIL_SINK_PORT || 2525} (read it on /admin/mailbox)`);
+
+  const web = spawn(process.execPath, [path.join(ROOT, 'node_modules/next/dist/bin/next'), 'start', '-p', String(port), '-H', host], {
+    cwd: ROOT,
+    stdio: 'inherit',
+    env: { ...process.env, NEXT_TELEMETRY_DISABLED: '1' },
+  });
+  children.push(web);
+
+  const startScheduler = () => {
+    if (process.env.START_SCHEDULER === '0') return;
+    const scheduler = spawn(process.execPath, ['--import', 'tsx', path.join(ROOT, 'jobs/scheduler.ts')], {
+      cwd: ROOT,
+      stdio: 'inherit',
+      env: process.env,
+    });
+    children.push(scheduler);
+    scheduler.on('exit', (code, signal) => {
+      children.splice(children.indexOf(scheduler), 1);
+      if (stopping) return;
+      log(`scheduler exited (${signal ?? code}); restarting in 2 s`);
+      setTimeout(startScheduler, 2000);
+    });
+  };
+  startScheduler();
+
+  const stop = (exitCode: number) => {
+    if (stopping) return;
+    stopping = true;
+    for (const child of children) child.kill('SIGTERM');
+    sink?.close(() => undefined);
+    setTimeout(() => process.exit(exitCode), 1500).unref();
+  };
+  web.on('exit', (code) => {
+    if (!stopping) {
+      log(`web server exited (${code}); stopping`);
+      stop(code ?? 1);
+    }
+  });
+  process.on('SIGINT', () => stop(0));
+  process.on('SIGTERM', () => stop(0));
+
+  log(`database ${databasePath()}`);
+  log(`open http://localhost:${port}  — demo accounts (password from DEMO_PASSWORD, default "brinkwatch-demo"):`);
+  for (const user of DEMO_USERS) log(`  ${user.role.padEnd(8)} ${user.email}`);
+}
+
+main().catch((error) => {
+  console.error('[brinkwatch] could not start', error);
+  process.exit(1);
+});

@@ -1,0 +1,7 @@
+import type { Role } from '@/models/roles';
+
+declare module 'next-auth' {
+  interface Session {
+    user: { id: number; role: Role; name?: string | null; email?: string | null; image?: string | null };
+  }
+}
