@@ -42,3 +42,25 @@ export function cronSetting(name: 'INGEST_CRON' | 'ANALYSIS_CRON' | 'MAIL_CRON' 
 export function busyTimeoutMs(): number {
   return Number(process.env.DB_BUSY_TIMEOUT_MS || 5000);
 }
+
+/** Outgoing mail server: SMTP_URL when set, else the local stand-in that `npm start` runs on MAIL_SINK_PORT. */
+export function smtpUrl(): string {
+  return process.env.SMTP_URL || `smtp://127.0.0.1:${Number(process.env.MAIL_SINK_PORT || 2525)}`;
+}
+
+export function mailFrom(): string {
+  return process.env.MAIL_FROM || 'Brinkwatch <brinkwatch@localhost>';
+}
+
+/**
+ * Outbox retry policy: the n-th failed attempt waits min(base·2^(n−1), max) before the next one, and a message is
+ * marked failed only after MAIL_MAX_ATTEMPTS. Defaults (30 s doubling to 10 min, 60 attempts) keep retrying for
+ * about nine hours, so an hour-long outage of the mail server loses nothing.
+ */
+export function mailRetryPolicy(): { baseMs: number; maxMs: number; maxAttempts: number } {
+  return {
+    baseMs: Number(process.env.MAIL_RETRY_BASE_MS || 30_000),
+    maxMs: Number(process.env.MAIL_RETRY_MAX_MS || 600_000),
+    maxAttempts: Number(process.env.MAIL_MAX_ATTEMPTS || 60),
+  };
+}

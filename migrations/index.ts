@@ -2,12 +2,16 @@ import { Umzug, SequelizeStorage } from 'umzug';
 import type { QueryInterface } from 'sequelize';
 import { db } from '@/models';
 import * as initial from './0001-initial';
+import * as alertQueues from './0002-alert-queues-and-outbox-claims';
 
 /**
  * The ordered list of schema changes. Listed explicitly (not globbed) so the same list works in the Next.js server
  * bundle, under tsx and in tests. Add a new file and append it here; never edit one that has shipped.
  */
-const MIGRATIONS = [{ name: '0001-initial', ...initial }];
+const MIGRATIONS = [
+  { name: '0001-initial', ...initial },
+  { name: '0002-alert-queues-and-outbox-claims', ...alertQueues },
+];
 
 async function migrator(): Promise<Umzug<QueryInterface>> {
   const sequelize = await db();

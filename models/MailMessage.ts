@@ -18,6 +18,8 @@ export class MailMessage extends Model<InferAttributes<MailMessage>, InferCreati
   declare lastError: string | null;
   declare sentAt: Date | null;
   declare messageId: string | null;
+  /** The sender run holding a 'sending' claim; a claim whose next_attempt_at has passed may be taken over. */
+  declare claimedBy: CreationOptional<string | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 
@@ -37,6 +39,7 @@ export class MailMessage extends Model<InferAttributes<MailMessage>, InferCreati
         lastError: { type: DataTypes.TEXT, allowNull: true },
         sentAt: { type: DataTypes.DATE, allowNull: true },
         messageId: { type: DataTypes.STRING, allowNull: true },
+        claimedBy: { type: DataTypes.STRING, allowNull: true },
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },
