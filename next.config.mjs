@@ -1,4 +1,4 @@
-/** Security headers: no inline script outside what Next needs, no framing, no version banner. */
+/** Security headers for every answer; the page CSP with its per-request nonce is set in proxy.ts. */
 const securityHeaders = [
   { key: 'X-Content-Type-Options', value: 'nosniff' },
   { key: 'Referrer-Policy', value: 'same-origin' },
@@ -14,7 +14,11 @@ const nextConfig = {
   distDir: process.env.NEXT_DIST_DIR || '.next',
   serverExternalPackages: ['sequelize', 'sqlite3', 'umzug', 'smtp-server', 'nodemailer', 'bcryptjs'],
   async headers() {
-    return [{ source: '/:path*', headers: securityHeaders }];
+    return [
+      { source: '/:path*', headers: securityHeaders },
+      // API answers are data, never documents to render or frame.
+      { source: '/api/:path*', headers: [{ key: 'Content-Security-Policy', value: "default-src 'none'; frame-ancestors 'none'" }] },
+    ];
   },
 };
 

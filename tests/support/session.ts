@@ -18,6 +18,12 @@ export class Session {
     }
   }
 
+  /** Continues another client's session (e.g. after a server restart). */
+  adoptCookies(other: Session): this {
+    this.cookies = new Map(other.cookies);
+    return this;
+  }
+
   cookieHeader(): string {
     return [...this.cookies].map(([k, v]) => `${k}=${v}`).join('; ');
   }

@@ -1,8 +1,9 @@
 import path from 'node:path';
+import { fileURLToPath } from 'node:url';
 import { defineConfig } from 'vitest/config';
 
 export default defineConfig({
-  resolve: { alias: { '@': path.resolve(__dirname) } },
+  resolve: { alias: { '@': path.dirname(fileURLToPath(import.meta.url)) } },
   test: {
     include: ['tests/**/*.test.ts'],
     pool: 'forks',
