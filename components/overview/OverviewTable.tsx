@@ -1,0 +1,160 @@
+'use client';
+
+import Link from 'next/link';
+import { useMemo, useState } from 'react';
+import { FreshnessBadge, StateBadge, STATE_LABELS } from '@/components/Badges';
+import { LocalTime } from '@/components/LocalTime';
+import { Empty } from '@/components/States';
+import { Sparkline } from '@/components/charts/Sparkline';
+import { formatAge, formatP, formatTau } from '@/lib/display/format';
+import type { OverviewRow, SeriesState } from '@/lib/overview';
+
+type SortKey = 'name' | 'site' | 'lastData' | 'state' | 'tau';
+const STATE_RANK: Record<SeriesState, number> = { alert: 4, warning: 3, watch: 2, quiet: 1, 'not-analysed': 0 };
+
+function maxTau(row: OverviewRow): number {
+  return Math.max(-2, ...row.indicators.map((i) => i.tau ?? -2));
+}
+
+const SORTS: Record<SortKey, (a: OverviewRow, b: OverviewRow) => number> = {
+  name: (a, b) => a.name.localeCompare(b.name),
+  site: (a, b) => a.site.localeCompare(b.site) || a.name.localeCompare(b.name),
+  lastData: (a, b) => (a.lastDataAt ?? 0) - (b.lastDataAt ?? 0),
+  state: (a, b) => STATE_RANK[a.state] - STATE_RANK[b.state],
+  tau: (a, b) => maxTau(a) - maxTau(b),
+};
+
+const controlClass = 'rounded border border-rule bg-card px-2 py-1.5 text-sm';
+
+export function OverviewTable({ rows, sites, now }: { rows: OverviewRow[]; sites: string[]; now: number }) {
+  const [text, setText] = useState('');
+  const [site, setSite] = useState('');
+  const [state, setState] = useState('');
+  const [sort, setSort] = useState<{ key: SortKey; desc: boolean }>({ key: 'state', desc: true });
+
+  const shown = useMemo(() => {
+    const needle = text.trim().toLowerCase();
+    const filtered = rows.filter(
+      (r) =>
+        (!needle || `${r.name} ${r.slug} ${r.site}`.toLowerCase().includes(needle)) &&
+        (!site || r.site === site) &&
+        (!state || r.state === state),
+    );
+    const compare = SORTS[sort.key];
+    return filtered.sort((a, b) => (sort.desc ? -1 : 1) * compare(a, b) || a.name.localeCompare(b.name));
+  }, [rows, text, site, state, sort]);
+
+  function header(key: SortKey, label: string) {
+    const active = sort.key === key;
+    return (
+      <th scope="col" aria-sort={active ? (sort.desc ? 'descending' : 'ascending') : 'none'} className="px-3 py-2 text-left font-medium">
+        <button type="button" className="inline-flex items-center gap-1 rounded hover:text-tide"
+          onClick={() => setSort({ key, desc: active ? !sort.desc : key !== 'name' && key !== 'site' })}>
+          {label}
+          <span aria-hidden="true" className="text-ink-faint">{active ? (sort.desc ? '↓' : '↑') : '↕'}</span>
+        </button>
+      </th>
+    );
+  }
+
+  return (
+    <div>
+      <div className="mb-3 flex flex-wrap items-end gap-3" role="search">
+        <label className="flex flex-col text-xs font-medium text-ink-soft">
+          Find a series
+          <input type="search" value={text} onChange={(e) => setText(e.target.value)} placeholder="Name, slug or site" className={`${controlClass} mt-1 w-56`} />
+        </label>
+        <label className="flex flex-col text-xs font-medium text-ink-soft">
+          Site
+          <select value={site} onChange={(e) => setSite(e.target.value)} className={`${controlClass} mt-1`}>
+            <option value="">All sites</option>
+            {sites.map((s) => <option key={s} value={s}>{s}</option>)}
+          </select>
+        </label>
+        <label className="flex flex-col text-xs font-medium text-ink-soft">
+          State
+          <select value={state} onChange={(e) => setState(e.target.value)} className={`${controlClass} mt-1`}>
+            <option value="">Any state</option>
+            {Object.entries(STATE_LABELS).map(([value, label]) => <option key={value} value={value}>{label}</option>)}
+          </select>
+        </label>
+        <p className="ml-auto text-sm text-ink-soft" aria-live="polite">{shown.length} of {rows.length} series</p>
+      </div>
+      {shown.length === 0 ? (
+        <Empty>{rows.length === 0 ? 'No series are registered yet. Add one on the Intake page.' : 'No series match these filters.'}</Empty>
+      ) : (
+        <div className="overflow-x-auto rounded-lg border border-rule bg-card">
+          <table className="w-full min-w-[720px] text-sm" data-testid="overview-table">
+            <caption className="sr-only">Every series with its data freshness, state and latest indicator trends</caption>
+            <thead className="border-b border-rule bg-paper text-ink-soft">
+              <tr>
+                {header('name', 'Series')}
+                {header('site', 'Site')}
+                {header('lastData', 'Last data')}
+                {header('state', 'State')}
+                {header('tau', 'Indicator trend (tau, p)')}
+                <th scope="col" className="px-3 py-2 text-left font-medium">Recent curve</th>
+              </tr>
+            </thead>
+            <tbody className="divide-y divide-rule">
+              {shown.map((row) => (
+                <tr key={row.id} data-series={row.slug} className="hover:bg-paper/60">
+                  <td className="px-3 py-2">
+                    <Link href={`/series/${row.slug}`} className="font-medium text-tide hover:underline">{row.name}</Link>
+                    <div className="font-mono text-xs text-ink-faint">{row.slug}</div>
+                  </td>
+                  <td className="px-3 py-2">{row.site || <span className="text-ink-faint">–</span>}</td>
+                  <td className="px-3 py-2">
+                    <div><LocalTime t={row.lastDataAt} timeZone={row.timeZone} /></div>
+                    <div className="mt-0.5 flex items-center gap-1 text-xs text-ink-faint">
+                      <FreshnessBadge freshness={row.freshness}
+                        title={row.lastDataAt ? `${formatAge(now - row.lastDataAt)} since the last observation` : undefined} />
+                      <span>{row.timeZone}</span>
+                    </div>
+                  </td>
+                  <td className="px-3 py-2">
+                    {row.state === 'alert' ? (
+                      <Link href={`/alerts?queue=triage&series=${row.slug}`} className="rounded">
+                        <StateBadge state={row.state} detail={`${row.openAlerts}`} />
+                      </Link>
+                    ) : (
+                      <StateBadge state={row.state} />
+                    )}
+                  </td>
+                  <td className="px-3 py-2">
+                    {row.indicators.length === 0 ? (
+                      <span className="text-ink-faint">–</span>
+                    ) : (
+                      <ul className="space-y-0.5">
+                        {row.indicators.map((ind) => (
+                          <li key={ind.name} className="num whitespace-nowrap">
+                            <span className="inline-block w-20 text-ink-soft">{ind.name}</span>
+                            τ {formatTau(ind.tau)}
+                            <span className="ml-2 text-ink-soft" title={ind.pKind === 'surrogate' ? 'p from surrogate data' : 'p from the Kendall test'}>
+                              p {formatP(ind.p)}{ind.pKind === 'kendall' ? '*' : ''}
+                            </span>
+                          </li>
+                        ))}
+                      </ul>
+                    )}
+                  </td>
+                  <td className="px-3 py-2">
+                    {row.spark ? (
+                      <Sparkline values={row.spark.values} label={`Rolling ${row.spark.indicator} of ${row.name}`} />
+                    ) : (
+                      <span className="text-ink-faint">–</span>
+                    )}
+                  </td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </div>
+      )}
+      <p className="mt-2 text-xs text-ink-faint">
+        Late: no new observation for more than three sampling intervals (two days for irregular records). p* is the
+        Kendall test&apos;s p, shown where the series runs no surrogates. Times are in each series&apos; time zone; hover for UTC.
+      </p>
+    </div>
+  );
+}

@@ -1,0 +1,44 @@
+import { z } from 'zod';
+import { loadObservations } from '@/lib/analysis/observations';
+import { runAnalysis } from '@/lib/engine/analyze';
+import { AnalysisInputError } from '@/lib/engine/errors';
+import { analysisSettingsSchema, type AnalysisSettings } from '@/lib/engine/settings';
+import { UnprocessableError } from '@/lib/http/errors';
+import type { Series } from '@/models';
+import { viewFromResult, type AnalysisView } from './view';
+
+/** Interactive recomputation must answer in about a second; 199 surrogates resolve p down to 0.005. */
+export const PREVIEW_MAX_SURROGATES = 199;
+
+/** Body of a preview request: the settings to try (any omitted field takes the engine default). */
+export const previewRequestSchema = z.object({ settings: analysisSettingsSchema });
+
+/** Caps the cost of a what-if run so one request cannot occupy the server. */
+export function boundedSettings(settings: AnalysisSettings): AnalysisSettings {
+  return { ...settings, surrogates: Math.min(settings.surrogates, PREVIEW_MAX_SURROGATES) };
+}
+
+/**
+ * Runs the engine on a series' stored record (up to `to`, default all) with the given settings. Nothing is saved.
+ * Input the settings cannot handle (too short, gaps) becomes a 422 the form can show.
+ */
+export async function analyseStored(series: Series, settings: AnalysisSettings, options: { to?: number } = {}) {
+  const { time, value } = await loadObservations(series.id, { to: options.to });
+  try {
+    return await runAnalysis(
+      { time, value, intervalMs: series.intervalMs === null ? undefined : Number(series.intervalMs) },
+      settings,
+      { parallel: false },
+    );
+  } catch (error) {
+    if (error instanceof AnalysisInputError) throw new UnprocessableError(error.message);
+    throw error;
+  }
+}
+
+/** A what-if analysis for the tuning panel: chart-ready, thinned to ≤ 2,000 points, surrogates capped. */
+export async function previewAnalysis(series: Series, requested: AnalysisSettings): Promise<AnalysisView> {
+  const settings = boundedSettings(requested);
+  const result = await analyseStored(series, settings);
+  return viewFromResult(result, settings);
+}

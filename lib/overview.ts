@@ -1,0 +1,207 @@
+import { QueryTypes } from 'sequelize';
+import { db, OPEN_ALERT_STATES } from '@/models';
+import { INDICATOR_NAMES, type IndicatorName } from '@/lib/engine/settings';
+
+/** How many sampling intervals may pass without new data before a series counts as late. */
+export const LATE_AFTER_INTERVALS = 3;
+/** For series without a fixed interval (irregular records), late after two days without data. */
+export const LATE_AFTER_MS_IRREGULAR = 2 * 86_400_000;
+/** Points in an overview sparkline: enough to show a rising curve, few enough for 500 rows. */
+export const SPARK_POINTS = 60;
+
+export type Freshness = 'fresh' | 'late' | 'no-data';
+/** quiet: no rule passes; watch/warning: a rule of that severity passes now but no alert is open; alert: one is open. */
+export type SeriesState = 'not-analysed' | 'quiet' | 'watch' | 'warning' | 'alert';
+
+export interface OverviewIndicator {
+  name: IndicatorName;
+  tau: number | null;
+  p: number | null;
+  /** surrogate p when the series runs surrogates, else the Kendall test's p */
+  pKind: 'surrogate' | 'kendall';
+}
+
+export interface OverviewRow {
+  id: number;
+  slug: string;
+  name: string;
+  site: string;
+  unit: string;
+  timeZone: string;
+  intervalMs: number | null;
+  lastDataAt: number | null;
+  freshness: Freshness;
+  state: SeriesState;
+  openAlerts: number;
+  openSeverity: 'watch' | 'warning' | null;
+  analysedAt: string | null;
+  indicators: OverviewIndicator[];
+  spark: { indicator: string; values: (number | null)[] } | null;
+}
+
+export interface QueueCounts {
+  triage: number;
+  escalated: number;
+  mine: number;
+  open: number;
+}
+
+export interface SeriesOverview {
+  rows: OverviewRow[];
+  queues: QueueCounts;
+  sites: string[];
+  generatedAt: number;
+}
+
+/** Late when the last observation is older than 3 intervals (2 days for irregular records). */
+export function freshnessOf(lastDataAt: number | null, intervalMs: number | null, now: number): Freshness {
+  if (lastDataAt === null) return 'no-data';
+  const allowed = intervalMs ? LATE_AFTER_INTERVALS * intervalMs : LATE_AFTER_MS_IRREGULAR;
+  return now - lastDataAt > allowed ? 'late' : 'fresh';
+}
+
+/** Every SPARK_POINTS-th share of a curve, keeping the last value. O(n). */
+export function sparkline(values: (number | null)[], points = SPARK_POINTS): (number | null)[] {
+  if (values.length <= points) return values;
+  const step = (values.length - 1) / (points - 1);
+  return Array.from({ length: points }, (_, i) => values[Math.round(i * step)]);
+}
+
+interface SeriesRow {
+  id: number;
+  slug: string;
+  name: string;
+  site: string;
+  unit: string;
+  time_zone: string;
+  interval_ms: number | null;
+  last_t: number | null;
+  snap_created: string | null;
+  kendall: string | null;
+  surrogate_p: string | null;
+  spark_indicator: string | null;
+  spark: string | null;
+}
+interface RuleRow {
+  series_id: number;
+  indicator: string;
+  severity: 'watch' | 'warning';
+  passed: number | null;
+}
+interface AlertCountRow {
+  series_id: number;
+  severity: 'watch' | 'warning';
+  state: string;
+  mine: number;
+  n: number;
+}
+
+const OPEN = OPEN_ALERT_STATES.map((s) => `'${s}'`).join(',');
+const SURROGATE_P = INDICATOR_NAMES.map((name) => `'${name}', json_extract(a.summary, '$.significance.${name}.p')`).join(', ');
+
+/**
+ * The morning view of the whole network in three aggregate queries run in parallel (series with their last
+ * observation and latest snapshot; active rules with their latest evaluation; open alerts grouped by series,
+ * severity, state and assignee), each using an index per series or rule, so the cost grows with the number of
+ * series and rules, not with observations or alerts. Only the pieces of the snapshot JSON the table shows are
+ * extracted in SQL.
+ */
+export async function fetchSeriesOverview(actorId: number | null = null, now = Date.now()): Promise<SeriesOverview> {
+  const sequelize = await db();
+  const [series, rules, alerts] = await Promise.all([
+    sequelize.query<SeriesRow>(
+      `WITH base AS (
+         SELECT s.*,
+           (SELECT MAX(t) FROM observations o WHERE o.series_id = s.id) AS last_t,
+           (SELECT MAX(id) FROM analysis_snapshots x WHERE x.series_id = s.id AND x.status = 'ok') AS snap_id,
+           (SELECT indicator FROM alert_rules r WHERE r.series_id = s.id AND r.active = 1 ORDER BY r.id LIMIT 1) AS rule_indicator
+         FROM series s WHERE s.retired_at IS NULL)
+       SELECT b.id, b.slug, b.name, b.site, b.unit, b.time_zone, b.interval_ms, b.last_t,
+         a.created_at AS snap_created,
+         json_extract(a.summary, '$.kendall') AS kendall,
+         json_object(${SURROGATE_P}) AS surrogate_p,
+         COALESCE(CASE WHEN json_type(a.curves, '$.indicators.' || b.rule_indicator) IS NOT NULL THEN b.rule_indicator END,
+                  json_extract(a.settings, '$.indicators[0]')) AS spark_indicator,
+         COALESCE(json_extract(a.curves, '$.indicators.' || b.rule_indicator),
+                  json_extract(a.curves, '$.indicators.' || json_extract(a.settings, '$.indicators[0]'))) AS spark
+       FROM base b LEFT JOIN analysis_snapshots a ON a.id = b.snap_id
+       ORDER BY b.name`,
+      { type: QueryTypes.SELECT },
+    ),
+    sequelize.query<RuleRow>(
+      `SELECT r.series_id, r.indicator, r.severity, e.passed
+       FROM alert_rules r
+       LEFT JOIN rule_evaluations e ON e.id = (SELECT id FROM rule_evaluations z WHERE z.rule_id = r.id ORDER BY z.snapshot_id DESC LIMIT 1)
+       WHERE r.active = 1 AND r.series_id IS NOT NULL
+       ORDER BY r.id`,
+      { type: QueryTypes.SELECT },
+    ),
+    sequelize.query<AlertCountRow>(
+      `SELECT series_id, severity, state, COALESCE(assignee_id = :me, 0) AS mine, COUNT(*) AS n
+       FROM alerts WHERE state IN (${OPEN}) GROUP BY series_id, severity, state, mine`,
+      { type: QueryTypes.SELECT, replacements: { me: actorId ?? -1 } },
+    ),
+  ]);
+
+  const rulesBySeries = new Map<number, RuleRow[]>();
+  for (const rule of rules) rulesBySeries.set(rule.series_id, [...(rulesBySeries.get(rule.series_id) ?? []), rule]);
+  const queues: QueueCounts = { triage: 0, escalated: 0, mine: 0, open: 0 };
+  const openBySeries = new Map<number, { count: number; severity: 'watch' | 'warning' }>();
+  for (const row of alerts) {
+    const n = Number(row.n);
+    queues.open += n;
+    if (row.state === 'escalated') queues.escalated += n;
+    else queues.triage += n;
+    if (Number(row.mine)) queues.mine += n;
+    const current = openBySeries.get(row.series_id);
+    openBySeries.set(row.series_id, {
+      count: (current?.count ?? 0) + n,
+      severity: current?.severity === 'warning' || row.severity === 'warning' ? 'warning' : 'watch',
+    });
+  }
+
+  const rows = series.map((s): OverviewRow => {
+    const kendall = (s.kendall ? JSON.parse(s.kendall) : {}) as Record<string, { tau: number | null; p: number | null }>;
+    const surrogate = (s.surrogate_p ? JSON.parse(s.surrogate_p) : {}) as Record<string, number | null>;
+    const seriesRules = rulesBySeries.get(s.id) ?? [];
+    const names = [...new Set(seriesRules.map((r) => r.indicator))].filter((n): n is IndicatorName => n in kendall);
+    const shown = names.length ? names : s.spark_indicator && s.spark_indicator in kendall ? [s.spark_indicator as IndicatorName] : [];
+    const open = openBySeries.get(s.id);
+    const passing = seriesRules.filter((r) => Number(r.passed) === 1);
+    const state: SeriesState = open
+      ? 'alert'
+      : passing.some((r) => r.severity === 'warning')
+        ? 'warning'
+        : passing.length
+          ? 'watch'
+          : s.snap_created
+            ? 'quiet'
+            : 'not-analysed';
+    const lastDataAt = s.last_t === null ? null : Number(s.last_t);
+    const intervalMs = s.interval_ms === null ? null : Number(s.interval_ms);
+    return {
+      id: s.id,
+      slug: s.slug,
+      name: s.name,
+      site: s.site,
+      unit: s.unit,
+      timeZone: s.time_zone,
+      intervalMs,
+      lastDataAt,
+      freshness: freshnessOf(lastDataAt, intervalMs, now),
+      state,
+      openAlerts: open?.count ?? 0,
+      openSeverity: open?.severity ?? null,
+      analysedAt: s.snap_created ? new Date(s.snap_created).toISOString() : null,
+      indicators: shown.map((name) => {
+        const sp = surrogate[name];
+        return sp !== null && sp !== undefined
+          ? { name, tau: kendall[name]?.tau ?? null, p: sp, pKind: 'surrogate' }
+          : { name, tau: kendall[name]?.tau ?? null, p: kendall[name]?.p ?? null, pKind: 'kendall' };
+      }),
+      spark: s.spark && s.spark_indicator ? { indicator: s.spark_indicator, values: sparkline(JSON.parse(s.spark)) } : null,
+    };
+  });
+  const sites = [...new Set(rows.map((r) => r.site).filter(Boolean))].sort();
+  return { rows, queues, sites, generatedAt: now };
+}
