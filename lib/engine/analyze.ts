@@ -1,0 +1,130 @@
+import { detrend } from './detrend';
+import { AnalysisInputError } from './errors';
+import { indicatorTrends } from './kendall';
+import { prepareSeries, type PreparationQuality, type TimeKind } from './prepare';
+import { rollingIndicators, windowPoints } from './rolling';
+import { sensitivityGrid, type SensitivityResult } from './sensitivity';
+import { computeSurrogateTaus } from './surrogate-pool';
+import { prepareSurrogateJob, surrogatePValue } from './surrogates';
+import type { AnalysisSettings, IndicatorName, SurrogateMethod } from './settings';
+
+/** Shown with every result: what the numbers are and are not. */
+export const ANALYSIS_CAUTION =
+  'Early-warning indicators are statistical evidence of changing dynamics, not forecasts. Decisions affecting public safety, water supply or ecosystems rest with the responsible authorities and local rules.';
+
+export interface AnalysisInput {
+  /** UTC milliseconds (timeKind 'utc-ms', the default) or plain numbers in the caller's unit ('numeric'). */
+  time: Float64Array;
+  value: Float64Array;
+  /** Sampling interval in the unit of `time`; inferred (median spacing) when omitted. */
+  intervalMs?: number;
+  timeKind?: TimeKind;
+}
+
+export interface AnalysisResult {
+  /** points analysed (after preparation; n − 1 of them for `difference`) */
+  n: number;
+  windowPoints: number;
+  /** Gaussian h in points (moving-average width for that method; null otherwise) */
+  bandwidthPoints: number | null;
+  /** sampling interval in the recovery-rate unit (days for UTC times, the time unit for numeric times) */
+  dt: number;
+  rateUnit: 'per day' | 'per time unit';
+  /** sampling interval in the unit of `time` */
+  interval: number;
+  series: { time: Float64Array; value: Float64Array; trend: Float64Array; residual: Float64Array };
+  indicators: Partial<Record<IndicatorName, (number | null)[]>>;
+  kendall: Partial<Record<IndicatorName, { tau: number | null; p: number | null }>>;
+  significance: Partial<Record<IndicatorName, { p: number | null; count: number; method: SurrogateMethod; taus: number[] }>>;
+  sensitivity: SensitivityResult | null;
+  quality: PreparationQuality;
+  caution: string;
+}
+
+export type AnalysisSummary = Omit<AnalysisResult, 'series' | 'indicators'> & {
+  /** last defined value of each indicator, with its time */
+  latest: Partial<Record<IndicatorName, { time: number; value: number } | null>>;
+};
+
+const DAY_MS = 86_400_000;
+
+function finiteOrNull(v: number): number | null {
+  return Number.isFinite(v) ? v : null;
+}
+
+function toNullable(a: Float64Array): (number | null)[] {
+  const out = new Array<number | null>(a.length);
+  for (let i = 0; i < a.length; i++) out[i] = Number.isFinite(a[i]) ? a[i] : null;
+  return out;
+}
+
+/**
+ * The whole pipeline: prepare (grid, gaps, span, log, seasonal) → detrend → rolling indicators →
+ * Kendall tau of each → surrogate significance (worker threads unless options.parallel is false;
+ * identical numbers either way) → optional sensitivity grid. Throws AnalysisInputError for input the
+ * caller can fix. Cost O(n log n) + O(N·n log n) for N surrogates.
+ */
+export async function runAnalysis(input: AnalysisInput, settings: AnalysisSettings, options: { parallel?: boolean } = {}): Promise<AnalysisResult> {
+  const kind = input.timeKind ?? 'utc-ms';
+  const prepared = prepareSeries(input, settings);
+  const x = prepared.value;
+  if (x.length < 8) throw new AnalysisInputError(`the series has ${x.length} usable points; at least 8 are needed`);
+  const h = settings.bandwidth * x.length;
+  const d = detrend(x, settings.detrend, { bandwidthPoints: h, movingAverageWidth: settings.movingAverageWidth });
+  const n = d.residual.length;
+  const w = windowPoints(settings.window, n);
+  const dt = kind === 'utc-ms' ? prepared.interval / DAY_MS : prepared.interval;
+  const raw = x.subarray(d.offset);
+  const names = settings.indicators;
+  const values = rollingIndicators(d.residual, w, names, { raw, dt });
+
+  const indicators: AnalysisResult['indicators'] = {};
+  const kendall: AnalysisResult['kendall'] = {};
+  const trends = indicatorTrends(values);
+  for (const name of names) {
+    indicators[name] = toNullable(values[name]);
+    kendall[name] = { tau: finiteOrNull(trends[name]!.tau), p: finiteOrNull(trends[name]!.p) };
+  }
+
+  const significance: AnalysisResult['significance'] = {};
+  if (settings.surrogates > 0) {
+    const job = prepareSurrogateJob(d.residual, raw, { method: settings.surrogateMethod, seed: settings.seed, w, dt, indicators: [...names] });
+    const taus = await computeSurrogateTaus(job, settings.surrogates, { parallel: options.parallel });
+    for (const name of names) {
+      const { p, count } = surrogatePValue(kendall[name]!.tau ?? Number.NaN, taus[name]);
+      significance[name] = { p, count, method: settings.surrogateMethod, taus: Array.from(taus[name]).filter(Number.isFinite) };
+    }
+  }
+
+  const sensitivity = settings.sensitivity
+    ? sensitivityGrid(x, x, { detrend: settings.detrend, movingAverageWidth: settings.movingAverageWidth, bandwidth: settings.bandwidth, indicators: [...names], dt })
+    : null;
+
+  return {
+    n,
+    windowPoints: w,
+    bandwidthPoints: settings.detrend === 'gaussian' ? h : settings.detrend === 'moving-average' ? settings.movingAverageWidth : null,
+    dt,
+    rateUnit: kind === 'utc-ms' ? 'per day' : 'per time unit',
+    interval: prepared.interval,
+    series: { time: prepared.time.subarray(d.offset), value: raw, trend: d.trend, residual: d.residual },
+    indicators,
+    kendall,
+    significance,
+    sensitivity,
+    quality: prepared.quality,
+    caution: ANALYSIS_CAUTION,
+  };
+}
+
+/** The result without per-point arrays (JSON-friendly), plus the latest value of each indicator. O(n). */
+export function summarizeAnalysis(result: AnalysisResult): AnalysisSummary {
+  const { series, indicators, ...rest } = result;
+  const latest: AnalysisSummary['latest'] = {};
+  for (const [name, vals] of Object.entries(indicators) as [IndicatorName, (number | null)[]][]) {
+    let i = vals.length - 1;
+    while (i >= 0 && vals[i] === null) i--;
+    latest[name] = i >= 0 ? { time: series.time[i], value: vals[i]! } : null;
+  }
+  return { ...rest, latest };
+}

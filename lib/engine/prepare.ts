@@ -1,0 +1,261 @@
+import { AnalysisInputError } from './errors';
+
+/** How the time axis is read: UTC milliseconds (dates) or plain numbers in the caller's own unit. */
+export type TimeKind = 'utc-ms' | 'numeric';
+
+export interface GapReport {
+  /** first and last missing grid instant */
+  from: number;
+  to: number;
+  points: number;
+  filled: boolean;
+}
+
+export interface PreparationQuality {
+  observations: number;
+  /** grid bins holding more than one observation (averaged) */
+  binnedBins: number;
+  filledPoints: number;
+  gaps: GapReport[];
+  droppedBeforeStretch: number;
+  /** missing points at either end of the record, which cannot be interpolated and are left out */
+  trimmedEnds: number;
+  /** points before the trailing analysis span */
+  droppedBeforeSpan: number;
+}
+
+/** Formats an instant for messages: ISO 8601 for UTC milliseconds, the number itself otherwise. */
+export function formatInstant(t: number, kind: TimeKind): string {
+  if (kind === 'numeric') return String(t);
+  const d = new Date(t);
+  return Number.isNaN(d.getTime()) ? String(t) : d.toISOString();
+}
+
+/**
+ * Sampling interval: the median of the positive differences between consecutive sorted times.
+ * Cost O(n log n). Common practice (robust to a few missing or doubled observations).
+ */
+export function inferInterval(sortedTime: Float64Array): number {
+  const n = sortedTime.length;
+  const first = sortedTime[1] - sortedTime[0];
+  let regular = first > 0;
+  for (let i = 2; i < n && regular; i++) regular = sortedTime[i] - sortedTime[i - 1] === first;
+  if (regular) return first;
+  const d = new Float64Array(n - 1);
+  let m = 0;
+  for (let i = 1; i < n; i++) {
+    const dt = sortedTime[i] - sortedTime[i - 1];
+    if (dt > 0) d[m++] = dt;
+  }
+  if (m === 0) throw new AnalysisInputError('all observations share one time; a sampling interval cannot be found');
+  const sorted = d.subarray(0, m).sort();
+  const mid = m >> 1;
+  return m % 2 ? sorted[mid] : (sorted[mid - 1] + sorted[mid]) / 2;
+}
+
+const MAX_GRID_POINTS = 50_000_000;
+
+/**
+ * Averages observations into bins of width Δ centred on the grid t0 + kΔ (k = round((t − t0)/Δ));
+ * empty bins are NaN (missing); non-finite values count as missing. Times need not be sorted.
+ * Cost O(n) plus O(n log n) if unsorted. Common practice (block averaging onto a regular grid).
+ */
+export function binToGrid(
+  time: Float64Array,
+  value: Float64Array,
+  interval: number,
+): { time: Float64Array; value: Float64Array; binnedBins: number } {
+  const n = time.length;
+  let t0 = Infinity, t1 = -Infinity;
+  for (let i = 0; i < n; i++) {
+    if (!Number.isFinite(time[i])) throw new AnalysisInputError(`time at observation ${i + 1} is not a finite number`, { index: i });
+    if (time[i] < t0) t0 = time[i];
+    if (time[i] > t1) t1 = time[i];
+  }
+  const bins = Math.round((t1 - t0) / interval) + 1;
+  if (bins > MAX_GRID_POINTS) {
+    throw new AnalysisInputError(`the record spans ${bins} sampling intervals of ${interval}; at most ${MAX_GRID_POINTS} are supported`);
+  }
+  const sum = new Float64Array(bins);
+  const cnt = new Uint32Array(bins);
+  for (let i = 0; i < n; i++) {
+    const v = value[i];
+    if (!Number.isFinite(v)) continue;
+    const k = Math.round((time[i] - t0) / interval);
+    sum[k] += v;
+    cnt[k]++;
+  }
+  const grid = new Float64Array(bins);
+  let binnedBins = 0;
+  for (let k = 0; k < bins; k++) {
+    grid[k] = t0 + k * interval;
+    if (cnt[k] > 1) binnedBins++;
+    sum[k] = cnt[k] > 0 ? sum[k] / cnt[k] : Number.NaN;
+  }
+  return { time: grid, value: sum, binnedBins };
+}
+
+/**
+ * Fills interior runs of at most maxGap missing points by linear interpolation between the points
+ * either side; missing points at the ends are left out. A longer run is an AnalysisInputError naming its
+ * instants, or with policy 'latest-stretch' the analysis keeps only the points after the last such run.
+ * Cost O(n). Common practice (short-gap linear interpolation).
+ */
+export function fillGaps(
+  time: Float64Array,
+  value: Float64Array,
+  maxGap: number,
+  policy: 'error' | 'latest-stretch',
+  kind: TimeKind,
+): { time: Float64Array; value: Float64Array; filledPoints: number; gaps: GapReport[]; droppedBeforeStretch: number; trimmedEnds: number } {
+  let a = 0;
+  let b = value.length;
+  while (a < b && Number.isNaN(value[a])) a++;
+  while (b > a && Number.isNaN(value[b - 1])) b--;
+  const trimmedEnds = value.length - (b - a);
+  if (a === b) throw new AnalysisInputError('the series has no numeric values');
+  const gaps: GapReport[] = [];
+  let start = a;
+  for (let i = a; i < b; ) {
+    if (!Number.isNaN(value[i])) {
+      i++;
+      continue;
+    }
+    let j = i;
+    while (Number.isNaN(value[j])) j++;
+    const points = j - i;
+    const filled = points <= maxGap;
+    gaps.push({ from: time[i], to: time[j - 1], points, filled });
+    if (!filled) {
+      if (policy === 'error') {
+        throw new AnalysisInputError(
+          `gap of ${points} missing points from ${formatInstant(time[i], kind)} to ${formatInstant(time[j - 1], kind)} is longer than maxGap = ${maxGap}`,
+          { time: time[i] },
+        );
+      }
+      start = j;
+    }
+    i = j;
+  }
+  const keptGaps = gaps.filter((g) => g.from >= time[start]);
+  const t = time.slice(start, b);
+  const v = value.slice(start, b);
+  let filledPoints = 0;
+  for (let i = 0; i < v.length; i++) {
+    if (!Number.isNaN(v[i])) continue;
+    let j = i;
+    while (Number.isNaN(v[j])) j++;
+    const left = v[i - 1];
+    const right = v[j];
+    for (let k = i; k < j; k++) v[k] = left + ((right - left) * (k - i + 1)) / (j - i + 1);
+    filledPoints += j - i;
+    i = j;
+  }
+  return { time: t, value: v, filledPoints, gaps: keptGaps, droppedBeforeStretch: start - a, trimmedEnds };
+}
+
+/** Natural logarithm of each value; a value ≤ 0 is an AnalysisInputError naming its instant. O(n). */
+export function logValues(time: Float64Array, value: Float64Array, kind: TimeKind): Float64Array {
+  const out = new Float64Array(value.length);
+  for (let i = 0; i < value.length; i++) {
+    if (!(value[i] > 0)) {
+      throw new AnalysisInputError(`log transform needs positive values; the value at ${formatInstant(time[i], kind)} is ${value[i]}`, { time: time[i] });
+    }
+    out[i] = Math.log(value[i]);
+  }
+  return out;
+}
+
+/**
+ * Removes a seasonal cycle: x_i − (mean of x over its season − mean of x), seasons being the UTC
+ * calendar month (12) or UTC day of year (1..366, 29 February its own day). The overall level is kept,
+ * so the cv denominator stays meaningful. Needs UTC-millisecond times. Cost O(n). Common practice
+ * (climatology anomalies, e.g. Wilks (2011), Statistical Methods in the Atmospheric Sciences, 3rd ed., Sec. 3.4.2, from memory).
+ */
+export function removeSeasonal(time: Float64Array, value: Float64Array, mode: 'month' | 'day-of-year', kind: TimeKind): Float64Array {
+  if (kind !== 'utc-ms') throw new AnalysisInputError('seasonal removal needs calendar timestamps (ISO 8601), not plain numeric times');
+  const groups = mode === 'month' ? 12 : 366;
+  const season = new Uint16Array(value.length);
+  for (let i = 0; i < value.length; i++) {
+    const d = new Date(time[i]);
+    season[i] =
+      mode === 'month'
+        ? d.getUTCMonth()
+        : Math.floor((time[i] - Date.UTC(d.getUTCFullYear(), 0, 1)) / 86_400_000);
+  }
+  const sum = new Float64Array(groups);
+  const cnt = new Float64Array(groups);
+  let total = 0;
+  for (let i = 0; i < value.length; i++) {
+    sum[season[i]] += value[i];
+    cnt[season[i]]++;
+    total += value[i];
+  }
+  const mean = total / value.length;
+  const out = new Float64Array(value.length);
+  for (let i = 0; i < value.length; i++) out[i] = value[i] - (sum[season[i]] / cnt[season[i]] - mean);
+  return out;
+}
+
+/**
+ * Preparation pipeline: sort by time, bin onto the sampling-interval grid (skipped when the record is
+ * already regular), keep the trailing span, fill short gaps (or keep the latest gap-free stretch), then
+ * log transform and seasonal removal. Cost O(n) (O(n log n) when times are unsorted).
+ */
+export function prepareSeries(
+  input: { time: Float64Array; value: Float64Array; intervalMs?: number; timeKind?: TimeKind },
+  opts: { maxGap: number; gapPolicy: 'error' | 'latest-stretch'; spanPoints: number | null; logTransform: boolean; seasonal: 'none' | 'month' | 'day-of-year' },
+): { time: Float64Array; value: Float64Array; interval: number; quality: PreparationQuality } {
+  const kind = input.timeKind ?? 'utc-ms';
+  if (input.time.length !== input.value.length) {
+    throw new AnalysisInputError(`time has ${input.time.length} entries but value has ${input.value.length}`);
+  }
+  if (input.time.length < 2) throw new AnalysisInputError(`the series has ${input.time.length} observation(s); at least 8 are needed`);
+  let time = input.time;
+  let value = input.value;
+  for (let i = 1; i < time.length; i++) {
+    if (time[i] < time[i - 1]) {
+      const order = Array.from({ length: time.length }, (_, k) => k).sort((p, q) => input.time[p] - input.time[q]);
+      time = Float64Array.from(order, (k) => input.time[k]);
+      value = Float64Array.from(order, (k) => input.value[k]);
+      break;
+    }
+  }
+  const interval = input.intervalMs ?? inferInterval(time);
+  if (!(interval > 0)) throw new AnalysisInputError(`sampling interval must be positive (got ${interval})`);
+  let regular = true;
+  for (let i = 1; i < time.length && regular; i++) {
+    if (Math.abs(time[i] - time[0] - i * interval) > 1e-6 * interval) regular = false;
+  }
+  let binnedBins = 0;
+  if (!regular) {
+    const g = binToGrid(time, value, interval);
+    time = g.time;
+    value = g.value;
+    binnedBins = g.binnedBins;
+  }
+  let droppedBeforeSpan = 0;
+  if (opts.spanPoints !== null && opts.spanPoints < time.length) {
+    droppedBeforeSpan = time.length - opts.spanPoints;
+    time = time.subarray(droppedBeforeSpan);
+    value = value.subarray(droppedBeforeSpan);
+  }
+  const filled = fillGaps(time, value, opts.maxGap, opts.gapPolicy, kind);
+  let v = filled.value;
+  if (opts.logTransform) v = logValues(filled.time, v, kind);
+  if (opts.seasonal !== 'none') v = removeSeasonal(filled.time, v, opts.seasonal, kind);
+  return {
+    time: filled.time,
+    value: v,
+    interval,
+    quality: {
+      observations: input.time.length,
+      binnedBins,
+      filledPoints: filled.filledPoints,
+      gaps: filled.gaps,
+      droppedBeforeStretch: filled.droppedBeforeStretch,
+      trimmedEnds: filled.trimmedEnds,
+      droppedBeforeSpan,
+    },
+  };
+}

@@ -1,0 +1,46 @@
+import { z } from 'zod';
+import { DETREND_METHODS } from './detrend';
+
+/** The rolling indicators the engine computes (see README, "Indicator definitions"). */
+export const INDICATOR_NAMES = ['variance', 'sd', 'cv', 'ac1', 'skewness', 'kurtosis', 'recovery'] as const;
+export type IndicatorName = (typeof INDICATOR_NAMES)[number];
+
+export const SURROGATE_METHODS = ['ar1', 'phase'] as const;
+export type SurrogateMethod = (typeof SURROGATE_METHODS)[number];
+
+/**
+ * Settings of one analysis. Every field has a default, so `analysisSettingsSchema.parse({})` gives the
+ * engine defaults (the command line's defaults).
+ */
+export const analysisSettingsSchema = z.object({
+  detrend: z.enum(DETREND_METHODS).default('gaussian'),
+  /** Gaussian kernel bandwidth as a fraction of the series length (h = bandwidth · n points). */
+  bandwidth: z.number().positive().max(100).default(0.1),
+  /** Width of the centred moving average, in points (odd). */
+  movingAverageWidth: z
+    .number()
+    .int()
+    .min(3)
+    .refine((v) => v % 2 === 1, { message: 'must be odd' })
+    .default(11),
+  /** Rolling window as a fraction of the series length (w = round(window · n) points, at least 8). */
+  window: z.number().positive().max(1).default(0.5),
+  indicators: z
+    .array(z.enum(INDICATOR_NAMES))
+    .min(1)
+    .transform((list) => INDICATOR_NAMES.filter((name) => list.includes(name)))
+    .default([...INDICATOR_NAMES]),
+  surrogates: z.number().int().min(0).max(100000).default(0),
+  surrogateMethod: z.enum(SURROGATE_METHODS).default('ar1'),
+  seed: z.number().int().default(1),
+  seasonal: z.enum(['none', 'month', 'day-of-year']).default('none'),
+  logTransform: z.boolean().default(false),
+  /** Longest run of missing grid points filled by linear interpolation. */
+  maxGap: z.number().int().min(0).default(3),
+  gapPolicy: z.enum(['error', 'latest-stretch']).default('error'),
+  /** Analyse only the trailing span of this many grid points (null = whole record). */
+  spanPoints: z.number().int().min(8).nullable().default(null),
+  sensitivity: z.boolean().default(false),
+});
+
+export type AnalysisSettings = z.infer<typeof analysisSettingsSchema>;

@@ -1,0 +1,125 @@
+import { accurateMean } from './detrend';
+import { dft } from './fft';
+import { indicatorTrends } from './kendall';
+import { RandomStream } from './random';
+import { rollingIndicators, windowMoments } from './rolling';
+import type { IndicatorName, SurrogateMethod } from './settings';
+
+/** Everything needed to draw surrogates and score them; plain data, so it can be posted to a worker. */
+export interface SurrogateJob {
+  method: SurrogateMethod;
+  n: number;
+  seed: number;
+  w: number;
+  dt: number;
+  indicators: IndicatorName[];
+  /** Rolling mean of the observed raw values (the cv denominator is kept from the observed series). */
+  rawMean: Float64Array | null;
+  ar1: { phi: number; innovationSd: number; mean: number } | null;
+  /** DFT of the residual (phase method). */
+  spectrum: { re: Float64Array; im: Float64Array } | null;
+}
+
+/**
+ * AR(1) fit to a residual series: φ = r(1) (the NIST StRD lag-1 autocorrelation, a Yule–Walker
+ * estimate), innovation variance σ² = s²(1 − φ²) with s² the sample variance (denominator n − 1), mean
+ * kept. O(n). Source: Box, Jenkins, Reinsel & Ljung (2015), Time Series Analysis, 5th ed., Ch. 3 and 7
+ * (from memory).
+ */
+export function fitAr1(r: Float64Array): { phi: number; innovationSd: number; mean: number } {
+  const n = r.length;
+  const mean = accurateMean(r);
+  let num = 0, den = 0;
+  for (let i = 0; i < n; i++) {
+    const d = r[i] - mean;
+    den += d * d;
+    if (i + 1 < n) num += d * (r[i + 1] - mean);
+  }
+  const phi = den > 0 ? Math.max(-0.999999, Math.min(0.999999, num / den)) : 0;
+  const variance = n > 1 ? den / (n - 1) : 0;
+  return { phi, innovationSd: Math.sqrt(variance * (1 - phi * phi)), mean };
+}
+
+/** Surrogate job for the residual series (fits the AR(1) model or takes the spectrum). O(n), O(n log n) for phase. */
+export function prepareSurrogateJob(
+  residual: Float64Array,
+  raw: Float64Array,
+  base: { method: SurrogateMethod; seed: number; w: number; dt: number; indicators: IndicatorName[] },
+): SurrogateJob {
+  return {
+    ...base,
+    n: residual.length,
+    rawMean: base.indicators.includes('cv') ? windowMoments(raw, base.w).mean : null,
+    ar1: base.method === 'ar1' ? fitAr1(residual) : null,
+    spectrum: base.method === 'phase' ? dft(residual, new Float64Array(residual.length)) : null,
+  };
+}
+
+/**
+ * Surrogate number `index` of a job, from its own random stream (seed, index).
+ * ar1: x_0 ~ N(μ, σ²/(1−φ²)) (stationary start), x_t = μ + φ(x_{t−1} − μ) + σ ε_t.
+ * phase: X̃_k = |X_k| e^{iθ_k} with θ_k uniform on [0, 2π) for 0 < k < n/2, X̃_{n−k} = conj X̃_k; the mean
+ * (k = 0) and, for even n, the Nyquist term are kept, so the periodogram is unchanged.
+ * Cost O(n) for ar1, O(n log n) for phase. Sources: Theiler et al. (1992), "Testing for nonlinearity in
+ * time series: the method of surrogate data", Physica D 58, 77–94; Gillespie (1996), Phys. Rev. E 54, 2084.
+ */
+export function makeSurrogate(job: SurrogateJob, index: number): Float64Array {
+  const rng = new RandomStream(job.seed, index);
+  const n = job.n;
+  if (job.method === 'ar1') {
+    const { phi, innovationSd, mean } = job.ar1!;
+    const out = new Float64Array(n);
+    let x = (innovationSd / Math.sqrt(1 - phi * phi)) * rng.normal();
+    for (let t = 0; t < n; t++) {
+      if (t > 0) x = phi * x + innovationSd * rng.normal();
+      out[t] = mean + x;
+    }
+    return out;
+  }
+  const { re, im } = job.spectrum!;
+  const sr = new Float64Array(n);
+  const si = new Float64Array(n);
+  sr[0] = re[0];
+  for (let k = 1; 2 * k < n; k++) {
+    const amp = Math.hypot(re[k], im[k]);
+    const theta = 2 * Math.PI * rng.uniform();
+    sr[k] = amp * Math.cos(theta);
+    si[k] = amp * Math.sin(theta);
+    sr[n - k] = sr[k];
+    si[n - k] = -si[k];
+  }
+  if (n % 2 === 0) sr[n / 2] = re[n / 2];
+  return dft(sr, si, true).re;
+}
+
+/**
+ * Kendall tau of each indicator for surrogates from..to−1 (NaN where undefined). Each surrogate goes
+ * through the same rolling indicators and Kendall tau as the observed residual. Cost O((to−from)·n log n).
+ */
+export function surrogateTaus(job: SurrogateJob, from: number, to: number): Record<string, Float64Array> {
+  const out: Record<string, Float64Array> = {};
+  for (const name of job.indicators) out[name] = new Float64Array(to - from);
+  for (let i = from; i < to; i++) {
+    const series = makeSurrogate(job, i);
+    const ind = rollingIndicators(series, job.w, job.indicators, { rawMean: job.rawMean ?? undefined, dt: job.dt });
+    const trends = indicatorTrends(ind);
+    for (const name of job.indicators) out[name][i - from] = trends[name]!.tau;
+  }
+  return out;
+}
+
+/**
+ * One-sided surrogate p-value p = (1 + #{τ_s ≥ τ_obs})/(N + 1) over the N surrogates with a defined τ
+ * (null when τ_obs is undefined or no surrogate has one). O(N). Source: Davison & Hinkley (1997),
+ * Bootstrap Methods and their Application, Sec. 4.2.1 (Monte Carlo p-value) (from memory).
+ */
+export function surrogatePValue(observed: number, taus: Float64Array): { p: number | null; count: number } {
+  let count = 0, above = 0;
+  for (const t of taus) {
+    if (!Number.isFinite(t)) continue;
+    count++;
+    if (t >= observed) above++;
+  }
+  if (!Number.isFinite(observed) || count === 0) return { p: null, count };
+  return { p: (1 + above) / (count + 1), count };
+}
