@@ -1,0 +1,390 @@
+import { analysisSettingsSchema, type AnalysisSettings, type IndicatorName } from '@/lib/engine/settings';
+import type { SeriesCreateInput } from '@/lib/schemas/series';
+import {
+  cessiFolds,
+  grazingFolds,
+  simulateAr1,
+  simulateCessi,
+  simulateDoubleWell,
+  simulateDrift,
+  simulateGrazing,
+  simulateSeasonal,
+  type ForcedRun,
+  type GrazingParameters,
+} from './models';
+
+/**
+ * The demo: an invented observing network (every place and station name is fictional) whose records are
+ * generated from published models with one fixed seed. Values depend only on DEMO_SEED, except the
+ * phase of the seasonal series, which follows the calendar of the record's end day.
+ */
+
+export const DEMO_SEED = 730_519;
+
+export const DEMO_NETWORK = {
+  name: 'Veskary Basin Observing Network',
+  description:
+    'A fictional network of four stations, seeded as demo data. Every record is synthetic, simulated from a ' +
+    'published model with a fixed random seed; none is a measurement. Early-warning indicators are statistical ' +
+    'evidence, not forecasts: decisions on public safety, water supply or ecosystems rest with the responsible ' +
+    'authorities and local rules.',
+} as const;
+
+export const DEMO_SITES = {
+  mooring: 'Veskary Sound Mooring',
+  lake: 'Orlemere Lake Station',
+  fen: 'Brandwhistle Fen Plot',
+  ridge: 'Kestrith Ridge Climate Station',
+} as const;
+
+const HOUR_MS = 3_600_000;
+const DAY_MS = 24 * HOUR_MS;
+
+/** A rule to create on a demo series: the fields of the AlertRule model (seriesId and createdBy are set by the seed). */
+export interface DemoRule {
+  indicator: IndicatorName;
+  minTau: number;
+  maxSurrogateP: number | null;
+  maxKendallP: number | null;
+  levelThreshold: number | null;
+  levelDirection: 'above' | 'below';
+  persistence: number;
+  severity: 'watch' | 'warning';
+  quietPeriodHours: number;
+  fdrLevel: number | null;
+}
+
+/** A marked transition: the sample where it lies and its instant (UTC ms) in the built record. */
+export interface DemoTransition {
+  index: number;
+  at: number;
+  note: string;
+}
+
+export interface DemoSeries {
+  /** Everything `createSeries` takes; settings already parsed by analysisSettingsSchema. */
+  input: SeriesCreateInput & { slug: string; intervalMs: number; settings: AnalysisSettings };
+  /** Short name of the generating model, for listings. */
+  model: string;
+  /** Sample instants, UTC ms, one interval apart, the last at the record's end. */
+  times: Float64Array;
+  /** Values at those instants; NaN marks a missing sample (no observation is stored). */
+  values: Float64Array;
+  transitions: DemoTransition[];
+  rules: DemoRule[];
+}
+
+/** The record's last instant: the start (00:00 UTC) of the day that contains `now`. */
+export function demoRecordEnd(now: Date): number {
+  return Math.floor(now.getTime() / DAY_MS) * DAY_MS;
+}
+
+const rule = (fields: Partial<DemoRule> & Pick<DemoRule, 'indicator' | 'minTau' | 'severity'>): DemoRule => ({
+  maxSurrogateP: null,
+  maxKendallP: null,
+  levelThreshold: null,
+  levelDirection: 'above',
+  persistence: 1,
+  quietPeriodHours: 24,
+  fdrLevel: null,
+  ...fields,
+});
+
+/** Rising memory and rising variance, the two classic signs of critical slowing down, judged against surrogates. */
+const SLOWING_DOWN_RULES: DemoRule[] = [
+  rule({ indicator: 'ac1', minTau: 0.5, maxSurrogateP: 0.05, persistence: 2, severity: 'warning', quietPeriodHours: 72 }),
+  rule({ indicator: 'variance', minTau: 0.4, maxSurrogateP: 0.1, severity: 'watch' }),
+];
+
+/** For records where strong memory itself is the concern: ac1 already high and still rising. */
+const HIGH_MEMORY_RULE = rule({ indicator: 'ac1', minTau: 0.3, maxKendallP: 0.01, levelThreshold: 0.9, severity: 'watch', quietPeriodHours: 48 });
+
+/** Controls carry the same rules as the watched records, so a firing on them shows the false-alarm rate. */
+const CONTROL_RULES: DemoRule[] = [
+  SLOWING_DOWN_RULES[0],
+  rule({ indicator: 'sd', minTau: 0.4, maxSurrogateP: 0.05, severity: 'watch', quietPeriodHours: 48 }),
+];
+
+interface SeriesPlan {
+  slug: string;
+  name: string;
+  site: string;
+  unit: string;
+  description: string;
+  model: string;
+  timeZone: string;
+  intervalMs: number;
+  n: number;
+  settings: Partial<AnalysisSettings>;
+  rules: DemoRule[];
+  /** Values of the record (NaN = missing) and, for forced runs, the run itself. */
+  generate: (start: number) => { values: Float64Array; run?: ForcedRun };
+  /**
+   * For a run forced through its fold: the transition is marked at the fold instant of the deterministic
+   * part (known exactly, whatever the noise did); `crossed` tells when the record has passed the unstable
+   * branch, so the note can say how far the simulated jump lies from the fold.
+   */
+  transition?: { crossed: (value: number) => boolean; note: (when: string) => string };
+}
+
+/**
+ * Model units to the series' unit (scale × model value), rounded to the resolution a logger would write;
+ * NaN (a missing sample) stays NaN.
+ */
+function toUnits(x: Float64Array, scale: number, decimals: number): Float64Array {
+  const out = new Float64Array(x.length);
+  const f = 10 ** decimals;
+  for (let i = 0; i < x.length; i++) out[i] = Math.round(scale * x[i] * f) / f;
+  return out;
+}
+
+function foldMark(plan: SeriesPlan, run: ForcedRun, values: Float64Array): { index: number; note: string } {
+  const index = Math.round(run.foldIndex);
+  const jump = values.findIndex(plan.transition!.crossed);
+  const steps = jump - index;
+  const unit = plan.intervalMs === DAY_MS ? 'day' : 'sample';
+  const plural = (k: number) => `${k} ${unit}${k === 1 ? '' : 's'}`;
+  const when = jump < 0 ? 'only after the record ends' : steps === 0 ? 'at the fold instant' : steps > 0 ? `${plural(steps)} later` : `${plural(-steps)} earlier`;
+  return { index, note: plan.transition!.note(when) };
+}
+
+const CESSI = { mu2: 6.2, p0: 0.6, sigma: 0.05, n: 4000, dt: 0.05, foldAt: 0.9 };
+const GRAZING: GrazingParameters = { r: 1, K: 10, h: 1 };
+const LAKE_STOCK = { n: 3000, dt: 0.1, c0: 1.0, sigma: 0.1, foldAt: 0.85 };
+const FEN = { n: 3000, dt: 0.1, c0: 1.2, sigma: 0.05, endShare: 0.97 };
+const CESSI_FOLDS = cessiFolds(CESSI.mu2);
+const GRAZING_FOLDS = grazingFolds(GRAZING);
+
+/** Day of the year (0-based, UTC) of an instant, as a fraction of the mean Gregorian year. */
+function yearFraction(t: number): number {
+  const d = new Date(t);
+  return (t - Date.UTC(d.getUTCFullYear(), 0, 1)) / DAY_MS / 365.2425;
+}
+
+const PLANS: SeriesPlan[] = [
+  {
+    slug: 'veskary-salinity-contrast',
+    name: 'Salinity contrast, subpolar minus subtropical box',
+    site: DEMO_SITES.mooring,
+    unit: 'psu',
+    description:
+      'Synthetic demo data: the salinity contrast of a two-box overturning circulation under slowly rising ' +
+      'freshwater input, simulated from Cessi’s (1994) stochastic box model (J. Phys. Oceanogr. 24, 1911–1920) ' +
+      'with a seeded generator. The forcing passes the model’s fold and the circulation collapses near the end of the record.',
+    model: 'Cessi (1994) two-box thermohaline model',
+    timeZone: 'UTC',
+    intervalMs: DAY_MS,
+    n: CESSI.n,
+    settings: { surrogates: 199, seed: 11 },
+    rules: [...SLOWING_DOWN_RULES, HIGH_MEMORY_RULE],
+    generate: () => {
+      const rate = (CESSI_FOLDS.rising.p - CESSI.p0) / (CESSI.foldAt * (CESSI.n - 1) * CESSI.dt);
+      const run = simulateCessi({ ...CESSI, rate, substeps: 10, seed: DEMO_SEED, stream: 1 });
+      return { values: toUnits(run.values, 2.5, 4), run };
+    },
+    transition: {
+      crossed: (v) => v > 2.5 * ((CESSI_FOLDS.rising.y + CESSI_FOLDS.falling.y) / 2),
+      note: (when) =>
+        `Freshwater forcing reaches the saddle-node fold of the deterministic model (p = ${CESSI_FOLDS.rising.p.toFixed(4)}, μ² = ${CESSI.mu2}); the simulated contrast crosses the unstable branch ${when}.`,
+    },
+  },
+  {
+    slug: 'veskary-deep-temperature',
+    name: 'Deep water temperature, 1,800 m',
+    site: DEMO_SITES.mooring,
+    unit: '°C',
+    description:
+      'Synthetic demo data: a stationary control, simulated as a Gaussian AR(1) process (Box & Jenkins) with a ' +
+      'seeded generator, hourly. Nothing approaches a transition here; an alert on it is a false alarm.',
+    model: 'stationary AR(1), φ = 0.6',
+    timeZone: 'UTC',
+    intervalMs: HOUR_MS,
+    n: 4800,
+    settings: { surrogates: 99, seed: 12 },
+    rules: CONTROL_RULES,
+    generate: () => ({ values: toUnits(simulateAr1({ n: 4800, phi: 0.6, sigma: 0.004, mean: 3.82, seed: DEMO_SEED, stream: 2 }), 1, 4) }),
+  },
+  {
+    slug: 'orlemere-whitefish-stock',
+    name: 'Whitefish spawning stock',
+    site: DEMO_SITES.lake,
+    unit: 't',
+    description:
+      'Synthetic demo data: a fished stock under a steadily rising catch, simulated from May’s (1977) harvested-' +
+      'population model (Nature 269, 471–477) with environmental noise and a seeded generator. The harvest passes ' +
+      'the model’s fold and the stock collapses to its depleted state.',
+    model: 'May (1977) harvested population',
+    timeZone: 'Europe/Oslo',
+    intervalMs: DAY_MS,
+    n: LAKE_STOCK.n,
+    settings: { surrogates: 199, seed: 13 },
+    rules: SLOWING_DOWN_RULES,
+    generate: () => {
+      const rate = (GRAZING_FOLDS.collapse.c - LAKE_STOCK.c0) / (LAKE_STOCK.foldAt * (LAKE_STOCK.n - 1) * LAKE_STOCK.dt);
+      const run = simulateGrazing({ ...GRAZING, ...LAKE_STOCK, rate, substeps: 10, seed: DEMO_SEED, stream: 3 });
+      return { values: toUnits(run.values, 12, 2), run };
+    },
+    transition: {
+      crossed: (v) => v < 12 * ((GRAZING_FOLDS.collapse.x + GRAZING_FOLDS.recovery.x) / 2),
+      note: (when) =>
+        `Harvest rate reaches the fold of the deterministic model (c = ${GRAZING_FOLDS.collapse.c.toFixed(4)} with r = 1, K = 10, h = 1); the simulated stock falls below the unstable branch ${when}.`,
+    },
+  },
+  {
+    slug: 'orlemere-surface-temperature',
+    name: 'Lake surface temperature',
+    site: DEMO_SITES.lake,
+    unit: '°C',
+    description:
+      'Synthetic demo data: an annual cycle over AR(1) weather noise, daily, with missing days (short gaps of up to ' +
+      'three days and one three-week logger outage early on), simulated with a seeded generator. Analysed after ' +
+      'removing the day-of-year mean, on the latest stretch without a long gap.',
+    model: 'annual sinusoid + AR(1) noise, with gaps',
+    timeZone: 'Europe/Oslo',
+    intervalMs: DAY_MS,
+    n: 5000,
+    settings: { surrogates: 99, seed: 14, seasonal: 'day-of-year', maxGap: 3, gapPolicy: 'latest-stretch' },
+    rules: CONTROL_RULES,
+    generate: (start) => {
+      // Peak in early August (day 213), as in a northern temperate lake.
+      const phaseAtStart = (((yearFraction(start) - 213 / 365.2425 + 0.25) % 1) + 1) % 1;
+      const x = simulateSeasonal({
+        n: 5000, phi: 0.7, sigma: 0.6, mean: 10.5, amplitude: 7, samplesPerCycle: 365.2425, phaseAtStart,
+        shortGapRate: 0.01, maxShortGap: 3, longGap: { start: 420, length: 21 }, seed: DEMO_SEED, stream: 4,
+      });
+      return { values: toUnits(x, 1, 2) };
+    },
+  },
+  {
+    slug: 'orlemere-oxygen-probe',
+    name: 'Dissolved oxygen, drifting probe',
+    site: DEMO_SITES.lake,
+    unit: 'mg/L',
+    description:
+      'Synthetic demo data: a stationary AR(1) signal (Box & Jenkins) read through a probe whose fouling lowers the ' +
+      'reading linearly, simulated with a seeded generator. After linear detrending the drift is gone; an alert ' +
+      'here would be a false alarm caused by the instrument.',
+    model: 'stationary AR(1) + linear sensor drift',
+    timeZone: 'Europe/Oslo',
+    intervalMs: DAY_MS,
+    n: 2500,
+    settings: { surrogates: 99, seed: 15, detrend: 'linear' },
+    rules: CONTROL_RULES,
+    generate: () => ({
+      values: toUnits(simulateDrift({ n: 2500, phi: 0.5, sigma: 0.15, mean: 10.4, driftPerSample: -0.0008, seed: DEMO_SEED, stream: 5 }), 1, 3),
+    }),
+  },
+  {
+    slug: 'brandwhistle-sedge-biomass',
+    name: 'Sedge biomass under grazing',
+    site: DEMO_SITES.fen,
+    unit: 'g/m²',
+    description:
+      'Synthetic demo data: standing biomass under steadily rising grazing pressure, simulated from May’s (1977) ' +
+      'grazing model (Nature 269, 471–477) with environmental noise and a seeded generator. The grazing rate is ' +
+      'still just below the model’s fold at the end of the record: the transition has not happened yet.',
+    model: 'May (1977) grazing model, approaching its fold',
+    timeZone: 'Europe/London',
+    intervalMs: DAY_MS,
+    n: FEN.n,
+    settings: { surrogates: 199, seed: 16 },
+    rules: [...SLOWING_DOWN_RULES, HIGH_MEMORY_RULE],
+    generate: () => {
+      const rate = (FEN.endShare * GRAZING_FOLDS.collapse.c - FEN.c0) / ((FEN.n - 1) * FEN.dt);
+      const run = simulateGrazing({ ...GRAZING, ...FEN, rate, substeps: 10, seed: DEMO_SEED, stream: 6 });
+      return { values: toUnits(run.values, 40, 1), run };
+    },
+  },
+  {
+    slug: 'brandwhistle-water-table',
+    name: 'Water table depth',
+    site: DEMO_SITES.fen,
+    unit: 'cm',
+    description:
+      'Synthetic demo data: a stationary control with strong memory, simulated as a Gaussian AR(1) process ' +
+      '(Box & Jenkins) with a seeded generator. High autocorrelation that does not rise is no early warning.',
+    model: 'stationary AR(1), φ = 0.85',
+    timeZone: 'Europe/London',
+    intervalMs: DAY_MS,
+    n: 2000,
+    settings: { surrogates: 99, seed: 17 },
+    rules: CONTROL_RULES,
+    generate: () => ({ values: toUnits(simulateAr1({ n: 2000, phi: 0.85, sigma: 1.2, mean: -24, seed: DEMO_SEED, stream: 7 }), 1, 1) }),
+  },
+  {
+    slug: 'kestrith-temperature-anomaly',
+    name: 'Surface temperature anomaly',
+    site: DEMO_SITES.ridge,
+    unit: 'K',
+    description:
+      'Synthetic demo data: a bistable energy-balance (double-well) climate with weak periodic forcing and noise ' +
+      'that flickers between a cold and a warm state, simulated with a seeded generator (stochastic resonance: ' +
+      'Benzi, Sutera & Vulpiani 1981, J. Phys. A 14, L453). Flickering is not a slow approach to a fold.',
+    model: 'double-well energy balance with periodic forcing',
+    timeZone: 'Europe/Helsinki',
+    intervalMs: DAY_MS,
+    n: 3650,
+    settings: { surrogates: 99, seed: 18 },
+    rules: SLOWING_DOWN_RULES,
+    generate: () => ({
+      values: toUnits(simulateDoubleWell({ n: 3650, dt: 0.25, substeps: 10, amplitude: 0.12, period: 66, sigma: 0.5, x0: -1, seed: DEMO_SEED, stream: 8 }), 1.8, 3),
+    }),
+  },
+  {
+    slug: 'kestrith-station-pressure',
+    name: 'Station pressure',
+    site: DEMO_SITES.ridge,
+    unit: 'hPa',
+    description:
+      'Synthetic demo data: a stationary control, simulated as a Gaussian AR(1) process (Box & Jenkins) with a ' +
+      'seeded generator. Nothing approaches a transition here; an alert on it is a false alarm.',
+    model: 'stationary AR(1), φ = 0.3',
+    timeZone: 'Europe/Helsinki',
+    intervalMs: DAY_MS,
+    n: 1500,
+    settings: { surrogates: 99, seed: 19 },
+    rules: CONTROL_RULES,
+    generate: () => ({ values: toUnits(simulateAr1({ n: 1500, phi: 0.3, sigma: 4, mean: 912, seed: DEMO_SEED, stream: 9 }), 1, 1) }),
+  },
+];
+
+/** Slugs of the demo series, in seeding order. */
+export const DEMO_SERIES_SLUGS: readonly string[] = PLANS.map((plan) => plan.slug);
+
+/**
+ * Builds the whole demo network with records ending at `demoRecordEnd(now)`: each series' create input,
+ * sample instants and values, marked transitions and alert rules. Deterministic for a given end day.
+ * Cost O(total samples × substeps), a few milliseconds.
+ */
+export function buildDemoScenario(now: Date = new Date()): DemoSeries[] {
+  const end = demoRecordEnd(now);
+  return PLANS.map((plan) => {
+    const start = end - (plan.n - 1) * plan.intervalMs;
+    const times = new Float64Array(plan.n);
+    for (let i = 0; i < plan.n; i++) times[i] = start + i * plan.intervalMs;
+    const { values, run } = plan.generate(start);
+    const marks = run && plan.transition ? [foldMark(plan, run, values)] : [];
+    return {
+      input: {
+        slug: plan.slug,
+        name: plan.name,
+        site: plan.site,
+        unit: plan.unit,
+        description: plan.description,
+        intervalMs: plan.intervalMs,
+        timeZone: plan.timeZone,
+        settings: analysisSettingsSchema.parse(plan.settings),
+      },
+      model: plan.model,
+      times,
+      values,
+      transitions: marks.map((mark) => ({ ...mark, at: start + mark.index * plan.intervalMs })),
+      rules: plan.rules,
+    };
+  });
+}
+
+/** The marked transitions of the demo network for records ending on `now`'s day, by series slug. */
+export function demoTransitions(now: Date = new Date()): { slug: string; at: number; index: number; note: string }[] {
+  return buildDemoScenario(now).flatMap((series) => series.transitions.map((mark) => ({ slug: series.input.slug, ...mark })));
+}
