@@ -1,4 +1,8 @@
 import type { ScheduledJob } from './types';
+import { analysisJob } from './analysis';
+import { mailJob } from './mail';
+import { digestJob } from './digest';
+import { backtestJob } from './backtest';
 
 /** Every scheduled job of the product, in one list; the scheduler runs each on its own cron expression. */
-export const JOBS: ScheduledJob[] = [];
+export const JOBS: ScheduledJob[] = [analysisJob, mailJob, digestJob, backtestJob];

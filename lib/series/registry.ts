@@ -4,6 +4,7 @@ import { ConflictError, NotFoundError } from '@/lib/http/errors';
 import { recordAudit } from '@/lib/audit';
 import type { Actor } from '@/lib/auth/guard';
 import { seriesCreateSchema, type SeriesCreateInput } from '@/lib/schemas/series';
+import { applyDefaultRules } from '@/lib/alerts/rules';
 
 /** The public shape of a series record (what the API returns). */
 export function presentSeries(series: Series) {
@@ -49,6 +50,7 @@ export async function createSeries(input: SeriesCreateInput, actor: Pick<Actor, 
     return await writeTransaction(async (transaction) => {
       const series = await Series.create({ ...fields, retiredAt: null, dataChangedAt: null }, { transaction });
       await SettingsChange.create({ seriesId: series.id, settings: fields.settings, changedBy: actor?.id ?? null }, { transaction });
+      await applyDefaultRules(series.id, transaction);
       await recordAudit({ actorId: actor?.id ?? null, action: 'series.create', entity: 'series', entityId: series.id, details: { slug: series.slug } }, transaction);
       return series;
     });

@@ -1,0 +1,46 @@
+import { Op } from 'sequelize';
+import { AnalysisSnapshot, Series, db } from '@/models';
+import { cronSetting } from '@/lib/config';
+import { withLease } from '@/lib/leases';
+import { refreshSeriesAnalysis } from '@/lib/analysis/snapshot';
+import { evaluateSnapshots } from '@/lib/alerts/evaluate';
+import type { ScheduledJob } from './types';
+
+/** Long enough for a large record with thousands of surrogates; the lease is renewed while the work runs. */
+const LEASE_MS = 10 * 60_000;
+
+/**
+ * One analysis cycle: every series marked `needsAnalysis` gets a fresh snapshot, under a per-series lease so two
+ * schedulers never analyse one series at once. The flag is cleared only if no data arrived while the engine ran
+ * (dataChangedAt unchanged); otherwise the next cycle analyses again. All fresh snapshots are then judged
+ * together by the alert rules.
+ */
+export async function runAnalysisCycle(): Promise<{ analysed: number; snapshots: AnalysisSnapshot[] }> {
+  await db();
+  const due = await Series.findAll({ where: { needsAnalysis: true, retiredAt: null }, attributes: ['id'], order: [['id', 'ASC']] });
+  const fresh: AnalysisSnapshot[] = [];
+  for (const { id } of due) {
+    const snapshot = await withLease(`analysis:${id}`, LEASE_MS, async () => {
+      const series = await Series.findByPk(id);
+      if (!series || !series.needsAnalysis) return null;
+      const seen = series.dataChangedAt;
+      const result = await refreshSeriesAnalysis(series, { parallel: true });
+      await Series.update(
+        { needsAnalysis: false },
+        { where: { id, needsAnalysis: true, dataChangedAt: seen === null ? { [Op.is]: null } : seen } },
+      );
+      return result;
+    });
+    if (snapshot) fresh.push(snapshot);
+  }
+  if (fresh.length) await evaluateSnapshots(fresh);
+  return { analysed: fresh.length, snapshots: fresh };
+}
+
+export const analysisJob: ScheduledJob = {
+  name: 'analysis',
+  schedule: () => cronSetting('ANALYSIS_CRON'),
+  run: async () => {
+    await runAnalysisCycle();
+  },
+};

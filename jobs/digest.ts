@@ -1,0 +1,12 @@
+import { cronSetting } from '@/lib/config';
+import { withLease } from '@/lib/leases';
+import { enqueueDigests } from '@/lib/mail/digest';
+import type { ScheduledJob } from './types';
+
+export const digestJob: ScheduledJob = {
+  name: 'digest',
+  schedule: () => cronSetting('DIGEST_CRON'),
+  run: async () => {
+    await withLease('digest', 10 * 60_000, () => enqueueDigests());
+  },
+};

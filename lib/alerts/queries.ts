@@ -1,0 +1,201 @@
+import { QueryTypes } from 'sequelize';
+import { Alert, AlertEvent, AlertRule, AnalysisSnapshot, Note, NoteRevision, RuleEvaluation, Series, User, db, type AlertState } from '@/models';
+import { NotFoundError } from '@/lib/http/errors';
+import type { Actor } from '@/lib/auth/guard';
+import { sqlDate } from '@/lib/db/sql-date';
+import { presentRule } from './rules';
+import { allowedActions } from './triage';
+import type { AlertQueue, AlertQueueQuery } from '@/lib/schemas/alert';
+
+/** Which states each queue shows; "mine" is open alerts assigned to the asking user. */
+export const QUEUE_STATES: Record<AlertQueue, AlertState[]> = {
+  triage: ['new', 'acknowledged'],
+  escalated: ['escalated'],
+  mine: ['new', 'acknowledged', 'escalated'],
+  closed: ['confirmed', 'dismissed'],
+  all: ['new', 'acknowledged', 'escalated', 'confirmed', 'dismissed'],
+};
+
+const ORDER: Record<AlertQueueQuery['sort'], string> = {
+  newest: 'a.created_at DESC, a.id DESC',
+  oldest: 'a.created_at ASC, a.id ASC',
+  severity: "CASE a.severity WHEN 'warning' THEN 0 ELSE 1 END, a.created_at DESC, a.id DESC",
+  tau: 'a.peak_tau IS NULL, a.peak_tau DESC, a.id DESC',
+  updated: 'a.updated_at DESC, a.id DESC',
+};
+
+export interface AlertListItem {
+  id: number;
+  state: AlertState;
+  severity: string;
+  version: number;
+  series: { id: number; slug: string; name: string };
+  rule: { id: number; indicator: string };
+  assignee: { id: number; name: string } | null;
+  peakTau: number | null;
+  latest: { tau: number | null; surrogateP: number | null; kendallP: number | null };
+  evaluationCount: number;
+  dismissReason: string | null;
+  createdAt: string;
+  updatedAt: string;
+  closedAt: string | null;
+}
+
+function where(query: Omit<AlertQueueQuery, 'page' | 'pageSize' | 'sort'>, actor: Pick<Actor, 'id'>, queue: AlertQueue, now: number) {
+  const states = query.state ? QUEUE_STATES[queue].filter((s) => s === query.state) : QUEUE_STATES[queue];
+  const clauses = [states.length ? `a.state IN (${states.map((s) => `'${s}'`).join(', ')})` : '0'];
+  const replacements: Record<string, unknown> = {};
+  if (queue === 'mine') {
+    clauses.push('a.assignee_id = :me');
+    replacements.me = actor.id;
+  }
+  if (query.series) {
+    clauses.push('a.series_id = (SELECT id FROM series WHERE slug = :slug)');
+    replacements.slug = query.series;
+  }
+  if (query.severity) {
+    clauses.push('a.severity = :severity');
+    replacements.severity = query.severity;
+  }
+  if (query.age) {
+    const match = /^([<>]?)(\d+)([hd])$/.exec(query.age)!;
+    const ms = Number(match[2]) * (match[3] === 'd' ? 86_400_000 : 3_600_000);
+    clauses.push(match[1] === '>' ? 'a.created_at < :ageBound' : 'a.created_at >= :ageBound');
+    replacements.ageBound = sqlDate(now - ms);
+  }
+  return { sql: clauses.join(' AND '), replacements };
+}
+
+/**
+ * One page of a queue with its filters, plus the size of every queue under the same filters (for the tabs).
+ * The page is one indexed query (state/series + created_at indexes, see migrations) joined to its series, rule,
+ * assignee and the evaluation of its latest snapshot; counts are one COUNT per queue.
+ */
+export async function fetchAlertQueue(query: AlertQueueQuery, actor: Pick<Actor, 'id'>, now = Date.now()) {
+  const sequelize = await db();
+  const filter = where(query, actor, query.queue, now);
+  const rows = await sequelize.query<Record<string, unknown>>(
+    `SELECT a.id, a.state, a.severity, a.version, a.peak_tau, a.evaluation_count, a.dismiss_reason, a.created_at, a.updated_at, a.closed_at,
+            s.id AS series_id, s.slug, s.name AS series_name, r.id AS rule_id, r.indicator,
+            u.id AS assignee_id, u.name AS assignee_name, e.tau, e.surrogate_p, e.kendall_p
+     FROM alerts a
+     JOIN series s ON s.id = a.series_id
+     JOIN alert_rules r ON r.id = a.rule_id
+     LEFT JOIN users u ON u.id = a.assignee_id
+     LEFT JOIN rule_evaluations e ON e.rule_id = a.rule_id AND e.snapshot_id = a.latest_snapshot_id
+     WHERE ${filter.sql}
+     ORDER BY ${ORDER[query.sort]}
+     LIMIT :limit OFFSET :offset`,
+    { replacements: { ...filter.replacements, limit: query.pageSize, offset: (query.page - 1) * query.pageSize }, type: QueryTypes.SELECT },
+  );
+  const counts = {} as Record<Exclude<AlertQueue, 'all'>, number>;
+  for (const queue of ['triage', 'escalated', 'mine', 'closed'] as const) {
+    const f = where({ ...query, state: undefined }, actor, queue, now);
+    const [row] = await sequelize.query<{ count: number }>(`SELECT COUNT(*) AS count FROM alerts a WHERE ${f.sql}`, { replacements: f.replacements, type: QueryTypes.SELECT });
+    counts[queue] = Number(row.count);
+  }
+  let total: number;
+  if (query.queue !== 'all' && !query.state) total = counts[query.queue];
+  else {
+    const [row] = await sequelize.query<{ count: number }>(`SELECT COUNT(*) AS count FROM alerts a WHERE ${filter.sql}`, { replacements: filter.replacements, type: QueryTypes.SELECT });
+    total = Number(row.count);
+  }
+  const items: AlertListItem[] = rows.map((r) => ({
+    id: Number(r.id),
+    state: r.state as AlertState,
+    severity: String(r.severity),
+    version: Number(r.version),
+    series: { id: Number(r.series_id), slug: String(r.slug), name: String(r.series_name) },
+    rule: { id: Number(r.rule_id), indicator: String(r.indicator) },
+    assignee: r.assignee_id === null ? null : { id: Number(r.assignee_id), name: String(r.assignee_name) },
+    peakTau: r.peak_tau as number | null,
+    latest: { tau: r.tau as number | null, surrogateP: r.surrogate_p as number | null, kendallP: r.kendall_p as number | null },
+    evaluationCount: Number(r.evaluation_count),
+    dismissReason: r.dismiss_reason as string | null,
+    createdAt: toIso(r.created_at),
+    updatedAt: toIso(r.updated_at),
+    closedAt: r.closed_at === null ? null : toIso(r.closed_at),
+  }));
+  return { items, total, counts, page: query.page, pageSize: query.pageSize };
+}
+
+function toIso(value: unknown): string {
+  return new Date(String(value).replace(' +00:00', 'Z').replace(' ', 'T')).toISOString();
+}
+
+function presentSnapshot(snapshot: AnalysisSnapshot | null, withCurves: boolean) {
+  if (!snapshot) return null;
+  return {
+    id: snapshot.id,
+    createdAt: snapshot.createdAt,
+    status: snapshot.status,
+    settings: snapshot.settings,
+    summary: snapshot.summary,
+    n: snapshot.n,
+    dataFrom: snapshot.dataFrom === null ? null : Number(snapshot.dataFrom),
+    dataTo: snapshot.dataTo === null ? null : Number(snapshot.dataTo),
+    ...(withCurves ? { curves: snapshot.curves } : {}),
+  };
+}
+
+/**
+ * Everything the alert page shows: the alert, its series and rule, the evidence (first and latest snapshot with
+ * their curves), the evaluation trail, the timeline with who and when, notes with their edit history, and the
+ * actions the asking user may take.
+ */
+export async function fetchAlertDetail(id: number, actor?: Pick<Actor, 'role'>) {
+  await db();
+  const alert = await Alert.findByPk(id, {
+    include: [
+      { model: Series, as: 'series' },
+      { model: AlertRule, as: 'rule' },
+      { model: User, as: 'assignee', attributes: ['id', 'name', 'email'] },
+    ],
+  });
+  if (!alert) throw new NotFoundError('Alert');
+  const joined = alert as Alert & { series: Series; rule: AlertRule; assignee: User | null };
+  const [first, latest, events, notes, evaluations] = await Promise.all([
+    AnalysisSnapshot.findByPk(alert.firstSnapshotId),
+    alert.latestSnapshotId === alert.firstSnapshotId ? null : AnalysisSnapshot.findByPk(alert.latestSnapshotId),
+    AlertEvent.findAll({ where: { alertId: id }, include: [{ model: User, as: 'actor', attributes: ['id', 'name'] }], order: [['id', 'ASC']] }),
+    Note.findAll({ where: { alertId: id }, include: [{ model: User, as: 'author', attributes: ['id', 'name'] }, { model: NoteRevision, as: 'revisions' }], order: [['id', 'ASC']] }),
+    RuleEvaluation.findAll({ where: { alertId: id }, order: [['snapshotId', 'ASC']], limit: 500 }),
+  ]);
+  return {
+    id: alert.id,
+    state: alert.state,
+    severity: alert.severity,
+    version: alert.version,
+    peakTau: alert.peakTau,
+    evaluationCount: alert.evaluationCount,
+    dismissReason: alert.dismissReason,
+    createdAt: alert.createdAt,
+    updatedAt: alert.updatedAt,
+    closedAt: alert.closedAt,
+    series: { id: joined.series.id, slug: joined.series.slug, name: joined.series.name, site: joined.series.site, unit: joined.series.unit, timeZone: joined.series.timeZone },
+    rule: presentRule(joined.rule),
+    assignee: joined.assignee ? { id: joined.assignee.id, name: joined.assignee.name, email: joined.assignee.email } : null,
+    evidence: {
+      first: presentSnapshot(first, true),
+      latest: presentSnapshot(latest ?? first, true),
+      evaluations: evaluations.map((e) => ({ snapshotId: e.snapshotId, tau: e.tau, kendallP: e.kendallP, surrogateP: e.surrogateP, qValue: e.qValue, level: e.level, streak: e.streak, outcome: e.outcome, at: e.createdAt })),
+    },
+    timeline: events.map((e) => {
+      const by = (e as AlertEvent & { actor?: User | null }).actor;
+      return { id: e.id, action: e.action, fromState: e.fromState, toState: e.toState, reason: e.reason, detail: e.detail, actor: by ? { id: by.id, name: by.name } : null, at: e.createdAt };
+    }),
+    notes: notes.map((n) => {
+      const j = n as Note & { author?: User; revisions?: NoteRevision[] };
+      return {
+        id: n.id,
+        body: n.body,
+        author: j.author ? { id: j.author.id, name: j.author.name } : null,
+        createdAt: n.createdAt,
+        updatedAt: n.updatedAt,
+        edited: (j.revisions?.length ?? 0) > 0,
+        revisions: (j.revisions ?? []).sort((a, b) => a.id - b.id).map((r) => ({ body: r.body, editedBy: r.editedBy, replacedAt: r.createdAt })),
+      };
+    }),
+    allowedActions: actor ? allowedActions(alert.state, actor.role) : [],
+  };
+}

@@ -1,0 +1,123 @@
+import { AnalysisSnapshot, db, type Series } from '@/models';
+import { analysisSettingsSchema } from '@/lib/engine/settings';
+import { runAnalysis, summarizeAnalysis, type AnalysisResult } from '@/lib/engine/analyze';
+import { AnalysisInputError } from '@/lib/engine/errors';
+import { loadObservations, observationExtent } from './observations';
+
+/** Charts never need more points than a screen is wide; larger records are thinned to at most this many. */
+export const MAX_CURVE_POINTS = 2000;
+
+export interface SnapshotCurves {
+  /** Every `stride`-th analysed point is kept (plus the last one). */
+  stride: number;
+  time: number[];
+  value: (number | null)[];
+  trend: (number | null)[];
+  residual: (number | null)[];
+  indicators: Record<string, (number | null)[]>;
+  /** Surrogate taus per indicator, for the null-distribution histogram. */
+  surrogateTaus: Record<string, number[]>;
+  sensitivity: AnalysisResult['sensitivity'];
+}
+
+function finite(v: number): number | null {
+  return Number.isFinite(v) ? v : null;
+}
+
+/** Indices kept when n points are thinned to at most `max`: 0, s, 2s, … and always n − 1. O(max). */
+export function thinnedIndices(n: number, max = MAX_CURVE_POINTS): { stride: number; indices: number[] } {
+  const stride = Math.max(1, Math.ceil(n / max));
+  const indices: number[] = [];
+  for (let i = 0; i < n; i += stride) indices.push(i);
+  if (n > 0 && indices[indices.length - 1] !== n - 1) {
+    if (indices.length >= max) indices[indices.length - 1] = n - 1;
+    else indices.push(n - 1);
+  }
+  return { stride, indices };
+}
+
+/** The per-point arrays of a result, thinned for charts. O(n). */
+export function curvesOf(result: AnalysisResult, max = MAX_CURVE_POINTS): SnapshotCurves {
+  const { stride, indices } = thinnedIndices(result.series.time.length, max);
+  const pick = (source: ArrayLike<number>) => indices.map((i) => finite(source[i]));
+  const indicators: SnapshotCurves['indicators'] = {};
+  for (const [name, values] of Object.entries(result.indicators)) indicators[name] = indices.map((i) => values![i] ?? null);
+  const surrogateTaus: SnapshotCurves['surrogateTaus'] = {};
+  for (const [name, sig] of Object.entries(result.significance)) surrogateTaus[name] = sig!.taus;
+  return {
+    stride,
+    time: indices.map((i) => result.series.time[i]),
+    value: pick(result.series.value),
+    trend: pick(result.series.trend),
+    residual: pick(result.series.residual),
+    indicators,
+    surrogateTaus,
+    sensitivity: result.sensitivity,
+  };
+}
+
+/**
+ * The summary kept on the snapshot: everything but per-point arrays. Surrogate taus and the sensitivity grid
+ * live in `curves` only, so queue listings and rule evaluation read a small record.
+ */
+export function snapshotSummary(result: AnalysisResult): Record<string, unknown> {
+  const summary = summarizeAnalysis(result);
+  const significance: Record<string, unknown> = {};
+  for (const [name, sig] of Object.entries(summary.significance)) {
+    const { taus: _taus, ...rest } = sig!;
+    significance[name] = rest;
+  }
+  const { sensitivity: _sensitivity, ...rest } = summary;
+  return { ...rest, significance, hasSensitivity: result.sensitivity !== null };
+}
+
+/**
+ * Runs the engine on a series as it stands and stores the outcome as a new snapshot, successful or not: an
+ * error snapshot carries the engine's message (e.g. a gap longer than maxGap) so the series page can say why
+ * there is no fresh evidence. Only the trailing span the settings ask for is read from the database.
+ */
+export async function refreshSeriesAnalysis(series: Series, options: { parallel?: boolean } = {}): Promise<AnalysisSnapshot> {
+  await db();
+  const settings = analysisSettingsSchema.parse(series.settings ?? {});
+  const intervalMs = series.intervalMs === null ? undefined : Number(series.intervalMs);
+  const started = performance.now();
+  let range: { from?: number } = {};
+  if (settings.spanPoints !== null && intervalMs !== undefined) {
+    const extent = await observationExtent(series.id);
+    // One interval of slack so the engine's own span cut, not the read, decides the first grid point.
+    if (extent.last !== null) range = { from: extent.last - settings.spanPoints * intervalMs };
+  }
+  const observations = await loadObservations(series.id, range);
+  const n = observations.time.length;
+  const dataFrom = n ? observations.time[0] : null;
+  const dataTo = n ? observations.time[n - 1] : null;
+  try {
+    const result = await runAnalysis({ ...observations, intervalMs }, settings, options);
+    return await AnalysisSnapshot.create({
+      seriesId: series.id,
+      settings,
+      summary: snapshotSummary(result),
+      curves: curvesOf(result) as unknown as Record<string, unknown>,
+      status: 'ok',
+      error: null,
+      n: result.n,
+      dataFrom,
+      dataTo,
+      durationMs: Math.round(performance.now() - started),
+    });
+  } catch (error) {
+    if (!(error instanceof AnalysisInputError)) console.error(`[analysis] series ${series.slug} failed`, error);
+    return AnalysisSnapshot.create({
+      seriesId: series.id,
+      settings,
+      summary: {},
+      curves: null,
+      status: 'error',
+      error: error instanceof AnalysisInputError ? error.message : `The analysis failed unexpectedly: ${error instanceof Error ? error.message : String(error)}`,
+      n,
+      dataFrom,
+      dataTo,
+      durationMs: Math.round(performance.now() - started),
+    });
+  }
+}

@@ -1,0 +1,8 @@
+/**
+ * An instant as Sequelize stores DATE columns in SQLite ('YYYY-MM-DD HH:MM:SS.SSS +00:00'). Raw SQL that writes or
+ * compares such columns must use the same text, or string comparison orders 'T'-separated ISO stamps wrongly.
+ */
+export function sqlDate(instant: number | Date): string {
+  const ms = typeof instant === 'number' ? instant : instant.getTime();
+  return new Date(ms).toISOString().replace('T', ' ').replace('Z', ' +00:00');
+}
