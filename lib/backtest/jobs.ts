@@ -1,0 +1,201 @@
+import { Op } from 'sequelize';
+import { AlertRule, BacktestJob, Series, db, writeTransaction } from '@/models';
+import { recordAudit } from '@/lib/audit';
+import type { Actor } from '@/lib/auth/guard';
+import { loadObservations } from '@/lib/analysis/observations';
+import { analysisSettingsSchema, type IndicatorName } from '@/lib/engine/settings';
+import { ConflictError, NotFoundError, UnprocessableError } from '@/lib/http/errors';
+import type { BacktestRequest } from '@/lib/schemas/backtest';
+import { findSeriesBySlug } from '@/lib/series/registry';
+import { CancelledError } from './pool';
+import { listTransitions } from './transitions';
+import { runBacktest, type BacktestResult } from './run';
+
+const DAY_MS = 86_400_000;
+/** How often a running job writes its progress and looks for a cancel request. */
+const PROGRESS_EVERY_MS = 500;
+
+export function presentBacktestJob(job: BacktestJob, options: { withResult?: boolean } = {}) {
+  return {
+    id: job.id,
+    ruleId: job.ruleId,
+    seriesId: job.seriesId,
+    kind: job.kind,
+    status: job.status,
+    progress: job.progress,
+    params: job.params,
+    error: job.error,
+    cancelRequested: job.cancelRequested,
+    createdBy: job.createdBy,
+    createdAt: job.createdAt,
+    startedAt: job.startedAt,
+    finishedAt: job.finishedAt,
+    ...(options.withResult ? { result: job.result as BacktestResult | null } : {}),
+  };
+}
+export type BacktestJobRecord = ReturnType<typeof presentBacktestJob>;
+
+/** Queues a backtest of a rule on its series (or, for a default rule, on `request.series`). */
+export async function requestBacktest(ruleId: number, request: BacktestRequest, actor: Pick<Actor, 'id'>): Promise<BacktestJob> {
+  await db();
+  const rule = await AlertRule.findByPk(ruleId);
+  if (!rule) throw new NotFoundError('Rule');
+  let seriesId = rule.seriesId;
+  if (request.series !== undefined) {
+    const series = await findSeriesBySlug(request.series);
+    if (rule.seriesId !== null && rule.seriesId !== series.id) throw new UnprocessableError('This rule belongs to another series.', { series: ['not the rule’s series'] });
+    seriesId = series.id;
+  }
+  if (seriesId === null) throw new UnprocessableError('A default rule needs a series to replay on.', { series: ['required for a default rule'] });
+  const sid = seriesId;
+  return writeTransaction(async (transaction) => {
+    const job = await BacktestJob.create(
+      {
+        ruleId,
+        seriesId: sid,
+        kind: request.calibration ? 'calibration' : 'backtest',
+        params: { every: request.every, horizonDays: request.horizonDays, calibration: request.calibration },
+        result: null,
+        error: null,
+        createdBy: actor.id,
+        startedAt: null,
+        finishedAt: null,
+      },
+      { transaction },
+    );
+    await recordAudit({ actorId: actor.id, action: 'backtest.request', entity: 'backtest_job', entityId: job.id, details: { ruleId, seriesId: sid, ...job.params } }, transaction);
+    return job;
+  });
+}
+
+/** Backtests, newest first, optionally of one rule and/or one series (by slug). */
+export async function listBacktests(filter: { rule?: number; series?: string }): Promise<BacktestJobRecord[]> {
+  await db();
+  const where: Record<string, unknown> = {};
+  if (filter.rule !== undefined) where.ruleId = filter.rule;
+  if (filter.series !== undefined) where.seriesId = (await findSeriesBySlug(filter.series)).id;
+  const rows = await BacktestJob.findAll({ where, order: [['id', 'DESC']], limit: 100 });
+  return rows.map((job) => presentBacktestJob(job));
+}
+
+export async function findBacktest(id: number): Promise<BacktestJob> {
+  await db();
+  const job = await BacktestJob.findByPk(id);
+  if (!job) throw new NotFoundError('Backtest');
+  return job;
+}
+
+/** A queued job is cancelled at once; a running one is asked to stop and stops at its next progress check. */
+export async function cancelBacktest(id: number, actor: Pick<Actor, 'id'>): Promise<BacktestJob> {
+  return writeTransaction(async (transaction) => {
+    const job = await BacktestJob.findByPk(id, { transaction });
+    if (!job) throw new NotFoundError('Backtest');
+    if (job.status !== 'queued' && job.status !== 'running') throw new ConflictError(`This backtest has already ${job.status}.`);
+    if (job.status === 'queued') await job.update({ status: 'cancelled', cancelRequested: true, finishedAt: new Date() }, { transaction });
+    else await job.update({ cancelRequested: true }, { transaction });
+    await recordAudit({ actorId: actor.id, action: 'backtest.cancel', entity: 'backtest_job', entityId: id, details: { status: job.status } }, transaction);
+    return job;
+  });
+}
+
+/** Saves a tau threshold (picked from a calibration's ROC) into the rule, with the ROC point it came from in the audit entry. */
+export async function saveRuleThreshold(ruleId: number, input: { threshold: number; jobId: number | null }, actor: Pick<Actor, 'id'>): Promise<AlertRule> {
+  return writeTransaction(async (transaction) => {
+    const rule = await AlertRule.findByPk(ruleId, { transaction });
+    if (!rule) throw new NotFoundError('Rule');
+    let rocPoint: unknown = null;
+    if (input.jobId !== null) {
+      const job = await BacktestJob.findByPk(input.jobId, { transaction });
+      if (!job || job.ruleId !== ruleId) throw new UnprocessableError('That backtest is not of this rule.', { jobId: ['not a backtest of this rule'] });
+      const roc = (job.result as BacktestResult | null)?.calibration?.roc ?? [];
+      rocPoint = roc.find((p) => Math.abs(p.threshold - input.threshold) < 1e-12) ?? null;
+    }
+    const before = rule.minTau;
+    await rule.update({ minTau: input.threshold }, { transaction });
+    await recordAudit(
+      { actorId: actor.id, action: 'rule.threshold', entity: 'alert_rule', entityId: ruleId, details: { before, after: input.threshold, jobId: input.jobId, rocPoint } },
+      transaction,
+    );
+    return rule;
+  });
+}
+
+/**
+ * Claims the oldest queued backtest and runs it to the end: progress (0..1) is written every half second, a
+ * cancel request stops the work within about that time, and the result or error is stored. Returns the job
+ * id, or null when none was queued. The caller holds the scheduler lease (jobs/backtest.ts).
+ */
+export async function runNextBacktest(options: { threads?: number } = {}): Promise<number | null> {
+  await db();
+  const next = await BacktestJob.findOne({ where: { status: 'queued' }, order: [['id', 'ASC']] });
+  if (!next) return null;
+  const [claimed] = await BacktestJob.update({ status: 'running', startedAt: new Date() }, { where: { id: next.id, status: 'queued' } });
+  if (claimed === 0) return next.id;
+  const job = (await BacktestJob.findByPk(next.id))!;
+  const controller = new AbortController();
+  let lastWrite = 0;
+  let pending: Promise<unknown> = Promise.resolve();
+  const onProgress = (fraction: number) => {
+    const now = Date.now();
+    if (now - lastWrite < PROGRESS_EVERY_MS) return;
+    lastWrite = now;
+    pending = pending.then(async () => {
+      await BacktestJob.update({ progress: Math.min(0.99, fraction) }, { where: { id: job.id } });
+      const fresh = await BacktestJob.findByPk(job.id, { attributes: ['cancelRequested'] });
+      if (fresh?.cancelRequested) controller.abort();
+    }).catch(() => undefined);
+  };
+  try {
+    const [rule, series] = await Promise.all([AlertRule.findByPk(job.ruleId), Series.findByPk(job.seriesId)]);
+    if (!rule || !series) throw new UnprocessableError('The rule or series of this backtest no longer exists.');
+    const params = job.params as { every?: number; horizonDays?: number | null; calibration?: { surrogates: number; method: 'ar1' | 'phase' } | null };
+    const { time, value } = await loadObservations(series.id);
+    const transitions = await listTransitions(series.id);
+    const result = await runBacktest(
+      {
+        time,
+        value,
+        intervalMs: series.intervalMs === null ? undefined : Number(series.intervalMs),
+        settings: analysisSettingsSchema.parse(series.settings),
+        rule: {
+          indicator: rule.indicator as IndicatorName,
+          minTau: rule.minTau,
+          maxKendallP: rule.maxKendallP,
+          maxSurrogateP: rule.maxSurrogateP,
+          levelThreshold: rule.levelThreshold,
+          levelDirection: rule.levelDirection,
+          persistence: rule.persistence,
+          quietPeriodHours: rule.quietPeriodHours,
+        },
+        transitions: transitions.map((t) => ({ id: t.id, at: t.at, note: t.note })),
+        every: params.every ?? 1,
+        horizonMs: params.horizonDays ? params.horizonDays * DAY_MS : null,
+        calibration: params.calibration ?? null,
+      },
+      { onProgress, signal: controller.signal, threads: options.threads },
+    );
+    await pending;
+    const fresh = await BacktestJob.findByPk(job.id, { attributes: ['cancelRequested'] });
+    if (fresh?.cancelRequested) throw new CancelledError();
+    await BacktestJob.update({ status: 'succeeded', progress: 1, result: JSON.parse(JSON.stringify(result)), finishedAt: new Date() }, { where: { id: job.id } });
+  } catch (error) {
+    await pending;
+    const cancelled = error instanceof CancelledError;
+    if (!cancelled && !(error instanceof Error && error.name === 'AnalysisInputError') && !(error instanceof UnprocessableError)) {
+      console.error('[brinkwatch] backtest failed', error);
+    }
+    await BacktestJob.update(
+      { status: cancelled ? 'cancelled' : 'failed', error: cancelled ? null : error instanceof Error ? error.message : String(error), finishedAt: new Date() },
+      { where: { id: job.id } },
+    );
+  }
+  return job.id;
+}
+
+/** Jobs left running by a scheduler that died go back to the queue (called once the lease is held). */
+export async function requeueAbandonedBacktests(): Promise<number> {
+  await db();
+  const [count] = await BacktestJob.update({ status: 'queued', startedAt: null }, { where: { status: 'running', cancelRequested: { [Op.not]: true } } });
+  await BacktestJob.update({ status: 'cancelled', finishedAt: new Date() }, { where: { status: 'running', cancelRequested: true } });
+  return count;
+}

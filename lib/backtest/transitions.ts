@@ -1,0 +1,34 @@
+import { Transition, db, writeTransaction } from '@/models';
+import { recordAudit } from '@/lib/audit';
+import type { Actor } from '@/lib/auth/guard';
+import { NotFoundError } from '@/lib/http/errors';
+import type { TransitionCreate } from '@/lib/schemas/backtest';
+
+export function presentTransition(t: Transition) {
+  return { id: t.id, seriesId: t.seriesId, at: Number(t.at), atIso: new Date(Number(t.at)).toISOString(), note: t.note, createdBy: t.createdBy, createdAt: t.createdAt };
+}
+export type TransitionRecord = ReturnType<typeof presentTransition>;
+
+/** Known transitions of a series, oldest first. */
+export async function listTransitions(seriesId: number): Promise<TransitionRecord[]> {
+  await db();
+  const rows = await Transition.findAll({ where: { seriesId }, order: [['at', 'ASC'], ['id', 'ASC']] });
+  return rows.map(presentTransition);
+}
+
+export async function markTransition(seriesId: number, input: TransitionCreate, actor: Pick<Actor, 'id'>): Promise<TransitionRecord> {
+  return writeTransaction(async (transaction) => {
+    const row = await Transition.create({ seriesId, at: input.at, note: input.note, createdBy: actor.id }, { transaction });
+    await recordAudit({ actorId: actor.id, action: 'transition.create', entity: 'transition', entityId: row.id, details: { seriesId, at: input.at, note: input.note } }, transaction);
+    return presentTransition(row);
+  });
+}
+
+export async function removeTransition(id: number, actor: Pick<Actor, 'id'>): Promise<void> {
+  await writeTransaction(async (transaction) => {
+    const row = await Transition.findByPk(id, { transaction });
+    if (!row) throw new NotFoundError('Transition');
+    await recordAudit({ actorId: actor.id, action: 'transition.delete', entity: 'transition', entityId: id, details: presentTransition(row) }, transaction);
+    await row.destroy({ transaction });
+  });
+}

@@ -1,0 +1,43 @@
+import { z } from 'zod';
+import { SURROGATE_METHODS } from '@/lib/engine/settings';
+
+/** Body of POST /api/rules/{id}/backtest. */
+export const backtestRequestSchema = z
+  .object({
+    /** judge every k new points (1 = as each point arrives); long records may use a larger step */
+    every: z.number().int().min(1).max(100000).default(1),
+    /** series to replay on, for a default rule (one with no series of its own) */
+    series: z.string().min(1).max(120).optional(),
+    /** an alarm counts as a warning only this many days before a transition (omit: since the previous one) */
+    horizonDays: z.number().positive().max(365 * 1000).nullable().default(null),
+    calibration: z
+      .object({ surrogates: z.number().int().min(1).max(2000), method: z.enum(SURROGATE_METHODS).default('ar1') })
+      .strict()
+      .nullable()
+      .default(null),
+  })
+  .strict();
+export type BacktestRequest = z.output<typeof backtestRequestSchema>;
+
+export const backtestListQuerySchema = z.object({
+  rule: z.coerce.number().int().positive().optional(),
+  series: z.string().min(1).max(120).optional(),
+});
+
+/** Body of POST /api/rules/{id}/threshold: the tau threshold picked from a calibration's ROC. */
+export const thresholdSchema = z
+  .object({ threshold: z.number().min(-1).max(1), jobId: z.number().int().positive().nullable().default(null) })
+  .strict();
+
+/** An instant as ISO 8601 text (with a zone or Z) or UTC epoch milliseconds. */
+const instantSchema = z.union([
+  z.number().int().finite(),
+  z.iso.datetime({ offset: true }).transform((s) => Date.parse(s)),
+  z.iso.date().transform((s) => Date.parse(`${s}T00:00:00Z`)),
+]);
+
+/** Body of POST /api/series/{slug}/transitions. */
+export const transitionCreateSchema = z
+  .object({ at: instantSchema, note: z.string().trim().max(2000).default('') })
+  .strict();
+export type TransitionCreate = z.output<typeof transitionCreateSchema>;
