@@ -1,0 +1,262 @@
+import { Readable } from 'node:stream';
+import Papa from 'papaparse';
+
+export type Delimiter = ',' | ';' | '\t' | '|';
+/** Order of preference when several delimiters split the sample equally well: a file with consistent semicolons is semicolon-delimited even if its values contain commas (comma decimals). */
+export const DELIMITERS: readonly Delimiter[] = ['\t', ';', '|', ','];
+/** A time,value line is well under 100 characters; anything this long is not a record but a broken or hostile file. */
+export const MAX_LINE_CHARS = 65_536;
+const SNIFF_CHARS = 65_536;
+const SNIFF_LINES = 20;
+
+export type CsvInput = string | AsyncIterable<Uint8Array | string>;
+
+/** A problem with the file as a whole: nothing in it can be read as rows. */
+export class CsvFileError extends Error {
+  constructor(
+    readonly code: 'empty' | 'binary' | 'compressed' | 'line-too-long' | 'header-only' | 'no-data' | 'missing-column' | 'single-column',
+    message: string,
+  ) {
+    super(message);
+    this.name = 'CsvFileError';
+  }
+}
+
+export interface CsvLayout {
+  delimiter: Delimiter;
+  /** False when no candidate split the sample into two or more columns (the file may use another delimiter). */
+  delimiterDetected: boolean;
+  encoding: 'utf-8' | 'utf-16le' | 'utf-16be';
+  bom: boolean;
+  /** Most common number of fields per line in the sample. */
+  fieldCount: number;
+  header: string[] | null;
+}
+
+export interface CsvStats {
+  dataRows: number;
+  blankLines: number;
+  commentLines: number;
+}
+
+export interface CsvReadOptions {
+  delimiter?: Delimiter;
+  /** 'auto': the first record is a header unless `looksLikeData` says it is a record. */
+  header?: boolean | 'auto';
+  looksLikeData?: (fields: string[]) => boolean;
+  /** Called once the layout (delimiter, header) is known, before the first data row. */
+  onLayout?: (layout: CsvLayout) => void;
+  /** Each data record with its 1-based line number; `problem` is set when the record itself is malformed (quotes). */
+  onRow: (fields: string[], line: number, problem?: string) => void;
+}
+
+async function* chunksOf(input: CsvInput): AsyncGenerator<Uint8Array | string> {
+  if (typeof input === 'string') {
+    // Slices keep the line-length guard and papaparse working on bounded pieces even for one huge string.
+    for (let i = 0; i < input.length; i += SNIFF_CHARS) yield input.slice(i, i + SNIFF_CHARS);
+  } else {
+    yield* input;
+  }
+}
+
+function concatBytes(a: Uint8Array, b: Uint8Array): Uint8Array {
+  const out = new Uint8Array(a.length + b.length);
+  out.set(a, 0);
+  out.set(b, a.length);
+  return out;
+}
+
+/**
+ * Decodes the input to text. The byte order mark picks the encoding (UTF-8 without one), and is dropped; gzip and
+ * zip signatures are refused with a message, since such a file is an archive of a CSV rather than a CSV.
+ */
+async function* decode(input: CsvInput, layout: Pick<CsvLayout, 'encoding' | 'bom'>): AsyncGenerator<string> {
+  const source = chunksOf(input)[Symbol.asyncIterator]();
+  let head: Uint8Array = new Uint8Array(0);
+  let first: IteratorResult<Uint8Array | string>;
+  for (;;) {
+    first = await source.next();
+    if (first.done) break;
+    if (typeof first.value === 'string') break;
+    head = concatBytes(head, first.value);
+    if (head.length >= 4) break;
+  }
+  if (!first.done && typeof first.value === 'string') {
+    // Text input: already decoded; only a leading BOM character may remain.
+    let text = first.value;
+    if (text.charCodeAt(0) === 0xfeff) {
+      layout.bom = true;
+      text = text.slice(1);
+    }
+    yield text;
+    for (let next = await source.next(); !next.done; next = await source.next()) yield String(next.value);
+    return;
+  }
+  if (head[0] === 0x1f && head[1] === 0x8b) throw new CsvFileError('compressed', 'The file is gzip-compressed. Unpack it and send the CSV inside.');
+  if (head[0] === 0x50 && head[1] === 0x4b && head[2] === 0x03 && head[3] === 0x04) {
+    throw new CsvFileError('compressed', 'The file is a zip archive (or a spreadsheet such as .xlsx). Export or unpack it as CSV text.');
+  }
+  if (head[0] === 0xef && head[1] === 0xbb && head[2] === 0xbf) layout.bom = true;
+  else if (head[0] === 0xff && head[1] === 0xfe) [layout.bom, layout.encoding] = [true, 'utf-16le'];
+  else if (head[0] === 0xfe && head[1] === 0xff) [layout.bom, layout.encoding] = [true, 'utf-16be'];
+  const decoder = new TextDecoder(layout.encoding);
+  if (head.length) yield decoder.decode(head, { stream: true });
+  for (let next = await source.next(); !next.done; next = await source.next()) {
+    yield typeof next.value === 'string' ? next.value : decoder.decode(next.value, { stream: true });
+  }
+  const tail = decoder.decode();
+  if (tail) yield tail;
+}
+
+/** NUL bytes, undecodable bytes (U+FFFD) or more than 1 % control characters: not a text file. */
+function binaryProblem(sample: string): string | null {
+  let bad = 0;
+  let nul = 0;
+  for (let i = 0; i < sample.length; i++) {
+    const c = sample.charCodeAt(i);
+    if (c === 0) nul++;
+    if (c === 0xfffd || (c < 0x20 && c !== 0x09 && c !== 0x0a && c !== 0x0d) || c === 0x7f) bad++;
+  }
+  if (nul > 0 || bad > sample.length * 0.01) {
+    return `The file looks like binary data, not CSV text (${bad} control or undecodable characters in the first ${sample.length} characters). Export the data as UTF-8 CSV.`;
+  }
+  return null;
+}
+
+const isBlank = (fields: string[]) => fields.every((f) => f.trim() === '');
+const isComment = (fields: string[]) => fields.length > 0 && fields[0].trimStart().startsWith('#');
+
+/** Picks the delimiter that splits the sample's records into the same number (≥ 2) of fields, preferring DELIMITERS' order. */
+function detectDelimiter(sample: string, complete: boolean): { delimiter: Delimiter; detected: boolean; fieldCount: number } {
+  let lines = sample.split(/\r\n|\n|\r/);
+  if (!complete) lines = lines.slice(0, -1);
+  lines = lines.filter((line) => line.trim() !== '' && !line.trimStart().startsWith('#')).slice(0, SNIFF_LINES);
+  let fallback: { delimiter: Delimiter; fieldCount: number; share: number } | null = null;
+  for (const delimiter of DELIMITERS) {
+    const counts = Papa.parse<string[]>(lines.join('\n'), { delimiter }).data.map((row) => row.length);
+    if (counts.length === 0) continue;
+    const tally = new Map<number, number>();
+    for (const c of counts) tally.set(c, (tally.get(c) ?? 0) + 1);
+    const [mode, hits] = [...tally].sort((a, b) => b[1] - a[1] || b[0] - a[0])[0];
+    if (mode < 2) continue;
+    if (hits === counts.length) return { delimiter, detected: true, fieldCount: mode };
+    if (!fallback || hits / counts.length > fallback.share) fallback = { delimiter, fieldCount: mode, share: hits / counts.length };
+  }
+  if (fallback) return { delimiter: fallback.delimiter, detected: true, fieldCount: fallback.fieldCount };
+  return { delimiter: ',', detected: false, fieldCount: lines.length ? 1 : 0 };
+}
+
+/**
+ * Reads a CSV streaming (papaparse over a Node stream): detects encoding, binary content and the delimiter from
+ * the first 64 K characters, refuses a line longer than MAX_LINE_CHARS before papaparse buffers it, skips blank
+ * lines and `#` comment lines (counting them), decides whether the first record is a header, and hands every data
+ * record to `onRow` with its line number. Line numbers count physical lines, including those inside quoted fields.
+ * Memory is bounded by one chunk plus one record. Throws CsvFileError for problems of the file as a whole.
+ */
+export async function readCsv(input: CsvInput, options: CsvReadOptions): Promise<{ layout: CsvLayout; stats: CsvStats }> {
+  const layout: CsvLayout = { delimiter: ',', delimiterDetected: true, encoding: 'utf-8', bom: false, fieldCount: 0, header: null };
+  const text = decode(input, layout)[Symbol.asyncIterator]();
+  let sample = '';
+  let ended = false;
+  while (sample.length < SNIFF_CHARS) {
+    const next = await text.next();
+    if (next.done) {
+      ended = true;
+      break;
+    }
+    sample += next.value;
+  }
+  if (sample.trim() === '') throw new CsvFileError('empty', 'The file is empty.');
+  const binary = binaryProblem(sample.slice(0, SNIFF_CHARS));
+  if (binary) throw new CsvFileError('binary', binary);
+  const detected = detectDelimiter(sample, ended);
+  layout.delimiter = options.delimiter ?? detected.delimiter;
+  layout.delimiterDetected = options.delimiter ? true : detected.detected;
+  layout.fieldCount = detected.fieldCount;
+
+  async function* guarded(): AsyncGenerator<string> {
+    let line = 1;
+    let length = 0;
+    const check = (chunk: string) => {
+      let from = 0;
+      for (;;) {
+        const nl = chunk.indexOf('\n', from);
+        const piece = (nl === -1 ? chunk.length : nl) - from;
+        if (length + piece > MAX_LINE_CHARS) {
+          throw new CsvFileError('line-too-long', `Line ${line} is longer than ${MAX_LINE_CHARS.toLocaleString('en-US')} characters; a CSV record of time and value is far shorter, so the file is not read.`);
+        }
+        if (nl === -1) {
+          length += piece;
+          return;
+        }
+        line++;
+        length = 0;
+        from = nl + 1;
+      }
+    };
+    check(sample);
+    yield sample;
+    if (ended) return;
+    for (let next = await text.next(); !next.done; next = await text.next()) {
+      check(next.value);
+      yield next.value;
+    }
+  }
+
+  const stats: CsvStats = { dataRows: 0, blankLines: 0, commentLines: 0 };
+  let line = 1;
+  let first = true;
+  let failure: unknown = null;
+  const stream = Readable.from(guarded());
+  await new Promise<void>((resolve, reject) => {
+    Papa.parse<string[]>(stream, {
+      delimiter: layout.delimiter,
+      skipEmptyLines: false,
+      step: (results, parser) => {
+        if (failure) return;
+        try {
+          handle(results.data, results.errors);
+        } catch (error) {
+          // A callback's error (e.g. a missing column found at the header) ends the read; papaparse would swallow it.
+          failure = error;
+          parser.abort();
+          stream.destroy();
+        }
+      },
+      complete: () => (failure ? reject(failure) : resolve()),
+      error: (error: Error) => reject(failure ?? error),
+    });
+  });
+  if (stats.dataRows === 0) {
+    if (layout.header) throw new CsvFileError('header-only', 'The file has a header line but no data rows.');
+    throw new CsvFileError('no-data', 'The file has no data rows (only blank or comment lines).');
+  }
+  return { layout, stats };
+
+  function handle(fields: string[], errors: Papa.ParseError[]): void {
+    const here = line;
+    let spanned = 0;
+    for (const field of fields) {
+      for (let at = field.indexOf('\n'); at !== -1; at = field.indexOf('\n', at + 1)) spanned++;
+    }
+    line += 1 + spanned;
+    if (isBlank(fields)) {
+      stats.blankLines++;
+      return;
+    }
+    if (isComment(fields)) {
+      stats.commentLines++;
+      return;
+    }
+    if (first) {
+      first = false;
+      const header = options.header === true || (options.header !== false && !(options.looksLikeData?.(fields) ?? true));
+      if (header) layout.header = fields.map((f) => f.trim());
+      options.onLayout?.(layout);
+      if (header) return;
+    }
+    stats.dataRows++;
+    const problem = errors.length ? `malformed quotes (${errors[0].message})` : undefined;
+    options.onRow(fields, here, problem);
+  }
+}

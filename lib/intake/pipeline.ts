@@ -1,0 +1,313 @@
+import crypto from 'node:crypto';
+import { Op, Transaction } from 'sequelize';
+import { IngestRun, Series, db, writeTransaction } from '@/models';
+import type { IngestSource, IngestStatus } from '@/models/IngestRun';
+import { recordAudit } from '@/lib/audit';
+import { acquireLease, PROCESS_HOLDER, releaseLease, withLease } from '@/lib/leases';
+import type { PushedObservation } from '@/lib/schemas/observation';
+import { CsvFileError, readCsv, type CsvInput, type CsvLayout } from './csv';
+import { collectCsvRows, collectPushedRows, type CollectedRows, type IntakeMapping, type RejectedRow } from './rows';
+import { classifyAgainstStored, conflictRejections, connectionOf, ROW_CONFLICT, ROW_DUPLICATE, ROW_NEW, writeRows } from './store';
+import { guessTimeFormat, type TimeFormat } from './time-formats';
+
+/** A run's lease lives this long without renewal; a run whose holder died is marked failed once it has lapsed. */
+const RUN_LEASE_MS = 30_000;
+const runLease = (key: string) => `ingest-run:${key}`;
+
+export interface IngestRequest {
+  series: Series;
+  source: IngestSource;
+  fileName?: string | null;
+  /** SHA-256 of the body as received; a body already applied to this series is recognised and not applied again. */
+  contentHash?: string | null;
+  /** CSV text or a byte/text stream (drop files are streamed), or pushed JSON points. */
+  csv?: CsvInput;
+  points?: PushedObservation[];
+  /** Overrides of the series' CSV mapping (the upload screen's choices). */
+  mapping?: Partial<IntakeMapping>;
+  actor?: { id: number } | null;
+  tokenId?: number | null;
+}
+
+export interface IngestOutcome {
+  runId: number;
+  status: IngestStatus;
+  /** True when the same content was applied before (`previousRunId`); nothing was applied this time. */
+  alreadyApplied: boolean;
+  previousRunId: number | null;
+  rowsRead: number;
+  accepted: number;
+  duplicates: number;
+  replaced: number;
+  rejected: number;
+  rejectedRows: RejectedRow[];
+  notes: string[];
+  message: string;
+  durationMs: number;
+}
+
+export function mappingFor(series: Series, overrides: Partial<IntakeMapping> = {}): IntakeMapping {
+  const base = series.csvMapping;
+  return {
+    timeColumn: overrides.timeColumn ?? base.timeColumn ?? 0,
+    valueColumn: overrides.valueColumn ?? base.valueColumn ?? 1,
+    timeFormat: (overrides.timeFormat ?? base.timeFormat ?? 'iso8601') as TimeFormat,
+    delimiter: overrides.delimiter,
+    header: overrides.header,
+  };
+}
+
+async function collect(request: Pick<IngestRequest, 'series' | 'csv' | 'points' | 'mapping'>): Promise<CollectedRows> {
+  const mapping = mappingFor(request.series, request.mapping);
+  if (request.points) return collectPushedRows(request.points, mapping.timeFormat, request.series.timeZone);
+  return collectCsvRows(request.csv ?? '', mapping, request.series.timeZone);
+}
+
+function plural(n: number, word: string): string {
+  return `${n.toLocaleString('en-US')} ${word}${n === 1 ? '' : 's'}`;
+}
+
+function summaryMessage(o: Pick<IngestOutcome, 'accepted' | 'duplicates' | 'replaced' | 'rejected' | 'rowsRead'>, firstReason?: string): string {
+  if (o.accepted + o.duplicates + o.replaced === 0) {
+    return `Nothing stored: all ${plural(o.rejected, 'row')} were rejected${firstReason ? ` (first: ${firstReason})` : ''}.`;
+  }
+  const parts = [`Stored ${plural(o.accepted, 'new point')}`];
+  if (o.replaced) parts.push(`replaced ${plural(o.replaced, 'value')}`);
+  if (o.duplicates) parts.push(`${plural(o.duplicates, 'duplicate')} already known`);
+  if (o.rejected) parts.push(`${plural(o.rejected, 'row')} rejected (see report)`);
+  return `${parts.join('; ')}.`;
+}
+
+async function previousApplication(seriesId: number, contentHash: string, transaction?: Transaction): Promise<IngestRun | null> {
+  return IngestRun.findOne({
+    where: { seriesId, contentHash, status: 'succeeded' },
+    order: [['id', 'ASC']],
+    transaction,
+  });
+}
+
+/**
+ * The one way data gets in (drop folders, uploads and the push API all call it): parse → validate each row →
+ * sort → compare with what is stored → write in ONE transaction → record the run.
+ *
+ * - Atomic: the new rows, the replaced values, the series' "needs analysis" mark and the run's final counts commit
+ *   together or not at all. A process killed mid-way leaves only a run row in 'running' (swept to 'failed' later,
+ *   see sweepStaleRuns) and no observation of it; running the same input again applies it exactly once.
+ * - Idempotent by content: a body whose hash was already applied to the series is recorded as such and not applied.
+ * - Partial by row: bad rows are rejected and reported (line, column, reason) while the good rows are stored; an input
+ *   with no usable row is 'rejected'. Same instant and value as stored = duplicate; different value = rejected, or
+ *   replaced when the series' duplicate policy is 'replace'. Duplicate instants inside one input with different
+ *   values are all rejected, whatever the policy: there is no telling which one is right.
+ */
+export async function ingestObservations(request: IngestRequest): Promise<IngestOutcome> {
+  await db();
+  const started = Date.now();
+  const key = crypto.randomUUID();
+  const outcome = await withLease(runLease(key), RUN_LEASE_MS, () => ingestUnderLease(request, key, started));
+  if (!outcome) throw new Error('could not take the lease of a new ingest run');
+  return outcome;
+}
+
+async function ingestUnderLease(request: IngestRequest, key: string, started: number): Promise<IngestOutcome> {
+  const { series, contentHash = null } = request;
+  const base = {
+    seriesId: series.id, source: request.source, fileName: request.fileName ?? null, contentHash,
+    userId: request.actor?.id ?? null, tokenId: request.tokenId ?? null, startedAt: new Date(started),
+  };
+  const finish = async (run: IngestRun, fields: Partial<IngestOutcome> & { status: IngestStatus; message: string; report: Record<string, unknown> }, transaction?: Transaction): Promise<IngestOutcome> => {
+    const durationMs = Date.now() - started;
+    const counts = { rowsRead: fields.rowsRead ?? 0, accepted: fields.accepted ?? 0, duplicates: fields.duplicates ?? 0, replaced: fields.replaced ?? 0, rejected: fields.rejected ?? 0 };
+    await run.update({ ...counts, status: fields.status, message: fields.message, report: { ...run.report, ...fields.report }, durationMs, finishedAt: new Date() }, { transaction });
+    return {
+      runId: run.id, status: fields.status, alreadyApplied: fields.alreadyApplied ?? false, previousRunId: fields.previousRunId ?? null,
+      ...counts, rejectedRows: fields.rejectedRows ?? [], notes: fields.notes ?? [], message: fields.message, durationMs,
+    };
+  };
+  const alreadyApplied = async (run: IngestRun, previous: IngestRun, transaction?: Transaction) => finish(run, {
+    status: 'succeeded', alreadyApplied: true, previousRunId: previous.id,
+    message: `Same content as run #${previous.id} of ${previous.startedAt.toISOString()}; it was applied then and is not applied again.`,
+    report: { alreadyApplied: true, previousRunId: previous.id },
+  }, transaction);
+
+  const run = await IngestRun.create({ ...base, status: 'running', report: { runKey: key, holder: PROCESS_HOLDER } });
+  try {
+    if (contentHash) {
+      const previous = await previousApplication(series.id, contentHash);
+      if (previous) return await alreadyApplied(run, previous);
+    }
+    if (series.retiredAt) {
+      return await finish(run, { status: 'rejected', message: 'The series is retired; restore it before sending data.', report: { fileError: 'retired' } });
+    }
+    let rows: CollectedRows;
+    try {
+      rows = await collect(request);
+    } catch (error) {
+      if (!(error instanceof CsvFileError)) throw error;
+      return await finish(run, { status: 'rejected', message: error.message, report: { fileError: error.code } });
+    }
+    const report = (rejectedRows: RejectedRow[], rejectedTotal: number) => ({
+      rejectedRows, rejectedTotal, notes: rows.notes, layout: describeLayout(rows.layout), stats: rows.stats,
+      timeFormat: mappingFor(series, request.mapping).timeFormat,
+      first: rows.t.length ? rows.t[0] : null, last: rows.t.length ? rows.t[rows.t.length - 1] : null,
+    });
+    if (rows.t.length === 0) {
+      const counts = { rowsRead: rows.rowsRead, accepted: 0, duplicates: rows.duplicatesInInput, replaced: 0, rejected: rows.rejectedCount };
+      return await finish(run, { ...counts, status: 'rejected', rejectedRows: rows.rejectedRows, notes: rows.notes, message: summaryMessage(counts, rows.rejectedRows[0]?.reason), report: report(rows.rejectedRows, rows.rejectedCount) });
+    }
+    return await writeTransaction(async (transaction) => {
+      if (contentHash) {
+        // Checked again under the write lock: two processes given the same content at once apply it once.
+        const previous = await previousApplication(series.id, contentHash, transaction);
+        if (previous) return alreadyApplied(run, previous, transaction);
+      }
+      const classified = await classifyAgainstStored(series.id, rows, connectionOf(transaction));
+      const replace = series.duplicatePolicy === 'replace';
+      const { inserted, replaced } = await writeRows(transaction, series.id, rows, classified, replace);
+      let duplicates = rows.duplicatesInInput;
+      for (let i = 0; i < classified.kind.length; i++) if (classified.kind[i] === ROW_DUPLICATE) duplicates++;
+      const conflicts = replace ? [] : conflictRejections(rows, classified);
+      const rejectedRows = [...rows.rejectedRows, ...conflicts].sort((a, b) => a.line - b.line).slice(0, 1000);
+      const counts = { rowsRead: rows.rowsRead, accepted: inserted, duplicates, replaced, rejected: rows.rejectedCount + conflicts.length };
+      if (inserted + replaced > 0) {
+        const now = new Date();
+        // The analysis job picks the series up from this mark; set with the data so neither exists without the other.
+        await Series.update({ needsAnalysis: true, dataChangedAt: now }, { where: { id: series.id }, transaction });
+      }
+      await recordAudit({
+        actorId: request.actor?.id ?? null, action: `intake.${request.source}`, entity: 'series', entityId: series.id,
+        details: { runId: run.id, fileName: request.fileName ?? null, tokenId: request.tokenId ?? null, ...counts },
+      }, transaction);
+      return finish(run, {
+        ...counts, status: 'succeeded', rejectedRows, notes: rows.notes, message: summaryMessage(counts),
+        report: report(rejectedRows, counts.rejected),
+      }, transaction);
+    });
+  } catch (error) {
+    const message = error instanceof Error ? error.message : String(error);
+    console.error(`[intake] run ${run.id} failed`, error);
+    await run.reload().catch(() => undefined);
+    return finish(run, { status: 'failed', message: `The intake failed before anything was stored: ${message}. Nothing from this run was stored.`, report: {} });
+  }
+}
+
+function describeLayout(layout: CsvLayout | null) {
+  if (!layout) return null;
+  return { delimiter: layout.delimiter, header: layout.header, encoding: layout.encoding, bom: layout.bom };
+}
+
+/**
+ * Marks runs left 'running' by a process that died as 'failed'. A live run holds its lease (renewed every 10 s);
+ * when the lease can be taken, its holder is gone. `now` lets a caller look past the lease's remaining lifetime.
+ */
+export async function sweepStaleRuns(now = Date.now()): Promise<number[]> {
+  await db();
+  const stale = await IngestRun.findAll({ where: { status: 'running', startedAt: { [Op.lt]: new Date(now - 1000) } } });
+  const holder = `sweep:${PROCESS_HOLDER}`;
+  const swept: number[] = [];
+  for (const run of stale) {
+    const key = typeof run.report?.runKey === 'string' ? run.report.runKey : null;
+    if (!key || !(await acquireLease(runLease(key), 1000, holder, now))) continue;
+    try {
+      await run.update({
+        status: 'failed', finishedAt: new Date(), durationMs: now - run.startedAt.getTime(),
+        message: 'The process taking in this data stopped before finishing; nothing from this run was stored. A dropped file is taken in again on the next pass.',
+      });
+      swept.push(run.id);
+    } finally {
+      await releaseLease(runLease(key), holder);
+    }
+  }
+  return swept;
+}
+
+export interface PreviewRow {
+  line: number;
+  fields: string[];
+}
+
+export interface IntakePreview {
+  layout: (NonNullable<ReturnType<typeof describeLayout>> & { delimiterDetected: boolean; fieldCount: number }) | null;
+  timeFormatGuess: TimeFormat | null;
+  mapping: IntakeMapping;
+  sample: PreviewRow[];
+  summary: {
+    rowsRead: number;
+    wouldAccept: number;
+    wouldBeDuplicates: number;
+    wouldReplace: number;
+    conflicts: number;
+    rejected: number;
+    rejectedRows: RejectedRow[];
+    first: number | null;
+    last: number | null;
+    notes: string[];
+  } | null;
+  fileError: { code: string; message: string } | null;
+}
+
+const PREVIEW_ROWS = 20;
+
+/**
+ * What committing this CSV would do, with nothing stored: the detected layout, the first rows as read, a guess of
+ * the time format, and the full validation and comparison summary under the given (or guessed) mapping.
+ */
+export async function previewObservations(series: Series, text: string, overrides: Partial<IntakeMapping> = {}): Promise<IntakePreview> {
+  await db();
+  const sample: PreviewRow[] = [];
+  let layout: CsvLayout | null = null;
+  const timeIndex = typeof overrides.timeColumn === 'number' ? overrides.timeColumn : 0;
+  try {
+    const head = await readCsv(text.slice(0, 65_536), {
+      delimiter: overrides.delimiter,
+      header: overrides.header ?? 'auto',
+      looksLikeData: (fields) => fields.slice(1).some((f) => /^\s*[+-]?(\d|\.\d)/.test(f)),
+      onRow: (fields, line) => {
+        if (sample.length < PREVIEW_ROWS) sample.push({ line, fields });
+      },
+    });
+    layout = head.layout;
+  } catch (error) {
+    if (!(error instanceof CsvFileError)) throw error;
+    if (error.code !== 'header-only' && error.code !== 'no-data') {
+      return { layout: null, timeFormatGuess: null, mapping: mappingFor(series, overrides), sample, summary: null, fileError: { code: error.code, message: error.message } };
+    }
+  }
+  const column = typeof overrides.timeColumn === 'string' && layout?.header
+    ? layout.header.findIndex((h) => h.toLowerCase() === String(overrides.timeColumn).toLowerCase())
+    : timeIndex;
+  const timeFormatGuess = guessTimeFormat(sample.map((row) => row.fields[column] ?? ''));
+  const mapping = mappingFor(series, { ...overrides, timeFormat: overrides.timeFormat ?? timeFormatGuess ?? undefined, header: overrides.header ?? (layout?.header ? true : undefined) });
+  const described = layout ? { ...describeLayout(layout)!, delimiterDetected: layout.delimiterDetected, fieldCount: layout.fieldCount } : null;
+  let rows: CollectedRows;
+  try {
+    rows = await collectCsvRows(text, mapping, series.timeZone);
+  } catch (error) {
+    if (!(error instanceof CsvFileError)) throw error;
+    return { layout: described, timeFormatGuess, mapping, sample, summary: null, fileError: { code: error.code, message: error.message } };
+  }
+  const sequelize = await db();
+  const classified = await sequelize.transaction({ type: Transaction.TYPES.DEFERRED }, (transaction) => classifyAgainstStored(series.id, rows, connectionOf(transaction)));
+  let wouldAccept = 0;
+  let duplicates = rows.duplicatesInInput;
+  let conflicts = 0;
+  for (const kind of classified.kind) {
+    if (kind === ROW_NEW) wouldAccept++;
+    else if (kind === ROW_DUPLICATE) duplicates++;
+    else if (kind === ROW_CONFLICT) conflicts++;
+  }
+  const replace = series.duplicatePolicy === 'replace';
+  const conflictRows = replace ? [] : conflictRejections(rows, classified);
+  return {
+    layout: described,
+    timeFormatGuess,
+    mapping,
+    sample,
+    summary: {
+      rowsRead: rows.rowsRead, wouldAccept, wouldBeDuplicates: duplicates, wouldReplace: replace ? conflicts : 0,
+      conflicts: replace ? 0 : conflicts, rejected: rows.rejectedCount + conflictRows.length,
+      rejectedRows: [...rows.rejectedRows, ...conflictRows].sort((a, b) => a.line - b.line).slice(0, 200),
+      first: rows.t.length ? rows.t[0] : null, last: rows.t.length ? rows.t[rows.t.length - 1] : null, notes: rows.notes,
+    },
+    fileError: null,
+  };
+}

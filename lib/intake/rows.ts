@@ -1,0 +1,270 @@
+import { observationSchema, type PushedObservation } from '@/lib/schemas/observation';
+import { CsvFileError, readCsv, type CsvInput, type CsvLayout, type CsvStats, type Delimiter } from './csv';
+import { parseTime, type TimeFormat } from './time-formats';
+
+/** How to read the time and value of each record; columns by header name or 0-based position. */
+export interface IntakeMapping {
+  timeColumn: string | number;
+  valueColumn: string | number;
+  timeFormat: TimeFormat;
+  delimiter?: Delimiter;
+  /** true: first record is a header; false: it is data; 'auto' (default with positional columns): decided per file. */
+  header?: boolean | 'auto';
+}
+
+export interface RejectedRow {
+  line: number;
+  column: string | null;
+  reason: string;
+}
+
+/** Rejections beyond this many are counted but not listed, so a wholly wrong million-row file keeps a small report. */
+export const MAX_LISTED_REJECTIONS = 1000;
+
+/** Rows read from one input, validated, in time order, one per instant. */
+export interface CollectedRows {
+  /** Sorted, unique instants with their values and source lines. */
+  t: Float64Array;
+  value: Float64Array;
+  line: Int32Array;
+  rowsRead: number;
+  /** Label of the time column (header name or "column N"), for rejections found after reading. */
+  timeColumn: string;
+  /** Rows equal to another row of the same input (same instant, same value). */
+  duplicatesInInput: number;
+  rejectedCount: number;
+  rejectedRows: RejectedRow[];
+  notes: string[];
+  layout: CsvLayout | null;
+  stats: CsvStats | null;
+}
+
+/** Typed arrays that grow by doubling: a million rows cost 20 bytes each instead of an object each. */
+class Columns {
+  t = new Float64Array(1024);
+  value = new Float64Array(1024);
+  line = new Int32Array(1024);
+  length = 0;
+
+  push(t: number, value: number, line: number): void {
+    if (this.length === this.t.length) {
+      const grow = <A extends Float64Array | Int32Array>(a: A): A => {
+        const b = new (a.constructor as new (n: number) => A)(a.length * 2);
+        b.set(a);
+        return b;
+      };
+      this.t = grow(this.t);
+      this.value = grow(this.value);
+      this.line = grow(this.line);
+    }
+    this.t[this.length] = t;
+    this.value[this.length] = value;
+    this.line[this.length] = line;
+    this.length++;
+  }
+}
+
+const DECIMAL = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
+
+/**
+ * A value cell → number, or the reason it is none. NaN and infinity words become NaN/±Infinity so the
+ * observation schema rejects them with its own message; a comma decimal mark gets a message of its own.
+ */
+export function parseValue(raw: string | number): number | string {
+  if (typeof raw === 'number') return raw;
+  const text = raw.trim();
+  if (text === '') return 'the value is empty';
+  if (/^[+-]?nan$/i.test(text)) return Number.NaN;
+  const infinite = /^([+-]?)(?:inf|infinity|∞)$/i.exec(text);
+  if (infinite) return infinite[1] === '-' ? -Infinity : Infinity;
+  if (/^[+-]?\d+,\d+$/.test(text)) {
+    return `"${text}" uses a comma as decimal mark; Brinkwatch reads a point (${text.replace(',', '.')}). Export with point decimals`;
+  }
+  if (!DECIMAL.test(text)) return `"${text.length > 40 ? `${text.slice(0, 37)}...` : text}" is not a number`;
+  return Number(text);
+}
+
+/** True for a cell that reads as a number (or a NaN/infinity word, or a comma decimal): the mark of a data record rather than a header. */
+function numericLike(cell: string | undefined): boolean {
+  if (cell === undefined) return false;
+  const text = cell.trim();
+  return DECIMAL.test(text) || /^[+-]?\d+,\d+$/.test(text) || /^[+-]?(nan|inf|infinity)$/i.test(text);
+}
+
+/** Collects validated rows; shared by the CSV and JSON readers so every way in judges a row the same way. */
+class RowCollector {
+  readonly columns = new Columns();
+  rowsRead = 0;
+  rejectedCount = 0;
+  readonly rejectedRows: RejectedRow[] = [];
+  readonly notes: string[] = [];
+  private offsetStyle: 'offset' | 'local' | null = null;
+  private readonly offsets = new Set<string>();
+  /** Label of the time column, for rejections found after reading (in-input conflicts). */
+  timeLabel = 'time';
+
+  constructor(private readonly format: TimeFormat, private readonly zone: string) {}
+
+  reject(line: number, column: string | null, reason: string): void {
+    this.rejectedCount++;
+    if (this.rejectedRows.length < MAX_LISTED_REJECTIONS) this.rejectedRows.push({ line, column, reason });
+  }
+
+  add(line: number, timeCell: string | number, valueCell: string | number, timeColumn: string, valueColumn: string): void {
+    this.rowsRead++;
+    const time = typeof timeCell === 'number'
+      ? parseTime(String(timeCell), this.format === 'iso8601' || this.format === 'date' ? 'epoch-milliseconds' : this.format, this.zone)
+      : parseTime(timeCell, this.format, this.zone);
+    if (!time.ok) return this.reject(line, timeColumn, time.reason);
+    if (time.offset !== undefined || time.local) {
+      // Offsets on some rows and none on others usually means two exports were pasted together; guessing is unsafe.
+      const style = time.local ? 'local' : 'offset';
+      this.offsetStyle ??= style;
+      if (style !== this.offsetStyle) {
+        return this.reject(line, timeColumn, style === 'local'
+          ? 'this time has no UTC offset while earlier rows have one; give every row an offset (or none)'
+          : 'this time has a UTC offset while earlier rows have none; give every row an offset (or none)');
+      }
+      if (time.offset !== undefined && this.offsets.size < 10) this.offsets.add(time.offset);
+    }
+    const value = parseValue(valueCell);
+    if (typeof value === 'string') return this.reject(line, valueColumn, value);
+    const checked = observationSchema.safeParse({ t: time.t, value });
+    if (!checked.success) {
+      const issue = checked.error.issues[0];
+      return this.reject(line, issue.path[0] === 't' ? timeColumn : valueColumn, issue.message);
+    }
+    this.columns.push(time.t, value, line);
+  }
+
+  finish(layout: CsvLayout | null, stats: CsvStats | null): CollectedRows {
+    if (this.offsets.size > 1) {
+      this.notes.push(`Rows carry different UTC offsets (${[...this.offsets].join(', ')}); each time was converted with its own offset.`);
+    }
+    const unique = normalise(this.columns, this.notes, (line, reason) => this.reject(line, this.timeLabel, reason), this.format);
+    return { ...unique, timeColumn: this.timeLabel, rowsRead: this.rowsRead, rejectedCount: this.rejectedCount, rejectedRows: this.rejectedRows, notes: this.notes, layout, stats };
+  }
+}
+
+/**
+ * Sorts by time (stable: ties keep file order) and reduces each instant to one row. Rows repeating an instant with
+ * the same value are duplicates (one is kept); with different values none can be trusted, so all are rejected.
+ */
+function normalise(
+  columns: Columns,
+  notes: string[],
+  reject: (line: number, reason: string) => void,
+  format: TimeFormat,
+): Pick<CollectedRows, 't' | 'value' | 'line' | 'duplicatesInInput'> {
+  const n = columns.length;
+  const { t, value, line } = columns;
+  let firstUnsorted = -1;
+  for (let i = 1; i < n; i++) {
+    if (t[i] < t[i - 1]) {
+      firstUnsorted = i;
+      break;
+    }
+  }
+  const order = new Uint32Array(n);
+  for (let i = 0; i < n; i++) order[i] = i;
+  if (firstUnsorted !== -1) {
+    order.sort((a, b) => t[a] - t[b] || a - b);
+    const agesExpected = format === 'age-years-bp' || format === 'age-kyr-bp';
+    if (!agesExpected) notes.push(`Rows were not in time order (first at line ${line[firstUnsorted]}); they were sorted before storing.`);
+  }
+  const outT = new Float64Array(n);
+  const outV = new Float64Array(n);
+  const outL = new Int32Array(n);
+  let m = 0;
+  let duplicates = 0;
+  for (let i = 0; i < n; ) {
+    let j = i + 1;
+    while (j < n && t[order[j]] === t[order[i]]) j++;
+    const first = order[i];
+    let same = true;
+    for (let k = i + 1; k < j; k++) if (value[order[k]] !== value[first]) same = false;
+    if (same) {
+      outT[m] = t[first];
+      outV[m] = value[first];
+      outL[m] = line[first];
+      m++;
+      duplicates += j - i - 1;
+    } else {
+      const lines = Array.from(order.subarray(i, j), (k) => line[k]);
+      for (const l of lines) {
+        reject(l, `the same instant is on lines ${lines.join(', ')} with different values; none of them is stored`);
+      }
+    }
+    i = j;
+  }
+  return { t: outT.subarray(0, m), value: outV.subarray(0, m), line: outL.subarray(0, m), duplicatesInInput: duplicates };
+}
+
+function columnLabel(column: string | number, header: string[] | null): string {
+  if (typeof column === 'string') return column;
+  return header?.[column] || `column ${column + 1}`;
+}
+
+/** Reads a CSV into validated, sorted, unique rows; file-level problems throw CsvFileError. */
+export async function collectCsvRows(input: CsvInput, mapping: IntakeMapping, zone: string): Promise<CollectedRows> {
+  const collector = new RowCollector(mapping.timeFormat, zone);
+  const named = typeof mapping.timeColumn === 'string' || typeof mapping.valueColumn === 'string';
+  let timeIndex = -1;
+  let valueIndex = -1;
+  let labels: [string, string] = ['', ''];
+  let delimiterName = '';
+  const resolve = (layout: CsvLayout) => {
+    const find = (column: string | number): number => {
+      if (typeof column === 'number') {
+        if (column >= layout.fieldCount && layout.fieldCount <= 1) {
+          throw new CsvFileError('single-column', `Only one column was found. Brinkwatch reads comma, semicolon, tab or pipe delimited files; check the delimiter (expected time and value in separate columns).`);
+        }
+        return column;
+      }
+      if (!layout.header) throw new CsvFileError('missing-column', `The mapping names the column "${column}", but the file has no header line.`);
+      const index = layout.header.findIndex((h) => h.toLowerCase() === column.toLowerCase());
+      if (index === -1) {
+        throw new CsvFileError('missing-column', `The header has no column "${column}" (it has: ${layout.header.map((h) => `"${h}"`).join(', ')}).`);
+      }
+      return index;
+    };
+    timeIndex = find(mapping.timeColumn);
+    valueIndex = find(mapping.valueColumn);
+    labels = [columnLabel(mapping.timeColumn, layout.header), columnLabel(mapping.valueColumn, layout.header)];
+    collector.timeLabel = labels[0];
+    delimiterName = layout.delimiter === '\t' ? 'tab' : `"${layout.delimiter}"`;
+  };
+  const looksLikeData = (fields: string[]) => {
+    const ti = typeof mapping.timeColumn === 'number' ? mapping.timeColumn : 0;
+    const vi = typeof mapping.valueColumn === 'number' ? mapping.valueColumn : 1;
+    return numericLike(fields[vi]) || parseTime(fields[ti] ?? '', mapping.timeFormat, zone).ok;
+  };
+  const needed = () => Math.max(timeIndex, valueIndex) + 1;
+  const { layout, stats } = await readCsv(input, {
+    delimiter: mapping.delimiter,
+    header: mapping.header ?? (named ? true : 'auto'),
+    looksLikeData,
+    onLayout: resolve,
+    onRow: (fields, line, problem) => {
+      if (problem) {
+        collector.rowsRead++;
+        return collector.reject(line, null, problem);
+      }
+      if (fields.length < needed()) {
+        collector.rowsRead++;
+        const missing = fields.length <= timeIndex ? labels[0] : labels[1];
+        return collector.reject(line, missing, `the line has ${fields.length} field${fields.length === 1 ? '' : 's'}; expected at least ${needed()} separated by ${delimiterName}`);
+      }
+      collector.add(line, fields[timeIndex], fields[valueIndex], labels[0], labels[1]);
+    },
+  });
+  if (layout.bom) collector.notes.push(`A byte order mark (${layout.encoding}) was found and removed.`);
+  return collector.finish(layout, stats);
+}
+
+/** Validates pushed JSON points; `line` in reports is the 1-based position in the array. */
+export function collectPushedRows(points: PushedObservation[], format: TimeFormat, zone: string): CollectedRows {
+  const collector = new RowCollector(format, zone);
+  points.forEach((point, index) => collector.add(index + 1, point.time, point.value, 'time', 'value'));
+  return collector.finish(null, null);
+}

@@ -1,0 +1,136 @@
+import type { Transaction } from 'sequelize';
+import type { Database, Statement } from 'sqlite3';
+import type { CollectedRows, RejectedRow } from './rows';
+
+/** Rows per multi-row INSERT: 500 × 3 parameters stays far below SQLite's variable limit and amortises each call. */
+const INSERT_BATCH = 500;
+const READ_PAGE = 50_000;
+
+export const ROW_NEW = 0;
+export const ROW_DUPLICATE = 1;
+export const ROW_REPLACE = 2;
+export const ROW_CONFLICT = 3;
+
+/** The raw sqlite3 handle of a Sequelize transaction: statements on it run inside that transaction. */
+export function connectionOf(transaction: Transaction): Database {
+  return (transaction as unknown as { connection: Database }).connection;
+}
+
+function all<T>(conn: Database, sql: string, params: unknown[]): Promise<T[]> {
+  return new Promise((resolve, reject) => conn.all(sql, params, (error, rows) => (error ? reject(error) : resolve(rows as T[]))));
+}
+
+function prepare(conn: Database, sql: string): Promise<Statement> {
+  return new Promise((resolve, reject) => {
+    const statement = conn.prepare(sql, (error) => (error ? reject(error) : resolve(statement)));
+  });
+}
+
+function run(statement: Statement, params: unknown[]): Promise<void> {
+  return new Promise((resolve, reject) => statement.run(params, (error) => (error ? reject(error) : resolve())));
+}
+
+function finalize(statement: Statement): Promise<void> {
+  return new Promise((resolve) => statement.finalize(() => resolve()));
+}
+
+export interface Classified {
+  kind: Uint8Array;
+  stored: Float64Array;
+}
+
+/**
+ * Compares unique, sorted incoming rows with what the series already stores. When the input is at least as large as
+ * the stored stretch it covers, the stretch is read in pages and merged (O(n + k)); otherwise each instant is looked
+ * up by primary key in batches (O(n log N)). Runs on the transaction's connection when one is given, so the write
+ * that follows sees exactly what was compared.
+ */
+export async function classifyAgainstStored(seriesId: number, rows: CollectedRows, conn: Database): Promise<Classified> {
+  const n = rows.t.length;
+  const kind = new Uint8Array(n);
+  const stored = new Float64Array(n);
+  if (n === 0) return { kind, stored };
+  const [{ count }] = await all<{ count: number }>(conn, 'SELECT COUNT(*) AS count FROM observations WHERE series_id = ? AND t BETWEEN ? AND ?', [seriesId, rows.t[0], rows.t[n - 1]]);
+  const mark = (i: number, value: number) => {
+    stored[i] = value;
+    kind[i] = value === rows.value[i] ? ROW_DUPLICATE : ROW_CONFLICT;
+  };
+  if (count === 0) return { kind, stored };
+  if (n >= count) {
+    let i = 0;
+    let after = rows.t[0] - 1;
+    for (;;) {
+      const page = await all<{ t: number; value: number }>(conn, 'SELECT t, value FROM observations WHERE series_id = ? AND t > ? AND t <= ? ORDER BY t LIMIT ?', [seriesId, after, rows.t[n - 1], READ_PAGE]);
+      for (const row of page) {
+        while (i < n && rows.t[i] < row.t) i++;
+        if (i < n && rows.t[i] === row.t) mark(i, row.value);
+      }
+      if (page.length < READ_PAGE) break;
+      after = page[page.length - 1].t;
+    }
+  } else {
+    const index = new Map<number, number>();
+    for (let start = 0; start < n; start += INSERT_BATCH) {
+      const end = Math.min(n, start + INSERT_BATCH);
+      index.clear();
+      const params: number[] = [seriesId];
+      for (let i = start; i < end; i++) {
+        index.set(rows.t[i], i);
+        params.push(rows.t[i]);
+      }
+      const found = await all<{ t: number; value: number }>(conn, `SELECT t, value FROM observations WHERE series_id = ? AND t IN (${new Array(end - start).fill('?').join(',')})`, params);
+      for (const row of found) mark(index.get(row.t)!, row.value);
+    }
+  }
+  return { kind, stored };
+}
+
+export function conflictRejections(rows: CollectedRows, classified: Classified): RejectedRow[] {
+  const out: RejectedRow[] = [];
+  for (let i = 0; i < rows.t.length; i++) {
+    if (classified.kind[i] === ROW_CONFLICT) {
+      out.push({ line: rows.line[i], column: rows.timeColumn, reason: `a different value (${classified.stored[i]}) is already stored for this instant; the stored value is kept (duplicate policy: reject)` });
+    }
+  }
+  return out;
+}
+
+/** Inserts the new rows and overwrites the replaced ones on the transaction's connection, with statements prepared once. */
+export async function writeRows(transaction: Transaction, seriesId: number, rows: CollectedRows, classified: Classified, replace: boolean): Promise<{ inserted: number; replaced: number }> {
+  const conn = connectionOf(transaction);
+  const values = (count: number) => new Array(count).fill('(?,?,?)').join(',');
+  const full = await prepare(conn, `INSERT INTO observations (series_id, t, value) VALUES ${values(INSERT_BATCH)}`);
+  const update = await prepare(conn, 'UPDATE observations SET value = ? WHERE series_id = ? AND t = ?');
+  let inserted = 0;
+  let replaced = 0;
+  try {
+    const batch: number[] = [];
+    for (let i = 0; i < rows.t.length; i++) {
+      const kind = classified.kind[i];
+      if (kind === ROW_NEW) {
+        batch.push(seriesId, rows.t[i], rows.value[i]);
+        inserted++;
+        if (batch.length === INSERT_BATCH * 3) {
+          await run(full, batch);
+          batch.length = 0;
+        }
+      } else if (kind === ROW_CONFLICT && replace) {
+        await run(update, [rows.value[i], seriesId, rows.t[i]]);
+        replaced++;
+      }
+    }
+    if (batch.length) {
+      const rest = await prepare(conn, `INSERT INTO observations (series_id, t, value) VALUES ${values(batch.length / 3)}`);
+      try {
+        await run(rest, batch);
+      } finally {
+        await finalize(rest);
+      }
+    }
+  } finally {
+    await finalize(full);
+    await finalize(update);
+  }
+  return { inserted, replaced };
+}
+

@@ -1,0 +1,28 @@
+import { z } from 'zod';
+import { MAX_ABS_TIME_MS } from '@/lib/intake/time-formats';
+
+/**
+ * One observation after its cells were read: a UTC instant in integer ms and a finite value. Every row of every
+ * way in (drop folder, upload, push) passes this schema before it can be stored.
+ */
+export const observationSchema = z.object({
+  t: z
+    .number({ error: 'the time must be a finite instant' })
+    .refine((t) => Number.isInteger(t), 'the instant must be a whole number of milliseconds')
+    .refine((t) => Math.abs(t) <= MAX_ABS_TIME_MS, 'the instant is outside the supported range'),
+  // zod's number already refuses NaN and ±Infinity; the messages say why in the data manager's terms.
+  value: z.number({
+    error: (issue) => Number.isNaN(issue.input)
+      ? 'NaN is not a measurement (leave the row out when a value is missing)'
+      : typeof issue.input === 'number' ? 'an infinite value is not a measurement' : 'the value must be a number',
+  }),
+});
+export type ObservationRow = z.infer<typeof observationSchema>;
+
+/** A pushed JSON point: time as ISO 8601 text or a number in the series' time format, value as a number or numeric text. */
+export const pushedObservationSchema = z.object({
+  time: z.union([z.string().max(100), z.number()]),
+  value: z.union([z.number(), z.string().max(100)]),
+});
+export const pushedObservationsSchema = z.array(pushedObservationSchema).min(1, 'Send at least one point.').max(2_000_000);
+export type PushedObservation = z.infer<typeof pushedObservationSchema>;
