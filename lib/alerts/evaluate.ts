@@ -1,6 +1,7 @@
 import { Op, type Transaction } from 'sequelize';
 import { Alert, AlertEvent, AlertRule, RuleEvaluation, Series, writeTransaction, OPEN_ALERT_STATES, type AnalysisSnapshot } from '@/models';
 import { recordAudit } from '@/lib/audit';
+import { portfolioFdr } from './portfolio-fdr';
 import { enqueueMail } from '@/lib/mail/outbox';
 import { newAlertMail } from '@/lib/mail/templates';
 import { watchersOf } from '@/lib/mail/watches';
@@ -42,25 +43,6 @@ export function judgeRule(rule: RuleThresholds, summary: StoredSummary, qValue: 
       failed.push(`latest value not ${below ? 'at or below' : 'at or above'} ${rule.levelThreshold}`);
   }
   return { tau: facts.tau, kendallP: facts.kendallP, surrogateP: facts.surrogateP, qValue, level: facts.level, passed: failed.length === 0, failed };
-}
-
-/**
- * Benjamini–Hochberg adjusted p-values (q-values): with p sorted ascending, q_(i) = min_{j ≥ i} min(1, m·p_(j)/j),
- * returned in the input order. Rejecting every q ≤ α controls the false-discovery rate at α for independent
- * tests. O(m log m). Source: Benjamini & Hochberg (1995), J. R. Statist. Soc. B 57, 289–300; the step-up
- * adjustment as in scipy.stats.false_discovery_control.
- */
-export function benjaminiHochberg(p: readonly number[]): number[] {
-  const m = p.length;
-  const order = p.map((_, i) => i).sort((a, b) => p[a] - p[b]);
-  const q = new Array<number>(m);
-  let running = 1;
-  for (let rank = m; rank >= 1; rank--) {
-    const i = order[rank - 1];
-    running = Math.min(running, (m * p[i]) / rank, 1);
-    q[i] = running;
-  }
-  return q;
 }
 
 /** A later alert within a quiet period must beat the decided one by this much tau… */
@@ -156,15 +138,18 @@ export async function evaluateSnapshots(snapshots: AnalysisSnapshot[], now = new
   const pairs = usable.flatMap((snapshot) => rules.filter((r) => r.seriesId === snapshot.seriesId).map((rule) => ({ snapshot, rule })));
 
   // One family for the false-discovery check: every FDR-enabled rule+snapshot of this cycle that has a surrogate p.
-  const family = pairs
-    .map((pair, index) => ({ index, p: pair.rule.fdrLevel !== null ? indicatorFacts(pair.snapshot.summary as StoredSummary, pair.rule.indicator).surrogateP : null }))
-    .filter((entry): entry is { index: number; p: number } => entry.p !== null);
-  const qValues = new Map<number, number>();
-  benjaminiHochberg(family.map((f) => f.p)).forEach((q, k) => qValues.set(family[k].index, q));
+  const fdr = portfolioFdr(
+    pairs.map(({ snapshot, rule }) => ({
+      ruleId: rule.id,
+      seriesId: snapshot.seriesId,
+      fdrLevel: rule.fdrLevel,
+      surrogateP: rule.fdrLevel !== null ? indicatorFacts(snapshot.summary as StoredSummary, rule.indicator).surrogateP : null,
+    })),
+  );
 
   for (const [index, { snapshot, rule }] of pairs.entries()) {
     const series = seriesById.get(snapshot.seriesId)!;
-    const judgement = judgeRule(rule, snapshot.summary as StoredSummary, qValues.get(index) ?? null);
+    const judgement = judgeRule(rule, snapshot.summary as StoredSummary, fdr[index].qValue);
     const outcome = await writeTransaction(async (transaction) => {
       const seen = await RuleEvaluation.findOne({ where: { ruleId: rule.id, snapshotId: snapshot.id }, attributes: ['id'], transaction });
       if (seen) return null;
