@@ -12,8 +12,10 @@ export const PROCESS_HOLDER = `${os.hostname()}:${process.pid}:${crypto.randomBy
  */
 export async function acquireLease(name: string, ttlMs: number, holder = PROCESS_HOLDER, now = Date.now()): Promise<boolean> {
   const sequelize = await db();
+  // The leading comment keeps Sequelize's SQLite dialect from taking this for a plain INSERT (run(), no rows),
+  // so the RETURNING row comes back through all().
   const rows = await sequelize.query<{ holder: string }>(
-    `INSERT INTO leases (name, holder, expires_at) VALUES (:name, :holder, :expires)
+    `/* claim */ INSERT INTO leases (name, holder, expires_at) VALUES (:name, :holder, :expires)
      ON CONFLICT(name) DO UPDATE SET holder = excluded.holder, expires_at = excluded.expires_at
      WHERE leases.holder = excluded.holder OR leases.expires_at < :now
      RETURNING holder`,
