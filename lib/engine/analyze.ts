@@ -89,7 +89,7 @@ export async function runAnalysis(input: AnalysisInput, settings: AnalysisSettin
   const significance: AnalysisResult['significance'] = {};
   if (settings.surrogates > 0) {
     const job = prepareSurrogateJob(d.residual, raw, { method: settings.surrogateMethod, seed: settings.seed, w, dt, indicators: [...names] });
-    const taus = await computeSurrogateTaus(job, settings.surrogates, { parallel: options.parallel });
+    const { taus } = await computeSurrogateTaus(job, settings.surrogates, { parallel: options.parallel });
     for (const name of names) {
       const { p, count } = surrogatePValue(kendall[name]!.tau ?? Number.NaN, taus[name]);
       significance[name] = { p, count, method: settings.surrogateMethod, taus: Array.from(taus[name]).filter(Number.isFinite) };

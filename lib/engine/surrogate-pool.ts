@@ -37,22 +37,30 @@ function runInWorker(url: URL, job: SurrogateJob, from: number, to: number): Pro
  * index range is cut into contiguous chunks, one per core, each run by a worker thread; since each
  * surrogate draws from its own stream (seed, index), the numbers are identical to the synchronous
  * path, which is used when workers are unavailable (e.g. inside the Next.js server bundle, where the
- * worker file is not shipped) or fail to start. Cost O(count · n log n) / cores.
+ * worker file is not shipped) or fail to start. `workers` says how many chunks worker threads computed.
+ * Cost O(count · n log n) / cores.
  */
 export async function computeSurrogateTaus(
   job: SurrogateJob,
   count: number,
   options: { parallel?: boolean; threads?: number } = {},
-): Promise<Record<string, Float64Array>> {
+): Promise<{ taus: Record<string, Float64Array>; workers: number }> {
   const cores = options.threads ?? (typeof os.availableParallelism === 'function' ? os.availableParallelism() : os.cpus().length);
   const threads = Math.max(1, Math.min(cores, Math.floor(count / MIN_PER_WORKER)));
   const url = workerUrl();
   const useWorkers = options.parallel !== false && threads > 1 && url !== null && url.protocol === 'file:' && !process.env.NEXT_RUNTIME;
-  if (!useWorkers) return surrogateTaus(job, 0, count);
+  if (!useWorkers) return { taus: surrogateTaus(job, 0, count), workers: 0 };
+  let workers = 0;
   const bounds = Array.from({ length: threads + 1 }, (_, i) => Math.round((i * count) / threads));
   const parts = await Promise.all(
     bounds.slice(0, -1).map((from, i) =>
-      runInWorker(url, job, from, bounds[i + 1]).catch(() => surrogateTaus(job, from, bounds[i + 1])),
+      runInWorker(url, job, from, bounds[i + 1]).then(
+        (part) => {
+          workers++;
+          return part;
+        },
+        () => surrogateTaus(job, from, bounds[i + 1]),
+      ),
     ),
   );
   const out: Record<string, Float64Array> = {};
@@ -61,5 +69,5 @@ export async function computeSurrogateTaus(
     parts.forEach((part, i) => all.set(part[name], bounds[i]));
     out[name] = all;
   }
-  return out;
+  return { taus: out, workers };
 }

@@ -1,14 +1,16 @@
 #!/usr/bin/env python3
 """Writes fixtures/reference/engine_reference.json: reference values for the indicator engine's tests,
 computed with numpy/scipy by the plainest possible means (direct O(n^2) kernel sums, two-pass moments per
-window, scipy.stats.kendalltau(method='asymptotic'), scipy.special.erfc, numpy.fft.fft).
+window (exact rational arithmetic for the 1e7-offset series), scipy.stats.kendalltau(method='asymptotic'), scipy.special.erfc, numpy.fft.fft).
 
 Run from the repository root:  python3 tests/reference/make_engine_fixtures.py
 The TypeScript tests read the JSON and never need Python.
 """
 import json
+import math
 import platform
 import sys
+from fractions import Fraction
 from pathlib import Path
 
 import numpy as np
@@ -51,6 +53,30 @@ def rolling_two_pass(r, raw, w, dt):
     return out
 
 
+def rolling_exact(x, w):
+    """Moments per window in exact rational arithmetic on the float64 inputs (no rounding until the end):
+    float64 two-pass sums lose digits on a 1e7 offset, so they cannot serve as the reference there."""
+    n = len(x)
+    q = [Fraction(float(v)) for v in x]
+    out = {k: [None] * n for k in ["variance", "sd", "cv", "ac1", "skewness", "kurtosis"]}
+    for end in range(w - 1, n):
+        seg = q[end - w + 1 : end + 1]
+        m = sum(seg) / w
+        d = [v - m for v in seg]
+        m2 = sum(v * v for v in d)
+        m3 = sum(v * v * v for v in d)
+        m4 = sum(v * v * v * v for v in d)
+        lag = sum(d[k] * d[k + 1] for k in range(w - 1))
+        var = m2 / (w - 1)
+        out["variance"][end] = float(var)
+        out["sd"][end] = math.sqrt(var)
+        out["cv"][end] = math.sqrt(var) / abs(float(m))
+        out["ac1"][end] = float(lag / m2)
+        out["skewness"][end] = float(m3 / w) / float(m2 / w) ** 1.5
+        out["kurtosis"][end] = float((m4 / w) / (m2 / w) ** 2) - 3.0
+    return out
+
+
 def kendall_of(values):
     idx = [i for i, v in enumerate(values) if v is not None]
     y = [values[i] for i in idx]
@@ -82,7 +108,7 @@ def main():
     # NumAcc-style offset: large constant plus small variation, rolling on the raw values.
     off = 1e7 + np.round(rng.standard_normal(200) * 0.1 + np.linspace(0, 0.3, 200), 3)
     w_off = 60
-    offset = {"x": off.tolist(), "w": w_off, "indicators": rolling_two_pass(off, off, w_off, 1.0)}
+    offset = {"x": off.tolist(), "w": w_off, "indicators": rolling_exact(off, w_off), "method": "exact rational arithmetic (fractions)"}
 
     # Kendall with ties in y (rounded values) and in both variables.
     y_t = np.round(rng.standard_normal(150), 1)

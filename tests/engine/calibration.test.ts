@@ -1,0 +1,80 @@
+import { describe, expect, it } from 'vitest';
+import { runAnalysis } from '@/lib/engine/analyze';
+import { RandomStream } from '@/lib/engine/random';
+import { analysisSettingsSchema } from '@/lib/engine/settings';
+
+/** P(X ≤ k) for X ~ Binomial(n, p), summed directly. */
+function binomCdf(k: number, n: number, p: number): number {
+  let term = Math.pow(1 - p, n);
+  let sum = term;
+  for (let i = 1; i <= k; i++) {
+    term *= ((n - i + 1) / i) * (p / (1 - p));
+    sum += term;
+  }
+  return sum;
+}
+
+describe('surrogate significance calibration', () => {
+  // Under the null (a stationary AR(1) series, no approach to any transition), a valid test rejects at
+  // p ≤ 0.05 in 5% of series. With 99 surrogates, p = (1 + #{τ_s ≥ τ})/100 ≤ 0.05 exactly when at most 4
+  // surrogates reach τ, which has probability 5/100 under exchangeability (Davison & Hinkley 1997,
+  // Sec. 4.2.1, from memory). The rejection count over 300 series must lie inside the central 99.8% of
+  // Binomial(300, 0.05) (common practice). Seeded, so deterministic, yet a miscalibrated test fails it.
+  it('stationary AR(1) series: p ≤ 0.05 at a rate consistent with 5%', async () => {
+    const series = 300;
+    const n = 200;
+    const settings = analysisSettingsSchema.parse({ detrend: 'linear', window: 0.5, indicators: ['variance', 'ac1'], surrogates: 99, seed: 11 });
+    const time = Float64Array.from({ length: n }, (_, i) => i);
+    const rejections = { variance: 0, ac1: 0 };
+    for (let s = 0; s < series; s++) {
+      const rng = new RandomStream(2024, s);
+      const phi = 0.3 + 0.4 * rng.uniform();
+      const value = new Float64Array(n);
+      value[0] = rng.normal() / Math.sqrt(1 - phi * phi);
+      for (let i = 1; i < n; i++) value[i] = phi * value[i - 1] + rng.normal();
+      const r = await runAnalysis({ time, value, timeKind: 'numeric' }, { ...settings, seed: 1000 + s }, { parallel: false });
+      for (const name of ['variance', 'ac1'] as const) if (r.significance[name]!.p! <= 0.05) rejections[name]++;
+    }
+    let lo = 0;
+    while (binomCdf(lo, series, 0.05) < 0.001) lo++;
+    let hi = lo;
+    while (binomCdf(hi, series, 0.05) < 0.999) hi++;
+    for (const name of ['variance', 'ac1'] as const) {
+      expect(rejections[name], name).toBeGreaterThanOrEqual(lo);
+      expect(rejections[name], name).toBeLessThanOrEqual(hi);
+    }
+  });
+
+  // Model: the saddle-node (fold) normal form dx = (r + x²) dt + σ dW, stable state x* = −√(−r) with
+  // restoring rate 2√(−r) that falls to zero as r → 0⁻ (Strogatz (1994), Nonlinear Dynamics and Chaos,
+  // Sec. 3.1, from memory); slowing down before a fold raises lag-1 autocorrelation (Wissel (1984),
+  // Oecologia 65, 101–107; Scheffer et al. (2009), Nature 461, 53–59, from memory). r ramps slowly from
+  // −1 to −0.04, stopping short of the fold; Euler–Maruyama with step 0.01, sampled every 0.5. The
+  // bandwidth (0.05) is narrow enough for the smoother to follow the curving equilibrium x* = −√(−r);
+  // AR(1)-surrogate tests of rolling indicators are known to have modest power, so "most" is ≥ 60%.
+  it('slow approach to a fold: the ac1 trend is significant in most runs', async () => {
+    const runs = 30;
+    const samples = 1000;
+    const every = 50;
+    const h = 0.01;
+    const sigma = 0.03;
+    const settings = analysisSettingsSchema.parse({ indicators: ['ac1'], surrogates: 99, window: 0.5, bandwidth: 0.05 });
+    const time = Float64Array.from({ length: samples }, (_, i) => i * every * h);
+    let significant = 0;
+    for (let k = 0; k < runs; k++) {
+      const rng = new RandomStream(77, k);
+      const value = new Float64Array(samples);
+      let x = -1;
+      const steps = samples * every;
+      for (let s = 0; s < steps; s++) {
+        const r = -1 + 0.96 * (s / steps);
+        x += (r + x * x) * h + sigma * Math.sqrt(h) * rng.normal();
+        if (s % every === every - 1) value[(s - every + 1) / every] = x;
+      }
+      expect(Math.max(...value)).toBeLessThan(0);
+      const res = await runAnalysis({ time, value, timeKind: 'numeric' }, { ...settings, seed: k + 1 }, { parallel: false });
+      if (res.significance.ac1!.p! <= 0.05) significant++;
+    }
+    expect(significant / runs).toBeGreaterThanOrEqual(0.6);
+  });
+});
