@@ -19,6 +19,8 @@ export interface OverviewIndicator {
   p: number | null;
   /** surrogate p when the series runs surrogates, else the Kendall test's p */
   pKind: 'surrogate' | 'kendall';
+  /** Benjamini–Hochberg q-value of the latest cycle (rules with a false-discovery level only), else null */
+  q: number | null;
 }
 
 export interface OverviewRow {
@@ -87,6 +89,7 @@ interface RuleRow {
   indicator: string;
   severity: 'watch' | 'warning';
   passed: number | null;
+  q_value: number | null;
 }
 interface AlertCountRow {
   series_id: number;
@@ -129,7 +132,7 @@ export async function fetchSeriesOverview(actorId: number | null = null, now = D
       { type: QueryTypes.SELECT },
     ),
     sequelize.query<RuleRow>(
-      `SELECT r.series_id, r.indicator, r.severity, e.passed
+      `SELECT r.series_id, r.indicator, r.severity, e.passed, e.q_value
        FROM alert_rules r
        LEFT JOIN rule_evaluations e ON e.id = (SELECT id FROM rule_evaluations z WHERE z.rule_id = r.id ORDER BY z.snapshot_id DESC LIMIT 1)
        WHERE r.active = 1 AND r.series_id IS NOT NULL
@@ -195,9 +198,10 @@ export async function fetchSeriesOverview(actorId: number | null = null, now = D
       analysedAt: s.snap_created ? new Date(s.snap_created).toISOString() : null,
       indicators: shown.map((name) => {
         const sp = surrogate[name];
+        const q = seriesRules.find((r) => r.indicator === name && r.q_value !== null)?.q_value ?? null;
         return sp !== null && sp !== undefined
-          ? { name, tau: kendall[name]?.tau ?? null, p: sp, pKind: 'surrogate' }
-          : { name, tau: kendall[name]?.tau ?? null, p: kendall[name]?.p ?? null, pKind: 'kendall' };
+          ? { name, tau: kendall[name]?.tau ?? null, p: sp, pKind: 'surrogate', q }
+          : { name, tau: kendall[name]?.tau ?? null, p: kendall[name]?.p ?? null, pKind: 'kendall', q };
       }),
       spark: s.spark && s.spark_indicator ? { indicator: s.spark_indicator, values: sparkline(JSON.parse(s.spark)) } : null,
     };

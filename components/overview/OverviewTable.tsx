@@ -133,6 +133,11 @@ export function OverviewTable({ rows, sites, now }: { rows: OverviewRow[]; sites
                             <span className="ml-2 text-ink-soft" title={ind.pKind === 'surrogate' ? 'p from surrogate data' : 'p from the Kendall test'}>
                               p {formatP(ind.p)}{ind.pKind === 'kendall' ? '*' : ''}
                             </span>
+                            {ind.q !== null && (
+                              <span className="ml-2 text-ink-soft" title="Benjamini–Hochberg q-value: the surrogate p adjusted for every series judged in the same analysis cycle">
+                                q {formatP(ind.q)}
+                              </span>
+                            )}
                           </li>
                         ))}
                       </ul>
