@@ -23,7 +23,7 @@ export async function makeSeries(slug = `series-${++counter}`): Promise<Series> 
   });
 }
 
-export async function watch(user: Actor, series: Series, mode: 'immediate' | 'digest' | 'none'): Promise<void> {
+export async function watch(user: Actor, series: Pick<Series, 'id'>, mode: 'immediate' | 'digest' | 'none'): Promise<void> {
   await Watch.create({ userId: user.id, seriesId: series.id, mode });
 }
 
