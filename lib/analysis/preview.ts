@@ -5,10 +5,9 @@ import { AnalysisInputError } from '@/lib/engine/errors';
 import { analysisSettingsSchema, type AnalysisSettings } from '@/lib/engine/settings';
 import { UnprocessableError } from '@/lib/http/errors';
 import type { Series } from '@/models';
+import { PREVIEW_MAX_SURROGATES } from './preview-limits';
 import { viewFromResult, type AnalysisView } from './view';
 
-/** Interactive recomputation must answer in about a second; 199 surrogates resolve p down to 0.005. */
-export const PREVIEW_MAX_SURROGATES = 199;
 
 /** Body of a preview request: the settings to try (any omitted field takes the engine default). */
 export const previewRequestSchema = z.object({ settings: analysisSettingsSchema });

@@ -2,21 +2,10 @@ import type { AnalysisResult, AnalysisSummary } from '@/lib/engine/analyze';
 import type { SensitivityResult } from '@/lib/engine/sensitivity';
 import { analysisSettingsSchema, type AnalysisSettings, type IndicatorName } from '@/lib/engine/settings';
 import type { PreparationQuality } from '@/lib/engine/prepare';
+import { curvesOf, MAX_CURVE_POINTS, thinnedIndices, type SnapshotCurves } from './snapshot';
 
-/** Longest curve a chart is sent: beyond this a line chart shows no more detail on any screen we target. */
-export const CHART_POINTS = 2000;
-
-/** The per-point curves of an analysis, as stored on a snapshot and as sent to charts (every `stride`-th point). */
-export interface CurveSet {
-  stride: number;
-  time: number[];
-  value: number[];
-  trend: number[];
-  residual: number[];
-  indicators: Partial<Record<IndicatorName, (number | null)[]>>;
-  surrogateTaus: Partial<Record<IndicatorName, number[]>>;
-  sensitivity?: SensitivityResult | null;
-}
+/** The per-point curves of an analysis as stored on a snapshot and sent to charts (every `stride`-th point). */
+export type CurveSet = SnapshotCurves;
 
 export interface HistogramBin {
   from: number;
@@ -42,52 +31,22 @@ export interface AnalysisView {
   quality: PreparationQuality | null;
 }
 
-function finite(v: number): number | null {
-  return Number.isFinite(v) ? v : null;
-}
-
-/**
- * Keeps every k-th point (k = ⌈n / maxPoints⌉) and always the last one, so the newest value and the window band
- * drawn at the end of the record stay exact. O(n).
- */
-export function thinCurves(curves: CurveSet, maxPoints = CHART_POINTS): CurveSet {
-  const n = curves.time.length;
-  const k = Math.max(1, Math.ceil(n / maxPoints));
-  if (k === 1) return curves;
-  const keep: number[] = [];
-  for (let i = 0; i < n; i += k) keep.push(i);
-  if (keep[keep.length - 1] !== n - 1) keep.push(n - 1);
-  const pick = <T,>(a: T[]) => keep.map((i) => a[i]);
+/** Thins stored curves further for a chart (stored curves already hold at most MAX_CURVE_POINTS). O(n). */
+export function thinCurves(curves: CurveSet, maxPoints = MAX_CURVE_POINTS): CurveSet {
+  const { stride, indices } = thinnedIndices(curves.time.length, maxPoints);
+  if (stride === 1) return curves;
+  const pick = <T,>(a: T[]) => indices.map((i) => a[i]);
   const indicators: CurveSet['indicators'] = {};
-  for (const [name, values] of Object.entries(curves.indicators) as [IndicatorName, (number | null)[]][]) indicators[name] = pick(values);
+  for (const [name, values] of Object.entries(curves.indicators)) indicators[name] = pick(values);
   return {
     ...curves,
-    stride: curves.stride * k,
+    stride: curves.stride * stride,
     time: pick(curves.time),
     value: pick(curves.value),
     trend: pick(curves.trend),
     residual: pick(curves.residual),
     indicators,
   };
-}
-
-/** An engine result as a (thinned) curve set: the shape snapshots store and charts read. O(n). */
-export function curvesFromResult(result: AnalysisResult, maxPoints = CHART_POINTS): CurveSet {
-  const surrogateTaus: CurveSet['surrogateTaus'] = {};
-  for (const [name, s] of Object.entries(result.significance) as [IndicatorName, { taus: number[] }][]) surrogateTaus[name] = s.taus;
-  return thinCurves(
-    {
-      stride: 1,
-      time: Array.from(result.series.time),
-      value: Array.from(result.series.value, (v) => finite(v) ?? Number.NaN),
-      trend: Array.from(result.series.trend),
-      residual: Array.from(result.series.residual),
-      indicators: result.indicators,
-      surrogateTaus,
-      sensitivity: result.sensitivity,
-    },
-    maxPoints,
-  );
 }
 
 /**
@@ -127,7 +86,7 @@ export function buildView(
     quality?: PreparationQuality | null;
   },
   stored: CurveSet,
-  maxPoints = CHART_POINTS,
+  maxPoints = MAX_CURVE_POINTS,
 ): AnalysisView {
   const settings = analysisSettingsSchema.parse(settingsInput ?? {});
   const curves = thinCurves(stored, maxPoints);
@@ -160,8 +119,8 @@ export function buildView(
 }
 
 /** The view of a fresh engine result (preview, exports from posted settings). */
-export function viewFromResult(result: AnalysisResult, settings: AnalysisSettings, maxPoints = CHART_POINTS): AnalysisView {
-  return buildView(settings, result, curvesFromResult(result, maxPoints), maxPoints);
+export function viewFromResult(result: AnalysisResult, settings: AnalysisSettings, maxPoints = MAX_CURVE_POINTS): AnalysisView {
+  return buildView(settings, result, curvesOf(result, maxPoints), maxPoints);
 }
 
 /** The view of a stored snapshot, or null when it holds no curves (failed or pre-curves snapshots). */
@@ -170,18 +129,4 @@ export function viewFromSnapshot(snapshot: { settings: unknown; summary: unknown
   const curves = snapshot.curves as Partial<CurveSet>;
   if (!Array.isArray(curves.time)) return null;
   return buildView(snapshot.settings, snapshot.summary as AnalysisSummary, { ...(curves as CurveSet), surrogateTaus: curves.surrogateTaus ?? {} });
-}
-
-/** One row per point for the chart library: { t, value, trend, residual, <indicator>: number | null }. O(n). */
-export function chartRows(curves: AnalysisView['curves']): Record<string, number | null>[] {
-  return curves.time.map((t, i) => {
-    const row: Record<string, number | null> = {
-      t,
-      value: finite(curves.value[i]),
-      trend: finite(curves.trend[i]),
-      residual: finite(curves.residual[i]),
-    };
-    for (const [name, values] of Object.entries(curves.indicators)) row[name] = values?.[i] ?? null;
-    return row;
-  });
 }

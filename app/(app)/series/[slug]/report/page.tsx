@@ -1,0 +1,74 @@
+import { Caution } from '@/components/Caution';
+import { LocalTime } from '@/components/LocalTime';
+import { Empty } from '@/components/States';
+import { PrintButton } from '@/components/workbench/PrintButton';
+import { ReportCharts } from '@/components/workbench/ReportCharts';
+import { requireRole } from '@/lib/auth/guard';
+import { formatP, formatTau } from '@/lib/display/format';
+import { fetchWorkbench } from '@/lib/workbench';
+
+export const metadata = { title: 'Report' };
+
+/** One A4 sheet: no page chrome, charts kept whole, link targets not printed. */
+const PRINT_STYLE = `@media print {
+  @page { size: A4 portrait; margin: 12mm; }
+  body { font-size: 11px; }
+  main { max-width: none !important; padding: 0 !important; }
+  .report figure { break-inside: avoid; border: none; padding: 0; }
+  .report { box-shadow: none; }
+}`;
+
+/** A one-page summary for the people the team reports to; the print stylesheet drops the navigation. */
+export default async function SeriesReportPage({ params }: { params: Promise<{ slug: string }> }) {
+  const actor = await requireRole('viewer');
+  const { slug } = await params;
+  const bench = await fetchWorkbench(slug);
+  const { series, view } = bench;
+  return (
+    <article className="report mx-auto max-w-4xl space-y-4 bg-card p-6 print:p-0">
+      <style>{PRINT_STYLE}</style>
+      <div className="no-print flex justify-end"><PrintButton /></div>
+      <header>
+        <p className="font-mono text-xs uppercase tracking-widest text-tide">Brinkwatch · series report</p>
+        <h1 className="text-2xl font-semibold">{series.name}</h1>
+        <p className="text-sm text-ink-soft">
+          {series.site || 'No site'} · {series.unit || 'no unit'} · prepared for {actor.name} on <LocalTime t={Date.now()} timeZone={series.timeZone} withZone />
+        </p>
+      </header>
+      <Caution />
+      {!view ? (
+        <Empty>This series has not been analysed yet.</Empty>
+      ) : (
+        <>
+          <table className="num w-full text-sm">
+            <caption className="mb-1 text-left font-semibold">Trend of each indicator over the record</caption>
+            <thead className="border-b border-rule text-left text-ink-soft">
+              <tr><th scope="col">Indicator</th><th scope="col">Kendall tau</th><th scope="col">Kendall p</th><th scope="col">Surrogate p</th><th scope="col">Latest value</th></tr>
+            </thead>
+            <tbody>
+              {view.indicators.map((name) => {
+                const values = view.curves.indicators[name] ?? [];
+                const latest = [...values].reverse().find((v) => v !== null && v !== undefined);
+                return (
+                  <tr key={name} className="border-b border-rule">
+                    <th scope="row" className="py-1 text-left font-medium">{name}</th>
+                    <td>{formatTau(view.kendall[name]?.tau)}</td>
+                    <td>{formatP(view.kendall[name]?.p)}</td>
+                    <td>{view.significance[name] ? `${formatP(view.significance[name]!.p)} (${view.significance[name]!.count})` : '–'}</td>
+                    <td>{latest === undefined || latest === null ? '–' : Number(latest.toPrecision(4))}</td>
+                  </tr>
+                );
+              })}
+            </tbody>
+          </table>
+          <p className="text-sm text-ink-soft">
+            Settings: detrending {view.settings.detrend}
+            {view.settings.detrend === 'gaussian' ? `, bandwidth ${Math.round(view.settings.bandwidth * 100)}%` : ''}, rolling window {Math.round(view.settings.window * 100)}% ({view.windowPoints} of {view.n} points),
+            {' '}seasonal removal {view.settings.seasonal}. Analysed <LocalTime t={bench.snapshot?.createdAt} timeZone={series.timeZone} withZone />.
+          </p>
+          <ReportCharts view={view} series={{ slug: series.slug, name: series.name, unit: series.unit, timeZone: series.timeZone }} transitions={bench.transitions} />
+        </>
+      )}
+    </article>
+  );
+}

@@ -1,0 +1,60 @@
+'use client';
+
+import { CartesianGrid, Legend, Line, LineChart, ReferenceArea, ReferenceLine, ResponsiveContainer, Tooltip, XAxis, YAxis } from 'recharts';
+import { formatLocal, formatLocalDate, formatUtc, formatValue } from '@/lib/display/format';
+
+export interface LineSpec {
+  key: string;
+  label: string;
+  color: string;
+  dashed?: boolean;
+  width?: number;
+}
+
+export interface TimeChartProps {
+  rows: Record<string, number | null>[];
+  lines: LineSpec[];
+  timeZone: string;
+  unit?: string;
+  height?: number;
+  /** the span one rolling window covers, drawn as a band ending at the last point */
+  windowBand?: { from: number; to: number } | null;
+  transitions?: { at: number; note: string }[];
+  zeroLine?: boolean;
+}
+
+/**
+ * The one time-axis chart of the product: raw series with trend, residuals and each indicator's rolling curve.
+ * It draws what lib/analysis/view.ts computed and nothing else.
+ */
+export function TimeChart({ rows, lines, timeZone, unit = '', height = 220, windowBand, transitions = [], zeroLine }: TimeChartProps) {
+  return (
+    <ResponsiveContainer width="100%" height={height}>
+      <LineChart data={rows} margin={{ top: 8, right: 12, bottom: 4, left: 4 }}>
+        <CartesianGrid stroke="#ebe7dc" strokeDasharray="2 4" />
+        <XAxis dataKey="t" type="number" scale="time" domain={['dataMin', 'dataMax']} tickFormatter={(t: number) => formatLocalDate(t, timeZone)}
+          tick={{ fontSize: 11, fill: '#3c4a57' }} minTickGap={40} />
+        <YAxis tick={{ fontSize: 11, fill: '#3c4a57' }} width={56} domain={['auto', 'auto']} tickFormatter={(v: number) => formatValue(v)} />
+        <Tooltip
+          labelFormatter={(t) => `${formatLocal(Number(t), timeZone)} (${formatUtc(Number(t))})`}
+          formatter={(value, name) => [formatValue(Number(value), unit), name]}
+          contentStyle={{ fontSize: 12, borderColor: '#d9d4c7' }}
+        />
+        <Legend wrapperStyle={{ fontSize: 12 }} />
+        {windowBand ? (
+          <ReferenceArea x1={windowBand.from} x2={windowBand.to} fill="#1f6f78" fillOpacity={0.08} stroke="#1f6f78" strokeOpacity={0.4} strokeDasharray="3 3"
+            label={{ value: 'one window', position: 'insideTopRight', fontSize: 11, fill: '#164e55' }} ifOverflow="extendDomain" />
+        ) : null}
+        {zeroLine ? <ReferenceLine y={0} stroke="#6b7785" strokeDasharray="4 2" /> : null}
+        {transitions.map((tr) => (
+          <ReferenceLine key={tr.at} x={tr.at} stroke="#a8322a" strokeWidth={1.5} strokeDasharray="6 3"
+            label={{ value: `◆ ${tr.note || 'known transition'}`, position: 'insideTopLeft', fontSize: 11, fill: '#a8322a' }} />
+        ))}
+        {lines.map((line) => (
+          <Line key={line.key} dataKey={line.key} name={line.label} stroke={line.color} strokeWidth={line.width ?? 1.5}
+            strokeDasharray={line.dashed ? '6 3' : undefined} dot={false} isAnimationActive={false} connectNulls={false} />
+        ))}
+      </LineChart>
+    </ResponsiveContainer>
+  );
+}

@@ -1,0 +1,75 @@
+'use client';
+
+import { useMemo } from 'react';
+import { ChartFrame } from '@/components/charts/ChartFrame';
+import { TimeChart } from '@/components/charts/TimeChart';
+import { chartRows } from '@/lib/analysis/chart-rows';
+import type { AnalysisView } from '@/lib/analysis/view';
+import { formatP, formatTau } from '@/lib/display/format';
+
+export interface ChartSeries {
+  slug: string;
+  name: string;
+  unit: string;
+  timeZone: string;
+}
+
+/** Plain-language names of the indicators on charts and forms. */
+export const INDICATOR_LABELS: Record<string, string> = {
+  variance: 'Variance',
+  sd: 'Standard deviation',
+  cv: 'Coefficient of variation',
+  ac1: 'Lag-1 autocorrelation',
+  skewness: 'Skewness',
+  kurtosis: 'Kurtosis',
+  recovery: 'Recovery rate',
+};
+
+/** The tau-and-p line each indicator chart carries in its legend. */
+export function trendLegend(view: AnalysisView, name: string): string {
+  const k = view.kendall[name as keyof AnalysisView['kendall']];
+  const s = view.significance[name as keyof AnalysisView['significance']];
+  const p = s ? `surrogate p ${formatP(s.p)} (${s.count} ${s.method === 'ar1' ? 'AR(1)' : 'phase'} surrogates)` : `Kendall p ${formatP(k?.p)}`;
+  return `τ ${formatTau(k?.tau)} · ${p}`;
+}
+
+/**
+ * The evidence charts of one analysis: raw series with trend, residuals, and every indicator's rolling curve,
+ * each with the span of one rolling window drawn at the end and the known transitions marked.
+ */
+export function AnalysisCharts({ view, series, transitions = [], idPrefix = '', compact = false }: {
+  view: AnalysisView;
+  series: ChartSeries;
+  transitions?: { at: number; note: string }[];
+  idPrefix?: string;
+  /** fewer, shorter charts (report, alert evidence) */
+  compact?: boolean;
+}) {
+  const rows = useMemo(() => chartRows(view.curves), [view.curves]);
+  const last = view.curves.time[view.curves.time.length - 1];
+  const first = view.curves.time[0];
+  const windowBand = last !== undefined ? { from: Math.max(first, last - view.windowSpanMs), to: last } : null;
+  const base = `${series.slug}${idPrefix ? `-${idPrefix}` : ''}`;
+  return (
+    <div className="space-y-3">
+      <ChartFrame title={`${series.name}: record and trend`} fileName={`${base}-record`} testId="chart-record"
+        legend={`${view.n} points analysed · detrending: ${view.settings.detrend}`}>
+        <TimeChart rows={rows} timeZone={series.timeZone} unit={series.unit} transitions={transitions} height={compact ? 170 : 220}
+          lines={[{ key: 'value', label: `value${series.unit ? ` (${series.unit})` : ''}`, color: '#3c4a57', width: 1 }, { key: 'trend', label: 'trend', color: '#1f6f78', width: 2.5 }]} />
+      </ChartFrame>
+      {compact ? null : (
+      <ChartFrame title="Residuals (value − trend)" fileName={`${base}-residuals`} testId="chart-residuals">
+        <TimeChart rows={rows} timeZone={series.timeZone} unit={series.unit} transitions={transitions} zeroLine height={160}
+          lines={[{ key: 'residual', label: 'residual', color: '#6b7785', width: 1 }]} />
+      </ChartFrame>
+      )}
+      {view.indicators.map((name) => (
+        <ChartFrame key={name} title={`${INDICATOR_LABELS[name] ?? name} in a rolling window`} fileName={`${base}-${name}`} testId={`chart-${name}`}
+          legend={<span data-testid={`trend-${name}`}>{trendLegend(view, name)}</span>}>
+          <TimeChart rows={rows} timeZone={series.timeZone} transitions={transitions} windowBand={windowBand} height={compact ? 150 : 180}
+            lines={[{ key: name, label: `${name} (window of ${view.windowPoints} points)`, color: '#1f6f78', width: 2 }]} />
+        </ChartFrame>
+      ))}
+    </div>
+  );
+}

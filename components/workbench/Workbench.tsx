@@ -1,0 +1,185 @@
+'use client';
+
+import { keepPreviousData, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import Link from 'next/link';
+import { useRouter } from 'next/navigation';
+import { useEffect, useState } from 'react';
+import { api } from '@/components/api';
+import { Empty, ErrorNote, Loading, Panel } from '@/components/States';
+import { SensitivityHeatmap } from '@/components/charts/SensitivityHeatmap';
+import { SurrogateHistogram } from '@/components/charts/SurrogateHistogram';
+import { ChartFrame } from '@/components/charts/ChartFrame';
+import type { AnalysisView } from '@/lib/analysis/view';
+import type { AnalysisSettings } from '@/lib/engine/settings';
+import { formatP, formatTau } from '@/lib/display/format';
+import type { SettingsHistoryEntry } from '@/lib/analysis/settings-history';
+import { AnalysisCharts, INDICATOR_LABELS, type ChartSeries } from './AnalysisCharts';
+import { SettingsHistory } from './SettingsHistory';
+import { TuningPanel } from './TuningPanel';
+
+function useDebounced<T>(value: T, ms: number): T {
+  const [debounced, setDebounced] = useState(value);
+  useEffect(() => {
+    const timer = setTimeout(() => setDebounced(value), ms);
+    return () => clearTimeout(timer);
+  }, [value, ms]);
+  return debounced;
+}
+
+const same = (a: unknown, b: unknown) => JSON.stringify(a) === JSON.stringify(b);
+const linkButton = 'inline-block rounded border border-rule px-3 py-1.5 text-sm hover:bg-paper';
+
+export interface WorkbenchProps {
+  series: ChartSeries;
+  savedSettings: AnalysisSettings;
+  initialView: AnalysisView | null;
+  canTune: boolean;
+  canSave: boolean;
+  transitions: { at: number; note: string }[];
+  history: SettingsHistoryEntry[];
+  quality: React.ReactNode;
+}
+
+async function downloadPosted(slug: string, settings: AnalysisSettings, format: 'csv' | 'json') {
+  const response = await fetch(`/api/series/${slug}/indicators?format=${format}`, {
+    method: 'POST',
+    headers: { 'content-type': 'application/json' },
+    body: JSON.stringify({ settings }),
+  });
+  if (!response.ok) throw new Error((await response.json().catch(() => null))?.error?.message ?? 'Export failed.');
+  const url = URL.createObjectURL(await response.blob());
+  const link = document.createElement('a');
+  link.href = url;
+  link.download = `${slug}-indicators-preview.${format}`;
+  link.click();
+  setTimeout(() => URL.revokeObjectURL(url), 1000);
+}
+
+/**
+ * The series workbench: evidence charts of the saved analysis, and for analysts a tuning form whose changes are
+ * recomputed (debounced) by the preview endpoint without saving; leads save the settings they settle on.
+ */
+export function Workbench({ series, savedSettings, initialView, canTune, canSave, transitions, history, quality }: WorkbenchProps) {
+  const router = useRouter();
+  const queryClient = useQueryClient();
+  const [saved, setSaved] = useState(savedSettings);
+  const [draft, setDraft] = useState(savedSettings);
+  const debounced = useDebounced(draft, 400);
+  const changed = !same(debounced, saved);
+  const preview = useQuery({
+    queryKey: ['preview', series.slug, debounced],
+    queryFn: ({ signal }) => api<AnalysisView>(`/api/series/${series.slug}/analysis/preview`, { method: 'POST', body: { settings: debounced }, signal }),
+    enabled: canTune && (changed || initialView === null),
+    placeholderData: keepPreviousData,
+    staleTime: Infinity,
+    retry: false,
+  });
+  const save = useMutation({
+    mutationFn: (settings: AnalysisSettings) => api(`/api/series/${series.slug}`, { method: 'PATCH', body: { settings } }),
+    onSuccess: () => {
+      setSaved(draft);
+      void queryClient.invalidateQueries({ queryKey: ['settings-history', series.slug] });
+      router.refresh();
+    },
+  });
+  const [exportError, setExportError] = useState<string | null>(null);
+
+  const showingPreview = canTune && (changed || initialView === null) && preview.data !== undefined;
+  const view = showingPreview ? preview.data! : initialView;
+  const pending = draft !== debounced || preview.isFetching;
+
+  return (
+    <div className="grid grid-cols-1 gap-4 lg:grid-cols-[minmax(0,1fr)_320px]">
+      <div className="min-w-0 space-y-4">
+        <div className="flex flex-wrap items-center gap-2 text-sm" aria-live="polite">
+          {showingPreview ? (
+            <span className="rounded bg-watch-light px-2 py-0.5 text-watch" data-testid="preview-flag">◐ Preview of unsaved settings</span>
+          ) : (
+            <span className="rounded bg-calm-light px-2 py-0.5 text-calm">● Saved analysis</span>
+          )}
+          {pending && canTune ? <span className="text-ink-soft">Recomputing…</span> : null}
+          {view ? <span className="num text-ink-soft">window {view.windowPoints} points · {view.n} points analysed</span> : null}
+        </div>
+        {preview.isError ? <ErrorNote error={preview.error}>These settings cannot be applied to this record.</ErrorNote> : null}
+        {view ? (
+          <>
+            <AnalysisCharts view={view} series={series} transitions={transitions} />
+            <Panel title="Significance against surrogate data" id="significance">
+              {Object.keys(view.significance).length === 0 ? (
+                <Empty>No surrogates in these settings. Set a number of surrogate series to test each trend against chance.</Empty>
+              ) : (
+                <div className="grid grid-cols-1 gap-3 md:grid-cols-2">
+                  {view.indicators.filter((name) => view.significance[name]).map((name) => {
+                    const s = view.significance[name]!;
+                    return (
+                      <ChartFrame key={name} title={`${INDICATOR_LABELS[name] ?? name}: surrogate taus`} fileName={`${series.slug}-${name}-surrogates`}
+                        legend={`observed τ ${formatTau(view.kendall[name]?.tau)} · p ${formatP(s.p)} of ${s.count}`}>
+                        <SurrogateHistogram bins={s.bins} observed={view.kendall[name]?.tau ?? null} />
+                      </ChartFrame>
+                    );
+                  })}
+                </div>
+              )}
+            </Panel>
+            <Panel title="Sensitivity to window and bandwidth" id="sensitivity">
+              {view.sensitivity ? (
+                <SensitivityHeatmap grid={view.sensitivity} indicators={view.indicators} />
+              ) : (
+                <Empty>{canTune ? 'Tick “Compute the window × bandwidth sensitivity grid” in the tuning panel to see how tau depends on them.' : 'The saved analysis has no sensitivity grid.'}</Empty>
+              )}
+            </Panel>
+          </>
+        ) : preview.isFetching ? (
+          <Loading label="Computing the analysis…" />
+        ) : (
+          <Empty>This series has not been analysed yet. Charts appear after the next analysis run{canTune ? ' or once a preview is computed' : ''}.</Empty>
+        )}
+      </div>
+      <aside className="space-y-4">
+        {canTune ? (
+          <Panel title="Tuning" id="tuning">
+            <TuningPanel draft={draft} onChange={setDraft} />
+            <div className="mt-4 flex flex-wrap gap-2">
+              {canSave ? (
+                <button type="button" disabled={!changed || save.isPending} onClick={() => save.mutate(draft)}
+                  className="rounded bg-tide px-3 py-1.5 text-sm font-medium text-white hover:bg-tide-dark disabled:opacity-50">
+                  {save.isPending ? 'Saving…' : 'Save settings'}
+                </button>
+              ) : (
+                <p className="text-xs text-ink-soft">A lead saves settings for the whole team.</p>
+              )}
+              <button type="button" disabled={!changed} onClick={() => setDraft(saved)} className="rounded border border-rule px-3 py-1.5 text-sm hover:bg-paper disabled:opacity-50">
+                Back to saved
+              </button>
+            </div>
+            {save.isError ? <ErrorNote error={save.error}>Not saved.</ErrorNote> : null}
+            {save.isSuccess && !changed ? <p role="status" className="mt-2 text-sm text-calm">✓ Saved. The next analysis run uses these settings.</p> : null}
+          </Panel>
+        ) : null}
+        <Panel title="Exports" id="exports">
+          <div className="flex flex-wrap gap-2">
+            <a className={linkButton} href={`/api/series/${series.slug}/indicators?format=csv`} download>Indicators (CSV)</a>
+            <a className={linkButton} href={`/api/series/${series.slug}/indicators?format=json`} download>Indicators (JSON)</a>
+            <Link className={linkButton} href={`/series/${series.slug}/report`}>One-page report</Link>
+          </div>
+          {canTune && changed ? (
+            <div className="mt-2 flex flex-wrap gap-2">
+              {(['csv', 'json'] as const).map((format) => (
+                <button key={format} type="button" className={linkButton}
+                  onClick={() => downloadPosted(series.slug, draft, format).then(() => setExportError(null), (e: Error) => setExportError(e.message))}>
+                  Preview indicators ({format.toUpperCase()})
+                </button>
+              ))}
+            </div>
+          ) : null}
+          {exportError ? <ErrorNote>{exportError}</ErrorNote> : null}
+          <p className="mt-2 text-xs text-ink-soft">Each chart saves itself as SVG or PNG from its own buttons.</p>
+        </Panel>
+        <Panel title="Data quality" id="quality">{quality}</Panel>
+        <Panel title="Settings history" id="history">
+          <SettingsHistory slug={series.slug} initial={history} timeZone={series.timeZone} />
+        </Panel>
+      </aside>
+    </div>
+  );
+}

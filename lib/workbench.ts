@@ -1,0 +1,70 @@
+import { QueryTypes } from 'sequelize';
+import { AnalysisSnapshot, IngestRun, Transition, db } from '@/models';
+import { observationExtent } from '@/lib/analysis/observations';
+import { fetchSettingsHistory, type SettingsHistoryEntry } from '@/lib/analysis/settings-history';
+import { viewFromSnapshot, type AnalysisView } from '@/lib/analysis/view';
+import { analysisSettingsSchema, type AnalysisSettings } from '@/lib/engine/settings';
+import { findSeriesBySlug, presentSeries, type SeriesRecord } from '@/lib/series/registry';
+
+export interface IntakeRunSummary {
+  id: number;
+  source: string;
+  fileName: string | null;
+  status: string;
+  accepted: number;
+  rejected: number;
+  duplicates: number;
+  message: string;
+  startedAt: string;
+}
+
+export interface Workbench {
+  series: SeriesRecord;
+  savedSettings: AnalysisSettings;
+  view: AnalysisView | null;
+  snapshot: { id: number; createdAt: string; status: string; error: string | null; dataTo: number | null } | null;
+  extent: { count: number; first: number | null; last: number | null };
+  runs: IntakeRunSummary[];
+  rejectedRows: number;
+  history: SettingsHistoryEntry[];
+  transitions: { id: number; at: number; note: string }[];
+}
+
+/**
+ * Everything the series workbench shows on first paint, read in parallel: the latest snapshot (its view, or its
+ * error), the record's extent, the last intake runs and the rejected-row total, the settings history and the
+ * known transitions.
+ */
+export async function fetchWorkbench(slug: string): Promise<Workbench> {
+  const series = await findSeriesBySlug(slug);
+  const sequelize = await db();
+  const [snapshot, extent, runs, rejected, history, transitions] = await Promise.all([
+    AnalysisSnapshot.findOne({ where: { seriesId: series.id }, order: [['id', 'DESC']] }),
+    observationExtent(series.id),
+    IngestRun.findAll({ where: { seriesId: series.id }, order: [['id', 'DESC']], limit: 5 }),
+    sequelize.query<{ total: number | null }>('SELECT SUM(rejected) AS total FROM ingest_runs WHERE series_id = :id', {
+      replacements: { id: series.id },
+      type: QueryTypes.SELECT,
+    }),
+    fetchSettingsHistory(series.id, 20),
+    Transition.findAll({ where: { seriesId: series.id }, order: [['at', 'ASC']] }),
+  ]);
+  // An error snapshot explains why the evidence is stale; the view then comes from the last good one.
+  const good = snapshot?.status === 'ok' ? snapshot : await AnalysisSnapshot.findOne({ where: { seriesId: series.id, status: 'ok' }, order: [['id', 'DESC']] });
+  return {
+    series: presentSeries(series),
+    savedSettings: analysisSettingsSchema.parse(series.settings ?? {}),
+    view: good ? viewFromSnapshot(good) : null,
+    snapshot: snapshot
+      ? { id: snapshot.id, createdAt: snapshot.createdAt.toISOString(), status: snapshot.status, error: snapshot.error, dataTo: snapshot.dataTo === null ? null : Number(snapshot.dataTo) }
+      : null,
+    extent,
+    runs: runs.map((r) => ({
+      id: r.id, source: r.source, fileName: r.fileName, status: r.status, accepted: r.accepted, rejected: r.rejected,
+      duplicates: r.duplicates, message: r.message, startedAt: r.startedAt.toISOString(),
+    })),
+    rejectedRows: Number(rejected[0]?.total ?? 0),
+    history,
+    transitions: transitions.map((t) => ({ id: t.id, at: Number(t.at), note: t.note })),
+  };
+}
