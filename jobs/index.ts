@@ -3,6 +3,7 @@ import { analysisJob } from './analysis';
 import { mailJob } from './mail';
 import { digestJob } from './digest';
 import { backtestJob } from './backtest';
+import { ingestJob } from './ingest';
 
 /** Every scheduled job of the product, in one list; the scheduler runs each on its own cron expression. */
-export const JOBS: ScheduledJob[] = [analysisJob, mailJob, digestJob, backtestJob];
+export const JOBS: ScheduledJob[] = [analysisJob, mailJob, digestJob, backtestJob, ingestJob];

@@ -1,0 +1,12 @@
+import { cronSetting } from '@/lib/config';
+import { runDropIntake } from '@/lib/intake/drop-folders';
+import type { ScheduledJob } from './types';
+
+/** Takes in the complete CSV files of every series' drop folder (INGEST_CRON, default every minute). */
+export const ingestJob: ScheduledJob = {
+  name: 'ingest',
+  schedule: () => cronSetting('INGEST_CRON'),
+  run: async () => {
+    await runDropIntake();
+  },
+};
