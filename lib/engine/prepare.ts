@@ -56,9 +56,11 @@ export function inferInterval(sortedTime: Float64Array): number {
 const MAX_GRID_POINTS = 50_000_000;
 
 /**
- * Averages observations into bins of width Δ centred on the grid t0 + kΔ (k = round((t − t0)/Δ));
- * empty bins are NaN (missing); non-finite values count as missing. Times need not be sorted.
- * Cost O(n) plus O(n log n) if unsorted. Common practice (block averaging onto a regular grid).
+ * Averages observations into bins of the sampling interval Δ; a bin left empty is NaN (missing), and
+ * non-finite values count as missing. Bins are found step by step, k_i = k_{i−1} + round((t_i − T)/Δ) with
+ * T the first time in bin k_{i−1}, so slowly varying spacing (calendar months of 28–31 days) does not
+ * drift off a fixed grid. A bin's time is its first observation's; an empty bin's is interpolated.
+ * Times must be sorted. Cost O(n). Common practice (block averaging onto a regular grid).
  */
 export function binToGrid(
   time: Float64Array,
@@ -66,31 +68,38 @@ export function binToGrid(
   interval: number,
 ): { time: Float64Array; value: Float64Array; binnedBins: number } {
   const n = time.length;
-  let t0 = Infinity, t1 = -Infinity;
+  const bin = new Float64Array(n);
   for (let i = 0; i < n; i++) {
     if (!Number.isFinite(time[i])) throw new AnalysisInputError(`time at observation ${i + 1} is not a finite number`, { index: i });
-    if (time[i] < t0) t0 = time[i];
-    if (time[i] > t1) t1 = time[i];
   }
-  const bins = Math.round((t1 - t0) / interval) + 1;
+  let ref = time[0];
+  for (let i = 1; i < n; i++) {
+    const step = Math.round((time[i] - ref) / interval);
+    bin[i] = bin[i - 1] + step;
+    if (step > 0) ref = time[i];
+  }
+  const bins = bin[n - 1] + 1;
   if (bins > MAX_GRID_POINTS) {
     throw new AnalysisInputError(`the record spans ${bins} sampling intervals of ${interval}; at most ${MAX_GRID_POINTS} are supported`);
   }
   const sum = new Float64Array(bins);
   const cnt = new Uint32Array(bins);
+  const grid = new Float64Array(bins).fill(Number.NaN);
   for (let i = 0; i < n; i++) {
-    const v = value[i];
-    if (!Number.isFinite(v)) continue;
-    const k = Math.round((time[i] - t0) / interval);
-    sum[k] += v;
+    const k = bin[i];
+    if (Number.isNaN(grid[k])) grid[k] = time[i];
+    if (!Number.isFinite(value[i])) continue;
+    sum[k] += value[i];
     cnt[k]++;
   }
-  const grid = new Float64Array(bins);
   let binnedBins = 0;
+  let last = 0;
   for (let k = 0; k < bins; k++) {
-    grid[k] = t0 + k * interval;
     if (cnt[k] > 1) binnedBins++;
     sum[k] = cnt[k] > 0 ? sum[k] / cnt[k] : Number.NaN;
+    if (Number.isNaN(grid[k])) continue;
+    for (let j = last + 1; j < k; j++) grid[j] = grid[last] + ((grid[k] - grid[last]) * (j - last)) / (k - last);
+    last = k;
   }
   return { time: grid, value: sum, binnedBins };
 }
@@ -198,8 +207,7 @@ export function removeSeasonal(time: Float64Array, value: Float64Array, mode: 'm
 }
 
 /**
- * Preparation pipeline: sort by time, bin onto the sampling-interval grid (skipped when the record is
- * already regular), keep the trailing span, fill short gaps (or keep the latest gap-free stretch), then
+ * Preparation pipeline: sort by time, bin onto the sampling-interval grid, keep the trailing span, fill short gaps (or keep the latest gap-free stretch), then
  * log transform and seasonal removal. Cost O(n) (O(n log n) when times are unsorted).
  */
 export function prepareSeries(
@@ -223,17 +231,10 @@ export function prepareSeries(
   }
   const interval = input.intervalMs ?? inferInterval(time);
   if (!(interval > 0)) throw new AnalysisInputError(`sampling interval must be positive (got ${interval})`);
-  let regular = true;
-  for (let i = 1; i < time.length && regular; i++) {
-    if (Math.abs(time[i] - time[0] - i * interval) > 1e-6 * interval) regular = false;
-  }
-  let binnedBins = 0;
-  if (!regular) {
-    const g = binToGrid(time, value, interval);
-    time = g.time;
-    value = g.value;
-    binnedBins = g.binnedBins;
-  }
+  const g = binToGrid(time, value, interval);
+  time = g.time;
+  value = g.value;
+  const binnedBins = g.binnedBins;
   let droppedBeforeSpan = 0;
   if (opts.spanPoints !== null && opts.spanPoints < time.length) {
     droppedBeforeSpan = time.length - opts.spanPoints;

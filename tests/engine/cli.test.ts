@@ -1,0 +1,78 @@
+import { spawnSync } from 'node:child_process';
+import { mkdtempSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
+import { describe, expect, it } from 'vitest';
+
+const root = path.resolve(__dirname, '../..');
+const dir = mkdtempSync(path.join(tmpdir(), 'bw-cli-'));
+
+function analyze(args: string[]) {
+  const r = spawnSync(path.join(root, 'node_modules/.bin/tsx'), [path.join(root, 'scripts/analyze.ts'), ...args], { encoding: 'utf8', cwd: root });
+  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
+}
+
+function csv(name: string, text: string): string {
+  const file = path.join(dir, name);
+  writeFileSync(file, text);
+  return file;
+}
+
+const rows = (n: number, f: (i: number) => string) => Array.from({ length: n }, (_, i) => f(i)).join('\n');
+const good = csv('good.csv', `day,level,flow\n${rows(120, (i) => `2022-01-${String(1 + (i % 28)).padStart(2, '0')}T00:00:00Z,${(5 + Math.sin(i / 9) + ((i * 37) % 11) / 11).toFixed(4)},${i}`).replace(/.*/s, () =>
+  rows(120, (i) => `${new Date(Date.UTC(2022, 0, 1 + i)).toISOString().slice(0, 10)},${(5 + Math.sin(i / 9) + ((i * 37) % 11) / 11).toFixed(4)},${i % 7}`),
+)}\n`);
+
+// The command line contract of the engine (README, "Command line"); common practice for exit codes.
+describe('analyze command line', () => {
+  it('prints the full JSON: series, indicators with nulls before w − 1, kendall, significance', () => {
+    const r = analyze([good, '--surrogates', '20', '--indicators', 'variance,ac1']);
+    expect(r.code, r.stderr).toBe(0);
+    const out = JSON.parse(r.stdout);
+    expect(out.n).toBe(120);
+    expect(out.windowPoints).toBe(60);
+    expect(out.bandwidthPoints).toBeCloseTo(12, 12);
+    expect(out.series.time[0]).toBe('2022-01-01T00:00:00.000Z');
+    for (const k of ['value', 'trend', 'residual']) expect(out.series[k]).toHaveLength(120);
+    expect(Object.keys(out.indicators)).toEqual(['variance', 'ac1']);
+    expect(out.indicators.ac1[58]).toBeNull();
+    expect(typeof out.indicators.ac1[59]).toBe('number');
+    expect(out.kendall.ac1).toEqual({ tau: expect.any(Number), p: expect.any(Number) });
+    expect(out.significance.variance).toMatchObject({ count: 20, method: 'ar1' });
+    expect(out.sensitivity).toBeNull();
+    expect(r.stderr).toBe('');
+  });
+
+  it('--summary leaves out the per-point arrays; numeric times stay numbers', () => {
+    const file = csv('numeric.csv', `t,x\n${rows(50, (i) => `${1990 + i},${Math.cos(i) + i / 10}`)}\n`);
+    const r = analyze([file, '--summary', '--detrend', 'linear']);
+    expect(r.code, r.stderr).toBe(0);
+    const out = JSON.parse(r.stdout);
+    expect(out.series).toBeUndefined();
+    expect(out.indicators).toBeUndefined();
+    expect(out.kendall.variance.tau).toEqual(expect.any(Number));
+    expect(out.latest.ac1.time).toBe(2039);
+    expect(out.rateUnit).toBe('per time unit');
+  });
+
+  const bad: [string, string, string[], RegExp][] = [
+    ['missing column', `t,x\n1,2\n`, ['--value', 'level'], /: line 1, column "level": no such column/],
+    ['non-numeric value', `t,x\n${rows(20, (i) => `${i},${i === 6 ? 'n/a' : i}`)}\n`, [], /: line 8, column "x": 'n\/a' is not a number$/],
+    ['bad date', `t,x\n2020-01-01,1\n2020-02-30,2\n`, [], /: line 3, column "t": '2020-02-30' is not an ISO 8601 date/],
+    ['too short for w ≥ 8', `t,x\n${rows(10, (i) => `${i},${i * i % 7}`)}\n`, [], /: lines 2-11, column "x": rolling window 0\.5 × 10 points = 5 points; at least 8 are needed/],
+    ['long gap', `t,x\n${rows(40, (i) => `${i < 20 ? i : i + 10},${i % 5}`)}\n`, [], /: line 22, column "x": gap of 10 missing points from 20 to 29 is longer than maxGap = 3/],
+    ['bad option', `t,x\n1,2\n`, ['--window', '2'], /: option --window: /],
+  ];
+  for (const [what, text, args, message] of bad) {
+    it(`bad input (${what}): exit 2, one line on stderr naming the file, nothing on stdout`, () => {
+      const file = csv(`${what.replace(/\W+/g, '-')}.csv`, text);
+      const r = analyze([file, ...args]);
+      expect(r.code).toBe(2);
+      expect(r.stdout).toBe('');
+      const lines = r.stderr.split('\n').filter(Boolean);
+      expect(lines).toHaveLength(1);
+      expect(lines[0].startsWith(`${file}: `)).toBe(true);
+      expect(lines[0]).toMatch(message);
+    });
+  }
+});
