@@ -1,4 +1,5 @@
 import Link from 'next/link';
+import { BacktestPanel } from '@/components/backtest/BacktestPanel';
 import { Caution } from '@/components/Caution';
 import { LocalTime } from '@/components/LocalTime';
 import { ErrorNote } from '@/components/States';
@@ -42,6 +43,7 @@ export default async function SeriesPage({ params }: { params: Promise<{ slug: s
         history={bench.history}
         quality={<QualityPanel quality={bench.view?.quality ?? null} runs={bench.runs} rejectedRows={bench.rejectedRows} extent={bench.extent} timeZone={series.timeZone} />}
       />
+      <BacktestPanel slug={series.slug} timeZone={series.timeZone} canRun={roleAtLeast(actor.role, 'lead')} />
     </section>
   );
 }
