@@ -124,7 +124,7 @@ export function viewFromResult(result: AnalysisResult, settings: AnalysisSetting
 }
 
 /** The view of a stored snapshot, or null when it holds no curves (failed or pre-curves snapshots). */
-export function viewFromSnapshot(snapshot: { settings: unknown; summary: unknown; curves: unknown; status?: string }): AnalysisView | null {
+export function viewFromSnapshot(snapshot: { settings: unknown; summary: unknown; curves?: unknown; status?: string }): AnalysisView | null {
   if (snapshot.status === 'error' || !snapshot.curves || !snapshot.summary) return null;
   const curves = snapshot.curves as Partial<CurveSet>;
   if (!Array.isArray(curves.time)) return null;

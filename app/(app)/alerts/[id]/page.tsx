@@ -1,0 +1,83 @@
+import Link from 'next/link';
+import { AlertActions } from '@/components/alerts/AlertActions';
+import { AlertNotes, type NoteItem } from '@/components/alerts/AlertNotes';
+import { EvidenceCharts } from '@/components/alerts/EvidenceCharts';
+import { AlertStateBadge, SeverityBadge } from '@/components/Badges';
+import { Caution } from '@/components/Caution';
+import { LocalTime } from '@/components/LocalTime';
+import { Empty, Panel } from '@/components/States';
+import { fetchAlertPage } from '@/lib/alert-page';
+import { requireRole } from '@/lib/auth/guard';
+import { formatP, formatTau } from '@/lib/display/format';
+import { idParam } from '@/lib/http/params';
+import { roleAtLeast } from '@/models/roles';
+
+export const metadata = { title: 'Alert' };
+
+const ACTION_WORDS: Record<string, string> = {
+  open: 'opened by the analysis', acknowledge: 'taken', assign: 'assigned', escalate: 'escalated', confirm: 'confirmed',
+  dismiss: 'set aside', reopen: 'reopened', evaluate: 'evaluated again',
+};
+
+export default async function AlertPage({ params }: { params: Promise<{ id: string }> }) {
+  const actor = await requireRole('viewer');
+  const id = idParam((await params).id, 'Alert');
+  const { detail, firstView, latestView, transitions, colleagues } = await fetchAlertPage(id, actor);
+  const tz = detail.series.timeZone;
+  const lastEval = detail.evidence.evaluations[detail.evidence.evaluations.length - 1];
+  const notes = JSON.parse(JSON.stringify(detail.notes)) as NoteItem[];
+  return (
+    <section className="space-y-4">
+      <nav aria-label="Breadcrumb" className="text-sm text-ink-soft">
+        <Link href="/alerts" className="text-tide hover:underline">Alerts</Link> / #{detail.id}
+      </nav>
+      <header className="flex flex-wrap items-center gap-3">
+        <h1 className="text-xl font-semibold">Alert #{detail.id}: {detail.rule.indicator} rising on <Link href={`/series/${detail.series.slug}`} className="text-tide hover:underline">{detail.series.name}</Link></h1>
+        <SeverityBadge severity={detail.severity} />
+        <span data-testid="alert-state"><AlertStateBadge state={detail.state} /></span>
+      </header>
+      <Caution />
+      <div className="grid grid-cols-1 gap-4 lg:grid-cols-[minmax(0,1fr)_340px]">
+        <div className="min-w-0 space-y-4">
+          <Panel title="Evidence" id="evidence">
+            <dl className="num mb-3 grid grid-cols-2 gap-x-4 gap-y-1 text-sm sm:grid-cols-4">
+              <dt className="text-ink-soft">Rule</dt><dd>τ ≥ {formatTau(detail.rule.minTau)}{detail.rule.maxSurrogateP !== null ? `, p ≤ ${formatP(detail.rule.maxSurrogateP)}` : ''}</dd>
+              <dt className="text-ink-soft">Strongest τ</dt><dd>{formatTau(detail.peakTau)}</dd>
+              <dt className="text-ink-soft">Latest τ / p</dt><dd>{formatTau(lastEval?.tau)} / {formatP(lastEval?.surrogateP ?? lastEval?.kendallP)}</dd>
+              <dt className="text-ink-soft">Evaluations</dt><dd>{detail.evaluationCount}</dd>
+            </dl>
+            <EvidenceCharts first={firstView} latest={latestView ?? firstView} indicator={detail.rule.indicator}
+              series={{ slug: detail.series.slug, name: detail.series.name, unit: detail.series.unit, timeZone: tz }} transitions={transitions} />
+          </Panel>
+          <Panel title="Notes" id="notes">
+            <AlertNotes alertId={detail.id} notes={notes} canWrite={roleAtLeast(actor.role, 'analyst')} timeZone={tz} />
+          </Panel>
+        </div>
+        <aside className="space-y-4">
+          <Panel title="Decide" id="actions">
+            <p className="mb-2 text-sm text-ink-soft">Assigned to {detail.assignee?.name ?? 'nobody'}.{detail.dismissReason ? ` Set aside as: ${detail.dismissReason}.` : ''}</p>
+            <AlertActions alertId={detail.id} version={detail.version} actions={detail.allowedActions} users={colleagues} />
+          </Panel>
+          <Panel title="Timeline" id="timeline">
+            {detail.timeline.length === 0 ? (
+              <Empty>Nothing has happened yet.</Empty>
+            ) : (
+              <ol className="space-y-2 text-sm" data-testid="timeline">
+                {detail.timeline.map((e) => (
+                  <li key={e.id} className="border-l-2 border-rule pl-3">
+                    <div className="font-medium">{ACTION_WORDS[e.action] ?? e.action}{e.toState ? ` → ${e.toState}` : ''}</div>
+                    <div className="text-xs text-ink-soft">
+                      {e.actor?.name ?? 'Brinkwatch'} · <LocalTime t={e.at as unknown as string} timeZone={tz} withZone />
+                      {e.reason ? ` · ${e.reason}` : ''}
+                    </div>
+                    {e.detail ? <p className="text-xs">{e.detail}</p> : null}
+                  </li>
+                ))}
+              </ol>
+            )}
+          </Panel>
+        </aside>
+      </div>
+    </section>
+  );
+}

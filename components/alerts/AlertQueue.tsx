@@ -1,0 +1,171 @@
+'use client';
+
+import { keepPreviousData, useQuery } from '@tanstack/react-query';
+import Link from 'next/link';
+import { usePathname, useRouter } from 'next/navigation';
+import { useState } from 'react';
+import { api } from '@/components/api';
+import { AlertStateBadge, SeverityBadge } from '@/components/Badges';
+import { LocalTime } from '@/components/LocalTime';
+import { Empty, ErrorNote, Loading } from '@/components/States';
+import { formatP, formatTau } from '@/lib/display/format';
+import type { AlertListItem } from '@/lib/alerts/queries';
+
+export interface QueueFilters {
+  queue: 'triage' | 'escalated' | 'mine' | 'closed';
+  series: string;
+  severity: '' | 'watch' | 'warning';
+  age: string;
+  sort: 'newest' | 'oldest' | 'severity' | 'tau' | 'updated';
+  page: number;
+}
+
+export interface QueuePage {
+  items: AlertListItem[];
+  total: number;
+  counts: Record<QueueFilters['queue'], number>;
+  page: number;
+  pageSize: number;
+}
+
+const TABS: { key: QueueFilters['queue']; label: string }[] = [
+  { key: 'triage', label: 'Triage' },
+  { key: 'escalated', label: 'Escalated' },
+  { key: 'mine', label: 'Mine' },
+  { key: 'closed', label: 'Closed' },
+];
+const AGES = [
+  { value: '', label: 'Any age' },
+  { value: '<24h', label: 'Opened in the last 24 h' },
+  { value: '<7d', label: 'Opened in the last 7 days' },
+  { value: '>2d', label: 'Waiting more than 2 days' },
+  { value: '>7d', label: 'Waiting more than 7 days' },
+];
+const SORTS = [
+  { value: 'newest', label: 'Newest first' },
+  { value: 'oldest', label: 'Oldest first' },
+  { value: 'severity', label: 'Severity' },
+  { value: 'tau', label: 'Strongest trend' },
+  { value: 'updated', label: 'Recently changed' },
+];
+const PAGE_SIZE = 25;
+const control = 'mt-1 rounded border border-rule bg-card px-2 py-1.5 text-sm';
+
+export function queueSearch(f: QueueFilters): string {
+  const params = new URLSearchParams({ queue: f.queue, sort: f.sort, page: String(f.page), pageSize: String(PAGE_SIZE) });
+  if (f.series) params.set('series', f.series);
+  if (f.severity) params.set('severity', f.severity);
+  if (f.age) params.set('age', f.age);
+  return params.toString();
+}
+
+/** The queues as tabs with their counts, filters kept in the address so a view can be shared; pages of 25. */
+export function AlertQueue({ initialFilters, initialPage, seriesOptions }: { initialFilters: QueueFilters; initialPage: QueuePage | null; seriesOptions: { slug: string; name: string }[] }) {
+  const router = useRouter();
+  const pathname = usePathname();
+  const [filters, setFilters] = useState(initialFilters);
+  const search = queueSearch(filters);
+  const query = useQuery({
+    queryKey: ['alerts', search],
+    queryFn: ({ signal }) => api<QueuePage>(`/api/alerts?${search}`, { signal }),
+    initialData: search === queueSearch(initialFilters) && initialPage ? initialPage : undefined,
+    placeholderData: keepPreviousData,
+  });
+  function update(next: Partial<QueueFilters>) {
+    const merged = { ...filters, page: 1, ...next };
+    setFilters(merged);
+    router.replace(`${pathname}?${queueSearch(merged)}`, { scroll: false });
+  }
+  const data = query.data;
+  const pages = data ? Math.max(1, Math.ceil(data.total / PAGE_SIZE)) : 1;
+
+  return (
+    <div className="space-y-3">
+      <div role="tablist" aria-label="Alert queues" className="flex flex-wrap gap-1 border-b border-rule">
+        {TABS.map((tab) => {
+          const active = filters.queue === tab.key;
+          return (
+            <button key={tab.key} type="button" role="tab" aria-selected={active} onClick={() => update({ queue: tab.key })} data-tab={tab.key}
+              className={`-mb-px rounded-t border px-3 py-1.5 text-sm ${active ? 'border-rule border-b-card bg-card font-semibold' : 'border-transparent text-ink-soft hover:text-ink'}`}>
+              {tab.label} <span className="num rounded-full bg-paper px-1.5 text-xs">{data?.counts?.[tab.key] ?? '·'}</span>
+            </button>
+          );
+        })}
+      </div>
+      <div className="flex flex-wrap items-end gap-3">
+        <label className="flex flex-col text-xs font-medium text-ink-soft">
+          Series
+          <select className={control} value={filters.series} onChange={(e) => update({ series: e.target.value })}>
+            <option value="">All series</option>
+            {seriesOptions.map((s) => <option key={s.slug} value={s.slug}>{s.name}</option>)}
+          </select>
+        </label>
+        <label className="flex flex-col text-xs font-medium text-ink-soft">
+          Severity
+          <select className={control} value={filters.severity} onChange={(e) => update({ severity: e.target.value as QueueFilters['severity'] })}>
+            <option value="">Any severity</option>
+            <option value="warning">Warning</option>
+            <option value="watch">Watch</option>
+          </select>
+        </label>
+        <label className="flex flex-col text-xs font-medium text-ink-soft">
+          Age
+          <select className={control} value={filters.age} onChange={(e) => update({ age: e.target.value })}>
+            {AGES.map((a) => <option key={a.value} value={a.value}>{a.label}</option>)}
+          </select>
+        </label>
+        <label className="flex flex-col text-xs font-medium text-ink-soft">
+          Sort
+          <select className={control} value={filters.sort} onChange={(e) => update({ sort: e.target.value as QueueFilters['sort'] })}>
+            {SORTS.map((s) => <option key={s.value} value={s.value}>{s.label}</option>)}
+          </select>
+        </label>
+        {query.isFetching ? <span className="text-xs text-ink-soft" role="status">Updating…</span> : null}
+      </div>
+      {query.isError ? (
+        <ErrorNote error={query.error} />
+      ) : !data ? (
+        <Loading />
+      ) : data.items.length === 0 ? (
+        <Empty>No alerts in this queue{filters.series || filters.severity || filters.age ? ' with these filters' : ''}.</Empty>
+      ) : (
+        <div className="overflow-x-auto rounded-lg border border-rule bg-card">
+          <table className="w-full min-w-[680px] text-sm" data-testid="alert-table">
+            <caption className="sr-only">Alerts in the {filters.queue} queue</caption>
+            <thead className="border-b border-rule bg-paper text-left text-ink-soft">
+              <tr>
+                <th scope="col" className="px-3 py-2 font-medium">Alert</th>
+                <th scope="col" className="px-3 py-2 font-medium">Series</th>
+                <th scope="col" className="px-3 py-2 font-medium">Severity</th>
+                <th scope="col" className="px-3 py-2 font-medium">State</th>
+                <th scope="col" className="px-3 py-2 font-medium">Latest evidence</th>
+                <th scope="col" className="px-3 py-2 font-medium">Opened</th>
+                <th scope="col" className="px-3 py-2 font-medium">Assigned</th>
+              </tr>
+            </thead>
+            <tbody className="divide-y divide-rule">
+              {data.items.map((a) => (
+                <tr key={a.id} data-alert={a.id}>
+                  <td className="px-3 py-2"><Link href={`/alerts/${a.id}`} className="font-medium text-tide hover:underline">#{a.id} {a.rule.indicator}</Link></td>
+                  <td className="px-3 py-2"><Link href={`/series/${a.series.slug}`} className="hover:underline">{a.series.name}</Link></td>
+                  <td className="px-3 py-2"><SeverityBadge severity={a.severity} /></td>
+                  <td className="px-3 py-2"><AlertStateBadge state={a.state} /></td>
+                  <td className="num px-3 py-2 whitespace-nowrap">τ {formatTau(a.latest.tau)} · p {formatP(a.latest.surrogateP ?? a.latest.kendallP)}</td>
+                  <td className="px-3 py-2"><LocalTime t={a.createdAt} timeZone="UTC" withZone /></td>
+                  <td className="px-3 py-2">{a.assignee?.name ?? <span className="text-ink-faint">nobody</span>}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </div>
+      )}
+      {data && data.total > PAGE_SIZE ? (
+        <nav aria-label="Pages" className="flex items-center gap-2 text-sm">
+          <button type="button" disabled={filters.page <= 1} onClick={() => update({ page: filters.page - 1 })} className="rounded border border-rule px-3 py-1 disabled:opacity-50">← Previous</button>
+          <span className="num">Page {filters.page} of {pages} · {data.total} alerts</span>
+          <button type="button" disabled={filters.page >= pages} onClick={() => update({ page: filters.page + 1 })} className="rounded border border-rule px-3 py-1 disabled:opacity-50">Next →</button>
+        </nav>
+      ) : null}
+    </div>
+  );
+}
