@@ -121,18 +121,16 @@ function readTable(file: string, timeCol: string | undefined, valueCol: string |
   const timeName = header[ti];
   const valueName = header[vi];
   const body = headerEnd < 0 ? '' : text.slice(headerEnd).replace(/^\r?\n/, '');
-  const cells = body.includes('"') ? quotedCells(body, ti, vi) : plainCells(body, head.meta.delimiter, ti, vi);
-  const n = cells.time.length;
-  const time = new Float64Array(n);
-  const value = new Float64Array(n);
-  const lines = new Int32Array(n);
+  let cap = 1024;
+  let time = new Float64Array(cap);
+  let value = new Float64Array(cap);
+  let lines = new Int32Array(cap);
   let m = 0;
   let numericTime: boolean | undefined;
-  for (let r = 0; r < n; r++) {
-    const line = cells.line[r];
-    const ts = cells.time[r].trim();
-    const vs = cells.value[r].trim();
-    if (ts === '' && vs === '' && cells.blank[r]) continue;
+  const take: CellSink = (line, tCell, vCell, blank) => {
+    const ts = tCell.trim();
+    const vs = vCell.trim();
+    if (blank) return;
     if (ts === '') throw new CliInputError(`line ${line}, column "${timeName}": missing time`);
     let t = Number(ts);
     if (numericTime === undefined) numericTime = Number.isFinite(t) && !ISO.test(ts);
@@ -145,48 +143,47 @@ function readTable(file: string, timeCol: string | undefined, valueCol: string |
       v = Number(vs);
       if (!Number.isFinite(v)) throw new CliInputError(`line ${line}, column "${valueName}": '${vs}' is not a number`);
     }
+    if (m === cap) {
+      cap *= 2;
+      const grow = <T extends Float64Array | Int32Array>(a: T, b: T): T => (b.set(a), b);
+      time = grow(time, new Float64Array(cap));
+      value = grow(value, new Float64Array(cap));
+      lines = grow(lines, new Int32Array(cap));
+    }
     time[m] = t;
     value[m] = v;
     lines[m] = line;
     m++;
-  }
+  };
+  if (body.includes('"')) quotedCells(body, ti, vi, take);
+  else plainCells(body, head.meta.delimiter, ti, vi, take);
   if (m === 0) throw new CliInputError('the file has a header but no data rows');
   return { time: time.subarray(0, m), value: value.subarray(0, m), numericTime: numericTime!, lines: lines.subarray(0, m), timeName, valueName };
 }
 
-interface Cells {
-  time: string[];
-  value: string[];
-  line: number[];
-  /** the whole row is empty */
-  blank: boolean[];
-}
+/** Receives the two wanted cells of each data row, with its physical line number. */
+type CellSink = (line: number, time: string, value: string, blank: boolean) => void;
 
-/** Cells of two columns from a body with quoted fields: papaparse does the quoting rules. */
-function quotedCells(body: string, ti: number, vi: number): Cells {
+/** Rows of a body with quoted fields: papaparse does the quoting rules. */
+function quotedCells(body: string, ti: number, vi: number, take: CellSink): void {
   const parsed = Papa.parse<string[]>(body, { skipEmptyLines: false });
   const bad = parsed.errors.find((e) => e.type !== 'Delimiter');
   if (bad) throw new CliInputError(`line ${(bad.row ?? 0) + 2}: ${bad.message}`);
-  const out: Cells = { time: [], value: [], line: [], blank: [] };
   // Line numbers count physical lines, so quoted line breaks inside a cell are added back.
   let line = 2;
   for (const row of parsed.data) {
-    out.time.push(row[ti] ?? '');
-    out.value.push(row[vi] ?? '');
-    out.line.push(line);
-    out.blank.push(row.length === 1 && row[0].trim() === '');
+    take(line, row[ti] ?? '', row[vi] ?? '', row.length === 1 && row[0].trim() === '');
     for (const c of row) for (let k = c.indexOf('\n'); k >= 0; k = c.indexOf('\n', k + 1)) line++;
     line++;
   }
-  return out;
 }
 
 /**
- * Cells of two columns from a body without quotes, where a field is everything between delimiters;
- * a plain scan over the text is several times faster than a general CSV parser on million-row files.
+ * Rows of a body without quotes, where a field is everything between delimiters (the header's
+ * delimiter, as papaparse detected it): a plain scan is several times faster than a general CSV parser
+ * on million-row files and keeps no per-cell strings alive.
  */
-function plainCells(body: string, delimiter: string, ti: number, vi: number): Cells {
-  const out: Cells = { time: [], value: [], line: [], blank: [] };
+function plainCells(body: string, delimiter: string, ti: number, vi: number, take: CellSink): void {
   const last = Math.max(ti, vi);
   let pos = 0;
   let line = 2;
@@ -197,24 +194,20 @@ function plainCells(body: string, delimiter: string, ti: number, vi: number): Ce
     let t = '';
     let v = '';
     let start = pos;
+    let nonEmpty = false;
     for (let col = 0; col <= last; col++) {
       let next = body.indexOf(delimiter, start);
       if (next < 0 || next > stop) next = stop;
       if (col === ti) t = body.slice(start, next);
       if (col === vi) v = body.slice(start, next);
+      if (next > start) nonEmpty = true;
       if (next === stop) break;
       start = next + delimiter.length;
     }
-    if (end < body.length || stop > pos) {
-      out.time.push(t);
-      out.value.push(v);
-      out.line.push(line);
-      out.blank.push(stop === pos || body.slice(pos, stop).trim() === '');
-    }
+    take(line, t, v, !nonEmpty && body.slice(pos, stop).trim() === '');
     pos = end + 1;
     line++;
   }
-  return out;
 }
 
 /** Where an engine error points: the input line at or after the instant it names. */

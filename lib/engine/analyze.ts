@@ -58,6 +58,24 @@ function toNullable(a: Float64Array): (number | null)[] {
   return out;
 }
 
+/** The typed indicator arrays behind each result, for summaries that need no per-point copies. */
+const rawIndicators = new WeakMap<object, Partial<Record<IndicatorName, Float64Array>>>();
+
+/**
+ * Indicator arrays as (number | null)[] built on first read and cached: a million-point array of boxed
+ * numbers costs ~100 ms and ~24 MB, which a summary-only caller should not pay. Enumerable getters, so
+ * JSON.stringify, spreading and Object.entries see ordinary arrays.
+ */
+function lazyIndicators(values: Partial<Record<IndicatorName, Float64Array>>): AnalysisResult['indicators'] {
+  const out: AnalysisResult['indicators'] = {};
+  for (const name of Object.keys(values) as IndicatorName[]) {
+    let cache: (number | null)[] | undefined;
+    Object.defineProperty(out, name, { enumerable: true, get: () => (cache ??= toNullable(values[name]!)) });
+  }
+  rawIndicators.set(out, values);
+  return out;
+}
+
 /**
  * The whole pipeline: prepare (grid, gaps, span, log, seasonal) → detrend → rolling indicators →
  * Kendall tau of each → surrogate significance (worker threads unless options.parallel is false;
@@ -78,13 +96,10 @@ export async function runAnalysis(input: AnalysisInput, settings: AnalysisSettin
   const names = settings.indicators;
   const values = rollingIndicators(d.residual, w, names, { raw, dt });
 
-  const indicators: AnalysisResult['indicators'] = {};
+  const indicators = lazyIndicators(values);
   const kendall: AnalysisResult['kendall'] = {};
   const trends = indicatorTrends(values);
-  for (const name of names) {
-    indicators[name] = toNullable(values[name]);
-    kendall[name] = { tau: finiteOrNull(trends[name]!.tau), p: finiteOrNull(trends[name]!.p) };
-  }
+  for (const name of names) kendall[name] = { tau: finiteOrNull(trends[name]!.tau), p: finiteOrNull(trends[name]!.p) };
 
   const significance: AnalysisResult['significance'] = {};
   if (settings.surrogates > 0) {
@@ -121,9 +136,11 @@ export async function runAnalysis(input: AnalysisInput, settings: AnalysisSettin
 export function summarizeAnalysis(result: AnalysisResult): AnalysisSummary {
   const { series, indicators, ...rest } = result;
   const latest: AnalysisSummary['latest'] = {};
-  for (const [name, vals] of Object.entries(indicators) as [IndicatorName, (number | null)[]][]) {
+  const typed = rawIndicators.get(indicators);
+  for (const name of Object.keys(indicators) as IndicatorName[]) {
+    const vals: ArrayLike<number | null> = typed?.[name] ?? indicators[name]!;
     let i = vals.length - 1;
-    while (i >= 0 && vals[i] === null) i--;
+    while (i >= 0 && !Number.isFinite(vals[i])) i--;
     latest[name] = i >= 0 ? { time: series.time[i], value: vals[i]! } : null;
   }
   return { ...rest, latest };
