@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { MAX_ABS_TIME_MS } from '@/lib/intake/time-formats';
+import { TIME_FORMATS } from './series';
 
 /**
  * One observation after its cells were read: a UTC instant in integer ms and a finite value. Every row of every
@@ -26,3 +27,24 @@ export const pushedObservationSchema = z.object({
 });
 export const pushedObservationsSchema = z.array(pushedObservationSchema).min(1, 'Send at least one point.').max(2_000_000);
 export type PushedObservation = z.infer<typeof pushedObservationSchema>;
+
+/** The column choices of an upload (the preview screen's mapping); anything left out comes from the series. */
+export const uploadMappingSchema = z
+  .object({
+    timeColumn: z.union([z.string().min(1).max(200), z.number().int().min(0)]),
+    valueColumn: z.union([z.string().min(1).max(200), z.number().int().min(0)]),
+    timeFormat: z.enum(TIME_FORMATS),
+    delimiter: z.enum([',', ';', '\t', '|']),
+    header: z.boolean(),
+  })
+  .partial()
+  .strict();
+export type UploadMapping = z.infer<typeof uploadMappingSchema>;
+
+/** from/to as ISO 8601 or epoch milliseconds; limit caps the points returned. */
+export const observationQuerySchema = z.object({
+  from: z.string().max(40).optional(),
+  to: z.string().max(40).optional(),
+  limit: z.coerce.number().int().min(1).max(5_000_000).optional(),
+  format: z.enum(['json', 'csv']).default('json'),
+});

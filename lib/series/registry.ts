@@ -1,9 +1,10 @@
 import { UniqueConstraintError } from 'sequelize';
-import { Series, SettingsChange, db, writeTransaction } from '@/models';
+import { AnalysisSnapshot, Series, SettingsChange, db, writeTransaction } from '@/models';
+import { observationExtent } from '@/lib/analysis/observations';
 import { ConflictError, NotFoundError } from '@/lib/http/errors';
 import { recordAudit } from '@/lib/audit';
 import type { Actor } from '@/lib/auth/guard';
-import { seriesCreateSchema, type SeriesCreateInput } from '@/lib/schemas/series';
+import { seriesCreateSchema, seriesUpdateSchema, type SeriesCreateInput } from '@/lib/schemas/series';
 import { applyDefaultRules } from '@/lib/alerts/rules';
 
 /** The public shape of a series record (what the API returns). */
@@ -58,4 +59,51 @@ export async function createSeries(input: SeriesCreateInput, actor: Pick<Actor, 
     if (error instanceof UniqueConstraintError) throw new ConflictError(`A series with the slug "${fields.slug}" already exists.`);
     throw error;
   }
+}
+
+/** A series with the extent of its record and the summary of its newest analysis snapshot. */
+export async function fetchSeriesDetail(slug: string) {
+  const series = await findSeriesBySlug(slug);
+  const [extent, latest] = await Promise.all([
+    observationExtent(series.id),
+    AnalysisSnapshot.findOne({ where: { seriesId: series.id }, order: [['id', 'DESC']] }),
+  ]);
+  return {
+    ...presentSeries(series),
+    needsAnalysis: series.needsAnalysis,
+    dataChangedAt: series.dataChangedAt,
+    observations: { count: extent.count, first: extent.first, last: extent.last },
+    latestAnalysis: latest && {
+      id: latest.id, createdAt: latest.createdAt, status: latest.status, error: latest.error, n: latest.n,
+      dataFrom: latest.dataFrom === null ? null : Number(latest.dataFrom), dataTo: latest.dataTo === null ? null : Number(latest.dataTo),
+      summary: latest.summary,
+    },
+  };
+}
+
+/**
+ * Applies a PATCH. Changed analysis settings are kept in the settings history and mark the series for a fresh
+ * analysis; `retired` retires or restores. Every change is audited with the names of the fields it touched.
+ */
+export async function updateSeries(slug: string, input: unknown, actor: Pick<Actor, 'id'>): Promise<Series> {
+  const patch = seriesUpdateSchema.parse(input);
+  await db();
+  return writeTransaction(async (transaction) => {
+    const series = await Series.findOne({ where: { slug }, transaction });
+    if (!series) throw new NotFoundError('Series');
+    const { retired, ...fields } = patch;
+    const changed = Object.keys(fields).filter((key) => JSON.stringify(fields[key as keyof typeof fields]) !== JSON.stringify(series.get(key)));
+    const settingsChanged = changed.includes('settings');
+    series.set(fields);
+    if (settingsChanged) series.needsAnalysis = true;
+    const retiring = retired !== undefined && retired !== (series.retiredAt !== null);
+    if (retiring) series.retiredAt = retired ? new Date() : null;
+    await series.save({ transaction });
+    if (settingsChanged) await SettingsChange.create({ seriesId: series.id, settings: series.settings, changedBy: actor.id }, { transaction });
+    if (changed.length) await recordAudit({ actorId: actor.id, action: 'series.update', entity: 'series', entityId: series.id, details: { fields: changed } }, transaction);
+    if (retiring) {
+      await recordAudit({ actorId: actor.id, action: retired ? 'series.retire' : 'series.restore', entity: 'series', entityId: series.id, details: {} }, transaction);
+    }
+    return series;
+  });
 }

@@ -1,0 +1,10 @@
+import { NextResponse } from 'next/server';
+import { requireRole } from '@/lib/auth/guard';
+import { handle } from '@/lib/http/handler';
+import { readQuery } from '@/lib/http/body';
+import { ingestRunQuerySchema, listIngestRuns } from '@/lib/intake/runs';
+
+export const GET = handle(async (request) => {
+  await requireRole('viewer');
+  return NextResponse.json(await listIngestRuns(readQuery(request, ingestRunQuerySchema)));
+});

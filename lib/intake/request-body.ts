@@ -1,0 +1,68 @@
+import { PayloadTooLargeError, UnprocessableError, UnsupportedMediaTypeError } from '@/lib/http/errors';
+import { isJsonContentType, readLimitedText } from '@/lib/http/body';
+import { pushedObservationsSchema, uploadMappingSchema, type PushedObservation, type UploadMapping } from '@/lib/schemas/observation';
+import { contentHashOf } from './content-hash';
+
+/** Largest CSV or JSON body taken by upload and push; a bigger record belongs in a drop folder, which streams. */
+export const INTAKE_BODY_LIMIT = 50 * 1024 * 1024;
+
+export interface IntakeBody {
+  csv?: string;
+  points?: PushedObservation[];
+  fileName: string | null;
+  contentHash: string;
+  mapping: UploadMapping;
+}
+
+function parseMapping(raw: string | null): UploadMapping {
+  if (!raw) return {};
+  let parsed: unknown;
+  try {
+    parsed = JSON.parse(raw);
+  } catch {
+    throw new UnprocessableError('The mapping is not valid JSON.');
+  }
+  return uploadMappingSchema.parse(parsed);
+}
+
+/**
+ * Reads an intake body: `text/csv` (mapping as JSON in the `mapping` query parameter), `multipart/form-data` with a
+ * `file` part and an optional `mapping` part, or — when `allowJson` — a JSON array of `{ time, value }`. 413 above
+ * INTAKE_BODY_LIMIT, 415 for any other content type.
+ */
+export async function readIntakeBody(request: Request, options: { allowJson: boolean }): Promise<IntakeBody> {
+  const type = (request.headers.get('content-type') || '').toLowerCase();
+  const queryMapping = new URL(request.url).searchParams.get('mapping');
+  if (type.startsWith('text/csv') || type.startsWith('text/plain')) {
+    const csv = await readLimitedText(request, INTAKE_BODY_LIMIT);
+    return { csv, fileName: null, contentHash: contentHashOf(csv), mapping: parseMapping(queryMapping) };
+  }
+  if (type.startsWith('multipart/form-data')) {
+    const raw = await readLimitedText(request, INTAKE_BODY_LIMIT + 64 * 1024);
+    const form = await new Response(raw, { headers: { 'content-type': request.headers.get('content-type')! } }).formData().catch(() => {
+      throw new UnprocessableError('The multipart body could not be read.');
+    });
+    const file = form.get('file');
+    if (!file || typeof file === 'string') throw new UnprocessableError('Attach the CSV as the "file" part.', { file: ['Required.'] });
+    if (file.size > INTAKE_BODY_LIMIT) throw new PayloadTooLargeError(INTAKE_BODY_LIMIT);
+    const bytes = new Uint8Array(await file.arrayBuffer());
+    const mappingPart = form.get('mapping');
+    return {
+      csv: new TextDecoder().decode(bytes),
+      fileName: file.name || null,
+      contentHash: contentHashOf(bytes),
+      mapping: parseMapping(typeof mappingPart === 'string' ? mappingPart : queryMapping),
+    };
+  }
+  if (options.allowJson && isJsonContentType(request)) {
+    const text = await readLimitedText(request, INTAKE_BODY_LIMIT);
+    let parsed: unknown;
+    try {
+      parsed = JSON.parse(text);
+    } catch {
+      throw new UnprocessableError('The body is not valid JSON.');
+    }
+    return { points: pushedObservationsSchema.parse(parsed), fileName: null, contentHash: contentHashOf(text), mapping: {} };
+  }
+  throw new UnsupportedMediaTypeError(options.allowJson ? 'text/csv, multipart/form-data or application/json' : 'text/csv or multipart/form-data');
+}
