@@ -1,0 +1,109 @@
+'use client';
+
+import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import { useRouter } from 'next/navigation';
+import { useState, type FormEvent } from 'react';
+import { api, ApiError } from '@/components/api';
+import { Empty, ErrorNote, Loading, Panel } from '@/components/States';
+
+interface WatchRow {
+  seriesId: number;
+  slug: string | null;
+  name: string | null;
+  mode: string;
+}
+
+const control = 'mt-1 w-full rounded border border-rule bg-card px-2 py-1.5 text-sm';
+const MODES = [
+  { value: 'immediate', label: 'Mail each alert at once' },
+  { value: 'digest', label: 'Daily summary' },
+  { value: 'none', label: 'No mail' },
+];
+
+function fieldError(error: unknown, field: string): string | null {
+  return error instanceof ApiError ? error.fields?.[field]?.[0] ?? null : null;
+}
+
+/** Name, password change, and the mail preference for every series (watched or not). */
+export function AccountForms({ name, email, role, series }: { name: string; email: string; role: string; series: { slug: string; name: string }[] }) {
+  const router = useRouter();
+  const client = useQueryClient();
+  const [newName, setNewName] = useState(name);
+  const [passwords, setPasswords] = useState({ currentPassword: '', newPassword: '' });
+  const rename = useMutation({ mutationFn: () => api('/api/account', { method: 'PATCH', body: { name: newName } }), onSuccess: () => router.refresh() });
+  const change = useMutation({
+    mutationFn: () => api('/api/account', { method: 'POST', body: passwords }),
+    onSuccess: () => setPasswords({ currentPassword: '', newPassword: '' }),
+  });
+  const watches = useQuery({ queryKey: ['watches'], queryFn: () => api<{ items: WatchRow[] }>('/api/watches').then((r) => r.items) });
+  const setWatch = useMutation({
+    mutationFn: ({ slug, mode }: { slug: string; mode: string }) => api(`/api/series/${slug}/watch`, { method: 'PUT', body: { mode } }),
+    onSuccess: () => client.invalidateQueries({ queryKey: ['watches'] }),
+  });
+
+  function submitName(e: FormEvent) {
+    e.preventDefault();
+    rename.mutate();
+  }
+  function submitPassword(e: FormEvent) {
+    e.preventDefault();
+    change.mutate();
+  }
+  const modeOf = (slug: string) => watches.data?.find((w) => w.slug === slug)?.mode ?? 'none';
+
+  return (
+    <div className="grid grid-cols-1 gap-4 lg:grid-cols-2">
+      <Panel title="You" id="you">
+        <p className="mb-3 text-sm text-ink-soft">{email} · role <strong className="text-ink">{role}</strong> (set by an admin)</p>
+        <form onSubmit={submitName} className="space-y-2">
+          <label className="block text-sm font-medium">Name
+            <input value={newName} onChange={(e) => setNewName(e.target.value)} required className={control} />
+          </label>
+          <button type="submit" disabled={rename.isPending || newName.trim() === name} className="rounded bg-tide px-3 py-1.5 text-sm font-medium text-white disabled:opacity-50">Save name</button>
+          {rename.isSuccess ? <p role="status" className="text-sm text-calm">✓ Saved</p> : null}
+          {rename.isError ? <ErrorNote error={rename.error}>Not saved.</ErrorNote> : null}
+        </form>
+      </Panel>
+      <Panel title="Password" id="password">
+        <form onSubmit={submitPassword} className="space-y-2">
+          <label className="block text-sm font-medium">Current password
+            <input type="password" autoComplete="current-password" required value={passwords.currentPassword}
+              onChange={(e) => setPasswords({ ...passwords, currentPassword: e.target.value })} className={control}
+              aria-invalid={Boolean(fieldError(change.error, 'currentPassword'))} />
+          </label>
+          {fieldError(change.error, 'currentPassword') ? <p className="text-xs text-warning">✕ {fieldError(change.error, 'currentPassword')}</p> : null}
+          <label className="block text-sm font-medium">New password (at least 12 characters)
+            <input type="password" autoComplete="new-password" required minLength={12} value={passwords.newPassword}
+              onChange={(e) => setPasswords({ ...passwords, newPassword: e.target.value })} className={control}
+              aria-invalid={Boolean(fieldError(change.error, 'newPassword'))} />
+          </label>
+          {fieldError(change.error, 'newPassword') ? <p className="text-xs text-warning">✕ {fieldError(change.error, 'newPassword')}</p> : null}
+          <button type="submit" disabled={change.isPending} className="rounded bg-tide px-3 py-1.5 text-sm font-medium text-white disabled:opacity-50">Change password</button>
+          {change.isSuccess ? <p role="status" className="text-sm text-calm">✓ Password changed</p> : null}
+          {change.isError && !(change.error instanceof ApiError && change.error.fields) ? <ErrorNote error={change.error}>Not changed.</ErrorNote> : null}
+        </form>
+      </Panel>
+      <div className="lg:col-span-2">
+        <Panel title="Mail about each series" id="mail">
+          {watches.isPending ? <Loading /> : watches.isError ? <ErrorNote error={watches.error} /> : series.length === 0 ? <Empty>No series yet.</Empty> : (
+            <ul className="divide-y divide-rule text-sm">
+              {series.map((s) => (
+                <li key={s.slug} className="flex flex-wrap items-center gap-3 py-2">
+                  <span className="min-w-48 flex-1">{s.name}</span>
+                  <label className="flex items-center gap-2">
+                    <span className="sr-only">Mail for {s.name}</span>
+                    <select value={modeOf(s.slug)} onChange={(e) => setWatch.mutate({ slug: s.slug, mode: e.target.value })}
+                      className="rounded border border-rule bg-card px-2 py-1 text-sm">
+                      {MODES.map((m) => <option key={m.value} value={m.value}>{m.label}</option>)}
+                    </select>
+                  </label>
+                </li>
+              ))}
+            </ul>
+          )}
+          {setWatch.isError ? <ErrorNote error={setWatch.error}>Not changed.</ErrorNote> : null}
+        </Panel>
+      </div>
+    </div>
+  );
+}

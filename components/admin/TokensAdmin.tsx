@@ -1,0 +1,80 @@
+'use client';
+
+import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import { useState } from 'react';
+import { api } from '@/components/api';
+import { LocalTime } from '@/components/LocalTime';
+import { Empty, ErrorNote, Loading } from '@/components/States';
+
+interface TokenRow {
+  id: number;
+  label: string;
+  createdAt: string;
+  lastUsedAt: string | null;
+  revokedAt: string | null;
+}
+
+const control = 'rounded border border-rule bg-card px-2 py-1.5 text-sm';
+
+/** Push-API tokens of one series: issue (the secret is shown once), see last use, revoke. */
+export function TokensAdmin({ series }: { series: { slug: string; name: string }[] }) {
+  const client = useQueryClient();
+  const [slug, setSlug] = useState(series[0]?.slug ?? '');
+  const [label, setLabel] = useState('');
+  const [secret, setSecret] = useState<string | null>(null);
+  const key = ['tokens', slug];
+  const tokens = useQuery({
+    queryKey: key,
+    queryFn: () => api<{ items: TokenRow[] } | TokenRow[]>(`/api/series/${slug}/tokens`).then((r) => (Array.isArray(r) ? r : r.items)),
+    enabled: Boolean(slug),
+  });
+  const issue = useMutation({
+    mutationFn: () => api<{ token: string }>(`/api/series/${slug}/tokens`, { method: 'POST', body: { label } }),
+    onSuccess: (data) => {
+      setSecret(data.token);
+      setLabel('');
+      void client.invalidateQueries({ queryKey: key });
+    },
+  });
+  const revoke = useMutation({ mutationFn: (id: number) => api(`/api/tokens/${id}`, { method: 'DELETE' }), onSuccess: () => client.invalidateQueries({ queryKey: key }) });
+  if (series.length === 0) return <Empty>Register a series first.</Empty>;
+  return (
+    <div className="space-y-4">
+      <div className="flex flex-wrap items-end gap-3">
+        <label className="flex flex-col text-xs font-medium text-ink-soft">Series
+          <select value={slug} onChange={(e) => { setSlug(e.target.value); setSecret(null); }} className={`${control} mt-1`}>
+            {series.map((s) => <option key={s.slug} value={s.slug}>{s.name}</option>)}
+          </select>
+        </label>
+        <form className="flex flex-wrap items-end gap-2" onSubmit={(e) => { e.preventDefault(); issue.mutate(); }}>
+          <label className="flex flex-col text-xs font-medium text-ink-soft">Label (who uses it)
+            <input value={label} onChange={(e) => setLabel(e.target.value)} className={`${control} mt-1`} placeholder="e.g. buoy logger 3" />
+          </label>
+          <button type="submit" disabled={issue.isPending} className="rounded bg-tide px-3 py-1.5 text-sm font-medium text-white disabled:opacity-50">Issue a token</button>
+        </form>
+      </div>
+      {secret ? (
+        <div role="status" className="rounded border border-watch bg-watch-light p-3 text-sm">
+          <p className="font-medium">Copy this token now; it is not shown again.</p>
+          <code className="mt-1 block break-all font-mono" data-testid="new-token">{secret}</code>
+        </div>
+      ) : null}
+      {issue.isError ? <ErrorNote error={issue.error}>No token issued.</ErrorNote> : null}
+      {revoke.isError ? <ErrorNote error={revoke.error}>Not revoked.</ErrorNote> : null}
+      {tokens.isPending ? <Loading /> : tokens.isError ? <ErrorNote error={tokens.error} /> : tokens.data.length === 0 ? <Empty>No tokens for this series.</Empty> : (
+        <ul className="divide-y divide-rule rounded-lg border border-rule bg-card text-sm">
+          {tokens.data.map((t) => (
+            <li key={t.id} className="flex flex-wrap items-center gap-3 px-3 py-2">
+              <span className="font-medium">{t.label || `token #${t.id}`}</span>
+              <span className="text-ink-soft">issued <LocalTime t={t.createdAt} timeZone="UTC" withZone /></span>
+              <span className="text-ink-soft">last used {t.lastUsedAt ? <LocalTime t={t.lastUsedAt} timeZone="UTC" withZone /> : 'never'}</span>
+              {t.revokedAt ? <span className="text-ink-faint">○ revoked</span> : (
+                <button type="button" onClick={() => revoke.mutate(t.id)} className="ml-auto rounded border border-rule px-2 py-1 text-xs hover:bg-paper">Revoke</button>
+              )}
+            </li>
+          ))}
+        </ul>
+      )}
+    </div>
+  );
+}

@@ -1,0 +1,178 @@
+import fs from 'node:fs';
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core';
+import { DEMO_PASSWORD, startApp, type RunningApp } from '../support/app';
+import { signedIn, type Session } from '../support/session';
+
+/** Debian's Chromium, never a downloaded browser; flags as in DEVELOPERS.md ("Browser tests"). */
+const CHROMIUM = '/usr/bin/chromium';
+const FLAGS = ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'];
+const SHOTS = path.resolve(__dirname, '../../test-results/screenshots');
+const ROLES = ['admin', 'lead', 'analyst', 'viewer'] as const;
+type RoleName = (typeof ROLES)[number];
+
+let app: RunningApp;
+let browser: Browser;
+const contexts = {} as Record<RoleName, BrowserContext>;
+let api: Session;
+
+async function shot(page: Page, name: string): Promise<void> {
+  await page.screenshot({ path: path.join(SHOTS, `${name}.png`), fullPage: true });
+}
+
+async function open(role: RoleName, pathname: string): Promise<Page> {
+  const page = await contexts[role].newPage();
+  await page.goto(app.baseUrl + pathname);
+  return page;
+}
+
+/**
+ * An alert to triage. The analysis job runs every 5 s on the demo data and its slowing-down records should open
+ * alerts within a few cycles; we wait up to 90 s for one. If none has opened by then, the test creates one through
+ * the models on the app's DATA_DIR (rule and latest snapshot of a demo series), so triage is still exercised.
+ */
+async function alertToTriage(): Promise<number> {
+  const deadline = Date.now() + 90_000;
+  while (Date.now() < deadline) {
+    const response = await api.fetch('/api/alerts?queue=triage&state=new&pageSize=5');
+    const body = await response.json();
+    if (body.items?.length) return body.items[0].id;
+    await new Promise((r) => setTimeout(r, 2000));
+  }
+  process.env.DATA_DIR = app.dataDir;
+  const { db, Alert, AlertRule, AnalysisSnapshot, OPEN_ALERT_STATES } = await import('@/models');
+  await db();
+  const snapshot = await AnalysisSnapshot.findOne({ where: { status: 'ok' }, order: [['id', 'DESC']] });
+  if (!snapshot) throw new Error('the analysis job stored no snapshot in 90 s');
+  const rules = await AlertRule.findAll({ where: { seriesId: snapshot.seriesId } });
+  for (const rule of rules) {
+    const open = await Alert.findOne({ where: { ruleId: rule.id, state: OPEN_ALERT_STATES as string[] } });
+    if (open) continue;
+    const alert = await Alert.create({
+      seriesId: snapshot.seriesId, ruleId: rule.id, state: 'new', severity: rule.severity, assigneeId: null,
+      firstSnapshotId: snapshot.id, latestSnapshotId: snapshot.id, peakTau: null, dismissReason: null, closedAt: null,
+    });
+    return alert.id;
+  }
+  throw new Error('no rule without an open alert to test with');
+}
+
+describe('screens in Chromium', () => {
+  beforeAll(async () => {
+    fs.mkdirSync(SHOTS, { recursive: true });
+    app = await startApp({ demo: true, env: { ANALYSIS_CRON: '*/5 * * * * *' } });
+    browser = await chromium.launch({ executablePath: CHROMIUM, args: FLAGS });
+    api = await signedIn(app.baseUrl, 'analyst@brinkwatch.test', DEMO_PASSWORD);
+  });
+
+  afterAll(async () => {
+    await browser?.close();
+    await app?.stop();
+  });
+
+  it('signs in as each role through the sign-in page', async () => {
+    for (const role of ROLES) {
+      contexts[role] = await browser.newContext({ viewport: { width: 1280, height: 900 } });
+      const page = await contexts[role].newPage();
+      await page.goto(`${app.baseUrl}/`);
+      await page.waitForURL(/\/signin/);
+      if (role === 'viewer') await shot(page, 'signin');
+      await page.getByLabel('E-mail').fill(`${role}@brinkwatch.test`);
+      await page.getByLabel('Password').fill(DEMO_PASSWORD);
+      await page.getByRole('button', { name: 'Sign in' }).click();
+      await page.waitForURL(`${app.baseUrl}/`);
+      await expect.poll(() => page.getByTestId('actor-role').textContent()).toBe(role);
+      await page.close();
+    }
+  });
+
+  it('lists the demo series on the overview with freshness, state and queue counts', async () => {
+    const { items } = await (await api.fetch('/api/series')).json();
+    expect(items.length).toBeGreaterThan(0);
+    const page = await open('viewer', '/');
+    const table = page.getByTestId('overview-table');
+    await table.waitFor();
+    for (const s of items) await expect(table.locator(`tr[data-series="${s.slug}"]`).count()).resolves.toBe(1);
+    await expect(page.locator('[data-freshness]').first().textContent()).resolves.toMatch(/On time|Late|No data/);
+    await expect(page.getByRole('note').first().textContent()).resolves.toMatch(/not a forecast/);
+    await page.getByLabel('Find a series').fill(items[0].name);
+    await expect.poll(() => table.locator('tbody tr').count()).toBeGreaterThanOrEqual(1);
+    await page.getByLabel('Find a series').fill('');
+    await shot(page, 'overview-1280');
+    await page.setViewportSize({ width: 390, height: 844 });
+    await shot(page, 'overview-390');
+    await page.close();
+  });
+
+  it('recomputes the charts and tau when an analyst changes the window', async () => {
+    const { items } = await (await api.fetch('/api/series')).json();
+    const slug: string = items[0].slug;
+    const page = await open('analyst', `/series/${slug}`);
+    const legend = page.locator('[data-testid^="trend-"]').first();
+    await legend.waitFor({ timeout: 60_000 });
+    const before = await legend.textContent();
+    const pathBefore = await page.getByTestId(/chart-(ac1|variance|sd|cv|skewness|kurtosis|recovery)/).first().locator('path.recharts-curve').first().getAttribute('d');
+    const window = page.getByTestId('window-input');
+    const current = Number(await window.inputValue());
+    await window.fill(String(current > 0.4 ? 0.25 : 0.7));
+    await page.getByTestId('preview-flag').waitFor({ timeout: 60_000 });
+    await expect.poll(() => legend.textContent(), { timeout: 60_000 }).not.toBe(before);
+    const pathAfter = await page.getByTestId(/chart-(ac1|variance|sd|cv|skewness|kurtosis|recovery)/).first().locator('path.recharts-curve').first().getAttribute('d');
+    expect(pathAfter).not.toBe(pathBefore);
+    await shot(page, 'workbench-1280');
+    await page.setViewportSize({ width: 390, height: 844 });
+    await shot(page, 'workbench-390');
+    await page.close();
+    const report = await open('viewer', `/series/${slug}/report`);
+    await report.getByRole('heading', { level: 1 }).waitFor();
+    await shot(report, 'report');
+    await report.close();
+  });
+
+  it('lets an analyst take and escalate an alert, a lead confirm it, and shows a viewer no actions', async () => {
+    const id = await alertToTriage();
+    const analyst = await open('analyst', `/alerts/${id}`);
+    await analyst.getByRole('button', { name: 'Take this alert' }).click();
+    await expect.poll(() => analyst.getByTestId('alert-state').textContent(), { timeout: 20_000 }).toMatch(/Acknowledged/);
+    await analyst.getByRole('button', { name: 'Escalate to a lead' }).click();
+    await expect.poll(() => analyst.getByTestId('alert-state').textContent(), { timeout: 20_000 }).toMatch(/Escalated/);
+    await expect(analyst.getByRole('button', { name: 'Confirm as a real warning' }).count()).resolves.toBe(0);
+    await shot(analyst, 'alert-escalated');
+    await analyst.close();
+
+    const viewer = await open('viewer', `/alerts/${id}`);
+    await viewer.getByTestId('no-actions').waitFor();
+    await expect(viewer.locator('[data-testid="alert-actions"] button').count()).resolves.toBe(0);
+    await expect(viewer.getByRole('button', { name: 'Add note' }).count()).resolves.toBe(0);
+    await viewer.close();
+
+    const lead = await open('lead', `/alerts/${id}`);
+    await lead.getByRole('button', { name: 'Confirm as a real warning' }).click();
+    await expect.poll(() => lead.getByTestId('alert-state').textContent(), { timeout: 20_000 }).toMatch(/Confirmed/);
+    await expect(lead.getByTestId('timeline').textContent()).resolves.toMatch(/confirmed/);
+    await lead.close();
+
+    const queue = await open('lead', '/alerts?queue=closed');
+    await queue.locator(`tr[data-alert="${id}"]`).waitFor();
+    await shot(queue, 'alerts-closed');
+    await queue.close();
+  });
+
+  it('shows the admin screens and the account page', async () => {
+    for (const [role, pathname, name] of [
+      ['admin', '/admin', 'admin-users'],
+      ['admin', '/admin/tokens', 'admin-tokens'],
+      ['admin', '/admin/mail', 'admin-mail'],
+      ['admin', '/admin/audit', 'admin-audit'],
+      ['analyst', '/account', 'account'],
+    ] as const) {
+      const page = await open(role, pathname);
+      await page.getByRole('heading', { level: 1 }).waitFor();
+      await page.waitForLoadState('networkidle');
+      await expect(page.locator('[role="alert"]').count()).resolves.toBe(0);
+      await shot(page, name);
+      await page.close();
+    }
+  });
+});
