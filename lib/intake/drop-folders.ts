@@ -8,7 +8,7 @@ import { hashFile } from './content-hash';
 import { ingestObservations, sweepStaleRuns, type IngestOutcome } from './pipeline';
 
 /** Long enough for a million-row file; renewed every third of it while the file is worked on. */
-const FILE_LEASE_MS = 120_000;
+const FILE_LEASE_MS = 60_000;
 export const DONE_FOLDERS = ['processed', 'rejected'] as const;
 
 function log(line: string): void {

@@ -1,0 +1,206 @@
+'use client';
+
+import { useMutation, useQueryClient } from '@tanstack/react-query';
+import { useId, useState, type DragEvent } from 'react';
+import { Caution } from '@/components/Caution';
+import { fetchJson, formatCount, type RejectedRow } from './api';
+import { RejectedRowsTable } from './RejectedRowsTable';
+
+const TIME_FORMATS = [
+  ['iso8601', 'ISO 8601 date-time'],
+  ['date', 'Date only (YYYY-MM-DD)'],
+  ['epoch-seconds', 'Epoch seconds'],
+  ['epoch-milliseconds', 'Epoch milliseconds'],
+  ['decimal-year', 'Decimal year'],
+  ['age-years-bp', 'Age, years before 1950'],
+  ['age-kyr-bp', 'Age, thousand years before 1950'],
+] as const;
+const DELIMITERS = [[',', 'Comma'], [';', 'Semicolon'], ['\t', 'Tab'], ['|', 'Pipe']] as const;
+const MAX_BYTES = 50 * 1024 * 1024;
+
+interface Mapping {
+  timeColumn: number;
+  valueColumn: number;
+  timeFormat: string;
+  delimiter: string;
+  header: boolean;
+}
+
+interface Preview {
+  fileName: string | null;
+  layout: { delimiter: string; header: string[] | null; encoding: string; bom: boolean; delimiterDetected: boolean; fieldCount: number } | null;
+  timeFormatGuess: string | null;
+  mapping: { timeColumn: string | number; valueColumn: string | number; timeFormat: string };
+  sample: { line: number; fields: string[] }[];
+  summary: { rowsRead: number; wouldAccept: number; wouldBeDuplicates: number; wouldReplace: number; conflicts: number; rejected: number; rejectedRows: RejectedRow[]; first: number | null; last: number | null; notes: string[] } | null;
+  fileError: { code: string; message: string } | null;
+}
+
+interface Outcome {
+  runId: number;
+  status: string;
+  message: string;
+  accepted: number;
+  duplicates: number;
+  rejected: number;
+}
+
+function send(slug: string, file: File, mapping: Partial<Mapping> | null, commit: boolean) {
+  const form = new FormData();
+  form.append('file', file);
+  if (mapping) form.append('mapping', JSON.stringify(mapping));
+  return fetchJson<Preview & Outcome>(`/api/series/${slug}/uploads${commit ? '' : '/preview'}`, { method: 'POST', body: form });
+}
+
+/** Upload flow: pick or drop a CSV, check what was detected, adjust the mapping, read the summary, then commit. */
+export function UploadPanel({ series }: { series: { slug: string; name: string }[] }) {
+  const id = useId();
+  const client = useQueryClient();
+  const [slug, setSlug] = useState(series[0]?.slug ?? '');
+  const [file, setFile] = useState<File | null>(null);
+  const [mapping, setMapping] = useState<Mapping | null>(null);
+  const [dragging, setDragging] = useState(false);
+  const [sizeError, setSizeError] = useState<string | null>(null);
+
+  const preview = useMutation({
+    mutationFn: (input: { file: File; mapping: Mapping | null }) => send(slug, input.file, input.mapping, false),
+    onSuccess: (data, input) => {
+      if (input.mapping || !data.layout) return;
+      const header = data.layout.header;
+      const index = (c: string | number) => (typeof c === 'number' ? c : Math.max(0, header?.findIndex((h) => h.toLowerCase() === c.toLowerCase()) ?? 0));
+      setMapping({ timeColumn: index(data.mapping.timeColumn), valueColumn: index(data.mapping.valueColumn), timeFormat: data.mapping.timeFormat, delimiter: data.layout.delimiter, header: header !== null });
+    },
+  });
+  const commit = useMutation({
+    mutationFn: () => send(slug, file!, mapping, true),
+    onSettled: () => {
+      client.invalidateQueries({ queryKey: ['ingest-runs'] });
+    },
+  });
+
+  const choose = (picked: File | null) => {
+    commit.reset();
+    setMapping(null);
+    setSizeError(null);
+    setFile(picked);
+    if (!picked) return;
+    if (picked.size > MAX_BYTES) {
+      setSizeError(`This file is ${(picked.size / 1024 / 1024).toFixed(1)} MB; uploads are limited to 50 MB. Put larger files in the series' drop folder instead.`);
+      return;
+    }
+    preview.mutate({ file: picked, mapping: null });
+  };
+  const change = (patch: Partial<Mapping>) => {
+    const next = { ...mapping!, ...patch };
+    setMapping(next);
+    commit.reset();
+    if (file) preview.mutate({ file, mapping: next });
+  };
+  const onDrop = (event: DragEvent<HTMLLabelElement>) => {
+    event.preventDefault();
+    setDragging(false);
+    choose(event.dataTransfer.files[0] ?? null);
+  };
+
+  const data = preview.data;
+  const columns = data?.layout ? Array.from({ length: Math.max(data.layout.fieldCount, 1) }, (_, i) => data.layout!.header?.[i] || `Column ${i + 1}`) : [];
+  const summary = data?.summary;
+
+  if (series.length === 0) return <p className="text-sm text-ink-soft">Register a series before uploading data.</p>;
+  return (
+    <section aria-labelledby={`${id}-title`} className="space-y-4 rounded border border-rule bg-card p-4" data-testid="upload-panel">
+      <h2 id={`${id}-title`} className="text-lg font-semibold">Upload a CSV</h2>
+      <label className="flex items-center gap-2 text-sm">Series
+        <select value={slug} onChange={(e) => { setSlug(e.target.value); choose(null); }} className="rounded border border-rule bg-card px-2 py-1">
+          {series.map((s) => <option key={s.slug} value={s.slug}>{s.name}</option>)}
+        </select>
+      </label>
+      <label
+        htmlFor={`${id}-file`}
+        onDragOver={(e) => { e.preventDefault(); setDragging(true); }}
+        onDragLeave={() => setDragging(false)}
+        onDrop={onDrop}
+        className={`flex cursor-pointer flex-col items-center rounded border-2 border-dashed px-4 py-6 text-sm focus-within:ring-2 focus-within:ring-tide ${dragging ? 'border-tide bg-tide-light' : 'border-rule'}`}
+      >
+        <span className="font-medium">Drag a CSV file here, or choose one</span>
+        <span className="text-ink-soft">Up to 50 MB. Nothing is stored until you commit.</span>
+        <input id={`${id}-file`} type="file" accept=".csv,text/csv,text/plain" className="mt-2 text-sm" onChange={(e) => choose(e.target.files?.[0] ?? null)} />
+      </label>
+      {sizeError && <p role="alert" className="text-sm text-warning">{sizeError}</p>}
+      {preview.isPending && <p role="status" className="text-sm text-ink-soft">Reading the file…</p>}
+      {preview.isError && <p role="alert" className="text-sm text-warning">{preview.error.message}</p>}
+      {data?.fileError && <p role="alert" className="rounded bg-warning-light px-3 py-2 text-sm text-warning" data-testid="file-error">{data.fileError.message}</p>}
+      {data?.layout && mapping && (
+        <div className="space-y-3">
+          <p className="text-sm text-ink-soft" data-testid="detected">
+            Detected: delimiter “{data.layout.delimiter === '\t' ? 'tab' : data.layout.delimiter}”{!data.layout.delimiterDetected && ' (no delimiter split the lines; check it)'},
+            {data.layout.header ? ' a header line' : ' no header line'}, {data.layout.encoding}{data.layout.bom && ' with byte order mark'}; time format guess: {data.timeFormatGuess ?? 'none'}.
+          </p>
+          <fieldset className="grid gap-3 text-sm sm:grid-cols-5">
+            <legend className="sr-only">Column mapping</legend>
+            <label className="flex flex-col gap-1">Time column
+              <select value={mapping.timeColumn} onChange={(e) => change({ timeColumn: Number(e.target.value) })} className="rounded border border-rule px-2 py-1">
+                {columns.map((c, i) => <option key={i} value={i}>{c}</option>)}
+              </select>
+            </label>
+            <label className="flex flex-col gap-1">Value column
+              <select value={mapping.valueColumn} onChange={(e) => change({ valueColumn: Number(e.target.value) })} className="rounded border border-rule px-2 py-1">
+                {columns.map((c, i) => <option key={i} value={i}>{c}</option>)}
+              </select>
+            </label>
+            <label className="flex flex-col gap-1">Time format
+              <select value={mapping.timeFormat} onChange={(e) => change({ timeFormat: e.target.value })} className="rounded border border-rule px-2 py-1">
+                {TIME_FORMATS.map(([value, label]) => <option key={value} value={value}>{label}</option>)}
+              </select>
+            </label>
+            <label className="flex flex-col gap-1">Delimiter
+              <select value={mapping.delimiter} onChange={(e) => change({ delimiter: e.target.value })} className="rounded border border-rule px-2 py-1">
+                {DELIMITERS.map(([value, label]) => <option key={label} value={value}>{label}</option>)}
+              </select>
+            </label>
+            <label className="flex items-center gap-2 self-end pb-1">
+              <input type="checkbox" checked={mapping.header} onChange={(e) => change({ header: e.target.checked })} /> First line is a header
+            </label>
+          </fieldset>
+          <div className="overflow-x-auto rounded border border-rule">
+            <table className="w-full text-left font-mono text-xs" data-testid="preview-rows">
+              <caption className="sr-only">First rows as read</caption>
+              <thead className="bg-paper text-ink-soft"><tr><th scope="col" className="px-2 py-1">Line</th>{columns.map((c, i) => <th key={i} scope="col" className="px-2 py-1">{c}</th>)}</tr></thead>
+              <tbody className="divide-y divide-rule">
+                {data.sample.map((row) => (
+                  <tr key={row.line}><td className="px-2 py-1">{row.line}</td>{columns.map((_, i) => <td key={i} className="px-2 py-1">{row.fields[i] ?? ''}</td>)}</tr>
+                ))}
+              </tbody>
+            </table>
+          </div>
+        </div>
+      )}
+      {summary && (
+        <div className="space-y-2 text-sm" data-testid="validation-summary">
+          <h3 className="font-semibold">Validation summary</h3>
+          <p>
+            {formatCount(summary.rowsRead)} rows read: <strong>{formatCount(summary.wouldAccept)} new</strong>, {formatCount(summary.wouldBeDuplicates)} already stored or repeated,
+            {summary.wouldReplace > 0 && ` ${formatCount(summary.wouldReplace)} would replace stored values,`} {formatCount(summary.rejected)} rejected.
+            {summary.first !== null && summary.last !== null && ` Spans ${new Date(summary.first).toISOString()} to ${new Date(summary.last).toISOString()}.`}
+          </p>
+          {summary.notes.map((note) => <p key={note} className="rounded bg-watch-light px-2 py-1 text-watch">{note}</p>)}
+          <RejectedRowsTable rows={summary.rejectedRows} total={summary.rejected} caption="Rows that would be rejected" />
+          <div className="rounded border border-rule bg-paper p-3">
+            <Caution />
+            <p className="mt-2 text-xs text-ink-soft">Committing stores the new points now and marks the series for a fresh analysis; rejected rows are not stored and stay listed in the run&apos;s report.</p>
+          </div>
+          <button
+            type="button"
+            disabled={commit.isPending || summary.wouldAccept + summary.wouldReplace === 0 || commit.isSuccess}
+            onClick={() => commit.mutate()}
+            className="rounded bg-tide px-4 py-2 font-medium text-white hover:bg-tide-dark disabled:opacity-50"
+          >
+            {commit.isPending ? 'Storing…' : `Commit ${formatCount(summary.wouldAccept + summary.wouldReplace)} points`}
+          </button>
+          {commit.isError && <p role="alert" className="text-warning">{commit.error.message}</p>}
+          {commit.data && <p role="status" className="rounded bg-calm-light px-3 py-2 text-calm" data-testid="commit-outcome">Run #{commit.data.runId}: {commit.data.message}</p>}
+        </div>
+      )}
+    </section>
+  );
+}
