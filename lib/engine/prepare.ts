@@ -60,7 +60,7 @@ const MAX_GRID_POINTS = 50_000_000;
  * non-finite values count as missing. Bins are found step by step, k_i = k_{i−1} + round((t_i − T)/Δ) with
  * T the first time in bin k_{i−1}, so slowly varying spacing (calendar months of 28–31 days) does not
  * drift off a fixed grid. A bin's time is its first observation's; an empty bin's is interpolated.
- * Times must be sorted. Cost O(n). Common practice (block averaging onto a regular grid).
+ * Times must be sorted; an exactly regular record is returned as it is (not copied). Cost O(n). Common practice (block averaging onto a regular grid).
  */
 export function binToGrid(
   time: Float64Array,
@@ -68,10 +68,13 @@ export function binToGrid(
   interval: number,
 ): { time: Float64Array; value: Float64Array; binnedBins: number } {
   const n = time.length;
-  const bin = new Float64Array(n);
   for (let i = 0; i < n; i++) {
     if (!Number.isFinite(time[i])) throw new AnalysisInputError(`time at observation ${i + 1} is not a finite number`, { index: i });
   }
+  let exact = true;
+  for (let i = 1; i < n && exact; i++) exact = time[i] - time[i - 1] === interval;
+  if (exact) return { time, value, binnedBins: 0 };
+  const bin = new Float64Array(n);
   let ref = time[0];
   for (let i = 1; i < n; i++) {
     const step = Math.round((time[i] - ref) / interval);
@@ -108,7 +111,7 @@ export function binToGrid(
  * Fills interior runs of at most maxGap missing points by linear interpolation between the points
  * either side; missing points at the ends are left out. A longer run is an AnalysisInputError naming its
  * instants, or with policy 'latest-stretch' the analysis keeps only the points after the last such run.
- * Cost O(n). Common practice (short-gap linear interpolation).
+ * The result may share memory with the input when nothing needs filling. Cost O(n). Common practice (short-gap linear interpolation).
  */
 export function fillGaps(
   time: Float64Array,
@@ -147,8 +150,8 @@ export function fillGaps(
     i = j;
   }
   const keptGaps = gaps.filter((g) => g.from >= time[start]);
-  const t = time.slice(start, b);
-  const v = value.slice(start, b);
+  const t = time.subarray(start, b);
+  const v = keptGaps.length > 0 ? value.slice(start, b) : value.subarray(start, b);
   let filledPoints = 0;
   for (let i = 0; i < v.length; i++) {
     if (!Number.isNaN(v[i])) continue;
@@ -245,9 +248,11 @@ export function prepareSeries(
   let v = filled.value;
   if (opts.logTransform) v = logValues(filled.time, v, kind);
   if (opts.seasonal !== 'none') v = removeSeasonal(filled.time, v, opts.seasonal, kind);
+  // The result must not alias the caller's arrays (a later write to the input would change it).
+  const own = (a: Float64Array, from: Float64Array) => (a.buffer === from.buffer ? a.slice() : a);
   return {
-    time: filled.time,
-    value: v,
+    time: own(filled.time, input.time),
+    value: own(v, input.value),
     interval,
     quality: {
       observations: input.time.length,

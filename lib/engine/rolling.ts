@@ -110,30 +110,40 @@ export function rollingIndicators(
   let rawMean = opts.rawMean;
   if (!rawMean && names.includes('cv')) rawMean = windowMoments(opts.raw ?? residual, w).mean;
   const out = {} as Record<IndicatorName, Float64Array>;
-  // One plain loop per indicator (no branching inside), so each compiles to tight code.
-  const fill = (f: (s: number) => number): Float64Array => {
-    const a = new Float64Array(n).fill(Number.NaN);
-    for (let s = 0; s < count; s++) {
-      const v = f(s);
-      a[s + w - 1] = Number.isFinite(v) ? v : Number.NaN;
-    }
-    return a;
-  };
-  const ac1 = (s: number) => (m2[s] > 0 ? lag[s] / m2[s] : Number.NaN);
+  const at = w - 1;
+  // One plain loop per indicator, no closures or branching on the name inside, so each compiles tight.
   for (const name of names) {
-    if (name === 'variance') out[name] = fill((s) => m2[s] / (w - 1));
-    else if (name === 'sd') out[name] = fill((s) => Math.sqrt(m2[s] / (w - 1)));
-    else if (name === 'cv') out[name] = fill((s) => Math.sqrt(m2[s] / (w - 1)) / Math.abs(rawMean![s]));
-    else if (name === 'ac1') out[name] = fill(ac1);
-    else if (name === 'skewness') out[name] = fill((s) => (m2[s] > 0 ? m3[s] / w / Math.pow(m2[s] / w, 1.5) : Number.NaN));
-    else if (name === 'kurtosis') out[name] = fill((s) => (m2[s] > 0 ? m4[s] / w / ((m2[s] / w) * (m2[s] / w)) - 3 : Number.NaN));
-    else {
-      const dt = opts.dt;
-      out[name] = fill((s) => {
-        const a = ac1(s);
-        return a > 0 ? -Math.log(a) / dt : Number.NaN;
-      });
+    const a = new Float64Array(n).fill(Number.NaN);
+    switch (name) {
+      case 'variance':
+        for (let s = 0; s < count; s++) a[s + at] = m2[s] / (w - 1);
+        break;
+      case 'sd':
+        for (let s = 0; s < count; s++) a[s + at] = Math.sqrt(m2[s] / (w - 1));
+        break;
+      case 'cv':
+        for (let s = 0; s < count; s++) {
+          const v = Math.sqrt(m2[s] / (w - 1)) / Math.abs(rawMean![s]);
+          a[s + at] = Number.isFinite(v) ? v : Number.NaN;
+        }
+        break;
+      case 'ac1':
+        for (let s = 0; s < count; s++) if (m2[s] > 0) a[s + at] = lag[s] / m2[s];
+        break;
+      case 'skewness':
+        for (let s = 0; s < count; s++) if (m2[s] > 0) a[s + at] = m3[s] / w / Math.pow(m2[s] / w, 1.5);
+        break;
+      case 'kurtosis':
+        for (let s = 0; s < count; s++) if (m2[s] > 0) a[s + at] = m4[s] / w / ((m2[s] / w) * (m2[s] / w)) - 3;
+        break;
+      case 'recovery':
+        for (let s = 0; s < count; s++) {
+          const ac = lag[s] / m2[s];
+          if (m2[s] > 0 && ac > 0) a[s + at] = -Math.log(ac) / opts.dt;
+        }
+        break;
     }
+    out[name] = a;
   }
   return out;
 }
