@@ -80,7 +80,8 @@ function lazyIndicators(values: Partial<Record<IndicatorName, Float64Array>>): A
  * The whole pipeline: prepare (grid, gaps, span, log, seasonal) → detrend → rolling indicators →
  * Kendall tau of each → surrogate significance (worker threads unless options.parallel is false;
  * identical numbers either way) → optional sensitivity grid. Throws AnalysisInputError for input the
- * caller can fix. Cost O(n log n) + O(N·n log n) for N surrogates.
+ * caller can fix. Cost O(n log n) + O(N·n log n) for N surrogates. Sources: those of each step (README,
+ * "Indicator definitions"). The returned arrays are the engine's own (never the caller's input).
  */
 export async function runAnalysis(input: AnalysisInput, settings: AnalysisSettings, options: { parallel?: boolean } = {}): Promise<AnalysisResult> {
   const kind = input.timeKind ?? 'utc-ms';

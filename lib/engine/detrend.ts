@@ -166,7 +166,8 @@ export function movingAverage(x: Float64Array, width: number): Float64Array {
  * Trend and residual = x − trend for one detrending method.
  * none: trend 0; linear: OLS on the index; gaussian: gaussianSmooth with h = bandwidth·n;
  * moving-average: centred, width in points; difference: residual_i = x_{i+1} − x_i (n−1 points, trend = x_i).
- * Cost O(n), O(n log n) for gaussian.
+ * Cost O(n), O(n log n) for gaussian. Sources: those of the functions it calls; differencing, Box et al.
+ * (2015), Time Series Analysis, Ch. 4 (from memory).
  */
 export function detrend(x: Float64Array, method: DetrendMethod, opts: { bandwidthPoints: number; movingAverageWidth: number }): Detrended {
   const n = x.length;

@@ -53,12 +53,12 @@ function twiddles(n: number): Twiddles {
   return t;
 }
 
-/** True when n is a power of two (n ≥ 1). */
+/** True when n is a power of two (n ≥ 1): n & (n − 1) = 0. O(1). */
 export function isPowerOfTwo(n: number): boolean {
   return n >= 1 && (n & (n - 1)) === 0;
 }
 
-/** Smallest power of two ≥ n. */
+/** Smallest power of two ≥ n, by doubling. O(log n). */
 export function nextPowerOfTwo(n: number): number {
   let p = 1;
   while (p < n) p *= 2;

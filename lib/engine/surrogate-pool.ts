@@ -38,7 +38,7 @@ function runInWorker(url: URL, job: SurrogateJob, from: number, to: number): Pro
  * surrogate draws from its own stream (seed, index), the numbers are identical to the synchronous
  * path, which is used when workers are unavailable (e.g. inside the Next.js server bundle, where the
  * worker file is not shipped) or fail to start. `workers` says how many chunks worker threads computed.
- * Cost O(count · n log n) / cores.
+ * Cost O(count · n log n) / cores. Common practice (static block partition of independent tasks).
  */
 export async function computeSurrogateTaus(
   job: SurrogateJob,

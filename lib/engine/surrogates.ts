@@ -40,7 +40,10 @@ export function fitAr1(r: Float64Array): { phi: number; innovationSd: number; me
   return { phi, innovationSd: Math.sqrt(variance * (1 - phi * phi)), mean };
 }
 
-/** Surrogate job for the residual series (fits the AR(1) model or takes the spectrum). O(n), O(n log n) for phase. */
+/**
+ * Surrogate job for a residual series: the AR(1) fit (fitAr1) or the DFT X_k = Σ_j r_j e^{−2πijk/n}, plus
+ * the observed rolling raw means for cv. O(n), O(n log n) for phase. Source: Theiler et al. (1992).
+ */
 export function prepareSurrogateJob(
   residual: Float64Array,
   raw: Float64Array,
@@ -95,6 +98,7 @@ export function makeSurrogate(job: SurrogateJob, index: number): Float64Array {
 /**
  * Kendall tau of each indicator for surrogates from..to−1 (NaN where undefined). Each surrogate goes
  * through the same rolling indicators and Kendall tau as the observed residual. Cost O((to−from)·n log n).
+ * Source: the surrogate test of rolling-indicator trends, Dakos et al. (2008), PNAS 105, 14308–14312 (from memory).
  */
 export function surrogateTaus(job: SurrogateJob, from: number, to: number): Record<string, Float64Array> {
   const out: Record<string, Float64Array> = {};
