@@ -3,6 +3,7 @@ import type { QueryInterface } from 'sequelize';
 import { db } from '@/models';
 import * as initial from './0001-initial';
 import * as alertQueues from './0002-alert-queues-and-outbox-claims';
+import * as alertAge from './0003-alert-age-index';
 
 /**
  * The ordered list of schema changes. Listed explicitly (not globbed) so the same list works in the Next.js server
@@ -11,6 +12,7 @@ import * as alertQueues from './0002-alert-queues-and-outbox-claims';
 const MIGRATIONS = [
   { name: '0001-initial', ...initial },
   { name: '0002-alert-queues-and-outbox-claims', ...alertQueues },
+  { name: '0003-alert-age-index', ...alertAge },
 ];
 
 async function migrator(): Promise<Umzug<QueryInterface>> {

@@ -1,5 +1,5 @@
 import { QueryTypes } from 'sequelize';
-import { Alert, AlertEvent, AlertRule, AnalysisSnapshot, Note, NoteRevision, RuleEvaluation, Series, User, db, type AlertState } from '@/models';
+import { ALERT_STATES, Alert, AlertEvent, AlertRule, AnalysisSnapshot, Note, NoteRevision, RuleEvaluation, Series, User, db, type AlertState } from '@/models';
 import { NotFoundError } from '@/lib/http/errors';
 import type { Actor } from '@/lib/auth/guard';
 import { sqlDate } from '@/lib/db/sql-date';
@@ -43,7 +43,8 @@ export interface AlertListItem {
 
 function where(query: Omit<AlertQueueQuery, 'page' | 'pageSize' | 'sort'>, actor: Pick<Actor, 'id'>, queue: AlertQueue, now: number) {
   const states = query.state ? QUEUE_STATES[queue].filter((s) => s === query.state) : QUEUE_STATES[queue];
-  const clauses = [states.length ? `a.state IN (${states.map((s) => `'${s}'`).join(', ')})` : '0'];
+  // Every state = no condition, which leaves the planner free to walk the created_at index in order.
+  const clauses = [states.length === ALERT_STATES.length ? '1' : states.length ? `a.state IN (${states.map((s) => `'${s}'`).join(', ')})` : '0'];
   const replacements: Record<string, unknown> = {};
   if (queue === 'mine') {
     clauses.push('a.assignee_id = :me');
@@ -68,8 +69,9 @@ function where(query: Omit<AlertQueueQuery, 'page' | 'pageSize' | 'sort'>, actor
 
 /**
  * One page of a queue with its filters, plus the size of every queue under the same filters (for the tabs).
- * The page is one indexed query (state/series + created_at indexes, see migrations) joined to its series, rule,
- * assignee and the evaluation of its latest snapshot; counts are one COUNT per queue.
+ * The page's ids come from the alerts table alone (state/series + created_at indexes, see migrations), and only
+ * those rows are joined to their series, rule, assignee and the evaluation of their latest snapshot; counts are
+ * one COUNT per queue.
  */
 export async function fetchAlertQueue(query: AlertQueueQuery, actor: Pick<Actor, 'id'>, now = Date.now()) {
   const sequelize = await db();
@@ -78,14 +80,13 @@ export async function fetchAlertQueue(query: AlertQueueQuery, actor: Pick<Actor,
     `SELECT a.id, a.state, a.severity, a.version, a.peak_tau, a.evaluation_count, a.dismiss_reason, a.created_at, a.updated_at, a.closed_at,
             s.id AS series_id, s.slug, s.name AS series_name, r.id AS rule_id, r.indicator,
             u.id AS assignee_id, u.name AS assignee_name, e.tau, e.surrogate_p, e.kendall_p
-     FROM alerts a
+     FROM (SELECT a.id FROM alerts a WHERE ${filter.sql} ORDER BY ${ORDER[query.sort]} LIMIT :limit OFFSET :offset) page
+     JOIN alerts a ON a.id = page.id
      JOIN series s ON s.id = a.series_id
      JOIN alert_rules r ON r.id = a.rule_id
      LEFT JOIN users u ON u.id = a.assignee_id
      LEFT JOIN rule_evaluations e ON e.rule_id = a.rule_id AND e.snapshot_id = a.latest_snapshot_id
-     WHERE ${filter.sql}
-     ORDER BY ${ORDER[query.sort]}
-     LIMIT :limit OFFSET :offset`,
+     ORDER BY ${ORDER[query.sort]}`,
     { replacements: { ...filter.replacements, limit: query.pageSize, offset: (query.page - 1) * query.pageSize }, type: QueryTypes.SELECT },
   );
   const counts = {} as Record<Exclude<AlertQueue, 'all'>, number>;
