@@ -15,6 +15,10 @@ const mono = localFont({
   display: 'swap',
 });
 
+// Every page renders per request so Next.js can put the request's CSP nonce (proxy.ts) on its scripts; a page
+// prerendered at build time has no nonce, and 'strict-dynamic' would block all of its scripts.
+export const dynamic = 'force-dynamic';
+
 export const metadata: Metadata = {
   title: { default: 'Brinkwatch', template: '%s · Brinkwatch' },
   description: 'Early-warning indicators of critical slowing down for monitored time series.',

@@ -10,8 +10,13 @@ export const SIGN_IN_ERRORS = {
   locked: 'Locked',
 } as const;
 
+/**
+ * The address the nearest proxy saw: the rightmost X-Forwarded-For entry (a reverse proxy appends the peer address;
+ * entries to its left come from the client and can be forged, so keying the throttle on them would let one client
+ * pose as many).
+ */
 function clientAddress(headers: Record<string, unknown> | undefined): string {
-  const forwarded = String(headers?.['x-forwarded-for'] ?? '').split(',')[0].trim();
+  const forwarded = String(headers?.['x-forwarded-for'] ?? '').split(',').pop()!.trim();
   return forwarded || String(headers?.['x-real-ip'] ?? 'local');
 }
 

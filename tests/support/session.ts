@@ -45,15 +45,16 @@ export class Session {
   }
 
   /** Returns the callback's answer; success is a redirect whose location has no `error=`. */
-  async signIn(email: string, password: string): Promise<{ ok: boolean; error: string | null }> {
-    const csrf = await (await this.fetch('/api/auth/csrf')).json();
+  async signIn(email: string, password: string, headers: Record<string, string> = {}): Promise<{ ok: boolean; error: string | null }> {
+    const csrf = await (await this.fetch('/api/auth/csrf', { headers })).json();
     const response = await this.fetch('/api/auth/callback/credentials', {
       method: 'POST',
-      headers: { 'content-type': 'application/x-www-form-urlencoded' },
+      headers: { ...headers, 'content-type': 'application/x-www-form-urlencoded' },
       body: new URLSearchParams({ csrfToken: csrf.csrfToken, email, password, json: 'true' }),
     });
-    const location = response.headers.get('location') ?? '';
-    const error = new URL(location, this.baseUrl).searchParams.get('error');
+    // With json=true next-auth answers { url } instead of redirecting; the outcome is in that URL's `error`.
+    const target = response.headers.get('location') ?? ((await response.json().catch(() => ({}))) as { url?: string }).url ?? '';
+    const error = new URL(target, this.baseUrl).searchParams.get('error');
     return { ok: !error && this.cookies.has('next-auth.session-token'), error };
   }
 }
