@@ -78,11 +78,11 @@ interface SeriesRow {
   time_zone: string;
   interval_ms: number | null;
   last_t: number | null;
+  snap_id: number | null;
+  rule_indicator: string | null;
   snap_created: string | null;
   kendall: string | null;
   surrogate_p: string | null;
-  spark_indicator: string | null;
-  spark: string | null;
 }
 interface RuleRow {
   series_id: number;
@@ -99,6 +99,43 @@ interface AlertCountRow {
   n: number;
 }
 
+type Spark = OverviewRow['spark'];
+
+/**
+ * Sparklines by snapshot and indicator. Snapshots never change once written, and their curves are the one large
+ * column (hundreds of kB each), so each is read once per process and only new snapshots cost a read.
+ */
+const sparkCache = new Map<string, Spark>();
+const SPARK_CACHE_LIMIT = 5000;
+
+async function sparklines(rows: SeriesRow[]): Promise<Map<number, Spark>> {
+  const key = (r: SeriesRow) => `${r.snap_id}:${r.rule_indicator ?? ''}`;
+  const missing = rows.filter((r) => r.snap_id !== null && !sparkCache.has(key(r)));
+  if (missing.length) {
+    const sequelize = await db();
+    const found = await sequelize.query<{ id: number; preferred: string | null; fallback_name: string | null; fallback: string | null }>(
+      `SELECT a.id, json_extract(a.curves, '$.indicators.' || json_extract(p.value, '$[1]')) AS preferred,
+         json_extract(a.settings, '$.indicators[0]') AS fallback_name,
+         CASE WHEN json_type(a.curves, '$.indicators.' || json_extract(p.value, '$[1]')) IS NULL
+              THEN json_extract(a.curves, '$.indicators.' || json_extract(a.settings, '$.indicators[0]')) END AS fallback
+       FROM json_each(:pairs) p JOIN analysis_snapshots a ON a.id = json_extract(p.value, '$[0]')`,
+      { type: QueryTypes.SELECT, replacements: { pairs: JSON.stringify(missing.map((r) => [r.snap_id, r.rule_indicator ?? ''])) } },
+    );
+    const byId = new Map(found.map((f) => [f.id, f]));
+    for (const r of missing) {
+      const f = byId.get(r.snap_id!);
+      const spark: Spark = f?.preferred
+        ? { indicator: r.rule_indicator!, values: sparkline(JSON.parse(f.preferred)) }
+        : f?.fallback && f.fallback_name
+          ? { indicator: f.fallback_name, values: sparkline(JSON.parse(f.fallback)) }
+          : null;
+      if (sparkCache.size >= SPARK_CACHE_LIMIT) sparkCache.delete(sparkCache.keys().next().value!);
+      sparkCache.set(key(r), spark);
+    }
+  }
+  return new Map(rows.map((r) => [r.id, r.snap_id === null ? null : sparkCache.get(key(r)) ?? null]));
+}
+
 const OPEN = OPEN_ALERT_STATES.map((s) => `'${s}'`).join(',');
 const SURROGATE_P = INDICATOR_NAMES.map((name) => `'${name}', json_extract(a.summary, '$.significance.${name}.p')`).join(', ');
 
@@ -107,7 +144,7 @@ const SURROGATE_P = INDICATOR_NAMES.map((name) => `'${name}', json_extract(a.sum
  * observation and latest snapshot; active rules with their latest evaluation; open alerts grouped by series,
  * severity, state and assignee), each using an index per series or rule, so the cost grows with the number of
  * series and rules, not with observations or alerts. Only the pieces of the snapshot JSON the table shows are
- * extracted in SQL.
+ * extracted in SQL; sparklines come from the snapshot curves once per snapshot (see `sparklines`).
  */
 export async function fetchSeriesOverview(actorId: number | null = null, now = Date.now()): Promise<SeriesOverview> {
   const sequelize = await db();
@@ -119,14 +156,10 @@ export async function fetchSeriesOverview(actorId: number | null = null, now = D
            (SELECT MAX(id) FROM analysis_snapshots x WHERE x.series_id = s.id AND x.status = 'ok') AS snap_id,
            (SELECT indicator FROM alert_rules r WHERE r.series_id = s.id AND r.active = 1 ORDER BY r.id LIMIT 1) AS rule_indicator
          FROM series s WHERE s.retired_at IS NULL)
-       SELECT b.id, b.slug, b.name, b.site, b.unit, b.time_zone, b.interval_ms, b.last_t,
+       SELECT b.id, b.slug, b.name, b.site, b.unit, b.time_zone, b.interval_ms, b.last_t, b.snap_id, b.rule_indicator,
          a.created_at AS snap_created,
          json_extract(a.summary, '$.kendall') AS kendall,
-         json_object(${SURROGATE_P}) AS surrogate_p,
-         COALESCE(CASE WHEN json_type(a.curves, '$.indicators.' || b.rule_indicator) IS NOT NULL THEN b.rule_indicator END,
-                  json_extract(a.settings, '$.indicators[0]')) AS spark_indicator,
-         COALESCE(json_extract(a.curves, '$.indicators.' || b.rule_indicator),
-                  json_extract(a.curves, '$.indicators.' || json_extract(a.settings, '$.indicators[0]'))) AS spark
+         json_object(${SURROGATE_P}) AS surrogate_p
        FROM base b LEFT JOIN analysis_snapshots a ON a.id = b.snap_id
        ORDER BY b.name`,
       { type: QueryTypes.SELECT },
@@ -146,6 +179,7 @@ export async function fetchSeriesOverview(actorId: number | null = null, now = D
     ),
   ]);
 
+  const sparks = await sparklines(series);
   const rulesBySeries = new Map<number, RuleRow[]>();
   for (const rule of rules) rulesBySeries.set(rule.series_id, [...(rulesBySeries.get(rule.series_id) ?? []), rule]);
   const queues: QueueCounts = { triage: 0, escalated: 0, mine: 0, open: 0 };
@@ -168,7 +202,8 @@ export async function fetchSeriesOverview(actorId: number | null = null, now = D
     const surrogate = (s.surrogate_p ? JSON.parse(s.surrogate_p) : {}) as Record<string, number | null>;
     const seriesRules = rulesBySeries.get(s.id) ?? [];
     const names = [...new Set(seriesRules.map((r) => r.indicator))].filter((n): n is IndicatorName => n in kendall);
-    const shown = names.length ? names : s.spark_indicator && s.spark_indicator in kendall ? [s.spark_indicator as IndicatorName] : [];
+    const spark = sparks.get(s.id) ?? null;
+    const shown = names.length ? names : spark && spark.indicator in kendall ? [spark.indicator as IndicatorName] : [];
     const open = openBySeries.get(s.id);
     const passing = seriesRules.filter((r) => Number(r.passed) === 1);
     const state: SeriesState = open
@@ -203,7 +238,7 @@ export async function fetchSeriesOverview(actorId: number | null = null, now = D
           ? { name, tau: kendall[name]?.tau ?? null, p: sp, pKind: 'surrogate', q }
           : { name, tau: kendall[name]?.tau ?? null, p: kendall[name]?.p ?? null, pKind: 'kendall', q };
       }),
-      spark: s.spark && s.spark_indicator ? { indicator: s.spark_indicator, values: sparkline(JSON.parse(s.spark)) } : null,
+      spark,
     };
   });
   const sites = [...new Set(rows.map((r) => r.site).filter(Boolean))].sort();

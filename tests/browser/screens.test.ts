@@ -159,6 +159,29 @@ describe('screens in Chromium', () => {
     await queue.close();
   });
 
+  it('takes in a CSV through the upload flow of the Intake screen (labels from components/intake/UploadPanel.tsx)', async () => {
+    const lead = await signedIn(app.baseUrl, 'lead@brinkwatch.test', DEMO_PASSWORD);
+    const created = await lead.json('/api/series', 'POST', {
+      slug: 'browser-upload-check', name: 'Upload check', site: 'Test bench', intervalMs: 86_400_000,
+      csvMapping: { timeColumn: 'time', valueColumn: 'value', timeFormat: 'iso8601' },
+    });
+    expect(created.status).toBe(201);
+    const lines = ['time,value'];
+    for (let i = 0; i < 40; i++) lines.push(`${new Date(Date.UTC(2025, 0, 1 + i)).toISOString()},${(10 + Math.sin(i / 3)).toFixed(3)}`);
+    const page = await open('lead', '/intake');
+    const panel = page.getByTestId('upload-panel');
+    await panel.waitFor();
+    await panel.getByLabel('Series').selectOption('browser-upload-check');
+    await panel.locator('input[type="file"]').setInputFiles({ name: 'upload-check.csv', mimeType: 'text/csv', buffer: Buffer.from(lines.join('\n') + '\n') });
+    await panel.getByTestId('validation-summary').waitFor({ timeout: 30_000 });
+    await panel.getByRole('button', { name: /^Commit 40 points/ }).click();
+    await expect.poll(() => panel.getByTestId('commit-outcome').textContent(), { timeout: 30_000 }).toMatch(/Run #\d+/);
+    await shot(page, 'intake-upload');
+    await page.close();
+    const extent = await (await lead.fetch('/api/series/browser-upload-check/observations')).json();
+    expect(extent.count).toBe(40);
+  });
+
   it('shows the admin screens and the account page', async () => {
     for (const [role, pathname, name] of [
       ['admin', '/admin', 'admin-users'],
