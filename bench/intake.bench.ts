@@ -22,7 +22,7 @@ export async function run(): Promise<BenchRow[]> {
   for (let i = 0; i < ROWS; i += 10_000) {
     let chunk = '';
     for (let j = i; j < i + 10_000; j++) chunk += `${new Date(FROM + j * 60_000).toISOString()},${(Math.sin(j / 500) * 10).toFixed(4)}\n`;
-    if (!out.write(chunk)) await new Promise((r) => out.once('drain', r));
+    if (!out.write(chunk)) await new Promise<void>((r) => out.once('drain', () => r()));
   }
   await new Promise<void>((r) => out.end(() => r()));
   const sizeMb = fs.statSync(path.join(folder, 'million.csv')).size / 1024 / 1024;
