@@ -1,6 +1,7 @@
 import type { Transaction } from 'sequelize';
 import { AlertRule, AnalysisSnapshot, Series, type Alert } from '@/models';
 import type { AlertEvidence } from '@/lib/mail/templates';
+import { presentRule } from './rules';
 
 /** The parts of a stored snapshot summary that rules and messages read (see lib/analysis/snapshot.ts). */
 export interface StoredSummary {
@@ -50,14 +51,7 @@ export function evidenceFrom(alert: Pick<Alert, 'id' | 'severity'>, series: Seri
     dataFrom: snapshot.dataFrom === null ? null : Number(snapshot.dataFrom),
     dataTo: snapshot.dataTo === null ? null : Number(snapshot.dataTo),
     n: snapshot.n,
-    rule: {
-      minTau: rule.minTau,
-      maxSurrogateP: rule.maxSurrogateP,
-      maxKendallP: rule.maxKendallP,
-      levelThreshold: rule.levelThreshold,
-      levelDirection: rule.levelDirection,
-      persistence: rule.persistence,
-    },
+    rule: presentRule(rule),
   };
 }
 

@@ -1,19 +1,11 @@
-import { SetPasswordForm } from '@/components/SetPasswordForm';
+import { PasswordLinkPage } from '@/components/PasswordLinkPage';
 
 export const metadata = { title: 'Reset password' };
 
 export default async function ResetPage({ params }: { params: Promise<{ token: string }> }) {
   const { token } = await params;
   return (
-    <main className="mx-auto flex min-h-screen max-w-md flex-col justify-center gap-6 px-4">
-      <div>
-        <p className="font-mono text-xs uppercase tracking-widest text-tide">Brinkwatch</p>
-        <h1 className="mt-1 text-2xl font-semibold">Choose a new password</h1>
-        <p className="mt-2 text-sm text-ink-soft">The link works once and for one hour.</p>
-      </div>
-      <div className="rounded-lg border border-rule bg-card p-6 shadow-sm">
-        <SetPasswordForm endpoint={`/api/password-resets/${encodeURIComponent(token)}`} submitLabel="Set the new password" />
-      </div>
-    </main>
+    <PasswordLinkPage heading="Choose a new password" hint="The link works once and for one hour."
+      endpoint={`/api/password-resets/${encodeURIComponent(token)}`} submitLabel="Set the new password" />
   );
 }
