@@ -85,5 +85,5 @@ export function indicatorTableCsv(table: IndicatorTable): string {
       ([name, k]) => `# ${name}: kendall tau ${k?.tau ?? 'NA'}, p ${k?.p ?? 'NA'}, surrogate p ${table.surrogateP[name as IndicatorName] ?? 'NA'}`,
     ),
   ];
-  return `${header.join('\n')}\n${Papa.unparse({ fields: table.columns, data: table.rows.map((r) => r.map((v) => (v === null ? '' : v))) })}\n`;
+  return `${header.join('\n')}\n${Papa.unparse({ fields: table.columns, data: table.rows.map((r) => r.map((v) => (v === null ? '' : v))) }, { newline: '\n' })}\n`;
 }

@@ -1,0 +1,152 @@
+import { beforeAll, describe, expect, it } from 'vitest';
+import { useTempDataDir } from '../support/temp-db';
+
+useTempDataDir('bw-screens-');
+
+import { migrateUp } from '@/migrations';
+import { Alert, AlertRule, AnalysisSnapshot, AuditEntry, Observation, RuleEvaluation, User, db } from '@/models';
+import { createSeries } from '@/lib/series/registry';
+import { refreshSeriesAnalysis } from '@/lib/analysis/snapshot';
+import { fetchSeriesOverview, freshnessOf } from '@/lib/overview';
+import { buildIndicatorTable, indicatorTableCsv } from '@/lib/reports/indicator-export';
+import { previewAnalysis } from '@/lib/analysis/preview';
+import { tauHistogram, thinCurves, viewFromSnapshot } from '@/lib/analysis/view';
+import { changePassword, renameAccount } from '@/lib/account';
+import { fetchAuditPage } from '@/lib/audit-log';
+import { hashPassword, verifyPassword } from '@/lib/auth/password';
+import { simulateAr1 } from '@/lib/demo/models';
+import { analysisSettingsSchema } from '@/lib/engine/settings';
+import { UnprocessableError } from '@/lib/http/errors';
+
+const DAY = 86_400_000;
+const NOW = Date.UTC(2026, 5, 1);
+let analyst: User;
+
+async function seriesWith(slug: string, points: number, lastAt: number, intervalMs: number | null) {
+  const series = await createSeries({ slug, name: slug, site: 'North basin', intervalMs, settings: { window: 0.5, indicators: ['ac1', 'variance'] } }, null);
+  if (points) {
+    const values = simulateAr1({ n: points, phi: 0.6, sigma: 1, mean: 5, seed: series.id });
+    const step = intervalMs ?? DAY;
+    await Observation.bulkCreate(Array.from(values, (value, i) => ({ seriesId: series.id, t: lastAt - (points - 1 - i) * step, value })));
+  }
+  return series;
+}
+
+beforeAll(async () => {
+  await migrateUp();
+  await db();
+  analyst = await User.create({ email: 'a@example.test', name: 'Ana Lyst', role: 'analyst', passwordHash: await hashPassword('first-password-123') });
+});
+
+describe('overview', () => {
+  it('calls a series late after three sampling intervals, or two days when irregular (our documented rule)', () => {
+    expect(freshnessOf(NOW - 3 * DAY, DAY, NOW)).toBe('fresh');
+    expect(freshnessOf(NOW - 3 * DAY - 1, DAY, NOW)).toBe('late');
+    expect(freshnessOf(NOW - 2 * DAY, null, NOW)).toBe('fresh');
+    expect(freshnessOf(NOW - 2 * DAY - 1, null, NOW)).toBe('late');
+    expect(freshnessOf(null, DAY, NOW)).toBe('no-data');
+  });
+
+  it('derives state from open alerts and the latest rule evaluations, and counts the queues', async () => {
+    const alerting = await seriesWith('ov-alerting', 200, NOW - DAY, DAY);
+    const warning = await seriesWith('ov-warning', 200, NOW - 10 * DAY, DAY);
+    const quiet = await seriesWith('ov-quiet', 200, NOW, DAY);
+    await seriesWith('ov-empty', 0, NOW, DAY);
+    const snapshots = new Map<number, AnalysisSnapshot>();
+    for (const s of [alerting, warning, quiet]) snapshots.set(s.id, await refreshSeriesAnalysis(s, { parallel: false }));
+    const rule = async (seriesId: number, severity: 'watch' | 'warning', passed: boolean) => {
+      const r = await AlertRule.create({ seriesId, indicator: 'ac1', minTau: 0.3, maxSurrogateP: null, maxKendallP: null, levelThreshold: null, severity, fdrLevel: null, createdBy: null });
+      await RuleEvaluation.create({ ruleId: r.id, seriesId, snapshotId: snapshots.get(seriesId)!.id, tau: 0.5, kendallP: 0.01, surrogateP: null, qValue: null, level: null, passed, streak: 1, alertId: null });
+      return r;
+    };
+    const alertRule = await rule(alerting.id, 'watch', true);
+    await rule(warning.id, 'warning', true);
+    await rule(quiet.id, 'warning', false);
+    const snap = snapshots.get(alerting.id)!.id;
+    await Alert.create({ seriesId: alerting.id, ruleId: alertRule.id, state: 'escalated', severity: 'watch', assigneeId: analyst.id, firstSnapshotId: snap, latestSnapshotId: snap, peakTau: 0.5, dismissReason: null, closedAt: null });
+    await Alert.create({ seriesId: alerting.id, ruleId: alertRule.id, state: 'dismissed', severity: 'watch', assigneeId: null, firstSnapshotId: snap, latestSnapshotId: snap, peakTau: 0.5, dismissReason: 'statistical-fluke', closedAt: new Date() });
+
+    const overview = await fetchSeriesOverview(analyst.id, NOW);
+    const bySlug = Object.fromEntries(overview.rows.map((r) => [r.slug, r]));
+    expect(bySlug['ov-alerting']).toMatchObject({ state: 'alert', openAlerts: 1, freshness: 'fresh' });
+    expect(bySlug['ov-warning']).toMatchObject({ state: 'warning', freshness: 'late' });
+    expect(bySlug['ov-quiet']).toMatchObject({ state: 'quiet', freshness: 'fresh' });
+    expect(bySlug['ov-empty']).toMatchObject({ state: 'not-analysed', freshness: 'no-data', spark: null });
+    expect(overview.queues).toEqual({ triage: 0, escalated: 1, mine: 1, open: 1 });
+    // tau shown is the snapshot's own Kendall tau for the rule's indicator, and the sparkline is its curve
+    const summary = snapshots.get(quiet.id)!.summary as { kendall: Record<string, { tau: number }> };
+    expect(bySlug['ov-quiet'].indicators).toEqual([{ name: 'ac1', tau: summary.kendall.ac1.tau, p: expect.any(Number), pKind: 'kendall', q: null }]);
+    expect(bySlug['ov-quiet'].spark?.indicator).toBe('ac1');
+    expect(bySlug['ov-quiet'].spark?.values.length).toBe(60);
+  });
+});
+
+describe('analysis views and exports', () => {
+  it('keeps every k-th point and the last one when thinning, and bins every surrogate tau once', () => {
+    const n = 4999;
+    const curves = { stride: 1, time: Array.from({ length: n }, (_, i) => i), value: [], trend: [], residual: [], indicators: { ac1: Array.from({ length: n }, (_, i) => i) }, surrogateTaus: {}, sensitivity: null };
+    const thin = thinCurves({ ...curves, value: curves.time, trend: curves.time, residual: curves.time }, 2000);
+    expect(thin.stride).toBe(3);
+    expect(thin.time[1]).toBe(3);
+    expect(thin.time[thin.time.length - 1]).toBe(n - 1);
+    expect(thin.time.length).toBeLessThanOrEqual(2000);
+    const taus = Array.from({ length: 199 }, (_, i) => -0.9 + (1.8 * i) / 198);
+    const bins = tauHistogram(taus, 0.95);
+    expect(bins.length).toBe(15); // ⌈√199⌉ = 15, square-root choice (common practice)
+    expect(bins.reduce((sum, b) => sum + b.count, 0)).toBe(199);
+    expect(bins[bins.length - 1].to).toBeCloseTo(0.95, 12);
+  });
+
+  it('reproduces the latest snapshot at full resolution in the indicator table, with its settings in the CSV', async () => {
+    const series = await seriesWith('export-check', 3000, NOW, DAY);
+    const snapshot = await refreshSeriesAnalysis(series, { parallel: false });
+    const table = await buildIndicatorTable(series);
+    expect(table.source).toBe('snapshot');
+    expect(table.rows.length).toBe(3000);
+    const view = viewFromSnapshot(snapshot)!;
+    expect(view.curves.stride).toBe(2);
+    const ac1 = table.columns.indexOf('ac1');
+    view.curves.time.forEach((t, k) => {
+      const row = table.rows[Math.min(k * view.curves.stride, 2999)];
+      expect(row[0]).toBe(new Date(t).toISOString());
+      const stored = view.curves.indicators.ac1![k];
+      if (stored === null) expect(row[ac1]).toBeNull();
+      else expect(row[ac1]).toBeCloseTo(stored, 12);
+    });
+    const csv = indicatorTableCsv(table);
+    expect(csv.split('\n')[2]).toBe(`# settings ${JSON.stringify(table.settings)}`);
+    expect(csv).toContain('\ntime_utc,value,trend,residual,variance,ac1\n');
+  });
+
+  it('previews other settings without saving them and caps surrogates at 199', async () => {
+    const series = await seriesWith('preview-check', 400, NOW, DAY);
+    const before = await AnalysisSnapshot.count();
+    const view = await previewAnalysis(series, analysisSettingsSchema.parse({ window: 0.3, surrogates: 5000, indicators: ['ac1'] }));
+    expect(await AnalysisSnapshot.count()).toBe(before);
+    expect(view.windowPoints).toBe(Math.round(0.3 * 400));
+    expect(view.significance.ac1?.count).toBe(199);
+    await expect(previewAnalysis(series, analysisSettingsSchema.parse({ window: 0.01 }))).rejects.toBeInstanceOf(UnprocessableError);
+  });
+});
+
+describe('account and audit', () => {
+  const actor = () => ({ id: analyst.id, email: analyst.email, name: analyst.name, role: analyst.role });
+
+  it('changes a password only with the current one, and audits both changes', async () => {
+    await expect(changePassword(actor(), { currentPassword: 'wrong-password-000', newPassword: 'second-password-456' })).rejects.toBeInstanceOf(UnprocessableError);
+    await changePassword(actor(), { currentPassword: 'first-password-123', newPassword: 'second-password-456' });
+    await analyst.reload();
+    expect(await verifyPassword('second-password-456', analyst.passwordHash)).toBe(true);
+    await renameAccount(actor(), { name: 'Ana L.' });
+    const actions = (await AuditEntry.findAll({ where: { actorId: analyst.id } })).map((e) => e.action);
+    expect(actions).toEqual(expect.arrayContaining(['account.password-change', 'account.rename']));
+  });
+
+  it('pages the audit log newest first', async () => {
+    const all = await fetchAuditPage({ page: 1, pageSize: 200 });
+    const page2 = await fetchAuditPage({ page: 2, pageSize: 3 });
+    expect(page2.total).toBe(all.total);
+    expect(page2.items.map((i) => i.id)).toEqual(all.items.slice(3, 6).map((i) => i.id));
+    expect(all.items[0].id).toBeGreaterThan(all.items[1].id);
+  });
+});
