@@ -6,7 +6,7 @@ import path from 'node:path';
 const ROOT = process.cwd();
 /** Everything that changes what `next build` produces. */
 const BUILD_INPUTS = ['app', 'components', 'lib', 'models', 'migrations', 'types', 'proxy.ts', 'next.config.mjs',
-  'tailwind.config.ts', 'postcss.config.mjs', 'tsconfig.json', 'package-lock.json'];
+  'tailwind.config.ts', 'postcss.config.mjs', 'package-lock.json'];
 
 function distDir(): string {
   return path.join(ROOT, process.env.NEXT_DIST_DIR || '.next');
@@ -41,17 +41,19 @@ function sleep(ms: number): Promise<void> {
 /**
  * Runs `next build` when the production build is missing or older than the sources. A lock directory keeps
  * concurrent callers (test files in parallel, a start beside a test) from building over each other.
+ * `distDirName` (relative to the project) builds elsewhere than `.next`, e.g. one folder per source digest.
  */
-export async function buildIfNeeded(log: (line: string) => void = console.log): Promise<void> {
-  const stamp = path.join(distDir(), 'brinkwatch-source-digest');
-  const lock = path.join(ROOT, '.next-build-lock');
+export async function buildIfNeeded(log: (line: string) => void = console.log, distDirName?: string): Promise<void> {
+  const target = distDirName ? path.join(ROOT, distDirName) : distDir();
+  const stamp = path.join(target, 'brinkwatch-source-digest');
+  const lock = `${target}.build-lock`;
   for (;;) {
     const digest = sourceDigest();
-    if (fs.existsSync(stamp) && fs.readFileSync(stamp, 'utf8') === digest && fs.existsSync(path.join(distDir(), 'BUILD_ID'))) return;
+    if (fs.existsSync(stamp) && fs.readFileSync(stamp, 'utf8') === digest && fs.existsSync(path.join(target, 'BUILD_ID'))) return;
     try {
-      fs.mkdirSync(lock);
+      fs.mkdirSync(lock, { recursive: false });
     } catch {
-      const age = Date.now() - fs.statSync(lock, { throwIfNoEntry: false })!.mtimeMs;
+      const age = Date.now() - (fs.statSync(lock, { throwIfNoEntry: false })?.mtimeMs ?? Date.now());
       if (age > 15 * 60 * 1000) fs.rmSync(lock, { recursive: true, force: true });
       await sleep(1000);
       continue;
@@ -61,7 +63,7 @@ export async function buildIfNeeded(log: (line: string) => void = console.log): 
       const result = spawnSync(process.execPath, [path.join(ROOT, 'node_modules/next/dist/bin/next'), 'build'], {
         cwd: ROOT,
         stdio: ['ignore', 'pipe', 'pipe'],
-        env: { ...process.env, NEXT_TELEMETRY_DISABLED: '1' },
+        env: { ...process.env, NEXT_TELEMETRY_DISABLED: '1', NEXT_DIST_DIR: path.relative(ROOT, target) },
         encoding: 'utf8',
         maxBuffer: 64 * 1024 * 1024,
       });
@@ -74,4 +76,22 @@ export async function buildIfNeeded(log: (line: string) => void = console.log): 
       fs.rmSync(lock, { recursive: true, force: true });
     }
   }
+}
+
+/**
+ * For tests: a build folder per source digest under `.next-builds/`, so a rebuild after an edit never replaces
+ * the files under a server that is still running. Folders older than an hour are removed. Returns the folder name.
+ */
+export async function buildForDigest(): Promise<string> {
+  const parent = path.join(ROOT, '.next-builds');
+  fs.mkdirSync(parent, { recursive: true });
+  const name = path.join('.next-builds', sourceDigest().slice(0, 16));
+  for (const entry of fs.readdirSync(parent)) {
+    const full = path.join(parent, entry);
+    if (full !== path.join(ROOT, name) && Date.now() - fs.statSync(full).mtimeMs > 60 * 60 * 1000) {
+      fs.rmSync(full, { recursive: true, force: true });
+    }
+  }
+  await buildIfNeeded(() => undefined, name);
+  return name;
 }

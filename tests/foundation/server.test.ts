@@ -110,7 +110,7 @@ describe('the started product', () => {
       console.log(await User.count());
       await closeDatabase();`);
     expect(count.trim()).toBe('4');
-  });
+  }, 900_000); // the restart rebuilds first when sources changed since the first start
 });
 
 /** Runs a snippet against the app's database in a separate process (as an operator would with a script). */

@@ -3,7 +3,7 @@ import fs from 'node:fs';
 import net from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
-import { buildIfNeeded } from '@/lib/runtime/build';
+import { buildForDigest } from '@/lib/runtime/build';
 
 const ROOT = path.resolve(__dirname, '../..');
 
@@ -44,7 +44,7 @@ export const DEMO_PASSWORD = 'test-password-123';
  * loopback ports and a temp DATA_DIR, and waits until /api/health answers.
  */
 export async function startApp(options: StartOptions = {}): Promise<RunningApp> {
-  await buildIfNeeded(() => undefined);
+  const distDir = await buildForDigest();
   const dataDir = options.dataDir ?? fs.mkdtempSync(path.join(os.tmpdir(), 'bw-app-'));
   const port = await freePort();
   const mailSinkPort = await freePort();
@@ -64,6 +64,7 @@ export async function startApp(options: StartOptions = {}): Promise<RunningApp> 
       DEMO_PASSWORD,
       SEED_DEMO: options.demo ? '1' : '0',
       SKIP_BUILD: '1',
+      NEXT_DIST_DIR: distDir,
       START_SCHEDULER: options.scheduler === false ? '0' : '1',
       ...options.env,
     },
