@@ -110,40 +110,28 @@ export function rollingIndicators(
   let rawMean = opts.rawMean;
   if (!rawMean && names.includes('cv')) rawMean = windowMoments(opts.raw ?? residual, w).mean;
   const out = {} as Record<IndicatorName, Float64Array>;
-  const at = w - 1;
-  // One plain loop per indicator, no closures or branching on the name inside, so each compiles tight.
-  for (const name of names) {
-    const a = new Float64Array(n).fill(Number.NaN);
-    switch (name) {
-      case 'variance':
-        for (let s = 0; s < count; s++) a[s + at] = m2[s] / (w - 1);
-        break;
-      case 'sd':
-        for (let s = 0; s < count; s++) a[s + at] = Math.sqrt(m2[s] / (w - 1));
-        break;
-      case 'cv':
-        for (let s = 0; s < count; s++) {
-          const v = Math.sqrt(m2[s] / (w - 1)) / Math.abs(rawMean![s]);
-          a[s + at] = Number.isFinite(v) ? v : Number.NaN;
-        }
-        break;
-      case 'ac1':
-        for (let s = 0; s < count; s++) if (m2[s] > 0) a[s + at] = lag[s] / m2[s];
-        break;
-      case 'skewness':
-        for (let s = 0; s < count; s++) if (m2[s] > 0) a[s + at] = m3[s] / w / Math.pow(m2[s] / w, 1.5);
-        break;
-      case 'kurtosis':
-        for (let s = 0; s < count; s++) if (m2[s] > 0) a[s + at] = m4[s] / w / ((m2[s] / w) * (m2[s] / w)) - 3;
-        break;
-      case 'recovery':
-        for (let s = 0; s < count; s++) {
-          const ac = lag[s] / m2[s];
-          if (m2[s] > 0 && ac > 0) a[s + at] = -Math.log(ac) / opts.dt;
-        }
-        break;
+  const want = (name: IndicatorName) => (names.includes(name) ? (out[name] = new Float64Array(n).fill(Number.NaN)) : null);
+  const variance = want('variance'), sd = want('sd'), cv = want('cv'), ac1 = want('ac1');
+  const skewness = want('skewness'), kurtosis = want('kurtosis'), recovery = want('recovery');
+  const dt = opts.dt;
+  // One loop for all indicators (the tests on loop-invariant nulls are predictable), so it is compiled once.
+  for (let s = 0; s < count; s++) {
+    const i = s + w - 1;
+    const M2 = m2[s];
+    const v = M2 / (w - 1);
+    if (variance) variance[i] = v;
+    if (sd) sd[i] = Math.sqrt(v);
+    if (cv) {
+      const c = Math.sqrt(v) / Math.abs(rawMean![s]);
+      if (Number.isFinite(c)) cv[i] = c;
     }
-    out[name] = a;
+    if (!(M2 > 0)) continue;
+    const a = lag[s] / M2;
+    if (ac1) ac1[i] = a;
+    const q = M2 / w;
+    if (skewness) skewness[i] = m3[s] / w / (q * Math.sqrt(q));
+    if (kurtosis) kurtosis[i] = m4[s] / w / (q * q) - 3;
+    if (recovery && a > 0) recovery[i] = -Math.log(a) / dt;
   }
   return out;
 }
