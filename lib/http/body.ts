@@ -6,11 +6,11 @@ export const JSON_BODY_LIMIT = 1024 * 1024;
 /** Deeper nesting than any of our schemas needs is refused before it reaches zod. */
 const MAX_JSON_DEPTH = 20;
 
-/** Reads the body as text, refusing it once it passes `limit` bytes (also when Content-Length lies or is absent). */
-export async function readLimitedText(request: Request, limit: number): Promise<string> {
+/** Reads the body's bytes, refusing it once it passes `limit` bytes (also when Content-Length lies or is absent). */
+export async function readLimitedBytes(request: Request, limit: number): Promise<Buffer> {
   const declared = Number(request.headers.get('content-length') || 0);
   if (declared > limit) throw new PayloadTooLargeError(limit);
-  if (!request.body) return '';
+  if (!request.body) return Buffer.alloc(0);
   const reader = request.body.getReader();
   const chunks: Uint8Array[] = [];
   let total = 0;
@@ -24,7 +24,12 @@ export async function readLimitedText(request: Request, limit: number): Promise<
     }
     chunks.push(value);
   }
-  return Buffer.concat(chunks).toString('utf8');
+  return Buffer.concat(chunks);
+}
+
+/** The body as UTF-8 text, within `limit` bytes (see readLimitedBytes). */
+export async function readLimitedText(request: Request, limit: number): Promise<string> {
+  return (await readLimitedBytes(request, limit)).toString('utf8');
 }
 
 function depthOf(value: unknown, depth = 0): number {

@@ -66,6 +66,22 @@ function concatBytes(a: Uint8Array, b: Uint8Array): Uint8Array {
   return out;
 }
 
+/** The encoding a leading byte order mark names (Unicode Standard, ch. 23.8 "Specials": EF BB BF, FF FE, FE FF); UTF-8 without one. */
+export function byteOrderMark(head: Uint8Array): { bom: boolean; encoding: CsvLayout['encoding'] } {
+  if (head[0] === 0xef && head[1] === 0xbb && head[2] === 0xbf) return { bom: true, encoding: 'utf-8' };
+  if (head[0] === 0xff && head[1] === 0xfe) return { bom: true, encoding: 'utf-16le' };
+  if (head[0] === 0xfe && head[1] === 0xff) return { bom: true, encoding: 'utf-16be' };
+  return { bom: false, encoding: 'utf-8' };
+}
+
+/**
+ * A whole CSV body already in memory (push, upload) as text, in the encoding its byte order mark names, so those
+ * paths read UTF-16 exports exactly as drop folders do. The mark is kept, so the reader still reports it.
+ */
+export function decodeCsvBytes(bytes: Uint8Array): string {
+  return new TextDecoder(byteOrderMark(bytes).encoding, { ignoreBOM: true }).decode(bytes);
+}
+
 /**
  * Decodes the input to text. The byte order mark picks the encoding (UTF-8 without one), and is dropped; gzip and
  * zip signatures are refused with a message, since such a file is an archive of a CSV rather than a CSV.
@@ -96,9 +112,9 @@ async function* decode(input: CsvInput, layout: Pick<CsvLayout, 'encoding' | 'bo
   if (head[0] === 0x50 && head[1] === 0x4b && head[2] === 0x03 && head[3] === 0x04) {
     throw new CsvFileError('compressed', 'The file is a zip archive (or a spreadsheet such as .xlsx). Export or unpack it as CSV text.');
   }
-  if (head[0] === 0xef && head[1] === 0xbb && head[2] === 0xbf) layout.bom = true;
-  else if (head[0] === 0xff && head[1] === 0xfe) [layout.bom, layout.encoding] = [true, 'utf-16le'];
-  else if (head[0] === 0xfe && head[1] === 0xff) [layout.bom, layout.encoding] = [true, 'utf-16be'];
+  const mark = byteOrderMark(head);
+  layout.bom = mark.bom;
+  layout.encoding = mark.encoding;
   const decoder = new TextDecoder(layout.encoding);
   if (head.length) yield decoder.decode(head, { stream: true });
   for (let next = await source.next(); !next.done; next = await source.next()) {

@@ -1,5 +1,6 @@
 import { PayloadTooLargeError, UnprocessableError, UnsupportedMediaTypeError } from '@/lib/http/errors';
-import { isJsonContentType, readLimitedText } from '@/lib/http/body';
+import { isJsonContentType, readLimitedBytes, readLimitedText } from '@/lib/http/body';
+import { decodeCsvBytes } from './csv';
 import { pushedObservationsSchema, uploadMappingSchema, type PushedObservation, type UploadMapping } from '@/lib/schemas/observation';
 import { contentHashOf } from './content-hash';
 
@@ -34,8 +35,8 @@ export async function readIntakeBody(request: Request, options: { allowJson: boo
   const type = (request.headers.get('content-type') || '').toLowerCase();
   const queryMapping = new URL(request.url).searchParams.get('mapping');
   if (type.startsWith('text/csv') || type.startsWith('text/plain')) {
-    const csv = await readLimitedText(request, INTAKE_BODY_LIMIT);
-    return { csv, fileName: null, contentHash: contentHashOf(csv), mapping: parseMapping(queryMapping) };
+    const bytes = await readLimitedBytes(request, INTAKE_BODY_LIMIT);
+    return { csv: decodeCsvBytes(bytes), fileName: null, contentHash: contentHashOf(bytes), mapping: parseMapping(queryMapping) };
   }
   if (type.startsWith('multipart/form-data')) {
     const raw = await readLimitedText(request, INTAKE_BODY_LIMIT + 64 * 1024);
@@ -48,7 +49,7 @@ export async function readIntakeBody(request: Request, options: { allowJson: boo
     const bytes = new Uint8Array(await file.arrayBuffer());
     const mappingPart = form.get('mapping');
     return {
-      csv: new TextDecoder().decode(bytes),
+      csv: decodeCsvBytes(bytes),
       fileName: file.name || null,
       contentHash: contentHashOf(bytes),
       mapping: parseMapping(typeof mappingPart === 'string' ? mappingPart : queryMapping),
