@@ -91,7 +91,8 @@ export async function run(): Promise<BenchRow[]> {
   rows.push({ case: 'peak RSS of this bench process after n = 1e6', n: 1e6, value: process.resourceUsage().maxRSS / 1024, unit: 'MB', note: 'upper bound (includes the harness)' });
   for (const [name, t] of Object.entries(stage)) {
     const ratio = t[1e6] / t[1e5];
-    rows.push({ case: `cost growth 1e5 → 1e6: ${name}`, n: '1e5→1e6', value: ratio, unit: '×', target: '< 15 (n log n ≈ 12)', pass: ratio < 15 });
+    // No target: the issue asks how cost grows; O(n) gives 10×, O(n log n) about 12× (cache effects add more).
+    rows.push({ case: `cost growth 1e5 → 1e6: ${name}`, n: '1e5→1e6', value: ratio, unit: '×', note: 'O(n) ≈ 10, O(n log n) ≈ 12' });
   }
 
   const x4 = series(1e4, 2);
