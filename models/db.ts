@@ -1,6 +1,6 @@
 import fs from 'node:fs';
 import path from 'node:path';
-import sqlite3 from 'sqlite3';
+import sqlite3, { type Database } from 'sqlite3';
 import { Sequelize, Transaction } from 'sequelize';
 import { busyTimeoutMs, databasePath } from '@/lib/config';
 
@@ -77,4 +77,21 @@ export async function closeDatabase(): Promise<void> {
 export async function writeTransaction<T>(work: (transaction: Transaction) => Promise<T>): Promise<T> {
   const sequelize = await databaseReady();
   return sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, work);
+}
+
+/**
+ * The process's shared sqlite3 handle, for hot reads of many rows (observation ranges) where building a Sequelize
+ * result per row costs more than the query itself.
+ */
+export async function rawReadConnection(): Promise<Database> {
+  const sequelize = await databaseReady();
+  const manager = sequelize.connectionManager as unknown as { getConnection(options: { uuid: string }): Promise<Database> };
+  return manager.getConnection({ uuid: 'default' });
+}
+
+/** `Database#all` as a promise. */
+export function allRows<T>(connection: Database, sql: string, params: unknown[]): Promise<T[]> {
+  return new Promise((resolve, reject) =>
+    connection.all(sql, params, (error, rows) => (error ? reject(error) : resolve(rows as T[]))),
+  );
 }

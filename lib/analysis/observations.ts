@@ -1,5 +1,6 @@
 import { QueryTypes } from 'sequelize';
 import { db } from '@/models';
+import { allRows, rawReadConnection } from '@/models/db';
 
 export interface ObservationRange {
   from?: number;
@@ -9,17 +10,28 @@ export interface ObservationRange {
 
 /**
  * A series' observations in time order as typed arrays (UTC ms, value): what the engine takes. One indexed range
- * scan of the (series_id, t) primary key; raw rows rather than model instances because records run to millions.
+ * scan of the (series_id, t) primary key, on the raw sqlite3 handle because records run to millions of rows.
  */
 export async function loadObservations(seriesId: number, range: ObservationRange = {}): Promise<{ time: Float64Array; value: Float64Array }> {
-  const sequelize = await db();
-  const clauses = ['series_id = :seriesId'];
-  if (range.from !== undefined) clauses.push('t >= :from');
-  if (range.to !== undefined) clauses.push('t <= :to');
-  const limit = range.limit !== undefined ? ' LIMIT :limit' : '';
-  const rows = await sequelize.query<{ t: number; value: number }>(
+  const clauses = ['series_id = ?'];
+  const params: unknown[] = [seriesId];
+  if (range.from !== undefined) {
+    clauses.push('t >= ?');
+    params.push(range.from);
+  }
+  if (range.to !== undefined) {
+    clauses.push('t <= ?');
+    params.push(range.to);
+  }
+  let limit = '';
+  if (range.limit !== undefined) {
+    limit = ' LIMIT ?';
+    params.push(range.limit);
+  }
+  const rows = await allRows<{ t: number; value: number }>(
+    await rawReadConnection(),
     `SELECT t, value FROM observations WHERE ${clauses.join(' AND ')} ORDER BY t${limit}`,
-    { replacements: { seriesId, ...range }, type: QueryTypes.SELECT, raw: true },
+    params,
   );
   const time = new Float64Array(rows.length);
   const value = new Float64Array(rows.length);

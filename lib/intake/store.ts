@@ -1,5 +1,6 @@
 import type { Transaction } from 'sequelize';
 import type { Database, Statement } from 'sqlite3';
+import { allRows as all } from '@/models/db';
 import type { CollectedRows, RejectedRow } from './rows';
 
 /** Rows per multi-row INSERT: 500 × 3 parameters stays far below SQLite's variable limit and amortises each call. */
@@ -14,10 +15,6 @@ export const ROW_CONFLICT = 3;
 /** The raw sqlite3 handle of a Sequelize transaction: statements on it run inside that transaction. */
 export function connectionOf(transaction: Transaction): Database {
   return (transaction as unknown as { connection: Database }).connection;
-}
-
-function all<T>(conn: Database, sql: string, params: unknown[]): Promise<T[]> {
-  return new Promise((resolve, reject) => conn.all(sql, params, (error, rows) => (error ? reject(error) : resolve(rows as T[]))));
 }
 
 function prepare(conn: Database, sql: string): Promise<Statement> {
