@@ -84,7 +84,8 @@ export async function refreshSeriesAnalysis(series: Series, options: { parallel?
   let range: { from?: number } = {};
   if (settings.spanPoints !== null && intervalMs !== undefined) {
     const extent = await observationExtent(series.id);
-    // One interval of slack so the engine's own span cut, not the read, decides the first grid point.
+    // spanPoints intervals before the last reading cover spanPoints + 1 grid points: one to spare, so the engine's
+    // own span cut (after gridding), not this read, decides where the span starts.
     if (extent.last !== null) range = { from: extent.last - settings.spanPoints * intervalMs };
   }
   const observations = await loadObservations(series.id, range);

@@ -77,12 +77,8 @@ export async function deliverDueMail(now = Date.now()): Promise<SendReport> {
   const report: SendReport = { claimed: rows.length, sent: 0, failed: 0 };
   if (!rows.length) return report;
   const policy = mailRetryPolicy();
-  const transport = nodemailer.createTransport(smtpUrl(), {
-    // Fail fast when the server is down; the next pass retries.
-    connectionTimeout: 5000,
-    greetingTimeout: 5000,
-    socketTimeout: 15000,
-  } as nodemailer.TransportOptions);
+  // Fail fast when the server is down; the next pass retries.
+  const transport = nodemailer.createTransport({ url: smtpUrl(), connectionTimeout: 5000, greetingTimeout: 5000, socketTimeout: 15000 });
   try {
     for (const row of rows) {
       const attempts = row.attempts + 1;
