@@ -66,7 +66,8 @@ export async function fetchSeriesDetail(slug: string) {
   const series = await findSeriesBySlug(slug);
   const [extent, latest] = await Promise.all([
     observationExtent(series.id),
-    AnalysisSnapshot.findOne({ where: { seriesId: series.id }, order: [['id', 'DESC']] }),
+    // Without the per-point curves (hundreds of kB on a long record): this answer only carries the summary.
+    AnalysisSnapshot.findOne({ where: { seriesId: series.id }, order: [['id', 'DESC']], attributes: { exclude: ['curves'] } }),
   ]);
   return {
     ...presentSeries(series),
