@@ -2,7 +2,7 @@ import { Op } from 'sequelize';
 import { AnalysisSnapshot, Series, db } from '@/models';
 import { cronSetting } from '@/lib/config';
 import { withLease } from '@/lib/leases';
-import { refreshSeriesAnalysis } from '@/lib/analysis/snapshot';
+import { pruneSnapshotCurves, refreshSeriesAnalysis, unjudgedLatestSnapshots } from '@/lib/analysis/snapshot';
 import { evaluateSnapshots } from '@/lib/alerts/evaluate';
 import type { ScheduledJob } from './types';
 
@@ -12,8 +12,8 @@ const LEASE_MS = 10 * 60_000;
 /**
  * One analysis cycle: every series marked `needsAnalysis` gets a fresh snapshot, under a per-series lease so two
  * schedulers never analyse one series at once. The flag is cleared only if no data arrived while the engine ran
- * (dataChangedAt unchanged); otherwise the next cycle analyses again. All fresh snapshots are then judged
- * together by the alert rules.
+ * (dataChangedAt unchanged); otherwise the next cycle analyses again. All fresh snapshots, plus any latest
+ * snapshot a rule has not judged yet (a crash before evaluation, a rule added since), are then judged together.
  */
 export async function runAnalysisCycle(): Promise<{ analysed: number; snapshots: AnalysisSnapshot[] }> {
   await db();
@@ -29,11 +29,15 @@ export async function runAnalysisCycle(): Promise<{ analysed: number; snapshots:
         { needsAnalysis: false },
         { where: { id, needsAnalysis: true, dataChangedAt: seen === null ? { [Op.is]: null } : seen } },
       );
+      await pruneSnapshotCurves(id);
       return result;
     });
     if (snapshot) fresh.push(snapshot);
   }
-  if (fresh.length) await evaluateSnapshots(fresh);
+  const freshIds = new Set(fresh.map((s) => s.id));
+  const pending = (await unjudgedLatestSnapshots()).filter((s) => !freshIds.has(s.id));
+  const judged = [...fresh, ...pending];
+  if (judged.length) await evaluateSnapshots(judged);
   return { analysed: fresh.length, snapshots: fresh };
 }
 

@@ -1,3 +1,4 @@
+import { QueryTypes } from 'sequelize';
 import { AnalysisSnapshot, db, type Series } from '@/models';
 import { analysisSettingsSchema } from '@/lib/engine/settings';
 import { runAnalysis, summarizeAnalysis, type AnalysisResult } from '@/lib/engine/analyze';
@@ -121,4 +122,46 @@ export async function refreshSeriesAnalysis(series: Series, options: { parallel?
       durationMs: Math.round(performance.now() - started),
     });
   }
+}
+
+/** Snapshots per series that keep their curves besides those an alert points at (its first and latest evidence). */
+export const CURVES_KEPT = 5;
+
+/**
+ * Drops the curves of a series' older snapshots (summary, settings and numbers stay): a series re-analysed every
+ * few minutes would otherwise store megabytes of chart data a day. Kept: the newest CURVES_KEPT snapshots and
+ * every snapshot an alert names as its first or latest evidence. Returns how many were thinned out.
+ */
+export async function pruneSnapshotCurves(seriesId: number): Promise<number> {
+  const sequelize = await db();
+  const thinned = await sequelize.query<{ id: number }>(
+    `UPDATE analysis_snapshots SET curves = NULL
+     WHERE series_id = :seriesId AND curves IS NOT NULL
+       AND id < (SELECT id FROM analysis_snapshots WHERE series_id = :seriesId ORDER BY id DESC LIMIT 1 OFFSET :offset)
+       AND id NOT IN (SELECT first_snapshot_id FROM alerts WHERE series_id = :seriesId
+                      UNION SELECT latest_snapshot_id FROM alerts WHERE series_id = :seriesId)
+     RETURNING id`,
+    { replacements: { seriesId, offset: CURVES_KEPT - 1 }, type: QueryTypes.SELECT },
+  );
+  return thinned.length;
+}
+
+/**
+ * The latest snapshot of each live series when some active rule of that series has not judged it yet: after a
+ * crash between analysis and evaluation, or when a lead adds a rule, the evidence at hand is judged on the next
+ * cycle without waiting for new data. One indexed lookup per series.
+ */
+export async function unjudgedLatestSnapshots(): Promise<AnalysisSnapshot[]> {
+  const sequelize = await db();
+  const rows = await sequelize.query<{ id: number }>(
+    `SELECT latest.id FROM (
+       SELECT (SELECT a.id FROM analysis_snapshots a WHERE a.series_id = s.id ORDER BY a.id DESC LIMIT 1) AS id, s.id AS series_id
+       FROM series s WHERE s.retired_at IS NULL) latest
+     JOIN analysis_snapshots snap ON snap.id = latest.id AND snap.status = 'ok'
+     WHERE EXISTS (SELECT 1 FROM alert_rules r WHERE r.series_id = latest.series_id AND r.active = 1
+                   AND NOT EXISTS (SELECT 1 FROM rule_evaluations e WHERE e.rule_id = r.id AND e.snapshot_id = latest.id))`,
+    { type: QueryTypes.SELECT },
+  );
+  if (!rows.length) return [];
+  return AnalysisSnapshot.findAll({ where: { id: rows.map((r) => r.id) }, attributes: { exclude: ['curves'] } });
 }

@@ -6,11 +6,12 @@ useTempDataDir();
 import { migrateUp } from '@/migrations';
 import { Alert, AnalysisSnapshot, Observation, Series, db } from '@/models';
 import { acquireLease, releaseLease } from '@/lib/leases';
-import { curvesOf, refreshSeriesAnalysis, thinnedIndices } from '@/lib/analysis/snapshot';
+import { CURVES_KEPT, curvesOf, pruneSnapshotCurves, refreshSeriesAnalysis, thinnedIndices } from '@/lib/analysis/snapshot';
 import { runAnalysis } from '@/lib/engine/analyze';
 import { analysisSettingsSchema } from '@/lib/engine/settings';
 import { runAnalysisCycle } from '@/jobs/analysis';
-import { makeRule, makeSeries, makeUser } from './helpers';
+import { evaluateSnapshots } from '@/lib/alerts/evaluate';
+import { makeRule, makeSeries, makeSnapshot, makeUser } from './helpers';
 import { foldRecord } from './fold';
 
 beforeAll(async () => {
@@ -115,3 +116,32 @@ describe('the analysis cycle', () => {
     expect(series.needsAnalysis).toBe(false);
   });
 });
+
+describe('snapshot housekeeping', () => {
+  it('keeps curves on the newest snapshots and on those alerts point at, and drops the rest', async () => {
+    const lead = await makeUser('lead');
+    const series = await makeSeries();
+    await makeRule(series, lead);
+    const snapshots = [];
+    for (let k = 0; k < 9; k++) {
+      const snapshot = await makeSnapshot(series, { tau: k === 1 ? 0.6 : 0.1, surrogateP: 0.01 });
+      await snapshot.update({ curves: { stride: 1, time: [k] } });
+      snapshots.push(snapshot);
+    }
+    const { opened } = await evaluateSnapshots([snapshots[1]]);
+    expect(opened).toHaveLength(1);
+    expect(await pruneSnapshotCurves(series.id)).toBe(9 - CURVES_KEPT - 1);
+    const kept = (await AnalysisSnapshot.findAll({ where: { seriesId: series.id }, order: [['id', 'ASC']] })).map((s) => s.curves !== null);
+    expect(kept).toEqual([false, true, false, false, true, true, true, true, true]);
+  });
+
+  it('judges, on the next cycle, a latest snapshot that a rule has not judged yet', async () => {
+    const lead = await makeUser('lead');
+    const series = await makeSeries();
+    const snapshot = await makeSnapshot(series, { tau: 0.6, surrogateP: 0.01 });
+    await makeRule(series, lead);
+    await runAnalysisCycle();
+    expect(await Alert.count({ where: { seriesId: series.id, firstSnapshotId: snapshot.id } })).toBe(1);
+  });
+});
+
