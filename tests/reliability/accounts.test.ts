@@ -1,7 +1,10 @@
+import fs from 'node:fs';
+import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import { DEMO_PASSWORD, startApp, type RunningApp } from '../support/app';
 import { Session, signedIn } from '../support/session';
 import { RawDb } from './sqlite';
+import { waitFor } from './scheduler';
 
 const ACCOUNT_LIMIT = 3;
 const ADDRESS_LIMIT = 6;
@@ -34,10 +37,16 @@ describe('accounts and sign-in', () => {
   let https: RunningApp;
   beforeAll(async () => {
     [app, https] = await Promise.all([
+      // The scheduler sends the reset mails each second; nothing else is scheduled.
       startApp({
         demo: false,
-        scheduler: false,
-        env: { SIGNIN_MAX_FAILURES_ACCOUNT: String(ACCOUNT_LIMIT), SIGNIN_MAX_FAILURES_ADDRESS: String(ADDRESS_LIMIT) },
+        env: {
+          SIGNIN_MAX_FAILURES_ACCOUNT: String(ACCOUNT_LIMIT),
+          SIGNIN_MAX_FAILURES_ADDRESS: String(ADDRESS_LIMIT),
+          MAIL_CRON: '*/1 * * * * *',
+          INGEST_CRON: '0 0 1 1 *',
+          ANALYSIS_CRON: '0 0 1 1 *',
+        },
       }),
       // Served behind a TLS-terminating proxy: the public URL is https, the app itself listens on loopback http.
       startApp({ demo: false, scheduler: false, env: { NEXTAUTH_URL: 'https://localhost:8443' } }),
@@ -126,5 +135,57 @@ describe('accounts and sign-in', () => {
     expect(session!.attributes.has('httponly')).toBe(true);
     expect(session!.attributes.get('samesite')?.toLowerCase()).toBe('lax');
     for (const cookie of cookies) expect(cookie.attributes.has('secure'), cookie.name).toBe(true);
+  });
+
+  /** Asks for a reset link for `email` and reads it from the local mail sink. */
+  async function resetLink(email: string): Promise<string> {
+    expect((await new Session(app.baseUrl).json('/api/auth/reset-request', 'POST', { email })).status).toBe(202);
+    const dir = path.join(app.dataDir, 'mailbox');
+    return waitFor(`the reset mail to ${email}`, async () => {
+      if (!fs.existsSync(dir)) return null;
+      for (const file of fs.readdirSync(dir).filter((f) => f.endsWith('.eml'))) {
+        const raw = fs.readFileSync(path.join(dir, file), 'utf8').replace(/=\r?\n/g, '');
+        if (raw.includes(email)) return /\/reset\/([A-Za-z0-9_-]{20,})/.exec(raw)?.[1] ?? null;
+      }
+      return null;
+    }, 30_000);
+  }
+
+  test('a reset link works once, and the old password stops working', async () => {
+    const token = await resetLink('admin@brinkwatch.test');
+    const reset = (password: string) => new Session(app.baseUrl).json(`/api/password-resets/${token}`, 'POST', { password });
+    expect((await reset('first new passphrase')).status).toBe(200);
+    const reused = await reset('second new passphrase');
+    expect(reused.status).toBeGreaterThanOrEqual(400);
+    expect(reused.status).toBeLessThan(500);
+    expect((await new Session(app.baseUrl).signIn('admin@brinkwatch.test', DEMO_PASSWORD)).ok).toBe(false);
+    expect((await new Session(app.baseUrl).signIn('admin@brinkwatch.test', 'second new passphrase')).ok).toBe(false);
+    expect((await new Session(app.baseUrl).signIn('admin@brinkwatch.test', 'first new passphrase')).ok).toBe(true);
+  });
+
+  test('an expired reset link is refused and changes nothing', async () => {
+    const token = await resetLink('lead@brinkwatch.test');
+    const raw = await RawDb.forDataDir(app.dataDir);
+    await raw.exec("UPDATE user_tokens SET expires_at = '2000-01-01 00:00:00.000 +00:00' WHERE purpose = 'reset' AND used_at IS NULL");
+    const hash = await raw.get("SELECT password_hash FROM users WHERE email = 'lead@brinkwatch.test'");
+    const refused = await new Session(app.baseUrl).json(`/api/password-resets/${token}`, 'POST', { password: 'a late passphrase' });
+    expect(refused.status).toBeGreaterThanOrEqual(400);
+    expect(refused.status).toBeLessThan(500);
+    expect(await raw.get("SELECT password_hash FROM users WHERE email = 'lead@brinkwatch.test'")).toEqual(hash);
+    await raw.close();
+    expect((await new Session(app.baseUrl).signIn('lead@brinkwatch.test', DEMO_PASSWORD, { 'x-forwarded-for': '198.51.100.30' })).ok).toBe(true);
+  });
+
+  test('deactivating a user by an admin ends API and page access at once', async () => {
+    const viewer = await signedIn(app.baseUrl, 'viewer@brinkwatch.test', DEMO_PASSWORD);
+    expect((await viewer.fetch('/')).status).toBe(200);
+    const admin = await signedIn(app.baseUrl, 'admin@brinkwatch.test', 'first new passphrase');
+    const users = (await (await admin.fetch('/api/users')).json()).items as { id: number; email: string }[];
+    const id = users.find((u) => u.email === 'viewer@brinkwatch.test')!.id;
+    expect((await admin.json(`/api/users/${id}`, 'PATCH', { active: false })).status).toBe(200);
+    expect((await viewer.fetch('/api/series')).status).toBe(401);
+    const page = await viewer.fetch('/alerts');
+    expect([302, 303, 307, 308]).toContain(page.status);
+    expect(page.headers.get('location')).toContain('/signin');
   });
 });
