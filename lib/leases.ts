@@ -27,10 +27,12 @@ export async function acquireLease(name: string, ttlMs: number, holder = PROCESS
 /** Extends a lease this holder still has; false when it was lost (expired and taken). */
 export async function renewLease(name: string, ttlMs: number, holder = PROCESS_HOLDER, now = Date.now()): Promise<boolean> {
   const sequelize = await db();
-  const [, meta] = await sequelize.query('UPDATE leases SET expires_at = :expires WHERE name = :name AND holder = :holder', {
-    replacements: { name, holder, expires: now + ttlMs },
-  });
-  return ((meta as { changes?: number })?.changes ?? 0) > 0;
+  // As in acquireLease: the comment and RETURNING make the dialect hand back the updated row, if any.
+  const rows = await sequelize.query<{ name: string }>(
+    '/* renew */ UPDATE leases SET expires_at = :expires WHERE name = :name AND holder = :holder RETURNING name',
+    { replacements: { name, holder, expires: now + ttlMs }, type: QueryTypes.SELECT },
+  );
+  return rows.length === 1;
 }
 
 export async function releaseLease(name: string, holder = PROCESS_HOLDER): Promise<void> {
