@@ -1,6 +1,7 @@
 'use client';
 
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import { signOut } from 'next-auth/react';
 import { useRouter } from 'next/navigation';
 import { useState, type FormEvent } from 'react';
 import { api, ApiError } from '@/components/api';
@@ -33,7 +34,8 @@ export function AccountForms({ name, email, role, series }: { name: string; emai
   const rename = useMutation({ mutationFn: () => api('/api/account', { method: 'PATCH', body: { name: newName } }), onSuccess: () => router.refresh() });
   const change = useMutation({
     mutationFn: () => api('/api/account', { method: 'POST', body: passwords }),
-    onSuccess: () => setPasswords({ currentPassword: '', newPassword: '' }),
+    // A new password ends every session, this one included: sign in again with it.
+    onSuccess: () => signOut({ callbackUrl: '/signin?notice=password-changed' }),
   });
   const watches = useQuery({ queryKey: ['watches'], queryFn: () => api<{ items: WatchRow[] }>('/api/watches').then((r) => r.items) });
   const setWatch = useMutation({

@@ -37,6 +37,11 @@ export function SignInForm() {
 
   return (
     <form onSubmit={submit} className="space-y-4" noValidate>
+      {params.get('notice') === 'password-changed' && (
+        <p role="status" className="rounded bg-calm-light px-3 py-2 text-sm text-calm">
+          Your password was changed and every session was ended. Sign in with the new password.
+        </p>
+      )}
       <div>
         <label htmlFor="email" className="block text-sm font-medium">E-mail</label>
         <input id="email" name="email" type="email" autoComplete="username" required

@@ -4,6 +4,7 @@ import { db } from '@/models';
 import * as initial from './0001-initial';
 import * as alertQueues from './0002-alert-queues-and-outbox-claims';
 import * as alertAge from './0003-alert-age-index';
+import * as sessionVersion from './0004-user-session-version';
 
 /**
  * The ordered list of schema changes. Listed explicitly (not globbed) so the same list works in the Next.js server
@@ -13,6 +14,7 @@ const MIGRATIONS = [
   { name: '0001-initial', ...initial },
   { name: '0002-alert-queues-and-outbox-claims', ...alertQueues },
   { name: '0003-alert-age-index', ...alertAge },
+  { name: '0004-user-session-version', ...sessionVersion },
 ];
 
 async function migrator(): Promise<Umzug<QueryInterface>> {

@@ -8,6 +8,8 @@ export class User extends Model<InferAttributes<User>, InferCreationAttributes<U
   declare passwordHash: string | null;
   declare role: Role;
   declare active: CreationOptional<boolean>;
+  /** Raised whenever the password changes; a session from before the change no longer matches and ends. */
+  declare sessionVersion: CreationOptional<number>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 
@@ -20,10 +22,20 @@ export class User extends Model<InferAttributes<User>, InferCreationAttributes<U
         passwordHash: { type: DataTypes.STRING, allowNull: true },
         role: { type: DataTypes.STRING, allowNull: false, validate: { isIn: [ROLES as unknown as string[]] } },
         active: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: true },
+        sessionVersion: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 1 },
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },
-      { sequelize, tableName: 'users' },
+      {
+        sequelize,
+        tableName: 'users',
+        hooks: {
+          // Every way of setting a password (reset, invitation, own change) goes through here.
+          beforeUpdate(user) {
+            if (user.changed('passwordHash')) user.sessionVersion = (user.previous('sessionVersion') ?? user.sessionVersion) + 1;
+          },
+        },
+      },
     );
   }
 }

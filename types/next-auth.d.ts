@@ -2,6 +2,6 @@ import type { Role } from '@/models/roles';
 
 declare module 'next-auth' {
   interface Session {
-    user: { id: number; role: Role; name?: string | null; email?: string | null; image?: string | null };
+    user: { id: number; role: Role; sessionVersion: number; name?: string | null; email?: string | null; image?: string | null };
   }
 }

@@ -13,8 +13,8 @@ export interface Actor {
 
 /**
  * The one authorisation check, called first in every route handler, server action and protected page.
- * The session only says who is asking; role and active flag are read from the database on each call, so a
- * deactivation or a role change takes effect at once. Signed out or inactive: 401. Role too low: 403.
+ * The session only says who is asking; role, active flag and session version are read from the database on each
+ * call, so a deactivation, a role change or a password change takes effect at once. Signed out or inactive: 401. Role too low: 403.
  */
 export async function requireRole(minimum: Role): Promise<Actor> {
   const session = await getServerSession(authOptions);
@@ -22,7 +22,9 @@ export async function requireRole(minimum: Role): Promise<Actor> {
   if (!id) throw new UnauthenticatedError();
   await db();
   const user = await User.findByPk(id);
-  if (!user || !user.active) throw new UnauthenticatedError('Your session has ended. Sign in again.');
+  if (!user || !user.active || session.user.sessionVersion !== user.sessionVersion) {
+    throw new UnauthenticatedError('Your session has ended. Sign in again.');
+  }
   if (!roleAtLeast(user.role, minimum)) throw new ForbiddenError(`This needs the ${minimum} role or higher.`);
   return { id: user.id, email: user.email, name: user.name, role: user.role };
 }

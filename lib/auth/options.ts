@@ -42,7 +42,7 @@ export const authOptions: NextAuthOptions = {
           return null;
         }
         await clearSignInFailures(keys.account);
-        return { id: String(user.id), email: user.email, name: user.name, role: user.role };
+        return { id: String(user.id), email: user.email, name: user.name, role: user.role, sessionVersion: user.sessionVersion };
       },
     }),
   ],
@@ -51,6 +51,7 @@ export const authOptions: NextAuthOptions = {
       if (user) {
         token.uid = Number(user.id);
         token.role = (user as { role?: Role }).role;
+        token.sv = (user as { sessionVersion?: number }).sessionVersion;
       }
       return token;
     },
@@ -58,6 +59,7 @@ export const authOptions: NextAuthOptions = {
       if (session.user) {
         session.user.id = token.uid as number;
         session.user.role = token.role as Role;
+        session.user.sessionVersion = token.sv as number;
       }
       return session;
     },

@@ -57,6 +57,20 @@ describe('the started product', () => {
     expect(again.ok).toBe(false);
   });
 
+  test('a password change ends every session opened with the old password', async () => {
+    const first = await signedIn(app.baseUrl, 'analyst@brinkwatch.test', DEMO_PASSWORD);
+    const second = await signedIn(app.baseUrl, 'analyst@brinkwatch.test', DEMO_PASSWORD);
+    const changed = await first.json('/api/account', 'POST', { currentPassword: DEMO_PASSWORD, newPassword: 'a-new-password-456' });
+    expect(changed.status).toBeLessThan(300);
+    expect((await second.fetch('/api/series')).status).toBe(401);
+    expect((await first.fetch('/api/series')).status).toBe(401);
+    expect((await new Session(app.baseUrl).signIn('analyst@brinkwatch.test', DEMO_PASSWORD)).ok).toBe(false);
+    const fresh = await signedIn(app.baseUrl, 'analyst@brinkwatch.test', 'a-new-password-456');
+    expect((await fresh.fetch('/api/series')).status).toBe(200);
+    const restored = await fresh.json('/api/account', 'POST', { currentPassword: 'a-new-password-456', newPassword: DEMO_PASSWORD });
+    expect(restored.status).toBeLessThan(300);
+  });
+
   test('signed out is 401, a role too low is 403, both with the JSON error body', async () => {
     const anonymous = new Session(app.baseUrl);
     const signedOut = await anonymous.fetch('/api/series');
