@@ -46,6 +46,19 @@ export const DEMO_PASSWORD = 'test-password-123';
 export async function startApp(options: StartOptions = {}): Promise<RunningApp> {
   const distDir = await buildForDigest();
   const dataDir = options.dataDir ?? fs.mkdtempSync(path.join(os.tmpdir(), 'bw-app-'));
+  // A port found free can be taken by a parallel test before the app binds it; then try other ports.
+  for (let attempt = 1; ; attempt++) {
+    try {
+      return await launch(options, distDir, dataDir);
+    } catch (error) {
+      if (!(error instanceof PortTakenError) || attempt === 3) throw error;
+    }
+  }
+}
+
+class PortTakenError extends Error {}
+
+async function launch(options: StartOptions, distDir: string, dataDir: string): Promise<RunningApp> {
   const port = await freePort();
   const mailSinkPort = await freePort();
   let output = '';
@@ -76,7 +89,9 @@ export async function startApp(options: StartOptions = {}): Promise<RunningApp> 
   const baseUrl = `http://127.0.0.1:${port}`;
   const deadline = Date.now() + 120_000;
   for (;;) {
-    if (child.exitCode !== null) throw new Error(`app exited early:\n${output}`);
+    if (child.exitCode !== null) {
+      throw /EADDRINUSE/.test(output) ? new PortTakenError(output) : new Error(`app exited early:\n${output}`);
+    }
     try {
       const response = await fetch(`${baseUrl}/api/health`);
       if (response.status === 200) break;
