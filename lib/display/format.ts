@@ -23,13 +23,24 @@ export function formatValue(value: number | null | undefined, unit = ''): string
   return unit ? `${text} ${unit}` : text;
 }
 
-function safeZone(timeZone: string): string {
-  try {
-    new Intl.DateTimeFormat('en-GB', { timeZone });
-    return timeZone;
-  } catch {
-    return 'UTC';
+/**
+ * One formatter per time zone: building an Intl.DateTimeFormat costs about a millisecond, and chart axes and
+ * tables format thousands of instants. An unknown zone falls back to UTC (the zone is validated on input anyway).
+ */
+const formatters = new Map<string, { zone: string; format: Intl.DateTimeFormat }>();
+
+function formatterFor(timeZone: string): { zone: string; format: Intl.DateTimeFormat } {
+  let entry = formatters.get(timeZone);
+  if (!entry) {
+    const options = { year: 'numeric', month: '2-digit', day: '2-digit', hour: '2-digit', minute: '2-digit', hourCycle: 'h23' } as const;
+    try {
+      entry = { zone: timeZone, format: new Intl.DateTimeFormat('en-CA', { ...options, timeZone }) };
+    } catch {
+      entry = { zone: 'UTC', format: new Intl.DateTimeFormat('en-CA', { ...options, timeZone: 'UTC' }) };
+    }
+    formatters.set(timeZone, entry);
   }
+  return entry;
 }
 
 /** An instant in the series' own time zone (day and minute), e.g. "2025-03-14 08:30 Europe/Oslo". */
@@ -37,12 +48,10 @@ export function formatLocal(t: number | Date | null | undefined, timeZone: strin
   if (t === null || t === undefined) return '–';
   const date = typeof t === 'number' ? new Date(t) : t;
   if (Number.isNaN(date.getTime())) return '–';
-  const zone = safeZone(timeZone);
-  const parts = new Intl.DateTimeFormat('en-CA', {
-    timeZone: zone, year: 'numeric', month: '2-digit', day: '2-digit', hour: '2-digit', minute: '2-digit', hourCycle: 'h23',
-  }).formatToParts(date);
-  const get = (type: string) => parts.find((p) => p.type === type)?.value ?? '';
-  const text = `${get('year')}-${get('month')}-${get('day')} ${get('hour')}:${get('minute')}`;
+  const { zone, format } = formatterFor(timeZone);
+  const parts: Record<string, string> = {};
+  for (const part of format.formatToParts(date)) parts[part.type] = part.value;
+  const text = `${parts.year}-${parts.month}-${parts.day} ${parts.hour}:${parts.minute}`;
   return withZone ? `${text} ${zone}` : text;
 }
 
