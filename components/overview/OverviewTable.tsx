@@ -44,10 +44,10 @@ export function OverviewTable({ rows, sites, now }: { rows: OverviewRow[]; sites
     return filtered.sort((a, b) => (sort.desc ? -1 : 1) * compare(a, b) || a.name.localeCompare(b.name));
   }, [rows, text, site, state, sort]);
 
-  function header(key: SortKey, label: string) {
+  function header(key: SortKey, label: string, className = '') {
     const active = sort.key === key;
     return (
-      <th scope="col" aria-sort={active ? (sort.desc ? 'descending' : 'ascending') : 'none'} className="px-3 py-2 text-left font-medium">
+      <th scope="col" aria-sort={active ? (sort.desc ? 'descending' : 'ascending') : 'none'} className={`px-3 py-2 text-left font-medium ${className}`}>
         <button type="button" className="inline-flex items-center gap-1 rounded hover:text-tide"
           onClick={() => setSort({ key, desc: active ? !sort.desc : key !== 'name' && key !== 'site' })}>
           {label}
@@ -84,14 +84,14 @@ export function OverviewTable({ rows, sites, now }: { rows: OverviewRow[]; sites
         <Empty>{rows.length === 0 ? 'No series are registered yet. Add one on the Intake page.' : 'No series match these filters.'}</Empty>
       ) : (
         <div className="overflow-x-auto rounded-lg border border-rule bg-card">
-          <table className="w-full min-w-[720px] text-sm" data-testid="overview-table">
+          <table className="w-full min-w-[640px] text-sm" data-testid="overview-table">
             <caption className="sr-only">Every series with its data freshness, state and latest indicator trends</caption>
             <thead className="border-b border-rule bg-paper text-ink-soft">
               <tr>
                 {header('name', 'Series')}
-                {header('site', 'Site')}
-                {header('lastData', 'Last data')}
                 {header('state', 'State')}
+                {header('lastData', 'Last data')}
+                {header('site', 'Site', 'hidden md:table-cell')}
                 {header('tau', 'Indicator trend (tau, p)')}
                 <th scope="col" className="px-3 py-2 text-left font-medium">Recent curve</th>
               </tr>
@@ -102,15 +102,7 @@ export function OverviewTable({ rows, sites, now }: { rows: OverviewRow[]; sites
                   <td className="px-3 py-2">
                     <Link href={`/series/${row.slug}`} className="font-medium text-tide hover:underline">{row.name}</Link>
                     <div className="font-mono text-xs text-ink-faint">{row.slug}</div>
-                  </td>
-                  <td className="px-3 py-2">{row.site || <span className="text-ink-faint">–</span>}</td>
-                  <td className="px-3 py-2">
-                    <div><LocalTime t={row.lastDataAt} timeZone={row.timeZone} /></div>
-                    <div className="mt-0.5 flex items-center gap-1 text-xs text-ink-faint">
-                      <FreshnessBadge freshness={row.freshness}
-                        title={row.lastDataAt ? `${formatAge(now - row.lastDataAt)} since the last observation` : undefined} />
-                      <span>{row.timeZone}</span>
-                    </div>
+                    {row.site ? <div className="text-xs text-ink-soft md:hidden">{row.site}</div> : null}
                   </td>
                   <td className="px-3 py-2">
                     {row.state === 'alert' ? (
@@ -121,6 +113,15 @@ export function OverviewTable({ rows, sites, now }: { rows: OverviewRow[]; sites
                       <StateBadge state={row.state} />
                     )}
                   </td>
+                  <td className="px-3 py-2">
+                    <div><LocalTime t={row.lastDataAt} timeZone={row.timeZone} /></div>
+                    <div className="mt-0.5 flex items-center gap-1 text-xs text-ink-faint">
+                      <FreshnessBadge freshness={row.freshness}
+                        title={row.lastDataAt ? `${formatAge(now - row.lastDataAt)} since the last observation` : undefined} />
+                      <span>{row.timeZone}</span>
+                    </div>
+                  </td>
+                  <td className="hidden px-3 py-2 md:table-cell">{row.site || <span className="text-ink-faint">–</span>}</td>
                   <td className="px-3 py-2">
                     {row.indicators.length === 0 ? (
                       <span className="text-ink-faint">–</span>

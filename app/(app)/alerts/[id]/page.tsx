@@ -19,6 +19,9 @@ const ACTION_WORDS: Record<string, string> = {
   dismiss: 'set aside', reopen: 'reopened', evaluate: 'evaluated again',
 };
 
+/** Actions whose word does not already say where the alert went. */
+const SHOWS_STATE = new Set(['open', 'assign', 'reopen', 'evaluate']);
+
 export default async function AlertPage({ params }: { params: Promise<{ id: string }> }) {
   const actor = await requireRole('viewer');
   const id = idParam((await params).id, 'Alert');
@@ -65,7 +68,7 @@ export default async function AlertPage({ params }: { params: Promise<{ id: stri
               <ol className="space-y-2 text-sm" data-testid="timeline">
                 {detail.timeline.map((e) => (
                   <li key={e.id} className="border-l-2 border-rule pl-3">
-                    <div className="font-medium">{ACTION_WORDS[e.action] ?? e.action}{e.toState ? ` → ${e.toState}` : ''}</div>
+                    <div className="font-medium">{ACTION_WORDS[e.action] ?? e.action}{e.toState && SHOWS_STATE.has(e.action) ? ` → ${e.toState}` : ''}</div>
                     <div className="text-xs text-ink-soft">
                       {e.actor?.name ?? 'Brinkwatch'} · <LocalTime t={e.at as unknown as string} timeZone={tz} withZone />
                       {e.reason ? ` · ${e.reason}` : ''}
