@@ -5,6 +5,7 @@ import * as initial from './0001-initial';
 import * as alertQueues from './0002-alert-queues-and-outbox-claims';
 import * as alertAge from './0003-alert-age-index';
 import * as sessionVersion from './0004-user-session-version';
+import * as alertTauOrder from './0005-alert-tau-order';
 
 /**
  * The ordered list of schema changes. Listed explicitly (not globbed) so the same list works in the Next.js server
@@ -15,6 +16,7 @@ const MIGRATIONS = [
   { name: '0002-alert-queues-and-outbox-claims', ...alertQueues },
   { name: '0003-alert-age-index', ...alertAge },
   { name: '0004-user-session-version', ...sessionVersion },
+  { name: '0005-alert-tau-order', ...alertTauOrder },
 ];
 
 async function migrator(): Promise<Umzug<QueryInterface>> {
