@@ -34,6 +34,19 @@ export function sourceDigest(): string {
   return hash.digest('hex');
 }
 
+/** False only when the lock names a process that no longer exists (a missing pid file means it is being written). */
+function holderAlive(lock: string): boolean {
+  const file = path.join(lock, 'pid');
+  const pid = fs.existsSync(file) ? Number(fs.readFileSync(file, 'utf8').trim()) : 0;
+  if (!pid) return true;
+  try {
+    process.kill(pid, 0);
+    return true;
+  } catch (error) {
+    return (error as NodeJS.ErrnoException).code !== 'ESRCH';
+  }
+}
+
 function sleep(ms: number): Promise<void> {
   return new Promise((resolve) => setTimeout(resolve, ms));
 }
@@ -52,9 +65,10 @@ export async function buildIfNeeded(log: (line: string) => void = console.log, d
     if (fs.existsSync(stamp) && fs.readFileSync(stamp, 'utf8') === digest && fs.existsSync(path.join(target, 'BUILD_ID'))) return;
     try {
       fs.mkdirSync(lock, { recursive: false });
+      fs.writeFileSync(path.join(lock, 'pid'), String(process.pid));
     } catch {
-      const age = Date.now() - (fs.statSync(lock, { throwIfNoEntry: false })?.mtimeMs ?? Date.now());
-      if (age > 15 * 60 * 1000) fs.rmSync(lock, { recursive: true, force: true });
+      // A build can take many minutes on a busy machine, so the lock is stale only when its holder is gone.
+      if (!holderAlive(lock)) fs.rmSync(lock, { recursive: true, force: true });
       await sleep(1000);
       continue;
     }
