@@ -34,11 +34,11 @@ export function sourceDigest(): string {
   return hash.digest('hex');
 }
 
-/** False only when the lock names a process that no longer exists (a missing pid file means it is being written). */
+/** False when the lock names a process that no longer exists, or has had no pid file for a minute (its holder died at once). */
 function holderAlive(lock: string): boolean {
   const file = path.join(lock, 'pid');
   const pid = fs.existsSync(file) ? Number(fs.readFileSync(file, 'utf8').trim()) : 0;
-  if (!pid) return true;
+  if (!pid) return Date.now() - (fs.statSync(lock, { throwIfNoEntry: false })?.mtimeMs ?? 0) < 60_000;
   try {
     process.kill(pid, 0);
     return true;
