@@ -5,7 +5,7 @@ import { viewFromSnapshot } from '@/lib/analysis/view';
 import type { Actor } from '@/lib/auth/guard';
 
 /**
- * The alert page's data: the alert detail (alerts engineer's read), its two snapshots as chart views, the series'
+ * The alert page's data: the alert detail (`fetchAlertDetail`), its two snapshots as chart views, the series'
  * known transitions, and for triage roles the colleagues an alert can be handed to.
  */
 export async function fetchAlertPage(id: number, actor: Actor) {
