@@ -151,7 +151,7 @@ export function AlertQueue({ initialFilters, initialPage, seriesOptions }: { ini
                   <td className="px-3 py-2"><SeverityBadge severity={a.severity} /></td>
                   <td className="px-3 py-2"><AlertStateBadge state={a.state} /></td>
                   <td className="num px-3 py-2 whitespace-nowrap">τ {formatTau(a.latest.tau)} · p {formatP(a.latest.surrogateP ?? a.latest.kendallP)}</td>
-                  <td className="px-3 py-2"><LocalTime t={a.createdAt} timeZone="UTC" withZone /></td>
+                  <td className="px-3 py-2"><LocalTime t={a.createdAt} timeZone={a.series.timeZone} withZone /></td>
                   <td className="px-3 py-2">{a.assignee?.name ?? <span className="text-ink-faint">nobody</span>}</td>
                 </tr>
               ))}

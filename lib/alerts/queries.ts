@@ -29,7 +29,7 @@ export interface AlertListItem {
   state: AlertState;
   severity: string;
   version: number;
-  series: { id: number; slug: string; name: string };
+  series: { id: number; slug: string; name: string; timeZone: string };
   rule: { id: number; indicator: string };
   assignee: { id: number; name: string } | null;
   peakTau: number | null;
@@ -78,7 +78,7 @@ export async function fetchAlertQueue(query: AlertQueueQuery, actor: Pick<Actor,
   const filter = where(query, actor, query.queue, now);
   const rows = await sequelize.query<Record<string, unknown>>(
     `SELECT a.id, a.state, a.severity, a.version, a.peak_tau, a.evaluation_count, a.dismiss_reason, a.created_at, a.updated_at, a.closed_at,
-            s.id AS series_id, s.slug, s.name AS series_name, r.id AS rule_id, r.indicator,
+            s.id AS series_id, s.slug, s.name AS series_name, s.time_zone, r.id AS rule_id, r.indicator,
             u.id AS assignee_id, u.name AS assignee_name, e.tau, e.surrogate_p, e.kendall_p
      FROM (SELECT a.id FROM alerts a WHERE ${filter.sql} ORDER BY ${ORDER[query.sort]} LIMIT :limit OFFSET :offset) page
      JOIN alerts a ON a.id = page.id
@@ -106,7 +106,7 @@ export async function fetchAlertQueue(query: AlertQueueQuery, actor: Pick<Actor,
     state: r.state as AlertState,
     severity: String(r.severity),
     version: Number(r.version),
-    series: { id: Number(r.series_id), slug: String(r.slug), name: String(r.series_name) },
+    series: { id: Number(r.series_id), slug: String(r.slug), name: String(r.series_name), timeZone: String(r.time_zone) },
     rule: { id: Number(r.rule_id), indicator: String(r.indicator) },
     assignee: r.assignee_id === null ? null : { id: Number(r.assignee_id), name: String(r.assignee_name) },
     peakTau: r.peak_tau as number | null,
