@@ -67,7 +67,8 @@ export async function closeDatabase(): Promise<void> {
   const cached = globalCache.__brinkwatchDb;
   if (!cached) return;
   globalCache.__brinkwatchDb = undefined;
-  await cached.sequelize.close();
+  // sqlite3 never calls back when closing a handle whose open failed (an unreachable file), so do not wait forever.
+  await Promise.race([cached.sequelize.close().catch(() => undefined), new Promise((resolve) => setTimeout(resolve, 2000).unref())]);
 }
 
 /**

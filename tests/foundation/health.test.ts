@@ -1,0 +1,25 @@
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { afterAll, describe, expect, test } from 'vitest';
+
+// A directory where the database file should be: SQLite cannot open it, as with a lost or unreadable volume.
+const unreachable = fs.mkdtempSync(path.join(os.tmpdir(), 'bw-no-db-'));
+process.env.DATA_DIR = unreachable;
+process.env.DATABASE_PATH = unreachable;
+const { fetchHealth } = await import('@/lib/health');
+const { closeDatabase } = await import('@/models');
+
+describe('health when the database cannot be reached', () => {
+  afterAll(async () => {
+    await closeDatabase(); // must return even though the handle never opened
+  });
+
+  test('reports the database and scheduler down (the route answers 503 for ok: false), with no error detail', async () => {
+    const body = await fetchHealth();
+    expect(body.ok).toBe(false);
+    expect(body.db).toEqual({ ok: false, error: 'The database cannot be reached.' });
+    expect(body.scheduler.ok).toBe(false);
+    expect(JSON.stringify(body)).not.toContain(unreachable);
+  });
+});
