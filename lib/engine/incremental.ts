@@ -1,4 +1,5 @@
 import { twoSidedNormalP } from './normal';
+import { indicatorFromMoments } from './rolling';
 import type { IndicatorName } from './settings';
 
 /**
@@ -124,41 +125,10 @@ export class SlidingMoments {
     };
   }
 
-  /**
-   * One indicator of the current window with the definitions of rollingIndicators (lib/engine/rolling.ts):
-   * variance = M2/(k−1), sd, cv = sd/|rawMean|, ac1 = lag/M2, skewness g1, kurtosis g2, recovery = −ln(ac1)/dt.
-   * NaN where undefined. O(1).
-   */
+  /** One indicator of the current window, by the definitions of rollingIndicators (indicatorFromMoments). O(1). */
   indicator(name: IndicatorName, opts: { dt: number; rawMean?: number }): number {
-    const k = this.k;
     const { m2, m3, m4, lag } = this.moments();
-    let v: number;
-    switch (name) {
-      case 'variance':
-        v = m2 / (k - 1);
-        break;
-      case 'sd':
-        v = Math.sqrt(m2 / (k - 1));
-        break;
-      case 'cv':
-        v = Math.sqrt(m2 / (k - 1)) / Math.abs(opts.rawMean ?? this.mean());
-        break;
-      case 'ac1':
-        v = m2 > 0 ? lag / m2 : Number.NaN;
-        break;
-      case 'skewness':
-        v = m2 > 0 ? m3 / k / Math.pow(m2 / k, 1.5) : Number.NaN;
-        break;
-      case 'kurtosis':
-        v = m2 > 0 ? m4 / k / ((m2 / k) * (m2 / k)) - 3 : Number.NaN;
-        break;
-      case 'recovery': {
-        const ac = m2 > 0 ? lag / m2 : Number.NaN;
-        v = ac > 0 ? -Math.log(ac) / opts.dt : Number.NaN;
-        break;
-      }
-    }
-    return Number.isFinite(v) ? v : Number.NaN;
+    return indicatorFromMoments(name, this.k, m2, m3, m4, lag, opts.rawMean ?? this.mean(), opts.dt);
   }
 }
 

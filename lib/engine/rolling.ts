@@ -91,12 +91,45 @@ export function windowMoments(r: Float64Array, w: number): WindowMoments {
 }
 
 /**
- * Rolling indicators over windows of w points ending at each index i ≥ w−1 (earlier entries NaN = none):
- * variance = M2/(w−1); sd = √variance; cv = sd/|mean of `raw` over the window|; ac1 = lag/M2 (NIST StRD
- * estimator); skewness = (M3/w)/(M2/w)^{3/2}; kurtosis = (M4/w)/(M2/w)² − 3 (moment estimators g1, g2);
- * recovery = −ln(ac1)/dt where ac1 > 0. Undefined values (zero variance, zero mean) are NaN.
- * Cost O(n). Sources: NIST StRD univariate summary statistics (variance, sd, r(1)); Joanes & Gill (1998),
- * The Statistician 47, 183–189 (g1, g2); Gillespie (1996), Phys. Rev. E 54, 2084 (ac1 = e^{−λΔt}).
+ * One indicator of a window of w points from its centred moments (see WindowMoments): variance = M2/(w−1);
+ * sd = √variance; cv = sd/|rawMean|; ac1 = lag/M2 (NIST StRD estimator); skewness = (M3/w)/(M2/w)^{3/2};
+ * kurtosis = (M4/w)/(M2/w)² − 3 (moment estimators g1, g2); recovery = −ln(ac1)/dt where ac1 > 0. NaN where
+ * undefined (zero variance, zero mean). Cost O(1). Sources: NIST StRD univariate summary statistics (variance, sd,
+ * r(1)); Joanes & Gill (1998), The Statistician 47, 183–189 (g1, g2); Gillespie (1996), Phys. Rev. E 54, 2084
+ * (ac1 = e^{−λΔt}).
+ */
+export function indicatorFromMoments(
+  name: IndicatorName,
+  w: number,
+  m2: number,
+  m3: number,
+  m4: number,
+  lag: number,
+  rawMean: number,
+  dt: number,
+): number {
+  let v: number;
+  if (name === 'variance') v = m2 / (w - 1);
+  else if (name === 'sd') v = Math.sqrt(m2 / (w - 1));
+  else if (name === 'cv') v = Math.sqrt(m2 / (w - 1)) / Math.abs(rawMean);
+  else if (!(m2 > 0)) return Number.NaN;
+  else if (name === 'ac1') v = lag / m2;
+  else if (name === 'skewness') {
+    const q = m2 / w;
+    v = m3 / w / (q * Math.sqrt(q));
+  } else if (name === 'kurtosis') {
+    const q = m2 / w;
+    v = m4 / w / (q * q) - 3;
+  } else {
+    const a = lag / m2;
+    v = a > 0 ? -Math.log(a) / dt : Number.NaN;
+  }
+  return Number.isFinite(v) ? v : Number.NaN;
+}
+
+/**
+ * Rolling indicators (indicatorFromMoments) over windows of w points ending at each index i ≥ w−1 (earlier entries
+ * NaN = none), from the sliding moments of windowMoments. Cost O(n) per indicator.
  */
 export function rollingIndicators(
   residual: Float64Array,
@@ -110,28 +143,12 @@ export function rollingIndicators(
   let rawMean = opts.rawMean;
   if (!rawMean && names.includes('cv')) rawMean = windowMoments(opts.raw ?? residual, w).mean;
   const out = {} as Record<IndicatorName, Float64Array>;
-  const want = (name: IndicatorName) => (names.includes(name) ? (out[name] = new Float64Array(n).fill(Number.NaN)) : null);
-  const variance = want('variance'), sd = want('sd'), cv = want('cv'), ac1 = want('ac1');
-  const skewness = want('skewness'), kurtosis = want('kurtosis'), recovery = want('recovery');
-  const dt = opts.dt;
-  // One loop for all indicators (the tests on loop-invariant nulls are predictable), so it is compiled once.
-  for (let s = 0; s < count; s++) {
-    const i = s + w - 1;
-    const M2 = m2[s];
-    const v = M2 / (w - 1);
-    if (variance) variance[i] = v;
-    if (sd) sd[i] = Math.sqrt(v);
-    if (cv) {
-      const c = Math.sqrt(v) / Math.abs(rawMean![s]);
-      if (Number.isFinite(c)) cv[i] = c;
+  for (const name of names) {
+    const values = new Float64Array(n).fill(Number.NaN);
+    for (let s = 0; s < count; s++) {
+      values[s + w - 1] = indicatorFromMoments(name, w, m2[s], m3[s], m4[s], lag[s], rawMean ? rawMean[s] : Number.NaN, opts.dt);
     }
-    if (!(M2 > 0)) continue;
-    const a = lag[s] / M2;
-    if (ac1) ac1[i] = a;
-    const q = M2 / w;
-    if (skewness) skewness[i] = m3[s] / w / (q * Math.sqrt(q));
-    if (kurtosis) kurtosis[i] = m4[s] / w / (q * q) - 3;
-    if (recovery && a > 0) recovery[i] = -Math.log(a) / dt;
+    out[name] = values;
   }
   return out;
 }
