@@ -1,5 +1,5 @@
 import { twoSidedNormalP } from './normal';
-import { indicatorFromMoments } from './rolling';
+import { centredMoments, indicatorFromMoments } from './rolling';
 import type { IndicatorName } from './settings';
 
 /**
@@ -112,17 +112,7 @@ export class SlidingMoments {
 
   /** { m2, m3, m4, lag } of the current window, as defined in lib/engine/rolling.ts (WindowMoments). O(1). */
   moments(): { m2: number; m3: number; m4: number; lag: number } {
-    const k = this.k;
-    const yb = this.s1 / k;
-    const yb2 = yb * yb;
-    const first = this.at(0) - this.c;
-    const last = this.at(k - 1) - this.c;
-    return {
-      m2: Math.max(0, this.s2 - this.s1 * yb),
-      m3: this.s3 - 3 * yb * this.s2 + 2 * k * yb2 * yb,
-      m4: Math.max(0, this.s4 - 4 * yb * this.s3 + 6 * yb2 * this.s2 - 3 * k * yb2 * yb2),
-      lag: this.p - yb * (2 * this.s1 - first - last) + (k - 1) * yb2,
-    };
+    return centredMoments(this.k, this.s1, this.s2, this.s3, this.s4, this.p, this.at(0) - this.c, this.at(this.k - 1) - this.c);
   }
 
   /** One indicator of the current window, by the definitions of rollingIndicators (indicatorFromMoments). O(1). */

@@ -32,6 +32,22 @@ export interface WindowMoments {
 }
 
 /**
+ * Centred moments of a window of k points from its power sums about a shift c (y = r − c): with ȳ = S1/k,
+ * M2 = S2 − k ȳ², M3 = S3 − 3ȳ S2 + 2k ȳ³, M4 = S4 − 4ȳ S3 + 6ȳ² S2 − 3k ȳ⁴, lag = P − ȳ(2 S1 − y_first − y_last) + (k−1) ȳ²
+ * (P = Σ y_j y_{j+1}). O(1). Source: Chan, Golub & LeVeque (1983), Am. Stat. 37, 242–247 (shifted sums).
+ */
+export function centredMoments(k: number, s1: number, s2: number, s3: number, s4: number, p: number, first: number, last: number) {
+  const yb = s1 / k;
+  const yb2 = yb * yb;
+  return {
+    m2: Math.max(0, s2 - s1 * yb),
+    m3: s3 - 3 * yb * s2 + 2 * k * yb2 * yb,
+    m4: Math.max(0, s4 - 4 * yb * s3 + 6 * yb2 * s2 - 3 * k * yb2 * yb2),
+    lag: p - yb * (2 * s1 - first - last) + (k - 1) * yb2,
+  };
+}
+
+/**
  * Sliding power sums of every window of w points. Values are shifted by a window-local centre c
  * (the corrected mean of the window where the block starts) and the sums are recomputed from scratch
  * every ⌈w/4⌉ steps, so offsets such as NIST NumAcc's 1e7 and long runs cost no digits; between
@@ -78,13 +94,12 @@ export function windowMoments(r: Float64Array, w: number): WindowMoments {
         s4 += i2 * i2 - o2 * o2;
         p += (r[s + w - 2] - c) * inn - out * (r[s] - c);
       }
-      const yb = s1 / w;
-      const yb2 = yb * yb;
-      mean[s] = c + yb;
-      m2[s] = Math.max(0, s2 - s1 * yb);
-      m3[s] = s3 - 3 * yb * s2 + 2 * w * yb2 * yb;
-      m4[s] = Math.max(0, s4 - 4 * yb * s3 + 6 * yb2 * s2 - 3 * w * yb2 * yb2);
-      lag[s] = p - yb * (2 * s1 - (r[s] - c) - (r[s + w - 1] - c)) + (w - 1) * yb2;
+      const m = centredMoments(w, s1, s2, s3, s4, p, r[s] - c, r[s + w - 1] - c);
+      mean[s] = c + s1 / w;
+      m2[s] = m.m2;
+      m3[s] = m.m3;
+      m4[s] = m.m4;
+      lag[s] = m.lag;
     }
   }
   return { mean, m2, m3, m4, lag };
