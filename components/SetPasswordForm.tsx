@@ -2,6 +2,7 @@
 
 import Link from 'next/link';
 import { useState, type FormEvent } from 'react';
+import { FormFooter, LabelledInput } from './FormParts';
 
 /** Sets a password from a mailed link (invitation or reset); the token in the link is the only credential. */
 export function SetPasswordForm({ endpoint, submitLabel }: { endpoint: string; submitLabel: string }) {
@@ -44,22 +45,10 @@ export function SetPasswordForm({ endpoint, submitLabel }: { endpoint: string; s
   }
   return (
     <form onSubmit={submit} className="space-y-4" noValidate>
-      <div>
-        <label htmlFor="password" className="block text-sm font-medium">New password</label>
-        <input id="password" name="password" type="password" autoComplete="new-password" required minLength={12}
-          className="mt-1 w-full rounded border border-rule bg-card px-3 py-2" />
-        <p className="mt-1 text-xs text-ink-soft">At least 12 characters. A few unrelated words make a good one.</p>
-      </div>
-      <div>
-        <label htmlFor="confirm" className="block text-sm font-medium">The same again</label>
-        <input id="confirm" name="confirm" type="password" autoComplete="new-password" required
-          className="mt-1 w-full rounded border border-rule bg-card px-3 py-2" />
-      </div>
-      {error && <p role="alert" className="rounded bg-warning-light px-3 py-2 text-sm text-warning">{error}</p>}
-      <button type="submit" disabled={busy}
-        className="w-full rounded bg-tide px-4 py-2 font-medium text-white hover:bg-tide-dark disabled:opacity-60">
-        {busy ? 'Saving…' : submitLabel}
-      </button>
+      <LabelledInput id="password" label="New password" type="password" autoComplete="new-password" minLength={12}
+        hint="At least 12 characters. A few unrelated words make a good one." />
+      <LabelledInput id="confirm" label="The same again" type="password" autoComplete="new-password" />
+      <FormFooter error={error} busy={busy} busyLabel="Saving…" label={submitLabel} />
     </form>
   );
 }

@@ -3,6 +3,7 @@
 import { signIn } from 'next-auth/react';
 import { useRouter, useSearchParams } from 'next/navigation';
 import { useState, type FormEvent } from 'react';
+import { FormFooter, LabelledInput } from './FormParts';
 
 const MESSAGES: Record<string, string> = {
   CredentialsSignin: 'That e-mail and password do not match an active account.',
@@ -42,21 +43,9 @@ export function SignInForm() {
           Your password was changed and every session was ended. Sign in with the new password.
         </p>
       )}
-      <div>
-        <label htmlFor="email" className="block text-sm font-medium">E-mail</label>
-        <input id="email" name="email" type="email" autoComplete="username" required
-          className="mt-1 w-full rounded border border-rule bg-card px-3 py-2" />
-      </div>
-      <div>
-        <label htmlFor="password" className="block text-sm font-medium">Password</label>
-        <input id="password" name="password" type="password" autoComplete="current-password" required
-          className="mt-1 w-full rounded border border-rule bg-card px-3 py-2" />
-      </div>
-      {error && <p role="alert" className="rounded bg-warning-light px-3 py-2 text-sm text-warning">{error}</p>}
-      <button type="submit" disabled={busy}
-        className="w-full rounded bg-tide px-4 py-2 font-medium text-white hover:bg-tide-dark disabled:opacity-60">
-        {busy ? 'Signing in…' : 'Sign in'}
-      </button>
+      <LabelledInput id="email" label="E-mail" type="email" autoComplete="username" />
+      <LabelledInput id="password" label="Password" type="password" autoComplete="current-password" />
+      <FormFooter error={error} busy={busy} busyLabel="Signing in…" label="Sign in" />
     </form>
   );
 }
