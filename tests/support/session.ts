@@ -31,7 +31,7 @@ export class Session {
   async fetch(pathname: string, init: RequestInit = {}): Promise<Response> {
     const headers = new Headers(init.headers);
     if (this.cookies.size) headers.set('cookie', this.cookieHeader());
-    const response = await fetch(this.baseUrl + pathname, { ...init, headers, redirect: 'manual' });
+    const response = await fetchOnce(this.baseUrl + pathname, { ...init, headers, redirect: 'manual' });
     this.absorb(response);
     return response;
   }
@@ -64,4 +64,19 @@ export async function signedIn(baseUrl: string, email: string, password: string)
   const result = await session.signIn(email, password);
   if (!result.ok) throw new Error(`sign-in as ${email} failed: ${result.error}`);
   return session;
+}
+
+/**
+ * fetch, sent again once when the server closed an idle keep-alive connection just as it was reused (undici's
+ * "other side closed"): the request never reached the handler, so sending it again is safe. Happens after a pause
+ * longer than the server's keep-alive timeout, e.g. while a test runs a script against the database.
+ */
+async function fetchOnce(url: string, init: RequestInit): Promise<Response> {
+  try {
+    return await fetch(url, init);
+  } catch (error) {
+    const cause = (error as { cause?: { code?: string } }).cause;
+    if (cause?.code !== 'UND_ERR_SOCKET') throw error;
+    return fetch(url, init);
+  }
 }
