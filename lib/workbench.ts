@@ -1,5 +1,6 @@
 import { QueryTypes } from 'sequelize';
 import { AnalysisSnapshot, IngestRun, Transition, db } from '@/models';
+import { cachedRead } from '@/lib/db/read-cache';
 import { observationExtent } from '@/lib/analysis/observations';
 import { fetchSettingsHistory, type SettingsHistoryEntry } from '@/lib/analysis/settings-history';
 import { viewFromSnapshot, type AnalysisView } from '@/lib/analysis/view';
@@ -36,6 +37,10 @@ export interface Workbench {
  * known transitions.
  */
 export async function fetchWorkbench(slug: string): Promise<Workbench> {
+  return cachedRead(`workbench:${slug}`, () => loadWorkbench(slug));
+}
+
+async function loadWorkbench(slug: string): Promise<Workbench> {
   const series = await findSeriesBySlug(slug);
   const sequelize = await db();
   const [snapshot, extent, runs, rejected, history, transitions] = await Promise.all([

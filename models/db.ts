@@ -3,6 +3,7 @@ import path from 'node:path';
 import sqlite3, { type Database } from 'sqlite3';
 import { Sequelize, Transaction } from 'sequelize';
 import { busyTimeoutMs, databasePath } from '@/lib/config';
+import { closeReadCache } from '@/lib/db/read-cache';
 
 type Cached = { sequelize: Sequelize; path: string; ready: Promise<void> };
 const globalCache = globalThis as unknown as { __brinkwatchDb?: Cached };
@@ -64,6 +65,7 @@ export async function databaseReady(): Promise<Sequelize> {
 
 /** Closes the cached instance (tests and scripts that exit). */
 export async function closeDatabase(): Promise<void> {
+  await closeReadCache();
   const cached = globalCache.__brinkwatchDb;
   if (!cached) return;
   globalCache.__brinkwatchDb = undefined;

@@ -1,5 +1,5 @@
-import type { Sequelize } from 'sequelize';
-import { databaseReady, getSequelize } from './db';
+import type { Sequelize, Transaction } from 'sequelize';
+import { databaseReady, getSequelize, writeTransaction as writeInTransaction } from './db';
 import { User } from './User';
 import { Series } from './Series';
 import { Observation } from './Observation';
@@ -83,6 +83,15 @@ export {
   NoteRevision, IngestToken, MailMessage, AuditEntry, Watch, Lease, SettingsChange, SignInThrottle, UserToken,
   Transition, BacktestJob, AppState,
 };
-export { writeTransaction, closeDatabase } from './db';
+/**
+ * `writeTransaction` of models/db.ts with the models bound first: a web worker's first request may be a write
+ * (a password reset) before anything in that process has called db().
+ */
+export async function writeTransaction<T>(work: (transaction: Transaction) => Promise<T>): Promise<T> {
+  await db();
+  return writeInTransaction(work);
+}
+
+export { closeDatabase } from './db';
 export { ROLES, roleAtLeast, type Role } from './roles';
 export { ALERT_STATES, OPEN_ALERT_STATES, type AlertState } from './Alert';

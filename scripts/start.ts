@@ -37,13 +37,10 @@ async function main(): Promise<void> {
   const sink = process.env.SMTP_URL ? null : await startMailSink(Number(process.env.MAIL_SINK_PORT || 2525));
   if (sink) log(`local mail sink on smtp://127.0.0.1:${process.env.MAIL_SINK_PORT || 2525} (read it on /admin/mailbox)`);
 
-  // Idle connections outlive a load balancer's (commonly 60 s) and any client's own keep-alive, so the server is
-  // never the side that closes a connection a client is about to reuse.
-  const keepAlive = ['--keepAliveTimeout', String(process.env.KEEP_ALIVE_TIMEOUT_MS || 65_000)];
-  const web = spawn(process.execPath, [path.join(ROOT, 'node_modules/next/dist/bin/next'), 'start', '-p', String(port), '-H', host, ...keepAlive], {
+  const web = spawn(process.execPath, [path.join(ROOT, 'scripts/web.mjs')], {
     cwd: ROOT,
     stdio: 'inherit',
-    env: { ...process.env, NEXT_TELEMETRY_DISABLED: '1' },
+    env: { ...process.env, PORT: String(port), HOST: host, NEXT_TELEMETRY_DISABLED: '1' },
   });
   children.push(web);
 

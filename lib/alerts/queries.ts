@@ -2,6 +2,7 @@ import { QueryTypes } from 'sequelize';
 import { ALERT_STATES, Alert, AlertEvent, AlertRule, AnalysisSnapshot, Note, NoteRevision, RuleEvaluation, Series, User, db, type AlertState } from '@/models';
 import { NotFoundError } from '@/lib/http/errors';
 import type { Actor } from '@/lib/auth/guard';
+import { cachedRead } from '@/lib/db/read-cache';
 import { sqlDate } from '@/lib/db/sql-date';
 import { presentRule } from './rules';
 import { allowedActions } from './triage';
@@ -74,6 +75,12 @@ function where(query: Omit<AlertQueueQuery, 'page' | 'pageSize' | 'sort'>, actor
  * one COUNT per queue.
  */
 export async function fetchAlertQueue(query: AlertQueueQuery, actor: Pick<Actor, 'id'>, now = Date.now()) {
+  // An age filter reads the clock, so its answer is not kept; every other queue is a pure read (the "mine" count needs the actor).
+  if (query.age) return loadAlertQueue(query, actor, now);
+  return cachedRead(`alert-queue:${actor.id}:${JSON.stringify(query)}`, () => loadAlertQueue(query, actor, now));
+}
+
+async function loadAlertQueue(query: AlertQueueQuery, actor: Pick<Actor, 'id'>, now: number) {
   const sequelize = await db();
   const filter = where(query, actor, query.queue, now);
   const rows = await sequelize.query<Record<string, unknown>>(

@@ -31,6 +31,22 @@ export interface AnalysisView {
   quality: PreparationQuality | null;
 }
 
+/**
+ * Points per drawn curve: more than a chart on a wide screen has pixel columns, and about a third of what is stored,
+ * so a series page carries a few tens of kB of curves instead of a few hundred.
+ */
+export const CHART_POINTS = 720;
+
+/**
+ * Significant digits of a drawn point: no axis or tooltip shows more. The indicator table, the exports and every
+ * statistic keep full float64 precision.
+ */
+export const CHART_DIGITS = 6;
+
+function forChart(values: (number | null)[]): (number | null)[] {
+  return values.map((v) => (v === null ? null : Number(v.toPrecision(CHART_DIGITS))));
+}
+
 /** Thins stored curves further for a chart (stored curves already hold at most MAX_CURVE_POINTS). O(n). */
 export function thinCurves(curves: CurveSet, maxPoints = MAX_CURVE_POINTS): CurveSet {
   const { stride, indices } = thinnedIndices(curves.time.length, maxPoints);
@@ -86,7 +102,7 @@ export function buildView(
     quality?: PreparationQuality | null;
   },
   stored: CurveSet,
-  maxPoints = MAX_CURVE_POINTS,
+  maxPoints = CHART_POINTS,
 ): AnalysisView {
   const settings = analysisSettingsSchema.parse(settingsInput ?? {});
   const curves = thinCurves(stored, maxPoints);
@@ -99,7 +115,10 @@ export function buildView(
     significance[name] = { p: s.p, count: s.count, method: s.method, bins: tauHistogram(taus, summary.kendall[name]?.tau ?? null) };
   }
   const grid = stored.sensitivity ?? summary.sensitivity ?? null;
-  const { surrogateTaus: _taus, sensitivity: _grid, ...chartCurves } = curves;
+  const { surrogateTaus: _taus, sensitivity: _grid, ...thinned } = curves;
+  const indicatorCurves: CurveSet['indicators'] = {};
+  for (const name of indicators) indicatorCurves[name] = forChart(curves.indicators[name]!);
+  const chartCurves = { ...thinned, value: forChart(thinned.value), trend: forChart(thinned.trend), residual: forChart(thinned.residual), indicators: indicatorCurves };
   return {
     settings,
     n: summary.n,
@@ -119,7 +138,7 @@ export function buildView(
 }
 
 /** The view of a fresh engine result (preview, exports from posted settings). */
-export function viewFromResult(result: AnalysisResult, settings: AnalysisSettings, maxPoints = MAX_CURVE_POINTS): AnalysisView {
+export function viewFromResult(result: AnalysisResult, settings: AnalysisSettings, maxPoints = CHART_POINTS): AnalysisView {
   return buildView(settings, result, curvesOf(result, maxPoints), maxPoints);
 }
 

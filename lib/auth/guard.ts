@@ -1,6 +1,7 @@
 import { getServerSession } from 'next-auth';
 import { IngestToken, Series, User, db, roleAtLeast, type Role } from '@/models';
 import { ForbiddenError, NotFoundError, UnauthenticatedError } from '@/lib/http/errors';
+import { cachedRead } from '@/lib/db/read-cache';
 import { hashIngestToken } from '@/lib/intake/tokens';
 import { authOptions } from './options';
 
@@ -13,15 +14,19 @@ export interface Actor {
 
 /**
  * The one authorisation check, called first in every route handler, server action and protected page.
- * The session only says who is asking; role, active flag and session version are read from the database on each
- * call, so a deactivation, a role change or a password change takes effect at once. Signed out or inactive: 401. Role too low: 403.
+ * The session only says who is asking; role, active flag and session version come from the database on each call
+ * (through the read cache, which drops an answer at the next commit), so a deactivation, a role change or a
+ * password change takes effect at once. Signed out or inactive: 401. Role too low: 403.
  */
 export async function requireRole(minimum: Role): Promise<Actor> {
   const session = await getServerSession(authOptions);
   const id = session?.user?.id;
   if (!id) throw new UnauthenticatedError();
-  await db();
-  const user = await User.findByPk(id);
+  const user = await cachedRead(`user:${id}`, async () => {
+    await db();
+    const row = await User.findByPk(id, { attributes: ['id', 'email', 'name', 'role', 'active', 'sessionVersion'] });
+    return row && { id: row.id, email: row.email, name: row.name, role: row.role, active: row.active, sessionVersion: row.sessionVersion };
+  });
   if (!user || !user.active || session.user.sessionVersion !== user.sessionVersion) {
     throw new UnauthenticatedError('Your session has ended. Sign in again.');
   }

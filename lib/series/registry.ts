@@ -1,8 +1,9 @@
-import { UniqueConstraintError } from 'sequelize';
+import { QueryTypes, UniqueConstraintError } from 'sequelize';
 import { AnalysisSnapshot, Series, SettingsChange, db, writeTransaction } from '@/models';
 import { observationExtent } from '@/lib/analysis/observations';
 import { ConflictError, NotFoundError } from '@/lib/http/errors';
 import { recordAudit } from '@/lib/audit';
+import { cachedRead } from '@/lib/db/read-cache';
 import type { Actor } from '@/lib/auth/guard';
 import { seriesCreateSchema, seriesUpdateSchema, type SeriesCreateInput } from '@/lib/schemas/series';
 import { applyDefaultRules } from '@/lib/alerts/rules';
@@ -37,6 +38,19 @@ export async function listSeries(options: { includeRetired?: boolean } = {}): Pr
   });
 }
 
+export interface SeriesChoice {
+  slug: string;
+  name: string;
+}
+
+/** Slug and name of every active series, by name, for pickers; a raw read, since the full models are not needed. */
+export async function listSeriesChoices(): Promise<SeriesChoice[]> {
+  return cachedRead('series-choices', async () => {
+    const sequelize = await db();
+    return sequelize.query<SeriesChoice>('SELECT slug, name FROM series WHERE retired_at IS NULL ORDER BY name ASC', { type: QueryTypes.SELECT });
+  });
+}
+
 export async function findSeriesBySlug(slug: string): Promise<Series> {
   await db();
   const series = await Series.findOne({ where: { slug } });
@@ -63,6 +77,10 @@ export async function createSeries(input: SeriesCreateInput, actor: Pick<Actor, 
 
 /** A series with the extent of its record and the summary of its newest analysis snapshot. */
 export async function fetchSeriesDetail(slug: string) {
+  return cachedRead(`series-detail:${slug}`, () => loadSeriesDetail(slug));
+}
+
+async function loadSeriesDetail(slug: string) {
   const series = await findSeriesBySlug(slug);
   const [extent, latest] = await Promise.all([
     observationExtent(series.id),

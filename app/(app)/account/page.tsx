@@ -1,17 +1,17 @@
 import { AccountForms } from '@/components/AccountForms';
 import { fetchAccount } from '@/lib/account';
 import { requireRole } from '@/lib/auth/guard';
-import { listSeries } from '@/lib/series/registry';
+import { listSeriesChoices } from '@/lib/series/registry';
 
 export const metadata = { title: 'Account' };
 
 export default async function AccountPage() {
   const actor = await requireRole('viewer');
-  const [me, series] = await Promise.all([fetchAccount(actor), listSeries()]);
+  const [me, series] = await Promise.all([fetchAccount(actor), listSeriesChoices()]);
   return (
     <section className="space-y-4">
       <h1 className="text-xl font-semibold">Account</h1>
-      <AccountForms name={me.name} email={me.email} role={me.role} series={series.map((s) => ({ slug: s.slug, name: s.name }))} />
+      <AccountForms name={me.name} email={me.email} role={me.role} series={series} />
     </section>
   );
 }

@@ -1,5 +1,5 @@
 import { requireRole } from '@/lib/auth/guard';
-import { listSeries } from '@/lib/series/registry';
+import { listSeriesChoices } from '@/lib/series/registry';
 import { roleAtLeast } from '@/models/roles';
 import { IntakeScreen } from '@/components/intake/IntakeScreen';
 
@@ -7,7 +7,7 @@ export const metadata = { title: 'Intake' };
 
 export default async function IntakePage() {
   const actor = await requireRole('viewer');
-  const series = (await listSeries()).map((s) => ({ slug: s.slug, name: s.name }));
+  const series = await listSeriesChoices();
   return (
     <section className="space-y-4">
       <h1 className="text-xl font-semibold">Data intake</h1>

@@ -1,0 +1,78 @@
+import { spawnSync } from 'node:child_process';
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { useTempDataDir } from '../support/temp-db';
+
+useTempDataDir('bw-read-cache-');
+
+const { migrateUp } = await import('@/migrations');
+const { AppState, closeDatabase, db } = await import('@/models');
+const { databasePath } = await import('@/lib/config');
+const { cachedRead } = await import('@/lib/db/read-cache');
+
+beforeAll(async () => {
+  await migrateUp();
+});
+afterAll(async () => {
+  await closeDatabase();
+});
+
+/** A read of the one app_state row the tests change, counting how often it really ran. */
+function counter() {
+  let loads = 0;
+  const read = () =>
+    cachedRead('probe-value', async () => {
+      loads++;
+      return (await AppState.findByPk('probe'))?.value ?? null;
+    });
+  return { read, loads: () => loads };
+}
+
+describe('read cache checked against PRAGMA data_version (https://sqlite.org/pragma.html#pragma_data_version)', () => {
+  it('answers from memory while nothing is committed and reads again after a commit on this process', async () => {
+    await db();
+    await AppState.upsert({ key: 'probe', value: 'one', updatedAt: new Date() });
+    const { read, loads } = counter();
+    expect(await read()).toBe('one');
+    expect(await read()).toBe('one');
+    expect(loads()).toBe(1);
+    await AppState.upsert({ key: 'probe', value: 'two', updatedAt: new Date() });
+    expect(await read()).toBe('two');
+    expect(loads()).toBe(2);
+  });
+
+  it('sees a commit made by another process on the same file', async () => {
+    const { read, loads } = counter();
+    const before = await read();
+    const baseline = loads();
+    // A separate OS process writes with the sqlite3 package directly, as the scheduler would.
+    const script = `const s=require('sqlite3');const d=new s.Database(${JSON.stringify(databasePath())});d.configure('busyTimeout',5000);` +
+      `d.run("UPDATE app_state SET value='from-elsewhere' WHERE key='probe'",(e)=>{if(e)throw e;d.close();});`;
+    const result = spawnSync(process.execPath, ['-e', script], { cwd: path.resolve(__dirname, '../..'), encoding: 'utf8' });
+    expect(result.status, result.stderr).toBe(0);
+    expect(before).not.toBe('from-elsewhere');
+    expect(await read()).toBe('from-elsewhere');
+    expect(loads()).toBe(baseline + 1);
+  });
+
+  it('shares one load between concurrent misses and does not keep a failure', async () => {
+    let calls = 0;
+    const slow = () => cachedRead('shared', async () => {
+      calls++;
+      await new Promise((r) => setTimeout(r, 20));
+      return { calls };
+    });
+    const [a, b] = await Promise.all([slow(), slow()]);
+    expect(a).toBe(b);
+    expect(calls).toBe(1);
+
+    let attempts = 0;
+    const flaky = () => cachedRead('flaky', async () => {
+      attempts++;
+      if (attempts === 1) throw new Error('first attempt fails');
+      return 'ok';
+    });
+    await expect(flaky()).rejects.toThrow('first attempt fails');
+    expect(await flaky()).toBe('ok');
+  });
+});
