@@ -71,8 +71,9 @@ async function main(): Promise<number> {
       await Promise.all(sessions.slice(0, 8).map(async (session, c) => (await session.fetch(endpoint.path(c, 0))).arrayBuffer()));
     }
 
+    const alone = await serviceTimes(sessions[0]);
     let allPassed = true;
-    for (const thinkMs of THINK_TIMES) allPassed = (await runScenario(sessions, thinkMs)) && allPassed;
+    for (const thinkMs of THINK_TIMES) allPassed = (await runScenario(sessions, thinkMs, alone)) && allPassed;
     console.log(allPassed ? '\npass: every scenario met its target' : '\nFAIL: at least one scenario missed its target');
     return allPassed ? 0 : 1;
   } finally {
@@ -82,8 +83,29 @@ async function main(): Promise<number> {
   }
 }
 
+const ALONE_REQUESTS = 24;
+
+/**
+ * Each endpoint asked by one client at a time, so nothing queues: the median is what one request costs the server
+ * (plus a loopback round trip). It bounds the closed loop: with every client asking again at once, N clients on
+ * K cores cannot average below N × (mean cost) / K (Little's law: clients = throughput × time in the system).
+ */
+async function serviceTimes(session: Session): Promise<Map<string, number>> {
+  const medians = new Map<string, number>();
+  for (const endpoint of ENDPOINTS) {
+    const times: number[] = [];
+    for (let i = 0; i < ALONE_REQUESTS; i++) {
+      const t0 = performance.now();
+      await (await session.fetch(endpoint.path(i, i))).arrayBuffer();
+      times.push(performance.now() - t0);
+    }
+    medians.set(endpoint.name, percentile(times.sort((a, b) => a - b), 50));
+  }
+  return medians;
+}
+
 /** One timed run of every client at once with `thinkMs` between a client's requests; prints its table, returns false on a miss. */
-async function runScenario(sessions: Session[], thinkMs: number): Promise<boolean> {
+async function runScenario(sessions: Session[], thinkMs: number, alone: Map<string, number>): Promise<boolean> {
   const latencies = new Map<string, number[]>(ENDPOINTS.map((e) => [e.name, []]));
   const errors = new Map<string, string[]>(ENDPOINTS.map((e) => [e.name, []]));
   let issued = 0;
@@ -113,7 +135,7 @@ async function runScenario(sessions: Session[], thinkMs: number): Promise<boolea
   );
   const elapsed = (performance.now() - startedAt) / 1000;
 
-  const head = ['endpoint', 'requests', 'errors', 'p50 ms', 'p95 ms', 'p99 ms', 'target', 'result'];
+  const head = ['endpoint', 'alone ms', 'requests', 'errors', 'p50 ms', 'p95 ms', 'p99 ms', 'target', 'result'];
   const rows: string[][] = [];
   let failed = false;
   let total = 0;
@@ -124,17 +146,23 @@ async function runScenario(sessions: Session[], thinkMs: number): Promise<boolea
     const pass = errorCount === 0 && p95 < TARGET_P95_MS;
     failed ||= !pass;
     total += sorted.length;
-    rows.push([endpoint.name, String(sorted.length), String(errorCount), percentile(sorted, 50).toFixed(0), p95.toFixed(0),
+    rows.push([endpoint.name, alone.get(endpoint.name)!.toFixed(1), String(sorted.length), String(errorCount), percentile(sorted, 50).toFixed(0), p95.toFixed(0),
       percentile(sorted, 99).toFixed(0), `p95 < ${TARGET_P95_MS}, 0 errors`, pass ? 'pass' : 'FAIL']);
   }
   const widths = head.map((h, i) => Math.max(h.length, ...rows.map((r) => r[i].length)));
-  const line = (cells: string[]) => cells.map((cell, i) => (i >= 1 && i <= 5 ? cell.padStart(widths[i]) : cell.padEnd(widths[i]))).join('  ').trimEnd();
+  const line = (cells: string[]) => cells.map((cell, i) => (i >= 1 && i <= 6 ? cell.padStart(widths[i]) : cell.padEnd(widths[i]))).join('  ').trimEnd();
   console.log(`\nload: ${CLIENTS} clients (think time ${thinkMs} ms), ${total} requests in ${elapsed.toFixed(1)} s (${(total / elapsed).toFixed(0)} req/s), ` +
     `${SERIES} series, ${SERIES * OBSERVATIONS_PER_SERIES} observations, ${SERIES * RULES_PER_SERIES * ALERTS_PER_RULE} alerts; ` +
     `${os.cpus().length} cores, Node ${process.version}`);
   console.log(line(head));
   console.log(widths.map((w) => '-'.repeat(w)).join('  '));
   for (const row of rows) console.log(line(row));
+  if (!thinkMs) {
+    const meanCost = ENDPOINTS.reduce((sum, e) => sum + alone.get(e.name)!, 0) / ENDPOINTS.length;
+    const cores = os.availableParallelism();
+    console.log(`alone ms: one request at a time. Closed-loop floor: ${CLIENTS} clients × ${meanCost.toFixed(1)} ms / ${cores} cores ` +
+      `≈ ${((CLIENTS * meanCost) / cores).toFixed(0)} ms mean latency with no queueing loss at all (Little's law), against a p95 target of ${TARGET_P95_MS} ms`);
+  }
   for (const [name, list] of errors) if (list.length) console.log(`errors on ${name} (first 5): ${list.slice(0, 5).join('; ')}`);
   console.log(failed ? 'FAIL: see the rows above' : 'pass: zero errors and every p95 under target');
   return !failed;

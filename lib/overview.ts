@@ -1,14 +1,12 @@
 import { QueryTypes } from 'sequelize';
 import { db, OPEN_ALERT_STATES } from '@/models';
 import { INDICATOR_NAMES, type IndicatorName } from '@/lib/engine/settings';
+import { sparkline, sparkPath } from '@/lib/display/sparkline';
 
 /** How many sampling intervals may pass without new data before a series counts as late. */
 export const LATE_AFTER_INTERVALS = 3;
 /** For series without a fixed interval (irregular records), late after two days without data. */
 export const LATE_AFTER_MS_IRREGULAR = 2 * 86_400_000;
-/** Points in an overview sparkline: enough to show a rising curve, few enough for 500 rows. */
-export const SPARK_POINTS = 60;
-
 export type Freshness = 'fresh' | 'late' | 'no-data';
 /** quiet: no rule passes; watch/warning: a rule of that severity passes now but no alert is open; alert: one is open. */
 export type SeriesState = 'not-analysed' | 'quiet' | 'watch' | 'warning' | 'alert';
@@ -38,7 +36,8 @@ export interface OverviewRow {
   openSeverity: 'watch' | 'warning' | null;
   analysedAt: string | null;
   indicators: OverviewIndicator[];
-  spark: { indicator: string; values: (number | null)[] } | null;
+  /** the curve's recent shape as an SVG path (see `sparkPath` in lib/display/sparkline) */
+  spark: { indicator: string; points: number; path: string } | null;
 }
 
 export interface QueueCounts {
@@ -62,11 +61,9 @@ export function freshnessOf(lastDataAt: number | null, intervalMs: number | null
   return now - lastDataAt > allowed ? 'late' : 'fresh';
 }
 
-/** Every SPARK_POINTS-th share of a curve, keeping the last value. O(n). */
-export function sparkline(values: (number | null)[], points = SPARK_POINTS): (number | null)[] {
-  if (values.length <= points) return values;
-  const step = (values.length - 1) / (points - 1);
-  return Array.from({ length: points }, (_, i) => values[Math.round(i * step)]);
+function sparkOf(indicator: string, curve: (number | null)[]): Spark {
+  const values = sparkline(curve);
+  return { indicator, points: values.length, path: sparkPath(values) };
 }
 
 interface SeriesRow {
@@ -125,9 +122,9 @@ async function sparklines(rows: SeriesRow[]): Promise<Map<number, Spark>> {
     for (const r of missing) {
       const f = byId.get(r.snap_id!);
       const spark: Spark = f?.preferred
-        ? { indicator: r.rule_indicator!, values: sparkline(JSON.parse(f.preferred)) }
+        ? sparkOf(r.rule_indicator!, JSON.parse(f.preferred))
         : f?.fallback && f.fallback_name
-          ? { indicator: f.fallback_name, values: sparkline(JSON.parse(f.fallback)) }
+          ? sparkOf(f.fallback_name, JSON.parse(f.fallback))
           : null;
       if (sparkCache.size >= SPARK_CACHE_LIMIT) sparkCache.delete(sparkCache.keys().next().value!);
       sparkCache.set(key(r), spark);

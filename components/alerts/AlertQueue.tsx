@@ -7,6 +7,8 @@ import { useState } from 'react';
 import { api } from '@/components/api';
 import { AlertStateBadge, SeverityBadge } from '@/components/Badges';
 import { LocalTime } from '@/components/LocalTime';
+import { SeriesPicker } from '@/components/SeriesPicker';
+import type { SeriesChoice } from '@/lib/series/registry';
 import { Empty, ErrorNote, Loading } from '@/components/States';
 import { formatP, formatTau } from '@/lib/display/format';
 import type { AlertListItem } from '@/lib/alerts/queries';
@@ -60,10 +62,11 @@ export function queueSearch(f: QueueFilters): string {
 }
 
 /** The queues as tabs with their counts, filters kept in the address so a view can be shared; pages of 25. */
-export function AlertQueue({ initialFilters, initialPage, seriesOptions }: { initialFilters: QueueFilters; initialPage: QueuePage | null; seriesOptions: { slug: string; name: string }[] }) {
+export function AlertQueue({ initialFilters, initialPage, initialSeries }: { initialFilters: QueueFilters; initialPage: QueuePage | null; initialSeries: SeriesChoice | null }) {
   const router = useRouter();
   const pathname = usePathname();
   const [filters, setFilters] = useState(initialFilters);
+  const [series, setSeries] = useState(initialSeries);
   const search = queueSearch(filters);
   const query = useQuery({
     queryKey: ['alerts', search],
@@ -93,13 +96,10 @@ export function AlertQueue({ initialFilters, initialPage, seriesOptions }: { ini
         })}
       </div>
       <div className="flex flex-wrap items-end gap-3">
-        <label className="flex flex-col text-xs font-medium text-ink-soft">
-          Series
-          <select className={control} value={filters.series} onChange={(e) => update({ series: e.target.value })}>
-            <option value="">All series</option>
-            {seriesOptions.map((s) => <option key={s.slug} value={s.slug}>{s.name}</option>)}
-          </select>
-        </label>
+        <SeriesPicker label="Series" value={series} onChange={(choice) => {
+          setSeries(choice);
+          update({ series: choice?.slug ?? '' });
+        }} />
         <label className="flex flex-col text-xs font-medium text-ink-soft">
           Severity
           <select className={control} value={filters.severity} onChange={(e) => update({ severity: e.target.value as QueueFilters['severity'] })}>

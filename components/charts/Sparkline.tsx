@@ -1,16 +1,14 @@
-'use client';
+import { SPARK_HEIGHT, SPARK_WIDTH } from '@/lib/display/sparkline';
 
-import { Line, LineChart, YAxis } from 'recharts';
-
-/** A tiny line of one indicator's rolling curve; the numbers beside it carry the meaning, this only shows shape. */
-export function Sparkline({ values, label }: { values: (number | null)[]; label: string }) {
-  const data = values.map((v, i) => ({ i, v }));
+/**
+ * A tiny line of one indicator's rolling curve, drawn from the path `sparkPath` computed on the server; the
+ * numbers beside it carry the meaning, this only shows shape.
+ */
+export function Sparkline({ path, label }: { path: string; label: string }) {
   return (
-    <div role="img" aria-label={label} title={label}>
-      <LineChart width={96} height={28} data={data} margin={{ top: 2, right: 2, bottom: 2, left: 2 }}>
-        <YAxis hide domain={['auto', 'auto']} />
-        <Line type="monotone" dataKey="v" stroke="#1f6f78" strokeWidth={1.5} dot={false} isAnimationActive={false} connectNulls={false} />
-      </LineChart>
-    </div>
+    <svg role="img" aria-label={label} width={SPARK_WIDTH} height={SPARK_HEIGHT} viewBox={`0 0 ${SPARK_WIDTH} ${SPARK_HEIGHT}`} className="block">
+      <title>{label}</title>
+      <path d={path} fill="none" stroke="#1f6f78" strokeWidth={1.5} strokeLinejoin="round" strokeLinecap="round" />
+    </svg>
   );
 }

@@ -25,12 +25,23 @@ const SORTS: Record<SortKey, (a: OverviewRow, b: OverviewRow) => number> = {
 };
 
 const controlClass = 'rounded border border-rule bg-card px-2 py-1.5 text-sm';
+/**
+ * Rows drawn at first, most pressing first (the default sort is by state): a network of hundreds of series would
+ * otherwise open as a page of hundreds of rows. Search, filters and sorting still cover every series.
+ */
+const ROWS_PER_STEP = 100;
 
 export function OverviewTable({ rows, sites, now }: { rows: OverviewRow[]; sites: string[]; now: number }) {
   const [text, setText] = useState('');
   const [site, setSite] = useState('');
   const [state, setState] = useState('');
   const [sort, setSort] = useState<{ key: SortKey; desc: boolean }>({ key: 'state', desc: true });
+  const [limit, setLimit] = useState(ROWS_PER_STEP);
+  // A new search, filter or order starts again from its first rows.
+  const refine = <T,>(set: (value: T) => void) => (value: T) => {
+    set(value);
+    setLimit(ROWS_PER_STEP);
+  };
 
   const shown = useMemo(() => {
     const needle = text.trim().toLowerCase();
@@ -49,7 +60,7 @@ export function OverviewTable({ rows, sites, now }: { rows: OverviewRow[]; sites
     return (
       <th scope="col" aria-sort={active ? (sort.desc ? 'descending' : 'ascending') : 'none'} className={`px-3 py-2 text-left font-medium ${className}`}>
         <button type="button" className="inline-flex items-center gap-1 rounded hover:text-tide"
-          onClick={() => setSort({ key, desc: active ? !sort.desc : key !== 'name' && key !== 'site' })}>
+          onClick={() => refine(setSort)({ key, desc: active ? !sort.desc : key !== 'name' && key !== 'site' })}>
           {label}
           <span aria-hidden="true" className="text-ink-faint">{active ? (sort.desc ? '↓' : '↑') : '↕'}</span>
         </button>
@@ -62,18 +73,18 @@ export function OverviewTable({ rows, sites, now }: { rows: OverviewRow[]; sites
       <div className="mb-3 flex flex-wrap items-end gap-3" role="search">
         <label className="flex flex-col text-xs font-medium text-ink-soft">
           Find a series
-          <input type="search" value={text} onChange={(e) => setText(e.target.value)} placeholder="Name, slug or site" className={`${controlClass} mt-1 w-56`} />
+          <input type="search" value={text} onChange={(e) => refine(setText)(e.target.value)} placeholder="Name, slug or site" className={`${controlClass} mt-1 w-56`} />
         </label>
         <label className="flex flex-col text-xs font-medium text-ink-soft">
           Site
-          <select value={site} onChange={(e) => setSite(e.target.value)} className={`${controlClass} mt-1`}>
+          <select value={site} onChange={(e) => refine(setSite)(e.target.value)} className={`${controlClass} mt-1`}>
             <option value="">All sites</option>
             {sites.map((s) => <option key={s} value={s}>{s}</option>)}
           </select>
         </label>
         <label className="flex flex-col text-xs font-medium text-ink-soft">
           State
-          <select value={state} onChange={(e) => setState(e.target.value)} className={`${controlClass} mt-1`}>
+          <select value={state} onChange={(e) => refine(setState)(e.target.value)} className={`${controlClass} mt-1`}>
             <option value="">Any state</option>
             {Object.entries(STATE_LABELS).map(([value, label]) => <option key={value} value={value}>{label}</option>)}
           </select>
@@ -97,7 +108,7 @@ export function OverviewTable({ rows, sites, now }: { rows: OverviewRow[]; sites
               </tr>
             </thead>
             <tbody className="divide-y divide-rule">
-              {shown.map((row) => (
+              {shown.slice(0, limit).map((row) => (
                 <tr key={row.id} data-series={row.slug} className="hover:bg-paper/60">
                   <td className="px-3 py-2">
                     <Link href={`/series/${row.slug}`} className="font-medium text-tide hover:underline">{row.name}</Link>
@@ -146,7 +157,7 @@ export function OverviewTable({ rows, sites, now }: { rows: OverviewRow[]; sites
                   </td>
                   <td className="px-3 py-2">
                     {row.spark ? (
-                      <Sparkline values={row.spark.values} label={`Rolling ${row.spark.indicator} of ${row.name}`} />
+                      <Sparkline path={row.spark.path} label={`Rolling ${row.spark.indicator} of ${row.name}`} />
                     ) : (
                       <span className="text-ink-faint">–</span>
                     )}
@@ -155,6 +166,17 @@ export function OverviewTable({ rows, sites, now }: { rows: OverviewRow[]; sites
               ))}
             </tbody>
           </table>
+          {shown.length > limit ? (
+            <div className="flex flex-wrap items-center gap-3 border-t border-rule px-3 py-2 text-sm">
+              <span className="text-ink-soft">Showing the first {limit} of {shown.length}.</span>
+              <button type="button" className="rounded border border-rule px-2 py-1 text-tide hover:bg-paper" onClick={() => setLimit(limit + ROWS_PER_STEP)}>
+                Show {Math.min(ROWS_PER_STEP, shown.length - limit)} more
+              </button>
+              <button type="button" className="rounded px-2 py-1 text-tide hover:underline" onClick={() => setLimit(shown.length)}>
+                Show all {shown.length}
+              </button>
+            </div>
+          ) : null}
         </div>
       )}
       <p className="mt-2 text-xs text-ink-faint">

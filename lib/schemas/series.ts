@@ -69,3 +69,11 @@ export const seriesUpdateSchema = z
   .partial()
   .strict();
 export type SeriesUpdate = z.output<typeof seriesUpdateSchema>;
+
+/** GET /api/series: `find` matches name, slug or site (any part, ignoring ASCII case); `limit` caps the list. */
+export const seriesListQuerySchema = z.object({
+  retired: z.enum(['include']).optional(),
+  find: z.string().trim().max(100).optional(),
+  limit: z.coerce.number().int().min(1).max(1000).optional(),
+});
+export type SeriesListQuery = z.output<typeof seriesListQuerySchema>;

@@ -1,4 +1,4 @@
-import { QueryTypes, UniqueConstraintError } from 'sequelize';
+import { Op, QueryTypes, UniqueConstraintError, col, fn, where, type WhereOptions } from 'sequelize';
 import { AnalysisSnapshot, Series, SettingsChange, db, writeTransaction } from '@/models';
 import { observationExtent } from '@/lib/analysis/observations';
 import { ConflictError, NotFoundError } from '@/lib/http/errors';
@@ -30,12 +30,16 @@ export function presentSeries(series: Series) {
 }
 export type SeriesRecord = ReturnType<typeof presentSeries>;
 
-export async function listSeries(options: { includeRetired?: boolean } = {}): Promise<Series[]> {
+/**
+ * Series by name. `find` keeps those whose name, slug or site contains it; SQLite's lower() folds ASCII letters
+ * only, so other scripts match as typed. `instr` rather than LIKE, so `%` and `_` in a search are plain characters.
+ */
+export async function listSeries(options: { includeRetired?: boolean; find?: string; limit?: number } = {}): Promise<Series[]> {
   await db();
-  return Series.findAll({
-    where: options.includeRetired ? {} : { retiredAt: null },
-    order: [['name', 'ASC']],
-  });
+  const conditions: WhereOptions[] = options.includeRetired ? [] : [{ retiredAt: null }];
+  const needle = options.find?.toLowerCase();
+  if (needle) conditions.push({ [Op.or]: ['name', 'slug', 'site'].map((column) => where(fn('instr', fn('lower', col(column)), needle), Op.gt, 0)) });
+  return Series.findAll({ where: { [Op.and]: conditions }, order: [['name', 'ASC']], limit: options.limit });
 }
 
 export interface SeriesChoice {
@@ -49,6 +53,11 @@ export async function listSeriesChoices(): Promise<SeriesChoice[]> {
     const sequelize = await db();
     return sequelize.query<SeriesChoice>('SELECT slug, name FROM series WHERE retired_at IS NULL ORDER BY name ASC', { type: QueryTypes.SELECT });
   });
+}
+
+/** The picker entry of one active series, or null (an address naming an unknown or retired series). */
+export async function findSeriesChoice(slug: string): Promise<SeriesChoice | null> {
+  return (await listSeriesChoices()).find((choice) => choice.slug === slug) ?? null;
 }
 
 export async function findSeriesBySlug(slug: string): Promise<Series> {

@@ -156,6 +156,18 @@ describe('screens in Chromium', () => {
     const queue = await open('lead', '/alerts?queue=closed');
     await queue.locator(`tr[data-alert="${id}"]`).waitFor();
     await shot(queue, 'alerts-closed');
+    // the series filter searches as one types (components/SeriesPicker.tsx) and keeps the choice in the address
+    const seriesName = (await queue.locator(`tr[data-alert="${id}"] td`).nth(1).textContent())!.trim();
+    const picker = queue.getByRole('combobox', { name: 'Series' });
+    await picker.fill(seriesName.slice(0, 6));
+    await queue.getByRole('option', { name: new RegExp(seriesName) }).click();
+    await expect.poll(() => new URL(queue.url()).searchParams.get('series'), { timeout: 20_000 }).toBeTruthy();
+    const shownSeries = async () => [...new Set((await queue.locator('[data-testid="alert-table"] tbody tr td:nth-child(2)').allTextContents()).map((n) => n.trim()))];
+    await expect.poll(shownSeries, { timeout: 20_000 }).toEqual([seriesName]);
+    await queue.locator(`tr[data-alert="${id}"]`).waitFor();
+    await shot(queue, 'alerts-closed-one-series');
+    await queue.getByRole('button', { name: /Show all series instead/ }).click();
+    await expect.poll(() => new URL(queue.url()).searchParams.get('series'), { timeout: 20_000 }).toBeNull();
     await queue.close();
   }, 180_000);
 

@@ -5,9 +5,11 @@ useTempDataDir('bw-screens-');
 
 import { migrateUp } from '@/migrations';
 import { Alert, AlertRule, AnalysisSnapshot, AuditEntry, Observation, RuleEvaluation, User, db } from '@/models';
-import { createSeries } from '@/lib/series/registry';
+import { createSeries, findSeriesChoice, listSeries } from '@/lib/series/registry';
+import { seriesListQuerySchema } from '@/lib/schemas/series';
 import { refreshSeriesAnalysis } from '@/lib/analysis/snapshot';
 import { fetchSeriesOverview, freshnessOf } from '@/lib/overview';
+import { sparkline } from '@/lib/display/sparkline';
 import { buildIndicatorTable, indicatorTableCsv } from '@/lib/reports/indicator-export';
 import { previewAnalysis } from '@/lib/analysis/preview';
 import { tauHistogram, thinCurves, viewFromSnapshot } from '@/lib/analysis/view';
@@ -77,7 +79,34 @@ describe('overview', () => {
     const summary = snapshots.get(quiet.id)!.summary as { kendall: Record<string, { tau: number }> };
     expect(bySlug['ov-quiet'].indicators).toEqual([{ name: 'ac1', tau: summary.kendall.ac1.tau, p: expect.any(Number), pKind: 'kendall', q: null }]);
     expect(bySlug['ov-quiet'].spark?.indicator).toBe('ac1');
-    expect(bySlug['ov-quiet'].spark?.values.length).toBe(60);
+    expect(bySlug['ov-quiet'].spark?.points).toBe(60);
+    // one path command per point the rolling window has filled (the first window's points have no indicator yet)
+    const ac1 = sparkline((snapshots.get(quiet.id)!.curves as { indicators: Record<string, (number | null)[]> }).indicators.ac1);
+    expect(bySlug['ov-quiet'].spark?.path.match(/[ML]/g)?.length).toBe(ac1.filter((v) => v !== null).length);
+    expect(ac1.filter((v) => v !== null).length).toBeGreaterThan(20);
+  });
+});
+
+describe('series search for pickers', () => {
+  it('finds series by any part of name, slug or site, ignoring ASCII case, and takes % and _ literally', async () => {
+    await createSeries({ slug: 'find-east-inflow', name: 'East Inflow', site: 'Reservoir 100% full' }, null);
+    await createSeries({ slug: 'find-west-outflow', name: 'West Outflow gauge_2', site: 'Spillway' }, null);
+    const slugs = async (query: Record<string, string>) => {
+      const { find, limit } = seriesListQuerySchema.parse(query);
+      return (await listSeries({ find, limit })).map((s) => s.slug).filter((slug) => slug.startsWith('find-'));
+    };
+    expect(await slugs({ find: 'INFLOW' })).toEqual(['find-east-inflow']);
+    expect(await slugs({ find: 'spill' })).toEqual(['find-west-outflow']);
+    expect(await slugs({ find: '  flow ' })).toEqual(['find-east-inflow', 'find-west-outflow']);
+    // in SQL LIKE, % and _ are wildcards; a search for them must match only the characters themselves
+    expect(await slugs({ find: '100%' })).toEqual(['find-east-inflow']);
+    expect(await slugs({ find: 'e_2' })).toEqual(['find-west-outflow']);
+    expect(await slugs({ find: 'e_' })).toEqual(['find-west-outflow']);
+    expect(await slugs({ find: '%' })).toEqual(['find-east-inflow']);
+    expect((await listSeries({ find: 'flow', limit: 1 })).map((s) => s.slug)).toEqual(['find-east-inflow']);
+    expect(() => seriesListQuerySchema.parse({ limit: '0' })).toThrow();
+    expect(await findSeriesChoice('find-west-outflow')).toEqual({ slug: 'find-west-outflow', name: 'West Outflow gauge_2' });
+    expect(await findSeriesChoice('no-such-series')).toBeNull();
   });
 });
 

@@ -3,7 +3,7 @@ import { AlertQueue, type QueueFilters } from '@/components/alerts/AlertQueue';
 import { requireRole } from '@/lib/auth/guard';
 import { fetchAlertQueue } from '@/lib/alerts/queries';
 import { alertQueueSchema } from '@/lib/schemas/alert';
-import { listSeriesChoices } from '@/lib/series/registry';
+import { findSeriesChoice } from '@/lib/series/registry';
 
 export const metadata = { title: 'Alerts' };
 
@@ -12,7 +12,7 @@ export default async function AlertsPage({ searchParams }: { searchParams: Promi
   const raw = Object.fromEntries(Object.entries(await searchParams).map(([k, v]) => [k, Array.isArray(v) ? v[0] : v]));
   const parsed = alertQueueSchema.safeParse({ ...raw, pageSize: 25 });
   const query = parsed.success && parsed.data.queue !== 'all' ? parsed.data : alertQueueSchema.parse({ pageSize: 25 });
-  const [page, series] = await Promise.all([fetchAlertQueue(query, actor), listSeriesChoices()]);
+  const [page, series] = await Promise.all([fetchAlertQueue(query, actor), query.series ? findSeriesChoice(query.series) : null]);
   const filters: QueueFilters = {
     queue: query.queue as QueueFilters['queue'],
     series: query.series ?? '',
@@ -25,7 +25,7 @@ export default async function AlertsPage({ searchParams }: { searchParams: Promi
     <section className="space-y-4">
       <h1 className="text-xl font-semibold">Alerts</h1>
       <Caution />
-      <AlertQueue initialFilters={filters} initialPage={JSON.parse(JSON.stringify(page))} seriesOptions={series} />
+      <AlertQueue initialFilters={filters} initialPage={JSON.parse(JSON.stringify(page))} initialSeries={query.series ? series ?? { slug: query.series, name: query.series } : null} />
     </section>
   );
 }

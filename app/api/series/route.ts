@@ -1,14 +1,14 @@
 import { NextResponse } from 'next/server';
 import { requireRole } from '@/lib/auth/guard';
 import { handle } from '@/lib/http/handler';
-import { readJson } from '@/lib/http/body';
-import { seriesCreateSchema } from '@/lib/schemas/series';
+import { readJson, readQuery } from '@/lib/http/body';
+import { seriesCreateSchema, seriesListQuerySchema } from '@/lib/schemas/series';
 import { createSeries, listSeries, presentSeries } from '@/lib/series/registry';
 
 export const GET = handle(async (request) => {
   await requireRole('viewer');
-  const includeRetired = new URL(request.url).searchParams.get('retired') === 'include';
-  const series = await listSeries({ includeRetired });
+  const { retired, find, limit } = readQuery(request, seriesListQuerySchema);
+  const series = await listSeries({ includeRetired: retired === 'include', find, limit });
   return NextResponse.json({ items: series.map(presentSeries) });
 });
 
