@@ -13,7 +13,7 @@ const workers = Math.max(1, Number(process.env.WEB_WORKERS || os.availableParall
 // never the side that closes a connection a client is about to reuse.
 const keepAliveMs = String(process.env.KEEP_ALIVE_TIMEOUT_MS || 65_000);
 
-cluster.setupPrimary({ execArgv: process.env.PROF_DIR ? ['--cpu-prof', '--cpu-prof-dir=' + process.env.PROF_DIR] : [],
+cluster.setupPrimary({
   exec: path.join(process.cwd(), 'node_modules/next/dist/bin/next'),
   args: ['start', '-p', process.env.PORT || '3000', '-H', process.env.HOST || '127.0.0.1', '--keepAliveTimeout', keepAliveMs],
 });
