@@ -95,8 +95,9 @@ export async function generatePortfolio(dataDir: string, password: string, shape
     // Snapshots one every 10 days up to now; the template's (id of the real one) is copied into each.
     await q(
       `WITH RECURSIVE k(i) AS (SELECT 1 UNION ALL SELECT i + 1 FROM k WHERE i < :n)
-       INSERT INTO analysis_snapshots (series_id, settings, summary, curves, status, n, data_from, data_to, duration_ms, created_at, updated_at)
-       SELECT s.id, t.settings, t.summary, CASE WHEN k.i = :n THEN t.curves ELSE NULL END, 'ok', t.n, t.data_from, t.data_to, t.duration_ms,
+       INSERT INTO analysis_snapshots (series_id, settings, summary, curves, chart_view, status, n, data_from, data_to, duration_ms, created_at, updated_at)
+       SELECT s.id, t.settings, t.summary, CASE WHEN k.i = :n THEN t.curves ELSE NULL END, CASE WHEN k.i = :n THEN t.chart_view ELSE NULL END,
+              'ok', t.n, t.data_from, t.data_to, t.duration_ms,
               :created, :created
        FROM series s CROSS JOIN k CROSS JOIN analysis_snapshots t WHERE t.id = :template AND s.id <> t.series_id
        ORDER BY k.i, s.id`,

@@ -3,7 +3,8 @@ import { AnalysisSnapshot, IngestRun, Transition, db } from '@/models';
 import { cachedRead } from '@/lib/db/read-cache';
 import { observationExtent } from '@/lib/analysis/observations';
 import { fetchSettingsHistory, type SettingsHistoryEntry } from '@/lib/analysis/settings-history';
-import { viewFromSnapshot, type AnalysisView } from '@/lib/analysis/view';
+import { loadSnapshotView } from '@/lib/analysis/snapshot';
+import type { AnalysisView } from '@/lib/analysis/view';
 import { analysisSettingsSchema, type AnalysisSettings } from '@/lib/engine/settings';
 import { findSeriesBySlug, presentSeries, type SeriesRecord } from '@/lib/series/registry';
 
@@ -44,7 +45,7 @@ async function loadWorkbench(slug: string): Promise<Workbench> {
   const series = await findSeriesBySlug(slug);
   const sequelize = await db();
   const [snapshot, extent, runs, rejected, history, transitions] = await Promise.all([
-    AnalysisSnapshot.findOne({ where: { seriesId: series.id }, order: [['id', 'DESC']] }),
+    AnalysisSnapshot.findOne({ where: { seriesId: series.id }, order: [['id', 'DESC']], attributes: { exclude: ['curves'] } }),
     observationExtent(series.id),
     IngestRun.findAll({ where: { seriesId: series.id }, order: [['id', 'DESC']], limit: 5 }),
     sequelize.query<{ total: number | null }>('SELECT SUM(rejected) AS total FROM ingest_runs WHERE series_id = :id', {
@@ -55,11 +56,13 @@ async function loadWorkbench(slug: string): Promise<Workbench> {
     Transition.findAll({ where: { seriesId: series.id }, order: [['at', 'ASC']] }),
   ]);
   // An error snapshot explains why the evidence is stale; the view then comes from the last good one.
-  const good = snapshot?.status === 'ok' ? snapshot : await AnalysisSnapshot.findOne({ where: { seriesId: series.id, status: 'ok' }, order: [['id', 'DESC']] });
+  const good = snapshot?.status === 'ok'
+    ? snapshot
+    : await AnalysisSnapshot.findOne({ where: { seriesId: series.id, status: 'ok' }, order: [['id', 'DESC']], attributes: { exclude: ['curves'] } });
   return {
     series: presentSeries(series),
     savedSettings: analysisSettingsSchema.parse(series.settings ?? {}),
-    view: good ? viewFromSnapshot(good) : null,
+    view: good ? await loadSnapshotView(good) : null,
     snapshot: snapshot
       ? { id: snapshot.id, createdAt: snapshot.createdAt.toISOString(), status: snapshot.status, error: snapshot.error, dataTo: snapshot.dataTo === null ? null : Number(snapshot.dataTo) }
       : null,

@@ -6,6 +6,7 @@ import * as alertQueues from './0002-alert-queues-and-outbox-claims';
 import * as alertAge from './0003-alert-age-index';
 import * as sessionVersion from './0004-user-session-version';
 import * as alertTauOrder from './0005-alert-tau-order';
+import * as snapshotChartView from './0006-snapshot-chart-view';
 
 /**
  * The ordered list of schema changes. Listed explicitly (not globbed) so the same list works in the Next.js server
@@ -17,6 +18,7 @@ const MIGRATIONS = [
   { name: '0003-alert-age-index', ...alertAge },
   { name: '0004-user-session-version', ...sessionVersion },
   { name: '0005-alert-tau-order', ...alertTauOrder },
+  { name: '0006-snapshot-chart-view', ...snapshotChartView },
 ];
 
 async function migrator(): Promise<Umzug<QueryInterface>> {

@@ -9,6 +9,8 @@ export class AnalysisSnapshot extends Model<InferAttributes<AnalysisSnapshot>, I
   declare summary: Record<string, unknown>;
   /** Per-point curves (possibly thinned for storage) so charts can show the evidence as it was. */
   declare curves: Record<string, unknown> | null;
+  /** The curves as a chart draws them (an `AnalysisView`), saved with the snapshot; null on older snapshots. */
+  declare chartView: CreationOptional<Record<string, unknown> | null>;
   declare status: CreationOptional<'ok' | 'error'>;
   declare error: string | null;
   declare n: CreationOptional<number>;
@@ -26,6 +28,7 @@ export class AnalysisSnapshot extends Model<InferAttributes<AnalysisSnapshot>, I
         settings: { type: DataTypes.JSON, allowNull: false },
         summary: { type: DataTypes.JSON, allowNull: false },
         curves: { type: DataTypes.JSON, allowNull: true },
+        chartView: { type: DataTypes.JSON, allowNull: true },
         status: { type: DataTypes.STRING, allowNull: false, defaultValue: 'ok' },
         error: { type: DataTypes.TEXT, allowNull: true },
         n: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },

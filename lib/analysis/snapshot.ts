@@ -2,60 +2,10 @@ import { QueryTypes } from 'sequelize';
 import { AnalysisSnapshot, db, type Series } from '@/models';
 import { analysisSettingsSchema } from '@/lib/engine/settings';
 import { runAnalysis, summarizeAnalysis, type AnalysisResult } from '@/lib/engine/analyze';
+import { curvesOf } from './curves';
+import { viewFromSnapshot, type AnalysisView } from './view';
 import { AnalysisInputError } from '@/lib/engine/errors';
 import { loadObservations, observationExtent } from './observations';
-
-/** Charts never need more points than a screen is wide; larger records are thinned to at most this many. */
-export const MAX_CURVE_POINTS = 2000;
-
-export interface SnapshotCurves {
-  /** Every `stride`-th analysed point is kept (plus the last one). */
-  stride: number;
-  time: number[];
-  value: (number | null)[];
-  trend: (number | null)[];
-  residual: (number | null)[];
-  indicators: Record<string, (number | null)[]>;
-  /** Surrogate taus per indicator, for the null-distribution histogram. */
-  surrogateTaus: Record<string, number[]>;
-  sensitivity: AnalysisResult['sensitivity'];
-}
-
-function finite(v: number): number | null {
-  return Number.isFinite(v) ? v : null;
-}
-
-/** Indices kept when n points are thinned to at most `max`: 0, s, 2s, … and always n − 1. O(max). */
-export function thinnedIndices(n: number, max = MAX_CURVE_POINTS): { stride: number; indices: number[] } {
-  const stride = Math.max(1, Math.ceil(n / max));
-  const indices: number[] = [];
-  for (let i = 0; i < n; i += stride) indices.push(i);
-  if (n > 0 && indices[indices.length - 1] !== n - 1) {
-    if (indices.length >= max) indices[indices.length - 1] = n - 1;
-    else indices.push(n - 1);
-  }
-  return { stride, indices };
-}
-
-/** The per-point arrays of a result, thinned for charts. O(n). */
-export function curvesOf(result: AnalysisResult, max = MAX_CURVE_POINTS): SnapshotCurves {
-  const { stride, indices } = thinnedIndices(result.series.time.length, max);
-  const pick = (source: ArrayLike<number>) => indices.map((i) => finite(source[i]));
-  const indicators: SnapshotCurves['indicators'] = {};
-  for (const [name, values] of Object.entries(result.indicators)) indicators[name] = indices.map((i) => values![i] ?? null);
-  const surrogateTaus: SnapshotCurves['surrogateTaus'] = {};
-  for (const [name, sig] of Object.entries(result.significance)) surrogateTaus[name] = sig!.taus;
-  return {
-    stride,
-    time: indices.map((i) => result.series.time[i]),
-    value: pick(result.series.value),
-    trend: pick(result.series.trend),
-    residual: pick(result.series.residual),
-    indicators,
-    surrogateTaus,
-    sensitivity: result.sensitivity,
-  };
-}
 
 /**
  * The summary kept on the snapshot: everything but per-point arrays. Surrogate taus and the sensitivity grid
@@ -95,11 +45,14 @@ export async function refreshSeriesAnalysis(series: Series, options: { parallel?
   const dataTo = n ? observations.time[n - 1] : null;
   try {
     const result = await runAnalysis({ ...observations, intervalMs }, settings, options);
+    // Through JSON first, so the saved view is exactly the one the stored row's curves would give (NaN → null).
+    const stored = JSON.parse(JSON.stringify({ summary: snapshotSummary(result), curves: curvesOf(result) }));
     return await AnalysisSnapshot.create({
       seriesId: series.id,
       settings,
-      summary: snapshotSummary(result),
-      curves: curvesOf(result) as unknown as Record<string, unknown>,
+      summary: stored.summary,
+      curves: stored.curves,
+      chartView: viewFromSnapshot({ settings, ...stored }) as unknown as Record<string, unknown>,
       status: 'ok',
       error: null,
       n: result.n,
@@ -114,6 +67,7 @@ export async function refreshSeriesAnalysis(series: Series, options: { parallel?
       settings,
       summary: {},
       curves: null,
+      chartView: null,
       status: 'error',
       error: error instanceof AnalysisInputError ? error.message : `The analysis failed unexpectedly: ${error instanceof Error ? error.message : String(error)}`,
       n,
@@ -122,6 +76,18 @@ export async function refreshSeriesAnalysis(series: Series, options: { parallel?
       durationMs: Math.round(performance.now() - started),
     });
   }
+}
+
+/**
+ * The chart view of a snapshot read without its curves: the view saved with it, or, for a snapshot stored before
+ * views were saved, one built from its curves (the only case that reads them). Null for a failed snapshot and
+ * for one whose curves were pruned.
+ */
+export async function loadSnapshotView(snapshot: Pick<AnalysisSnapshot, 'id' | 'status' | 'chartView'>): Promise<AnalysisView | null> {
+  if (snapshot.status !== 'ok') return null;
+  if (snapshot.chartView) return snapshot.chartView as unknown as AnalysisView;
+  const full = await AnalysisSnapshot.findByPk(snapshot.id, { attributes: ['id', 'status', 'settings', 'summary', 'curves'] });
+  return full ? viewFromSnapshot(full) : null;
 }
 
 /** Snapshots per series that keep their curves besides those an alert points at (its first and latest evidence). */
@@ -135,7 +101,7 @@ export const CURVES_KEPT = 5;
 export async function pruneSnapshotCurves(seriesId: number): Promise<number> {
   const sequelize = await db();
   const thinned = await sequelize.query<{ id: number }>(
-    `UPDATE analysis_snapshots SET curves = NULL
+    `UPDATE analysis_snapshots SET curves = NULL, chart_view = NULL
      WHERE series_id = :seriesId AND curves IS NOT NULL
        AND id < (SELECT id FROM analysis_snapshots WHERE series_id = :seriesId ORDER BY id DESC LIMIT 1 OFFSET :offset)
        AND id NOT IN (SELECT first_snapshot_id FROM alerts WHERE series_id = :seriesId

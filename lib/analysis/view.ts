@@ -2,7 +2,7 @@ import type { AnalysisResult, AnalysisSummary } from '@/lib/engine/analyze';
 import type { SensitivityResult } from '@/lib/engine/sensitivity';
 import { analysisSettingsSchema, type AnalysisSettings, type IndicatorName } from '@/lib/engine/settings';
 import type { PreparationQuality } from '@/lib/engine/prepare';
-import { curvesOf, MAX_CURVE_POINTS, thinnedIndices, type SnapshotCurves } from './snapshot';
+import { curvesOf, MAX_CURVE_POINTS, thinnedIndices, type SnapshotCurves } from './curves';
 
 /** The per-point curves of an analysis as stored on a snapshot and sent to charts (every `stride`-th point). */
 export type CurveSet = SnapshotCurves;

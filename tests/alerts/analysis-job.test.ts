@@ -6,7 +6,8 @@ useTempDataDir();
 import { migrateUp } from '@/migrations';
 import { Alert, AnalysisSnapshot, Observation, Series, db } from '@/models';
 import { acquireLease, releaseLease } from '@/lib/leases';
-import { CURVES_KEPT, curvesOf, pruneSnapshotCurves, refreshSeriesAnalysis, thinnedIndices } from '@/lib/analysis/snapshot';
+import { CURVES_KEPT, pruneSnapshotCurves, refreshSeriesAnalysis } from '@/lib/analysis/snapshot';
+import { curvesOf, thinnedIndices } from '@/lib/analysis/curves';
 import { runAnalysis } from '@/lib/engine/analyze';
 import { analysisSettingsSchema } from '@/lib/engine/settings';
 import { runAnalysisCycle } from '@/jobs/analysis';
@@ -125,14 +126,16 @@ describe('snapshot housekeeping', () => {
     const snapshots = [];
     for (let k = 0; k < 9; k++) {
       const snapshot = await makeSnapshot(series, { tau: k === 1 ? 0.6 : 0.1, surrogateP: 0.01 });
-      await snapshot.update({ curves: { stride: 1, time: [k] } });
+      await snapshot.update({ curves: { stride: 1, time: [k] }, chartView: { n: k } });
       snapshots.push(snapshot);
     }
     const { opened } = await evaluateSnapshots([snapshots[1]]);
     expect(opened).toHaveLength(1);
     expect(await pruneSnapshotCurves(series.id)).toBe(9 - CURVES_KEPT - 1);
-    const kept = (await AnalysisSnapshot.findAll({ where: { seriesId: series.id }, order: [['id', 'ASC']] })).map((s) => s.curves !== null);
-    expect(kept).toEqual([false, true, false, false, true, true, true, true, true]);
+    const after = await AnalysisSnapshot.findAll({ where: { seriesId: series.id }, order: [['id', 'ASC']] });
+    expect(after.map((s) => s.curves !== null)).toEqual([false, true, false, false, true, true, true, true, true]);
+    // the saved chart view goes with the curves it was drawn from
+    expect(after.map((s) => s.chartView !== null)).toEqual([false, true, false, false, true, true, true, true, true]);
   });
 
   it('judges, on the next cycle, a latest snapshot that a rule has not judged yet', async () => {

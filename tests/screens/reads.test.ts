@@ -12,7 +12,8 @@ import { fetchSeriesOverview, freshnessOf } from '@/lib/overview';
 import { sparkline } from '@/lib/display/sparkline';
 import { buildIndicatorTable, indicatorTableCsv } from '@/lib/reports/indicator-export';
 import { previewAnalysis } from '@/lib/analysis/preview';
-import { tauHistogram, thinCurves, viewFromSnapshot } from '@/lib/analysis/view';
+import { tauHistogram, thinCurves, viewFromSnapshot, type AnalysisView } from '@/lib/analysis/view';
+import { fetchWorkbench } from '@/lib/workbench';
 import { changePassword, renameAccount } from '@/lib/account';
 import { fetchAuditPage } from '@/lib/audit-log';
 import { hashPassword, verifyPassword } from '@/lib/auth/password';
@@ -111,6 +112,23 @@ describe('series search for pickers', () => {
 });
 
 describe('analysis views and exports', () => {
+  it('saves the chart view with each snapshot, equal to the view its stored curves give, and rebuilds it for older snapshots', async () => {
+    // A storage check within the project: the view is computed once at analysis time instead of on every page
+    // view, so it must equal what the stored row's curves produce (the view itself is checked in the next tests).
+    const series = await seriesWith('view-saved', 300, NOW, DAY);
+    const { id } = await refreshSeriesAnalysis(series, { parallel: false });
+    const stored = (await AnalysisSnapshot.findByPk(id))!;
+    const fromCurves = JSON.parse(JSON.stringify(viewFromSnapshot(stored)));
+    expect(stored.chartView).toEqual(fromCurves);
+    expect((stored.chartView as unknown as AnalysisView).curves.time.length).toBeGreaterThan(100);
+    expect((await fetchWorkbench('view-saved')).view).toEqual(fromCurves);
+
+    // a snapshot from before saved views (chart_view NULL) is drawn from its curves
+    await AnalysisSnapshot.update({ chartView: null }, { where: { id } });
+    expect((await AnalysisSnapshot.findByPk(id))!.chartView).toBeNull();
+    expect(JSON.parse(JSON.stringify((await fetchWorkbench('view-saved')).view))).toEqual(fromCurves);
+  });
+
   it('keeps every k-th point and the last one when thinning, and bins every surrogate tau once', () => {
     const n = 4999;
     const curves = { stride: 1, time: Array.from({ length: n }, (_, i) => i), value: [], trend: [], residual: [], indicators: { ac1: Array.from({ length: n }, (_, i) => i) }, surrogateTaus: {}, sensitivity: null };

@@ -1,0 +1,58 @@
+import type { AnalysisResult } from '@/lib/engine/analyze';
+
+/**
+ * The per-point curves an analysis keeps for its charts, thinned to a bounded number of points. Pure; shared by
+ * the snapshot store (lib/analysis/snapshot) and the chart views (lib/analysis/view).
+ */
+
+/** Charts never need more points than a screen is wide; larger records are thinned to at most this many. */
+export const MAX_CURVE_POINTS = 2000;
+
+export interface SnapshotCurves {
+  /** Every `stride`-th analysed point is kept (plus the last one). */
+  stride: number;
+  time: number[];
+  value: (number | null)[];
+  trend: (number | null)[];
+  residual: (number | null)[];
+  indicators: Record<string, (number | null)[]>;
+  /** Surrogate taus per indicator, for the null-distribution histogram. */
+  surrogateTaus: Record<string, number[]>;
+  sensitivity: AnalysisResult['sensitivity'];
+}
+
+function finite(v: number): number | null {
+  return Number.isFinite(v) ? v : null;
+}
+
+/** Indices kept when n points are thinned to at most `max`: 0, s, 2s, … and always n − 1. O(max). */
+export function thinnedIndices(n: number, max = MAX_CURVE_POINTS): { stride: number; indices: number[] } {
+  const stride = Math.max(1, Math.ceil(n / max));
+  const indices: number[] = [];
+  for (let i = 0; i < n; i += stride) indices.push(i);
+  if (n > 0 && indices[indices.length - 1] !== n - 1) {
+    if (indices.length >= max) indices[indices.length - 1] = n - 1;
+    else indices.push(n - 1);
+  }
+  return { stride, indices };
+}
+
+/** The per-point arrays of a result, thinned for charts. O(n). */
+export function curvesOf(result: AnalysisResult, max = MAX_CURVE_POINTS): SnapshotCurves {
+  const { stride, indices } = thinnedIndices(result.series.time.length, max);
+  const pick = (source: ArrayLike<number>) => indices.map((i) => finite(source[i]));
+  const indicators: SnapshotCurves['indicators'] = {};
+  for (const [name, values] of Object.entries(result.indicators)) indicators[name] = indices.map((i) => values![i] ?? null);
+  const surrogateTaus: SnapshotCurves['surrogateTaus'] = {};
+  for (const [name, sig] of Object.entries(result.significance)) surrogateTaus[name] = sig!.taus;
+  return {
+    stride,
+    time: indices.map((i) => result.series.time[i]),
+    value: pick(result.series.value),
+    trend: pick(result.series.trend),
+    residual: pick(result.series.residual),
+    indicators,
+    surrogateTaus,
+    sensitivity: result.sensitivity,
+  };
+}
