@@ -1,5 +1,11 @@
 import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize';
 
+/**
+ * Attributes for reads that need a snapshot's numbers but draw nothing: its two large columns (the curves,
+ * hundreds of kB, and the chart view, tens of kB) are left in the database.
+ */
+export const WITHOUT_CHARTS = { exclude: ['curves', 'chartView'] };
+
 /** The engine's result for a series at one moment, with the settings that produced it. */
 export class AnalysisSnapshot extends Model<InferAttributes<AnalysisSnapshot>, InferCreationAttributes<AnalysisSnapshot>> {
   declare id: CreationOptional<number>;

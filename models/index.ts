@@ -95,3 +95,4 @@ export async function writeTransaction<T>(work: (transaction: Transaction) => Pr
 export { closeDatabase } from './db';
 export { ROLES, roleAtLeast, type Role } from './roles';
 export { ALERT_STATES, OPEN_ALERT_STATES, type AlertState } from './Alert';
+export { WITHOUT_CHARTS } from './AnalysisSnapshot';

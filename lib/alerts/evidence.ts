@@ -1,5 +1,5 @@
 import type { Transaction } from 'sequelize';
-import { AlertRule, AnalysisSnapshot, Series, type Alert } from '@/models';
+import { AlertRule, AnalysisSnapshot, Series, WITHOUT_CHARTS, type Alert } from '@/models';
 import type { AlertEvidence } from '@/lib/mail/templates';
 import { presentRule } from './rules';
 
@@ -60,7 +60,7 @@ export async function alertEvidence(alert: Alert, transaction?: Transaction): Pr
   const [series, rule, snapshot] = await Promise.all([
     Series.findByPk(alert.seriesId, { transaction }),
     AlertRule.findByPk(alert.ruleId, { transaction }),
-    AnalysisSnapshot.findByPk(alert.latestSnapshotId, { transaction, attributes: { exclude: ['curves'] } }),
+    AnalysisSnapshot.findByPk(alert.latestSnapshotId, { transaction, attributes: WITHOUT_CHARTS }),
   ]);
   if (!series || !rule || !snapshot) throw new Error(`alert ${alert.id} lost its series, rule or snapshot`);
   return evidenceFrom(alert, series, rule, snapshot);

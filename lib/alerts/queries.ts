@@ -163,8 +163,9 @@ export async function fetchAlertDetail(id: number, actor?: Pick<Actor, 'role'>) 
   if (!alert) throw new NotFoundError('Alert');
   const joined = alert as Alert & { series: Series; rule: AlertRule; assignee: User | null };
   const [first, latest, events, notes, evaluations] = await Promise.all([
-    AnalysisSnapshot.findByPk(alert.firstSnapshotId),
-    alert.latestSnapshotId === alert.firstSnapshotId ? null : AnalysisSnapshot.findByPk(alert.latestSnapshotId),
+    // The evidence is answered with its full curves; the saved chart view is not needed for that.
+    AnalysisSnapshot.findByPk(alert.firstSnapshotId, { attributes: { exclude: ['chartView'] } }),
+    alert.latestSnapshotId === alert.firstSnapshotId ? null : AnalysisSnapshot.findByPk(alert.latestSnapshotId, { attributes: { exclude: ['chartView'] } }),
     AlertEvent.findAll({ where: { alertId: id }, include: [{ model: User, as: 'actor', attributes: ['id', 'name'] }], order: [['id', 'ASC']] }),
     Note.findAll({ where: { alertId: id }, include: [{ model: User, as: 'author', attributes: ['id', 'name'] }, { model: NoteRevision, as: 'revisions' }], order: [['id', 'ASC']] }),
     RuleEvaluation.findAll({ where: { alertId: id }, order: [['snapshotId', 'ASC']], limit: 500 }),

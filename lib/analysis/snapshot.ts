@@ -1,5 +1,5 @@
 import { QueryTypes } from 'sequelize';
-import { AnalysisSnapshot, db, type Series } from '@/models';
+import { AnalysisSnapshot, WITHOUT_CHARTS, db, type Series } from '@/models';
 import { analysisSettingsSchema } from '@/lib/engine/settings';
 import { runAnalysis, summarizeAnalysis, type AnalysisResult } from '@/lib/engine/analyze';
 import { curvesOf } from './curves';
@@ -129,5 +129,5 @@ export async function unjudgedLatestSnapshots(): Promise<AnalysisSnapshot[]> {
     { type: QueryTypes.SELECT },
   );
   if (!rows.length) return [];
-  return AnalysisSnapshot.findAll({ where: { id: rows.map((r) => r.id) }, attributes: { exclude: ['curves'] } });
+  return AnalysisSnapshot.findAll({ where: { id: rows.map((r) => r.id) }, attributes: WITHOUT_CHARTS });
 }

@@ -3,7 +3,7 @@ import { z } from 'zod';
 import { analyseStored, boundedSettings } from '@/lib/analysis/preview';
 import type { AnalysisSummary } from '@/lib/engine/analyze';
 import { analysisSettingsSchema, type AnalysisSettings, type IndicatorName } from '@/lib/engine/settings';
-import { AnalysisSnapshot, db, type Series } from '@/models';
+import { AnalysisSnapshot, WITHOUT_CHARTS, db, type Series } from '@/models';
 
 export const exportQuerySchema = z.object({ format: z.enum(['csv', 'json']).default('csv') });
 export const exportBodySchema = z.object({ settings: analysisSettingsSchema });
@@ -38,7 +38,7 @@ export async function buildIndicatorTable(series: Series, posted?: AnalysisSetti
   let settings = posted ? boundedSettings(posted) : null;
   let snapshot: AnalysisSnapshot | null = null;
   if (!settings) {
-    snapshot = await AnalysisSnapshot.findOne({ where: { seriesId: series.id, status: 'ok' }, order: [['id', 'DESC']] });
+    snapshot = await AnalysisSnapshot.findOne({ where: { seriesId: series.id, status: 'ok' }, order: [['id', 'DESC']], attributes: WITHOUT_CHARTS });
     source = snapshot ? 'snapshot' : 'saved-settings';
     settings = analysisSettingsSchema.parse(snapshot?.settings ?? series.settings ?? {});
   }

@@ -1,5 +1,5 @@
 import { Op, QueryTypes, UniqueConstraintError, col, fn, where, type WhereOptions } from 'sequelize';
-import { AnalysisSnapshot, Series, SettingsChange, db, writeTransaction } from '@/models';
+import { AnalysisSnapshot, Series, SettingsChange, WITHOUT_CHARTS, db, writeTransaction } from '@/models';
 import { observationExtent } from '@/lib/analysis/observations';
 import { ConflictError, NotFoundError } from '@/lib/http/errors';
 import { recordAudit } from '@/lib/audit';
@@ -93,8 +93,8 @@ async function loadSeriesDetail(slug: string) {
   const series = await findSeriesBySlug(slug);
   const [extent, latest] = await Promise.all([
     observationExtent(series.id),
-    // Without the per-point curves (hundreds of kB on a long record): this answer only carries the summary.
-    AnalysisSnapshot.findOne({ where: { seriesId: series.id }, order: [['id', 'DESC']], attributes: { exclude: ['curves'] } }),
+    // This answer carries the summary only, so the large chart columns stay unread.
+    AnalysisSnapshot.findOne({ where: { seriesId: series.id }, order: [['id', 'DESC']], attributes: WITHOUT_CHARTS }),
   ]);
   return {
     ...presentSeries(series),
