@@ -12,14 +12,16 @@ const TYPING_PAUSE_MS = 200;
 
 /**
  * Choosing one series out of hundreds: a text box that asks GET /api/series?find=… as one types and lists the
- * matches (keyboard: arrows, Enter, Escape), instead of a menu holding every series. `value` null means all series.
+ * matches (keyboard: arrows, Enter, Escape), instead of a menu holding every series. As a filter, `value` null
+ * means all series and ✕ returns to that; with `required` there is no "all", only a prompt to choose.
  */
-export function SeriesPicker({ label, value, onChange, allLabel = 'All series' }: {
+export function SeriesPicker({ label, value, onChange, required = false }: {
   label: string;
   value: SeriesChoice | null;
   onChange: (choice: SeriesChoice | null) => void;
-  allLabel?: string;
+  required?: boolean;
 }) {
+  const emptyLabel = required ? 'Choose a series' : 'All series';
   const id = useId();
   const [text, setText] = useState('');
   const [asked, setAsked] = useState('');
@@ -71,7 +73,7 @@ export function SeriesPicker({ label, value, onChange, allLabel = 'All series' }
           aria-activedescendant={open && items[active] ? `${listId}-${active}` : undefined}
           autoComplete="off"
           value={text}
-          placeholder={value ? value.name : allLabel}
+          placeholder={value ? value.name : emptyLabel}
           onChange={(event) => {
             setText(event.target.value);
             setActive(0);
@@ -82,8 +84,8 @@ export function SeriesPicker({ label, value, onChange, allLabel = 'All series' }
           onKeyDown={onKeyDown}
           className={`w-48 rounded border border-rule bg-card px-2 py-1.5 text-sm font-normal text-ink ${value ? 'placeholder:text-ink' : ''}`}
         />
-        {value ? (
-          <button type="button" onClick={() => choose(null)} className="rounded px-1.5 py-1 text-sm text-tide hover:underline" aria-label={`Show ${allLabel.toLowerCase()} instead of ${value.name}`}>
+        {value && !required ? (
+          <button type="button" onClick={() => choose(null)} className="rounded px-1.5 py-1 text-sm text-tide hover:underline" aria-label={`Show all series instead of ${value.name}`}>
             ✕
           </button>
         ) : null}

@@ -4,7 +4,9 @@ import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { useState } from 'react';
 import { api } from '@/components/api';
 import { LocalTime } from '@/components/LocalTime';
+import { SeriesPicker } from '@/components/SeriesPicker';
 import { Empty, ErrorNote, Loading } from '@/components/States';
+import type { SeriesChoice } from '@/lib/series/registry';
 
 interface TokenRow {
   id: number;
@@ -17,9 +19,10 @@ interface TokenRow {
 const control = 'rounded border border-rule bg-card px-2 py-1.5 text-sm';
 
 /** Push-API tokens of one series: issue (the secret is shown once), see last use, revoke. */
-export function TokensAdmin({ series }: { series: { slug: string; name: string }[] }) {
+export function TokensAdmin({ hasSeries }: { hasSeries: boolean }) {
   const client = useQueryClient();
-  const [slug, setSlug] = useState(series[0]?.slug ?? '');
+  const [series, setSeries] = useState<SeriesChoice | null>(null);
+  const slug = series?.slug ?? '';
   const [label, setLabel] = useState('');
   const [secret, setSecret] = useState<string | null>(null);
   const key = ['tokens', slug];
@@ -37,20 +40,16 @@ export function TokensAdmin({ series }: { series: { slug: string; name: string }
     },
   });
   const revoke = useMutation({ mutationFn: (id: number) => api(`/api/tokens/${id}`, { method: 'DELETE' }), onSuccess: () => client.invalidateQueries({ queryKey: key }) });
-  if (series.length === 0) return <Empty>Register a series first.</Empty>;
+  if (!hasSeries) return <Empty>Register a series first.</Empty>;
   return (
     <div className="space-y-4">
       <div className="flex flex-wrap items-end gap-3">
-        <label className="flex flex-col text-xs font-medium text-ink-soft">Series
-          <select value={slug} onChange={(e) => { setSlug(e.target.value); setSecret(null); }} className={`${control} mt-1`}>
-            {series.map((s) => <option key={s.slug} value={s.slug}>{s.name}</option>)}
-          </select>
-        </label>
+        <SeriesPicker label="Series" required value={series} onChange={(choice) => { setSeries(choice); setSecret(null); }} />
         <form className="flex flex-wrap items-end gap-2" onSubmit={(e) => { e.preventDefault(); issue.mutate(); }}>
           <label className="flex flex-col text-xs font-medium text-ink-soft">Label (who uses it)
             <input value={label} onChange={(e) => setLabel(e.target.value)} className={`${control} mt-1`} placeholder="e.g. buoy logger 3" />
           </label>
-          <button type="submit" disabled={issue.isPending} className="rounded bg-tide px-3 py-1.5 text-sm font-medium text-white disabled:opacity-50">Issue a token</button>
+          <button type="submit" disabled={issue.isPending || !series} className="rounded bg-tide px-3 py-1.5 text-sm font-medium text-white disabled:opacity-50">Issue a token</button>
         </form>
       </div>
       {secret ? (
@@ -61,7 +60,7 @@ export function TokensAdmin({ series }: { series: { slug: string; name: string }
       ) : null}
       {issue.isError ? <ErrorNote error={issue.error}>No token issued.</ErrorNote> : null}
       {revoke.isError ? <ErrorNote error={revoke.error}>Not revoked.</ErrorNote> : null}
-      {tokens.isPending ? <Loading /> : tokens.isError ? <ErrorNote error={tokens.error} /> : tokens.data.length === 0 ? <Empty>No tokens for this series.</Empty> : (
+      {!series ? <p className="text-sm text-ink-soft">Choose a series to see its tokens and issue one.</p> : tokens.isPending ? <Loading /> : tokens.isError ? <ErrorNote error={tokens.error} /> : tokens.data.length === 0 ? <Empty>No tokens for this series.</Empty> : (
         <ul className="divide-y divide-rule rounded-lg border border-rule bg-card text-sm">
           {tokens.data.map((t) => (
             <li key={t.id} className="flex flex-wrap items-center gap-3 px-3 py-2">

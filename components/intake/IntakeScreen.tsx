@@ -4,11 +4,11 @@ import { DropFolders } from './DropFolders';
 import { RunsTable } from './RunsTable';
 import { UploadPanel } from './UploadPanel';
 
-export function IntakeScreen({ series, canUpload }: { series: { slug: string; name: string }[]; canUpload: boolean }) {
+export function IntakeScreen({ hasSeries, canUpload }: { hasSeries: boolean; canUpload: boolean }) {
   return (
     <div className="space-y-8">
-      {canUpload && <UploadPanel series={series} />}
-      <RunsTable series={series} />
+      {canUpload && <UploadPanel hasSeries={hasSeries} />}
+      <RunsTable />
       <DropFolders />
     </div>
   );

@@ -2,14 +2,17 @@
 
 import { keepPreviousData, useQuery } from '@tanstack/react-query';
 import { useState } from 'react';
+import { SeriesPicker } from '@/components/SeriesPicker';
+import type { SeriesChoice } from '@/lib/series/registry';
 import { fetchJson, formatCount, formatDuration, type RunSummary } from './api';
 import { RunReport } from './RunReport';
 import { StatusBadge } from './StatusBadge';
 
 const PAGE_SIZE = 20;
 
-export function RunsTable({ series }: { series: { slug: string; name: string }[] }) {
-  const [slug, setSlug] = useState('');
+export function RunsTable() {
+  const [series, setSeries] = useState<SeriesChoice | null>(null);
+  const slug = series?.slug ?? '';
   const [status, setStatus] = useState('');
   const [page, setPage] = useState(1);
   const [open, setOpen] = useState<number | null>(null);
@@ -24,15 +27,10 @@ export function RunsTable({ series }: { series: { slug: string; name: string }[]
   return (
     <section aria-labelledby="runs-title" className="space-y-3">
       <h2 id="runs-title" className="text-lg font-semibold">Ingest runs</h2>
-      <div className="flex flex-wrap gap-3 text-sm">
-        <label className="flex items-center gap-2">Series
-          <select value={slug} onChange={(e) => { setSlug(e.target.value); setPage(1); }} className="rounded border border-rule bg-card px-2 py-1">
-            <option value="">All series</option>
-            {series.map((s) => <option key={s.slug} value={s.slug}>{s.name}</option>)}
-          </select>
-        </label>
-        <label className="flex items-center gap-2">Status
-          <select value={status} onChange={(e) => { setStatus(e.target.value); setPage(1); }} className="rounded border border-rule bg-card px-2 py-1">
+      <div className="flex flex-wrap items-end gap-3 text-sm">
+        <SeriesPicker label="Series" value={series} onChange={(choice) => { setSeries(choice); setPage(1); }} />
+        <label className="flex flex-col text-xs font-medium text-ink-soft">Status
+          <select value={status} onChange={(e) => { setStatus(e.target.value); setPage(1); }} className="mt-1 rounded border border-rule bg-card px-2 py-1.5 text-sm font-normal text-ink">
             <option value="">Any status</option>
             {['succeeded', 'rejected', 'failed', 'running'].map((s) => <option key={s} value={s}>{s}</option>)}
           </select>

@@ -3,6 +3,8 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { useId, useState, type DragEvent } from 'react';
 import { Caution } from '@/components/Caution';
+import { SeriesPicker } from '@/components/SeriesPicker';
+import type { SeriesChoice } from '@/lib/series/registry';
 import { fetchJson, formatCount, type RejectedRow } from './api';
 import { RejectedRowsTable } from './RejectedRowsTable';
 
@@ -53,10 +55,12 @@ function send(slug: string, file: File, mapping: Partial<Mapping> | null, commit
 }
 
 /** Upload flow: pick or drop a CSV, check what was detected, adjust the mapping, read the summary, then commit. */
-export function UploadPanel({ series }: { series: { slug: string; name: string }[] }) {
+export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
   const id = useId();
   const client = useQueryClient();
-  const [slug, setSlug] = useState(series[0]?.slug ?? '');
+  // No series is preselected: an upload goes where its sender chose, never to whichever came first.
+  const [target, setTarget] = useState<SeriesChoice | null>(null);
+  const slug = target?.slug ?? '';
   const [file, setFile] = useState<File | null>(null);
   const [mapping, setMapping] = useState<Mapping | null>(null);
   const [dragging, setDragging] = useState(false);
@@ -106,15 +110,12 @@ export function UploadPanel({ series }: { series: { slug: string; name: string }
   const columns = data?.layout ? Array.from({ length: Math.max(data.layout.fieldCount, 1) }, (_, i) => data.layout!.header?.[i] || `Column ${i + 1}`) : [];
   const summary = data?.summary;
 
-  if (series.length === 0) return <p className="text-sm text-ink-soft">Register a series before uploading data.</p>;
+  if (!hasSeries) return <p className="text-sm text-ink-soft">Register a series before uploading data.</p>;
   return (
     <section aria-labelledby={`${id}-title`} className="space-y-4 rounded border border-rule bg-card p-4" data-testid="upload-panel">
       <h2 id={`${id}-title`} className="text-lg font-semibold">Upload a CSV</h2>
-      <label className="flex items-center gap-2 text-sm">Series
-        <select value={slug} onChange={(e) => { setSlug(e.target.value); choose(null); }} className="rounded border border-rule bg-card px-2 py-1">
-          {series.map((s) => <option key={s.slug} value={s.slug}>{s.name}</option>)}
-        </select>
-      </label>
+      <SeriesPicker label="Series" required value={target} onChange={(choice) => { setTarget(choice); choose(null); }} />
+      {!target ? <p className="text-sm text-ink-soft">Choose the series these observations belong to, then the file.</p> : (
       <label
         htmlFor={`${id}-file`}
         onDragOver={(e) => { e.preventDefault(); setDragging(true); }}
@@ -126,6 +127,7 @@ export function UploadPanel({ series }: { series: { slug: string; name: string }
         <span className="text-ink-soft">Up to 50 MB. Nothing is stored until you commit.</span>
         <input id={`${id}-file`} type="file" accept=".csv,text/csv,text/plain" className="mt-2 text-sm" onChange={(e) => choose(e.target.files?.[0] ?? null)} />
       </label>
+      )}
       {sizeError && <p role="alert" className="text-sm text-warning">{sizeError}</p>}
       {preview.isPending && <p role="status" className="text-sm text-ink-soft">Reading the file…</p>}
       {preview.isError && <p role="alert" className="text-sm text-warning">{preview.error.message}</p>}

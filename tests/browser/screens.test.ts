@@ -183,7 +183,10 @@ describe('screens in Chromium', () => {
     const page = await open('lead', '/intake');
     const panel = page.getByTestId('upload-panel');
     await panel.waitFor();
-    await panel.getByLabel('Series').selectOption('browser-upload-check');
+    // no series is preselected: the file input appears once one is chosen in the search box
+    await expect(panel.locator('input[type="file"]').count()).resolves.toBe(0);
+    await panel.getByRole('combobox', { name: 'Series' }).fill('upload che');
+    await panel.getByRole('option', { name: /Upload check/ }).click();
     await panel.locator('input[type="file"]').setInputFiles({ name: 'upload-check.csv', mimeType: 'text/csv', buffer: Buffer.from(lines.join('\n') + '\n') });
     await panel.getByTestId('validation-summary').waitFor({ timeout: 30_000 });
     await panel.getByRole('button', { name: /^Commit 40 points/ }).click();
@@ -204,6 +207,11 @@ describe('screens in Chromium', () => {
     ] as const) {
       const page = await open(role, pathname);
       await page.getByRole('heading', { level: 1 }).waitFor();
+      if (pathname === '/admin/tokens') {
+        await page.getByRole('combobox', { name: 'Series' }).fill('upload check');
+        await page.getByRole('option', { name: /Upload check/ }).click();
+        await page.getByText('No tokens for this series.').waitFor();
+      }
       await page.waitForLoadState('networkidle');
       // Next.js keeps its own route announcer (role="alert") outside <main>; ours sit inside.
       await expect(page.locator('main [role="alert"]').count()).resolves.toBe(0);

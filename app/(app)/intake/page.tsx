@@ -12,7 +12,7 @@ export default async function IntakePage() {
     <section className="space-y-4">
       <h1 className="text-xl font-semibold">Data intake</h1>
       <p className="text-sm text-ink-soft">Every file dropped into a series folder, every upload and every push is recorded here with its counts and report.</p>
-      <IntakeScreen series={series} canUpload={roleAtLeast(actor.role, 'lead')} />
+      <IntakeScreen hasSeries={series.length > 0} canUpload={roleAtLeast(actor.role, 'lead')} />
     </section>
   );
 }

@@ -11,7 +11,7 @@ export default async function AdminTokensPage() {
     <section className="space-y-3">
       <h1 className="text-xl font-semibold">Ingest tokens</h1>
       <p className="text-sm text-ink-soft">A token lets one logger or script push observations to one series. Revoke it when the device is retired.</p>
-      <TokensAdmin series={series} />
+      <TokensAdmin hasSeries={series.length > 0} />
     </section>
   );
 }
