@@ -131,7 +131,10 @@ function toIso(value: unknown): string {
   return new Date(String(value).replace(' +00:00', 'Z').replace(' ', 'T')).toISOString();
 }
 
-function presentSnapshot(snapshot: AnalysisSnapshot | null, withCurves: boolean) {
+/** How a detail carries its evidence snapshots' charts: full curves (the API) or the saved chart views (the page). */
+export type EvidenceCharts = 'curves' | 'views';
+
+function presentSnapshot(snapshot: AnalysisSnapshot | null, charts: EvidenceCharts) {
   if (!snapshot) return null;
   return {
     id: snapshot.id,
@@ -142,7 +145,7 @@ function presentSnapshot(snapshot: AnalysisSnapshot | null, withCurves: boolean)
     n: snapshot.n,
     dataFrom: snapshot.dataFrom === null ? null : Number(snapshot.dataFrom),
     dataTo: snapshot.dataTo === null ? null : Number(snapshot.dataTo),
-    ...(withCurves ? { curves: snapshot.curves } : {}),
+    ...(charts === 'curves' ? { curves: snapshot.curves } : { chartView: snapshot.chartView }),
   };
 }
 
@@ -151,7 +154,7 @@ function presentSnapshot(snapshot: AnalysisSnapshot | null, withCurves: boolean)
  * their curves), the evaluation trail, the timeline with who and when, notes with their edit history, and the
  * actions the asking user may take.
  */
-export async function fetchAlertDetail(id: number, actor?: Pick<Actor, 'role'>) {
+export async function fetchAlertDetail(id: number, actor?: Pick<Actor, 'role'>, charts: EvidenceCharts = 'curves') {
   await db();
   const alert = await Alert.findByPk(id, {
     include: [
@@ -163,9 +166,11 @@ export async function fetchAlertDetail(id: number, actor?: Pick<Actor, 'role'>) 
   if (!alert) throw new NotFoundError('Alert');
   const joined = alert as Alert & { series: Series; rule: AlertRule; assignee: User | null };
   const [first, latest, events, notes, evaluations] = await Promise.all([
-    // The evidence is answered with its full curves; the saved chart view is not needed for that.
-    AnalysisSnapshot.findByPk(alert.firstSnapshotId, { attributes: { exclude: ['chartView'] } }),
-    alert.latestSnapshotId === alert.firstSnapshotId ? null : AnalysisSnapshot.findByPk(alert.latestSnapshotId, { attributes: { exclude: ['chartView'] } }),
+    // Only the large column the answer carries is read: the curves or the chart view.
+    AnalysisSnapshot.findByPk(alert.firstSnapshotId, { attributes: { exclude: [charts === 'curves' ? 'chartView' : 'curves'] } }),
+    alert.latestSnapshotId === alert.firstSnapshotId
+      ? null
+      : AnalysisSnapshot.findByPk(alert.latestSnapshotId, { attributes: { exclude: [charts === 'curves' ? 'chartView' : 'curves'] } }),
     AlertEvent.findAll({ where: { alertId: id }, include: [{ model: User, as: 'actor', attributes: ['id', 'name'] }], order: [['id', 'ASC']] }),
     Note.findAll({ where: { alertId: id }, include: [{ model: User, as: 'author', attributes: ['id', 'name'] }, { model: NoteRevision, as: 'revisions' }], order: [['id', 'ASC']] }),
     RuleEvaluation.findAll({ where: { alertId: id }, order: [['snapshotId', 'ASC']], limit: 500 }),
@@ -185,8 +190,8 @@ export async function fetchAlertDetail(id: number, actor?: Pick<Actor, 'role'>) 
     rule: presentRule(joined.rule),
     assignee: joined.assignee ? { id: joined.assignee.id, name: joined.assignee.name, email: joined.assignee.email } : null,
     evidence: {
-      first: presentSnapshot(first, true),
-      latest: presentSnapshot(latest ?? first, true),
+      first: presentSnapshot(first, charts),
+      latest: presentSnapshot(latest ?? first, charts),
       evaluations: evaluations.map((e) => ({ snapshotId: e.snapshotId, tau: e.tau, kendallP: e.kendallP, surrogateP: e.surrogateP, qValue: e.qValue, level: e.level, streak: e.streak, outcome: e.outcome, at: e.createdAt })),
     },
     timeline: events.map((e) => {

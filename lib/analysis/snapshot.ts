@@ -83,7 +83,7 @@ export async function refreshSeriesAnalysis(series: Series, options: { parallel?
  * views were saved, one built from its curves (the only case that reads them). Null for a failed snapshot and
  * for one whose curves were pruned.
  */
-export async function loadSnapshotView(snapshot: Pick<AnalysisSnapshot, 'id' | 'status' | 'chartView'>): Promise<AnalysisView | null> {
+export async function loadSnapshotView(snapshot: { id: number; status: string; chartView?: Record<string, unknown> | null }): Promise<AnalysisView | null> {
   if (snapshot.status !== 'ok') return null;
   if (snapshot.chartView) return snapshot.chartView as unknown as AnalysisView;
   const full = await AnalysisSnapshot.findByPk(snapshot.id, { attributes: ['id', 'status', 'settings', 'summary', 'curves'] });

@@ -14,6 +14,8 @@ import { buildIndicatorTable, indicatorTableCsv } from '@/lib/reports/indicator-
 import { previewAnalysis } from '@/lib/analysis/preview';
 import { tauHistogram, thinCurves, viewFromSnapshot, type AnalysisView } from '@/lib/analysis/view';
 import { fetchWorkbench } from '@/lib/workbench';
+import { fetchAlertPage } from '@/lib/alert-page';
+import { fetchAlertDetail } from '@/lib/alerts/queries';
 import { changePassword, renameAccount } from '@/lib/account';
 import { fetchAuditPage } from '@/lib/audit-log';
 import { hashPassword, verifyPassword } from '@/lib/auth/password';
@@ -122,6 +124,14 @@ describe('analysis views and exports', () => {
     expect(stored.chartView).toEqual(fromCurves);
     expect((stored.chartView as unknown as AnalysisView).curves.time.length).toBeGreaterThan(100);
     expect((await fetchWorkbench('view-saved')).view).toEqual(fromCurves);
+    // the alert page draws its evidence from the same saved views, while the API still answers the full curves
+    const later = await refreshSeriesAnalysis(series, { parallel: false });
+    const rule = await AlertRule.create({ seriesId: series.id, indicator: 'ac1', minTau: 0.3, maxSurrogateP: null, maxKendallP: null, levelThreshold: null, severity: 'watch', fdrLevel: null, createdBy: null });
+    const alert = await Alert.create({ seriesId: series.id, ruleId: rule.id, state: 'new', severity: 'watch', assigneeId: null, firstSnapshotId: id, latestSnapshotId: later.id, peakTau: 0.5, dismissReason: null, closedAt: null });
+    const page = await fetchAlertPage(alert.id, { id: analyst.id, email: analyst.email, name: analyst.name, role: 'analyst' });
+    expect(page.firstView).toEqual(fromCurves);
+    expect(page.latestView).toEqual((await AnalysisSnapshot.findByPk(later.id))!.chartView);
+    expect((await fetchAlertDetail(alert.id)).evidence.first).toMatchObject({ curves: stored.curves });
 
     // a snapshot from before saved views (chart_view NULL) is drawn from its curves
     await AnalysisSnapshot.update({ chartView: null }, { where: { id } });
