@@ -3,7 +3,7 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { signOut } from 'next-auth/react';
 import { useRouter } from 'next/navigation';
-import { useState, type FormEvent } from 'react';
+import { useMemo, useState, type FormEvent } from 'react';
 import { api, ApiError } from '@/components/api';
 import { Empty, ErrorNote, Loading, Panel } from '@/components/States';
 
@@ -51,7 +51,13 @@ export function AccountForms({ name, email, role, series }: { name: string; emai
     e.preventDefault();
     change.mutate();
   }
-  const modeOf = (slug: string) => watches.data?.find((w) => w.slug === slug)?.mode ?? 'none';
+  const modes = useMemo(() => new Map((watches.data ?? []).map((w) => [w.slug, w.mode])), [watches.data]);
+  const modeOf = (slug: string) => modes.get(slug) ?? 'none';
+  // A network of hundreds of series: find one by name, or list only those that send mail now.
+  const [find, setFind] = useState('');
+  const [onlyMailing, setOnlyMailing] = useState(false);
+  const needle = find.trim().toLowerCase();
+  const listed = series.filter((s) => (!needle || `${s.name} ${s.slug}`.toLowerCase().includes(needle)) && (!onlyMailing || modeOf(s.slug) !== 'none'));
 
   return (
     <div className="grid grid-cols-1 gap-4 lg:grid-cols-2">
@@ -87,9 +93,20 @@ export function AccountForms({ name, email, role, series }: { name: string; emai
       </Panel>
       <div className="lg:col-span-2">
         <Panel title="Mail about each series" id="mail">
-          {watches.isPending ? <Loading /> : watches.isError ? <ErrorNote error={watches.error} /> : series.length === 0 ? <Empty>No series yet.</Empty> : (
+          {series.length > 0 ? (
+            <div className="mb-2 flex flex-wrap items-end gap-3 text-sm" role="search">
+              <label className="flex flex-col text-xs font-medium text-ink-soft">Find a series
+                <input type="search" value={find} onChange={(e) => setFind(e.target.value)} placeholder="Name or slug" className="mt-1 w-56 rounded border border-rule bg-card px-2 py-1.5 text-sm font-normal text-ink" />
+              </label>
+              <label className="flex items-center gap-2 pb-1.5">
+                <input type="checkbox" checked={onlyMailing} onChange={(e) => setOnlyMailing(e.target.checked)} /> Only series that send me mail
+              </label>
+              <span className="ml-auto pb-1.5 text-ink-soft" aria-live="polite">{listed.length} of {series.length} series</span>
+            </div>
+          ) : null}
+          {watches.isPending ? <Loading /> : watches.isError ? <ErrorNote error={watches.error} /> : series.length === 0 ? <Empty>No series yet.</Empty> : listed.length === 0 ? <Empty>No series match.</Empty> : (
             <ul className="divide-y divide-rule text-sm">
-              {series.map((s) => (
+              {listed.map((s) => (
                 <li key={s.slug} className="flex flex-wrap items-center gap-3 py-2">
                   <span className="min-w-48 flex-1">{s.name}</span>
                   <label className="flex items-center gap-2">

@@ -212,6 +212,15 @@ describe('screens in Chromium', () => {
         await page.getByRole('option', { name: /Upload check/ }).click();
         await page.getByText('No tokens for this series.').waitFor();
       }
+      if (pathname === '/account') {
+        const mail = page.getByRole('region', { name: 'Mail about each series' });
+        await mail.locator('li').first().waitFor();
+        const all = await mail.locator('li').count();
+        await page.getByRole('searchbox', { name: 'Find a series' }).fill('salinity');
+        await expect.poll(() => mail.locator('li').count()).toBe(1);
+        await page.getByRole('searchbox', { name: 'Find a series' }).fill('');
+        await expect.poll(() => mail.locator('li').count()).toBe(all);
+      }
       await page.waitForLoadState('networkidle');
       // Next.js keeps its own route announcer (role="alert") outside <main>; ours sit inside.
       await expect(page.locator('main [role="alert"]').count()).resolves.toBe(0);
