@@ -1,4 +1,5 @@
 import { Readable } from 'node:stream';
+import iconv from 'iconv-lite';
 import Papa from 'papaparse';
 
 export type Delimiter = ',' | ';' | '\t' | '|';
@@ -7,9 +8,12 @@ export const DELIMITERS: readonly Delimiter[] = ['\t', ';', '|', ','];
 /** A time,value line is well under 100 characters; anything this long is not a record but a broken or hostile file. */
 export const MAX_LINE_CHARS = 65_536;
 const SNIFF_CHARS = 65_536;
+/** Bytes looked at to choose the encoding of a file without a byte order mark. */
+const SNIFF_BYTES = 65_536;
 const SNIFF_LINES = 20;
 
-export type CsvInput = string | AsyncIterable<Uint8Array | string>;
+/** CSV text, the bytes of a whole body (push, upload), or a byte/text stream (drop files). */
+export type CsvInput = string | Uint8Array | AsyncIterable<Uint8Array | string>;
 
 /** A problem with the file as a whole: nothing in it can be read as rows. */
 export class CsvFileError extends Error {
@@ -26,7 +30,7 @@ export interface CsvLayout {
   delimiter: Delimiter;
   /** False when no candidate split the sample into two or more columns (the file may use another delimiter). */
   delimiterDetected: boolean;
-  encoding: 'utf-8' | 'utf-16le' | 'utf-16be';
+  encoding: 'utf-8' | 'utf-16le' | 'utf-16be' | 'windows-1252';
   bom: boolean;
   /** Most common number of fields per line in the sample. */
   fieldCount: number;
@@ -54,6 +58,8 @@ async function* chunksOf(input: CsvInput): AsyncGenerator<Uint8Array | string> {
   if (typeof input === 'string') {
     // Slices keep the line-length guard and papaparse working on bounded pieces even for one huge string.
     for (let i = 0; i < input.length; i += SNIFF_CHARS) yield input.slice(i, i + SNIFF_CHARS);
+  } else if (input instanceof Uint8Array) {
+    for (let i = 0; i < input.length; i += SNIFF_BYTES) yield input.subarray(i, i + SNIFF_BYTES);
   } else {
     yield* input;
   }
@@ -75,16 +81,27 @@ export function byteOrderMark(head: Uint8Array): { bom: boolean; encoding: CsvLa
 }
 
 /**
- * A whole CSV body already in memory (push, upload) as text, in the encoding its byte order mark names, so those
- * paths read UTF-16 exports exactly as drop folders do. The mark is kept, so the reader still reports it.
+ * The encoding to read a file with, from its first bytes: the one its byte order mark names; else UTF-8 when
+ * those bytes are well-formed UTF-8 (WHATWG Encoding Standard, §4 and the UTF-8 decoder's error mode), and
+ * otherwise Windows-1252, which older spreadsheet and logger exports in Western European languages write (a
+ * degree sign or an accented site name is one byte there and malformed as UTF-8). `complete` says the bytes are
+ * the whole file, so a sequence cut off at the end is an error rather than the start of the next chunk.
  */
-export function decodeCsvBytes(bytes: Uint8Array): string {
-  return new TextDecoder(byteOrderMark(bytes).encoding, { ignoreBOM: true }).decode(bytes);
+export function chooseEncoding(head: Uint8Array, complete: boolean): { bom: boolean; encoding: CsvLayout['encoding'] } {
+  const mark = byteOrderMark(head);
+  if (mark.bom) return mark;
+  try {
+    new TextDecoder('utf-8', { fatal: true }).decode(head.subarray(0, SNIFF_BYTES), { stream: !complete || head.length > SNIFF_BYTES });
+    return mark;
+  } catch {
+    return { bom: false, encoding: 'windows-1252' };
+  }
 }
 
 /**
- * Decodes the input to text. The byte order mark picks the encoding (UTF-8 without one), and is dropped; gzip and
- * zip signatures are refused with a message, since such a file is an archive of a CSV rather than a CSV.
+ * Decodes the input to text in the encoding `chooseEncoding` picks from the first 64 KiB; a byte order mark is
+ * dropped. Gzip and zip signatures are refused with a message, since such a file is an archive of a CSV rather
+ * than a CSV.
  */
 async function* decode(input: CsvInput, layout: Pick<CsvLayout, 'encoding' | 'bom'>): AsyncGenerator<string> {
   const source = chunksOf(input)[Symbol.asyncIterator]();
@@ -95,7 +112,7 @@ async function* decode(input: CsvInput, layout: Pick<CsvLayout, 'encoding' | 'bo
     if (first.done) break;
     if (typeof first.value === 'string') break;
     head = concatBytes(head, first.value);
-    if (head.length >= 4) break;
+    if (head.length >= SNIFF_BYTES) break;
   }
   if (!first.done && typeof first.value === 'string') {
     // Text input: already decoded; only a leading BOM character may remain.
@@ -112,16 +129,31 @@ async function* decode(input: CsvInput, layout: Pick<CsvLayout, 'encoding' | 'bo
   if (head[0] === 0x50 && head[1] === 0x4b && head[2] === 0x03 && head[3] === 0x04) {
     throw new CsvFileError('compressed', 'The file is a zip archive (or a spreadsheet such as .xlsx). Export or unpack it as CSV text.');
   }
-  const mark = byteOrderMark(head);
+  const mark = chooseEncoding(head, first.done === true);
   layout.bom = mark.bom;
   layout.encoding = mark.encoding;
-  const decoder = new TextDecoder(layout.encoding);
-  if (head.length) yield decoder.decode(head, { stream: true });
+  const decoder = streamDecoder(layout.encoding);
+  if (head.length) yield decoder.write(head);
   for (let next = await source.next(); !next.done; next = await source.next()) {
-    yield typeof next.value === 'string' ? next.value : decoder.decode(next.value, { stream: true });
+    yield typeof next.value === 'string' ? next.value : decoder.write(next.value);
   }
-  const tail = decoder.decode();
+  const tail = decoder.end();
   if (tail) yield tail;
+}
+
+/**
+ * A decoder that keeps a character cut between chunks for the next one. Windows-1252 goes through iconv-lite:
+ * Node's own TextDecoder (v20) reads bytes 0x80–0x9F of that encoding as C1 controls instead of €, – and the
+ * other characters the WHATWG index gives them; UTF-8 and UTF-16 use the built-in decoder (the mark, if any,
+ * is dropped by both).
+ */
+function streamDecoder(encoding: CsvLayout['encoding']): { write(bytes: Uint8Array): string; end(): string } {
+  if (encoding === 'windows-1252') {
+    const decoder = iconv.getDecoder('windows-1252');
+    return { write: (bytes) => decoder.write(Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength)), end: () => decoder.end() ?? '' };
+  }
+  const decoder = new TextDecoder(encoding);
+  return { write: (bytes) => decoder.decode(bytes, { stream: true }), end: () => decoder.decode() };
 }
 
 /** NUL bytes, undecodable bytes (U+FFFD) or more than 1 % control characters: not a text file. */

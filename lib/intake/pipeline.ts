@@ -20,7 +20,7 @@ export interface IngestRequest {
   fileName?: string | null;
   /** SHA-256 of the body as received; a body already applied to this series is recognised and not applied again. */
   contentHash?: string | null;
-  /** CSV text or a byte/text stream (drop files are streamed), or pushed JSON points. */
+  /** CSV text, a body's bytes or a byte/text stream (drop files are streamed), or pushed JSON points. */
   csv?: CsvInput;
   points?: PushedObservation[];
   /** Overrides of the series' CSV mapping (the upload screen's choices). */
@@ -251,13 +251,13 @@ const PREVIEW_ROWS = 20;
  * What committing this CSV would do, with nothing stored: the detected layout, the first rows as read, a guess of
  * the time format, and the full validation and comparison summary under the given (or guessed) mapping.
  */
-export async function previewObservations(series: Series, text: string, overrides: Partial<IntakeMapping> = {}): Promise<IntakePreview> {
+export async function previewObservations(series: Series, csv: string | Uint8Array, overrides: Partial<IntakeMapping> = {}): Promise<IntakePreview> {
   await db();
   const sample: PreviewRow[] = [];
   let layout: CsvLayout | null = null;
   const timeIndex = typeof overrides.timeColumn === 'number' ? overrides.timeColumn : 0;
   try {
-    const head = await readCsv(text.slice(0, 65_536), {
+    const head = await readCsv(csv.slice(0, 65_536), {
       delimiter: overrides.delimiter,
       header: overrides.header ?? 'auto',
       looksLikeData: (fields) => fields.slice(1).some((f) => /^\s*[+-]?(\d|\.\d)/.test(f)),
@@ -280,7 +280,7 @@ export async function previewObservations(series: Series, text: string, override
   const described = layout ? { ...describeLayout(layout)!, delimiterDetected: layout.delimiterDetected, fieldCount: layout.fieldCount } : null;
   let rows: CollectedRows;
   try {
-    rows = await collectCsvRows(text, mapping, series.timeZone);
+    rows = await collectCsvRows(csv, mapping, series.timeZone);
   } catch (error) {
     if (!(error instanceof CsvFileError)) throw error;
     return { layout: described, timeFormatGuess, mapping, sample, summary: null, fileError: { code: error.code, message: error.message } };

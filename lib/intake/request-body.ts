@@ -1,6 +1,5 @@
 import { PayloadTooLargeError, UnprocessableError, UnsupportedMediaTypeError } from '@/lib/http/errors';
 import { isJsonContentType, readLimitedBytes, readLimitedText } from '@/lib/http/body';
-import { decodeCsvBytes } from './csv';
 import { pushedObservationsSchema, uploadMappingSchema, type PushedObservation, type UploadMapping } from '@/lib/schemas/observation';
 import { contentHashOf } from './content-hash';
 
@@ -8,7 +7,8 @@ import { contentHashOf } from './content-hash';
 export const INTAKE_BODY_LIMIT = 50 * 1024 * 1024;
 
 export interface IntakeBody {
-  csv?: string;
+  /** the CSV as sent: its bytes are decoded by the reader, which chooses and reports the encoding */
+  csv?: Uint8Array;
   points?: PushedObservation[];
   fileName: string | null;
   contentHash: string;
@@ -36,7 +36,7 @@ export async function readIntakeBody(request: Request, options: { allowJson: boo
   const queryMapping = new URL(request.url).searchParams.get('mapping');
   if (type.startsWith('text/csv') || type.startsWith('text/plain')) {
     const bytes = await readLimitedBytes(request, INTAKE_BODY_LIMIT);
-    return { csv: decodeCsvBytes(bytes), fileName: null, contentHash: contentHashOf(bytes), mapping: parseMapping(queryMapping) };
+    return { csv: bytes, fileName: null, contentHash: contentHashOf(bytes), mapping: parseMapping(queryMapping) };
   }
   if (type.startsWith('multipart/form-data')) {
     const raw = await readLimitedText(request, INTAKE_BODY_LIMIT + 64 * 1024);
@@ -49,7 +49,7 @@ export async function readIntakeBody(request: Request, options: { allowJson: boo
     const bytes = new Uint8Array(await file.arrayBuffer());
     const mappingPart = form.get('mapping');
     return {
-      csv: decodeCsvBytes(bytes),
+      csv: bytes,
       fileName: file.name || null,
       contentHash: contentHashOf(bytes),
       mapping: parseMapping(typeof mappingPart === 'string' ? mappingPart : queryMapping),

@@ -259,6 +259,9 @@ export async function collectCsvRows(input: CsvInput, mapping: IntakeMapping, zo
     },
   });
   if (layout.bom) collector.notes.push(`A byte order mark (${layout.encoding}) was found and removed.`);
+  if (layout.encoding === 'windows-1252') {
+    collector.notes.push('The file is not valid UTF-8, so it was read as Windows-1252 (Western European), as older spreadsheets and loggers write it; check that names and units with accents or symbols read right.');
+  }
   return collector.finish(layout, stats);
 }
 

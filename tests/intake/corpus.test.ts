@@ -1,7 +1,7 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { CsvFileError, MAX_LINE_CHARS } from '@/lib/intake/csv';
+import { CsvFileError, MAX_LINE_CHARS, chooseEncoding, readCsv } from '@/lib/intake/csv';
 import { collectCsvRows, type IntakeMapping } from '@/lib/intake/rows';
 import { formatInstant } from '@/lib/intake/time-formats';
 
@@ -81,5 +81,34 @@ describe('bad-CSV corpus (fixtures/csv/expected.json)', () => {
     const text = fs.readFileSync(path.join(DIR, 'quoted-fields.csv'), 'utf8');
     const { rows } = await outcome(text, {});
     expect(Array.from(rows!.line)).toEqual([2, 3, 4, 6]);
+  });
+});
+
+describe('choosing the encoding of a file without a byte order mark', () => {
+  // WHATWG Encoding Standard: the UTF-8 decoder's error handling (§4.1), and the windows-1252 index, where
+  // 0xB0 is U+00B0 DEGREE SIGN, 0xE9 is U+00E9 and 0x80 is U+20AC EURO SIGN.
+  const bytes = (...values: number[]) => Uint8Array.from(values);
+  it('keeps UTF-8 for well-formed UTF-8, and for a sequence cut off at the end of a chunk that is not the last', () => {
+    expect(chooseEncoding(bytes(0x54, 0xc2, 0xb0, 0x43), true).encoding).toBe('utf-8'); // "T°C" in UTF-8
+    expect(chooseEncoding(bytes(0x54, 0xc2), false).encoding).toBe('utf-8');
+  });
+  it('reads malformed UTF-8 as Windows-1252', () => {
+    expect(chooseEncoding(bytes(0x54, 0xb0, 0x43), true).encoding).toBe('windows-1252');
+    expect(chooseEncoding(bytes(0x54, 0xc2), true).encoding).toBe('windows-1252');
+  });
+  it('decodes the Windows-1252 fixture the same from bytes in memory and from a stream, header included', async () => {
+    const file = fs.readFileSync(path.join(DIR, 'good-windows-1252.csv'));
+    const headers: (string[] | null)[] = [];
+    for (const input of [new Uint8Array(file), fs.createReadStream(path.join(DIR, 'good-windows-1252.csv'), { highWaterMark: 7 })]) {
+      const { layout } = await readCsv(input, { header: true, onRow: () => undefined });
+      expect(layout.encoding).toBe('windows-1252');
+      headers.push(layout.header);
+    }
+    expect(headers).toEqual([['time', 'temperature (°C)'], ['time', 'temperature (°C)']]);
+  });
+  it('reads bytes 0x80–0x9F of Windows-1252 as the WHATWG index gives them (€, en dash, per mille), not as C1 controls', async () => {
+    const { layout } = await readCsv(bytes(0x74, 0x2c, 0x80, 0x96, 0x89, 0x0a, 0x31, 0x2c, 0x32, 0x0a), { header: true, onRow: () => undefined });
+    expect(layout.encoding).toBe('windows-1252');
+    expect(layout.header).toEqual(['t', '€–‰']);
   });
 });
