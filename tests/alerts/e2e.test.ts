@@ -51,6 +51,8 @@ beforeAll(async () => {
       SMTP_URL: `smtp://127.0.0.1:${smtpPort}`,
       ANALYSIS_CRON: '*/2 * * * * *',
       MAIL_CRON: '*/1 * * * * *',
+      // The digest every 2 s instead of daily, so the digest path runs end to end; its per-day key still allows one.
+      DIGEST_CRON: '*/2 * * * * *',
       MAIL_RETRY_BASE_MS: '1000',
       MAIL_RETRY_MAX_MS: '2000',
     },
@@ -127,6 +129,15 @@ describe('alerts end to end', () => {
     await new Promise((r) => setTimeout(r, 2500));
     expect(mailsTo('analyst@brinkwatch.test', /alert #/)).toHaveLength(1);
     expect(mailsTo('viewer@brinkwatch.test', /alert #/)).toHaveLength(0);
+
+    // The viewer follows by digest: the alert reaches them in the digest instead, once, not in the analyst's daily one.
+    const digest = await waitFor('the viewer\'s digest', () => mailsTo('viewer@brinkwatch.test', /Daily digest/)[0], 30_000);
+    expect(digest.subject).toBe('[Brinkwatch] Daily digest: 1 alert on series you watch');
+    expect(digest.text).toContain(`#${alertId} Fold basin <test>`);
+    expect(digest.text).toContain('not forecasts');
+    await new Promise((r) => setTimeout(r, 4500));
+    expect(mailsTo('viewer@brinkwatch.test', /Daily digest/)).toHaveLength(1);
+    expect(mailsTo('analyst@brinkwatch.test', /Daily digest/)).toHaveLength(0);
   });
 
   it('is worked by role: viewer refused, analyst acknowledges and escalates, the lead confirms and watchers hear of it', async () => {
