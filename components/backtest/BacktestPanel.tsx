@@ -1,7 +1,7 @@
 'use client';
 
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
-import { useState } from 'react';
+import { useEffect, useState } from 'react';
 import { CartesianGrid, Line, LineChart, ReferenceDot, ResponsiveContainer, Tooltip, XAxis, YAxis } from 'recharts';
 import { api } from '@/components/api';
 import { ChartFrame } from '@/components/charts/ChartFrame';
@@ -72,6 +72,11 @@ export function BacktestPanel({ slug, timeZone, canRun }: { slug: string; timeZo
 
   const current = job.data;
   const running = current && (current.status === 'queued' || current.status === 'running');
+  // The picker of past backtests shows each one's status: refresh it once the followed job has finished.
+  const finishedStatus = current && !running ? current.status : null;
+  useEffect(() => {
+    if (finishedStatus) void client.invalidateQueries({ queryKey: ['backtests', slug] });
+  }, [finishedStatus, client, slug]);
   const ruleOf = (id: number) => rules.data?.items.find((r) => r.id === id);
 
   return (
@@ -217,8 +222,14 @@ function BacktestResults({
         <dd className="num">{result.geometry.windowPoints} points, {result.geometry.detrend} detrending</dd>
         <dt className="text-ink-soft">False alarms</dt>
         <dd className="num">
-          {result.falseAlarms.count} in {result.falseAlarms.exposureYears.toFixed(2)} years
-          {result.falseAlarms.perYear !== null ? ` (${result.falseAlarms.perYear.toFixed(2)} a year)` : ''}
+          {result.falseAlarms.exposureYears > 0 ? (
+            <>
+              {result.falseAlarms.count} in {result.falseAlarms.exposureYears.toFixed(2)} years
+              {result.falseAlarms.perYear !== null ? ` (${result.falseAlarms.perYear.toFixed(2)} a year)` : ''}
+            </>
+          ) : (
+            'none could count: every judged instant lies before a marked transition or within one window after it'
+          )}
         </dd>
         {cal ? (
           <>
@@ -234,9 +245,9 @@ function BacktestResults({
         <caption className="mb-1 text-left font-semibold">Lead times</caption>
         <thead>
           <tr className="border-b border-rule text-left text-ink-soft">
-            <th className="py-1">Transition</th>
-            <th>First warning</th>
-            <th>Lead time</th>
+            <th className="py-1 pr-4">Transition</th>
+            <th className="pr-4">First warning</th>
+            <th className="pr-4">Lead time</th>
             <th>Highest τ threshold that warns</th>
           </tr>
         </thead>
@@ -247,11 +258,11 @@ function BacktestResults({
             </tr>
           ) : (
             result.transitions.map((t) => (
-              <tr key={`${t.at}`} className="border-b border-rule/50">
-                <td className="py-1">{formatLocal(t.at, timeZone)}{t.note ? <span className="block text-xs text-ink-soft">{t.note}</span> : null}</td>
-                <td>{t.firstWarningAt !== null ? formatLocal(t.firstWarningAt, timeZone) : '–'}</td>
-                <td className="num">{leadText(t.leadTimeMs)}</td>
-                <td className="num">{t.firingTau !== null ? formatTau(t.firingTau) : 'none'}</td>
+              <tr key={`${t.at}`} className="border-b border-rule/50 align-top">
+                <td className="py-1 pr-4">{formatLocal(t.at, timeZone)}{t.note ? <span className="block text-xs text-ink-soft">{t.note}</span> : null}</td>
+                <td className="py-1 pr-4 whitespace-nowrap">{t.firstWarningAt !== null ? formatLocal(t.firstWarningAt, timeZone) : '–'}</td>
+                <td className="num py-1 pr-4 whitespace-nowrap">{leadText(t.leadTimeMs)}</td>
+                <td className="num py-1">{t.firingTau !== null ? formatTau(t.firingTau) : 'none'}</td>
               </tr>
             ))
           )}

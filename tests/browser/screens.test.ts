@@ -171,6 +171,34 @@ describe('screens in Chromium', () => {
     await queue.close();
   }, 180_000);
 
+  it('runs a backtest from the series page as a lead: progress, lead times before the marked transition, false alarms', async () => {
+    const { items } = await (await api.fetch('/api/series')).json();
+    let slug: string | null = null;
+    for (const s of items as { slug: string }[]) {
+      const marked = await (await api.fetch(`/api/series/${s.slug}/transitions`)).json();
+      if ((marked.transitions ?? marked.items ?? []).length) {
+        slug = s.slug;
+        break;
+      }
+    }
+    expect(slug, 'a demo series with a marked transition').not.toBeNull();
+    const page = await open('lead', `/series/${slug}`);
+    const panel = page.getByRole('region', { name: 'Backtest' });
+    await panel.getByRole('button', { name: 'Start backtest' }).waitFor();
+    await panel.getByRole('spinbutton', { name: 'Judge every (points)' }).fill('25');
+    await panel.getByRole('spinbutton', { name: 'Surrogates', exact: true }).fill('9');
+    await panel.getByRole('button', { name: 'Start backtest' }).click();
+    const table = panel.getByRole('table', { name: 'Lead times' });
+    await table.waitFor({ timeout: 150_000 });
+    expect(await table.locator('tbody tr').count()).toBeGreaterThanOrEqual(1);
+    await expect(panel.getByText('Points replayed').count()).resolves.toBe(1);
+    await expect(panel.getByText(/replays \(95 % interval/).count()).resolves.toBe(1);
+    // the list of past backtests follows the job to its end
+    await expect.poll(() => panel.getByRole('combobox', { name: 'Showing' }).locator('option').first().textContent(), { timeout: 20_000 }).toMatch(/succeeded/);
+    await panel.screenshot({ path: path.join(SHOTS, 'backtest-panel.png') });
+    await page.close();
+  }, 200_000);
+
   it('takes in a CSV through the upload flow of the Intake screen (labels from components/intake/UploadPanel.tsx)', async () => {
     const lead = await signedIn(app.baseUrl, 'lead@brinkwatch.test', DEMO_PASSWORD);
     const created = await lead.json('/api/series', 'POST', {
