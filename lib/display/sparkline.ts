@@ -50,4 +50,3 @@ export function sparkPath(values: (number | null)[], width = SPARK_WIDTH, height
   });
   return parts.join('');
 }
-
