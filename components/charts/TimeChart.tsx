@@ -34,7 +34,7 @@ export function TimeChart({ rows, lines, timeZone, unit = '', height = 220, wind
         <CartesianGrid stroke="#ebe7dc" strokeDasharray="2 4" />
         <XAxis dataKey="t" type="number" scale="time" domain={['dataMin', 'dataMax']} tickFormatter={(t: number) => formatLocalDate(t, timeZone)}
           tick={{ fontSize: 11, fill: '#3c4a57' }} minTickGap={40} />
-        <YAxis tick={{ fontSize: 11, fill: '#3c4a57' }} width={56} domain={['auto', 'auto']} tickFormatter={(v: number) => formatValue(v)} />
+        <YAxis tick={{ fontSize: 11, fill: '#3c4a57' }} width={56} domain={['auto', 'auto']} niceTicks="snap125" tickFormatter={(v: number) => formatValue(v)} />
         <Tooltip
           labelFormatter={(t) => `${formatLocal(Number(t), timeZone)} (${formatUtc(Number(t))})`}
           formatter={(value, name) => [formatValue(Number(value), unit), name]}
