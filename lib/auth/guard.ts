@@ -1,4 +1,5 @@
 import { getServerSession } from 'next-auth';
+import { cache } from 'react';
 import { IngestToken, Series, User, db, roleAtLeast, type Role } from '@/models';
 import { ForbiddenError, NotFoundError, UnauthenticatedError } from '@/lib/http/errors';
 import { cachedRead } from '@/lib/db/read-cache';
@@ -13,25 +14,36 @@ export interface Actor {
 }
 
 /**
- * The one authorisation check, called first in every route handler, server action and protected page.
- * The session only says who is asking; role, active flag and session version come from the database on each call
- * (through the read cache, which drops an answer at the next commit), so a deactivation, a role change or a
- * password change takes effect at once. Signed out or inactive: 401. Role too low: 403.
+ * Who is asking, with their current role, or why they may not ask at all. The session only says who; role, active
+ * flag and session version come from the database (through the read cache, which drops an answer at the next
+ * commit), so a deactivation, a role change or a password change takes effect at once. Memoised per server render
+ * with React's `cache`, so a page and its layout decode the session and read the user once; route handlers and
+ * server actions run outside a render and get a fresh lookup on every call.
  */
-export async function requireRole(minimum: Role): Promise<Actor> {
+const sessionActor = cache(async (): Promise<Actor | UnauthenticatedError> => {
   const session = await getServerSession(authOptions);
   const id = session?.user?.id;
-  if (!id) throw new UnauthenticatedError();
+  if (!id) return new UnauthenticatedError();
   const user = await cachedRead(`user:${id}`, async () => {
     await db();
     const row = await User.findByPk(id, { attributes: ['id', 'email', 'name', 'role', 'active', 'sessionVersion'] });
     return row && { id: row.id, email: row.email, name: row.name, role: row.role, active: row.active, sessionVersion: row.sessionVersion };
   });
   if (!user || !user.active || session.user.sessionVersion !== user.sessionVersion) {
-    throw new UnauthenticatedError('Your session has ended. Sign in again.');
+    return new UnauthenticatedError('Your session has ended. Sign in again.');
   }
-  if (!roleAtLeast(user.role, minimum)) throw new ForbiddenError(`This needs the ${minimum} role or higher.`);
   return { id: user.id, email: user.email, name: user.name, role: user.role };
+});
+
+/**
+ * The one authorisation check, called first in every route handler, server action and protected page.
+ * Signed out or inactive: 401. Role too low: 403.
+ */
+export async function requireRole(minimum: Role): Promise<Actor> {
+  const actor = await sessionActor();
+  if (actor instanceof UnauthenticatedError) throw actor;
+  if (!roleAtLeast(actor.role, minimum)) throw new ForbiddenError(`This needs the ${minimum} role or higher.`);
+  return actor;
 }
 
 /** The signed-in actor or null, for pages that show different things to different roles. */
