@@ -4,6 +4,7 @@ import type { Actor } from '@/lib/auth/guard';
 import { roleAtLeast } from '@/models/roles';
 import { Caution } from './Caution';
 import { SignOutButton } from './SignOutButton';
+import { SystemStatus } from './SystemStatus';
 
 const NAV: { href: string; label: string; minRole: Actor['role'] }[] = [
   { href: '/', label: 'Overview', minRole: 'viewer' },
@@ -34,6 +35,7 @@ export function AppShell({ actor, children }: { actor: Actor; children: ReactNod
           </div>
         </div>
       </header>
+      <SystemStatus />
       <main className="mx-auto w-full max-w-7xl flex-1 px-4 py-6">{children}</main>
       <footer className="border-t border-rule bg-card">
         <div className="mx-auto max-w-7xl px-4 py-3">

@@ -87,6 +87,33 @@ describe('screens in Chromium', () => {
     }
   });
 
+  it('says on every screen when the scheduler has stopped or the server does not answer, and nothing when all is well', async () => {
+    const page = await contexts.analyst.newPage();
+    await page.goto(`${app.baseUrl}/alerts`);
+    await page.getByRole('heading', { level: 1 }).waitFor();
+    await page.waitForLoadState('networkidle');
+    await expect(page.getByTestId('system-status').count()).resolves.toBe(0); // this app's scheduler is running
+    // The health answer of a scheduler that stopped three hours ago, as GET /api/health gives it (503 when the
+    // database is gone, 200 otherwise); the banner reads it either way.
+    const stoppedAt = new Date(Date.now() - 3 * 3_600_000).toISOString();
+    await page.route('**/api/health', (route) => route.fulfill({
+      status: 200,
+      contentType: 'application/json',
+      body: JSON.stringify({ ok: true, db: { ok: true }, scheduler: { ok: false, lastBeatAt: stoppedAt, holder: null }, mail: { ok: false, transport: 'smtp', pending: 0, failed: 1 } }),
+    }));
+    await page.reload();
+    const banner = page.getByTestId('system-status');
+    await banner.waitFor({ timeout: 20_000 });
+    await expect(banner.locator('[data-notice="scheduler"]').textContent()).resolves.toMatch(/last reported at .* \(3 h ago\): no data is taken in/);
+    await expect(banner.locator('[data-notice="mail"]').textContent()).resolves.toContain('1 message could not be delivered');
+    await shot(page, 'status-scheduler-stopped');
+    await page.unroute('**/api/health');
+    await page.route('**/api/health', (route) => route.abort('connectionrefused'));
+    await page.reload();
+    await expect.poll(() => page.locator('[data-notice="unreachable"]').count(), { timeout: 30_000 }).toBe(1);
+    await page.close();
+  });
+
   it('lists the demo series on the overview with freshness, state and queue counts', async () => {
     const { items } = await (await api.fetch('/api/series')).json();
     expect(items.length).toBeGreaterThan(0);

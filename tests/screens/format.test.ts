@@ -1,6 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { formatLocal, formatP, formatTau, formatUtc, formatValue } from '@/lib/display/format';
 import { SPARK_POINTS, sparkline, sparkPath } from '@/lib/display/sparkline';
+import { healthNotices } from '@/lib/display/health-notices';
+import type { HealthReport } from '@/lib/health';
 
 describe('display formats', () => {
   it('shows instants in the series time zone across a summer-time change', () => {
@@ -39,5 +41,34 @@ describe('overview sparklines', () => {
     const thin = sparkline(curve);
     expect(thin).toHaveLength(SPARK_POINTS);
     expect([thin[0], thin[SPARK_POINTS - 1]]).toEqual([0, 999]);
+  });
+});
+
+describe('service notices from the health report', () => {
+  // Our own rule (README, "Operating Brinkwatch"): a stopped scheduler or undeliverable mail is said on every screen.
+  const NOW = Date.UTC(2026, 11, 2, 7, 0);
+  const healthy: HealthReport = {
+    ok: true,
+    db: { ok: true },
+    scheduler: { ok: true, lastBeatAt: new Date(NOW - 10_000).toISOString(), holder: 'host:1' },
+    mail: { ok: true, transport: 'smtp', pending: 3, failed: 0 },
+  };
+  it('says nothing when every part is well', () => {
+    expect(healthNotices(healthy, NOW)).toEqual([]);
+  });
+  it('names when a stopped scheduler last reported and what has stopped with it', () => {
+    const stopped = { ...healthy, scheduler: { ok: false, lastBeatAt: new Date(NOW - 3 * 3_600_000).toISOString(), holder: null } };
+    const [notice] = healthNotices(stopped, NOW);
+    expect(notice.key).toBe('scheduler');
+    expect(notice.text).toContain('last reported at 2026-12-02 04:00 UTC (3 h ago)');
+    expect(notice.text).toContain('no alerts or mail go out');
+    expect(healthNotices({ ...stopped, scheduler: { ok: false, lastBeatAt: null, holder: null } }, NOW)[0].text).toContain('has not reported at all');
+  });
+  it('counts undelivered mail, and says only that the database is gone when it is', () => {
+    expect(healthNotices({ ...healthy, mail: { ...healthy.mail, ok: false, failed: 2 } }, NOW).map((n) => n.text)).toEqual([
+      '2 messages could not be delivered after every retry; an admin can send them again under Admin › Mail.',
+    ]);
+    const down = { ok: false, db: { ok: false, error: 'x' }, scheduler: { ok: false, lastBeatAt: null, holder: null }, mail: { ok: false, transport: 'smtp' as const, pending: 0, failed: 0 } };
+    expect(healthNotices(down, NOW).map((n) => n.key)).toEqual(['db']);
   });
 });
