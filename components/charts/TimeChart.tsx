@@ -1,7 +1,9 @@
 'use client';
 
+import { useMemo } from 'react';
 import { CartesianGrid, Legend, Line, LineChart, ReferenceArea, ReferenceLine, ResponsiveContainer, Tooltip, XAxis, YAxis } from 'recharts';
 import { formatLocal, formatLocalDate, formatUtc, formatValue } from '@/lib/display/format';
+import { calendarTicks } from '@/lib/display/time-ticks';
 
 export interface LineSpec {
   key: string;
@@ -28,11 +30,16 @@ export interface TimeChartProps {
  * It draws what lib/analysis/view.ts computed and nothing else.
  */
 export function TimeChart({ rows, lines, timeZone, unit = '', height = 220, windowBand, transitions = [], zeroLine }: TimeChartProps) {
+  const first = rows[0]?.t ?? null;
+  const last = rows[rows.length - 1]?.t ?? null;
+  const ticks = useMemo(() => (first !== null && last !== null ? calendarTicks(first, last, timeZone) : []), [first, last, timeZone]);
+  const labels = useMemo(() => new Map(ticks.map((tick) => [tick.t, tick.label])), [ticks]);
   return (
     <ResponsiveContainer width="100%" height={height}>
       <LineChart data={rows} margin={{ top: 8, right: 12, bottom: 4, left: 4 }}>
         <CartesianGrid stroke="#ebe7dc" strokeDasharray="2 4" />
-        <XAxis dataKey="t" type="number" scale="time" domain={['dataMin', 'dataMax']} tickFormatter={(t: number) => formatLocalDate(t, timeZone)}
+        <XAxis dataKey="t" type="number" scale="time" domain={['dataMin', 'dataMax']} ticks={ticks.length >= 2 ? ticks.map((tick) => tick.t) : undefined}
+          tickFormatter={(t: number) => labels.get(t) ?? formatLocalDate(t, timeZone)}
           tick={{ fontSize: 11, fill: '#3c4a57' }} minTickGap={40} />
         <YAxis tick={{ fontSize: 11, fill: '#3c4a57' }} width={56} domain={['auto', 'auto']} niceTicks="snap125" tickFormatter={(v: number) => formatValue(v)} />
         <Tooltip

@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { formatLocal, formatP, formatTau, formatUtc, formatValue } from '@/lib/display/format';
 import { SPARK_POINTS, sparkline, sparkPath } from '@/lib/display/sparkline';
+import { calendarTicks } from '@/lib/display/time-ticks';
 import { healthNotices } from '@/lib/display/health-notices';
 import type { HealthReport } from '@/lib/health';
 
@@ -70,5 +71,33 @@ describe('service notices from the health report', () => {
     ]);
     const down = { ok: false, db: { ok: false, error: 'x' }, scheduler: { ok: false, lastBeatAt: null, holder: null }, mail: { ok: false, transport: 'smtp' as const, pending: 0, failed: 0 } };
     expect(healthNotices(down, NOW).map((n) => n.key)).toEqual(['db']);
+  });
+});
+
+describe('time-axis ticks on calendar boundaries', () => {
+  // Dates on the proleptic Gregorian calendar of ISO 8601; zone offsets from the IANA time zone database
+  // (Europe/Oslo: UTC+1 in winter, UTC+2 from 01:00 UTC on the last Sunday of March, the EU summer-time rule).
+  // The expected ticks are worked by hand from those two facts.
+  const utc = (...parts: [number, number, number, number?]) => Date.UTC(parts[0], parts[1] - 1, parts[2], parts[3] ?? 0);
+  it('puts an eight-year daily record on every second New Year, in UTC and in the series zone', () => {
+    const from = utc(2018, 11, 21);
+    const to = utc(2026, 12, 2);
+    expect(calendarTicks(from, to, 'UTC')).toEqual([2020, 2022, 2024, 2026].map((y) => ({ t: utc(y, 1, 1), label: String(y) })));
+    expect(calendarTicks(from, to, 'Europe/Oslo').map((tick) => tick.t)).toEqual([2020, 2022, 2024, 2026].map((y) => utc(y - 1, 12, 31, 23)));
+  });
+  it('uses months for half a year, and local clock hours across a spring-forward change', () => {
+    expect(calendarTicks(utc(2023, 1, 15), utc(2023, 6, 20), 'UTC').map((tick) => tick.label)).toEqual(['2023-02', '2023-03', '2023-04', '2023-05', '2023-06']);
+    // 2023-03-26 in Oslo: 00:00 CET (23:00 UTC the day before) to 12:00 CEST (10:00 UTC); 02:00–03:00 never happened
+    const ticks = calendarTicks(utc(2023, 3, 25, 23), utc(2023, 3, 26, 10), 'Europe/Oslo');
+    expect(ticks.map((tick) => tick.label)).toEqual(['03-26 00:00', '03-26 03:00', '03-26 06:00', '03-26 09:00', '03-26 12:00']);
+    expect(ticks.map((tick) => tick.t)).toEqual([utc(2023, 3, 25, 23), utc(2023, 3, 26, 1), utc(2023, 3, 26, 4), utc(2023, 3, 26, 7), utc(2023, 3, 26, 10)]);
+  });
+  it('puts weekly ticks on Mondays (ISO 8601 weeks) and gives deep-time records round years', () => {
+    // 2024-01-01 was a Monday (ISO week 2024-W01-1); fortnights are counted from Monday 1970-01-05, so every
+    // second Monday from 2024-01-08 (19,726 days later, 1,409 fortnights)
+    expect(calendarTicks(utc(2024, 1, 1), utc(2024, 1, 31), 'UTC').map((tick) => tick.label)).toEqual(['2024-01-01', '2024-01-08', '2024-01-15', '2024-01-22', '2024-01-29']);
+    expect(calendarTicks(utc(2023, 12, 28), utc(2024, 2, 10), 'UTC').map((tick) => tick.label)).toEqual(['2024-01-08', '2024-01-22', '2024-02-05']);
+    const deep = calendarTicks(-798_050 * 365.2425 * 86_400_000, utc(1950, 1, 1), 'Europe/Oslo');
+    expect(deep.map((tick) => tick.label)).toEqual(['-600000', '-400000', '-200000', '0']);
   });
 });
