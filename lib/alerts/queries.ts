@@ -165,12 +165,11 @@ export async function fetchAlertDetail(id: number, actor?: Pick<Actor, 'role'>, 
   });
   if (!alert) throw new NotFoundError('Alert');
   const joined = alert as Alert & { series: Series; rule: AlertRule; assignee: User | null };
+  // Only the large column the answer carries is read: the curves or the chart view.
+  const snapshotAttributes = { exclude: [charts === 'curves' ? 'chartView' : 'curves'] };
   const [first, latest, events, notes, evaluations] = await Promise.all([
-    // Only the large column the answer carries is read: the curves or the chart view.
-    AnalysisSnapshot.findByPk(alert.firstSnapshotId, { attributes: { exclude: [charts === 'curves' ? 'chartView' : 'curves'] } }),
-    alert.latestSnapshotId === alert.firstSnapshotId
-      ? null
-      : AnalysisSnapshot.findByPk(alert.latestSnapshotId, { attributes: { exclude: [charts === 'curves' ? 'chartView' : 'curves'] } }),
+    AnalysisSnapshot.findByPk(alert.firstSnapshotId, { attributes: snapshotAttributes }),
+    alert.latestSnapshotId === alert.firstSnapshotId ? null : AnalysisSnapshot.findByPk(alert.latestSnapshotId, { attributes: snapshotAttributes }),
     AlertEvent.findAll({ where: { alertId: id }, include: [{ model: User, as: 'actor', attributes: ['id', 'name'] }], order: [['id', 'ASC']] }),
     Note.findAll({ where: { alertId: id }, include: [{ model: User, as: 'author', attributes: ['id', 'name'] }, { model: NoteRevision, as: 'revisions' }], order: [['id', 'ASC']] }),
     RuleEvaluation.findAll({ where: { alertId: id }, order: [['snapshotId', 'ASC']], limit: 500 }),
