@@ -31,6 +31,34 @@ const controlClass = 'rounded border border-rule bg-card px-2 py-1.5 text-sm';
  */
 const ROWS_PER_STEP = 100;
 
+/** On time, late or no data, with how long since the last observation on hover. */
+function RowFreshness({ row, now }: { row: OverviewRow; now: number }) {
+  return <FreshnessBadge freshness={row.freshness} title={row.lastDataAt ? `${formatAge(now - row.lastDataAt)} since the last observation` : undefined} />;
+}
+
+/** Tau and p (and q where a false-discovery level applies) of each indicator a series' rules watch. */
+function IndicatorTrends({ indicators }: { indicators: OverviewRow['indicators'] }) {
+  if (indicators.length === 0) return <span className="text-ink-faint">–</span>;
+  return (
+    <ul className="space-y-0.5">
+      {indicators.map((ind) => (
+        <li key={ind.name} className="num whitespace-nowrap">
+          <span className="inline-block w-20 text-ink-soft">{ind.name}</span>
+          τ {formatTau(ind.tau)}
+          <span className="ml-2 text-ink-soft" title={ind.pKind === 'surrogate' ? 'p from surrogate data' : 'p from the Kendall test'}>
+            p {formatP(ind.p)}{ind.pKind === 'kendall' ? '*' : ''}
+          </span>
+          {ind.q !== null && (
+            <span className="ml-2 text-ink-soft" title="Benjamini–Hochberg q-value: the surrogate p adjusted for every series judged in the same analysis cycle">
+              q {formatP(ind.q)}
+            </span>
+          )}
+        </li>
+      ))}
+    </ul>
+  );
+}
+
 export function OverviewTable({ rows, sites, now }: { rows: OverviewRow[]; sites: string[]; now: number }) {
   const [text, setText] = useState('');
   const [site, setSite] = useState('');
@@ -95,16 +123,16 @@ export function OverviewTable({ rows, sites, now }: { rows: OverviewRow[]; sites
         <Empty>{rows.length === 0 ? 'No series are registered yet. Add one on the Intake page.' : 'No series match these filters.'}</Empty>
       ) : (
         <div className="overflow-x-auto rounded-lg border border-rule bg-card">
-          <table className="w-full min-w-[640px] text-sm" data-testid="overview-table">
+          <table className="w-full text-sm sm:min-w-[640px]" data-testid="overview-table">
             <caption className="sr-only">Every series with its data freshness, state and latest indicator trends</caption>
             <thead className="border-b border-rule bg-paper text-ink-soft">
               <tr>
                 {header('name', 'Series')}
                 {header('state', 'State')}
-                {header('lastData', 'Last data')}
+                {header('lastData', 'Last data', 'hidden sm:table-cell')}
                 {header('site', 'Site', 'hidden md:table-cell')}
-                {header('tau', 'Indicator trend (tau, p)')}
-                <th scope="col" className="px-3 py-2 text-left font-medium">Recent curve</th>
+                {header('tau', 'Indicator trend (tau, p)', 'hidden sm:table-cell')}
+                <th scope="col" className="hidden px-3 py-2 text-left font-medium sm:table-cell">Recent curve</th>
               </tr>
             </thead>
             <tbody className="divide-y divide-rule">
@@ -114,6 +142,7 @@ export function OverviewTable({ rows, sites, now }: { rows: OverviewRow[]; sites
                     <Link href={`/series/${row.slug}`} className="font-medium text-tide hover:underline">{row.name}</Link>
                     <div className="font-mono text-xs text-ink-faint">{row.slug}</div>
                     {row.site ? <div className="text-xs text-ink-soft md:hidden">{row.site}</div> : null}
+                    {row.indicators.length ? <div className="mt-1 text-xs sm:hidden"><IndicatorTrends indicators={row.indicators} /></div> : null}
                   </td>
                   <td className="px-3 py-2">
                     {row.state === 'alert' ? (
@@ -123,39 +152,20 @@ export function OverviewTable({ rows, sites, now }: { rows: OverviewRow[]; sites
                     ) : (
                       <StateBadge state={row.state} />
                     )}
+                    <div className="mt-1 text-xs sm:hidden"><RowFreshness row={row} now={now} /></div>
                   </td>
-                  <td className="px-3 py-2">
+                  <td className="hidden px-3 py-2 sm:table-cell">
                     <div><LocalTime t={row.lastDataAt} timeZone={row.timeZone} /></div>
                     <div className="mt-0.5 flex items-center gap-1 text-xs text-ink-faint">
-                      <FreshnessBadge freshness={row.freshness}
-                        title={row.lastDataAt ? `${formatAge(now - row.lastDataAt)} since the last observation` : undefined} />
+                      <RowFreshness row={row} now={now} />
                       <span>{row.timeZone}</span>
                     </div>
                   </td>
                   <td className="hidden px-3 py-2 md:table-cell">{row.site || <span className="text-ink-faint">–</span>}</td>
-                  <td className="px-3 py-2">
-                    {row.indicators.length === 0 ? (
-                      <span className="text-ink-faint">–</span>
-                    ) : (
-                      <ul className="space-y-0.5">
-                        {row.indicators.map((ind) => (
-                          <li key={ind.name} className="num whitespace-nowrap">
-                            <span className="inline-block w-20 text-ink-soft">{ind.name}</span>
-                            τ {formatTau(ind.tau)}
-                            <span className="ml-2 text-ink-soft" title={ind.pKind === 'surrogate' ? 'p from surrogate data' : 'p from the Kendall test'}>
-                              p {formatP(ind.p)}{ind.pKind === 'kendall' ? '*' : ''}
-                            </span>
-                            {ind.q !== null && (
-                              <span className="ml-2 text-ink-soft" title="Benjamini–Hochberg q-value: the surrogate p adjusted for every series judged in the same analysis cycle">
-                                q {formatP(ind.q)}
-                              </span>
-                            )}
-                          </li>
-                        ))}
-                      </ul>
-                    )}
+                  <td className="hidden px-3 py-2 sm:table-cell">
+                    <IndicatorTrends indicators={row.indicators} />
                   </td>
-                  <td className="px-3 py-2">
+                  <td className="hidden px-3 py-2 sm:table-cell">
                     {row.spark ? (
                       <Sparkline path={row.spark.path} label={`Rolling ${row.spark.indicator} of ${row.name}`} />
                     ) : (
