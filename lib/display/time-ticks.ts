@@ -41,7 +41,7 @@ const two = (n: number) => String(n).padStart(2, '0');
  * do not exist (a spring-forward gap) are skipped. Years use ISO 8601's astronomical numbering (0 = 1 BC).
  * Labels: `2024`, `2024-05`, `2024-05-13`, `05-13 06:00`. O(target) plus one offset look-up per tick.
  */
-export function calendarTicks(from: number, to: number, timeZone: string, target = 6): TimeTick[] {
+export function calendarTicks(from: number, to: number, timeZone: string, target = 7): TimeTick[] {
   if (!Number.isFinite(from) || !Number.isFinite(to) || to <= from) return [];
   const zone = Math.max(Math.abs(from), Math.abs(to)) < DATE_LIMIT_MS ? timeZone : 'UTC';
   const span = to - from;
