@@ -22,6 +22,8 @@ describe('display formats', () => {
     expect(formatP(0.0004)).toBe('< 0.001');
     expect(formatValue(1234.567, '°C')).toBe('1235 °C');
     expect(formatValue(0.00001234)).toBe('1.234e-5');
+    // an axis tick such as 2.7e-5 reads like 0.25 does in the fixed-point form, without padding zeros
+    expect([formatValue(0.000027), formatValue(3e6), formatValue(0.00002), formatValue(1.05e-4)]).toEqual(['2.7e-5', '3e+6', '2e-5', '1.05e-4']);
   });
 });
 
