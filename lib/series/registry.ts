@@ -55,6 +55,15 @@ export async function listSeriesChoices(): Promise<SeriesChoice[]> {
   });
 }
 
+/** Whether any series is active: screens that pick a series as one types only need to know there is one. */
+export async function hasActiveSeries(): Promise<boolean> {
+  return cachedRead('series-any', async () => {
+    const sequelize = await db();
+    const [row] = await sequelize.query<{ found: number }>('SELECT EXISTS (SELECT 1 FROM series WHERE retired_at IS NULL) AS found', { type: QueryTypes.SELECT });
+    return Boolean(row?.found);
+  });
+}
+
 /** The picker entry of one active series, or null (an address naming an unknown or retired series). */
 export async function findSeriesChoice(slug: string): Promise<SeriesChoice | null> {
   return (await listSeriesChoices()).find((choice) => choice.slug === slug) ?? null;

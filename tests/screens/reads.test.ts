@@ -4,8 +4,8 @@ import { useTempDataDir } from '../support/temp-db';
 useTempDataDir('bw-screens-');
 
 import { migrateUp } from '@/migrations';
-import { Alert, AlertRule, AnalysisSnapshot, AuditEntry, Observation, RuleEvaluation, User, db } from '@/models';
-import { createSeries, findSeriesChoice, listSeries } from '@/lib/series/registry';
+import { Alert, AlertRule, AnalysisSnapshot, AuditEntry, Observation, RuleEvaluation, Series, User, db } from '@/models';
+import { createSeries, findSeriesChoice, hasActiveSeries, listSeries } from '@/lib/series/registry';
 import { seriesListQuerySchema } from '@/lib/schemas/series';
 import { refreshSeriesAnalysis } from '@/lib/analysis/snapshot';
 import { fetchSeriesOverview, freshnessOf } from '@/lib/overview';
@@ -110,6 +110,13 @@ describe('series search for pickers', () => {
     expect(() => seriesListQuerySchema.parse({ limit: '0' })).toThrow();
     expect(await findSeriesChoice('find-west-outflow')).toEqual({ slug: 'find-west-outflow', name: 'West Outflow gauge_2' });
     expect(await findSeriesChoice('no-such-series')).toBeNull();
+
+    // screens that choose a series by search only ask whether there is one to choose
+    expect(await hasActiveSeries()).toBe(true);
+    await Series.update({ retiredAt: new Date() }, { where: {} });
+    expect(await hasActiveSeries()).toBe(false);
+    await Series.update({ retiredAt: null }, { where: {} });
+    expect(await hasActiveSeries()).toBe(true);
   });
 });
 
