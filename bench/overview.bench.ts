@@ -29,16 +29,24 @@ export async function run(): Promise<BenchRow[]> {
   const sequelize = await db();
   const [viewer] = await sequelize.query<{ id: number }>("SELECT id FROM users WHERE role = 'viewer'", { type: 'SELECT' as never });
 
-  const times: number[] = [];
-  let rows = 0;
-  for (let i = 0; i < 5; i++) {
+  const timed = async () => {
     const t0 = performance.now();
     const overview = await fetchSeriesOverview(viewer.id);
-    times.push(performance.now() - t0);
-    rows = overview.rows.length;
+    return { ms: performance.now() - t0, rows: overview.rows.length };
+  };
+  const first = await timed();
+  const cold = first.ms;
+  const rows = first.rows;
+  // After each commit (as after a delivery of data) the overview is read again; between commits it is not.
+  const afterCommit: number[] = [];
+  const unchanged: number[] = [];
+  for (let i = 0; i < 4; i++) {
+    await writeTransaction((transaction) => sequelize.query('UPDATE series SET updated_at = :now WHERE id = 1', { transaction, replacements: { now: new Date(Date.now() + i).toISOString() } }));
+    afterCommit.push((await timed()).ms);
+    unchanged.push((await timed()).ms);
   }
-  const cold = times[0];
-  const overviewMs = median(times.slice(1));
+  const overviewMs = median(afterCommit);
+  const cachedMs = median(unchanged);
 
   const n = 5000;
   const values = simulateAr1({ n, phi: 0.7, sigma: 1, mean: 10, seed: 3 });
@@ -54,7 +62,8 @@ export async function run(): Promise<BenchRow[]> {
 
   return [
     { case: 'overview, first load (reads every snapshot curve once)', n: `${SERIES} series, ${ALERTS} alerts`, value: cold, unit: 'ms', target: '< 3000 ms', pass: cold < 3000, note: `${rows} rows` },
-    { case: 'overview, later loads (3 aggregate queries)', n: `${SERIES} series, ${ALERTS} alerts`, value: overviewMs, unit: 'ms', target: '< 300 ms', pass: overviewMs < 300, note: 'median of 4' },
+    { case: 'overview after new data (3 aggregate queries)', n: `${SERIES} series, ${ALERTS} alerts`, value: overviewMs, unit: 'ms', target: '< 300 ms', pass: overviewMs < 300, note: 'median of 4' },
+    { case: 'overview, no commit since (read cache)', n: `${SERIES} series, ${ALERTS} alerts`, value: cachedMs, unit: 'ms', pass: null, note: 'median of 4' },
     { case: 'tuning preview, 199 AR(1) surrogates, ac1 + variance', n: n + 50, value: previewMs, unit: 'ms', target: '< 3000 ms', pass: previewMs < 3000, note: `${view.curves.time.length} chart points` },
   ];
 }

@@ -2,6 +2,7 @@ import { QueryTypes } from 'sequelize';
 import { db, OPEN_ALERT_STATES } from '@/models';
 import { INDICATOR_NAMES, type IndicatorName } from '@/lib/engine/settings';
 import { sparkline, sparkPath } from '@/lib/display/sparkline';
+import { cachedRead } from '@/lib/db/read-cache';
 
 /** How many sampling intervals may pass without new data before a series counts as late. */
 export const LATE_AFTER_INTERVALS = 3;
@@ -92,7 +93,7 @@ interface AlertCountRow {
   series_id: number;
   severity: 'watch' | 'warning';
   state: string;
-  mine: number;
+  assignee_id: number | null;
   n: number;
 }
 
@@ -137,13 +138,43 @@ const OPEN = OPEN_ALERT_STATES.map((s) => `'${s}'`).join(',');
 const SURROGATE_P = INDICATOR_NAMES.map((name) => `'${name}', json_extract(a.summary, '$.significance.${name}.p')`).join(', ');
 
 /**
- * The morning view of the whole network in three aggregate queries run in parallel (series with their last
- * observation and latest snapshot; active rules with their latest evaluation; open alerts grouped by series,
- * severity, state and assignee), each using an index per series or rule, so the cost grows with the number of
- * series and rules, not with observations or alerts. Only the pieces of the snapshot JSON the table shows are
- * extracted in SQL; sparklines come from the snapshot curves once per snapshot (see `sparklines`).
+ * The morning view of the whole network. What is stored is the same for everyone and is answered from the read
+ * cache until the next commit (people open this screen at about the same time, mostly between two deliveries of
+ * data); the asker's own queue count and each series' freshness (which depends on the clock) are worked out on
+ * every call. O(series + open-alert groups) per call once cached.
  */
 export async function fetchSeriesOverview(actorId: number | null = null, now = Date.now()): Promise<SeriesOverview> {
+  const stored = await cachedRead('overview', loadOverview);
+  const queues: QueueCounts = { triage: 0, escalated: 0, mine: 0, open: 0 };
+  for (const group of stored.alertGroups) {
+    const n = Number(group.n);
+    queues.open += n;
+    if (group.state === 'escalated') queues.escalated += n;
+    else queues.triage += n;
+    if (actorId !== null && group.assignee_id === actorId) queues.mine += n;
+  }
+  return {
+    rows: stored.rows.map((row) => ({ ...row, freshness: freshnessOf(row.lastDataAt, row.intervalMs, now) })),
+    queues,
+    sites: stored.sites,
+    generatedAt: now,
+  };
+}
+
+interface StoredOverview {
+  rows: Omit<OverviewRow, 'freshness'>[];
+  sites: string[];
+  alertGroups: AlertCountRow[];
+}
+
+/**
+ * Three aggregate queries run in parallel (series with their last observation and latest snapshot; active rules
+ * with their latest evaluation; open alerts grouped by series, severity, state and assignee), each using an index
+ * per series or rule, so the cost grows with the number of series and rules, not with observations or alerts.
+ * Only the pieces of the snapshot JSON the table shows are extracted in SQL; sparklines come from the snapshot
+ * curves once per snapshot (see `sparklines`).
+ */
+async function loadOverview(): Promise<StoredOverview> {
   const sequelize = await db();
   const [series, rules, alerts] = await Promise.all([
     sequelize.query<SeriesRow>(
@@ -170,23 +201,18 @@ export async function fetchSeriesOverview(actorId: number | null = null, now = D
       { type: QueryTypes.SELECT },
     ),
     sequelize.query<AlertCountRow>(
-      `SELECT series_id, severity, state, COALESCE(assignee_id = :me, 0) AS mine, COUNT(*) AS n
-       FROM alerts WHERE state IN (${OPEN}) GROUP BY series_id, severity, state, mine`,
-      { type: QueryTypes.SELECT, replacements: { me: actorId ?? -1 } },
+      `SELECT series_id, severity, state, assignee_id, COUNT(*) AS n
+       FROM alerts WHERE state IN (${OPEN}) GROUP BY series_id, severity, state, assignee_id`,
+      { type: QueryTypes.SELECT },
     ),
   ]);
 
   const sparks = await sparklines(series);
   const rulesBySeries = new Map<number, RuleRow[]>();
   for (const rule of rules) rulesBySeries.set(rule.series_id, [...(rulesBySeries.get(rule.series_id) ?? []), rule]);
-  const queues: QueueCounts = { triage: 0, escalated: 0, mine: 0, open: 0 };
   const openBySeries = new Map<number, { count: number; severity: 'watch' | 'warning' }>();
   for (const row of alerts) {
     const n = Number(row.n);
-    queues.open += n;
-    if (row.state === 'escalated') queues.escalated += n;
-    else queues.triage += n;
-    if (Number(row.mine)) queues.mine += n;
     const current = openBySeries.get(row.series_id);
     openBySeries.set(row.series_id, {
       count: (current?.count ?? 0) + n,
@@ -194,7 +220,7 @@ export async function fetchSeriesOverview(actorId: number | null = null, now = D
     });
   }
 
-  const rows = series.map((s): OverviewRow => {
+  const rows = series.map((s): StoredOverview['rows'][number] => {
     const kendall = (s.kendall ? JSON.parse(s.kendall) : {}) as Record<string, { tau: number | null; p: number | null }>;
     const surrogate = (s.surrogate_p ? JSON.parse(s.surrogate_p) : {}) as Record<string, number | null>;
     const seriesRules = rulesBySeries.get(s.id) ?? [];
@@ -223,7 +249,6 @@ export async function fetchSeriesOverview(actorId: number | null = null, now = D
       timeZone: s.time_zone,
       intervalMs,
       lastDataAt,
-      freshness: freshnessOf(lastDataAt, intervalMs, now),
       state,
       openAlerts: open?.count ?? 0,
       openSeverity: open?.severity ?? null,
@@ -239,5 +264,5 @@ export async function fetchSeriesOverview(actorId: number | null = null, now = D
     };
   });
   const sites = [...new Set(rows.map((r) => r.site).filter(Boolean))].sort();
-  return { rows, queues, sites, generatedAt: now };
+  return { rows, sites, alertGroups: alerts };
 }

@@ -87,6 +87,12 @@ describe('overview', () => {
     const ac1 = sparkline((snapshots.get(quiet.id)!.curves as { indicators: Record<string, (number | null)[]> }).indicators.ac1);
     expect(bySlug['ov-quiet'].spark?.path.match(/[ML]/g)?.length).toBe(ac1.filter((v) => v !== null).length);
     expect(ac1.filter((v) => v !== null).length).toBeGreaterThan(20);
+
+    // the stored part is cached until the next commit; the asker's own count and the freshness are per call
+    expect((await fetchSeriesOverview(null, NOW)).queues.mine).toBe(0);
+    expect((await fetchSeriesOverview(analyst.id, NOW + 30 * DAY)).rows.find((r) => r.slug === 'ov-quiet')!.freshness).toBe('late');
+    await Observation.create({ seriesId: warning.id, t: NOW, value: 5 });
+    expect((await fetchSeriesOverview(analyst.id, NOW)).rows.find((r) => r.slug === 'ov-warning')).toMatchObject({ freshness: 'fresh', lastDataAt: NOW });
   });
 });
 
