@@ -2,8 +2,8 @@ import sqlite3, { type Database } from 'sqlite3';
 import { busyTimeoutMs, databasePath } from '@/lib/config';
 
 /**
- * Answers of hot reads (the overview, alert queues, the series workbench and detail, the series pickers, the signed-in user)
- * kept between requests for as long as the database has not changed, and never longer.
+ * Answers of hot reads (the overview, alert queues, the series workbench and detail, the series pickers, the
+ * signed-in user) kept between requests for as long as the database has not changed, and never longer.
  *
  * Change detection is SQLite's `PRAGMA data_version` (https://sqlite.org/pragma.html#pragma_data_version): its value
  * on one connection changes whenever *another* connection commits, across processes too (WAL index). The probe runs
