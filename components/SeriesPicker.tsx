@@ -39,20 +39,32 @@ export function SeriesPicker({ label, value, onChange, required = false }: {
     select: (data) => data.items.map(({ slug, name }) => ({ slug, name })),
   });
   const items = matches.data ?? [];
+  // The list may still show the matches of what was typed before the pause; Enter must not pick from those.
+  const current = asked === text.trim();
+  const [enterPending, setEnterPending] = useState(false);
 
   function choose(choice: SeriesChoice | null) {
     onChange(choice);
     setText('');
     setOpen(false);
+    setEnterPending(false);
   }
+  // Enter pressed before the matches of the text arrived picks the first of them once they do.
+  useEffect(() => {
+    if (enterPending && current && matches.data) {
+      if (matches.data[0]) choose(matches.data[0]);
+      else setEnterPending(false);
+    }
+  });
   function onKeyDown(event: React.KeyboardEvent<HTMLInputElement>) {
     if (event.key === 'ArrowDown' || event.key === 'ArrowUp') {
       event.preventDefault();
       setOpen(true);
       if (items.length) setActive((active + (event.key === 'ArrowDown' ? 1 : items.length - 1)) % items.length);
-    } else if (event.key === 'Enter' && open && items[active]) {
+    } else if (event.key === 'Enter' && open) {
       event.preventDefault();
-      choose(items[active]);
+      if (current && items[active]) choose(items[active]);
+      else if (!current) setEnterPending(true);
     } else if (event.key === 'Escape') {
       setOpen(false);
     }
@@ -78,6 +90,7 @@ export function SeriesPicker({ label, value, onChange, required = false }: {
             setText(event.target.value);
             setActive(0);
             setOpen(true);
+            setEnterPending(false);
           }}
           onFocus={() => setOpen(true)}
           onBlur={() => setOpen(false)}
