@@ -120,3 +120,46 @@ describe('sweepStaleRuns', () => {
     expect(live.status).toBe('running');
   });
 });
+
+describe('loadObservations', () => {
+  it('returns every stored double bit for bit, for random bit patterns and the edge values of IEEE 754', async () => {
+    // IEEE 754-2008 binary64: 17 significant digits identify every double (§5.12.2); the reader passes values
+    // through text, so this is the property that matters. -0 is left out: SQLite stores it as 0 either way.
+    const series = await freshSeries('exact-read');
+    const bits = new DataView(new ArrayBuffer(8));
+    let seed = 20261202;
+    const next = () => (seed = (Math.imul(seed, 1103515245) + 12345) >>> 0);
+    const values: number[] = [5e-324, 2.2250738585072014e-308, 1.7976931348623157e308, -1.7976931348623157e308, 0.1, 1 / 3, 2 ** 53 + 2, 0];
+    while (values.length < 3000) {
+      bits.setUint32(0, next());
+      bits.setUint32(4, next());
+      const v = bits.getFloat64(0);
+      if (Number.isFinite(v) && !Object.is(v, -0)) values.push(v);
+    }
+    const sequelize = await db();
+    await sequelize.query(`INSERT INTO observations (series_id, t, value) VALUES ${values.map((_, i) => `(${series.id}, ${1_700_000_000_000 + i * 60_000}, ?)`).join(',')}`, { replacements: values });
+    const read = await loadObservations(series.id);
+    expect(read.time.length).toBe(values.length);
+    const wrong = values.filter((v, i) => !Object.is(read.value[i], v));
+    expect(wrong).toEqual([]);
+    expect(read.time[values.length - 1]).toBe(1_700_000_000_000 + (values.length - 1) * 60_000);
+  });
+
+  it('reads records longer than one packed query (100,000 rows) whole and in order, and honours from, to and limit', async () => {
+    const series = await freshSeries('long-read');
+    const n = 250_003;
+    const sequelize = await db();
+    await sequelize.query(
+      `WITH RECURSIVE k(i) AS (SELECT 0 UNION ALL SELECT i + 1 FROM k WHERE i < ${n - 1})
+       INSERT INTO observations (series_id, t, value) SELECT ${series.id}, i * 1000, i * 0.5 - 7 FROM k`,
+    );
+    const all = await loadObservations(series.id);
+    expect(all.time.length).toBe(n);
+    expect([all.time[0], all.time[99_999], all.time[100_000], all.time[n - 1]]).toEqual([0, 99_999_000, 100_000_000, (n - 1) * 1000]);
+    expect([all.value[100_000], all.value[n - 1]]).toEqual([100_000 * 0.5 - 7, (n - 1) * 0.5 - 7]);
+    const part = await loadObservations(series.id, { from: 50_000_000, to: 210_000_000, limit: 150_000 });
+    expect(part.time.length).toBe(150_000);
+    expect([part.time[0], part.time[149_999]]).toEqual([50_000_000, 199_999_000]);
+    expect((await loadObservations(series.id, { from: 240_000_500 })).time.length).toBe(n - 240_001);
+  }, 60_000);
+});
