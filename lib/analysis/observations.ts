@@ -15,10 +15,11 @@ const PACKED_ROWS = 100_000;
  * A series' observations in time order as typed arrays (UTC ms, value): what the engine takes. Indexed range scans
  * of the (series_id, t) primary key on the raw sqlite3 handle, PACKED_ROWS at a time, each answered as ONE string
  * `t,value;t,value;…` built inside SQLite: node-sqlite3 spends most of a large read making one JS object per row,
- * and one string per 100,000 rows reads about 40 % faster. Exact: SQLite (3.43 and later) turns a REAL into the
- * shortest text that reads back as the same double, and ECMAScript's Number() reads decimal text correctly rounded
- * (ECMA-262 §7.1.4.1.1), so every stored double comes back bit for bit (tests/intake/pipeline.test.ts checks it
- * on random bit patterns). O(n).
+ * and one string per 100,000 rows reads about 40 % faster. Exact: SQLite turns a REAL into text that reads back as
+ * the same double (from memory, since its 3.43 rewrite of that conversion; the bundled SQLite is 3.52), and
+ * ECMAScript's Number() reads decimal text correctly rounded (ECMA-262 §7.1.4.1.1), so every stored double comes
+ * back bit for bit; tests/intake/pipeline.test.ts checks it on random bit patterns, so an SQLite that did not
+ * would fail there. O(n).
  */
 export async function loadObservations(seriesId: number, range: ObservationRange = {}): Promise<{ time: Float64Array; value: Float64Array }> {
   const connection = await rawReadConnection();
