@@ -23,33 +23,30 @@ const PACKED_ROWS = 100_000;
  */
 export async function loadObservations(seriesId: number, range: ObservationRange = {}): Promise<{ time: Float64Array; value: Float64Array }> {
   const connection = await rawReadConnection();
+  const clauses = ['series_id = ?', 't > ?'];
+  const bounds: unknown[] = [seriesId];
+  if (range.from !== undefined) {
+    clauses.push('t >= ?');
+    bounds.push(range.from);
+  }
+  if (range.to !== undefined) {
+    clauses.push('t <= ?');
+    bounds.push(range.to);
+  }
+  const sql = `SELECT COUNT(*) AS n, MAX(t) AS last, group_concat(t || ',' || CAST(value AS TEXT), ';' ORDER BY t) AS packed
+    FROM (SELECT t, value FROM observations WHERE ${clauses.join(' AND ')} ORDER BY t LIMIT ?)`;
   const times: Float64Array[] = [];
   const values: Float64Array[] = [];
   let total = 0;
-  let after: number | null = null;
+  // Keyset paging: each query starts after the last instant of the one before (first: before any instant).
+  let after = -Number.MAX_VALUE;
   for (;;) {
     const want = Math.min(PACKED_ROWS, range.limit === undefined ? PACKED_ROWS : range.limit - total);
     if (want <= 0) break;
-    const clauses = ['series_id = ?'];
-    const params: unknown[] = [seriesId];
-    if (range.from !== undefined) {
-      clauses.push('t >= ?');
-      params.push(range.from);
-    }
-    if (range.to !== undefined) {
-      clauses.push('t <= ?');
-      params.push(range.to);
-    }
-    if (after !== null) {
-      clauses.push('t > ?');
-      params.push(after);
-    }
-    params.push(want);
     const [chunk] = await allRows<{ n: number; last: number | null; packed: string | null }>(
       connection,
-      `SELECT COUNT(*) AS n, MAX(t) AS last, group_concat(t || ',' || CAST(value AS TEXT), ';' ORDER BY t) AS packed
-       FROM (SELECT t, value FROM observations WHERE ${clauses.join(' AND ')} ORDER BY t LIMIT ?)`,
-      params,
+      sql,
+      [bounds[0], after, ...bounds.slice(1), want],
     );
     if (!chunk.n || chunk.packed === null) break;
     const records = chunk.packed.split(';');
