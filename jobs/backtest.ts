@@ -1,4 +1,5 @@
 import { requeueAbandonedBacktests, runNextBacktest } from '@/lib/backtest/jobs';
+import { cronSetting } from '@/lib/config';
 import { withLease } from '@/lib/leases';
 import type { ScheduledJob } from './types';
 
@@ -13,7 +14,7 @@ let busy = false;
  */
 export const backtestJob: ScheduledJob = {
   name: 'backtests',
-  schedule: () => process.env.BACKTEST_CRON || '*/5 * * * * *',
+  schedule: () => cronSetting('BACKTEST_CRON'),
   run: async () => {
     if (busy) return;
     busy = true;

@@ -1,4 +1,5 @@
 import cron from 'node-cron';
+import { assertConfig } from '@/lib/config';
 import { migrateUp } from '@/migrations';
 import { closeDatabase } from '@/models';
 import { writeAppState } from '@/lib/app-state';
@@ -17,6 +18,7 @@ function log(message: string): void {
  * overlaps itself in one process; across processes, jobs take database leases for the items they work on.
  */
 async function main(): Promise<void> {
+  assertConfig(log);
   await migrateUp();
   const beat = () => writeAppState(SCHEDULER_HEARTBEAT_KEY, PROCESS_HOLDER).catch((e) => log(`heartbeat failed: ${e}`));
   await beat();

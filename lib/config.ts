@@ -1,19 +1,124 @@
 import path from 'node:path';
+import { validate as validCron } from 'node-cron';
+import { z } from 'zod';
 
 /**
- * Runtime configuration, read from the environment each time so tests can point a process at a
- * temp DATA_DIR. Every variable here is listed in `.env.example` and the README.
+ * Runtime configuration: every environment variable Brinkwatch reads, parsed by one zod schema. Each is optional
+ * and listed with its default in `.env.example` and the README. The environment is read again on every call (a
+ * parse costs microseconds) so tests can point a process at a temp DATA_DIR; `assertConfig` runs at the start of
+ * `npm start` and of the scheduler, so a bad value stops the start with a message naming the variable instead of
+ * surfacing later as a NaN timeout or a cron job that never runs.
  */
+const text = z.string().trim();
+const optionalText = text.optional().transform((v) => (v === '' ? undefined : v));
+const whole = (fallback: number, min: number, max = Number.MAX_SAFE_INTEGER) =>
+  z
+    .string()
+    .trim()
+    .optional()
+    .transform((v, ctx) => {
+      if (v === undefined || v === '') return fallback;
+      const n = Number(v);
+      if (!Number.isInteger(n) || n < min || n > max) {
+        ctx.addIssue({ code: 'custom', message: `must be a whole number from ${min} to ${max} (got '${v}')` });
+        return z.NEVER;
+      }
+      return n;
+    });
+const cron = (fallback: string) =>
+  z
+    .string()
+    .trim()
+    .optional()
+    .transform((v, ctx) => {
+      const expression = v || fallback;
+      if (!validCron(expression)) {
+        ctx.addIssue({ code: 'custom', message: `is not a cron expression (got '${expression}'; five fields, or six with seconds first)` });
+        return z.NEVER;
+      }
+      return expression;
+    });
+const flag = (fallback: boolean) =>
+  z
+    .enum(['0', '1', ''])
+    .optional()
+    .transform((v) => (v === undefined || v === '' ? fallback : v === '1'));
+const url = (protocols: string[]) =>
+  optionalText.refine((v) => {
+    if (v === undefined) return true;
+    try {
+      return protocols.includes(new URL(v).protocol);
+    } catch {
+      return false;
+    }
+  }, `must be a URL starting with ${protocols.map((p) => `${p}//`).join(' or ')}`);
+
+export const configSchema = z.object({
+  DATA_DIR: optionalText,
+  DATABASE_PATH: optionalText,
+  DROP_DIR: optionalText,
+  PORT: whole(3000, 1, 65535),
+  HOST: text.default('127.0.0.1'),
+  NEXTAUTH_URL: url(['http:', 'https:']),
+  NEXTAUTH_SECRET: optionalText.refine((v) => v === undefined || v.length >= 32, 'must be at least 32 characters (e.g. openssl rand -base64 32)'),
+  DEMO_PASSWORD: text.min(12, 'must be at least 12 characters, like every password').default('brinkwatch-demo'),
+  SEED_DEMO: flag(true),
+  SMTP_URL: url(['smtp:', 'smtps:']),
+  MAIL_SINK_PORT: whole(2525, 1, 65535),
+  MAIL_FROM: text.min(3).default('Brinkwatch <brinkwatch@localhost>'),
+  MAIL_RETRY_BASE_MS: whole(30_000, 1),
+  MAIL_RETRY_MAX_MS: whole(600_000, 1),
+  MAIL_MAX_ATTEMPTS: whole(60, 1),
+  INGEST_CRON: cron('* * * * *'),
+  ANALYSIS_CRON: cron('*/2 * * * *'),
+  MAIL_CRON: cron('*/15 * * * * *'),
+  DIGEST_CRON: cron('0 7 * * *'),
+  BACKTEST_CRON: cron('*/5 * * * * *'),
+  START_SCHEDULER: flag(true),
+  /** Web processes sharing the port; unset = one per core (read by scripts/web.mjs after the start script validated it). */
+  WEB_WORKERS: whole(1, 1, 256).optional(),
+  KEEP_ALIVE_TIMEOUT_MS: whole(65_000, 1),
+  DB_BUSY_TIMEOUT_MS: whole(5000, 1),
+  SIGNIN_MAX_FAILURES_ACCOUNT: whole(5, 1),
+  SIGNIN_MAX_FAILURES_ADDRESS: whole(20, 1),
+  BCRYPT_COST: whole(11, 10, 31),
+  SKIP_BUILD: flag(false),
+  DB_LOG: flag(false),
+});
+export type Config = z.output<typeof configSchema>;
+
+/** A configuration value the process cannot run with; the message names every bad variable. */
+export class ConfigError extends Error {}
+
+/** The parsed environment. Throws ConfigError naming each bad variable. O(number of variables). */
+export function config(env: Record<string, string | undefined> = process.env): Config {
+  const parsed = configSchema.safeParse(env);
+  if (parsed.success) return parsed.data;
+  const lines = parsed.error.issues.map((issue) => `${String(issue.path[0])} ${issue.message}`);
+  throw new ConfigError(`Bad configuration: ${lines.join('; ')}`);
+}
+
+/** Called first by the start script and the scheduler: prints what is wrong and exits 1 on a bad value. */
+export function assertConfig(log: (line: string) => void = console.error): Config {
+  try {
+    return config();
+  } catch (error) {
+    if (!(error instanceof ConfigError)) throw error;
+    log(error.message);
+    process.exit(1);
+  }
+}
+
 export function dataDir(): string {
-  return path.resolve(/*turbopackIgnore: true*/ process.env.DATA_DIR || './data');
+  return path.resolve(/*turbopackIgnore: true*/ config().DATA_DIR ?? './data');
 }
 
 export function databasePath(): string {
-  return path.resolve(/*turbopackIgnore: true*/ process.env.DATABASE_PATH || path.join(dataDir(), 'brinkwatch.sqlite'));
+  return path.resolve(/*turbopackIgnore: true*/ config().DATABASE_PATH ?? path.join(dataDir(), 'brinkwatch.sqlite'));
 }
 
 export function dropDir(): string {
-  return path.resolve(/*turbopackIgnore: true*/ process.env.DROP_DIR || path.join(dataDir(), 'drops'));
+  return path.resolve(/*turbopackIgnore: true*/ config().DROP_DIR ?? path.join(dataDir(), 'drops'));
 }
 
 export function mailboxDir(): string {
@@ -21,35 +126,39 @@ export function mailboxDir(): string {
 }
 
 export function appPort(): number {
-  return Number(process.env.PORT || 3000);
+  return config().PORT;
 }
 
 export function publicBaseUrl(): string {
-  return (process.env.NEXTAUTH_URL || `http://localhost:${appPort()}`).replace(/\/$/, '');
+  return (config().NEXTAUTH_URL ?? `http://localhost:${appPort()}`).replace(/\/$/, '');
 }
 
-export function cronSetting(name: 'INGEST_CRON' | 'ANALYSIS_CRON' | 'MAIL_CRON' | 'DIGEST_CRON'): string {
-  const defaults = {
-    INGEST_CRON: '* * * * *',
-    ANALYSIS_CRON: '*/2 * * * *',
-    MAIL_CRON: '*/15 * * * * *',
-    DIGEST_CRON: '0 7 * * *',
-  } as const;
-  return process.env[name] || defaults[name];
+export function cronSetting(name: 'INGEST_CRON' | 'ANALYSIS_CRON' | 'MAIL_CRON' | 'DIGEST_CRON' | 'BACKTEST_CRON'): string {
+  return config()[name];
 }
 
 /** Busy timeout for SQLite in ms: a writer waits this long for a lock before failing with SQLITE_BUSY. */
 export function busyTimeoutMs(): number {
-  return Number(process.env.DB_BUSY_TIMEOUT_MS || 5000);
+  return config().DB_BUSY_TIMEOUT_MS;
+}
+
+/** Whether mail goes to a real server (SMTP_URL) rather than the local stand-in. */
+export function smtpConfigured(): boolean {
+  return config().SMTP_URL !== undefined;
 }
 
 /** Outgoing mail server: SMTP_URL when set, else the local stand-in that `npm start` runs on MAIL_SINK_PORT. */
 export function smtpUrl(): string {
-  return process.env.SMTP_URL || `smtp://127.0.0.1:${Number(process.env.MAIL_SINK_PORT || 2525)}`;
+  const c = config();
+  return c.SMTP_URL ?? `smtp://127.0.0.1:${c.MAIL_SINK_PORT}`;
+}
+
+export function mailSinkPort(): number {
+  return config().MAIL_SINK_PORT;
 }
 
 export function mailFrom(): string {
-  return process.env.MAIL_FROM || 'Brinkwatch <brinkwatch@localhost>';
+  return config().MAIL_FROM;
 }
 
 /**
@@ -58,9 +167,6 @@ export function mailFrom(): string {
  * about nine hours, so an hour-long outage of the mail server loses nothing.
  */
 export function mailRetryPolicy(): { baseMs: number; maxMs: number; maxAttempts: number } {
-  return {
-    baseMs: Number(process.env.MAIL_RETRY_BASE_MS || 30_000),
-    maxMs: Number(process.env.MAIL_RETRY_MAX_MS || 600_000),
-    maxAttempts: Number(process.env.MAIL_MAX_ATTEMPTS || 60),
-  };
+  const c = config();
+  return { baseMs: c.MAIL_RETRY_BASE_MS, maxMs: c.MAIL_RETRY_MAX_MS, maxAttempts: c.MAIL_MAX_ATTEMPTS };
 }

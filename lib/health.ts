@@ -1,6 +1,7 @@
 import { Op } from 'sequelize';
 import { MailMessage, db } from '@/models';
 import { readAppState } from '@/lib/app-state';
+import { smtpConfigured } from '@/lib/config';
 
 export const SCHEDULER_HEARTBEAT_KEY = 'scheduler.heartbeat';
 /** The scheduler beats every 15 s; three missed beats and it counts as down. */
@@ -15,7 +16,7 @@ export interface HealthReport {
 
 /** Each part's state; `ok` is the database's, since without it nothing else can be answered. */
 export async function fetchHealth(now = Date.now()): Promise<HealthReport> {
-  const transport = process.env.SMTP_URL ? 'smtp' : 'local-sink';
+  const transport = smtpConfigured() ? 'smtp' : 'local-sink';
   try {
     const sequelize = await db();
     await sequelize.query('SELECT 1');

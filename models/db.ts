@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import sqlite3, { type Database } from 'sqlite3';
 import { Sequelize, Transaction } from 'sequelize';
-import { busyTimeoutMs, databasePath } from '@/lib/config';
+import { busyTimeoutMs, config, databasePath } from '@/lib/config';
 import { closeReadCache } from '@/lib/db/read-cache';
 
 type Cached = { sequelize: Sequelize; path: string; ready: Promise<void> };
@@ -43,7 +43,7 @@ export function getSequelize(): Sequelize {
     dialect: 'sqlite',
     dialectModule: sqlite3,
     storage: file,
-    logging: process.env.DB_LOG === '1' ? console.log : false,
+    logging: config().DB_LOG ? console.log : false,
     define: { underscored: true },
     retry: { max: 5, match: [/SQLITE_BUSY/] },
   });

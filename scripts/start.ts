@@ -1,6 +1,6 @@
 import { spawn, type ChildProcess } from 'node:child_process';
 import path from 'node:path';
-import { appPort, dataDir, databasePath } from '@/lib/config';
+import { assertConfig, dataDir, databasePath } from '@/lib/config';
 import { ensureAuthSecret } from '@/lib/runtime/secret';
 import { buildIfNeeded } from '@/lib/runtime/build';
 import { startMailSink } from '@/lib/mail/sink';
@@ -17,25 +17,26 @@ const log = (line: string) => console.log(`[brinkwatch] ${line}`);
  * SMTP stand-in.
  */
 async function main(): Promise<void> {
+  const settings = assertConfig((line) => log(line));
   process.env.DATA_DIR = dataDir();
   process.env.NEXTAUTH_SECRET = ensureAuthSecret();
-  const port = appPort();
-  const host = process.env.HOST || '127.0.0.1';
+  const port = settings.PORT;
+  const host = settings.HOST;
   process.env.NEXTAUTH_URL ||= `http://localhost:${port}`;
-  const password = process.env.DEMO_PASSWORD || 'brinkwatch-demo';
+  const password = settings.DEMO_PASSWORD;
 
   const applied = await migrateUp();
   if (applied.length) log(`applied migrations: ${applied.join(', ')}`);
-  const seeded = await seedIfEmpty({ demo: process.env.SEED_DEMO !== '0', password });
+  const seeded = await seedIfEmpty({ demo: settings.SEED_DEMO, password });
   await closeDatabase();
   if (seeded) log('seeded the demo network');
 
-  if (process.env.SKIP_BUILD !== '1') await buildIfNeeded(log);
+  if (!settings.SKIP_BUILD) await buildIfNeeded(log);
 
   const children: ChildProcess[] = [];
   let stopping = false;
-  const sink = process.env.SMTP_URL ? null : await startMailSink(Number(process.env.MAIL_SINK_PORT || 2525));
-  if (sink) log(`local mail sink on smtp://127.0.0.1:${process.env.MAIL_SINK_PORT || 2525} (read it on /admin/mailbox)`);
+  const sink = settings.SMTP_URL ? null : await startMailSink(settings.MAIL_SINK_PORT);
+  if (sink) log(`local mail sink on smtp://127.0.0.1:${settings.MAIL_SINK_PORT} (read it on /admin/mailbox)`);
 
   const web = spawn(process.execPath, [path.join(ROOT, 'scripts/web.mjs')], {
     cwd: ROOT,
@@ -45,7 +46,7 @@ async function main(): Promise<void> {
   children.push(web);
 
   const startScheduler = () => {
-    if (process.env.START_SCHEDULER === '0') return;
+    if (!settings.START_SCHEDULER) return;
     const scheduler = spawn(process.execPath, ['--import', 'tsx', path.join(ROOT, 'jobs/scheduler.ts')], {
       cwd: ROOT,
       stdio: 'inherit',

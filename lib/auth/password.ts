@@ -1,7 +1,8 @@
 import bcrypt from 'bcryptjs';
+import { config } from '@/lib/config';
 
-/** bcrypt work factor; 10 is the floor recommended by OWASP's password storage cheat sheet (common practice). */
-export const BCRYPT_COST = Math.max(10, Number(process.env.BCRYPT_COST || 11));
+/** bcrypt work factor; 10 is the floor recommended by OWASP's password storage cheat sheet (common practice), enforced by the configuration schema. */
+export const BCRYPT_COST = config().BCRYPT_COST;
 
 export function hashPassword(plain: string): Promise<string> {
   return bcrypt.hash(plain, BCRYPT_COST);

@@ -1,9 +1,10 @@
 import { SignInThrottle, db } from '@/models';
+import { config } from '@/lib/config';
 
 /** Failures allowed inside the window before a key is locked, and how long the lock lasts. */
 export const THROTTLE = {
-  accountFailures: Number(process.env.SIGNIN_MAX_FAILURES_ACCOUNT || 5),
-  addressFailures: Number(process.env.SIGNIN_MAX_FAILURES_ADDRESS || 20),
+  accountFailures: config().SIGNIN_MAX_FAILURES_ACCOUNT,
+  addressFailures: config().SIGNIN_MAX_FAILURES_ADDRESS,
   windowMs: 15 * 60 * 1000,
   lockMs: 15 * 60 * 1000,
 };

@@ -1,14 +1,15 @@
 import crypto from 'node:crypto';
 import fs from 'node:fs';
 import path from 'node:path';
-import { dataDir } from '@/lib/config';
+import { config, dataDir } from '@/lib/config';
 
 /**
  * NEXTAUTH_SECRET signs session cookies. When the environment gives none, one is generated on first start and kept
  * in DATA_DIR (mode 0600) so sessions survive restarts; rotating it is deleting the file (everyone signs in again).
  */
 export function ensureAuthSecret(): string {
-  if (process.env.NEXTAUTH_SECRET) return process.env.NEXTAUTH_SECRET;
+  const configured = config().NEXTAUTH_SECRET;
+  if (configured) return configured;
   const file = path.join(dataDir(), 'auth-secret');
   if (fs.existsSync(file)) return fs.readFileSync(file, 'utf8').trim();
   fs.mkdirSync(dataDir(), { recursive: true });

@@ -1,5 +1,6 @@
 import { NextResponse } from 'next/server';
 import { requireRole } from '@/lib/auth/guard';
+import { smtpConfigured } from '@/lib/config';
 import { handle } from '@/lib/http/handler';
 import { listSinkMessages, messageText } from '@/lib/mail/sink';
 
@@ -9,5 +10,5 @@ export const GET = handle(async () => {
   const items = listSinkMessages()
     .slice(0, 200)
     .map(({ raw, ...message }) => ({ ...message, text: messageText(raw) }));
-  return NextResponse.json({ items, total: items.length, smtpConfigured: Boolean(process.env.SMTP_URL) });
+  return NextResponse.json({ items, total: items.length, smtpConfigured: smtpConfigured() });
 });
