@@ -4,6 +4,7 @@
  * Exit code 1 when a row with a target misses it.
  */
 import { readdirSync } from 'node:fs';
+import os from 'node:os';
 import path from 'node:path';
 
 export interface BenchRow {
@@ -70,7 +71,7 @@ async function main(): Promise<number> {
   printTable(rows);
   const failed = rows.filter((r) => r.pass === false).length;
   const judged = rows.filter((r) => r.pass === true || r.pass === false).length;
-  console.log(`\n${judged - failed} of ${judged} targets met (machine: ${require('node:os').cpus().length} cores, Node ${process.version})`);
+  console.log(`\n${judged - failed} of ${judged} targets met (machine: ${os.cpus().length} cores, Node ${process.version})`);
   return failed > 0 ? 1 : 0;
 }
 

@@ -1,7 +1,7 @@
 'use client';
 
-import { useQuery } from '@tanstack/react-query';
-import { useEffect, useId, useState } from 'react';
+import { useQuery, useQueryClient } from '@tanstack/react-query';
+import { useEffect, useId, useRef, useState } from 'react';
 import { api } from '@/components/api';
 import type { SeriesChoice } from '@/lib/series/registry';
 
@@ -9,6 +9,15 @@ import type { SeriesChoice } from '@/lib/series/registry';
 const MATCHES = 12;
 /** Typing pauses this long before the server is asked, so a word is one request rather than one per letter. */
 const TYPING_PAUSE_MS = 200;
+
+function findQuery(find: string) {
+  return {
+    queryKey: ['series-find', find],
+    queryFn: ({ signal }: { signal: AbortSignal }) =>
+      api<{ items: SeriesChoice[] }>(`/api/series?${new URLSearchParams({ find, limit: String(MATCHES) })}`, { signal }),
+    staleTime: 30_000,
+  };
+}
 
 /**
  * Choosing one series out of hundreds: a text box that asks GET /api/series?find=… as one types and lists the
@@ -31,31 +40,31 @@ export function SeriesPicker({ label, value, onChange, required = false }: {
     const timer = setTimeout(() => setAsked(text.trim()), TYPING_PAUSE_MS);
     return () => clearTimeout(timer);
   }, [text]);
+  const queryClient = useQueryClient();
+  /** The text as last typed, for an Enter whose matches arrive after more typing. */
+  const typed = useRef('');
   const matches = useQuery({
-    queryKey: ['series-find', asked],
-    queryFn: ({ signal }) => api<{ items: SeriesChoice[] }>(`/api/series?${new URLSearchParams({ find: asked, limit: String(MATCHES) })}`, { signal }),
+    ...findQuery(asked),
     enabled: open,
-    staleTime: 30_000,
     select: (data) => data.items.map(({ slug, name }) => ({ slug, name })),
   });
   const items = matches.data ?? [];
   // The list may still show the matches of what was typed before the pause; Enter must not pick from those.
   const current = asked === text.trim();
-  const [enterPending, setEnterPending] = useState(false);
 
   function choose(choice: SeriesChoice | null) {
     onChange(choice);
     setText('');
+    typed.current = '';
     setOpen(false);
-    setEnterPending(false);
   }
-  // Enter pressed before the matches of the text arrived picks the first of them once they do.
-  useEffect(() => {
-    if (enterPending && current && matches.data) {
-      if (matches.data[0]) choose(matches.data[0]);
-      else setEnterPending(false);
-    }
-  });
+  /** Enter before the matches of the typed text arrived: ask for them now and take the first, unless typing went on. */
+  function chooseFirstMatchOf(find: string) {
+    void queryClient.fetchQuery(findQuery(find)).then((data) => {
+      const first = data.items[0];
+      if (first && typed.current.trim() === find) choose({ slug: first.slug, name: first.name });
+    });
+  }
   function onKeyDown(event: React.KeyboardEvent<HTMLInputElement>) {
     if (event.key === 'ArrowDown' || event.key === 'ArrowUp') {
       event.preventDefault();
@@ -64,7 +73,7 @@ export function SeriesPicker({ label, value, onChange, required = false }: {
     } else if (event.key === 'Enter' && open) {
       event.preventDefault();
       if (current && items[active]) choose(items[active]);
-      else if (!current) setEnterPending(true);
+      else if (!current) chooseFirstMatchOf(text.trim());
     } else if (event.key === 'Escape') {
       setOpen(false);
     }
@@ -88,9 +97,9 @@ export function SeriesPicker({ label, value, onChange, required = false }: {
           placeholder={value ? value.name : emptyLabel}
           onChange={(event) => {
             setText(event.target.value);
+            typed.current = event.target.value;
             setActive(0);
             setOpen(true);
-            setEnterPending(false);
           }}
           onFocus={() => setOpen(true)}
           onBlur={() => setOpen(false)}

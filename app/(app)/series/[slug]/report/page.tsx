@@ -23,6 +23,9 @@ export default async function SeriesReportPage({ params }: { params: Promise<{ s
   const actor = await requireRole('viewer');
   const { slug } = await params;
   const bench = await fetchWorkbench(slug);
+  // A server component renders once per request, so the report states the moment it was prepared.
+  // eslint-disable-next-line react-hooks/purity
+  const preparedAt = Date.now();
   const { series, view } = bench;
   return (
     <article className="report mx-auto max-w-4xl space-y-4 bg-card p-6 print:p-0">
@@ -32,7 +35,7 @@ export default async function SeriesReportPage({ params }: { params: Promise<{ s
         <p className="font-mono text-xs uppercase tracking-widest text-tide">Brinkwatch · series report</p>
         <h1 className="text-2xl font-semibold">{series.name}</h1>
         <p className="text-sm text-ink-soft">
-          {series.site || 'No site'} · {series.unit || 'no unit'} · prepared for {actor.name} on <LocalTime t={Date.now()} timeZone={series.timeZone} withZone />
+          {series.site || 'No site'} · {series.unit || 'no unit'} · prepared for {actor.name} on <LocalTime t={preparedAt} timeZone={series.timeZone} withZone />
         </p>
       </header>
       <Caution />
