@@ -1,12 +1,8 @@
 /**
  * Indicator engine speed (issue 3): gaussian detrend, rolling indicators, Kendall, the whole in-process
- * analysis at n = 1e4, 1e5, 1e6, how cost grows with n, 1,000 AR(1) surrogates at n = 1e4, the whole
- * `analyze --summary` command on a generated 1e6-row CSV, peak memory, and (when python3 with numpy and
- * scipy is present) the same job as a vectorised numpy/scipy script for comparison.
+ * analysis at n = 1e4, 1e5, 1e6, how cost grows with n, 1,000 AR(1) surrogates at n = 1e4 and peak memory.
+ * The command line on a 1e6-row file is timed in bench/cli.bench.ts.
  */
-import { spawnSync } from 'node:child_process';
-import { existsSync, mkdirSync, writeFileSync } from 'node:fs';
-import path from 'node:path';
 import { runAnalysis } from '../lib/engine/analyze';
 import { detrend } from '../lib/engine/detrend';
 import { indicatorTrends } from '../lib/engine/kendall';
@@ -19,11 +15,9 @@ import type { BenchRow } from './index';
 
 export const title = 'engine';
 
-const root = path.resolve(__dirname, '..');
-const outDir = path.join(root, 'bench', 'output');
 
 /** AR(1) with a slowly rising coefficient on a smooth level: the kind of series the engine is for. */
-function series(n: number, seed = 1): Float64Array {
+export function series(n: number, seed = 1): Float64Array {
   const rng = new RandomStream(seed, 0);
   const x = new Float64Array(n);
   let e = 0;
@@ -49,17 +43,6 @@ async function timeIt(repeats: number, f: () => unknown): Promise<number> {
   return median(t);
 }
 
-function commandTime(cmd: string, args: string[]): { ms: number; rssMb: number | null; ok: boolean } {
-  const timeBin = '/usr/bin/time';
-  const useTime = existsSync(timeBin);
-  const t0 = performance.now();
-  const r = useTime
-    ? spawnSync(timeBin, ['-f', '%M', cmd, ...args], { cwd: root, encoding: 'utf8', maxBuffer: 1 << 28 })
-    : spawnSync(cmd, args, { cwd: root, encoding: 'utf8', maxBuffer: 1 << 28 });
-  const ms = performance.now() - t0;
-  const kb = useTime ? Number(r.stderr.trim().split('\n').pop()) : Number.NaN;
-  return { ms, rssMb: Number.isFinite(kb) ? kb / 1024 : null, ok: r.status === 0 };
-}
 
 export async function run(): Promise<BenchRow[]> {
   const rows: BenchRow[] = [];
@@ -105,25 +88,5 @@ export async function run(): Promise<BenchRow[]> {
   });
   rows.push({ case: '1,000 AR(1) surrogates, all indicators', n: 1e4, value: tSur, unit: 'ms', target: '< 5000 ms', pass: tSur < 5000, note: `${workers} worker threads` });
 
-  mkdirSync(outDir, { recursive: true });
-  const csv = path.join(outDir, 'engine-1e6.csv');
-  const big = series(1e6, 3);
-  const lines = ['t,value'];
-  for (let i = 0; i < big.length; i++) lines.push(`${i},${big[i].toFixed(6)}`);
-  writeFileSync(csv, `${lines.join('\n')}\n`);
-  const runs = [commandTime('npm', ['run', '--silent', 'analyze', '--', csv, '--summary']), commandTime('npm', ['run', '--silent', 'analyze', '--', csv, '--summary'])];
-  const best = runs.reduce((a, b) => (b.ms < a.ms ? b : a));
-  rows.push({ case: 'npm run analyze -- FILE --summary (1e6-row CSV)', n: 1e6, value: best.ms, unit: 'ms', target: '< 2500 ms', pass: best.ok && best.ms < 2500, note: 'best of 2, includes npm + tsx start' });
-  if (best.rssMb !== null) rows.push({ case: 'peak RSS of that command', n: 1e6, value: best.rssMb, unit: 'MB', target: '< 500 MB', pass: best.rssMb < 500 });
-
-  const script = path.resolve(root, '../shared/bench/numpy_pipeline.py');
-  const probe = spawnSync('python3', ['-c', 'import numpy, scipy'], { encoding: 'utf8' });
-  if (existsSync(script) && probe.status === 0) {
-    const py = commandTime('python3', [script, csv, '0.1', '0.5']);
-    rows.push({ case: 'numpy/scipy script, same CSV (for comparison)', n: 1e6, value: py.ms, unit: 'ms', note: py.ok ? '' : 'script failed' });
-    if (py.ok) rows.push({ case: 'ratio analyze / numpy script', n: 1e6, value: best.ms / py.ms, unit: '×', note: '< 1 means Brinkwatch is faster' });
-  } else {
-    rows.push({ case: 'numpy/scipy comparison', value: Number.NaN, unit: '', note: 'skipped: python3 with numpy/scipy or the script is not available' });
-  }
   return rows;
 }

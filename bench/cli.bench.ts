@@ -1,0 +1,70 @@
+/**
+ * The command line as a practitioner runs it: the whole `brinkwatch analyze FILE --summary` process (start, read
+ * the CSV, analyse, print) on a generated 1e6-row file, its peak memory, and — when python3 with numpy and scipy is
+ * present — the numpy/scipy pipeline in ../shared/bench on the same file in the same run. Goal: at most 0.5× that
+ * pipeline's time. Each command runs three times, alternating, and the best of each counts (the machine's other
+ * work only ever adds time).
+ */
+import { spawnSync } from 'node:child_process';
+import { existsSync, mkdirSync, writeFileSync } from 'node:fs';
+import path from 'node:path';
+import { series } from './engine.bench';
+import type { BenchRow } from './index';
+
+export const title = 'command line';
+
+const root = path.resolve(__dirname, '..');
+const RATIO_GOAL = 0.5;
+
+function commandTime(cmd: string, args: string[]): { ms: number; rssMb: number | null; ok: boolean } {
+  const timeBin = '/usr/bin/time';
+  const useTime = existsSync(timeBin);
+  const t0 = performance.now();
+  const r = useTime
+    ? spawnSync(timeBin, ['-f', '%M', cmd, ...args], { cwd: root, encoding: 'utf8', maxBuffer: 1 << 28 })
+    : spawnSync(cmd, args, { cwd: root, encoding: 'utf8', maxBuffer: 1 << 28 });
+  const ms = performance.now() - t0;
+  const kb = useTime ? Number(r.stderr.trim().split('\n').pop()) : Number.NaN;
+  return { ms, rssMb: Number.isFinite(kb) ? kb / 1024 : null, ok: r.status === 0 };
+}
+
+const best = (runs: ReturnType<typeof commandTime>[]) => runs.reduce((a, b) => (b.ok && (!a.ok || b.ms < a.ms) ? b : a));
+
+export async function run(): Promise<BenchRow[]> {
+  const rows: BenchRow[] = [];
+  const outDir = path.join(root, 'bench', 'output');
+  mkdirSync(outDir, { recursive: true });
+  const csv = path.join(outDir, 'engine-1e6.csv');
+  const big = series(1e6, 3);
+  const lines = ['t,value'];
+  for (let i = 0; i < big.length; i++) lines.push(`${i},${big[i].toFixed(6)}`);
+  writeFileSync(csv, `${lines.join('\n')}\n`);
+
+  const cli = ['bin/brinkwatch.mjs', 'analyze', csv, '--summary'];
+  // The first run (re)builds the bundle when sources changed; it is not timed.
+  commandTime(process.execPath, cli);
+  const script = path.resolve(root, '../shared/bench/numpy_pipeline.py');
+  const numpy = existsSync(script) && spawnSync('python3', ['-c', 'import numpy, scipy'], { encoding: 'utf8' }).status === 0;
+  const ours: ReturnType<typeof commandTime>[] = [];
+  const theirs: ReturnType<typeof commandTime>[] = [];
+  for (let i = 0; i < 3; i++) {
+    ours.push(commandTime(process.execPath, cli));
+    if (numpy) theirs.push(commandTime('python3', [script, csv, '0.1', '0.5']));
+  }
+  const b = best(ours);
+  rows.push({ case: 'brinkwatch analyze FILE --summary (1e6-row CSV)', n: 1e6, value: b.ms, unit: 'ms', target: '< 2500 ms', pass: b.ok && b.ms < 2500, note: 'best of 3, whole process' });
+  const npm = commandTime('npm', ['run', '--silent', 'analyze', '--', csv, '--summary']);
+  rows.push({ case: 'same through npm run analyze', n: 1e6, value: npm.ms, unit: 'ms', note: 'adds npm’s own start' });
+  if (b.rssMb !== null) rows.push({ case: 'peak RSS of that command', n: 1e6, value: b.rssMb, unit: 'MB', target: '< 500 MB', pass: b.rssMb < 500 });
+  if (numpy) {
+    const p = best(theirs);
+    rows.push({ case: 'numpy/scipy script, same CSV', n: 1e6, value: p.ms, unit: 'ms', note: p.ok ? 'best of 3, alternating with ours' : 'script failed' });
+    if (p.ok) {
+      const ratio = b.ms / p.ms;
+      rows.push({ case: 'ratio analyze / numpy script', n: 1e6, value: ratio, unit: '×', target: `≤ ${RATIO_GOAL}×`, pass: b.ok && ratio <= RATIO_GOAL });
+    }
+  } else {
+    rows.push({ case: 'numpy/scipy comparison', value: Number.NaN, unit: '', note: 'skipped: python3 with numpy/scipy or the script is not available' });
+  }
+  return rows;
+}
