@@ -2,6 +2,7 @@
 
 import Link from 'next/link';
 import { useState, type FormEvent } from 'react';
+import { ApiError, api } from './api';
 import { FormFooter, LabelledInput } from './FormParts';
 
 /** Sets a password from a mailed link (invitation or reset); the token in the link is the only credential. */
@@ -21,15 +22,10 @@ export function SetPasswordForm({ endpoint, submitLabel }: { endpoint: string; s
     setBusy(true);
     setError(null);
     try {
-      const response = await fetch(endpoint, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ password }) });
-      if (response.ok) {
-        setDone(true);
-        return;
-      }
-      const body = await response.json().catch(() => null);
-      setError(body?.error?.fields?.password?.[0] ?? body?.error?.message ?? 'That did not work. Try again.');
-    } catch {
-      setError('The server could not be reached. Try again.');
+      await api(endpoint, { method: 'POST', body: { password } });
+      setDone(true);
+    } catch (error) {
+      setError(error instanceof ApiError ? (error.fields?.password?.[0] ?? error.message) : 'The server could not be reached. Try again.');
     } finally {
       setBusy(false);
     }

@@ -1,6 +1,7 @@
 'use client';
 
 import { useQuery } from '@tanstack/react-query';
+import { api } from '@/components/api';
 import { healthNotices } from '@/lib/display/health-notices';
 import type { HealthReport } from '@/lib/health';
 
@@ -15,8 +16,8 @@ export function SystemStatus() {
   const health = useQuery({
     queryKey: ['health'],
     queryFn: async ({ signal }) => {
-      const response = await fetch('/api/health', { signal, cache: 'no-store' });
-      return { report: (await response.json()) as HealthReport, at: Date.now() };
+      const report = await api<HealthReport>('/api/health', { signal, answers: [503] });
+      return { report, at: Date.now() };
     },
     refetchInterval: CHECK_EVERY_MS,
     retry: 2,

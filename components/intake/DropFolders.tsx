@@ -1,7 +1,7 @@
 'use client';
 
 import { useQuery } from '@tanstack/react-query';
-import { fetchJson } from './api';
+import { api } from '@/components/api';
 
 interface Folder {
   slug: string;
@@ -11,7 +11,7 @@ interface Folder {
 }
 
 export function DropFolders() {
-  const query = useQuery({ queryKey: ['drop-folders'], queryFn: () => fetchJson<{ items: Folder[] }>('/api/drop-folders'), refetchInterval: 15_000 });
+  const query = useQuery({ queryKey: ['drop-folders'], queryFn: () => api<{ items: Folder[] }>('/api/drop-folders'), refetchInterval: 15_000 });
   return (
     <section aria-labelledby="drops-title" className="space-y-3">
       <h2 id="drops-title" className="text-lg font-semibold">Drop folders</h2>

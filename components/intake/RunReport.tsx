@@ -1,7 +1,8 @@
 'use client';
 
 import { useQuery } from '@tanstack/react-query';
-import { fetchJson, formatCount, formatDuration, type RejectedRow, type RunSummary } from './api';
+import { api } from '@/components/api';
+import { formatCount, formatDuration, type RejectedRow, type RunSummary } from './api';
 import { RejectedRowsTable } from './RejectedRowsTable';
 import { StatusBadge } from './StatusBadge';
 
@@ -10,7 +11,7 @@ interface RunDetail extends RunSummary {
 }
 
 export function RunReport({ runId, onClose }: { runId: number; onClose: () => void }) {
-  const query = useQuery({ queryKey: ['ingest-run', runId], queryFn: () => fetchJson<RunDetail>(`/api/ingest-runs/${runId}`) });
+  const query = useQuery({ queryKey: ['ingest-run', runId], queryFn: () => api<RunDetail>(`/api/ingest-runs/${runId}`) });
   return (
     <section aria-labelledby="run-report-title" className="rounded border border-rule bg-card p-4" data-testid="run-report">
       <div className="flex items-center justify-between gap-2">

@@ -4,7 +4,8 @@ import { keepPreviousData, useQuery } from '@tanstack/react-query';
 import { useState } from 'react';
 import { SeriesPicker } from '@/components/SeriesPicker';
 import type { SeriesChoice } from '@/lib/series/registry';
-import { fetchJson, formatCount, formatDuration, type RunSummary } from './api';
+import { api } from '@/components/api';
+import { formatCount, formatDuration, type RunSummary } from './api';
 import { RunReport } from './RunReport';
 import { StatusBadge } from './StatusBadge';
 
@@ -19,7 +20,7 @@ export function RunsTable() {
   const params = new URLSearchParams({ page: String(page), pageSize: String(PAGE_SIZE), ...(slug && { series: slug }), ...(status && { status }) });
   const query = useQuery({
     queryKey: ['ingest-runs', slug, status, page],
-    queryFn: () => fetchJson<{ items: RunSummary[]; total: number }>(`/api/ingest-runs?${params}`),
+    queryFn: () => api<{ items: RunSummary[]; total: number }>(`/api/ingest-runs?${params}`),
     placeholderData: keepPreviousData,
     refetchInterval: 10_000,
   });

@@ -5,7 +5,8 @@ import { useId, useState, type DragEvent } from 'react';
 import { Caution } from '@/components/Caution';
 import { SeriesPicker } from '@/components/SeriesPicker';
 import type { SeriesChoice } from '@/lib/series/registry';
-import { fetchJson, formatCount, type RejectedRow } from './api';
+import { api } from '@/components/api';
+import { formatCount, type RejectedRow } from './api';
 import { RejectedRowsTable } from './RejectedRowsTable';
 
 const TIME_FORMATS = [
@@ -51,7 +52,7 @@ function send(slug: string, file: File, mapping: Partial<Mapping> | null, commit
   const form = new FormData();
   form.append('file', file);
   if (mapping) form.append('mapping', JSON.stringify(mapping));
-  return fetchJson<Preview & Outcome>(`/api/series/${slug}/uploads${commit ? '' : '/preview'}`, { method: 'POST', body: form });
+  return api<Preview & Outcome>(`/api/series/${slug}/uploads${commit ? '' : '/preview'}`, { method: 'POST', body: form });
 }
 
 /** Upload flow: pick or drop a CSV, check what was detected, adjust the mapping, read the summary, then commit. */

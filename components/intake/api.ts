@@ -1,14 +1,3 @@
-/** Fetches JSON from our API and turns the error contract into an Error carrying the server's message. */
-export async function fetchJson<T>(url: string, init?: RequestInit): Promise<T> {
-  const response = await fetch(url, init);
-  const body = await response.json().catch(() => null);
-  if (!response.ok) {
-    const message = body?.error?.message ?? body?.message ?? `Request failed (${response.status}).`;
-    throw Object.assign(new Error(message), { status: response.status, body });
-  }
-  return body as T;
-}
-
 export interface RunSummary {
   id: number;
   series: { slug: string; name: string } | null;
