@@ -1,4 +1,5 @@
 import { detrend } from './detrend';
+import { INDICATOR_DIRECTIONS, normalPInDirection, type TrendDirection } from './direction';
 import { AnalysisInputError } from './errors';
 import { indicatorTrends } from './kendall';
 import { prepareSeries, type PreparationQuality, type TimeKind } from './prepare';
@@ -34,8 +35,11 @@ export interface AnalysisResult {
   interval: number;
   series: { time: Float64Array; value: Float64Array; trend: Float64Array; residual: Float64Array };
   indicators: Partial<Record<IndicatorName, (number | null)[]>>;
-  kendall: Partial<Record<IndicatorName, { tau: number | null; p: number | null }>>;
-  significance: Partial<Record<IndicatorName, { p: number | null; count: number; method: SurrogateMethod; taus: number[] }>>;
+  /** Kendall tau of each indicator against time, with a descriptive normal-approximation p in the indicator's direction
+   * (it assumes independent values, which overlapping windows are not: never a gate) */
+  kendall: Partial<Record<IndicatorName, { tau: number | null; p: number | null; direction: TrendDirection }>>;
+  /** surrogate p in the indicator's direction (two-sided for two-sided indicators) */
+  significance: Partial<Record<IndicatorName, { p: number | null; count: number; method: SurrogateMethod; taus: number[]; direction: TrendDirection }>>;
   sensitivity: SensitivityResult | null;
   quality: PreparationQuality;
   caution: string;
@@ -100,15 +104,20 @@ export async function runAnalysis(input: AnalysisInput, settings: AnalysisSettin
   const indicators = lazyIndicators(values);
   const kendall: AnalysisResult['kendall'] = {};
   const trends = indicatorTrends(values);
-  for (const name of names) kendall[name] = { tau: finiteOrNull(trends[name]!.tau), p: finiteOrNull(trends[name]!.p) };
+  for (const name of names) {
+    const t = trends[name]!;
+    const direction = INDICATOR_DIRECTIONS[name];
+    kendall[name] = { tau: finiteOrNull(t.tau), p: finiteOrNull(normalPInDirection(t.s / Math.sqrt(t.varS), direction)), direction };
+  }
 
   const significance: AnalysisResult['significance'] = {};
   if (settings.surrogates > 0) {
     const job = prepareSurrogateJob(d.residual, raw, { method: settings.surrogateMethod, seed: settings.seed, w, dt, indicators: [...names] });
     const { taus } = await computeSurrogateTaus(job, settings.surrogates, { parallel: options.parallel });
     for (const name of names) {
-      const { p, count } = surrogatePValue(kendall[name]!.tau ?? Number.NaN, taus[name]);
-      significance[name] = { p, count, method: settings.surrogateMethod, taus: Array.from(taus[name]).filter(Number.isFinite) };
+      const direction = INDICATOR_DIRECTIONS[name];
+      const { p, count } = surrogatePValue(kendall[name]!.tau ?? Number.NaN, taus[name], direction);
+      significance[name] = { p, count, method: settings.surrogateMethod, taus: Array.from(taus[name]).filter(Number.isFinite), direction };
     }
   }
 

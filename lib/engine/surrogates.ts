@@ -1,4 +1,5 @@
 import { accurateMean } from './detrend';
+import { orientedTau, type TrendDirection } from './direction';
 import { dft } from './fft';
 import { indicatorTrends } from './kendall';
 import { RandomStream } from './random';
@@ -113,17 +114,19 @@ export function surrogateTaus(job: SurrogateJob, from: number, to: number): Reco
 }
 
 /**
- * One-sided surrogate p-value p = (1 + #{τ_s ≥ τ_obs})/(N + 1) over the N surrogates with a defined τ
- * (null when τ_obs is undefined or no surrogate has one). O(N). Source: Davison & Hinkley (1997),
- * Bootstrap Methods and their Application, Sec. 4.2.1 (Monte Carlo p-value) (from memory).
+ * Monte Carlo surrogate p-value in a direction, over the N surrogates with a defined τ: rising
+ * p = (1 + #{τ_s ≥ τ})/(N + 1); falling p = (1 + #{τ_s ≤ τ})/(N + 1); two-sided p = (1 + #{|τ_s| ≥ |τ|})/(N + 1)
+ * (null when τ is undefined or no surrogate has one). O(N). Source: Davison & Hinkley (1997), Bootstrap
+ * Methods and their Application, Sec. 4.2.1 (Monte Carlo p-value) (from memory).
  */
-export function surrogatePValue(observed: number, taus: Float64Array): { p: number | null; count: number } {
-  let count = 0, above = 0;
+export function surrogatePValue(observed: number, taus: Float64Array, direction: TrendDirection = 'rising'): { p: number | null; count: number } {
+  const o = orientedTau(observed, direction);
+  let count = 0, beyond = 0;
   for (const t of taus) {
     if (!Number.isFinite(t)) continue;
     count++;
-    if (t >= observed) above++;
+    if (orientedTau(t, direction) >= o) beyond++;
   }
   if (!Number.isFinite(observed) || count === 0) return { p: null, count };
-  return { p: (1 + above) / (count + 1), count };
+  return { p: (1 + beyond) / (count + 1), count };
 }

@@ -37,7 +37,8 @@ describe('analyze command line', () => {
     expect(Object.keys(out.indicators)).toEqual(['variance', 'ac1']);
     expect(out.indicators.ac1[58]).toBeNull();
     expect(typeof out.indicators.ac1[59]).toBe('number');
-    expect(out.kendall.ac1).toEqual({ tau: expect.any(Number), p: expect.any(Number) });
+    expect(out.kendall.ac1).toEqual({ tau: expect.any(Number), p: expect.any(Number), direction: 'rising' });
+    expect(out.kendall.recovery).toBeUndefined();
     expect(out.significance.variance).toMatchObject({ count: 20, method: 'ar1' });
     expect(out.sensitivity).toBeNull();
     expect(r.stderr).toBe('');
