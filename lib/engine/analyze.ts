@@ -128,7 +128,7 @@ export async function runAnalysis(input: AnalysisInput, settings: AnalysisSettin
   return {
     n,
     windowPoints: w,
-    bandwidthPoints: settings.detrend === 'gaussian' ? h : settings.detrend === 'moving-average' ? settings.movingAverageWidth : null,
+    bandwidthPoints: settings.detrend === 'gaussian' || settings.detrend === 'local-linear' ? h : settings.detrend === 'moving-average' ? settings.movingAverageWidth : null,
     dt,
     rateUnit: kind === 'utc-ms' ? 'per day' : 'per time unit',
     interval: prepared.interval,

@@ -1,7 +1,7 @@
 export { runAnalysis, summarizeAnalysis, ANALYSIS_CAUTION, type AnalysisInput, type AnalysisResult, type AnalysisSummary } from './analyze';
 export { AnalysisInputError } from './errors';
 export { analysisSettingsSchema, INDICATOR_NAMES, SURROGATE_METHODS, type AnalysisSettings, type IndicatorName, type SurrogateMethod } from './settings';
-export { DETREND_METHODS, detrend, gaussianSmooth, linearFit, movingAverage, type DetrendMethod } from './detrend';
+export { DETREND_METHODS, detrend, gaussianSmooth, linearDetrend, linearFit, localLinearSmooth, movingAverage, type DetrendMethod } from './detrend';
 export { rollingIndicators, windowMoments, windowPoints, MIN_WINDOW_POINTS } from './rolling';
 export { kendallTau, kendallCounts, indicatorTrend, mannKendall, type KendallResult, type MannKendallResult } from './kendall';
 export { fitAr1, makeSurrogate, prepareSurrogateJob, surrogatePValue, surrogateTaus, type SurrogateJob } from './surrogates';

@@ -179,8 +179,24 @@ export function logValues(time: Float64Array, value: Float64Array, kind: TimeKin
 }
 
 /**
+ * Day-of-year group 0..365 of a UTC instant, the same calendar day in every year: 0 = 1 January, 58 = 28 February,
+ * 59 = 29 February (leap years only), 60 = 1 March, …, 365 = 31 December. In a common year the days after
+ * 28 February move up by one, so 1 March is always group 60 and never shares 29 February's. Leap years by the
+ * Gregorian rule (divisible by 4, except centuries not divisible by 400). O(1). Source: ISO 8601-1:2019,
+ * Sec. 4.2.2 (Gregorian calendar; ordinal dates).
+ */
+export function dayOfYearGroup(t: number): number {
+  const d = new Date(t);
+  const y = d.getUTCFullYear();
+  // setUTCFullYear, not Date.UTC, which would read years 0–99 as 1900–1999.
+  const ordinal = Math.floor((t - new Date(0).setUTCFullYear(y, 0, 1)) / 86_400_000);
+  const leap = (y % 4 === 0 && y % 100 !== 0) || y % 400 === 0;
+  return !leap && ordinal >= 59 ? ordinal + 1 : ordinal;
+}
+
+/**
  * Removes a seasonal cycle: x_i − (mean of x over its season − mean of x), seasons being the UTC
- * calendar month (12) or UTC day of year (1..366, 29 February its own day). The overall level is kept,
+ * calendar month (12) or the day-of-year group of dayOfYearGroup (366, 29 February its own). The overall level is kept,
  * so the cv denominator stays meaningful. Needs UTC-millisecond times. Cost O(n). Common practice
  * (climatology anomalies, e.g. Wilks (2011), Statistical Methods in the Atmospheric Sciences, 3rd ed., Sec. 3.4.2, from memory).
  */
@@ -188,13 +204,7 @@ export function removeSeasonal(time: Float64Array, value: Float64Array, mode: 'm
   if (kind !== 'utc-ms') throw new AnalysisInputError('seasonal removal needs calendar timestamps (ISO 8601), not plain numeric times');
   const groups = mode === 'month' ? 12 : 366;
   const season = new Uint16Array(value.length);
-  for (let i = 0; i < value.length; i++) {
-    const d = new Date(time[i]);
-    season[i] =
-      mode === 'month'
-        ? d.getUTCMonth()
-        : Math.floor((time[i] - Date.UTC(d.getUTCFullYear(), 0, 1)) / 86_400_000);
-  }
+  for (let i = 0; i < value.length; i++) season[i] = mode === 'month' ? new Date(time[i]).getUTCMonth() : dayOfYearGroup(time[i]);
   const sum = new Float64Array(groups);
   const cnt = new Float64Array(groups);
   let total = 0;
