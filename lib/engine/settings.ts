@@ -29,7 +29,7 @@ function upgradeLegacy(raw: unknown): unknown {
 export const analysisSettingsSchema = z.preprocess(
   upgradeLegacy,
   z.object({
-    detrend: z.enum(DETREND_METHODS).default('gaussian'),
+    detrend: z.enum(DETREND_METHODS).default('local-linear'),
     /** Kernel standard deviation h of the gaussian / local-linear smoother: fraction of the stretch (h = bandwidth · n points), points or a duration. */
     bandwidth: extent(100).default(0.1),
     /** Width of the centred moving average, in points (odd). */

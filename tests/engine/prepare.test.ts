@@ -11,7 +11,7 @@ const base = { maxGap: 3, gapPolicy: 'error' as const, span: null, logTransform:
 describe('settings', () => {
   it('parse({}) gives the engine defaults (the command line contract)', () => {
     expect(analysisSettingsSchema.parse({})).toEqual({
-      detrend: 'gaussian', bandwidth: 0.1, movingAverageWidth: 11, window: 0.5, indicators: [...INDICATOR_NAMES],
+      detrend: 'local-linear', bandwidth: 0.1, movingAverageWidth: 11, window: 0.5, indicators: [...INDICATOR_NAMES],
       surrogates: 0, surrogateMethod: 'ar1', seed: 1, seasonal: 'none', logTransform: false, maxGap: 3,
       gapPolicy: 'error', span: null, minCoverage: 0.8, samplingChange: 'start-after', shiftDetection: 'on', sensitivity: false,
     });
