@@ -1,11 +1,15 @@
 /**
  * Command line for the indicator engine:
- *   npm run --silent analyze -- FILE.csv [--time COLUMN] [--value COLUMN] [--detrend METHOD] [--bandwidth F]
- *     [--window F] [--indicators a,b] [--surrogates N] [--surrogate-method ar1|phase] [--seed S]
- *     [--sensitivity] [--summary]
+ *   npm run --silent analyze -- FILE.csv [--time COLUMN] [--value COLUMN] [--detrend METHOD] [--bandwidth EXTENT]
+ *     [--window EXTENT] [--span EXTENT] [--indicators a,b] [--surrogates N] [--surrogate-method ar1|phase] [--seed S]
+ *     [--seasonal none|month|day-of-year] [--log] [--max-gap N] [--gap-policy error|latest-stretch]
+ *     [--min-coverage F] [--sampling-change start-after|subsample] [--shift-detection on|off]
+ *     [--moving-average-width N] [--transition TIME]... [--maintenance TIME]... [--sensitivity] [--summary]
+ * An EXTENT is a fraction of the analysed stretch, "<n> points" or an ISO 8601 duration (P90D, P2Y, PT12H).
  * Prints the analysis as JSON on stdout. Bad input: exit code 2, one line on stderr, nothing on stdout.
- * `series.time` holds the grid instants: the numbers themselves when the time column is numeric, ISO 8601
- * UTC strings when it holds dates (ISO 8601 without an offset is read as UTC).
+ * `series.time`, `stretch`, `shifts` and the quality findings' instants are written as the time column is: the
+ * numbers themselves when it is numeric, ISO 8601 UTC strings when it holds dates (ISO 8601 without an offset is
+ * read as UTC).
  */
 import { readFileSync } from 'node:fs';
 import Papa from 'papaparse';
@@ -33,11 +37,17 @@ export function parseIsoInstant(s: string): number {
   return t;
 }
 
-const FLAGS = new Set(['sensitivity', 'summary']);
-const OPTIONS = new Set(['time', 'value', 'detrend', 'bandwidth', 'window', 'indicators', 'surrogates', 'surrogate-method', 'seed']);
+const FLAGS = new Set(['sensitivity', 'summary', 'log']);
+const OPTIONS = new Set([
+  'time', 'value', 'detrend', 'bandwidth', 'window', 'span', 'indicators', 'surrogates', 'surrogate-method', 'seed', 'seasonal',
+  'max-gap', 'gap-policy', 'min-coverage', 'sampling-change', 'shift-detection', 'moving-average-width',
+]);
+/** Options that may be given more than once (each adds a break). */
+const REPEATED = new Set(['transition', 'maintenance']);
 
-function parseArgs(argv: string[]): { file: string; opts: Record<string, string>; flags: Set<string> } {
+function parseArgs(argv: string[]): { file: string; opts: Record<string, string>; flags: Set<string>; repeated: Record<string, string[]> } {
   const opts: Record<string, string> = {};
+  const repeated: Record<string, string[]> = {};
   const flags = new Set<string>();
   let file: string | undefined;
   for (let i = 0; i < argv.length; i++) {
@@ -45,16 +55,17 @@ function parseArgs(argv: string[]): { file: string; opts: Record<string, string>
     if (a.startsWith('--')) {
       const [key, inline] = a.slice(2).split(/=(.*)/s, 2);
       if (FLAGS.has(key)) flags.add(key);
-      else if (OPTIONS.has(key)) {
+      else if (OPTIONS.has(key) || REPEATED.has(key)) {
         const v = inline ?? argv[++i];
         if (v === undefined) throw new CliInputError(`option --${key} needs a value`);
-        opts[key] = v;
+        if (REPEATED.has(key)) (repeated[key] ??= []).push(v);
+        else opts[key] = v;
       } else throw new CliInputError(`unknown option ${a}`);
     } else if (file === undefined) file = a;
     else throw new CliInputError(`unexpected argument ${a}`);
   }
   if (!file) throw new CliInputError('usage: analyze FILE.csv [--time COLUMN] [--value COLUMN] [--detrend ...] [--summary]');
-  return { file, opts, flags };
+  return { file, opts, flags, repeated };
 }
 
 function numberOption(opts: Record<string, string>, key: string): number | undefined {
@@ -64,15 +75,32 @@ function numberOption(opts: Record<string, string>, key: string): number | undef
   return v;
 }
 
+/** An extent option: a number is a fraction, anything else ("90 points", "P90D") is checked by the settings schema. */
+function extentOption(opts: Record<string, string>, key: string): number | string | undefined {
+  const v = opts[key];
+  if (v === undefined) return undefined;
+  const t = v.trim();
+  return t !== '' && Number.isFinite(Number(t)) ? Number(t) : t;
+}
+
 function settingsFrom(opts: Record<string, string>, flags: Set<string>) {
   const raw = {
     detrend: opts.detrend,
-    bandwidth: numberOption(opts, 'bandwidth'),
-    window: numberOption(opts, 'window'),
+    bandwidth: extentOption(opts, 'bandwidth'),
+    window: extentOption(opts, 'window'),
+    span: extentOption(opts, 'span'),
+    movingAverageWidth: numberOption(opts, 'moving-average-width'),
     indicators: opts.indicators?.split(',').map((s) => s.trim()),
     surrogates: numberOption(opts, 'surrogates'),
     surrogateMethod: opts['surrogate-method'],
     seed: numberOption(opts, 'seed'),
+    seasonal: opts.seasonal,
+    logTransform: flags.has('log'),
+    maxGap: numberOption(opts, 'max-gap'),
+    gapPolicy: opts['gap-policy'],
+    minCoverage: numberOption(opts, 'min-coverage'),
+    samplingChange: opts['sampling-change'],
+    shiftDetection: opts['shift-detection'],
     sensitivity: flags.has('sensitivity'),
   };
   const parsed = analysisSettingsSchema.safeParse(raw);
@@ -327,13 +355,38 @@ function locate(err: AnalysisInputError, table: Table): string {
   return `${range}, column "${table.valueName}"`;
 }
 
+/** A break given on the command line: a number or an ISO 8601 instant, read as the time column is. */
+function breakTimes(values: string[] | undefined, kind: 'transition' | 'maintenance', numericTime: boolean): { time: number; kind: 'transition' | 'maintenance' }[] {
+  return (values ?? []).map((v) => {
+    const time = numericTime ? Number(v) : parseIsoInstant(v.trim());
+    if (v.trim() === '' || !Number.isFinite(time)) throw new CliInputError(`option --${kind}: '${v}' is not ${numericTime ? 'a number' : 'an ISO 8601 date or date-time'} (as the time column)`);
+    return { time, kind };
+  });
+}
+
 function toJson(result: AnalysisResult, summary: boolean, numericTime: boolean): unknown {
-  if (summary) return summarizeAnalysis(result);
+  const when = (v: number): number | string => (numericTime ? v : new Date(v).toISOString());
+  const { quality } = result;
+  const times = {
+    shifts: result.shifts.map((s) => ({ time: when(s.time), index: s.index })),
+    stretch: { ...result.stretch, from: when(result.stretch.from), to: when(result.stretch.to) },
+    quality: {
+      ...quality,
+      flatRuns: quality.flatRuns.map((r) => ({ ...r, from: when(r.from), to: when(r.to) })),
+      samplingChanges: quality.samplingChanges.map((c) => ({ ...c, time: when(c.time) })),
+    },
+  };
+  if (summary) {
+    const s = summarizeAnalysis(result);
+    const latest = Object.fromEntries(Object.entries(s.latest).map(([k, v]) => [k, v && { ...v, time: when(v.time) }]));
+    return { ...s, ...times, latest };
+  }
   const t = result.series.time;
   return {
     ...result,
+    ...times,
     series: {
-      time: numericTime ? Array.from(t) : Array.from(t, (v) => new Date(v).toISOString()),
+      time: Array.from(t, when),
       value: Array.from(result.series.value),
       trend: Array.from(result.series.trend),
       residual: Array.from(result.series.residual),
@@ -350,7 +403,8 @@ async function main(): Promise<number> {
     file = args.file;
     const settings = settingsFrom(args.opts, args.flags);
     table = readTable(args.file, args.opts.time, args.opts.value);
-    const result = await runAnalysis({ time: table.time, value: table.value, timeKind: table.numericTime ? 'numeric' : 'utc-ms' }, settings);
+    const breaks = [...breakTimes(args.repeated.transition, 'transition', table.numericTime), ...breakTimes(args.repeated.maintenance, 'maintenance', table.numericTime)];
+    const result = await runAnalysis({ time: table.time, value: table.value, timeKind: table.numericTime ? 'numeric' : 'utc-ms', breaks }, settings);
     process.stdout.write(`${JSON.stringify(toJson(result, args.flags.has('summary'), table.numericTime))}\n`);
     return 0;
   } catch (e) {

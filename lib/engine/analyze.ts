@@ -1,8 +1,12 @@
 import { detrend } from './detrend';
+import { INDICATOR_DIRECTIONS, normalPInDirection, type TrendDirection } from './direction';
 import { AnalysisInputError } from './errors';
 import { indicatorTrends } from './kendall';
-import { prepareSeries, type PreparationQuality, type TimeKind } from './prepare';
-import { rollingIndicators, windowPoints } from './rolling';
+import { unjudgedWindows } from './coverage';
+import { extentPoints } from './extent';
+import { formatInstant, prepareSeries, type PreparationQuality, type TimeKind } from './prepare';
+import { detectShifts } from './shifts';
+import { MIN_WINDOW_POINTS, rollingIndicators, windowPoints } from './rolling';
 import { sensitivityGrid, type SensitivityResult } from './sensitivity';
 import { computeSurrogateTaus } from './surrogate-pool';
 import { prepareSurrogateJob, surrogatePValue } from './surrogates';
@@ -12,6 +16,13 @@ import type { AnalysisSettings, IndicatorName, SurrogateMethod } from './setting
 export const ANALYSIS_CAUTION =
   'Early-warning indicators are statistical evidence of changing dynamics, not forecasts. Decisions affecting public safety, water supply or ecosystems rest with the responsible authorities and local rules.';
 
+/** A marked break in the record: the analysis never runs across one. */
+export interface RecordBreak {
+  /** in the unit of `time` */
+  time: number;
+  kind: 'transition' | 'maintenance';
+}
+
 export interface AnalysisInput {
   /** UTC milliseconds (timeKind 'utc-ms', the default) or plain numbers in the caller's unit ('numeric'). */
   time: Float64Array;
@@ -19,25 +30,44 @@ export interface AnalysisInput {
   /** Sampling interval in the unit of `time`; inferred (median spacing) when omitted. */
   intervalMs?: number;
   timeKind?: TimeKind;
+  /** marked transitions and maintenance breaks: the stretch starts at the first grid point at or after the latest */
+  breaks?: RecordBreak[];
+}
+
+/** Why the analysed stretch starts where it does. */
+export type StretchStart = 'record-start' | 'shift' | 'transition' | 'maintenance' | 'sampling' | 'span' | 'gap';
+
+export interface AnalysisQuality extends PreparationQuality {
+  /** share of observed (not interpolated) points in the analysed stretch */
+  coverage: number;
+  /** windows not judged because their observed share is below minCoverage */
+  windowsBelowCoverage: number;
 }
 
 export interface AnalysisResult {
-  /** points analysed (after preparation; n − 1 of them for `difference`) */
+  /** points analysed (the stretch after preparation; n − 1 of them for `difference`) */
   n: number;
   windowPoints: number;
-  /** Gaussian h in points (moving-average width for that method; null otherwise) */
+  /** smoother h in points, the kernel standard deviation (moving-average width for that method; null otherwise) */
   bandwidthPoints: number | null;
   /** sampling interval in the recovery-rate unit (days for UTC times, the time unit for numeric times) */
   dt: number;
   rateUnit: 'per day' | 'per time unit';
   /** sampling interval in the unit of `time` */
   interval: number;
+  /** abrupt level shifts detected over the whole prepared record (index on its grid; time = first instant of the new level) */
+  shifts: { time: number; index: number }[];
+  /** the analysed stretch: its first and last instant, and why it starts there */
+  stretch: { from: number; to: number; startsAfter: StretchStart };
   series: { time: Float64Array; value: Float64Array; trend: Float64Array; residual: Float64Array };
   indicators: Partial<Record<IndicatorName, (number | null)[]>>;
-  kendall: Partial<Record<IndicatorName, { tau: number | null; p: number | null }>>;
-  significance: Partial<Record<IndicatorName, { p: number | null; count: number; method: SurrogateMethod; taus: number[] }>>;
+  /** Kendall tau of each indicator against time, with a descriptive normal-approximation p in the indicator's direction
+   * (it assumes independent values, which overlapping windows are not: never a gate) */
+  kendall: Partial<Record<IndicatorName, { tau: number | null; p: number | null; direction: TrendDirection }>>;
+  /** surrogate p in the indicator's direction (two-sided for two-sided indicators) */
+  significance: Partial<Record<IndicatorName, { p: number | null; count: number; method: SurrogateMethod; taus: number[]; direction: TrendDirection }>>;
   sensitivity: SensitivityResult | null;
-  quality: PreparationQuality;
+  quality: AnalysisQuality;
   caution: string;
 }
 
@@ -76,59 +106,135 @@ function lazyIndicators(values: Partial<Record<IndicatorName, Float64Array>>): A
   return out;
 }
 
+const START_WORDS: Record<StretchStart, string> = {
+  'record-start': 'at the start of the record',
+  shift: 'after the detected abrupt shift',
+  transition: 'after the marked transition',
+  maintenance: 'after the maintenance break',
+  sampling: 'after the change of sampling interval',
+  span: 'at the start of the analysis span',
+  gap: 'after the latest long gap',
+};
+
 /**
- * The whole pipeline: prepare (grid, gaps, span, log, seasonal) → detrend → rolling indicators →
- * Kendall tau of each → surrogate significance (worker threads unless options.parallel is false;
- * identical numbers either way) → optional sensitivity grid. Throws AnalysisInputError for input the
- * caller can fix. Cost O(n log n) + O(N·n log n) for N surrogates. Sources: those of each step (README,
- * "Indicator definitions"). The returned arrays are the engine's own (never the caller's input).
+ * Where the analysed stretch starts on the prepared grid: after the latest of the prepared record's own start
+ * (record start, span, long gap, sampling change), the last detected shift, and the latest break (first grid
+ * point at or after its time). On a tie a marked break names the reason, then a shift. O(number of shifts + breaks) + O(log n) per break.
+ */
+function stretchStart(
+  time: Float64Array,
+  prepared: StretchStart,
+  shifts: readonly { index: number }[],
+  breaks: readonly RecordBreak[],
+): { index: number; startsAfter: StretchStart } {
+  let best = { index: 0, startsAfter: prepared, rank: 0 };
+  const consider = (index: number, startsAfter: StretchStart, rank: number) => {
+    if (index > best.index || (index === best.index && index > 0 && rank > best.rank)) best = { index, startsAfter, rank };
+  };
+  for (const s of shifts) consider(s.index, 'shift', 1);
+  for (const b of breaks) {
+    if (!(b.time > time[0])) continue;
+    let lo = 0, hi = time.length;
+    while (lo < hi) {
+      const mid = (lo + hi) >> 1;
+      if (time[mid] < b.time) lo = mid + 1;
+      else hi = mid;
+    }
+    consider(lo, b.kind, 2);
+  }
+  return { index: best.index, startsAfter: best.startsAfter };
+}
+
+/**
+ * The whole pipeline: prepare (sampling changes, grid, span, gaps with an observed mask, flat runs, log, seasonal)
+ * → abrupt shifts over the prepared record (detectShifts) → the stretch after the latest shift, break or cut →
+ * detrend → rolling indicators (windows below the coverage floor or inside a flat run not judged) → Kendall tau
+ * of each, p in the indicator's direction → surrogate significance (same gaps, interpolation and unjudged
+ * windows as the record; worker threads unless options.parallel is false, identical numbers either way) →
+ * optional sensitivity grid. Window and bandwidth are extents of the stretch. Throws AnalysisInputError for
+ * input the caller can fix (a stretch too short for the window names where it starts and why).
+ * Cost O(n log n) + O(N·n log n) for N surrogates, plus the shift detector's. Sources: those of each step
+ * (README, "Indicator definitions"). The returned arrays are the engine's own (never the caller's input).
  */
 export async function runAnalysis(input: AnalysisInput, settings: AnalysisSettings, options: { parallel?: boolean } = {}): Promise<AnalysisResult> {
   const kind = input.timeKind ?? 'utc-ms';
   const prepared = prepareSeries(input, settings);
-  const x = prepared.value;
-  if (x.length < 8) throw new AnalysisInputError(`the series has ${x.length} usable points; at least 8 are needed`);
-  const h = settings.bandwidth * x.length;
+  const whole = prepared.value;
+  const shifts =
+    settings.shiftDetection === 'on' && whole.length >= 2 * MIN_WINDOW_POINTS
+      ? detectShifts(whole).map((s) => ({ time: prepared.time[s.index], index: s.index }))
+      : [];
+  const cut = stretchStart(prepared.time, prepared.startsAfter, shifts, input.breaks ?? []);
+  const x = whole.subarray(cut.index);
+  const time = prepared.time.subarray(cut.index);
+  const stretchWords = () =>
+    x.length === 0
+      ? `nothing is left to analyse ${START_WORDS[cut.startsAfter]} (${formatInstant(prepared.time[prepared.time.length - 1], kind)} is the last point)`
+      : `the stretch from ${formatInstant(time[0], kind)} to ${formatInstant(time[time.length - 1], kind)} (${x.length} points) starts ${START_WORDS[cut.startsAfter]}`;
+  if (x.length < MIN_WINDOW_POINTS) throw new AnalysisInputError(`the series has ${x.length} usable points; at least 8 are needed (${stretchWords()})`);
+  const h = extentPoints(settings.bandwidth, x.length, prepared.interval, kind);
   const d = detrend(x, settings.detrend, { bandwidthPoints: h, movingAverageWidth: settings.movingAverageWidth });
   const n = d.residual.length;
-  const w = windowPoints(settings.window, n);
+  let w: number;
+  try {
+    w = windowPoints(settings.window, n, prepared.interval, kind);
+  } catch (e) {
+    if (e instanceof AnalysisInputError && cut.startsAfter !== 'record-start') throw new AnalysisInputError(`${e.message}; ${stretchWords()}`, e.at);
+    throw e;
+  }
   const dt = kind === 'utc-ms' ? prepared.interval / DAY_MS : prepared.interval;
   const raw = x.subarray(d.offset);
+  // A differenced residual is observed only when both of its points were.
+  const observedStretch = prepared.observed.subarray(cut.index);
+  const observed = d.offset === 0 ? observedStretch : observedStretch.subarray(1).map((o, i) => o & observedStretch[i]);
+  const flat = prepared.flat
+    .map((r) => ({ start: Math.max(0, r.start - cut.index - d.offset), end: r.end - cut.index - d.offset }))
+    .filter((r) => r.end > r.start);
+  const { skip, belowCoverage } = unjudgedWindows(observed, flat, w, settings.minCoverage);
   const names = settings.indicators;
-  const values = rollingIndicators(d.residual, w, names, { raw, dt });
+  const values = rollingIndicators(d.residual, w, names, { raw, dt, skip });
 
   const indicators = lazyIndicators(values);
   const kendall: AnalysisResult['kendall'] = {};
   const trends = indicatorTrends(values);
-  for (const name of names) kendall[name] = { tau: finiteOrNull(trends[name]!.tau), p: finiteOrNull(trends[name]!.p) };
+  for (const name of names) {
+    const t = trends[name]!;
+    const direction = INDICATOR_DIRECTIONS[name];
+    kendall[name] = { tau: finiteOrNull(t.tau), p: finiteOrNull(normalPInDirection(t.s / Math.sqrt(t.varS), direction)), direction };
+  }
 
   const significance: AnalysisResult['significance'] = {};
   if (settings.surrogates > 0) {
-    const job = prepareSurrogateJob(d.residual, raw, { method: settings.surrogateMethod, seed: settings.seed, w, dt, indicators: [...names] });
+    const job = prepareSurrogateJob(d.residual, raw, { method: settings.surrogateMethod, seed: settings.seed, w, dt, indicators: [...names], observed, skip });
     const { taus } = await computeSurrogateTaus(job, settings.surrogates, { parallel: options.parallel });
     for (const name of names) {
-      const { p, count } = surrogatePValue(kendall[name]!.tau ?? Number.NaN, taus[name]);
-      significance[name] = { p, count, method: settings.surrogateMethod, taus: Array.from(taus[name]).filter(Number.isFinite) };
+      const direction = INDICATOR_DIRECTIONS[name];
+      const { p, count } = surrogatePValue(kendall[name]!.tau ?? Number.NaN, taus[name], direction);
+      significance[name] = { p, count, method: settings.surrogateMethod, taus: Array.from(taus[name]).filter(Number.isFinite), direction };
     }
   }
 
   const sensitivity = settings.sensitivity
-    ? sensitivityGrid(x, x, { detrend: settings.detrend, movingAverageWidth: settings.movingAverageWidth, bandwidth: settings.bandwidth, indicators: [...names], dt })
+    ? sensitivityGrid(x, x, { detrend: settings.detrend, movingAverageWidth: settings.movingAverageWidth, bandwidth: h / x.length, indicators: [...names], dt })
     : null;
 
+  let seen = 0;
+  for (const o of observedStretch) seen += o;
   return {
     n,
     windowPoints: w,
-    bandwidthPoints: settings.detrend === 'gaussian' ? h : settings.detrend === 'moving-average' ? settings.movingAverageWidth : null,
+    bandwidthPoints: settings.detrend === 'gaussian' || settings.detrend === 'local-linear' ? h : settings.detrend === 'moving-average' ? settings.movingAverageWidth : null,
     dt,
     rateUnit: kind === 'utc-ms' ? 'per day' : 'per time unit',
     interval: prepared.interval,
-    series: { time: prepared.time.subarray(d.offset), value: raw, trend: d.trend, residual: d.residual },
+    shifts,
+    stretch: { from: time[0], to: time[time.length - 1], startsAfter: cut.startsAfter },
+    series: { time: time.subarray(d.offset), value: raw, trend: d.trend, residual: d.residual },
     indicators,
     kendall,
     significance,
     sensitivity,
-    quality: prepared.quality,
+    quality: { ...prepared.quality, coverage: seen / observedStretch.length, windowsBelowCoverage: belowCoverage },
     caution: ANALYSIS_CAUTION,
   };
 }

@@ -1,4 +1,5 @@
 import { AnalysisInputError } from './errors';
+import { extentPoints, type Extent } from './extent';
 
 /** How the time axis is read: UTC milliseconds (dates) or plain numbers in the caller's own unit. */
 export type TimeKind = 'utc-ms' | 'numeric';
@@ -22,7 +23,38 @@ export interface PreparationQuality {
   trimmedEnds: number;
   /** points before the trailing analysis span */
   droppedBeforeSpan: number;
+  /** runs of exactly constant values (a stuck sensor), at least FLAT_RUN_MIN points: windows inside one are not judged */
+  flatRuns: FlatRun[];
+  /** changes of the sampling interval found in the record (detectSamplingChanges) */
+  samplingChanges: SamplingChange[];
+  /** what was done about them: the record starts after the last ('start-after'), or the finer parts were subsampled */
+  samplingHandling: SamplingHandling | null;
+  /** observations before the last sampling change, left out under 'start-after' */
+  droppedBeforeSampling: number;
 }
+
+export interface FlatRun {
+  /** first and last instant of the run */
+  from: number;
+  to: number;
+  points: number;
+}
+
+export interface SamplingChange {
+  /** first observation on the new interval */
+  time: number;
+  /** median spacing before and after, in the unit of time */
+  before: number;
+  after: number;
+}
+
+export type SamplingHandling = 'start-after' | 'subsample';
+
+/** Why the prepared record starts where it does (the analysis may start later, after a shift or a break). */
+export type PreparedStart = 'record-start' | 'span' | 'gap' | 'sampling';
+
+/** Shortest run of identical consecutive values reported as a stuck sensor: the shortest window that could lie inside it. */
+export const FLAT_RUN_MIN = 8;
 
 /** Formats an instant for messages: ISO 8601 (UTC) for UTC milliseconds, the number itself otherwise. O(1). Source: ISO 8601-1:2019. */
 export function formatInstant(t: number, kind: TimeKind): string {
@@ -110,7 +142,8 @@ export function binToGrid(
 /**
  * Fills interior runs of at most maxGap missing points by linear interpolation between the points
  * either side; missing points at the ends are left out. A longer run is an AnalysisInputError naming its
- * instants, or with policy 'latest-stretch' the analysis keeps only the points after the last such run.
+ * instants, or with policy 'latest-stretch' the analysis keeps only the points after the last such run
+ * (`observed` marks the points that were not filled).
  * The result may share memory with the input when nothing needs filling. Cost O(n). Common practice (short-gap linear interpolation).
  */
 export function fillGaps(
@@ -119,7 +152,7 @@ export function fillGaps(
   maxGap: number,
   policy: 'error' | 'latest-stretch',
   kind: TimeKind,
-): { time: Float64Array; value: Float64Array; filledPoints: number; gaps: GapReport[]; droppedBeforeStretch: number; trimmedEnds: number } {
+): { time: Float64Array; value: Float64Array; observed: Uint8Array; filledPoints: number; gaps: GapReport[]; droppedBeforeStretch: number; trimmedEnds: number } {
   let a = 0;
   let b = value.length;
   while (a < b && Number.isNaN(value[a])) a++;
@@ -152,18 +185,36 @@ export function fillGaps(
   const keptGaps = gaps.filter((g) => g.from >= time[start]);
   const t = time.subarray(start, b);
   const v = keptGaps.length > 0 ? value.slice(start, b) : value.subarray(start, b);
-  let filledPoints = 0;
+  const observed = new Uint8Array(v.length);
+  for (let i = 0; i < v.length; i++) observed[i] = Number.isNaN(v[i]) ? 0 : 1;
+  const filledPoints = fillLinear(v, observed);
+  return { time: t, value: v, observed, filledPoints, gaps: keptGaps, droppedBeforeStretch: start - a, trimmedEnds };
+}
+
+/**
+ * Replaces each run of unobserved points (observed[i] = 0) by the straight line between the observed points
+ * either side, in place (a run at either end, with one neighbour only, is left alone). Returns the number replaced.
+ * Used for the record and, with the record's mask, for every surrogate, so both are interpolated alike. O(n).
+ * Common practice (linear interpolation).
+ */
+export function fillLinear(v: Float64Array, observed: Uint8Array): number {
+  let filled = 0;
   for (let i = 0; i < v.length; i++) {
-    if (!Number.isNaN(v[i])) continue;
+    if (observed[i]) continue;
     let j = i;
-    while (Number.isNaN(v[j])) j++;
+    while (j < v.length && !observed[j]) j++;
+    // A run touching either end has no neighbour on that side; it is left as it is.
+    if (i === 0 || j === v.length) {
+      i = j;
+      continue;
+    }
     const left = v[i - 1];
     const right = v[j];
     for (let k = i; k < j; k++) v[k] = left + ((right - left) * (k - i + 1)) / (j - i + 1);
-    filledPoints += j - i;
+    filled += j - i;
     i = j;
   }
-  return { time: t, value: v, filledPoints, gaps: keptGaps, droppedBeforeStretch: start - a, trimmedEnds };
+  return filled;
 }
 
 /** Natural logarithm of each value; a value ≤ 0 is an AnalysisInputError naming its instant. O(n). */
@@ -179,8 +230,24 @@ export function logValues(time: Float64Array, value: Float64Array, kind: TimeKin
 }
 
 /**
+ * Day-of-year group 0..365 of a UTC instant, the same calendar day in every year: 0 = 1 January, 58 = 28 February,
+ * 59 = 29 February (leap years only), 60 = 1 March, …, 365 = 31 December. In a common year the days after
+ * 28 February move up by one, so 1 March is always group 60 and never shares 29 February's. Leap years by the
+ * Gregorian rule (divisible by 4, except centuries not divisible by 400). O(1). Source: ISO 8601-1:2019,
+ * Sec. 4.2.2 (Gregorian calendar; ordinal dates).
+ */
+export function dayOfYearGroup(t: number): number {
+  const d = new Date(t);
+  const y = d.getUTCFullYear();
+  // setUTCFullYear, not Date.UTC, which would read years 0–99 as 1900–1999.
+  const ordinal = Math.floor((t - new Date(0).setUTCFullYear(y, 0, 1)) / 86_400_000);
+  const leap = (y % 4 === 0 && y % 100 !== 0) || y % 400 === 0;
+  return !leap && ordinal >= 59 ? ordinal + 1 : ordinal;
+}
+
+/**
  * Removes a seasonal cycle: x_i − (mean of x over its season − mean of x), seasons being the UTC
- * calendar month (12) or UTC day of year (1..366, 29 February its own day). The overall level is kept,
+ * calendar month (12) or the day-of-year group of dayOfYearGroup (366, 29 February its own). The overall level is kept,
  * so the cv denominator stays meaningful. Needs UTC-millisecond times. Cost O(n). Common practice
  * (climatology anomalies, e.g. Wilks (2011), Statistical Methods in the Atmospheric Sciences, 3rd ed., Sec. 3.4.2, from memory).
  */
@@ -188,13 +255,7 @@ export function removeSeasonal(time: Float64Array, value: Float64Array, mode: 'm
   if (kind !== 'utc-ms') throw new AnalysisInputError('seasonal removal needs calendar timestamps (ISO 8601), not plain numeric times');
   const groups = mode === 'month' ? 12 : 366;
   const season = new Uint16Array(value.length);
-  for (let i = 0; i < value.length; i++) {
-    const d = new Date(time[i]);
-    season[i] =
-      mode === 'month'
-        ? d.getUTCMonth()
-        : Math.floor((time[i] - Date.UTC(d.getUTCFullYear(), 0, 1)) / 86_400_000);
-  }
+  for (let i = 0; i < value.length; i++) season[i] = mode === 'month' ? new Date(time[i]).getUTCMonth() : dayOfYearGroup(time[i]);
   const sum = new Float64Array(groups);
   const cnt = new Float64Array(groups);
   let total = 0;
@@ -209,14 +270,146 @@ export function removeSeasonal(time: Float64Array, value: Float64Array, mode: 'm
   return out;
 }
 
+const SAMPLING_BLOCK = 16;
+const SAMPLING_RATIO = 1.5;
+
+function medianOf(a: Float64Array): number {
+  const s = a.slice().sort();
+  const m = s.length >> 1;
+  return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
+}
+
 /**
- * Preparation pipeline: sort by time, bin onto the sampling-interval grid, keep the trailing span, fill short gaps (or keep the latest gap-free stretch), then
- * log transform and seasonal removal. Cost O(n) (O(n log n) when times are unsorted).
+ * Changes of the sampling interval in sorted times. The positive spacings are cut into blocks of 16 and each
+ * block's median taken (robust to a few missing or doubled readings, as inferInterval); a block whose median
+ * differs from the current interval by a factor of more than 1.5, confirmed by the next block agreeing with it
+ * (or being the last), starts a new interval. The change is placed at the spacing that best splits the two
+ * blocks around it (fewest spacings on the wrong side of the geometric mean of the two intervals); `index` is the
+ * first observation on the new interval. Irregular calendar spacing (months of 28–31 days) stays within the
+ * factor. Cost O(n). Common practice (block medians of the sampling interval; the factor 1.5 is our choice,
+ * between calendar irregularity and the halving/doubling of a changed logger setting).
+ */
+export function detectSamplingChanges(sortedTime: Float64Array): { index: number; time: number; before: number; after: number }[] {
+  const n = sortedTime.length;
+  let regular = true;
+  for (let j = 2; j < n && regular; j++) regular = sortedTime[j] - sortedTime[j - 1] === sortedTime[1] - sortedTime[0];
+  if (regular) return [];
+  const pos: number[] = [];
+  const sp: number[] = [];
+  for (let j = 0; j + 1 < n; j++) {
+    const d = sortedTime[j + 1] - sortedTime[j];
+    if (d > 0) {
+      pos.push(j);
+      sp.push(d);
+    }
+  }
+  const blocks = Math.floor(sp.length / SAMPLING_BLOCK);
+  if (blocks < 2) return [];
+  const spacing = Float64Array.from(sp);
+  const med = Float64Array.from({ length: blocks }, (_, b) =>
+    medianOf(spacing.subarray(b * SAMPLING_BLOCK, b === blocks - 1 ? sp.length : (b + 1) * SAMPLING_BLOCK)),
+  );
+  const differ = (a: number, b: number) => a / b > SAMPLING_RATIO || b / a > SAMPLING_RATIO;
+  const out: { index: number; time: number; before: number; after: number }[] = [];
+  let ref = med[0];
+  let lastSplit = 0;
+  for (let b = 1; b < blocks; b++) {
+    if (!differ(med[b], ref)) continue;
+    if (b + 1 < blocks && differ(med[b + 1], med[b])) continue;
+    const lo = Math.max(lastSplit, (b - 1) * SAMPLING_BLOCK);
+    const hi = b === blocks - 1 ? sp.length : (b + 1) * SAMPLING_BLOCK;
+    const cut = Math.sqrt(ref * med[b]);
+    const isNew = (d: number) => (med[b] > ref ? d > cut : d < cut);
+    // misfits(s) = #{new-looking before s} + #{old-looking from s on}; scan s = lo..hi.
+    let misfit = 0;
+    for (let j = lo; j < hi; j++) if (!isNew(sp[j])) misfit++;
+    let best = misfit, split = lo;
+    for (let s = lo + 1; s <= hi; s++) {
+      misfit += isNew(sp[s - 1]) ? 1 : -1;
+      if (misfit < best) (best = misfit), (split = s);
+    }
+    if (split >= sp.length) continue;
+    out.push({ index: pos[split], time: sortedTime[pos[split]], before: ref, after: med[b] });
+    ref = med[b];
+    lastSplit = split;
+  }
+  return out;
+}
+
+/**
+ * Puts observations on the regular grid t_k = anchor + kΔ by taking, for each k, the one finite observation
+ * nearest to t_k (ties: the earlier), never an average: averaging the finer readings would itself lower their
+ * variance and so change the indicators. A grid instant with no observation within Δ/2 is missing. O(n).
+ * Common practice (decimation to a coarser grid).
+ */
+export function subsampleToGrid(time: Float64Array, value: Float64Array, interval: number, anchor: number): { time: Float64Array; value: Float64Array } {
+  const n = time.length;
+  const k0 = Math.round((time[0] - anchor) / interval);
+  const bins = Math.round((time[n - 1] - anchor) / interval) - k0 + 1;
+  if (bins > MAX_GRID_POINTS) throw new AnalysisInputError(`the record spans ${bins} sampling intervals of ${interval}; at most ${MAX_GRID_POINTS} are supported`);
+  const grid = Float64Array.from({ length: bins }, (_, k) => anchor + (k0 + k) * interval);
+  const out = new Float64Array(bins).fill(Number.NaN);
+  const dist = new Float64Array(bins).fill(Infinity);
+  for (let i = 0; i < n; i++) {
+    if (!Number.isFinite(value[i])) continue;
+    const k = Math.round((time[i] - anchor) / interval) - k0;
+    const d = Math.abs(time[i] - grid[k]);
+    if (d < dist[k]) (dist[k] = d), (out[k] = value[i]);
+  }
+  return { time: grid, value: out };
+}
+
+/**
+ * Runs of at least FLAT_RUN_MIN identical consecutive values, as index ranges [start, end). Found by comparing
+ * neighbours, not from sliding sums (which leave rounding residue instead of an exact zero). O(n). Common
+ * practice (QARTOD flat-line test, U.S. IOOS (2020), Manual for Real-Time Quality Control of In-situ Temperature
+ * and Salinity Data, v2.1, from memory).
+ */
+export function findFlatRuns(value: Float64Array): { start: number; end: number }[] {
+  const out: { start: number; end: number }[] = [];
+  for (let i = 0; i < value.length; ) {
+    let j = i + 1;
+    while (j < value.length && value[j] === value[i]) j++;
+    if (j - i >= FLAT_RUN_MIN) out.push({ start: i, end: j });
+    i = j;
+  }
+  return out;
+}
+
+/** The prepared record: the regular grid, which points were really observed, and what was found on the way. */
+export interface PreparedSeries {
+  time: Float64Array;
+  value: Float64Array;
+  /** 1 where the grid point holds an observation, 0 where it was interpolated */
+  observed: Uint8Array;
+  /** flat runs as grid index ranges [start, end) (quality.flatRuns gives their instants) */
+  flat: { start: number; end: number }[];
+  interval: number;
+  startsAfter: PreparedStart;
+  quality: PreparationQuality;
+}
+
+export interface PreparationOptions {
+  maxGap: number;
+  gapPolicy: 'error' | 'latest-stretch';
+  /** trailing span of the gridded record to keep (extent; a fraction is of the gridded record); null or absent = all */
+  span?: Extent | null;
+  logTransform: boolean;
+  seasonal: 'none' | 'month' | 'day-of-year';
+  /** default 'start-after' */
+  samplingChange?: SamplingHandling;
+}
+
+/**
+ * Preparation pipeline: sort by time; find sampling-interval changes and either keep only the observations
+ * after the last one ('start-after') or subsample onto the coarsest interval ('subsample'); bin onto the grid;
+ * keep the trailing span; fill short gaps (or keep the latest gap-free stretch), remembering which points were
+ * observed; find flat runs; then log transform and seasonal removal. Cost O(n) (O(n log n) when times are unsorted).
  */
 export function prepareSeries(
   input: { time: Float64Array; value: Float64Array; intervalMs?: number; timeKind?: TimeKind },
-  opts: { maxGap: number; gapPolicy: 'error' | 'latest-stretch'; spanPoints: number | null; logTransform: boolean; seasonal: 'none' | 'month' | 'day-of-year' },
-): { time: Float64Array; value: Float64Array; interval: number; quality: PreparationQuality } {
+  opts: PreparationOptions,
+): PreparedSeries {
   const kind = input.timeKind ?? 'utc-ms';
   if (input.time.length !== input.value.length) {
     throw new AnalysisInputError(`time has ${input.time.length} entries but value has ${input.value.length}`);
@@ -232,28 +425,57 @@ export function prepareSeries(
       break;
     }
   }
-  const interval = input.intervalMs ?? inferInterval(time);
-  if (!(interval > 0)) throw new AnalysisInputError(`sampling interval must be positive (got ${interval})`);
-  const g = binToGrid(time, value, interval);
+  let startsAfter: PreparedStart = 'record-start';
+  const changes = detectSamplingChanges(time);
+  let droppedBeforeSampling = 0;
+  let interval: number;
+  let g: { time: Float64Array; value: Float64Array; binnedBins: number };
+  const handling = opts.samplingChange ?? 'start-after';
+  if (changes.length > 0 && handling === 'subsample') {
+    interval = Math.max(changes[0].before, ...changes.map((c) => c.after));
+    const coarsest = changes.find((c) => c.after === interval);
+    g = { ...subsampleToGrid(time, value, interval, coarsest ? coarsest.time : time[0]), binnedBins: 0 };
+  } else {
+    if (changes.length > 0) {
+      droppedBeforeSampling = changes[changes.length - 1].index;
+      time = time.subarray(droppedBeforeSampling);
+      value = value.subarray(droppedBeforeSampling);
+      startsAfter = 'sampling';
+    }
+    interval = changes.length === 0 && input.intervalMs !== undefined ? input.intervalMs : inferInterval(time);
+    if (!(interval > 0)) throw new AnalysisInputError(`sampling interval must be positive (got ${interval})`);
+    g = binToGrid(time, value, interval);
+  }
   time = g.time;
   value = g.value;
   const binnedBins = g.binnedBins;
   let droppedBeforeSpan = 0;
-  if (opts.spanPoints !== null && opts.spanPoints < time.length) {
-    droppedBeforeSpan = time.length - opts.spanPoints;
-    time = time.subarray(droppedBeforeSpan);
-    value = value.subarray(droppedBeforeSpan);
+  if (opts.span !== null && opts.span !== undefined) {
+    const keep = Math.max(1, Math.round(extentPoints(opts.span, time.length, interval, kind)));
+    if (keep < time.length) {
+      droppedBeforeSpan = time.length - keep;
+      time = time.subarray(droppedBeforeSpan);
+      value = value.subarray(droppedBeforeSpan);
+      startsAfter = 'span';
+    }
   }
   const filled = fillGaps(time, value, opts.maxGap, opts.gapPolicy, kind);
+  if (filled.droppedBeforeStretch > 0) startsAfter = 'gap';
+  const observed = filled.observed;
   let v = filled.value;
+  const flat = findFlatRuns(v);
   if (opts.logTransform) v = logValues(filled.time, v, kind);
   if (opts.seasonal !== 'none') v = removeSeasonal(filled.time, v, opts.seasonal, kind);
   // The result must not alias the caller's arrays (a later write to the input would change it).
   const own = (a: Float64Array, from: Float64Array) => (a.buffer === from.buffer ? a.slice() : a);
+  const t = own(filled.time, input.time);
   return {
-    time: own(filled.time, input.time),
+    time: t,
     value: own(v, input.value),
+    observed,
+    flat,
     interval,
+    startsAfter,
     quality: {
       observations: input.time.length,
       binnedBins,
@@ -262,6 +484,10 @@ export function prepareSeries(
       droppedBeforeStretch: filled.droppedBeforeStretch,
       trimmedEnds: filled.trimmedEnds,
       droppedBeforeSpan,
+      flatRuns: flat.map((r) => ({ from: t[r.start], to: t[r.end - 1], points: r.end - r.start })),
+      samplingChanges: changes.map(({ time: at, before, after }) => ({ time: at, before, after })),
+      samplingHandling: changes.length > 0 ? handling : null,
+      droppedBeforeSampling,
     },
   };
 }

@@ -1,20 +1,23 @@
 import { AnalysisInputError } from './errors';
+import { extentPoints, type Extent } from './extent';
+import type { TimeKind } from './prepare';
 import type { IndicatorName } from './settings';
 
 /** Smallest rolling window, in points, for which the moment estimators mean anything. */
 export const MIN_WINDOW_POINTS = 8;
 
 /**
- * Window length w = round(window · n); throws AnalysisInputError when w < 8. O(1).
- * Source: the engine contract (README, "Indicator definitions").
+ * Window length in points: w = round(extent in points) (extentPoints: a fraction of the n points of the stretch,
+ * "<k> points", or an ISO 8601 duration over the sampling interval, which then must be given in UTC ms). Throws
+ * AnalysisInputError when w < 8 or w > n. O(1). Source: the engine contract (README, "Indicator definitions").
  */
-export function windowPoints(window: number, n: number): number {
-  const w = Math.round(window * n);
+export function windowPoints(window: Extent, n: number, interval?: number, kind: TimeKind = 'numeric'): number {
+  const w = Math.round(extentPoints(window, n, interval ?? Number.NaN, interval === undefined ? 'numeric' : kind));
+  const given = typeof window === 'number' ? `${window} × ${n} points = ${w} points` : `"${window}" = ${w} points`;
   if (w < MIN_WINDOW_POINTS) {
-    throw new AnalysisInputError(
-      `rolling window ${window} × ${n} points = ${w} points; at least ${MIN_WINDOW_POINTS} are needed (use a longer series or a wider window)`,
-    );
+    throw new AnalysisInputError(`rolling window ${given}; at least ${MIN_WINDOW_POINTS} are needed (use a longer series or a wider window)`);
   }
+  if (w > n) throw new AnalysisInputError(`rolling window ${given} is longer than the ${n} points analysed`);
   return w;
 }
 
@@ -144,13 +147,14 @@ export function indicatorFromMoments(
 
 /**
  * Rolling indicators (indicatorFromMoments) over windows of w points ending at each index i ≥ w−1 (earlier entries
- * NaN = none), from the sliding moments of windowMoments. Cost O(n) per indicator.
+ * NaN = none), from the sliding moments of windowMoments; windows with skip[s] = 1 (unjudgedWindows) are NaN,
+ * exactly. Cost O(n) per indicator.
  */
 export function rollingIndicators(
   residual: Float64Array,
   w: number,
   names: readonly IndicatorName[],
-  opts: { raw?: Float64Array; rawMean?: Float64Array; dt: number },
+  opts: { raw?: Float64Array; rawMean?: Float64Array; dt: number; skip?: Uint8Array | null },
 ): Record<IndicatorName, Float64Array> {
   const n = residual.length;
   const { m2, m3, m4, lag } = windowMoments(residual, w);
@@ -160,7 +164,9 @@ export function rollingIndicators(
   const out = {} as Record<IndicatorName, Float64Array>;
   for (const name of names) {
     const values = new Float64Array(n).fill(Number.NaN);
+    const skip = opts.skip;
     for (let s = 0; s < count; s++) {
+      if (skip && skip[s]) continue;
       values[s + w - 1] = indicatorFromMoments(name, w, m2[s], m3[s], m4[s], lag[s], rawMean ? rawMean[s] : Number.NaN, opts.dt);
     }
     out[name] = values;

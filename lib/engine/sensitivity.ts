@@ -32,7 +32,7 @@ export function sensitivityGrid(
   opts: { detrend: DetrendMethod; movingAverageWidth: number; bandwidth: number; indicators: IndicatorName[]; dt: number; windows?: number[]; bandwidths?: number[] },
 ): SensitivityResult {
   const windows = opts.windows ?? DEFAULT_SENSITIVITY_WINDOWS;
-  const bandwidths = opts.detrend === 'gaussian' ? (opts.bandwidths ?? DEFAULT_SENSITIVITY_BANDWIDTHS) : null;
+  const bandwidths = opts.detrend === 'gaussian' || opts.detrend === 'local-linear' ? (opts.bandwidths ?? DEFAULT_SENSITIVITY_BANDWIDTHS) : null;
   const rows = bandwidths ?? [opts.bandwidth];
   const cells: Partial<Record<IndicatorName, (number | null)[][]>> = {};
   for (const name of opts.indicators) cells[name] = [];

@@ -2,28 +2,19 @@ import { describe, expect, it } from 'vitest';
 import { runAnalysis } from '@/lib/engine/analyze';
 import { RandomStream } from '@/lib/engine/random';
 import { analysisSettingsSchema } from '@/lib/engine/settings';
-
-/** P(X ≤ k) for X ~ Binomial(n, p), summed directly. */
-function binomCdf(k: number, n: number, p: number): number {
-  let term = Math.pow(1 - p, n);
-  let sum = term;
-  for (let i = 1; i <= k; i++) {
-    term *= ((n - i + 1) / i) * (p / (1 - p));
-    sum += term;
-  }
-  return sum;
-}
+import { binomCdf } from './binomial';
 
 describe('surrogate significance calibration', () => {
   // Under the null (a stationary AR(1) series, no approach to any transition), a valid test rejects at
   // p ≤ 0.05 in 5% of series. With 99 surrogates, p = (1 + #{τ_s ≥ τ})/100 ≤ 0.05 exactly when at most 4
   // surrogates reach τ, which has probability 5/100 under exchangeability (Davison & Hinkley 1997,
   // Sec. 4.2.1, from memory). The rejection count over 300 series must lie inside the central 99.8% of
-  // Binomial(300, 0.05) (common practice). Seeded, so deterministic, yet a miscalibrated test fails it.
+  // Binomial(300, 0.05) (common practice). Seeded, so deterministic, yet a miscalibrated test fails it. Shift
+  // detection is off: this checks the surrogate test alone (a detected shift would legitimately shorten the stretch).
   it('stationary AR(1) series: p ≤ 0.05 at a rate consistent with 5%', async () => {
     const series = 300;
     const n = 200;
-    const settings = analysisSettingsSchema.parse({ detrend: 'linear', window: 0.5, indicators: ['variance', 'ac1'], surrogates: 99, seed: 11 });
+    const settings = analysisSettingsSchema.parse({ detrend: 'linear', shiftDetection: 'off', window: 0.5, indicators: ['variance', 'ac1'], surrogates: 99, seed: 11 });
     const time = Float64Array.from({ length: n }, (_, i) => i);
     const rejections = { variance: 0, ac1: 0 };
     for (let s = 0; s < series; s++) {
@@ -52,13 +43,15 @@ describe('surrogate significance calibration', () => {
   // −1 to −0.04, stopping short of the fold; Euler–Maruyama with step 0.01, sampled every 0.5. The
   // bandwidth (0.05) is narrow enough for the smoother to follow the curving equilibrium x* = −√(−r);
   // AR(1)-surrogate tests of rolling indicators are known to have modest power, so "most" is ≥ 60%.
-  it('slow approach to a fold: the ac1 trend is significant in most runs', async () => {
+  // Recovery = −ln(ac1)/Δt falls as ac1 rises, so judged in its own (falling) direction it must be significant
+  // exactly when ac1 is (before directions, it was tested upwards and got p ≈ 1).
+  it('slow approach to a fold: ac1 rising and recovery falling are significant in most runs, together', async () => {
     const runs = 30;
     const samples = 1000;
     const every = 50;
     const h = 0.01;
     const sigma = 0.03;
-    const settings = analysisSettingsSchema.parse({ indicators: ['ac1'], surrogates: 99, window: 0.5, bandwidth: 0.05 });
+    const settings = analysisSettingsSchema.parse({ indicators: ['ac1', 'recovery'], surrogates: 99, window: 0.5, bandwidth: 0.05 });
     const time = Float64Array.from({ length: samples }, (_, i) => i * every * h);
     let significant = 0;
     for (let k = 0; k < runs; k++) {
@@ -74,6 +67,8 @@ describe('surrogate significance calibration', () => {
       expect(Math.max(...value)).toBeLessThan(0);
       const res = await runAnalysis({ time, value, timeKind: 'numeric' }, { ...settings, seed: k + 1 }, { parallel: false });
       if (res.significance.ac1!.p! <= 0.05) significant++;
+      expect(res.significance.recovery!.direction).toBe('falling');
+      expect(res.significance.recovery!.p! <= 0.05, `run ${k}`).toBe(res.significance.ac1!.p! <= 0.05);
     }
     expect(significant / runs).toBeGreaterThanOrEqual(0.6);
   });

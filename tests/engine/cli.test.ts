@@ -37,7 +37,8 @@ describe('analyze command line', () => {
     expect(Object.keys(out.indicators)).toEqual(['variance', 'ac1']);
     expect(out.indicators.ac1[58]).toBeNull();
     expect(typeof out.indicators.ac1[59]).toBe('number');
-    expect(out.kendall.ac1).toEqual({ tau: expect.any(Number), p: expect.any(Number) });
+    expect(out.kendall.ac1).toEqual({ tau: expect.any(Number), p: expect.any(Number), direction: 'rising' });
+    expect(out.kendall.recovery).toBeUndefined();
     expect(out.significance.variance).toMatchObject({ count: 20, method: 'ar1' });
     expect(out.sensitivity).toBeNull();
     expect(r.stderr).toBe('');
@@ -55,7 +56,38 @@ describe('analyze command line', () => {
     expect(out.rateUnit).toBe('per time unit');
   });
 
+  it('--summary carries directions, shifts and the stretch, with times as the time column has them', () => {
+    const r = analyze([good, '--summary', '--surrogates', '19', '--indicators', 'ac1,recovery,skewness', '--transition', '2022-01-21']);
+    expect(r.code, r.stderr).toBe(0);
+    const out = JSON.parse(r.stdout);
+    expect(out.significance.ac1).toMatchObject({ direction: 'rising', p: expect.any(Number), count: 19 });
+    expect(out.significance.recovery.direction).toBe('falling');
+    expect(out.significance.skewness.direction).toBe('two-sided');
+    expect(out.kendall.recovery.direction).toBe('falling');
+    expect(out.shifts).toEqual(expect.any(Array));
+    expect(out.stretch).toEqual({ from: '2022-01-21T00:00:00.000Z', to: '2022-04-30T00:00:00.000Z', startsAfter: 'transition' });
+    expect(out.n).toBe(100);
+    expect(out.latest.ac1.time).toBe('2022-04-30T00:00:00.000Z');
+    expect(out.quality).toMatchObject({ coverage: 1, windowsBelowCoverage: 0, flatRuns: [], samplingChanges: [], samplingHandling: null });
+  });
+
+  it('takes every analysis setting: extents in points and ISO 8601 durations, gaps, coverage, sampling, shifts', () => {
+    const r = analyze([
+      good, '--summary', '--window', 'P30D', '--bandwidth', '10 points', '--span', 'P100D', '--detrend', 'local-linear',
+      '--seasonal', 'none', '--max-gap', '2', '--gap-policy', 'latest-stretch', '--min-coverage', '0.9',
+      '--sampling-change', 'subsample', '--shift-detection', 'off', '--indicators', 'variance',
+    ]);
+    expect(r.code, r.stderr).toBe(0);
+    const out = JSON.parse(r.stdout);
+    expect(out.n).toBe(100);
+    expect(out.windowPoints).toBe(30);
+    expect(out.bandwidthPoints).toBe(10);
+    expect(out.stretch.startsAfter).toBe('span');
+  });
+
   const bad: [string, string, string[], RegExp][] = [
+    ['bad extent', `t,x\n1,2\n`, ['--window', 'ninety days'], /: option --window: must be a fraction, "<n> points" or an ISO 8601 duration/],
+    ['duration on numeric times', `t,x\n${rows(40, (i) => `${i},${(i * 7) % 5}`)}\n`, ['--window', 'P10D'], /: lines 2-41, column "x": the duration "P10D" needs calendar timestamps/],
     ['missing column', `t,x\n1,2\n`, ['--value', 'level'], /: line 1, column "level": no such column/],
     ['non-numeric value', `t,x\n${rows(20, (i) => `${i},${i === 6 ? 'n/a' : i}`)}\n`, [], /: line 8, column "x": 'n\/a' is not a number$/],
     ['bad date', `t,x\n2020-01-01,1\n2020-02-30,2\n`, [], /: line 3, column "t": '2020-02-30' is not an ISO 8601 date/],

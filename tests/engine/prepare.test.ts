@@ -6,15 +6,24 @@ import { sensitivityGrid, DEFAULT_SENSITIVITY_BANDWIDTHS, DEFAULT_SENSITIVITY_WI
 import { analysisSettingsSchema, INDICATOR_NAMES } from '@/lib/engine/settings';
 
 const DAY = 86_400_000;
-const base = { maxGap: 3, gapPolicy: 'error' as const, spanPoints: null, logTransform: false, seasonal: 'none' as const };
+const base = { maxGap: 3, gapPolicy: 'error' as const, span: null, logTransform: false, seasonal: 'none' as const, samplingChange: 'start-after' as const };
 
 describe('settings', () => {
   it('parse({}) gives the engine defaults (the command line contract)', () => {
     expect(analysisSettingsSchema.parse({})).toEqual({
-      detrend: 'gaussian', bandwidth: 0.1, movingAverageWidth: 11, window: 0.5, indicators: [...INDICATOR_NAMES],
+      detrend: 'local-linear', bandwidth: 0.1, movingAverageWidth: 11, window: 0.5, indicators: [...INDICATOR_NAMES],
       surrogates: 0, surrogateMethod: 'ar1', seed: 1, seasonal: 'none', logTransform: false, maxGap: 3,
-      gapPolicy: 'error', spanPoints: null, sensitivity: false,
+      gapPolicy: 'error', span: null, minCoverage: 0.8, samplingChange: 'start-after', shiftDetection: 'on', sensitivity: false,
     });
+  });
+  it('reads extents (fraction, points, ISO 8601 duration) and upgrades the legacy spanPoints', () => {
+    const s = analysisSettingsSchema.parse({ window: 'P90D', bandwidth: '30 points', span: 'P2Y' });
+    expect([s.window, s.bandwidth, s.span]).toEqual(['P90D', '30 points', 'P2Y']);
+    expect(analysisSettingsSchema.parse({ spanPoints: 200 }).span).toBe('200 points');
+    expect(analysisSettingsSchema.parse({ spanPoints: null }).span).toBeNull();
+    expect('spanPoints' in analysisSettingsSchema.parse({ spanPoints: 200 })).toBe(false);
+    expect(analysisSettingsSchema.safeParse({ window: 'ninety days' }).success).toBe(false);
+    expect(analysisSettingsSchema.safeParse({ minCoverage: 0 }).success).toBe(false);
   });
   it('rejects an even moving-average width and a window above 1', () => {
     expect(analysisSettingsSchema.safeParse({ movingAverageWidth: 10 }).success).toBe(false);
@@ -54,7 +63,7 @@ describe('preparation', () => {
   it('keeps only the trailing span, so an old gap does not stop the analysis', () => {
     const value = Float64Array.from({ length: 50 }, (_, i) => (i === 5 || i === 6 || i === 7 || i === 8 ? Number.NaN : i));
     const time = Float64Array.from({ length: 50 }, (_, i) => i);
-    const p = prepareSeries({ time, value, timeKind: 'numeric' }, { ...base, spanPoints: 30 });
+    const p = prepareSeries({ time, value, timeKind: 'numeric' }, { ...base, span: '30 points' });
     expect(p.value.length).toBe(30);
     expect(p.value[0]).toBe(20);
     expect(p.quality.droppedBeforeSpan).toBe(20);
