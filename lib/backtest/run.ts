@@ -202,13 +202,14 @@ const METHOD =
 
 /**
  * Backtest of one rule on one record, with optional calibration on surrogates and an ROC from simulated
- * approaches to a fold. Progress goes 0..1 (replay, then calibration, then approaches); `signal` cancels.
+ * approaches to a fold. Progress goes 0..1 (replay, then calibration, then approaches); `signal` cancels;
+ * `surrogateBudget` overrides the cost bound of the replay's surrogate-p checks (SURROGATE_WORK_BUDGET).
  * Cost O(n log n) for the replay plus its surrogate-p checks (≤ SURROGATE_WORK_BUDGET surrogate points), plus
  * O((N + 2M)·n_pre log n_pre)/cores for N surrogate and M approach replicates (their checks ≤ CALIBRATION_WORK_BUDGET).
  */
 export async function runBacktest(
   input: BacktestInput,
-  options: { onProgress?: (fraction: number) => void; signal?: AbortSignal; threads?: number } = {},
+  options: { onProgress?: (fraction: number) => void; signal?: AbortSignal; threads?: number; surrogateBudget?: number } = {},
 ): Promise<BacktestResult> {
   const { settings, rule } = input;
   const direction = replayDirection(rule);
@@ -221,7 +222,7 @@ export async function runBacktest(
     throw new AnalysisInputError(`the record has ${x.length} points; a replay with a ${g.w}-point window needs at least ${g.w + g.warmup + g.offset}`);
   }
   const { residual, evidence: ev } = replayRecord(x, time, rule, g);
-  const checker = prefixSurrogateChecker(residual, x, ev, rule, g);
+  const checker = prefixSurrogateChecker(residual, x, ev, rule, g, { budget: options.surrogateBudget });
   const report = alarmOnsets(ev, rule, rule.minTau, checker.check);
   const { onsets } = report;
   options.onProgress?.(input.calibration ? 0.1 : 1);
