@@ -222,7 +222,8 @@ export async function runBacktest(
     throw new AnalysisInputError(`the record has ${x.length} points; a replay with a ${g.w}-point window needs at least ${g.w + g.warmup + g.offset}`);
   }
   const { residual, evidence: ev } = replayRecord(x, time, rule, g);
-  const checker = prefixSurrogateChecker(residual, x, ev, rule, g, { budget: options.surrogateBudget });
+  // Draws stop once a check is sure to fail: a passing check (the only kind an alarm shows) still has its exact p.
+  const checker = prefixSurrogateChecker(residual, x, ev, rule, g, { budget: options.surrogateBudget, decisionOnly: true });
   const report = alarmOnsets(ev, rule, rule.minTau, checker.check);
   const { onsets } = report;
   options.onProgress?.(input.calibration ? 0.1 : 1);
