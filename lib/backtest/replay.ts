@@ -415,7 +415,8 @@ export function surrogateDecision(
  * A surrogate-p checker for alarmOnsets on one replayed record: at step s it draws the surrogates the live
  * analysis would draw for the record available then (the point-in-time residual of the prefix, or of its
  * trailing span; lib/engine/surrogates.ts) and judges the replay's tau against them in the rule's direction.
- * `budget` bounds Σ drawn surrogates × prefix length; once spent, it answers 'over-budget'. With
+ * `budget` bounds Σ drawn surrogates × prefix length (give or take the last check); once spent, it answers
+ * 'over-budget'. With
  * `decisionOnly`, draws stop once the decision is known (surrogateDecision). O(N · n log n) per check.
  */
 export function prefixSurrogateChecker(
@@ -433,7 +434,8 @@ export function prefixSurrogateChecker(
     const e = ev.index[s] - g.offset + 1;
     const start = g.spanValues === null ? 0 : Math.max(0, e - (g.spanValues + g.w - 1));
     const len = e - start;
-    if (len * g.surrogates > left) return 'over-budget';
+    // a check starts while any budget is left, so the bound is exceeded by at most one check
+    if (!(left > 0)) return 'over-budget';
     if (len < g.w + 2) return { p: null, passed: false };
     const job = prepareSurrogateJob(residual.subarray(start, e), value.subarray(g.offset + start, g.offset + e), {
       method: g.surrogateMethod,

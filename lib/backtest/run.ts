@@ -28,8 +28,12 @@ export const BACKTEST_CAUTION =
 const YEAR_MS = 365.25 * 86_400_000;
 /** Stored evidence curves are thinned to at most this many instants (the statistics use every instant). */
 const CURVE_POINTS = 2000;
-/** Surrogate work all replicates of one calibration may spend on their surrogate-p checks, shared evenly. */
-const CALIBRATION_WORK_BUDGET = 2 * SURROGATE_WORK_BUDGET;
+/**
+ * Surrogate work all replicates of one calibration may spend on their surrogate-p checks, shared evenly: about
+ * three minutes on two cores. A calibration is a background job; its unjudged instants are reported and left
+ * out of the judged time.
+ */
+const CALIBRATION_WORK_BUDGET = 4 * SURROGATE_WORK_BUDGET;
 
 export interface BacktestInput {
   time: Float64Array;
