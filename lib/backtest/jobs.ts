@@ -183,6 +183,7 @@ export async function runNextBacktest(options: { threads?: number } = {}): Promi
     if (!rule || !series) throw new UnprocessableError('The rule or series of this backtest no longer exists.');
     const params = job.params as { every?: number; horizonDays?: number | null; calibration?: { surrogates: number; method: 'ar1' | 'phase'; approaches?: number } | null };
     const replayRule = replayRuleOf(rule);
+    const settings = analysisSettingsSchema.parse(series.settings);
     const { time, value } = await loadObservations(series.id);
     const transitions = await listTransitions(series.id);
     const result = await runBacktest(
@@ -190,7 +191,7 @@ export async function runNextBacktest(options: { threads?: number } = {}): Promi
         time,
         value,
         intervalMs: series.intervalMs === null ? undefined : Number(series.intervalMs),
-        settings: analysisSettingsSchema.parse(series.settings),
+        settings,
         rule: replayRule,
         transitions: transitions.map((t) => ({ id: t.id, at: t.at, note: t.note })),
         every: params.every ?? 1,
@@ -203,7 +204,10 @@ export async function runNextBacktest(options: { threads?: number } = {}): Promi
     const fresh = await BacktestJob.findByPk(job.id, { attributes: ['cancelRequested'] });
     if (fresh?.cancelRequested) throw new CancelledError();
     // the rule as replayed is kept with the result, so a later change of the rule makes its calibration stale
-    await BacktestJob.update({ status: 'succeeded', progress: 1, result: JSON.parse(JSON.stringify({ ...result, rule: replayRule })), finishedAt: new Date() }, { where: { id: job.id } });
+    await BacktestJob.update(
+      { status: 'succeeded', progress: 1, result: JSON.parse(JSON.stringify({ ...result, rule: replayRule, settings })), finishedAt: new Date() },
+      { where: { id: job.id } },
+    );
   } catch (error) {
     await pending;
     const cancelled = error instanceof CancelledError;
@@ -262,9 +266,9 @@ export interface RuleCalibrationSummary {
 }
 
 /**
- * The newest finished calibration of each rule that still matches the rule as it is now (same indicator,
- * direction, thresholds, persistence and quiet period), from its own calibration or a lead's backtest with
- * calibration. Rules with none are absent from the map. One query for all rules.
+ * The newest finished own calibration (queueRuleCalibration) of each rule that still matches the rule as it is
+ * now (same indicator, direction, thresholds, persistence and quiet period) and its series' analysis settings.
+ * Rules with none are absent from the map (a changed rule or series waits for its next calibration).
  */
 export async function latestRuleCalibration(ruleIds: number[]): Promise<Map<number, RuleCalibrationSummary>> {
   const out = new Map<number, RuleCalibrationSummary>();
@@ -275,11 +279,16 @@ export async function latestRuleCalibration(ruleIds: number[]): Promise<Map<numb
     BacktestJob.findAll({ where: { ruleId: { [Op.in]: ruleIds }, kind: 'calibration', status: 'succeeded' }, order: [['id', 'DESC']] }),
   ]);
   const current = new Map(rules.map((r) => [r.id, replayRuleOf(r)]));
+  const seriesIds = [...new Set(jobs.map((j) => j.seriesId))];
+  const settingsOf = new Map(
+    (await Series.findAll({ where: { id: { [Op.in]: seriesIds } }, attributes: ['id', 'settings'] })).map((x) => [x.id, JSON.stringify(analysisSettingsSchema.parse(x.settings))]),
+  );
   for (const job of jobs) {
-    if (out.has(job.ruleId)) continue;
-    const result = job.result as (BacktestResult & { rule?: ReplayRule }) | null;
+    if (out.has(job.ruleId) || !(job.params as { ruleCalibration?: boolean }).ruleCalibration) continue;
+    const result = job.result as (BacktestResult & { rule?: ReplayRule; settings?: unknown }) | null;
     const rule = current.get(job.ruleId);
     if (!rule || !result?.calibration || !sameRule(rule, result.rule)) continue;
+    if (JSON.stringify(result.settings) !== settingsOf.get(job.seriesId)) continue;
     out.set(job.ruleId, {
       jobId: job.id,
       finishedAt: (job.finishedAt ?? job.updatedAt).toISOString(),
