@@ -11,6 +11,8 @@ import { formatLocal, formatP, formatTau } from '@/lib/display/format';
 import type { BacktestJobRecord } from '@/lib/backtest/jobs';
 import type { BacktestResult } from '@/lib/backtest/run';
 import type { RuleRecord } from '@/lib/alerts/rules';
+import { INDICATOR_DIRECTIONS, orientedTau, trendDirectionOf, type RuleDirection, type TrendDirection } from '@/lib/engine/direction';
+import type { IndicatorName } from '@/lib/engine/settings';
 import { TransitionList } from './TransitionList';
 
 type JobWithResult = BacktestJobRecord & { result?: BacktestResult | null };
@@ -18,6 +20,21 @@ type JobWithResult = BacktestJobRecord & { result?: BacktestResult | null };
 const DAY_MS = 86_400_000;
 const button = 'rounded border border-rule px-3 py-1 text-sm hover:bg-paper disabled:opacity-50';
 const primary = 'rounded bg-tide px-3 py-1 text-sm text-white hover:opacity-90 disabled:opacity-50';
+
+/** How a tau is read, in the words shown beside it. */
+function directionWord(d: TrendDirection): string {
+  return d === 'rising' ? '↑ rising' : d === 'falling' ? '↓ falling' : '↕ either way';
+}
+
+/** A rule's direction; rules stored before directions existed read their indicator's own. */
+function ruleDirection(r: RuleRecord): TrendDirection {
+  const d = (r as RuleRecord & { direction?: RuleDirection }).direction;
+  return d ? trendDirectionOf(d) : INDICATOR_DIRECTIONS[r.indicator as IndicatorName];
+}
+
+function yearsText(years: number): string {
+  return years >= 1 ? `${years.toFixed(2)} years` : `${(years * 365.25).toFixed(years * 365.25 >= 10 ? 0 : 1)} days`;
+}
 
 function leadText(ms: number | null): string {
   if (ms === null) return 'no warning';
@@ -32,6 +49,7 @@ export function BacktestPanel({ slug, timeZone, canRun }: { slug: string; timeZo
   const list = useQuery({ queryKey: ['backtests', slug], queryFn: () => api<{ backtests: BacktestJobRecord[] }>(`/api/backtests?series=${encodeURIComponent(slug)}`) });
   const [ruleId, setRuleId] = useState<number | null>(null);
   const [every, setEvery] = useState(1);
+  const [horizonDays, setHorizonDays] = useState<number | null>(null);
   const [surrogates, setSurrogates] = useState(100);
   const [method, setMethod] = useState<'ar1' | 'phase'>('ar1');
   const [calibrate, setCalibrate] = useState(true);
@@ -50,7 +68,7 @@ export function BacktestPanel({ slug, timeZone, canRun }: { slug: string; timeZo
     mutationFn: () =>
       api<{ jobId: number }>(`/api/rules/${chosenRule}/backtest`, {
         method: 'POST',
-        body: { every, calibration: calibrate ? { surrogates, method } : null },
+        body: { every, horizonDays, calibration: calibrate ? { surrogates, method } : null },
       }),
     onSuccess: ({ jobId }) => {
       setSelected(jobId);
@@ -101,7 +119,7 @@ export function BacktestPanel({ slug, timeZone, canRun }: { slug: string; timeZo
             <select className="rounded border border-rule bg-card px-2 py-1" value={chosenRule ?? ''} onChange={(e) => setRuleId(Number(e.target.value))} disabled={!rules.data?.items.length}>
               {rules.data?.items.map((r) => (
                 <option key={r.id} value={r.id}>
-                  #{r.id} {r.indicator} τ ≥ {r.minTau} ({r.severity})
+                  #{r.id} {r.indicator} τ ≥ {r.minTau} {directionWord(ruleDirection(r))} ({r.severity})
                 </option>
               ))}
             </select>
@@ -109,6 +127,17 @@ export function BacktestPanel({ slug, timeZone, canRun }: { slug: string; timeZo
           <label className="flex flex-col">
             Judge every (points)
             <input type="number" min={1} className="w-28 rounded border border-rule px-2 py-1" value={every} onChange={(e) => setEvery(Math.max(1, Number(e.target.value) || 1))} />
+          </label>
+          <label className="flex flex-col">
+            Warning horizon (days)
+            <input
+              type="number"
+              min={1}
+              className="w-32 rounded border border-rule px-2 py-1"
+              placeholder="one window"
+              value={horizonDays ?? ''}
+              onChange={(e) => setHorizonDays(e.target.value === '' ? null : Math.max(1, Number(e.target.value) || 1))}
+            />
           </label>
           <label className="flex items-center gap-2">
             <input type="checkbox" checked={calibrate} onChange={(e) => setCalibrate(e.target.checked)} /> Calibrate on surrogates
@@ -211,8 +240,15 @@ function BacktestResults({
   onUse: (threshold: number) => void;
 }) {
   const [pick, setPick] = useState<number>(result.threshold);
-  const rows = result.evidence.time.map((t, i) => ({ t, tau: result.evidence.tau[i], p: result.evidence.p[i], threshold: result.threshold }));
+  // results stored before directions existed read tau as rising
+  const direction: TrendDirection = result.direction ?? 'rising';
+  const word = directionWord(direction);
+  const rows = result.evidence.time.map((t, i) => {
+    const tau = result.evidence.tau[i];
+    return { t, tau: tau === null ? null : orientedTau(tau, direction), p: result.evidence.p[i], threshold: result.threshold };
+  });
   const cal = result.calibration;
+  const judged = result.judged;
   return (
     <div className="mt-4 space-y-4">
       <dl className="grid grid-cols-2 gap-x-6 gap-y-1 text-sm sm:grid-cols-4">
@@ -220,15 +256,35 @@ function BacktestResults({
         <dd className="num">{result.points} (judged every {result.every}, {result.steps} instants)</dd>
         <dt className="text-ink-soft">Window</dt>
         <dd className="num">{result.geometry.windowPoints} points, {result.geometry.detrend} detrending</dd>
+        <dt className="text-ink-soft">τ read</dt>
+        <dd data-testid="backtest-direction">{word} (threshold τ ≥ {formatTau(result.threshold)} in that direction)</dd>
+        <dt className="text-ink-soft">Warning horizon</dt>
+        <dd className="num" data-testid="backtest-horizon">{result.horizonMs !== undefined ? leadText(result.horizonMs) : 'since the previous transition'} before a transition</dd>
+        {judged ? (
+          <>
+            <dt className="text-ink-soft">Judged time</dt>
+            <dd className="num" data-testid="backtest-judged-time">
+              {yearsText(judged.years)} · {judged.surrogateChecks} surrogate checks
+              {judged.quietSuppressed ? ` · ${judged.quietSuppressed} held back by the quiet period` : ''}
+            </dd>
+            <dt className="text-ink-soft">Not judged</dt>
+            <dd className="num" data-testid="backtest-not-judged">
+              {judged.notJudgedSteps === 0
+                ? 'none'
+                : `${judged.notJudgedSteps} instants in ${judged.notJudged.length} stretch${judged.notJudged.length === 1 ? '' : 'es'} (the surrogate checks reached their cost bound)`}
+            </dd>
+          </>
+        ) : null}
         <dt className="text-ink-soft">False alarms</dt>
         <dd className="num">
           {result.falseAlarms.exposureYears > 0 ? (
             <>
-              {result.falseAlarms.count} in {result.falseAlarms.exposureYears.toFixed(2)} years
-              {result.falseAlarms.perYear !== null ? ` (${result.falseAlarms.perYear.toFixed(2)} a year)` : ''}
+              {result.falseAlarms.count} in {yearsText(result.falseAlarms.exposureYears)} of judged time that could host one
+              {result.falseAlarms.perYear !== null ? ` (${result.falseAlarms.perYear.toFixed(2)} a year` : ''}
+              {result.falseAlarms.perYear !== null && result.falseAlarms.interval ? `, 95 % interval ${result.falseAlarms.interval[0].toFixed(2)}–${result.falseAlarms.interval[1].toFixed(2)})` : result.falseAlarms.perYear !== null ? ')' : ''}
             </>
           ) : (
-            'none could count: every judged instant lies before a marked transition or within one window after it'
+            'none could count: every judged instant lies within the horizon before a marked transition or within one window after it'
           )}
         </dd>
         {cal ? (
@@ -237,6 +293,17 @@ function BacktestResults({
             <dd className="num">
               {(cal.falseAlarmRate * 100).toFixed(1)} % of {cal.surrogates} {cal.method === 'ar1' ? 'AR(1)' : 'phase-randomised'} replays (95 % interval {(cal.interval[0] * 100).toFixed(1)}–{(cal.interval[1] * 100).toFixed(1)} %)
             </dd>
+            {cal.falseAlarmsPerYear !== undefined ? (
+              <>
+                <dt className="text-ink-soft">Calibrated false alarms</dt>
+                <dd className="num">
+                  {cal.falseAlarmsPerYear === null ? '–' : `${cal.falseAlarmsPerYear.toFixed(2)} a year`}
+                  {cal.falseAlarmsPerYearInterval ? ` (95 % interval ${cal.falseAlarmsPerYearInterval[0].toFixed(2)}–${cal.falseAlarmsPerYearInterval[1].toFixed(2)}, exact Poisson)` : ''} over{' '}
+                  {yearsText(cal.judgedYears)} of judged replay time
+                  {cal.notJudgedSteps ? `; ${cal.notJudgedSteps} replay instants not judged (cost bound)` : ''}
+                </dd>
+              </>
+            ) : null}
           </>
         ) : null}
       </dl>
@@ -248,7 +315,7 @@ function BacktestResults({
             <th className="py-1 pr-4">Transition</th>
             <th className="pr-4">First warning</th>
             <th className="pr-4">Lead time</th>
-            <th>Highest τ threshold that warns</th>
+            <th>Highest τ threshold that warns ({word})</th>
           </tr>
         </thead>
         <tbody>
@@ -269,11 +336,15 @@ function BacktestResults({
         </tbody>
       </table>
 
-      <ChartFrame title="Evidence over replay time" fileName="backtest-evidence" legend="Kendall τ of the indicator with the data available at each instant; dashed: the rule's threshold">
+      <ChartFrame
+        title="Evidence over replay time"
+        fileName="backtest-evidence"
+        legend={`Kendall τ of the indicator with the data available at each instant, read ${word} (the way the rule looks); dashed: the rule's threshold`}
+      >
         <TimeChart
           rows={rows}
           lines={[
-            { key: 'tau', label: 'τ', color: '#1f6f8b' },
+            { key: 'tau', label: `τ ${word}`, color: '#1f6f8b' },
             { key: 'threshold', label: 'threshold', color: '#b45309', dashed: true, width: 1 },
           ]}
           timeZone={timeZone}
@@ -281,12 +352,17 @@ function BacktestResults({
           zeroLine
         />
       </ChartFrame>
-      <ChartFrame title="Kendall p over replay time" fileName="backtest-p">
+      <ChartFrame title="Kendall p over replay time" fileName="backtest-p" legend="descriptive only: it assumes independent values, which overlapping windows are not, so no rule is judged on it">
         <TimeChart rows={rows} lines={[{ key: 'p', label: 'p', color: '#475569' }]} timeZone={timeZone} transitions={result.transitions.map((t) => ({ at: t.at, note: t.note || 'marked transition' }))} height={160} />
       </ChartFrame>
 
       {cal ? (
-        <ChartFrame title="Hit rate against false-alarm rate" fileName="backtest-roc" legend="each point is one τ threshold; hit rate over the marked transitions, false-alarm rate over surrogate replays">
+        <ChartFrame
+          title="Hit rate against false-alarm rate"
+          fileName="backtest-roc"
+          testId="backtest-roc"
+          legend={`each point is one threshold on τ ${word}; hit rate: share of simulated approaches to a fold (fitted to the record before the first transition) warned of within the horizon; false-alarm rate: share of simulated records without one that alarm in the same stretch`}
+        >
           <ResponsiveContainer width="100%" height={260}>
             <LineChart data={cal.roc.filter((p) => p.hitRate !== null).map((p) => ({ ...p }))} margin={{ top: 8, right: 16, bottom: 16, left: 8 }}>
               <CartesianGrid stroke="#e5e7eb" />
@@ -301,7 +377,12 @@ function BacktestResults({
                 ))}
             </LineChart>
           </ResponsiveContainer>
-          {cal.roc.every((p) => p.hitRate === null) ? <Empty>Mark a transition to see hit rates; the false-alarm rates are below.</Empty> : null}
+          {cal.approaches ? (
+            <p className="mt-1 text-xs text-ink-soft">
+              {cal.approaches.replicates} simulated records of each kind. Fitted lag-1 memory without a fold: {cal.approaches.nullModel.phiStart.toFixed(3)} throughout; towards a
+              fold: {cal.approaches.foldModel.phiStart.toFixed(3)} at the start, {cal.approaches.foldModel.phiEnd.toFixed(3)} at the end.
+            </p>
+          ) : null}
         </ChartFrame>
       ) : null}
 
@@ -312,7 +393,7 @@ function BacktestResults({
             <select className="rounded border border-rule bg-card px-2 py-1" value={pick} onChange={(e) => setPick(Number(e.target.value))}>
               {cal.roc.map((p) => (
                 <option key={p.threshold} value={p.threshold}>
-                  {p.threshold.toFixed(2)} — hits {p.hitRate === null ? '–' : `${Math.round(p.hitRate * 100)} %`}, false alarms {(p.falseAlarmRate * 100).toFixed(1)} %
+                  τ {word} ≥ {p.threshold.toFixed(2)} — hits {p.hitRate === null ? '–' : `${Math.round(p.hitRate * 100)} %`}, false alarms {(p.falseAlarmRate * 100).toFixed(1)} %
                 </option>
               ))}
             </select>
@@ -333,7 +414,8 @@ function BacktestResults({
           <ul className="mt-1 space-y-0.5">
             {result.alarms.map((a) => (
               <li key={a.time} className="num">
-                {formatLocal(a.time, timeZone)} · τ {formatTau(a.tau)} · p {formatP(a.p)} · {a.kind === 'warning' ? 'warning before a transition' : a.kind === 'settling' ? 'just after a transition' : 'false alarm'}
+                {formatLocal(a.time, timeZone)} · τ {formatTau(a.tau)} ({word}) · surrogate p {formatP(a.surrogateP)} ·{' '}
+                {a.kind === 'warning' ? 'warning within the horizon before a transition' : a.kind === 'settling' ? 'just after a transition' : 'false alarm'}
               </li>
             ))}
           </ul>

@@ -8,4 +8,4 @@ const { task, from, to } = workerData;
 const result = calibrateChunk(task, from, to, (done) => {
   if (done % 5 === 0) parentPort.postMessage({ progress: done });
 });
-parentPort.postMessage({ result }, [result.statistic.buffer, result.onsets.buffer]);
+parentPort.postMessage({ result }, Object.values(result).map((a) => a.buffer));

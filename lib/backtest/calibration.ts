@@ -1,41 +1,75 @@
 import { makeSurrogate, type SurrogateJob } from '@/lib/engine/surrogates';
-import { alarmOnsets, firingStatistic, replayRecord, type ReplayGeometry, type ReplayRule } from './replay';
+import { simulateRestoring, type RestoringModel } from './fold';
+import { alarmOnsets, firingStatistic, prefixSurrogateChecker, replayRecord, stepSpans, type ReplayGeometry, type ReplayRule } from './replay';
 
-/** One calibration, as plain data so a worker thread can take it: the surrogate job plus the replay to run on each surrogate. */
+/** Where the residual of each replicate comes from: a surrogate of the record, or a fitted restoring model. */
+export type ReplicateSource = { kind: 'surrogate'; job: SurrogateJob } | { kind: 'restoring'; model: RestoringModel; seed: number };
+
+/** One batch of simulated records, as plain data so a worker thread can take it. */
 export interface CalibrationTask {
-  job: SurrogateJob;
-  /** two-sided trend of the pre-transition record; each surrogate record is trend + surrogate residual */
+  source: ReplicateSource;
+  /** two-sided trend of the pre-transition record; each replicate record is trend + simulated residual */
   trend: Float64Array;
   time: Float64Array;
   rule: ReplayRule;
   geometry: ReplayGeometry;
+  /** the firing statistic judges the instants at or after this time (the warning horizon before the end) */
+  scoreFrom: number;
+  /** judge the rule's surrogate-p criterion on each replicate, as the live rule does (false: tau and level only) */
+  liveSurrogateP: boolean;
+  /** cost bound of those checks per replicate, in surrogate points (see prefixSurrogateChecker) */
+  budget: number;
 }
 
 export interface CalibrationChunk {
-  /** largest tau threshold at which each surrogate replay fires (−Infinity: never) */
+  /** largest threshold (tau in the rule's direction) at which each replicate fires within the scored stretch (−Infinity: never) */
   statistic: Float64Array;
-  /** alarm onsets of each surrogate replay at the rule's own threshold */
+  /** alarm onsets of each replicate at the rule's own threshold, over the whole replicate */
   onsets: Float64Array;
+  /** judged time of each replicate, ms */
+  judgedMs: Float64Array;
+  /** instants of each replicate that the cost bound left unjudged */
+  notJudged: Float64Array;
 }
 
+export const CHUNK_FIELDS = ['statistic', 'onsets', 'judgedMs', 'notJudged'] as const;
+
 /**
- * Replays surrogates from..to−1 of the task exactly as the observed record is replayed (point-in-time
- * detrending, incremental indicators and Kendall tau, the rule's persistence and quiet period). The surrogate-p
- * criterion is not applied to surrogates (a test of a surrogate against its own surrogates says nothing
- * about the rule's false alarms and would cost N² replays). Each surrogate draws from its own random stream,
- * so results do not depend on how the range is split. Cost O((to − from)·n log n).
+ * Replays replicates from..to−1 of the task exactly as the observed record is replayed (point-in-time
+ * detrending, incremental indicators and Kendall tau, the rule's direction, persistence and quiet period; with
+ * liveSurrogateP the surrogate-p criterion too, each replicate tested against surrogates of its own prefixes,
+ * drawn only until the decision is known). Replicate i draws from its own random stream, so results do not
+ * depend on how the range is split. Cost O((to − from)·n log n), plus the surrogate checks (bounded by `budget`).
  */
 export function calibrateChunk(task: CalibrationTask, from: number, to: number, onEach?: (done: number) => void): CalibrationChunk {
-  const statistic = new Float64Array(to - from);
-  const onsets = new Float64Array(to - from);
+  const out: CalibrationChunk = {
+    statistic: new Float64Array(to - from),
+    onsets: new Float64Array(to - from),
+    judgedMs: new Float64Array(to - from),
+    notJudged: new Float64Array(to - from),
+  };
+  const g = task.geometry;
   const record = new Float64Array(task.trend.length);
   for (let i = from; i < to; i++) {
-    const s = makeSurrogate(task.job, i);
-    for (let k = 0; k < record.length; k++) record[k] = task.trend[k] + s[k];
-    const { evidence } = replayRecord(record, task.time, task.rule, task.geometry);
-    statistic[i - from] = firingStatistic(evidence, task.rule);
-    onsets[i - from] = alarmOnsets(evidence, task.rule, task.rule.minTau).onsets.length;
+    const r = task.source.kind === 'surrogate' ? makeSurrogate(task.source.job, i) : simulateRestoring(task.source.model, task.source.seed, i);
+    for (let k = 0; k < record.length; k++) record[k] = task.trend[k] + r[k];
+    const { residual, evidence } = replayRecord(record, task.time, task.rule, g);
+    let first = 0;
+    while (first < evidence.time.length && evidence.time[first] < task.scoreFrom) first++;
+    out.statistic[i - from] = firingStatistic(evidence, task.rule, first);
+    const checker =
+      task.liveSurrogateP && task.rule.maxSurrogateP !== null
+        ? prefixSurrogateChecker(residual, record, evidence, task.rule, g, { budget: task.budget, decisionOnly: true, seed: g.seed + (i + 1) * 104_729 })
+        : null;
+    const report = alarmOnsets(evidence, task.rule, task.rule.minTau, checker?.check ?? (() => ({ p: null, passed: true })));
+    const spans = stepSpans(evidence, g);
+    let judged = 0;
+    for (const v of spans) judged += v;
+    for (const s of report.notJudged) judged -= spans[s];
+    out.onsets[i - from] = report.onsets.length;
+    out.judgedMs[i - from] = judged;
+    out.notJudged[i - from] = report.notJudged.length;
     onEach?.(i - from + 1);
   }
-  return { statistic, onsets };
+  return out;
 }

@@ -1,4 +1,4 @@
-import { Op } from 'sequelize';
+import { Op, type Transaction } from 'sequelize';
 import { AlertRule, BacktestJob, Series, db, writeTransaction } from '@/models';
 import { recordAudit } from '@/lib/audit';
 import type { Actor } from '@/lib/auth/guard';
@@ -9,11 +9,44 @@ import type { BacktestRequest } from '@/lib/schemas/backtest';
 import { findSeriesBySlug } from '@/lib/series/registry';
 import { CancelledError } from './pool';
 import { listTransitions } from './transitions';
+import { ruleDirectionOf, type ReplayRule } from './replay';
 import { runBacktest, type BacktestResult } from './run';
 
 const DAY_MS = 86_400_000;
 /** How often a running job writes its progress and looks for a cancel request. */
 const PROGRESS_EVERY_MS = 500;
+/**
+ * Live defaults of a rule's own calibration: 200 AR(1) surrogates of the pre-transition record, each judged
+ * every point (every new point may start an analysis cycle, the most checks a live series can see), and as many
+ * simulated approaches. 200 replicates put a binomial standard error of at most 3.5 points on the share of
+ * replicates that alarm; our own choice of cost against precision.
+ */
+const RULE_CALIBRATION = { every: 1, horizonDays: null, calibration: { surrogates: 200, method: 'ar1' as const } };
+
+/**
+ * The parts of a stored rule a replay judges. `direction` is read when the rule record has it and falls back
+ * to the indicator's own direction otherwise (rules stored before the field existed).
+ */
+export function replayRuleOf(rule: AlertRule): ReplayRule {
+  const indicator = rule.indicator as IndicatorName;
+  return {
+    indicator,
+    direction: ruleDirectionOf({ indicator, direction: (rule as unknown as { direction?: string | null }).direction }),
+    minTau: rule.minTau,
+    maxKendallP: rule.maxKendallP,
+    maxSurrogateP: rule.maxSurrogateP,
+    levelThreshold: rule.levelThreshold,
+    levelDirection: rule.levelDirection,
+    persistence: rule.persistence,
+    quietPeriodHours: rule.quietPeriodHours,
+  };
+}
+
+/** Same judged fields (what makes a stored calibration still the rule's own). */
+function sameRule(a: ReplayRule, b: ReplayRule | undefined): boolean {
+  if (!b) return false;
+  return (Object.keys(a) as (keyof ReplayRule)[]).every((k) => k === 'maxKendallP' || a[k] === b[k]);
+}
 
 export function presentBacktestJob(job: BacktestJob, options: { withResult?: boolean } = {}) {
   return {
@@ -148,7 +181,9 @@ export async function runNextBacktest(options: { threads?: number } = {}): Promi
   try {
     const [rule, series] = await Promise.all([AlertRule.findByPk(job.ruleId), Series.findByPk(job.seriesId)]);
     if (!rule || !series) throw new UnprocessableError('The rule or series of this backtest no longer exists.');
-    const params = job.params as { every?: number; horizonDays?: number | null; calibration?: { surrogates: number; method: 'ar1' | 'phase' } | null };
+    const params = job.params as { every?: number; horizonDays?: number | null; calibration?: { surrogates: number; method: 'ar1' | 'phase'; approaches?: number } | null };
+    const replayRule = replayRuleOf(rule);
+    const settings = analysisSettingsSchema.parse(series.settings);
     const { time, value } = await loadObservations(series.id);
     const transitions = await listTransitions(series.id);
     const result = await runBacktest(
@@ -156,17 +191,8 @@ export async function runNextBacktest(options: { threads?: number } = {}): Promi
         time,
         value,
         intervalMs: series.intervalMs === null ? undefined : Number(series.intervalMs),
-        settings: analysisSettingsSchema.parse(series.settings),
-        rule: {
-          indicator: rule.indicator as IndicatorName,
-          minTau: rule.minTau,
-          maxKendallP: rule.maxKendallP,
-          maxSurrogateP: rule.maxSurrogateP,
-          levelThreshold: rule.levelThreshold,
-          levelDirection: rule.levelDirection,
-          persistence: rule.persistence,
-          quietPeriodHours: rule.quietPeriodHours,
-        },
+        settings,
+        rule: replayRule,
         transitions: transitions.map((t) => ({ id: t.id, at: t.at, note: t.note })),
         every: params.every ?? 1,
         horizonMs: params.horizonDays ? params.horizonDays * DAY_MS : null,
@@ -177,7 +203,11 @@ export async function runNextBacktest(options: { threads?: number } = {}): Promi
     await pending;
     const fresh = await BacktestJob.findByPk(job.id, { attributes: ['cancelRequested'] });
     if (fresh?.cancelRequested) throw new CancelledError();
-    await BacktestJob.update({ status: 'succeeded', progress: 1, result: JSON.parse(JSON.stringify(result)), finishedAt: new Date() }, { where: { id: job.id } });
+    // the rule as replayed is kept with the result, so a later change of the rule makes its calibration stale
+    await BacktestJob.update(
+      { status: 'succeeded', progress: 1, result: JSON.parse(JSON.stringify({ ...result, rule: replayRule, settings })), finishedAt: new Date() },
+      { where: { id: job.id } },
+    );
   } catch (error) {
     await pending;
     const cancelled = error instanceof CancelledError;
@@ -198,4 +228,74 @@ export async function requeueAbandonedBacktests(): Promise<number> {
   const [count] = await BacktestJob.update({ status: 'queued', startedAt: null }, { where: { status: 'running', cancelRequested: { [Op.not]: true } } });
   await BacktestJob.update({ status: 'cancelled', finishedAt: new Date() }, { where: { status: 'running', cancelRequested: true } });
   return count;
+}
+
+/**
+ * Queues the calibration of a rule on its own series with the live defaults (RULE_CALIBRATION): the full live
+ * procedure replayed on surrogates of the series' pre-transition record, giving false alarms per year of
+ * judged time. Calibrations of the same rule still waiting in the queue are cancelled (only the newest rule
+ * matters). Null for a default rule (no series of its own). Called by the rule routes on create and update.
+ */
+export async function queueRuleCalibration(ruleId: number, actor: { id: number } | null, transaction?: Transaction): Promise<BacktestJob | null> {
+  const work = async (t: Transaction): Promise<BacktestJob | null> => {
+    const rule = await AlertRule.findByPk(ruleId, { transaction: t });
+    if (!rule) throw new NotFoundError('Rule');
+    if (rule.seriesId === null) return null;
+    const waiting = await BacktestJob.findAll({ where: { ruleId, kind: 'calibration', status: 'queued' }, transaction: t });
+    for (const old of waiting) {
+      if ((old.params as { ruleCalibration?: boolean }).ruleCalibration) await old.update({ status: 'cancelled', cancelRequested: true, finishedAt: new Date() }, { transaction: t });
+    }
+    const job = await BacktestJob.create(
+      { ruleId, seriesId: rule.seriesId, kind: 'calibration', params: { ...RULE_CALIBRATION, ruleCalibration: true }, result: null, error: null, createdBy: actor?.id ?? null, startedAt: null, finishedAt: null },
+      { transaction: t },
+    );
+    await recordAudit({ actorId: actor?.id ?? null, action: 'rule.calibration.queue', entity: 'backtest_job', entityId: job.id, details: { ruleId, seriesId: rule.seriesId } }, t);
+    return job;
+  };
+  if (transaction) return work(transaction);
+  await db();
+  return writeTransaction(work);
+}
+
+export interface RuleCalibrationSummary {
+  jobId: number;
+  finishedAt: string;
+  falseAlarmsPerYear: number | null;
+  interval: [number, number] | null;
+  surrogates: number;
+}
+
+/**
+ * The newest finished own calibration (queueRuleCalibration) of each rule that still matches the rule as it is
+ * now (same indicator, direction, thresholds, persistence and quiet period) and its series' analysis settings.
+ * Rules with none are absent from the map (a changed rule or series waits for its next calibration).
+ */
+export async function latestRuleCalibration(ruleIds: number[]): Promise<Map<number, RuleCalibrationSummary>> {
+  const out = new Map<number, RuleCalibrationSummary>();
+  if (!ruleIds.length) return out;
+  await db();
+  const [rules, jobs] = await Promise.all([
+    AlertRule.findAll({ where: { id: { [Op.in]: ruleIds } } }),
+    BacktestJob.findAll({ where: { ruleId: { [Op.in]: ruleIds }, kind: 'calibration', status: 'succeeded' }, order: [['id', 'DESC']] }),
+  ]);
+  const current = new Map(rules.map((r) => [r.id, replayRuleOf(r)]));
+  const seriesIds = [...new Set(jobs.map((j) => j.seriesId))];
+  const settingsOf = new Map(
+    (await Series.findAll({ where: { id: { [Op.in]: seriesIds } }, attributes: ['id', 'settings'] })).map((x) => [x.id, JSON.stringify(analysisSettingsSchema.parse(x.settings))]),
+  );
+  for (const job of jobs) {
+    if (out.has(job.ruleId) || !(job.params as { ruleCalibration?: boolean }).ruleCalibration) continue;
+    const result = job.result as (BacktestResult & { rule?: ReplayRule; settings?: unknown }) | null;
+    const rule = current.get(job.ruleId);
+    if (!rule || !result?.calibration || !sameRule(rule, result.rule)) continue;
+    if (JSON.stringify(result.settings) !== settingsOf.get(job.seriesId)) continue;
+    out.set(job.ruleId, {
+      jobId: job.id,
+      finishedAt: (job.finishedAt ?? job.updatedAt).toISOString(),
+      falseAlarmsPerYear: result.calibration.falseAlarmsPerYear,
+      interval: result.calibration.falseAlarmsPerYearInterval ?? null,
+      surrogates: result.calibration.surrogates,
+    });
+  }
+  return out;
 }

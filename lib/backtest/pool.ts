@@ -1,5 +1,5 @@
 import os from 'node:os';
-import { calibrateChunk, type CalibrationChunk, type CalibrationTask } from './calibration';
+import { CHUNK_FIELDS, calibrateChunk, type CalibrationChunk, type CalibrationTask } from './calibration';
 
 /** Raised when a caller's AbortSignal stops a calibration. */
 export class CancelledError extends Error {
@@ -21,6 +21,10 @@ function workerUrl(): URL | null {
 }
 
 type Progress = (done: number) => void;
+
+function emptyChunk(n: number): CalibrationChunk {
+  return { statistic: new Float64Array(n), onsets: new Float64Array(n), judgedMs: new Float64Array(n), notJudged: new Float64Array(n) };
+}
 
 async function inWorker(url: URL, task: CalibrationTask, from: number, to: number, onDone: Progress, signal?: AbortSignal): Promise<CalibrationChunk> {
   const { Worker } = await import('node:worker_threads');
@@ -49,21 +53,19 @@ async function inWorker(url: URL, task: CalibrationTask, from: number, to: numbe
 
 /** Same work on this thread, yielding between surrogates so progress is reported and cancellation is seen. */
 async function inline(task: CalibrationTask, from: number, to: number, onDone: Progress, signal?: AbortSignal): Promise<CalibrationChunk> {
-  const statistic = new Float64Array(to - from);
-  const onsets = new Float64Array(to - from);
+  const out = emptyChunk(to - from);
   for (let i = from; i < to; i++) {
     if (signal?.aborted) throw new CancelledError();
     const one = calibrateChunk(task, i, i + 1);
-    statistic[i - from] = one.statistic[0];
-    onsets[i - from] = one.onsets[0];
+    for (const f of CHUNK_FIELDS) out[f][i - from] = one[f][0];
     onDone(i - from + 1);
     if ((i - from) % 5 === 4) await new Promise((r) => setImmediate(r));
   }
-  return { statistic, onsets };
+  return out;
 }
 
 /**
- * Replays surrogates 0..count−1 of a calibration on all cores: the index range is cut into one contiguous
+ * Replays replicates 0..count−1 of a calibration task (surrogates of the record, or simulated approaches) on all cores: the index range is cut into one contiguous
  * chunk per core, each run by a worker thread (the engine's pool pattern, lib/engine/surrogate-pool.ts);
  * numbers are identical to the single-thread path, used when workers are unavailable (inside the Next.js
  * server bundle) or fail to start. `onProgress` gets the fraction done; `signal` stops the workers
@@ -95,11 +97,9 @@ export async function runCalibration(
         : inline(task, from, bounds[i + 1], report(i), options.signal),
     ),
   );
-  const statistic = new Float64Array(count);
-  const onsets = new Float64Array(count);
+  const out = emptyChunk(count);
   chunks.forEach((c, i) => {
-    statistic.set(c.statistic, bounds[i]);
-    onsets.set(c.onsets, bounds[i]);
+    for (const f of CHUNK_FIELDS) out[f].set(c[f], bounds[i]);
   });
-  return { statistic, onsets };
+  return out;
 }

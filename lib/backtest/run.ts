@@ -1,11 +1,26 @@
 import { ANALYSIS_CAUTION } from '@/lib/engine/analyze';
 import { detrend } from '@/lib/engine/detrend';
+import { orientedTau, type TrendDirection } from '@/lib/engine/direction';
 import { AnalysisInputError } from '@/lib/engine/errors';
 import { prepareSeries } from '@/lib/engine/prepare';
 import type { AnalysisSettings, SurrogateMethod } from '@/lib/engine/settings';
 import { prepareSurrogateJob } from '@/lib/engine/surrogates';
+import { fitRestoringModel, type RestoringModel } from './fold';
+import { garwoodInterval } from './poisson';
 import { runCalibration } from './pool';
-import { alarmOnsets, firingStatistic, otherCriteriaHold, prefixSurrogateP, replayGeometry, replayRecord, type Evidence, type ReplayRule } from './replay';
+import {
+  SURROGATE_WORK_BUDGET,
+  alarmOnsets,
+  basePasses,
+  firingStatistic,
+  prefixSurrogateChecker,
+  replayDirection,
+  replayGeometry,
+  replayRecord,
+  stepSpans,
+  type Evidence,
+  type ReplayRule,
+} from './replay';
 
 export const BACKTEST_CAUTION =
   'A backtest is evidence of how this rule would have behaved on past data, not a guarantee of how it will behave. ' + ANALYSIS_CAUTION;
@@ -13,6 +28,12 @@ export const BACKTEST_CAUTION =
 const YEAR_MS = 365.25 * 86_400_000;
 /** Stored evidence curves are thinned to at most this many instants (the statistics use every instant). */
 const CURVE_POINTS = 2000;
+/**
+ * Surrogate work all replicates of one calibration may spend on their surrogate-p checks, shared evenly: about
+ * three minutes on two cores. A calibration is a background job; its unjudged instants are reported and left
+ * out of the judged time.
+ */
+const CALIBRATION_WORK_BUDGET = 4 * SURROGATE_WORK_BUDGET;
 
 export interface BacktestInput {
   time: Float64Array;
@@ -21,23 +42,28 @@ export interface BacktestInput {
   settings: AnalysisSettings;
   rule: ReplayRule;
   transitions: { id?: number; at: number; note?: string }[];
-  /** judge every k new points (1 = each point) */
+  /** points per analysis cycle: the rule is judged every this many new points (1 = each point) */
   every: number;
-  /** an alarm counts as a warning of a transition only this long before it (null: anywhere since the previous one) */
+  /** an alarm counts as a warning of a transition only this long before it; null/undefined: one window */
   horizonMs?: number | null;
-  calibration?: { surrogates: number; method: SurrogateMethod } | null;
+  /**
+   * surrogates: replicates of the pre-transition record for the calibrated false-alarm rate; approaches: simulated
+   * records of each kind (null and fold approach) for the ROC (default: as many as surrogates)
+   */
+  calibration?: { surrogates: number; method: SurrogateMethod; approaches?: number } | null;
 }
 
 export interface TransitionOutcome {
   id: number | null;
   at: number;
   note: string;
-  /** first alarm onset in the warning stretch before the transition */
+  /** first alarm onset in the warning stretch before the transition (within the horizon) */
   firstWarningAt: number | null;
+  /** at most the horizon by construction */
   leadTimeMs: number | null;
   /** the rule's alarm was open at the last judged instant before the transition */
   openAtTransition: boolean;
-  /** largest tau threshold at which the rule would have warned (null: at none) */
+  /** largest threshold on tau (in the rule's direction) at which the rule would have warned within the horizon (null: at none) */
   firingTau: number | null;
   judgedSteps: number;
 }
@@ -45,29 +71,62 @@ export interface TransitionOutcome {
 export interface AlarmRecord {
   time: number;
   tau: number;
+  /** tau read in the rule's direction (what the threshold applies to) */
+  orientedTau: number;
+  /** Kendall p (descriptive only: it assumes independent values) */
   p: number;
   surrogateP: number | null;
-  /** warning (before a transition), settling (within one window after one) or false (no transition near) */
+  /** warning (within the horizon before a transition), settling (within one window after one) or false */
   kind: 'warning' | 'settling' | 'false';
   transitionAt: number | null;
 }
 
 export interface RocPoint {
   threshold: number;
+  /** share of simulated approaches to a fold warned of within the horizon before the fold */
   hitRate: number | null;
+  /** share of simulated null records with an alarm in the same stretch */
   falseAlarmRate: number;
+}
+
+/** A fitted restoring model, reported in grid steps and as lag-1 autocorrelations (φ = e^{−k}). */
+export interface ModelReport {
+  restoringRateStart: number;
+  restoringRateEnd: number;
+  phiStart: number;
+  phiEnd: number;
+  sigma: number;
+  logLikelihood: number;
 }
 
 export interface CalibrationResult {
   method: SurrogateMethod;
+  /** surrogate replicates of the pre-transition record */
   surrogates: number;
-  /** points of the record before the first transition (the whole record if none is marked) that the surrogates copy */
+  /** surrogates behind each surrogate-p check (the series' setting, 99 when it runs none) */
+  surrogatesPerCheck: number;
+  /** points of the record before the first transition (the whole record if none is marked) that the replicates copy */
   points: number;
-  /** share of surrogate replays with at least one alarm at the rule's threshold, with a 95 % Wilson interval */
+  /** share of replicates with at least one alarm, with a 95 % Wilson interval */
   falseAlarmRate: number;
   interval: [number, number];
+  /** alarm onsets over all replicates per year of their judged time, with an exact Poisson (Garwood 1936) 95 % interval */
   falseAlarmsPerYear: number | null;
+  falseAlarmsPerYearInterval: [number, number] | null;
+  alarms: number;
+  judgedYears: number;
+  /** replicate instants the cost bound of the surrogate-p checks left unjudged (excluded from judged time) */
+  notJudgedSteps: number;
+  /** ROC over thresholds, from simulated approaches to a fold fitted to the record (Boettiger & Hastings 2012) */
   roc: RocPoint[];
+  approaches: {
+    replicates: number;
+    horizonMs: number;
+    nullModel: ModelReport;
+    foldModel: ModelReport;
+    /** likelihood-ratio statistic 2(ℓ_fold − ℓ_null) of the fit (descriptive) */
+    likelihoodRatio: number;
+  };
 }
 
 export interface BacktestResult {
@@ -76,9 +135,23 @@ export interface BacktestResult {
   steps: number;
   geometry: { windowPoints: number; bandwidthPoints: number | null; detrend: string; spanValues: number | null; warmup: number };
   threshold: number;
+  /** the way tau is read (rule direction; 'two-sided' for 'either') */
+  direction: TrendDirection;
+  horizonMs: number;
   transitions: TransitionOutcome[];
   alarms: AlarmRecord[];
-  falseAlarms: { count: number; exposureYears: number; perYear: number | null };
+  judged: {
+    /** time covered by judged instants, years */
+    years: number;
+    /** instants that needed a surrogate-p check the cost bound did not allow, and the stretches they form */
+    notJudgedSteps: number;
+    notJudged: { from: number; to: number; steps: number }[];
+    surrogateChecks: number;
+    /** would-be alarms inside the quiet period of the previous one */
+    quietSuppressed: number;
+  };
+  /** false alarms per year of judged time that could host one (outside warning stretches and one window after a transition) */
+  falseAlarms: { count: number; exposureYears: number; perYear: number | null; interval: [number, number] | null };
   evidence: { time: number[]; tau: (number | null)[]; p: (number | null)[]; level: (number | null)[] };
   surrogateChecks: number;
   calibration: CalibrationResult | null;
@@ -112,19 +185,38 @@ function thin(ev: Evidence): BacktestResult['evidence'] {
   return out;
 }
 
+function modelReport(m: RestoringModel): ModelReport {
+  return { restoringRateStart: m.k0, restoringRateEnd: m.k1, phiStart: Math.exp(-m.k0), phiEnd: Math.exp(-m.k1), sigma: m.sigma, logLikelihood: m.logLikelihood };
+}
+
+/** Runs of consecutive step numbers as time stretches. O(k). */
+function stretches(steps: Int32Array, time: Float64Array): { from: number; to: number; steps: number }[] {
+  const out: { from: number; to: number; steps: number }[] = [];
+  for (let a = 0; a < steps.length; ) {
+    let b = a;
+    while (b + 1 < steps.length && steps[b + 1] === steps[b] + 1) b++;
+    out.push({ from: time[steps[a]], to: time[steps[b]], steps: b - a + 1 });
+    a = b + 1;
+  }
+  return out;
+}
+
 const METHOD =
-  'Replay: the record is prepared as the live analysis prepares it; the window and bandwidth in points are fixed at what the settings give for the whole record (or its trailing span); each point is detrended with the trend of the data available when it arrived (so past residuals are never revised), the rolling indicator is updated in O(1) per point and the Kendall tau of the indicator values available is judged every k points against the rule (tau threshold, Kendall p, level, persistence, quiet period; the surrogate p at would-be alarm onsets). Calibration: surrogates of the detrended pre-transition record (trend added back) replayed the same way; the ROC pairs, for each tau threshold, the share of marked transitions warned of with the share of surrogate replays that raise any alarm.';
+  'Replay: the record is prepared as the live analysis prepares it; the window and bandwidth in points are fixed at what the settings give for the whole record (or its trailing span); each point is detrended with the trend of the data available when it arrived (so past residuals are never revised), the rolling indicator is updated in O(1) per point, and every cycle (every k points) the rule is judged as the live rule is: Kendall tau read in the rule\u2019s direction against the threshold, the level test, the surrogate p in the rule\u2019s direction (surrogates of the record available then), persistence and quiet period; the independence-based Kendall p is shown but is not a gate. Instants whose surrogate check the cost bound did not allow are reported as not judged. An alarm is a warning only within the horizon (default one window) before a marked transition; false alarms are counted per year of judged time outside warning stretches and one window after each transition. Calibration: surrogates of the detrended pre-transition record (trend added back) replayed with the full live procedure, each tested against surrogates of its own prefixes; false alarms per year of judged time with an exact Poisson (Garwood) interval. ROC: a constant-rate Ornstein\u2013Uhlenbeck (AR(1)) model and one whose restoring rate moves linearly in time (towards zero at a fold) are fitted by maximum likelihood to the detrended pre-transition record; replicates of each are replayed, and for each threshold the hit rate is the share of simulated approaches with an alarm within the horizon before their end, the false-alarm rate the share of null replicates with an alarm in the same stretch (after Boettiger & Hastings 2012, Proc. R. Soc. B 279, 4734).';
 
 /**
- * Backtest of one rule on one record, with optional calibration on surrogates. Progress goes 0..1 (the replay
- * is the first tenth when a calibration follows); `signal` cancels. Cost O(n log n) for the replay plus
- * O(N·n_pre log n_pre)/cores for N surrogates, plus O(N_s·n log n) per surrogate-p check.
+ * Backtest of one rule on one record, with optional calibration on surrogates and an ROC from simulated
+ * approaches to a fold. Progress goes 0..1 (replay, then calibration, then approaches); `signal` cancels;
+ * `surrogateBudget` overrides the cost bound of the replay's surrogate-p checks (SURROGATE_WORK_BUDGET).
+ * Cost O(n log n) for the replay plus its surrogate-p checks (≤ SURROGATE_WORK_BUDGET surrogate points), plus
+ * O((N + 2M)·n_pre log n_pre)/cores for N surrogate and M approach replicates (their checks ≤ CALIBRATION_WORK_BUDGET).
  */
 export async function runBacktest(
   input: BacktestInput,
-  options: { onProgress?: (fraction: number) => void; signal?: AbortSignal; threads?: number } = {},
+  options: { onProgress?: (fraction: number) => void; signal?: AbortSignal; threads?: number; surrogateBudget?: number } = {},
 ): Promise<BacktestResult> {
   const { settings, rule } = input;
+  const direction = replayDirection(rule);
   const prepared = prepareSeries({ time: input.time, value: input.value, intervalMs: input.intervalMs }, { ...settings, spanPoints: null });
   const x = prepared.value;
   const time = prepared.time;
@@ -134,11 +226,14 @@ export async function runBacktest(
     throw new AnalysisInputError(`the record has ${x.length} points; a replay with a ${g.w}-point window needs at least ${g.w + g.warmup + g.offset}`);
   }
   const { residual, evidence: ev } = replayRecord(x, time, rule, g);
-  const { onsets, surrogateChecks } = alarmOnsets(ev, rule, rule.minTau, (s) => prefixSurrogateP(residual, x, ev.index[s], ev.tau[s], rule, g));
+  // Draws stop once a check is sure to fail: a passing check (the only kind an alarm shows) still has its exact p.
+  const checker = prefixSurrogateChecker(residual, x, ev, rule, g, { budget: options.surrogateBudget, decisionOnly: true });
+  const report = alarmOnsets(ev, rule, rule.minTau, checker.check);
+  const { onsets } = report;
   options.onProgress?.(input.calibration ? 0.1 : 1);
 
   const settle = g.w * g.interval;
-  const horizon = input.horizonMs ?? Number.POSITIVE_INFINITY;
+  const horizon = input.horizonMs ?? g.w * g.interval;
   const marks = [...input.transitions].sort((a, b) => a.at - b.at);
   /** the warning stretch of transition j: [start_j, at_j) */
   const stretchStart = marks.map((m, j) => Math.max(j > 0 ? marks[j - 1].at + settle : Number.NEGATIVE_INFINITY, m.at - horizon));
@@ -152,13 +247,18 @@ export async function runBacktest(
 
   const alarms: AlarmRecord[] = onsets.map((o) => {
     const c = classify(o.time);
-    return { time: o.time, tau: o.tau, p: o.p, surrogateP: o.surrogateP, kind: c.kind, transitionAt: c.j >= 0 ? marks[c.j].at : null };
+    return { time: o.time, tau: o.tau, orientedTau: orientedTau(o.tau, direction), p: o.p, surrogateP: o.surrogateP, kind: c.kind, transitionAt: c.j >= 0 ? marks[c.j].at : null };
   });
 
+  const spans = stepSpans(ev, g);
+  const unjudged = new Uint8Array(ev.time.length);
+  for (const s of report.notJudged) unjudged[s] = 1;
+  let judgedMs = 0;
   let exposureMs = 0;
   for (let s = 0; s < ev.time.length; s++) {
-    if (classify(ev.time[s]).kind !== 'false') continue;
-    exposureMs += s > 0 ? ev.time[s] - ev.time[s - 1] : g.every * g.interval;
+    if (unjudged[s]) continue;
+    judgedMs += spans[s];
+    if (classify(ev.time[s]).kind === 'false') exposureMs += spans[s];
   }
   const falseCount = alarms.filter((a) => a.kind === 'false').length;
   const exposureYears = exposureMs / YEAR_MS;
@@ -173,12 +273,8 @@ export async function runBacktest(
     if (to > 0 && to - 1 >= from) {
       // open at the last instant before the transition ⇔ the latest onset is not followed by a failing step
       let s = to - 1;
-      let run = 0;
-      while (s >= 0 && ev.tau[s] >= rule.minTau && otherCriteriaHold(ev, s, rule)) {
-        run++;
-        s--;
-      }
-      open = run >= rule.persistence && onsets.some((o) => o.step > s && o.step < to);
+      while (s >= 0 && basePasses(ev, s, rule, rule.minTau, direction)) s--;
+      open = onsets.some((o) => o.step > s && o.step < to);
     }
     const stat = to > from ? firingStatistic(ev, rule, from, to) : Number.NEGATIVE_INFINITY;
     return {
@@ -204,36 +300,63 @@ export async function runBacktest(
       throw new AnalysisInputError(`only ${nPre} points precede the first transition; calibration needs at least ${g.w + g.warmup + g.offset}`);
     }
     const pre = x.slice(0, nPre);
+    const preTime = time.slice(0, nPre);
     const d = detrend(pre, settings.detrend === 'difference' ? 'none' : settings.detrend, { bandwidthPoints: g.h, movingAverageWidth: g.movingAverageWidth });
     const method = input.calibration.method;
     const job = prepareSurrogateJob(d.residual, pre, { method, seed: settings.seed, w: g.w, dt: g.dt, indicators: [rule.indicator] });
     job.rawMean = null;
     const N = input.calibration.surrogates;
-    const chunk = await runCalibration(
-      { job, trend: d.trend, time: time.slice(0, nPre), rule, geometry: g },
+    const M = input.calibration.approaches ?? N;
+    const threads = options.threads;
+    const base = { trend: d.trend, time: preTime, rule, geometry: g };
+    const surrogateRuns = await runCalibration(
+      { ...base, source: { kind: 'surrogate', job }, scoreFrom: Number.NEGATIVE_INFINITY, liveSurrogateP: true, budget: CALIBRATION_WORK_BUDGET / N },
       N,
-      { threads: options.threads, signal: options.signal, onProgress: (f) => options.onProgress?.(0.1 + 0.9 * f) },
+      { threads, signal: options.signal, onProgress: (f) => options.onProgress?.(0.1 + 0.6 * f) },
     );
-    const fired = chunk.onsets.reduce((a, c) => a + (c > 0 ? 1 : 0), 0);
-    const years = ((nPre - 1) * g.interval) / YEAR_MS;
+    const fired = surrogateRuns.onsets.reduce((a, c) => a + (c > 0 ? 1 : 0), 0);
+    const alarmsTotal = surrogateRuns.onsets.reduce((a, c) => a + c, 0);
+    const judgedYears = surrogateRuns.judgedMs.reduce((a, c) => a + c, 0) / YEAR_MS;
+
+    // ROC from simulated approaches: the replicates end where the record's first transition is (or its end)
+    const end = marks.length > 0 ? marks[0].at : preTime[nPre - 1] + g.interval;
+    const nullModel = fitRestoringModel(d.residual, { constant: true });
+    const foldModel = fitRestoringModel(d.residual);
+    const approach = (model: RestoringModel, seed: number, from: number, to: number) =>
+      runCalibration(
+        { ...base, source: { kind: 'restoring', model, seed }, scoreFrom: end - horizon, liveSurrogateP: false, budget: 0 },
+        M,
+        { threads, signal: options.signal, onProgress: (f) => options.onProgress?.(from + (to - from) * f) },
+      );
+    // distinct seeds for the two kinds, so null and fold replicates share no random numbers
+    const nullRuns = await approach(nullModel, settings.seed * 2 + 1, 0.7, 0.85);
+    const foldRuns = await approach(foldModel, settings.seed * 2 + 2, 0.85, 1);
     const thresholds = new Set<number>([rule.minTau]);
     for (let k = -20; k <= 20; k++) thresholds.add(Math.round(k * 5) / 100);
-    const hits = transitions.map((t) => t.firingTau ?? Number.NEGATIVE_INFINITY);
+    const share = (stats: Float64Array, threshold: number) => stats.reduce((a, s) => a + (s >= threshold ? 1 : 0), 0) / stats.length;
     const roc = [...thresholds]
       .sort((a, b) => a - b)
-      .map((threshold) => ({
-        threshold,
-        hitRate: hits.length ? hits.filter((s) => s >= threshold).length / hits.length : null,
-        falseAlarmRate: chunk.statistic.reduce((a, s) => a + (s >= threshold ? 1 : 0), 0) / N,
-      }));
+      .map((threshold) => ({ threshold, hitRate: share(foldRuns.statistic, threshold), falseAlarmRate: share(nullRuns.statistic, threshold) }));
     calibration = {
       method,
       surrogates: N,
+      surrogatesPerCheck: g.surrogates,
       points: nPre,
       falseAlarmRate: fired / N,
       interval: wilsonInterval(fired, N),
-      falseAlarmsPerYear: years > 0 ? chunk.onsets.reduce((a, c) => a + c, 0) / N / years : null,
+      falseAlarmsPerYear: judgedYears > 0 ? alarmsTotal / judgedYears : null,
+      falseAlarmsPerYearInterval: garwoodInterval(alarmsTotal, judgedYears),
+      alarms: alarmsTotal,
+      judgedYears,
+      notJudgedSteps: surrogateRuns.notJudged.reduce((a, c) => a + c, 0),
       roc,
+      approaches: {
+        replicates: M,
+        horizonMs: horizon,
+        nullModel: modelReport(nullModel),
+        foldModel: modelReport(foldModel),
+        likelihoodRatio: 2 * (foldModel.logLikelihood - nullModel.logLikelihood),
+      },
     };
   }
   options.onProgress?.(1);
@@ -250,11 +373,20 @@ export async function runBacktest(
       warmup: g.warmup,
     },
     threshold: rule.minTau,
+    direction,
+    horizonMs: horizon,
     transitions,
     alarms,
-    falseAlarms: { count: falseCount, exposureYears, perYear: exposureYears > 0 ? falseCount / exposureYears : null },
+    judged: {
+      years: judgedMs / YEAR_MS,
+      notJudgedSteps: report.notJudged.length,
+      notJudged: stretches(report.notJudged, ev.time),
+      surrogateChecks: report.surrogateChecks,
+      quietSuppressed: report.quietSuppressed,
+    },
+    falseAlarms: { count: falseCount, exposureYears, perYear: exposureYears > 0 ? falseCount / exposureYears : null, interval: garwoodInterval(falseCount, exposureYears) },
     evidence: thin(ev),
-    surrogateChecks,
+    surrogateChecks: report.surrogateChecks,
     calibration,
     method: METHOD,
     caution: BACKTEST_CAUTION,

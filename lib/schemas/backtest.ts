@@ -4,14 +4,20 @@ import { SURROGATE_METHODS } from '@/lib/engine/settings';
 /** Body of POST /api/rules/{id}/backtest. */
 export const backtestRequestSchema = z
   .object({
-    /** judge every k new points (1 = as each point arrives); long records may use a larger step */
+    /** points per analysis cycle: the rule is judged every k new points (1 = as each point arrives) */
     every: z.number().int().min(1).max(100000).default(1),
     /** series to replay on, for a default rule (one with no series of its own) */
     series: z.string().min(1).max(120).optional(),
-    /** an alarm counts as a warning only this many days before a transition (omit: since the previous one) */
+    /** an alarm counts as a warning only this many days before a transition (null: one rolling window) */
     horizonDays: z.number().positive().max(365 * 1000).nullable().default(null),
     calibration: z
-      .object({ surrogates: z.number().int().min(1).max(2000), method: z.enum(SURROGATE_METHODS).default('ar1') })
+      .object({
+        /** surrogate replicates of the pre-transition record (calibrated false-alarm rate) */
+        surrogates: z.number().int().min(1).max(2000),
+        method: z.enum(SURROGATE_METHODS).default('ar1'),
+        /** simulated records of each kind (null and fold approach) behind the ROC; default: as many as surrogates */
+        approaches: z.number().int().min(10).max(2000).optional(),
+      })
       .strict()
       .nullable()
       .default(null),

@@ -1,0 +1,134 @@
+import { describe, expect, it } from 'vitest';
+import garwood from '../../fixtures/reference/garwood_scipy.json';
+import { garwoodInterval } from '@/lib/backtest/poisson';
+import { alarmOnsets, type Evidence, type ReplayRule } from '@/lib/backtest/replay';
+import { runBacktest } from '@/lib/backtest/run';
+import { simulateAr1 } from '@/lib/demo/models';
+import { analysisSettingsSchema } from '@/lib/engine/settings';
+
+const DAY = 86_400_000;
+const YEAR = 365.25 * DAY;
+const days = (n: number) => Float64Array.from({ length: n }, (_, i) => Date.UTC(2000, 0, 1) + i * DAY);
+const rule = (over: Partial<ReplayRule> = {}): ReplayRule => ({
+  indicator: 'ac1',
+  minTau: 0.3,
+  maxSurrogateP: null,
+  levelThreshold: null,
+  levelDirection: 'above',
+  persistence: 3,
+  quietPeriodHours: 0,
+  ...over,
+});
+
+/** Evidence with a constant tau at every instant, one a day. */
+function flatEvidence(steps: number, tau: number): Evidence {
+  return {
+    index: Int32Array.from({ length: steps }, (_, s) => s),
+    time: Float64Array.from({ length: steps }, (_, s) => s * DAY),
+    tau: new Float64Array(steps).fill(tau),
+    p: new Float64Array(steps).fill(0.01),
+    level: new Float64Array(steps).fill(0),
+    count: new Int32Array(steps).fill(100),
+  };
+}
+
+describe('alarm onsets judge the surrogate p wherever it is needed', () => {
+  it('an alarm after 300 failing surrogate checks is still raised (no cap that stops judging)', () => {
+    // tau passes everywhere; the surrogate p fails at steps 0..299 and passes from 300 on. With persistence 3
+    // the onset is at step 302, after 303 checks; a cap of 100 checks would have suppressed it.
+    const report = alarmOnsets(flatEvidence(400, 0.6), rule({ maxSurrogateP: 0.05 }), 0.3, (s) => (s < 300 ? { p: 0.5, passed: false } : { p: 0.01, passed: true }));
+    expect(report.onsets.map((o) => o.step)).toEqual([302]);
+    expect(report.surrogateChecks).toBe(303);
+    expect(report.notJudged.length).toBe(0);
+  });
+
+  it('instants the cost bound leaves unchecked are reported as not judged and break the run', () => {
+    // tau fails at step 50 (closing the alarm opened at step 2); checks are refused at steps 51..149 and pass
+    // elsewhere, so the next run starts at 150 and opens an alarm at 152 (persistence 3).
+    const ev = flatEvidence(300, 0.6);
+    ev.tau[50] = 0;
+    const report = alarmOnsets(ev, rule({ maxSurrogateP: 0.05 }), 0.3, (s) => (s > 50 && s < 150 ? 'over-budget' : { p: 0.01, passed: true }));
+    expect(Array.from(report.notJudged)).toEqual(Array.from({ length: 99 }, (_, i) => 51 + i));
+    expect(report.onsets.map((o) => o.step)).toEqual([2, 152]);
+  });
+
+  it('reads tau in the rule direction: a falling rule passes on tau ≤ −threshold, never on a rising tau', () => {
+    expect(alarmOnsets(flatEvidence(20, -0.6), rule({ indicator: 'recovery' }), 0.3).onsets).toHaveLength(1);
+    expect(alarmOnsets(flatEvidence(20, 0.6), rule({ indicator: 'recovery' }), 0.3).onsets).toHaveLength(0);
+    expect(alarmOnsets(flatEvidence(20, 0.6), rule({ indicator: 'recovery', direction: 'rising' }), 0.3).onsets).toHaveLength(1);
+    expect(alarmOnsets(flatEvidence(20, -0.6), rule({ indicator: 'skewness' }), 0.3).onsets).toHaveLength(1);
+  });
+
+  it('ignores the Kendall p (no longer a gate)', () => {
+    const ev = flatEvidence(20, 0.6);
+    ev.p.fill(0.9);
+    expect(alarmOnsets(ev, rule({ maxKendallP: 0.05 }), 0.3).onsets).toHaveLength(1);
+  });
+});
+
+describe('judged time, hand-computed on a small record', () => {
+  // 100 daily points, no detrending, window 0.2 → w = 20 points; warm-up max(10, ⌈20/4⌉) = 10 indicator values.
+  // The first indicator value is at index 19, the tenth at 28: judged instants are indices 28..99 (72 days).
+  // Mark at index 80; horizon = one window = 20 days → warning stretch [60, 80), settling [80, 100).
+  // Instants that can host a false alarm: 28..59 = 32 days.
+  const n = 100;
+  const t = days(n);
+  const x = simulateAr1({ n, phi: 0.5, sigma: 1, seed: 21 });
+  const settings = analysisSettingsSchema.parse({ detrend: 'none', window: 0.2, surrogates: 19 });
+  it('divides false alarms by the 32 days that could host one, not the 100-day record', async () => {
+    const r = await runBacktest({ time: t, value: x, intervalMs: DAY, settings, rule: rule({ minTau: -1, persistence: 1 }), transitions: [{ at: t[80] }], every: 1 });
+    expect(r.steps).toBe(72);
+    expect(r.horizonMs).toBe(20 * DAY);
+    expect(r.judged.years * YEAR).toBeCloseTo(72 * DAY, 3);
+    expect(r.falseAlarms.exposureYears * YEAR).toBeCloseTo(32 * DAY, 3);
+    // threshold −1: the rule passes at the first judged instant and stays open, so exactly one alarm, at index 28
+    expect(r.alarms.map((a) => [a.kind, (a.time - t[0]) / DAY])).toEqual([['false', 28]]);
+    expect(r.falseAlarms.perYear).toBeCloseTo(1 / (32 / 365.25), 9);
+  });
+  it('instants left unjudged by the cost bound leave the judged time', async () => {
+    // with a surrogate criterion and no budget every instant that passes on tau (all of them) is not judged
+    const r = await runBacktest(
+      { time: t, value: x, intervalMs: DAY, settings, rule: rule({ minTau: -1, persistence: 1, maxSurrogateP: 0.05 }), transitions: [{ at: t[80] }], every: 1 },
+      { surrogateBudget: 0 },
+    );
+    expect(r.judged.notJudgedSteps).toBe(72);
+    expect(r.judged.notJudged).toEqual([{ from: t[28], to: t[99], steps: 72 }]);
+    expect(r.judged.years).toBe(0);
+    expect(r.falseAlarms.exposureYears).toBe(0);
+    expect(r.alarms).toHaveLength(0);
+  });
+});
+
+describe('a stationary record with a mark at its end', () => {
+  // Stationary AR(1) (Box et al. 2015, Sec. 3.2): no warning is possible, so an alarm far before the mark is
+  // false. 1,500 daily points, linear detrending, window 0.25 → 375 points = the default horizon; warm-up 94
+  // values → first judged index 469 (every 5: indices 469, 474, …). Instants before mark − 375 d (index 1124):
+  // 469..1119, 131 instants × 5 days = 655 days.
+  const N = 1500;
+  const t = days(N);
+  const x = simulateAr1({ n: N, phi: 0.5, sigma: 1, seed: 2 });
+  const settings = analysisSettingsSchema.parse({ detrend: 'linear', window: 0.25, surrogates: 0 });
+  const r0 = rule({ persistence: 2 });
+  it('scores no multi-year lead time; the early alarm is a false alarm over 655 judged days', async () => {
+    const r = await runBacktest({ time: t, value: x, intervalMs: DAY, settings, rule: r0, transitions: [{ at: t[N - 1] }], every: 5 });
+    expect(r.horizonMs).toBe(375 * DAY);
+    const lead = r.transitions[0].leadTimeMs;
+    expect(lead === null || lead <= r.horizonMs).toBe(true);
+    expect(r.falseAlarms.exposureYears * YEAR).toBeCloseTo(655 * DAY, 3);
+    expect(r.falseAlarms.count).toBeGreaterThanOrEqual(1);
+    expect(r.falseAlarms.count).toBe(r.alarms.filter((a) => a.kind === 'false').length);
+  });
+  it('without a finite horizon the same alarm would have claimed a lead time of years', async () => {
+    const r = await runBacktest({ time: t, value: x, intervalMs: DAY, settings, rule: r0, transitions: [{ at: t[N - 1] }], every: 5, horizonMs: 1e15 });
+    expect(r.transitions[0].leadTimeMs!).toBeGreaterThan(2 * r.geometry.windowPoints * DAY);
+    expect(r.falseAlarms.count).toBe(0);
+  });
+});
+
+describe('exact Poisson interval of a false-alarm rate', () => {
+  it.each(garwood.cases)('k = $k over $exposure years agrees with scipy.stats.chi2.ppf to 1e-9 (fixtures/reference/garwood_scipy.json)', (c) => {
+    const [lo, hi] = garwoodInterval(c.k, c.exposure)!;
+    expect(Math.abs(lo - c.lower)).toBeLessThanOrEqual(1e-9 * Math.max(1, c.lower));
+    expect(Math.abs(hi - c.upper)).toBeLessThanOrEqual(1e-9 * Math.max(1, c.upper));
+  });
+});
