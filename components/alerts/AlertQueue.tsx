@@ -10,7 +10,8 @@ import { LocalTime } from '@/components/LocalTime';
 import { SeriesPicker } from '@/components/SeriesPicker';
 import type { SeriesChoice } from '@/lib/series/registry';
 import { Empty, ErrorNote, Loading } from '@/components/States';
-import { formatP, formatTau } from '@/lib/display/format';
+import { formatP, formatValue } from '@/lib/display/format';
+import { tauWithDirection } from '@/lib/alerts/wording';
 import type { AlertListItem } from '@/lib/alerts/queries';
 
 export interface QueueFilters {
@@ -146,11 +147,18 @@ export function AlertQueue({ initialFilters, initialPage, initialSeries }: { ini
             <tbody className="divide-y divide-rule">
               {data.items.map((a) => (
                 <tr key={a.id} data-alert={a.id}>
-                  <td className="px-3 py-2"><Link href={`/alerts/${a.id}`} className="font-medium text-tide hover:underline">#{a.id} {a.rule.indicator}</Link></td>
+                  <td className="px-3 py-2">
+                    <Link href={`/alerts/${a.id}`} className="font-medium text-tide hover:underline">#{a.id} {a.rule ? a.rule.indicator : 'abrupt shift'}</Link>
+                    <span className="block text-xs text-ink-soft" data-kind={a.kind}>{a.kind === 'abrupt-shift' ? 'abrupt shift' : 'slowing down'}</span>
+                  </td>
                   <td className="px-3 py-2"><Link href={`/series/${a.series.slug}`} className="hover:underline">{a.series.name}</Link></td>
                   <td className="px-3 py-2"><SeverityBadge severity={a.severity} /></td>
                   <td className="px-3 py-2"><AlertStateBadge state={a.state} /></td>
-                  <td className="num px-3 py-2 whitespace-nowrap">τ {formatTau(a.latest.tau)} · p {formatP(a.latest.surrogateP ?? a.latest.kendallP)}</td>
+                  <td className="num px-3 py-2 whitespace-nowrap">
+                    {a.kind === 'abrupt-shift'
+                      ? <>shift at <LocalTime t={a.shift?.time ?? null} timeZone={a.series.timeZone} />{a.shift?.size !== null && a.shift?.size !== undefined ? ` · size ${formatValue(a.shift.size)}` : ''}</>
+                      : <>τ {tauWithDirection(a.latest.tau, a.latest.direction)} · surrogate p {formatP(a.latest.surrogateP)}</>}
+                  </td>
                   <td className="px-3 py-2"><LocalTime t={a.createdAt} timeZone={a.series.timeZone} withZone /></td>
                   <td className="px-3 py-2">{a.assignee?.name ?? <span className="text-ink-faint">nobody</span>}</td>
                 </tr>
