@@ -15,6 +15,7 @@ import { zodFieldErrors } from '@/lib/http/handler';
 import { ZodError } from 'zod';
 import { makeRule, makeSeries, makeSnapshot, makeUser, watch } from './helpers';
 import type { Actor } from '@/lib/auth/guard';
+import type { TrendDirection } from '@/lib/engine/direction';
 
 let lead: Actor;
 
@@ -25,7 +26,7 @@ beforeAll(async () => {
 });
 
 /** A summary for one indicator whose stored surrogate p is in `direction` (the engine's: the indicator's own). */
-const summaryOf = (indicator: string, tau: number, p: number, direction: string) => ({
+const summaryOf = (indicator: string, tau: number, p: number, direction: TrendDirection) => ({
   kendall: { [indicator]: { tau, p: 0.001, direction } },
   significance: { [indicator]: { p, count: 99, method: 'ar1', direction, nullSd: 0.05, nullCount: 99 } },
   latest: { [indicator]: { time: 0, value: -0.02 } },
@@ -64,7 +65,7 @@ describe('rules judged in a direction', () => {
     // A rising rule on the same skewness needs the upper-tail p: (1 + #{τs ≥ −0.7})/(N + 1) with τs = [−0.8, −0.2, 0.1, 0.75] → 4/5.
     expect(judgeRule({ ...either, direction: 'rising' }, skew, null, [-0.8, -0.2, 0.1, 0.75]).surrogateP).toBeCloseTo(4 / 5, 15);
     // Either way with the same taus: (1 + #{|τs| ≥ 0.7})/(N + 1) = (1 + 2)/5 (by hand).
-    expect(judgeRule(either, { ...skew, significance: { skewness: { ...skew.significance.skewness, direction: 'rising' } } }, null, [-0.8, -0.2, 0.1, 0.75]).surrogateP).toBeCloseTo(3 / 5, 15);
+    expect(judgeRule(either, { ...skew, significance: { skewness: { ...skew.significance.skewness, direction: 'rising' as const } } }, null, [-0.8, -0.2, 0.1, 0.75]).surrogateP).toBeCloseTo(3 / 5, 15);
   });
 });
 
@@ -85,7 +86,7 @@ describe('rules a series cannot judge are refused with 422', () => {
 
   it('a surrogate test on a series without surrogates, an indicator the series does not compute, an unreachable p', async () => {
     const bare = await Series.create({
-      slug: 'no-surrogates', name: 'No surrogates', csvMapping: {}, intervalMs: 86_400_000, dataChangedAt: null, retiredAt: null,
+      slug: 'no-surrogates', name: 'No surrogates', csvMapping: { timeColumn: 0, valueColumn: 1, timeFormat: 'iso8601' }, intervalMs: 86_400_000, dataChangedAt: null, retiredAt: null,
       settings: { surrogates: 0, indicators: ['variance', 'ac1'] },
     });
     const e1 = await refusal(createRule(bare.id, { indicator: 'ac1', minTau: 0.3, maxSurrogateP: 0.05 }, lead));

@@ -9,7 +9,7 @@ const { db, closeDatabase } = await import('@/models');
 const NAME = '0007-rule-direction-and-alert-kinds';
 const now = "'2025-01-01 00:00:00.000 +00:00'";
 
-async function rows<T>(sql: string): Promise<T[]> {
+async function rows<T extends object = Record<string, unknown>>(sql: string): Promise<T[]> {
   return (await db()).query<T>(sql, { type: QueryTypes.SELECT });
 }
 async function columns(table: string): Promise<string[]> {

@@ -6,7 +6,7 @@ import { useTempDataDir } from '../support/temp-db';
 useTempDataDir();
 
 import { migrateUp } from '@/migrations';
-import { RuleEvaluation, db } from '@/models';
+import { RuleEvaluation, db, type Series } from '@/models';
 import { evaluateSnapshots } from '@/lib/alerts/evaluate';
 import { makeRule, makeSeries, makeSnapshot, makeUser } from './helpers';
 
@@ -26,7 +26,7 @@ beforeAll(async () => {
 describe('portfolio false-discovery control across analysis cycles', () => {
   it('the family is every FDR rule with its latest p, also for series that received no data this cycle', async () => {
     const lead = await makeUser('lead');
-    const series = [];
+    const series: Series[] = [];
     for (let i = 0; i < p.length; i++) {
       const s = await makeSeries();
       await makeRule(s, lead, { maxSurrogateP: null, fdrLevel: 0.05 });
