@@ -18,6 +18,7 @@ export interface QueueFilters {
   queue: 'triage' | 'escalated' | 'mine' | 'closed';
   series: string;
   severity: '' | 'watch' | 'warning';
+  kind: '' | 'slowing-down' | 'abrupt-shift';
   age: string;
   sort: 'newest' | 'oldest' | 'severity' | 'tau' | 'updated';
   page: number;
@@ -58,6 +59,7 @@ export function queueSearch(f: QueueFilters): string {
   const params = new URLSearchParams({ queue: f.queue, sort: f.sort, page: String(f.page), pageSize: String(PAGE_SIZE) });
   if (f.series) params.set('series', f.series);
   if (f.severity) params.set('severity', f.severity);
+  if (f.kind) params.set('kind', f.kind);
   if (f.age) params.set('age', f.age);
   return params.toString();
 }
@@ -110,6 +112,14 @@ export function AlertQueue({ initialFilters, initialPage, initialSeries }: { ini
           </select>
         </label>
         <label className="flex flex-col text-xs font-medium text-ink-soft">
+          Kind
+          <select className={control} value={filters.kind} onChange={(e) => update({ kind: e.target.value as QueueFilters['kind'] })}>
+            <option value="">Any kind</option>
+            <option value="slowing-down">Slowing down</option>
+            <option value="abrupt-shift">Abrupt shift</option>
+          </select>
+        </label>
+        <label className="flex flex-col text-xs font-medium text-ink-soft">
           Age
           <select className={control} value={filters.age} onChange={(e) => update({ age: e.target.value })}>
             {AGES.map((a) => <option key={a.value} value={a.value}>{a.label}</option>)}
@@ -128,7 +138,7 @@ export function AlertQueue({ initialFilters, initialPage, initialSeries }: { ini
       ) : !data ? (
         <Loading />
       ) : data.items.length === 0 ? (
-        <Empty>No alerts in this queue{filters.series || filters.severity || filters.age ? ' with these filters' : ''}.</Empty>
+        <Empty>No alerts in this queue{filters.series || filters.severity || filters.kind || filters.age ? ' with these filters' : ''}.</Empty>
       ) : (
         <div className="overflow-x-auto rounded-lg border border-rule bg-card">
           <table className="w-full min-w-[680px] text-sm" data-testid="alert-table">

@@ -68,7 +68,8 @@ export default async function AlertPage({ params }: { params: Promise<{ id: stri
               </dl>
             )}
             <EvidenceCharts first={firstView} latest={latestView ?? firstView} indicator={rule?.indicator ?? null}
-              series={{ slug: detail.series.slug, name: detail.series.name, unit: detail.series.unit, timeZone: tz }} transitions={transitions} />
+              series={{ slug: detail.series.slug, name: detail.series.name, unit: detail.series.unit, timeZone: tz }}
+              transitions={detail.shift ? [...transitions, { at: detail.shift.time, note: 'abrupt shift (this alert)' }] : transitions} />
           </Panel>
           <Panel title="Notes" id="notes">
             <AlertNotes alertId={detail.id} notes={notes} canWrite={roleAtLeast(actor.role, 'analyst')} timeZone={tz} />
