@@ -17,7 +17,10 @@ import { DataTypes, QueryTypes, type QueryInterface } from 'sequelize';
  *   `alerts.shift_size` (level change in the series' unit; null when the analysis did not give it); `rule_id`
  *   becomes nullable because an abrupt-shift alert comes from the change-point detection, not from a rule.
  *   One alert per series and shift instant (unique index). `alerts.peak_tau` now holds tau seen in the rule's
- *   direction (existing rows were all judged upwards, so their values already are).
+ *   direction. Existing rows were all judged upwards, so for rules that stay 'rising' their values already are;
+ *   for the recovery, skewness and kurtosis rules whose direction changes here, the peaks of their old alerts
+ *   stay the upward taus they were raised on (only a quiet period still running after the upgrade compares
+ *   against them).
  *
  * SQLite cannot drop NOT NULL from a column in place, so `alerts` is rebuilt by the procedure of
  * https://www.sqlite.org/lang_altertable.html#otheralter (foreign keys off, new table, copy, drop, rename, the
