@@ -152,7 +152,9 @@ export async function updateRule(id: number, input: RuleUpdate, actor: Pick<Acto
     if (!rule) throw new NotFoundError('Rule');
     const before = presentRule(rule);
     const after = { indicator: rule.indicator as RuleFields['indicator'], maxSurrogateP: rule.maxSurrogateP, fdrLevel: rule.fdrLevel, ...changes };
-    if (rule.seriesId !== null) await assertJudgeable(rule.seriesId, after, transaction);
+    // Checked when the criteria change or the rule is switched on; switching an unjudgeable rule off is always allowed.
+    const judgedAgain = changes.active === true || ((changes.active ?? rule.active) && ['indicator', 'maxSurrogateP', 'fdrLevel'].some((f) => f in changes));
+    if (rule.seriesId !== null && judgedAgain) await assertJudgeable(rule.seriesId, after, transaction);
     await rule.update(changes, { transaction });
     await recordAudit({ actorId: actor.id, action: 'rule.update', entity: 'alert_rule', entityId: id, details: { before, changes } }, transaction);
     const recalibrate = CALIBRATED_FIELDS.some((f) => f in changes && (changes as Record<string, unknown>)[f] !== (before as Record<string, unknown>)[f]);

@@ -108,6 +108,11 @@ describe('rules a series cannot judge are refused with 422', () => {
     const rule = await makeRule(few, lead);
     const e6 = await refusal(updateRule(rule.id, { maxSurrogateP: 0.001 }, lead));
     expect(e6.fields?.maxSurrogateP).toBeDefined();
+    // A rule its series can no longer judge (surrogates switched off since) can still be switched off.
+    const kept = await makeRule(few, lead);
+    await few.update({ settings: { ...few.settings, surrogates: 0 } });
+    expect((await updateRule(kept.id, { active: false }, lead)).active).toBe(false);
+    expect((await refusal(updateRule(kept.id, { active: true }, lead))).fields?.maxSurrogateP?.[0]).toMatch(/runs no surrogates/);
   });
 
   it('when the latest analysis says the stretch is too short', async () => {
