@@ -270,14 +270,14 @@ export async function evaluateSnapshots(snapshots: AnalysisSnapshot[], now = new
       rules
         .filter((r) => r.seriesId === snapshot.seriesId)
         .map(async (rule) => {
-          const summary = (snapshot.summary ?? {}) as StoredSummary;
-          const stored = summary.significance?.[rule.indicator];
+          if (snapshot.status !== 'ok') return { snapshot, rule, taus: null, surrogateP: null };
+          const summary = snapshot.summary as StoredSummary;
           const wanted = trendDirectionOf(rule.direction);
-          // The stored p is in the indicator's own direction; another direction needs the surrogate taus.
-          const needsTaus = snapshot.status === 'ok' && stored !== undefined && (stored.direction ?? 'rising') !== wanted && (rule.maxSurrogateP !== null || rule.fdrLevel !== null);
-          const taus = needsTaus ? await snapshotTaus(snapshot.id, rule.indicator) : null;
-          const facts = snapshot.status === 'ok' ? indicatorFacts(summary, rule.indicator, wanted, taus) : null;
-          return { snapshot, rule, taus, surrogateP: facts?.surrogateP ?? null };
+          const plain = indicatorFacts(summary, rule.indicator, wanted);
+          // The stored p is in the indicator's own direction; a surrogate test in another direction needs the taus.
+          const taus = plain.needsTaus && (rule.maxSurrogateP !== null || rule.fdrLevel !== null) ? await snapshotTaus(snapshot.id, rule.indicator) : null;
+          const facts = taus ? indicatorFacts(summary, rule.indicator, wanted, taus) : plain;
+          return { snapshot, rule, taus, surrogateP: facts.surrogateP };
         }),
     ),
   );

@@ -112,7 +112,7 @@ export async function alertEvidence(alert: Alert, transaction?: Transaction): Pr
     alert.ruleId === null ? new Map<number, RuleCalibration>() : latestRuleCalibration([alert.ruleId]),
   ]);
   if (!series || (alert.ruleId !== null && !rule) || !snapshot) throw new Error(`alert ${alert.id} lost its series, rule or snapshot`);
-  const taus = rule && (snapshot.summary as StoredSummary).significance?.[rule.indicator]?.direction !== trendDirectionOf(rule.direction)
+  const taus = rule && indicatorFacts((snapshot.summary ?? {}) as StoredSummary, rule.indicator, trendDirectionOf(rule.direction)).needsTaus
     ? await snapshotTaus(snapshot.id, rule.indicator, transaction)
     : null;
   return evidenceFrom(alert, series, rule, snapshot, alert.ruleId === null ? null : calibrations.get(alert.ruleId) ?? null, taus);

@@ -69,6 +69,25 @@ describe('rules judged in a direction', () => {
   });
 });
 
+describe('a rule looking against the indicator\'s own direction, in the analysis cycle', () => {
+  it('reads the surrogate taus kept with the snapshot and judges the p in its own direction', async () => {
+    const series = await makeSeries();
+    const rule = await makeRule(series, lead, { direction: 'falling', minTau: 0.5, maxSurrogateP: 0.2 });
+    // 9 surrogate taus; observed tau −0.8. Falling p = (1 + #{τs ≤ −0.8})/(N + 1) = (1 + 1)/10 = 0.2 (by hand).
+    const taus = [-0.85, -0.6, -0.3, 0, 0.1, 0.2, 0.4, 0.5, 0.9];
+    const snap = await makeSnapshot(series, { tau: -0.8, surrogateP: 0.99 }, { curves: { surrogateTaus: { ac1: taus } } });
+    const report = await evaluateSnapshots([snap]);
+    expect(report.opened).toHaveLength(1);
+    const e = (await RuleEvaluation.findOne({ where: { ruleId: rule.id } }))!;
+    expect(e).toMatchObject({ direction: 'falling', tau: -0.8, passed: true });
+    expect(e.surrogateP).toBeCloseTo(0.2, 15);
+    // Once the curves are pruned, the same rule cannot be judged on that snapshot's summary alone.
+    const pruned = await makeSnapshot(series, { tau: -0.8, surrogateP: 0.99 });
+    await evaluateSnapshots([pruned]);
+    expect((await RuleEvaluation.findOne({ where: { ruleId: rule.id, snapshotId: pruned.id } }))!.outcome).toMatch(/^cannot-judge: the surrogate p \(falling\) needs the surrogate taus/);
+  });
+});
+
 describe('rules a series cannot judge are refused with 422', () => {
   async function refusal(promise: Promise<unknown>): Promise<UnprocessableError> {
     const error = await promise.then(() => null, (e: unknown) => e);
