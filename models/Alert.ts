@@ -3,19 +3,29 @@ import type { Severity } from './AlertRule';
 
 export const ALERT_STATES = ['new', 'acknowledged', 'escalated', 'confirmed', 'dismissed'] as const;
 export type AlertState = (typeof ALERT_STATES)[number];
+export const ALERT_KINDS = ['slowing-down', 'abrupt-shift'] as const;
+export type AlertKind = (typeof ALERT_KINDS)[number];
 export const OPEN_ALERT_STATES: readonly AlertState[] = ['new', 'acknowledged', 'escalated'];
 
 export class Alert extends Model<InferAttributes<Alert>, InferCreationAttributes<Alert>> {
   declare id: CreationOptional<number>;
   declare seriesId: number;
-  declare ruleId: number;
+  /** 'slowing-down' alerts come from a rule; 'abrupt-shift' alerts from the change-point detection (no rule). */
+  declare kind: CreationOptional<AlertKind>;
+  declare ruleId: number | null;
+  /** The abrupt shift's instant (first grid instant of the new level, epoch ms as series times) and level change. */
+  declare shiftTime: CreationOptional<number | null>;
+  declare shiftSize: CreationOptional<number | null>;
   declare state: AlertState;
   declare severity: Severity;
   declare assigneeId: number | null;
   declare firstSnapshotId: number;
   declare latestSnapshotId: number;
   declare evaluationCount: CreationOptional<number>;
-  /** Strongest evidence seen while open: what a later alert must clearly beat within a quiet period. */
+  /**
+   * Strongest evidence seen while open, as tau seen in the rule's direction (orientedTau): what a later alert must
+   * clearly beat within a quiet period. Null for abrupt-shift alerts.
+   */
   declare peakTau: number | null;
   declare dismissReason: string | null;
   declare closedAt: Date | null;
@@ -29,7 +39,10 @@ export class Alert extends Model<InferAttributes<Alert>, InferCreationAttributes
       {
         id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
         seriesId: { type: DataTypes.INTEGER, allowNull: false },
-        ruleId: { type: DataTypes.INTEGER, allowNull: false },
+        kind: { type: DataTypes.STRING, allowNull: false, defaultValue: 'slowing-down', validate: { isIn: [ALERT_KINDS as unknown as string[]] } },
+        ruleId: { type: DataTypes.INTEGER, allowNull: true },
+        shiftTime: { type: DataTypes.BIGINT, allowNull: true, get() { const v = this.getDataValue('shiftTime'); return v === null || v === undefined ? null : Number(v); } },
+        shiftSize: { type: DataTypes.DOUBLE, allowNull: true },
         state: { type: DataTypes.STRING, allowNull: false, validate: { isIn: [ALERT_STATES as unknown as string[]] } },
         severity: { type: DataTypes.STRING, allowNull: false },
         assigneeId: { type: DataTypes.INTEGER, allowNull: true },

@@ -6,6 +6,8 @@ export class RuleEvaluation extends Model<InferAttributes<RuleEvaluation>, Infer
   declare ruleId: number;
   declare seriesId: number;
   declare snapshotId: number;
+  /** The direction the rule looked in when judging (tau and surrogate p are in it); null only before migration 0007. */
+  declare direction: CreationOptional<string | null>;
   declare tau: number | null;
   declare kendallP: number | null;
   declare surrogateP: number | null;
@@ -25,6 +27,7 @@ export class RuleEvaluation extends Model<InferAttributes<RuleEvaluation>, Infer
         ruleId: { type: DataTypes.INTEGER, allowNull: false },
         seriesId: { type: DataTypes.INTEGER, allowNull: false },
         snapshotId: { type: DataTypes.INTEGER, allowNull: false },
+        direction: { type: DataTypes.STRING, allowNull: true },
         tau: { type: DataTypes.DOUBLE, allowNull: true },
         kendallP: { type: DataTypes.DOUBLE, allowNull: true },
         surrogateP: { type: DataTypes.DOUBLE, allowNull: true },

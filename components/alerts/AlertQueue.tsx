@@ -10,13 +10,15 @@ import { LocalTime } from '@/components/LocalTime';
 import { SeriesPicker } from '@/components/SeriesPicker';
 import type { SeriesChoice } from '@/lib/series/registry';
 import { Empty, ErrorNote, Loading } from '@/components/States';
-import { formatP, formatTau } from '@/lib/display/format';
+import { formatP, formatValue } from '@/lib/display/format';
+import { tauWithDirection } from '@/lib/alerts/wording';
 import type { AlertListItem } from '@/lib/alerts/queries';
 
 export interface QueueFilters {
   queue: 'triage' | 'escalated' | 'mine' | 'closed';
   series: string;
   severity: '' | 'watch' | 'warning';
+  kind: '' | 'slowing-down' | 'abrupt-shift';
   age: string;
   sort: 'newest' | 'oldest' | 'severity' | 'tau' | 'updated';
   page: number;
@@ -57,6 +59,7 @@ export function queueSearch(f: QueueFilters): string {
   const params = new URLSearchParams({ queue: f.queue, sort: f.sort, page: String(f.page), pageSize: String(PAGE_SIZE) });
   if (f.series) params.set('series', f.series);
   if (f.severity) params.set('severity', f.severity);
+  if (f.kind) params.set('kind', f.kind);
   if (f.age) params.set('age', f.age);
   return params.toString();
 }
@@ -109,6 +112,14 @@ export function AlertQueue({ initialFilters, initialPage, initialSeries }: { ini
           </select>
         </label>
         <label className="flex flex-col text-xs font-medium text-ink-soft">
+          Kind
+          <select className={control} value={filters.kind} onChange={(e) => update({ kind: e.target.value as QueueFilters['kind'] })}>
+            <option value="">Any kind</option>
+            <option value="slowing-down">Slowing down</option>
+            <option value="abrupt-shift">Abrupt shift</option>
+          </select>
+        </label>
+        <label className="flex flex-col text-xs font-medium text-ink-soft">
           Age
           <select className={control} value={filters.age} onChange={(e) => update({ age: e.target.value })}>
             {AGES.map((a) => <option key={a.value} value={a.value}>{a.label}</option>)}
@@ -127,7 +138,7 @@ export function AlertQueue({ initialFilters, initialPage, initialSeries }: { ini
       ) : !data ? (
         <Loading />
       ) : data.items.length === 0 ? (
-        <Empty>No alerts in this queue{filters.series || filters.severity || filters.age ? ' with these filters' : ''}.</Empty>
+        <Empty>No alerts in this queue{filters.series || filters.severity || filters.kind || filters.age ? ' with these filters' : ''}.</Empty>
       ) : (
         <div className="overflow-x-auto rounded-lg border border-rule bg-card">
           <table className="w-full min-w-[680px] text-sm" data-testid="alert-table">
@@ -146,11 +157,18 @@ export function AlertQueue({ initialFilters, initialPage, initialSeries }: { ini
             <tbody className="divide-y divide-rule">
               {data.items.map((a) => (
                 <tr key={a.id} data-alert={a.id}>
-                  <td className="px-3 py-2"><Link href={`/alerts/${a.id}`} className="font-medium text-tide hover:underline">#{a.id} {a.rule.indicator}</Link></td>
+                  <td className="px-3 py-2">
+                    <Link href={`/alerts/${a.id}`} className="font-medium text-tide hover:underline">#{a.id} {a.rule ? a.rule.indicator : 'abrupt shift'}</Link>
+                    <span className="block text-xs text-ink-soft" data-kind={a.kind}>{a.kind === 'abrupt-shift' ? 'abrupt shift' : 'slowing down'}</span>
+                  </td>
                   <td className="px-3 py-2"><Link href={`/series/${a.series.slug}`} className="hover:underline">{a.series.name}</Link></td>
                   <td className="px-3 py-2"><SeverityBadge severity={a.severity} /></td>
                   <td className="px-3 py-2"><AlertStateBadge state={a.state} /></td>
-                  <td className="num px-3 py-2 whitespace-nowrap">τ {formatTau(a.latest.tau)} · p {formatP(a.latest.surrogateP ?? a.latest.kendallP)}</td>
+                  <td className="num px-3 py-2 whitespace-nowrap">
+                    {a.kind === 'abrupt-shift'
+                      ? <>shift at <LocalTime t={a.shift?.time ?? null} timeZone={a.series.timeZone} />{a.shift?.size !== null && a.shift?.size !== undefined ? ` · size ${formatValue(a.shift.size)}` : ''}</>
+                      : <>τ {tauWithDirection(a.latest.tau, a.latest.direction)} · surrogate p {formatP(a.latest.surrogateP)}</>}
+                  </td>
                   <td className="px-3 py-2"><LocalTime t={a.createdAt} timeZone={a.series.timeZone} withZone /></td>
                   <td className="px-3 py-2">{a.assignee?.name ?? <span className="text-ink-faint">nobody</span>}</td>
                 </tr>

@@ -4,11 +4,14 @@ import { AnalysisCharts, type ChartSeries } from '@/components/workbench/Analysi
 import { Empty } from '@/components/States';
 import type { AnalysisView } from '@/lib/analysis/view';
 
-/** The alert's indicator as it stood when the alert opened, and as it stands in the latest evaluation. */
+/**
+ * The alert's indicator as it stood when the alert opened, and as it stands in the latest evaluation; for an
+ * abrupt-shift alert (no indicator) the record itself.
+ */
 export function EvidenceCharts({ first, latest, indicator, series, transitions }: {
   first: AnalysisView | null;
   latest: AnalysisView | null;
-  indicator: string;
+  indicator: string | null;
   series: ChartSeries;
   transitions: { at: number; note: string }[];
 }) {

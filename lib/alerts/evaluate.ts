@@ -1,70 +1,121 @@
-import { Op, type Transaction } from 'sequelize';
-import { Alert, AlertEvent, AlertRule, RuleEvaluation, Series, writeTransaction, OPEN_ALERT_STATES, type AnalysisSnapshot } from '@/models';
+import { Op, QueryTypes, type Transaction } from 'sequelize';
+import { Alert, AlertEvent, AlertRule, RuleEvaluation, Series, db, writeTransaction, OPEN_ALERT_STATES, type AnalysisSnapshot } from '@/models';
 import { recordAudit } from '@/lib/audit';
-import { portfolioFdr } from './portfolio-fdr';
+import { latestRuleCalibration, type RuleCalibration } from '@/lib/backtest/jobs';
+import { trendDirectionOf, type TrendDirection } from '@/lib/engine/direction';
+import { portfolioFdr, type PortfolioEntry } from './portfolio-fdr';
 import { enqueueMail } from '@/lib/mail/outbox';
 import { newAlertMail } from '@/lib/mail/templates';
 import { watchersOf } from '@/lib/mail/watches';
-import { evidenceFrom, indicatorFacts, type StoredSummary } from './evidence';
+import { evidenceFrom, indicatorFacts, snapshotTaus, type StoredSummary } from './evidence';
 
 /** The thresholds of a rule that judgement reads (an AlertRule or its plain fields). */
-export type RuleThresholds = Pick<AlertRule, 'indicator' | 'minTau' | 'maxSurrogateP' | 'maxKendallP' | 'levelThreshold' | 'levelDirection' | 'fdrLevel'>;
+export type RuleThresholds = Pick<AlertRule, 'indicator' | 'direction' | 'minTau' | 'maxSurrogateP' | 'levelThreshold' | 'levelDirection' | 'fdrLevel'>;
 
 export interface Judgement {
+  /** the direction the rule looks in, as a test direction */
+  direction: TrendDirection;
+  /** Kendall tau as computed (raw sign) */
   tau: number | null;
+  /** tau seen in the rule's direction (what minTau and the quiet period compare) */
+  orientedTau: number | null;
+  /** descriptive only (assumes independent values); in the indicator's own direction */
   kendallP: number | null;
+  /** Monte Carlo p against the surrogates, in the rule's direction */
   surrogateP: number | null;
+  /** standard deviation of the surrogate taus: the null spread of tau */
+  nullSd: number | null;
   qValue: number | null;
   level: number | null;
   passed: boolean;
   /** Which tests failed, in words, for the evidence trail. */
   failed: string[];
+  /** Why the rule could not be judged on this evidence at all (a number it needs is missing); null when judged. */
+  cannotJudge: string | null;
 }
 
 /**
- * Judges one rule on one snapshot summary. Every configured test must pass: tau ≥ minTau; surrogate p ≤
- * maxSurrogateP; Kendall p ≤ maxKendallP; with fdrLevel, the Benjamini–Hochberg q-value ≤ fdrLevel; the
- * indicator's latest value above (≥) or below (≤) levelThreshold. A test whose number is missing (indicator not
- * computed, no surrogates run) fails: no evidence is not evidence. O(1).
+ * Judges one rule on one snapshot summary. Every configured test must pass: tau seen in the rule's direction
+ * (orientedTau: τ rising, −τ falling, |τ| either way) ≥ minTau; surrogate p in the rule's direction ≤
+ * maxSurrogateP; with fdrLevel, the Benjamini–Hochberg q-value ≤ fdrLevel; the indicator's latest value above (≥)
+ * or below (≤) levelThreshold. The Kendall p is not a test (it assumes independent values). When a number a test
+ * needs is missing (indicator not computed, no trend because too few windows had enough observed points, no
+ * surrogates, no latest value), the rule is not judged: `cannotJudge` says why and the judgement does not pass.
+ * `taus` are the snapshot's surrogate taus of the indicator, needed only when the rule looks another way than the
+ * stored p (see indicatorFacts). O(1), or O(N) with N surrogate taus.
  */
-export function judgeRule(rule: RuleThresholds, summary: StoredSummary, qValue: number | null = null): Judgement {
-  const facts = indicatorFacts(summary, rule.indicator);
+export function judgeRule(rule: RuleThresholds, summary: StoredSummary, qValue: number | null = null, taus: number[] | null = null): Judgement {
+  const direction = trendDirectionOf(rule.direction);
+  const facts = indicatorFacts(summary, rule.indicator, direction, taus);
+  const needsSurrogates = rule.maxSurrogateP !== null || rule.fdrLevel !== null;
+  let cannotJudge: string | null = null;
+  if (!facts.computed) cannotJudge = `${rule.indicator} is not among the computed indicators`;
+  else if (facts.tau === null) {
+    const below = summary.quality?.windowsBelowCoverage;
+    cannotJudge = `no ${rule.indicator} trend: too few windows with a value${below ? ` (${below} windows below the coverage floor)` : ''}`;
+  } else if (needsSurrogates && !facts.surrogateTested) cannotJudge = 'no surrogate test (the series runs no surrogates)';
+  else if (needsSurrogates && facts.needsTaus) cannotJudge = `the surrogate p ${DIRECTION_TEXT[direction]} needs the surrogate taus, which this snapshot no longer keeps`;
+  else if (needsSurrogates && facts.surrogateP === null) cannotJudge = 'no surrogate p (no surrogate gave a defined tau)';
+  else if (rule.levelThreshold !== null && facts.level === null) cannotJudge = `no latest ${rule.indicator} value`;
+
   const failed: string[] = [];
-  if (!facts.computed) failed.push(`${rule.indicator} is not among the computed indicators`);
-  if (facts.tau === null || facts.tau < rule.minTau) failed.push(`tau below ${rule.minTau}`);
-  if (rule.maxSurrogateP !== null && (facts.surrogateP === null || facts.surrogateP > rule.maxSurrogateP))
-    failed.push(facts.surrogateP === null ? 'no surrogate test' : `surrogate p above ${rule.maxSurrogateP}`);
-  if (rule.maxKendallP !== null && (facts.kendallP === null || facts.kendallP > rule.maxKendallP)) failed.push(`Kendall p above ${rule.maxKendallP}`);
-  if (rule.fdrLevel !== null && (qValue === null || qValue > rule.fdrLevel))
-    failed.push(qValue === null ? 'no surrogate test for the false-discovery check' : `q-value above ${rule.fdrLevel}`);
-  if (rule.levelThreshold !== null) {
-    const below = rule.levelDirection === 'below';
-    if (facts.level === null || (below ? facts.level > rule.levelThreshold : facts.level < rule.levelThreshold))
-      failed.push(`latest value not ${below ? 'at or below' : 'at or above'} ${rule.levelThreshold}`);
+  if (!cannotJudge) {
+    if (facts.orientedTau! < rule.minTau) failed.push(`tau ${DIRECTION_TEXT[direction]} below ${rule.minTau}`);
+    if (rule.maxSurrogateP !== null && facts.surrogateP! > rule.maxSurrogateP) failed.push(`surrogate p above ${rule.maxSurrogateP}`);
+    if (rule.fdrLevel !== null && (qValue === null || qValue > rule.fdrLevel))
+      failed.push(qValue === null ? 'not in the false-discovery family' : `q-value above ${rule.fdrLevel}`);
+    if (rule.levelThreshold !== null) {
+      const below = rule.levelDirection === 'below';
+      if (below ? facts.level! > rule.levelThreshold : facts.level! < rule.levelThreshold)
+        failed.push(`latest value not ${below ? 'at or below' : 'at or above'} ${rule.levelThreshold}`);
+    }
   }
-  return { tau: facts.tau, kendallP: facts.kendallP, surrogateP: facts.surrogateP, qValue, level: facts.level, passed: failed.length === 0, failed };
+  return {
+    direction,
+    tau: facts.tau,
+    orientedTau: facts.orientedTau,
+    kendallP: facts.kendallP,
+    surrogateP: needsSurrogates || facts.surrogateTested ? facts.surrogateP : null,
+    nullSd: facts.nullSd,
+    qValue,
+    level: facts.level,
+    passed: cannotJudge === null && failed.length === 0,
+    failed,
+    cannotJudge,
+  };
 }
 
-/** A later alert within a quiet period must beat the decided one by this much tau… */
-export const QUIET_TAU_MARGIN = 0.1;
-/** …and, when both have a surrogate p, have at most this fraction of its surrogate p. */
-export const QUIET_P_FACTOR = 0.5;
+const DIRECTION_TEXT: Record<TrendDirection, string> = { rising: '(rising)', falling: '(falling)', 'two-sided': '(either way)' };
+
+/** A later alert within a quiet period must beat the decided one's peak oriented tau by this many null standard deviations. */
+export const QUIET_NULL_SDS = 2;
 
 /**
  * Whether new evidence is clearly stronger than that of a dismissed (or confirmed) alert, so it may break the
- * rule's quiet period: tau ≥ the closed alert's peak tau + 0.1, AND, when the closed alert had a surrogate p,
- * the new surrogate p is at most half the smallest one it had (a new p that is missing does not count as
- * stronger). Our own convention: 0.1 in tau is about two standard errors of tau at a few hundred points
- * (var τ ≈ 2(2n+5)/(9n(n−1)), Kendall 1970, Rank Correlation Methods, ch. 4 — from memory).
+ * rule's quiet period. Our convention, derived from the surrogate null rather than from the independent-data
+ * formula for var τ (which overlapping windows make about 15× too small):
+ *
+ *   oriented τ_new ≥ peak oriented τ_closed + 2·σ₀   AND   p_new ≤ smallest p of the closed alert (when it had one),
+ *
+ * where σ₀ is the standard deviation of the surrogate taus of the new analysis (summary.significance[ind].nullSd):
+ * the spread tau shows on records with no slowing down. A rise of two null standard deviations is one that the
+ * null alone gives about 2.3 % of the time (one-sided, normal approximation — common practice), so a re-raised
+ * alert rests on a trend that has clearly moved on, not on noise around the decided level. The p condition asks
+ * for evidence at least as strong; "not larger" (not "half") so that a closed alert at the floor 1/(N + 1) can be
+ * matched. Without a null spread (no surrogates, or a snapshot from before nullSd was stored) nothing is clearly
+ * stronger and the quiet period holds. O(1).
  */
-export function clearlyStronger(current: { tau: number | null; surrogateP: number | null }, closed: { peakTau: number | null; surrogateP: number | null }): boolean {
-  if (current.tau === null) return false;
-  if (closed.peakTau !== null && current.tau < closed.peakTau + QUIET_TAU_MARGIN) return false;
-  if (closed.surrogateP !== null && (current.surrogateP === null || current.surrogateP > closed.surrogateP * QUIET_P_FACTOR)) return false;
+export function clearlyStronger(
+  current: { orientedTau: number | null; surrogateP: number | null; nullSd: number | null },
+  closed: { peakTau: number | null; surrogateP: number | null },
+): boolean {
+  if (current.orientedTau === null || current.nullSd === null || !Number.isFinite(current.nullSd)) return false;
+  if (closed.peakTau !== null && current.orientedTau < closed.peakTau + QUIET_NULL_SDS * current.nullSd) return false;
+  if (closed.surrogateP !== null && (current.surrogateP === null || current.surrogateP > closed.surrogateP)) return false;
   return true;
 }
 
-export type EvaluationOutcome = 'not-met' | 'building' | 'opened' | 'evidence-added' | 'quiet-period';
+export type EvaluationOutcome = 'not-met' | 'cannot-judge' | 'building' | 'opened' | 'evidence-added' | 'quiet-period';
 
 export interface EvaluationReport {
   evaluated: number;
@@ -73,6 +124,10 @@ export interface EvaluationReport {
   opened: number[];
   updated: number[];
   suppressed: number;
+  /** rule+snapshot pairs recorded as 'cannot-judge: …' */
+  cannotJudge: number;
+  /** abrupt-shift alerts opened */
+  shifts: number[];
 }
 
 /** The latest decided alert of a rule within its quiet period, with the smallest surrogate p it was raised on. */
@@ -89,7 +144,13 @@ async function closedWithinQuietPeriod(rule: AlertRule, seriesId: number, now: D
   return { alert: closed, surrogateP: smallest ?? null };
 }
 
-async function openAlert(rule: AlertRule, series: Series, snapshot: AnalysisSnapshot, judgement: Judgement, transaction: Transaction): Promise<Alert> {
+async function mailWatchers(alert: Alert, series: Series, mail: ReturnType<typeof newAlertMail>, kind: string, transaction: Transaction) {
+  for (const user of await watchersOf(series.id, ['immediate'], transaction)) {
+    await enqueueMail({ kind, dedupeKey: `${kind}:${alert.id}:user-${user.id}`, to: user.email, ...mail }, transaction);
+  }
+}
+
+async function openAlert(rule: AlertRule, series: Series, snapshot: AnalysisSnapshot, judgement: Judgement, calibration: RuleCalibration | null, taus: number[] | null, transaction: Transaction): Promise<Alert> {
   const alert = await Alert.create(
     {
       seriesId: series.id,
@@ -99,35 +160,103 @@ async function openAlert(rule: AlertRule, series: Series, snapshot: AnalysisSnap
       assigneeId: null,
       firstSnapshotId: snapshot.id,
       latestSnapshotId: snapshot.id,
-      peakTau: judgement.tau,
+      peakTau: judgement.orientedTau,
       dismissReason: null,
       closedAt: null,
     },
     { transaction },
   );
   await AlertEvent.create({ alertId: alert.id, actorId: null, action: 'open', fromState: null, toState: 'new', reason: null, detail: `Rule #${rule.id} met on snapshot #${snapshot.id}.` }, { transaction });
-  await recordAudit({ actorId: null, action: 'alert.open', entity: 'alert', entityId: alert.id, details: { seriesId: series.id, ruleId: rule.id, snapshotId: snapshot.id, tau: judgement.tau } }, transaction);
-  const mail = newAlertMail(evidenceFrom(alert, series, rule, snapshot));
-  for (const user of await watchersOf(series.id, ['immediate'], transaction)) {
-    await enqueueMail({ kind: 'alert-new', dedupeKey: `alert-new:${alert.id}:user-${user.id}`, to: user.email, ...mail }, transaction);
-  }
+  await recordAudit({ actorId: null, action: 'alert.open', entity: 'alert', entityId: alert.id, details: { seriesId: series.id, ruleId: rule.id, snapshotId: snapshot.id, tau: judgement.tau, direction: rule.direction } }, transaction);
+  await mailWatchers(alert, series, newAlertMail(evidenceFrom(alert, series, rule, snapshot, calibration, taus)), 'alert-new', transaction);
   return alert;
 }
 
 /**
- * Judges every active rule of each snapshot's series, in one pass over all fresh snapshots of an analysis cycle
- * (so rules with a false-discovery level are judged on the q-values of the whole cycle). Each rule+snapshot is
- * judged in its own transaction: the evaluation row (unique per rule and snapshot) is written together with the
- * alert it opens or extends and the new-alert mail in the outbox, so a crash or a second scheduler never judges
- * twice nor sends mail for an alert that does not exist.
+ * Two detections of one shift in successive analyses may differ by a few grid points as data arrive; a shift
+ * within this many sampling intervals after the latest alerted one is taken to be the same shift. Our convention.
+ */
+export const SAME_SHIFT_INTERVALS = 10;
+
+/**
+ * Opens an abrupt-shift alert when the snapshot's detected shifts include one newer than any shift already alerted
+ * for the series (by more than SAME_SHIFT_INTERVALS), so re-analysis never reopens the same shift; the newest such
+ * shift is alerted, earlier new ones are named in its timeline. The database holds one alert per series and shift
+ * instant. Mailed to immediate watchers in the same transaction. Null when nothing new.
+ */
+async function openShiftAlert(series: Series, snapshot: AnalysisSnapshot): Promise<number | null> {
+  const summary = snapshot.summary as StoredSummary;
+  const shifts = (summary.shifts ?? []).filter((s) => Number.isFinite(s.time));
+  if (!shifts.length) return null;
+  return writeTransaction(async (transaction) => {
+    const alerted = (await Alert.max('shiftTime', { where: { seriesId: series.id, kind: 'abrupt-shift' }, transaction })) as number | string | null;
+    const after = alerted === null ? -Infinity : Number(alerted) + SAME_SHIFT_INTERVALS * (summary.interval ?? 0);
+    const fresh = shifts.filter((s) => s.time > after).sort((a, b) => a.time - b.time);
+    if (!fresh.length) return null;
+    const shift = fresh[fresh.length - 1];
+    const alert = await Alert.create(
+      {
+        seriesId: series.id,
+        ruleId: null,
+        kind: 'abrupt-shift',
+        shiftTime: shift.time,
+        shiftSize: shift.size ?? null,
+        state: 'new',
+        severity: 'warning',
+        assigneeId: null,
+        firstSnapshotId: snapshot.id,
+        latestSnapshotId: snapshot.id,
+        peakTau: null,
+        dismissReason: null,
+        closedAt: null,
+      },
+      { transaction },
+    );
+    const earlier = fresh.length > 1 ? ` Earlier shifts first seen in the same analysis: ${fresh.slice(0, -1).map((s) => new Date(s.time).toISOString()).join(', ')}.` : '';
+    await AlertEvent.create({ alertId: alert.id, actorId: null, action: 'open', fromState: null, toState: 'new', reason: null, detail: `Abrupt shift at ${new Date(shift.time).toISOString()} detected on snapshot #${snapshot.id}.${earlier}` }, { transaction });
+    await recordAudit({ actorId: null, action: 'alert.open', entity: 'alert', entityId: alert.id, details: { seriesId: series.id, kind: 'abrupt-shift', snapshotId: snapshot.id, shift } }, transaction);
+    await mailWatchers(alert, series, newAlertMail(evidenceFrom(alert, series, null, snapshot, null)), 'alert-shift', transaction);
+    return alert.id;
+  });
+}
+
+/**
+ * The latest surrogate p of every active FDR rule on a live series outside `except` (rules judged in this cycle
+ * bring their fresh p): the rest of the Benjamini–Hochberg family. One indexed lookup per rule.
+ */
+async function fdrFamilyOutside(except: Set<number>): Promise<PortfolioEntry[]> {
+  const sequelize = await db();
+  const rows = await sequelize.query<{ rule_id: number; series_id: number; fdr_level: number; surrogate_p: number | null }>(
+    `SELECT r.id AS rule_id, r.series_id, r.fdr_level,
+       (SELECT e.surrogate_p FROM rule_evaluations e WHERE e.rule_id = r.id ORDER BY e.snapshot_id DESC LIMIT 1) AS surrogate_p
+     FROM alert_rules r JOIN series s ON s.id = r.series_id AND s.retired_at IS NULL
+     WHERE r.active = 1 AND r.fdr_level IS NOT NULL`,
+    { type: QueryTypes.SELECT },
+  );
+  return rows
+    .filter((r) => !except.has(Number(r.rule_id)))
+    .map((r) => ({ ruleId: Number(r.rule_id), seriesId: Number(r.series_id), fdrLevel: Number(r.fdr_level), surrogateP: r.surrogate_p === null ? null : Number(r.surrogate_p) }));
+}
+
+/**
+ * Judges every active rule of each snapshot's series, in one pass over all fresh snapshots of an analysis cycle.
+ * Each rule+snapshot is judged in its own transaction: the evaluation row (unique per rule and snapshot) is
+ * written together with the alert it opens or extends and the new-alert mail in the outbox, so a crash or a
+ * second scheduler never judges twice nor sends mail for an alert that does not exist.
+ *
+ * A failed analysis, or one lacking a number a rule needs, is recorded as 'cannot-judge: <why>' (see
+ * ruleStatuses), never skipped silently; it breaks the streak. False-discovery control: the Benjamini–Hochberg
+ * family is every active FDR rule on a live series, each with its latest surrogate p — fresh for the rules judged
+ * now, the stored latest for the others — not only the series that received data this cycle.
  *
  * Persistence: `streak` counts consecutive passing evaluations of the rule; an alert opens when it reaches
  * `persistence`. While an alert is open, passing evaluations add evidence to it (latest snapshot, count, peak tau)
- * instead of opening another (the database also holds one open alert per series and rule).
+ * instead of opening another (the database also holds one open alert per series and rule). Fresh snapshots
+ * whose detected shifts include a new one also open an abrupt-shift alert (see openShiftAlert).
  */
 export async function evaluateSnapshots(snapshots: AnalysisSnapshot[], now = new Date()): Promise<EvaluationReport> {
-  const report: EvaluationReport = { evaluated: 0, skipped: 0, opened: [], updated: [], suppressed: 0 };
-  const usable = snapshots.filter((s) => s.status === 'ok').sort((a, b) => a.id - b.id);
+  const report: EvaluationReport = { evaluated: 0, skipped: 0, opened: [], updated: [], suppressed: 0, cannotJudge: 0, shifts: [] };
+  const usable = snapshots.filter((s) => s.status === 'ok' || s.status === 'error').sort((a, b) => a.id - b.id);
   if (!usable.length) return report;
   const seriesIds = [...new Set(usable.map((s) => s.seriesId))];
   const [rules, seriesList] = await Promise.all([
@@ -135,21 +264,49 @@ export async function evaluateSnapshots(snapshots: AnalysisSnapshot[], now = new
     Series.findAll({ where: { id: { [Op.in]: seriesIds } } }),
   ]);
   const seriesById = new Map(seriesList.map((s) => [s.id, s]));
-  const pairs = usable.flatMap((snapshot) => rules.filter((r) => r.seriesId === snapshot.seriesId).map((rule) => ({ snapshot, rule })));
-
-  // One family for the false-discovery check: every FDR-enabled rule+snapshot of this cycle that has a surrogate p.
-  const fdr = portfolioFdr(
-    pairs.map(({ snapshot, rule }) => ({
-      ruleId: rule.id,
-      seriesId: snapshot.seriesId,
-      fdrLevel: rule.fdrLevel,
-      surrogateP: rule.fdrLevel !== null ? indicatorFacts(snapshot.summary as StoredSummary, rule.indicator).surrogateP : null,
-    })),
+  const calibrations = await latestRuleCalibration(rules.map((r) => r.id));
+  const pairs = await Promise.all(
+    usable.flatMap((snapshot) =>
+      rules
+        .filter((r) => r.seriesId === snapshot.seriesId)
+        .map(async (rule) => {
+          if (snapshot.status !== 'ok') return { snapshot, rule, taus: null, surrogateP: null };
+          const summary = snapshot.summary as StoredSummary;
+          const wanted = trendDirectionOf(rule.direction);
+          const plain = indicatorFacts(summary, rule.indicator, wanted);
+          // The stored p is in the indicator's own direction; a surrogate test in another direction needs the taus.
+          const taus = plain.needsTaus && (rule.maxSurrogateP !== null || rule.fdrLevel !== null) ? await snapshotTaus(snapshot.id, rule.indicator) : null;
+          const facts = taus ? indicatorFacts(summary, rule.indicator, wanted, taus) : plain;
+          return { snapshot, rule, taus, surrogateP: facts.surrogateP };
+        }),
+    ),
   );
 
-  for (const [index, { snapshot, rule }] of pairs.entries()) {
+  // Benjamini–Hochberg over the whole portfolio: each FDR rule's latest p (this cycle's latest snapshot, else stored).
+  const latestPair = new Map<number, number>();
+  pairs.forEach((p, i) => {
+    if (p.rule.fdrLevel !== null && p.snapshot.status === 'ok') latestPair.set(p.rule.id, i);
+  });
+  const others = await (latestPair.size ? fdrFamilyOutside(new Set(latestPair.keys())) : Promise.resolve([]));
+  const slotOf = new Map([...latestPair.values()].map((pairIndex, slot) => [pairIndex, slot]));
+  const family: PortfolioEntry[] = [...latestPair.values()].map((i) => ({ ruleId: pairs[i].rule.id, seriesId: pairs[i].snapshot.seriesId, fdrLevel: pairs[i].rule.fdrLevel, surrogateP: pairs[i].surrogateP }));
+  const decided = portfolioFdr([...family, ...others]);
+  const qOf = (index: number): number | null => {
+    const pair = pairs[index];
+    if (pair.rule.fdrLevel === null) return null;
+    const slot = slotOf.get(index);
+    if (slot !== undefined) return decided[slot].qValue;
+    // An earlier snapshot of the same rule in this batch: its own p in place of the rule's latest.
+    const swapped = family.map((e) => (e.ruleId === pair.rule.id ? { ...e, surrogateP: pair.surrogateP } : e));
+    return portfolioFdr([...swapped, ...others])[swapped.findIndex((e) => e.ruleId === pair.rule.id)]?.qValue ?? null;
+  };
+
+  for (const [index, { snapshot, rule, taus }] of pairs.entries()) {
     const series = seriesById.get(snapshot.seriesId)!;
-    const judgement = judgeRule(rule, snapshot.summary as StoredSummary, fdr[index].qValue);
+    const judgement: Judgement =
+      snapshot.status === 'ok'
+        ? judgeRule(rule, snapshot.summary as StoredSummary, qOf(index), taus)
+        : { ...emptyJudgement(rule), cannotJudge: `the analysis failed: ${snapshot.error ?? 'no reason given'}` };
     const outcome = await writeTransaction(async (transaction) => {
       const seen = await RuleEvaluation.findOne({ where: { ruleId: rule.id, snapshotId: snapshot.id }, attributes: ['id'], transaction });
       if (seen) return null;
@@ -159,19 +316,13 @@ export async function evaluateSnapshots(snapshots: AnalysisSnapshot[], now = new
         transaction,
       });
       const streak = judgement.passed ? (previous?.passed ? previous.streak + 1 : 1) : 0;
-      let result: EvaluationOutcome = judgement.passed ? 'building' : 'not-met';
+      let result: EvaluationOutcome = judgement.cannotJudge ? 'cannot-judge' : judgement.passed ? 'building' : 'not-met';
       let alertId: number | null = null;
       if (judgement.passed && streak >= rule.persistence) {
         const open = await Alert.findOne({ where: { seriesId: series.id, ruleId: rule.id, state: { [Op.in]: [...OPEN_ALERT_STATES] } }, transaction });
         if (open) {
-          await open.update(
-            {
-              latestSnapshotId: snapshot.id,
-              evaluationCount: open.evaluationCount + 1,
-              peakTau: open.peakTau === null || (judgement.tau !== null && judgement.tau > open.peakTau) ? judgement.tau : open.peakTau,
-            },
-            { transaction },
-          );
+          const stronger = open.peakTau === null || (judgement.orientedTau !== null && judgement.orientedTau > open.peakTau);
+          await open.update({ latestSnapshotId: snapshot.id, evaluationCount: open.evaluationCount + 1, peakTau: stronger ? judgement.orientedTau : open.peakTau }, { transaction });
           result = 'evidence-added';
           alertId = open.id;
         } else {
@@ -179,7 +330,7 @@ export async function evaluateSnapshots(snapshots: AnalysisSnapshot[], now = new
           if (closed && !clearlyStronger(judgement, { peakTau: closed.alert.peakTau, surrogateP: closed.surrogateP })) {
             result = 'quiet-period';
           } else {
-            alertId = (await openAlert(rule, series, snapshot, judgement, transaction)).id;
+            alertId = (await openAlert(rule, series, snapshot, judgement, calibrations.get(rule.id) ?? null, taus, transaction)).id;
             result = 'opened';
           }
         }
@@ -189,6 +340,7 @@ export async function evaluateSnapshots(snapshots: AnalysisSnapshot[], now = new
           ruleId: rule.id,
           seriesId: series.id,
           snapshotId: snapshot.id,
+          direction: rule.direction,
           tau: judgement.tau,
           kendallP: judgement.kendallP,
           surrogateP: judgement.surrogateP,
@@ -197,7 +349,7 @@ export async function evaluateSnapshots(snapshots: AnalysisSnapshot[], now = new
           passed: judgement.passed,
           streak,
           alertId,
-          outcome: judgement.passed ? result : `not-met: ${judgement.failed.join('; ')}`,
+          outcome: judgement.cannotJudge ? `cannot-judge: ${judgement.cannotJudge}` : judgement.passed ? result : `not-met: ${judgement.failed.join('; ')}`,
         },
         { transaction },
       );
@@ -211,6 +363,24 @@ export async function evaluateSnapshots(snapshots: AnalysisSnapshot[], now = new
     if (outcome.result === 'opened') report.opened.push(outcome.alertId!);
     if (outcome.result === 'evidence-added') report.updated.push(outcome.alertId!);
     if (outcome.result === 'quiet-period') report.suppressed++;
+    if (outcome.result === 'cannot-judge') report.cannotJudge++;
+  }
+
+  // Abrupt shifts: the latest successful snapshot of each series in this batch.
+  const latestOk = new Map<number, AnalysisSnapshot>();
+  for (const snapshot of usable) if (snapshot.status === 'ok') latestOk.set(snapshot.seriesId, snapshot);
+  for (const snapshot of latestOk.values()) {
+    const id = await openShiftAlert(seriesById.get(snapshot.seriesId)!, snapshot);
+    if (id !== null) report.shifts.push(id);
   }
   return report;
+}
+
+/** A judgement with no numbers, for evidence that cannot be read at all (a failed analysis). */
+function emptyJudgement(rule: RuleThresholds): Judgement {
+  return {
+    direction: trendDirectionOf(rule.direction),
+    tau: null, orientedTau: null, kendallP: null, surrogateP: null, nullSd: null, qValue: null, level: null,
+    passed: false, failed: [], cannotJudge: null,
+  };
 }

@@ -1,10 +1,10 @@
 import { QueryTypes } from 'sequelize';
-import { ALERT_STATES, Alert, AlertEvent, AlertRule, AnalysisSnapshot, Note, NoteRevision, RuleEvaluation, Series, User, db, type AlertState } from '@/models';
+import { ALERT_STATES, Alert, AlertEvent, AlertRule, AnalysisSnapshot, Note, NoteRevision, RuleEvaluation, Series, User, db, type AlertKind, type AlertState } from '@/models';
 import { NotFoundError } from '@/lib/http/errors';
 import type { Actor } from '@/lib/auth/guard';
 import { cachedRead } from '@/lib/db/read-cache';
 import { sqlDate } from '@/lib/db/sql-date';
-import { presentRule } from './rules';
+import { presentRules } from './rules';
 import { allowedActions } from './triage';
 import type { AlertQueue, AlertQueueQuery } from '@/lib/schemas/alert';
 
@@ -30,11 +30,18 @@ export interface AlertListItem {
   state: AlertState;
   severity: string;
   version: number;
+  /** 'slowing-down' (from a rule) or 'abrupt-shift' (from the change-point detection; no rule) */
+  kind: AlertKind;
   series: { id: number; slug: string; name: string; timeZone: string };
-  rule: { id: number; indicator: string };
+  /** the rule and the direction it looks in; null for an abrupt-shift alert */
+  rule: { id: number; indicator: string; direction: string } | null;
+  /** the abrupt shift (epoch ms, level change); null for a slowing-down alert */
+  shift: { time: number; size: number | null } | null;
   assignee: { id: number; name: string } | null;
+  /** strongest tau while open, seen in the rule's direction */
   peakTau: number | null;
-  latest: { tau: number | null; surrogateP: number | null; kendallP: number | null };
+  /** the latest evaluation: tau as computed, with the direction it was judged in; the Kendall p is descriptive only */
+  latest: { tau: number | null; direction: string | null; surrogateP: number | null; kendallP: number | null };
   evaluationCount: number;
   dismissReason: string | null;
   createdAt: string;
@@ -54,6 +61,10 @@ function where(query: Omit<AlertQueueQuery, 'page' | 'pageSize' | 'sort'>, actor
   if (query.series) {
     clauses.push('a.series_id = (SELECT id FROM series WHERE slug = :slug)');
     replacements.slug = query.series;
+  }
+  if (query.kind) {
+    clauses.push('a.kind = :kind');
+    replacements.kind = query.kind;
   }
   if (query.severity) {
     clauses.push('a.severity = :severity');
@@ -84,13 +95,13 @@ async function loadAlertQueue(query: AlertQueueQuery, actor: Pick<Actor, 'id'>, 
   const sequelize = await db();
   const filter = where(query, actor, query.queue, now);
   const rows = await sequelize.query<Record<string, unknown>>(
-    `SELECT a.id, a.state, a.severity, a.version, a.peak_tau, a.evaluation_count, a.dismiss_reason, a.created_at, a.updated_at, a.closed_at,
-            s.id AS series_id, s.slug, s.name AS series_name, s.time_zone, r.id AS rule_id, r.indicator,
-            u.id AS assignee_id, u.name AS assignee_name, e.tau, e.surrogate_p, e.kendall_p
+    `SELECT a.id, a.kind, a.state, a.severity, a.version, a.peak_tau, a.evaluation_count, a.dismiss_reason, a.created_at, a.updated_at, a.closed_at,
+            a.shift_time, a.shift_size, s.id AS series_id, s.slug, s.name AS series_name, s.time_zone, r.id AS rule_id, r.indicator, r.direction AS rule_direction,
+            u.id AS assignee_id, u.name AS assignee_name, e.tau, e.direction AS judged_direction, e.surrogate_p, e.kendall_p
      FROM (SELECT a.id FROM alerts a WHERE ${filter.sql} ORDER BY ${ORDER[query.sort]} LIMIT :limit OFFSET :offset) page
      JOIN alerts a ON a.id = page.id
      JOIN series s ON s.id = a.series_id
-     JOIN alert_rules r ON r.id = a.rule_id
+     LEFT JOIN alert_rules r ON r.id = a.rule_id
      LEFT JOIN users u ON u.id = a.assignee_id
      LEFT JOIN rule_evaluations e ON e.rule_id = a.rule_id AND e.snapshot_id = a.latest_snapshot_id
      ORDER BY ${ORDER[query.sort]}`,
@@ -114,10 +125,12 @@ async function loadAlertQueue(query: AlertQueueQuery, actor: Pick<Actor, 'id'>, 
     severity: String(r.severity),
     version: Number(r.version),
     series: { id: Number(r.series_id), slug: String(r.slug), name: String(r.series_name), timeZone: String(r.time_zone) },
-    rule: { id: Number(r.rule_id), indicator: String(r.indicator) },
+    kind: (r.kind ?? 'slowing-down') as AlertKind,
+    rule: r.rule_id === null ? null : { id: Number(r.rule_id), indicator: String(r.indicator), direction: String(r.rule_direction) },
+    shift: r.shift_time === null ? null : { time: Number(r.shift_time), size: r.shift_size as number | null },
     assignee: r.assignee_id === null ? null : { id: Number(r.assignee_id), name: String(r.assignee_name) },
     peakTau: r.peak_tau as number | null,
-    latest: { tau: r.tau as number | null, surrogateP: r.surrogate_p as number | null, kendallP: r.kendall_p as number | null },
+    latest: { tau: r.tau as number | null, direction: (r.judged_direction ?? r.rule_direction ?? null) as string | null, surrogateP: r.surrogate_p as number | null, kendallP: r.kendall_p as number | null },
     evaluationCount: Number(r.evaluation_count),
     dismissReason: r.dismiss_reason as string | null,
     createdAt: toIso(r.created_at),
@@ -164,34 +177,38 @@ export async function fetchAlertDetail(id: number, actor?: Pick<Actor, 'role'>, 
     ],
   });
   if (!alert) throw new NotFoundError('Alert');
-  const joined = alert as Alert & { series: Series; rule: AlertRule; assignee: User | null };
+  const joined = alert as Alert & { series: Series; rule: AlertRule | null; assignee: User | null };
   // Only the large column the answer carries is read: the curves or the chart view.
   const snapshotAttributes = { exclude: [charts === 'curves' ? 'chartView' : 'curves'] };
-  const [first, latest, events, notes, evaluations] = await Promise.all([
+  const [first, latest, events, notes, evaluations, rules] = await Promise.all([
     AnalysisSnapshot.findByPk(alert.firstSnapshotId, { attributes: snapshotAttributes }),
     alert.latestSnapshotId === alert.firstSnapshotId ? null : AnalysisSnapshot.findByPk(alert.latestSnapshotId, { attributes: snapshotAttributes }),
     AlertEvent.findAll({ where: { alertId: id }, include: [{ model: User, as: 'actor', attributes: ['id', 'name'] }], order: [['id', 'ASC']] }),
     Note.findAll({ where: { alertId: id }, include: [{ model: User, as: 'author', attributes: ['id', 'name'] }, { model: NoteRevision, as: 'revisions' }], order: [['id', 'ASC']] }),
     RuleEvaluation.findAll({ where: { alertId: id }, order: [['snapshotId', 'ASC']], limit: 500 }),
+    joined.rule ? presentRules([joined.rule]) : Promise.resolve([]),
   ]);
   return {
     id: alert.id,
+    kind: alert.kind,
     state: alert.state,
     severity: alert.severity,
     version: alert.version,
+    /** strongest tau while open, seen in the rule's direction */
     peakTau: alert.peakTau,
+    shift: alert.kind === 'abrupt-shift' && alert.shiftTime !== null ? { time: Number(alert.shiftTime), size: alert.shiftSize } : null,
     evaluationCount: alert.evaluationCount,
     dismissReason: alert.dismissReason,
     createdAt: alert.createdAt,
     updatedAt: alert.updatedAt,
     closedAt: alert.closedAt,
     series: { id: joined.series.id, slug: joined.series.slug, name: joined.series.name, site: joined.series.site, unit: joined.series.unit, timeZone: joined.series.timeZone },
-    rule: presentRule(joined.rule),
+    rule: rules[0] ?? null,
     assignee: joined.assignee ? { id: joined.assignee.id, name: joined.assignee.name, email: joined.assignee.email } : null,
     evidence: {
       first: presentSnapshot(first, charts),
       latest: presentSnapshot(latest ?? first, charts),
-      evaluations: evaluations.map((e) => ({ snapshotId: e.snapshotId, tau: e.tau, kendallP: e.kendallP, surrogateP: e.surrogateP, qValue: e.qValue, level: e.level, streak: e.streak, outcome: e.outcome, at: e.createdAt })),
+      evaluations: evaluations.map((e) => ({ snapshotId: e.snapshotId, direction: e.direction ?? 'rising', tau: e.tau, kendallP: e.kendallP, surrogateP: e.surrogateP, qValue: e.qValue, level: e.level, streak: e.streak, outcome: e.outcome, at: e.createdAt })),
     },
     timeline: events.map((e) => {
       const by = (e as AlertEvent & { actor?: User | null }).actor;

@@ -78,7 +78,8 @@ export async function transitionAlert(alertId: number, input: TransitionInput, a
         throw new UnprocessableError('Assign the alert to an active analyst, lead or admin.', { assignee: ['Not an active analyst, lead or admin.'] });
       assigneeId = assignee.id;
     }
-    if (command.action === 'reopen') {
+    // Abrupt-shift alerts have no rule: each is one shift, and several may be open at once.
+    if (command.action === 'reopen' && alert.ruleId !== null) {
       const other = await Alert.findOne({ where: { seriesId: alert.seriesId, ruleId: alert.ruleId, state: { [Op.in]: [...OPEN_ALERT_STATES] }, id: { [Op.ne]: alert.id } }, transaction });
       if (other) throw new ConflictError(`Alert #${other.id} for the same series and rule is open; work on that one instead.`);
     }

@@ -26,7 +26,7 @@ export async function enqueueDigests(now = new Date()): Promise<number> {
       where: { seriesId: { [Op.in]: seriesIds }, [Op.or]: [{ createdAt: { [Op.gt]: since } }, { closedAt: { [Op.gt]: since } }] },
       include: [
         { model: Series, as: 'series', attributes: ['name'] },
-        { model: AlertRule, as: 'rule', attributes: ['indicator'] },
+        { model: AlertRule, as: 'rule', attributes: ['indicator', 'direction'] },
       ],
       order: [['id', 'ASC']],
       limit: 200,
@@ -34,15 +34,16 @@ export async function enqueueDigests(now = new Date()): Promise<number> {
     if (!alerts.length) continue;
     const entries: DigestEntry[] = [];
     for (const alert of alerts) {
-      const evaluation = await RuleEvaluation.findOne({ where: { ruleId: alert.ruleId, snapshotId: alert.latestSnapshotId } });
+      const evaluation = alert.ruleId === null ? null : await RuleEvaluation.findOne({ where: { ruleId: alert.ruleId, snapshotId: alert.latestSnapshotId } });
       const joined = alert as Alert & { series?: Series; rule?: AlertRule };
       entries.push({
         alertId: alert.id,
         seriesName: joined.series?.name ?? `series ${alert.seriesId}`,
-        indicator: joined.rule?.indicator ?? '',
+        indicator: alert.kind === 'abrupt-shift' ? null : joined.rule?.indicator ?? '',
+        direction: evaluation?.direction ?? joined.rule?.direction ?? null,
         severity: alert.severity,
         state: alert.state,
-        tau: evaluation?.tau ?? alert.peakTau,
+        tau: evaluation?.tau ?? null,
         surrogateP: evaluation?.surrogateP ?? null,
         openedAt: alert.createdAt,
       });

@@ -1,6 +1,7 @@
 import { ANALYSIS_CAUTION } from '@/lib/engine/analyze';
-import { formatP, formatTau, formatUtc, formatValue } from '@/lib/display/format';
+import { formatP, formatUtc, formatValue } from '@/lib/display/format';
 import { publicBaseUrl } from '@/lib/config';
+import { DIRECTION_WORDS, describeCalibration, kendallPLabel, tauThreshold, tauWithDirection, type CalibrationLine } from '@/lib/alerts/wording';
 
 /** A rendered message: the same content as plain text and as self-contained HTML (no remote images, no scripts). */
 export interface RenderedMail {
@@ -61,71 +62,116 @@ ${parts.caution ? `<p style="font-size:12px;color:#52606d;border-top:1px solid #
   return { subject: oneLine(parts.subject), text, html };
 }
 
-/** What an alert message says about the evidence; built by lib/alerts from the alert, its rule and snapshot. */
+/** What an alert message says about the evidence; built by lib/alerts from the alert, its rule (if any) and snapshot. */
 export interface AlertEvidence {
   alertId: number;
+  kind: 'slowing-down' | 'abrupt-shift';
   severity: 'watch' | 'warning';
   series: { name: string; slug: string; site: string; timeZone: string };
-  indicator: string;
+  /** the rule's indicator; null for an abrupt-shift alert */
+  indicator: string | null;
+  /** the direction the rule looks in (tau and surrogate p are judged in it) */
+  direction: string;
   tau: number | null;
   kendallP: number | null;
+  /** direction of the descriptive Kendall p (the indicator's own) */
+  kendallDirection: string;
   surrogateP: number | null;
   surrogateCount: number;
   surrogateMethod: string | null;
   latestValue: number | null;
-  windowFraction: number;
+  windowFraction: number | string;
   windowPoints: number | null;
   detrend: string;
-  bandwidth: number;
+  bandwidth: number | string;
   bandwidthPoints: number | null;
   dataFrom: number | null;
   dataTo: number | null;
   n: number;
-  rule: { minTau: number; maxSurrogateP: number | null; maxKendallP: number | null; levelThreshold: number | null; levelDirection: string; persistence: number };
+  rule: { minTau: number; direction: string; maxSurrogateP: number | null; fdrLevel: number | null; levelThreshold: number | null; levelDirection: string; persistence: number } | null;
+  /** the rule's calibrated false-alarm rate; null = not yet calibrated */
+  calibration: CalibrationLine | null;
+  /** the abrupt shift an abrupt-shift alert reports */
+  shift: { time: number; size: number | null } | null;
 }
 
 export function alertLink(alertId: number): string {
   return `${publicBaseUrl()}/alerts/${alertId}`;
 }
 
+function describeExtent(extent: number | string, points: number | null, what: string): string {
+  const base = typeof extent === 'number' ? `${Math.round(extent * 100)}% of ${what}` : extent;
+  return `${base}${points !== null ? ` (${Math.round(points)} points)` : ''}`;
+}
+
 function describeDetrending(e: AlertEvidence): string {
-  if (e.detrend === 'gaussian') return `Gaussian kernel smoothing, bandwidth ${e.bandwidth} of the record${e.bandwidthPoints !== null ? ` (h = ${Math.round(e.bandwidthPoints)} points)` : ''}`;
+  if (e.detrend === 'gaussian') return `Gaussian kernel smoothing, bandwidth ${e.bandwidth}${typeof e.bandwidth === 'number' ? ' of the record' : ''}${e.bandwidthPoints !== null ? ` (h = ${Math.round(e.bandwidthPoints)} points)` : ''}`;
   if (e.detrend === 'moving-average') return `centred moving average of ${e.bandwidthPoints ?? '?'} points`;
   return e.detrend;
 }
 
-function describeRule(r: AlertEvidence['rule']): string {
-  const parts = [`tau ≥ ${r.minTau}`];
+function describeRule(r: NonNullable<AlertEvidence['rule']>): string {
+  const parts = [tauThreshold(r.minTau, r.direction)];
   if (r.maxSurrogateP !== null) parts.push(`surrogate p ≤ ${r.maxSurrogateP}`);
-  if (r.maxKendallP !== null) parts.push(`Kendall p ≤ ${r.maxKendallP}`);
+  if (r.fdrLevel !== null) parts.push(`false-discovery q ≤ ${r.fdrLevel} across all series`);
   if (r.levelThreshold !== null) parts.push(`latest value ${r.levelDirection === 'below' ? '≤' : '≥'} ${r.levelThreshold}`);
   if (r.persistence > 1) parts.push(`${r.persistence} consecutive analyses`);
   return parts.join(', ');
 }
 
 export function evidenceRows(e: AlertEvidence): Row[] {
-  const label = INDICATOR_LABELS[e.indicator] ?? e.indicator;
+  const series: Row = ['Series', `${e.series.name} (${e.series.slug})${e.series.site ? `, ${e.series.site}` : ''}`];
+  const span: Row = ['Data span', `${formatUtc(e.dataFrom)} to ${formatUtc(e.dataTo)} (${e.n} points analysed)`];
+  if (e.kind === 'abrupt-shift') {
+    return [
+      series,
+      ['Kind', 'abrupt shift of level (change-point detection)'],
+      ['Shift at', formatUtc(e.shift?.time ?? null)],
+      ['Size', e.shift?.size === null || e.shift?.size === undefined ? 'not given by the analysis' : formatValue(e.shift.size)],
+      span,
+    ];
+  }
+  const label = INDICATOR_LABELS[e.indicator ?? ''] ?? e.indicator ?? '';
   return [
-    ['Series', `${e.series.name} (${e.series.slug})${e.series.site ? `, ${e.series.site}` : ''}`],
+    series,
     ['Indicator', `${label} (${e.indicator})`],
-    ['Kendall tau', formatTau(e.tau)],
-    ['Kendall p', formatP(e.kendallP)],
-    ['Surrogate p', e.surrogateCount > 0 ? `${formatP(e.surrogateP)} from ${e.surrogateCount} ${e.surrogateMethod ?? ''} surrogates`.replace(/\s+/g, ' ') : 'not tested (no surrogates in the series settings)'],
+    ['Kendall tau', tauWithDirection(e.tau, e.direction)],
+    ['Surrogate p', e.surrogateCount > 0 ? `${formatP(e.surrogateP)} (${DIRECTION_WORDS[e.direction as 'rising'] ?? e.direction}) from ${e.surrogateCount} ${e.surrogateMethod ?? ''} surrogates`.replace(/\s+/g, ' ') : 'not tested (no surrogates in the series settings)'],
+    ['Kendall p', `${kendallPLabel(e.kendallP)}, ${DIRECTION_WORDS[e.kendallDirection as 'rising'] ?? e.kendallDirection}`],
     ['Latest value', formatValue(e.latestValue)],
-    ['Rolling window', `${Math.round(e.windowFraction * 100)}% of the record${e.windowPoints !== null ? ` (${e.windowPoints} points)` : ''}`],
+    ['Rolling window', describeExtent(e.windowFraction, e.windowPoints, 'the analysed stretch')],
     ['Detrending', describeDetrending(e)],
-    ['Data span', `${formatUtc(e.dataFrom)} to ${formatUtc(e.dataTo)} (${e.n} points analysed)`],
-    ['Rule', describeRule(e.rule)],
+    span,
+    ...(e.rule ? [['Rule', describeRule(e.rule)] as Row] : []),
+    ['False alarms', describeCalibration(e.calibration)],
   ];
 }
 
 export function newAlertMail(e: AlertEvidence): RenderedMail {
-  const label = INDICATOR_LABELS[e.indicator] ?? e.indicator;
+  if (e.kind === 'abrupt-shift') return shiftAlertMail(e);
+  const label = INDICATOR_LABELS[e.indicator ?? ''] ?? e.indicator ?? '';
   const level = e.severity === 'warning' ? 'Warning' : 'Watch';
   return compose({
     subject: `[Brinkwatch] ${level}: ${label} trend on ${e.series.name} (alert #${e.alertId})`,
-    heading: `${level}: rising evidence of slowing down on ${e.series.name}`,
-    intro: [`A rule on ${e.series.name} was met by the latest analysis. Please take the alert in the triage queue and decide what it means.`],
+    heading: `${level}: evidence of slowing down on ${e.series.name}`,
+    intro: [`A rule on ${e.series.name} was met by the latest analysis: the ${label} trend is ${DIRECTION_WORDS[e.direction as 'rising'] ?? e.direction} as the rule asks. Please take the alert in the triage queue and decide what it means.`],
+    rows: evidenceRows(e),
+    link: { href: alertLink(e.alertId), label: 'Open the alert' },
+    outro: ['You receive this because you watch this series with immediate mail. Change it on the series page.'],
+    caution: true,
+  });
+}
+
+/** A detected abrupt shift of level: news in itself, and the live analysis now judges only the stretch after it. */
+export function shiftAlertMail(e: AlertEvidence): RenderedMail {
+  const level = e.severity === 'warning' ? 'Warning' : 'Watch';
+  return compose({
+    subject: `[Brinkwatch] ${level}: abrupt shift on ${e.series.name} (alert #${e.alertId})`,
+    heading: `${level}: abrupt shift of level on ${e.series.name}`,
+    intro: [
+      `The latest analysis of ${e.series.name} found an abrupt shift of level at ${formatUtc(e.shift?.time ?? null)}. This is a change that has happened (or an instrument or data problem), not an early warning of one.`,
+      'From now on the slowing-down indicators are computed on the stretch after the shift only. Please take the alert in the triage queue and decide what it means.',
+    ],
     rows: evidenceRows(e),
     link: { href: alertLink(e.alertId), label: 'Open the alert' },
     outro: ['You receive this because you watch this series with immediate mail. Change it on the series page.'],
@@ -182,7 +228,9 @@ export function passwordResetMail(input: { name: string; link: string; expiresAt
 export interface DigestEntry {
   alertId: number;
   seriesName: string;
-  indicator: string;
+  /** the rule's indicator; null for an abrupt-shift alert */
+  indicator: string | null;
+  direction: string | null;
   severity: string;
   state: string;
   tau: number | null;
@@ -198,7 +246,9 @@ export function digestMail(input: { name: string; since: Date; entries: DigestEn
     intro: [`Alerts opened or decided since ${formatUtc(input.since)} on the series you follow by digest:`],
     rows: input.entries.map((e) => [
       `#${e.alertId} ${e.seriesName}`,
-      `${e.severity}, ${INDICATOR_LABELS[e.indicator] ?? e.indicator}, tau ${formatTau(e.tau)}, surrogate p ${formatP(e.surrogateP)}, ${e.state} — ${alertLink(e.alertId)}`,
+      e.indicator === null
+        ? `${e.severity}, abrupt shift, ${e.state} — ${alertLink(e.alertId)}`
+        : `${e.severity}, ${INDICATOR_LABELS[e.indicator] ?? e.indicator}, tau ${tauWithDirection(e.tau, e.direction)}, surrogate p ${formatP(e.surrogateP)}, ${e.state} — ${alertLink(e.alertId)}`,
     ]),
     link: { href: `${publicBaseUrl()}/alerts`, label: 'Open the alert queues' },
     caution: true,

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { ALERT_STATES } from '@/models/Alert';
+import { ALERT_KINDS, ALERT_STATES } from '@/models/Alert';
 import { WATCH_MODES } from '@/models/Watch';
 
 export const TRIAGE_ACTIONS = ['acknowledge', 'assign', 'escalate', 'confirm', 'dismiss', 'reopen'] as const;
@@ -48,6 +48,8 @@ export const alertQueueSchema = z.object({
   state: z.enum(ALERT_STATES).optional(),
   series: z.string().max(64).optional(),
   severity: z.enum(['watch', 'warning']).optional(),
+  /** 'slowing-down' (rule alerts) or 'abrupt-shift' */
+  kind: z.enum(ALERT_KINDS).optional(),
   age: z.string().regex(/^[<>]?\d{1,5}[hd]$/, 'Use e.g. 24h, <7d or >2d.').optional(),
   sort: z.enum(ALERT_SORTS).default('newest'),
   page: z.coerce.number().int().min(1).default(1),

@@ -1,7 +1,12 @@
 import { z } from 'zod';
 import { INDICATOR_NAMES } from '@/lib/engine/settings';
+import { RULE_DIRECTIONS, defaultRuleDirection } from '@/models/AlertRule';
 
 const probability = z.number().gt(0).max(1);
+
+/** Why a Kendall p gate is refused (README, "Alerts and mail"). */
+export const KENDALL_P_REFUSAL =
+  'The Kendall p is no longer a gate: it assumes independent values, and indicator values from overlapping windows are not independent (on stationary records it falls below 0.05 most of the time). Use maxSurrogateP or fdrLevel, which test against surrogates of the series itself.';
 
 /**
  * The fields of an alert rule. Several indicators are watched with several rules (one per indicator), so each
@@ -9,11 +14,17 @@ const probability = z.number().gt(0).max(1);
  */
 const ruleShape = {
   indicator: z.enum(INDICATOR_NAMES),
-  /** Kendall tau of the indicator's trend must reach this (tau ∈ [−1, 1]). */
+  /**
+   * Which way the trend must go: 'rising', 'falling' or 'either' (two-sided). Defaults to the indicator's own
+   * direction under slowing down (recovery falls; skewness and kurtosis either way; the others rise).
+   */
+  direction: z.enum(RULE_DIRECTIONS),
+  /** Kendall tau of the indicator's trend, seen in the rule's direction (−tau for 'falling', |tau| for 'either'), must reach this. */
   minTau: z.number().min(-1).max(1),
-  /** Share of surrogates whose tau reaches the observed tau must be at most this; needs surrogates in the series settings. */
+  /** Monte Carlo p of the trend against surrogates, in the rule's direction, must be at most this; needs surrogates in the series settings. */
   maxSurrogateP: probability.nullable(),
-  maxKendallP: probability.nullable(),
+  /** Kept so old clients that send null still validate; any number is refused (see KENDALL_P_REFUSAL). */
+  maxKendallP: z.null({ error: KENDALL_P_REFUSAL }),
   /** Optional test on the indicator's latest value, e.g. ac1 ≥ 0.9. */
   levelThreshold: z.number().finite().nullable(),
   levelDirection: z.enum(['above', 'below']),
@@ -22,15 +33,16 @@ const ruleShape = {
   severity: z.enum(['watch', 'warning']),
   /** After a dismissal, no new alert for this long unless the evidence is clearly stronger (see lib/alerts/evaluate.ts). */
   quietPeriodHours: z.number().min(0).max(24 * 366),
-  /** Benjamini–Hochberg false-discovery level across all surrogate p-values of one analysis cycle. */
+  /** Benjamini–Hochberg false-discovery level across the latest surrogate p of every rule that sets one (every series). */
   fdrLevel: z.number().gt(0).max(0.5).nullable(),
   active: z.boolean(),
 };
 
-/** One schema per entity: creation fills defaults, updates take any subset. */
+/** One schema per entity: creation fills defaults (direction from the indicator), updates take any subset. */
 export const ruleCreateSchema = z
   .object({
     ...ruleShape,
+    direction: ruleShape.direction.optional(),
     maxSurrogateP: ruleShape.maxSurrogateP.default(null),
     maxKendallP: ruleShape.maxKendallP.default(null),
     levelThreshold: ruleShape.levelThreshold.default(null),
@@ -41,7 +53,8 @@ export const ruleCreateSchema = z
     fdrLevel: ruleShape.fdrLevel.default(null),
     active: ruleShape.active.default(true),
   })
-  .strict();
+  .strict()
+  .transform((rule) => ({ ...rule, direction: rule.direction ?? defaultRuleDirection(rule.indicator) }));
 export const ruleUpdateSchema = z.object(ruleShape).partial().strict();
 
 export type RuleCreateInput = z.input<typeof ruleCreateSchema>;

@@ -116,7 +116,7 @@ describe('alerts end to end', () => {
     for (const fact of [
       'Fold basin <test> (fold-basin-e2e), Station 9',
       `from 200 ar1 surrogates`,
-      `50% of the record (${first.summary.windowPoints} points)`,
+      `50% of the analysed stretch (${first.summary.windowPoints} points)`,
       'Gaussian kernel smoothing, bandwidth 0.1',
       span,
       `${app.baseUrl.replace('127.0.0.1', 'localhost')}/alerts/${alertId}`,

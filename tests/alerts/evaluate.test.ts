@@ -16,7 +16,7 @@ beforeAll(async () => {
   await migrateUp();
 });
 
-const base: RuleThresholds = { indicator: 'ac1', minTau: 0.3, maxSurrogateP: 0.05, maxKendallP: null, levelThreshold: null, levelDirection: 'above', fdrLevel: null };
+const base: RuleThresholds = { indicator: 'ac1', direction: 'rising', minTau: 0.3, maxSurrogateP: 0.05, levelThreshold: null, levelDirection: 'above', fdrLevel: null };
 const summary = (tau: number | null, surrogateP: number | null, latest = 0.8, p = 0.01) => ({
   kendall: { ac1: { tau, p } },
   significance: surrogateP === null ? {} : { ac1: { p: surrogateP, count: 100, method: 'ar1' } },
@@ -26,20 +26,21 @@ const summary = (tau: number | null, surrogateP: number | null, latest = 0.8, p 
 describe('judgeRule', () => {
   it('passes only when every configured test passes, inclusive at the thresholds', () => {
     expect(judgeRule(base, summary(0.3, 0.05)).passed).toBe(true);
-    expect(judgeRule(base, summary(0.299, 0.01)).failed).toEqual(['tau below 0.3']);
+    expect(judgeRule(base, summary(0.299, 0.01)).failed).toEqual(['tau (rising) below 0.3']);
     expect(judgeRule(base, summary(0.6, 0.051)).failed).toEqual(['surrogate p above 0.05']);
   });
 
-  it('treats a missing number as a failed test, not as a pass', () => {
-    expect(judgeRule(base, summary(0.6, null)).failed).toEqual(['no surrogate test']);
-    expect(judgeRule(base, summary(null, 0.01)).passed).toBe(false);
-    expect(judgeRule({ ...base, indicator: 'variance' }, summary(0.9, 0.01)).failed[0]).toMatch(/not among the computed/);
+  it('does not judge on a missing number: says why, and does not pass', () => {
+    const noSurrogates = judgeRule(base, summary(0.6, null));
+    expect(noSurrogates).toMatchObject({ passed: false, failed: [] });
+    expect(noSurrogates.cannotJudge).toMatch(/no surrogate test/);
+    expect(judgeRule(base, summary(null, 0.01)).cannotJudge).toMatch(/no ac1 trend/);
+    expect(judgeRule({ ...base, indicator: 'variance' }, summary(0.9, 0.01)).cannotJudge).toMatch(/not among the computed/);
   });
 
-  it('tests Kendall p and the level of the latest value in both directions', () => {
-    const kendall = { ...base, maxSurrogateP: null, maxKendallP: 0.01 };
-    expect(judgeRule(kendall, summary(0.5, null, 0.8, 0.01)).passed).toBe(true);
-    expect(judgeRule(kendall, summary(0.5, null, 0.8, 0.02)).passed).toBe(false);
+  it('no longer gates on the Kendall p (it assumes independent values); tests the level of the latest value in both directions', () => {
+    const tauOnly = { ...base, maxSurrogateP: null };
+    expect(judgeRule(tauOnly, summary(0.5, null, 0.8, 0.9)).passed).toBe(true);
     const above = { ...base, levelThreshold: 0.9 };
     expect(judgeRule(above, summary(0.5, 0.01, 0.9)).passed).toBe(true);
     expect(judgeRule(above, summary(0.5, 0.01, 0.89)).passed).toBe(false);
@@ -57,13 +58,23 @@ describe('judgeRule', () => {
 });
 
 describe('clearlyStronger (the quiet-period test)', () => {
-  it('needs tau ≥ peak + 0.1 and at most half the surrogate p', () => {
+  it('needs oriented tau ≥ peak + 2 null standard deviations and a surrogate p not larger than the closed one', () => {
     const closed = { peakTau: 0.5, surrogateP: 0.04 };
-    expect(clearlyStronger({ tau: 0.6, surrogateP: 0.02 }, closed)).toBe(true);
-    expect(clearlyStronger({ tau: 0.59, surrogateP: 0.001 }, closed)).toBe(false);
-    expect(clearlyStronger({ tau: 0.8, surrogateP: 0.021 }, closed)).toBe(false);
-    expect(clearlyStronger({ tau: 0.8, surrogateP: null }, closed)).toBe(false);
-    expect(clearlyStronger({ tau: 0.6, surrogateP: null }, { peakTau: 0.5, surrogateP: null })).toBe(true);
+    const sd = 0.05; // margin 2·0.05 = 0.1
+    expect(clearlyStronger({ orientedTau: 0.6, surrogateP: 0.04, nullSd: sd }, closed)).toBe(true);
+    expect(clearlyStronger({ orientedTau: 0.599, surrogateP: 0.001, nullSd: sd }, closed)).toBe(false);
+    expect(clearlyStronger({ orientedTau: 0.8, surrogateP: 0.041, nullSd: sd }, closed)).toBe(false);
+    expect(clearlyStronger({ orientedTau: 0.8, surrogateP: null, nullSd: sd }, closed)).toBe(false);
+    expect(clearlyStronger({ orientedTau: 0.6, surrogateP: null, nullSd: sd }, { peakTau: 0.5, surrogateP: null })).toBe(true);
+    // Without the null spread nothing counts as clearly stronger: the quiet period holds.
+    expect(clearlyStronger({ orientedTau: 0.99, surrogateP: 0.001, nullSd: null }, closed)).toBe(false);
+  });
+
+  it('can be met when the closed alert sat at the surrogate floor 1/(N + 1)', () => {
+    const floor = 1 / 100; // N = 99 surrogates: the smallest Monte Carlo p (Davison & Hinkley 1997, Sec. 4.2.1)
+    expect(clearlyStronger({ orientedTau: 0.75, surrogateP: floor, nullSd: 0.1 }, { peakTau: 0.55, surrogateP: floor })).toBe(true);
+    // …but not when the tau gain is inside the null spread margin (0.19 < 2·0.1).
+    expect(clearlyStronger({ orientedTau: 0.74, surrogateP: floor, nullSd: 0.1 }, { peakTau: 0.55, surrogateP: floor })).toBe(false);
   });
 });
 
@@ -129,11 +140,12 @@ describe('evaluateSnapshots', () => {
     const opened = await evaluateSnapshots([await makeSnapshot(series, { tau: 0.5, surrogateP: 0.04 })]);
     await dismissAlert(opened.opened[0], 'instrument-fault', analyst, { note: 'Sensor swap on the 3rd.' });
 
+    // nullSd 0.05 (the helper's default): the margin is 2·0.05 = 0.1 above the closed peak of 0.5.
     const similar = await evaluateSnapshots([await makeSnapshot(series, { tau: 0.58, surrogateP: 0.01 })]);
     expect(similar).toMatchObject({ opened: [], suppressed: 1 });
-    const tauOnly = await evaluateSnapshots([await makeSnapshot(series, { tau: 0.9, surrogateP: 0.03 })]);
-    expect(tauOnly).toMatchObject({ opened: [], suppressed: 1 });
-    const stronger = await evaluateSnapshots([await makeSnapshot(series, { tau: 0.61, surrogateP: 0.02 })]);
+    const weakerP = await evaluateSnapshots([await makeSnapshot(series, { tau: 0.9, surrogateP: 0.045 })]);
+    expect(weakerP).toMatchObject({ opened: [], suppressed: 1 });
+    const stronger = await evaluateSnapshots([await makeSnapshot(series, { tau: 0.61, surrogateP: 0.04 })]);
     expect(stronger.opened).toHaveLength(1);
 
     // Past the quiet period anything that meets the rule opens an alert again.

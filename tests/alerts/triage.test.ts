@@ -159,7 +159,7 @@ describe('queues', () => {
     expect(triage.total).toBe(2);
     expect(triage.counts).toEqual({ triage: 2, escalated: 0, mine: 1, closed: 0 });
     expect((await q({ queue: 'mine' })).items.map((i) => i.id)).toEqual([opened[1]]);
-    expect((await q({ queue: 'triage', severity: 'warning' })).items.map((i) => i.rule.indicator)).toEqual(['variance']);
+    expect((await q({ queue: 'triage', severity: 'warning' })).items.map((i) => i.rule?.indicator)).toEqual(['variance']);
     expect((await q({ queue: 'triage', state: 'new' })).items.map((i) => i.id)).toEqual([opened[0]]);
     expect((await q({ queue: 'triage', sort: 'tau' })).items.map((i) => i.peakTau)).toEqual([0.7, 0.6]);
     const page2 = await q({ queue: 'triage', pageSize: 1, page: 2, sort: 'oldest' });
@@ -167,6 +167,6 @@ describe('queues', () => {
     expect(page2.total).toBe(2);
     expect((await q({ queue: 'triage', age: '>1d' })).total).toBe(0);
     expect((await q({ queue: 'triage', age: '1d' })).total).toBe(2);
-    expect(triage.items.find((i) => i.rule.indicator === 'ac1')!.latest).toEqual({ tau: 0.6, surrogateP: 0.01, kendallP: 0.001 });
+    expect(triage.items.find((i) => i.rule?.indicator === 'ac1')!.latest).toEqual({ tau: 0.6, direction: 'rising', surrogateP: 0.01, kendallP: 0.001 });
   });
 });

@@ -37,7 +37,7 @@ describe('the daily digest', () => {
     expect(digests[0].subject).toBe('[Brinkwatch] Daily digest: 1 alert on series you watch');
     expect(digests[0].textBody).toContain(`#${report.opened[0]} Series followed-basin`);
     expect(digests[0].textBody).toMatch(/warning|watch/);
-    expect(digests[0].textBody).toContain('tau 0.61, surrogate p 0.02, dismissed');
+    expect(digests[0].textBody).toContain('tau 0.61 (rising), surrogate p 0.02, dismissed');
     // A second run the same day (another scheduler, a restart) adds nothing.
     expect(await enqueueDigests()).toBe(0);
     // The next day only what happened since the last digest counts: nothing.

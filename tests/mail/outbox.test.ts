@@ -150,11 +150,14 @@ describe('the outbox', () => {
 describe('templates', () => {
   const evidence: AlertEvidence = {
     alertId: 7,
+    kind: 'slowing-down',
     severity: 'warning',
     series: { name: 'Basin <b>north</b> & "east"', slug: 'basin-north', site: 'Pier 4', timeZone: 'UTC' },
     indicator: 'ac1',
+    direction: 'rising',
     tau: 0.6234,
     kendallP: 0.00002,
+    kendallDirection: 'rising',
     surrogateP: 0.0123,
     surrogateCount: 500,
     surrogateMethod: 'ar1',
@@ -167,13 +170,15 @@ describe('templates', () => {
     dataFrom: Date.UTC(2024, 0, 1),
     dataTo: Date.UTC(2024, 11, 31),
     n: 366,
-    rule: { minTau: 0.3, maxSurrogateP: 0.05, maxKendallP: null, levelThreshold: null, levelDirection: 'above', persistence: 1 },
+    rule: { minTau: 0.3, direction: 'rising', maxSurrogateP: 0.05, fdrLevel: null, levelThreshold: null, levelDirection: 'above', persistence: 1 },
+    calibration: null,
+    shift: null,
   };
 
   it('states the evidence, the method and the caution, and escapes user text in HTML', () => {
     const rendered = newAlertMail(evidence);
     expect(rendered.subject).toBe('[Brinkwatch] Warning: lag-1 autocorrelation trend on Basin <b>north</b> & "east" (alert #7)');
-    for (const fact of ['0.62', '< 0.001', '0.0123 from 500 ar1 surrogates', '50% of the record (180 points)', 'Gaussian kernel smoothing, bandwidth 0.1', '2024-01-01 00:00 UTC to 2024-12-31 00:00 UTC (366 points analysed)', '/alerts/7', 'not forecasts'])
+    for (const fact of ['0.62', '< 0.001', '0.0123 (rising) from 500 ar1 surrogates', '50% of the analysed stretch (180 points)', 'Gaussian kernel smoothing, bandwidth 0.1', '2024-01-01 00:00 UTC to 2024-12-31 00:00 UTC (366 points analysed)', '/alerts/7', 'not forecasts'])
       expect(rendered.text).toContain(fact);
     expect(rendered.html).toContain('Basin &lt;b&gt;north&lt;/b&gt; &amp; &quot;east&quot;');
     expect(rendered.html).not.toContain('<b>north</b>');

@@ -17,6 +17,7 @@ export default async function AlertsPage({ searchParams }: { searchParams: Promi
     queue: query.queue as QueueFilters['queue'],
     series: query.series ?? '',
     severity: query.severity ?? '',
+    kind: query.kind ?? '',
     age: query.age ?? '',
     sort: query.sort,
     page: query.page,

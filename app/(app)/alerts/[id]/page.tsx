@@ -8,7 +8,9 @@ import { LocalTime } from '@/components/LocalTime';
 import { Empty, Panel } from '@/components/States';
 import { fetchAlertPage } from '@/lib/alert-page';
 import { requireRole } from '@/lib/auth/guard';
-import { formatP, formatTau } from '@/lib/display/format';
+import { formatP, formatTau, formatValue } from '@/lib/display/format';
+import { DIRECTION_WORDS, describeCalibration, kendallPLabel, tauThreshold, tauWithDirection } from '@/lib/alerts/wording';
+import type { RuleRecord } from '@/lib/alerts/rules';
 import { idParam } from '@/lib/http/params';
 import { roleAtLeast } from '@/models/roles';
 
@@ -28,6 +30,7 @@ export default async function AlertPage({ params }: { params: Promise<{ id: stri
   const { detail, firstView, latestView, transitions, colleagues } = await fetchAlertPage(id, actor);
   const tz = detail.series.timeZone;
   const lastEval = detail.evidence.evaluations[detail.evidence.evaluations.length - 1];
+  const rule = detail.rule as RuleRecord | null;
   const notes = JSON.parse(JSON.stringify(detail.notes)) as NoteItem[];
   return (
     <section className="space-y-4">
@@ -35,7 +38,9 @@ export default async function AlertPage({ params }: { params: Promise<{ id: stri
         <Link href="/alerts" className="text-tide hover:underline">Alerts</Link> / #{detail.id}
       </nav>
       <header className="flex flex-wrap items-center gap-3">
-        <h1 className="text-xl font-semibold">Alert #{detail.id}: {detail.rule.indicator} rising on <Link href={`/series/${detail.series.slug}`} className="text-tide hover:underline">{detail.series.name}</Link></h1>
+        <h1 className="text-xl font-semibold">
+          Alert #{detail.id}: {rule ? `${rule.indicator} ${DIRECTION_WORDS[rule.direction]}` : 'abrupt shift of level'} on <Link href={`/series/${detail.series.slug}`} className="text-tide hover:underline">{detail.series.name}</Link>
+        </h1>
         <SeverityBadge severity={detail.severity} />
         <span data-testid="alert-state"><AlertStateBadge state={detail.state} /></span>
       </header>
@@ -43,14 +48,28 @@ export default async function AlertPage({ params }: { params: Promise<{ id: stri
       <div className="grid grid-cols-1 gap-4 lg:grid-cols-[minmax(0,1fr)_340px]">
         <div className="min-w-0 space-y-4">
           <Panel title="Evidence" id="evidence">
-            <dl className="num mb-3 grid grid-cols-2 gap-x-4 gap-y-1 text-sm sm:grid-cols-4">
-              <dt className="text-ink-soft">Rule</dt><dd>τ ≥ {formatTau(detail.rule.minTau)}{detail.rule.maxSurrogateP !== null ? `, p ≤ ${formatP(detail.rule.maxSurrogateP)}` : ''}</dd>
-              <dt className="text-ink-soft">Strongest τ</dt><dd>{formatTau(detail.peakTau)}</dd>
-              <dt className="text-ink-soft">Latest τ / p</dt><dd>{formatTau(lastEval?.tau)} / {formatP(lastEval?.surrogateP ?? lastEval?.kendallP)}</dd>
-              <dt className="text-ink-soft">Evaluations</dt><dd>{detail.evaluationCount}</dd>
-            </dl>
-            <EvidenceCharts first={firstView} latest={latestView ?? firstView} indicator={detail.rule.indicator}
-              series={{ slug: detail.series.slug, name: detail.series.name, unit: detail.series.unit, timeZone: tz }} transitions={transitions} />
+            {rule ? (
+              <dl className="num mb-3 grid grid-cols-2 gap-x-4 gap-y-1 text-sm sm:grid-cols-4" data-testid="alert-evidence">
+                <dt className="text-ink-soft">Rule</dt>
+                <dd>{tauThreshold(rule.minTau, rule.direction)}{rule.maxSurrogateP !== null ? `, surrogate p ≤ ${formatP(rule.maxSurrogateP)}` : ''}{rule.fdrLevel !== null ? `, q ≤ ${rule.fdrLevel}` : ''}</dd>
+                <dt className="text-ink-soft">Strongest τ</dt><dd>{formatTau(detail.peakTau)} in the rule&apos;s direction ({DIRECTION_WORDS[rule.direction]})</dd>
+                <dt className="text-ink-soft">Latest τ</dt><dd>{tauWithDirection(lastEval?.tau, lastEval?.direction)}</dd>
+                <dt className="text-ink-soft">Surrogate p</dt><dd>{formatP(lastEval?.surrogateP)}</dd>
+                <dt className="text-ink-soft">Kendall p</dt><dd>{kendallPLabel(lastEval?.kendallP)}</dd>
+                <dt className="text-ink-soft">Evaluations</dt><dd>{detail.evaluationCount}</dd>
+                <dt className="text-ink-soft">False alarms</dt><dd className="sm:col-span-3" data-testid="rule-calibration">{describeCalibration(rule.calibration)}</dd>
+              </dl>
+            ) : (
+              <dl className="num mb-3 grid grid-cols-2 gap-x-4 gap-y-1 text-sm sm:grid-cols-4" data-testid="alert-evidence">
+                <dt className="text-ink-soft">Kind</dt><dd>abrupt shift of level (change-point detection)</dd>
+                <dt className="text-ink-soft">Shift at</dt><dd><LocalTime t={detail.shift?.time ?? null} timeZone={tz} withZone /></dd>
+                <dt className="text-ink-soft">Size</dt><dd>{detail.shift?.size === null || detail.shift?.size === undefined ? 'not given' : formatValue(detail.shift.size, detail.series.unit)}</dd>
+                <dt className="text-ink-soft">After it</dt><dd>indicators are computed on the stretch after the shift only</dd>
+              </dl>
+            )}
+            <EvidenceCharts first={firstView} latest={latestView ?? firstView} indicator={rule?.indicator ?? null}
+              series={{ slug: detail.series.slug, name: detail.series.name, unit: detail.series.unit, timeZone: tz }}
+              transitions={detail.shift ? [...transitions, { at: detail.shift.time, note: 'abrupt shift (this alert)' }] : transitions} />
           </Panel>
           <Panel title="Notes" id="notes">
             <AlertNotes alertId={detail.id} notes={notes} canWrite={roleAtLeast(actor.role, 'analyst')} timeZone={tz} />

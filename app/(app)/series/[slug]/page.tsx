@@ -1,5 +1,7 @@
 import Link from 'next/link';
 import { BacktestPanel } from '@/components/backtest/BacktestPanel';
+import { SeriesRules } from '@/components/alerts/SeriesRules';
+import { ruleStatuses } from '@/lib/alerts/rules';
 import { Caution } from '@/components/Caution';
 import { LocalTime } from '@/components/LocalTime';
 import { ErrorNote } from '@/components/States';
@@ -43,6 +45,7 @@ export default async function SeriesPage({ params }: { params: Promise<{ slug: s
         history={bench.history}
         quality={<QualityPanel quality={bench.view?.quality ?? null} runs={bench.runs} rejectedRows={bench.rejectedRows} extent={bench.extent} timeZone={series.timeZone} />}
       />
+      <SeriesRules statuses={JSON.parse(JSON.stringify(await ruleStatuses(series.id)))} timeZone={series.timeZone} />
       <BacktestPanel slug={series.slug} timeZone={series.timeZone} canRun={roleAtLeast(actor.role, 'lead')} />
     </section>
   );

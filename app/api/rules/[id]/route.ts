@@ -4,13 +4,13 @@ import { handle } from '@/lib/http/handler';
 import { readJson } from '@/lib/http/body';
 import { idParam } from '@/lib/http/params';
 import { ruleUpdateSchema } from '@/lib/schemas/rule';
-import { deleteRule, presentRule, updateRule } from '@/lib/alerts/rules';
+import { deleteRule, presentRules, updateRule } from '@/lib/alerts/rules';
 
 export const PATCH = handle<{ id: string }>(async (request, { params }) => {
   const actor = await requireRole('lead');
   const id = idParam((await params).id, 'Rule');
   const changes = await readJson(request, ruleUpdateSchema);
-  return NextResponse.json(presentRule(await updateRule(id, changes, actor)));
+  return NextResponse.json((await presentRules([await updateRule(id, changes, actor)]))[0]);
 });
 
 /** Deletes a rule; one that already raised alerts is deactivated instead and the answer says so. */

@@ -1,5 +1,5 @@
 import { NextResponse } from 'next/server';
-import { presentRule } from '@/lib/alerts/rules';
+import { presentRules } from '@/lib/alerts/rules';
 import { requireRole } from '@/lib/auth/guard';
 import { saveRuleThreshold } from '@/lib/backtest/jobs';
 import { readJson } from '@/lib/http/body';
@@ -12,5 +12,5 @@ export const POST = handle<{ id: string }>(async (request, { params }) => {
   const actor = await requireRole('lead');
   const id = idParam((await params).id, 'Rule');
   const body = await readJson(request, thresholdSchema);
-  return NextResponse.json(presentRule(await saveRuleThreshold(id, body, actor)));
+  return NextResponse.json((await presentRules([await saveRuleThreshold(id, body, actor)]))[0]);
 });

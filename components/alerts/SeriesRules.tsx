@@ -1,0 +1,51 @@
+import { LocalTime } from '@/components/LocalTime';
+import { Empty, Panel } from '@/components/States';
+import { formatP } from '@/lib/display/format';
+import { describeCalibration, tauThreshold, tauWithDirection } from '@/lib/alerts/wording';
+import type { RuleStanding, RuleStatus } from '@/lib/alerts/rules';
+
+const STANDING_WORDS: Record<RuleStanding, string> = {
+  met: 'met',
+  building: 'passing, not yet persistent',
+  'not-met': 'not met',
+  'cannot-judge': 'could not be judged',
+  'not-yet-judged': 'not judged yet',
+};
+
+/**
+ * The series' rules with how each stood at its latest judgement: a rule that could not be judged says why (failed
+ * analysis, windows below the coverage floor, no surrogate p), with its calibrated false-alarm rate and warnings.
+ */
+export function SeriesRules({ statuses, timeZone }: { statuses: RuleStatus[]; timeZone: string }) {
+  return (
+    <Panel title="Alert rules" id="rules">
+      {statuses.length === 0 ? (
+        <Empty>This series has no alert rules.</Empty>
+      ) : (
+        <ul className="space-y-3 text-sm" data-testid="rule-statuses">
+          {statuses.map(({ rule, standing, latest }) => (
+            <li key={rule.id} className="border-l-2 border-rule pl-3" data-rule={rule.id} data-standing={standing}>
+              <div className="font-medium">
+                #{rule.id} {rule.indicator}: {tauThreshold(rule.minTau, rule.direction)}
+                {rule.maxSurrogateP !== null ? `, surrogate p ≤ ${rule.maxSurrogateP}` : ''}
+                {rule.fdrLevel !== null ? `, q ≤ ${rule.fdrLevel}` : ''}
+                {rule.persistence > 1 ? `, ${rule.persistence} analyses in a row` : ''} · {rule.severity}
+                {rule.active ? '' : ' · inactive'}
+              </div>
+              <div className={standing === 'cannot-judge' ? 'font-medium text-warning' : 'text-ink-soft'}>
+                Latest: {STANDING_WORDS[standing]}
+                {latest ? <> (<LocalTime t={latest.at as unknown as string} timeZone={timeZone} />)</> : null}
+                {latest && standing !== 'met' && standing !== 'building' ? ` — ${latest.outcome.replace(/^(cannot-judge|not-met): /, '')}` : ''}
+              </div>
+              {latest && standing !== 'cannot-judge' ? (
+                <div className="num text-xs text-ink-soft">τ {tauWithDirection(latest.tau, latest.direction)} · surrogate p {formatP(latest.surrogateP)}{latest.qValue !== null ? ` · q ${formatP(latest.qValue)}` : ''}</div>
+              ) : null}
+              <div className="text-xs text-ink-soft">False alarms: {describeCalibration(rule.calibration)}</div>
+              {rule.warnings.map((w) => <p key={w} className="text-xs text-warning">{w}</p>)}
+            </li>
+          ))}
+        </ul>
+      )}
+    </Panel>
+  );
+}
