@@ -7,6 +7,8 @@ import { sensitivityGrid, type SensitivityResult } from './sensitivity';
 import { computeSurrogateTaus } from './surrogate-pool';
 import { prepareSurrogateJob, surrogatePValue } from './surrogates';
 import type { AnalysisSettings, IndicatorName, SurrogateMethod } from './settings';
+import { INDICATOR_DIRECTIONS, type TrendDirection } from './direction';
+import { extentPoints } from './extent';
 
 /** Shown with every result: what the numbers are and are not. */
 export const ANALYSIS_CAUTION =
@@ -19,7 +21,12 @@ export interface AnalysisInput {
   /** Sampling interval in the unit of `time`; inferred (median spacing) when omitted. */
   intervalMs?: number;
   timeKind?: TimeKind;
+  /** TEMP engine contract shim: marks the stretch starts after. */
+  breaks?: { time: number; kind: 'transition' | 'maintenance' }[];
 }
+
+/** TEMP engine contract shim: why the analysed stretch starts where it does. */
+export type StretchStart = 'record-start' | 'shift' | 'transition' | 'maintenance' | 'sampling' | 'span' | 'gap';
 
 export interface AnalysisResult {
   /** points analysed (after preparation; n − 1 of them for `difference`) */
@@ -34,10 +41,18 @@ export interface AnalysisResult {
   interval: number;
   series: { time: Float64Array; value: Float64Array; trend: Float64Array; residual: Float64Array };
   indicators: Partial<Record<IndicatorName, (number | null)[]>>;
-  kendall: Partial<Record<IndicatorName, { tau: number | null; p: number | null }>>;
-  significance: Partial<Record<IndicatorName, { p: number | null; count: number; method: SurrogateMethod; taus: number[] }>>;
+  kendall: Partial<Record<IndicatorName, { tau: number | null; p: number | null; direction: TrendDirection }>>;
+  significance: Partial<Record<IndicatorName, { p: number | null; count: number; method: SurrogateMethod; taus: number[]; direction: TrendDirection }>>;
   sensitivity: SensitivityResult | null;
-  quality: PreparationQuality;
+  shifts: { time: number; index: number }[];
+  stretch: { from: number; to: number; startsAfter: StretchStart };
+  quality: PreparationQuality & {
+    coverage: number;
+    windowsBelowCoverage: number;
+    flatRuns: { from: number; to: number; points: number }[];
+    samplingChanges: { time: number; before: number; after: number }[];
+    samplingHandling: 'start-after' | 'subsample' | null;
+  };
   caution: string;
 }
 
@@ -85,13 +100,26 @@ function lazyIndicators(values: Partial<Record<IndicatorName, Float64Array>>): A
  */
 export async function runAnalysis(input: AnalysisInput, settings: AnalysisSettings, options: { parallel?: boolean } = {}): Promise<AnalysisResult> {
   const kind = input.timeKind ?? 'utc-ms';
-  const prepared = prepareSeries(input, settings);
-  const x = prepared.value;
-  if (x.length < 8) throw new AnalysisInputError(`the series has ${x.length} usable points; at least 8 are needed`);
-  const h = settings.bandwidth * x.length;
+  // TEMP engine contract shim: span as an extent, breaks cut the stretch, no shift detection.
+  const roughPoints = input.time.length > 1 ? (input.time[input.time.length - 1] - input.time[0]) / (input.intervalMs ?? 1) + 1 : input.time.length;
+  const spanPoints = settings.span === null || input.intervalMs === undefined ? null : Math.max(8, Math.round(extentPoints(settings.span, roughPoints, input.intervalMs, kind)));
+  const prepared = prepareSeries(input, { ...settings, spanPoints });
+  let startsAfter: StretchStart = prepared.quality.droppedBeforeSpan > 0 ? 'span' : prepared.quality.droppedBeforeStretch > 0 ? 'gap' : 'record-start';
+  let cut = 0;
+  for (const mark of input.breaks ?? []) {
+    const at = prepared.time.findIndex((t) => t >= mark.time);
+    if (at > cut) {
+      cut = at;
+      startsAfter = mark.kind;
+    }
+  }
+  const x = prepared.value.subarray(cut);
+  const stretchTime = prepared.time.subarray(cut);
+  if (x.length < 8) throw new AnalysisInputError(`the stretch after ${startsAfter} has ${x.length} usable points; at least 8 are needed`);
+  const h = extentPoints(settings.bandwidth, x.length, prepared.interval, kind);
   const d = detrend(x, settings.detrend, { bandwidthPoints: h, movingAverageWidth: settings.movingAverageWidth });
   const n = d.residual.length;
-  const w = windowPoints(settings.window, n);
+  const w = windowPoints(Math.round(extentPoints(settings.window, n, prepared.interval, kind)) / n, n);
   const dt = kind === 'utc-ms' ? prepared.interval / DAY_MS : prepared.interval;
   const raw = x.subarray(d.offset);
   const names = settings.indicators;
@@ -100,7 +128,7 @@ export async function runAnalysis(input: AnalysisInput, settings: AnalysisSettin
   const indicators = lazyIndicators(values);
   const kendall: AnalysisResult['kendall'] = {};
   const trends = indicatorTrends(values);
-  for (const name of names) kendall[name] = { tau: finiteOrNull(trends[name]!.tau), p: finiteOrNull(trends[name]!.p) };
+  for (const name of names) kendall[name] = { tau: finiteOrNull(trends[name]!.tau), p: finiteOrNull(trends[name]!.p), direction: INDICATOR_DIRECTIONS[name] };
 
   const significance: AnalysisResult['significance'] = {};
   if (settings.surrogates > 0) {
@@ -108,12 +136,12 @@ export async function runAnalysis(input: AnalysisInput, settings: AnalysisSettin
     const { taus } = await computeSurrogateTaus(job, settings.surrogates, { parallel: options.parallel });
     for (const name of names) {
       const { p, count } = surrogatePValue(kendall[name]!.tau ?? Number.NaN, taus[name]);
-      significance[name] = { p, count, method: settings.surrogateMethod, taus: Array.from(taus[name]).filter(Number.isFinite) };
+      significance[name] = { p, count, method: settings.surrogateMethod, taus: Array.from(taus[name]).filter(Number.isFinite), direction: INDICATOR_DIRECTIONS[name] };
     }
   }
 
   const sensitivity = settings.sensitivity
-    ? sensitivityGrid(x, x, { detrend: settings.detrend, movingAverageWidth: settings.movingAverageWidth, bandwidth: settings.bandwidth, indicators: [...names], dt })
+    ? sensitivityGrid(x, x, { detrend: settings.detrend, movingAverageWidth: settings.movingAverageWidth, bandwidth: h / x.length, indicators: [...names], dt })
     : null;
 
   return {
@@ -123,12 +151,14 @@ export async function runAnalysis(input: AnalysisInput, settings: AnalysisSettin
     dt,
     rateUnit: kind === 'utc-ms' ? 'per day' : 'per time unit',
     interval: prepared.interval,
-    series: { time: prepared.time.subarray(d.offset), value: raw, trend: d.trend, residual: d.residual },
+    series: { time: stretchTime.subarray(d.offset), value: raw, trend: d.trend, residual: d.residual },
     indicators,
     kendall,
     significance,
     sensitivity,
-    quality: prepared.quality,
+    shifts: [],
+    stretch: { from: stretchTime[0], to: stretchTime[stretchTime.length - 1], startsAfter },
+    quality: { ...prepared.quality, coverage: 1 - prepared.quality.filledPoints / prepared.value.length, windowsBelowCoverage: 0, flatRuns: [], samplingChanges: [], samplingHandling: null },
     caution: ANALYSIS_CAUTION,
   };
 }

@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { DETREND_METHODS } from './detrend';
+import { parseExtent } from './extent';
 
 /** The rolling indicators the engine computes (see README, "Indicator definitions"). */
 export const INDICATOR_NAMES = ['variance', 'sd', 'cv', 'ac1', 'skewness', 'kurtosis', 'recovery'] as const;
@@ -12,10 +13,18 @@ export type SurrogateMethod = (typeof SURROGATE_METHODS)[number];
  * Settings of one analysis. Every field has a default, so `analysisSettingsSchema.parse({})` gives the
  * engine defaults (the command line's defaults).
  */
-export const analysisSettingsSchema = z.object({
+// TEMP engine contract shim: extents, span, minCoverage, samplingChange, shiftDetection (CONTRACT.md).
+const extentText = z.string().trim().refine((v) => { try { parseExtent(v); return true; } catch { return false; } }, 'a fraction, "<n> points" or an ISO 8601 duration');
+const legacySpan = (input: unknown) => {
+  if (!input || typeof input !== 'object' || !('spanPoints' in input)) return input;
+  const { spanPoints, ...rest } = input as Record<string, unknown>;
+  return 'span' in rest || spanPoints === null || spanPoints === undefined ? rest : { ...rest, span: `${spanPoints} points` };
+};
+
+export const analysisSettingsSchema = z.preprocess(legacySpan, z.object({
   detrend: z.enum(DETREND_METHODS).default('gaussian'),
   /** Gaussian kernel bandwidth as a fraction of the series length (h = bandwidth · n points). */
-  bandwidth: z.number().positive().max(100).default(0.1),
+  bandwidth: z.union([z.number().positive().max(100), extentText]).default(0.1),
   /** Width of the centred moving average, in points (odd). */
   movingAverageWidth: z
     .number()
@@ -24,7 +33,7 @@ export const analysisSettingsSchema = z.object({
     .refine((v) => v % 2 === 1, { message: 'must be odd' })
     .default(11),
   /** Rolling window as a fraction of the series length (w = round(window · n) points, at least 8). */
-  window: z.number().positive().max(1).default(0.5),
+  window: z.union([z.number().positive().max(1), extentText]).default(0.5),
   indicators: z
     .array(z.enum(INDICATOR_NAMES))
     .min(1)
@@ -39,8 +48,11 @@ export const analysisSettingsSchema = z.object({
   maxGap: z.number().int().min(0).default(3),
   gapPolicy: z.enum(['error', 'latest-stretch']).default('error'),
   /** Analyse only the trailing span of this many grid points (null = whole record). */
-  spanPoints: z.number().int().min(8).nullable().default(null),
+  span: z.union([z.number().positive().max(1), extentText]).nullable().default(null),
+  minCoverage: z.number().gt(0).max(1).default(0.8),
+  samplingChange: z.enum(['start-after', 'subsample']).default('start-after'),
+  shiftDetection: z.enum(['on', 'off']).default('on'),
   sensitivity: z.boolean().default(false),
-});
+}));
 
 export type AnalysisSettings = z.infer<typeof analysisSettingsSchema>;
