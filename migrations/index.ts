@@ -7,6 +7,7 @@ import * as alertAge from './0003-alert-age-index';
 import * as sessionVersion from './0004-user-session-version';
 import * as alertTauOrder from './0005-alert-tau-order';
 import * as snapshotChartView from './0006-snapshot-chart-view';
+import * as transitionKind from './0008-transition-kind';
 
 /**
  * The ordered list of schema changes. Listed explicitly (not globbed) so the same list works in the Next.js server
@@ -19,6 +20,7 @@ const MIGRATIONS = [
   { name: '0004-user-session-version', ...sessionVersion },
   { name: '0005-alert-tau-order', ...alertTauOrder },
   { name: '0006-snapshot-chart-view', ...snapshotChartView },
+  { name: '0008-transition-kind', ...transitionKind },
 ];
 
 async function migrator(): Promise<Umzug<QueryInterface>> {
