@@ -46,7 +46,8 @@ export async function seriesBreaks(seriesId: number, range: { from?: number; to?
   const at: Record<symbol, number> = {};
   if (range.from !== undefined) at[Op.gt] = range.from;
   if (range.to !== undefined && range.to !== null) at[Op.lte] = range.to;
-  const marks = await Transition.findAll({ where: { seriesId, at }, attributes: ['at', 'kind'], order: [['at', 'ASC'], ['id', 'ASC']] });
+  const where = Object.getOwnPropertySymbols(at).length ? { seriesId, at } : { seriesId };
+  const marks = await Transition.findAll({ where, attributes: ['at', 'kind'], order: [['at', 'ASC'], ['id', 'ASC']] });
   return marks.map((mark) => ({ time: Number(mark.at), kind: mark.kind }));
 }
 
