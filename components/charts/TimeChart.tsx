@@ -21,7 +21,8 @@ export interface TimeChartProps {
   height?: number;
   /** the span one rolling window covers, drawn as a band ending at the last point */
   windowBand?: { from: number; to: number } | null;
-  transitions?: { at: number; note: string }[];
+  /** marks on the record: known transitions, and maintenance breaks (`kind: 'maintenance'`, drawn apart) */
+  transitions?: { at: number; note: string; kind?: 'transition' | 'maintenance' }[];
   /** detected abrupt shifts of level, each at the first instant of the new level */
   shifts?: { time: number }[];
   /** where the analysed stretch starts and why (labelled when `label` is set) */
@@ -64,10 +65,15 @@ export function TimeChart({ rows, lines, timeZone, unit = '', height = 220, wind
             label={{ value: 'one window', position: 'insideTopRight', fontSize: 11, fill: '#164e55' }} ifOverflow="extendDomain" />
         ) : null}
         {zeroLine ? <ReferenceLine y={0} stroke="#6b7785" strokeDasharray="4 2" /> : null}
-        {transitions.map((tr) => (
-          <ReferenceLine key={tr.at} x={tr.at} stroke="#a8322a" strokeWidth={1.5} strokeDasharray="6 3"
-            label={{ value: `◆ ${tr.note || 'known transition'}`, position: 'insideTopLeft', fontSize: 11, fill: '#a8322a' }} />
-        ))}
+        {transitions.map((tr) =>
+          tr.kind === 'maintenance' ? (
+            <ReferenceLine key={`m-${tr.at}`} x={tr.at} stroke="#6b7785" strokeWidth={1.5} strokeDasharray="1 3"
+              label={{ value: `⚙ ${tr.note || 'maintenance break'}`, position: 'insideTopLeft', fontSize: 11, fill: '#3c4a57' }} />
+          ) : (
+            <ReferenceLine key={tr.at} x={tr.at} stroke="#a8322a" strokeWidth={1.5} strokeDasharray="6 3"
+              label={{ value: `◆ ${tr.note || 'known transition'}`, position: 'insideTopLeft', fontSize: 11, fill: '#a8322a' }} />
+          ),
+        )}
         {stretchStart ? (
           <ReferenceLine x={stretchStart.at} stroke="#1f6f78" strokeWidth={2} ifOverflow="extendDomain" shape={stretchLine}
             label={stretchStart.label ? { value: `▸ ${stretchStart.label}`, position: 'insideBottomLeft', fontSize: 11, fill: '#164e55' } : undefined} />

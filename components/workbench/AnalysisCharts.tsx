@@ -49,7 +49,7 @@ export function trendLegend(view: AnalysisView, name: string): string {
 export function AnalysisCharts({ view, series, transitions = [], idPrefix = '', compact = false }: {
   view: AnalysisView;
   series: ChartSeries;
-  transitions?: { at: number; note: string }[];
+  transitions?: { at: number; note: string; kind?: 'transition' | 'maintenance' }[];
   idPrefix?: string;
   /** fewer, shorter charts (report, alert evidence) */
   compact?: boolean;

@@ -36,7 +36,7 @@ export interface WorkbenchProps {
   initialView: AnalysisView | null;
   canTune: boolean;
   canSave: boolean;
-  transitions: { at: number; note: string }[];
+  transitions: { at: number; note: string; kind?: 'transition' | 'maintenance' }[];
   history: SettingsHistoryEntry[];
   quality: React.ReactNode;
 }

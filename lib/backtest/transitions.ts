@@ -1,4 +1,4 @@
-import { Transition, db, writeTransaction } from '@/models';
+import { Series, Transition, db, writeTransaction } from '@/models';
 import type { MarkKind } from '@/models/Transition';
 import { recordAudit } from '@/lib/audit';
 import type { Actor } from '@/lib/auth/guard';
@@ -23,6 +23,8 @@ export async function listTransitions(seriesId: number, kinds: readonly MarkKind
 export async function markTransition(seriesId: number, input: TransitionCreate, actor: Pick<Actor, 'id'>): Promise<TransitionRecord> {
   return writeTransaction(async (transaction) => {
     const row = await Transition.create({ seriesId, at: input.at, note: input.note, kind: input.kind, createdBy: actor.id }, { transaction });
+    // A mark moves where the live analysis starts: analyse the series again on the next cycle.
+    await Series.update({ needsAnalysis: true }, { where: { id: seriesId }, transaction });
     await recordAudit({ actorId: actor.id, action: 'transition.create', entity: 'transition', entityId: row.id, details: { seriesId, at: input.at, note: input.note, kind: input.kind } }, transaction);
     return presentTransition(row);
   });
@@ -34,5 +36,6 @@ export async function removeTransition(id: number, actor: Pick<Actor, 'id'>): Pr
     if (!row) throw new NotFoundError('Transition');
     await recordAudit({ actorId: actor.id, action: 'transition.delete', entity: 'transition', entityId: id, details: presentTransition(row) }, transaction);
     await row.destroy({ transaction });
+    await Series.update({ needsAnalysis: true }, { where: { id: row.seriesId }, transaction });
   });
 }

@@ -84,8 +84,12 @@ describe('marks as breaks of the live analysis', () => {
 
   it('keeps maintenance breaks out of the transitions backtests score against', async () => {
     const { series, times } = await dailySeries('both-kinds', 50, {});
+    await series.update({ needsAnalysis: false });
     const made = await markTransition(series.id, transitionCreateSchema.parse({ at: times[10], note: 'collapse' }), lead);
     expect(made.kind).toBe('transition');
+    // A new mark moves where the live analysis starts, so the series is analysed again on the next cycle.
+    await series.reload();
+    expect(series.needsAnalysis).toBe(true);
     await markTransition(series.id, transitionCreateSchema.parse({ at: times[20], kind: 'maintenance' }), lead);
     expect((await listTransitions(series.id)).map((t) => t.kind)).toEqual(['transition']);
     expect((await listTransitions(series.id, ['transition', 'maintenance'])).map((t) => t.kind)).toEqual(['transition', 'maintenance']);
