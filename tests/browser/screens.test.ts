@@ -166,7 +166,7 @@ describe('screens in Chromium', () => {
       await page.reload();
       await page.waitForLoadState('networkidle');
       return page.locator('[data-testid="stretch-start"]').count();
-    }, { timeout: 120_000, intervals: [3000] }).toBeGreaterThan(0);
+    }, { timeout: 120_000, interval: 3000 }).toBeGreaterThan(0);
     await expect(page.locator('[data-testid="shift-marker"]').count()).resolves.toBeGreaterThan(0);
     await expect(page.getByTestId('chart-record').textContent()).resolves.toMatch(/analysed since/);
     await expect(page.locator('[data-testid^="trend-"]').first().textContent()).resolves.toMatch(/tested (rising|falling|either way)/);
