@@ -29,7 +29,7 @@ export interface Workbench {
   runs: IntakeRunSummary[];
   rejectedRows: number;
   history: SettingsHistoryEntry[];
-  transitions: { id: number; at: number; note: string }[];
+  transitions: { id: number; at: number; note: string; kind: 'transition' | 'maintenance' }[];
 }
 
 /**
@@ -73,6 +73,6 @@ async function loadWorkbench(slug: string): Promise<Workbench> {
     })),
     rejectedRows: Number(rejected[0]?.total ?? 0),
     history,
-    transitions: transitions.map((t) => ({ id: t.id, at: Number(t.at), note: t.note })),
+    transitions: transitions.map((t) => ({ id: t.id, at: Number(t.at), note: t.note, kind: t.kind })),
   };
 }

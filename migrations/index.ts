@@ -8,6 +8,7 @@ import * as sessionVersion from './0004-user-session-version';
 import * as alertTauOrder from './0005-alert-tau-order';
 import * as snapshotChartView from './0006-snapshot-chart-view';
 import * as ruleDirection from './0007-rule-direction-and-alert-kinds';
+import * as transitionKind from './0008-transition-kind';
 
 /**
  * The ordered list of schema changes. Listed explicitly (not globbed) so the same list works in the Next.js server
@@ -21,6 +22,7 @@ const MIGRATIONS = [
   { name: '0005-alert-tau-order', ...alertTauOrder },
   { name: '0006-snapshot-chart-view', ...snapshotChartView },
   { name: '0007-rule-direction-and-alert-kinds', ...ruleDirection },
+  { name: '0008-transition-kind', ...transitionKind },
 ];
 
 async function migrator(): Promise<Umzug<QueryInterface>> {

@@ -1,11 +1,19 @@
 import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize';
 
-/** An instant a lead marked as a known transition in a series' record (the ground truth for backtests). */
+/** What a mark on a series' record stands for (migration 0008). */
+export const MARK_KINDS = ['transition', 'maintenance'] as const;
+export type MarkKind = (typeof MARK_KINDS)[number];
+
+/**
+ * An instant a lead marked in a series' record: a known transition (the ground truth for backtests) or a maintenance
+ * break (sensor swap, recalibration). The live analysis judges only the stretch after the latest mark of either kind.
+ */
 export class Transition extends Model<InferAttributes<Transition>, InferCreationAttributes<Transition>> {
   declare id: CreationOptional<number>;
   declare seriesId: number;
   declare at: number;
   declare note: CreationOptional<string>;
+  declare kind: CreationOptional<MarkKind>;
   declare createdBy: number | null;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
@@ -17,6 +25,7 @@ export class Transition extends Model<InferAttributes<Transition>, InferCreation
         seriesId: { type: DataTypes.INTEGER, allowNull: false },
         at: { type: DataTypes.BIGINT, allowNull: false },
         note: { type: DataTypes.TEXT, allowNull: false, defaultValue: '' },
+        kind: { type: DataTypes.STRING, allowNull: false, defaultValue: 'transition', validate: { isIn: [MARK_KINDS as unknown as string[]] } },
         createdBy: { type: DataTypes.INTEGER, allowNull: true },
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,

@@ -5,7 +5,8 @@ import { ChartFrame } from '@/components/charts/ChartFrame';
 import { TimeChart } from '@/components/charts/TimeChart';
 import { chartRows } from '@/lib/analysis/chart-rows';
 import type { AnalysisView } from '@/lib/analysis/view';
-import { formatP, formatTau } from '@/lib/display/format';
+import { formatP } from '@/lib/display/format';
+import { formatTauDirection, stretchReason } from '@/lib/display/analysis-labels';
 
 export interface ChartSeries {
   slug: string;
@@ -25,22 +26,30 @@ export const INDICATOR_LABELS: Record<string, string> = {
   recovery: 'Recovery rate',
 };
 
-/** The tau-and-p line each indicator chart carries in its legend. */
+/**
+ * The tau-and-p line each indicator chart carries in its legend: tau with the direction it is tested in, and the
+ * surrogate p in that direction. Without surrogates only the Kendall p is at hand, labelled descriptive: it assumes
+ * independent values, which overlapping windows are not, so it is no test.
+ */
 export function trendLegend(view: AnalysisView, name: string): string {
   const k = view.kendall[name as keyof AnalysisView['kendall']];
   const s = view.significance[name as keyof AnalysisView['significance']];
-  const p = s ? `surrogate p ${formatP(s.p)} (${s.count} ${s.method === 'ar1' ? 'AR(1)' : 'phase'} surrogates)` : `Kendall p ${formatP(k?.p)}`;
-  return `τ ${formatTau(k?.tau)} · ${p}`;
+  const direction = s?.direction ?? k?.direction ?? 'rising';
+  const p = s
+    ? `surrogate p ${formatP(s.p)} (${s.count} ${s.method === 'ar1' ? 'AR(1)' : 'phase'} surrogates)`
+    : `Kendall p ${formatP(k?.p)} (descriptive only: no surrogates)`;
+  return `${formatTauDirection(k?.tau, direction)} · ${p}`;
 }
 
 /**
  * The evidence charts of one analysis: raw series with trend, residuals, and every indicator's rolling curve,
- * each with the span of one rolling window drawn at the end and the known transitions marked.
+ * each with the span of one rolling window drawn at the end, the known transitions and detected abrupt shifts
+ * marked, and a line where the analysed stretch starts (labelled with its reason on the record chart).
  */
 export function AnalysisCharts({ view, series, transitions = [], idPrefix = '', compact = false }: {
   view: AnalysisView;
   series: ChartSeries;
-  transitions?: { at: number; note: string }[];
+  transitions?: { at: number; note: string; kind?: 'transition' | 'maintenance' }[];
   idPrefix?: string;
   /** fewer, shorter charts (report, alert evidence) */
   compact?: boolean;
@@ -50,23 +59,29 @@ export function AnalysisCharts({ view, series, transitions = [], idPrefix = '', 
   const first = view.curves.time[0];
   const windowBand = last !== undefined ? { from: Math.max(first, last - view.windowSpanMs), to: last } : null;
   const base = `${series.slug}${idPrefix ? `-${idPrefix}` : ''}`;
+  const shifts = view.shifts;
+  // The start line is drawn on every chart; its reason is written once, on the record chart.
+  const stretchAt = view.stretch?.from ?? null;
+  const stretchLabelled = view.stretch ? { at: view.stretch.from, label: stretchReason(view.stretch.startsAfter) } : null;
+  const stretchPlain = stretchAt === null ? null : { at: stretchAt };
+  const shiftNote = shifts.length ? ` · ${shifts.length} abrupt shift${shifts.length === 1 ? '' : 's'} detected` : '';
   return (
     <div className="space-y-3">
       <ChartFrame title={`${series.name}: record and trend`} fileName={`${base}-record`} testId="chart-record"
-        legend={`${view.n} points analysed · detrending: ${view.settings.detrend}`}>
-        <TimeChart rows={rows} timeZone={series.timeZone} unit={series.unit} transitions={transitions} height={compact ? 170 : 220}
+        legend={`${view.n} points analysed${view.stretch ? `, ${stretchReason(view.stretch.startsAfter)}` : ''} · detrending: ${view.settings.detrend}${shiftNote}`}>
+        <TimeChart rows={rows} timeZone={series.timeZone} unit={series.unit} transitions={transitions} shifts={shifts} stretchStart={stretchLabelled} height={compact ? 170 : 220}
           lines={[{ key: 'value', label: `value${series.unit ? ` (${series.unit})` : ''}`, color: '#3c4a57', width: 1 }, { key: 'trend', label: 'trend', color: '#1f6f78', width: 2.5 }]} />
       </ChartFrame>
       {compact ? null : (
       <ChartFrame title="Residuals (value − trend)" fileName={`${base}-residuals`} testId="chart-residuals">
-        <TimeChart rows={rows} timeZone={series.timeZone} unit={series.unit} transitions={transitions} zeroLine height={160}
+        <TimeChart rows={rows} timeZone={series.timeZone} unit={series.unit} transitions={transitions} shifts={shifts} stretchStart={stretchPlain} zeroLine height={160}
           lines={[{ key: 'residual', label: 'residual', color: '#6b7785', width: 1 }]} />
       </ChartFrame>
       )}
       {view.indicators.map((name) => (
         <ChartFrame key={name} title={`${INDICATOR_LABELS[name] ?? name} in a rolling window`} fileName={`${base}-${name}`} testId={`chart-${name}`}
           legend={<span data-testid={`trend-${name}`}>{trendLegend(view, name)}</span>}>
-          <TimeChart rows={rows} timeZone={series.timeZone} transitions={transitions} windowBand={windowBand} height={compact ? 150 : 180}
+          <TimeChart rows={rows} timeZone={series.timeZone} transitions={transitions} shifts={shifts} stretchStart={stretchPlain} windowBand={windowBand} height={compact ? 150 : 180}
             lines={[{ key: name, label: `${name} (window of ${view.windowPoints} points)`, color: '#1f6f78', width: 2 }]} />
         </ChartFrame>
       ))}

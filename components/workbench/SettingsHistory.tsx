@@ -5,11 +5,13 @@ import { api } from '@/components/api';
 import { LocalTime } from '@/components/LocalTime';
 import { Empty, ErrorNote, Loading } from '@/components/States';
 import type { SettingsHistoryEntry } from '@/lib/analysis/settings-history';
+import { describeExtent } from '@/lib/display/analysis-labels';
 
 function describe(settings: Record<string, unknown>): string {
-  const pct = (v: unknown) => (typeof v === 'number' ? `${Math.round(v * 100)}%` : '?');
-  const parts = [`window ${pct(settings.window)}`, String(settings.detrend ?? 'gaussian')];
-  if ((settings.detrend ?? 'gaussian') === 'gaussian') parts.push(`bandwidth ${pct(settings.bandwidth)}`);
+  const extent = (v: unknown) => (typeof v === 'number' || typeof v === 'string' ? describeExtent(v, 'the stretch') : '?');
+  const parts = [`window ${extent(settings.window)}`, String(settings.detrend ?? 'gaussian')];
+  if (['gaussian', 'local-linear'].includes(String(settings.detrend ?? 'gaussian'))) parts.push(`bandwidth ${extent(settings.bandwidth)}`);
+  if (typeof settings.span === 'number' || typeof settings.span === 'string') parts.push(`span ${describeExtent(settings.span, 'the record')}`);
   if (Array.isArray(settings.indicators)) parts.push(settings.indicators.join(', '));
   if (settings.surrogates) parts.push(`${settings.surrogates} surrogates`);
   if (settings.seasonal && settings.seasonal !== 'none') parts.push(`seasonal: ${settings.seasonal}`);

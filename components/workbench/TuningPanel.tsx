@@ -1,9 +1,10 @@
 'use client';
 
 import { DETREND_METHODS } from '@/lib/engine/detrend';
-import { INDICATOR_NAMES, type AnalysisSettings } from '@/lib/engine/settings';
+import { INDICATOR_NAMES, analysisSettingsSchema, type AnalysisSettings } from '@/lib/engine/settings';
 import { PREVIEW_MAX_SURROGATES } from '@/lib/analysis/preview-limits';
 import { INDICATOR_LABELS } from './AnalysisCharts';
+import { ExtentInput } from './ExtentInput';
 
 const DETREND_LABELS: Record<string, string> = {
   none: 'None (raw values)',
@@ -11,10 +12,18 @@ const DETREND_LABELS: Record<string, string> = {
   gaussian: 'Gaussian kernel smoother',
   'moving-average': 'Centred moving average',
   difference: 'First differences',
+  'local-linear': 'Local-linear kernel smoother',
 };
 
+/** Detrending methods whose smoothing is set by a kernel bandwidth. */
+const KERNEL_METHODS: readonly string[] = ['gaussian', 'local-linear'];
+
 const field = 'mt-1 w-full rounded border border-rule bg-card px-2 py-1.5 text-sm';
-const pct = (v: number) => `${Math.round(v * 100)}%`;
+
+/** Whether the settings would accept this value for one field (the schema the server parses with). */
+function acceptsField(draft: AnalysisSettings, key: 'window' | 'bandwidth' | 'span') {
+  return (value: unknown) => analysisSettingsSchema.safeParse({ ...draft, [key]: value }).success;
+}
 
 /** The settings form; every change goes straight to `onChange` (the workbench debounces the recomputation). */
 export function TuningPanel({ draft, onChange, disabled }: { draft: AnalysisSettings; onChange: (next: AnalysisSettings) => void; disabled?: boolean }) {
@@ -33,12 +42,9 @@ export function TuningPanel({ draft, onChange, disabled }: { draft: AnalysisSett
           {DETREND_METHODS.map((m) => <option key={m} value={m}>{DETREND_LABELS[m] ?? m}</option>)}
         </select>
       </label>
-      {draft.detrend === 'gaussian' ? (
-        <label className="block text-sm font-medium">
-          Bandwidth: <span className="num">{pct(draft.bandwidth)}</span> of the record
-          <input type="range" min={0.02} max={0.5} step={0.01} value={draft.bandwidth} aria-valuetext={pct(draft.bandwidth)}
-            onChange={(e) => set('bandwidth', Number(e.target.value))} className="mt-1 w-full accent-tide" data-testid="bandwidth-input" />
-        </label>
+      {KERNEL_METHODS.includes(draft.detrend) ? (
+        <ExtentInput label="Bandwidth (kernel standard deviation)" of="the stretch" value={draft.bandwidth} accepts={acceptsField(draft, 'bandwidth')}
+          onChange={(v) => v !== null && set('bandwidth', v)} testId="bandwidth-input" />
       ) : null}
       {draft.detrend === 'moving-average' ? (
         <label className="block text-sm font-medium">
@@ -50,10 +56,28 @@ export function TuningPanel({ draft, onChange, disabled }: { draft: AnalysisSett
             }} />
         </label>
       ) : null}
+      <ExtentInput label="Rolling window" of="the stretch" value={draft.window} accepts={acceptsField(draft, 'window')}
+        onChange={(v) => v !== null && set('window', v)} testId="window-input" valueTestId="window-value" />
+      <ExtentInput label="Analysis span (latest part of the record)" of="the record" value={draft.span} nullable accepts={acceptsField(draft, 'span')}
+        onChange={(v) => set('span', v)} testId="span-input" />
+      <label className="flex items-center gap-2 text-sm">
+        <input type="checkbox" checked={draft.shiftDetection === 'on'} onChange={(e) => set('shiftDetection', e.target.checked ? 'on' : 'off')}
+          className="accent-tide" data-testid="shift-detection-input" />
+        Start the analysis after a detected abrupt shift
+      </label>
       <label className="block text-sm font-medium">
-        Rolling window: <span className="num" data-testid="window-value">{pct(draft.window)}</span> of the record
-        <input type="range" min={0.1} max={0.9} step={0.05} value={draft.window} aria-valuetext={pct(draft.window)}
-          onChange={(e) => set('window', Number(e.target.value))} className="mt-1 w-full accent-tide" data-testid="window-input" />
+        Least observed share per window: <span className="num">{Math.round(draft.minCoverage * 100)}%</span>
+        <input type="range" min={0.5} max={1} step={0.05} value={draft.minCoverage} aria-valuetext={`${Math.round(draft.minCoverage * 100)}%`}
+          onChange={(e) => set('minCoverage', Number(e.target.value))} className="mt-1 w-full accent-tide" data-testid="min-coverage-input" />
+        <span className="mt-1 block text-xs font-normal text-ink-soft">Windows with fewer observed (not interpolated) points are not judged.</span>
+      </label>
+      <label className="block text-sm font-medium">
+        When the sampling interval changes
+        <select className={field} value={draft.samplingChange} onChange={(e) => set('samplingChange', e.target.value as AnalysisSettings['samplingChange'])}
+          data-testid="sampling-change-input">
+          <option value="start-after">Analyse only the stretch after the change</option>
+          <option value="subsample">Subsample the finer part to the coarser interval</option>
+        </select>
       </label>
       <fieldset>
         <legend className="text-sm font-medium">Indicators</legend>

@@ -11,7 +11,8 @@ import { SurrogateHistogram } from '@/components/charts/SurrogateHistogram';
 import { ChartFrame } from '@/components/charts/ChartFrame';
 import type { AnalysisView } from '@/lib/analysis/view';
 import type { AnalysisSettings } from '@/lib/engine/settings';
-import { formatP, formatTau } from '@/lib/display/format';
+import { formatP } from '@/lib/display/format';
+import { formatTauDirection, stretchReason } from '@/lib/display/analysis-labels';
 import type { SettingsHistoryEntry } from '@/lib/analysis/settings-history';
 import { AnalysisCharts, INDICATOR_LABELS, type ChartSeries } from './AnalysisCharts';
 import { SettingsHistory } from './SettingsHistory';
@@ -35,7 +36,7 @@ export interface WorkbenchProps {
   initialView: AnalysisView | null;
   canTune: boolean;
   canSave: boolean;
-  transitions: { at: number; note: string }[];
+  transitions: { at: number; note: string; kind?: 'transition' | 'maintenance' }[];
   history: SettingsHistoryEntry[];
   quality: React.ReactNode;
 }
@@ -98,7 +99,11 @@ export function Workbench({ series, savedSettings, initialView, canTune, canSave
             <span className="rounded bg-calm-light px-2 py-0.5 text-calm">● Saved analysis</span>
           )}
           {pending && canTune ? <span className="text-ink-soft">Recomputing…</span> : null}
-          {view ? <span className="num text-ink-soft">window {view.windowPoints} points · {view.n} points analysed</span> : null}
+          {view ? (
+            <span className="num text-ink-soft">
+              window {view.windowPoints} points · {view.n} points analysed{view.stretch ? `, ${stretchReason(view.stretch.startsAfter)}` : ''}
+            </span>
+          ) : null}
         </div>
         {preview.isError ? <ErrorNote error={preview.error}>These settings cannot be applied to this record.</ErrorNote> : null}
         {view ? (
@@ -113,7 +118,7 @@ export function Workbench({ series, savedSettings, initialView, canTune, canSave
                     const s = view.significance[name]!;
                     return (
                       <ChartFrame key={name} title={`${INDICATOR_LABELS[name] ?? name}: surrogate taus`} fileName={`${series.slug}-${name}-surrogates`}
-                        legend={`observed τ ${formatTau(view.kendall[name]?.tau)} · p ${formatP(s.p)} of ${s.count}`}>
+                        legend={`observed ${formatTauDirection(view.kendall[name]?.tau, s.direction)} · p ${formatP(s.p)} of ${s.count}`}>
                         <SurrogateHistogram bins={s.bins} observed={view.kendall[name]?.tau ?? null} />
                       </ChartFrame>
                     );

@@ -6,6 +6,7 @@ import { analysisSettingsSchema, type AnalysisSettings } from '@/lib/engine/sett
 import { UnprocessableError } from '@/lib/http/errors';
 import type { Series } from '@/models';
 import { PREVIEW_MAX_SURROGATES } from './preview-limits';
+import { seriesBreaks } from './snapshot';
 import { viewFromResult, type AnalysisView } from './view';
 
 
@@ -18,14 +19,18 @@ export function boundedSettings(settings: AnalysisSettings): AnalysisSettings {
 }
 
 /**
- * Runs the engine on a series' stored record (up to `to`, default all) with the given settings. Nothing is saved.
- * Input the settings cannot handle (too short, gaps) becomes a 422 the form can show.
+ * Runs the engine on a series' stored record (up to `to`, default all) with the given settings and the series'
+ * marks as breaks, exactly as the live analysis does. Nothing is saved. Input the settings cannot handle (too
+ * short, gaps) becomes a 422 the form can show.
  */
 export async function analyseStored(series: Series, settings: AnalysisSettings, options: { to?: number } = {}) {
-  const { time, value } = await loadObservations(series.id, { to: options.to });
+  const [{ time, value }, breaks] = await Promise.all([
+    loadObservations(series.id, { to: options.to }),
+    seriesBreaks(series.id, { to: options.to ?? null }),
+  ]);
   try {
     return await runAnalysis(
-      { time, value, intervalMs: series.intervalMs === null ? undefined : Number(series.intervalMs) },
+      { time, value, intervalMs: series.intervalMs === null ? undefined : Number(series.intervalMs), breaks },
       settings,
       { parallel: false },
     );

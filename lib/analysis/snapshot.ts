@@ -1,50 +1,90 @@
-import { QueryTypes } from 'sequelize';
-import { AnalysisSnapshot, WITHOUT_CHARTS, db, type Series } from '@/models';
-import { analysisSettingsSchema } from '@/lib/engine/settings';
-import { runAnalysis, summarizeAnalysis, type AnalysisResult } from '@/lib/engine/analyze';
+import { Op, QueryTypes } from 'sequelize';
+import { sampleStandardDeviation } from 'simple-statistics';
+import { AnalysisSnapshot, Transition, WITHOUT_CHARTS, db, type Series } from '@/models';
+import { analysisSettingsSchema, type AnalysisSettings } from '@/lib/engine/settings';
+import { runAnalysis, summarizeAnalysis, type AnalysisInput, type AnalysisResult } from '@/lib/engine/analyze';
+import { extentPoints } from '@/lib/engine/extent';
 import { curvesOf } from './curves';
 import { viewFromSnapshot, type AnalysisView } from './view';
 import { AnalysisInputError } from '@/lib/engine/errors';
-import { loadObservations, observationExtent } from './observations';
+import { loadObservations, observationExtent, type ObservationRange } from './observations';
+
+/**
+ * The spread of the surrogate taus of one indicator: `nullSd` is their sample standard deviation (n − 1), the
+ * null distribution's own spread of tau, which the quiet-period override measures "clearly stronger" against
+ * (the independent-data formula understates it many times on overlapping windows); `nullCount` is how many finite
+ * taus it rests on. Null below two taus. O(N).
+ */
+export function nullSpread(taus: readonly number[]): { nullSd: number | null; nullCount: number } {
+  const finite = taus.filter(Number.isFinite);
+  return { nullSd: finite.length >= 2 ? sampleStandardDeviation(finite) : null, nullCount: finite.length };
+}
 
 /**
  * The summary kept on the snapshot: everything but per-point arrays. Surrogate taus and the sensitivity grid
- * live in `curves` only, so queue listings and rule evaluation read a small record.
+ * live in `curves` only, so queue listings and rule evaluation read a small record; each significance entry keeps
+ * the taus' spread instead (nullSd, nullCount). `shifts` (detected abrupt shifts) and `stretch` (what was judged
+ * and why it starts there) are named here so they stay on the summary whatever the engine's summary carries.
  */
 export function snapshotSummary(result: AnalysisResult): Record<string, unknown> {
   const summary = summarizeAnalysis(result);
   const significance: Record<string, unknown> = {};
   for (const [name, sig] of Object.entries(summary.significance)) {
-    const { taus: _taus, ...rest } = sig!;
-    significance[name] = rest;
+    const { taus, ...rest } = sig!;
+    significance[name] = { ...rest, ...nullSpread(taus) };
   }
   const { sensitivity: _sensitivity, ...rest } = summary;
-  return { ...rest, significance, hasSensitivity: result.sensitivity !== null };
+  return { ...rest, shifts: result.shifts, stretch: result.stretch, significance, hasSensitivity: result.sensitivity !== null };
+}
+
+/**
+ * The marks of a series the live analysis starts after (known transitions and maintenance breaks), as the engine's
+ * `breaks`: only those after `from` (earlier ones lie before the data read, so the span cut already excludes them)
+ * and at or before the last reading (a break noted ahead of its data waits for that data). Oldest first.
+ */
+export async function seriesBreaks(seriesId: number, range: { from?: number; to?: number | null } = {}): Promise<NonNullable<AnalysisInput['breaks']>> {
+  const at: Record<symbol, number> = {};
+  if (range.from !== undefined) at[Op.gt] = range.from;
+  if (range.to !== undefined && range.to !== null) at[Op.lte] = range.to;
+  const where = Object.getOwnPropertySymbols(at).length ? { seriesId, at } : { seriesId };
+  const marks = await Transition.findAll({ where, attributes: ['at', 'kind'], order: [['at', 'ASC'], ['id', 'ASC']] });
+  return marks.map((mark) => ({ time: Number(mark.at), kind: mark.kind }));
+}
+
+/**
+ * The stretch of a series' record the settings' span can reach, to read from the database instead of the whole
+ * record: the span as points (a fraction of the whole record, "<n> points", or an ISO 8601 duration over the
+ * series' interval) counted back from the last reading, with one interval to spare so that the engine's own cut
+ * after gridding, not this read, decides where the span starts. Everything when there is no span or no declared
+ * interval (the engine then infers it from all the data). O(1) queries.
+ */
+export async function spanReadRange(seriesId: number, settings: AnalysisSettings, intervalMs: number | undefined): Promise<{ range: ObservationRange; last: number | null }> {
+  const extent = await observationExtent(seriesId);
+  if (settings.span === null || intervalMs === undefined || extent.first === null || extent.last === null) return { range: {}, last: extent.last };
+  const recordPoints = Math.floor((extent.last - extent.first) / intervalMs) + 1;
+  const points = Math.ceil(extentPoints(settings.span, recordPoints, intervalMs, 'utc-ms'));
+  return { range: { from: extent.last - points * intervalMs }, last: extent.last };
 }
 
 /**
  * Runs the engine on a series as it stands and stores the outcome as a new snapshot, successful or not: an
- * error snapshot carries the engine's message (e.g. a gap longer than maxGap) so the series page can say why
- * there is no fresh evidence. Only the trailing span the settings ask for is read from the database.
+ * error snapshot carries the engine's message (e.g. a gap longer than maxGap, a stretch since the last mark too
+ * short for the window) so the series page can say why there is no fresh evidence. Only the trailing span the
+ * settings ask for is read from the database, and the marks inside it go to the engine as breaks, so the analysis
+ * judges only the stretch since the last marked transition or maintenance break (or detected shift).
  */
 export async function refreshSeriesAnalysis(series: Series, options: { parallel?: boolean } = {}): Promise<AnalysisSnapshot> {
   await db();
   const settings = analysisSettingsSchema.parse(series.settings ?? {});
   const intervalMs = series.intervalMs === null ? undefined : Number(series.intervalMs);
   const started = performance.now();
-  let range: { from?: number } = {};
-  if (settings.spanPoints !== null && intervalMs !== undefined) {
-    const extent = await observationExtent(series.id);
-    // spanPoints intervals before the last reading cover spanPoints + 1 grid points: one to spare, so the engine's
-    // own span cut (after gridding), not this read, decides where the span starts.
-    if (extent.last !== null) range = { from: extent.last - settings.spanPoints * intervalMs };
-  }
-  const observations = await loadObservations(series.id, range);
+  const { range, last } = await spanReadRange(series.id, settings, intervalMs);
+  const [observations, breaks] = await Promise.all([loadObservations(series.id, range), seriesBreaks(series.id, { from: range.from, to: last })]);
   const n = observations.time.length;
   const dataFrom = n ? observations.time[0] : null;
   const dataTo = n ? observations.time[n - 1] : null;
   try {
-    const result = await runAnalysis({ ...observations, intervalMs }, settings, options);
+    const result = await runAnalysis({ ...observations, intervalMs, breaks }, settings, options);
     // Through JSON first, so the saved view is exactly the one the stored row's curves would give (NaN → null).
     const stored = JSON.parse(JSON.stringify({ summary: snapshotSummary(result), curves: curvesOf(result) }));
     return await AnalysisSnapshot.create({

@@ -1,11 +1,24 @@
 import type { AnalysisResult, AnalysisSummary } from '@/lib/engine/analyze';
+import type { TrendDirection } from '@/lib/engine/direction';
 import type { SensitivityResult } from '@/lib/engine/sensitivity';
 import { analysisSettingsSchema, type AnalysisSettings, type IndicatorName } from '@/lib/engine/settings';
-import type { PreparationQuality } from '@/lib/engine/prepare';
 import { curvesOf, MAX_CURVE_POINTS, thinnedIndices, type SnapshotCurves } from './curves';
 
 /** The per-point curves of an analysis as stored on a snapshot and sent to charts (every `stride`-th point). */
 export type CurveSet = SnapshotCurves;
+
+/**
+ * The data-quality findings of an analysis. The fields after `droppedBeforeSpan` are absent on snapshots stored
+ * before the engine reported them, so screens treat them as optional.
+ */
+export type ViewQuality = Omit<AnalysisResult['quality'], 'coverage' | 'windowsBelowCoverage' | 'flatRuns' | 'samplingChanges' | 'samplingHandling'> &
+  Partial<Pick<AnalysisResult['quality'], 'coverage' | 'windowsBelowCoverage' | 'flatRuns' | 'samplingChanges' | 'samplingHandling'>>;
+
+/**
+ * The direction a snapshot's p-values were computed in. Snapshots from before directions were recorded tested
+ * every indicator in the upper tail, so that is what they are labelled with.
+ */
+const UPPER_TAIL: TrendDirection = 'rising';
 
 export interface HistogramBin {
   from: number;
@@ -25,10 +38,15 @@ export interface AnalysisView {
   windowSpanMs: number;
   curves: Omit<CurveSet, 'surrogateTaus' | 'sensitivity'>;
   indicators: IndicatorName[];
-  kendall: Partial<Record<IndicatorName, { tau: number | null; p: number | null }>>;
-  significance: Partial<Record<IndicatorName, { p: number | null; count: number; method: string; bins: HistogramBin[] }>>;
+  /** Kendall tau of each indicator's trend; p is descriptive only (it assumes independent values). */
+  kendall: Partial<Record<IndicatorName, { tau: number | null; p: number | null; direction: TrendDirection }>>;
+  significance: Partial<Record<IndicatorName, { p: number | null; count: number; method: string; direction: TrendDirection; bins: HistogramBin[] }>>;
   sensitivity: (SensitivityResult & { chosen: { window: number; bandwidth: number | null } }) | null;
-  quality: PreparationQuality | null;
+  quality: ViewQuality | null;
+  /** detected abrupt shifts of level (time = first instant of the new level, UTC ms) */
+  shifts: { time: number; index: number }[];
+  /** the analysed stretch and why it starts where it does; null on snapshots stored before it was recorded */
+  stretch: AnalysisResult['stretch'] | null;
 }
 
 /**
@@ -96,10 +114,13 @@ function nearest(list: number[], target: number): number {
 /** Builds the chart view from an analysis summary and its curves (a stored snapshot or a fresh result). */
 export function buildView(
   settingsInput: unknown,
-  summary: Pick<AnalysisSummary, 'n' | 'windowPoints' | 'bandwidthPoints' | 'interval' | 'kendall'> & {
-    significance?: AnalysisSummary['significance'];
+  summary: Pick<AnalysisSummary, 'n' | 'windowPoints' | 'bandwidthPoints' | 'interval'> & {
+    kendall: Partial<Record<IndicatorName, { tau: number | null; p: number | null; direction?: TrendDirection }>>;
+    significance?: Partial<Record<IndicatorName, Omit<NonNullable<AnalysisSummary['significance'][IndicatorName]>, 'taus' | 'direction'> & { taus?: number[]; direction?: TrendDirection }>>;
     sensitivity?: SensitivityResult | null;
-    quality?: PreparationQuality | null;
+    quality?: ViewQuality | null;
+    shifts?: AnalysisResult['shifts'];
+    stretch?: AnalysisResult['stretch'] | null;
   },
   stored: CurveSet,
   maxPoints = CHART_POINTS,
@@ -107,13 +128,21 @@ export function buildView(
   const settings = analysisSettingsSchema.parse(settingsInput ?? {});
   const curves = thinCurves(stored, maxPoints);
   const indicators = settings.indicators.filter((name) => curves.indicators[name] !== undefined);
+  const kendall: AnalysisView['kendall'] = {};
+  for (const [name, k] of Object.entries(summary.kendall) as [IndicatorName, (typeof summary.kendall)[IndicatorName]][]) {
+    if (k) kendall[name] = { tau: k.tau, p: k.p, direction: k.direction ?? UPPER_TAIL };
+  }
   const significance: AnalysisView['significance'] = {};
   for (const name of indicators) {
     const s = summary.significance?.[name];
     if (!s) continue;
     const taus = stored.surrogateTaus?.[name] ?? s.taus ?? [];
-    significance[name] = { p: s.p, count: s.count, method: s.method, bins: tauHistogram(taus, summary.kendall[name]?.tau ?? null) };
+    significance[name] = { p: s.p, count: s.count, method: s.method, direction: s.direction ?? UPPER_TAIL, bins: tauHistogram(taus, summary.kendall[name]?.tau ?? null) };
   }
+  // The grid's axes are fractions of the analysed stretch; a window or bandwidth given in points or as a duration
+  // is placed on them by the points it came to.
+  const chosenWindow = typeof settings.window === 'number' ? settings.window : summary.windowPoints / summary.n;
+  const chosenBandwidth = typeof settings.bandwidth === 'number' ? settings.bandwidth : summary.bandwidthPoints === null ? null : summary.bandwidthPoints / summary.n;
   const grid = stored.sensitivity ?? summary.sensitivity ?? null;
   const { surrogateTaus: _taus, sensitivity: _grid, ...thinned } = curves;
   const indicatorCurves: CurveSet['indicators'] = {};
@@ -128,12 +157,14 @@ export function buildView(
     windowSpanMs: summary.windowPoints * summary.interval,
     curves: chartCurves,
     indicators,
-    kendall: summary.kendall,
+    kendall,
     significance,
     sensitivity: grid
-      ? { ...grid, chosen: { window: nearest(grid.windows, settings.window), bandwidth: grid.bandwidths ? nearest(grid.bandwidths, settings.bandwidth) : null } }
+      ? { ...grid, chosen: { window: nearest(grid.windows, chosenWindow), bandwidth: grid.bandwidths && chosenBandwidth !== null ? nearest(grid.bandwidths, chosenBandwidth) : null } }
       : null,
     quality: summary.quality ?? null,
+    shifts: summary.shifts ?? [],
+    stretch: summary.stretch ?? null,
   };
 }
 
@@ -147,5 +178,5 @@ export function viewFromSnapshot(snapshot: { settings: unknown; summary: unknown
   if (snapshot.status === 'error' || !snapshot.curves || !snapshot.summary) return null;
   const curves = snapshot.curves as Partial<CurveSet>;
   if (!Array.isArray(curves.time)) return null;
-  return buildView(snapshot.settings, snapshot.summary as AnalysisSummary, { ...(curves as CurveSet), surrogateTaus: curves.surrogateTaus ?? {} });
+  return buildView(snapshot.settings, snapshot.summary as Parameters<typeof buildView>[1], { ...(curves as CurveSet), surrogateTaus: curves.surrogateTaus ?? {} });
 }

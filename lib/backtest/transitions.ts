@@ -1,25 +1,31 @@
-import { Transition, db, writeTransaction } from '@/models';
+import { Series, Transition, db, writeTransaction } from '@/models';
+import type { MarkKind } from '@/models/Transition';
 import { recordAudit } from '@/lib/audit';
 import type { Actor } from '@/lib/auth/guard';
 import { NotFoundError } from '@/lib/http/errors';
 import type { TransitionCreate } from '@/lib/schemas/backtest';
 
 export function presentTransition(t: Transition) {
-  return { id: t.id, seriesId: t.seriesId, at: Number(t.at), atIso: new Date(Number(t.at)).toISOString(), note: t.note, createdBy: t.createdBy, createdAt: t.createdAt };
+  return { id: t.id, seriesId: t.seriesId, at: Number(t.at), atIso: new Date(Number(t.at)).toISOString(), note: t.note, kind: t.kind, createdBy: t.createdBy, createdAt: t.createdAt };
 }
 export type TransitionRecord = ReturnType<typeof presentTransition>;
 
-/** Known transitions of a series, oldest first. */
-export async function listTransitions(seriesId: number): Promise<TransitionRecord[]> {
+/**
+ * Marks of a series, oldest first: by default the known transitions only (what backtests score against, so a
+ * maintenance break never counts as a transition); pass both kinds for every mark.
+ */
+export async function listTransitions(seriesId: number, kinds: readonly MarkKind[] = ['transition']): Promise<TransitionRecord[]> {
   await db();
-  const rows = await Transition.findAll({ where: { seriesId }, order: [['at', 'ASC'], ['id', 'ASC']] });
+  const rows = await Transition.findAll({ where: { seriesId, kind: [...kinds] }, order: [['at', 'ASC'], ['id', 'ASC']] });
   return rows.map(presentTransition);
 }
 
 export async function markTransition(seriesId: number, input: TransitionCreate, actor: Pick<Actor, 'id'>): Promise<TransitionRecord> {
   return writeTransaction(async (transaction) => {
-    const row = await Transition.create({ seriesId, at: input.at, note: input.note, createdBy: actor.id }, { transaction });
-    await recordAudit({ actorId: actor.id, action: 'transition.create', entity: 'transition', entityId: row.id, details: { seriesId, at: input.at, note: input.note } }, transaction);
+    const row = await Transition.create({ seriesId, at: input.at, note: input.note, kind: input.kind, createdBy: actor.id }, { transaction });
+    // A mark moves where the live analysis starts: analyse the series again on the next cycle.
+    await Series.update({ needsAnalysis: true }, { where: { id: seriesId }, transaction });
+    await recordAudit({ actorId: actor.id, action: 'transition.create', entity: 'transition', entityId: row.id, details: { seriesId, at: input.at, note: input.note, kind: input.kind } }, transaction);
     return presentTransition(row);
   });
 }
@@ -30,5 +36,6 @@ export async function removeTransition(id: number, actor: Pick<Actor, 'id'>): Pr
     if (!row) throw new NotFoundError('Transition');
     await recordAudit({ actorId: actor.id, action: 'transition.delete', entity: 'transition', entityId: id, details: presentTransition(row) }, transaction);
     await row.destroy({ transaction });
+    await Series.update({ needsAnalysis: true }, { where: { id: row.seriesId }, transaction });
   });
 }

@@ -59,6 +59,7 @@ export interface DemoTransition {
   index: number;
   at: number;
   note: string;
+  kind: 'transition';
 }
 
 export interface DemoSeries {
@@ -96,14 +97,27 @@ const SLOWING_DOWN_RULES: DemoRule[] = [
   rule({ indicator: 'variance', minTau: 0.4, maxSurrogateP: 0.1, severity: 'watch' }),
 ];
 
-/** For records where strong memory itself is the concern: ac1 already high and still rising. */
-const HIGH_MEMORY_RULE = rule({ indicator: 'ac1', minTau: 0.3, maxKendallP: 0.01, levelThreshold: 0.9, severity: 'watch', quietPeriodHours: 48 });
+/**
+ * For records where strong memory itself is the concern: ac1 already high and still rising, judged against
+ * surrogates (the Kendall p assumes independent values, which overlapping windows are not, so it gates nothing).
+ */
+const HIGH_MEMORY_RULE = rule({ indicator: 'ac1', minTau: 0.3, maxSurrogateP: 0.05, levelThreshold: 0.9, severity: 'watch', quietPeriodHours: 48 });
 
 /** Controls carry the same rules as the watched records, so a firing on them shows the false-alarm rate. */
 const CONTROL_RULES: DemoRule[] = [
   SLOWING_DOWN_RULES[0],
   rule({ indicator: 'sd', minTau: 0.4, maxSurrogateP: 0.05, severity: 'watch', quietPeriodHours: 48 }),
 ];
+
+/**
+ * Analysis settings every demo series shares, as a live series would run: 199 AR(1) surrogates (Benjamini–Hochberg
+ * at q = 0.05 over the nine demo series needs N ≥ 9/0.05 − 1 = 179 before its smallest p can pass; see
+ * LIVE_SETTINGS_DEFAULTS in lib/schemas/series.ts), shift detection on and the 80 % coverage floor. Each plan gives
+ * its span as an ISO 8601 duration suited to its sampling and the timescale it is watched on, and its window as a
+ * duration (controls: a year of daily readings, a month of hourly ones) or, where the stretch may start late after
+ * a shift or marked transition, as a fraction of the stretch.
+ */
+const LIVE: Partial<AnalysisSettings> = { surrogates: 199, shiftDetection: 'on', minCoverage: 0.8 };
 
 interface SeriesPlan {
   slug: string;
@@ -170,12 +184,14 @@ const PLANS: SeriesPlan[] = [
     description:
       'Synthetic demo data: the salinity contrast of a two-box overturning circulation under slowly rising ' +
       'freshwater input, simulated from Cessi’s (1994) stochastic box model (J. Phys. Oceanogr. 24, 1911–1920) ' +
-      'with a seeded generator. The forcing passes the model’s fold and the circulation collapses near the end of the record.',
+      'with a seeded generator. The forcing passes the model’s fold and the circulation collapses near the end of the record. ' +
+      'The live analysis judges only the record since the marked collapse (the abrupt shift shows on the charts); ' +
+      'the warning signs before it are what a backtest replays.',
     model: 'Cessi (1994) two-box thermohaline model',
     timeZone: 'UTC',
     intervalMs: DAY_MS,
     n: CESSI.n,
-    settings: { surrogates: 199, seed: 11 },
+    settings: { ...LIVE, seed: 11, span: 'P10Y', window: 0.5 },
     rules: [...SLOWING_DOWN_RULES, HIGH_MEMORY_RULE],
     generate: () => {
       const rate = (CESSI_FOLDS.rising.p - CESSI.p0) / (CESSI.foldAt * (CESSI.n - 1) * CESSI.dt);
@@ -200,7 +216,7 @@ const PLANS: SeriesPlan[] = [
     timeZone: 'UTC',
     intervalMs: HOUR_MS,
     n: 4800,
-    settings: { surrogates: 99, seed: 12 },
+    settings: { ...LIVE, seed: 12, span: 'P120D', window: 'P30D' },
     rules: CONTROL_RULES,
     generate: () => ({ values: toUnits(simulateAr1({ n: 4800, phi: 0.6, sigma: 0.004, mean: 3.82, seed: DEMO_SEED, stream: 2 }), 1, 4) }),
   },
@@ -212,12 +228,13 @@ const PLANS: SeriesPlan[] = [
     description:
       'Synthetic demo data: a fished stock under a steadily rising catch, simulated from May’s (1977) harvested-' +
       'population model (Nature 269, 471–477) with environmental noise and a seeded generator. The harvest passes ' +
-      'the model’s fold and the stock collapses to its depleted state.',
+      'the model’s fold and the stock collapses to its depleted state. The live analysis judges only the record since ' +
+      'the marked collapse; the warning signs before it are what a backtest replays.',
     model: 'May (1977) harvested population',
     timeZone: 'Europe/Oslo',
     intervalMs: DAY_MS,
     n: LAKE_STOCK.n,
-    settings: { surrogates: 199, seed: 13 },
+    settings: { ...LIVE, seed: 13, span: 'P7Y', window: 0.5 },
     rules: SLOWING_DOWN_RULES,
     generate: () => {
       const rate = (GRAZING_FOLDS.collapse.c - LAKE_STOCK.c0) / (LAKE_STOCK.foldAt * (LAKE_STOCK.n - 1) * LAKE_STOCK.dt);
@@ -243,7 +260,7 @@ const PLANS: SeriesPlan[] = [
     timeZone: 'Europe/Oslo',
     intervalMs: DAY_MS,
     n: 5000,
-    settings: { surrogates: 99, seed: 14, seasonal: 'day-of-year', maxGap: 3, gapPolicy: 'latest-stretch' },
+    settings: { ...LIVE, seed: 14, seasonal: 'day-of-year', maxGap: 3, gapPolicy: 'latest-stretch', span: 'P8Y', window: 'P2Y' },
     rules: CONTROL_RULES,
     generate: (start) => {
       // Peak in early August (day 213), as in a northern temperate lake.
@@ -268,7 +285,7 @@ const PLANS: SeriesPlan[] = [
     timeZone: 'Europe/Oslo',
     intervalMs: DAY_MS,
     n: 2500,
-    settings: { surrogates: 99, seed: 15, detrend: 'linear' },
+    settings: { ...LIVE, seed: 15, detrend: 'linear', span: 'P5Y', window: 'P1Y' },
     rules: CONTROL_RULES,
     generate: () => ({
       values: toUnits(simulateDrift({ n: 2500, phi: 0.5, sigma: 0.15, mean: 10.4, driftPerSample: -0.0008, seed: DEMO_SEED, stream: 5 }), 1, 3),
@@ -287,7 +304,7 @@ const PLANS: SeriesPlan[] = [
     timeZone: 'Europe/London',
     intervalMs: DAY_MS,
     n: FEN.n,
-    settings: { surrogates: 199, seed: 16 },
+    settings: { ...LIVE, seed: 16, span: 'P8Y', window: 0.5 },
     rules: [...SLOWING_DOWN_RULES, HIGH_MEMORY_RULE],
     generate: () => {
       const rate = (FEN.endShare * GRAZING_FOLDS.collapse.c - FEN.c0) / ((FEN.n - 1) * FEN.dt);
@@ -307,7 +324,7 @@ const PLANS: SeriesPlan[] = [
     timeZone: 'Europe/London',
     intervalMs: DAY_MS,
     n: 2000,
-    settings: { surrogates: 99, seed: 17 },
+    settings: { ...LIVE, seed: 17, span: 'P4Y', window: 'P1Y' },
     rules: CONTROL_RULES,
     generate: () => ({ values: toUnits(simulateAr1({ n: 2000, phi: 0.85, sigma: 1.2, mean: -24, seed: DEMO_SEED, stream: 7 }), 1, 1) }),
   },
@@ -324,7 +341,7 @@ const PLANS: SeriesPlan[] = [
     timeZone: 'Europe/Helsinki',
     intervalMs: DAY_MS,
     n: 3650,
-    settings: { surrogates: 99, seed: 18 },
+    settings: { ...LIVE, seed: 18, span: 'P5Y', window: 'P1Y' },
     rules: SLOWING_DOWN_RULES,
     generate: () => ({
       values: toUnits(simulateDoubleWell({ n: 3650, dt: 0.25, substeps: 10, amplitude: 0.12, period: 66, sigma: 0.5, x0: -1, seed: DEMO_SEED, stream: 8 }), 1.8, 3),
@@ -342,7 +359,7 @@ const PLANS: SeriesPlan[] = [
     timeZone: 'Europe/Helsinki',
     intervalMs: DAY_MS,
     n: 1500,
-    settings: { surrogates: 99, seed: 19 },
+    settings: { ...LIVE, seed: 19, span: '1000 points', window: '250 points' },
     rules: CONTROL_RULES,
     generate: () => ({ values: toUnits(simulateAr1({ n: 1500, phi: 0.3, sigma: 4, mean: 912, seed: DEMO_SEED, stream: 9 }), 1, 1) }),
   },
@@ -378,13 +395,13 @@ export function buildDemoScenario(now: Date = new Date()): DemoSeries[] {
       model: plan.model,
       times,
       values,
-      transitions: marks.map((mark) => ({ ...mark, at: start + mark.index * plan.intervalMs })),
+      transitions: marks.map((mark) => ({ ...mark, at: start + mark.index * plan.intervalMs, kind: 'transition' as const })),
       rules: plan.rules,
     };
   });
 }
 
 /** The marked transitions of the demo network for records ending on `now`'s day, by series slug. */
-export function demoTransitions(now: Date = new Date()): { slug: string; at: number; index: number; note: string }[] {
+export function demoTransitions(now: Date = new Date()): ({ slug: string } & DemoTransition)[] {
   return buildDemoScenario(now).flatMap((series) => series.transitions.map((mark) => ({ slug: series.input.slug, ...mark })));
 }

@@ -52,7 +52,7 @@ async function fillSeries(series: Series, demo: DemoSeries, actorId: number | nu
       await Observation.bulkCreate(rows.slice(from, from + OBSERVATIONS_PER_INSERT), { transaction, validate: false, hooks: false });
     }
     await AlertRule.bulkCreate(demo.rules.map((rule) => ({ ...rule, seriesId: series.id, active: true, createdBy: actorId })), { transaction });
-    await Transition.bulkCreate(demo.transitions.map(({ at, note }) => ({ seriesId: series.id, at, note, createdBy: actorId })), { transaction });
+    await Transition.bulkCreate(demo.transitions.map(({ at, note, kind }) => ({ seriesId: series.id, at, note, kind, createdBy: actorId })), { transaction });
     await Watch.bulkCreate(watcherIds.map((userId) => ({ userId, seriesId: series.id, mode: 'immediate' as const })), { transaction });
     await Series.update({ needsAnalysis: true, dataChangedAt: new Date() }, { where: { id: series.id }, transaction });
     return rows.length;

@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { SURROGATE_METHODS } from '@/lib/engine/settings';
+import { MARK_KINDS } from '@/models/Transition';
 
 /** Body of POST /api/rules/{id}/backtest. */
 export const backtestRequestSchema = z
@@ -42,8 +43,11 @@ const instantSchema = z.union([
   z.iso.date().transform((s) => Date.parse(`${s}T00:00:00Z`)),
 ]);
 
-/** Body of POST /api/series/{slug}/transitions. */
+/**
+ * Body of POST /api/series/{slug}/transitions. `kind`: a known transition (default) or a maintenance break (sensor
+ * swap, recalibration); the live analysis starts after either, backtests score against transitions only.
+ */
 export const transitionCreateSchema = z
-  .object({ at: instantSchema, note: z.string().trim().max(2000).default('') })
+  .object({ at: instantSchema, note: z.string().trim().max(2000).default(''), kind: z.enum(MARK_KINDS).default('transition') })
   .strict();
 export type TransitionCreate = z.output<typeof transitionCreateSchema>;

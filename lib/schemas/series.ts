@@ -35,6 +35,42 @@ function isTimeZone(zone: string): boolean {
 
 const text = (max: number) => z.string().trim().max(max);
 
+/**
+ * Analysis settings a new series starts with, suited to a live record that grows with every reading (the engine's
+ * and command line's own defaults stay those of a one-off analysis of a finished record):
+ * - `span: "1000 points"`: the live analysis judges the latest 1,000 sampling intervals at most, so the window
+ *   stops growing with the record (a fraction of the whole record would judge a ten-year record on five-year
+ *   windows); 1,000 points leave a window of 500 and about 500 window positions for the Kendall trend.
+ * - `window: 0.5`, `bandwidth: 0.1`: fractions of the analysed stretch (the span, or less after a shift or mark).
+ * - `surrogates: 199`: a surrogate p is at least 1/(N + 1), and Benjamini–Hochberg at level q over m series can
+ *   only pass the smallest p if 1/(N + 1) ≤ q/m, i.e. N ≥ m/q − 1 (Benjamini & Hochberg 1995, JRSS B 57:289, step-up
+ *   rule, applied to its smallest p). 199 keeps a false-discovery rule meaningful for up to 10 series at q = 0.05
+ *   or 20 at q = 0.1, and equals the interactive preview's cap, so a preview and the saved analysis agree. A
+ *   larger network needs more: raise it per series.
+ * - `shiftDetection: 'on'`, `minCoverage: 0.8`: the stretch starts after a detected abrupt shift, and windows with
+ *   less than 80 % observed (not interpolated) points are not judged.
+ */
+export const LIVE_SETTINGS_DEFAULTS = {
+  surrogates: 199,
+  span: '1000 points',
+  window: 0.5,
+  bandwidth: 0.1,
+  shiftDetection: 'on',
+  minCoverage: 0.8,
+} as const;
+
+/**
+ * A series' analysis settings: fields left out take the live defaults above, then the engine's. Used for creation
+ * and for a PATCH alike (a PATCH replaces the settings whole), so settings sent without a number of surrogates
+ * never silently drop to none.
+ */
+export const seriesSettingsSchema = z.preprocess((input) => {
+  if (!input || typeof input !== 'object' || Array.isArray(input)) return input;
+  // A legacy `spanPoints` names the span itself; the default span must not override it.
+  const { span: _span, ...withoutSpan } = LIVE_SETTINGS_DEFAULTS;
+  return { ...('spanPoints' in input ? withoutSpan : LIVE_SETTINGS_DEFAULTS), ...input };
+}, analysisSettingsSchema);
+
 /** Everything a lead can set on a series; the one schema behind the API, the forms and the seed. */
 export const seriesFieldsSchema = z.object({
   name: text(200).min(1),
@@ -44,7 +80,7 @@ export const seriesFieldsSchema = z.object({
   intervalMs: z.number().int().positive().max(100 * 366 * 86_400_000).nullable().default(null),
   timeZone: z.string().refine(isTimeZone, 'Unknown IANA time zone (e.g. Europe/Oslo or UTC).').default('UTC'),
   csvMapping: csvMappingSchema.default(csvMappingSchema.parse({})),
-  settings: analysisSettingsSchema.default(analysisSettingsSchema.parse({})),
+  settings: seriesSettingsSchema.default(seriesSettingsSchema.parse({})),
   duplicatePolicy: z.enum(['reject', 'replace']).default('reject'),
 });
 
@@ -62,7 +98,7 @@ export const seriesUpdateSchema = z
     intervalMs: z.number().int().positive().nullable(),
     timeZone: z.string().refine(isTimeZone, 'Unknown IANA time zone.'),
     csvMapping: csvMappingSchema,
-    settings: analysisSettingsSchema,
+    settings: seriesSettingsSchema,
     duplicatePolicy: z.enum(['reject', 'replace']),
     retired: z.boolean(),
   })

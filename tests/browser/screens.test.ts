@@ -157,6 +157,23 @@ describe('screens in Chromium', () => {
     await report.close();
   });
 
+  it('marks where the live analysis of the collapsed demo record starts, and the abrupt shift it detected', async () => {
+    // The salinity record collapses after its marked transition: its latest analysis must start after the mark and
+    // show the detected shift (issue 13). Reference lines are zero-width SVG lines, so they are counted, not waited
+    // on as visible; the page is reloaded until the scheduler has stored the first analysis.
+    const page = await open('viewer', '/series/veskary-salinity-contrast');
+    await expect.poll(async () => {
+      await page.reload();
+      await page.waitForLoadState('networkidle');
+      return page.locator('[data-testid="stretch-start"]').count();
+    }, { timeout: 120_000, interval: 3000 }).toBeGreaterThan(0);
+    await expect(page.locator('[data-testid="shift-marker"]').count()).resolves.toBeGreaterThan(0);
+    await expect(page.getByTestId('chart-record').textContent()).resolves.toMatch(/analysed since/);
+    await expect(page.locator('[data-testid^="trend-"]').first().textContent()).resolves.toMatch(/tested (rising|falling|either way)/);
+    await shot(page, 'workbench-shift');
+    await page.close();
+  });
+
   it('lets an analyst take and escalate an alert, a lead confirm it, and shows a viewer no actions', async () => {
     const id = await alertToTriage();
     const analyst = await open('analyst', `/alerts/${id}`);

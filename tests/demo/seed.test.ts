@@ -80,7 +80,7 @@ describe('seedIfEmpty', () => {
         demo.rules.map((r) => ({ indicator: r.indicator, minTau: r.minTau, severity: r.severity, createdBy: lead!.id })),
       );
       const marks = await Transition.findAll({ where: { seriesId: series!.id }, raw: true });
-      expect(marks.map((m) => Number(m.at))).toEqual(demo.transitions.map((m) => m.at));
+      expect(marks.map((m) => [Number(m.at), m.kind])).toEqual(demo.transitions.map((m) => [m.at, m.kind]));
       const watchers = await Watch.findAll({ where: { seriesId: series!.id }, raw: true });
       expect(watchers.map((w) => [w.userId, w.mode]).sort()).toEqual([[lead!.id, 'immediate'], [analyst!.id, 'immediate']].sort());
     }

@@ -43,7 +43,7 @@ export default async function SeriesPage({ params }: { params: Promise<{ slug: s
         canSave={roleAtLeast(actor.role, 'lead')}
         transitions={bench.transitions}
         history={bench.history}
-        quality={<QualityPanel quality={bench.view?.quality ?? null} runs={bench.runs} rejectedRows={bench.rejectedRows} extent={bench.extent} timeZone={series.timeZone} />}
+        quality={<QualityPanel quality={bench.view?.quality ?? null} stretch={bench.view?.stretch ?? null} shifts={bench.view?.shifts ?? []} runs={bench.runs} rejectedRows={bench.rejectedRows} extent={bench.extent} timeZone={series.timeZone} />}
       />
       <SeriesRules statuses={JSON.parse(JSON.stringify(await ruleStatuses(series.id)))} timeZone={series.timeZone} />
       <BacktestPanel slug={series.slug} timeZone={series.timeZone} canRun={roleAtLeast(actor.role, 'lead')} />

@@ -5,6 +5,7 @@ import { PrintButton } from '@/components/workbench/PrintButton';
 import { ReportCharts } from '@/components/workbench/ReportCharts';
 import { requireRole } from '@/lib/auth/guard';
 import { formatP, formatTau } from '@/lib/display/format';
+import { describeExtent, formatDirection, stretchReason } from '@/lib/display/analysis-labels';
 import { fetchWorkbench } from '@/lib/workbench';
 
 export const metadata = { title: 'Report' };
@@ -46,7 +47,7 @@ export default async function SeriesReportPage({ params }: { params: Promise<{ s
           <table className="num w-full text-sm">
             <caption className="mb-1 text-left font-semibold">Trend of each indicator over the record</caption>
             <thead className="border-b border-rule text-left text-ink-soft">
-              <tr><th scope="col">Indicator</th><th scope="col">Kendall tau</th><th scope="col">Kendall p</th><th scope="col">Surrogate p</th><th scope="col">Latest value</th></tr>
+              <tr><th scope="col">Indicator</th><th scope="col">Kendall tau</th><th scope="col">Tested</th><th scope="col">Kendall p (descriptive)</th><th scope="col">Surrogate p</th><th scope="col">Latest value</th></tr>
             </thead>
             <tbody>
               {view.indicators.map((name) => {
@@ -56,6 +57,7 @@ export default async function SeriesReportPage({ params }: { params: Promise<{ s
                   <tr key={name} className="border-b border-rule">
                     <th scope="row" className="py-1 text-left font-medium">{name}</th>
                     <td>{formatTau(view.kendall[name]?.tau)}</td>
+                    <td>{formatDirection(view.significance[name]?.direction ?? view.kendall[name]?.direction ?? 'rising')}</td>
                     <td>{formatP(view.kendall[name]?.p)}</td>
                     <td>{view.significance[name] ? `${formatP(view.significance[name]!.p)} (${view.significance[name]!.count})` : '–'}</td>
                     <td>{latest === undefined || latest === null ? '–' : Number(latest.toPrecision(4))}</td>
@@ -66,7 +68,7 @@ export default async function SeriesReportPage({ params }: { params: Promise<{ s
           </table>
           <p className="text-sm text-ink-soft">
             Settings: detrending {view.settings.detrend}
-            {view.settings.detrend === 'gaussian' ? `, bandwidth ${Math.round(view.settings.bandwidth * 100)}%` : ''}, rolling window {Math.round(view.settings.window * 100)}% ({view.windowPoints} of {view.n} points),
+            {view.bandwidthPoints !== null && view.settings.detrend !== 'moving-average' ? `, bandwidth ${describeExtent(view.settings.bandwidth, 'the stretch')}` : ''}, rolling window {describeExtent(view.settings.window, 'the stretch')} ({view.windowPoints} of {view.n} points{view.stretch ? `, ${stretchReason(view.stretch.startsAfter)}` : ''}),
             {' '}seasonal removal {view.settings.seasonal}. Analysed <LocalTime t={bench.snapshot?.createdAt} timeZone={series.timeZone} withZone />.
           </p>
           <ReportCharts view={view} series={{ slug: series.slug, name: series.name, unit: series.unit, timeZone: series.timeZone }} transitions={bench.transitions} />

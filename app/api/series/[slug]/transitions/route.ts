@@ -5,14 +5,15 @@ import { readJson } from '@/lib/http/body';
 import { handle } from '@/lib/http/handler';
 import { transitionCreateSchema } from '@/lib/schemas/backtest';
 import { findSeriesBySlug } from '@/lib/series/registry';
+import { MARK_KINDS } from '@/models/Transition';
 
 export const GET = handle<{ slug: string }>(async (_request, { params }) => {
   await requireRole('viewer');
   const series = await findSeriesBySlug((await params).slug);
-  return NextResponse.json({ transitions: await listTransitions(series.id) });
+  return NextResponse.json({ transitions: await listTransitions(series.id, MARK_KINDS) });
 });
 
-/** Marks a known transition: { at: ISO 8601 or epoch ms, note }. */
+/** Marks a known transition or a maintenance break: { at: ISO 8601 or epoch ms, note, kind?: 'transition' | 'maintenance' }. */
 export const POST = handle<{ slug: string }>(async (request, { params }) => {
   const actor = await requireRole('lead');
   const series = await findSeriesBySlug((await params).slug);

@@ -1,0 +1,46 @@
+import type { TrendDirection } from '@/lib/engine/direction';
+import type { AnalysisResult } from '@/lib/engine/analyze';
+import type { AnalysisSettings } from '@/lib/engine/settings';
+import { formatTau } from './format';
+
+/**
+ * Words for the direction an indicator's trend is tested in and for where an analysed stretch starts, shared by
+ * the charts, the tuning panel and the quality panel so every screen says them alike. Pure; browser-safe.
+ */
+
+const DIRECTION_WORDS: Record<TrendDirection, string> = { rising: 'rising ↑', falling: 'falling ↓', 'two-sided': 'either way ↕' };
+
+/** "rising ↑", "falling ↓" or "either way ↕". */
+export function formatDirection(direction: TrendDirection): string {
+  return DIRECTION_WORDS[direction];
+}
+
+/**
+ * Tau with the direction it is tested in, e.g. "τ = 0.62, tested rising ↑": the direction is the one slowing down
+ * would move the indicator (recovery falls, variance and ac1 rise), not the sign of tau, so a tau against it
+ * ("τ = −0.30, tested rising ↑") reads as evidence against slowing down.
+ */
+export function formatTauDirection(tau: number | null | undefined, direction: TrendDirection): string {
+  return `τ = ${formatTau(tau)}, tested ${formatDirection(direction)}`;
+}
+
+const STRETCH_REASONS: Record<AnalysisResult['stretch']['startsAfter'], string> = {
+  'record-start': 'the start of the record',
+  shift: 'a detected abrupt shift',
+  transition: 'a marked transition',
+  maintenance: 'a maintenance break',
+  sampling: 'a change of sampling interval',
+  span: 'the start of the analysis span',
+  gap: 'a gap too long to fill',
+};
+
+/** Why the analysed stretch starts where it does, e.g. "analysed since a detected abrupt shift". */
+export function stretchReason(startsAfter: AnalysisResult['stretch']['startsAfter']): string {
+  return `analysed since ${STRETCH_REASONS[startsAfter] ?? startsAfter}`;
+}
+
+/** How a window, bandwidth or span reads: "50% of the stretch" for a fraction, else as given ("500 points", "P90D"). */
+export function describeExtent(extent: AnalysisSettings['window'] | null, of: string): string {
+  if (extent === null) return 'the whole record';
+  return typeof extent === 'number' ? `${Math.round(extent * 100)}% of ${of}` : extent;
+}
