@@ -123,7 +123,8 @@ describe('alerts end to end', () => {
       'not forecasts',
     ])
       expect(mail.text).toContain(fact);
-    expect(mail.text).toMatch(new RegExp(`Kendall tau\\s+${formatTau(first.summary.kendall.ac1.tau)}\\r?\\n`));
+    expect(mail.text).toMatch(new RegExp(`Kendall tau\\s+${formatTau(first.summary.kendall.ac1.tau)} \\(rising\\)\\r?\\n`));
+    expect(mail.text).toMatch(/False alarms\s+(not yet calibrated|not available|\S+ false alarms per year)/);
     expect(mail.raw).not.toContain('<test>)</h1>');
     // Several cycles, one message.
     await new Promise((r) => setTimeout(r, 2500));
