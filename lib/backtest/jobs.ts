@@ -101,73 +101,6 @@ export async function requestBacktest(ruleId: number, request: BacktestRequest, 
   });
 }
 
-/** Surrogates a rule's automatic calibration replays (the live procedure on surrogates of the pre-transition record). */
-export const RULE_CALIBRATION_SURROGATES = 200;
-
-/**
- * Queues a calibration of a rule on its own series (after a create or an update), in the caller's transaction when
- * one is given. Null for a default rule, which has no series to replay on.
- */
-export async function queueRuleCalibration(ruleId: number, actor: { id: number } | null, transaction?: Transaction): Promise<BacktestJob | null> {
-  const run = async (t: Transaction) => {
-    const rule = await AlertRule.findByPk(ruleId, { transaction: t });
-    if (!rule) throw new NotFoundError('Rule');
-    if (rule.seriesId === null) return null;
-    const request = backtestRequestSchema.parse({ calibration: { surrogates: RULE_CALIBRATION_SURROGATES } });
-    const job = await BacktestJob.create(
-      {
-        ruleId,
-        seriesId: rule.seriesId,
-        kind: 'calibration',
-        params: { every: request.every, horizonDays: request.horizonDays, calibration: request.calibration },
-        result: null,
-        error: null,
-        createdBy: actor?.id ?? null,
-        startedAt: null,
-        finishedAt: null,
-      },
-      { transaction: t },
-    );
-    await recordAudit({ actorId: actor?.id ?? null, action: 'backtest.request', entity: 'backtest_job', entityId: job.id, details: { ruleId, seriesId: rule.seriesId, ...job.params } }, t);
-    return job;
-  };
-  return transaction ? run(transaction) : writeTransaction(run);
-}
-
-/** The latest finished calibration of a rule, as a rule shows it. */
-export interface RuleCalibration {
-  jobId: number;
-  finishedAt: string;
-  falseAlarmsPerYear: number | null;
-  interval: [number, number] | null;
-  surrogates: number;
-}
-
-/** The latest succeeded calibration job of each rule (rules without one are absent from the map). */
-export async function latestRuleCalibration(ruleIds: number[]): Promise<Map<number, RuleCalibration>> {
-  const out = new Map<number, RuleCalibration>();
-  if (!ruleIds.length) return out;
-  await db();
-  const jobs = await BacktestJob.findAll({
-    where: { ruleId: { [Op.in]: ruleIds }, kind: 'calibration', status: 'succeeded' },
-    attributes: ['id', 'ruleId', 'finishedAt', 'result'],
-    order: [['id', 'DESC']],
-  });
-  for (const job of jobs) {
-    if (out.has(job.ruleId)) continue;
-    const calibration = (job.result as BacktestResult | null)?.calibration ?? null;
-    const withInterval = calibration as (BacktestResult['calibration'] & { falseAlarmsPerYearInterval?: [number, number] }) | null;
-    out.set(job.ruleId, {
-      jobId: job.id,
-      finishedAt: (job.finishedAt ?? new Date(0)).toISOString(),
-      falseAlarmsPerYear: calibration?.falseAlarmsPerYear ?? null,
-      interval: withInterval?.falseAlarmsPerYearInterval ?? null,
-      surrogates: calibration?.surrogates ?? 0,
-    });
-  }
-  return out;
-}
-
 /** Backtests, newest first, optionally of one rule and/or one series (by slug). */
 export async function listBacktests(filter: { rule?: number; series?: string }): Promise<BacktestJobRecord[]> {
   await db();
@@ -324,7 +257,8 @@ export async function queueRuleCalibration(ruleId: number, actor: { id: number }
   return writeTransaction(work);
 }
 
-export interface RuleCalibrationSummary {
+/** The latest calibration of a rule, as a rule, its alerts and its mails show it. */
+export interface RuleCalibration {
   jobId: number;
   finishedAt: string;
   falseAlarmsPerYear: number | null;
@@ -337,8 +271,8 @@ export interface RuleCalibrationSummary {
  * now (same indicator, direction, thresholds, persistence and quiet period) and its series' analysis settings.
  * Rules with none are absent from the map (a changed rule or series waits for its next calibration).
  */
-export async function latestRuleCalibration(ruleIds: number[]): Promise<Map<number, RuleCalibrationSummary>> {
-  const out = new Map<number, RuleCalibrationSummary>();
+export async function latestRuleCalibration(ruleIds: number[]): Promise<Map<number, RuleCalibration>> {
+  const out = new Map<number, RuleCalibration>();
   if (!ruleIds.length) return out;
   await db();
   const [rules, jobs] = await Promise.all([
