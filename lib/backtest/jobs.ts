@@ -5,7 +5,7 @@ import type { Actor } from '@/lib/auth/guard';
 import { loadObservations } from '@/lib/analysis/observations';
 import { analysisSettingsSchema, type IndicatorName } from '@/lib/engine/settings';
 import { ConflictError, NotFoundError, UnprocessableError } from '@/lib/http/errors';
-import { backtestRequestSchema, type BacktestRequest } from '@/lib/schemas/backtest';
+import type { BacktestRequest } from '@/lib/schemas/backtest';
 import { findSeriesBySlug } from '@/lib/series/registry';
 import { CancelledError } from './pool';
 import { listTransitions } from './transitions';
