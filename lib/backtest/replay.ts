@@ -49,9 +49,13 @@ export interface ReplayGeometry {
   surrogates: number;
   surrogateMethod: 'ar1' | 'phase';
   seed: number;
+  /** share of observed (not interpolated) points a window needs to be judged */
+  minCoverage: number;
 }
 
 const DAY_MS = 86_400_000;
+/** Share of observed points a window needs (the engine's default floor, lib/engine/settings.ts). */
+const DEFAULT_MIN_COVERAGE = 0.8;
 /** Fewest indicator values a trend is judged on; our own choice (a Kendall tau of a handful of values swings to ±1 by chance). */
 const MIN_TREND_VALUES = 10;
 /**
@@ -97,6 +101,8 @@ export function replayGeometry(settings: AnalysisSettings, nRef: number, interva
     surrogates: settings.surrogates > 0 ? settings.surrogates : 99,
     surrogateMethod: settings.surrogateMethod,
     seed: settings.seed,
+    // the floor arrives with the engine's coverage setting; 0.8 is its documented default
+    minCoverage: (settings as { minCoverage?: number }).minCoverage ?? DEFAULT_MIN_COVERAGE,
   };
 }
 
@@ -184,8 +190,32 @@ function causalGaussianResidual(x: Float64Array, h: number, out: Float64Array): 
   for (let i = 0; i < n; i++) out[i] = c[i] - num[i] / cum[Math.min(i, L)];
 }
 
-/** The rule's indicator for the window ending at each residual index (NaN before the window fills), by SlidingMoments. O(n). */
-export function indicatorStream(residual: Float64Array, raw: Float64Array, name: IndicatorName, g: Pick<ReplayGeometry, 'w' | 'dt'>): Float64Array {
+/**
+ * Whether the window ending at each residual index holds at least minCoverage·w observed (not interpolated)
+ * points, by a sliding count. O(n).
+ */
+export function windowCoverage(observed: Uint8Array, g: Pick<ReplayGeometry, 'w' | 'minCoverage'>): Uint8Array {
+  const out = new Uint8Array(observed.length);
+  let inWindow = 0;
+  for (let i = 0; i < observed.length; i++) {
+    inWindow += observed[i];
+    if (i >= g.w) inWindow -= observed[i - g.w];
+    out[i] = inWindow >= g.minCoverage * g.w ? 1 : 0;
+  }
+  return out;
+}
+
+/**
+ * The rule's indicator for the window ending at each residual index (NaN before the window fills, and where
+ * `covered` says the window has too few observed points), by SlidingMoments. O(n).
+ */
+export function indicatorStream(
+  residual: Float64Array,
+  raw: Float64Array,
+  name: IndicatorName,
+  g: Pick<ReplayGeometry, 'w' | 'dt'>,
+  covered: Uint8Array | null = null,
+): Float64Array {
   const n = residual.length;
   const out = new Float64Array(n).fill(Number.NaN);
   const acc = new SlidingMoments(g.w);
@@ -193,7 +223,7 @@ export function indicatorStream(residual: Float64Array, raw: Float64Array, name:
   for (let i = 0; i < n; i++) {
     acc.push(residual[i]);
     rawAcc?.push(raw[i]);
-    if (acc.full) out[i] = acc.indicator(name, { dt: g.dt, rawMean: rawAcc?.mean() });
+    if (acc.full && (covered === null || covered[i])) out[i] = acc.indicator(name, { dt: g.dt, rawMean: rawAcc?.mean() });
   }
   return out;
 }
@@ -209,6 +239,8 @@ export interface Evidence {
   level: Float64Array;
   /** indicator values in the trend test */
   count: Int32Array;
+  /** 1 where the newest window meets the coverage floor (absent: every window does) */
+  covered?: Uint8Array;
 }
 
 /**
@@ -216,7 +248,12 @@ export interface Evidence {
  * trend set growing (or sliding over the trailing span) through IncrementalKendall. Instants with fewer than
  * `warmup` values are not judged. Cost O(n + m log m).
  */
-export function replayEvidence(stream: Float64Array, time: Float64Array, g: Pick<ReplayGeometry, 'offset' | 'spanValues' | 'warmup' | 'every'>): Evidence {
+export function replayEvidence(
+  stream: Float64Array,
+  time: Float64Array,
+  g: Pick<ReplayGeometry, 'offset' | 'spanValues' | 'warmup' | 'every'>,
+  covered: Uint8Array | null = null,
+): Evidence {
   const { ranks, size } = denseRanks(stream);
   const n = stream.length;
   const kendall = new IncrementalKendall(Math.max(1, size), (g.spanValues ?? n) + 1);
@@ -225,6 +262,7 @@ export function replayEvidence(stream: Float64Array, time: Float64Array, g: Pick
   const p: number[] = [];
   const level: number[] = [];
   const count: number[] = [];
+  const cover: number[] = [];
   // residual indices of the values held, oldest first, so the trailing span can drop what falls out of it
   const held = new Int32Array(n);
   let head = 0;
@@ -249,6 +287,7 @@ export function replayEvidence(stream: Float64Array, time: Float64Array, g: Pick
     p.push(r.p);
     level.push(stream[e]);
     count.push(r.n);
+    cover.push(covered === null ? 1 : covered[e]);
   }
   const index = Int32Array.from(idx);
   return {
@@ -258,6 +297,7 @@ export function replayEvidence(stream: Float64Array, time: Float64Array, g: Pick
     p: Float64Array.from(p),
     level: Float64Array.from(level),
     count: Int32Array.from(count),
+    ...(covered === null ? {} : { covered: Uint8Array.from(cover) }),
   };
 }
 
@@ -266,6 +306,7 @@ export function replayEvidence(stream: Float64Array, time: Float64Array, g: Pick
  * the threshold and the level test (if any) holds. The Kendall p is not a gate (see ReplayRule.maxKendallP). O(1).
  */
 export function basePasses(ev: Evidence, s: number, rule: ReplayRule, threshold: number, direction = replayDirection(rule)): boolean {
+  if (ev.covered && !ev.covered[s]) return false;
   const t = orientedTau(ev.tau[s], direction);
   if (!(t >= threshold)) return false;
   if (rule.levelThreshold !== null) {
@@ -295,6 +336,8 @@ export interface OnsetReport {
   notJudged: Int32Array;
   /** would-be onsets inside the quiet period of the previous onset (not counted as alarms) */
   quietSuppressed: number;
+  /** of the not-judged steps, those whose newest window is below the coverage floor */
+  belowCoverage: number;
 }
 
 /**
@@ -303,7 +346,7 @@ export interface OnsetReport {
  * rule's direction) is at most maxSurrogateP; `persistence` passing steps in a row open an alarm; a failing step
  * resets the run. An open alarm stays open while basePasses holds (its surrogate p is not re-checked: the alert
  * would still be open in front of a person); a new onset within the quiet period of the previous one is not
- * counted. The surrogate p is checked at every step that needs it while the caller's cost bound allows
+ * counted. A step whose newest window is below the coverage floor is not judged (and breaks the run). The surrogate p is checked at every step that needs it while the caller's cost bound allows
  * (`check` answers 'over-budget' after that): such a step is reported as not judged and breaks the run, so a
  * cost bound never silently turns into missing or extra alarms. O(steps) plus the checks.
  */
@@ -316,7 +359,15 @@ export function alarmOnsets(ev: Evidence, rule: ReplayRule, threshold: number, c
   let open = false;
   let checks = 0;
   let quietSuppressed = 0;
+  let belowCoverage = 0;
   for (let s = 0; s < ev.tau.length; s++) {
+    if (ev.covered && !ev.covered[s]) {
+      // too few observed points in the newest window: the live rule cannot judge this cycle either
+      notJudged.push(s);
+      belowCoverage++;
+      streak = 0;
+      continue;
+    }
     if (!basePasses(ev, s, rule, threshold, direction)) {
       streak = 0;
       open = false;
@@ -347,7 +398,7 @@ export function alarmOnsets(ev: Evidence, rule: ReplayRule, threshold: number, c
     }
     onsets.push({ step: s, index: ev.index[s], time: ev.time[s], tau: ev.tau[s], p: ev.p[s], surrogateP: sp });
   }
-  return { onsets, surrogateChecks: checks, notJudged: Int32Array.from(notJudged), quietSuppressed };
+  return { onsets, surrogateChecks: checks, notJudged: Int32Array.from(notJudged), quietSuppressed, belowCoverage };
 }
 
 /**
@@ -373,11 +424,38 @@ export function firingStatistic(ev: Evidence, rule: ReplayRule, from = 0, to = e
   return best;
 }
 
-/** A record replayed: its point-in-time residual and the evidence at every judged instant. O(n log n). */
-export function replayRecord(value: Float64Array, time: Float64Array, rule: ReplayRule, g: ReplayGeometry): { residual: Float64Array; evidence: Evidence } {
+/**
+ * A record replayed: its point-in-time residual and the evidence at every judged instant. `observed` marks the
+ * grid points that were observed (0 = interpolated); with differencing a residual counts as observed when both
+ * its points were. O(n log n).
+ */
+export function replayRecord(
+  value: Float64Array,
+  time: Float64Array,
+  rule: ReplayRule,
+  g: ReplayGeometry,
+  observed: Uint8Array | null = null,
+): { residual: Float64Array; evidence: Evidence } {
   const residual = pointInTimeResiduals(value, g);
-  const stream = indicatorStream(residual, value.subarray(g.offset), rule.indicator, g);
-  return { residual, evidence: replayEvidence(stream, time, g) };
+  let covered: Uint8Array | null = null;
+  if (observed !== null) {
+    const own = g.offset === 0 ? observed : Uint8Array.from(residual, (_, i) => observed[i] & observed[i + 1]);
+    covered = windowCoverage(own, g);
+  }
+  const stream = indicatorStream(residual, value.subarray(g.offset), rule.indicator, g, covered);
+  return { residual, evidence: replayEvidence(stream, time, g, covered) };
+}
+
+/** 1 for each grid point that was observed, 0 inside the gaps preparation filled (their first..last instants). O(n + gaps). */
+export function observedMask(time: Float64Array, gaps: { from: number; to: number; filled: boolean }[]): Uint8Array {
+  const out = new Uint8Array(time.length).fill(1);
+  let i = 0;
+  for (const gap of gaps) {
+    if (!gap.filled) continue;
+    while (i < time.length && time[i] < gap.from) i++;
+    for (let k = i; k < time.length && time[k] <= gap.to; k++) out[k] = 0;
+  }
+  return out;
 }
 
 /**

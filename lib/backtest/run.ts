@@ -16,6 +16,7 @@ import {
   prefixSurrogateChecker,
   replayDirection,
   replayGeometry,
+  observedMask,
   replayRecord,
   stepSpans,
   type Evidence,
@@ -143,12 +144,15 @@ export interface BacktestResult {
   judged: {
     /** time covered by judged instants, years */
     years: number;
-    /** instants that needed a surrogate-p check the cost bound did not allow, and the stretches they form */
+    /** instants not judged (a surrogate-p check the cost bound did not allow, or a window below the coverage floor), and their stretches */
     notJudgedSteps: number;
     notJudged: { from: number; to: number; steps: number }[];
     surrogateChecks: number;
     /** would-be alarms inside the quiet period of the previous one */
     quietSuppressed: number;
+    /** of the not-judged instants, those whose newest window had fewer observed points than the coverage floor */
+    belowCoverage: number;
+    minCoverage: number;
   };
   /** false alarms per year of judged time that could host one (outside warning stretches and one window after a transition) */
   falseAlarms: { count: number; exposureYears: number; perYear: number | null; interval: [number, number] | null };
@@ -225,7 +229,8 @@ export async function runBacktest(
   if (x.length - g.offset < g.w + g.warmup) {
     throw new AnalysisInputError(`the record has ${x.length} points; a replay with a ${g.w}-point window needs at least ${g.w + g.warmup + g.offset}`);
   }
-  const { residual, evidence: ev } = replayRecord(x, time, rule, g);
+  const observed = prepared.quality.gaps.some((gap) => gap.filled) ? observedMask(time, prepared.quality.gaps) : null;
+  const { residual, evidence: ev } = replayRecord(x, time, rule, g, observed);
   // Draws stop once a check is sure to fail: a passing check (the only kind an alarm shows) still has its exact p.
   const checker = prefixSurrogateChecker(residual, x, ev, rule, g, { budget: options.surrogateBudget, decisionOnly: true });
   const report = alarmOnsets(ev, rule, rule.minTau, checker.check);
@@ -308,7 +313,7 @@ export async function runBacktest(
     const N = input.calibration.surrogates;
     const M = input.calibration.approaches ?? N;
     const threads = options.threads;
-    const base = { trend: d.trend, time: preTime, rule, geometry: g };
+    const base = { trend: d.trend, time: preTime, observed: observed?.slice(0, nPre) ?? null, rule, geometry: g };
     const surrogateRuns = await runCalibration(
       { ...base, source: { kind: 'surrogate', job }, scoreFrom: Number.NEGATIVE_INFINITY, liveSurrogateP: true, budget: CALIBRATION_WORK_BUDGET / N },
       N,
@@ -383,6 +388,8 @@ export async function runBacktest(
       notJudged: stretches(report.notJudged, ev.time),
       surrogateChecks: report.surrogateChecks,
       quietSuppressed: report.quietSuppressed,
+      belowCoverage: report.belowCoverage,
+      minCoverage: g.minCoverage,
     },
     falseAlarms: { count: falseCount, exposureYears, perYear: exposureYears > 0 ? falseCount / exposureYears : null, interval: garwoodInterval(falseCount, exposureYears) },
     evidence: thin(ev),

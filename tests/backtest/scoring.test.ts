@@ -99,6 +99,39 @@ describe('judged time, hand-computed on a small record', () => {
   });
 });
 
+describe('windows below the coverage floor are not judged', () => {
+  it('a stretch with a third of its days missing (filled by interpolation) leaves its instants unjudged', async () => {
+    // 600 daily AR(1) values; from index 300 to 419 every third day is missing (runs of 1, within maxGap 3),
+    // so windows of w = 60 points (window 0.1) lying mostly in that stretch hold about 2/3 < 80 % observed points
+    const n = 600;
+    const all = days(n);
+    const x = simulateAr1({ n, phi: 0.5, sigma: 1, seed: 9 });
+    const keep = Array.from({ length: n }, (_, i) => i).filter((i) => !(i >= 300 && i < 420 && i % 3 === 0));
+    const settings = analysisSettingsSchema.parse({ detrend: 'none', window: 0.1, surrogates: 0 });
+    const r = await runBacktest({
+      time: Float64Array.from(keep, (i) => all[i]),
+      value: Float64Array.from(keep, (i) => x[i]),
+      intervalMs: DAY,
+      settings,
+      rule: rule({ minTau: -1, persistence: 1 }),
+      transitions: [],
+      every: 1,
+    });
+    expect(r.geometry.windowPoints).toBe(60);
+    // a window needs 0.8 · 60 = 48 observed points, so it is below the floor once it holds 13 or more missing
+    // days, i.e. about 39 days of the stretch: from index ≈ 338 until it has mostly left the stretch (< 480);
+    // one contiguous stretch of unjudged instants
+    expect(r.judged.belowCoverage).toBeGreaterThan(50);
+    expect(r.judged.belowCoverage).toBe(r.judged.notJudgedSteps);
+    expect(r.judged.notJudged).toHaveLength(1);
+    const { from, to } = r.judged.notJudged[0];
+    expect(from).toBeGreaterThan(all[300]);
+    expect(to).toBeLessThan(all[420 + 60]);
+    // judged time leaves them out: 600 − first judged index − unjudged instants, one day each
+    expect(r.judged.years * YEAR).toBeCloseTo((r.steps - r.judged.notJudgedSteps) * DAY, 3);
+  });
+});
+
 describe('a stationary record with a mark at its end', () => {
   // Stationary AR(1) (Box et al. 2015, Sec. 3.2): no warning is possible, so an alarm far before the mark is
   // false. 1,500 daily points, linear detrending, window 0.25 → 375 points = the default horizon; warm-up 94
