@@ -30,11 +30,10 @@ const YEAR_MS = 365.25 * 86_400_000;
 /** Stored evidence curves are thinned to at most this many instants (the statistics use every instant). */
 const CURVE_POINTS = 2000;
 /**
- * Surrogate work all replicates of one calibration may spend on their surrogate-p checks, shared evenly: about
- * three minutes on two cores. A calibration is a background job; its unjudged instants are reported and left
- * out of the judged time.
+ * Default surrogate work all replicates of one calibration may spend on their surrogate-p checks, shared evenly:
+ * about a minute on two cores. Unjudged instants are reported and left out of the judged time.
  */
-const CALIBRATION_WORK_BUDGET = 4 * SURROGATE_WORK_BUDGET;
+export const CALIBRATION_WORK_BUDGET = 2 * SURROGATE_WORK_BUDGET;
 
 export interface BacktestInput {
   time: Float64Array;
@@ -49,9 +48,10 @@ export interface BacktestInput {
   horizonMs?: number | null;
   /**
    * surrogates: replicates of the pre-transition record for the calibrated false-alarm rate; approaches: simulated
-   * records of each kind (null and fold approach) for the ROC (default: as many as surrogates)
+   * records of each kind (null and fold approach) for the ROC (default: as many as surrogates); budget: surrogate
+   * work of the replicates' surrogate-p checks (default CALIBRATION_WORK_BUDGET)
    */
-  calibration?: { surrogates: number; method: SurrogateMethod; approaches?: number } | null;
+  calibration?: { surrogates: number; method: SurrogateMethod; approaches?: number; budget?: number } | null;
 }
 
 export interface TransitionOutcome {
@@ -315,7 +315,7 @@ export async function runBacktest(
     const threads = options.threads;
     const base = { trend: d.trend, time: preTime, observed: observed?.slice(0, nPre) ?? null, rule, geometry: g };
     const surrogateRuns = await runCalibration(
-      { ...base, source: { kind: 'surrogate', job }, scoreFrom: Number.NEGATIVE_INFINITY, liveSurrogateP: true, budget: CALIBRATION_WORK_BUDGET / N },
+      { ...base, source: { kind: 'surrogate', job }, scoreFrom: Number.NEGATIVE_INFINITY, liveSurrogateP: true, budget: (input.calibration.budget ?? CALIBRATION_WORK_BUDGET) / N },
       N,
       { threads, signal: options.signal, onProgress: (f) => options.onProgress?.(0.1 + 0.6 * f) },
     );
