@@ -241,6 +241,8 @@ export interface Evidence {
   count: Int32Array;
   /** 1 where the newest window meets the coverage floor (absent: every window does) */
   covered?: Uint8Array;
+  /** record index where the analysed stretch of each instant starts (absent: the record's start) */
+  from?: Int32Array;
 }
 
 /**
@@ -361,6 +363,11 @@ export function alarmOnsets(ev: Evidence, rule: ReplayRule, threshold: number, c
   let quietSuppressed = 0;
   let belowCoverage = 0;
   for (let s = 0; s < ev.tau.length; s++) {
+    if (ev.from && s > 0 && ev.from[s] !== ev.from[s - 1]) {
+      // a new stretch (after a marked transition) starts afresh, as the live analysis does
+      streak = 0;
+      open = false;
+    }
     if (ev.covered && !ev.covered[s]) {
       // too few observed points in the newest window: the live rule cannot judge this cycle either
       notJudged.push(s);
@@ -417,7 +424,8 @@ export function firingStatistic(ev: Evidence, rule: ReplayRule, from = 0, to = e
     let m = Number.POSITIVE_INFINITY;
     for (let j = s - P + 1; j <= s && m > best; j++) {
       const t = orientedTau(ev.tau[j], direction);
-      m = Number.isFinite(t) && basePasses(ev, j, rule, Number.NEGATIVE_INFINITY, direction) ? Math.min(m, t) : Number.NEGATIVE_INFINITY;
+      const sameStretch = !ev.from || ev.from[j] === ev.from[s];
+      m = sameStretch && Number.isFinite(t) && basePasses(ev, j, rule, Number.NEGATIVE_INFINITY, direction) ? Math.min(m, t) : Number.NEGATIVE_INFINITY;
     }
     if (m > best) best = m;
   }
@@ -444,6 +452,62 @@ export function replayRecord(
   }
   const stream = indicatorStream(residual, value.subarray(g.offset), rule.indicator, g, covered);
   return { residual, evidence: replayEvidence(stream, time, g, covered) };
+}
+
+function concat<T extends Float64Array | Int32Array | Uint8Array>(arrays: T[], Kind: { new (n: number): T }): T {
+  const out = new Kind(arrays.reduce((a, v) => a + v.length, 0));
+  let at = 0;
+  for (const v of arrays) {
+    (out as Float64Array).set(v, at);
+    at += v.length;
+  }
+  return out;
+}
+
+/**
+ * A record replayed as the live analysis sees it across marked transitions: the analysed stretch restarts at
+ * each cut (a record index, e.g. the first point at or after a marked transition), so every stretch is replayed
+ * on its own (replayRecord) and its evidence carries `from`, the stretch's first record index. The residual is
+ * returned on the record's own indices (with differencing, the step across a cut belongs to no stretch and is
+ * 0). Stretches too short for a window and its warm-up give no instants. O(n log n).
+ */
+export function replayStretches(
+  value: Float64Array,
+  time: Float64Array,
+  rule: ReplayRule,
+  g: ReplayGeometry,
+  observed: Uint8Array | null,
+  cuts: number[],
+): { residual: Float64Array; evidence: Evidence } {
+  const bounds = [0, ...cuts.filter((c) => c > 0 && c < value.length).sort((a, b) => a - b), value.length];
+  if (bounds.length === 2) return replayRecord(value, time, rule, g, observed);
+  const residual = new Float64Array(Math.max(0, value.length - g.offset));
+  const parts: Evidence[] = [];
+  const froms: number[] = [];
+  for (let b = 0; b + 1 < bounds.length; b++) {
+    const a = bounds[b];
+    const z = bounds[b + 1];
+    if (z - a - g.offset < g.w + g.warmup) continue;
+    const part = replayRecord(value.subarray(a, z), time.subarray(a, z), rule, g, observed?.subarray(a, z) ?? null);
+    residual.set(part.residual, a);
+    const ev = part.evidence;
+    for (let s = 0; s < ev.index.length; s++) ev.index[s] += a;
+    parts.push(ev);
+    froms.push(a);
+  }
+  const lengths = parts.map((e) => e.index.length);
+  const from = Int32Array.from(lengths.flatMap((n, i) => new Array<number>(n).fill(froms[i])));
+  const evidence: Evidence = {
+    index: concat(parts.map((e) => e.index), Int32Array),
+    time: concat(parts.map((e) => e.time), Float64Array),
+    tau: concat(parts.map((e) => e.tau), Float64Array),
+    p: concat(parts.map((e) => e.p), Float64Array),
+    level: concat(parts.map((e) => e.level), Float64Array),
+    count: concat(parts.map((e) => e.count), Int32Array),
+    from,
+  };
+  if (parts.some((e) => e.covered)) evidence.covered = concat(parts.map((e) => e.covered ?? new Uint8Array(e.index.length).fill(1)), Uint8Array);
+  return { residual, evidence };
 }
 
 /** 1 for each grid point that was observed, 0 inside the gaps preparation filled (their first..last instants). O(n + gaps). */
@@ -510,7 +574,8 @@ export function prefixSurrogateChecker(
   let spent = 0;
   const check = (s: number): SurrogateCheck => {
     const e = ev.index[s] - g.offset + 1;
-    const start = g.spanValues === null ? 0 : Math.max(0, e - (g.spanValues + g.w - 1));
+    const stretchStart = ev.from ? ev.from[s] : 0;
+    const start = g.spanValues === null ? stretchStart : Math.max(stretchStart, e - (g.spanValues + g.w - 1));
     const len = e - start;
     // a check starts while any budget is left, so the bound is exceeded by at most one check
     if (!(left > 0)) return 'over-budget';

@@ -17,7 +17,7 @@ import {
   replayDirection,
   replayGeometry,
   observedMask,
-  replayRecord,
+  replayStretches,
   stepSpans,
   type Evidence,
   type ReplayRule,
@@ -230,7 +230,14 @@ export async function runBacktest(
     throw new AnalysisInputError(`the record has ${x.length} points; a replay with a ${g.w}-point window needs at least ${g.w + g.warmup + g.offset}`);
   }
   const observed = prepared.quality.gaps.some((gap) => gap.filled) ? observedMask(time, prepared.quality.gaps) : null;
-  const { residual, evidence: ev } = replayRecord(x, time, rule, g, observed);
+  const marks = [...input.transitions].sort((a, b) => a.at - b.at);
+  // after each marked transition the live analysis judges only the record since it: replay each stretch on its own
+  const cuts = marks.map((m) => {
+    let k = 0;
+    while (k < time.length && time[k] < m.at) k++;
+    return k;
+  });
+  const { residual, evidence: ev } = replayStretches(x, time, rule, g, observed, cuts);
   // Draws stop once a check is sure to fail: a passing check (the only kind an alarm shows) still has its exact p.
   const checker = prefixSurrogateChecker(residual, x, ev, rule, g, { budget: options.surrogateBudget, decisionOnly: true });
   const report = alarmOnsets(ev, rule, rule.minTau, checker.check);
@@ -239,7 +246,6 @@ export async function runBacktest(
 
   const settle = g.w * g.interval;
   const horizon = input.horizonMs ?? g.w * g.interval;
-  const marks = [...input.transitions].sort((a, b) => a.at - b.at);
   /** the warning stretch of transition j: [start_j, at_j) */
   const stretchStart = marks.map((m, j) => Math.max(j > 0 ? marks[j - 1].at + settle : Number.NEGATIVE_INFINITY, m.at - horizon));
   const classify = (t: number): { kind: AlarmRecord['kind']; j: number } => {
