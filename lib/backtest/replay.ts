@@ -45,7 +45,7 @@ export interface ReplayGeometry {
   dt: number;
   /** judge every this many new points */
   every: number;
-  /** surrogates per surrogate-p check (0 = the surrogate criterion is not judged) */
+  /** surrogates per surrogate-p check: the series' setting, or 99 when it runs none (a live rule needing them is refused there) */
   surrogates: number;
   surrogateMethod: 'ar1' | 'phase';
   seed: number;
