@@ -1,4 +1,5 @@
-import { Transition, db, writeTransaction } from '@/models';
+import type { Transaction } from 'sequelize';
+import { AlertRule, Transition, db, writeTransaction } from '@/models';
 import { recordAudit } from '@/lib/audit';
 import type { Actor } from '@/lib/auth/guard';
 import { NotFoundError } from '@/lib/http/errors';
@@ -16,10 +17,21 @@ export async function listTransitions(seriesId: number): Promise<TransitionRecor
   return rows.map(presentTransition);
 }
 
+/**
+ * A mark moves the end of the pre-transition record every calibration copies, so each rule of the series is
+ * calibrated again (queueRuleCalibration, imported lazily: jobs.ts imports this module).
+ */
+async function recalibrateRulesOf(seriesId: number, actor: Pick<Actor, 'id'>, transaction: Transaction): Promise<void> {
+  const { queueRuleCalibration } = await import('./jobs');
+  const rules = await AlertRule.findAll({ where: { seriesId, active: true }, attributes: ['id'], transaction });
+  for (const rule of rules) await queueRuleCalibration(rule.id, actor, transaction);
+}
+
 export async function markTransition(seriesId: number, input: TransitionCreate, actor: Pick<Actor, 'id'>): Promise<TransitionRecord> {
   return writeTransaction(async (transaction) => {
     const row = await Transition.create({ seriesId, at: input.at, note: input.note, createdBy: actor.id }, { transaction });
     await recordAudit({ actorId: actor.id, action: 'transition.create', entity: 'transition', entityId: row.id, details: { seriesId, at: input.at, note: input.note } }, transaction);
+    await recalibrateRulesOf(seriesId, actor, transaction);
     return presentTransition(row);
   });
 }
@@ -30,5 +42,6 @@ export async function removeTransition(id: number, actor: Pick<Actor, 'id'>): Pr
     if (!row) throw new NotFoundError('Transition');
     await recordAudit({ actorId: actor.id, action: 'transition.delete', entity: 'transition', entityId: id, details: presentTransition(row) }, transaction);
     await row.destroy({ transaction });
+    await recalibrateRulesOf(row.seriesId, actor, transaction);
   });
 }
