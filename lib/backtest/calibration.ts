@@ -11,6 +11,8 @@ export interface CalibrationTask {
   /** two-sided trend of the pre-transition record; each replicate record is trend + simulated residual */
   trend: Float64Array;
   time: Float64Array;
+  /** observed grid points of the record copied (0 = interpolated), so replicates are judged on the same windows */
+  observed: Uint8Array | null;
   rule: ReplayRule;
   geometry: ReplayGeometry;
   /** the firing statistic judges the instants at or after this time (the warning horizon before the end) */
@@ -53,7 +55,7 @@ export function calibrateChunk(task: CalibrationTask, from: number, to: number, 
   for (let i = from; i < to; i++) {
     const r = task.source.kind === 'surrogate' ? makeSurrogate(task.source.job, i) : simulateRestoring(task.source.model, task.source.seed, i);
     for (let k = 0; k < record.length; k++) record[k] = task.trend[k] + r[k];
-    const { residual, evidence } = replayRecord(record, task.time, task.rule, g);
+    const { residual, evidence } = replayRecord(record, task.time, task.rule, g, task.observed);
     let first = 0;
     while (first < evidence.time.length && evidence.time[first] < task.scoreFrom) first++;
     out.statistic[i - from] = firingStatistic(evidence, task.rule, first);

@@ -10,7 +10,7 @@ import { findSeriesBySlug } from '@/lib/series/registry';
 import { CancelledError } from './pool';
 import { listTransitions } from './transitions';
 import { ruleDirectionOf, type ReplayRule } from './replay';
-import { runBacktest, type BacktestResult } from './run';
+import { CALIBRATION_WORK_BUDGET, runBacktest, type BacktestResult } from './run';
 
 const DAY_MS = 86_400_000;
 /** How often a running job writes its progress and looks for a cancel request. */
@@ -19,9 +19,10 @@ const PROGRESS_EVERY_MS = 500;
  * Live defaults of a rule's own calibration: 200 AR(1) surrogates of the pre-transition record, each judged
  * every point (every new point may start an analysis cycle, the most checks a live series can see), and as many
  * simulated approaches. 200 replicates put a binomial standard error of at most 3.5 points on the share of
- * replicates that alarm; our own choice of cost against precision.
+ * replicates that alarm; our own choice of cost against precision. It runs in the background, so its surrogate
+ * checks get three times a lead's interactive budget (about three minutes on two cores).
  */
-const RULE_CALIBRATION = { every: 1, horizonDays: null, calibration: { surrogates: 200, method: 'ar1' as const } };
+const RULE_CALIBRATION = { every: 1, horizonDays: null, calibration: { surrogates: 200, method: 'ar1' as const, budget: 3 * CALIBRATION_WORK_BUDGET } };
 
 /**
  * The parts of a stored rule a replay judges. `direction` is read when the rule record has it and falls back
@@ -181,7 +182,7 @@ export async function runNextBacktest(options: { threads?: number } = {}): Promi
   try {
     const [rule, series] = await Promise.all([AlertRule.findByPk(job.ruleId), Series.findByPk(job.seriesId)]);
     if (!rule || !series) throw new UnprocessableError('The rule or series of this backtest no longer exists.');
-    const params = job.params as { every?: number; horizonDays?: number | null; calibration?: { surrogates: number; method: 'ar1' | 'phase'; approaches?: number } | null };
+    const params = job.params as { every?: number; horizonDays?: number | null; calibration?: { surrogates: number; method: 'ar1' | 'phase'; approaches?: number; budget?: number } | null };
     const replayRule = replayRuleOf(rule);
     const settings = analysisSettingsSchema.parse(series.settings);
     const { time, value } = await loadObservations(series.id);

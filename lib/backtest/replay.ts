@@ -45,13 +45,17 @@ export interface ReplayGeometry {
   dt: number;
   /** judge every this many new points */
   every: number;
-  /** surrogates per surrogate-p check (0 = the surrogate criterion is not judged) */
+  /** surrogates per surrogate-p check: the series' setting, or 99 when it runs none (a live rule needing them is refused there) */
   surrogates: number;
   surrogateMethod: 'ar1' | 'phase';
   seed: number;
+  /** share of observed (not interpolated) points a window needs to be judged */
+  minCoverage: number;
 }
 
 const DAY_MS = 86_400_000;
+/** Share of observed points a window needs (the engine's default floor, lib/engine/settings.ts). */
+const DEFAULT_MIN_COVERAGE = 0.8;
 /** Fewest indicator values a trend is judged on; our own choice (a Kendall tau of a handful of values swings to ±1 by chance). */
 const MIN_TREND_VALUES = 10;
 /**
@@ -97,6 +101,8 @@ export function replayGeometry(settings: AnalysisSettings, nRef: number, interva
     surrogates: settings.surrogates > 0 ? settings.surrogates : 99,
     surrogateMethod: settings.surrogateMethod,
     seed: settings.seed,
+    // the floor arrives with the engine's coverage setting; 0.8 is its documented default
+    minCoverage: (settings as { minCoverage?: number }).minCoverage ?? DEFAULT_MIN_COVERAGE,
   };
 }
 
@@ -184,8 +190,32 @@ function causalGaussianResidual(x: Float64Array, h: number, out: Float64Array): 
   for (let i = 0; i < n; i++) out[i] = c[i] - num[i] / cum[Math.min(i, L)];
 }
 
-/** The rule's indicator for the window ending at each residual index (NaN before the window fills), by SlidingMoments. O(n). */
-export function indicatorStream(residual: Float64Array, raw: Float64Array, name: IndicatorName, g: Pick<ReplayGeometry, 'w' | 'dt'>): Float64Array {
+/**
+ * Whether the window ending at each residual index holds at least minCoverage·w observed (not interpolated)
+ * points, by a sliding count. O(n).
+ */
+export function windowCoverage(observed: Uint8Array, g: Pick<ReplayGeometry, 'w' | 'minCoverage'>): Uint8Array {
+  const out = new Uint8Array(observed.length);
+  let inWindow = 0;
+  for (let i = 0; i < observed.length; i++) {
+    inWindow += observed[i];
+    if (i >= g.w) inWindow -= observed[i - g.w];
+    out[i] = inWindow >= g.minCoverage * g.w ? 1 : 0;
+  }
+  return out;
+}
+
+/**
+ * The rule's indicator for the window ending at each residual index (NaN before the window fills, and where
+ * `covered` says the window has too few observed points), by SlidingMoments. O(n).
+ */
+export function indicatorStream(
+  residual: Float64Array,
+  raw: Float64Array,
+  name: IndicatorName,
+  g: Pick<ReplayGeometry, 'w' | 'dt'>,
+  covered: Uint8Array | null = null,
+): Float64Array {
   const n = residual.length;
   const out = new Float64Array(n).fill(Number.NaN);
   const acc = new SlidingMoments(g.w);
@@ -193,7 +223,7 @@ export function indicatorStream(residual: Float64Array, raw: Float64Array, name:
   for (let i = 0; i < n; i++) {
     acc.push(residual[i]);
     rawAcc?.push(raw[i]);
-    if (acc.full) out[i] = acc.indicator(name, { dt: g.dt, rawMean: rawAcc?.mean() });
+    if (acc.full && (covered === null || covered[i])) out[i] = acc.indicator(name, { dt: g.dt, rawMean: rawAcc?.mean() });
   }
   return out;
 }
@@ -209,6 +239,10 @@ export interface Evidence {
   level: Float64Array;
   /** indicator values in the trend test */
   count: Int32Array;
+  /** 1 where the newest window meets the coverage floor (absent: every window does) */
+  covered?: Uint8Array;
+  /** record index where the analysed stretch of each instant starts (absent: the record's start) */
+  from?: Int32Array;
 }
 
 /**
@@ -216,7 +250,12 @@ export interface Evidence {
  * trend set growing (or sliding over the trailing span) through IncrementalKendall. Instants with fewer than
  * `warmup` values are not judged. Cost O(n + m log m).
  */
-export function replayEvidence(stream: Float64Array, time: Float64Array, g: Pick<ReplayGeometry, 'offset' | 'spanValues' | 'warmup' | 'every'>): Evidence {
+export function replayEvidence(
+  stream: Float64Array,
+  time: Float64Array,
+  g: Pick<ReplayGeometry, 'offset' | 'spanValues' | 'warmup' | 'every'>,
+  covered: Uint8Array | null = null,
+): Evidence {
   const { ranks, size } = denseRanks(stream);
   const n = stream.length;
   const kendall = new IncrementalKendall(Math.max(1, size), (g.spanValues ?? n) + 1);
@@ -225,6 +264,7 @@ export function replayEvidence(stream: Float64Array, time: Float64Array, g: Pick
   const p: number[] = [];
   const level: number[] = [];
   const count: number[] = [];
+  const cover: number[] = [];
   // residual indices of the values held, oldest first, so the trailing span can drop what falls out of it
   const held = new Int32Array(n);
   let head = 0;
@@ -249,6 +289,7 @@ export function replayEvidence(stream: Float64Array, time: Float64Array, g: Pick
     p.push(r.p);
     level.push(stream[e]);
     count.push(r.n);
+    cover.push(covered === null ? 1 : covered[e]);
   }
   const index = Int32Array.from(idx);
   return {
@@ -258,6 +299,7 @@ export function replayEvidence(stream: Float64Array, time: Float64Array, g: Pick
     p: Float64Array.from(p),
     level: Float64Array.from(level),
     count: Int32Array.from(count),
+    ...(covered === null ? {} : { covered: Uint8Array.from(cover) }),
   };
 }
 
@@ -266,6 +308,7 @@ export function replayEvidence(stream: Float64Array, time: Float64Array, g: Pick
  * the threshold and the level test (if any) holds. The Kendall p is not a gate (see ReplayRule.maxKendallP). O(1).
  */
 export function basePasses(ev: Evidence, s: number, rule: ReplayRule, threshold: number, direction = replayDirection(rule)): boolean {
+  if (ev.covered && !ev.covered[s]) return false;
   const t = orientedTau(ev.tau[s], direction);
   if (!(t >= threshold)) return false;
   if (rule.levelThreshold !== null) {
@@ -295,6 +338,8 @@ export interface OnsetReport {
   notJudged: Int32Array;
   /** would-be onsets inside the quiet period of the previous onset (not counted as alarms) */
   quietSuppressed: number;
+  /** of the not-judged steps, those whose newest window is below the coverage floor */
+  belowCoverage: number;
 }
 
 /**
@@ -303,7 +348,7 @@ export interface OnsetReport {
  * rule's direction) is at most maxSurrogateP; `persistence` passing steps in a row open an alarm; a failing step
  * resets the run. An open alarm stays open while basePasses holds (its surrogate p is not re-checked: the alert
  * would still be open in front of a person); a new onset within the quiet period of the previous one is not
- * counted. The surrogate p is checked at every step that needs it while the caller's cost bound allows
+ * counted. A step whose newest window is below the coverage floor is not judged (and breaks the run). The surrogate p is checked at every step that needs it while the caller's cost bound allows
  * (`check` answers 'over-budget' after that): such a step is reported as not judged and breaks the run, so a
  * cost bound never silently turns into missing or extra alarms. O(steps) plus the checks.
  */
@@ -316,7 +361,20 @@ export function alarmOnsets(ev: Evidence, rule: ReplayRule, threshold: number, c
   let open = false;
   let checks = 0;
   let quietSuppressed = 0;
+  let belowCoverage = 0;
   for (let s = 0; s < ev.tau.length; s++) {
+    if (ev.from && s > 0 && ev.from[s] !== ev.from[s - 1]) {
+      // a new stretch (after a marked transition) starts afresh, as the live analysis does
+      streak = 0;
+      open = false;
+    }
+    if (ev.covered && !ev.covered[s]) {
+      // too few observed points in the newest window: the live rule cannot judge this cycle either
+      notJudged.push(s);
+      belowCoverage++;
+      streak = 0;
+      continue;
+    }
     if (!basePasses(ev, s, rule, threshold, direction)) {
       streak = 0;
       open = false;
@@ -347,7 +405,7 @@ export function alarmOnsets(ev: Evidence, rule: ReplayRule, threshold: number, c
     }
     onsets.push({ step: s, index: ev.index[s], time: ev.time[s], tau: ev.tau[s], p: ev.p[s], surrogateP: sp });
   }
-  return { onsets, surrogateChecks: checks, notJudged: Int32Array.from(notJudged), quietSuppressed };
+  return { onsets, surrogateChecks: checks, notJudged: Int32Array.from(notJudged), quietSuppressed, belowCoverage };
 }
 
 /**
@@ -366,18 +424,102 @@ export function firingStatistic(ev: Evidence, rule: ReplayRule, from = 0, to = e
     let m = Number.POSITIVE_INFINITY;
     for (let j = s - P + 1; j <= s && m > best; j++) {
       const t = orientedTau(ev.tau[j], direction);
-      m = Number.isFinite(t) && basePasses(ev, j, rule, Number.NEGATIVE_INFINITY, direction) ? Math.min(m, t) : Number.NEGATIVE_INFINITY;
+      const sameStretch = !ev.from || ev.from[j] === ev.from[s];
+      m = sameStretch && Number.isFinite(t) && basePasses(ev, j, rule, Number.NEGATIVE_INFINITY, direction) ? Math.min(m, t) : Number.NEGATIVE_INFINITY;
     }
     if (m > best) best = m;
   }
   return best;
 }
 
-/** A record replayed: its point-in-time residual and the evidence at every judged instant. O(n log n). */
-export function replayRecord(value: Float64Array, time: Float64Array, rule: ReplayRule, g: ReplayGeometry): { residual: Float64Array; evidence: Evidence } {
+/**
+ * A record replayed: its point-in-time residual and the evidence at every judged instant. `observed` marks the
+ * grid points that were observed (0 = interpolated); with differencing a residual counts as observed when both
+ * its points were. O(n log n).
+ */
+export function replayRecord(
+  value: Float64Array,
+  time: Float64Array,
+  rule: ReplayRule,
+  g: ReplayGeometry,
+  observed: Uint8Array | null = null,
+): { residual: Float64Array; evidence: Evidence } {
   const residual = pointInTimeResiduals(value, g);
-  const stream = indicatorStream(residual, value.subarray(g.offset), rule.indicator, g);
-  return { residual, evidence: replayEvidence(stream, time, g) };
+  let covered: Uint8Array | null = null;
+  if (observed !== null) {
+    const own = g.offset === 0 ? observed : Uint8Array.from(residual, (_, i) => observed[i] & observed[i + 1]);
+    covered = windowCoverage(own, g);
+  }
+  const stream = indicatorStream(residual, value.subarray(g.offset), rule.indicator, g, covered);
+  return { residual, evidence: replayEvidence(stream, time, g, covered) };
+}
+
+function concat<T extends Float64Array | Int32Array | Uint8Array>(arrays: T[], Kind: { new (n: number): T }): T {
+  const out = new Kind(arrays.reduce((a, v) => a + v.length, 0));
+  let at = 0;
+  for (const v of arrays) {
+    (out as Float64Array).set(v, at);
+    at += v.length;
+  }
+  return out;
+}
+
+/**
+ * A record replayed as the live analysis sees it across marked transitions: the analysed stretch restarts at
+ * each cut (a record index, e.g. the first point at or after a marked transition), so every stretch is replayed
+ * on its own (replayRecord) and its evidence carries `from`, the stretch's first record index. The residual is
+ * returned on the record's own indices (with differencing, the step across a cut belongs to no stretch and is
+ * 0). Stretches too short for a window and its warm-up give no instants. O(n log n).
+ */
+export function replayStretches(
+  value: Float64Array,
+  time: Float64Array,
+  rule: ReplayRule,
+  g: ReplayGeometry,
+  observed: Uint8Array | null,
+  cuts: number[],
+): { residual: Float64Array; evidence: Evidence } {
+  const bounds = [0, ...cuts.filter((c) => c > 0 && c < value.length).sort((a, b) => a - b), value.length];
+  if (bounds.length === 2) return replayRecord(value, time, rule, g, observed);
+  const residual = new Float64Array(Math.max(0, value.length - g.offset));
+  const parts: Evidence[] = [];
+  const froms: number[] = [];
+  for (let b = 0; b + 1 < bounds.length; b++) {
+    const a = bounds[b];
+    const z = bounds[b + 1];
+    if (z - a - g.offset < g.w + g.warmup) continue;
+    const part = replayRecord(value.subarray(a, z), time.subarray(a, z), rule, g, observed?.subarray(a, z) ?? null);
+    residual.set(part.residual, a);
+    const ev = part.evidence;
+    for (let s = 0; s < ev.index.length; s++) ev.index[s] += a;
+    parts.push(ev);
+    froms.push(a);
+  }
+  const lengths = parts.map((e) => e.index.length);
+  const from = Int32Array.from(lengths.flatMap((n, i) => new Array<number>(n).fill(froms[i])));
+  const evidence: Evidence = {
+    index: concat(parts.map((e) => e.index), Int32Array),
+    time: concat(parts.map((e) => e.time), Float64Array),
+    tau: concat(parts.map((e) => e.tau), Float64Array),
+    p: concat(parts.map((e) => e.p), Float64Array),
+    level: concat(parts.map((e) => e.level), Float64Array),
+    count: concat(parts.map((e) => e.count), Int32Array),
+    from,
+  };
+  if (parts.some((e) => e.covered)) evidence.covered = concat(parts.map((e) => e.covered ?? new Uint8Array(e.index.length).fill(1)), Uint8Array);
+  return { residual, evidence };
+}
+
+/** 1 for each grid point that was observed, 0 inside the gaps preparation filled (their first..last instants). O(n + gaps). */
+export function observedMask(time: Float64Array, gaps: { from: number; to: number; filled: boolean }[]): Uint8Array {
+  const out = new Uint8Array(time.length).fill(1);
+  let i = 0;
+  for (const gap of gaps) {
+    if (!gap.filled) continue;
+    while (i < time.length && time[i] < gap.from) i++;
+    for (let k = i; k < time.length && time[k] <= gap.to; k++) out[k] = 0;
+  }
+  return out;
 }
 
 /**
@@ -432,7 +574,8 @@ export function prefixSurrogateChecker(
   let spent = 0;
   const check = (s: number): SurrogateCheck => {
     const e = ev.index[s] - g.offset + 1;
-    const start = g.spanValues === null ? 0 : Math.max(0, e - (g.spanValues + g.w - 1));
+    const stretchStart = ev.from ? ev.from[s] : 0;
+    const start = g.spanValues === null ? stretchStart : Math.max(stretchStart, e - (g.spanValues + g.w - 1));
     const len = e - start;
     // a check starts while any budget is left, so the bound is exceeded by at most one check
     if (!(left > 0)) return 'over-budget';

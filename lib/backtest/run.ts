@@ -16,7 +16,8 @@ import {
   prefixSurrogateChecker,
   replayDirection,
   replayGeometry,
-  replayRecord,
+  observedMask,
+  replayStretches,
   stepSpans,
   type Evidence,
   type ReplayRule,
@@ -29,11 +30,10 @@ const YEAR_MS = 365.25 * 86_400_000;
 /** Stored evidence curves are thinned to at most this many instants (the statistics use every instant). */
 const CURVE_POINTS = 2000;
 /**
- * Surrogate work all replicates of one calibration may spend on their surrogate-p checks, shared evenly: about
- * three minutes on two cores. A calibration is a background job; its unjudged instants are reported and left
- * out of the judged time.
+ * Default surrogate work all replicates of one calibration may spend on their surrogate-p checks, shared evenly:
+ * about a minute on two cores. Unjudged instants are reported and left out of the judged time.
  */
-const CALIBRATION_WORK_BUDGET = 4 * SURROGATE_WORK_BUDGET;
+export const CALIBRATION_WORK_BUDGET = 2 * SURROGATE_WORK_BUDGET;
 
 export interface BacktestInput {
   time: Float64Array;
@@ -48,9 +48,10 @@ export interface BacktestInput {
   horizonMs?: number | null;
   /**
    * surrogates: replicates of the pre-transition record for the calibrated false-alarm rate; approaches: simulated
-   * records of each kind (null and fold approach) for the ROC (default: as many as surrogates)
+   * records of each kind (null and fold approach) for the ROC (default: as many as surrogates); budget: surrogate
+   * work of the replicates' surrogate-p checks (default CALIBRATION_WORK_BUDGET)
    */
-  calibration?: { surrogates: number; method: SurrogateMethod; approaches?: number } | null;
+  calibration?: { surrogates: number; method: SurrogateMethod; approaches?: number; budget?: number } | null;
 }
 
 export interface TransitionOutcome {
@@ -143,12 +144,15 @@ export interface BacktestResult {
   judged: {
     /** time covered by judged instants, years */
     years: number;
-    /** instants that needed a surrogate-p check the cost bound did not allow, and the stretches they form */
+    /** instants not judged (a surrogate-p check the cost bound did not allow, or a window below the coverage floor), and their stretches */
     notJudgedSteps: number;
     notJudged: { from: number; to: number; steps: number }[];
     surrogateChecks: number;
     /** would-be alarms inside the quiet period of the previous one */
     quietSuppressed: number;
+    /** of the not-judged instants, those whose newest window had fewer observed points than the coverage floor */
+    belowCoverage: number;
+    minCoverage: number;
   };
   /** false alarms per year of judged time that could host one (outside warning stretches and one window after a transition) */
   falseAlarms: { count: number; exposureYears: number; perYear: number | null; interval: [number, number] | null };
@@ -202,7 +206,7 @@ function stretches(steps: Int32Array, time: Float64Array): { from: number; to: n
 }
 
 const METHOD =
-  'Replay: the record is prepared as the live analysis prepares it; the window and bandwidth in points are fixed at what the settings give for the whole record (or its trailing span); each point is detrended with the trend of the data available when it arrived (so past residuals are never revised), the rolling indicator is updated in O(1) per point, and every cycle (every k points) the rule is judged as the live rule is: Kendall tau read in the rule\u2019s direction against the threshold, the level test, the surrogate p in the rule\u2019s direction (surrogates of the record available then), persistence and quiet period; the independence-based Kendall p is shown but is not a gate. Instants whose surrogate check the cost bound did not allow are reported as not judged. An alarm is a warning only within the horizon (default one window) before a marked transition; false alarms are counted per year of judged time outside warning stretches and one window after each transition. Calibration: surrogates of the detrended pre-transition record (trend added back) replayed with the full live procedure, each tested against surrogates of its own prefixes; false alarms per year of judged time with an exact Poisson (Garwood) interval. ROC: a constant-rate Ornstein\u2013Uhlenbeck (AR(1)) model and one whose restoring rate moves linearly in time (towards zero at a fold) are fitted by maximum likelihood to the detrended pre-transition record; replicates of each are replayed, and for each threshold the hit rate is the share of simulated approaches with an alarm within the horizon before their end, the false-alarm rate the share of null replicates with an alarm in the same stretch (after Boettiger & Hastings 2012, Proc. R. Soc. B 279, 4734).';
+  'Replay: the record is prepared as the live analysis prepares it; the window and bandwidth in points are fixed at what the settings give for the whole record (or its trailing span); each point is detrended with the trend of the data available when it arrived (so past residuals are never revised), the rolling indicator is updated in O(1) per point, and every cycle (every k points) the rule is judged as the live rule is: Kendall tau read in the rule\u2019s direction against the threshold, the level test, the surrogate p in the rule\u2019s direction (surrogates of the record available then), persistence and quiet period; the independence-based Kendall p is shown but is not a gate. After each marked transition the replay starts afresh on the record since it, as the live analysis does. Instants whose newest window has fewer observed points than the coverage floor, or whose surrogate check the cost bound did not allow, are reported as not judged. An alarm is a warning only within the horizon (default one window) before a marked transition; false alarms are counted per year of judged time outside warning stretches and one window after each transition. Calibration: surrogates of the detrended pre-transition record (trend added back) replayed with the full live procedure, each tested against surrogates of its own prefixes; false alarms per year of judged time with an exact Poisson (Garwood) interval. ROC: a constant-rate Ornstein\u2013Uhlenbeck (AR(1)) model and one whose restoring rate moves linearly in time (towards zero at a fold) are fitted by maximum likelihood to the detrended pre-transition record; replicates of each are replayed, and for each threshold the hit rate is the share of simulated approaches with an alarm within the horizon before their end, the false-alarm rate the share of null replicates with an alarm in the same stretch (after Boettiger & Hastings 2012, Proc. R. Soc. B 279, 4734).';
 
 /**
  * Backtest of one rule on one record, with optional calibration on surrogates and an ROC from simulated
@@ -225,7 +229,15 @@ export async function runBacktest(
   if (x.length - g.offset < g.w + g.warmup) {
     throw new AnalysisInputError(`the record has ${x.length} points; a replay with a ${g.w}-point window needs at least ${g.w + g.warmup + g.offset}`);
   }
-  const { residual, evidence: ev } = replayRecord(x, time, rule, g);
+  const observed = prepared.quality.gaps.some((gap) => gap.filled) ? observedMask(time, prepared.quality.gaps) : null;
+  const marks = [...input.transitions].sort((a, b) => a.at - b.at);
+  // after each marked transition the live analysis judges only the record since it: replay each stretch on its own
+  const cuts = marks.map((m) => {
+    let k = 0;
+    while (k < time.length && time[k] < m.at) k++;
+    return k;
+  });
+  const { residual, evidence: ev } = replayStretches(x, time, rule, g, observed, cuts);
   // Draws stop once a check is sure to fail: a passing check (the only kind an alarm shows) still has its exact p.
   const checker = prefixSurrogateChecker(residual, x, ev, rule, g, { budget: options.surrogateBudget, decisionOnly: true });
   const report = alarmOnsets(ev, rule, rule.minTau, checker.check);
@@ -234,7 +246,6 @@ export async function runBacktest(
 
   const settle = g.w * g.interval;
   const horizon = input.horizonMs ?? g.w * g.interval;
-  const marks = [...input.transitions].sort((a, b) => a.at - b.at);
   /** the warning stretch of transition j: [start_j, at_j) */
   const stretchStart = marks.map((m, j) => Math.max(j > 0 ? marks[j - 1].at + settle : Number.NEGATIVE_INFINITY, m.at - horizon));
   const classify = (t: number): { kind: AlarmRecord['kind']; j: number } => {
@@ -308,9 +319,9 @@ export async function runBacktest(
     const N = input.calibration.surrogates;
     const M = input.calibration.approaches ?? N;
     const threads = options.threads;
-    const base = { trend: d.trend, time: preTime, rule, geometry: g };
+    const base = { trend: d.trend, time: preTime, observed: observed?.slice(0, nPre) ?? null, rule, geometry: g };
     const surrogateRuns = await runCalibration(
-      { ...base, source: { kind: 'surrogate', job }, scoreFrom: Number.NEGATIVE_INFINITY, liveSurrogateP: true, budget: CALIBRATION_WORK_BUDGET / N },
+      { ...base, source: { kind: 'surrogate', job }, scoreFrom: Number.NEGATIVE_INFINITY, liveSurrogateP: true, budget: (input.calibration.budget ?? CALIBRATION_WORK_BUDGET) / N },
       N,
       { threads, signal: options.signal, onProgress: (f) => options.onProgress?.(0.1 + 0.6 * f) },
     );
@@ -383,6 +394,8 @@ export async function runBacktest(
       notJudged: stretches(report.notJudged, ev.time),
       surrogateChecks: report.surrogateChecks,
       quietSuppressed: report.quietSuppressed,
+      belowCoverage: report.belowCoverage,
+      minCoverage: g.minCoverage,
     },
     falseAlarms: { count: falseCount, exposureYears, perYear: exposureYears > 0 ? falseCount / exposureYears : null, interval: garwoodInterval(falseCount, exposureYears) },
     evidence: thin(ev),

@@ -4,11 +4,12 @@ import { useTempDataDir } from '../support/temp-db';
 useTempDataDir('bw-rule-calibration-');
 
 const { migrateUp } = await import('@/migrations');
-const { AlertRule, BacktestJob } = await import('@/models');
+const { AlertRule, BacktestJob, User } = await import('@/models');
 const { createSeries } = await import('@/lib/series/registry');
 const { ingestObservations } = await import('@/lib/intake/pipeline');
 const { queueRuleCalibration, latestRuleCalibration, runNextBacktest } = await import('@/lib/backtest/jobs');
 const { simulateAr1 } = await import('@/lib/demo/models');
+const { markTransition, removeTransition } = await import('@/lib/backtest/transitions');
 
 beforeAll(async () => {
   await migrateUp();
@@ -66,6 +67,19 @@ describe('a rule’s own calibration (queueRuleCalibration, latestRuleCalibratio
     await rule.update({ minTau: 0.4 });
     expect((await latestRuleCalibration([rule.id])).has(rule.id)).toBe(false);
   }, 180_000);
+
+  it('a marked or removed transition queues the series’ rules again (their pre-transition record changed)', async () => {
+    const series = await createSeries({ slug: 'marked-series', name: 'Marked series', intervalMs: DAY }, null);
+    const rule = await ruleOn(series.id);
+    const lead = await User.create({ email: 'lead@example.test', name: 'Lead', role: 'lead', passwordHash: 'not used', active: true });
+    const queued = () => BacktestJob.count({ where: { ruleId: rule.id, status: 'queued' } });
+    const mark = await markTransition(series.id, { at: Date.UTC(2020, 5, 1), note: 'test' }, lead);
+    expect(await queued()).toBe(1);
+    await removeTransition(mark.id, lead);
+    // the earlier waiting calibration is cancelled in favour of the newest
+    expect(await queued()).toBe(1);
+    expect(await BacktestJob.count({ where: { ruleId: rule.id, status: 'cancelled' } })).toBe(1);
+  });
 
   it('gives null for a default rule (no series of its own)', async () => {
     const rule = await ruleOn(null);

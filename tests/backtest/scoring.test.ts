@@ -68,18 +68,18 @@ describe('alarm onsets judge the surrogate p wherever it is needed', () => {
 
 describe('judged time, hand-computed on a small record', () => {
   // 100 daily points, no detrending, window 0.2 → w = 20 points; warm-up max(10, ⌈20/4⌉) = 10 indicator values.
-  // The first indicator value is at index 19, the tenth at 28: judged instants are indices 28..99 (72 days).
-  // Mark at index 80; horizon = one window = 20 days → warning stretch [60, 80), settling [80, 100).
-  // Instants that can host a false alarm: 28..59 = 32 days.
+  // The first indicator value is at index 19, the tenth at 28. Mark at index 80: the stretch after it (20 points)
+  // is too short for a window and its warm-up, so judged instants are indices 28..79 (52 days).
+  // Horizon = one window = 20 days → warning stretch [60, 80). Instants that can host a false alarm: 28..59 = 32 days.
   const n = 100;
   const t = days(n);
   const x = simulateAr1({ n, phi: 0.5, sigma: 1, seed: 21 });
   const settings = analysisSettingsSchema.parse({ detrend: 'none', window: 0.2, surrogates: 19 });
   it('divides false alarms by the 32 days that could host one, not the 100-day record', async () => {
     const r = await runBacktest({ time: t, value: x, intervalMs: DAY, settings, rule: rule({ minTau: -1, persistence: 1 }), transitions: [{ at: t[80] }], every: 1 });
-    expect(r.steps).toBe(72);
+    expect(r.steps).toBe(52);
     expect(r.horizonMs).toBe(20 * DAY);
-    expect(r.judged.years * YEAR).toBeCloseTo(72 * DAY, 3);
+    expect(r.judged.years * YEAR).toBeCloseTo(52 * DAY, 3);
     expect(r.falseAlarms.exposureYears * YEAR).toBeCloseTo(32 * DAY, 3);
     // threshold −1: the rule passes at the first judged instant and stays open, so exactly one alarm, at index 28
     expect(r.alarms.map((a) => [a.kind, (a.time - t[0]) / DAY])).toEqual([['false', 28]]);
@@ -91,11 +91,63 @@ describe('judged time, hand-computed on a small record', () => {
       { time: t, value: x, intervalMs: DAY, settings, rule: rule({ minTau: -1, persistence: 1, maxSurrogateP: 0.05 }), transitions: [{ at: t[80] }], every: 1 },
       { surrogateBudget: 0 },
     );
-    expect(r.judged.notJudgedSteps).toBe(72);
-    expect(r.judged.notJudged).toEqual([{ from: t[28], to: t[99], steps: 72 }]);
+    expect(r.judged.notJudgedSteps).toBe(52);
+    expect(r.judged.notJudged).toEqual([{ from: t[28], to: t[79], steps: 52 }]);
     expect(r.judged.years).toBe(0);
     expect(r.falseAlarms.exposureYears).toBe(0);
     expect(r.alarms).toHaveLength(0);
+  });
+});
+
+describe('after a marked transition the replay judges only the record since it, as the live analysis does', () => {
+  it('restarts window, warm-up and trend at the mark; judged time hand-computed', async () => {
+    // 200 daily points, no detrending, window 0.1 → w = 20, warm-up 10 values; mark at index 100.
+    // Stretch 0..99: judged 28..99 (72 instants); stretch 100..199: judged 128..199 (72). Horizon 20 days:
+    // warning [80, 100); settling [100, 120). Could host a false alarm: 28..79 (52) + 128..199 (72) = 124 days.
+    const n = 200;
+    const t = days(n);
+    const x = simulateAr1({ n, phi: 0.5, sigma: 1, seed: 23 });
+    const settings = analysisSettingsSchema.parse({ detrend: 'none', window: 0.1, surrogates: 0 });
+    const r = await runBacktest({ time: t, value: x, intervalMs: DAY, settings, rule: rule({ minTau: -1, persistence: 1 }), transitions: [{ at: t[100] }], every: 1 });
+    expect(r.steps).toBe(144);
+    expect(r.evidence.time[72]).toBe(t[128]);
+    expect(r.judged.years * YEAR).toBeCloseTo(144 * DAY, 3);
+    expect(r.falseAlarms.exposureYears * YEAR).toBeCloseTo(124 * DAY, 3);
+    // threshold −1: one alarm opens at the first instant of each stretch
+    expect(r.alarms.map((a) => [a.kind, (a.time - t[0]) / DAY])).toEqual([['false', 28], ['false', 128]]);
+  });
+});
+
+describe('windows below the coverage floor are not judged', () => {
+  it('a stretch with a third of its days missing (filled by interpolation) leaves its instants unjudged', async () => {
+    // 600 daily AR(1) values; from index 300 to 419 every third day is missing (runs of 1, within maxGap 3),
+    // so windows of w = 60 points (window 0.1) lying mostly in that stretch hold about 2/3 < 80 % observed points
+    const n = 600;
+    const all = days(n);
+    const x = simulateAr1({ n, phi: 0.5, sigma: 1, seed: 9 });
+    const keep = Array.from({ length: n }, (_, i) => i).filter((i) => !(i >= 300 && i < 420 && i % 3 === 0));
+    const settings = analysisSettingsSchema.parse({ detrend: 'none', window: 0.1, surrogates: 0 });
+    const r = await runBacktest({
+      time: Float64Array.from(keep, (i) => all[i]),
+      value: Float64Array.from(keep, (i) => x[i]),
+      intervalMs: DAY,
+      settings,
+      rule: rule({ minTau: -1, persistence: 1 }),
+      transitions: [],
+      every: 1,
+    });
+    expect(r.geometry.windowPoints).toBe(60);
+    // a window needs 0.8 · 60 = 48 observed points, so it is below the floor once it holds 13 or more missing
+    // days, i.e. about 39 days of the stretch: from index ≈ 338 until it has mostly left the stretch (< 480);
+    // one contiguous stretch of unjudged instants
+    expect(r.judged.belowCoverage).toBeGreaterThan(50);
+    expect(r.judged.belowCoverage).toBe(r.judged.notJudgedSteps);
+    expect(r.judged.notJudged).toHaveLength(1);
+    const { from, to } = r.judged.notJudged[0];
+    expect(from).toBeGreaterThan(all[300]);
+    expect(to).toBeLessThan(all[420 + 60]);
+    // judged time leaves them out: 600 − first judged index − unjudged instants, one day each
+    expect(r.judged.years * YEAR).toBeCloseTo((r.steps - r.judged.notJudgedSteps) * DAY, 3);
   });
 });
 
