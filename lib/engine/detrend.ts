@@ -57,8 +57,7 @@ const GAUSS_REACH = 8.86;
  * The numerator is a linear convolution done with real FFTs of a power-of-two length N ≥ n + L, where
  * L = min(n−1, ⌈8.86 h⌉) is where the kernel drops below 1e-17 (so dropping |d| > L changes the trend by
  * < 1e-16 of max|x − x̄|: exact in double precision at any bandwidth). The kernel spectrum comes from
- * the Poisson summation formula, K̂_m = h√(2π) Σ_q exp(−2π²h²(m/N − q)²), when the kernel fits without
- * aliasing, else from an FFT of the sampled kernel. The denominator comes from cumulative kernel sums.
+ * gaussianSpectra. The denominator comes from cumulative kernel sums.
  * The series mean is taken out first (weights sum to one), so large offsets cost no digits.
  * Cost O(n log n). Sources: Nadaraya (1964), Theory Probab. Appl. 9, 141–142; Watson (1964), Sankhyā A 26,
  * 359–372; convolution theorem and Poisson summation, e.g. Bracewell, The Fourier Transform and Its
@@ -84,34 +83,9 @@ export function gaussianSmooth(x: Float64Array, h: number): Float64Array {
   }
   if (!any) return out;
 
-  const half = size >> 1;
   const X = realFft(centred, size);
-  let K: Float64Array;
-  if (reach <= L && size - n + 1 >= reach && h >= 1) {
-    K = new Float64Array(half + 1);
-    const c = h * Math.sqrt(2 * Math.PI);
-    const a = 2 * Math.PI * Math.PI * h * h;
-    // Terms with a·d² > 745 underflow to zero; q ≠ 0 terms have |q ± f| ≥ 1/2 for f = m/N ∈ [0, 1/2].
-    const aliasTerms = a / 4 <= 745;
-    for (let m = 0; m <= half; m++) {
-      const f = m / size;
-      let s = Math.exp(-a * f * f);
-      if (aliasTerms) {
-        for (let q = 1; ; q++) {
-          const t1 = Math.exp(-a * (q - f) * (q - f));
-          s += t1 + Math.exp(-a * (q + f) * (q + f));
-          if (t1 === 0) break;
-        }
-      } else if (s === 0) break;
-      K[m] = c * s;
-    }
-  } else {
-    const kc = new Float64Array(size);
-    kc[0] = kernel[0];
-    for (let d = 1; d <= L; d++) kc[d] = kc[size - d] = kernel[d];
-    K = realFft(kc, size).re;
-  }
-  for (let m = 0; m <= half; m++) {
+  const { even: K } = gaussianSpectra(h, n, L, size, false);
+  for (let m = 0; m < K.length; m++) {
     X.re[m] *= K[m];
     X.im[m] *= K[m];
   }
@@ -129,26 +103,56 @@ export function gaussianSmooth(x: Float64Array, h: number): Float64Array {
 }
 
 /**
- * Spectrum (k = 0..N/2) of the circular kernel c of length N with c_d = k_d and c_{N−d} = ±k_d for d = 1..L
- * (+ for an even kernel K(d), − for an odd one d·K(d)). O(N log N). Source: convolution theorem, Bracewell (2000), Ch. 6.
+ * Half spectra (m = 0..N/2) of the Gaussian kernel K(d) = exp(−d²/(2h²)) and, when `withSlope`, of d·K(d), laid
+ * circularly on N points (d = −L..L), as used for linear convolution of n points. When the kernel fits without
+ * aliasing (L = ⌈8.86 h⌉ < n and N − n + 1 ≥ L, h ≥ 1) they come from the Poisson summation formula,
+ * K̂_m = h√(2π) Σ_q exp(−2π²h²(f − q)²) and (d·K)^_m = −i·2πh³√(2π) Σ_q (f − q) exp(−2π²h²(f − q)²), f = m/N (the
+ * second is purely imaginary: `slope` holds its imaginary part); otherwise from FFTs of the sampled kernels.
+ * Cost O(N) (Poisson) or O(N log N). Sources: Poisson summation and the Fourier pair of the Gaussian and of
+ * x·exp(−x²/2h²) (derivative theorem), Bracewell, The Fourier Transform and Its Applications (3rd ed., 2000), Ch. 6 and 10.
  */
-function circularKernelSpectrum(k: Float64Array, size: number, odd: boolean): { re: Float64Array; im: Float64Array } {
-  const c = new Float64Array(size);
-  c[0] = k[0];
-  for (let d = 1; d < k.length; d++) {
-    c[d] = k[d];
-    c[size - d] = odd ? -k[d] : k[d];
+function gaussianSpectra(h: number, n: number, L: number, size: number, withSlope: boolean): { even: Float64Array; slope: Float64Array | null } {
+  const half = size >> 1;
+  const reach = Math.ceil(GAUSS_REACH * h);
+  if (!(reach <= L && size - n + 1 >= reach && h >= 1)) {
+    const even = new Float64Array(size);
+    const odd = withSlope ? new Float64Array(size) : null;
+    for (let d = 0; d <= L; d++) {
+      const k = Math.exp(-(d * d) / (2 * h * h));
+      even[d] = k;
+      if (d > 0) even[size - d] = k;
+      if (odd && d > 0) {
+        odd[d] = d * k;
+        odd[size - d] = -d * k;
+      }
+    }
+    return { even: realFft(even, size).re, slope: odd ? realFft(odd, size).im : null };
   }
-  return realFft(c, size);
-}
-
-/** Half spectrum product A·B (complex), in place into A. O(N). */
-function multiplySpectra(a: { re: Float64Array; im: Float64Array }, b: { re: Float64Array; im: Float64Array }): void {
-  for (let m = 0; m < a.re.length; m++) {
-    const re = a.re[m] * b.re[m] - a.im[m] * b.im[m];
-    a.im[m] = a.re[m] * b.im[m] + a.im[m] * b.re[m];
-    a.re[m] = re;
+  const even = new Float64Array(half + 1);
+  const slope = withSlope ? new Float64Array(half + 1) : null;
+  const c = h * Math.sqrt(2 * Math.PI);
+  const cs = -2 * Math.PI * h * h * c;
+  const a = 2 * Math.PI * Math.PI * h * h;
+  // Terms with a·d² > 745 underflow to zero; q ≠ 0 terms have |q ± f| ≥ 1/2 for f = m/N ∈ [0, 1/2].
+  const aliasTerms = a / 4 <= 745;
+  for (let m = 0; m <= half; m++) {
+    const f = m / size;
+    const e0 = Math.exp(-a * f * f);
+    let s = e0;
+    let t = f * e0;
+    if (aliasTerms) {
+      for (let q = 1; ; q++) {
+        const lo = Math.exp(-a * (q - f) * (q - f));
+        const hi = Math.exp(-a * (q + f) * (q + f));
+        s += lo + hi;
+        t += (f - q) * lo + (f + q) * hi;
+        if (lo === 0) break;
+      }
+    } else if (s === 0) break;
+    even[m] = c * s;
+    if (slope) slope[m] = cs * t;
   }
+  return { even, slope };
 }
 
 /**
@@ -158,7 +162,7 @@ function multiplySpectra(a: { re: Float64Array; im: Float64Array }, b: { re: Flo
  * Unlike Nadaraya–Watson its bias at the ends of the record is of the same order as inside (it follows a
  * trend that bends at the end instead of flattening it). T0 and T1 are linear convolutions of x − x̄ with
  * K(d) and d·K(d), done with real FFTs of a power-of-two length ≥ n + L, L = min(n−1, ⌈8.86 h⌉) (terms beyond
- * are below 1e-17 of the largest); S0, S1, S2 come from cumulative sums of K(d), d·K(d), d²·K(d). Where the
+ * are below 1e-17 of the largest), kernel spectra from gaussianSpectra; S0, S1, S2 come from cumulative sums of K(d), d·K(d), d²·K(d). Where the
  * fit is degenerate (h so small that S0 S2 − S1² is not positive) the Nadaraya–Watson value T0/S0 is used.
  * Cost O(n log n). Source: Fan & Gijbels (1996), Local Polynomial Modelling and Its Applications, Ch. 3,
  * eq. (3.5) (from memory); checked against a direct O(n²) evaluation and numpy weighted least squares.
@@ -172,17 +176,15 @@ export function localLinearSmooth(x: Float64Array, h: number): Float64Array {
   const L = Math.min(n - 1, Math.ceil(GAUSS_REACH * h));
   const size = nextPowerOfTwo(n + L);
   const k0 = new Float64Array(L + 1);
-  const k1 = new Float64Array(L + 1);
   const c0 = new Float64Array(L + 1);
   const c1 = new Float64Array(L + 1);
   const c2 = new Float64Array(L + 1);
   let a0 = 0, a1 = 0, a2 = 0;
   for (let d = 0; d <= L; d++) {
     k0[d] = Math.exp(-(d * d) / (2 * h * h));
-    k1[d] = d * k0[d];
     c0[d] = a0 += k0[d];
-    c1[d] = a1 += k1[d];
-    c2[d] = a2 += d * k1[d];
+    c1[d] = a1 += d * k0[d];
+    c2[d] = a2 += d * d * k0[d];
   }
   const centred = new Float64Array(n);
   let any = false;
@@ -191,13 +193,22 @@ export function localLinearSmooth(x: Float64Array, h: number): Float64Array {
     if (centred[i] !== 0) any = true;
   }
   if (!any) return out;
-  const X0 = realFft(centred, size);
-  const X1 = { re: X0.re.slice(), im: X0.im.slice() };
-  multiplySpectra(X0, circularKernelSpectrum(k0, size, false));
-  multiplySpectra(X1, circularKernelSpectrum(k1, size, true));
-  const t0 = inverseRealFft(X0.re, X0.im, size);
+  const X = realFft(centred, size);
+  const { even, slope } = gaussianSpectra(h, n, L, size, true);
+  const re0 = new Float64Array(even.length);
+  const im0 = new Float64Array(even.length);
+  const re1 = new Float64Array(even.length);
+  const im1 = new Float64Array(even.length);
+  for (let m = 0; m < even.length; m++) {
+    re0[m] = X.re[m] * even[m];
+    im0[m] = X.im[m] * even[m];
+    // X·(i·slope)
+    re1[m] = -X.im[m] * slope![m];
+    im1[m] = X.re[m] * slope![m];
+  }
+  const t0 = inverseRealFft(re0, im0, size);
   // The circular convolution gives Σ_j x_j g(i − j); T1 needs Σ_j x_j (j − i) K(j − i) = −that for odd g.
-  const t1 = inverseRealFft(X1.re, X1.im, size);
+  const t1 = inverseRealFft(re1, im1, size);
   for (let i = 0; i < n; i++) {
     const a = Math.min(i, L);
     const b = Math.min(n - 1 - i, L);

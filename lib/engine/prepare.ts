@@ -282,8 +282,10 @@ function medianOf(a: Float64Array): number {
 /**
  * Changes of the sampling interval in sorted times. The positive spacings are cut into blocks of 16 and each
  * block's median taken (robust to a few missing or doubled readings, as inferInterval); a block whose median
- * differs from the current interval by a factor of more than 1.5, confirmed by the next block agreeing with it
- * (or being the last), starts a new interval. The change is placed at the spacing that best splits the two
+ * differs from the current interval by a factor of more than 1.5, confirmed by the next block (also that far from
+ * the current interval and within the factor of the first), starts a new interval, so a change is seen once 32
+ * readings on the new interval have arrived. Only regular blocks count (at least half their spacings within 10%
+ * of the block median): irregularly timed records have no interval to change. The change is placed at the spacing that best splits the two
  * blocks around it (fewest spacings on the wrong side of the geometric mean of the two intervals); `index` is the
  * first observation on the new interval. Irregular calendar spacing (months of 28–31 days) stays within the
  * factor. Cost O(n). Common practice (block medians of the sampling interval; the factor 1.5 is our choice,
@@ -291,9 +293,9 @@ function medianOf(a: Float64Array): number {
  */
 export function detectSamplingChanges(sortedTime: Float64Array): { index: number; time: number; before: number; after: number }[] {
   const n = sortedTime.length;
-  let regular = true;
-  for (let j = 2; j < n && regular; j++) regular = sortedTime[j] - sortedTime[j - 1] === sortedTime[1] - sortedTime[0];
-  if (regular) return [];
+  let exact = true;
+  for (let j = 2; j < n && exact; j++) exact = sortedTime[j] - sortedTime[j - 1] === sortedTime[1] - sortedTime[0];
+  if (exact) return [];
   const pos: number[] = [];
   const sp: number[] = [];
   for (let j = 0; j + 1 < n; j++) {
@@ -309,13 +311,25 @@ export function detectSamplingChanges(sortedTime: Float64Array): { index: number
   const med = Float64Array.from({ length: blocks }, (_, b) =>
     medianOf(spacing.subarray(b * SAMPLING_BLOCK, b === blocks - 1 ? sp.length : (b + 1) * SAMPLING_BLOCK)),
   );
+  // A block is regular when at least half its spacings are within 10% of its median (a logger, possibly with
+  // missing readings); irregular sampling (manual or event-driven) has no interval to change and is left alone.
+  const regular = Uint8Array.from({ length: blocks }, (_, b) => {
+    const to = b === blocks - 1 ? sp.length : (b + 1) * SAMPLING_BLOCK;
+    let near = 0;
+    for (let j = b * SAMPLING_BLOCK; j < to; j++) if (Math.abs(sp[j] - med[b]) <= 0.1 * med[b]) near++;
+    return 2 * near >= to - b * SAMPLING_BLOCK ? 1 : 0;
+  });
   const differ = (a: number, b: number) => a / b > SAMPLING_RATIO || b / a > SAMPLING_RATIO;
   const out: { index: number; time: number; before: number; after: number }[] = [];
-  let ref = med[0];
+  let ref = Number.NaN;
   let lastSplit = 0;
-  for (let b = 1; b < blocks; b++) {
+  for (let b = 0; b < blocks; b++) {
+    if (!regular[b]) continue;
+    if (Number.isNaN(ref)) ref = med[b];
     if (!differ(med[b], ref)) continue;
-    if (b + 1 < blocks && differ(med[b + 1], med[b])) continue;
+    // Confirmed only by a second block on the new interval, so one unusual block (a burst of missing or doubled
+    // readings, or chance in irregular sampling) does not count.
+    if (b + 1 >= blocks || !regular[b + 1] || !differ(med[b + 1], ref) || differ(med[b + 1], med[b])) continue;
     const lo = Math.max(lastSplit, (b - 1) * SAMPLING_BLOCK);
     const hi = b === blocks - 1 ? sp.length : (b + 1) * SAMPLING_BLOCK;
     const cut = Math.sqrt(ref * med[b]);

@@ -43,7 +43,8 @@ describe('directions', () => {
     let x = 0;
     for (let i = 0; i < n; i++) value[i] = x = (0.2 + (0.77 * i) / (n - 1)) * x + rng.normal();
     const time = Float64Array.from({ length: n }, (_, i) => i);
-    const settings = analysisSettingsSchema.parse({ detrend: 'linear', indicators: ['ac1', 'recovery'], surrogates: 99, seed: 3 });
+    // shift detection off: this checks directions on the whole record
+    const settings = analysisSettingsSchema.parse({ detrend: 'linear', indicators: ['ac1', 'recovery'], surrogates: 99, seed: 3, shiftDetection: 'off' });
     const r = await runAnalysis({ time, value, timeKind: 'numeric' }, settings, { parallel: false });
     expect(r.kendall.ac1!.tau!).toBeGreaterThan(0.5);
     expect(r.kendall.recovery!.tau!).toBeLessThan(-0.5);

@@ -68,6 +68,19 @@ describe('sampling-interval changes (common practice: block medians of the spaci
     expect(detectSamplingChanges(months)).toEqual([]);
   });
 
+  it('finds no change in irregularly timed records (Poisson times) or in a daily record with short gaps', () => {
+    let spurious = 0;
+    for (let s = 0; s < 50; s++) {
+      const rng = new RandomStream(3, s);
+      const poisson = new Float64Array(2000);
+      const daily: number[] = [];
+      for (let i = 1; i < 2000; i++) poisson[i] = poisson[i - 1] - Math.log(1 - rng.uniform());
+      for (let i = 0; i < 2000; i++) if (i < 1000 || rng.uniform() > 0.17) daily.push(i * 24 * HOUR);
+      spurious += detectSamplingChanges(poisson).length + detectSamplingChanges(Float64Array.from(daily)).length;
+    }
+    expect(spurious).toBe(0);
+  });
+
   it("'start-after' analyses only the part after the change and says so", async () => {
     const r = await runAnalysis({ time, value }, analysisSettingsSchema.parse({ shiftDetection: 'off' }));
     expect(r.stretch).toEqual({ from: t0 + 200 * 24 * HOUR, to: t0 + 399 * 24 * HOUR, startsAfter: 'sampling' });

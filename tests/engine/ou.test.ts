@@ -29,7 +29,9 @@ describe('Ornstein–Uhlenbeck / AR(1) facts on a long exact simulation', () => 
   it('lag-1 autocorrelation ≈ e^{−λΔt}, variance ≈ σ²/(2λ), recovery ≈ λ (window = whole record)', async () => {
     const value = simulate(42);
     const time = Float64Array.from({ length: n }, (_, i) => i * dt);
-    const settings = analysisSettingsSchema.parse({ detrend: 'none', window: 1, indicators: ['variance', 'ac1', 'recovery'] });
+    // Shift detection off: these are facts about the whole record as one window (a detected shift would
+    // legitimately shorten the stretch).
+    const settings = analysisSettingsSchema.parse({ detrend: 'none', window: 1, indicators: ['variance', 'ac1', 'recovery'], shiftDetection: 'off' });
     const r = await runAnalysis({ time, value, timeKind: 'numeric' }, settings);
     expect(r.dt).toBeCloseTo(dt, 12);
     const last = (name: 'variance' | 'ac1' | 'recovery') => r.indicators[name]![n - 1]!;
@@ -45,7 +47,7 @@ describe('Ornstein–Uhlenbeck / AR(1) facts on a long exact simulation', () => 
     const value = simulate(7).subarray(0, 2000);
     const day = 86_400_000;
     const time = Float64Array.from({ length: value.length }, (_, i) => Date.UTC(2020, 0, 1) + i * day * dt);
-    const settings = analysisSettingsSchema.parse({ detrend: 'none', window: 1, indicators: ['ac1', 'recovery'] });
+    const settings = analysisSettingsSchema.parse({ detrend: 'none', window: 1, indicators: ['ac1', 'recovery'], shiftDetection: 'off' });
     const r = await runAnalysis({ time, value }, settings);
     expect(r.rateUnit).toBe('per day');
     const a = r.indicators.ac1![value.length - 1]!;

@@ -102,13 +102,14 @@ describe('preparation', () => {
   });
 });
 
+// Shift detection off: the checks count points of the whole record (a detected shift would legitimately shorten it).
 describe('pipeline shape', () => {
   const n = 200;
   const time = Float64Array.from({ length: n }, (_, i) => i);
   const value = Float64Array.from({ length: n }, (_, i) => 3 + Math.sin(i / 7) + ((i * 7919) % 17) / 17);
 
   it('indicators are null before index w − 1 and numbers after; difference detrending has n − 1 points', async () => {
-    const r = await runAnalysis({ time, value, timeKind: 'numeric' }, analysisSettingsSchema.parse({ detrend: 'difference', window: 0.25 }));
+    const r = await runAnalysis({ time, value, timeKind: 'numeric' }, analysisSettingsSchema.parse({ detrend: 'difference', window: 0.25, shiftDetection: 'off' }));
     expect(r.n).toBe(n - 1);
     expect(r.windowPoints).toBe(Math.round(0.25 * (n - 1)));
     expect(r.series.time[0]).toBe(1);
