@@ -118,7 +118,9 @@ const CONTROL_RULES: DemoRule[] = [
  * LIVE_SETTINGS_DEFAULTS in lib/schemas/series.ts), shift detection on and the 80 % coverage floor. Each plan gives
  * its span as an ISO 8601 duration suited to its sampling and the timescale it is watched on, and its window as a
  * duration (controls: a year of daily readings, a month of hourly ones) or, where the stretch may start late after
- * a shift or marked transition, as a fraction of the stretch.
+ * a shift or a mark (the collapsing records, the cleaned probe, the flickering record whose every flip between
+ * states is an abrupt shift), as a fraction of the stretch, so that a short stretch is still judged rather than
+ * refused.
  */
 const LIVE: Partial<AnalysisSettings> = { surrogates: 199, shiftDetection: 'on', minCoverage: 0.8 };
 
@@ -293,7 +295,7 @@ const PLANS: SeriesPlan[] = [
     timeZone: 'Europe/Oslo',
     intervalMs: DAY_MS,
     n: OXYGEN.n,
-    settings: { ...LIVE, seed: 15, detrend: 'linear', span: 'P5Y', window: 'P1Y' },
+    settings: { ...LIVE, seed: 15, detrend: 'linear', span: 'P5Y', window: 0.5 },
     rules: CONTROL_RULES,
     generate: () => {
       const x = simulateDrift({ n: OXYGEN.n, phi: 0.5, sigma: 0.15, mean: 10.4, driftPerSample: OXYGEN.drift, seed: DEMO_SEED, stream: 5 });
@@ -353,7 +355,7 @@ const PLANS: SeriesPlan[] = [
     timeZone: 'Europe/Helsinki',
     intervalMs: DAY_MS,
     n: 3650,
-    settings: { ...LIVE, seed: 18, span: 'P5Y', window: 'P1Y' },
+    settings: { ...LIVE, seed: 18, span: 'P5Y', window: 0.5 },
     rules: SLOWING_DOWN_RULES,
     generate: () => ({
       values: toUnits(simulateDoubleWell({ n: 3650, dt: 0.25, substeps: 10, amplitude: 0.12, period: 66, sigma: 0.5, x0: -1, seed: DEMO_SEED, stream: 8 }), 1.8, 3),
