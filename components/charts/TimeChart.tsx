@@ -23,7 +23,10 @@ export interface TimeChartProps {
   windowBand?: { from: number; to: number } | null;
   /** marks on the record: known transitions, and maintenance breaks (`kind: 'maintenance'`, drawn apart) */
   transitions?: { at: number; note: string; kind?: 'transition' | 'maintenance' }[];
-  /** detected abrupt shifts of level, each at the first instant of the new level */
+  /**
+   * detected abrupt shifts of level, each at the first instant of the new level; drawn where they fall on the
+   * chart's span (the latest one opens the analysed stretch), so earlier ones do not stretch the time axis
+   */
   shifts?: { time: number }[];
   /** where the analysed stretch starts and why (labelled when `label` is set) */
   stretchStart?: { at: number; label?: string } | null;
@@ -79,7 +82,7 @@ export function TimeChart({ rows, lines, timeZone, unit = '', height = 220, wind
             label={stretchStart.label ? { value: `▸ ${stretchStart.label}`, position: 'insideBottomLeft', fontSize: 11, fill: '#164e55' } : undefined} />
         ) : null}
         {shifts.map((shift) => (
-          <ReferenceLine key={`shift-${shift.time}`} x={shift.time} stroke="#7a4f9a" strokeWidth={1.5} strokeDasharray="2 2" ifOverflow="extendDomain" shape={shiftLine}
+          <ReferenceLine key={`shift-${shift.time}`} x={shift.time} stroke="#7a4f9a" strokeWidth={1.5} strokeDasharray="2 2" shape={shiftLine}
             label={{ value: '⇵ abrupt shift', position: 'insideTopRight', fontSize: 11, fill: '#5d3a78' }} />
         ))}
         {lines.map((line) => (

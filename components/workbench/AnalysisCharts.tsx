@@ -64,7 +64,11 @@ export function AnalysisCharts({ view, series, transitions = [], idPrefix = '', 
   const stretchAt = view.stretch?.from ?? null;
   const stretchLabelled = view.stretch ? { at: view.stretch.from, label: stretchReason(view.stretch.startsAfter) } : null;
   const stretchPlain = stretchAt === null ? null : { at: stretchAt };
-  const shiftNote = shifts.length ? ` · ${shifts.length} abrupt shift${shifts.length === 1 ? '' : 's'} detected` : '';
+  // Shifts before the drawn stretch are not on the charts; the count says so and the quality panel lists them all.
+  const before = first === undefined ? 0 : shifts.filter((shift) => shift.time < first).length;
+  const shiftNote = shifts.length
+    ? ` · ${shifts.length} abrupt shift${shifts.length === 1 ? '' : 's'} detected${before ? ` (${before} before the analysed stretch, listed under data quality)` : ''}`
+    : '';
   return (
     <div className="space-y-3">
       <ChartFrame title={`${series.name}: record and trend`} fileName={`${base}-record`} testId="chart-record"

@@ -1,6 +1,6 @@
 'use client';
 
-import { useEffect, useId, useState } from 'react';
+import { useId, useState } from 'react';
 import type { AnalysisSettings } from '@/lib/engine/settings';
 import { describeExtent } from '@/lib/display/analysis-labels';
 
@@ -35,14 +35,15 @@ export function ExtentInput({ label, value, onChange, accepts, nullable = false,
   const [text, setText] = useState(value === null ? '' : String(value));
   const [invalid, setInvalid] = useState(false);
   const hintId = useId();
-  // A value changed from outside (back to saved settings) replaces the text unless the text already says it.
-  useEffect(() => {
-    setText((current) => {
-      const typed = current.trim() === '' ? null : extentFromText(current);
-      return typed === value ? current : value === null ? '' : String(value);
-    });
+  // A value changed from outside (back to saved settings) replaces the text unless the text already says it; done
+  // while rendering, React's pattern for state that follows a prop (react.dev, "You might not need an effect").
+  const [shown, setShown] = useState(value);
+  if (shown !== value) {
+    setShown(value);
+    const typed = text.trim() === '' ? null : extentFromText(text);
+    if (typed !== value) setText(value === null ? '' : String(value));
     setInvalid(false);
-  }, [value]);
+  }
   function change(next: string) {
     setText(next);
     const candidate = next.trim() === '' ? (nullable ? null : undefined) : extentFromText(next);

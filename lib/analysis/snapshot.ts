@@ -5,7 +5,7 @@ import { analysisSettingsSchema, type AnalysisSettings } from '@/lib/engine/sett
 import { runAnalysis, summarizeAnalysis, type AnalysisInput, type AnalysisResult } from '@/lib/engine/analyze';
 import { extentPoints } from '@/lib/engine/extent';
 import { curvesOf } from './curves';
-import { viewFromSnapshot, type AnalysisView } from './view';
+import { completeSavedView, viewFromSnapshot, type AnalysisView } from './view';
 import { AnalysisInputError } from '@/lib/engine/errors';
 import { loadObservations, observationExtent, type ObservationRange } from './observations';
 
@@ -125,7 +125,7 @@ export async function refreshSeriesAnalysis(series: Series, options: { parallel?
  */
 export async function loadSnapshotView(snapshot: { id: number; status: string; chartView?: Record<string, unknown> | null }): Promise<AnalysisView | null> {
   if (snapshot.status !== 'ok') return null;
-  if (snapshot.chartView) return snapshot.chartView as unknown as AnalysisView;
+  if (snapshot.chartView) return completeSavedView(snapshot.chartView as unknown as AnalysisView);
   const full = await AnalysisSnapshot.findByPk(snapshot.id, { attributes: ['id', 'status', 'settings', 'summary', 'curves'] });
   return full ? viewFromSnapshot(full) : null;
 }

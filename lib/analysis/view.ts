@@ -168,6 +168,24 @@ export function buildView(
   };
 }
 
+/**
+ * A chart view saved with an older snapshot, completed with what views carry since: no shifts or stretch recorded
+ * (empty, null) and p-values labelled with the upper tail they were computed in. A current view is returned as it is.
+ * O(number of indicators).
+ */
+export function completeSavedView(saved: AnalysisView): AnalysisView {
+  if (Array.isArray(saved.shifts) && saved.stretch !== undefined && Object.values(saved.kendall).every((k) => k?.direction)) return saved;
+  const kendall: AnalysisView['kendall'] = {};
+  for (const [name, k] of Object.entries(saved.kendall) as [IndicatorName, AnalysisView['kendall'][IndicatorName]][]) {
+    if (k) kendall[name] = { ...k, direction: k.direction ?? UPPER_TAIL };
+  }
+  const significance: AnalysisView['significance'] = {};
+  for (const [name, s] of Object.entries(saved.significance) as [IndicatorName, AnalysisView['significance'][IndicatorName]][]) {
+    if (s) significance[name] = { ...s, direction: s.direction ?? UPPER_TAIL };
+  }
+  return { ...saved, kendall, significance, shifts: saved.shifts ?? [], stretch: saved.stretch ?? null };
+}
+
 /** The view of a fresh engine result (preview, exports from posted settings). */
 export function viewFromResult(result: AnalysisResult, settings: AnalysisSettings, maxPoints = CHART_POINTS): AnalysisView {
   return buildView(settings, result, curvesOf(result, maxPoints), maxPoints);

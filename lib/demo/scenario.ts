@@ -54,12 +54,15 @@ export interface DemoRule {
   fdrLevel: number | null;
 }
 
-/** A marked transition: the sample where it lies and its instant (UTC ms) in the built record. */
+/**
+ * A mark on a record: a known transition (the fold of a forced run) or a maintenance break (a probe cleaned), with
+ * the sample where it lies and its instant (UTC ms) in the built record.
+ */
 export interface DemoTransition {
   index: number;
   at: number;
   note: string;
-  kind: 'transition';
+  kind: 'transition' | 'maintenance';
 }
 
 export interface DemoSeries {
@@ -115,7 +118,9 @@ const CONTROL_RULES: DemoRule[] = [
  * LIVE_SETTINGS_DEFAULTS in lib/schemas/series.ts), shift detection on and the 80 % coverage floor. Each plan gives
  * its span as an ISO 8601 duration suited to its sampling and the timescale it is watched on, and its window as a
  * duration (controls: a year of daily readings, a month of hourly ones) or, where the stretch may start late after
- * a shift or marked transition, as a fraction of the stretch.
+ * a shift or a mark (the collapsing records, the cleaned probe, the flickering record whose every flip between
+ * states is an abrupt shift), as a fraction of the stretch, so that a short stretch is still judged rather than
+ * refused.
  */
 const LIVE: Partial<AnalysisSettings> = { surrogates: 199, shiftDetection: 'on', minCoverage: 0.8 };
 
@@ -139,6 +144,8 @@ interface SeriesPlan {
    * branch, so the note can say how far the simulated jump lies from the fold.
    */
   transition?: { crossed: (value: number) => boolean; note: (when: string) => string };
+  /** A maintenance break marked on the record: the sample where it lies and its note. */
+  maintenance?: { index: number; note: string };
 }
 
 /**
@@ -166,6 +173,8 @@ const CESSI = { mu2: 6.2, p0: 0.6, sigma: 0.05, n: 4000, dt: 0.05, foldAt: 0.9 }
 const GRAZING: GrazingParameters = { r: 1, K: 10, h: 1 };
 const LAKE_STOCK = { n: 3000, dt: 0.1, c0: 1.0, sigma: 0.1, foldAt: 0.85 };
 const FEN = { n: 3000, dt: 0.1, c0: 1.2, sigma: 0.05, endShare: 0.97 };
+/** The drifting oxygen probe: fouling lowers the reading by `drift` a day until it is cleaned at sample `cleaning`. */
+const OXYGEN = { n: 2500, drift: -0.0008, cleaning: 1800 };
 const CESSI_FOLDS = cessiFolds(CESSI.mu2);
 const GRAZING_FOLDS = grazingFolds(GRAZING);
 
@@ -279,17 +288,22 @@ const PLANS: SeriesPlan[] = [
     unit: 'mg/L',
     description:
       'Synthetic demo data: a stationary AR(1) signal (Box & Jenkins) read through a probe whose fouling lowers the ' +
-      'reading linearly, simulated with a seeded generator. After linear detrending the drift is gone; an alert ' +
-      'here would be a false alarm caused by the instrument.',
+      'reading linearly, simulated with a seeded generator. The probe was cleaned once (marked as a maintenance ' +
+      'break): the reading jumps back up and the fouling starts again, and the live analysis judges only the record ' +
+      'since the cleaning. After linear detrending the drift is gone; an alert here would be a false alarm caused by the instrument.',
     model: 'stationary AR(1) + linear sensor drift',
     timeZone: 'Europe/Oslo',
     intervalMs: DAY_MS,
-    n: 2500,
-    settings: { ...LIVE, seed: 15, detrend: 'linear', span: 'P5Y', window: 'P1Y' },
+    n: OXYGEN.n,
+    settings: { ...LIVE, seed: 15, detrend: 'linear', span: 'P5Y', window: 0.5 },
     rules: CONTROL_RULES,
-    generate: () => ({
-      values: toUnits(simulateDrift({ n: 2500, phi: 0.5, sigma: 0.15, mean: 10.4, driftPerSample: -0.0008, seed: DEMO_SEED, stream: 5 }), 1, 3),
-    }),
+    generate: () => {
+      const x = simulateDrift({ n: OXYGEN.n, phi: 0.5, sigma: 0.15, mean: 10.4, driftPerSample: OXYGEN.drift, seed: DEMO_SEED, stream: 5 });
+      // Cleaning removes the fouling: from then on the reading has lost only the drift since the cleaning.
+      for (let t = OXYGEN.cleaning; t < x.length; t++) x[t] -= OXYGEN.drift * OXYGEN.cleaning;
+      return { values: toUnits(x, 1, 3) };
+    },
+    maintenance: { index: OXYGEN.cleaning, note: 'Probe cleaned and recalibrated: readings jump back to the clean-probe level.' },
   },
   {
     slug: 'brandwhistle-sedge-biomass',
@@ -341,7 +355,7 @@ const PLANS: SeriesPlan[] = [
     timeZone: 'Europe/Helsinki',
     intervalMs: DAY_MS,
     n: 3650,
-    settings: { ...LIVE, seed: 18, span: 'P5Y', window: 'P1Y' },
+    settings: { ...LIVE, seed: 18, span: 'P5Y', window: 0.5 },
     rules: SLOWING_DOWN_RULES,
     generate: () => ({
       values: toUnits(simulateDoubleWell({ n: 3650, dt: 0.25, substeps: 10, amplitude: 0.12, period: 66, sigma: 0.5, x0: -1, seed: DEMO_SEED, stream: 8 }), 1.8, 3),
@@ -380,7 +394,10 @@ export function buildDemoScenario(now: Date = new Date()): DemoSeries[] {
     const times = new Float64Array(plan.n);
     for (let i = 0; i < plan.n; i++) times[i] = start + i * plan.intervalMs;
     const { values, run } = plan.generate(start);
-    const marks = run && plan.transition ? [foldMark(plan, run, values)] : [];
+    const marks = [
+      ...(run && plan.transition ? [{ ...foldMark(plan, run, values), kind: 'transition' as const }] : []),
+      ...(plan.maintenance ? [{ ...plan.maintenance, kind: 'maintenance' as const }] : []),
+    ].sort((a, b) => a.index - b.index);
     return {
       input: {
         slug: plan.slug,
@@ -395,7 +412,7 @@ export function buildDemoScenario(now: Date = new Date()): DemoSeries[] {
       model: plan.model,
       times,
       values,
-      transitions: marks.map((mark) => ({ ...mark, at: start + mark.index * plan.intervalMs, kind: 'transition' as const })),
+      transitions: marks.map((mark) => ({ ...mark, at: start + mark.index * plan.intervalMs })),
       rules: plan.rules,
     };
   });

@@ -39,13 +39,13 @@ afterAll(async () => {
 });
 
 describe('the demo analysed live', () => {
-  it('has at least one series with a marked transition, stored as a transition', async () => {
-    expect(marked.length).toBeGreaterThan(0);
+  it('has marked transitions and a maintenance break, stored with their kind', async () => {
+    expect(marked.length).toBeGreaterThan(1);
     const kinds = (await Transition.findAll({ attributes: ['kind'], raw: true })).map((t) => t.kind);
-    expect(new Set(kinds)).toEqual(new Set(['transition']));
+    expect(new Set(kinds)).toEqual(new Set(['transition', 'maintenance']));
   });
 
-  it('never spans a marked transition: the latest analysis of each series starts at or after its last mark', () => {
+  it('never spans a mark: the latest analysis of each series starts at or after its last transition or maintenance break', () => {
     for (const demo of marked) {
       const snapshot = latest.get(demo.input.slug)!;
       expect(snapshot.status, `${demo.input.slug}: ${snapshot.error}`).toBe('ok');
@@ -53,7 +53,7 @@ describe('the demo analysed live', () => {
       const lastMark = Math.max(...demo.transitions.map((t) => t.at));
       expect(summary.stretch.from).toBeGreaterThanOrEqual(lastMark);
       expect(summary.stretch.to).toBe(demo.times[demo.times.length - 1]);
-      expect(['transition', 'shift']).toContain(summary.stretch.startsAfter);
+      expect(['transition', 'maintenance', 'shift']).toContain(summary.stretch.startsAfter);
     }
   });
 

@@ -48,7 +48,7 @@ describe('demo scenario', () => {
   });
 
   it('marks each tipping record at its fold instant, inside the record, and the record does pass the unstable branch', () => {
-    const marked = scenario.filter((s) => s.transitions.length > 0).map((s) => s.input.slug);
+    const marked = scenario.filter((s) => s.transitions.some((t) => t.kind === 'transition')).map((s) => s.input.slug);
     expect(marked).toEqual(['veskary-salinity-contrast', 'orlemere-whitefish-stock']);
     for (const slug of marked) {
       const s = bySlug.get(slug)!;
@@ -59,6 +59,16 @@ describe('demo scenario', () => {
       expect(mark.note).not.toMatch(/after the record ends/);
       expect(mark.kind).toBe('transition');
     }
+  });
+
+  it('marks the cleaning of the drifting probe as a maintenance break, where its reading jumps back up', () => {
+    const s = bySlug.get('orlemere-oxygen-probe')!;
+    expect(s.transitions.map((t) => t.kind)).toEqual(['maintenance']);
+    const [mark] = s.transitions;
+    expect(mark.at).toBe(s.times[mark.index]);
+    // Mean of 30 readings either side: the fouling lost about 0.0008 mg/L a day for 1,800 days (1.44 mg/L).
+    const mean = (a: number, b: number) => s.values.slice(a, b).reduce((x, y) => x + y, 0) / (b - a);
+    expect(mean(mark.index, mark.index + 30) - mean(mark.index - 30, mark.index)).toBeGreaterThan(1);
   });
 
   it('keeps gaps in the seasonal record: short ones of at most three days and one long outage early on', () => {
@@ -91,10 +101,11 @@ describe('demo scenario', () => {
     // marked transition (afterwards it judges only the new state), the others as they stand.
     const verdict = async (slug: string) => {
       const s = bySlug.get(slug)!;
-      const end = s.transitions.length ? s.transitions[0].index : s.values.length;
+      const end = s.transitions.find((t) => t.kind === 'transition')?.index ?? s.values.length;
       const kept = [...s.values.keys()].filter((i) => i < end && !Number.isNaN(s.values[i]));
+      const breaks = s.transitions.filter((t) => t.index < end).map((t) => ({ time: t.at, kind: t.kind }));
       const result = await runAnalysis(
-        { time: Float64Array.from(kept, (i) => s.times[i]), value: Float64Array.from(kept, (i) => s.values[i]), intervalMs: s.input.intervalMs },
+        { time: Float64Array.from(kept, (i) => s.times[i]), value: Float64Array.from(kept, (i) => s.values[i]), intervalMs: s.input.intervalMs, breaks },
         { ...s.input.settings, surrogates: 99, indicators: ['ac1'] },
         { parallel: false },
       );

@@ -12,6 +12,7 @@ const { transitionCreateSchema } = await import('@/lib/schemas/backtest');
 const { LIVE_SETTINGS_DEFAULTS, seriesCreateSchema, seriesUpdateSchema } = await import('@/lib/schemas/series');
 const { benjaminiHochberg } = await import('@/lib/engine/fdr');
 const { simulateAr1 } = await import('@/lib/demo/models');
+const { completeSavedView } = await import('@/lib/analysis/view');
 
 const DAY = 86_400_000;
 const LAST = Date.UTC(2030, 0, 1);
@@ -70,6 +71,20 @@ describe('marks as breaks of the live analysis', () => {
     // The preview analyses the same stretch.
     const preview = await analyseStored(series, series.settings as never);
     expect(preview.stretch).toEqual(summary.stretch);
+  });
+
+  it('draws a chart view saved before shifts, stretch and directions were recorded', async () => {
+    const { series } = await dailySeries('older-view', 300, { window: 0.5, surrogates: 10, indicators: ['ac1'] });
+    const snapshot = await refreshSeriesAnalysis(series, { parallel: false });
+    const { shifts: _s, stretch: _t, ...old } = snapshot.chartView as Record<string, unknown>;
+    const oldKendall = { ac1: { tau: 0.1, p: 0.2 } };
+    const oldSignificance = { ac1: { p: 0.3, count: 10, method: 'ar1', bins: [] } };
+    const view = completeSavedView({ ...old, kendall: oldKendall, significance: oldSignificance } as never);
+    expect(view.shifts).toEqual([]);
+    expect(view.stretch).toBeNull();
+    // The engine before directions tested every indicator in the upper tail.
+    expect(view.kendall.ac1?.direction).toBe('rising');
+    expect(view.significance.ac1?.direction).toBe('rising');
   });
 
   it('ignores a mark before the span and one after the last reading', async () => {

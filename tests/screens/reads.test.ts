@@ -78,9 +78,10 @@ describe('overview', () => {
     expect(bySlug['ov-quiet']).toMatchObject({ state: 'quiet', freshness: 'fresh' });
     expect(bySlug['ov-empty']).toMatchObject({ state: 'not-analysed', freshness: 'no-data', spark: null });
     expect(overview.queues).toEqual({ triage: 0, escalated: 1, mine: 1, open: 1 });
-    // tau shown is the snapshot's own Kendall tau for the rule's indicator, and the sparkline is its curve
+    // tau shown is the snapshot's own Kendall tau for the rule's indicator, and the sparkline is its curve; new
+    // series run surrogates by default (lib/schemas/series.ts), so the p shown is the surrogate p
     const summary = snapshots.get(quiet.id)!.summary as { kendall: Record<string, { tau: number }> };
-    expect(bySlug['ov-quiet'].indicators).toEqual([{ name: 'ac1', tau: summary.kendall.ac1.tau, p: expect.any(Number), pKind: 'kendall', q: null }]);
+    expect(bySlug['ov-quiet'].indicators).toEqual([{ name: 'ac1', tau: summary.kendall.ac1.tau, p: expect.any(Number), pKind: 'surrogate', q: null }]);
     expect(bySlug['ov-quiet'].spark?.indicator).toBe('ac1');
     expect(bySlug['ov-quiet'].spark?.points).toBe(60);
     // one path command per point the rolling window has filled (the first window's points have no indicator yet)
@@ -169,6 +170,8 @@ describe('analysis views and exports', () => {
 
   it('draws every k-th point of the full-resolution indicator table to chart precision, with its settings in the CSV', async () => {
     const series = await seriesWith('export-check', 3000, NOW, DAY);
+    // The whole record (a new series' default span is the latest 1,000 points).
+    await series.update({ settings: { ...series.settings, span: null } });
     const snapshot = await refreshSeriesAnalysis(series, { parallel: false });
     const table = await buildIndicatorTable(series);
     expect(table.source).toBe('snapshot');
