@@ -1,5 +1,5 @@
 import { Op, QueryTypes, type Transaction } from 'sequelize';
-import { Alert, AlertEvent, AlertRule, RuleEvaluation, Series, db, writeTransaction, OPEN_ALERT_STATES, type AnalysisSnapshot } from '@/models';
+import { Alert, AlertEvent, AlertRule, RuleEvaluation, Series, Transition, db, writeTransaction, OPEN_ALERT_STATES, type AnalysisSnapshot } from '@/models';
 import { recordAudit } from '@/lib/audit';
 import { latestRuleCalibration, type RuleCalibration } from '@/lib/backtest/jobs';
 import { trendDirectionOf, type TrendDirection } from '@/lib/engine/direction';
@@ -179,9 +179,21 @@ async function openAlert(rule: AlertRule, series: Series, snapshot: AnalysisSnap
 export const SAME_SHIFT_INTERVALS = 10;
 
 /**
+ * Whether a lead's mark already explains a shift: the mark (a transition, or a maintenance break such as a probe
+ * cleaned or swapped) lies at most SAME_SHIFT_INTERVALS before it — as late as a shift is first located — or up to
+ * one rolling window before it (the settling time after a mark that backtests also leave out). A shift a lead has
+ * already marked is not news. O(marks).
+ */
+export function explainedByMark(shiftTime: number, marks: number[], summary: Pick<StoredSummary, 'interval' | 'windowPoints'>): boolean {
+  const interval = summary.interval ?? 0;
+  const settle = Math.max(SAME_SHIFT_INTERVALS, summary.windowPoints ?? 0) * interval;
+  return marks.some((at) => at - SAME_SHIFT_INTERVALS * interval <= shiftTime && shiftTime <= at + settle);
+}
+
+/**
  * Opens an abrupt-shift alert when the snapshot's detected shifts include one newer than any shift already alerted
- * for the series (by more than SAME_SHIFT_INTERVALS), so re-analysis never reopens the same shift; the newest such
- * shift is alerted, earlier new ones are named in its timeline. The database holds one alert per series and shift
+ * for the series (by more than SAME_SHIFT_INTERVALS) and not explained by a mark (explainedByMark), so re-analysis
+ * never reopens the same shift; the newest such shift is alerted, earlier new ones are named in its timeline. The database holds one alert per series and shift
  * instant. Mailed to immediate watchers in the same transaction. Null when nothing new.
  */
 async function openShiftAlert(series: Series, snapshot: AnalysisSnapshot): Promise<number | null> {
@@ -191,7 +203,8 @@ async function openShiftAlert(series: Series, snapshot: AnalysisSnapshot): Promi
   return writeTransaction(async (transaction) => {
     const alerted = (await Alert.max('shiftTime', { where: { seriesId: series.id, kind: 'abrupt-shift' }, transaction })) as number | string | null;
     const after = alerted === null ? -Infinity : Number(alerted) + SAME_SHIFT_INTERVALS * (summary.interval ?? 0);
-    const fresh = shifts.filter((s) => s.time > after).sort((a, b) => a.time - b.time);
+    const marks = (await Transition.findAll({ where: { seriesId: series.id }, attributes: ['at'], transaction })).map((m) => Number(m.at));
+    const fresh = shifts.filter((s) => s.time > after && !explainedByMark(s.time, marks, summary)).sort((a, b) => a.time - b.time);
     if (!fresh.length) return null;
     const shift = fresh[fresh.length - 1];
     const alert = await Alert.create(

@@ -4,8 +4,8 @@ import { useTempDataDir } from '../support/temp-db';
 useTempDataDir();
 
 import { migrateUp } from '@/migrations';
-import { Alert, AlertEvent, MailMessage, db } from '@/models';
-import { evaluateSnapshots } from '@/lib/alerts/evaluate';
+import { Alert, AlertEvent, MailMessage, Transition, db } from '@/models';
+import { evaluateSnapshots, explainedByMark } from '@/lib/alerts/evaluate';
 import { fetchAlertDetail, fetchAlertQueue } from '@/lib/alerts/queries';
 import { dismissAlert, escalateAlert, reopenAlert } from '@/lib/alerts/triage';
 import { alertQueueSchema } from '@/lib/schemas/alert';
@@ -76,5 +76,22 @@ describe('abrupt-shift alerts', () => {
     const report = await evaluateSnapshots([await makeSnapshot(series, { tau: 0.2 }, { summary: { shifts: [{ time: Date.UTC(2020, 6, 1), index: 182 }] } })]);
     expect(report.shifts).toHaveLength(1);
     expect((await Alert.findByPk(report.shifts[0]))!.shiftSize).toBeNull();
+  });
+
+  it('a shift a lead has already marked (transition or maintenance break) opens nothing', async () => {
+    const series = await makeSeries();
+    const cleaned = Date.UTC(2020, 6, 1);
+    await Transition.create({ seriesId: series.id, at: cleaned, note: 'probe cleaned', kind: 'maintenance', createdBy: null });
+    // Daily data, 100-point window: located up to 10 days early or within the window after the mark = explained.
+    const summary = { shifts: [{ time: cleaned + 3 * DAY, index: 183 }], interval: DAY, windowPoints: 100 };
+    const report = await evaluateSnapshots([await makeSnapshot(series, { tau: 0.2 }, { summary })]);
+    expect(report.shifts).toEqual([]);
+    expect(explainedByMark(cleaned - 10 * DAY, [cleaned], summary)).toBe(true);
+    expect(explainedByMark(cleaned - 11 * DAY, [cleaned], summary)).toBe(false);
+    expect(explainedByMark(cleaned + 100 * DAY, [cleaned], summary)).toBe(true);
+    expect(explainedByMark(cleaned + 101 * DAY, [cleaned], summary)).toBe(false);
+    // A shift well after the mark is news.
+    const later = await evaluateSnapshots([await makeSnapshot(series, { tau: 0.2 }, { summary: { ...summary, shifts: [{ time: cleaned + 300 * DAY, index: 483 }] } })]);
+    expect(later.shifts).toHaveLength(1);
   });
 });
