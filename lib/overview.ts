@@ -1,5 +1,6 @@
 import { QueryTypes } from 'sequelize';
 import { db, OPEN_ALERT_STATES } from '@/models';
+import { INDICATOR_DIRECTIONS, orientedTau, type TrendDirection } from '@/lib/engine/direction';
 import { INDICATOR_NAMES, type IndicatorName } from '@/lib/engine/settings';
 import { sparkline, sparkPath } from '@/lib/display/sparkline';
 import { cachedRead } from '@/lib/db/read-cache';
@@ -15,8 +16,12 @@ export type SeriesState = 'not-analysed' | 'quiet' | 'watch' | 'warning' | 'aler
 export interface OverviewIndicator {
   name: IndicatorName;
   tau: number | null;
+  /** the direction the indicator is tested in (its own under slowing down) */
+  direction: TrendDirection;
+  /** tau seen in that direction (−tau for a falling indicator, |tau| two-sided): what "most pressing" sorts by */
+  orientedTau: number | null;
   p: number | null;
-  /** surrogate p when the series runs surrogates, else the Kendall test's p */
+  /** surrogate p when the series runs surrogates, else the Kendall test's p (descriptive: assumes independent values) */
   pKind: 'surrogate' | 'kendall';
   /** Benjamini–Hochberg q-value of the latest cycle (rules with a false-discovery level only), else null */
   q: number | null;
@@ -221,7 +226,7 @@ async function loadOverview(): Promise<StoredOverview> {
   }
 
   const rows = series.map((s): StoredOverview['rows'][number] => {
-    const kendall = (s.kendall ? JSON.parse(s.kendall) : {}) as Record<string, { tau: number | null; p: number | null }>;
+    const kendall = (s.kendall ? JSON.parse(s.kendall) : {}) as Record<string, { tau: number | null; p: number | null; direction?: TrendDirection }>;
     const surrogate = (s.surrogate_p ? JSON.parse(s.surrogate_p) : {}) as Record<string, number | null>;
     const seriesRules = rulesBySeries.get(s.id) ?? [];
     const names = [...new Set(seriesRules.map((r) => r.indicator))].filter((n): n is IndicatorName => n in kendall);
@@ -256,9 +261,13 @@ async function loadOverview(): Promise<StoredOverview> {
       indicators: shown.map((name) => {
         const sp = surrogate[name];
         const q = seriesRules.find((r) => r.indicator === name && r.q_value !== null)?.q_value ?? null;
+        // Snapshots from before directions were stored were tested in the upper tail.
+        const direction = kendall[name]?.direction ?? INDICATOR_DIRECTIONS[name];
+        const tau = kendall[name]?.tau ?? null;
+        const trend = { name, tau, direction, orientedTau: tau === null ? null : orientedTau(tau, direction), q };
         return sp !== null && sp !== undefined
-          ? { name, tau: kendall[name]?.tau ?? null, p: sp, pKind: 'surrogate', q }
-          : { name, tau: kendall[name]?.tau ?? null, p: kendall[name]?.p ?? null, pKind: 'kendall', q };
+          ? { ...trend, p: sp, pKind: 'surrogate' as const }
+          : { ...trend, p: kendall[name]?.p ?? null, pKind: 'kendall' as const };
       }),
       spark,
     };

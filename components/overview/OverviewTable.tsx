@@ -6,14 +6,16 @@ import { FreshnessBadge, StateBadge, STATE_LABELS } from '@/components/Badges';
 import { LocalTime } from '@/components/LocalTime';
 import { Empty } from '@/components/States';
 import { Sparkline } from '@/components/charts/Sparkline';
+import { formatDirection } from '@/lib/display/analysis-labels';
 import { formatAge, formatP, formatTau } from '@/lib/display/format';
 import type { OverviewRow, SeriesState } from '@/lib/overview';
 
 type SortKey = 'name' | 'site' | 'lastData' | 'state' | 'tau';
 const STATE_RANK: Record<SeriesState, number> = { alert: 4, warning: 3, watch: 2, quiet: 1, 'not-analysed': 0 };
 
+/** The strongest trend of a row, each tau seen in its indicator's own direction (a falling recovery rate counts as rising ac1 does). */
 function maxTau(row: OverviewRow): number {
-  return Math.max(-2, ...row.indicators.map((i) => i.tau ?? -2));
+  return Math.max(-2, ...row.indicators.map((i) => i.orientedTau ?? -2));
 }
 
 const SORTS: Record<SortKey, (a: OverviewRow, b: OverviewRow) => number> = {
@@ -45,7 +47,8 @@ function IndicatorTrends({ indicators }: { indicators: OverviewRow['indicators']
         <li key={ind.name} className="num whitespace-nowrap">
           <span className="inline-block w-20 text-ink-soft">{ind.name}</span>
           τ {formatTau(ind.tau)}
-          <span className="ml-2 text-ink-soft" title={ind.pKind === 'surrogate' ? 'p from surrogate data' : 'p from the Kendall test'}>
+          <span className="ml-1 text-ink-soft" title={`tested ${formatDirection(ind.direction)}`}>{formatDirection(ind.direction).split(' ').pop()}</span>
+          <span className="ml-2 text-ink-soft" title={ind.pKind === 'surrogate' ? `p from surrogate data, ${formatDirection(ind.direction)}` : 'p from the Kendall test: descriptive only, it assumes independent values'}>
             p {formatP(ind.p)}{ind.pKind === 'kendall' ? '*' : ''}
           </span>
           {ind.q !== null && (
@@ -190,8 +193,10 @@ export function OverviewTable({ rows, sites, now }: { rows: OverviewRow[]; sites
         </div>
       )}
       <p className="mt-2 text-xs text-ink-faint">
-        Late: no new observation for more than three sampling intervals (two days for irregular records). p* is the
-        Kendall test&apos;s p, shown where the series runs no surrogates. Times are in each series&apos; time zone; hover for UTC.
+        Late: no new observation for more than three sampling intervals (two days for irregular records). The arrow is
+        the direction each indicator is tested in (↑ rising, ↓ falling, ↕ either way); p is the surrogate p in that
+        direction. p* is the Kendall test&apos;s p, shown where the series runs no surrogates: descriptive only, since it
+        assumes independent values. Times are in each series&apos; time zone; hover for UTC.
       </p>
     </div>
   );

@@ -81,7 +81,8 @@ describe('overview', () => {
     // tau shown is the snapshot's own Kendall tau for the rule's indicator, and the sparkline is its curve; new
     // series run surrogates by default (lib/schemas/series.ts), so the p shown is the surrogate p
     const summary = snapshots.get(quiet.id)!.summary as { kendall: Record<string, { tau: number }> };
-    expect(bySlug['ov-quiet'].indicators).toEqual([{ name: 'ac1', tau: summary.kendall.ac1.tau, p: expect.any(Number), pKind: 'surrogate', q: null }]);
+    // ac1 is tested rising (README, "Indicator definitions"), so its tau is seen as it is.
+    expect(bySlug['ov-quiet'].indicators).toEqual([{ name: 'ac1', tau: summary.kendall.ac1.tau, direction: 'rising', orientedTau: summary.kendall.ac1.tau, p: expect.any(Number), pKind: 'surrogate', q: null }]);
     expect(bySlug['ov-quiet'].spark?.indicator).toBe('ac1');
     expect(bySlug['ov-quiet'].spark?.points).toBe(60);
     // one path command per point the rolling window has filled (the first window's points have no indicator yet)
