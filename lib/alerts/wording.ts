@@ -1,13 +1,6 @@
 import type { RuleDirection } from '@/lib/engine/direction';
+import { DIRECTION_WORDS } from '@/lib/display/analysis-labels';
 import { formatP, formatTau, formatUtc } from '@/lib/display/format';
-
-/** How a direction reads beside a tau: the sign a trend needs to count as evidence. */
-export const DIRECTION_WORDS: Record<RuleDirection | 'two-sided', string> = {
-  rising: 'rising',
-  falling: 'falling',
-  either: 'either way',
-  'two-sided': 'either way',
-};
 
 /** A tau with the direction it is judged in, e.g. "−0.62 (falling)". Every tau shown goes through this. */
 export function tauWithDirection(tau: number | null | undefined, direction: string | null | undefined): string {

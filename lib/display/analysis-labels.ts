@@ -1,4 +1,4 @@
-import type { TrendDirection } from '@/lib/engine/direction';
+import type { RuleDirection, TrendDirection } from '@/lib/engine/direction';
 import type { AnalysisResult } from '@/lib/engine/analyze';
 import type { AnalysisSettings } from '@/lib/engine/settings';
 import { formatTau } from './format';
@@ -8,11 +8,13 @@ import { formatTau } from './format';
  * the charts, the tuning panel and the quality panel so every screen says them alike. Pure; browser-safe.
  */
 
-const DIRECTION_WORDS: Record<TrendDirection, string> = { rising: 'rising ↑', falling: 'falling ↓', 'two-sided': 'either way ↕' };
+/** How a direction reads in words (mails, alert pages) — the one place they are written. */
+export const DIRECTION_WORDS: Record<TrendDirection | RuleDirection, string> = { rising: 'rising', falling: 'falling', 'two-sided': 'either way', either: 'either way' };
+const DIRECTION_ARROWS: Record<TrendDirection | RuleDirection, string> = { rising: '↑', falling: '↓', 'two-sided': '↕', either: '↕' };
 
 /** "rising ↑", "falling ↓" or "either way ↕". */
-export function formatDirection(direction: TrendDirection): string {
-  return DIRECTION_WORDS[direction];
+export function formatDirection(direction: TrendDirection | RuleDirection): string {
+  return `${DIRECTION_WORDS[direction]} ${DIRECTION_ARROWS[direction]}`;
 }
 
 /**

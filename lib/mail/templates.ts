@@ -1,7 +1,8 @@
 import { ANALYSIS_CAUTION } from '@/lib/engine/analyze';
 import { formatP, formatUtc, formatValue } from '@/lib/display/format';
 import { publicBaseUrl } from '@/lib/config';
-import { DIRECTION_WORDS, describeCalibration, kendallPLabel, tauThreshold, tauWithDirection, type CalibrationLine } from '@/lib/alerts/wording';
+import { DIRECTION_WORDS } from '@/lib/display/analysis-labels';
+import { describeCalibration, kendallPLabel, tauThreshold, tauWithDirection, type CalibrationLine } from '@/lib/alerts/wording';
 
 /** A rendered message: the same content as plain text and as self-contained HTML (no remote images, no scripts). */
 export interface RenderedMail {

@@ -8,6 +8,8 @@ import { BacktestJob, MailMessage, RuleEvaluation, Series, db } from '@/models';
 import { evaluateSnapshots, judgeRule, type RuleThresholds } from '@/lib/alerts/evaluate';
 import { createRule, fdrFloorWarning, presentRules, ruleStatuses, updateRule } from '@/lib/alerts/rules';
 import { dismissAlert } from '@/lib/alerts/triage';
+import { replayRuleOf } from '@/lib/backtest/jobs';
+import { analysisSettingsSchema } from '@/lib/engine/settings';
 import { newAlertMail, type AlertEvidence } from '@/lib/mail/templates';
 import { UnprocessableError } from '@/lib/http/errors';
 import { ruleCreateSchema } from '@/lib/schemas/rule';
@@ -210,7 +212,9 @@ describe('calibrated false-alarm rate and direction in rules and mails', () => {
     expect(mail.textBody).toContain('not yet calibrated');
     expect(mail.textBody).toMatch(/Kendall p\s+0\.001 \(descriptive; assumes independent values\)/);
 
-    await queued[0].update({ status: 'succeeded', finishedAt: new Date(Date.UTC(2026, 0, 5)), result: { calibration: { surrogates: 200, falseAlarmsPerYear: 0.21, falseAlarmsPerYearInterval: [0.12, 0.34] } } });
+    // A finished calibration stores the rule and settings it replayed (lib/backtest/jobs.ts), so a later change makes it stale.
+    const replayed = { rule: replayRuleOf(rule), settings: analysisSettingsSchema.parse((await Series.findByPk(series.id))!.settings) };
+    await queued[0].update({ status: 'succeeded', finishedAt: new Date(Date.UTC(2026, 0, 5)), result: { ...replayed, calibration: { surrogates: 200, falseAlarmsPerYear: 0.21, falseAlarmsPerYearInterval: [0.12, 0.34] } } });
     [record] = await presentRules([rule]);
     expect(record.calibration).toMatchObject({ jobId: queued[0].id, falseAlarmsPerYear: 0.21, interval: [0.12, 0.34], surrogates: 200 });
 
