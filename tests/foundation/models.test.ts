@@ -38,7 +38,7 @@ describe('model constraints', () => {
   test('a new series carries defaulted mapping and engine settings', async () => {
     const series = await Series.findByPk(seriesId);
     expect(series!.csvMapping).toEqual({ timeColumn: 0, valueColumn: 1, timeFormat: 'iso8601' });
-    expect((series!.settings as { detrend: string }).detrend).toBe('gaussian');
+    expect((series!.settings as { detrend: string }).detrend).toBe('local-linear');
   });
 
   test('at most one open alert per series and rule', async () => {
