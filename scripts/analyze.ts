@@ -324,16 +324,28 @@ function plainCells(body: Buffer, delimiter: string, ti: number, vi: number, tak
       const c = body[i];
       if (c === 10) break;
       if (c === sep) {
-        if (col === ti) (span[0] = fieldStart), (span[1] = i);
-        if (col === vi) (span[2] = fieldStart), (span[3] = i);
+        if (col === ti) {
+          span[0] = fieldStart;
+          span[1] = i;
+        }
+        if (col === vi) {
+          span[2] = fieldStart;
+          span[3] = i;
+        }
         col++;
         fieldStart = i + 1;
         blank = false;
       } else if (blank && c !== 32 && c !== 9 && c !== 13) blank = false;
     }
     const stop = i > pos && body[i - 1] === 13 ? i - 1 : i;
-    if (col === ti) (span[0] = fieldStart), (span[1] = stop);
-    if (col === vi) (span[2] = fieldStart), (span[3] = stop);
+    if (col === ti) {
+      span[0] = fieldStart;
+      span[1] = stop;
+    }
+    if (col === vi) {
+      span[2] = fieldStart;
+      span[3] = stop;
+    }
     for (let k = 0; k < 4; k += 2) if (span[k] < 0) span[k] = span[k + 1] = stop;
     take(line, cells, blank);
     pos = i + 1;

@@ -340,7 +340,10 @@ export function detectSamplingChanges(sortedTime: Float64Array): { index: number
     let best = misfit, split = lo;
     for (let s = lo + 1; s <= hi; s++) {
       misfit += isNew(sp[s - 1]) ? 1 : -1;
-      if (misfit < best) (best = misfit), (split = s);
+      if (misfit < best) {
+        best = misfit;
+        split = s;
+      }
     }
     if (split >= sp.length) continue;
     out.push({ index: pos[split], time: sortedTime[pos[split]], before: ref, after: med[b] });
@@ -368,7 +371,10 @@ export function subsampleToGrid(time: Float64Array, value: Float64Array, interva
     if (!Number.isFinite(value[i])) continue;
     const k = Math.round((time[i] - anchor) / interval) - k0;
     const d = Math.abs(time[i] - grid[k]);
-    if (d < dist[k]) (dist[k] = d), (out[k] = value[i]);
+    if (d < dist[k]) {
+      dist[k] = d;
+      out[k] = value[i];
+    }
   }
   return { time: grid, value: out };
 }

@@ -40,7 +40,10 @@ export function fitAr1(r: Float64Array, observed: Uint8Array | null = null): { p
   let mean: number;
   if (observed) {
     let sum = 0, m = 0;
-    for (let i = 0; i < n; i++) if (observed[i]) (sum += r[i]), m++;
+    for (let i = 0; i < n; i++) if (observed[i]) {
+      sum += r[i];
+      m++;
+    }
     mean = sum / m;
   } else mean = accurateMean(r);
   let num = 0, den = 0, pairs = 0, points = 0;

@@ -46,7 +46,13 @@ describe('reference fixtures (numpy/scipy)', () => {
   });
 
   const residual = Float64Array.from(x, (v, i) => v - ref.smoother[String(ref.residual_bandwidth)][i]);
-  for (const [window, block] of Object.entries<any>(ref.rolling)) {
+  /** One window's reference block as tests/reference/make_engine_fixtures.py writes it. */
+  interface RollingBlock {
+    w: number;
+    indicators: Record<string, (number | null)[]>;
+    kendall: Record<string, { tau: number; p: number } | null>;
+  }
+  for (const [window, block] of Object.entries(ref.rolling as Record<string, RollingBlock>)) {
     it(`rolling indicators and their Kendall tau at window ${window} (w = ${block.w}) equal two-pass values and scipy`, () => {
       const ind = rollingIndicators(residual, block.w, INDICATOR_NAMES, { raw: x, dt: ref.series.dt });
       const trends = indicatorTrends(ind);
