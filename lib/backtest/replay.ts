@@ -244,22 +244,28 @@ function causalKernelResidual(x: Float64Array, h: number, localLinear: boolean, 
 /**
  * Whether the window ending at each residual index is judged, by the engine's rule (unjudgedWindows): at least
  * minCoverage·w observed (not interpolated) points, and not wholly inside a flat run (a stuck sensor; `flat`
- * as residual index ranges [start, end)). O(n).
+ * as residual index ranges [start, end)). `inFlatRun` marks the windows left out only for lying in a flat run,
+ * so the two reasons can be reported apart. O(n).
  */
 export function windowCoverage(
   observed: Uint8Array,
   flat: readonly { start: number; end: number }[],
   g: Pick<ReplayGeometry, 'w' | 'minCoverage'>,
-): Uint8Array {
-  const { skip } = unjudgedWindows(observed, flat, g.w, g.minCoverage);
-  const out = new Uint8Array(observed.length);
-  for (let s = 0; s < skip.length; s++) out[s + g.w - 1] = skip[s] ? 0 : 1;
-  return out;
+): { covered: Uint8Array; inFlatRun: Uint8Array } {
+  const all = unjudgedWindows(observed, flat, g.w, g.minCoverage).skip;
+  const thin = flat.length > 0 ? unjudgedWindows(observed, [], g.w, g.minCoverage).skip : all;
+  const covered = new Uint8Array(observed.length);
+  const inFlatRun = new Uint8Array(observed.length);
+  for (let s = 0; s < all.length; s++) {
+    covered[s + g.w - 1] = all[s] ? 0 : 1;
+    inFlatRun[s + g.w - 1] = all[s] && !thin[s] ? 1 : 0;
+  }
+  return { covered, inFlatRun };
 }
 
 /**
  * The rule's indicator for the window ending at each residual index (NaN before the window fills, and where
- * `covered` says the window has too few observed points), by SlidingMoments. O(n).
+ * `covered` says the window is not judged: too few observed points, or inside a flat run), by SlidingMoments. O(n).
  */
 export function indicatorStream(
   residual: Float64Array,
@@ -291,8 +297,10 @@ export interface Evidence {
   level: Float64Array;
   /** indicator values in the trend test */
   count: Int32Array;
-  /** 1 where the newest window meets the coverage floor (absent: every window does) */
+  /** 1 where the newest window is judged: it meets the coverage floor and lies in no flat run (absent: every window is) */
   covered?: Uint8Array;
+  /** 1 where the newest window is not judged only because it lies in a flat run (absent: none does) */
+  inFlatRun?: Uint8Array;
   /** record index where the analysed stretch of each instant starts (absent: the record's start) */
   from?: Int32Array;
 }
@@ -307,6 +315,7 @@ export function replayEvidence(
   time: Float64Array,
   g: Pick<ReplayGeometry, 'offset' | 'spanValues' | 'warmup' | 'every'>,
   covered: Uint8Array | null = null,
+  inFlatRun: Uint8Array | null = null,
 ): Evidence {
   const { ranks, size } = denseRanks(stream);
   const n = stream.length;
@@ -317,6 +326,7 @@ export function replayEvidence(
   const level: number[] = [];
   const count: number[] = [];
   const cover: number[] = [];
+  const stuck: number[] = [];
   // residual indices of the values held, oldest first, so the trailing span can drop what falls out of it
   const held = new Int32Array(n);
   let head = 0;
@@ -342,6 +352,7 @@ export function replayEvidence(
     level.push(stream[e]);
     count.push(r.n);
     cover.push(covered === null ? 1 : covered[e]);
+    stuck.push(inFlatRun === null ? 0 : inFlatRun[e]);
   }
   const index = Int32Array.from(idx);
   return {
@@ -352,6 +363,7 @@ export function replayEvidence(
     level: Float64Array.from(level),
     count: Int32Array.from(count),
     ...(covered === null ? {} : { covered: Uint8Array.from(cover) }),
+    ...(inFlatRun === null ? {} : { inFlatRun: Uint8Array.from(stuck) }),
   };
 }
 
@@ -392,6 +404,8 @@ export interface OnsetReport {
   quietSuppressed: number;
   /** of the not-judged steps, those whose newest window is below the coverage floor */
   belowCoverage: number;
+  /** of the not-judged steps, those whose newest window lies in a flat run (a stuck sensor) */
+  inFlatRun: number;
 }
 
 /**
@@ -400,7 +414,7 @@ export interface OnsetReport {
  * rule's direction) is at most maxSurrogateP; `persistence` passing steps in a row open an alarm; a failing step
  * resets the run. An open alarm stays open while basePasses holds (its surrogate p is not re-checked: the alert
  * would still be open in front of a person); a new onset within the quiet period of the previous one is not
- * counted. A step whose newest window is below the coverage floor is not judged (and breaks the run). The surrogate p is checked at every step that needs it while the caller's cost bound allows
+ * counted. A step whose newest window is below the coverage floor or lies in a flat run is not judged (and breaks the run). The surrogate p is checked at every step that needs it while the caller's cost bound allows
  * (`check` answers 'over-budget' after that): such a step is reported as not judged and breaks the run, so a
  * cost bound never silently turns into missing or extra alarms. O(steps) plus the checks.
  */
@@ -414,6 +428,7 @@ export function alarmOnsets(ev: Evidence, rule: ReplayRule, threshold: number, c
   let checks = 0;
   let quietSuppressed = 0;
   let belowCoverage = 0;
+  let inFlatRun = 0;
   for (let s = 0; s < ev.tau.length; s++) {
     if (ev.from && s > 0 && ev.from[s] !== ev.from[s - 1]) {
       // a new stretch (after a marked transition) starts afresh, as the live analysis does
@@ -421,9 +436,10 @@ export function alarmOnsets(ev: Evidence, rule: ReplayRule, threshold: number, c
       open = false;
     }
     if (ev.covered && !ev.covered[s]) {
-      // too few observed points in the newest window: the live rule cannot judge this cycle either
+      // too few observed points in the newest window, or a stuck sensor: the live rule cannot judge this cycle either
       notJudged.push(s);
-      belowCoverage++;
+      if (ev.inFlatRun?.[s]) inFlatRun++;
+      else belowCoverage++;
       streak = 0;
       continue;
     }
@@ -457,7 +473,7 @@ export function alarmOnsets(ev: Evidence, rule: ReplayRule, threshold: number, c
     }
     onsets.push({ step: s, index: ev.index[s], time: ev.time[s], tau: ev.tau[s], p: ev.p[s], surrogateP: sp });
   }
-  return { onsets, surrogateChecks: checks, notJudged: Int32Array.from(notJudged), quietSuppressed, belowCoverage };
+  return { onsets, surrogateChecks: checks, notJudged: Int32Array.from(notJudged), quietSuppressed, belowCoverage, inFlatRun };
 }
 
 /**
@@ -506,14 +522,15 @@ export function replayRecord(
 ): { residual: Float64Array; evidence: Evidence } {
   const residual = pointInTimeResiduals(value, g);
   let covered: Uint8Array | null = null;
+  let inFlatRun: Uint8Array | null = null;
   if (quality !== null && (quality.observed.includes(0) || quality.flat.length > 0)) {
     const o = quality.observed;
     const own = g.offset === 0 ? o : Uint8Array.from(residual, (_, i) => o[i] & o[i + 1]);
     const flat = quality.flat.map((r) => ({ start: Math.max(0, r.start - g.offset), end: r.end - g.offset })).filter((r) => r.end > r.start);
-    covered = windowCoverage(own, flat, g);
+    ({ covered, inFlatRun } = windowCoverage(own, flat, g));
   }
   const stream = indicatorStream(residual, value.subarray(g.offset), rule.indicator, g, covered);
-  return { residual, evidence: replayEvidence(stream, time, g, covered) };
+  return { residual, evidence: replayEvidence(stream, time, g, covered, inFlatRun) };
 }
 
 function concat<T extends Float64Array | Int32Array | Uint8Array>(arrays: T[], Kind: { new (n: number): T }): T {
@@ -577,6 +594,7 @@ export function replayStretches(
     from,
   };
   if (parts.some((e) => e.covered)) evidence.covered = concat(parts.map((e) => e.covered ?? new Uint8Array(e.index.length).fill(1)), Uint8Array);
+  if (parts.some((e) => e.inFlatRun)) evidence.inFlatRun = concat(parts.map((e) => e.inFlatRun ?? new Uint8Array(e.index.length)), Uint8Array);
   return { residual, evidence };
 }
 

@@ -136,8 +136,18 @@ export interface CalibrationResult {
   };
 }
 
+/** A point where the replayed stretch starts afresh, as the live analysis's would. */
+export interface Restart {
+  /** first instant of the new stretch, and its index on the prepared record */
+  time: number;
+  index: number;
+  reason: 'transition' | 'maintenance' | 'shift';
+}
+
 export interface BacktestResult {
   points: number;
+  /** where the replayed stretch restarts: marked transitions, maintenance breaks and detected abrupt shifts */
+  restarts: Restart[];
   every: number;
   steps: number;
   geometry: { windowPoints: number; bandwidthPoints: number | null; detrend: string; spanValues: number | null; warmup: number };
@@ -158,6 +168,8 @@ export interface BacktestResult {
     quietSuppressed: number;
     /** of the not-judged instants, those whose newest window had fewer observed points than the coverage floor */
     belowCoverage: number;
+    /** of the not-judged instants, those whose newest window lay in a flat run (a stuck sensor) */
+    inFlatRun: number;
     minCoverage: number;
   };
   /** false alarms per year of judged time that could host one (outside warning stretches and one window after a transition) */
@@ -262,9 +274,17 @@ export async function runBacktest(
   };
   // The live analysis judges only the stretch since the latest transition, maintenance break or detected shift:
   // each stretch is replayed on its own.
-  const breakCuts = [...marks.map((m) => m.at), ...(input.breaks ?? []).map((b) => b.at)].map(firstAtOrAfter);
+  const transitionCuts = marks.map((m) => firstAtOrAfter(m.at));
+  const maintenanceCuts = (input.breaks ?? []).map((b) => firstAtOrAfter(b.at));
+  const breakCuts = [...transitionCuts, ...maintenanceCuts];
   const shifts = shiftCuts(x, settings);
   const cuts = [...breakCuts, ...shifts];
+  // where the replayed stretch restarts, and why (a mark names the reason before a shift at the same point, as in the engine)
+  const restartAt = new Map<number, Restart['reason']>();
+  for (const [list, reason] of [[shifts, 'shift'], [maintenanceCuts, 'maintenance'], [transitionCuts, 'transition']] as const) {
+    for (const c of list) if (c > 0 && c < x.length) restartAt.set(c, reason);
+  }
+  const restarts: Restart[] = [...restartAt].sort((a, b) => a[0] - b[0]).map(([index, reason]) => ({ time: time[index], index, reason }));
   const { residual, evidence: ev } = replayStretches(x, time, rule, g, quality, cuts);
   // Draws stop once a check is sure to fail: a passing check (the only kind an alarm shows) still has its exact p.
   const checker = prefixSurrogateChecker(residual, x, ev, rule, g, { budget: options.surrogateBudget, decisionOnly: true, quality });
@@ -416,6 +436,7 @@ export async function runBacktest(
 
   return {
     points: x.length,
+    restarts,
     every: g.every,
     steps: ev.time.length,
     geometry: {
@@ -437,6 +458,7 @@ export async function runBacktest(
       surrogateChecks: report.surrogateChecks,
       quietSuppressed: report.quietSuppressed,
       belowCoverage: report.belowCoverage,
+      inFlatRun: report.inFlatRun,
       minCoverage: g.minCoverage,
     },
     falseAlarms: { count: falseCount, exposureYears, perYear: exposureYears > 0 ? falseCount / exposureYears : null, interval: garwoodInterval(falseCount, exposureYears) },
