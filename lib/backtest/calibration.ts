@@ -61,13 +61,13 @@ export function calibrateChunk(task: CalibrationTask, from: number, to: number, 
   for (let i = from; i < to; i++) {
     const r = task.source.kind === 'surrogate' ? makeSurrogate(task.source.job, i) : simulateRestoring(task.source.model, task.source.seed, i);
     for (let k = 0; k < record.length; k++) record[k] = task.trend[k] + r[k];
-    const { residual, evidence } = replayStretches(record, task.time, task.rule, g, task.quality, [...task.breaks, ...shiftCuts(record, task)]);
+    const { residuals, evidence } = replayStretches(record, task.time, task.rule, g, task.quality, [...task.breaks, ...shiftCuts(record, task, g)]);
     let first = 0;
     while (first < evidence.time.length && evidence.time[first] < task.scoreFrom) first++;
     out.statistic[i - from] = firingStatistic(evidence, task.rule, first);
     const checker =
       task.liveSurrogateP && task.rule.maxSurrogateP !== null
-        ? prefixSurrogateChecker(residual, record, evidence, task.rule, g, { budget: task.budget, decisionOnly: true, seed: g.seed + (i + 1) * 104_729, quality: task.quality })
+        ? prefixSurrogateChecker(residuals, record, evidence, task.rule, g, { budget: task.budget, decisionOnly: true, seed: g.seed + (i + 1) * 104_729, quality: task.quality })
         : null;
     const report = alarmOnsets(evidence, task.rule, task.rule.minTau, checker?.check ?? (() => ({ p: null, passed: true })));
     const spans = stepSpans(evidence, g);

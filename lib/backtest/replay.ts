@@ -6,7 +6,7 @@ import { inverseRealFft, nextPowerOfTwo, realFft } from '@/lib/engine/fft';
 import { IncrementalKendall, SlidingMoments, denseRanks } from '@/lib/engine/incremental';
 import { spanPoints, type TimeKind } from '@/lib/engine/prepare';
 import { MIN_WINDOW_POINTS, windowPoints } from '@/lib/engine/rolling';
-import { detectShifts } from '@/lib/engine/shifts';
+import { DEFAULT_MIN_SEGMENT, detectShifts } from '@/lib/engine/shifts';
 import { INDICATOR_DIRECTIONS, orientedTau, trendDirectionOf, type RuleDirection, type TrendDirection } from '@/lib/engine/direction';
 import type { AnalysisSettings, IndicatorName } from '@/lib/engine/settings';
 import { prepareSurrogateJob, surrogatePValue, surrogateTaus, type SurrogateJob } from '@/lib/engine/surrogates';
@@ -551,12 +551,41 @@ function qualityPart(q: RecordQuality | null, a: number, z: number): RecordQuali
 }
 
 /**
- * A record replayed as the live analysis sees it across breaks: the analysed stretch restarts at each cut (a
- * record index: the first point at or after a marked transition or maintenance break, or the first point of a
- * detected shift's new level), so every stretch is replayed on its own (replayRecord) and its evidence carries
- * `from`, the stretch's first record index. The residual is returned on the record's own indices (with
- * differencing, the step across a cut belongs to no stretch and is 0). Stretches too short for a window and its
- * warm-up give no instants. O(n log n).
+ * Where a stretch restarts: the record index of the first point of the new stretch, and the first record index at
+ * which the live analysis knows of it (a mark: the point itself; a detected shift: the first cycle whose record
+ * shows it). Until then the previous stretch goes on, across the cut.
+ */
+export interface StretchCut {
+  index: number;
+  knownFrom: number;
+}
+
+/** Instants [lo, hi) of record indices of an evidence (its index is ascending), as views. O(log steps). */
+function evidenceBetween(ev: Evidence, lo: number, hi: number): Evidence {
+  let a = 0;
+  while (a < ev.index.length && ev.index[a] < lo) a++;
+  let z = a;
+  while (z < ev.index.length && ev.index[z] < hi) z++;
+  return {
+    index: ev.index.subarray(a, z),
+    time: ev.time.subarray(a, z),
+    tau: ev.tau.subarray(a, z),
+    p: ev.p.subarray(a, z),
+    level: ev.level.subarray(a, z),
+    count: ev.count.subarray(a, z),
+    ...(ev.covered ? { covered: ev.covered.subarray(a, z) } : {}),
+    ...(ev.inFlatRun ? { inFlatRun: ev.inFlatRun.subarray(a, z) } : {}),
+  };
+}
+
+/**
+ * A record replayed as the live analysis sees it across breaks: the analysed stretch restarts at each cut (the
+ * first point at or after a marked transition or maintenance break, or the first point of a detected shift's
+ * new level; a plain number is known from itself). An instant k is judged on the stretch from the latest cut
+ * known by then (knownFrom ≤ k), so every stretch is replayed on its own (replayRecord) up to the instant a later
+ * cut becomes known, and its evidence carries `from`, the stretch's first record index. `residuals` maps each
+ * stretch's first record index to its point-in-time residual (from that index on). Stretches too short for a
+ * window and its warm-up give no instants. O(n log n) per stretch.
  */
 export function replayStretches(
   value: Float64Array,
@@ -564,26 +593,34 @@ export function replayStretches(
   rule: ReplayRule,
   g: ReplayGeometry,
   quality: RecordQuality | null,
-  cuts: readonly number[],
-): { residual: Float64Array; evidence: Evidence } {
-  const bounds = [0, ...[...new Set(cuts)].filter((c) => c > 0 && c < value.length).sort((a, b) => a - b), value.length];
-  if (bounds.length === 2) return replayRecord(value, time, rule, g, quality);
-  const residual = new Float64Array(Math.max(0, value.length - g.offset));
+  cuts: readonly (number | StretchCut)[],
+): { residuals: Map<number, Float64Array>; evidence: Evidence } {
+  const n = value.length;
+  const known = new Map<number, number>([[0, 0]]);
+  for (const c of cuts) {
+    const { index, knownFrom } = typeof c === 'number' ? { index: c, knownFrom: c } : c;
+    if (index > 0 && index < n) known.set(index, Math.min(known.get(index) ?? Infinity, Math.max(index, knownFrom)));
+  }
+  const starts = [...known.keys()].sort((a, b) => a - b);
+  const residuals = new Map<number, Float64Array>();
   const parts: Evidence[] = [];
   const froms: number[] = [];
-  for (let b = 0; b + 1 < bounds.length; b++) {
-    const a = bounds[b];
-    const z = bounds[b + 1];
-    if (z - a - g.offset < g.w + g.warmup) continue;
-    const part = replayRecord(value.subarray(a, z), time.subarray(a, z), rule, g, qualityPart(quality, a, z));
-    residual.set(part.residual, a);
-    const ev = part.evidence;
-    for (let s = 0; s < ev.index.length; s++) ev.index[s] += a;
+  for (let b = 0; b < starts.length; b++) {
+    const a = starts[b];
+    const lo = known.get(a)!;
+    // the stretch holds until a later cut becomes known (an earlier cut known later never replaces it)
+    let hi = n;
+    for (let c = b + 1; c < starts.length; c++) hi = Math.min(hi, known.get(starts[c])!);
+    if (hi <= lo || hi - a - g.offset < g.w + g.warmup) continue;
+    const part = replayRecord(value.subarray(a, hi), time.subarray(a, hi), rule, g, qualityPart(quality, a, hi));
+    residuals.set(a, part.residual);
+    for (let s = 0; s < part.evidence.index.length; s++) part.evidence.index[s] += a;
+    const ev = evidenceBetween(part.evidence, lo, hi);
     parts.push(ev);
     froms.push(a);
   }
   const lengths = parts.map((e) => e.index.length);
-  const from = Int32Array.from(lengths.flatMap((n, i) => new Array<number>(n).fill(froms[i])));
+  const from = Int32Array.from(lengths.flatMap((k, i) => new Array<number>(k).fill(froms[i])));
   const evidence: Evidence = {
     index: concat(parts.map((e) => e.index), Int32Array),
     time: concat(parts.map((e) => e.time), Float64Array),
@@ -595,19 +632,40 @@ export function replayStretches(
   };
   if (parts.some((e) => e.covered)) evidence.covered = concat(parts.map((e) => e.covered ?? new Uint8Array(e.index.length).fill(1)), Uint8Array);
   if (parts.some((e) => e.inFlatRun)) evidence.inFlatRun = concat(parts.map((e) => e.inFlatRun ?? new Uint8Array(e.index.length)), Uint8Array);
-  return { residual, evidence };
+  return { residuals, evidence };
 }
 
+/** Points either side within which a shift found on a prefix is taken to be the one found on the whole record. */
+const SHIFT_MATCH_POINTS = 2 * DEFAULT_MIN_SEGMENT;
+
 /**
- * Where the stretch restarts because of the record itself: the first point of each abrupt level shift that the
- * engine's detector (detectShifts, as runAnalysis calls it) finds on the whole prepared record, when the settings
- * detect shifts and the record is long enough for the live analysis to look. A replay therefore knows of a shift
- * from the point it starts, slightly earlier than the live analysis, which needs some points of the new level
- * first. O(n) plus the detector's search.
+ * Where the stretch restarts because of the record itself, and from when the live analysis would know it. The
+ * engine's detector (detectShifts, as runAnalysis calls it, when the settings detect shifts) is run once on the
+ * whole prepared record; for each shift found, the prefixes x_0..x_k, cut to the trailing span a live cycle
+ * analyses, are searched with the same detector from k = index + minSegment − 1 on, and the first k whose prefix
+ * shows a shift within 10 points of it is when a live cycle would first have restarted there (knownFrom = k).
+ * The search stops w + warm-up points after the shift, where the new stretch's first instant could come (the
+ * shift then counts as known from there, slightly earlier than a live cycle would know it). A shift that only
+ * some prefix would report, and the whole record does not, is not replayed. Cost O(n) plus the detector's
+ * search, once and at most w + warm-up times per shift found.
  */
-export function shiftCuts(x: Float64Array, settings: Pick<AnalysisSettings, 'shiftDetection'>): number[] {
+export function shiftCuts(
+  x: Float64Array,
+  settings: Pick<AnalysisSettings, 'shiftDetection'>,
+  g: Pick<ReplayGeometry, 'w' | 'warmup' | 'offset' | 'spanValues'>,
+): StretchCut[] {
   if (settings.shiftDetection !== 'on' || x.length < 2 * MIN_WINDOW_POINTS) return [];
-  return detectShifts(x).map((s) => s.index);
+  // points a live cycle analyses: the trailing span (spanValues indicator values need spanValues + w − 1 residuals)
+  const keep = g.spanValues === null ? x.length : g.spanValues + g.w - 1 + g.offset;
+  return detectShifts(x).map(({ index }) => {
+    const last = Math.min(x.length - 1, index + g.w + g.warmup);
+    for (let k = index + DEFAULT_MIN_SEGMENT - 1; k < last; k++) {
+      const from = Math.max(0, k + 1 - keep);
+      if (k + 1 - from < 2 * MIN_WINDOW_POINTS) continue;
+      if (detectShifts(x.subarray(from, k + 1)).some((s) => Math.abs(s.index + from - index) <= SHIFT_MATCH_POINTS)) return { index, knownFrom: k };
+    }
+    return { index, knownFrom: last };
+  });
 }
 
 /**
@@ -650,7 +708,7 @@ export function surrogateDecision(
  * `decisionOnly`, draws stop once the decision is known (surrogateDecision). O(N · n log n) per check.
  */
 export function prefixSurrogateChecker(
-  residual: Float64Array,
+  residuals: Map<number, Float64Array>,
   value: Float64Array,
   ev: Evidence,
   rule: ReplayRule,
@@ -678,7 +736,8 @@ export function prefixSurrogateChecker(
       const flat = part.flat.map((r) => ({ start: Math.max(0, r.start - g.offset), end: r.end - g.offset })).filter((r) => r.end > r.start);
       skip = unjudgedWindows(observed, flat, g.w, g.minCoverage).skip;
     }
-    const job = prepareSurrogateJob(residual.subarray(start, e), value.subarray(g.offset + start, g.offset + e), {
+    const residual = residuals.get(stretchStart)!;
+    const job = prepareSurrogateJob(residual.subarray(start - stretchStart, e - stretchStart), value.subarray(g.offset + start, g.offset + e), {
       method: g.surrogateMethod,
       seed: options.seed ?? g.seed,
       w: g.w,

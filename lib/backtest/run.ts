@@ -142,6 +142,9 @@ export interface Restart {
   time: number;
   index: number;
   reason: 'transition' | 'maintenance' | 'shift';
+  /** first instant (and its index) judged on the new stretch's terms: a mark's own, or the first cycle whose record shows the shift */
+  knownAt: number;
+  knownFromIndex: number;
 }
 
 export interface BacktestResult {
@@ -224,7 +227,7 @@ function stretches(steps: Int32Array, time: Float64Array): { from: number; to: n
 }
 
 const METHOD =
-  'Replay: the record is prepared as the live analysis prepares it; the window and bandwidth in points are fixed at what the settings give for the whole record (or its trailing span); each point is detrended with the trend of the data available when it arrived (so past residuals are never revised), the rolling indicator is updated in O(1) per point, and every cycle (every k points) the rule is judged as the live rule is: Kendall tau read in the rule\u2019s direction against the threshold, the level test, the surrogate p in the rule\u2019s direction (surrogates of the record available then), persistence and quiet period; the independence-based Kendall p is shown but is not a gate. After each marked transition the replay starts afresh on the record since it, as the live analysis does. Instants whose newest window has fewer observed points than the coverage floor, or whose surrogate check the cost bound did not allow, are reported as not judged. An alarm is a warning only within the horizon (default one window) before a marked transition; false alarms are counted per year of judged time outside warning stretches and one window after each transition. Calibration: surrogates of the detrended pre-transition record (trend added back) replayed with the full live procedure, each tested against surrogates of its own prefixes; false alarms per year of judged time with an exact Poisson (Garwood) interval. ROC: a constant-rate Ornstein\u2013Uhlenbeck (AR(1)) model and one whose restoring rate moves linearly in time (towards zero at a fold) are fitted by maximum likelihood to the detrended pre-transition record; replicates of each are replayed, and for each threshold the hit rate is the share of simulated approaches with an alarm within the horizon before their end, the false-alarm rate the share of null replicates with an alarm in the same stretch (after Boettiger & Hastings 2012, Proc. R. Soc. B 279, 4734).';
+  'Replay: the record is prepared as the live analysis prepares it; the window, bandwidth and span in points are fixed at what the settings give (fractions, points or ISO 8601 durations, read by the engine\u2019s own functions) for the trailing span, or the whole record when there is none; each point is detrended with the trend of the data available when it arrived (for local-linear and Gaussian detrending the fit of the record available then at its last point, so past residuals are never revised), the rolling indicator is updated in O(1) per point, and every cycle (every k points) the rule is judged as the live rule is: Kendall tau read in the rule\u2019s direction against the threshold, the level test, the surrogate p in the rule\u2019s direction (surrogates of the record available then), persistence and quiet period; the independence-based Kendall p is shown but is not a gate. After each marked transition, maintenance break and detected abrupt shift the replay starts afresh on the record since it, as the live analysis does; shifts are found by the engine\u2019s detector on the whole prepared record, and each counts from the first cycle whose record (its trailing span) shows it, at most a window and warm-up after it; a maintenance break is never scored as a transition. Instants whose newest window has fewer observed points than the coverage floor, lies inside a run of identical values (a stuck sensor), or whose surrogate check the cost bound did not allow, are reported as not judged. An alarm is a warning only within the horizon (default one window) before a marked transition; false alarms are counted per year of judged time outside warning stretches and one window after each transition. Calibration: surrogates of the pre-transition record, detrended stretch by stretch (trend added back), replayed with the full live procedure (restarting at its maintenance breaks and at shifts found in each replicate), each tested against surrogates of its own prefixes; false alarms per year of judged time with an exact Poisson (Garwood) interval. ROC: a constant-rate Ornstein\u2013Uhlenbeck (AR(1)) model and one whose restoring rate moves linearly in time (towards zero at a fold) are fitted by maximum likelihood to the detrended pre-transition record; replicates of each are replayed, and for each threshold the hit rate is the share of simulated approaches with an alarm within the horizon before their end, the false-alarm rate the share of null replicates with an alarm in the same stretch (after Boettiger & Hastings 2012, Proc. R. Soc. B 279, 4734).';
 
 /**
  * Trend and residual of a record detrended stretch by stretch between the cuts (the engine's detrend on each
@@ -277,17 +280,20 @@ export async function runBacktest(
   const transitionCuts = marks.map((m) => firstAtOrAfter(m.at));
   const maintenanceCuts = (input.breaks ?? []).map((b) => firstAtOrAfter(b.at));
   const breakCuts = [...transitionCuts, ...maintenanceCuts];
-  const shifts = shiftCuts(x, settings);
+  const shifts = shiftCuts(x, settings, g);
   const cuts = [...breakCuts, ...shifts];
   // where the replayed stretch restarts, and why (a mark names the reason before a shift at the same point, as in the engine)
-  const restartAt = new Map<number, Restart['reason']>();
-  for (const [list, reason] of [[shifts, 'shift'], [maintenanceCuts, 'maintenance'], [transitionCuts, 'transition']] as const) {
-    for (const c of list) if (c > 0 && c < x.length) restartAt.set(c, reason);
+  const restartAt = new Map<number, { reason: Restart['reason']; knownFrom: number }>();
+  for (const c of shifts) if (c.index > 0) restartAt.set(c.index, { reason: 'shift', knownFrom: c.knownFrom });
+  for (const [list, reason] of [[maintenanceCuts, 'maintenance'], [transitionCuts, 'transition']] as const) {
+    for (const c of list) if (c > 0 && c < x.length) restartAt.set(c, { reason, knownFrom: c });
   }
-  const restarts: Restart[] = [...restartAt].sort((a, b) => a[0] - b[0]).map(([index, reason]) => ({ time: time[index], index, reason }));
-  const { residual, evidence: ev } = replayStretches(x, time, rule, g, quality, cuts);
+  const restarts: Restart[] = [...restartAt]
+    .sort((a, b) => a[0] - b[0])
+    .map(([index, r]) => ({ time: time[index], index, reason: r.reason, knownAt: time[r.knownFrom], knownFromIndex: r.knownFrom }));
+  const { residuals, evidence: ev } = replayStretches(x, time, rule, g, quality, cuts);
   // Draws stop once a check is sure to fail: a passing check (the only kind an alarm shows) still has its exact p.
-  const checker = prefixSurrogateChecker(residual, x, ev, rule, g, { budget: options.surrogateBudget, decisionOnly: true, quality });
+  const checker = prefixSurrogateChecker(residuals, x, ev, rule, g, { budget: options.surrogateBudget, decisionOnly: true, quality });
   const report = alarmOnsets(ev, rule, rule.minTau, checker.check);
   const { onsets } = report;
   options.onProgress?.(input.calibration ? 0.1 : 1);
@@ -363,7 +369,7 @@ export async function runBacktest(
     // Maintenance breaks and shifts inside the pre-transition record: detrended stretch by stretch, so a jump
     // stays in the trend the replicates share and never inflates the residual their surrogates copy.
     const preBreaks = breakCuts.filter((c) => c > 0 && c < nPre);
-    const d = detrendByStretch(pre, [...preBreaks, ...shifts.filter((c) => c < nPre)], settings.detrend === 'difference' ? 'none' : settings.detrend, {
+    const d = detrendByStretch(pre, [...preBreaks, ...shifts.map((c) => c.index).filter((c) => c < nPre)], settings.detrend === 'difference' ? 'none' : settings.detrend, {
       bandwidthPoints: g.h,
       movingAverageWidth: g.movingAverageWidth,
     });

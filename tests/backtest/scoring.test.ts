@@ -132,11 +132,16 @@ describe('the replayed stretch restarts where the live analysis restarts', () =>
     const settings = analysisSettingsSchema.parse({ detrend: 'none', window: 0.1, surrogates: 0 });
     const r = await runBacktest({ time: t, value: x, intervalMs: DAY, settings, rule: r0, transitions: [], every: 1 });
     expect(r.restarts).toHaveLength(1);
-    const { index, reason } = r.restarts[0];
+    const { index, reason, knownFromIndex } = r.restarts[0];
     expect(reason).toBe('shift');
     expect(Math.abs(index - 600)).toBeLessThanOrEqual(2);
-    // judged instants: 148..index−1 and index+148..1199; one alarm opens at the first instant of each stretch
-    expect(r.steps).toBe(index - 148 + (n - index - 148));
+    // a live cycle knows of the shift once its record shows it: after at least minSegment (5) points of the new
+    // level (lib/engine/shifts.ts), and for a 4-sd step within a few dozen
+    expect(knownFromIndex).toBeGreaterThanOrEqual(index + 4);
+    expect(knownFromIndex).toBeLessThan(index + 60);
+    // judged instants: 148..knownFrom−1 on the first stretch (across the step, as the live analysis until it
+    // sees the shift) and index+148..1199 on the second; one alarm opens at the first instant of each stretch
+    expect(r.steps).toBe(knownFromIndex - 148 + (n - index - 148));
     expect(r.alarms.map((a) => (a.time - t[0]) / DAY)).toEqual([148, index + 148]);
     expect(r.transitions).toHaveLength(0);
     // with shift detection off the replay runs straight across the step, as the live analysis then would
@@ -147,7 +152,7 @@ describe('the replayed stretch restarts where the live analysis restarts', () =>
   it('after a maintenance break, which is never scored as a transition', async () => {
     const settings = analysisSettingsSchema.parse({ detrend: 'none', window: 0.1, surrogates: 0, shiftDetection: 'off' });
     const r = await runBacktest({ time: t, value: noise, intervalMs: DAY, settings, rule: r0, transitions: [], breaks: [{ at: t[600] }], every: 1 });
-    expect(r.restarts).toEqual([{ time: t[600], index: 600, reason: 'maintenance' }]);
+    expect(r.restarts).toEqual([{ time: t[600], index: 600, reason: 'maintenance', knownAt: t[600], knownFromIndex: 600 }]);
     expect(r.steps).toBe(452 + 452);
     expect(r.transitions).toHaveLength(0);
     // both alarms are false (no warning stretch, no settling stretch), counted over all judged time
