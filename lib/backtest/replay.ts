@@ -641,13 +641,15 @@ const SHIFT_MATCH_POINTS = 2 * DEFAULT_MIN_SEGMENT;
 /**
  * Where the stretch restarts because of the record itself, and from when the live analysis would know it. The
  * engine's detector (detectShifts, as runAnalysis calls it, when the settings detect shifts) is run once on the
- * whole prepared record; for each shift found, the prefixes x_0..x_k, cut to the trailing span a live cycle
- * analyses, are searched with the same detector from k = index + minSegment − 1 on, and the first k whose prefix
- * shows a shift within 10 points of it is when a live cycle would first have restarted there (knownFrom = k).
- * The search stops w + warm-up points after the shift, where the new stretch's first instant could come (the
- * shift then counts as known from there, slightly earlier than a live cycle would know it). A shift that only
- * some prefix would report, and the whole record does not, is not replayed. Cost O(n) plus the detector's
- * search, once and at most w + warm-up times per shift found.
+ * whole prepared record; for each shift found, prefixes x_0..x_k, cut to the trailing span a live cycle analyses,
+ * are searched with the same detector from k = index + minSegment − 1 on, and the first k whose prefix shows a
+ * shift within 10 points of it is when a live cycle would first have restarted there (knownFrom = k). The search
+ * gallops (k at 1, 2, 4, … points further) and then bisects, which finds that first k on the assumption that a
+ * prefix showing the shift is followed only by longer prefixes that show it too (more points of the new level
+ * only add evidence); a detection that flickers may be placed a little late. It stops w + warm-up points after
+ * the shift, where the new stretch's first instant could come (the shift then counts as known from there,
+ * earlier than a live cycle would know it). A shift that only some prefix would report, and the whole record
+ * does not, is not replayed. Cost O(n) plus the detector's search, once and O(log(w)) times per shift found.
  */
 export function shiftCuts(
   x: Float64Array,
@@ -659,12 +661,28 @@ export function shiftCuts(
   const keep = g.spanValues === null ? x.length : g.spanValues + g.w - 1 + g.offset;
   return detectShifts(x).map(({ index }) => {
     const last = Math.min(x.length - 1, index + g.w + g.warmup);
-    for (let k = index + DEFAULT_MIN_SEGMENT - 1; k < last; k++) {
+    const shows = (k: number) => {
       const from = Math.max(0, k + 1 - keep);
-      if (k + 1 - from < 2 * MIN_WINDOW_POINTS) continue;
-      if (detectShifts(x.subarray(from, k + 1)).some((s) => Math.abs(s.index + from - index) <= SHIFT_MATCH_POINTS)) return { index, knownFrom: k };
+      return k + 1 - from >= 2 * MIN_WINDOW_POINTS && detectShifts(x.subarray(from, k + 1)).some((s) => Math.abs(s.index + from - index) <= SHIFT_MATCH_POINTS);
+    };
+    // Galloping, then bisection between the last prefix that does not show it and the first that does.
+    let lo = index + DEFAULT_MIN_SEGMENT - 2;
+    let hi = -1;
+    for (let step = 1; lo < last; step *= 2) {
+      const k = Math.min(last, lo + step);
+      if (shows(k)) {
+        hi = k;
+        break;
+      }
+      lo = k;
     }
-    return { index, knownFrom: last };
+    if (hi < 0) return { index, knownFrom: last };
+    while (hi - lo > 1) {
+      const mid = (lo + hi) >> 1;
+      if (shows(mid)) hi = mid;
+      else lo = mid;
+    }
+    return { index, knownFrom: hi };
   });
 }
 
