@@ -271,9 +271,17 @@ function BacktestResults({
             <dd className="num" data-testid="backtest-not-judged">
               {judged.notJudgedSteps === 0
                 ? 'none'
-                : `${judged.notJudgedSteps} instants in ${judged.notJudged.length} stretch${judged.notJudged.length === 1 ? '' : 'es'}` +
-                  (judged.belowCoverage ? ` (${judged.belowCoverage} with under ${Math.round((judged.minCoverage ?? 0.8) * 100)} % observed points in the window` : ' (') +
-                  (judged.notJudgedSteps > (judged.belowCoverage ?? 0) ? `${judged.belowCoverage ? '; ' : ''}${judged.notJudgedSteps - (judged.belowCoverage ?? 0)} past the cost bound of the surrogate checks)` : ')')}
+                : `${judged.notJudgedSteps} instants in ${judged.notJudged.length} stretch${judged.notJudged.length === 1 ? '' : 'es'} (` +
+                  [
+                    judged.belowCoverage ? `${judged.belowCoverage} with under ${Math.round((judged.minCoverage ?? 0.8) * 100)} % observed points in the window` : null,
+                    judged.inFlatRun ? `${judged.inFlatRun} with the window inside a run of identical values (a stuck sensor)` : null,
+                    judged.notJudgedSteps > (judged.belowCoverage ?? 0) + (judged.inFlatRun ?? 0)
+                      ? `${judged.notJudgedSteps - (judged.belowCoverage ?? 0) - (judged.inFlatRun ?? 0)} past the cost bound of the surrogate checks`
+                      : null,
+                  ]
+                    .filter(Boolean)
+                    .join('; ') +
+                  ')'}
             </dd>
           </>
         ) : null}

@@ -1,6 +1,7 @@
 import { makeSurrogate, type SurrogateJob } from '@/lib/engine/surrogates';
 import { simulateRestoring, type RestoringModel } from './fold';
-import { alarmOnsets, firingStatistic, prefixSurrogateChecker, replayRecord, stepSpans, type ReplayGeometry, type ReplayRule } from './replay';
+import type { AnalysisSettings } from '@/lib/engine/settings';
+import { alarmOnsets, firingStatistic, prefixSurrogateChecker, replayStretches, shiftCuts, stepSpans, type RecordQuality, type ReplayGeometry, type ReplayRule } from './replay';
 
 /** Where the residual of each replicate comes from: a surrogate of the record, or a fitted restoring model. */
 export type ReplicateSource = { kind: 'surrogate'; job: SurrogateJob } | { kind: 'restoring'; model: RestoringModel; seed: number };
@@ -11,8 +12,12 @@ export interface CalibrationTask {
   /** two-sided trend of the pre-transition record; each replicate record is trend + simulated residual */
   trend: Float64Array;
   time: Float64Array;
-  /** observed grid points of the record copied (0 = interpolated), so replicates are judged on the same windows */
-  observed: Uint8Array | null;
+  /** observed mask and flat runs of the record copied, so replicates are judged on the same windows */
+  quality: RecordQuality | null;
+  /** maintenance breaks in the record copied (record indices): each replicate's stretch restarts there */
+  breaks: number[];
+  /** whether each replicate is searched for abrupt shifts (and restarts after them) as the live analysis would */
+  shiftDetection: AnalysisSettings['shiftDetection'];
   rule: ReplayRule;
   geometry: ReplayGeometry;
   /** the firing statistic judges the instants at or after this time (the warning horizon before the end) */
@@ -37,8 +42,9 @@ export interface CalibrationChunk {
 export const CHUNK_FIELDS = ['statistic', 'onsets', 'judgedMs', 'notJudged'] as const;
 
 /**
- * Replays replicates from..to−1 of the task exactly as the observed record is replayed (point-in-time
- * detrending, incremental indicators and Kendall tau, the rule's direction, persistence and quiet period; with
+ * Replays replicates from..to−1 of the task exactly as the observed record is replayed (stretches restarting at
+ * maintenance breaks and at shifts found in the replicate, point-in-time detrending, windows judged as the
+ * record's, incremental indicators and Kendall tau, the rule's direction, persistence and quiet period; with
  * liveSurrogateP the surrogate-p criterion too, each replicate tested against surrogates of its own prefixes,
  * drawn only until the decision is known). Replicate i draws from its own random stream, so results do not
  * depend on how the range is split. Cost O((to − from)·n log n), plus the surrogate checks (bounded by `budget`).
@@ -55,13 +61,13 @@ export function calibrateChunk(task: CalibrationTask, from: number, to: number, 
   for (let i = from; i < to; i++) {
     const r = task.source.kind === 'surrogate' ? makeSurrogate(task.source.job, i) : simulateRestoring(task.source.model, task.source.seed, i);
     for (let k = 0; k < record.length; k++) record[k] = task.trend[k] + r[k];
-    const { residual, evidence } = replayRecord(record, task.time, task.rule, g, task.observed);
+    const { residuals, evidence } = replayStretches(record, task.time, task.rule, g, task.quality, [...task.breaks, ...shiftCuts(record, task, g)]);
     let first = 0;
     while (first < evidence.time.length && evidence.time[first] < task.scoreFrom) first++;
     out.statistic[i - from] = firingStatistic(evidence, task.rule, first);
     const checker =
       task.liveSurrogateP && task.rule.maxSurrogateP !== null
-        ? prefixSurrogateChecker(residual, record, evidence, task.rule, g, { budget: task.budget, decisionOnly: true, seed: g.seed + (i + 1) * 104_729 })
+        ? prefixSurrogateChecker(residuals, record, evidence, task.rule, g, { budget: task.budget, decisionOnly: true, seed: g.seed + (i + 1) * 104_729, quality: task.quality })
         : null;
     const report = alarmOnsets(evidence, task.rule, task.rule.minTau, checker?.check ?? (() => ({ p: null, passed: true })));
     const spans = stepSpans(evidence, g);

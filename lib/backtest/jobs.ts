@@ -186,7 +186,9 @@ export async function runNextBacktest(options: { threads?: number } = {}): Promi
     const replayRule = replayRuleOf(rule);
     const settings = analysisSettingsSchema.parse(series.settings);
     const { time, value } = await loadObservations(series.id);
-    const transitions = await listTransitions(series.id);
+    // Both kinds of mark restart the replayed stretch; only transitions are warned of (and scored).
+    const marks = await listTransitions(series.id, ['transition', 'maintenance']);
+    const transitions = marks.filter((m) => m.kind !== 'maintenance');
     const result = await runBacktest(
       {
         time,
@@ -195,6 +197,7 @@ export async function runNextBacktest(options: { threads?: number } = {}): Promi
         settings,
         rule: replayRule,
         transitions: transitions.map((t) => ({ id: t.id, at: t.at, note: t.note })),
+        breaks: marks.filter((m) => m.kind === 'maintenance').map((m) => ({ at: m.at })),
         every: params.every ?? 1,
         horizonMs: params.horizonDays ? params.horizonDays * DAY_MS : null,
         calibration: params.calibration ?? null,

@@ -1,8 +1,12 @@
-import { accurateMean, gaussianSmooth, type DetrendMethod } from '@/lib/engine/detrend';
+import { unjudgedWindows } from '@/lib/engine/coverage';
+import { accurateMean, type DetrendMethod } from '@/lib/engine/detrend';
 import { AnalysisInputError } from '@/lib/engine/errors';
+import { extentPoints } from '@/lib/engine/extent';
 import { inverseRealFft, nextPowerOfTwo, realFft } from '@/lib/engine/fft';
 import { IncrementalKendall, SlidingMoments, denseRanks } from '@/lib/engine/incremental';
-import { windowPoints } from '@/lib/engine/rolling';
+import { spanPoints, type TimeKind } from '@/lib/engine/prepare';
+import { MIN_WINDOW_POINTS, windowPoints } from '@/lib/engine/rolling';
+import { DEFAULT_MIN_SEGMENT, detectShifts } from '@/lib/engine/shifts';
 import { INDICATOR_DIRECTIONS, orientedTau, trendDirectionOf, type RuleDirection, type TrendDirection } from '@/lib/engine/direction';
 import type { AnalysisSettings, IndicatorName } from '@/lib/engine/settings';
 import { prepareSurrogateJob, surrogatePValue, surrogateTaus, type SurrogateJob } from '@/lib/engine/surrogates';
@@ -31,7 +35,7 @@ export interface ReplayGeometry {
   detrend: DetrendMethod;
   /** rolling window in points */
   w: number;
-  /** Gaussian bandwidth in points (gaussian detrending only) */
+  /** smoother bandwidth h in points, the Gaussian kernel's standard deviation (gaussian and local-linear detrending) */
   h: number;
   movingAverageWidth: number;
   /** residual points dropped at the start (1 for differencing) */
@@ -40,7 +44,7 @@ export interface ReplayGeometry {
   spanValues: number | null;
   /** indicator values needed before the rule is judged at all */
   warmup: number;
-  /** sampling interval in ms, and in days (for the recovery rate) */
+  /** sampling interval in the unit of time (ms for dates), and in the recovery-rate unit (days for dates) */
   interval: number;
   dt: number;
   /** judge every this many new points */
@@ -54,8 +58,6 @@ export interface ReplayGeometry {
 }
 
 const DAY_MS = 86_400_000;
-/** Share of observed points a window needs (the engine's default floor, lib/engine/settings.ts). */
-const DEFAULT_MIN_COVERAGE = 0.8;
 /** Fewest indicator values a trend is judged on; our own choice (a Kendall tau of a handful of values swings to ±1 by chance). */
 const MIN_TREND_VALUES = 10;
 /**
@@ -80,29 +82,38 @@ export function ruleDirectionOf(rule: { indicator: IndicatorName; direction?: st
 }
 
 /**
- * Window and bandwidth in points are fixed for the whole replay at what the series' settings give for the
- * reference length nRef (the trailing span when one is set, else the whole prepared record), so every replay
- * instant uses one geometry, as the live analysis does once the record is that long. O(1).
+ * Window, bandwidth and span in points, fixed for the whole replay at what the live analysis resolves from the
+ * series' settings (extentPoints / windowPoints / spanPoints of lib/engine, so fractions, "<n> points" and ISO
+ * 8601 durations read exactly as there): the span is cut from the whole prepared record of `recordPoints`
+ * points, and window and bandwidth are resolved against the stretch the live analysis judges once the record is
+ * that long (the span when one is set, else the whole record). `interval` is in the unit of time (ms for
+ * 'utc-ms'). Throws AnalysisInputError where the live analysis would (e.g. a window of fewer than 8 points). O(1).
  */
-export function replayGeometry(settings: AnalysisSettings, nRef: number, interval: number, every: number): ReplayGeometry {
+export function replayGeometry(
+  settings: AnalysisSettings,
+  recordPoints: number,
+  interval: number,
+  every: number,
+  kind: TimeKind = 'utc-ms',
+): ReplayGeometry {
   const offset = settings.detrend === 'difference' ? 1 : 0;
-  const w = windowPoints(settings.window, nRef - offset);
+  const nRef = spanPoints(settings.span, recordPoints, interval, kind);
+  const w = windowPoints(settings.window, nRef - offset, interval, kind);
   return {
     detrend: settings.detrend,
     w,
-    h: settings.bandwidth * nRef,
+    h: extentPoints(settings.bandwidth, nRef, interval, kind),
     movingAverageWidth: settings.movingAverageWidth,
     offset,
-    spanValues: settings.spanPoints === null ? null : settings.spanPoints - offset - w + 1,
+    spanValues: settings.span === null ? null : nRef - offset - w + 1,
     warmup: Math.max(MIN_TREND_VALUES, Math.ceil(w / 4)),
     interval,
-    dt: interval / DAY_MS,
+    dt: kind === 'utc-ms' ? interval / DAY_MS : interval,
     every,
     surrogates: settings.surrogates > 0 ? settings.surrogates : 99,
     surrogateMethod: settings.surrogateMethod,
     seed: settings.seed,
-    // the floor arrives with the engine's coverage setting; 0.8 is its documented default
-    minCoverage: (settings as { minCoverage?: number }).minCoverage ?? DEFAULT_MIN_COVERAGE,
+    minCoverage: settings.minCoverage,
   };
 }
 
@@ -112,12 +123,17 @@ const GAUSS_REACH = 8.86;
 /**
  * Point-in-time residuals: each point detrended with the trend of the record available when it arrived,
  * evaluated at that point, so a residual never changes afterwards and the rolling sums can be appended to.
- * gaussian: trend_i = Σ_{d=0}^{min(i,L)} K_d x_{i−d} / Σ K_d, K_d = exp(−d²/2h²), L = ⌈8.86h⌉ — exactly the
- * Nadaraya–Watson trend of the prefix x_0..x_i at its last point (gaussianSmooth(prefix)[i]); one causal FFT
- * convolution for all i, O(n log n) (direct sums when L is small). moving-average: mean of x_{i−r}..x_i, the
- * engine's end-truncated centred mean of the prefix at its end, O(1) per point. linear: OLS line of the
- * prefix at i, from Welford-updated means and co-moments, O(1) per point. none: x; difference: x_{i+1} − x_i.
- * Sources: Nadaraya (1964); Watson (1964); Welford (1962), Technometrics 4, 419–420 (from memory).
+ * With one-sided kernel weights K_d = exp(−d²/2h²), d = 0..min(i, L), L = ⌈8.86h⌉ (beyond it K_d < 1e-17, as
+ * in lib/engine/detrend.ts), S_k = Σ K_d d^k and T_k = Σ K_d d^k x_{i−d}:
+ * gaussian: trend_i = T0/S0, the Nadaraya–Watson trend of the prefix x_0..x_i at its last point
+ * (gaussianSmooth(prefix)[i]); local-linear: trend_i = (S2·T0 − S1·T1)/(S0·S2 − S1²), the local-linear
+ * Gaussian fit of the prefix at its last point (localLinearSmooth(prefix)[i]; T0/S0 where the fit is degenerate,
+ * as there). T0 and T1 are causal convolutions (one FFT of the record, O(n log n); direct sums when L is small),
+ * S_k cumulative sums of the kernel. moving-average: mean of x_{i−r}..x_i, the engine's end-truncated centred
+ * mean of the prefix at its end, O(1) per point. linear: OLS line of the prefix at i, from Welford-updated means
+ * and co-moments, O(1) per point. none: x; difference: x_{i+1} − x_i. Sources: Nadaraya (1964); Watson (1964);
+ * Fan & Gijbels (1996), Local Polynomial Modelling and Its Applications, Ch. 3 (from memory); Welford (1962),
+ * Technometrics 4, 419–420 (from memory).
  */
 export function pointInTimeResiduals(x: Float64Array, g: Pick<ReplayGeometry, 'detrend' | 'h' | 'movingAverageWidth'>): Float64Array {
   const n = x.length;
@@ -149,65 +165,107 @@ export function pointInTimeResiduals(x: Float64Array, g: Pick<ReplayGeometry, 'd
       r[i] = x[i] - (my + slope * (i - mx));
     }
   } else {
-    causalGaussianResidual(x, g.h, r);
+    causalKernelResidual(x, g.h, g.detrend === 'local-linear', r);
   }
   return r;
 }
 
-function causalGaussianResidual(x: Float64Array, h: number, out: Float64Array): void {
+/** Largest one-sided kernel reach summed directly; beyond it one FFT convolution is cheaper. */
+const DIRECT_REACH = 64;
+
+/**
+ * Causal convolutions y_i = Σ_{d=0}^{min(i,L)} k_d c_{i−d} of c with each kernel (all of length L + 1): direct
+ * sums for L ≤ 64, else real FFTs of a power-of-two length ≥ n + L (no wrap-around), the record's transform
+ * shared by the kernels. O(n·L) or O(n log n). Source: convolution theorem, Bracewell (2000), Ch. 6.
+ */
+function causalConvolutions(c: Float64Array, kernels: Float64Array[]): Float64Array[] {
+  const n = c.length;
+  const L = kernels[0].length - 1;
+  if (L <= DIRECT_REACH) {
+    return kernels.map((k) => {
+      const y = new Float64Array(n);
+      for (let i = 0; i < n; i++) {
+        let s = 0;
+        for (let d = 0, top = Math.min(i, L); d <= top; d++) s += k[d] * c[i - d];
+        y[i] = s;
+      }
+      return y;
+    });
+  }
+  const size = nextPowerOfTwo(n + L);
+  const X = realFft(c, size);
+  return kernels.map((k) => {
+    const kc = new Float64Array(size);
+    kc.set(k);
+    const K = realFft(kc, size);
+    const re = new Float64Array(X.re.length);
+    const im = new Float64Array(X.im.length);
+    for (let m = 0; m < re.length; m++) {
+      re[m] = X.re[m] * K.re[m] - X.im[m] * K.im[m];
+      im[m] = X.re[m] * K.im[m] + X.im[m] * K.re[m];
+    }
+    return inverseRealFft(re, im, size);
+  });
+}
+
+/** Residuals of the one-sided Gaussian trend at each point (Nadaraya–Watson, or local-linear), see pointInTimeResiduals. */
+function causalKernelResidual(x: Float64Array, h: number, localLinear: boolean, out: Float64Array): void {
   const n = x.length;
   if (!(h > 0)) throw new AnalysisInputError(`bandwidth must be positive (got ${h} points)`);
-  const L = Math.min(n - 1, Math.ceil(GAUSS_REACH * h));
-  const kernel = new Float64Array(L + 1);
-  for (let d = 0; d <= L; d++) kernel[d] = Math.exp(-(d * d) / (2 * h * h));
-  const cum = new Float64Array(L + 1);
-  let acc = 0;
-  for (let d = 0; d <= L; d++) cum[d] = acc += kernel[d];
-  // Centring first keeps large offsets from costing digits (weights sum to one).
+  const L = Math.max(0, Math.min(n - 1, Math.ceil(GAUSS_REACH * h)));
+  const k0 = new Float64Array(L + 1);
+  const k1 = new Float64Array(L + 1);
+  const s0 = new Float64Array(L + 1);
+  const s1 = new Float64Array(L + 1);
+  const s2 = new Float64Array(L + 1);
+  let a0 = 0, a1 = 0, a2 = 0;
+  for (let d = 0; d <= L; d++) {
+    k0[d] = Math.exp(-(d * d) / (2 * h * h));
+    k1[d] = d * k0[d];
+    s0[d] = a0 += k0[d];
+    s1[d] = a1 += k1[d];
+    s2[d] = a2 += d * k1[d];
+  }
+  // Centring first keeps large offsets from costing digits (both smoothers reproduce a constant exactly).
   const mean = accurateMean(x);
   const c = Float64Array.from(x, (v) => v - mean);
-  let num: Float64Array;
-  if (L <= 64) {
-    num = new Float64Array(n);
-    for (let i = 0; i < n; i++) {
-      let s = 0;
-      for (let d = 0, top = Math.min(i, L); d <= top; d++) s += kernel[d] * c[i - d];
-      num[i] = s;
+  const [t0, t1] = causalConvolutions(c, localLinear ? [k0, k1] : [k0]);
+  for (let i = 0; i < n; i++) {
+    const top = Math.min(i, L);
+    let trend = t0[i] / s0[top];
+    if (localLinear) {
+      const det = s0[top] * s2[top] - s1[top] * s1[top];
+      if (det > 0) trend = (s2[top] * t0[i] - s1[top] * t1[i]) / det;
     }
-  } else {
-    const size = nextPowerOfTwo(n + L);
-    const X = realFft(c, size);
-    const kc = new Float64Array(size);
-    kc.set(kernel);
-    const K = realFft(kc, size);
-    for (let m = 0; m <= size >> 1; m++) {
-      const re = X.re[m] * K.re[m] - X.im[m] * K.im[m];
-      X.im[m] = X.re[m] * K.im[m] + X.im[m] * K.re[m];
-      X.re[m] = re;
-    }
-    num = inverseRealFft(X.re, X.im, size);
+    out[i] = c[i] - trend;
   }
-  for (let i = 0; i < n; i++) out[i] = c[i] - num[i] / cum[Math.min(i, L)];
 }
 
 /**
- * Whether the window ending at each residual index holds at least minCoverage·w observed (not interpolated)
- * points, by a sliding count. O(n).
+ * Whether the window ending at each residual index is judged, by the engine's rule (unjudgedWindows): at least
+ * minCoverage·w observed (not interpolated) points, and not wholly inside a flat run (a stuck sensor; `flat`
+ * as residual index ranges [start, end)). `inFlatRun` marks the windows left out only for lying in a flat run,
+ * so the two reasons can be reported apart. O(n).
  */
-export function windowCoverage(observed: Uint8Array, g: Pick<ReplayGeometry, 'w' | 'minCoverage'>): Uint8Array {
-  const out = new Uint8Array(observed.length);
-  let inWindow = 0;
-  for (let i = 0; i < observed.length; i++) {
-    inWindow += observed[i];
-    if (i >= g.w) inWindow -= observed[i - g.w];
-    out[i] = inWindow >= g.minCoverage * g.w ? 1 : 0;
+export function windowCoverage(
+  observed: Uint8Array,
+  flat: readonly { start: number; end: number }[],
+  g: Pick<ReplayGeometry, 'w' | 'minCoverage'>,
+): { covered: Uint8Array; inFlatRun: Uint8Array } {
+  const all = unjudgedWindows(observed, flat, g.w, g.minCoverage).skip;
+  const thin = flat.length > 0 ? unjudgedWindows(observed, [], g.w, g.minCoverage).skip : all;
+  const covered = new Uint8Array(observed.length);
+  const inFlatRun = new Uint8Array(observed.length);
+  for (let s = 0; s < all.length; s++) {
+    covered[s + g.w - 1] = all[s] ? 0 : 1;
+    inFlatRun[s + g.w - 1] = all[s] && !thin[s] ? 1 : 0;
   }
-  return out;
+  return { covered, inFlatRun };
 }
 
 /**
  * The rule's indicator for the window ending at each residual index (NaN before the window fills, and where
- * `covered` says the window has too few observed points), by SlidingMoments. O(n).
+ * `covered` says the window is not judged: too few observed points, or inside a flat run), by SlidingMoments. O(n).
  */
 export function indicatorStream(
   residual: Float64Array,
@@ -239,8 +297,10 @@ export interface Evidence {
   level: Float64Array;
   /** indicator values in the trend test */
   count: Int32Array;
-  /** 1 where the newest window meets the coverage floor (absent: every window does) */
+  /** 1 where the newest window is judged: it meets the coverage floor and lies in no flat run (absent: every window is) */
   covered?: Uint8Array;
+  /** 1 where the newest window is not judged only because it lies in a flat run (absent: none does) */
+  inFlatRun?: Uint8Array;
   /** record index where the analysed stretch of each instant starts (absent: the record's start) */
   from?: Int32Array;
 }
@@ -255,6 +315,7 @@ export function replayEvidence(
   time: Float64Array,
   g: Pick<ReplayGeometry, 'offset' | 'spanValues' | 'warmup' | 'every'>,
   covered: Uint8Array | null = null,
+  inFlatRun: Uint8Array | null = null,
 ): Evidence {
   const { ranks, size } = denseRanks(stream);
   const n = stream.length;
@@ -265,6 +326,7 @@ export function replayEvidence(
   const level: number[] = [];
   const count: number[] = [];
   const cover: number[] = [];
+  const stuck: number[] = [];
   // residual indices of the values held, oldest first, so the trailing span can drop what falls out of it
   const held = new Int32Array(n);
   let head = 0;
@@ -290,6 +352,7 @@ export function replayEvidence(
     level.push(stream[e]);
     count.push(r.n);
     cover.push(covered === null ? 1 : covered[e]);
+    stuck.push(inFlatRun === null ? 0 : inFlatRun[e]);
   }
   const index = Int32Array.from(idx);
   return {
@@ -300,6 +363,7 @@ export function replayEvidence(
     level: Float64Array.from(level),
     count: Int32Array.from(count),
     ...(covered === null ? {} : { covered: Uint8Array.from(cover) }),
+    ...(inFlatRun === null ? {} : { inFlatRun: Uint8Array.from(stuck) }),
   };
 }
 
@@ -340,6 +404,8 @@ export interface OnsetReport {
   quietSuppressed: number;
   /** of the not-judged steps, those whose newest window is below the coverage floor */
   belowCoverage: number;
+  /** of the not-judged steps, those whose newest window lies in a flat run (a stuck sensor) */
+  inFlatRun: number;
 }
 
 /**
@@ -348,7 +414,7 @@ export interface OnsetReport {
  * rule's direction) is at most maxSurrogateP; `persistence` passing steps in a row open an alarm; a failing step
  * resets the run. An open alarm stays open while basePasses holds (its surrogate p is not re-checked: the alert
  * would still be open in front of a person); a new onset within the quiet period of the previous one is not
- * counted. A step whose newest window is below the coverage floor is not judged (and breaks the run). The surrogate p is checked at every step that needs it while the caller's cost bound allows
+ * counted. A step whose newest window is below the coverage floor or lies in a flat run is not judged (and breaks the run). The surrogate p is checked at every step that needs it while the caller's cost bound allows
  * (`check` answers 'over-budget' after that): such a step is reported as not judged and breaks the run, so a
  * cost bound never silently turns into missing or extra alarms. O(steps) plus the checks.
  */
@@ -362,6 +428,7 @@ export function alarmOnsets(ev: Evidence, rule: ReplayRule, threshold: number, c
   let checks = 0;
   let quietSuppressed = 0;
   let belowCoverage = 0;
+  let inFlatRun = 0;
   for (let s = 0; s < ev.tau.length; s++) {
     if (ev.from && s > 0 && ev.from[s] !== ev.from[s - 1]) {
       // a new stretch (after a marked transition) starts afresh, as the live analysis does
@@ -369,9 +436,10 @@ export function alarmOnsets(ev: Evidence, rule: ReplayRule, threshold: number, c
       open = false;
     }
     if (ev.covered && !ev.covered[s]) {
-      // too few observed points in the newest window: the live rule cannot judge this cycle either
+      // too few observed points in the newest window, or a stuck sensor: the live rule cannot judge this cycle either
       notJudged.push(s);
-      belowCoverage++;
+      if (ev.inFlatRun?.[s]) inFlatRun++;
+      else belowCoverage++;
       streak = 0;
       continue;
     }
@@ -405,7 +473,7 @@ export function alarmOnsets(ev: Evidence, rule: ReplayRule, threshold: number, c
     }
     onsets.push({ step: s, index: ev.index[s], time: ev.time[s], tau: ev.tau[s], p: ev.p[s], surrogateP: sp });
   }
-  return { onsets, surrogateChecks: checks, notJudged: Int32Array.from(notJudged), quietSuppressed, belowCoverage };
+  return { onsets, surrogateChecks: checks, notJudged: Int32Array.from(notJudged), quietSuppressed, belowCoverage, inFlatRun };
 }
 
 /**
@@ -432,26 +500,37 @@ export function firingStatistic(ev: Evidence, rule: ReplayRule, from = 0, to = e
   return best;
 }
 
+/** Where the live analysis cannot judge a record: its observed mask (1 observed, 0 interpolated) and its flat runs. */
+export interface RecordQuality {
+  observed: Uint8Array;
+  /** flat runs as record index ranges [start, end) (prepareSeries's `flat`) */
+  flat: readonly { start: number; end: number }[];
+}
+
 /**
- * A record replayed: its point-in-time residual and the evidence at every judged instant. `observed` marks the
- * grid points that were observed (0 = interpolated); with differencing a residual counts as observed when both
- * its points were. O(n log n).
+ * A record replayed: its point-in-time residual and the evidence at every judged instant. With `quality`, windows
+ * the live analysis would not judge (below the coverage floor, or inside a flat run) give no indicator value and
+ * their instants are marked (Evidence.covered); with differencing a residual counts as observed when both its
+ * points were, and flat runs move back by one, as in lib/engine/analyze.ts. O(n log n).
  */
 export function replayRecord(
   value: Float64Array,
   time: Float64Array,
   rule: ReplayRule,
   g: ReplayGeometry,
-  observed: Uint8Array | null = null,
+  quality: RecordQuality | null = null,
 ): { residual: Float64Array; evidence: Evidence } {
   const residual = pointInTimeResiduals(value, g);
   let covered: Uint8Array | null = null;
-  if (observed !== null) {
-    const own = g.offset === 0 ? observed : Uint8Array.from(residual, (_, i) => observed[i] & observed[i + 1]);
-    covered = windowCoverage(own, g);
+  let inFlatRun: Uint8Array | null = null;
+  if (quality !== null && (quality.observed.includes(0) || quality.flat.length > 0)) {
+    const o = quality.observed;
+    const own = g.offset === 0 ? o : Uint8Array.from(residual, (_, i) => o[i] & o[i + 1]);
+    const flat = quality.flat.map((r) => ({ start: Math.max(0, r.start - g.offset), end: r.end - g.offset })).filter((r) => r.end > r.start);
+    ({ covered, inFlatRun } = windowCoverage(own, flat, g));
   }
   const stream = indicatorStream(residual, value.subarray(g.offset), rule.indicator, g, covered);
-  return { residual, evidence: replayEvidence(stream, time, g, covered) };
+  return { residual, evidence: replayEvidence(stream, time, g, covered, inFlatRun) };
 }
 
 function concat<T extends Float64Array | Int32Array | Uint8Array>(arrays: T[], Kind: { new (n: number): T }): T {
@@ -464,39 +543,84 @@ function concat<T extends Float64Array | Int32Array | Uint8Array>(arrays: T[], K
   return out;
 }
 
+/** The quality of the record between indices a and z (flat runs clipped and moved to the part's own indices). */
+function qualityPart(q: RecordQuality | null, a: number, z: number): RecordQuality | null {
+  if (q === null) return null;
+  const flat = q.flat.map((r) => ({ start: Math.max(r.start, a) - a, end: Math.min(r.end, z) - a })).filter((r) => r.end > r.start);
+  return { observed: q.observed.subarray(a, z), flat };
+}
+
 /**
- * A record replayed as the live analysis sees it across marked transitions: the analysed stretch restarts at
- * each cut (a record index, e.g. the first point at or after a marked transition), so every stretch is replayed
- * on its own (replayRecord) and its evidence carries `from`, the stretch's first record index. The residual is
- * returned on the record's own indices (with differencing, the step across a cut belongs to no stretch and is
- * 0). Stretches too short for a window and its warm-up give no instants. O(n log n).
+ * Where a stretch restarts: the record index of the first point of the new stretch, and the first record index at
+ * which the live analysis knows of it (a mark: the point itself; a detected shift: the first cycle whose record
+ * shows it). Until then the previous stretch goes on, across the cut.
+ */
+export interface StretchCut {
+  index: number;
+  knownFrom: number;
+}
+
+/** Instants [lo, hi) of record indices of an evidence (its index is ascending), as views. O(log steps). */
+function evidenceBetween(ev: Evidence, lo: number, hi: number): Evidence {
+  let a = 0;
+  while (a < ev.index.length && ev.index[a] < lo) a++;
+  let z = a;
+  while (z < ev.index.length && ev.index[z] < hi) z++;
+  return {
+    index: ev.index.subarray(a, z),
+    time: ev.time.subarray(a, z),
+    tau: ev.tau.subarray(a, z),
+    p: ev.p.subarray(a, z),
+    level: ev.level.subarray(a, z),
+    count: ev.count.subarray(a, z),
+    ...(ev.covered ? { covered: ev.covered.subarray(a, z) } : {}),
+    ...(ev.inFlatRun ? { inFlatRun: ev.inFlatRun.subarray(a, z) } : {}),
+  };
+}
+
+/**
+ * A record replayed as the live analysis sees it across breaks: the analysed stretch restarts at each cut (the
+ * first point at or after a marked transition or maintenance break, or the first point of a detected shift's
+ * new level; a plain number is known from itself). An instant k is judged on the stretch from the latest cut
+ * known by then (knownFrom ≤ k), so every stretch is replayed on its own (replayRecord) up to the instant a later
+ * cut becomes known, and its evidence carries `from`, the stretch's first record index. `residuals` maps each
+ * stretch's first record index to its point-in-time residual (from that index on). Stretches too short for a
+ * window and its warm-up give no instants. O(n log n) per stretch.
  */
 export function replayStretches(
   value: Float64Array,
   time: Float64Array,
   rule: ReplayRule,
   g: ReplayGeometry,
-  observed: Uint8Array | null,
-  cuts: number[],
-): { residual: Float64Array; evidence: Evidence } {
-  const bounds = [0, ...cuts.filter((c) => c > 0 && c < value.length).sort((a, b) => a - b), value.length];
-  if (bounds.length === 2) return replayRecord(value, time, rule, g, observed);
-  const residual = new Float64Array(Math.max(0, value.length - g.offset));
+  quality: RecordQuality | null,
+  cuts: readonly (number | StretchCut)[],
+): { residuals: Map<number, Float64Array>; evidence: Evidence } {
+  const n = value.length;
+  const known = new Map<number, number>([[0, 0]]);
+  for (const c of cuts) {
+    const { index, knownFrom } = typeof c === 'number' ? { index: c, knownFrom: c } : c;
+    if (index > 0 && index < n) known.set(index, Math.min(known.get(index) ?? Infinity, Math.max(index, knownFrom)));
+  }
+  const starts = [...known.keys()].sort((a, b) => a - b);
+  const residuals = new Map<number, Float64Array>();
   const parts: Evidence[] = [];
   const froms: number[] = [];
-  for (let b = 0; b + 1 < bounds.length; b++) {
-    const a = bounds[b];
-    const z = bounds[b + 1];
-    if (z - a - g.offset < g.w + g.warmup) continue;
-    const part = replayRecord(value.subarray(a, z), time.subarray(a, z), rule, g, observed?.subarray(a, z) ?? null);
-    residual.set(part.residual, a);
-    const ev = part.evidence;
-    for (let s = 0; s < ev.index.length; s++) ev.index[s] += a;
+  for (let b = 0; b < starts.length; b++) {
+    const a = starts[b];
+    const lo = known.get(a)!;
+    // the stretch holds until a later cut becomes known (an earlier cut known later never replaces it)
+    let hi = n;
+    for (let c = b + 1; c < starts.length; c++) hi = Math.min(hi, known.get(starts[c])!);
+    if (hi <= lo || hi - a - g.offset < g.w + g.warmup) continue;
+    const part = replayRecord(value.subarray(a, hi), time.subarray(a, hi), rule, g, qualityPart(quality, a, hi));
+    residuals.set(a, part.residual);
+    for (let s = 0; s < part.evidence.index.length; s++) part.evidence.index[s] += a;
+    const ev = evidenceBetween(part.evidence, lo, hi);
     parts.push(ev);
     froms.push(a);
   }
   const lengths = parts.map((e) => e.index.length);
-  const from = Int32Array.from(lengths.flatMap((n, i) => new Array<number>(n).fill(froms[i])));
+  const from = Int32Array.from(lengths.flatMap((k, i) => new Array<number>(k).fill(froms[i])));
   const evidence: Evidence = {
     index: concat(parts.map((e) => e.index), Int32Array),
     time: concat(parts.map((e) => e.time), Float64Array),
@@ -507,19 +631,59 @@ export function replayStretches(
     from,
   };
   if (parts.some((e) => e.covered)) evidence.covered = concat(parts.map((e) => e.covered ?? new Uint8Array(e.index.length).fill(1)), Uint8Array);
-  return { residual, evidence };
+  if (parts.some((e) => e.inFlatRun)) evidence.inFlatRun = concat(parts.map((e) => e.inFlatRun ?? new Uint8Array(e.index.length)), Uint8Array);
+  return { residuals, evidence };
 }
 
-/** 1 for each grid point that was observed, 0 inside the gaps preparation filled (their first..last instants). O(n + gaps). */
-export function observedMask(time: Float64Array, gaps: { from: number; to: number; filled: boolean }[]): Uint8Array {
-  const out = new Uint8Array(time.length).fill(1);
-  let i = 0;
-  for (const gap of gaps) {
-    if (!gap.filled) continue;
-    while (i < time.length && time[i] < gap.from) i++;
-    for (let k = i; k < time.length && time[k] <= gap.to; k++) out[k] = 0;
-  }
-  return out;
+/** Points either side within which a shift found on a prefix is taken to be the one found on the whole record. */
+const SHIFT_MATCH_POINTS = 2 * DEFAULT_MIN_SEGMENT;
+
+/**
+ * Where the stretch restarts because of the record itself, and from when the live analysis would know it. The
+ * engine's detector (detectShifts, as runAnalysis calls it, when the settings detect shifts) is run once on the
+ * whole prepared record; for each shift found, prefixes x_0..x_k, cut to the trailing span a live cycle analyses,
+ * are searched with the same detector from k = index + minSegment − 1 on, and the first k whose prefix shows a
+ * shift within 10 points of it is when a live cycle would first have restarted there (knownFrom = k). The search
+ * gallops (k at 1, 2, 4, … points further) and then bisects, which finds that first k on the assumption that a
+ * prefix showing the shift is followed only by longer prefixes that show it too (more points of the new level
+ * only add evidence); a detection that flickers may be placed a little late. It stops w + warm-up points after
+ * the shift, where the new stretch's first instant could come (the shift then counts as known from there,
+ * earlier than a live cycle would know it). A shift that only some prefix would report, and the whole record
+ * does not, is not replayed. Cost O(n) plus the detector's search, once and O(log(w)) times per shift found.
+ */
+export function shiftCuts(
+  x: Float64Array,
+  settings: Pick<AnalysisSettings, 'shiftDetection'>,
+  g: Pick<ReplayGeometry, 'w' | 'warmup' | 'offset' | 'spanValues'>,
+): StretchCut[] {
+  if (settings.shiftDetection !== 'on' || x.length < 2 * MIN_WINDOW_POINTS) return [];
+  // points a live cycle analyses: the trailing span (spanValues indicator values need spanValues + w − 1 residuals)
+  const keep = g.spanValues === null ? x.length : g.spanValues + g.w - 1 + g.offset;
+  return detectShifts(x).map(({ index }) => {
+    const last = Math.min(x.length - 1, index + g.w + g.warmup);
+    const shows = (k: number) => {
+      const from = Math.max(0, k + 1 - keep);
+      return k + 1 - from >= 2 * MIN_WINDOW_POINTS && detectShifts(x.subarray(from, k + 1)).some((s) => Math.abs(s.index + from - index) <= SHIFT_MATCH_POINTS);
+    };
+    // Galloping, then bisection between the last prefix that does not show it and the first that does.
+    let lo = index + DEFAULT_MIN_SEGMENT - 2;
+    let hi = -1;
+    for (let step = 1; lo < last; step *= 2) {
+      const k = Math.min(last, lo + step);
+      if (shows(k)) {
+        hi = k;
+        break;
+      }
+      lo = k;
+    }
+    if (hi < 0) return { index, knownFrom: last };
+    while (hi - lo > 1) {
+      const mid = (lo + hi) >> 1;
+      if (shows(mid)) hi = mid;
+      else lo = mid;
+    }
+    return { index, knownFrom: hi };
+  });
 }
 
 /**
@@ -562,12 +726,12 @@ export function surrogateDecision(
  * `decisionOnly`, draws stop once the decision is known (surrogateDecision). O(N · n log n) per check.
  */
 export function prefixSurrogateChecker(
-  residual: Float64Array,
+  residuals: Map<number, Float64Array>,
   value: Float64Array,
   ev: Evidence,
   rule: ReplayRule,
   g: ReplayGeometry,
-  options: { budget?: number; decisionOnly?: boolean; seed?: number } = {},
+  options: { budget?: number; decisionOnly?: boolean; seed?: number; quality?: RecordQuality | null } = {},
 ): { check: (step: number) => SurrogateCheck; spent: () => number } {
   const direction = replayDirection(rule);
   let left = options.budget ?? SURROGATE_WORK_BUDGET;
@@ -580,12 +744,25 @@ export function prefixSurrogateChecker(
     // a check starts while any budget is left, so the bound is exceeded by at most one check
     if (!(left > 0)) return 'over-budget';
     if (len < g.w + 2) return { p: null, passed: false };
-    const job = prepareSurrogateJob(residual.subarray(start, e), value.subarray(g.offset + start, g.offset + e), {
+    // The surrogates share the prefix's observed mask and unjudged windows, as the live analysis's do.
+    const part = qualityPart(options.quality ?? null, start, e + g.offset);
+    let observed: Uint8Array | null = null;
+    let skip: Uint8Array | null = null;
+    if (part !== null) {
+      const o = part.observed;
+      observed = g.offset === 0 ? o : Uint8Array.from({ length: len }, (_, i) => o[i] & o[i + 1]);
+      const flat = part.flat.map((r) => ({ start: Math.max(0, r.start - g.offset), end: r.end - g.offset })).filter((r) => r.end > r.start);
+      skip = unjudgedWindows(observed, flat, g.w, g.minCoverage).skip;
+    }
+    const residual = residuals.get(stretchStart)!;
+    const job = prepareSurrogateJob(residual.subarray(start - stretchStart, e - stretchStart), value.subarray(g.offset + start, g.offset + e), {
       method: g.surrogateMethod,
       seed: options.seed ?? g.seed,
       w: g.w,
       dt: g.dt,
       indicators: [rule.indicator],
+      observed,
+      skip,
     });
     const answer = surrogateDecision(job, ev.tau[s], direction, g.surrogates, rule.indicator, options.decisionOnly ? rule.maxSurrogateP : null);
     left -= answer.drawn * len;

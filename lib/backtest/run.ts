@@ -1,8 +1,8 @@
 import { ANALYSIS_CAUTION } from '@/lib/engine/analyze';
-import { detrend } from '@/lib/engine/detrend';
+import { detrend, type DetrendMethod } from '@/lib/engine/detrend';
 import { orientedTau, type TrendDirection } from '@/lib/engine/direction';
 import { AnalysisInputError } from '@/lib/engine/errors';
-import { prepareSeries } from '@/lib/engine/prepare';
+import { prepareSeries, type TimeKind } from '@/lib/engine/prepare';
 import type { AnalysisSettings, SurrogateMethod } from '@/lib/engine/settings';
 import { prepareSurrogateJob } from '@/lib/engine/surrogates';
 import { fitRestoringModel, type RestoringModel } from './fold';
@@ -16,10 +16,11 @@ import {
   prefixSurrogateChecker,
   replayDirection,
   replayGeometry,
-  observedMask,
   replayStretches,
+  shiftCuts,
   stepSpans,
   type Evidence,
+  type RecordQuality,
   type ReplayRule,
 } from './replay';
 
@@ -39,9 +40,14 @@ export interface BacktestInput {
   time: Float64Array;
   value: Float64Array;
   intervalMs?: number;
+  /** how `time` is read (default UTC milliseconds, as the product stores it) */
+  timeKind?: TimeKind;
   settings: AnalysisSettings;
   rule: ReplayRule;
+  /** known transitions: the stretch restarts at each, and alarms are scored against them */
   transitions: { id?: number; at: number; note?: string }[];
+  /** maintenance breaks: the stretch restarts at each, as in the live analysis, but they are no transitions to warn of */
+  breaks?: { at: number }[];
   /** points per analysis cycle: the rule is judged every this many new points (1 = each point) */
   every: number;
   /** an alarm counts as a warning of a transition only this long before it; null/undefined: one window */
@@ -130,8 +136,21 @@ export interface CalibrationResult {
   };
 }
 
+/** A point where the replayed stretch starts afresh, as the live analysis's would. */
+export interface Restart {
+  /** first instant of the new stretch, and its index on the prepared record */
+  time: number;
+  index: number;
+  reason: 'transition' | 'maintenance' | 'shift';
+  /** first instant (and its index) judged on the new stretch's terms: a mark's own, or the first cycle whose record shows the shift */
+  knownAt: number;
+  knownFromIndex: number;
+}
+
 export interface BacktestResult {
   points: number;
+  /** where the replayed stretch restarts: marked transitions, maintenance breaks and detected abrupt shifts */
+  restarts: Restart[];
   every: number;
   steps: number;
   geometry: { windowPoints: number; bandwidthPoints: number | null; detrend: string; spanValues: number | null; warmup: number };
@@ -152,6 +171,8 @@ export interface BacktestResult {
     quietSuppressed: number;
     /** of the not-judged instants, those whose newest window had fewer observed points than the coverage floor */
     belowCoverage: number;
+    /** of the not-judged instants, those whose newest window lay in a flat run (a stuck sensor) */
+    inFlatRun: number;
     minCoverage: number;
   };
   /** false alarms per year of judged time that could host one (outside warning stretches and one window after a transition) */
@@ -206,7 +227,24 @@ function stretches(steps: Int32Array, time: Float64Array): { from: number; to: n
 }
 
 const METHOD =
-  'Replay: the record is prepared as the live analysis prepares it; the window and bandwidth in points are fixed at what the settings give for the whole record (or its trailing span); each point is detrended with the trend of the data available when it arrived (so past residuals are never revised), the rolling indicator is updated in O(1) per point, and every cycle (every k points) the rule is judged as the live rule is: Kendall tau read in the rule\u2019s direction against the threshold, the level test, the surrogate p in the rule\u2019s direction (surrogates of the record available then), persistence and quiet period; the independence-based Kendall p is shown but is not a gate. After each marked transition the replay starts afresh on the record since it, as the live analysis does. Instants whose newest window has fewer observed points than the coverage floor, or whose surrogate check the cost bound did not allow, are reported as not judged. An alarm is a warning only within the horizon (default one window) before a marked transition; false alarms are counted per year of judged time outside warning stretches and one window after each transition. Calibration: surrogates of the detrended pre-transition record (trend added back) replayed with the full live procedure, each tested against surrogates of its own prefixes; false alarms per year of judged time with an exact Poisson (Garwood) interval. ROC: a constant-rate Ornstein\u2013Uhlenbeck (AR(1)) model and one whose restoring rate moves linearly in time (towards zero at a fold) are fitted by maximum likelihood to the detrended pre-transition record; replicates of each are replayed, and for each threshold the hit rate is the share of simulated approaches with an alarm within the horizon before their end, the false-alarm rate the share of null replicates with an alarm in the same stretch (after Boettiger & Hastings 2012, Proc. R. Soc. B 279, 4734).';
+  'Replay: the record is prepared as the live analysis prepares it; the window, bandwidth and span in points are fixed at what the settings give (fractions, points or ISO 8601 durations, read by the engine\u2019s own functions) for the trailing span, or the whole record when there is none; each point is detrended with the trend of the data available when it arrived (for local-linear and Gaussian detrending the fit of the record available then at its last point, so past residuals are never revised), the rolling indicator is updated in O(1) per point, and every cycle (every k points) the rule is judged as the live rule is: Kendall tau read in the rule\u2019s direction against the threshold, the level test, the surrogate p in the rule\u2019s direction (surrogates of the record available then), persistence and quiet period; the independence-based Kendall p is shown but is not a gate. After each marked transition, maintenance break and detected abrupt shift the replay starts afresh on the record since it, as the live analysis does; shifts are found by the engine\u2019s detector on the whole prepared record, and each counts from the first cycle whose record (its trailing span) shows it, at most a window and warm-up after it; a maintenance break is never scored as a transition. Instants whose newest window has fewer observed points than the coverage floor, lies inside a run of identical values (a stuck sensor), or whose surrogate check the cost bound did not allow, are reported as not judged. An alarm is a warning only within the horizon (default one window) before a marked transition; false alarms are counted per year of judged time outside warning stretches and one window after each transition. Calibration: surrogates of the pre-transition record, detrended stretch by stretch (trend added back), replayed with the full live procedure (restarting at its maintenance breaks and at shifts found in each replicate), each tested against surrogates of its own prefixes; false alarms per year of judged time with an exact Poisson (Garwood) interval. ROC: a constant-rate Ornstein\u2013Uhlenbeck (AR(1)) model and one whose restoring rate moves linearly in time (towards zero at a fold) are fitted by maximum likelihood to the detrended pre-transition record; replicates of each are replayed, and for each threshold the hit rate is the share of simulated approaches with an alarm within the horizon before their end, the false-alarm rate the share of null replicates with an alarm in the same stretch (after Boettiger & Hastings 2012, Proc. R. Soc. B 279, 4734).';
+
+/**
+ * Trend and residual of a record detrended stretch by stretch between the cuts (the engine's detrend on each
+ * stretch, as the live analysis detrends only its stretch). Not for differencing (one point fewer per stretch).
+ * O(n log n).
+ */
+function detrendByStretch(x: Float64Array, cuts: number[], method: DetrendMethod, opts: { bandwidthPoints: number; movingAverageWidth: number }): { trend: Float64Array; residual: Float64Array } {
+  const bounds = [0, ...[...new Set(cuts)].filter((c) => c > 0 && c < x.length).sort((a, b) => a - b), x.length];
+  const trend = new Float64Array(x.length);
+  const residual = new Float64Array(x.length);
+  for (let b = 0; b + 1 < bounds.length; b++) {
+    const d = detrend(x.subarray(bounds[b], bounds[b + 1]), method, opts);
+    trend.set(d.trend, bounds[b]);
+    residual.set(d.residual, bounds[b]);
+  }
+  return { trend, residual };
+}
 
 /**
  * Backtest of one rule on one record, with optional calibration on surrogates and an ROC from simulated
@@ -221,25 +259,41 @@ export async function runBacktest(
 ): Promise<BacktestResult> {
   const { settings, rule } = input;
   const direction = replayDirection(rule);
-  const prepared = prepareSeries({ time: input.time, value: input.value, intervalMs: input.intervalMs }, { ...settings, spanPoints: null });
+  const kind = input.timeKind ?? 'utc-ms';
+  // The whole record is prepared once (the span is cut per cycle, by the geometry's trailing span).
+  const prepared = prepareSeries({ time: input.time, value: input.value, intervalMs: input.intervalMs, timeKind: kind }, { ...settings, span: null });
   const x = prepared.value;
   const time = prepared.time;
-  const nRef = settings.spanPoints === null ? x.length : Math.min(settings.spanPoints, x.length);
-  const g = replayGeometry(settings, nRef, prepared.interval, Math.max(1, Math.floor(input.every)));
+  const g = replayGeometry(settings, x.length, prepared.interval, Math.max(1, Math.floor(input.every)), kind);
   if (x.length - g.offset < g.w + g.warmup) {
     throw new AnalysisInputError(`the record has ${x.length} points; a replay with a ${g.w}-point window needs at least ${g.w + g.warmup + g.offset}`);
   }
-  const observed = prepared.quality.gaps.some((gap) => gap.filled) ? observedMask(time, prepared.quality.gaps) : null;
+  const quality: RecordQuality = { observed: prepared.observed, flat: prepared.flat };
   const marks = [...input.transitions].sort((a, b) => a.at - b.at);
-  // after each marked transition the live analysis judges only the record since it: replay each stretch on its own
-  const cuts = marks.map((m) => {
+  const firstAtOrAfter = (at: number) => {
     let k = 0;
-    while (k < time.length && time[k] < m.at) k++;
+    while (k < time.length && time[k] < at) k++;
     return k;
-  });
-  const { residual, evidence: ev } = replayStretches(x, time, rule, g, observed, cuts);
+  };
+  // The live analysis judges only the stretch since the latest transition, maintenance break or detected shift:
+  // each stretch is replayed on its own.
+  const transitionCuts = marks.map((m) => firstAtOrAfter(m.at));
+  const maintenanceCuts = (input.breaks ?? []).map((b) => firstAtOrAfter(b.at));
+  const breakCuts = [...transitionCuts, ...maintenanceCuts];
+  const shifts = shiftCuts(x, settings, g);
+  const cuts = [...breakCuts, ...shifts];
+  // where the replayed stretch restarts, and why (a mark names the reason before a shift at the same point, as in the engine)
+  const restartAt = new Map<number, { reason: Restart['reason']; knownFrom: number }>();
+  for (const c of shifts) if (c.index > 0) restartAt.set(c.index, { reason: 'shift', knownFrom: c.knownFrom });
+  for (const [list, reason] of [[maintenanceCuts, 'maintenance'], [transitionCuts, 'transition']] as const) {
+    for (const c of list) if (c > 0 && c < x.length) restartAt.set(c, { reason, knownFrom: c });
+  }
+  const restarts: Restart[] = [...restartAt]
+    .sort((a, b) => a[0] - b[0])
+    .map(([index, r]) => ({ time: time[index], index, reason: r.reason, knownAt: time[r.knownFrom], knownFromIndex: r.knownFrom }));
+  const { residuals, evidence: ev } = replayStretches(x, time, rule, g, quality, cuts);
   // Draws stop once a check is sure to fail: a passing check (the only kind an alarm shows) still has its exact p.
-  const checker = prefixSurrogateChecker(residual, x, ev, rule, g, { budget: options.surrogateBudget, decisionOnly: true });
+  const checker = prefixSurrogateChecker(residuals, x, ev, rule, g, { budget: options.surrogateBudget, decisionOnly: true, quality });
   const report = alarmOnsets(ev, rule, rule.minTau, checker.check);
   const { onsets } = report;
   options.onProgress?.(input.calibration ? 0.1 : 1);
@@ -312,14 +366,28 @@ export async function runBacktest(
     }
     const pre = x.slice(0, nPre);
     const preTime = time.slice(0, nPre);
-    const d = detrend(pre, settings.detrend === 'difference' ? 'none' : settings.detrend, { bandwidthPoints: g.h, movingAverageWidth: g.movingAverageWidth });
+    // Maintenance breaks and shifts inside the pre-transition record: detrended stretch by stretch, so a jump
+    // stays in the trend the replicates share and never inflates the residual their surrogates copy.
+    const preBreaks = breakCuts.filter((c) => c > 0 && c < nPre);
+    const d = detrendByStretch(pre, [...preBreaks, ...shifts.map((c) => c.index).filter((c) => c < nPre)], settings.detrend === 'difference' ? 'none' : settings.detrend, {
+      bandwidthPoints: g.h,
+      movingAverageWidth: g.movingAverageWidth,
+    });
     const method = input.calibration.method;
     const job = prepareSurrogateJob(d.residual, pre, { method, seed: settings.seed, w: g.w, dt: g.dt, indicators: [rule.indicator] });
     job.rawMean = null;
     const N = input.calibration.surrogates;
     const M = input.calibration.approaches ?? N;
     const threads = options.threads;
-    const base = { trend: d.trend, time: preTime, observed: observed?.slice(0, nPre) ?? null, rule, geometry: g };
+    const base = {
+      trend: d.trend,
+      time: preTime,
+      quality: { observed: prepared.observed.slice(0, nPre), flat: prepared.flat.map((r) => ({ start: r.start, end: Math.min(r.end, nPre) })).filter((r) => r.start < r.end) },
+      breaks: preBreaks,
+      shiftDetection: settings.shiftDetection,
+      rule,
+      geometry: g,
+    };
     const surrogateRuns = await runCalibration(
       { ...base, source: { kind: 'surrogate', job }, scoreFrom: Number.NEGATIVE_INFINITY, liveSurrogateP: true, budget: (input.calibration.budget ?? CALIBRATION_WORK_BUDGET) / N },
       N,
@@ -374,11 +442,12 @@ export async function runBacktest(
 
   return {
     points: x.length,
+    restarts,
     every: g.every,
     steps: ev.time.length,
     geometry: {
       windowPoints: g.w,
-      bandwidthPoints: settings.detrend === 'gaussian' ? g.h : null,
+      bandwidthPoints: settings.detrend === 'gaussian' || settings.detrend === 'local-linear' ? g.h : null,
       detrend: settings.detrend,
       spanValues: g.spanValues,
       warmup: g.warmup,
@@ -395,6 +464,7 @@ export async function runBacktest(
       surrogateChecks: report.surrogateChecks,
       quietSuppressed: report.quietSuppressed,
       belowCoverage: report.belowCoverage,
+      inFlatRun: report.inFlatRun,
       minCoverage: g.minCoverage,
     },
     falseAlarms: { count: falseCount, exposureYears, perYear: exposureYears > 0 ? falseCount / exposureYears : null, interval: garwoodInterval(falseCount, exposureYears) },

@@ -396,6 +396,17 @@ export function findFlatRuns(value: Float64Array): { start: number; end: number 
   return out;
 }
 
+/**
+ * Points of a gridded record of `gridPoints` points that a trailing analysis span keeps: round(extent in points)
+ * (extentPoints: a fraction of the gridded record, "<n> points" or an ISO 8601 duration over the interval), at
+ * least 1 and at most the record; the whole record when there is no span. Shared with the backtest replay, which
+ * must cut the same span. O(1).
+ */
+export function spanPoints(span: Extent | null | undefined, gridPoints: number, interval: number, kind: TimeKind): number {
+  if (span === null || span === undefined) return gridPoints;
+  return Math.min(gridPoints, Math.max(1, Math.round(extentPoints(span, gridPoints, interval, kind))));
+}
+
 /** The prepared record: the regular grid, which points were really observed, and what was found on the way. */
 export interface PreparedSeries {
   time: Float64Array;
@@ -471,7 +482,7 @@ export function prepareSeries(
   const binnedBins = g.binnedBins;
   let droppedBeforeSpan = 0;
   if (opts.span !== null && opts.span !== undefined) {
-    const keep = Math.max(1, Math.round(extentPoints(opts.span, time.length, interval, kind)));
+    const keep = spanPoints(opts.span, time.length, interval, kind);
     if (keep < time.length) {
       droppedBeforeSpan = time.length - keep;
       time = time.subarray(droppedBeforeSpan);

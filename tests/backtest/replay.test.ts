@@ -3,7 +3,7 @@ import { runBacktest } from '@/lib/backtest/run';
 import { pointInTimeResiduals, replayEvidence, replayGeometry, indicatorStream, type ReplayRule } from '@/lib/backtest/replay';
 import { simulateAr1 } from '@/lib/demo/models';
 import { buildDemoScenario } from '@/lib/demo/scenario';
-import { gaussianSmooth, linearFit, movingAverage } from '@/lib/engine/detrend';
+import { detrend, gaussianSmooth, linearFit, movingAverage } from '@/lib/engine/detrend';
 import { indicatorTrend } from '@/lib/engine/kendall';
 import { rollingIndicators } from '@/lib/engine/rolling';
 import { analysisSettingsSchema } from '@/lib/engine/settings';
@@ -34,6 +34,34 @@ describe('point-in-time residuals equal the engine detrending of each prefix at 
   it('gaussian (FFT path, h = 70) and direct sums (h = 3)', () => {
     for (const h of [70, 3]) check(pointInTimeResiduals(x, { detrend: 'gaussian', h, movingAverageWidth: 11 }), (p) => gaussianSmooth(p, h));
   });
+  it('local-linear (FFT path, h = 70; direct sums, h = 3; a bandwidth wider than the record, h = 900): the engine detrend of each prefix', () => {
+    // the reference that ties the replay to the live analysis: detrend(prefix, 'local-linear') as runAnalysis calls it
+    for (const h of [70, 3, 900]) {
+      check(pointInTimeResiduals(x, { detrend: 'local-linear', h, movingAverageWidth: 11 }), (p) => detrend(p, 'local-linear', { bandwidthPoints: h, movingAverageWidth: 11 }).trend);
+    }
+  });
+  it('local-linear equals a direct O(n·L) evaluation of the one-sided fit at every point', () => {
+    // m̂_i = (S2·T0 − S1·T1)/(S0·S2 − S1²), S_k = Σ K(d) d^k, T_k = Σ K(d) d^k x_{i−d}, d = 0..min(i, L), K(d) = exp(−d²/2h²):
+    // the local-linear estimate at the boundary point i (Fan & Gijbels 1996, Ch. 3, from memory), summed term by term
+    for (const h of [70, 3]) {
+      const r = pointInTimeResiduals(x, { detrend: 'local-linear', h, movingAverageWidth: 11 });
+      const L = Math.ceil(8.86 * h);
+      for (let i = 0; i < x.length; i += 7) {
+        let s0 = 0, s1 = 0, s2 = 0, t0 = 0, t1 = 0;
+        for (let d = 0; d <= Math.min(i, L); d++) {
+          const k = Math.exp(-(d * d) / (2 * h * h));
+          s0 += k;
+          s1 += k * d;
+          s2 += k * d * d;
+          t0 += k * x[i - d];
+          t1 += k * d * x[i - d];
+        }
+        const det = s0 * s2 - s1 * s1;
+        const trend = det > 0 ? (s2 * t0 - s1 * t1) / det : t0 / s0;
+        expect(Math.abs(r[i] - (x[i] - trend))).toBeLessThanOrEqual(1e-9 * Math.max(1, Math.abs(x[i])));
+      }
+    }
+  });
   it('moving average', () => check(pointInTimeResiduals(x, { detrend: 'moving-average', h: 1, movingAverageWidth: 11 }), (p) => movingAverage(p, 11)));
   it('linear', () =>
     check(pointInTimeResiduals(x, { detrend: 'linear', h: 1, movingAverageWidth: 11 }), (p) => {
@@ -48,8 +76,8 @@ describe('replay evidence equals a full recomputation at each judged instant', (
     const x = simulateAr1({ n: 900, phi: 0.5, sigma: 1, seed: 4 });
     const t = days(900);
     for (const spanPoints of [null, 400]) {
-      const settings = analysisSettingsSchema.parse({ detrend: 'none', window: 0.25, spanPoints });
-      const g = replayGeometry(settings, spanPoints ?? 900, DAY, 7);
+      const settings = analysisSettingsSchema.parse({ detrend: 'none', window: 0.25, span: spanPoints === null ? null : `${spanPoints} points` });
+      const g = replayGeometry(settings, 900, DAY, 7);
       const stream = indicatorStream(x, x, 'variance', g);
       const ev = replayEvidence(stream, t, g);
       expect(ev.index.length).toBeGreaterThan(50);

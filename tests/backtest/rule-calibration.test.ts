@@ -73,7 +73,7 @@ describe('a rule’s own calibration (queueRuleCalibration, latestRuleCalibratio
     const rule = await ruleOn(series.id);
     const lead = await User.create({ email: 'lead@example.test', name: 'Lead', role: 'lead', passwordHash: 'not used', active: true });
     const queued = () => BacktestJob.count({ where: { ruleId: rule.id, status: 'queued' } });
-    const mark = await markTransition(series.id, { at: Date.UTC(2020, 5, 1), note: 'test' }, lead);
+    const mark = await markTransition(series.id, { at: Date.UTC(2020, 5, 1), note: 'test', kind: 'transition' }, lead);
     expect(await queued()).toBe(1);
     await removeTransition(mark.id, lead);
     // the earlier waiting calibration is cancelled in favour of the newest

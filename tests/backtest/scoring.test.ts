@@ -118,6 +118,65 @@ describe('after a marked transition the replay judges only the record since it, 
   });
 });
 
+describe('the replayed stretch restarts where the live analysis restarts', () => {
+  // 1,200 daily AR(1) points (φ = 0.3, σ = 1; Box et al. 2015, Sec. 3.2), no detrending, window 0.1 → w = 120,
+  // warm-up max(10, ⌈120/4⌉) = 30 values: the first value of a stretch starting at a is at a + 119, the 30th
+  // (first judged instant) at a + 148.
+  const n = 1200;
+  const t = days(n);
+  const noise = simulateAr1({ n, phi: 0.3, sigma: 1, seed: 41 });
+  const r0 = rule({ minTau: -1, persistence: 1 });
+  it('after an abrupt shift of level found by the engine detector (not a transition: nothing is scored)', async () => {
+    // a step of 4 noise sd at index 600, well beyond the detector's calibrated penalty (lib/engine/shifts.ts)
+    const x = Float64Array.from(noise, (v, i) => v + (i >= 600 ? 4 : 0));
+    const settings = analysisSettingsSchema.parse({ detrend: 'none', window: 0.1, surrogates: 0 });
+    const r = await runBacktest({ time: t, value: x, intervalMs: DAY, settings, rule: r0, transitions: [], every: 1 });
+    expect(r.restarts).toHaveLength(1);
+    const { index, reason, knownFromIndex } = r.restarts[0];
+    expect(reason).toBe('shift');
+    expect(Math.abs(index - 600)).toBeLessThanOrEqual(2);
+    // a live cycle knows of the shift once its record shows it: after at least minSegment (5) points of the new
+    // level (lib/engine/shifts.ts), and for a 4-sd step within a few dozen
+    expect(knownFromIndex).toBeGreaterThanOrEqual(index + 4);
+    expect(knownFromIndex).toBeLessThan(index + 60);
+    // judged instants: 148..knownFrom−1 on the first stretch (across the step, as the live analysis until it
+    // sees the shift) and index+148..1199 on the second; one alarm opens at the first instant of each stretch
+    expect(r.steps).toBe(knownFromIndex - 148 + (n - index - 148));
+    expect(r.alarms.map((a) => (a.time - t[0]) / DAY)).toEqual([148, index + 148]);
+    expect(r.transitions).toHaveLength(0);
+    // with shift detection off the replay runs straight across the step, as the live analysis then would
+    const off = await runBacktest({ time: t, value: x, intervalMs: DAY, settings: { ...settings, shiftDetection: 'off' }, rule: r0, transitions: [], every: 1 });
+    expect(off.restarts).toHaveLength(0);
+    expect(off.steps).toBe(n - 148);
+  });
+  it('after a maintenance break, which is never scored as a transition', async () => {
+    const settings = analysisSettingsSchema.parse({ detrend: 'none', window: 0.1, surrogates: 0, shiftDetection: 'off' });
+    const r = await runBacktest({ time: t, value: noise, intervalMs: DAY, settings, rule: r0, transitions: [], breaks: [{ at: t[600] }], every: 1 });
+    expect(r.restarts).toEqual([{ time: t[600], index: 600, reason: 'maintenance', knownAt: t[600], knownFromIndex: 600 }]);
+    expect(r.steps).toBe(452 + 452);
+    expect(r.transitions).toHaveLength(0);
+    // both alarms are false (no warning stretch, no settling stretch), counted over all judged time
+    expect(r.alarms.map((a) => [a.kind, (a.time - t[0]) / DAY])).toEqual([['false', 148], ['false', 748]]);
+    expect(r.falseAlarms.exposureYears * YEAR).toBeCloseTo(904 * DAY, 3);
+  });
+});
+
+describe('windows inside a flat run (a stuck sensor) are not judged', () => {
+  it('as in the engine (unjudgedWindows): the 81 windows of 120 points that fit in a 200-point run', async () => {
+    // 1,200 daily AR(1) points with a run of 200 identical values from index 500 (a stuck sensor, the QARTOD
+    // flat-line case); window 0.1 → w = 120: windows ending at 619..699 lie wholly inside the run
+    const n = 1200;
+    const t = days(n);
+    const x = simulateAr1({ n, phi: 0.3, sigma: 1, seed: 43 });
+    x.fill(0, 500, 700);
+    const settings = analysisSettingsSchema.parse({ detrend: 'none', window: 0.1, surrogates: 0, shiftDetection: 'off' });
+    const r = await runBacktest({ time: t, value: x, intervalMs: DAY, settings, rule: rule({ minTau: -1, persistence: 1 }), transitions: [], every: 1 });
+    expect(r.judged.inFlatRun).toBe(81);
+    expect(r.judged.belowCoverage).toBe(0);
+    expect(r.judged.notJudged).toEqual([{ from: t[619], to: t[699], steps: 81 }]);
+  });
+});
+
 describe('windows below the coverage floor are not judged', () => {
   it('a stretch with a third of its days missing (filled by interpolation) leaves its instants unjudged', async () => {
     // 600 daily AR(1) values; from index 300 to 419 every third day is missing (runs of 1, within maxGap 3),
