@@ -1,3 +1,5 @@
+import { quickselect } from 'simple-statistics';
+
 /** One abrupt shift of level. */
 export interface LevelShift {
   /** Grid index of the first observed point of the new level (0-based). */
@@ -31,6 +33,65 @@ const PHI_MAX = 0.99;
 
 /** Most candidate change positions the dynamic programme searches at once (see detectShifts). */
 const MAX_SEARCH_POSITIONS = 2048;
+
+/** Φ⁻¹(3/4): median |Z| for standard normal Z, which makes the median absolute value a consistent sd. */
+const NORMAL_MAD = 0.6744897501960817;
+
+/** Penalty constant of the pilot search, which only proposes levels for the noise estimate (see detectShifts). */
+const PILOT_CONSTANT = 3;
+
+/**
+ * Normal-consistent scale of values centred on zero: median|d| / Φ⁻¹(3/4); when more than half are exactly
+ * zero (coarsely quantised readings) the root mean square instead, so the scale is zero only for exactly
+ * constant input. Reorders `d`. O(n) expected (Floyd–Rivest selection, simple-statistics' quickselect).
+ * Source: Hampel (1974), JASA 69, 383–393 (median absolute deviation, from memory).
+ */
+function zeroCentredScale(d: Float64Array): number {
+  const n = d.length;
+  if (n === 0) return 0;
+  for (let i = 0; i < n; i++) d[i] = Math.abs(d[i]);
+  const k = (n - 1) >> 1;
+  // quickselect only reads and swaps elements, which a typed array supports.
+  quickselect(d as unknown as number[], k);
+  let med = d[k];
+  if (n % 2 === 0) {
+    let next = Infinity;
+    for (let i = k + 1; i < n; i++) if (d[i] < next) next = d[i];
+    med = (med + next) / 2;
+  }
+  if (med > 0) return med / NORMAL_MAD;
+  let ss = 0;
+  for (let i = 0; i < n; i++) ss += d[i] * d[i];
+  return Math.sqrt(ss / n);
+}
+
+/** Differences x[i+lag] − x[i] over pairs whose both ends are observed (not NaN). O(n). */
+function observedDifferences(x: Float64Array, lag: number): Float64Array {
+  const out = new Float64Array(Math.max(0, x.length - lag));
+  let k = 0;
+  for (let i = 0; i + lag < x.length; i++) {
+    const d = x[i + lag] - x[i];
+    if (!Number.isNaN(d)) out[k++] = d;
+  }
+  return out.subarray(0, k);
+}
+
+/**
+ * Long-run variance of AR(1) noise that level shifts hardly disturb, from differences at lags 1 and 2 (a
+ * shift touches only one or two of them): with s_k the normal-consistent median scale of x_{t+k} − x_t,
+ * Var(x_{t+k} − x_t) = 2σ²_y(1 − φ^k), so φ̂ = s₂²/s₁² − 1 (clamped to [0, 0.99]), σ̂²_y = s₁²/(2(1 − φ̂)),
+ * σ̂²_LR = σ̂²_y (1 + φ̂)/(1 − φ̂). Robust but noisy when φ is near 1, so used only for the pilot search.
+ * Missing points are skipped pairwise. O(n) expected. Source: Chakar, Lebarbier, Lévy-Leduc & Robin
+ * (2017), "A robust approach for estimating change-points in the mean of an AR(1) process", Bernoulli 23,
+ * 1408–1447 (the lag-1/lag-2 median estimator of φ, from memory).
+ */
+export function robustLongRunVariance(x: Float64Array): number {
+  const s1 = zeroCentredScale(observedDifferences(x, 1));
+  const s2 = zeroCentredScale(observedDifferences(x, 2));
+  if (!(s1 > 0)) return (s2 * s2) / 2;
+  const phi = Math.min(PHI_MAX, Math.max(0, (s2 * s2) / (s1 * s1) - 1));
+  return ((s1 * s1) / (2 * (1 - phi)) * (1 + phi)) / (1 - phi);
+}
 
 /** Noise model of a record: AR(1) around piecewise-constant levels. */
 export interface ShiftNoise {
@@ -169,11 +230,11 @@ export function shiftsWithPenalty(x: Float64Array, constant: number, minSegment:
     const cuts = pelt(positions, cnt, s1, s2, constant * longRunVariance * logN, minSegment);
     return block > 1 ? refine(cuts, block, n, cnt, cost, minSegment) : cuts;
   };
-  // Pass 1 scales the penalty by the noise about one level: under no shift that is the right scale (and
-  // the calibrated rate is that of this pass alone); a real shift inflates it, so only clear shifts pass.
-  // Pass 2 re-estimates the noise about the levels pass 1 found and searches again.
-  let cuts = segment(shiftNoise(x).longRunVariance);
-  if (cuts.length > 0) cuts = segment(shiftNoise(x, [0, ...cuts, n]).longRunVariance);
+  // The pilot's robust scale is not inflated by a shift but is noisy near φ = 1; the final scale, fitted
+  // about the pilot's levels, is stable and follows the noisiest part of the record (where sums of squares
+  // come from), which is what keeps slowing down from looking like a shift.
+  const pilot = pelt(positions, cnt, s1, s2, PILOT_CONSTANT * robustLongRunVariance(x) * logN, minSegment);
+  const cuts = segment(shiftNoise(x, [0, ...pilot, n]).longRunVariance);
 
   const bounds = [0, ...cuts, n];
   const mean = (a: number, b: number) => (s1[b] - s1[a]) / (cnt[b] - cnt[a]);
