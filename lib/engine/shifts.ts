@@ -163,26 +163,33 @@ export function shiftPenaltyConstant(rate: number): number {
 }
 
 /**
- * Abrupt shifts of level in a series on a regular grid; NaN marks a missing point, skipped in every sum
- * (pass the gap-filled grid or the raw grid with NaN: interpolated points count as observed).
+ * Abrupt shifts of level in a series on a regular grid. NaN marks a missing point and is skipped in every
+ * sum (so either the raw grid with NaN or the gap-filled grid may be passed; filled points count as
+ * observed); a shift is reported at the first observed point of its new level.
  *
- * Model: x_t = μ_j + e_t on segments j, e an AR(1)-like stationary noise. Segments minimise
- * Σ_j Σ_{t∈j} (x_t − x̄_j)² + β·(number of shifts), each with ≥ minSegment observed points, where
+ * Model: x_t = μ_j + e_t on segments j, e a stationary AR(1)-like noise. The segments minimise
+ * Σ_j Σ_{t∈j} (x_t − x̄_j)² + β·(number of shifts), each with ≥ minSegment observed points, with
  * β = c(α) · σ̂²_LR · ln(n_obs): least squares stays consistent for the shift positions under dependent
- * noise, and the penalty is scaled by the long-run variance σ̂²_LR (shiftNoise) instead of σ², because the
- * gain of a spurious split in dependent noise scales with σ²_LR. c(α) was calibrated by simulation so that
- * at most a share α of null records (AR(1) with φ up to 0.95, and records whose φ and variance rise as
- * before a fold) report any shift (SHIFT_PENALTY_CONSTANTS). The exact minimiser is found by PELT; above
- * 2,048 positions the search first runs over block boundaries (blocks of ⌈n/2048⌉ points) and then moves each
- * shift to the best single point within a block either side, given its neighbours. size = x̄_new − x̄_old.
+ * noise, and the gain of a spurious split in dependent noise scales with the long-run variance σ²_LR, not
+ * with σ², so the penalty is scaled by σ̂²_LR. The scale is found in two steps: a pilot search (penalty
+ * 3 · robustLongRunVariance · ln n) proposes levels with a scale that shifts do not inflate; σ̂²_LR is then
+ * the AR(1) long-run variance of the residuals about those levels (shiftNoise), which is stable and, being
+ * built from sums of squares, follows the noisiest part of the record, so rising variance and memory before
+ * a fold are not taken for shifts. c(α) was calibrated by simulation so that at most a share α of null
+ * records (stationary AR(1) with φ up to 0.95, records whose φ and variance rise as before a fold, n from
+ * 200 to 5,000) report any shift (SHIFT_PENALTY_CONSTANTS, calibrated with minSegment = 5; a longer minimum
+ * segment can only report fewer shifts). Each search is PELT; above 2,048 grid points it runs over block
+ * boundaries (blocks of ⌈n/2048⌉ points) and then moves each shift to the best single point within a block
+ * either side, given its neighbours. size = x̄_new − x̄_old over the adjacent segments.
  *
- * Cost: O(n) for the sums and the noise scale plus O(K²) for the search over K ≤ 2,048 positions in the
- * worst case (no shift, when PELT cannot prune), O(K) expected when shifts occur throughout.
+ * Cost: O(n) for the sums and the noise scales, plus O(K²) per search over K = min(n, 2,048) positions in
+ * the worst case (no shift, when PELT cannot prune), O(K) expected when shifts occur throughout.
  * Sources: Killick, Fearnhead & Eckley (2012), "Optimal detection of changepoints with a linear computational
  * cost", JASA 107, 1590–1598 (PELT, pruning with K = 0 for this cost); Lavielle & Moulines (2000), "Least-
  * squares estimation of an unknown number of shifts in a time series", J. Time Ser. Anal. 21, 33–59
  * (least squares under dependent noise, from memory); Chakar et al. (2017), Bernoulli 23, 1408–1447
- * (robust AR(1) noise scale, from memory).
+ * (robust AR(1) scale, from memory); Bai & Perron (2003), J. Appl. Econometrics 18, 1–22 (long-run
+ * variance from the residuals about the estimated levels, from memory).
  */
 export function detectShifts(x: Float64Array, options: ShiftOptions = {}): LevelShift[] {
   return shiftsWithPenalty(x, shiftPenaltyConstant(options.falsePositiveRate ?? 0.01), options.minSegment ?? DEFAULT_MIN_SEGMENT);
