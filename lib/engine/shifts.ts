@@ -41,6 +41,12 @@ const NORMAL_MAD = 0.6744897501960817;
 const PILOT_CONSTANT = 3;
 
 /**
+ * Largest φ the pilot's robust scale takes: its φ̂ is noisy near 1, and at 0.99 the scale could be a hundred
+ * times too large and hide a clear shift from the pilot.
+ */
+const PILOT_PHI_MAX = 0.95;
+
+/**
  * Normal-consistent scale of values centred on zero: median|d| / Φ⁻¹(3/4); when more than half are exactly
  * zero (coarsely quantised readings) the root mean square instead, so the scale is zero only for exactly
  * constant input. Reorders `d`. O(n) expected (Floyd–Rivest selection, simple-statistics' quickselect).
@@ -79,7 +85,7 @@ function observedDifferences(x: Float64Array, lag: number): Float64Array {
 /**
  * Long-run variance of AR(1) noise that level shifts hardly disturb, from differences at lags 1 and 2 (a
  * shift touches only one or two of them): with s_k the normal-consistent median scale of x_{t+k} − x_t,
- * Var(x_{t+k} − x_t) = 2σ²_y(1 − φ^k), so φ̂ = s₂²/s₁² − 1 (clamped to [0, 0.99]), σ̂²_y = s₁²/(2(1 − φ̂)),
+ * Var(x_{t+k} − x_t) = 2σ²_y(1 − φ^k), so φ̂ = s₂²/s₁² − 1 (clamped to [0, 0.95]), σ̂²_y = s₁²/(2(1 − φ̂)),
  * σ̂²_LR = σ̂²_y (1 + φ̂)/(1 − φ̂). Robust but noisy when φ is near 1, so used only for the pilot search.
  * Missing points are skipped pairwise. O(n) expected. Source: Chakar, Lebarbier, Lévy-Leduc & Robin
  * (2017), "A robust approach for estimating change-points in the mean of an AR(1) process", Bernoulli 23,
@@ -89,7 +95,7 @@ export function robustLongRunVariance(x: Float64Array): number {
   const s1 = zeroCentredScale(observedDifferences(x, 1));
   const s2 = zeroCentredScale(observedDifferences(x, 2));
   if (!(s1 > 0)) return (s2 * s2) / 2;
-  const phi = Math.min(PHI_MAX, Math.max(0, (s2 * s2) / (s1 * s1) - 1));
+  const phi = Math.min(PILOT_PHI_MAX, Math.max(0, (s2 * s2) / (s1 * s1) - 1));
   return ((s1 * s1) / (2 * (1 - phi)) * (1 + phi)) / (1 - phi);
 }
 
@@ -232,16 +238,16 @@ export function shiftsWithPenalty(x: Float64Array, constant: number, minSegment:
   const positions: number[] = [];
   for (let p = 0; p < n; p += block) positions.push(p);
   positions.push(n);
-  const segment = (longRunVariance: number): number[] => {
+  const segment = ({ phi, longRunVariance }: ShiftNoise): number[] => {
     if (!(longRunVariance > 0)) return [];
-    const cuts = pelt(positions, cnt, s1, s2, constant * longRunVariance * logN, minSegment);
+    const cuts = pelt(positions, cnt, s1, s2, (constant * longRunVariance * logN) / (1 - phi), minSegment);
     return block > 1 ? refine(cuts, block, n, cnt, cost, minSegment) : cuts;
   };
   // The pilot's robust scale is not inflated by a shift but is noisy near φ = 1; the final scale, fitted
   // about the pilot's levels, is stable and follows the noisiest part of the record (where sums of squares
   // come from), which is what keeps slowing down from looking like a shift.
   const pilot = pelt(positions, cnt, s1, s2, PILOT_CONSTANT * robustLongRunVariance(x) * logN, minSegment);
-  const cuts = segment(shiftNoise(x, [0, ...pilot, n]).longRunVariance);
+  const cuts = segment(shiftNoise(x, [0, ...pilot, n]));
 
   const bounds = [0, ...cuts, n];
   const mean = (a: number, b: number) => (s1[b] - s1[a]) / (cnt[b] - cnt[a]);
