@@ -41,6 +41,12 @@ const NORMAL_MAD = 0.6744897501960817;
 const PILOT_CONSTANT = 3;
 
 /**
+ * Penalty constant of the strict pilot, whose levels give the φ̂ in the penalty's 1/(1 − φ̂): it splits a
+ * null record so rarely that φ̂ keeps the record's full memory, yet finds shifts clear enough to inflate φ̂.
+ */
+const STRICT_PILOT_CONSTANT = 30;
+
+/**
  * Largest φ the pilot's robust scale takes: its φ̂ is noisy near 1, and at 0.99 the scale could be a hundred
  * times too large and hide a clear shift from the pilot.
  */
@@ -175,16 +181,20 @@ export function shiftPenaltyConstant(rate: number): number {
  *
  * Model: x_t = μ_j + e_t on segments j, e a stationary AR(1)-like noise. The segments minimise
  * Σ_j Σ_{t∈j} (x_t − x̄_j)² + β·(number of shifts), each with ≥ minSegment observed points, with
- * β = c(α) · σ̂²_LR · ln(n_obs): least squares stays consistent for the shift positions under dependent
- * noise, and the gain of a spurious split in dependent noise scales with the long-run variance σ²_LR, not
- * with σ², so the penalty is scaled by σ̂²_LR. The scale is found in two steps: a pilot search (penalty
- * 3 · robustLongRunVariance · ln n) proposes levels with a scale that shifts do not inflate; σ̂²_LR is then
- * the AR(1) long-run variance of the residuals about those levels (shiftNoise), which is stable and, being
- * built from sums of squares, follows the noisiest part of the record, so rising variance and memory before
- * a fold are not taken for shifts. c(α) was calibrated by simulation so that at most a share α of null
- * records (stationary AR(1) with φ up to 0.95, records whose φ and variance rise as before a fold, n from
- * 200 to 5,000) report any shift (SHIFT_PENALTY_CONSTANTS, calibrated with minSegment = 5; a longer minimum
- * segment can only report fewer shifts). Each search is PELT; above 2,048 grid points it runs over block
+ * β = c(α) · σ̂²_LR · ln(n_obs) / (1 − φ̂): least squares stays consistent for the shift positions under
+ * dependent noise, and the gain of a spurious split in dependent noise scales with the long-run variance
+ * σ²_LR, not with σ², so the penalty is scaled by σ̂²_LR; the extra 1/(1 − φ̂) widens it where σ̂²_LR itself
+ * is least certain (few effective observations when φ is near 1; without it the calibrated c for short
+ * records at φ = 0.95 was ten times that at φ = 0). The noise is estimated in steps, each protecting the
+ * next from what shifts and slowing down do to it: a pilot search (penalty 3 · robustLongRunVariance ·
+ * ln n) proposes levels with a scale that shifts hardly inflate; σ̂²_LR is the AR(1) long-run variance of
+ * the residuals about those levels (shiftNoise); φ̂ is the lag-1 coefficient about the levels of a strict
+ * pilot (constant 30), which keeps the full memory of a record without clear shifts. Both come from sums of
+ * squares and so follow the noisiest part of the record, which is what keeps rising variance and memory
+ * before a fold from looking like shifts. c(α) was calibrated by simulation so that at most a share α of
+ * null records (stationary AR(1) with φ up to 0.95 and records whose φ and variance rise as before a fold,
+ * n from 200 to 5,000) report any shift (SHIFT_PENALTY_CONSTANTS, calibrated with minSegment = 5; a longer
+ * minimum segment can only report fewer shifts). Each search is PELT; above 2,048 grid points it runs over block
  * boundaries (blocks of ⌈n/2048⌉ points) and then moves each shift to the best single point within a block
  * either side, given its neighbours. size = x̄_new − x̄_old over the adjacent segments.
  *
@@ -238,16 +248,16 @@ export function shiftsWithPenalty(x: Float64Array, constant: number, minSegment:
   const positions: number[] = [];
   for (let p = 0; p < n; p += block) positions.push(p);
   positions.push(n);
-  const segment = ({ phi, longRunVariance }: ShiftNoise): number[] => {
-    if (!(longRunVariance > 0)) return [];
-    const cuts = pelt(positions, cnt, s1, s2, (constant * longRunVariance * logN) / (1 - phi), minSegment);
-    return block > 1 ? refine(cuts, block, n, cnt, cost, minSegment) : cuts;
-  };
-  // The pilot's robust scale is not inflated by a shift but is noisy near φ = 1; the final scale, fitted
-  // about the pilot's levels, is stable and follows the noisiest part of the record (where sums of squares
-  // come from), which is what keeps slowing down from looking like a shift.
-  const pilot = pelt(positions, cnt, s1, s2, PILOT_CONSTANT * robustLongRunVariance(x) * logN, minSegment);
-  const cuts = segment(shiftNoise(x, [0, ...pilot, n]));
+  // The pilots' robust scale is not inflated by a shift but is noisy near φ = 1, so it only proposes levels;
+  // the penalty's scale and φ̂ are fitted about them (see the doc comment).
+  const robust = robustLongRunVariance(x) * logN;
+  const pilot = pelt(positions, cnt, s1, s2, PILOT_CONSTANT * robust, minSegment);
+  const strict = pelt(positions, cnt, s1, s2, STRICT_PILOT_CONSTANT * robust, minSegment);
+  const { longRunVariance } = shiftNoise(x, [0, ...pilot, n]);
+  if (!(longRunVariance > 0)) return [];
+  const { phi } = shiftNoise(x, [0, ...strict, n]);
+  let cuts = pelt(positions, cnt, s1, s2, (constant * longRunVariance * logN) / (1 - phi), minSegment);
+  if (block > 1) cuts = refine(cuts, block, n, cnt, cost, minSegment);
 
   const bounds = [0, ...cuts, n];
   const mean = (a: number, b: number) => (s1[b] - s1[a]) / (cnt[b] - cnt[a]);

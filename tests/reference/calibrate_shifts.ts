@@ -16,7 +16,7 @@ import { RandomStream } from '../../lib/engine/random';
 import { DEFAULT_MIN_SEGMENT, shiftsWithPenalty } from '../../lib/engine/shifts';
 import { SLOWING_DOWN, simulateNull, stationary } from '../engine/shift-nulls';
 
-const RECORDS: Record<number, number> = { 200: 600, 1000: 250, 5000: 100 };
+const RECORDS: Record<number, number> = { 200: 500, 1000: 200, 5000: 70 };
 const RATES = [0.01, 0.05, 0.1];
 const KINDS = [0, 0.5, 0.8, 0.9, 0.95].map(stationary).concat(SLOWING_DOWN);
 
