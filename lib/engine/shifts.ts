@@ -19,13 +19,18 @@ export interface ShiftOptions {
 export const DEFAULT_MIN_SEGMENT = 5;
 
 /**
- * Penalty constants c(α): β = c · σ̂²_LR · ln(n) gives at most α false-positive records per record (see
- * detectShifts). PLACEHOLDER until the calibration run.
+ * Penalty constants c(α) of β = c · σ̂²_LR · ln(n_obs)/(1 − φ̂) (see detectShifts), calibrated once by
+ * tests/reference/calibrate_shifts.ts: for each null record the smallest c reporting no shift was found by
+ * bisection, and c(α) is the largest (1 − α) quantile of those over 21 cells (stationary AR(1), φ = 0, 0.5,
+ * 0.8, 0.9, 0.95, and two slowing-down nulls, φ 0.2→0.95 and φ 0.5→0.95 with sd 1→2; n = 200 (500 records
+ * each), 1,000 (200), 5,000 (70); minSegment 5; fixtures/reference/shift_calibration.json). The binding cells
+ * are the short slowing-down records (n = 200 and 1,000); stationary records at n ≥ 1,000 gave no false
+ * positive at any of these constants.
  */
 export const SHIFT_PENALTY_CONSTANTS: readonly { rate: number; constant: number }[] = [
-  { rate: 0.01, constant: 4 },
-  { rate: 0.05, constant: 3 },
-  { rate: 0.1, constant: 2.5 },
+  { rate: 0.01, constant: 11.25 },
+  { rate: 0.05, constant: 5.79 },
+  { rate: 0.1, constant: 4.54 },
 ];
 
 /** Largest lag-1 coefficient the noise model takes; beyond it σ²_LR ∝ 1/(1 − φ)² is too unstable to use. */
