@@ -1,3 +1,5 @@
+import { quickselect } from 'simple-statistics';
+
 /** One abrupt shift of level. */
 export interface LevelShift {
   /** Grid index of the first observed point of the new level (0-based). */
@@ -17,13 +19,18 @@ export interface ShiftOptions {
 export const DEFAULT_MIN_SEGMENT = 5;
 
 /**
- * Penalty constants c(α): β = c · σ̂²_LR · ln(n) gives at most α false-positive records per record (see
- * detectShifts). PLACEHOLDER until the calibration run.
+ * Penalty constants c(α) of β = c · σ̂²_LR · ln(n_obs)/(1 − φ̂) (see detectShifts), calibrated once by
+ * tests/reference/calibrate_shifts.ts: for each null record the smallest c reporting no shift was found by
+ * bisection, and c(α) is the largest (1 − α) quantile of those over 21 cells (stationary AR(1), φ = 0, 0.5,
+ * 0.8, 0.9, 0.95, and two slowing-down nulls, φ 0.2→0.95 and φ 0.5→0.95 with sd 1→2; n = 200 (500 records
+ * each), 1,000 (200), 5,000 (70); minSegment 5; fixtures/reference/shift_calibration.json). The binding cells
+ * are the short slowing-down records (n = 200 and 1,000); stationary records at n ≥ 1,000 gave no false
+ * positive at any of these constants.
  */
 export const SHIFT_PENALTY_CONSTANTS: readonly { rate: number; constant: number }[] = [
-  { rate: 0.01, constant: 4 },
-  { rate: 0.05, constant: 3 },
-  { rate: 0.1, constant: 2.5 },
+  { rate: 0.01, constant: 11.25 },
+  { rate: 0.05, constant: 5.79 },
+  { rate: 0.1, constant: 4.54 },
 ];
 
 /** Largest lag-1 coefficient the noise model takes; beyond it σ²_LR ∝ 1/(1 − φ)² is too unstable to use. */
@@ -31,6 +38,77 @@ const PHI_MAX = 0.99;
 
 /** Most candidate change positions the dynamic programme searches at once (see detectShifts). */
 const MAX_SEARCH_POSITIONS = 2048;
+
+/** Φ⁻¹(3/4): median |Z| for standard normal Z, which makes the median absolute value a consistent sd. */
+const NORMAL_MAD = 0.6744897501960817;
+
+/** Penalty constant of the pilot search, which only proposes levels for the noise estimate (see detectShifts). */
+const PILOT_CONSTANT = 3;
+
+/**
+ * Penalty constant of the strict pilot, whose levels give the φ̂ in the penalty's 1/(1 − φ̂): it splits a
+ * null record so rarely that φ̂ keeps the record's full memory, yet finds shifts clear enough to inflate φ̂.
+ */
+const STRICT_PILOT_CONSTANT = 30;
+
+/**
+ * Largest φ the pilot's robust scale takes: its φ̂ is noisy near 1, and at 0.99 the scale could be a hundred
+ * times too large and hide a clear shift from the pilot.
+ */
+const PILOT_PHI_MAX = 0.95;
+
+/**
+ * Normal-consistent scale of values centred on zero: median|d| / Φ⁻¹(3/4); when more than half are exactly
+ * zero (coarsely quantised readings) the root mean square instead, so the scale is zero only for exactly
+ * constant input. Reorders `d`. O(n) expected (Floyd–Rivest selection, simple-statistics' quickselect).
+ * Source: Hampel (1974), JASA 69, 383–393 (median absolute deviation, from memory).
+ */
+function zeroCentredScale(d: Float64Array): number {
+  const n = d.length;
+  if (n === 0) return 0;
+  for (let i = 0; i < n; i++) d[i] = Math.abs(d[i]);
+  const k = (n - 1) >> 1;
+  // quickselect only reads and swaps elements, which a typed array supports.
+  quickselect(d as unknown as number[], k);
+  let med = d[k];
+  if (n % 2 === 0) {
+    let next = Infinity;
+    for (let i = k + 1; i < n; i++) if (d[i] < next) next = d[i];
+    med = (med + next) / 2;
+  }
+  if (med > 0) return med / NORMAL_MAD;
+  let ss = 0;
+  for (let i = 0; i < n; i++) ss += d[i] * d[i];
+  return Math.sqrt(ss / n);
+}
+
+/** Differences x[i+lag] − x[i] over pairs whose both ends are observed (not NaN). O(n). */
+function observedDifferences(x: Float64Array, lag: number): Float64Array {
+  const out = new Float64Array(Math.max(0, x.length - lag));
+  let k = 0;
+  for (let i = 0; i + lag < x.length; i++) {
+    const d = x[i + lag] - x[i];
+    if (!Number.isNaN(d)) out[k++] = d;
+  }
+  return out.subarray(0, k);
+}
+
+/**
+ * Long-run variance of AR(1) noise that level shifts hardly disturb, from differences at lags 1 and 2 (a
+ * shift touches only one or two of them): with s_k the normal-consistent median scale of x_{t+k} − x_t,
+ * Var(x_{t+k} − x_t) = 2σ²_y(1 − φ^k), so φ̂ = s₂²/s₁² − 1 (clamped to [0, 0.95]), σ̂²_y = s₁²/(2(1 − φ̂)),
+ * σ̂²_LR = σ̂²_y (1 + φ̂)/(1 − φ̂). Robust but noisy when φ is near 1, so used only for the pilot search.
+ * Missing points are skipped pairwise. O(n) expected. Source: Chakar, Lebarbier, Lévy-Leduc & Robin
+ * (2017), "A robust approach for estimating change-points in the mean of an AR(1) process", Bernoulli 23,
+ * 1408–1447 (the lag-1/lag-2 median estimator of φ, from memory).
+ */
+export function robustLongRunVariance(x: Float64Array): number {
+  const s1 = zeroCentredScale(observedDifferences(x, 1));
+  const s2 = zeroCentredScale(observedDifferences(x, 2));
+  if (!(s1 > 0)) return (s2 * s2) / 2;
+  const phi = Math.min(PILOT_PHI_MAX, Math.max(0, (s2 * s2) / (s1 * s1) - 1));
+  return ((s1 * s1) / (2 * (1 - phi)) * (1 + phi)) / (1 - phi);
+}
 
 /** Noise model of a record: AR(1) around piecewise-constant levels. */
 export interface ShiftNoise {
@@ -102,26 +180,37 @@ export function shiftPenaltyConstant(rate: number): number {
 }
 
 /**
- * Abrupt shifts of level in a series on a regular grid; NaN marks a missing point, skipped in every sum
- * (pass the gap-filled grid or the raw grid with NaN: interpolated points count as observed).
+ * Abrupt shifts of level in a series on a regular grid. NaN marks a missing point and is skipped in every
+ * sum (so either the raw grid with NaN or the gap-filled grid may be passed; filled points count as
+ * observed); a shift is reported at the first observed point of its new level.
  *
- * Model: x_t = μ_j + e_t on segments j, e an AR(1)-like stationary noise. Segments minimise
- * Σ_j Σ_{t∈j} (x_t − x̄_j)² + β·(number of shifts), each with ≥ minSegment observed points, where
- * β = c(α) · σ̂²_LR · ln(n_obs): least squares stays consistent for the shift positions under dependent
- * noise, and the penalty is scaled by the long-run variance σ̂²_LR (shiftNoise) instead of σ², because the
- * gain of a spurious split in dependent noise scales with σ²_LR. c(α) was calibrated by simulation so that
- * at most a share α of null records (AR(1) with φ up to 0.95, and records whose φ and variance rise as
- * before a fold) report any shift (SHIFT_PENALTY_CONSTANTS). The exact minimiser is found by PELT; above
- * 2,048 positions the search first runs over block boundaries (blocks of ⌈n/2048⌉ points) and then moves each
- * shift to the best single point within a block either side, given its neighbours. size = x̄_new − x̄_old.
+ * Model: x_t = μ_j + e_t on segments j, e a stationary AR(1)-like noise. The segments minimise
+ * Σ_j Σ_{t∈j} (x_t − x̄_j)² + β·(number of shifts), each with ≥ minSegment observed points, with
+ * β = c(α) · σ̂²_LR · ln(n_obs) / (1 − φ̂): least squares stays consistent for the shift positions under
+ * dependent noise, and the gain of a spurious split in dependent noise scales with the long-run variance
+ * σ²_LR, not with σ², so the penalty is scaled by σ̂²_LR; the extra 1/(1 − φ̂) widens it where σ̂²_LR itself
+ * is least certain (few effective observations when φ is near 1; without it the calibrated c for short
+ * records at φ = 0.95 was ten times that at φ = 0). The noise is estimated in steps, each protecting the
+ * next from what shifts and slowing down do to it: a pilot search (penalty 3 · robustLongRunVariance ·
+ * ln n) proposes levels with a scale that shifts hardly inflate; σ̂²_LR is the AR(1) long-run variance of
+ * the residuals about those levels (shiftNoise); φ̂ is the lag-1 coefficient about the levels of a strict
+ * pilot (constant 30), which keeps the full memory of a record without clear shifts. Both come from sums of
+ * squares and so follow the noisiest part of the record, which is what keeps rising variance and memory
+ * before a fold from looking like shifts. c(α) was calibrated by simulation so that at most a share α of
+ * null records (stationary AR(1) with φ up to 0.95 and records whose φ and variance rise as before a fold,
+ * n from 200 to 5,000) report any shift (SHIFT_PENALTY_CONSTANTS, calibrated with minSegment = 5; a longer
+ * minimum segment can only report fewer shifts). Each search is PELT; above 2,048 grid points it runs over block
+ * boundaries (blocks of ⌈n/2048⌉ points) and then moves each shift to the best single point within a block
+ * either side, given its neighbours. size = x̄_new − x̄_old over the adjacent segments.
  *
- * Cost: O(n) for the sums and the noise scale plus O(K²) for the search over K ≤ 2,048 positions in the
- * worst case (no shift, when PELT cannot prune), O(K) expected when shifts occur throughout.
+ * Cost: O(n) for the sums and the noise scales, plus O(K²) per search over K = min(n, 2,048) positions in
+ * the worst case (no shift, when PELT cannot prune), O(K) expected when shifts occur throughout.
  * Sources: Killick, Fearnhead & Eckley (2012), "Optimal detection of changepoints with a linear computational
  * cost", JASA 107, 1590–1598 (PELT, pruning with K = 0 for this cost); Lavielle & Moulines (2000), "Least-
  * squares estimation of an unknown number of shifts in a time series", J. Time Ser. Anal. 21, 33–59
  * (least squares under dependent noise, from memory); Chakar et al. (2017), Bernoulli 23, 1408–1447
- * (robust AR(1) noise scale, from memory).
+ * (robust AR(1) scale, from memory); Bai & Perron (2003), J. Appl. Econometrics 18, 1–22 (long-run
+ * variance from the residuals about the estimated levels, from memory).
  */
 export function detectShifts(x: Float64Array, options: ShiftOptions = {}): LevelShift[] {
   return shiftsWithPenalty(x, shiftPenaltyConstant(options.falsePositiveRate ?? 0.01), options.minSegment ?? DEFAULT_MIN_SEGMENT);
@@ -164,16 +253,16 @@ export function shiftsWithPenalty(x: Float64Array, constant: number, minSegment:
   const positions: number[] = [];
   for (let p = 0; p < n; p += block) positions.push(p);
   positions.push(n);
-  const segment = (longRunVariance: number): number[] => {
-    if (!(longRunVariance > 0)) return [];
-    const cuts = pelt(positions, cnt, s1, s2, constant * longRunVariance * logN, minSegment);
-    return block > 1 ? refine(cuts, block, n, cnt, cost, minSegment) : cuts;
-  };
-  // Pass 1 scales the penalty by the noise about one level: under no shift that is the right scale (and
-  // the calibrated rate is that of this pass alone); a real shift inflates it, so only clear shifts pass.
-  // Pass 2 re-estimates the noise about the levels pass 1 found and searches again.
-  let cuts = segment(shiftNoise(x).longRunVariance);
-  if (cuts.length > 0) cuts = segment(shiftNoise(x, [0, ...cuts, n]).longRunVariance);
+  // The pilots' robust scale is not inflated by a shift but is noisy near φ = 1, so it only proposes levels;
+  // the penalty's scale and φ̂ are fitted about them (see the doc comment).
+  const robust = robustLongRunVariance(x) * logN;
+  const pilot = pelt(positions, cnt, s1, s2, PILOT_CONSTANT * robust, minSegment);
+  const strict = pelt(positions, cnt, s1, s2, STRICT_PILOT_CONSTANT * robust, minSegment);
+  const { longRunVariance } = shiftNoise(x, [0, ...pilot, n]);
+  if (!(longRunVariance > 0)) return [];
+  const { phi } = shiftNoise(x, [0, ...strict, n]);
+  let cuts = pelt(positions, cnt, s1, s2, (constant * longRunVariance * logN) / (1 - phi), minSegment);
+  if (block > 1) cuts = refine(cuts, block, n, cnt, cost, minSegment);
 
   const bounds = [0, ...cuts, n];
   const mean = (a: number, b: number) => (s1[b] - s1[a]) / (cnt[b] - cnt[a]);

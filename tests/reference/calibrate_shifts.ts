@@ -5,7 +5,7 @@
  * c* at which the detector reports no shift (the number of shifts of an optimal partition never grows with
  * the penalty). A constant c then gives that cell a false-positive rate of #{c* > c}/R; c(α) is the largest
  * (1 − α) quantile of c* over all cells, so every cell stays at or below α in this sample. Seeds 7000 + cell.
- * Run once from the repo root (a few minutes per n on one core), e.g. in two shells:
+ * Run once from the repo root (about ten minutes for n = 200 and 1000, as long for 5000, on one core), e.g. in two shells:
  *   node --import tsx tests/reference/calibrate_shifts.ts 200,1000
  *   node --import tsx tests/reference/calibrate_shifts.ts 5000
  * then merge: node --import tsx tests/reference/calibrate_shifts.ts merge
@@ -16,7 +16,7 @@ import { RandomStream } from '../../lib/engine/random';
 import { DEFAULT_MIN_SEGMENT, shiftsWithPenalty } from '../../lib/engine/shifts';
 import { SLOWING_DOWN, simulateNull, stationary } from '../engine/shift-nulls';
 
-const RECORDS: Record<number, number> = { 200: 1000, 1000: 400, 5000: 200 };
+const RECORDS: Record<number, number> = { 200: 500, 1000: 200, 5000: 70 };
 const RATES = [0.01, 0.05, 0.1];
 const KINDS = [0, 0.5, 0.8, 0.9, 0.95].map(stationary).concat(SLOWING_DOWN);
 
@@ -28,7 +28,7 @@ function threshold(x: Float64Array): number {
     lo = hi;
     hi *= 2;
   }
-  for (let k = 0; k < 10; k++) {
+  for (let k = 0; k < 8; k++) {
     const mid = (lo + hi) / 2;
     if (any(mid)) lo = mid;
     else hi = mid;
