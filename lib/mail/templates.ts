@@ -1,7 +1,7 @@
 import { ANALYSIS_CAUTION } from '@/lib/engine/analyze';
 import { formatP, formatUtc, formatValue } from '@/lib/display/format';
 import { publicBaseUrl } from '@/lib/config';
-import { DIRECTION_WORDS } from '@/lib/display/analysis-labels';
+import { DIRECTION_WORDS, describeExtent } from '@/lib/display/analysis-labels';
 import { describeCalibration, kendallPLabel, tauThreshold, tauWithDirection, type CalibrationLine } from '@/lib/alerts/wording';
 
 /** A rendered message: the same content as plain text and as self-contained HTML (no remote images, no scripts). */
@@ -100,13 +100,15 @@ export function alertLink(alertId: number): string {
   return `${publicBaseUrl()}/alerts/${alertId}`;
 }
 
-function describeExtent(extent: number | string, points: number | null, what: string): string {
-  const base = typeof extent === 'number' ? `${Math.round(extent * 100)}% of ${what}` : extent;
-  return `${base}${points !== null ? ` (${Math.round(points)} points)` : ''}`;
+function withPoints(extent: number | string, points: number | null, what: string): string {
+  return `${describeExtent(extent, what)}${points !== null ? ` (${Math.round(points)} points)` : ''}`;
 }
 
+const SMOOTHERS: Partial<Record<string, string>> = { gaussian: 'Gaussian kernel smoothing', 'local-linear': 'local-linear Gaussian kernel smoothing' };
+
 function describeDetrending(e: AlertEvidence): string {
-  if (e.detrend === 'gaussian') return `Gaussian kernel smoothing, bandwidth ${e.bandwidth}${typeof e.bandwidth === 'number' ? ' of the record' : ''}${e.bandwidthPoints !== null ? ` (h = ${Math.round(e.bandwidthPoints)} points)` : ''}`;
+  const smoother = SMOOTHERS[e.detrend];
+  if (smoother) return `${smoother}, bandwidth ${describeExtent(e.bandwidth, 'the analysed stretch')}${e.bandwidthPoints !== null ? ` (kernel sd h = ${Math.round(e.bandwidthPoints)} points)` : ''}`;
   if (e.detrend === 'moving-average') return `centred moving average of ${e.bandwidthPoints ?? '?'} points`;
   return e.detrend;
 }
@@ -140,7 +142,7 @@ export function evidenceRows(e: AlertEvidence): Row[] {
     ['Surrogate p', e.surrogateCount > 0 ? `${formatP(e.surrogateP)} (${DIRECTION_WORDS[e.direction as 'rising'] ?? e.direction}) from ${e.surrogateCount} ${e.surrogateMethod ?? ''} surrogates`.replace(/\s+/g, ' ') : 'not tested (no surrogates in the series settings)'],
     ['Kendall p', `${kendallPLabel(e.kendallP)}, ${DIRECTION_WORDS[e.kendallDirection as 'rising'] ?? e.kendallDirection}`],
     ['Latest value', formatValue(e.latestValue)],
-    ['Rolling window', describeExtent(e.windowFraction, e.windowPoints, 'the analysed stretch')],
+    ['Rolling window', withPoints(e.windowFraction, e.windowPoints, 'the analysed stretch')],
     ['Detrending', describeDetrending(e)],
     span,
     ...(e.rule ? [['Rule', describeRule(e.rule)] as Row] : []),
