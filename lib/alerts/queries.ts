@@ -1,4 +1,4 @@
-import { QueryTypes } from 'sequelize';
+import { QueryTypes, Transaction } from 'sequelize';
 import { ALERT_STATES, Alert, AlertEvent, AlertRule, AnalysisSnapshot, Note, NoteRevision, RuleEvaluation, Series, User, db, type AlertKind, type AlertState } from '@/models';
 import { NotFoundError } from '@/lib/http/errors';
 import type { Actor } from '@/lib/auth/guard';
@@ -94,31 +94,36 @@ export async function fetchAlertQueue(query: AlertQueueQuery, actor: Pick<Actor,
 async function loadAlertQueue(query: AlertQueueQuery, actor: Pick<Actor, 'id'>, now: number) {
   const sequelize = await db();
   const filter = where(query, actor, query.queue, now);
-  const rows = await sequelize.query<Record<string, unknown>>(
-    `SELECT a.id, a.kind, a.state, a.severity, a.version, a.peak_tau, a.evaluation_count, a.dismiss_reason, a.created_at, a.updated_at, a.closed_at,
-            a.shift_time, a.shift_size, s.id AS series_id, s.slug, s.name AS series_name, s.time_zone, r.id AS rule_id, r.indicator, r.direction AS rule_direction,
-            u.id AS assignee_id, u.name AS assignee_name, e.tau, e.direction AS judged_direction, e.surrogate_p, e.kendall_p
-     FROM (SELECT a.id FROM alerts a WHERE ${filter.sql} ORDER BY ${ORDER[query.sort]} LIMIT :limit OFFSET :offset) page
-     JOIN alerts a ON a.id = page.id
-     JOIN series s ON s.id = a.series_id
-     LEFT JOIN alert_rules r ON r.id = a.rule_id
-     LEFT JOIN users u ON u.id = a.assignee_id
-     LEFT JOIN rule_evaluations e ON e.rule_id = a.rule_id AND e.snapshot_id = a.latest_snapshot_id
-     ORDER BY ${ORDER[query.sort]}`,
-    { replacements: { ...filter.replacements, limit: query.pageSize, offset: (query.page - 1) * query.pageSize }, type: QueryTypes.SELECT },
-  );
-  const counts = {} as Record<Exclude<AlertQueue, 'all'>, number>;
-  for (const queue of ['triage', 'escalated', 'mine', 'closed'] as const) {
-    const f = where({ ...query, state: undefined }, actor, queue, now);
-    const [row] = await sequelize.query<{ count: number }>(`SELECT COUNT(*) AS count FROM alerts a WHERE ${f.sql}`, { replacements: f.replacements, type: QueryTypes.SELECT });
-    counts[queue] = Number(row.count);
-  }
-  let total: number;
-  if (query.queue !== 'all' && !query.state) total = counts[query.queue];
-  else {
-    const [row] = await sequelize.query<{ count: number }>(`SELECT COUNT(*) AS count FROM alerts a WHERE ${filter.sql}`, { replacements: filter.replacements, type: QueryTypes.SELECT });
-    total = Number(row.count);
-  }
+  // One read transaction, so the page and the counts see the same moment even while a scheduler in another
+  // process opens an alert between the statements (else a count of 1 could stand beside an empty page).
+  const { rows, counts, total } = await sequelize.transaction({ type: Transaction.TYPES.DEFERRED }, async (transaction) => {
+    const rows = await sequelize.query<Record<string, unknown>>(
+      `SELECT a.id, a.kind, a.state, a.severity, a.version, a.peak_tau, a.evaluation_count, a.dismiss_reason, a.created_at, a.updated_at, a.closed_at,
+              a.shift_time, a.shift_size, s.id AS series_id, s.slug, s.name AS series_name, s.time_zone, r.id AS rule_id, r.indicator, r.direction AS rule_direction,
+              u.id AS assignee_id, u.name AS assignee_name, e.tau, e.direction AS judged_direction, e.surrogate_p, e.kendall_p
+       FROM (SELECT a.id FROM alerts a WHERE ${filter.sql} ORDER BY ${ORDER[query.sort]} LIMIT :limit OFFSET :offset) page
+       JOIN alerts a ON a.id = page.id
+       JOIN series s ON s.id = a.series_id
+       LEFT JOIN alert_rules r ON r.id = a.rule_id
+       LEFT JOIN users u ON u.id = a.assignee_id
+       LEFT JOIN rule_evaluations e ON e.rule_id = a.rule_id AND e.snapshot_id = a.latest_snapshot_id
+       ORDER BY ${ORDER[query.sort]}`,
+      { replacements: { ...filter.replacements, limit: query.pageSize, offset: (query.page - 1) * query.pageSize }, type: QueryTypes.SELECT, transaction },
+    );
+    const counts = {} as Record<Exclude<AlertQueue, 'all'>, number>;
+    for (const queue of ['triage', 'escalated', 'mine', 'closed'] as const) {
+      const f = where({ ...query, state: undefined }, actor, queue, now);
+      const [row] = await sequelize.query<{ count: number }>(`SELECT COUNT(*) AS count FROM alerts a WHERE ${f.sql}`, { replacements: f.replacements, type: QueryTypes.SELECT, transaction });
+      counts[queue] = Number(row.count);
+    }
+    let total: number;
+    if (query.queue !== 'all' && !query.state) total = counts[query.queue];
+    else {
+      const [row] = await sequelize.query<{ count: number }>(`SELECT COUNT(*) AS count FROM alerts a WHERE ${filter.sql}`, { replacements: filter.replacements, type: QueryTypes.SELECT, transaction });
+      total = Number(row.count);
+    }
+    return { rows, counts, total };
+  });
   const items: AlertListItem[] = rows.map((r) => ({
     id: Number(r.id),
     state: r.state as AlertState,
