@@ -3,7 +3,7 @@
 import { useQuery } from '@tanstack/react-query';
 import { api } from '@/components/api';
 import { healthNotices } from '@/lib/display/health-notices';
-import type { HealthReport } from '@/lib/health';
+import type { HealthReport } from '@/lib/runtime/health';
 
 /** Asked this often, so a scheduler that stops shows up within a minute on an open screen. */
 const CHECK_EVERY_MS = 30_000;

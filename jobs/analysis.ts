@@ -1,7 +1,7 @@
 import { Op } from 'sequelize';
 import { AnalysisSnapshot, Series, db } from '@/models';
-import { cronSetting } from '@/lib/config';
-import { withLease } from '@/lib/leases';
+import { cronSetting } from '@/lib/runtime/config';
+import { withLease } from '@/lib/db/leases';
 import { pruneSnapshotCurves, refreshSeriesAnalysis, unjudgedLatestSnapshots } from '@/lib/analysis/snapshot';
 import { evaluateSnapshots } from '@/lib/alerts/evaluate';
 import type { ScheduledJob } from './types';

@@ -1,6 +1,6 @@
 import { requeueAbandonedBacktests, runNextBacktest } from '@/lib/backtest/jobs';
-import { cronSetting } from '@/lib/config';
-import { withLease } from '@/lib/leases';
+import { cronSetting } from '@/lib/runtime/config';
+import { withLease } from '@/lib/db/leases';
 import type { ScheduledJob } from './types';
 
 const LEASE = 'backtests';

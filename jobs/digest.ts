@@ -1,5 +1,5 @@
-import { cronSetting } from '@/lib/config';
-import { withLease } from '@/lib/leases';
+import { cronSetting } from '@/lib/runtime/config';
+import { withLease } from '@/lib/db/leases';
 import { enqueueDigests } from '@/lib/mail/digest';
 import type { ScheduledJob } from './types';
 

@@ -1,4 +1,4 @@
-import { cronSetting } from '@/lib/config';
+import { cronSetting } from '@/lib/runtime/config';
 import { runDropIntake } from '@/lib/intake/drop-folders';
 import type { ScheduledJob } from './types';
 

@@ -1,4 +1,4 @@
-import { cronSetting } from '@/lib/config';
+import { cronSetting } from '@/lib/runtime/config';
 import { deliverDueMail } from '@/lib/mail/sender';
 import type { ScheduledJob } from './types';
 

@@ -1,10 +1,10 @@
 import cron from 'node-cron';
-import { assertConfig } from '@/lib/config';
+import { assertConfig } from '@/lib/runtime/config';
 import { migrateUp } from '@/migrations';
 import { closeDatabase } from '@/models';
-import { writeAppState } from '@/lib/app-state';
-import { SCHEDULER_HEARTBEAT_KEY } from '@/lib/health';
-import { PROCESS_HOLDER } from '@/lib/leases';
+import { writeAppState } from '@/lib/db/app-state';
+import { SCHEDULER_HEARTBEAT_KEY } from '@/lib/runtime/health';
+import { PROCESS_HOLDER } from '@/lib/db/leases';
 import { JOBS } from './index';
 
 const HEARTBEAT_MS = 15_000;

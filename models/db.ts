@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import sqlite3, { type Database } from 'sqlite3';
 import { Sequelize, Transaction } from 'sequelize';
-import { busyTimeoutMs, config, databasePath } from '@/lib/config';
+import { busyTimeoutMs, config, databasePath } from '@/lib/runtime/config';
 import { closeReadCache } from '@/lib/db/read-cache';
 
 type Cached = { sequelize: Sequelize; path: string; ready: Promise<void> };

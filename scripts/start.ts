@@ -1,6 +1,6 @@
 import { spawn, type ChildProcess } from 'node:child_process';
 import path from 'node:path';
-import { assertConfig, dataDir, databasePath } from '@/lib/config';
+import { assertConfig, dataDir, databasePath } from '@/lib/runtime/config';
 import { ensureAuthSecret } from '@/lib/runtime/secret';
 import { buildIfNeeded } from '@/lib/runtime/build';
 import { startMailSink } from '@/lib/mail/sink';

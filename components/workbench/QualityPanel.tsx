@@ -1,7 +1,7 @@
 import { LocalTime } from '@/components/LocalTime';
 import { Empty } from '@/components/States';
 import type { AnalysisView } from '@/lib/analysis/view';
-import type { IntakeRunSummary } from '@/lib/workbench';
+import type { IntakeRunSummary } from '@/lib/series/workbench';
 import { stretchReason } from '@/lib/display/analysis-labels';
 import { formatValue } from '@/lib/display/format';
 

@@ -1,5 +1,5 @@
 import bcrypt from 'bcryptjs';
-import { config } from '@/lib/config';
+import { config } from '@/lib/runtime/config';
 
 /** bcrypt work factor; 10 is the floor recommended by OWASP's password storage cheat sheet (common practice), enforced by the configuration schema. */
 export const BCRYPT_COST = config().BCRYPT_COST;

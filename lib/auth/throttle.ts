@@ -1,5 +1,5 @@
 import { SignInThrottle, db } from '@/models';
-import { config } from '@/lib/config';
+import { config } from '@/lib/runtime/config';
 
 /** Failures allowed inside the window before a key is locked, and how long the lock lasts. */
 export const THROTTLE = {

@@ -1,5 +1,5 @@
 import sqlite3, { type Database } from 'sqlite3';
-import { busyTimeoutMs, databasePath } from '@/lib/config';
+import { busyTimeoutMs, databasePath } from '@/lib/runtime/config';
 
 /**
  * Answers of hot reads (the overview, alert queues, the series workbench and detail, the series pickers, the

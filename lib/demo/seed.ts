@@ -1,6 +1,6 @@
 import { AlertRule, Observation, Series, Transition, User, Watch, db, writeTransaction, type Role } from '@/models';
 import { hashPassword } from '@/lib/auth/password';
-import { readAppState, writeAppState } from '@/lib/app-state';
+import { readAppState, writeAppState } from '@/lib/db/app-state';
 import { recordAudit } from '@/lib/audit';
 import { createSeries } from '@/lib/series/registry';
 import { buildDemoScenario, type DemoSeries } from './scenario';

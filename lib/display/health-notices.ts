@@ -1,4 +1,4 @@
-import type { HealthReport } from '@/lib/health';
+import type { HealthReport } from '@/lib/runtime/health';
 import { formatAge, formatUtc } from './format';
 
 export interface HealthNotice {

@@ -1,8 +1,8 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { Series, db } from '@/models';
-import { dropDir } from '@/lib/config';
-import { withLease } from '@/lib/leases';
+import { dropDir } from '@/lib/runtime/config';
+import { withLease } from '@/lib/db/leases';
 import { slugSchema } from '@/lib/schemas/series';
 import { hashFile } from './content-hash';
 import { ingestObservations, sweepStaleRuns, type IngestOutcome } from './pipeline';

@@ -3,7 +3,7 @@ import { Op, Transaction } from 'sequelize';
 import { IngestRun, Series, db, writeTransaction } from '@/models';
 import type { IngestSource, IngestStatus } from '@/models/IngestRun';
 import { recordAudit } from '@/lib/audit';
-import { acquireLease, PROCESS_HOLDER, releaseLease, withLease } from '@/lib/leases';
+import { acquireLease, PROCESS_HOLDER, releaseLease, withLease } from '@/lib/db/leases';
 import type { PushedObservation } from '@/lib/schemas/observation';
 import { CsvFileError, readCsv, type CsvInput, type CsvLayout } from './csv';
 import { collectCsvRows, collectPushedRows, type CollectedRows, type IntakeMapping, type RejectedRow } from './rows';

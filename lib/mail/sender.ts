@@ -2,8 +2,8 @@ import crypto from 'node:crypto';
 import nodemailer from 'nodemailer';
 import { QueryTypes } from 'sequelize';
 import { db } from '@/models';
-import { mailFrom, mailRetryPolicy, smtpUrl } from '@/lib/config';
-import { PROCESS_HOLDER } from '@/lib/leases';
+import { mailFrom, mailRetryPolicy, smtpUrl } from '@/lib/runtime/config';
+import { PROCESS_HOLDER } from '@/lib/db/leases';
 import { sqlDate } from '@/lib/db/sql-date';
 
 /** How long a 'sending' claim protects a message; past it, the claim counts as abandoned (its sender died). */

@@ -1,7 +1,7 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { SMTPServer } from 'smtp-server';
-import { mailboxDir } from '@/lib/config';
+import { mailboxDir } from '@/lib/runtime/config';
 
 export interface SinkMessage {
   id: string;

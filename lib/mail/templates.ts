@@ -1,6 +1,6 @@
 import { ANALYSIS_CAUTION } from '@/lib/engine/analyze';
 import { formatP, formatUtc, formatValue } from '@/lib/display/format';
-import { publicBaseUrl } from '@/lib/config';
+import { publicBaseUrl } from '@/lib/runtime/config';
 import { DIRECTION_WORDS, describeExtent } from '@/lib/display/analysis-labels';
 import { describeCalibration, kendallPLabel, tauThreshold, tauWithDirection, type CalibrationLine } from '@/lib/alerts/wording';
 

@@ -1,6 +1,6 @@
 import fs from 'node:fs';
 import path from 'node:path';
-import { dataDir } from '@/lib/config';
+import { dataDir } from '@/lib/runtime/config';
 import { db } from '@/models';
 
 /**

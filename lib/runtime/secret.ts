@@ -1,7 +1,7 @@
 import crypto from 'node:crypto';
 import fs from 'node:fs';
 import path from 'node:path';
-import { config, dataDir } from '@/lib/config';
+import { config, dataDir } from '@/lib/runtime/config';
 
 /**
  * NEXTAUTH_SECRET signs session cookies. When the environment gives none, one is generated on first start and kept

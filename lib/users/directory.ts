@@ -2,7 +2,7 @@ import { UniqueConstraintError } from 'sequelize';
 import { User, db, writeTransaction } from '@/models';
 import { ConflictError, NotFoundError } from '@/lib/http/errors';
 import { recordAudit } from '@/lib/audit';
-import { publicBaseUrl } from '@/lib/config';
+import { publicBaseUrl } from '@/lib/runtime/config';
 import type { Actor } from '@/lib/auth/guard';
 import { enqueueMail } from '@/lib/mail/outbox';
 import { invitationMail } from '@/lib/mail/templates';

@@ -1,6 +1,6 @@
 import { User, db, writeTransaction } from '@/models';
 import { recordAudit } from '@/lib/audit';
-import { publicBaseUrl } from '@/lib/config';
+import { publicBaseUrl } from '@/lib/runtime/config';
 import { hashPassword } from '@/lib/auth/password';
 import { enqueueMail } from '@/lib/mail/outbox';
 import { passwordResetMail } from '@/lib/mail/templates';

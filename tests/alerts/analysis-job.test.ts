@@ -5,7 +5,7 @@ useTempDataDir();
 
 import { migrateUp } from '@/migrations';
 import { Alert, AnalysisSnapshot, Observation, Series, db } from '@/models';
-import { acquireLease, releaseLease } from '@/lib/leases';
+import { acquireLease, releaseLease } from '@/lib/db/leases';
 import { CURVES_KEPT, pruneSnapshotCurves, refreshSeriesAnalysis } from '@/lib/analysis/snapshot';
 import { curvesOf, thinnedIndices } from '@/lib/analysis/curves';
 import { runAnalysis } from '@/lib/engine/analyze';

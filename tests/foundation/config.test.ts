@@ -1,7 +1,7 @@
 import { spawnSync } from 'node:child_process';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { ConfigError, config } from '@/lib/config';
+import { ConfigError, config } from '@/lib/runtime/config';
 
 const ROOT = path.resolve(__dirname, '../..');
 

@@ -7,7 +7,7 @@ import { afterAll, describe, expect, test } from 'vitest';
 const unreachable = fs.mkdtempSync(path.join(os.tmpdir(), 'bw-no-db-'));
 process.env.DATA_DIR = unreachable;
 process.env.DATABASE_PATH = unreachable;
-const { fetchHealth } = await import('@/lib/health');
+const { fetchHealth } = await import('@/lib/runtime/health');
 const { closeDatabase } = await import('@/models');
 
 describe('health when the database cannot be reached', () => {

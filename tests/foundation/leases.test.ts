@@ -4,7 +4,7 @@ import { useTempDataDir } from '../support/temp-db';
 useTempDataDir();
 const { migrateUp } = await import('@/migrations');
 const { closeDatabase } = await import('@/models');
-const { acquireLease, releaseLease, renewLease } = await import('@/lib/leases');
+const { acquireLease, releaseLease, renewLease } = await import('@/lib/db/leases');
 
 describe('database leases', () => {
   beforeAll(async () => {

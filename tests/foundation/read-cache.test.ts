@@ -7,7 +7,7 @@ useTempDataDir('bw-read-cache-');
 
 const { migrateUp } = await import('@/migrations');
 const { AppState, closeDatabase, db } = await import('@/models');
-const { databasePath } = await import('@/lib/config');
+const { databasePath } = await import('@/lib/runtime/config');
 const { cachedRead } = await import('@/lib/db/read-cache');
 
 beforeAll(async () => {

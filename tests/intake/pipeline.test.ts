@@ -9,7 +9,7 @@ const { createSeries } = await import('@/lib/series/registry');
 const { ingestObservations, previewObservations, sweepStaleRuns } = await import('@/lib/intake/pipeline');
 const { contentHashOf } = await import('@/lib/intake/content-hash');
 const { loadObservations } = await import('@/lib/analysis/observations');
-const { acquireLease } = await import('@/lib/leases');
+const { acquireLease } = await import('@/lib/db/leases');
 
 beforeAll(async () => {
   await migrateUp();

@@ -3,7 +3,7 @@ import { formatLocal, formatP, formatTau, formatUtc, formatValue } from '@/lib/d
 import { SPARK_POINTS, sparkline, sparkPath } from '@/lib/display/sparkline';
 import { calendarTicks } from '@/lib/display/time-ticks';
 import { healthNotices } from '@/lib/display/health-notices';
-import type { HealthReport } from '@/lib/health';
+import type { HealthReport } from '@/lib/runtime/health';
 
 describe('display formats', () => {
   it('shows instants in the series time zone across a summer-time change', () => {

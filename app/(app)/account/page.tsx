@@ -1,5 +1,5 @@
 import { AccountForms } from '@/components/AccountForms';
-import { fetchAccount } from '@/lib/account';
+import { fetchAccount } from '@/lib/users/account';
 import { requireRole } from '@/lib/auth/guard';
 import { listSeriesChoices } from '@/lib/series/registry';
 

@@ -2,7 +2,7 @@ import { NextResponse } from 'next/server';
 import { requireRole } from '@/lib/auth/guard';
 import { handle } from '@/lib/http/handler';
 import { readJson } from '@/lib/http/body';
-import { changePassword, fetchAccount, renameAccount } from '@/lib/account';
+import { changePassword, fetchAccount, renameAccount } from '@/lib/users/account';
 import { accountUpdateSchema, passwordChangeSchema } from '@/lib/schemas/account';
 
 /** GET (any role): who am I. */

@@ -1,5 +1,5 @@
 import { NextResponse } from 'next/server';
-import { fetchHealth } from '@/lib/health';
+import { fetchHealth } from '@/lib/runtime/health';
 
 export const dynamic = 'force-dynamic';
 

@@ -1,6 +1,6 @@
 import { AuditLog } from '@/components/admin/AuditLog';
 import { requireRole } from '@/lib/auth/guard';
-import { fetchAuditPage } from '@/lib/audit-log';
+import { fetchAuditPage } from '@/lib/audit/log';
 
 export const metadata = { title: 'Audit log' };
 

@@ -6,7 +6,7 @@ import { AlertStateBadge, SeverityBadge } from '@/components/Badges';
 import { Caution } from '@/components/Caution';
 import { LocalTime } from '@/components/LocalTime';
 import { Empty, Panel } from '@/components/States';
-import { fetchAlertPage } from '@/lib/alert-page';
+import { fetchAlertPage } from '@/lib/alerts/page-data';
 import { requireRole } from '@/lib/auth/guard';
 import { formatP, formatTau, formatValue } from '@/lib/display/format';
 import { DIRECTION_WORDS } from '@/lib/display/analysis-labels';

@@ -8,7 +8,7 @@ import { ErrorNote } from '@/components/States';
 import { QualityPanel } from '@/components/workbench/QualityPanel';
 import { Workbench } from '@/components/workbench/Workbench';
 import { requireRole } from '@/lib/auth/guard';
-import { fetchWorkbench } from '@/lib/workbench';
+import { fetchWorkbench } from '@/lib/series/workbench';
 import { roleAtLeast } from '@/models/roles';
 
 export const metadata = { title: 'Series' };

@@ -1,6 +1,6 @@
 import { NextResponse } from 'next/server';
 import { requireRole } from '@/lib/auth/guard';
-import { smtpConfigured } from '@/lib/config';
+import { smtpConfigured } from '@/lib/runtime/config';
 import { handle } from '@/lib/http/handler';
 import { listSinkMessages, messageText } from '@/lib/mail/sink';
 

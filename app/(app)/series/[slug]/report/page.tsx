@@ -6,7 +6,7 @@ import { ReportCharts } from '@/components/workbench/ReportCharts';
 import { requireRole } from '@/lib/auth/guard';
 import { formatP, formatTau } from '@/lib/display/format';
 import { describeExtent, formatDirection, stretchReason } from '@/lib/display/analysis-labels';
-import { fetchWorkbench } from '@/lib/workbench';
+import { fetchWorkbench } from '@/lib/series/workbench';
 
 export const metadata = { title: 'Report' };
 

@@ -1,7 +1,7 @@
 import { Op } from 'sequelize';
 import { MailMessage, db } from '@/models';
-import { readAppState } from '@/lib/app-state';
-import { smtpConfigured } from '@/lib/config';
+import { readAppState } from '@/lib/db/app-state';
+import { smtpConfigured } from '@/lib/runtime/config';
 
 export const SCHEDULER_HEARTBEAT_KEY = 'scheduler.heartbeat';
 /** The scheduler beats every 15 s; three missed beats and it counts as down. */
