@@ -1,17 +1,13 @@
-import { z } from 'zod';
 import { loadObservations } from '@/lib/analysis/observations';
 import { runAnalysis } from '@/lib/engine/analyze';
 import { AnalysisInputError } from '@/lib/engine/errors';
-import { analysisSettingsSchema, type AnalysisSettings } from '@/lib/engine/settings';
+import type { AnalysisSettings } from '@/lib/engine/settings';
 import { UnprocessableError } from '@/lib/http/errors';
 import type { Series } from '@/models';
 import { PREVIEW_MAX_SURROGATES } from './preview-limits';
 import { seriesBreaks } from './snapshot';
 import { viewFromResult, type AnalysisView } from './view';
 
-
-/** Body of a preview request: the settings to try (any omitted field takes the engine default). */
-export const previewRequestSchema = z.object({ settings: analysisSettingsSchema });
 
 /** Caps the cost of a what-if run so one request cannot occupy the server. */
 export function boundedSettings(settings: AnalysisSettings): AnalysisSettings {

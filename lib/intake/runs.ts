@@ -1,14 +1,6 @@
-import { z } from 'zod';
 import { IngestRun, Series, db } from '@/models';
 import { NotFoundError } from '@/lib/http/errors';
-
-export const ingestRunQuerySchema = z.object({
-  series: z.string().max(64).optional(),
-  status: z.enum(['running', 'succeeded', 'rejected', 'failed']).optional(),
-  page: z.coerce.number().int().min(1).default(1),
-  pageSize: z.coerce.number().int().min(1).max(200).default(25),
-});
-export type IngestRunQuery = z.infer<typeof ingestRunQuerySchema>;
+import type { IngestRunQuery } from '@/lib/schemas/intake';
 
 function presentRun(run: IngestRun & { series?: Series | null }) {
   return {

@@ -1,12 +1,9 @@
 import Papa from 'papaparse';
-import { z } from 'zod';
 import { analyseStored, boundedSettings } from '@/lib/analysis/preview';
 import type { AnalysisSummary } from '@/lib/engine/analyze';
 import { analysisSettingsSchema, type AnalysisSettings, type IndicatorName } from '@/lib/engine/settings';
 import { AnalysisSnapshot, WITHOUT_CHARTS, db, type Series } from '@/models';
 
-export const exportQuerySchema = z.object({ format: z.enum(['csv', 'json']).default('csv') });
-export const exportBodySchema = z.object({ settings: analysisSettingsSchema });
 
 export interface IndicatorTable {
   series: { slug: string; name: string; unit: string; timeZone: string };

@@ -2,7 +2,8 @@ import { NextResponse } from 'next/server';
 import { requireRole } from '@/lib/auth/guard';
 import { handle } from '@/lib/http/handler';
 import { readQuery } from '@/lib/http/body';
-import { ingestRunQuerySchema, listIngestRuns } from '@/lib/intake/runs';
+import { listIngestRuns } from '@/lib/intake/runs';
+import { ingestRunQuerySchema } from '@/lib/schemas/intake';
 
 export const GET = handle(async (request) => {
   await requireRole('viewer');

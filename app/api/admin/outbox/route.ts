@@ -1,15 +1,9 @@
 import { NextResponse } from 'next/server';
-import { z } from 'zod';
 import { requireRole } from '@/lib/auth/guard';
 import { handle } from '@/lib/http/handler';
 import { readQuery } from '@/lib/http/body';
 import { fetchOutbox } from '@/lib/mail/outbox';
-
-const outboxQuerySchema = z.object({
-  status: z.enum(['pending', 'sending', 'sent', 'failed']).optional(),
-  page: z.coerce.number().int().min(1).default(1),
-  pageSize: z.coerce.number().int().min(1).max(200).default(50),
-});
+import { outboxQuerySchema } from '@/lib/schemas/mail';
 
 export const GET = handle(async (request) => {
   await requireRole('admin');

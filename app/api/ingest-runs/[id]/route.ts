@@ -1,12 +1,10 @@
 import { NextResponse } from 'next/server';
-import { z } from 'zod';
 import { requireRole } from '@/lib/auth/guard';
 import { handle } from '@/lib/http/handler';
+import { idParam } from '@/lib/http/params';
 import { fetchIngestRun } from '@/lib/intake/runs';
-
-const idSchema = z.coerce.number().int().positive();
 
 export const GET = handle<{ id: string }>(async (request, { params }) => {
   await requireRole('viewer');
-  return NextResponse.json(await fetchIngestRun(idSchema.parse((await params).id)));
+  return NextResponse.json(await fetchIngestRun(idParam((await params).id, 'Ingest run')));
 });

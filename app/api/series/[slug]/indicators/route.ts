@@ -3,7 +3,8 @@ import { requireRole } from '@/lib/auth/guard';
 import { handle } from '@/lib/http/handler';
 import { readJson, readQuery } from '@/lib/http/body';
 import { findSeriesBySlug } from '@/lib/series/registry';
-import { buildIndicatorTable, exportBodySchema, exportQuerySchema, indicatorTableCsv, type IndicatorTable } from '@/lib/reports/indicator-export';
+import { buildIndicatorTable, indicatorTableCsv, type IndicatorTable } from '@/lib/reports/indicator-export';
+import { analysisRequestSchema, indicatorExportQuerySchema } from '@/lib/schemas/analysis';
 
 function respond(table: IndicatorTable, format: 'csv' | 'json'): Response {
   const name = `${table.series.slug}-indicators.${format}`;
@@ -16,7 +17,7 @@ function respond(table: IndicatorTable, format: 'csv' | 'json'): Response {
 export const GET = handle<{ slug: string }>(async (request, { params }) => {
   await requireRole('viewer');
   const { slug } = await params;
-  const { format } = readQuery(request, exportQuerySchema);
+  const { format } = readQuery(request, indicatorExportQuerySchema);
   const series = await findSeriesBySlug(slug);
   return respond(await buildIndicatorTable(series), format);
 });
@@ -25,8 +26,8 @@ export const GET = handle<{ slug: string }>(async (request, { params }) => {
 export const POST = handle<{ slug: string }>(async (request, { params }) => {
   await requireRole('analyst');
   const { slug } = await params;
-  const { format } = readQuery(request, exportQuerySchema);
+  const { format } = readQuery(request, indicatorExportQuerySchema);
   const series = await findSeriesBySlug(slug);
-  const { settings } = await readJson(request, exportBodySchema);
+  const { settings } = await readJson(request, analysisRequestSchema);
   return respond(await buildIndicatorTable(series, settings), format);
 });

@@ -1,12 +1,10 @@
 import { NextResponse } from 'next/server';
-import { z } from 'zod';
 import { requireRole } from '@/lib/auth/guard';
 import { handle } from '@/lib/http/handler';
 import { readJson } from '@/lib/http/body';
 import { findSeriesBySlug } from '@/lib/series/registry';
 import { issueIngestToken, listIngestTokens, presentToken } from '@/lib/intake/tokens';
-
-const issueSchema = z.object({ label: z.string().trim().max(200).default('') }).strict();
+import { tokenIssueSchema } from '@/lib/schemas/intake';
 
 export const GET = handle<{ slug: string }>(async (request, { params }) => {
   await requireRole('admin');
@@ -20,6 +18,6 @@ export const POST = handle<{ slug: string }>(async (request, { params }) => {
   const actor = await requireRole('admin');
   const { slug } = await params;
   const series = await findSeriesBySlug(slug);
-  const { label } = await readJson(request, issueSchema);
+  const { label } = await readJson(request, tokenIssueSchema);
   return NextResponse.json(await issueIngestToken(series.id, label, actor), { status: 201 });
 });

@@ -1,0 +1,11 @@
+import { z } from 'zod';
+import { analysisSettingsSchema } from '@/lib/engine/settings';
+
+/**
+ * Body of a what-if analysis of a stored series (the preview, and the indicator export with other settings): the
+ * settings to try; any omitted field takes the engine default.
+ */
+export const analysisRequestSchema = z.object({ settings: analysisSettingsSchema });
+
+/** GET/POST /api/series/{slug}/indicators: the table as CSV (default) or JSON. */
+export const indicatorExportQuerySchema = z.object({ format: z.enum(['csv', 'json']).default('csv') });
