@@ -1,5 +1,5 @@
 import { unjudgedWindows } from '@/lib/engine/coverage';
-import { accurateMean, type DetrendMethod } from '@/lib/engine/detrend';
+import { GAUSS_REACH, accurateMean, gaussianKernelSums, type DetrendMethod } from '@/lib/engine/detrend';
 import { AnalysisInputError } from '@/lib/engine/errors';
 import { extentPoints } from '@/lib/engine/extent';
 import { inverseRealFft, nextPowerOfTwo, realFft } from '@/lib/engine/fft';
@@ -117,8 +117,6 @@ export function replayGeometry(
   };
 }
 
-/** exp(−d²/2h²) < 1e-17 beyond 8.86 h, as in lib/engine/detrend.ts. */
-const GAUSS_REACH = 8.86;
 
 /**
  * Point-in-time residuals: each point detrended with the trend of the record available when it arrived,
@@ -213,19 +211,7 @@ function causalKernelResidual(x: Float64Array, h: number, localLinear: boolean, 
   const n = x.length;
   if (!(h > 0)) throw new AnalysisInputError(`bandwidth must be positive (got ${h} points)`);
   const L = Math.max(0, Math.min(n - 1, Math.ceil(GAUSS_REACH * h)));
-  const k0 = new Float64Array(L + 1);
-  const k1 = new Float64Array(L + 1);
-  const s0 = new Float64Array(L + 1);
-  const s1 = new Float64Array(L + 1);
-  const s2 = new Float64Array(L + 1);
-  let a0 = 0, a1 = 0, a2 = 0;
-  for (let d = 0; d <= L; d++) {
-    k0[d] = Math.exp(-(d * d) / (2 * h * h));
-    k1[d] = d * k0[d];
-    s0[d] = a0 += k0[d];
-    s1[d] = a1 += k1[d];
-    s2[d] = a2 += d * k1[d];
-  }
+  const { k0, k1, s0, s1, s2 } = gaussianKernelSums(h, L);
   // Centring first keeps large offsets from costing digits (both smoothers reproduce a constant exactly).
   const mean = accurateMean(x);
   const c = Float64Array.from(x, (v) => v - mean);

@@ -49,7 +49,40 @@ export function linearFit(x: ArrayLike<number>, y: ArrayLike<number>): { interce
 }
 
 /** exp(−d²/2h²) falls below 1e-17 for |d| > GAUSS_REACH·h (√(2 ln 1e17) ≈ 8.85). */
-const GAUSS_REACH = 8.86;
+export const GAUSS_REACH = 8.86;
+
+/**
+ * The Gaussian kernel k0[d] = exp(−d²/2h²) and k1[d] = d·k0[d] for d = 0..L, with the cumulative sums
+ * s0[d] = Σ_{e≤d} k0[e], s1[d] = Σ e·k0[e], s2[d] = Σ e²·k0[e] that give the kernel moments S0, S1, S2 of any window
+ * cut by the ends of a record. Shared by the two-sided smoothers here and the one-sided ones of backtests. O(L).
+ */
+export function gaussianKernelSums(h: number, L: number): { k0: Float64Array; k1: Float64Array; s0: Float64Array; s1: Float64Array; s2: Float64Array } {
+  const k0 = new Float64Array(L + 1);
+  const k1 = new Float64Array(L + 1);
+  const s0 = new Float64Array(L + 1);
+  const s1 = new Float64Array(L + 1);
+  const s2 = new Float64Array(L + 1);
+  let a0 = 0, a1 = 0, a2 = 0;
+  for (let d = 0; d <= L; d++) {
+    k0[d] = Math.exp(-(d * d) / (2 * h * h));
+    k1[d] = d * k0[d];
+    s0[d] = a0 += k0[d];
+    s1[d] = a1 += k1[d];
+    s2[d] = a2 += d * k1[d];
+  }
+  return { k0, k1, s0, s1, s2 };
+}
+
+/** x − mean, or null when every value equals the mean (a smoother then returns the mean exactly). O(n). */
+function centredOrNull(x: Float64Array, mean: number): Float64Array | null {
+  const centred = new Float64Array(x.length);
+  let any = false;
+  for (let i = 0; i < x.length; i++) {
+    centred[i] = x[i] - mean;
+    if (centred[i] !== 0) any = true;
+  }
+  return any ? centred : null;
+}
 
 /**
  * Nadaraya–Watson smoother with a Gaussian kernel on the index grid:
@@ -72,16 +105,10 @@ export function gaussianSmooth(x: Float64Array, h: number): Float64Array {
   const reach = Math.ceil(GAUSS_REACH * h);
   const L = Math.min(n - 1, reach);
   const size = nextPowerOfTwo(n + L);
-  const kernel = new Float64Array(L + 1);
-  for (let d = 0; d <= L; d++) kernel[d] = Math.exp(-(d * d) / (2 * h * h));
+  const { k0: kernel, s0: cum } = gaussianKernelSums(h, L);
 
-  const centred = new Float64Array(n);
-  let any = false;
-  for (let i = 0; i < n; i++) {
-    centred[i] = x[i] - mean;
-    if (centred[i] !== 0) any = true;
-  }
-  if (!any) return out;
+  const centred = centredOrNull(x, mean);
+  if (!centred) return out;
 
   const X = realFft(centred, size);
   const { even: K } = gaussianSpectra(h, n, L, size, false);
@@ -92,9 +119,6 @@ export function gaussianSmooth(x: Float64Array, h: number): Float64Array {
   const num = inverseRealFft(X.re, X.im, size);
 
   // den_i = Σ_{d=−min(i,L)}^{min(n−1−i,L)} k_|d| from cumulative sums of positive terms.
-  const cum = new Float64Array(L + 1);
-  let acc = 0;
-  for (let d = 0; d <= L; d++) cum[d] = acc += kernel[d];
   for (let i = 0; i < n; i++) {
     const den = cum[Math.min(i, L)] + cum[Math.min(n - 1 - i, L)] - kernel[0];
     out[i] = mean + num[i] / den;
@@ -175,24 +199,9 @@ export function localLinearSmooth(x: Float64Array, h: number): Float64Array {
   if (n < 2) return out;
   const L = Math.min(n - 1, Math.ceil(GAUSS_REACH * h));
   const size = nextPowerOfTwo(n + L);
-  const k0 = new Float64Array(L + 1);
-  const c0 = new Float64Array(L + 1);
-  const c1 = new Float64Array(L + 1);
-  const c2 = new Float64Array(L + 1);
-  let a0 = 0, a1 = 0, a2 = 0;
-  for (let d = 0; d <= L; d++) {
-    k0[d] = Math.exp(-(d * d) / (2 * h * h));
-    c0[d] = a0 += k0[d];
-    c1[d] = a1 += d * k0[d];
-    c2[d] = a2 += d * d * k0[d];
-  }
-  const centred = new Float64Array(n);
-  let any = false;
-  for (let i = 0; i < n; i++) {
-    centred[i] = x[i] - mean;
-    if (centred[i] !== 0) any = true;
-  }
-  if (!any) return out;
+  const { k0, s0: c0, s1: c1, s2: c2 } = gaussianKernelSums(h, L);
+  const centred = centredOrNull(x, mean);
+  if (!centred) return out;
   const X = realFft(centred, size);
   const { even, slope } = gaussianSpectra(h, n, L, size, true);
   const re0 = new Float64Array(even.length);

@@ -1,22 +1,12 @@
 import { describe, expect, it } from 'vitest';
+import { DAY, days, rule as baseRule } from './helpers';
 import { fitRestoringModel, simulateRestoring } from '@/lib/backtest/fold';
 import type { ReplayRule } from '@/lib/backtest/replay';
 import { runBacktest, type RocPoint } from '@/lib/backtest/run';
 import { cessiFolds, simulateAr1, simulateCessi } from '@/lib/demo/models';
 import { analysisSettingsSchema } from '@/lib/engine/settings';
 
-const DAY = 86_400_000;
-const days = (n: number) => Float64Array.from({ length: n }, (_, i) => Date.UTC(2000, 0, 1) + i * DAY);
-const rule = (over: Partial<ReplayRule> = {}): ReplayRule => ({
-  indicator: 'ac1',
-  minTau: 0.3,
-  maxSurrogateP: null,
-  levelThreshold: null,
-  levelDirection: 'above',
-  persistence: 2,
-  quietPeriodHours: 0,
-  ...over,
-});
+const rule = (over: Partial<ReplayRule> = {}) => baseRule({ persistence: 2, ...over });
 const n = 1000;
 const t = days(n);
 const settings = analysisSettingsSchema.parse({ detrend: 'gaussian', bandwidth: 0.1, window: 0.25, surrogates: 0 });

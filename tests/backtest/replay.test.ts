@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
+import { DAY, days, rule } from './helpers';
 import { runBacktest } from '@/lib/backtest/run';
-import { pointInTimeResiduals, replayEvidence, replayGeometry, indicatorStream, type ReplayRule } from '@/lib/backtest/replay';
+import { pointInTimeResiduals, replayEvidence, replayGeometry, indicatorStream } from '@/lib/backtest/replay';
 import { simulateAr1 } from '@/lib/demo/models';
 import { buildDemoScenario } from '@/lib/demo/scenario';
 import { detrend, gaussianSmooth, linearFit, movingAverage } from '@/lib/engine/detrend';
@@ -8,18 +9,6 @@ import { indicatorTrend } from '@/lib/engine/kendall';
 import { rollingIndicators } from '@/lib/engine/rolling';
 import { analysisSettingsSchema } from '@/lib/engine/settings';
 
-const DAY = 86_400_000;
-const rule = (over: Partial<ReplayRule> = {}): ReplayRule => ({
-  indicator: 'ac1',
-  minTau: 0.3,
-  maxSurrogateP: null,
-  levelThreshold: null,
-  levelDirection: 'above',
-  persistence: 3,
-  quietPeriodHours: 0,
-  ...over,
-});
-const days = (n: number) => Float64Array.from({ length: n }, (_, i) => Date.UTC(2000, 0, 1) + i * DAY);
 
 describe('point-in-time residuals equal the engine detrending of each prefix at its last point', () => {
   const x = simulateAr1({ n: 700, phi: 0.6, sigma: 1, mean: 50, seed: 3 }).map((v, i) => v + 0.01 * i);

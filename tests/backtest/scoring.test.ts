@@ -1,24 +1,13 @@
 import { describe, expect, it } from 'vitest';
+import { DAY, days, rule } from './helpers';
 import garwood from '../../fixtures/reference/garwood_scipy.json';
 import { garwoodInterval } from '@/lib/backtest/poisson';
-import { alarmOnsets, type Evidence, type ReplayRule } from '@/lib/backtest/replay';
+import { alarmOnsets, type Evidence } from '@/lib/backtest/replay';
 import { runBacktest } from '@/lib/backtest/run';
 import { simulateAr1 } from '@/lib/demo/models';
 import { analysisSettingsSchema } from '@/lib/engine/settings';
 
-const DAY = 86_400_000;
 const YEAR = 365.25 * DAY;
-const days = (n: number) => Float64Array.from({ length: n }, (_, i) => Date.UTC(2000, 0, 1) + i * DAY);
-const rule = (over: Partial<ReplayRule> = {}): ReplayRule => ({
-  indicator: 'ac1',
-  minTau: 0.3,
-  maxSurrogateP: null,
-  levelThreshold: null,
-  levelDirection: 'above',
-  persistence: 3,
-  quietPeriodHours: 0,
-  ...over,
-});
 
 /** Evidence with a constant tau at every instant, one a day. */
 function flatEvidence(steps: number, tau: number): Evidence {
