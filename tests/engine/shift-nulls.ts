@@ -1,3 +1,4 @@
+import { cessiFolds, grazingFolds, simulateCessi, simulateGrazing, type GrazingParameters } from '@/lib/demo/models';
 import { RandomStream } from '@/lib/engine/random';
 
 /**
@@ -45,3 +46,46 @@ export function simulateNull(kind: NullKind, n: number, rng: RandomStream): Floa
   }
   return out;
 }
+
+/** A family of null records given by its simulator: n samples from stream `stream` of seed `seed`. */
+export interface NullFamily {
+  name: string;
+  simulate: (n: number, seed: number, stream: number) => Float64Array;
+}
+
+/** A NullKind as a NullFamily (simulateNull on RandomStream(seed, stream)). */
+export function nullFamily(kind: NullKind): NullFamily {
+  return { name: kind.name, simulate: (n, seed, stream) => simulateNull(kind, n, new RandomStream(seed, stream)) };
+}
+
+const CESSI_MU2 = 6.2;
+const GRAZING: GrazingParameters = { r: 1, K: 10, h: 1 };
+
+/**
+ * Approaches to a fold with no shift inside the record, from the demo's simulators (lib/demo/models.ts): the
+ * forcing ramps linearly over the n samples and stops short of the fold, so the equilibrium drifts ever faster
+ * along a curve while variance and memory rise. Cessi (1994): μ² = 6.2, p from 0.6 towards the rising fold, which
+ * it would reach at 1.1·n (as tests/alerts/fold.ts), σ = 0.05, dt = 0.05. May (1977) grazing: r = 1, K = 10,
+ * h = 1, c from 1.2 to 0.97 of the collapse fold at the last sample (as the demo's approaching sedge record),
+ * multiplicative σ = 0.05, dt = 0.1. Ten Euler–Maruyama steps per sample.
+ */
+export const FOLD_APPROACHES: NullFamily[] = [
+  {
+    name: 'fold approach: Cessi box model',
+    simulate: (n, seed, stream) => {
+      const p0 = 0.6;
+      const dt = 0.05;
+      const rate = (cessiFolds(CESSI_MU2).rising.p - p0) / (1.1 * n * dt);
+      return simulateCessi({ mu2: CESSI_MU2, p0, sigma: 0.05, n, dt, substeps: 10, rate, seed, stream }).values;
+    },
+  },
+  {
+    name: 'fold approach: May grazing model',
+    simulate: (n, seed, stream) => {
+      const c0 = 1.2;
+      const dt = 0.1;
+      const rate = (0.97 * grazingFolds(GRAZING).collapse.c - c0) / ((n - 1) * dt);
+      return simulateGrazing({ ...GRAZING, c0, sigma: 0.05, n, dt, substeps: 10, rate, seed, stream }).values;
+    },
+  },
+];
