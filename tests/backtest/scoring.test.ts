@@ -124,8 +124,8 @@ describe('the replayed stretch restarts where the live analysis restarts', () =>
     const { index, reason, knownFromIndex } = r.restarts[0];
     expect(reason).toBe('shift');
     expect(Math.abs(index - 600)).toBeLessThanOrEqual(2);
-    // a live cycle knows of the shift once its record shows it: after at least minSegment (5) points of the new
-    // level (lib/engine/shifts.ts), and for a 4-sd step within a few dozen
+    // a live cycle knows of the shift once its record shows it: the scan's end zone needs at least max(5, G/8)
+    // points of the new level (lib/engine/shifts.ts), and for a 4-sd step it sees it within a few dozen
     expect(knownFromIndex).toBeGreaterThanOrEqual(index + 4);
     expect(knownFromIndex).toBeLessThan(index + 60);
     // judged instants: 148..knownFrom−1 on the first stretch (across the step, as the live analysis until it
