@@ -5,6 +5,7 @@ import { useState } from 'react';
 import { SeriesPicker } from '@/components/SeriesPicker';
 import type { SeriesChoice } from '@/lib/series/registry';
 import { api } from '@/components/api';
+import { LocalTime } from '@/components/LocalTime';
 import { formatCount, formatDuration, type RunSummary } from './api';
 import { RunReport } from './RunReport';
 import { StatusBadge } from './StatusBadge';
@@ -53,7 +54,7 @@ export function RunsTable() {
               {query.data.items.map((run) => (
                 <tr key={run.id} className={open === run.id ? 'bg-tide-light/40' : undefined}>
                   <td className="px-3 py-1.5 font-mono">#{run.id}</td>
-                  <td className="px-3 py-1.5 whitespace-nowrap">{new Date(run.startedAt).toLocaleString('en-GB')}</td>
+                  <td className="px-3 py-1.5"><LocalTime t={run.startedAt} timeZone={run.series?.timeZone ?? 'UTC'} withZone /></td>
                   <td className="px-3 py-1.5">{run.series?.name ?? '—'}</td>
                   <td className="px-3 py-1.5">{run.source}</td>
                   <td className="px-3 py-1.5 font-mono text-xs">{run.fileName ?? '—'}</td>

@@ -1,11 +1,12 @@
 'use client';
 
-import { useMutation, useQueryClient } from '@tanstack/react-query';
+import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { useId, useState, type DragEvent } from 'react';
 import { Caution } from '@/components/Caution';
 import { SeriesPicker } from '@/components/SeriesPicker';
 import type { SeriesChoice } from '@/lib/series/registry';
 import { api } from '@/components/api';
+import { formatLocal } from '@/lib/display/format';
 import { formatCount, type RejectedRow } from './api';
 import { RejectedRowsTable } from './RejectedRowsTable';
 
@@ -66,6 +67,15 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
   const [mapping, setMapping] = useState<Mapping | null>(null);
   const [dragging, setDragging] = useState(false);
   const [sizeError, setSizeError] = useState<string | null>(null);
+  // The picker gives slug and name; the series' own record gives the zone its times are shown in (README: every
+  // time on screen in the series' zone). Until it arrives, times read in UTC, which the label then says.
+  const zone = useQuery({
+    queryKey: ['series-zone', slug],
+    queryFn: () => api<{ timeZone: string }>(`/api/series/${slug}`).then((s) => s.timeZone),
+    enabled: Boolean(slug),
+    staleTime: Infinity,
+  });
+  const timeZone = zone.data ?? 'UTC';
 
   const preview = useMutation({
     mutationFn: (input: { file: File; mapping: Mapping | null }) => send(slug, input.file, input.mapping, false),
@@ -184,7 +194,7 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
           <p>
             {formatCount(summary.rowsRead)} rows read: <strong>{formatCount(summary.wouldAccept)} new</strong>, {formatCount(summary.wouldBeDuplicates)} already stored or repeated,
             {summary.wouldReplace > 0 && ` ${formatCount(summary.wouldReplace)} would replace stored values,`} {formatCount(summary.rejected)} rejected.
-            {summary.first !== null && summary.last !== null && ` Spans ${new Date(summary.first).toISOString()} to ${new Date(summary.last).toISOString()}.`}
+            {summary.first !== null && summary.last !== null && ` Spans ${formatLocal(summary.first, timeZone, false)} to ${formatLocal(summary.last, timeZone)}.`}
           </p>
           {summary.notes.map((note) => <p key={note} className="rounded bg-watch-light px-2 py-1 text-watch">{note}</p>)}
           <RejectedRowsTable rows={summary.rejectedRows} total={summary.rejected} caption="Rows that would be rejected" />
