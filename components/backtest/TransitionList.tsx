@@ -6,6 +6,8 @@ import { api } from '@/components/api';
 import { Empty, ErrorNote, Loading } from '@/components/States';
 import { formatLocal } from '@/lib/display/format';
 import type { TransitionRecord } from '@/lib/backtest/transitions';
+import { Button } from '@/components/ui/Button';
+import { CONTROL, Field } from '@/components/ui/Field';
 
 /** Known transitions of a series: listed for everyone, marked and removed by leads. */
 export function TransitionList({ slug, timeZone, canEdit }: { slug: string; timeZone: string; canEdit: boolean }) {
@@ -41,9 +43,9 @@ export function TransitionList({ slug, timeZone, canEdit }: { slug: string; time
               <span className="num">{formatLocal(t.at, timeZone)}</span>
               <span className="text-ink-soft">{t.note}</span>
               {canEdit ? (
-                <button type="button" className="ml-auto text-xs text-warning hover:underline" onClick={() => remove.mutate(t.id)} disabled={remove.isPending} aria-label={`Remove the transition of ${formatLocal(t.at, timeZone)}`}>
+                <Button variant="danger" size="sm" className="ml-auto" onClick={() => remove.mutate(t.id)} disabled={remove.isPending} aria-label={`Remove the transition of ${formatLocal(t.at, timeZone)}`}>
                   Remove
-                </button>
+                </Button>
               ) : null}
             </li>
           ))}
@@ -57,17 +59,15 @@ export function TransitionList({ slug, timeZone, canEdit }: { slug: string; time
             if (at) add.mutate();
           }}
         >
-          <label className="flex flex-col">
-            Instant (your local time)
-            <input type="datetime-local" required className="rounded border border-rule px-2 py-1" value={at} onChange={(e) => setAt(e.target.value)} />
-          </label>
-          <label className="flex flex-1 flex-col">
-            Note
-            <input type="text" maxLength={2000} className="rounded border border-rule px-2 py-1" value={note} onChange={(e) => setNote(e.target.value)} placeholder="What happened, and how it is known" />
-          </label>
-          <button type="submit" className="rounded border border-rule px-3 py-1 hover:bg-paper" disabled={add.isPending || !at}>
+          <Field label="Instant (your local time)">
+            <input type="datetime-local" required className={CONTROL} value={at} onChange={(e) => setAt(e.target.value)} />
+          </Field>
+          <Field label="Note" className="flex-1">
+            <input type="text" maxLength={2000} className={CONTROL} value={note} onChange={(e) => setNote(e.target.value)} placeholder="What happened, and how it is known" />
+          </Field>
+          <Button type="submit" disabled={add.isPending || !at}>
             Mark transition
-          </button>
+          </Button>
         </form>
       ) : null}
       {add.error ? <ErrorNote error={add.error}>The transition could not be saved.</ErrorNote> : null}
