@@ -5,6 +5,7 @@ import { useState } from 'react';
 import { api } from '@/components/api';
 import { Empty, ErrorNote, Loading } from '@/components/States';
 import { formatLocal } from '@/lib/display/format';
+import { parseInstantParam } from '@/lib/intake/time-formats';
 import type { TransitionRecord } from '@/lib/backtest/transitions';
 import { Button } from '@/components/ui/Button';
 import { CONTROL, Field } from '@/components/ui/Field';
@@ -16,9 +17,11 @@ export function TransitionList({ slug, timeZone, canEdit }: { slug: string; time
   const list = useQuery({ queryKey: key, queryFn: () => api<{ transitions: TransitionRecord[] }>(`/api/series/${slug}/transitions`) });
   const [at, setAt] = useState('');
   const [note, setNote] = useState('');
+  // The instant is typed as the series' wall-clock time, like every time shown on this page.
+  const instant = at ? parseInstantParam(at, timeZone) : null;
   const refresh = () => void client.invalidateQueries({ queryKey: key });
   const add = useMutation({
-    mutationFn: () => api(`/api/series/${slug}/transitions`, { method: 'POST', body: { at: new Date(at).toISOString(), note } }),
+    mutationFn: (t: number) => api(`/api/series/${slug}/transitions`, { method: 'POST', body: { at: new Date(t).toISOString(), note } }),
     onSuccess: () => {
       setAt('');
       setNote('');
@@ -56,16 +59,16 @@ export function TransitionList({ slug, timeZone, canEdit }: { slug: string; time
           className="mt-2 flex flex-wrap items-end gap-2"
           onSubmit={(e) => {
             e.preventDefault();
-            if (at) add.mutate();
+            if (instant?.ok) add.mutate(instant.t);
           }}
         >
-          <Field label="Instant (your local time)">
+          <Field label={`Instant (${timeZone})`} error={instant && !instant.ok ? instant.reason : null}>
             <input type="datetime-local" required className={CONTROL} value={at} onChange={(e) => setAt(e.target.value)} />
           </Field>
           <Field label="Note" className="flex-1">
             <input type="text" maxLength={2000} className={CONTROL} value={note} onChange={(e) => setNote(e.target.value)} placeholder="What happened, and how it is known" />
           </Field>
-          <Button type="submit" disabled={add.isPending || !at}>
+          <Button type="submit" disabled={add.isPending || !instant?.ok}>
             Mark transition
           </Button>
         </form>
