@@ -1,6 +1,6 @@
 'use client';
 
-import { cloneElement, useId, type ReactElement, type ReactNode } from 'react';
+import { cloneElement, useId, type AriaAttributes, type ReactElement, type ReactNode } from 'react';
 
 /**
  * How a field reads: `filter` small grey words over a control in a row of filters, `form` a label over a full-width
@@ -28,7 +28,8 @@ export function Field({ label, hint, error, tone = 'form', className = '', child
   error?: string | null;
   tone?: FieldTone;
   className?: string;
-  children: ReactElement<Record<string, unknown>>;
+  /** one control: input, select or textarea */
+  children: ReactElement<AriaAttributes>;
 }) {
   const id = useId();
   const described = [hint ? `${id}-hint` : null, error ? `${id}-error` : null].filter(Boolean).join(' ') || undefined;

@@ -1,4 +1,4 @@
-import { createElement as h } from 'react';
+import { createElement as h, type SelectHTMLAttributes } from 'react';
 import { renderToStaticMarkup } from 'react-dom/server';
 import { describe, expect, it } from 'vitest';
 import { Button } from '@/components/ui/Button';
@@ -11,7 +11,7 @@ describe('shared UI parts (rendered on the server)', () => {
   it('ties a field error to its control without putting it into the control\'s name', () => {
     // WAI-ARIA 1.2: aria-describedby names the description, aria-invalid marks the value as not accepted; the
     // label's own words stay the accessible name, so tests and screen readers find the field by them alone
-    const html = renderToStaticMarkup(h(Field, { label: 'Current password', error: 'Wrong password.' }, h('input', { className: CONTROL })));
+    const html = renderToStaticMarkup(h(Field, { label: 'Current password', error: 'Wrong password.', children: h('input', { className: CONTROL }) }));
     const label = /<label[^>]*>(.*?)<\/label>/.exec(html)![1];
     expect(label.replace(/<[^>]+>/g, '')).toBe('Current password');
     const describedBy = /aria-describedby="([^"]+)"/.exec(html)![1];
@@ -21,14 +21,15 @@ describe('shared UI parts (rendered on the server)', () => {
   });
 
   it('leaves a field without hint or error as a bare label around its control', () => {
-    const html = renderToStaticMarkup(h(Field, { label: 'Sort', tone: 'filter' }, h('select', { className: CONTROL })));
+    const html = renderToStaticMarkup(h(Field, { label: 'Sort', tone: 'filter', children: h('select', { className: CONTROL } as SelectHTMLAttributes<HTMLSelectElement>) }));
     expect(html.startsWith('<label')).toBe(true);
     expect(html).not.toContain('aria-describedby');
   });
 
   it('draws a table with its caption, headings (a silent one for screen readers only) and rows', () => {
-    const html = renderToStaticMarkup(h(DataTable, { caption: 'Users', testId: 'users', columns: ['Name', { label: 'Actions', srOnly: true }] },
-      h('tr', null, h('td', null, 'Ada'), h('td', null))));
+    const html = renderToStaticMarkup(h(DataTable, {
+      caption: 'Users', testId: 'users', columns: ['Name', { label: 'Actions', srOnly: true }], children: h('tr', null, h('td', null, 'Ada'), h('td', null)),
+    }));
     expect(html).toContain('<caption class="sr-only">Users</caption>');
     expect(html).toContain('data-testid="users"');
     expect(html).toContain('<span class="sr-only">Actions</span>');
