@@ -6,6 +6,8 @@ import { useRouter } from 'next/navigation';
 import { useMemo, useState, type FormEvent } from 'react';
 import { api, ApiError } from '@/components/api';
 import { Empty, ErrorNote, Loading, Panel } from '@/components/States';
+import { Button } from '@/components/ui/Button';
+import { CONTROL, CONTROL_BARE, Field } from '@/components/ui/Field';
 
 interface WatchRow {
   seriesId: number;
@@ -14,7 +16,7 @@ interface WatchRow {
   mode: string;
 }
 
-const control = 'mt-1 w-full rounded border border-rule bg-card px-2 py-1.5 text-sm';
+const control = `${CONTROL} w-full`;
 const MODES = [
   { value: 'immediate', label: 'Mail each alert at once' },
   { value: 'digest', label: 'Daily summary' },
@@ -64,29 +66,25 @@ export function AccountForms({ name, email, role, series }: { name: string; emai
       <Panel title="You" id="you">
         <p className="mb-3 text-sm text-ink-soft">{email} · role <strong className="text-ink">{role}</strong> (set by an admin)</p>
         <form onSubmit={submitName} className="space-y-2">
-          <label className="block text-sm font-medium">Name
+          <Field label="Name">
             <input value={newName} onChange={(e) => setNewName(e.target.value)} required className={control} />
-          </label>
-          <button type="submit" disabled={rename.isPending || newName.trim() === name} className="rounded bg-tide px-3 py-1.5 text-sm font-medium text-white disabled:opacity-50">Save name</button>
+          </Field>
+          <Button type="submit" variant="primary" disabled={rename.isPending || newName.trim() === name}>Save name</Button>
           {rename.isSuccess ? <p role="status" className="text-sm text-calm">✓ Saved</p> : null}
           {rename.isError ? <ErrorNote error={rename.error}>Not saved.</ErrorNote> : null}
         </form>
       </Panel>
       <Panel title="Password" id="password">
         <form onSubmit={submitPassword} className="space-y-2">
-          <label className="block text-sm font-medium">Current password
+          <Field label="Current password" error={fieldError(change.error, 'currentPassword')}>
             <input type="password" autoComplete="current-password" required value={passwords.currentPassword}
-              onChange={(e) => setPasswords({ ...passwords, currentPassword: e.target.value })} className={control}
-              aria-invalid={Boolean(fieldError(change.error, 'currentPassword'))} />
-          </label>
-          {fieldError(change.error, 'currentPassword') ? <p className="text-xs text-warning">✕ {fieldError(change.error, 'currentPassword')}</p> : null}
-          <label className="block text-sm font-medium">New password (at least 12 characters)
+              onChange={(e) => setPasswords({ ...passwords, currentPassword: e.target.value })} className={control} />
+          </Field>
+          <Field label="New password (at least 12 characters)" error={fieldError(change.error, 'newPassword')}>
             <input type="password" autoComplete="new-password" required minLength={12} value={passwords.newPassword}
-              onChange={(e) => setPasswords({ ...passwords, newPassword: e.target.value })} className={control}
-              aria-invalid={Boolean(fieldError(change.error, 'newPassword'))} />
-          </label>
-          {fieldError(change.error, 'newPassword') ? <p className="text-xs text-warning">✕ {fieldError(change.error, 'newPassword')}</p> : null}
-          <button type="submit" disabled={change.isPending} className="rounded bg-tide px-3 py-1.5 text-sm font-medium text-white disabled:opacity-50">Change password</button>
+              onChange={(e) => setPasswords({ ...passwords, newPassword: e.target.value })} className={control} />
+          </Field>
+          <Button type="submit" variant="primary" disabled={change.isPending}>Change password</Button>
           {change.isSuccess ? <p role="status" className="text-sm text-calm">✓ Password changed</p> : null}
           {change.isError && !(change.error instanceof ApiError && change.error.fields) ? <ErrorNote error={change.error}>Not changed.</ErrorNote> : null}
         </form>
@@ -95,9 +93,9 @@ export function AccountForms({ name, email, role, series }: { name: string; emai
         <Panel title="Mail about each series" id="mail">
           {series.length > 0 ? (
             <div className="mb-2 flex flex-wrap items-end gap-3 text-sm" role="search">
-              <label className="flex flex-col text-xs font-medium text-ink-soft">Find a series
-                <input type="search" value={find} onChange={(e) => setFind(e.target.value)} placeholder="Name or slug" className="mt-1 w-56 rounded border border-rule bg-card px-2 py-1.5 text-sm font-normal text-ink" />
-              </label>
+              <Field label="Find a series" tone="filter">
+                <input type="search" value={find} onChange={(e) => setFind(e.target.value)} placeholder="Name or slug" className={`${CONTROL} w-56`} />
+              </Field>
               <label className="flex items-center gap-2 pb-1.5">
                 <input type="checkbox" checked={onlyMailing} onChange={(e) => setOnlyMailing(e.target.checked)} /> Only series that send me mail
               </label>
@@ -112,7 +110,7 @@ export function AccountForms({ name, email, role, series }: { name: string; emai
                   <label className="flex items-center gap-2">
                     <span className="sr-only">Mail for {s.name}</span>
                     <select value={modeOf(s.slug)} onChange={(e) => setWatch.mutate({ slug: s.slug, mode: e.target.value })}
-                      className="rounded border border-rule bg-card px-2 py-1 text-sm">
+                      className={CONTROL_BARE}>
                       {MODES.map((m) => <option key={m.value} value={m.value}>{m.label}</option>)}
                     </select>
                   </label>

@@ -2,7 +2,6 @@ import Link from 'next/link';
 import type { ReactNode } from 'react';
 import type { Actor } from '@/lib/auth/guard';
 import { roleAtLeast } from '@/models/roles';
-import { Caution } from './Caution';
 import { SignOutButton } from './SignOutButton';
 import { SystemStatus } from './SystemStatus';
 
@@ -36,12 +35,8 @@ export function AppShell({ actor, children }: { actor: Actor; children: ReactNod
         </div>
       </header>
       <SystemStatus />
+      {/* The standing caution is part of each page that shows indicators (once, where they are read), not a footer. */}
       <main className="mx-auto w-full max-w-7xl flex-1 px-4 py-6">{children}</main>
-      <footer className="border-t border-rule bg-card">
-        <div className="mx-auto max-w-7xl px-4 py-3">
-          <Caution compact />
-        </div>
-      </footer>
     </div>
   );
 }

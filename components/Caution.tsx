@@ -1,4 +1,7 @@
-/** The standing caution shown wherever indicators inform a decision. */
+/**
+ * The standing caution, shown once on each page where indicators inform a decision (near the top, where they are
+ * read); the page shell carries none, so it never appears twice.
+ */
 export function Caution({ compact = false }: { compact?: boolean }) {
   return (
     <p role="note" className={compact ? 'text-xs text-ink-soft' : 'text-sm text-ink-soft'}>

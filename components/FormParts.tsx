@@ -1,13 +1,13 @@
 import type { InputHTMLAttributes } from 'react';
+import { Button } from './ui/Button';
+import { CONTROL, Field } from './ui/Field';
 
 /** A labelled input (named after its id, required) as the sign-in and set-password forms use it. */
 export function LabelledInput({ id, label, hint, ...input }: { id: string; label: string; hint?: string } & InputHTMLAttributes<HTMLInputElement>) {
   return (
-    <div>
-      <label htmlFor={id} className="block text-sm font-medium">{label}</label>
-      <input id={id} name={id} required {...input} className="mt-1 w-full rounded border border-rule bg-card px-3 py-2" />
-      {hint && <p className="mt-1 text-xs text-ink-soft">{hint}</p>}
-    </div>
+    <Field label={label} hint={hint}>
+      <input id={id} name={id} required {...input} className={`${CONTROL} w-full`} />
+    </Field>
   );
 }
 
@@ -16,10 +16,9 @@ export function FormFooter({ error, busy, busyLabel, label }: { error: string | 
   return (
     <>
       {error && <p role="alert" className="rounded bg-warning-light px-3 py-2 text-sm text-warning">{error}</p>}
-      <button type="submit" disabled={busy}
-        className="w-full rounded bg-tide px-4 py-2 font-medium text-white hover:bg-tide-dark disabled:opacity-60">
+      <Button type="submit" variant="primary" size="lg" disabled={busy} className="w-full">
         {busy ? busyLabel : label}
-      </button>
+      </Button>
     </>
   );
 }

@@ -4,6 +4,7 @@ import Link from 'next/link';
 import { useState, type FormEvent } from 'react';
 import { ApiError, api } from './api';
 import { FormFooter, LabelledInput } from './FormParts';
+import { buttonClass } from './ui/Button';
 
 /** Sets a password from a mailed link (invitation or reset); the token in the link is the only credential. */
 export function SetPasswordForm({ endpoint, submitLabel }: { endpoint: string; submitLabel: string }) {
@@ -35,7 +36,7 @@ export function SetPasswordForm({ endpoint, submitLabel }: { endpoint: string; s
     return (
       <div className="space-y-3">
         <p role="status" className="rounded bg-calm-light px-3 py-2 text-sm text-calm">Your password is set.</p>
-        <Link href="/signin" className="inline-block rounded bg-tide px-4 py-2 font-medium text-white hover:bg-tide-dark">Sign in</Link>
+        <Link href="/signin" className={buttonClass('primary', 'lg')}>Sign in</Link>
       </div>
     );
   }

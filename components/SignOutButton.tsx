@@ -1,12 +1,12 @@
 'use client';
 
 import { signOut } from 'next-auth/react';
+import { Button } from '@/components/ui/Button';
 
 export function SignOutButton() {
   return (
-    <button type="button" onClick={() => signOut({ callbackUrl: '/signin' })}
-      className="rounded border border-rule px-3 py-1 hover:bg-paper">
+    <Button onClick={() => signOut({ callbackUrl: '/signin' })}>
       Sign out
-    </button>
+    </Button>
   );
 }

@@ -5,6 +5,8 @@ import { useState } from 'react';
 import { api } from '@/components/api';
 import { LocalTime } from '@/components/LocalTime';
 import { Empty, ErrorNote, Loading, Panel } from '@/components/States';
+import { Button } from '@/components/ui/Button';
+import { CELL_TIGHT, DataTable } from '@/components/ui/DataTable';
 
 interface OutboxRow {
   id: number;
@@ -41,23 +43,17 @@ export function MailAdmin() {
         {outbox.isPending ? <Loading /> : outbox.isError ? <ErrorNote error={outbox.error} /> : outbox.data.items.length === 0 ? <Empty>Nothing has been queued for sending.</Empty> : (
           <>
             <p className="mb-2 text-sm text-ink-soft">{Object.entries(outbox.data.counts).map(([k, v]) => `${v} ${k}`).join(' · ')}</p>
-            <div className="overflow-x-auto">
-              <table className="w-full min-w-[640px] text-sm">
-                <caption className="sr-only">Queued and sent mail</caption>
-                <thead className="border-b border-rule text-left text-ink-soft"><tr><th scope="col" className="py-1">Queued</th><th scope="col">To</th><th scope="col">Subject</th><th scope="col">Status</th><th scope="col"><span className="sr-only">Retry</span></th></tr></thead>
-                <tbody className="divide-y divide-rule">
-                  {outbox.data.items.map((m) => (
-                    <tr key={m.id}>
-                      <td className="py-1"><LocalTime t={m.createdAt} timeZone="UTC" withZone /></td>
-                      <td>{m.to}</td>
-                      <td>{m.subject}</td>
-                      <td title={m.lastError ?? undefined}>{STATUS[m.status] ?? m.status}{m.attempts > 1 ? ` (${m.attempts} tries)` : ''}</td>
-                      <td className="text-right">{m.status === 'failed' ? <button type="button" onClick={() => retry.mutate(m.id)} className="rounded border border-rule px-2 py-0.5 text-xs">Retry</button> : null}</td>
-                    </tr>
-                  ))}
-                </tbody>
-              </table>
-            </div>
+            <DataTable caption="Queued and sent mail" frame="plain" className="min-w-[640px]" columns={['Queued', 'To', 'Subject', 'Status', { label: 'Retry', srOnly: true }]}>
+              {outbox.data.items.map((m) => (
+                <tr key={m.id}>
+                  <td className={CELL_TIGHT}><LocalTime t={m.createdAt} timeZone="UTC" withZone /></td>
+                  <td className={CELL_TIGHT}>{m.to}</td>
+                  <td className={CELL_TIGHT}>{m.subject}</td>
+                  <td className={CELL_TIGHT} title={m.lastError ?? undefined}>{STATUS[m.status] ?? m.status}{m.attempts > 1 ? ` (${m.attempts} tries)` : ''}</td>
+                  <td className={`${CELL_TIGHT} text-right`}>{m.status === 'failed' ? <Button size="sm" onClick={() => retry.mutate(m.id)}>Retry</Button> : null}</td>
+                </tr>
+              ))}
+            </DataTable>
           </>
         )}
         {retry.isError ? <ErrorNote error={retry.error}>Not retried.</ErrorNote> : null}

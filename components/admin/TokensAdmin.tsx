@@ -7,6 +7,8 @@ import { LocalTime } from '@/components/LocalTime';
 import { SeriesPicker } from '@/components/SeriesPicker';
 import { Empty, ErrorNote, Loading } from '@/components/States';
 import type { SeriesChoice } from '@/lib/series/registry';
+import { Button } from '@/components/ui/Button';
+import { CONTROL, Field } from '@/components/ui/Field';
 
 interface TokenRow {
   id: number;
@@ -15,8 +17,6 @@ interface TokenRow {
   lastUsedAt: string | null;
   revokedAt: string | null;
 }
-
-const control = 'rounded border border-rule bg-card px-2 py-1.5 text-sm';
 
 /** Push-API tokens of one series: issue (the secret is shown once), see last use, revoke. */
 export function TokensAdmin({ hasSeries }: { hasSeries: boolean }) {
@@ -46,10 +46,10 @@ export function TokensAdmin({ hasSeries }: { hasSeries: boolean }) {
       <div className="flex flex-wrap items-end gap-3">
         <SeriesPicker label="Series" required value={series} onChange={(choice) => { setSeries(choice); setSecret(null); }} />
         <form className="flex flex-wrap items-end gap-2" onSubmit={(e) => { e.preventDefault(); issue.mutate(); }}>
-          <label className="flex flex-col text-xs font-medium text-ink-soft">Label (who uses it)
-            <input value={label} onChange={(e) => setLabel(e.target.value)} className={`${control} mt-1`} placeholder="e.g. buoy logger 3" />
-          </label>
-          <button type="submit" disabled={issue.isPending || !series} className="rounded bg-tide px-3 py-1.5 text-sm font-medium text-white disabled:opacity-50">Issue a token</button>
+          <Field label="Label (who uses it)" tone="filter">
+            <input value={label} onChange={(e) => setLabel(e.target.value)} className={CONTROL} placeholder="e.g. buoy logger 3" />
+          </Field>
+          <Button type="submit" variant="primary" disabled={issue.isPending || !series}>Issue a token</Button>
         </form>
       </div>
       {secret ? (
@@ -68,7 +68,7 @@ export function TokensAdmin({ hasSeries }: { hasSeries: boolean }) {
               <span className="text-ink-soft">issued <LocalTime t={t.createdAt} timeZone="UTC" withZone /></span>
               <span className="text-ink-soft">last used {t.lastUsedAt ? <LocalTime t={t.lastUsedAt} timeZone="UTC" withZone /> : 'never'}</span>
               {t.revokedAt ? <span className="text-ink-faint">○ revoked</span> : (
-                <button type="button" onClick={() => revoke.mutate(t.id)} className="ml-auto rounded border border-rule px-2 py-1 text-xs hover:bg-paper">Revoke</button>
+                <Button size="sm" onClick={() => revoke.mutate(t.id)} className="ml-auto">Revoke</Button>
               )}
             </li>
           ))}

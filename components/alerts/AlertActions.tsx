@@ -5,6 +5,8 @@ import { useRouter } from 'next/navigation';
 import { useState } from 'react';
 import { api, ApiError } from '@/components/api';
 import { ErrorNote } from '@/components/States';
+import { Button } from '@/components/ui/Button';
+import { CONTROL, Field } from '@/components/ui/Field';
 
 const LABELS: Record<string, string> = {
   acknowledge: 'Take this alert',
@@ -46,13 +48,10 @@ export function AlertActions({ alertId, version, actions, users }: { alertId: nu
     <div className="space-y-3" data-testid="alert-actions">
       <div className="flex flex-wrap gap-2">
         {visible.map((action) => (
-          <button key={action} type="button" disabled={transition.isPending}
-            onClick={() => (action === 'dismiss' ? setDismissing(true) : transition.mutate({ action }))}
-            className={action === 'dismiss' || action === 'reopen'
-              ? 'rounded border border-rule px-3 py-1.5 text-sm hover:bg-paper'
-              : 'rounded bg-tide px-3 py-1.5 text-sm font-medium text-white hover:bg-tide-dark disabled:opacity-50'}>
+          <Button key={action} disabled={transition.isPending} variant={action === 'dismiss' || action === 'reopen' ? 'secondary' : 'primary'}
+            onClick={() => (action === 'dismiss' ? setDismissing(true) : transition.mutate({ action }))}>
             {LABELS[action]}
-          </button>
+          </Button>
         ))}
       </div>
       {actions.includes('assign') && users ? (
@@ -60,14 +59,13 @@ export function AlertActions({ alertId, version, actions, users }: { alertId: nu
           e.preventDefault();
           if (assignee) transition.mutate({ action: 'assign', assignee: Number(assignee) });
         }}>
-          <label className="flex flex-col text-xs font-medium text-ink-soft">
-            Assign to
-            <select value={assignee} onChange={(e) => setAssignee(e.target.value)} className="mt-1 rounded border border-rule bg-card px-2 py-1.5 text-sm">
+          <Field label="Assign to" tone="filter">
+            <select value={assignee} onChange={(e) => setAssignee(e.target.value)} className={CONTROL}>
               <option value="">Choose a colleague</option>
               {users.map((u) => <option key={u.id} value={u.id}>{u.name}</option>)}
             </select>
-          </label>
-          <button type="submit" disabled={!assignee} className="rounded border border-rule px-3 py-1.5 text-sm hover:bg-paper disabled:opacity-50">Assign</button>
+          </Field>
+          <Button type="submit" disabled={!assignee}>Assign</Button>
         </form>
       ) : null}
       {dismissing ? (
@@ -75,20 +73,18 @@ export function AlertActions({ alertId, version, actions, users }: { alertId: nu
           e.preventDefault();
           transition.mutate({ action: 'dismiss', reason, note: note.trim() || undefined });
         }}>
-          <label className="block text-sm font-medium">
-            Why is it set aside?
-            <select required value={reason} onChange={(e) => setReason(e.target.value)} className="mt-1 w-full rounded border border-rule bg-card px-2 py-1.5 text-sm">
+          <Field label="Why is it set aside?">
+            <select required value={reason} onChange={(e) => setReason(e.target.value)} className={`${CONTROL} w-full`}>
               <option value="">Choose a reason</option>
               {REASONS.map((r) => <option key={r.value} value={r.value}>{r.label}</option>)}
             </select>
-          </label>
-          <label className="block text-sm font-medium">
-            Note {reason === 'other' ? '(required)' : '(optional)'}
-            <textarea value={note} onChange={(e) => setNote(e.target.value)} rows={2} className="mt-1 w-full rounded border border-rule bg-card px-2 py-1.5 text-sm" />
-          </label>
+          </Field>
+          <Field label={`Note ${reason === 'other' ? '(required)' : '(optional)'}`}>
+            <textarea value={note} onChange={(e) => setNote(e.target.value)} rows={2} className={`${CONTROL} w-full`} />
+          </Field>
           <div className="flex gap-2">
-            <button type="submit" disabled={!reason || (reason === 'other' && !note.trim())} className="rounded bg-tide px-3 py-1.5 text-sm font-medium text-white disabled:opacity-50">Set aside</button>
-            <button type="button" onClick={() => setDismissing(false)} className="rounded border border-rule px-3 py-1.5 text-sm">Cancel</button>
+            <Button type="submit" variant="primary" disabled={!reason || (reason === 'other' && !note.trim())}>Set aside</Button>
+            <Button onClick={() => setDismissing(false)}>Cancel</Button>
           </div>
         </form>
       ) : null}

@@ -6,6 +6,8 @@ import { useState } from 'react';
 import { api } from '@/components/api';
 import { LocalTime } from '@/components/LocalTime';
 import { Empty, ErrorNote } from '@/components/States';
+import { Button } from '@/components/ui/Button';
+import { CONTROL, Field } from '@/components/ui/Field';
 
 export interface NoteItem {
   id: number;
@@ -49,13 +51,12 @@ export function AlertNotes({ alertId, notes, canWrite, timeZone }: { alertId: nu
           e.preventDefault();
           if (body.trim()) add.mutate(body.trim());
         }} className="space-y-2">
-          <label className="block text-sm font-medium">
-            Add a note
-            <textarea value={body} onChange={(e) => setBody(e.target.value)} rows={3} className="mt-1 w-full rounded border border-rule bg-card px-2 py-1.5 text-sm" />
-          </label>
-          <button type="submit" disabled={!body.trim() || add.isPending} className="rounded bg-tide px-3 py-1.5 text-sm font-medium text-white disabled:opacity-50">
+          <Field label="Add a note">
+            <textarea value={body} onChange={(e) => setBody(e.target.value)} rows={3} className={`${CONTROL} w-full`} />
+          </Field>
+          <Button type="submit" variant="primary" disabled={!body.trim() || add.isPending}>
             {add.isPending ? 'Adding…' : 'Add note'}
-          </button>
+          </Button>
           {add.isError ? <ErrorNote error={add.error}>Not added.</ErrorNote> : null}
         </form>
       ) : null}

@@ -10,6 +10,9 @@ import { LocalTime } from '@/components/LocalTime';
 import { SeriesPicker } from '@/components/SeriesPicker';
 import type { SeriesChoice } from '@/lib/series/registry';
 import { Empty, ErrorNote, Loading } from '@/components/States';
+import { CELL, DataTable } from '@/components/ui/DataTable';
+import { CONTROL, Field } from '@/components/ui/Field';
+import { Pager, pageCount } from '@/components/ui/Pager';
 import { formatP, formatValue } from '@/lib/display/format';
 import { tauWithDirection } from '@/lib/alerts/wording';
 import type { AlertListItem } from '@/lib/alerts/queries';
@@ -53,7 +56,6 @@ const SORTS = [
   { value: 'updated', label: 'Recently changed' },
 ];
 const PAGE_SIZE = 25;
-const control = 'mt-1 rounded border border-rule bg-card px-2 py-1.5 text-sm';
 
 export function queueSearch(f: QueueFilters): string {
   const params = new URLSearchParams({ queue: f.queue, sort: f.sort, page: String(f.page), pageSize: String(PAGE_SIZE) });
@@ -83,7 +85,7 @@ export function AlertQueue({ initialFilters, initialPage, initialSeries }: { ini
     router.replace(`${pathname}?${queueSearch(merged)}`, { scroll: false });
   }
   const data = query.data;
-  const pages = data ? Math.max(1, Math.ceil(data.total / PAGE_SIZE)) : 1;
+  const pages = pageCount(data?.total ?? 0, PAGE_SIZE);
 
   return (
     <div className="space-y-3">
@@ -103,34 +105,30 @@ export function AlertQueue({ initialFilters, initialPage, initialSeries }: { ini
           setSeries(choice);
           update({ series: choice?.slug ?? '' });
         }} />
-        <label className="flex flex-col text-xs font-medium text-ink-soft">
-          Severity
-          <select className={control} value={filters.severity} onChange={(e) => update({ severity: e.target.value as QueueFilters['severity'] })}>
+        <Field label="Severity" tone="filter">
+          <select className={CONTROL} value={filters.severity} onChange={(e) => update({ severity: e.target.value as QueueFilters['severity'] })}>
             <option value="">Any severity</option>
             <option value="warning">Warning</option>
             <option value="watch">Watch</option>
           </select>
-        </label>
-        <label className="flex flex-col text-xs font-medium text-ink-soft">
-          Kind
-          <select className={control} value={filters.kind} onChange={(e) => update({ kind: e.target.value as QueueFilters['kind'] })}>
+        </Field>
+        <Field label="Kind" tone="filter">
+          <select className={CONTROL} value={filters.kind} onChange={(e) => update({ kind: e.target.value as QueueFilters['kind'] })}>
             <option value="">Any kind</option>
             <option value="slowing-down">Slowing down</option>
             <option value="abrupt-shift">Abrupt shift</option>
           </select>
-        </label>
-        <label className="flex flex-col text-xs font-medium text-ink-soft">
-          Age
-          <select className={control} value={filters.age} onChange={(e) => update({ age: e.target.value })}>
+        </Field>
+        <Field label="Age" tone="filter">
+          <select className={CONTROL} value={filters.age} onChange={(e) => update({ age: e.target.value })}>
             {AGES.map((a) => <option key={a.value} value={a.value}>{a.label}</option>)}
           </select>
-        </label>
-        <label className="flex flex-col text-xs font-medium text-ink-soft">
-          Sort
-          <select className={control} value={filters.sort} onChange={(e) => update({ sort: e.target.value as QueueFilters['sort'] })}>
+        </Field>
+        <Field label="Sort" tone="filter">
+          <select className={CONTROL} value={filters.sort} onChange={(e) => update({ sort: e.target.value as QueueFilters['sort'] })}>
             {SORTS.map((s) => <option key={s.value} value={s.value}>{s.label}</option>)}
           </select>
-        </label>
+        </Field>
         {query.isFetching ? <span className="text-xs text-ink-soft" role="status">Updating…</span> : null}
       </div>
       {query.isError ? (
@@ -140,49 +138,30 @@ export function AlertQueue({ initialFilters, initialPage, initialSeries }: { ini
       ) : data.items.length === 0 ? (
         <Empty>No alerts in this queue{filters.series || filters.severity || filters.kind || filters.age ? ' with these filters' : ''}.</Empty>
       ) : (
-        <div className="overflow-x-auto rounded-lg border border-rule bg-card">
-          <table className="w-full min-w-[680px] text-sm" data-testid="alert-table">
-            <caption className="sr-only">Alerts in the {filters.queue} queue</caption>
-            <thead className="border-b border-rule bg-paper text-left text-ink-soft">
-              <tr>
-                <th scope="col" className="px-3 py-2 font-medium">Alert</th>
-                <th scope="col" className="px-3 py-2 font-medium">Series</th>
-                <th scope="col" className="px-3 py-2 font-medium">Severity</th>
-                <th scope="col" className="px-3 py-2 font-medium">State</th>
-                <th scope="col" className="px-3 py-2 font-medium">Latest evidence</th>
-                <th scope="col" className="px-3 py-2 font-medium">Opened</th>
-                <th scope="col" className="px-3 py-2 font-medium">Assigned</th>
-              </tr>
-            </thead>
-            <tbody className="divide-y divide-rule">
-              {data.items.map((a) => (
-                <tr key={a.id} data-alert={a.id}>
-                  <td className="px-3 py-2">
-                    <Link href={`/alerts/${a.id}`} className="font-medium text-tide hover:underline">#{a.id} {a.rule ? a.rule.indicator : 'abrupt shift'}</Link>
-                    <span className="block text-xs text-ink-soft" data-kind={a.kind}>{a.kind === 'abrupt-shift' ? 'abrupt shift' : 'slowing down'}</span>
-                  </td>
-                  <td className="px-3 py-2"><Link href={`/series/${a.series.slug}`} className="hover:underline">{a.series.name}</Link></td>
-                  <td className="px-3 py-2"><SeverityBadge severity={a.severity} /></td>
-                  <td className="px-3 py-2"><AlertStateBadge state={a.state} /></td>
-                  <td className="num px-3 py-2 whitespace-nowrap">
-                    {a.kind === 'abrupt-shift'
-                      ? <>shift at <LocalTime t={a.shift?.time ?? null} timeZone={a.series.timeZone} />{a.shift?.size !== null && a.shift?.size !== undefined ? ` · size ${formatValue(a.shift.size)}` : ''}</>
-                      : <>τ {tauWithDirection(a.latest.tau, a.latest.direction)} · surrogate p {formatP(a.latest.surrogateP)}</>}
-                  </td>
-                  <td className="px-3 py-2"><LocalTime t={a.createdAt} timeZone={a.series.timeZone} withZone /></td>
-                  <td className="px-3 py-2">{a.assignee?.name ?? <span className="text-ink-faint">nobody</span>}</td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
-        </div>
+        <DataTable caption={`Alerts in the ${filters.queue} queue`} testId="alert-table" className="min-w-[680px]"
+          columns={['Alert', 'Series', 'Severity', 'State', 'Latest evidence', 'Opened', 'Assigned']}>
+          {data.items.map((a) => (
+            <tr key={a.id} data-alert={a.id}>
+              <td className={CELL}>
+                <Link href={`/alerts/${a.id}`} className="font-medium text-tide hover:underline">#{a.id} {a.rule ? a.rule.indicator : 'abrupt shift'}</Link>
+                <span className="block text-xs text-ink-soft" data-kind={a.kind}>{a.kind === 'abrupt-shift' ? 'abrupt shift' : 'slowing down'}</span>
+              </td>
+              <td className={CELL}><Link href={`/series/${a.series.slug}`} className="hover:underline">{a.series.name}</Link></td>
+              <td className={CELL}><SeverityBadge severity={a.severity} /></td>
+              <td className={CELL}><AlertStateBadge state={a.state} /></td>
+              <td className={`num ${CELL} whitespace-nowrap`}>
+                {a.kind === 'abrupt-shift'
+                  ? <>shift at <LocalTime t={a.shift?.time ?? null} timeZone={a.series.timeZone} />{a.shift?.size !== null && a.shift?.size !== undefined ? ` · size ${formatValue(a.shift.size)}` : ''}</>
+                  : <>τ {tauWithDirection(a.latest.tau, a.latest.direction)} · surrogate p {formatP(a.latest.surrogateP)}</>}
+              </td>
+              <td className={CELL}><LocalTime t={a.createdAt} timeZone={a.series.timeZone} withZone /></td>
+              <td className={CELL}>{a.assignee?.name ?? <span className="text-ink-faint">nobody</span>}</td>
+            </tr>
+          ))}
+        </DataTable>
       )}
       {data && data.total > PAGE_SIZE ? (
-        <nav aria-label="Pages" className="flex items-center gap-2 text-sm">
-          <button type="button" disabled={filters.page <= 1} onClick={() => update({ page: filters.page - 1 })} className="rounded border border-rule px-3 py-1 disabled:opacity-50">← Previous</button>
-          <span className="num">Page {filters.page} of {pages} · {data.total} alerts</span>
-          <button type="button" disabled={filters.page >= pages} onClick={() => update({ page: filters.page + 1 })} className="rounded border border-rule px-3 py-1 disabled:opacity-50">Next →</button>
-        </nav>
+        <Pager label="Pages" page={filters.page} pages={pages} onPage={(page) => update({ page })}> · {data.total} alerts</Pager>
       ) : null}
     </div>
   );

@@ -5,7 +5,10 @@ import { useState } from 'react';
 import { api } from '@/components/api';
 import { Empty, ErrorNote, Loading } from '@/components/States';
 import { formatLocal } from '@/lib/display/format';
+import { parseInstantParam } from '@/lib/intake/time-formats';
 import type { TransitionRecord } from '@/lib/backtest/transitions';
+import { Button } from '@/components/ui/Button';
+import { CONTROL, Field } from '@/components/ui/Field';
 
 /** Known transitions of a series: listed for everyone, marked and removed by leads. */
 export function TransitionList({ slug, timeZone, canEdit }: { slug: string; timeZone: string; canEdit: boolean }) {
@@ -14,9 +17,11 @@ export function TransitionList({ slug, timeZone, canEdit }: { slug: string; time
   const list = useQuery({ queryKey: key, queryFn: () => api<{ transitions: TransitionRecord[] }>(`/api/series/${slug}/transitions`) });
   const [at, setAt] = useState('');
   const [note, setNote] = useState('');
+  // The instant is typed as the series' wall-clock time, like every time shown on this page.
+  const instant = at ? parseInstantParam(at, timeZone) : null;
   const refresh = () => void client.invalidateQueries({ queryKey: key });
   const add = useMutation({
-    mutationFn: () => api(`/api/series/${slug}/transitions`, { method: 'POST', body: { at: new Date(at).toISOString(), note } }),
+    mutationFn: (t: number) => api(`/api/series/${slug}/transitions`, { method: 'POST', body: { at: new Date(t).toISOString(), note } }),
     onSuccess: () => {
       setAt('');
       setNote('');
@@ -41,9 +46,9 @@ export function TransitionList({ slug, timeZone, canEdit }: { slug: string; time
               <span className="num">{formatLocal(t.at, timeZone)}</span>
               <span className="text-ink-soft">{t.note}</span>
               {canEdit ? (
-                <button type="button" className="ml-auto text-xs text-warning hover:underline" onClick={() => remove.mutate(t.id)} disabled={remove.isPending} aria-label={`Remove the transition of ${formatLocal(t.at, timeZone)}`}>
+                <Button variant="danger" size="sm" className="ml-auto" onClick={() => remove.mutate(t.id)} disabled={remove.isPending} aria-label={`Remove the transition of ${formatLocal(t.at, timeZone)}`}>
                   Remove
-                </button>
+                </Button>
               ) : null}
             </li>
           ))}
@@ -54,20 +59,18 @@ export function TransitionList({ slug, timeZone, canEdit }: { slug: string; time
           className="mt-2 flex flex-wrap items-end gap-2"
           onSubmit={(e) => {
             e.preventDefault();
-            if (at) add.mutate();
+            if (instant?.ok) add.mutate(instant.t);
           }}
         >
-          <label className="flex flex-col">
-            Instant (your local time)
-            <input type="datetime-local" required className="rounded border border-rule px-2 py-1" value={at} onChange={(e) => setAt(e.target.value)} />
-          </label>
-          <label className="flex flex-1 flex-col">
-            Note
-            <input type="text" maxLength={2000} className="rounded border border-rule px-2 py-1" value={note} onChange={(e) => setNote(e.target.value)} placeholder="What happened, and how it is known" />
-          </label>
-          <button type="submit" className="rounded border border-rule px-3 py-1 hover:bg-paper" disabled={add.isPending || !at}>
+          <Field label={`Instant (${timeZone})`} error={instant && !instant.ok ? instant.reason : null}>
+            <input type="datetime-local" required className={CONTROL} value={at} onChange={(e) => setAt(e.target.value)} />
+          </Field>
+          <Field label="Note" className="flex-1">
+            <input type="text" maxLength={2000} className={CONTROL} value={note} onChange={(e) => setNote(e.target.value)} placeholder="What happened, and how it is known" />
+          </Field>
+          <Button type="submit" disabled={add.isPending || !instant?.ok}>
             Mark transition
-          </button>
+          </Button>
         </form>
       ) : null}
       {add.error ? <ErrorNote error={add.error}>The transition could not be saved.</ErrorNote> : null}

@@ -2,8 +2,7 @@
 
 import { useRef, useState, type ReactNode } from 'react';
 import { savePng, saveSvg } from './export';
-
-const buttonClass = 'rounded border border-rule px-2 py-0.5 text-xs hover:bg-paper';
+import { Button } from '@/components/ui/Button';
 
 /** A titled chart with its legend text and SVG/PNG export buttons (hidden when printing). */
 export function ChartFrame({ title, fileName, legend, children, testId }: { title: string; fileName: string; legend?: ReactNode; children: ReactNode; testId?: string }) {
@@ -25,8 +24,8 @@ export function ChartFrame({ title, fileName, legend, children, testId }: { titl
         <span className="text-sm font-semibold">{title}</span>
         {legend ? <span className="text-xs text-ink-soft">{legend}</span> : null}
         <span className="no-print ml-auto flex gap-1">
-          <button type="button" className={buttonClass} onClick={() => save('svg')} aria-label={`Save ${title} as SVG`}>SVG</button>
-          <button type="button" className={buttonClass} onClick={() => save('png')} aria-label={`Save ${title} as PNG`}>PNG</button>
+          <Button size="sm" onClick={() => save('svg')} aria-label={`Save ${title} as SVG`}>SVG</Button>
+          <Button size="sm" onClick={() => save('png')} aria-label={`Save ${title} as PNG`}>PNG</Button>
         </span>
       </figcaption>
       <div ref={ref}>{children}</div>

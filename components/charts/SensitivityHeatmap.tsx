@@ -3,18 +3,20 @@
 import { useState } from 'react';
 import { formatTau } from '@/lib/display/format';
 import type { AnalysisView } from '@/lib/analysis/view';
+import { hexChannels, useChartPalette, type ChartPalette } from './theme';
 
-const NEGATIVE = [31, 111, 120]; // tide
-const MIDDLE = [246, 244, 239]; // paper
-const POSITIVE = [168, 50, 42]; // warning
-
-/** Diverging colour for tau ∈ [−1, 1]: tide for falling, paper at zero, warning red for rising. */
-export function tauColour(tau: number | null): string {
-  if (tau === null) return '#ffffff';
+/**
+ * Diverging colour for tau ∈ [−1, 1] from the theme: tide for falling, paper at zero, warning red for rising, mixed
+ * in sRGB. Before the palette is resolved (server render) the browser's color-mix stands in.
+ */
+export function tauColour(tau: number | null, colours: ChartPalette): string {
+  if (tau === null) return colours.card;
   const t = Math.max(-1, Math.min(1, tau));
-  const [from, to, f] = t < 0 ? [MIDDLE, NEGATIVE, -t] : [MIDDLE, POSITIVE, t];
-  const mix = from.map((c, i) => Math.round(c + (to[i] - c) * f));
-  return `rgb(${mix.join(',')})`;
+  const end = t < 0 ? colours.tide : colours.warning;
+  const [middle, to] = [hexChannels(colours.paper), hexChannels(end)];
+  if (!middle || !to) return `color-mix(in srgb, ${end} ${Math.round(Math.abs(t) * 100)}%, ${colours.paper})`;
+  const f = Math.abs(t);
+  return `rgb(${middle.map((c, i) => Math.round(c + (to[i] - c) * f)).join(',')})`;
 }
 
 function percent(v: number): string {
@@ -23,6 +25,7 @@ function percent(v: number): string {
 
 /** Tau over window × bandwidth for one indicator; the chosen settings' cell is outlined and marked ◆. */
 export function SensitivityHeatmap({ grid, indicators }: { grid: NonNullable<AnalysisView['sensitivity']>; indicators: string[] }) {
+  const colours = useChartPalette();
   const available = indicators.filter((name) => grid.indicators[name as keyof typeof grid.indicators]);
   const [indicator, setIndicator] = useState(available[0] ?? '');
   const cells = grid.indicators[indicator as keyof typeof grid.indicators];
@@ -41,12 +44,12 @@ export function SensitivityHeatmap({ grid, indicators }: { grid: NonNullable<Ana
         <svg role="img" aria-label={`Kendall tau of ${indicator} for each rolling window and bandwidth`}
           viewBox={`0 0 ${60 + grid.windows.length * 34} ${30 + rows.length * 26}`} className="w-full min-w-[420px] max-w-3xl">
           {grid.windows.map((w, j) => (
-            <text key={w} x={60 + j * 34 + 17} y={rows.length * 26 + 16} fontSize="10" textAnchor="middle" fill="#3c4a57">{percent(w)}</text>
+            <text key={w} x={60 + j * 34 + 17} y={rows.length * 26 + 16} fontSize="10" textAnchor="middle" fill={colours['ink-soft']}>{percent(w)}</text>
           ))}
-          <text x={60 + (grid.windows.length * 34) / 2} y={rows.length * 26 + 28} fontSize="10" textAnchor="middle" fill="#3c4a57">rolling window (share of the record)</text>
+          <text x={60 + (grid.windows.length * 34) / 2} y={rows.length * 26 + 28} fontSize="10" textAnchor="middle" fill={colours['ink-soft']}>rolling window (share of the record)</text>
           {rows.map((bw, i) => (
             <g key={String(bw)}>
-              <text x={54} y={i * 26 + 17} fontSize="10" textAnchor="end" fill="#3c4a57">{bw === null ? 'fixed' : `bw ${percent(bw)}`}</text>
+              <text x={54} y={i * 26 + 17} fontSize="10" textAnchor="end" fill={colours['ink-soft']}>{bw === null ? 'fixed' : `bw ${percent(bw)}`}</text>
               {grid.windows.map((w, j) => {
                 const tau = cells.tau[i]?.[j] ?? null;
                 const chosen = grid.chosen.window === w && grid.chosen.bandwidth === bw;
@@ -54,8 +57,8 @@ export function SensitivityHeatmap({ grid, indicators }: { grid: NonNullable<Ana
                 return (
                   <g key={w} tabIndex={0} aria-label={label} className="outline-none focus-visible:[&>rect]:stroke-ink">
                     <title>{label}</title>
-                    <rect x={60 + j * 34} y={i * 26} width={32} height={24} fill={tauColour(tau)} stroke={chosen ? '#14202b' : '#d9d4c7'} strokeWidth={chosen ? 2.5 : 0.5} />
-                    {chosen ? <text x={60 + j * 34 + 16} y={i * 26 + 16} fontSize="11" textAnchor="middle" fill={Math.abs(tau ?? 0) > 0.5 ? '#fff' : '#14202b'}>◆</text> : null}
+                    <rect x={60 + j * 34} y={i * 26} width={32} height={24} fill={tauColour(tau, colours)} stroke={chosen ? colours.ink : colours.rule} strokeWidth={chosen ? 2.5 : 0.5} />
+                    {chosen ? <text x={60 + j * 34 + 16} y={i * 26 + 16} fontSize="11" textAnchor="middle" fill={Math.abs(tau ?? 0) > 0.5 ? colours.card : colours.ink}>◆</text> : null}
                   </g>
                 );
               })}
@@ -65,7 +68,7 @@ export function SensitivityHeatmap({ grid, indicators }: { grid: NonNullable<Ana
       </div>
       <div className="mt-2 flex items-center gap-2 text-xs text-ink-soft" aria-hidden="true">
         <span>tau −1 (falling)</span>
-        <span className="h-3 w-40 rounded" style={{ background: `linear-gradient(to right, ${tauColour(-1)}, ${tauColour(0)}, ${tauColour(1)})` }} />
+        <span className="h-3 w-40 rounded" style={{ background: `linear-gradient(to right, ${tauColour(-1, colours)}, ${tauColour(0, colours)}, ${tauColour(1, colours)})` }} />
         <span>+1 (rising)</span>
         <span className="ml-3">◆ current settings</span>
       </div>

@@ -8,7 +8,7 @@ export function Sparkline({ path, label }: { path: string; label: string }) {
   return (
     <svg role="img" aria-label={label} width={SPARK_WIDTH} height={SPARK_HEIGHT} viewBox={`0 0 ${SPARK_WIDTH} ${SPARK_HEIGHT}`} className="block">
       <title>{label}</title>
-      <path d={path} fill="none" stroke="#1f6f78" strokeWidth={1.5} strokeLinejoin="round" strokeLinecap="round" />
+      <path d={path} fill="none" className="stroke-tide" strokeWidth={1.5} strokeLinejoin="round" strokeLinecap="round" />
     </svg>
   );
 }

@@ -28,7 +28,8 @@ function serialise(container: HTMLElement, title: string): { text: string; width
   const background = document.createElementNS('http://www.w3.org/2000/svg', 'rect');
   background.setAttribute('width', '100%');
   background.setAttribute('height', '100%');
-  background.setAttribute('fill', '#ffffff');
+  // the page's card colour, read from the theme so a saved chart sits on the same ground as on screen
+  background.setAttribute('fill', getComputedStyle(document.documentElement).getPropertyValue('--color-card').trim() || 'white');
   clone.insertBefore(background, clone.firstChild);
   const heading = document.createElementNS('http://www.w3.org/2000/svg', 'title');
   heading.textContent = title;

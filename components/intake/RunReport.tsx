@@ -5,6 +5,7 @@ import { api } from '@/components/api';
 import { formatCount, formatDuration, type RejectedRow, type RunSummary } from './api';
 import { RejectedRowsTable } from './RejectedRowsTable';
 import { StatusBadge } from './StatusBadge';
+import { Button } from '@/components/ui/Button';
 
 interface RunDetail extends RunSummary {
   report: { rejectedRows?: RejectedRow[]; rejectedTotal?: number; notes?: string[]; layout?: { delimiter: string; header: string[] | null; encoding: string } | null; timeFormat?: string };
@@ -16,7 +17,7 @@ export function RunReport({ runId, onClose }: { runId: number; onClose: () => vo
     <section aria-labelledby="run-report-title" className="rounded border border-rule bg-card p-4" data-testid="run-report">
       <div className="flex items-center justify-between gap-2">
         <h3 id="run-report-title" className="font-semibold">Report of run #{runId}</h3>
-        <button type="button" onClick={onClose} className="rounded border border-rule px-2 py-1 text-sm hover:bg-paper">Close report</button>
+        <Button onClick={onClose}>Close report</Button>
       </div>
       {query.isPending && <p className="mt-2 text-sm text-ink-soft" role="status">Loading the report…</p>}
       {query.isError && <p className="mt-2 text-sm text-warning" role="alert">{query.error.message}</p>}

@@ -1,13 +1,17 @@
 'use client';
 
-import { useMutation, useQueryClient } from '@tanstack/react-query';
+import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { useId, useState, type DragEvent } from 'react';
 import { Caution } from '@/components/Caution';
 import { SeriesPicker } from '@/components/SeriesPicker';
 import type { SeriesChoice } from '@/lib/series/registry';
 import { api } from '@/components/api';
+import { formatLocal } from '@/lib/display/format';
 import { formatCount, type RejectedRow } from './api';
 import { RejectedRowsTable } from './RejectedRowsTable';
+import { Button } from '@/components/ui/Button';
+import { DataTable } from '@/components/ui/DataTable';
+import { CONTROL, Field } from '@/components/ui/Field';
 
 const TIME_FORMATS = [
   ['iso8601', 'ISO 8601 date-time'],
@@ -66,6 +70,15 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
   const [mapping, setMapping] = useState<Mapping | null>(null);
   const [dragging, setDragging] = useState(false);
   const [sizeError, setSizeError] = useState<string | null>(null);
+  // The picker gives slug and name; the series' own record gives the zone its times are shown in (README: every
+  // time on screen in the series' zone). Until it arrives, times read in UTC, which the label then says.
+  const zone = useQuery({
+    queryKey: ['series-zone', slug],
+    queryFn: () => api<{ timeZone: string }>(`/api/series/${slug}`).then((s) => s.timeZone),
+    enabled: Boolean(slug),
+    staleTime: Infinity,
+  });
+  const timeZone = zone.data ?? 'UTC';
 
   const preview = useMutation({
     mutationFn: (input: { file: File; mapping: Mapping | null }) => send(slug, input.file, input.mapping, false),
@@ -141,41 +154,36 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
           </p>
           <fieldset className="grid gap-3 text-sm sm:grid-cols-5">
             <legend className="sr-only">Column mapping</legend>
-            <label className="flex flex-col gap-1">Time column
-              <select value={mapping.timeColumn} onChange={(e) => change({ timeColumn: Number(e.target.value) })} className="rounded border border-rule px-2 py-1">
+            <Field label="Time column">
+              <select value={mapping.timeColumn} onChange={(e) => change({ timeColumn: Number(e.target.value) })} className={CONTROL}>
                 {columns.map((c, i) => <option key={i} value={i}>{c}</option>)}
               </select>
-            </label>
-            <label className="flex flex-col gap-1">Value column
-              <select value={mapping.valueColumn} onChange={(e) => change({ valueColumn: Number(e.target.value) })} className="rounded border border-rule px-2 py-1">
+            </Field>
+            <Field label="Value column">
+              <select value={mapping.valueColumn} onChange={(e) => change({ valueColumn: Number(e.target.value) })} className={CONTROL}>
                 {columns.map((c, i) => <option key={i} value={i}>{c}</option>)}
               </select>
-            </label>
-            <label className="flex flex-col gap-1">Time format
-              <select value={mapping.timeFormat} onChange={(e) => change({ timeFormat: e.target.value })} className="rounded border border-rule px-2 py-1">
+            </Field>
+            <Field label="Time format">
+              <select value={mapping.timeFormat} onChange={(e) => change({ timeFormat: e.target.value })} className={CONTROL}>
                 {TIME_FORMATS.map(([value, label]) => <option key={value} value={value}>{label}</option>)}
               </select>
-            </label>
-            <label className="flex flex-col gap-1">Delimiter
-              <select value={mapping.delimiter} onChange={(e) => change({ delimiter: e.target.value })} className="rounded border border-rule px-2 py-1">
+            </Field>
+            <Field label="Delimiter">
+              <select value={mapping.delimiter} onChange={(e) => change({ delimiter: e.target.value })} className={CONTROL}>
                 {DELIMITERS.map(([value, label]) => <option key={label} value={value}>{label}</option>)}
               </select>
-            </label>
+            </Field>
             <label className="flex items-center gap-2 self-end pb-1">
               <input type="checkbox" checked={mapping.header} onChange={(e) => change({ header: e.target.checked })} /> First line is a header
             </label>
           </fieldset>
-          <div className="overflow-x-auto rounded border border-rule">
-            <table className="w-full text-left font-mono text-xs" data-testid="preview-rows">
-              <caption className="sr-only">First rows as read</caption>
-              <thead className="bg-paper text-ink-soft"><tr><th scope="col" className="px-2 py-1">Line</th>{columns.map((c, i) => <th key={i} scope="col" className="px-2 py-1">{c}</th>)}</tr></thead>
-              <tbody className="divide-y divide-rule">
-                {data.sample.map((row) => (
-                  <tr key={row.line}><td className="px-2 py-1">{row.line}</td>{columns.map((_, i) => <td key={i} className="px-2 py-1">{row.fields[i] ?? ''}</td>)}</tr>
-                ))}
-              </tbody>
-            </table>
-          </div>
+          <DataTable caption="First rows as read" testId="preview-rows" className="font-mono text-xs"
+            columns={['Line', ...columns]}>
+            {data.sample.map((row) => (
+              <tr key={row.line}><td className="px-2 py-1">{row.line}</td>{columns.map((_, i) => <td key={i} className="px-2 py-1">{row.fields[i] ?? ''}</td>)}</tr>
+            ))}
+          </DataTable>
         </div>
       )}
       {summary && (
@@ -184,7 +192,7 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
           <p>
             {formatCount(summary.rowsRead)} rows read: <strong>{formatCount(summary.wouldAccept)} new</strong>, {formatCount(summary.wouldBeDuplicates)} already stored or repeated,
             {summary.wouldReplace > 0 && ` ${formatCount(summary.wouldReplace)} would replace stored values,`} {formatCount(summary.rejected)} rejected.
-            {summary.first !== null && summary.last !== null && ` Spans ${new Date(summary.first).toISOString()} to ${new Date(summary.last).toISOString()}.`}
+            {summary.first !== null && summary.last !== null && ` Spans ${formatLocal(summary.first, timeZone, false)} to ${formatLocal(summary.last, timeZone)}.`}
           </p>
           {summary.notes.map((note) => <p key={note} className="rounded bg-watch-light px-2 py-1 text-watch">{note}</p>)}
           <RejectedRowsTable rows={summary.rejectedRows} total={summary.rejected} caption="Rows that would be rejected" />
@@ -192,14 +200,14 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
             <Caution />
             <p className="mt-2 text-xs text-ink-soft">Committing stores the new points now and marks the series for a fresh analysis; rejected rows are not stored and stay listed in the run&apos;s report.</p>
           </div>
-          <button
-            type="button"
+          <Button
+            variant="primary"
+            size="lg"
             disabled={commit.isPending || summary.wouldAccept + summary.wouldReplace === 0 || commit.isSuccess}
             onClick={() => commit.mutate()}
-            className="rounded bg-tide px-4 py-2 font-medium text-white hover:bg-tide-dark disabled:opacity-50"
           >
             {commit.isPending ? 'Storing…' : `Commit ${formatCount(summary.wouldAccept + summary.wouldReplace)} points`}
-          </button>
+          </Button>
           {commit.isError && <p role="alert" className="text-warning">{commit.error.message}</p>}
           {commit.data && <p role="status" className="rounded bg-calm-light px-3 py-2 text-calm" data-testid="commit-outcome">Run #{commit.data.runId}: {commit.data.message}</p>}
         </div>

@@ -1,6 +1,7 @@
 export interface RunSummary {
   id: number;
-  series: { slug: string; name: string } | null;
+  /** the series' zone comes with the run once the API gives it (lib/intake/runs.ts); until then times read in UTC */
+  series: { slug: string; name: string; timeZone?: string } | null;
   source: 'drop' | 'upload' | 'push';
   fileName: string | null;
   status: 'running' | 'succeeded' | 'rejected' | 'failed';

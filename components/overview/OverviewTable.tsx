@@ -6,6 +6,9 @@ import { FreshnessBadge, StateBadge, STATE_LABELS } from '@/components/Badges';
 import { LocalTime } from '@/components/LocalTime';
 import { Empty } from '@/components/States';
 import { Sparkline } from '@/components/charts/Sparkline';
+import { Button } from '@/components/ui/Button';
+import { DataTable } from '@/components/ui/DataTable';
+import { CONTROL, Field } from '@/components/ui/Field';
 import { formatDirection } from '@/lib/display/analysis-labels';
 import { formatAge, formatP, formatTau } from '@/lib/display/format';
 import type { OverviewRow, SeriesState } from '@/lib/overview';
@@ -26,7 +29,6 @@ const SORTS: Record<SortKey, (a: OverviewRow, b: OverviewRow) => number> = {
   tau: (a, b) => maxTau(a) - maxTau(b),
 };
 
-const controlClass = 'rounded border border-rule bg-card px-2 py-1.5 text-sm';
 /**
  * Rows drawn at first, most pressing first (the default sort is by state): a network of hundreds of series would
  * otherwise open as a page of hundreds of rows. Search, filters and sorting still cover every series.
@@ -102,95 +104,85 @@ export function OverviewTable({ rows, sites, now }: { rows: OverviewRow[]; sites
   return (
     <div>
       <div className="mb-3 flex flex-wrap items-end gap-3" role="search">
-        <label className="flex flex-col text-xs font-medium text-ink-soft">
-          Find a series
-          <input type="search" value={text} onChange={(e) => refine(setText)(e.target.value)} placeholder="Name, slug or site" className={`${controlClass} mt-1 w-56`} />
-        </label>
-        <label className="flex flex-col text-xs font-medium text-ink-soft">
-          Site
-          <select value={site} onChange={(e) => refine(setSite)(e.target.value)} className={`${controlClass} mt-1`}>
+        <Field label="Find a series" tone="filter">
+          <input type="search" value={text} onChange={(e) => refine(setText)(e.target.value)} placeholder="Name, slug or site" className={`${CONTROL} w-56`} />
+        </Field>
+        <Field label="Site" tone="filter">
+          <select value={site} onChange={(e) => refine(setSite)(e.target.value)} className={CONTROL}>
             <option value="">All sites</option>
             {sites.map((s) => <option key={s} value={s}>{s}</option>)}
           </select>
-        </label>
-        <label className="flex flex-col text-xs font-medium text-ink-soft">
-          State
-          <select value={state} onChange={(e) => refine(setState)(e.target.value)} className={`${controlClass} mt-1`}>
+        </Field>
+        <Field label="State" tone="filter">
+          <select value={state} onChange={(e) => refine(setState)(e.target.value)} className={CONTROL}>
             <option value="">Any state</option>
             {Object.entries(STATE_LABELS).map(([value, label]) => <option key={value} value={value}>{label}</option>)}
           </select>
-        </label>
+        </Field>
         <p className="ml-auto text-sm text-ink-soft" aria-live="polite">{shown.length} of {rows.length} series</p>
       </div>
       {shown.length === 0 ? (
         <Empty>{rows.length === 0 ? 'No series are registered yet. Add one on the Intake page.' : 'No series match these filters.'}</Empty>
       ) : (
-        <div className="overflow-x-auto rounded-lg border border-rule bg-card">
-          <table className="w-full text-sm sm:min-w-[640px]" data-testid="overview-table">
-            <caption className="sr-only">Every series with its data freshness, state and latest indicator trends</caption>
-            <thead className="border-b border-rule bg-paper text-ink-soft">
-              <tr>
-                {header('name', 'Series')}
-                {header('state', 'State')}
-                {header('lastData', 'Last data', 'hidden sm:table-cell')}
-                {header('site', 'Site', 'hidden md:table-cell')}
-                {header('tau', 'Indicator trend (tau, p)', 'hidden sm:table-cell')}
-                <th scope="col" className="hidden px-3 py-2 text-left font-medium sm:table-cell">Recent curve</th>
-              </tr>
-            </thead>
-            <tbody className="divide-y divide-rule">
-              {shown.slice(0, limit).map((row) => (
-                <tr key={row.id} data-series={row.slug} className="hover:bg-paper/60">
-                  <td className="px-3 py-2">
-                    <Link href={`/series/${row.slug}`} className="font-medium text-tide hover:underline">{row.name}</Link>
-                    <div className="font-mono text-xs text-ink-faint">{row.slug}</div>
-                    {row.site ? <div className="text-xs text-ink-soft md:hidden">{row.site}</div> : null}
-                    {row.indicators.length ? <div className="mt-1 text-xs sm:hidden"><IndicatorTrends indicators={row.indicators} /></div> : null}
-                  </td>
-                  <td className="px-3 py-2">
-                    {row.state === 'alert' ? (
-                      <Link href={`/alerts?queue=triage&series=${row.slug}`} className="rounded">
-                        <StateBadge state={row.state} detail={`${row.openAlerts}`} />
-                      </Link>
-                    ) : (
-                      <StateBadge state={row.state} />
-                    )}
-                    <div className="mt-1 text-xs sm:hidden"><RowFreshness row={row} now={now} /></div>
-                  </td>
-                  <td className="hidden px-3 py-2 sm:table-cell">
-                    <div><LocalTime t={row.lastDataAt} timeZone={row.timeZone} /></div>
-                    <div className="mt-0.5 flex items-center gap-1 text-xs text-ink-faint">
-                      <RowFreshness row={row} now={now} />
-                      <span>{row.timeZone}</span>
-                    </div>
-                  </td>
-                  <td className="hidden px-3 py-2 md:table-cell">{row.site || <span className="text-ink-faint">–</span>}</td>
-                  <td className="hidden px-3 py-2 sm:table-cell">
-                    <IndicatorTrends indicators={row.indicators} />
-                  </td>
-                  <td className="hidden px-3 py-2 sm:table-cell">
-                    {row.spark ? (
-                      <Sparkline path={row.spark.path} label={`Rolling ${row.spark.indicator} of ${row.name}`} />
-                    ) : (
-                      <span className="text-ink-faint">–</span>
-                    )}
-                  </td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
-          {shown.length > limit ? (
+        <DataTable caption="Every series with its data freshness, state and latest indicator trends" testId="overview-table" className="sm:min-w-[640px]"
+          head={<>
+            {header('name', 'Series')}
+            {header('state', 'State')}
+            {header('lastData', 'Last data', 'hidden sm:table-cell')}
+            {header('site', 'Site', 'hidden md:table-cell')}
+            {header('tau', 'Indicator trend (tau, p)', 'hidden sm:table-cell')}
+            <th scope="col" className="hidden px-3 py-2 text-left font-medium sm:table-cell">Recent curve</th>
+          </>}
+          footer={shown.length > limit ? (
             <div className="flex flex-wrap items-center gap-3 border-t border-rule px-3 py-2 text-sm">
               <span className="text-ink-soft">Showing the first {limit} of {shown.length}.</span>
-              <button type="button" className="rounded border border-rule px-2 py-1 text-tide hover:bg-paper" onClick={() => setLimit(limit + ROWS_PER_STEP)}>
+              <Button className="text-tide" onClick={() => setLimit(limit + ROWS_PER_STEP)}>
                 Show {Math.min(ROWS_PER_STEP, shown.length - limit)} more
-              </button>
-              <button type="button" className="rounded px-2 py-1 text-tide hover:underline" onClick={() => setLimit(shown.length)}>
+              </Button>
+              <Button variant="quiet" onClick={() => setLimit(shown.length)}>
                 Show all {shown.length}
-              </button>
+              </Button>
             </div>
-          ) : null}
-        </div>
+          ) : null}>
+          {shown.slice(0, limit).map((row) => (
+            <tr key={row.id} data-series={row.slug} className="hover:bg-paper/60">
+              <td className="px-3 py-2">
+                <Link href={`/series/${row.slug}`} className="font-medium text-tide hover:underline">{row.name}</Link>
+                <div className="font-mono text-xs text-ink-faint">{row.slug}</div>
+                {row.site ? <div className="text-xs text-ink-soft md:hidden">{row.site}</div> : null}
+                {row.indicators.length ? <div className="mt-1 text-xs sm:hidden"><IndicatorTrends indicators={row.indicators} /></div> : null}
+              </td>
+              <td className="px-3 py-2">
+                {row.state === 'alert' ? (
+                  <Link href={`/alerts?queue=triage&series=${row.slug}`} className="rounded">
+                    <StateBadge state={row.state} detail={`${row.openAlerts}`} />
+                  </Link>
+                ) : (
+                  <StateBadge state={row.state} />
+                )}
+                <div className="mt-1 text-xs sm:hidden"><RowFreshness row={row} now={now} /></div>
+              </td>
+              <td className="hidden px-3 py-2 sm:table-cell">
+                <div><LocalTime t={row.lastDataAt} timeZone={row.timeZone} /></div>
+                <div className="mt-0.5 flex items-center gap-1 text-xs text-ink-faint">
+                  <RowFreshness row={row} now={now} />
+                  <span>{row.timeZone}</span>
+                </div>
+              </td>
+              <td className="hidden px-3 py-2 md:table-cell">{row.site || <span className="text-ink-faint">–</span>}</td>
+              <td className="hidden px-3 py-2 sm:table-cell">
+                <IndicatorTrends indicators={row.indicators} />
+              </td>
+              <td className="hidden px-3 py-2 sm:table-cell">
+                {row.spark ? (
+                  <Sparkline path={row.spark.path} label={`Rolling ${row.spark.indicator} of ${row.name}`} />
+                ) : (
+                  <span className="text-ink-faint">–</span>
+                )}
+              </td>
+            </tr>
+          ))}
+        </DataTable>
       )}
       <p className="mt-2 text-xs text-ink-faint">
         Late: no new observation for more than three sampling intervals (two days for irregular records). The arrow is

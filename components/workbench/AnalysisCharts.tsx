@@ -74,19 +74,19 @@ export function AnalysisCharts({ view, series, transitions = [], idPrefix = '', 
       <ChartFrame title={`${series.name}: record and trend`} fileName={`${base}-record`} testId="chart-record"
         legend={`${view.n} points analysed${view.stretch ? `, ${stretchReason(view.stretch.startsAfter)}` : ''} · detrending: ${view.settings.detrend}${shiftNote}`}>
         <TimeChart rows={rows} timeZone={series.timeZone} unit={series.unit} transitions={transitions} shifts={shifts} stretchStart={stretchLabelled} height={compact ? 170 : 220}
-          lines={[{ key: 'value', label: `value${series.unit ? ` (${series.unit})` : ''}`, color: '#3c4a57', width: 1 }, { key: 'trend', label: 'trend', color: '#1f6f78', width: 2.5 }]} />
+          lines={[{ key: 'value', label: `value${series.unit ? ` (${series.unit})` : ''}`, color: 'ink-soft', width: 1 }, { key: 'trend', label: 'trend', color: 'tide', width: 2.5 }]} />
       </ChartFrame>
       {compact ? null : (
       <ChartFrame title="Residuals (value − trend)" fileName={`${base}-residuals`} testId="chart-residuals">
         <TimeChart rows={rows} timeZone={series.timeZone} unit={series.unit} transitions={transitions} shifts={shifts} stretchStart={stretchPlain} zeroLine height={160}
-          lines={[{ key: 'residual', label: 'residual', color: '#6b7785', width: 1 }]} />
+          lines={[{ key: 'residual', label: 'residual', color: 'ink-faint', width: 1 }]} />
       </ChartFrame>
       )}
       {view.indicators.map((name) => (
         <ChartFrame key={name} title={`${INDICATOR_LABELS[name] ?? name} in a rolling window`} fileName={`${base}-${name}`} testId={`chart-${name}`}
           legend={<span data-testid={`trend-${name}`}>{trendLegend(view, name)}</span>}>
           <TimeChart rows={rows} timeZone={series.timeZone} transitions={transitions} shifts={shifts} stretchStart={stretchPlain} windowBand={windowBand} height={compact ? 150 : 180}
-            lines={[{ key: name, label: `${name} (window of ${view.windowPoints} points)`, color: '#1f6f78', width: 2 }]} />
+            lines={[{ key: name, label: `${name} (window of ${view.windowPoints} points)`, color: 'tide', width: 2 }]} />
         </ChartFrame>
       ))}
     </div>

@@ -1,9 +1,11 @@
 'use client';
 
+import { Button } from '@/components/ui/Button';
+
 export function PrintButton() {
   return (
-    <button type="button" onClick={() => window.print()} className="rounded bg-tide px-3 py-1.5 text-sm font-medium text-white hover:bg-tide-dark">
+    <Button variant="primary" onClick={() => window.print()}>
       Print or save as PDF
-    </button>
+    </Button>
   );
 }

@@ -17,6 +17,7 @@ import type { SettingsHistoryEntry } from '@/lib/analysis/settings-history';
 import { AnalysisCharts, INDICATOR_LABELS, type ChartSeries } from './AnalysisCharts';
 import { SettingsHistory } from './SettingsHistory';
 import { TuningPanel } from './TuningPanel';
+import { Button, buttonClass } from '@/components/ui/Button';
 
 function useDebounced<T>(value: T, ms: number): T {
   const [debounced, setDebounced] = useState(value);
@@ -28,7 +29,7 @@ function useDebounced<T>(value: T, ms: number): T {
 }
 
 const same = (a: unknown, b: unknown) => JSON.stringify(a) === JSON.stringify(b);
-const linkButton = 'inline-block rounded border border-rule px-3 py-1.5 text-sm hover:bg-paper';
+const linkButton = buttonClass('secondary');
 
 export interface WorkbenchProps {
   series: ChartSeries;
@@ -146,16 +147,15 @@ export function Workbench({ series, savedSettings, initialView, canTune, canSave
             <TuningPanel draft={draft} onChange={setDraft} />
             <div className="mt-4 flex flex-wrap gap-2">
               {canSave ? (
-                <button type="button" disabled={!changed || save.isPending} onClick={() => save.mutate(draft)}
-                  className="rounded bg-tide px-3 py-1.5 text-sm font-medium text-white hover:bg-tide-dark disabled:opacity-50">
+                <Button variant="primary" disabled={!changed || save.isPending} onClick={() => save.mutate(draft)}>
                   {save.isPending ? 'Saving…' : 'Save settings'}
-                </button>
+                </Button>
               ) : (
                 <p className="text-xs text-ink-soft">A lead saves settings for the whole team.</p>
               )}
-              <button type="button" disabled={!changed} onClick={() => setDraft(saved)} className="rounded border border-rule px-3 py-1.5 text-sm hover:bg-paper disabled:opacity-50">
+              <Button disabled={!changed} onClick={() => setDraft(saved)}>
                 Back to saved
-              </button>
+              </Button>
             </div>
             {save.isError ? <ErrorNote error={save.error}>Not saved.</ErrorNote> : null}
             {save.isSuccess && !changed ? <p role="status" className="mt-2 text-sm text-calm">✓ Saved. The next analysis run uses these settings.</p> : null}
@@ -170,10 +170,10 @@ export function Workbench({ series, savedSettings, initialView, canTune, canSave
           {canTune && changed ? (
             <div className="mt-2 flex flex-wrap gap-2">
               {(['csv', 'json'] as const).map((format) => (
-                <button key={format} type="button" className={linkButton}
+                <Button key={format}
                   onClick={() => downloadPosted(series.slug, draft, format).then(() => setExportError(null), (e: Error) => setExportError(e.message))}>
                   Preview indicators ({format.toUpperCase()})
-                </button>
+                </Button>
               ))}
             </div>
           ) : null}

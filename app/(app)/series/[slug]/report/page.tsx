@@ -1,6 +1,7 @@
 import { Caution } from '@/components/Caution';
 import { LocalTime } from '@/components/LocalTime';
 import { Empty } from '@/components/States';
+import { CELL_TIGHT, DataTable } from '@/components/ui/DataTable';
 import { PrintButton } from '@/components/workbench/PrintButton';
 import { ReportCharts } from '@/components/workbench/ReportCharts';
 import { requireRole } from '@/lib/auth/guard';
@@ -44,28 +45,23 @@ export default async function SeriesReportPage({ params }: { params: Promise<{ s
         <Empty>This series has not been analysed yet.</Empty>
       ) : (
         <>
-          <table className="num w-full text-sm">
-            <caption className="mb-1 text-left font-semibold">Trend of each indicator over the record</caption>
-            <thead className="border-b border-rule text-left text-ink-soft">
-              <tr><th scope="col">Indicator</th><th scope="col">Kendall tau</th><th scope="col">Tested</th><th scope="col">Kendall p (descriptive)</th><th scope="col">Surrogate p</th><th scope="col">Latest value</th></tr>
-            </thead>
-            <tbody>
-              {view.indicators.map((name) => {
-                const values = view.curves.indicators[name] ?? [];
-                const latest = [...values].reverse().find((v) => v !== null && v !== undefined);
-                return (
-                  <tr key={name} className="border-b border-rule">
-                    <th scope="row" className="py-1 text-left font-medium">{name}</th>
-                    <td>{formatTau(view.kendall[name]?.tau)}</td>
-                    <td>{formatDirection(view.significance[name]?.direction ?? view.kendall[name]?.direction ?? 'rising')}</td>
-                    <td>{formatP(view.kendall[name]?.p)}</td>
-                    <td>{view.significance[name] ? `${formatP(view.significance[name]!.p)} (${view.significance[name]!.count})` : '–'}</td>
-                    <td>{latest === undefined || latest === null ? '–' : Number(latest.toPrecision(4))}</td>
-                  </tr>
-                );
-              })}
-            </tbody>
-          </table>
+          <DataTable caption="Trend of each indicator over the record" showCaption frame="plain" className="num"
+            columns={['Indicator', 'Kendall tau', 'Tested', 'Kendall p (descriptive)', 'Surrogate p', 'Latest value']}>
+            {view.indicators.map((name) => {
+              const values = view.curves.indicators[name] ?? [];
+              const latest = [...values].reverse().find((v) => v !== null && v !== undefined);
+              return (
+                <tr key={name}>
+                  <th scope="row" className={`${CELL_TIGHT} text-left font-medium`}>{name}</th>
+                  <td className={CELL_TIGHT}>{formatTau(view.kendall[name]?.tau)}</td>
+                  <td className={CELL_TIGHT}>{formatDirection(view.significance[name]?.direction ?? view.kendall[name]?.direction ?? 'rising')}</td>
+                  <td className={CELL_TIGHT}>{formatP(view.kendall[name]?.p)}</td>
+                  <td className={CELL_TIGHT}>{view.significance[name] ? `${formatP(view.significance[name]!.p)} (${view.significance[name]!.count})` : '–'}</td>
+                  <td className={CELL_TIGHT}>{latest === undefined || latest === null ? '–' : Number(latest.toPrecision(4))}</td>
+                </tr>
+              );
+            })}
+          </DataTable>
           <p className="text-sm text-ink-soft">
             Settings: detrending {view.settings.detrend}
             {view.bandwidthPoints !== null && view.settings.detrend !== 'moving-average' ? `, bandwidth ${describeExtent(view.settings.bandwidth, 'the stretch')}` : ''}, rolling window {describeExtent(view.settings.window, 'the stretch')} ({view.windowPoints} of {view.n} points{view.stretch ? `, ${stretchReason(view.stretch.startsAfter)}` : ''}),
