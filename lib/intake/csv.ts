@@ -195,6 +195,31 @@ function detectDelimiter(sample: string, complete: boolean): { delimiter: Delimi
 }
 
 /**
+ * True when a whole input has no double quote and its line breaks are all LF or all CRLF (no lone CR): then
+ * papaparse's records are its lines and its fields the text between delimiters. O(n) over the bytes or characters.
+ */
+function unquotedLines(input: string | Uint8Array): boolean {
+  if (input instanceof Uint8Array) {
+    const bytes = Buffer.from(input.buffer, input.byteOffset, input.byteLength);
+    // The usual case, LF only, is decided by native scans.
+    if (bytes.indexOf(34) !== -1) return false;
+    if (bytes.indexOf(13) === -1) return true;
+  }
+  let lf = 0;
+  let cr = 0;
+  let crlf = 0;
+  for (let i = 0; i < input.length; i++) {
+    const c = typeof input === 'string' ? input.charCodeAt(i) : input[i];
+    if (c === 34) return false;
+    if (c === 10) {
+      lf++;
+      if (i > 0 && (typeof input === 'string' ? input.charCodeAt(i - 1) : input[i - 1]) === 13) crlf++;
+    } else if (c === 13) cr++;
+  }
+  return cr === 0 || (cr === crlf && lf === crlf);
+}
+
+/**
  * Reads a CSV streaming (papaparse over a Node stream): detects encoding, binary content and the delimiter from
  * the first 64 K characters, refuses a line longer than MAX_LINE_CHARS before papaparse buffers it, skips blank
  * lines and `#` comment lines (counting them), decides whether the first record is a header, and hands every data
@@ -255,6 +280,26 @@ export async function readCsv(input: CsvInput, options: CsvReadOptions): Promise
   let line = 1;
   let first = true;
   let failure: unknown = null;
+  // A whole input (not a stream) can be checked ahead for quotes.
+  const whole = typeof input === 'string' || input instanceof Uint8Array;
+  if (whole && unquotedLines(input)) {
+    // No quotes and one kind of line break: a record is a line and a field what lies between delimiters, exactly
+    // what papaparse would make of it, found without its per-character state machine (several times faster on
+    // million-row files).
+    let carry = '';
+    for await (const chunk of guarded()) {
+      const text = carry + chunk;
+      let from = 0;
+      for (let nl = text.indexOf('\n'); nl !== -1; nl = text.indexOf('\n', from)) {
+        handle(text.slice(from, nl > from && text.charCodeAt(nl - 1) === 13 ? nl - 1 : nl).split(layout.delimiter), []);
+        from = nl + 1;
+      }
+      carry = text.slice(from);
+    }
+    // As papaparse streams it: a last line without a line break is a record; nothing after a final break is.
+    if (carry !== '') handle(carry.split(layout.delimiter), []);
+    return finish();
+  }
   const stream = Readable.from(guarded());
   await new Promise<void>((resolve, reject) => {
     Papa.parse<string[]>(stream, {
@@ -275,11 +320,15 @@ export async function readCsv(input: CsvInput, options: CsvReadOptions): Promise
       error: (error: Error) => reject(failure ?? error),
     });
   });
-  if (stats.dataRows === 0) {
-    if (layout.header) throw new CsvFileError('header-only', 'The file has a header line but no data rows.');
-    throw new CsvFileError('no-data', 'The file has no data rows (only blank or comment lines).');
+  return finish();
+
+  function finish(): { layout: CsvLayout; stats: CsvStats } {
+    if (stats.dataRows === 0) {
+      if (layout.header) throw new CsvFileError('header-only', 'The file has a header line but no data rows.');
+      throw new CsvFileError('no-data', 'The file has no data rows (only blank or comment lines).');
+    }
+    return { layout, stats };
   }
-  return { layout, stats };
 
   function handle(fields: string[], errors: Papa.ParseError[]): void {
     const here = line;
