@@ -171,8 +171,10 @@ function binaryProblem(sample: string): string | null {
   return null;
 }
 
-const isBlank = (fields: string[]) => fields.every((f) => f.trim() === '');
-const isComment = (fields: string[]) => fields.length > 0 && fields[0].trimStart().startsWith('#');
+/** The usual record starts with a printable character other than `#`: neither blank nor a comment, decided without trimming. */
+const plainStart = (fields: string[]) => fields[0].length > 0 && fields[0].charCodeAt(0) > 32 && fields[0].charCodeAt(0) !== 35;
+const isBlank = (fields: string[]) => !plainStart(fields) && fields.every((f) => f.trim() === '');
+const isComment = (fields: string[]) => fields.length > 0 && !plainStart(fields) && fields[0].trimStart().startsWith('#');
 
 /** Picks the delimiter that splits the sample's records into the same number (≥ 2) of fields, preferring DELIMITERS' order. */
 function detectDelimiter(sample: string, complete: boolean): { delimiter: Delimiter; detected: boolean; fieldCount: number } {
