@@ -5,42 +5,33 @@
  *     [--seasonal none|month|day-of-year] [--log] [--max-gap N] [--gap-policy error|latest-stretch]
  *     [--min-coverage F] [--sampling-change start-after|subsample] [--shift-detection on|off]
  *     [--moving-average-width N] [--transition TIME]... [--maintenance TIME]... [--sensitivity] [--summary]
+ *     [--time-format iso8601|date|epoch-seconds|epoch-milliseconds|decimal-year|age-years-bp|age-kyr-bp|number]
+ *     [--time-zone IANA-ZONE]
  * An EXTENT is a fraction of the analysed stretch, "<n> points" or an ISO 8601 duration (P90D, P2Y, PT12H).
  * Prints the analysis as JSON on stdout. Bad input: exit code 2, one line on stderr, nothing on stdout.
- * `series.time`, `stretch`, `shifts` and the quality findings' instants are written as the time column is: the
- * numbers themselves when it is numeric, ISO 8601 UTC strings when it holds dates (ISO 8601 without an offset is
- * read as UTC).
+ * The file is read by the intake's reader (lib/intake), as an upload of a series with that time format and zone
+ * would be: without --time-format, ISO 8601, or plain numbers when the time column's first cell is a number;
+ * --time-zone (default UTC) places ISO times without an offset. `series.time`, `stretch`, `shifts` and the quality
+ * findings' instants are written as the time column is: the numbers themselves for plain numbers, ISO 8601 UTC
+ * strings otherwise (±YYYYYY years outside 0000–9999).
  */
 import { readFileSync } from 'node:fs';
-import Papa from 'papaparse';
 import { ZodError } from 'zod';
 import { AnalysisInputError, analysisSettingsSchema, runAnalysis, summarizeAnalysis, type AnalysisResult } from '../lib/engine';
+import { CsvFileError, readCsv } from '../lib/intake/csv';
+import { collectCsvRows } from '../lib/intake/rows';
+import { formatInstant, parseTime, type TimeReading } from '../lib/intake/time-formats';
+import { TIME_FORMATS, seriesFieldsSchema } from '../lib/schemas/series';
 
 class CliInputError extends Error {}
 
-const ISO = /^(\d{4})-(\d{2})(?:-(\d{2})(?:[T ](\d{2}):(\d{2})(?::(\d{2})(?:[.,](\d+))?)?)?)?(Z|[+-]\d{2}(?::?\d{2})?)?$/;
-
-/** ISO 8601 calendar date or date-time to UTC milliseconds (no offset = UTC); NaN if not valid. */
-export function parseIsoInstant(s: string): number {
-  const m = ISO.exec(s);
-  if (!m) return Number.NaN;
-  const [, y, mo, d = '01', h = '00', mi = '00', se = '00', frac = '', zone = 'Z'] = m;
-  const year = +y, month = +mo, day = +d, hour = +h, minute = +mi, second = +se;
-  if (month < 1 || month > 12 || day < 1 || hour > 23 || minute > 59 || second > 59) return Number.NaN;
-  if (day > new Date(Date.UTC(year, month, 0)).getUTCDate()) return Number.NaN;
-  let t = Date.UTC(year, month - 1, day, hour, minute, second) + (frac ? Number(`0.${frac}`) * 1000 : 0);
-  if (zone !== 'Z') {
-    const sign = zone[0] === '-' ? -1 : 1;
-    const digits = zone.slice(1).replace(':', '');
-    t -= sign * (Number(digits.slice(0, 2)) * 60 + Number(digits.slice(2) || '0')) * 60_000;
-  }
-  return t;
-}
+/** The intake's time formats, and plain numbers (no calendar). */
+const TIME_READINGS: readonly TimeReading[] = [...TIME_FORMATS, 'number'];
 
 const FLAGS = new Set(['sensitivity', 'summary', 'log']);
 const OPTIONS = new Set([
   'time', 'value', 'detrend', 'bandwidth', 'window', 'span', 'indicators', 'surrogates', 'surrogate-method', 'seed', 'seasonal',
-  'max-gap', 'gap-policy', 'min-coverage', 'sampling-change', 'shift-detection', 'moving-average-width',
+  'max-gap', 'gap-policy', 'min-coverage', 'sampling-change', 'shift-detection', 'moving-average-width', 'time-format', 'time-zone',
 ]);
 /** Options that may be given more than once (each adds a break). */
 const REPEATED = new Set(['transition', 'maintenance']);
@@ -64,7 +55,7 @@ function parseArgs(argv: string[]): { file: string; opts: Record<string, string>
     } else if (file === undefined) file = a;
     else throw new CliInputError(`unexpected argument ${a}`);
   }
-  if (!file) throw new CliInputError('usage: analyze FILE.csv [--time COLUMN] [--value COLUMN] [--detrend ...] [--summary]');
+  if (!file) throw new CliInputError('usage: analyze FILE.csv [--time COLUMN] [--value COLUMN] [--time-format FORMAT] [--time-zone ZONE] [--detrend ...] [--summary]');
   return { file, opts, flags, repeated };
 }
 
@@ -118,239 +109,79 @@ interface Table {
   value: Float64Array;
   numericTime: boolean;
   lines: Int32Array;
-  timeName: string;
   valueName: string;
+  format: TimeReading;
+  zone: string;
 }
 
-function readTable(file: string, timeCol: string | undefined, valueCol: string | undefined): Table {
+/** Raised to stop reading after the first data record. */
+class Enough extends Error {}
+
+/**
+ * The first data cell of the time column (a header is always read), from the file's first 64 KiB through the
+ * intake's reader; undefined when there is none there, and the full read then says what is wrong.
+ */
+async function firstTimeCell(bytes: Buffer, column: string | undefined): Promise<string | undefined> {
+  let index = 0;
+  let cell: string | undefined;
+  try {
+    await readCsv(bytes.subarray(0, 65_536), {
+      header: true,
+      onLayout: (layout) => {
+        if (column !== undefined) index = layout.header?.findIndex((h) => h.toLowerCase() === column.toLowerCase()) ?? -1;
+      },
+      onRow: (fields) => {
+        cell = fields[index];
+        throw new Enough();
+      },
+    });
+  } catch {
+    // Enough, or a file-level problem the full read reports.
+  }
+  return cell;
+}
+
+/**
+ * Reads the file through the intake's reader, as an upload of a series with this time format and zone would be read
+ * (encoding, delimiter, header, sorting, duplicates). Without --time-format, the time column is ISO 8601, or plain
+ * numbers when its first cell is a number. Any rejected row or file-level problem stops the command.
+ */
+async function readTable(file: string, opts: Record<string, string>): Promise<Table> {
+  const zoneCheck = seriesFieldsSchema.shape.timeZone.safeParse(opts['time-zone'] ?? 'UTC');
+  if (!zoneCheck.success) throw new CliInputError(`option --time-zone: '${opts['time-zone']}': ${zoneCheck.error.issues[0].message}`);
+  const zone = zoneCheck.data;
+  const given = opts['time-format'];
+  if (given !== undefined && !TIME_READINGS.includes(given as TimeReading)) {
+    throw new CliInputError(`option --time-format: '${given}' is not one of ${TIME_READINGS.join(', ')}`);
+  }
   let bytes: Buffer;
   try {
     bytes = readFileSync(file);
   } catch (e) {
     throw new CliInputError(`cannot read file: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`);
   }
-  const bom = bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf ? 3 : 0;
-  let headerEnd = bytes.indexOf(10, bom);
-  if (headerEnd < 0) headerEnd = bytes.length;
-  const headerText = bytes.toString('utf8', bom, headerEnd).replace(/\r$/, '');
-  const head = Papa.parse<string[]>(headerText);
-  const headerRow = head.data[0];
-  if (!headerRow || headerRow.every((c) => c.trim() === '')) throw new CliInputError('line 1: the file has no header row');
-  const header = headerRow.map((h) => h.trim());
-  const pick = (name: string | undefined, fallback: number, what: string) => {
-    if (name === undefined) {
-      if (header.length <= fallback) throw new CliInputError(`line 1: no ${what} column (the header has ${header.length} column${header.length === 1 ? '' : 's'})`);
-      return fallback;
-    }
-    const i = header.indexOf(name);
-    if (i < 0) throw new CliInputError(`line 1, column "${name}": no such column (columns: ${header.join(', ')})`);
-    return i;
-  };
-  const ti = pick(timeCol, 0, 'time');
-  const vi = pick(valueCol, 1, 'value');
-  const timeName = header[ti];
-  const valueName = header[vi];
-  let cap = 1024;
-  let time = new Float64Array(cap);
-  let value = new Float64Array(cap);
-  let lines = new Int32Array(cap);
-  let m = 0;
-  let numericTime: boolean | undefined;
-  const take: CellSink = (line, cell, blank) => {
-    if (blank) return;
-    let t = cell.number(0);
-    if (numericTime === undefined) {
-      const ts = cell.text(0).trim();
-      numericTime = Number.isFinite(t) && !ISO.test(ts);
-      if (ts === '') throw new CliInputError(`line ${line}, column "${timeName}": missing time`);
-    }
-    if (!numericTime || !Number.isFinite(t)) {
-      const ts = cell.text(0).trim();
-      if (ts === '') throw new CliInputError(`line ${line}, column "${timeName}": missing time`);
-      t = numericTime ? Number.NaN : parseIsoInstant(ts);
-      if (!Number.isFinite(t)) {
-        throw new CliInputError(`line ${line}, column "${timeName}": '${ts}' is not ${numericTime ? 'a number' : 'an ISO 8601 date or date-time'}`);
-      }
-    }
-    let v = cell.number(1);
-    if (!Number.isFinite(v)) {
-      const vs = cell.text(1).trim();
-      if (vs !== '') throw new CliInputError(`line ${line}, column "${valueName}": '${vs}' is not a number`);
-      v = Number.NaN;
-    }
-    if (m === cap) {
-      cap *= 2;
-      const grow = <T extends Float64Array | Int32Array>(a: T, b: T): T => (b.set(a), b);
-      time = grow(time, new Float64Array(cap));
-      value = grow(value, new Float64Array(cap));
-      lines = grow(lines, new Int32Array(cap));
-    }
-    time[m] = t;
-    value[m] = v;
-    lines[m] = line;
-    m++;
-  };
-  const body = bytes.subarray(Math.min(bytes.length, headerEnd + 1));
-  if (body.includes(34)) quotedCells(body.toString('utf8'), ti, vi, take);
-  else plainCells(body, head.meta.delimiter, ti, vi, take);
-  if (m === 0) throw new CliInputError('the file has a header but no data rows');
-  return { time: time.subarray(0, m), value: value.subarray(0, m), numericTime: numericTime!, lines: lines.subarray(0, m), timeName, valueName };
-}
-
-/** The two wanted cells of a row (0 = time, 1 = value): as a number (NaN if empty or not one) or as text. */
-interface RowCells {
-  number(k: 0 | 1): number;
-  text(k: 0 | 1): string;
-}
-
-/** Receives the two wanted cells of each data row, with its physical line number. */
-type CellSink = (line: number, cells: RowCells, blank: boolean) => void;
-
-/** Rows of a body with quoted fields: papaparse does the quoting rules. */
-function quotedCells(body: string, ti: number, vi: number, take: CellSink): void {
-  const parsed = Papa.parse<string[]>(body, { skipEmptyLines: false });
-  const bad = parsed.errors.find((e) => e.type !== 'Delimiter');
-  if (bad) throw new CliInputError(`line ${(bad.row ?? 0) + 2}: ${bad.message}`);
-  let row: string[] = [];
-  const cells: RowCells = {
-    number: (k) => {
-      const c = (row[k === 0 ? ti : vi] ?? '').trim();
-      return c === '' ? Number.NaN : Number(c);
-    },
-    text: (k) => row[k === 0 ? ti : vi] ?? '',
-  };
-  // Line numbers count physical lines, so quoted line breaks inside a cell are added back.
-  let line = 2;
-  for (row of parsed.data) {
-    take(line, cells, row.length === 1 && row[0].trim() === '');
-    for (const c of row) for (let k = c.indexOf('\n'); k >= 0; k = c.indexOf('\n', k + 1)) line++;
-    line++;
+  let format = given as TimeReading | undefined;
+  if (format === undefined) {
+    const cell = await firstTimeCell(bytes, opts.time);
+    format = cell !== undefined && parseTime(cell, 'number', zone).ok ? 'number' : 'iso8601';
   }
-}
-
-const POW10 = Array.from({ length: 23 }, (_, k) => 10 ** k);
-
-/**
- * Decimal number in bytes [a, b) (blanks around it allowed) when it has at most 15 significant digits and
- * a power of ten up to 10^22: then m / 10^k (or m·10^k) of two exactly representable doubles is the
- * correctly rounded value (Clinger (1990), "How to read floating point numbers accurately", PLDI).
- * NaN otherwise, and the caller falls back to Number() on the text.
- */
-function fastNumber(buf: Buffer, a: number, b: number): number {
-  while (a < b && (buf[a] === 32 || buf[a] === 9)) a++;
-  while (b > a && (buf[b - 1] === 32 || buf[b - 1] === 9)) b--;
-  if (a === b) return Number.NaN;
-  let i = a;
-  let neg = false;
-  if (buf[i] === 45 || buf[i] === 43) {
-    neg = buf[i] === 45;
-    i++;
+  const valueColumn = opts.value ?? 1;
+  let rows;
+  try {
+    rows = await collectCsvRows(bytes, { timeColumn: opts.time ?? 0, valueColumn, timeFormat: format, header: true }, zone);
+  } catch (e) {
+    if (!(e instanceof CsvFileError)) throw e;
+    // The contract names a line and column wherever there is one: a missing column is the header's (line 1).
+    const missing = e.code === 'missing-column' ? /column "([^"]*)"/.exec(e.message)?.[1] : undefined;
+    throw new CliInputError(missing !== undefined ? `line 1, column "${missing}": ${e.message}` : e.message);
   }
-  let mant = 0;
-  let digits = 0;
-  let scale = 0;
-  let seenDigit = false;
-  let dot = false;
-  for (; i < b; i++) {
-    const c = buf[i];
-    if (c >= 48 && c <= 57) {
-      seenDigit = true;
-      if (mant === 0 && c === 48) {
-        if (dot) scale--;
-        continue;
-      }
-      if (++digits > 15) return Number.NaN;
-      mant = mant * 10 + (c - 48);
-      if (dot) scale--;
-    } else if (c === 46 && !dot) dot = true;
-    else break;
+  if (rows.rejectedCount > 0) {
+    const first = rows.rejectedRows.reduce((a, b) => (b.line < a.line ? b : a));
+    const more = rows.rejectedCount > 1 ? ` (${rows.rejectedCount - 1} more row${rows.rejectedCount > 2 ? 's' : ''} rejected)` : '';
+    throw new CliInputError(`line ${first.line}${first.column === null ? '' : `, column "${first.column}"`}: ${first.reason}${more}`);
   }
-  if (!seenDigit) return Number.NaN;
-  if (i < b) {
-    if (buf[i] !== 101 && buf[i] !== 69) return Number.NaN;
-    i++;
-    let eneg = false;
-    if (buf[i] === 45 || buf[i] === 43) {
-      eneg = buf[i] === 45;
-      i++;
-    }
-    let e = 0;
-    const start = i;
-    for (; i < b && buf[i] >= 48 && buf[i] <= 57 && e < 1000; i++) e = e * 10 + (buf[i] - 48);
-    if (i !== b || i === start) return Number.NaN;
-    scale += eneg ? -e : e;
-  }
-  if (mant === 0) return neg ? -0 : 0;
-  if (scale < -22 || scale > 22) return Number.NaN;
-  const v = scale < 0 ? mant / POW10[-scale] : mant * POW10[scale];
-  if (scale > 0 && v >= 9007199254740992) return Number.NaN;
-  return neg ? -v : v;
-}
-
-/**
- * Rows of a body without quotes, where a field is everything between delimiters (the header's
- * delimiter, as papaparse detected it): a byte scan that reads numbers in place is several times faster
- * than a general CSV parser on million-row files and keeps no per-cell strings.
- */
-function plainCells(body: Buffer, delimiter: string, ti: number, vi: number, take: CellSink): void {
-  const delim = Buffer.from(delimiter);
-  if (delim.length !== 1) {
-    quotedCells(body.toString('utf8'), ti, vi, take);
-    return;
-  }
-  const sep = delim[0];
-  const span = [0, 0, 0, 0];
-  const cells: RowCells = {
-    number: (k) => {
-      const a = span[2 * k], b = span[2 * k + 1];
-      const v = fastNumber(body, a, b);
-      if (!Number.isNaN(v)) return v;
-      const t = body.toString('utf8', a, b).trim();
-      return t === '' ? Number.NaN : Number(t);
-    },
-    text: (k) => body.toString('utf8', span[2 * k], span[2 * k + 1]),
-  };
-  const n = body.length;
-  let line = 2;
-  let pos = 0;
-  while (pos < n) {
-    // One pass over the row's bytes: field boundaries, end of line, and whether it is blank.
-    let col = 0;
-    let fieldStart = pos;
-    let blank = true;
-    span[0] = span[1] = span[2] = span[3] = -1;
-    let i = pos;
-    for (; i < n; i++) {
-      const c = body[i];
-      if (c === 10) break;
-      if (c === sep) {
-        if (col === ti) {
-          span[0] = fieldStart;
-          span[1] = i;
-        }
-        if (col === vi) {
-          span[2] = fieldStart;
-          span[3] = i;
-        }
-        col++;
-        fieldStart = i + 1;
-        blank = false;
-      } else if (blank && c !== 32 && c !== 9 && c !== 13) blank = false;
-    }
-    const stop = i > pos && body[i - 1] === 13 ? i - 1 : i;
-    if (col === ti) {
-      span[0] = fieldStart;
-      span[1] = stop;
-    }
-    if (col === vi) {
-      span[2] = fieldStart;
-      span[3] = stop;
-    }
-    for (let k = 0; k < 4; k += 2) if (span[k] < 0) span[k] = span[k + 1] = stop;
-    take(line, cells, blank);
-    pos = i + 1;
-    line++;
-  }
+  const valueName = typeof valueColumn === 'string' ? valueColumn : (rows.layout?.header?.[valueColumn] ?? `column ${valueColumn + 1}`);
+  return { time: rows.t, value: rows.value, numericTime: format === 'number', lines: rows.line, valueName, format, zone };
 }
 
 /** Where an engine error points: the input line at or after the instant it names. */
@@ -367,17 +198,17 @@ function locate(err: AnalysisInputError, table: Table): string {
   return `${range}, column "${table.valueName}"`;
 }
 
-/** A break given on the command line: a number or an ISO 8601 instant, read as the time column is. */
-function breakTimes(values: string[] | undefined, kind: 'transition' | 'maintenance', numericTime: boolean): { time: number; kind: 'transition' | 'maintenance' }[] {
+/** A break given on the command line, read as the time column is (format and zone). */
+function breakTimes(values: string[] | undefined, kind: 'transition' | 'maintenance', table: Table): { time: number; kind: 'transition' | 'maintenance' }[] {
   return (values ?? []).map((v) => {
-    const time = numericTime ? Number(v) : parseIsoInstant(v.trim());
-    if (v.trim() === '' || !Number.isFinite(time)) throw new CliInputError(`option --${kind}: '${v}' is not ${numericTime ? 'a number' : 'an ISO 8601 date or date-time'} (as the time column)`);
-    return { time, kind };
+    const time = parseTime(v, table.format, table.zone);
+    if (!time.ok) throw new CliInputError(`option --${kind}: ${time.reason} (read as the time column, ${table.format})`);
+    return { time: time.t, kind };
   });
 }
 
 function toJson(result: AnalysisResult, summary: boolean, numericTime: boolean): unknown {
-  const when = (v: number): number | string => (numericTime ? v : new Date(v).toISOString());
+  const when = (v: number): number | string => (numericTime ? v : formatInstant(v));
   const { quality } = result;
   const times = {
     shifts: result.shifts.map((s) => ({ time: when(s.time), index: s.index })),
@@ -414,8 +245,8 @@ async function main(): Promise<number> {
     const args = parseArgs(argv);
     file = args.file;
     const settings = settingsFrom(args.opts, args.flags);
-    table = readTable(args.file, args.opts.time, args.opts.value);
-    const breaks = [...breakTimes(args.repeated.transition, 'transition', table.numericTime), ...breakTimes(args.repeated.maintenance, 'maintenance', table.numericTime)];
+    table = await readTable(args.file, args.opts);
+    const breaks = [...breakTimes(args.repeated.transition, 'transition', table), ...breakTimes(args.repeated.maintenance, 'maintenance', table)];
     const result = await runAnalysis({ time: table.time, value: table.value, timeKind: table.numericTime ? 'numeric' : 'utc-ms', breaks }, settings);
     process.stdout.write(`${JSON.stringify(toJson(result, args.flags.has('summary'), table.numericTime))}\n`);
     return 0;

@@ -1,6 +1,11 @@
 import type { TIME_FORMATS } from '@/lib/schemas/series';
 
 export type TimeFormat = (typeof TIME_FORMATS)[number];
+/**
+ * How a time column can be read: one of the series' formats (instants in UTC ms), or `number`, plain numbers with
+ * no calendar (a model's time steps, a depth), which only the command line reads, since a stored series holds instants.
+ */
+export type TimeReading = TimeFormat | 'number';
 
 /**
  * Instants are integer milliseconds since 1970-01-01T00:00:00Z on the proleptic Gregorian calendar without leap
@@ -196,11 +201,18 @@ function parseNumber(text: string, what: string): number | string {
   return Number(text);
 }
 
-/** One time cell → UTC ms, or the reason it cannot be one. `zone` is the series' IANA zone, used only for ISO times without an offset. */
-export function parseTime(raw: string, format: TimeFormat, zone: string): TimeParse {
+/**
+ * One time cell → UTC ms (the number itself for `number`), or the reason it cannot be one. `zone` is the series'
+ * IANA zone, used only for ISO times without an offset.
+ */
+export function parseTime(raw: string, format: TimeReading, zone: string): TimeParse {
   const text = raw.trim();
   if (text === '') return fail('the time is empty');
   switch (format) {
+    case 'number': {
+      const n = parseNumber(text, 'plain numeric time');
+      return typeof n === 'string' ? fail(n) : { ok: true, t: n };
+    }
     case 'iso8601':
       return parseIso(text, zone);
     case 'date': {

@@ -3,6 +3,8 @@ import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
+import { collectCsvRows } from '@/lib/intake/rows';
+import { formatInstant } from '@/lib/intake/time-formats';
 
 const root = path.resolve(__dirname, '../..');
 const dir = mkdtempSync(path.join(tmpdir(), 'bw-cli-'));
@@ -90,9 +92,9 @@ describe('analyze command line', () => {
   const bad: [string, string, string[], RegExp][] = [
     ['bad extent', `t,x\n1,2\n`, ['--window', 'ninety days'], /: option --window: must be a fraction, "<n> points" or an ISO 8601 duration/],
     ['duration on numeric times', `t,x\n${rows(40, (i) => `${i},${(i * 7) % 5}`)}\n`, ['--window', 'P10D'], /: lines 2-41, column "x": the duration "P10D" needs calendar timestamps/],
-    ['missing column', `t,x\n1,2\n`, ['--value', 'level'], /: line 1, column "level": no such column/],
-    ['non-numeric value', `t,x\n${rows(20, (i) => `${i},${i === 6 ? 'n/a' : i}`)}\n`, [], /: line 8, column "x": 'n\/a' is not a number$/],
-    ['bad date', `t,x\n2020-01-01,1\n2020-02-30,2\n`, [], /: line 3, column "t": '2020-02-30' is not an ISO 8601 date/],
+    ['missing column', `t,x\n1,2\n`, ['--value', 'level'], /: line 1, column "level": The header has no column "level" \(it has: "t", "x"\)\.$/],
+    ['non-numeric value', `t,x\n${rows(20, (i) => `${i},${i === 6 ? 'n/a' : i}`)}\n`, [], /: line 8, column "x": "n\/a" is not a number$/],
+    ['bad date', `t,x\n2020-01-01,1\n2020-02-30,2\n`, [], /: line 3, column "t": 2020-02-30 does not exist \(that month has 29 days\)$/],
     ['too short for w ≥ 8', `t,x\n${rows(10, (i) => `${i},${i * i % 7}`)}\n`, [], /: lines 2-11, column "x": rolling window 0\.5 × 10 points = 5 points; at least 8 are needed/],
     ['long gap', `t,x\n${rows(40, (i) => `${i < 20 ? i : i + 10},${i % 5}`)}\n`, [], /: line 22, column "x": gap of 10 missing points from 20 to 29 is longer than maxGap = 3/],
     ['bad option', `t,x\n1,2\n`, ['--window', '2'], /: option --window: /],
@@ -109,4 +111,64 @@ describe('analyze command line', () => {
       expect(lines[0]).toMatch(message);
     });
   }
+});
+
+// One reader for the command line and the product: the CLI reads a file through lib/intake exactly as an upload of a
+// series with that time format and zone is read, so both turn one file into the same instants.
+describe('analyze reads a file as intake does', () => {
+  const value = (i: number) => (5 + Math.sin(i / 3) + ((i * 37) % 11) / 11).toFixed(4);
+  const intake = async (text: string, timeFormat: 'iso8601' | 'decimal-year', zone: string) =>
+    collectCsvRows(text, { timeColumn: 0, valueColumn: 1, timeFormat, header: true }, zone);
+
+  it('times without an offset are placed in --time-zone, across a daylight-saving change', async () => {
+    const text = `when,level\n${rows(40, (i) => `${new Date(Date.UTC(2024, 2, 10 + i)).toISOString().slice(0, 10)}T12:00:00,${value(i)}`)}\n`;
+    const r = analyze([csv('oslo.csv', text), '--time-zone', 'Europe/Oslo', '--shift-detection', 'off', '--indicators', 'variance']);
+    expect(r.code, r.stderr).toBe(0);
+    const out = JSON.parse(r.stdout);
+    const rowsRead = await intake(text, 'iso8601', 'Europe/Oslo');
+    expect(out.series.time).toEqual(Array.from(rowsRead.t, formatInstant));
+    // Noon in Oslo is 11:00 UTC under CET (UTC+1) and 10:00 UTC under CEST (UTC+2), which in the EU starts on the
+    // last Sunday of March, 2024-03-31 (Directive 2000/84/EC, art. 2).
+    expect(out.series.time[0]).toBe('2024-03-10T11:00:00.000Z');
+    expect(out.series.time[39]).toBe('2024-04-18T10:00:00.000Z');
+  });
+
+  it('expanded years (±YYYYYY, ISO 8601 §4.1.2.4) are read and written back as such', async () => {
+    const day = 86_400_000;
+    const start = -377_736_739_200_000; // -010000-01-01T00:00:00Z
+    const text = `when,level\n${rows(40, (i) => `${formatInstant(start + i * day)},${value(i)}`)}\n`;
+    const r = analyze([csv('deep.csv', text), '--summary', '--shift-detection', 'off', '--indicators', 'variance']);
+    expect(r.code, r.stderr).toBe(0);
+    const out = JSON.parse(r.stdout);
+    expect(formatInstant(start)).toBe('-010000-01-01T00:00:00.000Z');
+    expect(out.stretch.from).toBe('-010000-01-01T00:00:00.000Z');
+    expect(out.stretch.to).toBe(formatInstant((await intake(text, 'iso8601', 'UTC')).t[39]));
+  });
+
+  it('a year and month alone (2024-05) is refused as intake refuses it, naming line and column', async () => {
+    const text = `when,level\n2024-04-30,1\n2024-05,2\n${rows(20, (i) => `2024-06-${String(i + 1).padStart(2, '0')},${value(i)}`)}\n`;
+    const file = csv('month.csv', text);
+    const r = analyze([file]);
+    expect(r.code).toBe(2);
+    expect(r.stdout).toBe('');
+    const rejected = (await intake(text, 'iso8601', 'UTC')).rejectedRows;
+    expect(rejected).toHaveLength(1);
+    expect(r.stderr).toBe(`${file}: line 3, column "when": ${rejected[0].reason}\n`);
+  });
+
+  it('--time-format takes the intake formats (decimal years become instants); plain numbers stay numbers by default', async () => {
+    const text = `year,level\n${rows(40, (i) => `${(1990 + i / 4).toFixed(2)},${value(i)}`)}\n`;
+    const file = csv('decimal.csv', text);
+    const asYears = analyze([file, '--time-format', 'decimal-year', '--shift-detection', 'off', '--indicators', 'variance']);
+    expect(asYears.code, asYears.stderr).toBe(0);
+    expect(JSON.parse(asYears.stdout).series.time).toEqual(Array.from((await intake(text, 'decimal-year', 'UTC')).t, formatInstant));
+    // 1990.25 is a quarter of 1990's 365 days after its start: 91.25 days, 1990-04-02T06:00Z (common practice, see time-formats.ts).
+    expect(JSON.parse(asYears.stdout).series.time[1]).toBe('1990-04-02T06:00:00.000Z');
+    const plain = analyze([file, '--shift-detection', 'off', '--indicators', 'variance']);
+    expect(plain.code, plain.stderr).toBe(0);
+    expect(JSON.parse(plain.stdout).series.time.slice(0, 2)).toEqual([1990, 1990.25]);
+    const bad = analyze([file, '--time-format', 'fortnights']);
+    expect(bad.code).toBe(2);
+    expect(bad.stderr).toMatch(/: option --time-format: 'fortnights' is not one of iso8601, date, /);
+  });
 });
