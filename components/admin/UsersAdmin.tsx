@@ -4,7 +4,7 @@ import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { useState, type FormEvent } from 'react';
 import { api } from '@/components/api';
 import { Empty, ErrorNote, Loading } from '@/components/States';
-import { ROLES } from '@/models/roles';
+import { ROLES } from '@/lib/auth/roles';
 
 export interface UserRow {
   id: number;

@@ -5,7 +5,7 @@ import { useState } from 'react';
 import { api } from '@/components/api';
 import { Empty, ErrorNote, Loading } from '@/components/States';
 import { formatLocal } from '@/lib/display/format';
-import type { TransitionRecord } from '@/lib/backtest/transitions';
+import type { TransitionRecord } from '@/lib/backtest/marks';
 
 /** Known transitions of a series: listed for everyone, marked and removed by leads. */
 export function TransitionList({ slug, timeZone, canEdit }: { slug: string; timeZone: string; canEdit: boolean }) {

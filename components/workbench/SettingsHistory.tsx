@@ -33,7 +33,7 @@ export function SettingsHistory({ slug, initial, timeZone }: { slug: string; ini
       {query.data.map((entry, i) => (
         <li key={entry.id} className="border-l-2 border-rule pl-3">
           <div className="flex flex-wrap gap-x-2">
-            <LocalTime t={entry.changedAt as unknown as string} timeZone={timeZone} withZone />
+            <LocalTime t={entry.changedAt} timeZone={timeZone} withZone />
             <span className="font-medium">{entry.changedBy?.name ?? 'system'}</span>
             {i === 0 ? <span className="text-xs text-calm">(in use)</span> : null}
           </div>

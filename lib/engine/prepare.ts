@@ -1,8 +1,8 @@
 import { AnalysisInputError } from './errors';
 import { extentPoints, type Extent } from './extent';
+import type { TimeKind } from './time-kind';
 
 /** How the time axis is read: UTC milliseconds (dates) or plain numbers in the caller's own unit. */
-export type TimeKind = 'utc-ms' | 'numeric';
 
 export interface GapReport {
   /** first and last missing grid instant */

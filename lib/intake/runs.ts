@@ -1,3 +1,4 @@
+import 'server-only';
 import { IngestRun, Series, db } from '@/models';
 import { NotFoundError } from '@/lib/http/errors';
 import type { IngestRunQuery } from '@/lib/schemas/intake';

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { ROLES } from '@/models/roles';
+import { ROLES } from '@/lib/auth/roles';
 
 export const emailSchema = z.string().trim().toLowerCase().pipe(z.email().max(254));
 

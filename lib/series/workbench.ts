@@ -1,3 +1,4 @@
+import 'server-only';
 import { QueryTypes } from 'sequelize';
 import { AnalysisSnapshot, IngestRun, Transition, db } from '@/models';
 import { cachedRead } from '@/lib/db/read-cache';
