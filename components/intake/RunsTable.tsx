@@ -5,7 +5,8 @@ import { useState } from 'react';
 import { SeriesPicker } from '@/components/SeriesPicker';
 import type { SeriesChoice } from '@/lib/series/registry';
 import { api } from '@/components/api';
-import { formatCount, formatDuration, type RunSummary } from './api';
+import { formatCount, formatDuration } from './api';
+import type { IngestRunRecord as RunSummary } from '@/lib/intake/run-record';
 import { RunReport } from './RunReport';
 import { StatusBadge } from './StatusBadge';
 

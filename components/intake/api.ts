@@ -1,20 +1,3 @@
-export interface RunSummary {
-  id: number;
-  series: { slug: string; name: string } | null;
-  source: 'drop' | 'upload' | 'push';
-  fileName: string | null;
-  status: 'running' | 'succeeded' | 'rejected' | 'failed';
-  rowsRead: number;
-  accepted: number;
-  duplicates: number;
-  replaced: number;
-  rejected: number;
-  message: string;
-  alreadyApplied: boolean;
-  durationMs: number | null;
-  startedAt: string;
-}
-
 export interface RejectedRow {
   line: number;
   column: string | null;

@@ -1,8 +1,8 @@
 import { Readable } from 'node:stream';
 import iconv from 'iconv-lite';
 import Papa from 'papaparse';
+import type { Delimiter } from './choices';
 
-export type Delimiter = ',' | ';' | '\t' | '|';
 /** Order of preference when several delimiters split the sample equally well: a file with consistent semicolons is semicolon-delimited even if its values contain commas (comma decimals). */
 export const DELIMITERS: readonly Delimiter[] = ['\t', ';', '|', ','];
 /** A time,value line is well under 100 characters; anything this long is not a record but a broken or hostile file. */

@@ -1,5 +1,6 @@
 import { observationSchema, type PushedObservation } from '@/lib/schemas/observation';
-import { CsvFileError, readCsv, type CsvInput, type CsvLayout, type CsvStats, type Delimiter } from './csv';
+import type { Delimiter } from './choices';
+import { CsvFileError, readCsv, type CsvInput, type CsvLayout, type CsvStats } from './csv';
 import { parseTime, type TimeFormat } from './time-formats';
 
 /** How to read the time and value of each record; columns by header name or 0-based position. */

@@ -2,14 +2,16 @@ import 'server-only';
 import { IngestRun, Series, db } from '@/models';
 import { NotFoundError } from '@/lib/http/errors';
 import type { IngestRunQuery } from '@/lib/schemas/intake';
+import type { IngestRunRecord } from './run-record';
 
-function presentRun(run: IngestRun & { series?: Series | null }) {
+/** The public shape of a run (its report apart). */
+export function presentRun(run: IngestRun & { series?: Series | null }): IngestRunRecord {
   return {
     id: run.id, series: run.series ? { slug: run.series.slug, name: run.series.name } : null, source: run.source,
     fileName: run.fileName, contentHash: run.contentHash, status: run.status, rowsRead: run.rowsRead, accepted: run.accepted,
     duplicates: run.duplicates, replaced: run.replaced, rejected: run.rejected, message: run.message,
     alreadyApplied: run.report?.alreadyApplied === true, durationMs: run.durationMs, userId: run.userId, tokenId: run.tokenId,
-    startedAt: run.startedAt, finishedAt: run.finishedAt,
+    startedAt: run.startedAt.toISOString(), finishedAt: run.finishedAt?.toISOString() ?? null,
   };
 }
 

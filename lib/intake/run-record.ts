@@ -1,0 +1,25 @@
+// Client-safe (type imports only): the intake screens and the workbench's quality panel import this shape.
+import type { IngestSource, IngestStatus } from '@/models/IngestRun';
+
+/** One ingest run as the API and the screens carry it (times as ISO 8601 strings); `presentRun` builds it. */
+export interface IngestRunRecord {
+  id: number;
+  series: { slug: string; name: string } | null;
+  source: IngestSource;
+  fileName: string | null;
+  contentHash: string | null;
+  status: IngestStatus;
+  rowsRead: number;
+  accepted: number;
+  duplicates: number;
+  replaced: number;
+  rejected: number;
+  message: string;
+  /** the same content had already been taken in; nothing new was stored */
+  alreadyApplied: boolean;
+  durationMs: number | null;
+  userId: number | null;
+  tokenId: number | null;
+  startedAt: string;
+  finishedAt: string | null;
+}
