@@ -139,13 +139,6 @@ export async function createRule(seriesId: number | null, input: RuleCreateInput
   });
 }
 
-export async function findRule(id: number): Promise<AlertRule> {
-  await db();
-  const rule = await AlertRule.findByPk(id);
-  if (!rule) throw new NotFoundError('Rule');
-  return rule;
-}
-
 export async function updateRule(id: number, input: RuleUpdate, actor: Pick<Actor, 'id'>): Promise<AlertRule> {
   const changes = ruleUpdateSchema.parse(input);
   return writeTransaction(async (transaction) => {
@@ -188,7 +181,7 @@ export async function deleteRule(id: number, actor: Pick<Actor, 'id'>): Promise<
 /** How a rule stands on its series after its latest judgement. */
 export type RuleStanding = 'met' | 'building' | 'not-met' | 'cannot-judge' | 'not-yet-judged';
 
-export function standingOf(evaluation: Pick<RuleEvaluation, 'passed' | 'outcome'> | null): RuleStanding {
+function standingOf(evaluation: Pick<RuleEvaluation, 'passed' | 'outcome'> | null): RuleStanding {
   if (!evaluation) return 'not-yet-judged';
   if (evaluation.outcome.startsWith('cannot-judge')) return 'cannot-judge';
   if (evaluation.outcome.startsWith('not-met')) return 'not-met';

@@ -6,7 +6,7 @@ import { verifyPassword } from './password';
 import { THROTTLE, clearSignInFailures, isSignInLocked, recordSignInFailure, throttleKeys } from './throttle';
 
 /** Error codes the sign-in page turns into words; a lock reads the same whether or not the account exists. */
-export const SIGN_IN_ERRORS = {
+const SIGN_IN_ERRORS = {
   invalid: 'CredentialsSignin',
   locked: 'Locked',
 } as const;

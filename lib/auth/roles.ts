@@ -13,7 +13,7 @@ export interface Actor {
   role: Role;
 }
 
-export function roleRank(role: Role): number {
+function roleRank(role: Role): number {
   return ROLES.indexOf(role);
 }
 

@@ -248,7 +248,7 @@ function causalKernelResidual(x: Float64Array, h: number, localLinear: boolean, 
  * as residual index ranges [start, end)). `inFlatRun` marks the windows left out only for lying in a flat run,
  * so the two reasons can be reported apart. O(n).
  */
-export function windowCoverage(
+function windowCoverage(
   observed: Uint8Array,
   flat: readonly { start: number; end: number }[],
   g: Pick<ReplayGeometry, 'w' | 'minCoverage'>,
@@ -514,7 +514,7 @@ export interface RecordQuality {
  * their instants are marked (Evidence.covered); with differencing a residual counts as observed when both its
  * points were, and flat runs move back by one, as in lib/engine/analyze.ts. O(n log n).
  */
-export function replayRecord(
+function replayRecord(
   value: Float64Array,
   time: Float64Array,
   rule: ReplayRule,

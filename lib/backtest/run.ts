@@ -25,7 +25,7 @@ import {
   type ReplayRule,
 } from './replay';
 
-export const BACKTEST_CAUTION =
+const BACKTEST_CAUTION =
   'A backtest is evidence of how this rule would have behaved on past data, not a guarantee of how it will behave. ' + ANALYSIS_CAUTION;
 
 const YEAR_MS = 365.25 * 86_400_000;
@@ -190,7 +190,7 @@ function finite(v: number): number | null {
 }
 
 /** 95 % Wilson score interval for k successes in n trials. Source: Wilson (1927), JASA 22, 209–212. O(1). */
-export function wilsonInterval(k: number, n: number, z = 1.959963984540054): [number, number] {
+function wilsonInterval(k: number, n: number, z = 1.959963984540054): [number, number] {
   if (n === 0) return [0, 1];
   const p = k / n;
   const d = 1 + (z * z) / n;

@@ -20,7 +20,7 @@ export interface RejectedRow {
 }
 
 /** Rejections beyond this many are counted but not listed, so a wholly wrong million-row file keeps a small report. */
-export const MAX_LISTED_REJECTIONS = 1000;
+const MAX_LISTED_REJECTIONS = 1000;
 
 /** Rows read from one input, validated, in time order, one per instant. */
 export interface CollectedRows {
@@ -71,7 +71,7 @@ const DECIMAL = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
  * A value cell → number, or the reason it is none. NaN and infinity words become NaN/±Infinity so the
  * observation schema rejects them with its own message; a comma decimal mark gets a message of its own.
  */
-export function parseValue(raw: string | number): number | string {
+function parseValue(raw: string | number): number | string {
   if (typeof raw === 'number') return raw;
   const text = raw.trim();
   if (text === '') return 'the value is empty';

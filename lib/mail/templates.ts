@@ -86,7 +86,7 @@ export interface AlertEvidence {
   shift: { time: number; size: number | null } | null;
 }
 
-export function alertLink(alertId: number): string {
+function alertLink(alertId: number): string {
   return `${publicBaseUrl()}/alerts/${alertId}`;
 }
 
@@ -112,7 +112,7 @@ function describeRule(r: NonNullable<AlertEvidence['rule']>): string {
   return parts.join(', ');
 }
 
-export function evidenceRows(e: AlertEvidence): Row[] {
+function evidenceRows(e: AlertEvidence): Row[] {
   const series: Row = ['Series', `${e.series.name} (${e.series.slug})${e.series.site ? `, ${e.series.site}` : ''}`];
   const span: Row = ['Data span', `${formatUtc(e.dataFrom)} to ${formatUtc(e.dataTo)} (${e.n} points analysed)`];
   if (e.kind === 'abrupt-shift') {
@@ -156,7 +156,7 @@ export function newAlertMail(e: AlertEvidence): RenderedMail {
 }
 
 /** A detected abrupt shift of level: news in itself, and the live analysis now judges only the stretch after it. */
-export function shiftAlertMail(e: AlertEvidence): RenderedMail {
+function shiftAlertMail(e: AlertEvidence): RenderedMail {
   const level = e.severity === 'warning' ? 'Warning' : 'Watch';
   return compose({
     subject: `[Brinkwatch] ${level}: abrupt shift on ${e.series.name} (alert #${e.alertId})`,
