@@ -2,8 +2,6 @@ import { AnalysisInputError } from './errors';
 import { extentPoints, type Extent } from './extent';
 import type { TimeKind } from './time-kind';
 
-/** How the time axis is read: UTC milliseconds (dates) or plain numbers in the caller's own unit. */
-
 export interface GapReport {
   /** first and last missing grid instant */
   from: number;

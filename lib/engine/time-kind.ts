@@ -1,2 +1,2 @@
-/** How a series' times are numbered: epoch milliseconds (UTC instants) or plain numbers (e.g. years before present). */
+/** How the time axis is read: UTC milliseconds (dates) or plain numbers in the caller's own unit. */
 export type TimeKind = 'utc-ms' | 'numeric';
