@@ -1,7 +1,7 @@
 import Link from 'next/link';
 import type { ReactNode } from 'react';
-import type { Actor } from '@/lib/auth/guard';
-import { roleAtLeast } from '@/models/roles';
+import type { Actor } from '@/lib/auth/roles';
+import { roleAtLeast } from '@/lib/auth/roles';
 import { SignOutButton } from './SignOutButton';
 import { SystemStatus } from './SystemStatus';
 

@@ -39,11 +39,11 @@ export class Alert extends Model<InferAttributes<Alert>, InferCreationAttributes
       {
         id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
         seriesId: { type: DataTypes.INTEGER, allowNull: false },
-        kind: { type: DataTypes.STRING, allowNull: false, defaultValue: 'slowing-down', validate: { isIn: [ALERT_KINDS as unknown as string[]] } },
+        kind: { type: DataTypes.STRING, allowNull: false, defaultValue: 'slowing-down', validate: { isIn: [[...ALERT_KINDS]] } },
         ruleId: { type: DataTypes.INTEGER, allowNull: true },
         shiftTime: { type: DataTypes.BIGINT, allowNull: true, get() { const v = this.getDataValue('shiftTime'); return v === null || v === undefined ? null : Number(v); } },
         shiftSize: { type: DataTypes.DOUBLE, allowNull: true },
-        state: { type: DataTypes.STRING, allowNull: false, validate: { isIn: [ALERT_STATES as unknown as string[]] } },
+        state: { type: DataTypes.STRING, allowNull: false, validate: { isIn: [[...ALERT_STATES]] } },
         severity: { type: DataTypes.STRING, allowNull: false },
         assigneeId: { type: DataTypes.INTEGER, allowNull: true },
         firstSnapshotId: { type: DataTypes.INTEGER, allowNull: false },

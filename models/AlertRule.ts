@@ -41,7 +41,7 @@ export class AlertRule extends Model<InferAttributes<AlertRule>, InferCreationAt
         id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
         seriesId: { type: DataTypes.INTEGER, allowNull: true },
         indicator: { type: DataTypes.STRING, allowNull: false },
-        direction: { type: DataTypes.STRING, allowNull: false, validate: { isIn: [RULE_DIRECTIONS as unknown as string[]] } },
+        direction: { type: DataTypes.STRING, allowNull: false, validate: { isIn: [[...RULE_DIRECTIONS]] } },
         minTau: { type: DataTypes.DOUBLE, allowNull: false },
         maxSurrogateP: { type: DataTypes.DOUBLE, allowNull: true },
         maxKendallP: { type: DataTypes.DOUBLE, allowNull: true },

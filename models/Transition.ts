@@ -25,7 +25,7 @@ export class Transition extends Model<InferAttributes<Transition>, InferCreation
         seriesId: { type: DataTypes.INTEGER, allowNull: false },
         at: { type: DataTypes.BIGINT, allowNull: false },
         note: { type: DataTypes.TEXT, allowNull: false, defaultValue: '' },
-        kind: { type: DataTypes.STRING, allowNull: false, defaultValue: 'transition', validate: { isIn: [MARK_KINDS as unknown as string[]] } },
+        kind: { type: DataTypes.STRING, allowNull: false, defaultValue: 'transition', validate: { isIn: [[...MARK_KINDS]] } },
         createdBy: { type: DataTypes.INTEGER, allowNull: true },
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,

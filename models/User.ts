@@ -1,5 +1,5 @@
 import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize';
-import { ROLES, type Role } from './roles';
+import { ROLES, type Role } from '@/lib/auth/roles';
 
 export class User extends Model<InferAttributes<User>, InferCreationAttributes<User>> {
   declare id: CreationOptional<number>;
@@ -20,7 +20,7 @@ export class User extends Model<InferAttributes<User>, InferCreationAttributes<U
         email: { type: DataTypes.STRING, allowNull: false, unique: true, validate: { isEmail: true } },
         name: { type: DataTypes.STRING, allowNull: false },
         passwordHash: { type: DataTypes.STRING, allowNull: true },
-        role: { type: DataTypes.STRING, allowNull: false, validate: { isIn: [ROLES as unknown as string[]] } },
+        role: { type: DataTypes.STRING, allowNull: false, validate: { isIn: [[...ROLES]] } },
         active: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: true },
         sessionVersion: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 1 },
         createdAt: DataTypes.DATE,

@@ -18,7 +18,7 @@ export class Watch extends Model<InferAttributes<Watch>, InferCreationAttributes
         id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
         userId: { type: DataTypes.INTEGER, allowNull: false },
         seriesId: { type: DataTypes.INTEGER, allowNull: false },
-        mode: { type: DataTypes.STRING, allowNull: false, validate: { isIn: [WATCH_MODES as unknown as string[]] } },
+        mode: { type: DataTypes.STRING, allowNull: false, validate: { isIn: [[...WATCH_MODES]] } },
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },

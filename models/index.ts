@@ -93,7 +93,7 @@ export async function writeTransaction<T>(work: (transaction: Transaction) => Pr
 }
 
 export { closeDatabase } from './db';
-export { ROLES, roleAtLeast, type Role } from './roles';
+export { ROLES, roleAtLeast, type Role } from '@/lib/auth/roles';
 export { ALERT_KINDS, ALERT_STATES, OPEN_ALERT_STATES, type AlertKind, type AlertState } from './Alert';
 export { RULE_DIRECTIONS, defaultRuleDirection } from './AlertRule';
 export { WITHOUT_CHARTS } from './AnalysisSnapshot';

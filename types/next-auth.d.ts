@@ -1,4 +1,4 @@
-import type { Role } from '@/models/roles';
+import type { Role } from '@/lib/auth/roles';
 
 declare module 'next-auth' {
   interface Session {

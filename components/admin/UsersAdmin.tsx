@@ -4,7 +4,7 @@ import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { useState, type FormEvent } from 'react';
 import { api } from '@/components/api';
 import { Empty, ErrorNote, Loading } from '@/components/States';
-import { ROLES } from '@/models/roles';
+import { ROLES } from '@/lib/auth/roles';
 import { Button } from '@/components/ui/Button';
 import { CELL, DataTable } from '@/components/ui/DataTable';
 import { CONTROL, CONTROL_BARE, Field } from '@/components/ui/Field';

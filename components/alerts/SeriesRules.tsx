@@ -34,7 +34,7 @@ export function SeriesRules({ statuses, timeZone }: { statuses: RuleStatus[]; ti
               </div>
               <div className={standing === 'cannot-judge' ? 'font-medium text-warning' : 'text-ink-soft'}>
                 Latest: {STANDING_WORDS[standing]}
-                {latest ? <> (<LocalTime t={latest.at as unknown as string} timeZone={timeZone} />)</> : null}
+                {latest ? <> (<LocalTime t={latest.at} timeZone={timeZone} />)</> : null}
                 {latest && standing !== 'met' && standing !== 'building' ? ` — ${latest.outcome.replace(/^(cannot-judge|not-met): /, '')}` : ''}
               </div>
               {latest && standing !== 'cannot-judge' ? (

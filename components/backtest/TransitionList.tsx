@@ -6,7 +6,7 @@ import { api } from '@/components/api';
 import { Empty, ErrorNote, Loading } from '@/components/States';
 import { formatLocal } from '@/lib/display/format';
 import { parseInstantParam } from '@/lib/intake/time-formats';
-import type { TransitionRecord } from '@/lib/backtest/transitions';
+import type { TransitionRecord } from '@/lib/backtest/marks';
 import { Button } from '@/components/ui/Button';
 import { CONTROL, Field } from '@/components/ui/Field';
 

@@ -2,7 +2,8 @@
 
 import { useQuery } from '@tanstack/react-query';
 import { api } from '@/components/api';
-import { formatCount, formatDuration, type RejectedRow, type RunSummary } from './api';
+import { formatCount, formatDuration, type RejectedRow } from './api';
+import type { IngestRunRecord as RunSummary } from '@/lib/intake/run-record';
 import { RejectedRowsTable } from './RejectedRowsTable';
 import { StatusBadge } from './StatusBadge';
 import { Button } from '@/components/ui/Button';

@@ -1,4 +1,4 @@
-import type { RunSummary } from './api';
+import type { IngestRunRecord as RunSummary } from '@/lib/intake/run-record';
 
 const STYLES: Record<RunSummary['status'], string> = {
   succeeded: 'bg-calm-light text-calm',

@@ -12,18 +12,11 @@ import { RejectedRowsTable } from './RejectedRowsTable';
 import { Button } from '@/components/ui/Button';
 import { DataTable } from '@/components/ui/DataTable';
 import { CONTROL, Field } from '@/components/ui/Field';
+import { DELIMITER_LABELS, INTAKE_BODY_LIMIT, TIME_FORMAT_LABELS } from '@/lib/intake/choices';
 
-const TIME_FORMATS = [
-  ['iso8601', 'ISO 8601 date-time'],
-  ['date', 'Date only (YYYY-MM-DD)'],
-  ['epoch-seconds', 'Epoch seconds'],
-  ['epoch-milliseconds', 'Epoch milliseconds'],
-  ['decimal-year', 'Decimal year'],
-  ['age-years-bp', 'Age, years before 1950'],
-  ['age-kyr-bp', 'Age, thousand years before 1950'],
-] as const;
-const DELIMITERS = [[',', 'Comma'], [';', 'Semicolon'], ['\t', 'Tab'], ['|', 'Pipe']] as const;
-const MAX_BYTES = 50 * 1024 * 1024;
+const TIME_FORMATS = Object.entries(TIME_FORMAT_LABELS);
+const DELIMITERS = Object.entries(DELIMITER_LABELS);
+const MAX_BYTES = INTAKE_BODY_LIMIT;
 
 interface Mapping {
   timeColumn: number;

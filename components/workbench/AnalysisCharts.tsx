@@ -6,7 +6,7 @@ import { TimeChart } from '@/components/charts/TimeChart';
 import { chartRows } from '@/lib/analysis/chart-rows';
 import type { AnalysisView } from '@/lib/analysis/view';
 import { formatP } from '@/lib/display/format';
-import { formatTauDirection, stretchReason } from '@/lib/display/analysis-labels';
+import { formatTauDirection, indicatorLabel, stretchReason } from '@/lib/display/analysis-labels';
 
 export interface ChartSeries {
   slug: string;
@@ -14,17 +14,6 @@ export interface ChartSeries {
   unit: string;
   timeZone: string;
 }
-
-/** Plain-language names of the indicators on charts and forms. */
-export const INDICATOR_LABELS: Record<string, string> = {
-  variance: 'Variance',
-  sd: 'Standard deviation',
-  cv: 'Coefficient of variation',
-  ac1: 'Lag-1 autocorrelation',
-  skewness: 'Skewness',
-  kurtosis: 'Kurtosis',
-  recovery: 'Recovery rate',
-};
 
 /**
  * The tau-and-p line each indicator chart carries in its legend: tau with the direction it is tested in, and the
@@ -83,7 +72,7 @@ export function AnalysisCharts({ view, series, transitions = [], idPrefix = '', 
       </ChartFrame>
       )}
       {view.indicators.map((name) => (
-        <ChartFrame key={name} title={`${INDICATOR_LABELS[name] ?? name} in a rolling window`} fileName={`${base}-${name}`} testId={`chart-${name}`}
+        <ChartFrame key={name} title={`${indicatorLabel(name, 'title')} in a rolling window`} fileName={`${base}-${name}`} testId={`chart-${name}`}
           legend={<span data-testid={`trend-${name}`}>{trendLegend(view, name)}</span>}>
           <TimeChart rows={rows} timeZone={series.timeZone} transitions={transitions} shifts={shifts} stretchStart={stretchPlain} windowBand={windowBand} height={compact ? 150 : 180}
             lines={[{ key: name, label: `${name} (window of ${view.windowPoints} points)`, color: 'tide', width: 2 }]} />

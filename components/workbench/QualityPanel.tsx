@@ -1,7 +1,7 @@
 import { LocalTime } from '@/components/LocalTime';
 import { Empty } from '@/components/States';
 import type { AnalysisView } from '@/lib/analysis/view';
-import type { IntakeRunSummary } from '@/lib/series/workbench';
+import type { IngestRunRecord } from '@/lib/intake/run-record';
 import { stretchReason } from '@/lib/display/analysis-labels';
 import { formatValue } from '@/lib/display/format';
 
@@ -31,7 +31,7 @@ export function QualityPanel({ quality, stretch = null, shifts = [], runs, rejec
   quality: AnalysisView['quality'];
   stretch?: AnalysisView['stretch'];
   shifts?: AnalysisView['shifts'];
-  runs: IntakeRunSummary[];
+  runs: IngestRunRecord[];
   rejectedRows: number;
   extent: { count: number; first: number | null; last: number | null };
   timeZone: string;

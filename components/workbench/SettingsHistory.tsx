@@ -6,11 +6,16 @@ import { LocalTime } from '@/components/LocalTime';
 import { Empty, ErrorNote, Loading } from '@/components/States';
 import type { SettingsHistoryEntry } from '@/lib/analysis/settings-history';
 import { describeExtent } from '@/lib/display/analysis-labels';
+import { analysisSettingsSchema } from '@/lib/engine/settings';
+
+/** What a saved change left out, the engine used its default for. */
+const DEFAULTS = analysisSettingsSchema.parse({});
 
 function describe(settings: Record<string, unknown>): string {
   const extent = (v: unknown) => (typeof v === 'number' || typeof v === 'string' ? describeExtent(v, 'the stretch') : '?');
-  const parts = [`window ${extent(settings.window)}`, String(settings.detrend ?? 'gaussian')];
-  if (['gaussian', 'local-linear'].includes(String(settings.detrend ?? 'gaussian'))) parts.push(`bandwidth ${extent(settings.bandwidth)}`);
+  const detrend = String(settings.detrend ?? DEFAULTS.detrend);
+  const parts = [`window ${extent(settings.window ?? DEFAULTS.window)}`, detrend];
+  if (['gaussian', 'local-linear'].includes(detrend)) parts.push(`bandwidth ${extent(settings.bandwidth ?? DEFAULTS.bandwidth)}`);
   if (typeof settings.span === 'number' || typeof settings.span === 'string') parts.push(`span ${describeExtent(settings.span, 'the record')}`);
   if (Array.isArray(settings.indicators)) parts.push(settings.indicators.join(', '));
   if (settings.surrogates) parts.push(`${settings.surrogates} surrogates`);
@@ -33,7 +38,7 @@ export function SettingsHistory({ slug, initial, timeZone }: { slug: string; ini
       {query.data.map((entry, i) => (
         <li key={entry.id} className="border-l-2 border-rule pl-3">
           <div className="flex flex-wrap gap-x-2">
-            <LocalTime t={entry.changedAt as unknown as string} timeZone={timeZone} withZone />
+            <LocalTime t={entry.changedAt} timeZone={timeZone} withZone />
             <span className="font-medium">{entry.changedBy?.name ?? 'system'}</span>
             {i === 0 ? <span className="text-xs text-calm">(in use)</span> : null}
           </div>

@@ -3,7 +3,7 @@
 import { DETREND_METHODS } from '@/lib/engine/detrend';
 import { INDICATOR_NAMES, analysisSettingsSchema, type AnalysisSettings } from '@/lib/engine/settings';
 import { PREVIEW_MAX_SURROGATES } from '@/lib/analysis/preview-limits';
-import { INDICATOR_LABELS } from './AnalysisCharts';
+import { indicatorLabel } from '@/lib/display/analysis-labels';
 import { ExtentInput } from './ExtentInput';
 
 const DETREND_LABELS: Record<string, string> = {
@@ -85,7 +85,7 @@ export function TuningPanel({ draft, onChange, disabled }: { draft: AnalysisSett
           {INDICATOR_NAMES.map((name) => (
             <label key={name} className="flex items-center gap-2 text-sm">
               <input type="checkbox" checked={draft.indicators.includes(name)} onChange={(e) => toggleIndicator(name, e.target.checked)} className="accent-tide" />
-              {INDICATOR_LABELS[name] ?? name}
+              {indicatorLabel(name, 'title')}
             </label>
           ))}
         </div>

@@ -12,9 +12,9 @@ import { ChartFrame } from '@/components/charts/ChartFrame';
 import type { AnalysisView } from '@/lib/analysis/view';
 import type { AnalysisSettings } from '@/lib/engine/settings';
 import { formatP } from '@/lib/display/format';
-import { formatTauDirection, stretchReason } from '@/lib/display/analysis-labels';
+import { formatTauDirection, indicatorLabel, stretchReason } from '@/lib/display/analysis-labels';
 import type { SettingsHistoryEntry } from '@/lib/analysis/settings-history';
-import { AnalysisCharts, INDICATOR_LABELS, type ChartSeries } from './AnalysisCharts';
+import { AnalysisCharts, type ChartSeries } from './AnalysisCharts';
 import { SettingsHistory } from './SettingsHistory';
 import { TuningPanel } from './TuningPanel';
 import { Button, buttonClass } from '@/components/ui/Button';
@@ -118,7 +118,7 @@ export function Workbench({ series, savedSettings, initialView, canTune, canSave
                   {view.indicators.filter((name) => view.significance[name]).map((name) => {
                     const s = view.significance[name]!;
                     return (
-                      <ChartFrame key={name} title={`${INDICATOR_LABELS[name] ?? name}: surrogate taus`} fileName={`${series.slug}-${name}-surrogates`}
+                      <ChartFrame key={name} title={`${indicatorLabel(name, 'title')}: surrogate taus`} fileName={`${series.slug}-${name}-surrogates`}
                         legend={`observed ${formatTauDirection(view.kendall[name]?.tau, s.direction)} · p ${formatP(s.p)} of ${s.count}`}>
                         <SurrogateHistogram bins={s.bins} observed={view.kendall[name]?.tau ?? null} />
                       </ChartFrame>

@@ -88,7 +88,7 @@ export function judgeRule(rule: RuleThresholds, summary: StoredSummary, qValue: 
 const DIRECTION_TEXT: Record<TrendDirection, string> = { rising: '(rising)', falling: '(falling)', 'two-sided': '(either way)' };
 
 /** A later alert within a quiet period must beat the decided one's peak oriented tau by this many null standard deviations. */
-export const QUIET_NULL_SDS = 2;
+const QUIET_NULL_SDS = 2;
 
 /**
  * Whether new evidence is clearly stronger than that of a dismissed (or confirmed) alert, so it may break the
@@ -176,7 +176,7 @@ async function openAlert(rule: AlertRule, series: Series, snapshot: AnalysisSnap
  * Two detections of one shift in successive analyses may differ by a few grid points as data arrive; a shift
  * within this many sampling intervals after the latest alerted one is taken to be the same shift. Our convention.
  */
-export const SAME_SHIFT_INTERVALS = 10;
+const SAME_SHIFT_INTERVALS = 10;
 
 /**
  * Whether a lead's mark already explains a shift: the mark (a transition, or a maintenance break such as a probe

@@ -1,7 +1,8 @@
+import 'server-only';
 import { Alert, Note, NoteRevision, writeTransaction } from '@/models';
 import { ForbiddenError, NotFoundError } from '@/lib/http/errors';
 import { recordAudit } from '@/lib/audit';
-import type { Actor } from '@/lib/auth/guard';
+import type { Actor } from '@/lib/auth/roles';
 import { noteSchema } from '@/lib/schemas/alert';
 
 export async function addNote(alertId: number, input: { body: string }, actor: Actor): Promise<Note> {

@@ -1,8 +1,9 @@
+import 'server-only';
 import { Op } from 'sequelize';
 import { Transition, User, db, roleAtLeast } from '@/models';
 import { fetchAlertDetail } from '@/lib/alerts/queries';
 import { loadSnapshotView } from '@/lib/analysis/snapshot';
-import type { Actor } from '@/lib/auth/guard';
+import type { Actor } from '@/lib/auth/roles';
 
 /**
  * The alert page's data: the alert detail (`fetchAlertDetail`), its two snapshots as chart views, the series'

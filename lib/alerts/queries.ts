@@ -1,7 +1,7 @@
 import { QueryTypes, Transaction } from 'sequelize';
 import { ALERT_STATES, Alert, AlertEvent, AlertRule, AnalysisSnapshot, Note, NoteRevision, RuleEvaluation, Series, User, db, type AlertKind, type AlertState } from '@/models';
 import { NotFoundError } from '@/lib/http/errors';
-import type { Actor } from '@/lib/auth/guard';
+import type { Actor } from '@/lib/auth/roles';
 import { cachedRead } from '@/lib/db/read-cache';
 import { sqlDate } from '@/lib/db/sql-date';
 import { presentRules } from './rules';
@@ -49,6 +49,15 @@ export interface AlertListItem {
   closedAt: string | null;
 }
 
+/** One page of a queue as the alerts page and `GET /api/alerts` carry it, with every queue's size under the same filters. */
+export interface AlertQueuePage {
+  items: AlertListItem[];
+  total: number;
+  counts: Record<Exclude<AlertQueue, 'all'>, number>;
+  page: number;
+  pageSize: number;
+}
+
 function where(query: Omit<AlertQueueQuery, 'page' | 'pageSize' | 'sort'>, actor: Pick<Actor, 'id'>, queue: AlertQueue, now: number) {
   const states = query.state ? QUEUE_STATES[queue].filter((s) => s === query.state) : QUEUE_STATES[queue];
   // Every state = no condition, which leaves the planner free to walk the created_at index in order.
@@ -85,13 +94,13 @@ function where(query: Omit<AlertQueueQuery, 'page' | 'pageSize' | 'sort'>, actor
  * those rows are joined to their series, rule, assignee and the evaluation of their latest snapshot; counts are
  * one COUNT per queue.
  */
-export async function fetchAlertQueue(query: AlertQueueQuery, actor: Pick<Actor, 'id'>, now = Date.now()) {
+export async function fetchAlertQueue(query: AlertQueueQuery, actor: Pick<Actor, 'id'>, now = Date.now()): Promise<AlertQueuePage> {
   // An age filter reads the clock, so its answer is not kept; every other queue is a pure read (the "mine" count needs the actor).
   if (query.age) return loadAlertQueue(query, actor, now);
   return cachedRead(`alert-queue:${actor.id}:${JSON.stringify(query)}`, () => loadAlertQueue(query, actor, now));
 }
 
-async function loadAlertQueue(query: AlertQueueQuery, actor: Pick<Actor, 'id'>, now: number) {
+async function loadAlertQueue(query: AlertQueueQuery, actor: Pick<Actor, 'id'>, now: number): Promise<AlertQueuePage> {
   const sequelize = await db();
   const filter = where(query, actor, query.queue, now);
   // One read transaction, so the page and the counts see the same moment even while a scheduler in another
@@ -142,7 +151,7 @@ async function loadAlertQueue(query: AlertQueueQuery, actor: Pick<Actor, 'id'>, 
     updatedAt: toIso(r.updated_at),
     closedAt: r.closed_at === null ? null : toIso(r.closed_at),
   }));
-  return { items, total, counts, page: query.page, pageSize: query.pageSize };
+  return { items, total, counts, page: query.page, pageSize: query.pageSize } satisfies AlertQueuePage;
 }
 
 function toIso(value: unknown): string {
@@ -156,7 +165,7 @@ function presentSnapshot(snapshot: AnalysisSnapshot | null, charts: EvidenceChar
   if (!snapshot) return null;
   return {
     id: snapshot.id,
-    createdAt: snapshot.createdAt,
+    createdAt: snapshot.createdAt.toISOString(),
     status: snapshot.status,
     settings: snapshot.settings,
     summary: snapshot.summary,
@@ -204,20 +213,20 @@ export async function fetchAlertDetail(id: number, actor?: Pick<Actor, 'role'>, 
     shift: alert.kind === 'abrupt-shift' && alert.shiftTime !== null ? { time: Number(alert.shiftTime), size: alert.shiftSize } : null,
     evaluationCount: alert.evaluationCount,
     dismissReason: alert.dismissReason,
-    createdAt: alert.createdAt,
-    updatedAt: alert.updatedAt,
-    closedAt: alert.closedAt,
+    createdAt: alert.createdAt.toISOString(),
+    updatedAt: alert.updatedAt.toISOString(),
+    closedAt: alert.closedAt?.toISOString() ?? null,
     series: { id: joined.series.id, slug: joined.series.slug, name: joined.series.name, site: joined.series.site, unit: joined.series.unit, timeZone: joined.series.timeZone },
     rule: rules[0] ?? null,
     assignee: joined.assignee ? { id: joined.assignee.id, name: joined.assignee.name, email: joined.assignee.email } : null,
     evidence: {
       first: presentSnapshot(first, charts),
       latest: presentSnapshot(latest ?? first, charts),
-      evaluations: evaluations.map((e) => ({ snapshotId: e.snapshotId, direction: e.direction ?? 'rising', tau: e.tau, kendallP: e.kendallP, surrogateP: e.surrogateP, qValue: e.qValue, level: e.level, streak: e.streak, outcome: e.outcome, at: e.createdAt })),
+      evaluations: evaluations.map((e) => ({ snapshotId: e.snapshotId, direction: e.direction ?? 'rising', tau: e.tau, kendallP: e.kendallP, surrogateP: e.surrogateP, qValue: e.qValue, level: e.level, streak: e.streak, outcome: e.outcome, at: e.createdAt.toISOString() })),
     },
     timeline: events.map((e) => {
       const by = (e as AlertEvent & { actor?: User | null }).actor;
-      return { id: e.id, action: e.action, fromState: e.fromState, toState: e.toState, reason: e.reason, detail: e.detail, actor: by ? { id: by.id, name: by.name } : null, at: e.createdAt };
+      return { id: e.id, action: e.action, fromState: e.fromState, toState: e.toState, reason: e.reason, detail: e.detail, actor: by ? { id: by.id, name: by.name } : null, at: e.createdAt.toISOString() };
     }),
     notes: notes.map((n) => {
       const j = n as Note & { author?: User; revisions?: NoteRevision[] };
@@ -225,12 +234,14 @@ export async function fetchAlertDetail(id: number, actor?: Pick<Actor, 'role'>, 
         id: n.id,
         body: n.body,
         author: j.author ? { id: j.author.id, name: j.author.name } : null,
-        createdAt: n.createdAt,
-        updatedAt: n.updatedAt,
+        createdAt: n.createdAt.toISOString(),
+        updatedAt: n.updatedAt.toISOString(),
         edited: (j.revisions?.length ?? 0) > 0,
-        revisions: (j.revisions ?? []).sort((a, b) => a.id - b.id).map((r) => ({ body: r.body, editedBy: r.editedBy, replacedAt: r.createdAt })),
+        revisions: (j.revisions ?? []).sort((a, b) => a.id - b.id).map((r) => ({ body: r.body, editedBy: r.editedBy, replacedAt: r.createdAt.toISOString() })),
       };
     }),
     allowedActions: actor ? allowedActions(alert.state, actor.role) : [],
   };
 }
+/** The alert as its page and `GET /api/alerts/:id` carry it: plain data, every time an ISO 8601 string. */
+export type AlertDetail = Awaited<ReturnType<typeof fetchAlertDetail>>;

@@ -2,7 +2,7 @@ import { Op, QueryTypes, type Transaction } from 'sequelize';
 import { Alert, AlertRule, AnalysisSnapshot, BacktestJob, RuleEvaluation, Series, db, writeTransaction } from '@/models';
 import { NotFoundError, UnprocessableError } from '@/lib/http/errors';
 import { recordAudit } from '@/lib/audit';
-import type { Actor } from '@/lib/auth/guard';
+import type { Actor } from '@/lib/auth/roles';
 import { latestRuleCalibration, queueRuleCalibration, type RuleCalibration } from '@/lib/backtest/jobs';
 import { analysisSettingsSchema } from '@/lib/engine/settings';
 import type { RuleDirection } from '@/lib/engine/direction';
@@ -35,10 +35,11 @@ export function presentRule(rule: AlertRule, context: RuleContext = {}) {
     active: rule.active,
     calibration: context.calibration ?? null,
     warnings: context.warnings ?? [],
-    createdAt: rule.createdAt,
-    updatedAt: rule.updatedAt,
+    createdAt: rule.createdAt.toISOString(),
+    updatedAt: rule.updatedAt.toISOString(),
   };
 }
+/** A rule as the API and the pages carry it (times as ISO 8601 strings). */
 export type RuleRecord = ReturnType<typeof presentRule>;
 
 /** Rules with their calibration and warnings, as the API and the series page show them. */
@@ -138,13 +139,6 @@ export async function createRule(seriesId: number | null, input: RuleCreateInput
   });
 }
 
-export async function findRule(id: number): Promise<AlertRule> {
-  await db();
-  const rule = await AlertRule.findByPk(id);
-  if (!rule) throw new NotFoundError('Rule');
-  return rule;
-}
-
 export async function updateRule(id: number, input: RuleUpdate, actor: Pick<Actor, 'id'>): Promise<AlertRule> {
   const changes = ruleUpdateSchema.parse(input);
   return writeTransaction(async (transaction) => {
@@ -184,20 +178,10 @@ export async function deleteRule(id: number, actor: Pick<Actor, 'id'>): Promise<
   });
 }
 
-/** Copies the default rules (series null) onto a freshly created series, inside its creation transaction. */
-export async function applyDefaultRules(seriesId: number, transaction: Transaction): Promise<number> {
-  const defaults = await AlertRule.findAll({ where: { seriesId: null, active: true }, transaction });
-  for (const rule of defaults) {
-    const { id: _id, createdAt: _c, updatedAt: _u, seriesId: _s, ...fields } = rule.get({ plain: true });
-    await AlertRule.create({ ...fields, seriesId }, { transaction });
-  }
-  return defaults.length;
-}
-
 /** How a rule stands on its series after its latest judgement. */
 export type RuleStanding = 'met' | 'building' | 'not-met' | 'cannot-judge' | 'not-yet-judged';
 
-export function standingOf(evaluation: Pick<RuleEvaluation, 'passed' | 'outcome'> | null): RuleStanding {
+function standingOf(evaluation: Pick<RuleEvaluation, 'passed' | 'outcome'> | null): RuleStanding {
   if (!evaluation) return 'not-yet-judged';
   if (evaluation.outcome.startsWith('cannot-judge')) return 'cannot-judge';
   if (evaluation.outcome.startsWith('not-met')) return 'not-met';
@@ -221,9 +205,10 @@ export async function ruleStatuses(seriesId: number) {
       rule,
       standing: standingOf(e),
       latest: e
-        ? { snapshotId: e.snapshotId, at: e.createdAt, outcome: e.outcome, direction: e.direction ?? 'rising', tau: e.tau, surrogateP: e.surrogateP, qValue: e.qValue, streak: e.streak }
+        ? { snapshotId: e.snapshotId, at: e.createdAt.toISOString(), outcome: e.outcome, direction: e.direction ?? 'rising', tau: e.tau, surrogateP: e.surrogateP, qValue: e.qValue, streak: e.streak }
         : null,
     };
   });
 }
+/** A rule with its latest judgement, as the series page and its API carry it (times as ISO 8601 strings). */
 export type RuleStatus = Awaited<ReturnType<typeof ruleStatuses>>[number];

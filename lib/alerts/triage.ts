@@ -2,7 +2,7 @@ import { Op, QueryTypes, type Transaction } from 'sequelize';
 import { Alert, AlertEvent, User, roleAtLeast, writeTransaction, OPEN_ALERT_STATES, type AlertState, type Role } from '@/models';
 import { ConflictError, ForbiddenError, NotFoundError, UnprocessableError } from '@/lib/http/errors';
 import { recordAudit } from '@/lib/audit';
-import type { Actor } from '@/lib/auth/guard';
+import type { Actor } from '@/lib/auth/roles';
 import { sqlDate } from '@/lib/db/sql-date';
 import { enqueueMail } from '@/lib/mail/outbox';
 import { escalationMail, signOffMail } from '@/lib/mail/templates';

@@ -1,9 +1,12 @@
+import 'server-only';
 import { SettingsChange, User, db } from '@/models';
 
+/** One saved change of a series' settings, as the workbench and its API carry it. */
 export interface SettingsHistoryEntry {
   id: number;
   settings: Record<string, unknown>;
-  changedAt: Date;
+  /** ISO 8601 */
+  changedAt: string;
   changedBy: { id: number; name: string } | null;
 }
 
@@ -18,6 +21,6 @@ export async function fetchSettingsHistory(seriesId: number, limit = 50): Promis
   });
   return rows.map((row) => {
     const author = (row as SettingsChange & { author?: User | null }).author;
-    return { id: row.id, settings: row.settings, changedAt: row.createdAt, changedBy: author ? { id: author.id, name: author.name } : null };
+    return { id: row.id, settings: row.settings, changedAt: row.createdAt.toISOString(), changedBy: author ? { id: author.id, name: author.name } : null };
   });
 }

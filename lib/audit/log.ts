@@ -1,8 +1,20 @@
+import 'server-only';
 import { AuditEntry, User, db } from '@/models';
 import { auditQuerySchema } from '@/lib/schemas/account';
 
+/** One audit entry as the audit page and its API carry it (`at` an ISO 8601 string). */
+export interface AuditItem {
+  id: number;
+  at: string;
+  actor: { id: number; name: string; email: string } | null;
+  action: string;
+  entity: string;
+  entityId: string | null;
+  details: Record<string, unknown>;
+}
+
 export interface AuditPage {
-  items: { id: number; at: Date; actor: { id: number; name: string; email: string } | null; action: string; entity: string; entityId: string | null; details: Record<string, unknown> }[];
+  items: AuditItem[];
   total: number;
   page: number;
   pageSize: number;
@@ -26,7 +38,7 @@ export async function fetchAuditPage(input: unknown): Promise<AuditPage> {
     items: rows.map((row) => {
       const actor = (row as AuditEntry & { actor?: User | null }).actor;
       return {
-        id: row.id, at: row.createdAt, action: row.action, entity: row.entity, entityId: row.entityId, details: row.details,
+        id: row.id, at: row.createdAt.toISOString(), action: row.action, entity: row.entity, entityId: row.entityId, details: row.details,
         actor: actor ? { id: actor.id, name: actor.name, email: actor.email } : null,
       };
     }),

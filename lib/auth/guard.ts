@@ -1,17 +1,11 @@
+import 'server-only';
 import { getServerSession } from 'next-auth';
 import { cache } from 'react';
-import { IngestToken, Series, User, db, roleAtLeast, type Role } from '@/models';
-import { ForbiddenError, NotFoundError, UnauthenticatedError } from '@/lib/http/errors';
+import { User, db } from '@/models';
+import { ForbiddenError, UnauthenticatedError } from '@/lib/http/errors';
 import { cachedRead } from '@/lib/db/read-cache';
-import { hashIngestToken } from '@/lib/intake/tokens';
 import { authOptions } from './options';
-
-export interface Actor {
-  id: number;
-  email: string;
-  name: string;
-  role: Role;
-}
+import { roleAtLeast, type Actor, type Role } from './roles';
 
 /**
  * Who is asking, with their current role, or why they may not ask at all. The session only says who; role, active
@@ -54,27 +48,4 @@ export async function currentActor(): Promise<Actor | null> {
     if (error instanceof UnauthenticatedError) return null;
     throw error;
   }
-}
-
-/**
- * Who may add data to the series `slug`: a bearer ingest token of that series (401 when missing, unknown or
- * revoked; 403 when it belongs to another series; its last use is recorded), or else a signed-in lead or admin.
- */
-export async function requireIngestWriter(request: Request, slug: string): Promise<{ actor: Actor | null; tokenId: number | null; seriesId: number }> {
-  const authorization = request.headers.get('authorization');
-  if (authorization !== null) {
-    const match = /^Bearer\s+(\S+)$/i.exec(authorization.trim());
-    if (!match) throw new UnauthenticatedError('Send the ingest token as "Authorization: Bearer <token>".');
-    await db();
-    const token = await IngestToken.findOne({ where: { tokenHash: hashIngestToken(match[1]) } });
-    if (!token || token.revokedAt) throw new UnauthenticatedError('The ingest token is not valid or has been revoked.');
-    const series = await Series.findByPk(token.seriesId);
-    if (!series || series.slug !== slug) throw new ForbiddenError('This ingest token belongs to another series.');
-    await token.update({ lastUsedAt: new Date() });
-    return { actor: null, tokenId: token.id, seriesId: series.id };
-  }
-  const actor = await requireRole('lead');
-  const series = await Series.findOne({ where: { slug } });
-  if (!series) throw new NotFoundError('Series');
-  return { actor, tokenId: null, seriesId: series.id };
 }

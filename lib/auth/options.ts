@@ -1,3 +1,4 @@
+import 'server-only';
 import type { NextAuthOptions } from 'next-auth';
 import CredentialsProvider from 'next-auth/providers/credentials';
 import { User, db, type Role } from '@/models';
@@ -5,7 +6,7 @@ import { verifyPassword } from './password';
 import { THROTTLE, clearSignInFailures, isSignInLocked, recordSignInFailure, throttleKeys } from './throttle';
 
 /** Error codes the sign-in page turns into words; a lock reads the same whether or not the account exists. */
-export const SIGN_IN_ERRORS = {
+const SIGN_IN_ERRORS = {
   invalid: 'CredentialsSignin',
   locked: 'Locked',
 } as const;

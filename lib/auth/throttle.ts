@@ -1,3 +1,4 @@
+import 'server-only';
 import { SignInThrottle, db } from '@/models';
 import { config } from '@/lib/runtime/config';
 

@@ -1,14 +1,14 @@
 import { Op, type Transaction } from 'sequelize';
 import { AlertRule, BacktestJob, Series, db, writeTransaction } from '@/models';
 import { recordAudit } from '@/lib/audit';
-import type { Actor } from '@/lib/auth/guard';
+import type { Actor } from '@/lib/auth/roles';
 import { loadObservations } from '@/lib/analysis/observations';
 import { analysisSettingsSchema, type IndicatorName } from '@/lib/engine/settings';
 import { ConflictError, NotFoundError, UnprocessableError } from '@/lib/http/errors';
 import type { BacktestRequest } from '@/lib/schemas/backtest';
 import { findSeriesBySlug } from '@/lib/series/registry';
 import { CancelledError } from './pool';
-import { listTransitions } from './transitions';
+import { listTransitions } from './marks';
 import { ruleDirectionOf, type ReplayRule } from './replay';
 import { CALIBRATION_WORK_BUDGET, runBacktest, type BacktestResult } from './run';
 
@@ -32,7 +32,7 @@ export function replayRuleOf(rule: AlertRule): ReplayRule {
   const indicator = rule.indicator as IndicatorName;
   return {
     indicator,
-    direction: ruleDirectionOf({ indicator, direction: (rule as unknown as { direction?: string | null }).direction }),
+    direction: ruleDirectionOf({ indicator, direction: rule.direction }),
     minTau: rule.minTau,
     maxKendallP: rule.maxKendallP,
     maxSurrogateP: rule.maxSurrogateP,

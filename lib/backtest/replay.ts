@@ -4,7 +4,8 @@ import { AnalysisInputError } from '@/lib/engine/errors';
 import { extentPoints } from '@/lib/engine/extent';
 import { inverseRealFft, nextPowerOfTwo, realFft } from '@/lib/engine/fft';
 import { IncrementalKendall, SlidingMoments, denseRanks } from '@/lib/engine/incremental';
-import { spanPoints, type TimeKind } from '@/lib/engine/prepare';
+import { spanPoints } from '@/lib/engine/prepare';
+import type { TimeKind } from '@/lib/engine/time-kind';
 import { MIN_WINDOW_POINTS, windowPoints } from '@/lib/engine/rolling';
 import { DEFAULT_MIN_SEGMENT, detectShifts } from '@/lib/engine/shifts';
 import { INDICATOR_DIRECTIONS, orientedTau, trendDirectionOf, type RuleDirection, type TrendDirection } from '@/lib/engine/direction';
@@ -233,7 +234,7 @@ function causalKernelResidual(x: Float64Array, h: number, localLinear: boolean, 
  * as residual index ranges [start, end)). `inFlatRun` marks the windows left out only for lying in a flat run,
  * so the two reasons can be reported apart. O(n).
  */
-export function windowCoverage(
+function windowCoverage(
   observed: Uint8Array,
   flat: readonly { start: number; end: number }[],
   g: Pick<ReplayGeometry, 'w' | 'minCoverage'>,
@@ -499,7 +500,7 @@ export interface RecordQuality {
  * their instants are marked (Evidence.covered); with differencing a residual counts as observed when both its
  * points were, and flat runs move back by one, as in lib/engine/analyze.ts. O(n log n).
  */
-export function replayRecord(
+function replayRecord(
   value: Float64Array,
   time: Float64Array,
   rule: ReplayRule,

@@ -2,7 +2,8 @@ import { ANALYSIS_CAUTION } from '@/lib/engine/analyze';
 import { detrend, type DetrendMethod } from '@/lib/engine/detrend';
 import { orientedTau, type TrendDirection } from '@/lib/engine/direction';
 import { AnalysisInputError } from '@/lib/engine/errors';
-import { prepareSeries, type TimeKind } from '@/lib/engine/prepare';
+import { prepareSeries } from '@/lib/engine/prepare';
+import type { TimeKind } from '@/lib/engine/time-kind';
 import type { AnalysisSettings, SurrogateMethod } from '@/lib/engine/settings';
 import { prepareSurrogateJob } from '@/lib/engine/surrogates';
 import { fitRestoringModel, type RestoringModel } from './fold';
@@ -24,7 +25,7 @@ import {
   type ReplayRule,
 } from './replay';
 
-export const BACKTEST_CAUTION =
+const BACKTEST_CAUTION =
   'A backtest is evidence of how this rule would have behaved on past data, not a guarantee of how it will behave. ' + ANALYSIS_CAUTION;
 
 const YEAR_MS = 365.25 * 86_400_000;
@@ -189,7 +190,7 @@ function finite(v: number): number | null {
 }
 
 /** 95 % Wilson score interval for k successes in n trials. Source: Wilson (1927), JASA 22, 209–212. O(1). */
-export function wilsonInterval(k: number, n: number, z = 1.959963984540054): [number, number] {
+function wilsonInterval(k: number, n: number, z = 1.959963984540054): [number, number] {
   if (n === 0) return [0, 1];
   const p = k / n;
   const d = 1 + (z * z) / n;

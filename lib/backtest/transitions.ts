@@ -1,32 +1,17 @@
 import type { Transaction } from 'sequelize';
-import { AlertRule, Series, Transition, db, writeTransaction } from '@/models';
-import type { MarkKind } from '@/models/Transition';
+import { AlertRule, Series, Transition, writeTransaction } from '@/models';
 import { recordAudit } from '@/lib/audit';
-import type { Actor } from '@/lib/auth/guard';
+import type { Actor } from '@/lib/auth/roles';
 import { NotFoundError } from '@/lib/http/errors';
 import type { TransitionCreate } from '@/lib/schemas/backtest';
-
-export function presentTransition(t: Transition) {
-  return { id: t.id, seriesId: t.seriesId, at: Number(t.at), atIso: new Date(Number(t.at)).toISOString(), note: t.note, kind: t.kind, createdBy: t.createdBy, createdAt: t.createdAt };
-}
-export type TransitionRecord = ReturnType<typeof presentTransition>;
-
-/**
- * Marks of a series, oldest first: by default the known transitions only (what backtests score against, so a
- * maintenance break never counts as a transition); pass both kinds for every mark.
- */
-export async function listTransitions(seriesId: number, kinds: readonly MarkKind[] = ['transition']): Promise<TransitionRecord[]> {
-  await db();
-  const rows = await Transition.findAll({ where: { seriesId, kind: [...kinds] }, order: [['at', 'ASC'], ['id', 'ASC']] });
-  return rows.map(presentTransition);
-}
+import { queueRuleCalibration } from './jobs';
+import { presentTransition, type TransitionRecord } from './marks';
 
 /**
  * A mark moves the end of the pre-transition record every calibration copies, so each rule of the series is
- * calibrated again (queueRuleCalibration, imported lazily: jobs.ts imports this module).
+ * calibrated again.
  */
 async function recalibrateRulesOf(seriesId: number, actor: Pick<Actor, 'id'>, transaction: Transaction): Promise<void> {
-  const { queueRuleCalibration } = await import('./jobs');
   const rules = await AlertRule.findAll({ where: { seriesId, active: true }, attributes: ['id'], transaction });
   for (const rule of rules) await queueRuleCalibration(rule.id, actor, transaction);
 }

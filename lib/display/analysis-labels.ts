@@ -1,12 +1,35 @@
 import type { RuleDirection, TrendDirection } from '@/lib/engine/direction';
 import type { AnalysisResult } from '@/lib/engine/analyze';
-import type { AnalysisSettings } from '@/lib/engine/settings';
+import type { AnalysisSettings, IndicatorName } from '@/lib/engine/settings';
 import { formatTau } from './format';
 
 /**
  * Words for the direction an indicator's trend is tested in and for where an analysed stretch starts, shared by
  * the charts, the tuning panel and the quality panel so every screen says them alike. Pure; browser-safe.
  */
+
+/**
+ * Plain-language names of the indicators, as they read inside a sentence (mails, alert pages); keyed by the
+ * engine's names, so a new indicator without a label fails the type check.
+ */
+export const INDICATOR_LABELS: Record<IndicatorName, string> = {
+  variance: 'variance',
+  sd: 'standard deviation',
+  cv: 'coefficient of variation',
+  ac1: 'lag-1 autocorrelation',
+  skewness: 'skewness',
+  kurtosis: 'kurtosis',
+  recovery: 'recovery rate',
+};
+
+/**
+ * The label of an indicator named by stored data (a rule, an alert), or the name itself when the engine does not
+ * know it; `title` starts it with a capital, as chart titles and form labels do.
+ */
+export function indicatorLabel(name: string, form: 'sentence' | 'title' = 'sentence'): string {
+  const label = Object.hasOwn(INDICATOR_LABELS, name) ? INDICATOR_LABELS[name as IndicatorName] : name;
+  return form === 'title' ? label.charAt(0).toUpperCase() + label.slice(1) : label;
+}
 
 /** How a direction reads in words (mails, alert pages) — the one place they are written. */
 export const DIRECTION_WORDS: Record<TrendDirection | RuleDirection, string> = { rising: 'rising', falling: 'falling', 'two-sided': 'either way', either: 'either way' };

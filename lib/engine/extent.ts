@@ -1,5 +1,5 @@
 import { AnalysisInputError } from './errors';
-import type { TimeKind } from './prepare';
+import type { TimeKind } from './time-kind';
 
 /**
  * How long a window, bandwidth or span is: a number = fraction of the analysed stretch; "<n> points"

@@ -10,4 +10,5 @@ export { kendallTau, kendallCounts, indicatorTrend, mannKendall, type KendallRes
 export { fitAr1, makeSurrogate, prepareSurrogateJob, surrogatePValue, surrogateTaus, type SurrogateJob } from './surrogates';
 export { computeSurrogateTaus } from './surrogate-pool';
 export { sensitivityGrid, DEFAULT_SENSITIVITY_BANDWIDTHS, DEFAULT_SENSITIVITY_WINDOWS, type SensitivityResult } from './sensitivity';
-export { prepareSeries, formatInstant, FLAT_RUN_MIN, type TimeKind, type PreparationQuality, type GapReport, type FlatRun, type SamplingChange } from './prepare';
+export type { TimeKind } from './time-kind';
+export { prepareSeries, formatInstant, FLAT_RUN_MIN, type PreparationQuality, type GapReport, type FlatRun, type SamplingChange } from './prepare';

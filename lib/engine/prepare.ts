@@ -1,8 +1,6 @@
 import { AnalysisInputError } from './errors';
 import { extentPoints, type Extent } from './extent';
-
-/** How the time axis is read: UTC milliseconds (dates) or plain numbers in the caller's own unit. */
-export type TimeKind = 'utc-ms' | 'numeric';
+import type { TimeKind } from './time-kind';
 
 export interface GapReport {
   /** first and last missing grid instant */

@@ -1,6 +1,6 @@
 import { AnalysisInputError } from './errors';
 import { extentPoints, type Extent } from './extent';
-import type { TimeKind } from './prepare';
+import type { TimeKind } from './time-kind';
 import type { IndicatorName } from './settings';
 
 /** Smallest rolling window, in points, for which the moment estimators mean anything. */

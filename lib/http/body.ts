@@ -2,7 +2,7 @@ import type { ZodType } from 'zod';
 import { PayloadTooLargeError, UnprocessableError, UnsupportedMediaTypeError } from './errors';
 
 /** Default limit for JSON bodies of ordinary API calls; uploads set their own. */
-export const JSON_BODY_LIMIT = 1024 * 1024;
+const JSON_BODY_LIMIT = 1024 * 1024;
 /** Deeper nesting than any of our schemas needs is refused before it reaches zod. */
 const MAX_JSON_DEPTH = 20;
 

@@ -53,12 +53,6 @@ export class UnprocessableError extends HttpError {
   }
 }
 
-export class TooManyRequestsError extends HttpError {
-  constructor(message: string) {
-    super(429, 'too_many_requests', message);
-  }
-}
-
 export class ServiceUnavailableError extends HttpError {
   constructor(message = 'The database is busy; try again in a moment.') {
     super(503, 'unavailable', message);

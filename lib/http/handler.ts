@@ -6,7 +6,7 @@ export interface ErrorBody {
   error: { code: string; message: string; fields?: Record<string, string[]> };
 }
 
-export function errorResponse(status: number, code: string, message: string, fields?: Record<string, string[]>) {
+function errorResponse(status: number, code: string, message: string, fields?: Record<string, string[]>) {
   const body: ErrorBody = { error: { code, message, ...(fields ? { fields } : {}) } };
   return NextResponse.json(body, { status });
 }
@@ -27,7 +27,7 @@ function isBusy(error: unknown): boolean {
 }
 
 /** Turns any thrown value into the JSON error contract; unknown errors are logged and never leak details. */
-export function toErrorResponse(error: unknown) {
+function toErrorResponse(error: unknown) {
   if (error instanceof HttpError) return errorResponse(error.status, error.code, error.message, error.fields);
   if (error instanceof ZodError) return errorResponse(422, 'invalid', 'Some fields are not valid.', zodFieldErrors(error));
   if (isBusy(error)) return errorResponse(503, 'unavailable', 'The database is busy; try again in a moment.');

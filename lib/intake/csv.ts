@@ -1,10 +1,10 @@
 import { Readable } from 'node:stream';
 import iconv from 'iconv-lite';
 import Papa from 'papaparse';
+import type { Delimiter } from './choices';
 
-export type Delimiter = ',' | ';' | '\t' | '|';
 /** Order of preference when several delimiters split the sample equally well: a file with consistent semicolons is semicolon-delimited even if its values contain commas (comma decimals). */
-export const DELIMITERS: readonly Delimiter[] = ['\t', ';', '|', ','];
+const DELIMITERS: readonly Delimiter[] = ['\t', ';', '|', ','];
 /** A time,value line is well under 100 characters; anything this long is not a record but a broken or hostile file. */
 export const MAX_LINE_CHARS = 65_536;
 const SNIFF_CHARS = 65_536;
@@ -73,7 +73,7 @@ function concatBytes(a: Uint8Array, b: Uint8Array): Uint8Array {
 }
 
 /** The encoding a leading byte order mark names (Unicode Standard, ch. 23.8 "Specials": EF BB BF, FF FE, FE FF); UTF-8 without one. */
-export function byteOrderMark(head: Uint8Array): { bom: boolean; encoding: CsvLayout['encoding'] } {
+function byteOrderMark(head: Uint8Array): { bom: boolean; encoding: CsvLayout['encoding'] } {
   if (head[0] === 0xef && head[1] === 0xbb && head[2] === 0xbf) return { bom: true, encoding: 'utf-8' };
   if (head[0] === 0xff && head[1] === 0xfe) return { bom: true, encoding: 'utf-16le' };
   if (head[0] === 0xfe && head[1] === 0xff) return { bom: true, encoding: 'utf-16be' };

@@ -9,7 +9,6 @@ import { ingestObservations, sweepStaleRuns, type IngestOutcome } from './pipeli
 
 /** Long enough for a million-row file; renewed every third of it while the file is worked on. */
 const FILE_LEASE_MS = 60_000;
-export const DONE_FOLDERS = ['processed', 'rejected'] as const;
 
 function log(line: string): void {
   console.log(`[intake ${new Date().toISOString()}] ${line}`);

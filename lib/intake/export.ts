@@ -1,3 +1,4 @@
+import 'server-only';
 import { QueryTypes } from 'sequelize';
 import { db } from '@/models';
 import type { ObservationRange } from '@/lib/analysis/observations';

@@ -1,10 +1,8 @@
 import { PayloadTooLargeError, UnprocessableError, UnsupportedMediaTypeError } from '@/lib/http/errors';
 import { isJsonContentType, readLimitedBytes, readLimitedText } from '@/lib/http/body';
 import { pushedObservationsSchema, uploadMappingSchema, type PushedObservation, type UploadMapping } from '@/lib/schemas/observation';
+import { INTAKE_BODY_LIMIT } from './choices';
 import { contentHashOf } from './content-hash';
-
-/** Largest CSV or JSON body taken by upload and push; a bigger record belongs in a drop folder, which streams. */
-export const INTAKE_BODY_LIMIT = 50 * 1024 * 1024;
 
 export interface IntakeBody {
   /** the CSV as sent: its bytes are decoded by the reader, which chooses and reports the encoding */

@@ -1,5 +1,6 @@
 import { observationSchema, type PushedObservation } from '@/lib/schemas/observation';
-import { CsvFileError, readCsv, type CsvInput, type CsvLayout, type CsvStats, type Delimiter } from './csv';
+import type { Delimiter } from './choices';
+import { CsvFileError, readCsv, type CsvInput, type CsvLayout, type CsvStats } from './csv';
 import { MAX_ABS_TIME_MS, parseTime, type TimeFormat, type TimeReading } from './time-formats';
 
 /** How to read the time and value of each record; columns by header name or 0-based position. */
@@ -22,7 +23,7 @@ export interface RejectedRow {
 }
 
 /** Rejections beyond this many are counted but not listed, so a wholly wrong million-row file keeps a small report. */
-export const MAX_LISTED_REJECTIONS = 1000;
+const MAX_LISTED_REJECTIONS = 1000;
 
 /** Rows read from one input, validated, in time order, one per instant. */
 export interface CollectedRows {
@@ -73,7 +74,7 @@ const DECIMAL = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
  * A value cell → number, or the reason it is none. NaN and infinity words become NaN/±Infinity so the
  * observation schema rejects them with its own message; a comma decimal mark gets a message of its own.
  */
-export function parseValue(raw: string | number): number | string {
+function parseValue(raw: string | number): number | string {
   if (typeof raw === 'number') return raw;
   const text = raw.trim();
   if (text === '') return 'the value is empty';

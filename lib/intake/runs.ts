@@ -1,14 +1,17 @@
+import 'server-only';
 import { IngestRun, Series, db } from '@/models';
 import { NotFoundError } from '@/lib/http/errors';
 import type { IngestRunQuery } from '@/lib/schemas/intake';
+import type { IngestRunRecord } from './run-record';
 
-function presentRun(run: IngestRun & { series?: Series | null }) {
+/** The public shape of a run (its report apart). */
+export function presentRun(run: IngestRun & { series?: Series | null }): IngestRunRecord {
   return {
-    id: run.id, series: run.series ? { slug: run.series.slug, name: run.series.name } : null, source: run.source,
+    id: run.id, series: run.series ? { slug: run.series.slug, name: run.series.name, timeZone: run.series.timeZone } : null, source: run.source,
     fileName: run.fileName, contentHash: run.contentHash, status: run.status, rowsRead: run.rowsRead, accepted: run.accepted,
     duplicates: run.duplicates, replaced: run.replaced, rejected: run.rejected, message: run.message,
     alreadyApplied: run.report?.alreadyApplied === true, durationMs: run.durationMs, userId: run.userId, tokenId: run.tokenId,
-    startedAt: run.startedAt, finishedAt: run.finishedAt,
+    startedAt: run.startedAt.toISOString(), finishedAt: run.finishedAt?.toISOString() ?? null,
   };
 }
 
@@ -24,7 +27,7 @@ export async function listIngestRuns(query: IngestRunQuery) {
   }
   const { rows, count } = await IngestRun.findAndCountAll({
     where,
-    include: [{ model: Series, as: 'series', attributes: ['slug', 'name'] }],
+    include: [{ model: Series, as: 'series', attributes: ['slug', 'name', 'timeZone'] }],
     attributes: { exclude: ['report'] },
     order: [['id', 'DESC']],
     limit: query.pageSize,
@@ -36,7 +39,7 @@ export async function listIngestRuns(query: IngestRunQuery) {
 /** One run with its report (rejected rows with line, column and reason; notes; detected layout). */
 export async function fetchIngestRun(id: number) {
   await db();
-  const run = await IngestRun.findByPk(id, { include: [{ model: Series, as: 'series', attributes: ['slug', 'name'] }] });
+  const run = await IngestRun.findByPk(id, { include: [{ model: Series, as: 'series', attributes: ['slug', 'name', 'timeZone'] }] });
   if (!run) throw new NotFoundError('Ingest run');
   const { runKey: _key, holder: _holder, ...report } = run.report ?? {};
   return { ...presentRun(run), report };

@@ -21,7 +21,7 @@ const DAY_MS = 86_400_000;
  * The reference year of ages "before present": AD 1950, the radiocarbon convention (Stuiver & Polach 1977,
  * Radiocarbon 19(3):355–363). Age 0 BP is 1950-01-01T00:00:00Z; ages grow into the past.
  */
-export const BP_REFERENCE_YEAR = 1950;
+const BP_REFERENCE_YEAR = 1950;
 
 /**
  * Days from 1970-01-01 to the given proleptic Gregorian date, valid for any year.
@@ -50,11 +50,11 @@ export function civilFromDays(days: number): [year: number, month: number, day: 
   return [yoe + era * 400 + (month <= 2 ? 1 : 0), month, day];
 }
 
-export function isLeapYear(year: number): boolean {
+function isLeapYear(year: number): boolean {
   return (year % 4 === 0 && year % 100 !== 0) || year % 400 === 0;
 }
 
-export function daysInMonth(year: number, month: number): number {
+function daysInMonth(year: number, month: number): number {
   return month === 2 ? (isLeapYear(year) ? 29 : 28) : [31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31][month - 1];
 }
 

@@ -1,8 +1,9 @@
+import 'server-only';
 import crypto from 'node:crypto';
 import { IngestToken, db, writeTransaction } from '@/models';
 import { NotFoundError } from '@/lib/http/errors';
 import { recordAudit } from '@/lib/audit';
-import type { Actor } from '@/lib/auth/guard';
+import type { Actor } from '@/lib/auth/roles';
 import { contentHashOf } from './content-hash';
 
 /** Only this digest of a push token is stored; the token itself is shown once, when issued. */

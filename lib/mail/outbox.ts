@@ -2,7 +2,7 @@ import { QueryTypes, type Transaction } from 'sequelize';
 import { MailMessage, db, writeTransaction } from '@/models';
 import { NotFoundError, ConflictError } from '@/lib/http/errors';
 import { recordAudit } from '@/lib/audit';
-import type { Actor } from '@/lib/auth/guard';
+import type { Actor } from '@/lib/auth/roles';
 import { sqlDate } from '@/lib/db/sql-date';
 
 export interface OutgoingMail {

@@ -1,7 +1,7 @@
 import { ANALYSIS_CAUTION } from '@/lib/engine/analyze';
 import { formatP, formatUtc, formatValue } from '@/lib/display/format';
 import { publicBaseUrl } from '@/lib/runtime/config';
-import { DIRECTION_WORDS, describeExtent } from '@/lib/display/analysis-labels';
+import { DIRECTION_WORDS, describeExtent, indicatorLabel } from '@/lib/display/analysis-labels';
 import { describeCalibration, kendallPLabel, tauThreshold, tauWithDirection, type CalibrationLine } from '@/lib/alerts/wording';
 
 /** A rendered message: the same content as plain text and as self-contained HTML (no remote images, no scripts). */
@@ -10,16 +10,6 @@ export interface RenderedMail {
   text: string;
   html: string;
 }
-
-export const INDICATOR_LABELS: Record<string, string> = {
-  variance: 'variance',
-  sd: 'standard deviation',
-  cv: 'coefficient of variation',
-  ac1: 'lag-1 autocorrelation',
-  skewness: 'skewness',
-  kurtosis: 'kurtosis',
-  recovery: 'recovery rate',
-};
 
 export function escapeHtml(text: string): string {
   return text.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c]!);
@@ -96,7 +86,7 @@ export interface AlertEvidence {
   shift: { time: number; size: number | null } | null;
 }
 
-export function alertLink(alertId: number): string {
+function alertLink(alertId: number): string {
   return `${publicBaseUrl()}/alerts/${alertId}`;
 }
 
@@ -122,7 +112,7 @@ function describeRule(r: NonNullable<AlertEvidence['rule']>): string {
   return parts.join(', ');
 }
 
-export function evidenceRows(e: AlertEvidence): Row[] {
+function evidenceRows(e: AlertEvidence): Row[] {
   const series: Row = ['Series', `${e.series.name} (${e.series.slug})${e.series.site ? `, ${e.series.site}` : ''}`];
   const span: Row = ['Data span', `${formatUtc(e.dataFrom)} to ${formatUtc(e.dataTo)} (${e.n} points analysed)`];
   if (e.kind === 'abrupt-shift') {
@@ -134,7 +124,7 @@ export function evidenceRows(e: AlertEvidence): Row[] {
       span,
     ];
   }
-  const label = INDICATOR_LABELS[e.indicator ?? ''] ?? e.indicator ?? '';
+  const label = indicatorLabel(e.indicator ?? '');
   return [
     series,
     ['Indicator', `${label} (${e.indicator})`],
@@ -152,7 +142,7 @@ export function evidenceRows(e: AlertEvidence): Row[] {
 
 export function newAlertMail(e: AlertEvidence): RenderedMail {
   if (e.kind === 'abrupt-shift') return shiftAlertMail(e);
-  const label = INDICATOR_LABELS[e.indicator ?? ''] ?? e.indicator ?? '';
+  const label = indicatorLabel(e.indicator ?? '');
   const level = e.severity === 'warning' ? 'Warning' : 'Watch';
   return compose({
     subject: `[Brinkwatch] ${level}: ${label} trend on ${e.series.name} (alert #${e.alertId})`,
@@ -166,7 +156,7 @@ export function newAlertMail(e: AlertEvidence): RenderedMail {
 }
 
 /** A detected abrupt shift of level: news in itself, and the live analysis now judges only the stretch after it. */
-export function shiftAlertMail(e: AlertEvidence): RenderedMail {
+function shiftAlertMail(e: AlertEvidence): RenderedMail {
   const level = e.severity === 'warning' ? 'Warning' : 'Watch';
   return compose({
     subject: `[Brinkwatch] ${level}: abrupt shift on ${e.series.name} (alert #${e.alertId})`,
@@ -251,7 +241,7 @@ export function digestMail(input: { name: string; since: Date; entries: DigestEn
       `#${e.alertId} ${e.seriesName}`,
       e.indicator === null
         ? `${e.severity}, abrupt shift, ${e.state} — ${alertLink(e.alertId)}`
-        : `${e.severity}, ${INDICATOR_LABELS[e.indicator] ?? e.indicator}, tau ${tauWithDirection(e.tau, e.direction)}, surrogate p ${formatP(e.surrogateP)}, ${e.state} — ${alertLink(e.alertId)}`,
+        : `${e.severity}, ${indicatorLabel(e.indicator)}, tau ${tauWithDirection(e.tau, e.direction)}, surrogate p ${formatP(e.surrogateP)}, ${e.state} — ${alertLink(e.alertId)}`,
     ]),
     link: { href: `${publicBaseUrl()}/alerts`, label: 'Open the alert queues' },
     caution: true,

@@ -1,7 +1,7 @@
 import { Op, type Transaction } from 'sequelize';
 import { Series, User, Watch, db, writeTransaction } from '@/models';
 import type { WatchMode } from '@/models/Watch';
-import type { Actor } from '@/lib/auth/guard';
+import type { Actor } from '@/lib/auth/roles';
 import { recordAudit } from '@/lib/audit';
 
 /** Sets the signed-in user's mail preference for one series ('none' keeps the row, so the choice is remembered). */

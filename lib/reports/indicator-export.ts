@@ -1,3 +1,4 @@
+import 'server-only';
 import Papa from 'papaparse';
 import { analyseStored, boundedSettings } from '@/lib/analysis/preview';
 import type { AnalysisSummary } from '@/lib/engine/analyze';

@@ -23,7 +23,7 @@ function walk(entry: string, files: string[]): void {
 }
 
 /** A digest of the build inputs' contents, so a build is redone exactly when a source changed. */
-export function sourceDigest(): string {
+function sourceDigest(): string {
   const files: string[] = [];
   for (const entry of BUILD_INPUTS) walk(entry, files);
   const hash = crypto.createHash('sha256');

@@ -15,4 +15,3 @@ export const auditQuerySchema = z.object({
   action: z.string().trim().max(100).optional(),
   entity: z.string().trim().max(100).optional(),
 });
-export type AuditQuery = z.output<typeof auditQuerySchema>;

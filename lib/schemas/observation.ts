@@ -18,10 +18,9 @@ export const observationSchema = z.object({
       : typeof issue.input === 'number' ? 'an infinite value is not a measurement' : 'the value must be a number',
   }),
 });
-export type ObservationRow = z.infer<typeof observationSchema>;
 
 /** A pushed JSON point: time as ISO 8601 text or a number in the series' time format, value as a number or numeric text. */
-export const pushedObservationSchema = z.object({
+const pushedObservationSchema = z.object({
   time: z.union([z.string().max(100), z.number()]),
   value: z.union([z.number(), z.string().max(100)]),
 });

@@ -5,7 +5,7 @@ import { RULE_DIRECTIONS, defaultRuleDirection } from '@/models/AlertRule';
 const probability = z.number().gt(0).max(1);
 
 /** Why a Kendall p gate is refused (README, "Alerts and mail"). */
-export const KENDALL_P_REFUSAL =
+const KENDALL_P_REFUSAL =
   'The Kendall p is no longer a gate: it assumes independent values, and indicator values from overlapping windows are not independent (on stationary records it falls below 0.05 most of the time). Use maxSurrogateP or fdrLevel, which test against surrogates of the series itself.';
 
 /**

@@ -1,7 +1,7 @@
 import { z } from 'zod';
-import { ROLES } from '@/models/roles';
+import { ROLES } from '@/lib/auth/roles';
 
-export const emailSchema = z.string().trim().toLowerCase().pipe(z.email().max(254));
+const emailSchema = z.string().trim().toLowerCase().pipe(z.email().max(254));
 
 /** Long enough to resist guessing without rules on character classes (NIST SP 800-63B, Sec. 5.1.1.2: at least 8). */
 export const passwordSchema = z.string().min(12, 'Use at least 12 characters.').max(200);

@@ -1,12 +1,11 @@
-import { Op, QueryTypes, UniqueConstraintError, col, fn, where, type WhereOptions } from 'sequelize';
-import { AnalysisSnapshot, Series, SettingsChange, WITHOUT_CHARTS, db, writeTransaction } from '@/models';
+import { Op, QueryTypes, UniqueConstraintError, col, fn, where, type Transaction, type WhereOptions } from 'sequelize';
+import { AlertRule, AnalysisSnapshot, Series, SettingsChange, WITHOUT_CHARTS, db, writeTransaction } from '@/models';
 import { observationExtent } from '@/lib/analysis/observations';
 import { ConflictError, NotFoundError } from '@/lib/http/errors';
 import { recordAudit } from '@/lib/audit';
 import { cachedRead } from '@/lib/db/read-cache';
-import type { Actor } from '@/lib/auth/guard';
+import type { Actor } from '@/lib/auth/roles';
 import { seriesCreateSchema, seriesUpdateSchema, type SeriesCreateInput } from '@/lib/schemas/series';
-import { applyDefaultRules } from '@/lib/alerts/rules';
 
 /** The public shape of a series record (what the API returns). */
 export function presentSeries(series: Series) {
@@ -74,6 +73,16 @@ export async function findSeriesBySlug(slug: string): Promise<Series> {
   const series = await Series.findOne({ where: { slug } });
   if (!series) throw new NotFoundError('Series');
   return series;
+}
+
+/** Copies the default rules (series null) onto a freshly created series, inside its creation transaction. */
+export async function applyDefaultRules(seriesId: number, transaction: Transaction): Promise<number> {
+  const defaults = await AlertRule.findAll({ where: { seriesId: null, active: true }, transaction });
+  for (const rule of defaults) {
+    const { id: _id, createdAt: _c, updatedAt: _u, seriesId: _s, ...fields } = rule.get({ plain: true });
+    await AlertRule.create({ ...fields, seriesId }, { transaction });
+  }
+  return defaults.length;
 }
 
 /** Registers a series; defaults fill everything but slug and name. 409 when the slug is taken. */

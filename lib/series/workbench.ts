@@ -1,3 +1,4 @@
+import 'server-only';
 import { QueryTypes } from 'sequelize';
 import { AnalysisSnapshot, IngestRun, Transition, db } from '@/models';
 import { cachedRead } from '@/lib/db/read-cache';
@@ -7,18 +8,8 @@ import { loadSnapshotView } from '@/lib/analysis/snapshot';
 import type { AnalysisView } from '@/lib/analysis/view';
 import { analysisSettingsSchema, type AnalysisSettings } from '@/lib/engine/settings';
 import { findSeriesBySlug, presentSeries, type SeriesRecord } from '@/lib/series/registry';
-
-export interface IntakeRunSummary {
-  id: number;
-  source: string;
-  fileName: string | null;
-  status: string;
-  accepted: number;
-  rejected: number;
-  duplicates: number;
-  message: string;
-  startedAt: string;
-}
+import { presentRun } from '@/lib/intake/runs';
+import type { IngestRunRecord } from '@/lib/intake/run-record';
 
 export interface Workbench {
   series: SeriesRecord;
@@ -26,7 +17,8 @@ export interface Workbench {
   view: AnalysisView | null;
   snapshot: { id: number; createdAt: string; status: string; error: string | null; dataTo: number | null } | null;
   extent: { count: number; first: number | null; last: number | null };
-  runs: IntakeRunSummary[];
+  /** the last five ingest runs, newest first */
+  runs: IngestRunRecord[];
   rejectedRows: number;
   history: SettingsHistoryEntry[];
   transitions: { id: number; at: number; note: string; kind: 'transition' | 'maintenance' }[];
@@ -67,10 +59,7 @@ async function loadWorkbench(slug: string): Promise<Workbench> {
       ? { id: snapshot.id, createdAt: snapshot.createdAt.toISOString(), status: snapshot.status, error: snapshot.error, dataTo: snapshot.dataTo === null ? null : Number(snapshot.dataTo) }
       : null,
     extent,
-    runs: runs.map((r) => ({
-      id: r.id, source: r.source, fileName: r.fileName, status: r.status, accepted: r.accepted, rejected: r.rejected,
-      duplicates: r.duplicates, message: r.message, startedAt: r.startedAt.toISOString(),
-    })),
+    runs: runs.map((r) => presentRun(r)),
     rejectedRows: Number(rejected[0]?.total ?? 0),
     history,
     transitions: transitions.map((t) => ({ id: t.id, at: Number(t.at), note: t.note, kind: t.kind })),

@@ -1,6 +1,7 @@
+import 'server-only';
 import { User, db, writeTransaction } from '@/models';
 import { recordAudit } from '@/lib/audit';
-import type { Actor } from '@/lib/auth/guard';
+import type { Actor } from '@/lib/auth/roles';
 import { hashPassword, verifyPassword } from '@/lib/auth/password';
 import { NotFoundError, UnprocessableError } from '@/lib/http/errors';
 import { accountUpdateSchema, passwordChangeSchema } from '@/lib/schemas/account';

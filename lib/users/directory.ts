@@ -1,15 +1,29 @@
+import 'server-only';
 import { UniqueConstraintError } from 'sequelize';
 import { User, db, writeTransaction } from '@/models';
 import { ConflictError, NotFoundError } from '@/lib/http/errors';
 import { recordAudit } from '@/lib/audit';
 import { publicBaseUrl } from '@/lib/runtime/config';
-import type { Actor } from '@/lib/auth/guard';
+import type { Actor, Role } from '@/lib/auth/roles';
 import { enqueueMail } from '@/lib/mail/outbox';
 import { invitationMail } from '@/lib/mail/templates';
 import { inviteSchema, userUpdateSchema, type InviteInput, type UserUpdate } from '@/lib/schemas/user';
 import { issueUserToken } from './tokens';
 
-export function presentUser(user: User) {
+/** A user as the admin page and the users API carry it (times as ISO 8601 strings). */
+export interface UserView {
+  id: number;
+  email: string;
+  name: string;
+  role: Role;
+  active: boolean;
+  /** Invited but not yet accepted: inactive and without a password. */
+  invited: boolean;
+  createdAt: string;
+  updatedAt: string;
+}
+
+export function presentUser(user: User): UserView {
   return {
     id: user.id,
     email: user.email,
@@ -18,8 +32,8 @@ export function presentUser(user: User) {
     active: user.active,
     /** Invited but not yet accepted: inactive and without a password. */
     invited: !user.active && user.passwordHash === null,
-    createdAt: user.createdAt,
-    updatedAt: user.updatedAt,
+    createdAt: user.createdAt.toISOString(),
+    updatedAt: user.updatedAt.toISOString(),
   };
 }
 

@@ -1,3 +1,4 @@
+import 'server-only';
 import { User, db, writeTransaction } from '@/models';
 import { recordAudit } from '@/lib/audit';
 import { publicBaseUrl } from '@/lib/runtime/config';

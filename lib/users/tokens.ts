@@ -1,3 +1,4 @@
+import 'server-only';
 import crypto from 'node:crypto';
 import { Op, type Transaction } from 'sequelize';
 import { UserToken, type User } from '@/models';

@@ -16,7 +16,7 @@ import { ruleCreateSchema } from '@/lib/schemas/rule';
 import { zodFieldErrors } from '@/lib/http/handler';
 import { ZodError } from 'zod';
 import { makeRule, makeSeries, makeSnapshot, makeUser, watch } from './helpers';
-import type { Actor } from '@/lib/auth/guard';
+import type { Actor } from '@/lib/auth/roles';
 import type { TrendDirection } from '@/lib/engine/direction';
 
 let lead: Actor;

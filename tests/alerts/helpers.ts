@@ -2,7 +2,7 @@ import { AnalysisSnapshot, Series, User, Watch, type AlertRule } from '@/models'
 import { hashPassword } from '@/lib/auth/password';
 import { createRule } from '@/lib/alerts/rules';
 import type { RuleCreateInput } from '@/lib/schemas/rule';
-import type { Actor } from '@/lib/auth/guard';
+import type { Actor } from '@/lib/auth/roles';
 
 let counter = 0;
 

@@ -12,7 +12,7 @@ import { addNote, editNote } from '@/lib/alerts/notes';
 import { fetchAlertDetail, fetchAlertQueue } from '@/lib/alerts/queries';
 import { alertQueueSchema, TRIAGE_ACTIONS } from '@/lib/schemas/alert';
 import { makeRule, makeSeries, makeSnapshot, makeUser, watch } from './helpers';
-import type { Actor } from '@/lib/auth/guard';
+import type { Actor } from '@/lib/auth/roles';
 
 let analyst: Actor, other: Actor, lead: Actor, viewer: Actor;
 

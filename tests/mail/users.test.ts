@@ -10,7 +10,7 @@ import { ConflictError } from '@/lib/http/errors';
 import { inviteUser, updateUser } from '@/lib/users/directory';
 import { acceptInvitation, requestPasswordReset, resetPassword } from '@/lib/users/passwords';
 import { TOKEN_LIFETIME_MS, hashToken } from '@/lib/users/tokens';
-import type { Actor } from '@/lib/auth/guard';
+import type { Actor } from '@/lib/auth/roles';
 
 let admin: Actor;
 

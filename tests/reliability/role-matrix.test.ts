@@ -1,7 +1,7 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
-import { ROLES, roleAtLeast, type Role } from '@/models/roles';
+import { ROLES, roleAtLeast, type Role } from '@/lib/auth/roles';
 import { DEMO_PASSWORD, startApp, type RunningApp } from '../support/app';
 import { Session, signedIn } from '../support/session';
 

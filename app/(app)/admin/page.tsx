@@ -1,4 +1,4 @@
-import { UsersAdmin, type UserRow } from '@/components/admin/UsersAdmin';
+import { UsersAdmin } from '@/components/admin/UsersAdmin';
 import { requireRole } from '@/lib/auth/guard';
 import { listUsers, presentUser } from '@/lib/users/directory';
 
@@ -11,7 +11,7 @@ export default async function AdminUsersPage() {
     <section className="space-y-3">
       <h1 className="text-xl font-semibold">Users</h1>
       <p className="text-sm text-ink-soft">Invited people get a link by e-mail to set their password; until then the account stays inactive.</p>
-      <UsersAdmin initial={JSON.parse(JSON.stringify(users)) as UserRow[]} selfId={actor.id} />
+      <UsersAdmin initial={users} selfId={actor.id} />
     </section>
   );
 }

@@ -1,6 +1,6 @@
 import { requireRole } from '@/lib/auth/guard';
 import { hasActiveSeries } from '@/lib/series/registry';
-import { roleAtLeast } from '@/models/roles';
+import { roleAtLeast } from '@/lib/auth/roles';
 import { IntakeScreen } from '@/components/intake/IntakeScreen';
 
 export const metadata = { title: 'Intake' };

@@ -10,7 +10,7 @@ export default async function AdminAuditPage() {
   return (
     <section className="space-y-3">
       <h1 className="text-xl font-semibold">Audit log</h1>
-      <AuditLog initial={JSON.parse(JSON.stringify(first))} />
+      <AuditLog initial={first} />
     </section>
   );
 }

@@ -1,6 +1,6 @@
 import Link from 'next/link';
 import { AlertActions } from '@/components/alerts/AlertActions';
-import { AlertNotes, type NoteItem } from '@/components/alerts/AlertNotes';
+import { AlertNotes } from '@/components/alerts/AlertNotes';
 import { EvidenceCharts } from '@/components/alerts/EvidenceCharts';
 import { AlertStateBadge, SeverityBadge } from '@/components/Badges';
 import { Caution } from '@/components/Caution';
@@ -11,9 +11,8 @@ import { requireRole } from '@/lib/auth/guard';
 import { formatP, formatTau, formatValue } from '@/lib/display/format';
 import { DIRECTION_WORDS } from '@/lib/display/analysis-labels';
 import { describeCalibration, kendallPLabel, tauThreshold, tauWithDirection } from '@/lib/alerts/wording';
-import type { RuleRecord } from '@/lib/alerts/rules';
 import { idParam } from '@/lib/http/params';
-import { roleAtLeast } from '@/models/roles';
+import { roleAtLeast } from '@/lib/auth/roles';
 
 export const metadata = { title: 'Alert' };
 
@@ -31,8 +30,7 @@ export default async function AlertPage({ params }: { params: Promise<{ id: stri
   const { detail, firstView, latestView, transitions, colleagues } = await fetchAlertPage(id, actor);
   const tz = detail.series.timeZone;
   const lastEval = detail.evidence.evaluations[detail.evidence.evaluations.length - 1];
-  const rule = detail.rule as RuleRecord | null;
-  const notes = JSON.parse(JSON.stringify(detail.notes)) as NoteItem[];
+  const rule = detail.rule;
   return (
     <section className="space-y-4">
       <nav aria-label="Breadcrumb" className="text-sm text-ink-soft">
@@ -73,7 +71,7 @@ export default async function AlertPage({ params }: { params: Promise<{ id: stri
               transitions={detail.shift ? [...transitions, { at: detail.shift.time, note: 'abrupt shift (this alert)' }] : transitions} />
           </Panel>
           <Panel title="Notes" id="notes">
-            <AlertNotes alertId={detail.id} notes={notes} canWrite={roleAtLeast(actor.role, 'analyst')} timeZone={tz} />
+            <AlertNotes alertId={detail.id} notes={detail.notes} canWrite={roleAtLeast(actor.role, 'analyst')} timeZone={tz} />
           </Panel>
         </div>
         <aside className="space-y-4">
@@ -90,7 +88,7 @@ export default async function AlertPage({ params }: { params: Promise<{ id: stri
                   <li key={e.id} className="border-l-2 border-rule pl-3">
                     <div className="font-medium">{ACTION_WORDS[e.action] ?? e.action}{e.toState && SHOWS_STATE.has(e.action) ? ` → ${e.toState}` : ''}</div>
                     <div className="text-xs text-ink-soft">
-                      {e.actor?.name ?? 'Brinkwatch'} · <LocalTime t={e.at as unknown as string} timeZone={tz} withZone />
+                      {e.actor?.name ?? 'Brinkwatch'} · <LocalTime t={e.at} timeZone={tz} withZone />
                       {e.reason ? ` · ${e.reason}` : ''}
                     </div>
                     {e.detail ? <p className="text-xs">{e.detail}</p> : null}

@@ -9,7 +9,7 @@ import { QualityPanel } from '@/components/workbench/QualityPanel';
 import { Workbench } from '@/components/workbench/Workbench';
 import { requireRole } from '@/lib/auth/guard';
 import { fetchWorkbench } from '@/lib/series/workbench';
-import { roleAtLeast } from '@/models/roles';
+import { roleAtLeast } from '@/lib/auth/roles';
 
 export const metadata = { title: 'Series' };
 
@@ -45,7 +45,7 @@ export default async function SeriesPage({ params }: { params: Promise<{ slug: s
         history={bench.history}
         quality={<QualityPanel quality={bench.view?.quality ?? null} stretch={bench.view?.stretch ?? null} shifts={bench.view?.shifts ?? []} runs={bench.runs} rejectedRows={bench.rejectedRows} extent={bench.extent} timeZone={series.timeZone} />}
       />
-      <SeriesRules statuses={JSON.parse(JSON.stringify(await ruleStatuses(series.id)))} timeZone={series.timeZone} />
+      <SeriesRules statuses={await ruleStatuses(series.id)} timeZone={series.timeZone} />
       <BacktestPanel slug={series.slug} timeZone={series.timeZone} canRun={roleAtLeast(actor.role, 'lead')} />
     </section>
   );

@@ -1,9 +1,9 @@
 import { NextResponse } from 'next/server';
-import { requireIngestWriter, requireRole } from '@/lib/auth/guard';
+import { requireRole } from '@/lib/auth/guard';
+import { requireIngestWriter } from '@/lib/intake/writer';
 import { handle } from '@/lib/http/handler';
 import { readQuery } from '@/lib/http/body';
 import { ServiceUnavailableError, UnprocessableError } from '@/lib/http/errors';
-import { Series } from '@/models';
 import { observationQuerySchema } from '@/lib/schemas/observation';
 import { findSeriesBySlug } from '@/lib/series/registry';
 import { loadObservations } from '@/lib/analysis/observations';
@@ -40,9 +40,8 @@ export const POST = handle<{ slug: string }>(async (request, { params }) => {
   const { slug } = await params;
   const writer = await requireIngestWriter(request, slug);
   const body = await readIntakeBody(request, { allowJson: true });
-  const series = await Series.findByPk(writer.seriesId);
   const outcome = await ingestObservations({
-    series: series!, source: 'push', fileName: body.fileName, csv: body.csv, points: body.points, mapping: body.mapping,
+    series: writer.series, source: 'push', fileName: body.fileName, csv: body.csv, points: body.points, mapping: body.mapping,
     actor: writer.actor, tokenId: writer.tokenId,
   });
   const rejected = outcome.rejectedRows.map(({ line, column, reason }) => ({ line, column, reason }));

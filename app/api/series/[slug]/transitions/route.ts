@@ -1,6 +1,7 @@
 import { NextResponse } from 'next/server';
 import { requireRole } from '@/lib/auth/guard';
-import { listTransitions, markTransition } from '@/lib/backtest/transitions';
+import { listTransitions } from '@/lib/backtest/marks';
+import { markTransition } from '@/lib/backtest/transitions';
 import { readJson } from '@/lib/http/body';
 import { handle } from '@/lib/http/handler';
 import { transitionCreateSchema } from '@/lib/schemas/backtest';
