@@ -57,7 +57,7 @@ const SORTS = [
 ];
 const PAGE_SIZE = 25;
 
-export function queueSearch(f: QueueFilters): string {
+function queueSearch(f: QueueFilters): string {
   const params = new URLSearchParams({ queue: f.queue, sort: f.sort, page: String(f.page), pageSize: String(PAGE_SIZE) });
   if (f.series) params.set('series', f.series);
   if (f.severity) params.set('severity', f.severity);

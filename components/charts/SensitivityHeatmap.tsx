@@ -9,7 +9,7 @@ import { hexChannels, useChartPalette, type ChartPalette } from './theme';
  * Diverging colour for tau ∈ [−1, 1] from the theme: tide for falling, paper at zero, warning red for rising, mixed
  * in sRGB. Before the palette is resolved (server render) the browser's color-mix stands in.
  */
-export function tauColour(tau: number | null, colours: ChartPalette): string {
+function tauColour(tau: number | null, colours: ChartPalette): string {
   if (tau === null) return colours.card;
   const t = Math.max(-1, Math.min(1, tau));
   const end = t < 0 ? colours.tide : colours.warning;

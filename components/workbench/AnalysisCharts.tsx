@@ -20,7 +20,7 @@ export interface ChartSeries {
  * surrogate p in that direction. Without surrogates only the Kendall p is at hand, labelled descriptive: it assumes
  * independent values, which overlapping windows are not, so it is no test.
  */
-export function trendLegend(view: AnalysisView, name: string): string {
+function trendLegend(view: AnalysisView, name: string): string {
   const k = view.kendall[name as keyof AnalysisView['kendall']];
   const s = view.significance[name as keyof AnalysisView['significance']];
   const direction = s?.direction ?? k?.direction ?? 'rising';
