@@ -211,7 +211,7 @@ function toJson(result: AnalysisResult, summary: boolean, numericTime: boolean):
   const when = (v: number): number | string => (numericTime ? v : formatInstant(v));
   const { quality } = result;
   const times = {
-    shifts: result.shifts.map((s) => ({ time: when(s.time), index: s.index })),
+    shifts: result.shifts.map((s) => ({ time: when(s.time), index: s.index, size: s.size })),
     stretch: { ...result.stretch, from: when(result.stretch.from), to: when(result.stretch.to) },
     quality: {
       ...quality,

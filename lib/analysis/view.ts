@@ -44,7 +44,7 @@ export interface AnalysisView {
   sensitivity: (SensitivityResult & { chosen: { window: number; bandwidth: number | null } }) | null;
   quality: ViewQuality | null;
   /** detected abrupt shifts of level (time = first instant of the new level, UTC ms) */
-  shifts: { time: number; index: number }[];
+  shifts: { time: number; index: number; size?: number }[];
   /** the analysed stretch and why it starts where it does; null on snapshots stored before it was recorded */
   stretch: AnalysisResult['stretch'] | null;
 }

@@ -56,8 +56,8 @@ export interface AnalysisResult {
   rateUnit: 'per day' | 'per time unit';
   /** sampling interval in the unit of `time` */
   interval: number;
-  /** abrupt level shifts detected over the whole prepared record (index on its grid; time = first instant of the new level) */
-  shifts: { time: number; index: number }[];
+  /** abrupt level shifts detected over the whole prepared record (index on its grid; time = first instant of the new level; size = jump of the level, in the series' unit) */
+  shifts: { time: number; index: number; size: number }[];
   /** the analysed stretch: its first and last instant, and why it starts there */
   stretch: { from: number; to: number; startsAfter: StretchStart };
   series: { time: Float64Array; value: Float64Array; trend: Float64Array; residual: Float64Array };
@@ -163,7 +163,7 @@ export async function runAnalysis(input: AnalysisInput, settings: AnalysisSettin
   const whole = prepared.value;
   const shifts =
     settings.shiftDetection === 'on' && whole.length >= 2 * MIN_WINDOW_POINTS
-      ? detectShifts(whole).map((s) => ({ time: prepared.time[s.index], index: s.index }))
+      ? detectShifts(whole).map((s) => ({ time: prepared.time[s.index], index: s.index, size: s.size }))
       : [];
   const cut = stretchStart(prepared.time, prepared.startsAfter, shifts, input.breaks ?? []);
   const x = whole.subarray(cut.index);

@@ -31,7 +31,7 @@ describe('the analysed stretch', () => {
   it('starts at the first point of the new level after the last detected shift', async () => {
     detected.shifts = [{ index: 60, size: 2 }, { index: 120, size: -1 }];
     const r = await runAnalysis({ time, value }, settings);
-    expect(r.shifts).toEqual([{ time: time[60], index: 60 }, { time: time[120], index: 120 }]);
+    expect(r.shifts).toEqual([{ time: time[60], index: 60, size: 2 }, { time: time[120], index: 120, size: -1 }]);
     expect(r.stretch).toEqual({ from: time[120], to: time[n - 1], startsAfter: 'shift' });
     expect(r.n).toBe(180);
     expect(r.windowPoints).toBe(90);
@@ -51,7 +51,7 @@ describe('the analysed stretch', () => {
   it('shifts are found on the whole prepared record; a span cut after the last shift names the span', async () => {
     detected.shifts = [{ index: 50, size: 1 }];
     const r = await runAnalysis({ time, value }, { ...settings, span: 'P200D' });
-    expect(r.shifts).toEqual([{ time: time[150], index: 50 }]);
+    expect(r.shifts).toEqual([{ time: time[150], index: 50, size: 1 }]);
     expect(r.stretch).toEqual({ from: time[150], to: time[n - 1], startsAfter: 'shift' });
     detected.shifts = [];
     const s = await runAnalysis({ time, value }, { ...settings, span: '100 points' });
