@@ -159,8 +159,10 @@ describe('hostile input against the started product', () => {
 
     const deadline = Date.now() + 30_000;
     let run: { file_name: string; status: string; message: string } | undefined;
-    // The run is recorded as running first and finished in a second write: wait for the finished one.
-    while ((!run || run.status === 'running') && Date.now() < deadline) {
+    // The run is recorded as running first and finished in a second write, and the file is moved beside its report
+    // only after that: wait for both.
+    const moved = () => fs.existsSync(path.join(folder, 'rejected', oddName));
+    while ((!run || run.status === 'running' || !moved()) && Date.now() < deadline) {
       await new Promise((r) => setTimeout(r, 500));
       run = await raw.get('SELECT file_name, status, message FROM ingest_runs WHERE source = ? AND file_name = ?', ['drop', oddName]);
     }
