@@ -1,5 +1,5 @@
 import { Op, QueryTypes, type Transaction } from 'sequelize';
-import { Alert, AlertEvent, AlertRule, RuleEvaluation, Series, Transition, db, writeTransaction, OPEN_ALERT_STATES, type AnalysisSnapshot } from '@/models';
+import { Alert, AlertEvent, AlertRule, RuleEvaluation, Series, db, writeTransaction, OPEN_ALERT_STATES, type AnalysisSnapshot } from '@/models';
 import { recordAudit } from '@/lib/audit';
 import { latestRuleCalibration, type RuleCalibration } from '@/lib/backtest/jobs';
 import { trendDirectionOf, type TrendDirection } from '@/lib/engine/direction';
@@ -8,6 +8,7 @@ import { enqueueMail } from '@/lib/mail/outbox';
 import { newAlertMail } from '@/lib/mail/templates';
 import { watchersOf } from '@/lib/mail/watches';
 import { evidenceFrom, indicatorFacts, snapshotTaus, type StoredSummary } from './evidence';
+import { seriesBreaks } from '@/lib/analysis/snapshot';
 
 /** The thresholds of a rule that judgement reads (an AlertRule or its plain fields). */
 export type RuleThresholds = Pick<AlertRule, 'indicator' | 'direction' | 'minTau' | 'maxSurrogateP' | 'levelThreshold' | 'levelDirection' | 'fdrLevel'>;
@@ -203,7 +204,7 @@ async function openShiftAlert(series: Series, snapshot: AnalysisSnapshot): Promi
   return writeTransaction(async (transaction) => {
     const alerted = (await Alert.max('shiftTime', { where: { seriesId: series.id, kind: 'abrupt-shift' }, transaction })) as number | string | null;
     const after = alerted === null ? -Infinity : Number(alerted) + SAME_SHIFT_INTERVALS * (summary.interval ?? 0);
-    const marks = (await Transition.findAll({ where: { seriesId: series.id }, attributes: ['at'], transaction })).map((m) => Number(m.at));
+    const marks = (await seriesBreaks(series.id, {}, transaction)).map((mark) => mark.time);
     const fresh = shifts.filter((s) => s.time > after && !explainedByMark(s.time, marks, summary)).sort((a, b) => a.time - b.time);
     if (!fresh.length) return null;
     const shift = fresh[fresh.length - 1];

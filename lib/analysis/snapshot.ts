@@ -1,4 +1,4 @@
-import { Op, QueryTypes } from 'sequelize';
+import { Op, QueryTypes, type Transaction } from 'sequelize';
 import { sampleStandardDeviation } from 'simple-statistics';
 import { AnalysisSnapshot, Transition, WITHOUT_CHARTS, db, type Series } from '@/models';
 import { analysisSettingsSchema, type AnalysisSettings } from '@/lib/engine/settings';
@@ -42,12 +42,16 @@ export function snapshotSummary(result: AnalysisResult): Record<string, unknown>
  * `breaks`: only those after `from` (earlier ones lie before the data read, so the span cut already excludes them)
  * and at or before the last reading (a break noted ahead of its data waits for that data). Oldest first.
  */
-export async function seriesBreaks(seriesId: number, range: { from?: number; to?: number | null } = {}): Promise<NonNullable<AnalysisInput['breaks']>> {
+export async function seriesBreaks(
+  seriesId: number,
+  range: { from?: number; to?: number | null } = {},
+  transaction?: Transaction,
+): Promise<NonNullable<AnalysisInput['breaks']>> {
   const at: Record<symbol, number> = {};
   if (range.from !== undefined) at[Op.gt] = range.from;
   if (range.to !== undefined && range.to !== null) at[Op.lte] = range.to;
   const where = Object.getOwnPropertySymbols(at).length ? { seriesId, at } : { seriesId };
-  const marks = await Transition.findAll({ where, attributes: ['at', 'kind'], order: [['at', 'ASC'], ['id', 'ASC']] });
+  const marks = await Transition.findAll({ where, attributes: ['at', 'kind'], order: [['at', 'ASC'], ['id', 'ASC']], transaction });
   return marks.map((mark) => ({ time: Number(mark.at), kind: mark.kind }));
 }
 
