@@ -32,19 +32,19 @@ export async function run(): Promise<BenchRow[]> {
   const t0 = performance.now();
   let steps = 0;
   for (const indicator of ['ac1', 'variance'] as const) {
-    const r = await runBacktest({ ...big, intervalMs: DAY, settings, rule: rule(indicator), transitions: [{ at: big.time[45_000] }], every: 10 });
+    const r = await runBacktest({ ...big, intervalMs: DAY, settings, rule: rule(indicator), tippingPoints: [{ at: big.time[45_000] }], every: 10 });
     steps += r.steps;
   }
   const replay = (performance.now() - t0) / 1000;
 
   // the live default: local-linear point-in-time trend, with abrupt-shift detection over the record and its prefixes
   const tl = performance.now();
-  const ll = await runBacktest({ ...big, intervalMs: DAY, settings: analysisSettingsSchema.parse({ window: 0.5 }), rule: rule('ac1'), transitions: [{ at: big.time[45_000] }], every: 10 });
+  const ll = await runBacktest({ ...big, intervalMs: DAY, settings: analysisSettingsSchema.parse({ window: 0.5 }), rule: rule('ac1'), tippingPoints: [{ at: big.time[45_000] }], every: 10 });
   const localLinear = (performance.now() - tl) / 1000;
 
   const small = record(5_000, 2);
   const t1 = performance.now();
-  const cal = await runBacktest({ ...small, intervalMs: DAY, settings, rule: rule('ac1'), transitions: [], every: 1, calibration: { surrogates: 200, method: 'ar1' } });
+  const cal = await runBacktest({ ...small, intervalMs: DAY, settings, rule: rule('ac1'), tippingPoints: [], every: 1, calibration: { surrogates: 200, method: 'ar1' } });
   const calibration = (performance.now() - t1) / 1000;
 
   const live = record(2_000, 3);
@@ -54,7 +54,7 @@ export async function run(): Promise<BenchRow[]> {
     intervalMs: DAY,
     settings: { ...settings, surrogates: 99 },
     rule: rule('ac1', 0.05),
-    transitions: [],
+    tippingPoints: [],
     every: 1,
     calibration: { surrogates: 200, method: 'ar1' },
   });

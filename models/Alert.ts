@@ -29,7 +29,7 @@ export class Alert extends Model<InferAttributes<Alert>, InferCreationAttributes
   declare peakTau: number | null;
   declare dismissReason: string | null;
   declare closedAt: Date | null;
-  /** Bumped on every transition; a transition names the version it saw, so a stale one loses with 409. */
+  /** Bumped on every triage action; an action names the version it saw, so a stale one loses with 409. */
   declare version: CreationOptional<number>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;

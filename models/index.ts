@@ -18,7 +18,7 @@ import { Lease } from './Lease';
 import { SettingsChange } from './SettingsChange';
 import { SignInThrottle } from './SignInThrottle';
 import { UserToken } from './UserToken';
-import { Transition } from './Transition';
+import { Mark } from './Mark';
 import { BacktestJob } from './BacktestJob';
 import { AppState } from './AppState';
 
@@ -56,7 +56,7 @@ function associate(): void {
   Series.hasMany(SettingsChange, { foreignKey: 'seriesId', as: 'settingsHistory' });
   SettingsChange.belongsTo(User, { foreignKey: 'changedBy', as: 'author' });
   UserToken.belongsTo(User, { foreignKey: 'userId', as: 'user' });
-  Series.hasMany(Transition, { foreignKey: 'seriesId', as: 'transitions' });
+  Series.hasMany(Mark, { foreignKey: 'seriesId', as: 'marks' });
   BacktestJob.belongsTo(AlertRule, { foreignKey: 'ruleId', as: 'rule' });
   BacktestJob.belongsTo(Series, { foreignKey: 'seriesId', as: 'series' });
 }
@@ -64,7 +64,7 @@ function associate(): void {
 const MODELS = [
   User, Series, Observation, IngestRun, AnalysisSnapshot, AlertRule, RuleEvaluation, Alert, AlertEvent, Note,
   NoteRevision, IngestToken, MailMessage, AuditEntry, Watch, Lease, SettingsChange, SignInThrottle, UserToken,
-  Transition, BacktestJob, AppState,
+  Mark, BacktestJob, AppState,
 ];
 
 /** Binds the models to this process's one Sequelize instance (idempotent) and returns it once it is ready. */
@@ -81,7 +81,7 @@ export async function db(): Promise<Sequelize> {
 export {
   User, Series, Observation, IngestRun, AnalysisSnapshot, AlertRule, RuleEvaluation, Alert, AlertEvent, Note,
   NoteRevision, IngestToken, MailMessage, AuditEntry, Watch, Lease, SettingsChange, SignInThrottle, UserToken,
-  Transition, BacktestJob, AppState,
+  Mark, BacktestJob, AppState,
 };
 /**
  * `writeTransaction` of models/db.ts with the models bound first: a web worker's first request may be a write

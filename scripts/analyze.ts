@@ -4,7 +4,7 @@
  *     [--window EXTENT] [--span EXTENT] [--indicators a,b] [--surrogates N] [--surrogate-method ar1|phase] [--seed S]
  *     [--seasonal none|month|day-of-year] [--log] [--max-gap N] [--gap-policy error|latest-stretch]
  *     [--min-coverage F] [--sampling-change start-after|subsample] [--shift-detection on|off]
- *     [--moving-average-width N] [--transition TIME]... [--maintenance TIME]... [--sensitivity] [--summary]
+ *     [--moving-average-width N] [--tipping-point TIME]... [--maintenance TIME]... [--sensitivity] [--summary]
  *     [--time-format iso8601|date|epoch-seconds|epoch-milliseconds|decimal-year|age-years-bp|age-kyr-bp|number]
  *     [--time-zone IANA-ZONE]
  * An EXTENT is a fraction of the analysed stretch, "<n> points" or an ISO 8601 duration (P90D, P2Y, PT12H).
@@ -34,7 +34,9 @@ const OPTIONS = new Set([
   'max-gap', 'gap-policy', 'min-coverage', 'sampling-change', 'shift-detection', 'moving-average-width', 'time-format', 'time-zone',
 ]);
 /** Options that may be given more than once (each adds a break). */
-const REPEATED = new Set(['transition', 'maintenance']);
+const REPEATED = new Set(['tipping-point', 'maintenance']);
+/** Former option names still read for one release (`--transition` was renamed with the marks). */
+const RENAMED: Record<string, string> = { transition: 'tipping-point' };
 
 function parseArgs(argv: string[]): { file: string; opts: Record<string, string>; flags: Set<string>; repeated: Record<string, string[]> } {
   const opts: Record<string, string> = {};
@@ -44,7 +46,8 @@ function parseArgs(argv: string[]): { file: string; opts: Record<string, string>
   for (let i = 0; i < argv.length; i++) {
     const a = argv[i];
     if (a.startsWith('--')) {
-      const [key, inline] = a.slice(2).split(/=(.*)/s, 2);
+      const [given, inline] = a.slice(2).split(/=(.*)/s, 2);
+      const key = RENAMED[given] ?? given;
       if (FLAGS.has(key)) flags.add(key);
       else if (OPTIONS.has(key) || REPEATED.has(key)) {
         const v = inline ?? argv[++i];
@@ -199,7 +202,7 @@ function locate(err: AnalysisInputError, table: Table): string {
 }
 
 /** A break given on the command line, read as the time column is (format and zone). */
-function breakTimes(values: string[] | undefined, kind: 'transition' | 'maintenance', table: Table): { time: number; kind: 'transition' | 'maintenance' }[] {
+function breakTimes(values: string[] | undefined, kind: 'tipping-point' | 'maintenance', table: Table): { time: number; kind: 'tipping-point' | 'maintenance' }[] {
   return (values ?? []).map((v) => {
     const time = parseTime(v, table.format, table.zone);
     if (!time.ok) throw new CliInputError(`option --${kind}: ${time.reason} (read as the time column, ${table.format})`);
@@ -246,7 +249,7 @@ async function main(): Promise<number> {
     file = args.file;
     const settings = settingsFrom(args.opts, args.flags);
     table = await readTable(args.file, args.opts);
-    const breaks = [...breakTimes(args.repeated.transition, 'transition', table), ...breakTimes(args.repeated.maintenance, 'maintenance', table)];
+    const breaks = [...breakTimes(args.repeated['tipping-point'], 'tipping-point', table), ...breakTimes(args.repeated.maintenance, 'maintenance', table)];
     const result = await runAnalysis({ time: table.time, value: table.value, timeKind: table.numericTime ? 'numeric' : 'utc-ms', breaks }, settings);
     process.stdout.write(`${JSON.stringify(toJson(result, args.flags.has('summary'), table.numericTime))}\n`);
     return 0;

@@ -31,8 +31,8 @@ export function AlertActions({ alertId, version, actions, users }: { alertId: nu
   const [reason, setReason] = useState('');
   const [note, setNote] = useState('');
   const [assignee, setAssignee] = useState('');
-  const transition = useMutation({
-    mutationFn: (body: Record<string, unknown>) => api(`/api/alerts/${alertId}/transitions`, { method: 'POST', body: { ...body, version } }),
+  const triage = useMutation({
+    mutationFn: (body: Record<string, unknown>) => api(`/api/alerts/${alertId}/actions`, { method: 'POST', body: { ...body, version } }),
     onSuccess: () => {
       setDismissing(false);
       setNote('');
@@ -48,8 +48,8 @@ export function AlertActions({ alertId, version, actions, users }: { alertId: nu
     <div className="space-y-3" data-testid="alert-actions">
       <div className="flex flex-wrap gap-2">
         {visible.map((action) => (
-          <Button key={action} disabled={transition.isPending} variant={action === 'dismiss' || action === 'reopen' ? 'secondary' : 'primary'}
-            onClick={() => (action === 'dismiss' ? setDismissing(true) : transition.mutate({ action }))}>
+          <Button key={action} disabled={triage.isPending} variant={action === 'dismiss' || action === 'reopen' ? 'secondary' : 'primary'}
+            onClick={() => (action === 'dismiss' ? setDismissing(true) : triage.mutate({ action }))}>
             {LABELS[action]}
           </Button>
         ))}
@@ -57,7 +57,7 @@ export function AlertActions({ alertId, version, actions, users }: { alertId: nu
       {actions.includes('assign') && users ? (
         <form className="flex flex-wrap items-end gap-2" onSubmit={(e) => {
           e.preventDefault();
-          if (assignee) transition.mutate({ action: 'assign', assignee: Number(assignee) });
+          if (assignee) triage.mutate({ action: 'assign', assignee: Number(assignee) });
         }}>
           <Field label="Assign to" tone="filter">
             <select value={assignee} onChange={(e) => setAssignee(e.target.value)} className={CONTROL}>
@@ -71,7 +71,7 @@ export function AlertActions({ alertId, version, actions, users }: { alertId: nu
       {dismissing ? (
         <form className="space-y-2 rounded border border-rule p-3" onSubmit={(e) => {
           e.preventDefault();
-          transition.mutate({ action: 'dismiss', reason, note: note.trim() || undefined });
+          triage.mutate({ action: 'dismiss', reason, note: note.trim() || undefined });
         }}>
           <Field label="Why is it set aside?">
             <select required value={reason} onChange={(e) => setReason(e.target.value)} className={`${CONTROL} w-full`}>
@@ -88,11 +88,11 @@ export function AlertActions({ alertId, version, actions, users }: { alertId: nu
           </div>
         </form>
       ) : null}
-      {transition.isError ? (
+      {triage.isError ? (
         <ErrorNote>
-          {transition.error instanceof ApiError && transition.error.status === 409
+          {triage.error instanceof ApiError && triage.error.status === 409
             ? 'A colleague changed this alert meanwhile; the page now shows its current state.'
-            : transition.error.message}
+            : triage.error.message}
         </ErrorNote>
       ) : null}
     </div>

@@ -12,7 +12,7 @@ import type { RuleRecord } from '@/lib/alerts/rules';
 import { BacktestForm } from './BacktestForm';
 import { BacktestProgress } from './BacktestProgress';
 import { BacktestResults } from './BacktestResults';
-import { TransitionList } from './TransitionList';
+import { MarkList } from '@/components/marks/MarkList';
 
 type JobWithResult = BacktestJobRecord & { result?: BacktestResult | null };
 
@@ -46,10 +46,10 @@ export function BacktestPanel({ slug, timeZone, canRun }: { slug: string; timeZo
     <Panel title="Backtest" id="backtest">
       <p className="mb-3 max-w-3xl text-sm text-ink-soft">
         Replays a rule on this record as if the data had arrived point by point, and counts how early it would have warned
-        before each marked transition and how often it would have raised an alarm with no transition near. A backtest is
+        before each marked tipping point and how often it would have raised an alarm with no tipping point near. A backtest is
         evidence of past performance, not a guarantee.
       </p>
-      <TransitionList slug={slug} timeZone={timeZone} canEdit={canRun} />
+      <MarkList slug={slug} timeZone={timeZone} canEdit={canRun} />
       {canRun ? <BacktestForm slug={slug} rules={rules.data?.items} onStarted={setSelected} /> : null}
       {rules.isLoading ? <Loading label="Loading rules…" /> : rules.error ? <ErrorNote error={rules.error} /> : !rules.data?.items.length ? <Empty>This series has no rules to backtest yet.</Empty> : null}
 

@@ -11,7 +11,7 @@ import { directionWord, leadText, yearsText } from './wording';
 
 /**
  * A finished backtest: what was replayed and judged, false alarms (and their calibration on surrogates), lead
- * times before each marked transition, the evidence over replay time, the ROC of the simulated approaches and the
+ * times before each marked tipping point, the evidence over replay time, the ROC of the simulated approaches and the
  * alarm onsets. The standing caution is the page's; the method text says how it was computed.
  */
 export function BacktestResults({ result, timeZone, slug, ruleId, jobId, currentThreshold, canSave }: {
@@ -30,7 +30,7 @@ export function BacktestResults({ result, timeZone, slug, ruleId, jobId, current
     const tau = result.evidence.tau[i];
     return { t, tau: tau === null ? null : orientedTau(tau, direction), p: result.evidence.p[i], threshold: result.threshold };
   });
-  const marks = result.transitions.map((t) => ({ at: t.at, note: t.note || 'marked transition' }));
+  const marks = result.tippingPoints.map((t) => ({ at: t.at, note: t.note || 'marked tipping point' }));
   const cal = result.calibration;
   const judged = result.judged;
   return (
@@ -43,7 +43,7 @@ export function BacktestResults({ result, timeZone, slug, ruleId, jobId, current
         <dt className="text-ink-soft">τ read</dt>
         <dd data-testid="backtest-direction">{word} (threshold τ ≥ {formatTau(result.threshold)} in that direction)</dd>
         <dt className="text-ink-soft">Warning horizon</dt>
-        <dd className="num" data-testid="backtest-horizon">{result.horizonMs !== undefined ? leadText(result.horizonMs) : 'since the previous transition'} before a transition</dd>
+        <dd className="num" data-testid="backtest-horizon">{result.horizonMs !== undefined ? leadText(result.horizonMs) : 'since the previous tipping point'} before a tipping point</dd>
         {judged ? (
           <>
             <dt className="text-ink-soft">Judged time</dt>
@@ -78,7 +78,7 @@ export function BacktestResults({ result, timeZone, slug, ruleId, jobId, current
               {result.falseAlarms.perYear !== null && result.falseAlarms.interval ? `, 95 % interval ${result.falseAlarms.interval[0].toFixed(2)}–${result.falseAlarms.interval[1].toFixed(2)})` : result.falseAlarms.perYear !== null ? ')' : ''}
             </>
           ) : (
-            'none could count: every judged instant lies within the horizon before a marked transition or within one window after it'
+            'none could count: every judged instant lies within the horizon before a marked tipping point or within one window after it'
           )}
         </dd>
         {cal ? (
@@ -103,13 +103,13 @@ export function BacktestResults({ result, timeZone, slug, ruleId, jobId, current
       </dl>
 
       <DataTable caption="Lead times" showCaption frame="plain"
-        columns={['Transition', 'First warning', 'Lead time', `Highest τ threshold that warns (${word})`]}>
-        {result.transitions.length === 0 ? (
+        columns={['Tipping point', 'First warning', 'Lead time', `Highest τ threshold that warns (${word})`]}>
+        {result.tippingPoints.length === 0 ? (
           <tr>
-            <td colSpan={4} className={`${CELL} text-ink-soft`}>No transitions are marked on this series; every alarm counts as false.</td>
+            <td colSpan={4} className={`${CELL} text-ink-soft`}>No tipping points are marked on this series; every alarm counts as false.</td>
           </tr>
         ) : (
-          result.transitions.map((t) => (
+          result.tippingPoints.map((t) => (
             <tr key={`${t.at}`} className="align-top">
               <td className={CELL}>{formatLocal(t.at, timeZone)}{t.note ? <span className="block text-xs text-ink-soft">{t.note}</span> : null}</td>
               <td className={`${CELL} whitespace-nowrap`}>{t.firstWarningAt !== null ? formatLocal(t.firstWarningAt, timeZone) : '–'}</td>
@@ -132,12 +132,12 @@ export function BacktestResults({ result, timeZone, slug, ruleId, jobId, current
             { key: 'threshold', label: 'threshold', color: 'watch', dashed: true, width: 1 },
           ]}
           timeZone={timeZone}
-          transitions={marks}
+          marks={marks}
           zeroLine
         />
       </ChartFrame>
       <ChartFrame title="Kendall p over replay time" fileName="backtest-p" legend="descriptive only: it assumes independent values, which overlapping windows are not, so no rule is judged on it">
-        <TimeChart rows={rows} lines={[{ key: 'p', label: 'p', color: 'ink-soft' }]} timeZone={timeZone} transitions={marks} height={160} />
+        <TimeChart rows={rows} lines={[{ key: 'p', label: 'p', color: 'ink-soft' }]} timeZone={timeZone} marks={marks} height={160} />
       </ChartFrame>
 
       {cal ? (
@@ -152,7 +152,7 @@ export function BacktestResults({ result, timeZone, slug, ruleId, jobId, current
             {result.alarms.map((a) => (
               <li key={a.time} className="num">
                 {formatLocal(a.time, timeZone)} · τ {formatTau(a.tau)} ({word}) · surrogate p {formatP(a.surrogateP)} ·{' '}
-                {a.kind === 'warning' ? 'warning within the horizon before a transition' : a.kind === 'settling' ? 'just after a transition' : 'false alarm'}
+                {a.kind === 'warning' ? 'warning within the horizon before a tipping point' : a.kind === 'settling' ? 'just after a tipping point' : 'false alarm'}
               </li>
             ))}
           </ul>

@@ -43,7 +43,7 @@ export function BacktestRoc({ calibration: cal, word, initialThreshold, slug, ru
         title="Hit rate against false-alarm rate"
         fileName="backtest-roc"
         testId="backtest-roc"
-        legend={`each point is one threshold on τ ${word}; hit rate: share of simulated approaches to a fold (fitted to the record before the first transition) warned of within the horizon; false-alarm rate: share of simulated records without one that alarm in the same stretch`}
+        legend={`each point is one threshold on τ ${word}; hit rate: share of simulated approaches to a fold (fitted to the record before the first tipping point) warned of within the horizon; false-alarm rate: share of simulated records without one that alarm in the same stretch`}
       >
         <ResponsiveContainer width="100%" height={260}>
           <LineChart data={cal.roc.filter((p) => p.hitRate !== null).map((p) => ({ ...p }))} margin={{ top: 8, right: 16, bottom: 16, left: 8 }}>

@@ -24,8 +24,8 @@ export interface TimeChartProps {
   height?: number;
   /** the span one rolling window covers, drawn as a band ending at the last point */
   windowBand?: { from: number; to: number } | null;
-  /** marks on the record: known transitions, and maintenance breaks (`kind: 'maintenance'`, drawn apart) */
-  transitions?: { at: number; note: string; kind?: 'transition' | 'maintenance' }[];
+  /** marks on the record: marked tipping points, and maintenance breaks (`kind: 'maintenance'`, drawn apart) */
+  marks?: { at: number; note: string; kind?: 'tipping-point' | 'maintenance' }[];
   /**
    * detected abrupt shifts of level, each at the first instant of the new level; drawn where they fall on the
    * chart's span (the latest one opens the analysed stretch), so earlier ones do not stretch the time axis
@@ -73,11 +73,11 @@ function MarkText({ placed, colour, atRightEdge = false, viewBox }: {
 
 /**
  * The one time-axis chart of the product: raw series with trend, residuals and each indicator's rolling curve.
- * It draws what lib/analysis/view.ts computed and nothing else. Labels of marks (transitions, maintenance breaks,
+ * It draws what lib/analysis/view.ts computed and nothing else. Labels of marks (tipping points, maintenance breaks,
  * shifts, the stretch start, one window) are laid out by `placeMarkLabels` so none overlap; those that do not fit
  * on the plot are listed under it.
  */
-export function TimeChart({ rows, lines, timeZone, unit = '', height = 220, windowBand, transitions = [], shifts = [], stretchStart = null, zeroLine }: TimeChartProps) {
+export function TimeChart({ rows, lines, timeZone, unit = '', height = 220, windowBand, marks = [], shifts = [], stretchStart = null, zeroLine }: TimeChartProps) {
   const colours = useChartPalette();
   const [width, setWidth] = useState(0);
   const first = rows[0]?.t ?? null;
@@ -93,21 +93,21 @@ export function TimeChart({ rows, lines, timeZone, unit = '', height = 220, wind
   // A handful of marks: laid out afresh on every render, after the container has measured itself.
   const plotWidth = width - MARGIN.left - MARGIN.right - Y_AXIS_WIDTH;
   const px = (t: number) => (hi > lo ? ((t - lo) / (hi - lo)) * plotWidth : 0);
-  const marks: (MarkLabel & { at: number })[] = [];
-  if (windowBand) marks.push({ id: 'window', at: windowBand.to, x: px(windowBand.to), text: 'one window', side: 'before' });
-  for (const tr of transitions) {
+  const markLabels: (MarkLabel & { at: number })[] = [];
+  if (windowBand) markLabels.push({ id: 'window', at: windowBand.to, x: px(windowBand.to), text: 'one window', side: 'before' });
+  for (const tr of marks) {
     if (!inside(tr.at)) continue;
-    marks.push(tr.kind === 'maintenance'
+    markLabels.push(tr.kind === 'maintenance'
       ? { id: `m-${tr.at}`, at: tr.at, x: px(tr.at), text: `⚙ ${tr.note || 'maintenance break'}` }
-      : { id: `t-${tr.at}`, at: tr.at, x: px(tr.at), text: `◆ ${tr.note || 'known transition'}` });
+      : { id: `t-${tr.at}`, at: tr.at, x: px(tr.at), text: `◆ ${tr.note || 'marked tipping point'}` });
   }
-  if (stretchStart?.label) marks.push({ id: 'stretch', at: stretchStart.at, x: px(stretchStart.at), text: `▸ ${stretchStart.label}` });
-  for (const shift of shifts) if (inside(shift.time)) marks.push({ id: `s-${shift.time}`, at: shift.time, x: px(shift.time), text: '⇵ abrupt shift', side: 'before' });
+  if (stretchStart?.label) markLabels.push({ id: 'stretch', at: stretchStart.at, x: px(stretchStart.at), text: `▸ ${stretchStart.label}` });
+  for (const shift of shifts) if (inside(shift.time)) markLabels.push({ id: `s-${shift.time}`, at: shift.time, x: px(shift.time), text: '⇵ abrupt shift', side: 'before' });
   const layout = plotWidth > 0
-    ? placeMarkLabels(marks, { width: plotWidth, charWidth: LABEL_CHAR_WIDTH, gap: LABEL_GAP, maxRows: height < 200 ? 2 : 3 })
+    ? placeMarkLabels(markLabels, { width: plotWidth, charWidth: LABEL_CHAR_WIDTH, gap: LABEL_GAP, maxRows: height < 200 ? 2 : 3 })
     : { placed: [], overflow: [], rows: 0 };
   const placedById = new Map(layout.placed.map((p) => [p.id, p]));
-  const atOf = new Map(marks.map((m) => [m.id, m.at]));
+  const atOf = new Map(markLabels.map((m) => [m.id, m.at]));
   const labelFor = (id: string, colour: string, atRightEdge = false) => {
     const placed = placedById.get(id);
     return placed ? <MarkText placed={placed} colour={colour} atRightEdge={atRightEdge} /> : undefined;
@@ -134,7 +134,7 @@ export function TimeChart({ rows, lines, timeZone, unit = '', height = 220, wind
               label={labelFor('window', colours['tide-dark'], true)} ifOverflow="extendDomain" />
           ) : null}
           {zeroLine ? <ReferenceLine y={0} stroke={colours['ink-faint']} strokeDasharray="4 2" /> : null}
-          {transitions.map((tr) =>
+          {marks.map((tr) =>
             tr.kind === 'maintenance' ? (
               <ReferenceLine key={`m-${tr.at}`} x={tr.at} stroke={colours['ink-faint']} strokeWidth={1.5} strokeDasharray="1 3"
                 label={labelFor(`m-${tr.at}`, colours['ink-soft'])} />

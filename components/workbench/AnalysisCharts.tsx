@@ -32,13 +32,13 @@ function trendLegend(view: AnalysisView, name: string): string {
 
 /**
  * The evidence charts of one analysis: raw series with trend, residuals, and every indicator's rolling curve,
- * each with the span of one rolling window drawn at the end, the known transitions and detected abrupt shifts
+ * each with the span of one rolling window drawn at the end, the marked tipping points and detected abrupt shifts
  * marked, and a line where the analysed stretch starts (labelled with its reason on the record chart).
  */
-export function AnalysisCharts({ view, series, transitions = [], idPrefix = '', compact = false }: {
+export function AnalysisCharts({ view, series, marks = [], idPrefix = '', compact = false }: {
   view: AnalysisView;
   series: ChartSeries;
-  transitions?: { at: number; note: string; kind?: 'transition' | 'maintenance' }[];
+  marks?: { at: number; note: string; kind?: 'tipping-point' | 'maintenance' }[];
   idPrefix?: string;
   /** fewer, shorter charts (report, alert evidence) */
   compact?: boolean;
@@ -62,19 +62,19 @@ export function AnalysisCharts({ view, series, transitions = [], idPrefix = '', 
     <div className="space-y-3">
       <ChartFrame title={`${series.name}: record and trend`} fileName={`${base}-record`} testId="chart-record"
         legend={`${view.n} points analysed${view.stretch ? `, ${stretchReason(view.stretch.startsAfter)}` : ''} · detrending: ${view.settings.detrend}${shiftNote}`}>
-        <TimeChart rows={rows} timeZone={series.timeZone} unit={series.unit} transitions={transitions} shifts={shifts} stretchStart={stretchLabelled} height={compact ? 170 : 220}
+        <TimeChart rows={rows} timeZone={series.timeZone} unit={series.unit} marks={marks} shifts={shifts} stretchStart={stretchLabelled} height={compact ? 170 : 220}
           lines={[{ key: 'value', label: `value${series.unit ? ` (${series.unit})` : ''}`, color: 'ink-soft', width: 1 }, { key: 'trend', label: 'trend', color: 'tide', width: 2.5 }]} />
       </ChartFrame>
       {compact ? null : (
       <ChartFrame title="Residuals (value − trend)" fileName={`${base}-residuals`} testId="chart-residuals">
-        <TimeChart rows={rows} timeZone={series.timeZone} unit={series.unit} transitions={transitions} shifts={shifts} stretchStart={stretchPlain} zeroLine height={160}
+        <TimeChart rows={rows} timeZone={series.timeZone} unit={series.unit} marks={marks} shifts={shifts} stretchStart={stretchPlain} zeroLine height={160}
           lines={[{ key: 'residual', label: 'residual', color: 'ink-faint', width: 1 }]} />
       </ChartFrame>
       )}
       {view.indicators.map((name) => (
         <ChartFrame key={name} title={`${indicatorLabel(name, 'title')} in a rolling window`} fileName={`${base}-${name}`} testId={`chart-${name}`}
           legend={<span data-testid={`trend-${name}`}>{trendLegend(view, name)}</span>}>
-          <TimeChart rows={rows} timeZone={series.timeZone} transitions={transitions} shifts={shifts} stretchStart={stretchPlain} windowBand={windowBand} height={compact ? 150 : 180}
+          <TimeChart rows={rows} timeZone={series.timeZone} marks={marks} shifts={shifts} stretchStart={stretchPlain} windowBand={windowBand} height={compact ? 150 : 180}
             lines={[{ key: name, label: `${name} (window of ${view.windowPoints} points)`, color: 'tide', width: 2 }]} />
         </ChartFrame>
       ))}

@@ -37,7 +37,7 @@ export interface WorkbenchProps {
   initialView: AnalysisView | null;
   canTune: boolean;
   canSave: boolean;
-  transitions: { at: number; note: string; kind?: 'transition' | 'maintenance' }[];
+  marks: { at: number; note: string; kind?: 'tipping-point' | 'maintenance' }[];
   history: SettingsHistoryEntry[];
   quality: React.ReactNode;
 }
@@ -61,7 +61,7 @@ async function downloadPosted(slug: string, settings: AnalysisSettings, format: 
  * The series workbench: evidence charts of the saved analysis, and for analysts a tuning form whose changes are
  * recomputed (debounced) by the preview endpoint without saving; leads save the settings they settle on.
  */
-export function Workbench({ series, savedSettings, initialView, canTune, canSave, transitions, history, quality }: WorkbenchProps) {
+export function Workbench({ series, savedSettings, initialView, canTune, canSave, marks, history, quality }: WorkbenchProps) {
   const router = useRouter();
   const queryClient = useQueryClient();
   const [saved, setSaved] = useState(savedSettings);
@@ -109,7 +109,7 @@ export function Workbench({ series, savedSettings, initialView, canTune, canSave
         {preview.isError ? <ErrorNote error={preview.error}>These settings cannot be applied to this record.</ErrorNote> : null}
         {view ? (
           <>
-            <AnalysisCharts view={view} series={series} transitions={transitions} />
+            <AnalysisCharts view={view} series={series} marks={marks} />
             <Panel title="Significance against surrogate data" id="significance">
               {Object.keys(view.significance).length === 0 ? (
                 <Empty>No surrogates in these settings. Set a number of surrogate series to test each trend against chance.</Empty>

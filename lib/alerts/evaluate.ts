@@ -180,7 +180,7 @@ async function openAlert(rule: AlertRule, series: Series, snapshot: AnalysisSnap
 const SAME_SHIFT_INTERVALS = 10;
 
 /**
- * Whether a lead's mark already explains a shift: the mark (a transition, or a maintenance break such as a probe
+ * Whether a lead's mark already explains a shift: the mark (a tipping point, or a maintenance break such as a probe
  * cleaned or swapped) lies at most SAME_SHIFT_INTERVALS before it — as late as a shift is first located — or up to
  * one rolling window before it (the settling time after a mark that backtests also leave out). A shift a lead has
  * already marked is not news. O(marks).

@@ -1,20 +1,20 @@
 import 'server-only';
 import { Op } from 'sequelize';
-import { Transition, User, db, roleAtLeast } from '@/models';
+import { Mark, User, db, roleAtLeast } from '@/models';
 import { fetchAlertDetail } from '@/lib/alerts/queries';
 import { loadSnapshotView } from '@/lib/analysis/snapshot';
 import type { Actor } from '@/lib/auth/roles';
 
 /**
  * The alert page's data: the alert detail (`fetchAlertDetail`), its two snapshots as chart views, the series'
- * known transitions, and for triage roles the colleagues an alert can be handed to.
+ * marked tipping points, and for triage roles the colleagues an alert can be handed to.
  */
 export async function fetchAlertPage(id: number, actor: Actor) {
   const detail = await fetchAlertDetail(id, actor, 'views');
   await db();
   const { first, latest } = detail.evidence;
-  const [transitions, colleagues, firstView, latestView] = await Promise.all([
-    Transition.findAll({ where: { seriesId: detail.series.id }, order: [['at', 'ASC']] }),
+  const [marks, colleagues, firstView, latestView] = await Promise.all([
+    Mark.findAll({ where: { seriesId: detail.series.id }, order: [['at', 'ASC']] }),
     roleAtLeast(actor.role, 'analyst')
       ? User.findAll({ where: { active: true, role: { [Op.in]: ['analyst', 'lead', 'admin'] } }, attributes: ['id', 'name'], order: [['name', 'ASC']] })
       : Promise.resolve(null),
@@ -25,7 +25,7 @@ export async function fetchAlertPage(id: number, actor: Actor) {
     detail,
     firstView,
     latestView,
-    transitions: transitions.map((t) => ({ at: Number(t.at), note: t.note })),
+    marks: marks.map((t) => ({ at: Number(t.at), note: t.note })),
     colleagues: colleagues?.map((u) => ({ id: u.id, name: u.name })) ?? null,
   };
 }

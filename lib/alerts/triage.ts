@@ -7,10 +7,10 @@ import { sqlDate } from '@/lib/db/sql-date';
 import { enqueueMail } from '@/lib/mail/outbox';
 import { escalationMail, signOffMail } from '@/lib/mail/templates';
 import { watchersOf } from '@/lib/mail/watches';
-import { transitionSchema, type DismissReason, type TransitionInput, type TriageAction } from '@/lib/schemas/alert';
+import { triageActionSchema, type DismissReason, type TriageActionInput, type TriageAction } from '@/lib/schemas/alert';
 import { alertEvidence } from './evidence';
 
-interface TransitionRule {
+interface TriagePolicyEntry {
   /** The states the action applies to, each with the lowest role allowed to take it from there. */
   from: Partial<Record<AlertState, Role>>;
   to: (alert: Pick<Alert, 'state' | 'assigneeId'>) => AlertState;
@@ -21,7 +21,7 @@ interface TransitionRule {
  * decide on what was escalated to them (dismissing an escalated alert is a lead's call). Assigning a new alert
  * also takes it out of the unclaimed pile (→ acknowledged).
  */
-export const TRANSITIONS: Record<TriageAction, TransitionRule> = {
+export const TRIAGE_POLICY: Record<TriageAction, TriagePolicyEntry> = {
   acknowledge: { from: { new: 'analyst' }, to: () => 'acknowledged' },
   assign: { from: { new: 'analyst', acknowledged: 'analyst', escalated: 'analyst' }, to: (a) => (a.state === 'new' ? 'acknowledged' : a.state) },
   escalate: { from: { new: 'analyst', acknowledged: 'analyst' }, to: () => 'escalated' },
@@ -32,13 +32,13 @@ export const TRANSITIONS: Record<TriageAction, TransitionRule> = {
 
 /** The actions `role` may take on an alert in `state` (for the buttons a screen shows). */
 export function allowedActions(state: AlertState, role: Role): TriageAction[] {
-  return (Object.keys(TRANSITIONS) as TriageAction[]).filter((action) => {
-    const minimum = TRANSITIONS[action].from[state];
+  return (Object.keys(TRIAGE_POLICY) as TriageAction[]).filter((action) => {
+    const minimum = TRIAGE_POLICY[action].from[state];
     return minimum !== undefined && roleAtLeast(role, minimum);
   });
 }
 
-export interface TransitionResult {
+export interface TriageResult {
   id: number;
   state: AlertState;
   version: number;
@@ -53,14 +53,14 @@ async function activeLeads(transaction: Transaction): Promise<User[]> {
 }
 
 /**
- * Applies one triage action in one IMMEDIATE transaction: checks the transition table for the alert's current
+ * Applies one triage action in one IMMEDIATE transaction: checks the triage policy for the alert's current
  * state and the actor's role, then writes with a compare-and-set on id + version + state. Of two concurrent
  * actions exactly one wins; the other finds the alert changed and gets 409. The timeline event, the audit entry
  * and any mail (escalation to leads, sign-off to watchers) are written in the same transaction.
  */
-export async function transitionAlert(alertId: number, input: TransitionInput, actor: Actor): Promise<TransitionResult> {
-  const command = transitionSchema.parse(input);
-  const rule = TRANSITIONS[command.action];
+export async function applyTriageAction(alertId: number, input: TriageActionInput, actor: Actor): Promise<TriageResult> {
+  const command = triageActionSchema.parse(input);
+  const rule = TRIAGE_POLICY[command.action];
   return writeTransaction(async (transaction) => {
     const alert = await Alert.findByPk(alertId, { transaction });
     if (!alert) throw new NotFoundError('Alert');
@@ -136,9 +136,9 @@ function pastTense(action: TriageAction): string {
 
 type Options = { version?: number; note?: string };
 
-export const acknowledgeAlert = (id: number, actor: Actor, options: Options = {}) => transitionAlert(id, { action: 'acknowledge', ...options }, actor);
-export const assignAlert = (id: number, assignee: number, actor: Actor, options: Options = {}) => transitionAlert(id, { action: 'assign', assignee, ...options }, actor);
-export const escalateAlert = (id: number, actor: Actor, options: Options = {}) => transitionAlert(id, { action: 'escalate', ...options }, actor);
-export const confirmAlert = (id: number, actor: Actor, options: Options = {}) => transitionAlert(id, { action: 'confirm', ...options }, actor);
-export const dismissAlert = (id: number, reason: DismissReason, actor: Actor, options: Options = {}) => transitionAlert(id, { action: 'dismiss', reason, ...options }, actor);
-export const reopenAlert = (id: number, actor: Actor, options: Options = {}) => transitionAlert(id, { action: 'reopen', ...options }, actor);
+export const acknowledgeAlert = (id: number, actor: Actor, options: Options = {}) => applyTriageAction(id, { action: 'acknowledge', ...options }, actor);
+export const assignAlert = (id: number, assignee: number, actor: Actor, options: Options = {}) => applyTriageAction(id, { action: 'assign', assignee, ...options }, actor);
+export const escalateAlert = (id: number, actor: Actor, options: Options = {}) => applyTriageAction(id, { action: 'escalate', ...options }, actor);
+export const confirmAlert = (id: number, actor: Actor, options: Options = {}) => applyTriageAction(id, { action: 'confirm', ...options }, actor);
+export const dismissAlert = (id: number, reason: DismissReason, actor: Actor, options: Options = {}) => applyTriageAction(id, { action: 'dismiss', reason, ...options }, actor);
+export const reopenAlert = (id: number, actor: Actor, options: Options = {}) => applyTriageAction(id, { action: 'reopen', ...options }, actor);

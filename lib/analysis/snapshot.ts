@@ -1,6 +1,6 @@
 import { Op, QueryTypes, type Transaction } from 'sequelize';
 import { sampleStandardDeviation } from 'simple-statistics';
-import { AnalysisSnapshot, Transition, WITHOUT_CHARTS, db, type Series } from '@/models';
+import { AnalysisSnapshot, Mark, WITHOUT_CHARTS, db, type Series } from '@/models';
 import { analysisSettingsSchema, type AnalysisSettings } from '@/lib/engine/settings';
 import { runAnalysis, summarizeAnalysis, type AnalysisInput, type AnalysisResult } from '@/lib/engine/analyze';
 import { extentPoints } from '@/lib/engine/extent';
@@ -38,7 +38,7 @@ export function snapshotSummary(result: AnalysisResult): Record<string, unknown>
 }
 
 /**
- * The marks of a series the live analysis starts after (known transitions and maintenance breaks), as the engine's
+ * The marks of a series the live analysis starts after (marked tipping points and maintenance breaks), as the engine's
  * `breaks`: only those after `from` (earlier ones lie before the data read, so the span cut already excludes them)
  * and at or before the last reading (a break noted ahead of its data waits for that data). Oldest first.
  */
@@ -51,7 +51,7 @@ export async function seriesBreaks(
   if (range.from !== undefined) at[Op.gt] = range.from;
   if (range.to !== undefined && range.to !== null) at[Op.lte] = range.to;
   const where = Object.getOwnPropertySymbols(at).length ? { seriesId, at } : { seriesId };
-  const marks = await Transition.findAll({ where, attributes: ['at', 'kind'], order: [['at', 'ASC'], ['id', 'ASC']], transaction });
+  const marks = await Mark.findAll({ where, attributes: ['at', 'kind'], order: [['at', 'ASC'], ['id', 'ASC']], transaction });
   return marks.map((mark) => ({ time: Number(mark.at), kind: mark.kind }));
 }
 
@@ -75,7 +75,7 @@ export async function spanReadRange(seriesId: number, settings: AnalysisSettings
  * error snapshot carries the engine's message (e.g. a gap longer than maxGap, a stretch since the last mark too
  * short for the window) so the series page can say why there is no fresh evidence. Only the trailing span the
  * settings ask for is read from the database, and the marks inside it go to the engine as breaks, so the analysis
- * judges only the stretch since the last marked transition or maintenance break (or detected shift).
+ * judges only the stretch since the last marked tipping point or maintenance break (or detected shift).
  */
 export async function refreshSeriesAnalysis(series: Series, options: { parallel?: boolean } = {}): Promise<AnalysisSnapshot> {
   await db();

@@ -9,7 +9,7 @@ export type ReplicateSource = { kind: 'surrogate'; job: SurrogateJob } | { kind:
 /** One batch of simulated records, as plain data so a worker thread can take it. */
 export interface CalibrationTask {
   source: ReplicateSource;
-  /** two-sided trend of the pre-transition record; each replicate record is trend + simulated residual */
+  /** two-sided trend of the record before the first tipping point; each replicate record is trend + simulated residual */
   trend: Float64Array;
   time: Float64Array;
   /** observed mask and flat runs of the record copied, so replicates are judged on the same windows */

@@ -8,7 +8,7 @@ import { ConflictError, NotFoundError, UnprocessableError } from '@/lib/http/err
 import type { BacktestRequest } from '@/lib/schemas/backtest';
 import { findSeriesBySlug } from '@/lib/series/registry';
 import { CancelledError } from './pool';
-import { listTransitions } from './marks';
+import { listMarks } from '@/lib/marks/read';
 import { ruleDirectionOf, type ReplayRule } from './replay';
 import { CALIBRATION_WORK_BUDGET, runBacktest, type BacktestResult } from './run';
 
@@ -16,7 +16,7 @@ const DAY_MS = 86_400_000;
 /** How often a running job writes its progress and looks for a cancel request. */
 const PROGRESS_EVERY_MS = 500;
 /**
- * Live defaults of a rule's own calibration: 200 AR(1) surrogates of the pre-transition record, each judged
+ * Live defaults of a rule's own calibration: 200 AR(1) surrogates of the record before the first tipping point, each judged
  * every point (every new point may start an analysis cycle, the most checks a live series can see), and as many
  * simulated approaches. 200 replicates put a binomial standard error of at most 3.5 points on the share of
  * replicates that alarm; our own choice of cost against precision. It runs in the background, so its surrogate
@@ -186,9 +186,9 @@ export async function runNextBacktest(options: { threads?: number } = {}): Promi
     const replayRule = replayRuleOf(rule);
     const settings = analysisSettingsSchema.parse(series.settings);
     const { time, value } = await loadObservations(series.id);
-    // Both kinds of mark restart the replayed stretch; only transitions are warned of (and scored).
-    const marks = await listTransitions(series.id, ['transition', 'maintenance']);
-    const transitions = marks.filter((m) => m.kind !== 'maintenance');
+    // Both kinds of mark restart the replayed stretch; only tipping points are warned of (and scored).
+    const marks = await listMarks(series.id, ['tipping-point', 'maintenance']);
+    const tippingPoints = marks.filter((m) => m.kind !== 'maintenance');
     const result = await runBacktest(
       {
         time,
@@ -196,7 +196,7 @@ export async function runNextBacktest(options: { threads?: number } = {}): Promi
         intervalMs: series.intervalMs === null ? undefined : Number(series.intervalMs),
         settings,
         rule: replayRule,
-        transitions: transitions.map((t) => ({ id: t.id, at: t.at, note: t.note })),
+        tippingPoints: tippingPoints.map((t) => ({ id: t.id, at: t.at, note: t.note })),
         breaks: marks.filter((m) => m.kind === 'maintenance').map((m) => ({ at: m.at })),
         every: params.every ?? 1,
         horizonMs: params.horizonDays ? params.horizonDays * DAY_MS : null,
@@ -236,7 +236,7 @@ export async function requeueAbandonedBacktests(): Promise<number> {
 
 /**
  * Queues the calibration of a rule on its own series with the live defaults (RULE_CALIBRATION): the full live
- * procedure replayed on surrogates of the series' pre-transition record, giving false alarms per year of
+ * procedure replayed on surrogates of the series' record before the first tipping point, giving false alarms per year of
  * judged time. Calibrations of the same rule still waiting in the queue are cancelled (only the newest rule
  * matters). Null for a default rule (no series of its own). Called by the rule routes on create and update.
  */

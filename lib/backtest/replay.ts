@@ -418,7 +418,7 @@ export function alarmOnsets(ev: Evidence, rule: ReplayRule, threshold: number, c
   let inFlatRun = 0;
   for (let s = 0; s < ev.tau.length; s++) {
     if (ev.from && s > 0 && ev.from[s] !== ev.from[s - 1]) {
-      // a new stretch (after a marked transition) starts afresh, as the live analysis does
+      // a new stretch (after a marked tipping point) starts afresh, as the live analysis does
       streak = 0;
       open = false;
     }
@@ -567,7 +567,7 @@ function evidenceBetween(ev: Evidence, lo: number, hi: number): Evidence {
 
 /**
  * A record replayed as the live analysis sees it across breaks: the analysed stretch restarts at each cut (the
- * first point at or after a marked transition or maintenance break, or the first point of a detected shift's
+ * first point at or after a marked tipping point or maintenance break, or the first point of a detected shift's
  * new level; a plain number is known from itself). An instant k is judged on the stretch from the latest cut
  * known by then (knownFrom ≤ k), so every stretch is replayed on its own (replayRecord) up to the instant a later
  * cut becomes known, and its evidence carries `from`, the stretch's first record index. `residuals` maps each

@@ -45,32 +45,32 @@ export interface BacktestInput {
   timeKind?: TimeKind;
   settings: AnalysisSettings;
   rule: ReplayRule;
-  /** known transitions: the stretch restarts at each, and alarms are scored against them */
-  transitions: { id?: number; at: number; note?: string }[];
-  /** maintenance breaks: the stretch restarts at each, as in the live analysis, but they are no transitions to warn of */
+  /** marked tipping points: the stretch restarts at each, and alarms are scored against them */
+  tippingPoints: { id?: number; at: number; note?: string }[];
+  /** maintenance breaks: the stretch restarts at each, as in the live analysis, but they are no tipping points to warn of */
   breaks?: { at: number }[];
   /** points per analysis cycle: the rule is judged every this many new points (1 = each point) */
   every: number;
-  /** an alarm counts as a warning of a transition only this long before it; null/undefined: one window */
+  /** an alarm counts as a warning of a tipping point only this long before it; null/undefined: one window */
   horizonMs?: number | null;
   /**
-   * surrogates: replicates of the pre-transition record for the calibrated false-alarm rate; approaches: simulated
+   * surrogates: replicates of the record before the first tipping point for the calibrated false-alarm rate; approaches: simulated
    * records of each kind (null and fold approach) for the ROC (default: as many as surrogates); budget: surrogate
    * work of the replicates' surrogate-p checks (default CALIBRATION_WORK_BUDGET)
    */
   calibration?: { surrogates: number; method: SurrogateMethod; approaches?: number; budget?: number } | null;
 }
 
-export interface TransitionOutcome {
+export interface TippingPointOutcome {
   id: number | null;
   at: number;
   note: string;
-  /** first alarm onset in the warning stretch before the transition (within the horizon) */
+  /** first alarm onset in the warning stretch before the tipping point (within the horizon) */
   firstWarningAt: number | null;
   /** at most the horizon by construction */
   leadTimeMs: number | null;
-  /** the rule's alarm was open at the last judged instant before the transition */
-  openAtTransition: boolean;
+  /** the rule's alarm was open at the last judged instant before the tipping point */
+  openAtTippingPoint: boolean;
   /** largest threshold on tau (in the rule's direction) at which the rule would have warned within the horizon (null: at none) */
   firingTau: number | null;
   judgedSteps: number;
@@ -84,9 +84,9 @@ export interface AlarmRecord {
   /** Kendall p (descriptive only: it assumes independent values) */
   p: number;
   surrogateP: number | null;
-  /** warning (within the horizon before a transition), settling (within one window after one) or false */
+  /** warning (within the horizon before a tipping point), settling (within one window after one) or false */
   kind: 'warning' | 'settling' | 'false';
-  transitionAt: number | null;
+  tippingPointAt: number | null;
 }
 
 export interface RocPoint {
@@ -109,11 +109,11 @@ export interface ModelReport {
 
 export interface CalibrationResult {
   method: SurrogateMethod;
-  /** surrogate replicates of the pre-transition record */
+  /** surrogate replicates of the record before the first tipping point */
   surrogates: number;
   /** surrogates behind each surrogate-p check (the series' setting, 99 when it runs none) */
   surrogatesPerCheck: number;
-  /** points of the record before the first transition (the whole record if none is marked) that the replicates copy */
+  /** points of the record before the first tipping point (the whole record if none is marked) that the replicates copy */
   points: number;
   /** share of replicates with at least one alarm, with a 95 % Wilson interval */
   falseAlarmRate: number;
@@ -142,7 +142,7 @@ export interface Restart {
   /** first instant of the new stretch, and its index on the prepared record */
   time: number;
   index: number;
-  reason: 'transition' | 'maintenance' | 'shift';
+  reason: 'tipping-point' | 'maintenance' | 'shift';
   /** first instant (and its index) judged on the new stretch's terms: a mark's own, or the first cycle whose record shows the shift */
   knownAt: number;
   knownFromIndex: number;
@@ -150,7 +150,7 @@ export interface Restart {
 
 export interface BacktestResult {
   points: number;
-  /** where the replayed stretch restarts: marked transitions, maintenance breaks and detected abrupt shifts */
+  /** where the replayed stretch restarts: marked tipping points, maintenance breaks and detected abrupt shifts */
   restarts: Restart[];
   every: number;
   steps: number;
@@ -159,7 +159,7 @@ export interface BacktestResult {
   /** the way tau is read (rule direction; 'two-sided' for 'either') */
   direction: TrendDirection;
   horizonMs: number;
-  transitions: TransitionOutcome[];
+  tippingPoints: TippingPointOutcome[];
   alarms: AlarmRecord[];
   judged: {
     /** time covered by judged instants, years */
@@ -176,7 +176,7 @@ export interface BacktestResult {
     inFlatRun: number;
     minCoverage: number;
   };
-  /** false alarms per year of judged time that could host one (outside warning stretches and one window after a transition) */
+  /** false alarms per year of judged time that could host one (outside warning stretches and one window after a tipping point) */
   falseAlarms: { count: number; exposureYears: number; perYear: number | null; interval: [number, number] | null };
   evidence: { time: number[]; tau: (number | null)[]; p: (number | null)[]; level: (number | null)[] };
   surrogateChecks: number;
@@ -228,7 +228,7 @@ function stretches(steps: Int32Array, time: Float64Array): { from: number; to: n
 }
 
 const METHOD =
-  'Replay: the record is prepared as the live analysis prepares it; the window, bandwidth and span in points are fixed at what the settings give (fractions, points or ISO 8601 durations, read by the engine\u2019s own functions) for the trailing span, or the whole record when there is none; each point is detrended with the trend of the data available when it arrived (for local-linear and Gaussian detrending the fit of the record available then at its last point, so past residuals are never revised), the rolling indicator is updated in O(1) per point, and every cycle (every k points) the rule is judged as the live rule is: Kendall tau read in the rule\u2019s direction against the threshold, the level test, the surrogate p in the rule\u2019s direction (surrogates of the record available then), persistence and quiet period; the independence-based Kendall p is shown but is not a gate. After each marked transition, maintenance break and detected abrupt shift the replay starts afresh on the record since it, as the live analysis does; shifts are found by the engine\u2019s detector on the whole prepared record, and each counts from the first cycle whose record (its trailing span) shows it, at most a window and warm-up after it; a maintenance break is never scored as a transition. Instants whose newest window has fewer observed points than the coverage floor, lies inside a run of identical values (a stuck sensor), or whose surrogate check the cost bound did not allow, are reported as not judged. An alarm is a warning only within the horizon (default one window) before a marked transition; false alarms are counted per year of judged time outside warning stretches and one window after each transition. Calibration: surrogates of the pre-transition record, detrended stretch by stretch (trend added back), replayed with the full live procedure (restarting at its maintenance breaks and at shifts found in each replicate), each tested against surrogates of its own prefixes; false alarms per year of judged time with an exact Poisson (Garwood) interval. ROC: a constant-rate Ornstein\u2013Uhlenbeck (AR(1)) model and one whose restoring rate moves linearly in time (towards zero at a fold) are fitted by maximum likelihood to the detrended pre-transition record; replicates of each are replayed, and for each threshold the hit rate is the share of simulated approaches with an alarm within the horizon before their end, the false-alarm rate the share of null replicates with an alarm in the same stretch (after Boettiger & Hastings 2012, Proc. R. Soc. B 279, 4734).';
+  'Replay: the record is prepared as the live analysis prepares it; the window, bandwidth and span in points are fixed at what the settings give (fractions, points or ISO 8601 durations, read by the engine\u2019s own functions) for the trailing span, or the whole record when there is none; each point is detrended with the trend of the data available when it arrived (for local-linear and Gaussian detrending the fit of the record available then at its last point, so past residuals are never revised), the rolling indicator is updated in O(1) per point, and every cycle (every k points) the rule is judged as the live rule is: Kendall tau read in the rule\u2019s direction against the threshold, the level test, the surrogate p in the rule\u2019s direction (surrogates of the record available then), persistence and quiet period; the independence-based Kendall p is shown but is not a gate. After each marked tipping point, maintenance break and detected abrupt shift the replay starts afresh on the record since it, as the live analysis does; shifts are found by the engine\u2019s detector on the whole prepared record, and each counts from the first cycle whose record (its trailing span) shows it, at most a window and warm-up after it; a maintenance break is never scored as a tipping point. Instants whose newest window has fewer observed points than the coverage floor, lies inside a run of identical values (a stuck sensor), or whose surrogate check the cost bound did not allow, are reported as not judged. An alarm is a warning only within the horizon (default one window) before a marked tipping point; false alarms are counted per year of judged time outside warning stretches and one window after each tipping point. Calibration: surrogates of the record before the first tipping point, detrended stretch by stretch (trend added back), replayed with the full live procedure (restarting at its maintenance breaks and at shifts found in each replicate), each tested against surrogates of its own prefixes; false alarms per year of judged time with an exact Poisson (Garwood) interval. ROC: a constant-rate Ornstein\u2013Uhlenbeck (AR(1)) model and one whose restoring rate moves linearly in time (towards zero at a fold) are fitted by maximum likelihood to the detrended record before the first tipping point; replicates of each are replayed, and for each threshold the hit rate is the share of simulated approaches with an alarm within the horizon before their end, the false-alarm rate the share of null replicates with an alarm in the same stretch (after Boettiger & Hastings 2012, Proc. R. Soc. B 279, 4734).';
 
 /**
  * Trend and residual of a record detrended stretch by stretch between the cuts (the engine's detrend on each
@@ -270,23 +270,23 @@ export async function runBacktest(
     throw new AnalysisInputError(`the record has ${x.length} points; a replay with a ${g.w}-point window needs at least ${g.w + g.warmup + g.offset}`);
   }
   const quality: RecordQuality = { observed: prepared.observed, flat: prepared.flat };
-  const marks = [...input.transitions].sort((a, b) => a.at - b.at);
+  const marks = [...input.tippingPoints].sort((a, b) => a.at - b.at);
   const firstAtOrAfter = (at: number) => {
     let k = 0;
     while (k < time.length && time[k] < at) k++;
     return k;
   };
-  // The live analysis judges only the stretch since the latest transition, maintenance break or detected shift:
+  // The live analysis judges only the stretch since the latest tipping point, maintenance break or detected shift:
   // each stretch is replayed on its own.
-  const transitionCuts = marks.map((m) => firstAtOrAfter(m.at));
+  const tippingPointCuts = marks.map((m) => firstAtOrAfter(m.at));
   const maintenanceCuts = (input.breaks ?? []).map((b) => firstAtOrAfter(b.at));
-  const breakCuts = [...transitionCuts, ...maintenanceCuts];
+  const breakCuts = [...tippingPointCuts, ...maintenanceCuts];
   const shifts = shiftCuts(x, settings, g);
   const cuts = [...breakCuts, ...shifts];
   // where the replayed stretch restarts, and why (a mark names the reason before a shift at the same point, as in the engine)
   const restartAt = new Map<number, { reason: Restart['reason']; knownFrom: number }>();
   for (const c of shifts) if (c.index > 0) restartAt.set(c.index, { reason: 'shift', knownFrom: c.knownFrom });
-  for (const [list, reason] of [[maintenanceCuts, 'maintenance'], [transitionCuts, 'transition']] as const) {
+  for (const [list, reason] of [[maintenanceCuts, 'maintenance'], [tippingPointCuts, 'tipping-point']] as const) {
     for (const c of list) if (c > 0 && c < x.length) restartAt.set(c, { reason, knownFrom: c });
   }
   const restarts: Restart[] = [...restartAt]
@@ -301,7 +301,7 @@ export async function runBacktest(
 
   const settle = g.w * g.interval;
   const horizon = input.horizonMs ?? g.w * g.interval;
-  /** the warning stretch of transition j: [start_j, at_j) */
+  /** the warning stretch of tipping point j: [start_j, at_j) */
   const stretchStart = marks.map((m, j) => Math.max(j > 0 ? marks[j - 1].at + settle : Number.NEGATIVE_INFINITY, m.at - horizon));
   const classify = (t: number): { kind: AlarmRecord['kind']; j: number } => {
     for (let j = 0; j < marks.length; j++) {
@@ -313,7 +313,7 @@ export async function runBacktest(
 
   const alarms: AlarmRecord[] = onsets.map((o) => {
     const c = classify(o.time);
-    return { time: o.time, tau: o.tau, orientedTau: orientedTau(o.tau, direction), p: o.p, surrogateP: o.surrogateP, kind: c.kind, transitionAt: c.j >= 0 ? marks[c.j].at : null };
+    return { time: o.time, tau: o.tau, orientedTau: orientedTau(o.tau, direction), p: o.p, surrogateP: o.surrogateP, kind: c.kind, tippingPointAt: c.j >= 0 ? marks[c.j].at : null };
   });
 
   const spans = stepSpans(ev, g);
@@ -329,15 +329,15 @@ export async function runBacktest(
   const falseCount = alarms.filter((a) => a.kind === 'false').length;
   const exposureYears = exposureMs / YEAR_MS;
 
-  const transitions: TransitionOutcome[] = marks.map((m, j) => {
+  const tippingPoints: TippingPointOutcome[] = marks.map((m, j) => {
     let from = 0;
     while (from < ev.time.length && ev.time[from] < stretchStart[j]) from++;
     let to = from;
     while (to < ev.time.length && ev.time[to] < m.at) to++;
-    const first = alarms.find((a) => a.kind === 'warning' && a.transitionAt === m.at);
+    const first = alarms.find((a) => a.kind === 'warning' && a.tippingPointAt === m.at);
     let open = false;
     if (to > 0 && to - 1 >= from) {
-      // open at the last instant before the transition ⇔ the latest onset is not followed by a failing step
+      // open at the last instant before the tipping point ⇔ the latest onset is not followed by a failing step
       let s = to - 1;
       while (s >= 0 && basePasses(ev, s, rule, rule.minTau, direction)) s--;
       open = onsets.some((o) => o.step > s && o.step < to);
@@ -349,7 +349,7 @@ export async function runBacktest(
       note: m.note ?? '',
       firstWarningAt: first?.time ?? null,
       leadTimeMs: first ? m.at - first.time : null,
-      openAtTransition: open,
+      openAtTippingPoint: open,
       firingTau: finite(stat),
       judgedSteps: to - from,
     };
@@ -363,11 +363,11 @@ export async function runBacktest(
       while (nPre < x.length && time[nPre] < marks[0].at) nPre++;
     }
     if (nPre - g.offset < g.w + g.warmup) {
-      throw new AnalysisInputError(`only ${nPre} points precede the first transition; calibration needs at least ${g.w + g.warmup + g.offset}`);
+      throw new AnalysisInputError(`only ${nPre} points precede the first tipping point; calibration needs at least ${g.w + g.warmup + g.offset}`);
     }
     const pre = x.slice(0, nPre);
     const preTime = time.slice(0, nPre);
-    // Maintenance breaks and shifts inside the pre-transition record: detrended stretch by stretch, so a jump
+    // Maintenance breaks and shifts inside the record before the first tipping point: detrended stretch by stretch, so a jump
     // stays in the trend the replicates share and never inflates the residual their surrogates copy.
     const preBreaks = breakCuts.filter((c) => c > 0 && c < nPre);
     const d = detrendByStretch(pre, [...preBreaks, ...shifts.map((c) => c.index).filter((c) => c < nPre)], settings.detrend === 'difference' ? 'none' : settings.detrend, {
@@ -398,7 +398,7 @@ export async function runBacktest(
     const alarmsTotal = surrogateRuns.onsets.reduce((a, c) => a + c, 0);
     const judgedYears = surrogateRuns.judgedMs.reduce((a, c) => a + c, 0) / YEAR_MS;
 
-    // ROC from simulated approaches: the replicates end where the record's first transition is (or its end)
+    // ROC from simulated approaches: the replicates end where the record's first tipping point is (or its end)
     const end = marks.length > 0 ? marks[0].at : preTime[nPre - 1] + g.interval;
     const nullModel = fitRestoringModel(d.residual, { constant: true });
     const foldModel = fitRestoringModel(d.residual);
@@ -456,7 +456,7 @@ export async function runBacktest(
     threshold: rule.minTau,
     direction,
     horizonMs: horizon,
-    transitions,
+    tippingPoints,
     alarms,
     judged: {
       years: judgedMs / YEAR_MS,

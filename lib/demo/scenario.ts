@@ -55,14 +55,14 @@ export interface DemoRule {
 }
 
 /**
- * A mark on a record: a known transition (the fold of a forced run) or a maintenance break (a probe cleaned), with
+ * A mark on a record: a marked tipping point (the fold of a forced run) or a maintenance break (a probe cleaned), with
  * the sample where it lies and its instant (UTC ms) in the built record.
  */
-export interface DemoTransition {
+export interface DemoMark {
   index: number;
   at: number;
   note: string;
-  kind: 'transition' | 'maintenance';
+  kind: 'tipping-point' | 'maintenance';
 }
 
 export interface DemoSeries {
@@ -74,7 +74,7 @@ export interface DemoSeries {
   times: Float64Array;
   /** Values at those instants; NaN marks a missing sample (no observation is stored). */
   values: Float64Array;
-  transitions: DemoTransition[];
+  marks: DemoMark[];
   rules: DemoRule[];
 }
 
@@ -139,11 +139,11 @@ interface SeriesPlan {
   /** Values of the record (NaN = missing) and, for forced runs, the run itself. */
   generate: (start: number) => { values: Float64Array; run?: ForcedRun };
   /**
-   * For a run forced through its fold: the transition is marked at the fold instant of the deterministic
+   * For a run forced through its fold: the tipping point is marked at the fold instant of the deterministic
    * part (known exactly, whatever the noise did); `crossed` tells when the record has passed the unstable
    * branch, so the note can say how far the simulated jump lies from the fold.
    */
-  transition?: { crossed: (value: number) => boolean; note: (when: string) => string };
+  tippingPoint?: { crossed: (value: number) => boolean; note: (when: string) => string };
   /** A maintenance break marked on the record: the sample where it lies and its note. */
   maintenance?: { index: number; note: string };
 }
@@ -161,12 +161,12 @@ function toUnits(x: Float64Array, scale: number, decimals: number): Float64Array
 
 function foldMark(plan: SeriesPlan, run: ForcedRun, values: Float64Array): { index: number; note: string } {
   const index = Math.round(run.foldIndex);
-  const jump = values.findIndex(plan.transition!.crossed);
+  const jump = values.findIndex(plan.tippingPoint!.crossed);
   const steps = jump - index;
   const unit = plan.intervalMs === DAY_MS ? 'day' : 'sample';
   const plural = (k: number) => `${k} ${unit}${k === 1 ? '' : 's'}`;
   const when = jump < 0 ? 'only after the record ends' : steps === 0 ? 'at the fold instant' : steps > 0 ? `${plural(steps)} later` : `${plural(-steps)} earlier`;
-  return { index, note: plan.transition!.note(when) };
+  return { index, note: plan.tippingPoint!.note(when) };
 }
 
 const CESSI = { mu2: 6.2, p0: 0.6, sigma: 0.05, n: 4000, dt: 0.05, foldAt: 0.9 };
@@ -207,7 +207,7 @@ const PLANS: SeriesPlan[] = [
       const run = simulateCessi({ ...CESSI, rate, substeps: 10, seed: DEMO_SEED, stream: 1 });
       return { values: toUnits(run.values, 2.5, 4), run };
     },
-    transition: {
+    tippingPoint: {
       crossed: (v) => v > 2.5 * ((CESSI_FOLDS.rising.y + CESSI_FOLDS.falling.y) / 2),
       note: (when) =>
         `Freshwater forcing reaches the saddle-node fold of the deterministic model (p = ${CESSI_FOLDS.rising.p.toFixed(4)}, μ² = ${CESSI.mu2}); the simulated contrast crosses the unstable branch ${when}.`,
@@ -220,7 +220,7 @@ const PLANS: SeriesPlan[] = [
     unit: '°C',
     description:
       'Synthetic demo data: a stationary control, simulated as a Gaussian AR(1) process (Box & Jenkins) with a ' +
-      'seeded generator, hourly. Nothing approaches a transition here; an alert on it is a false alarm.',
+      'seeded generator, hourly. Nothing approaches a tipping point here; an alert on it is a false alarm.',
     model: 'stationary AR(1), φ = 0.6',
     timeZone: 'UTC',
     intervalMs: HOUR_MS,
@@ -250,7 +250,7 @@ const PLANS: SeriesPlan[] = [
       const run = simulateGrazing({ ...GRAZING, ...LAKE_STOCK, rate, substeps: 10, seed: DEMO_SEED, stream: 3 });
       return { values: toUnits(run.values, 12, 2), run };
     },
-    transition: {
+    tippingPoint: {
       crossed: (v) => v < 12 * ((GRAZING_FOLDS.collapse.x + GRAZING_FOLDS.recovery.x) / 2),
       note: (when) =>
         `Harvest rate reaches the fold of the deterministic model (c = ${GRAZING_FOLDS.collapse.c.toFixed(4)} with r = 1, K = 10, h = 1); the simulated stock falls below the unstable branch ${when}.`,
@@ -313,7 +313,7 @@ const PLANS: SeriesPlan[] = [
     description:
       'Synthetic demo data: standing biomass under steadily rising grazing pressure, simulated from May’s (1977) ' +
       'grazing model (Nature 269, 471–477) with environmental noise and a seeded generator. The grazing rate is ' +
-      'still just below the model’s fold at the end of the record: the transition has not happened yet.',
+      'still just below the model’s fold at the end of the record: the tipping point has not happened yet.',
     model: 'May (1977) grazing model, approaching its fold',
     timeZone: 'Europe/London',
     intervalMs: DAY_MS,
@@ -368,7 +368,7 @@ const PLANS: SeriesPlan[] = [
     unit: 'hPa',
     description:
       'Synthetic demo data: a stationary control, simulated as a Gaussian AR(1) process (Box & Jenkins) with a ' +
-      'seeded generator. Nothing approaches a transition here; an alert on it is a false alarm.',
+      'seeded generator. Nothing approaches a tipping point here; an alert on it is a false alarm.',
     model: 'stationary AR(1), φ = 0.3',
     timeZone: 'Europe/Helsinki',
     intervalMs: DAY_MS,
@@ -384,7 +384,7 @@ export const DEMO_SERIES_SLUGS: readonly string[] = PLANS.map((plan) => plan.slu
 
 /**
  * Builds the whole demo network with records ending at `demoRecordEnd(now)`: each series' create input,
- * sample instants and values, marked transitions and alert rules. Deterministic for a given end day.
+ * sample instants and values, marked tipping points and alert rules. Deterministic for a given end day.
  * Cost O(total samples × substeps), a few milliseconds.
  */
 export function buildDemoScenario(now: Date = new Date()): DemoSeries[] {
@@ -395,7 +395,7 @@ export function buildDemoScenario(now: Date = new Date()): DemoSeries[] {
     for (let i = 0; i < plan.n; i++) times[i] = start + i * plan.intervalMs;
     const { values, run } = plan.generate(start);
     const marks = [
-      ...(run && plan.transition ? [{ ...foldMark(plan, run, values), kind: 'transition' as const }] : []),
+      ...(run && plan.tippingPoint ? [{ ...foldMark(plan, run, values), kind: 'tipping-point' as const }] : []),
       ...(plan.maintenance ? [{ ...plan.maintenance, kind: 'maintenance' as const }] : []),
     ].sort((a, b) => a.index - b.index);
     return {
@@ -412,13 +412,13 @@ export function buildDemoScenario(now: Date = new Date()): DemoSeries[] {
       model: plan.model,
       times,
       values,
-      transitions: marks.map((mark) => ({ ...mark, at: start + mark.index * plan.intervalMs })),
+      marks: marks.map((mark) => ({ ...mark, at: start + mark.index * plan.intervalMs })),
       rules: plan.rules,
     };
   });
 }
 
-/** The marked transitions of the demo network for records ending on `now`'s day, by series slug. */
-export function demoTransitions(now: Date = new Date()): ({ slug: string } & DemoTransition)[] {
-  return buildDemoScenario(now).flatMap((series) => series.transitions.map((mark) => ({ slug: series.input.slug, ...mark })));
+/** The marked tipping points of the demo network for records ending on `now`'s day, by series slug. */
+export function demoMarks(now: Date = new Date()): ({ slug: string } & DemoMark)[] {
+  return buildDemoScenario(now).flatMap((series) => series.marks.map((mark) => ({ slug: series.input.slug, ...mark })));
 }

@@ -1,4 +1,4 @@
-import { AlertRule, Observation, Series, Transition, User, Watch, db, writeTransaction, type Role } from '@/models';
+import { AlertRule, Observation, Series, Mark, User, Watch, db, writeTransaction, type Role } from '@/models';
 import { hashPassword } from '@/lib/auth/password';
 import { readAppState, writeAppState } from '@/lib/db/app-state';
 import { recordAudit } from '@/lib/audit';
@@ -39,7 +39,7 @@ export async function seedDemoUsers(password: string): Promise<User[]> {
 
 /**
  * Everything of one demo series after its registry entry, in one transaction: observations (missing samples
- * are simply absent), alert rules, marked transitions, watches, and the flag that asks the scheduler's
+ * are simply absent), alert rules, marked tipping points, watches, and the flag that asks the scheduler's
  * analysis job for a first snapshot. Returns the number of observations stored.
  */
 async function fillSeries(series: Series, demo: DemoSeries, actorId: number | null, watcherIds: number[]): Promise<number> {
@@ -52,7 +52,7 @@ async function fillSeries(series: Series, demo: DemoSeries, actorId: number | nu
       await Observation.bulkCreate(rows.slice(from, from + OBSERVATIONS_PER_INSERT), { transaction, validate: false, hooks: false });
     }
     await AlertRule.bulkCreate(demo.rules.map((rule) => ({ ...rule, seriesId: series.id, active: true, createdBy: actorId })), { transaction });
-    await Transition.bulkCreate(demo.transitions.map(({ at, note, kind }) => ({ seriesId: series.id, at, note, kind, createdBy: actorId })), { transaction });
+    await Mark.bulkCreate(demo.marks.map(({ at, note, kind }) => ({ seriesId: series.id, at, note, kind, createdBy: actorId })), { transaction });
     await Watch.bulkCreate(watcherIds.map((userId) => ({ userId, seriesId: series.id, mode: 'immediate' as const })), { transaction });
     await Series.update({ needsAnalysis: true, dataChangedAt: new Date() }, { where: { id: series.id }, transaction });
     return rows.length;
@@ -61,7 +61,7 @@ async function fillSeries(series: Series, demo: DemoSeries, actorId: number | nu
 
 /**
  * Seeds the demo network (lib/demo/scenario.ts) with records ending today: each series through
- * `createSeries`, then its observations, rules, transitions and watches in one transaction per series.
+ * `createSeries`, then its observations, rules, tipping points and watches in one transaction per series.
  * Resumable: a series whose registry entry exists but holds no observations (a crash between the two
  * transactions) is filled now; a filled one is left alone. Returns what this call added.
  */

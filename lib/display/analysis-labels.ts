@@ -52,7 +52,7 @@ export function formatTauDirection(tau: number | null | undefined, direction: Tr
 const STRETCH_REASONS: Record<AnalysisResult['stretch']['startsAfter'], string> = {
   'record-start': 'the start of the record',
   shift: 'a detected abrupt shift',
-  transition: 'a marked transition',
+  'tipping-point': 'a marked tipping point',
   maintenance: 'a maintenance break',
   sampling: 'a change of sampling interval',
   span: 'the start of the analysis span',

@@ -1,5 +1,5 @@
 /**
- * Where the labels of a time chart's marks go (marked transitions, maintenance breaks, detected shifts, the start of
+ * Where the labels of a time chart's marks go (marked tipping points, maintenance breaks, detected shifts, the start of
  * the analysed stretch, the span of one window), so that no two overlap. Pure; browser-safe.
  *
  * Each label is a line of text beside a vertical position on the plot. Labels are taken from left to right and

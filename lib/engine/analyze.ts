@@ -21,7 +21,7 @@ export const ANALYSIS_CAUTION =
 export interface RecordBreak {
   /** in the unit of `time` */
   time: number;
-  kind: 'transition' | 'maintenance';
+  kind: 'tipping-point' | 'maintenance';
 }
 
 export interface AnalysisInput {
@@ -31,12 +31,12 @@ export interface AnalysisInput {
   /** Sampling interval in the unit of `time`; inferred (median spacing) when omitted. */
   intervalMs?: number;
   timeKind?: TimeKind;
-  /** marked transitions and maintenance breaks: the stretch starts at the first grid point at or after the latest */
+  /** marked tipping points and maintenance breaks: the stretch starts at the first grid point at or after the latest */
   breaks?: RecordBreak[];
 }
 
 /** Why the analysed stretch starts where it does. */
-export type StretchStart = 'record-start' | 'shift' | 'transition' | 'maintenance' | 'sampling' | 'span' | 'gap';
+export type StretchStart = 'record-start' | 'shift' | 'tipping-point' | 'maintenance' | 'sampling' | 'span' | 'gap';
 
 export interface AnalysisQuality extends PreparationQuality {
   /** share of observed (not interpolated) points in the analysed stretch */
@@ -110,7 +110,7 @@ function lazyIndicators(values: Partial<Record<IndicatorName, Float64Array>>): A
 const START_WORDS: Record<StretchStart, string> = {
   'record-start': 'at the start of the record',
   shift: 'after the detected abrupt shift',
-  transition: 'after the marked transition',
+  'tipping-point': 'after the marked tipping point',
   maintenance: 'after the maintenance break',
   sampling: 'after the change of sampling interval',
   span: 'at the start of the analysis span',

@@ -15,7 +15,7 @@ export const DISMISS_REASONS = [
 ] as const;
 export type DismissReason = (typeof DISMISS_REASONS)[number];
 
-export const transitionSchema = z
+export const triageActionSchema = z
   .object({
     action: z.enum(TRIAGE_ACTIONS),
     reason: z.enum(DISMISS_REASONS).optional(),
@@ -31,7 +31,7 @@ export const transitionSchema = z
       ctx.addIssue({ code: 'custom', path: ['note'], message: 'Say what "other" means in a note.' });
     if (value.action === 'assign' && value.assignee === undefined) ctx.addIssue({ code: 'custom', path: ['assignee'], message: 'Choose whom to assign.' });
   });
-export type TransitionInput = z.output<typeof transitionSchema>;
+export type TriageActionInput = z.output<typeof triageActionSchema>;
 
 export const noteSchema = z.object({ body: z.string().trim().min(1).max(10_000) }).strict();
 

@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import { SURROGATE_METHODS } from '@/lib/engine/settings';
-import { MARK_KINDS } from '@/models/Transition';
+import { MARK_KINDS } from '@/lib/marks/kinds';
 
 /** Body of POST /api/rules/{id}/backtest. */
 export const backtestRequestSchema = z
@@ -9,11 +9,11 @@ export const backtestRequestSchema = z
     every: z.number().int().min(1).max(100000).default(1),
     /** series to replay on, for a default rule (one with no series of its own) */
     series: z.string().min(1).max(120).optional(),
-    /** an alarm counts as a warning only this many days before a transition (null: one rolling window) */
+    /** an alarm counts as a warning only this many days before a tipping point (null: one rolling window) */
     horizonDays: z.number().positive().max(365 * 1000).nullable().default(null),
     calibration: z
       .object({
-        /** surrogate replicates of the pre-transition record (calibrated false-alarm rate) */
+        /** surrogate replicates of the record before the first tipping point (calibrated false-alarm rate) */
         surrogates: z.number().int().min(1).max(2000),
         method: z.enum(SURROGATE_METHODS).default('ar1'),
         /** simulated records of each kind (null and fold approach) behind the ROC; default: as many as surrogates */
@@ -44,10 +44,15 @@ const instantSchema = z.union([
 ]);
 
 /**
- * Body of POST /api/series/{slug}/transitions. `kind`: a known transition (default) or a maintenance break (sensor
- * swap, recalibration); the live analysis starts after either, backtests score against transitions only.
+ * Body of POST /api/series/{slug}/marks. `kind`: a marked tipping point (default) or a maintenance break (sensor
+ * swap, recalibration); the live analysis starts after either, backtests score against tipping points only.
  */
-export const transitionCreateSchema = z
-  .object({ at: instantSchema, note: z.string().trim().max(2000).default(''), kind: z.enum(MARK_KINDS).default('transition') })
+export const markCreateSchema = z
+  .object({
+    at: instantSchema,
+    note: z.string().trim().max(2000).default(''),
+    // 'transition' is the kind's former name, still read until the next release.
+    kind: z.preprocess((kind) => (kind === 'transition' ? 'tipping-point' : kind), z.enum(MARK_KINDS)).default('tipping-point'),
+  })
   .strict();
-export type TransitionCreate = z.output<typeof transitionCreateSchema>;
+export type MarkCreate = z.output<typeof markCreateSchema>;

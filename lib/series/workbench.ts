@@ -1,6 +1,6 @@
 import 'server-only';
 import { QueryTypes } from 'sequelize';
-import { AnalysisSnapshot, IngestRun, Transition, db } from '@/models';
+import { AnalysisSnapshot, IngestRun, Mark, db } from '@/models';
 import { cachedRead } from '@/lib/db/read-cache';
 import { observationExtent } from '@/lib/analysis/observations';
 import { fetchSettingsHistory, type SettingsHistoryEntry } from '@/lib/analysis/settings-history';
@@ -21,13 +21,13 @@ export interface Workbench {
   runs: IngestRunRecord[];
   rejectedRows: number;
   history: SettingsHistoryEntry[];
-  transitions: { id: number; at: number; note: string; kind: 'transition' | 'maintenance' }[];
+  marks: { id: number; at: number; note: string; kind: 'tipping-point' | 'maintenance' }[];
 }
 
 /**
  * Everything the series workbench shows on first paint, read in parallel: the latest snapshot (its view, or its
  * error), the record's extent, the last intake runs and the rejected-row total, the settings history and the
- * known transitions.
+ * marked tipping points.
  */
 export async function fetchWorkbench(slug: string): Promise<Workbench> {
   return cachedRead(`workbench:${slug}`, () => loadWorkbench(slug));
@@ -36,7 +36,7 @@ export async function fetchWorkbench(slug: string): Promise<Workbench> {
 async function loadWorkbench(slug: string): Promise<Workbench> {
   const series = await findSeriesBySlug(slug);
   const sequelize = await db();
-  const [snapshot, extent, runs, rejected, history, transitions] = await Promise.all([
+  const [snapshot, extent, runs, rejected, history, marks] = await Promise.all([
     AnalysisSnapshot.findOne({ where: { seriesId: series.id }, order: [['id', 'DESC']], attributes: { exclude: ['curves'] } }),
     observationExtent(series.id),
     IngestRun.findAll({ where: { seriesId: series.id }, order: [['id', 'DESC']], limit: 5 }),
@@ -45,7 +45,7 @@ async function loadWorkbench(slug: string): Promise<Workbench> {
       type: QueryTypes.SELECT,
     }),
     fetchSettingsHistory(series.id, 20),
-    Transition.findAll({ where: { seriesId: series.id }, order: [['at', 'ASC']] }),
+    Mark.findAll({ where: { seriesId: series.id }, order: [['at', 'ASC']] }),
   ]);
   // An error snapshot explains why the evidence is stale; the view then comes from the last good one.
   const good = snapshot?.status === 'ok'
@@ -62,6 +62,6 @@ async function loadWorkbench(slug: string): Promise<Workbench> {
     runs: runs.map((r) => presentRun(r)),
     rejectedRows: Number(rejected[0]?.total ?? 0),
     history,
-    transitions: transitions.map((t) => ({ id: t.id, at: Number(t.at), note: t.note, kind: t.kind })),
+    marks: marks.map((t) => ({ id: t.id, at: Number(t.at), note: t.note, kind: t.kind })),
   };
 }

@@ -145,11 +145,11 @@ describe('alerts end to end', () => {
   });
 
   it('is worked by role: viewer refused, analyst acknowledges and escalates, the lead confirms and watchers hear of it', async () => {
-    const act = (who: Session, body: object) => who.json(`/api/alerts/${alertId}/transitions`, 'POST', body);
+    const act = (who: Session, body: object) => who.json(`/api/alerts/${alertId}/actions`, 'POST', body);
     const refused = await act(viewer, { action: 'acknowledge' });
     expect(refused.status).toBe(403);
     expect((await refused.json()).error.code).toBe('forbidden');
-    expect((await new Session(app.baseUrl).json(`/api/alerts/${alertId}/transitions`, 'POST', { action: 'acknowledge' })).status).toBe(401);
+    expect((await new Session(app.baseUrl).json(`/api/alerts/${alertId}/actions`, 'POST', { action: 'acknowledge' })).status).toBe(401);
 
     const ack = await act(analyst, { action: 'acknowledge', version: 1 });
     expect(ack.status).toBe(200);
@@ -180,18 +180,21 @@ describe('alerts end to end', () => {
     expect(closed.counts.closed).toBeGreaterThanOrEqual(1);
   });
 
-  it('lets one of two concurrent transitions win and answers the other with 409', async () => {
-    expect((await lead.json(`/api/alerts/${alertId}/transitions`, 'POST', { action: 'reopen' })).status).toBe(200);
+  it('lets one of two concurrent triage actions win and answers the other with 409', async () => {
+    // the reopening goes through the former address, kept for one release (RFC 9745 Deprecation header)
+    const reopened = await lead.json(`/api/alerts/${alertId}/transitions`, 'POST', { action: 'reopen' });
+    expect(reopened.status).toBe(200);
+    expect(reopened.headers.get('link')).toBe(`</api/alerts/${alertId}/actions>; rel="successor-version"`);
     const [a, b] = await Promise.all([
-      analyst.json(`/api/alerts/${alertId}/transitions`, 'POST', { action: 'escalate' }),
-      lead.json(`/api/alerts/${alertId}/transitions`, 'POST', { action: 'escalate' }),
+      analyst.json(`/api/alerts/${alertId}/actions`, 'POST', { action: 'escalate' }),
+      lead.json(`/api/alerts/${alertId}/actions`, 'POST', { action: 'escalate' }),
     ]);
     expect([a.status, b.status].sort()).toEqual([200, 409]);
   });
 
   it('holds the quiet period after a dismissal while the evidence is no stronger', async () => {
     expect((await lead.json(`/api/rules/${ruleId}`, 'PATCH', { quietPeriodHours: 72 })).status).toBe(200);
-    const dismissed = await lead.json(`/api/alerts/${alertId}/transitions`, 'POST', { action: 'dismiss', reason: 'seasonal-or-external-forcing', note: 'Dam release upstream.' });
+    const dismissed = await lead.json(`/api/alerts/${alertId}/actions`, 'POST', { action: 'dismiss', reason: 'seasonal-or-external-forcing', note: 'Dam release upstream.' });
     expect(dismissed.status).toBe(200);
     for (let k = 0; k < 2; k++) {
       const before = (await evaluationsOf(ruleId)).length;

@@ -4,7 +4,7 @@ import { useTempDataDir } from '../support/temp-db';
 useTempDataDir();
 
 import { migrateUp } from '@/migrations';
-import { Alert, AlertEvent, MailMessage, Transition, db } from '@/models';
+import { Alert, AlertEvent, MailMessage, Mark, db } from '@/models';
 import { evaluateSnapshots, explainedByMark } from '@/lib/alerts/evaluate';
 import { fetchAlertDetail, fetchAlertQueue } from '@/lib/alerts/queries';
 import { dismissAlert, escalateAlert, reopenAlert } from '@/lib/alerts/triage';
@@ -78,10 +78,10 @@ describe('abrupt-shift alerts', () => {
     expect((await Alert.findByPk(report.shifts[0]))!.shiftSize).toBeNull();
   });
 
-  it('a shift a lead has already marked (transition or maintenance break) opens nothing', async () => {
+  it('a shift a lead has already marked (tipping point or maintenance break) opens nothing', async () => {
     const series = await makeSeries();
     const cleaned = Date.UTC(2020, 6, 1);
-    await Transition.create({ seriesId: series.id, at: cleaned, note: 'probe cleaned', kind: 'maintenance', createdBy: null });
+    await Mark.create({ seriesId: series.id, at: cleaned, note: 'probe cleaned', kind: 'maintenance', createdBy: null });
     // Daily data, 100-point window: located up to 10 days early or within the window after the mark = explained.
     const summary = { shifts: [{ time: cleaned + 3 * DAY, index: 183 }], interval: DAY, windowPoints: 100 };
     const report = await evaluateSnapshots([await makeSnapshot(series, { tau: 0.2 }, { summary })]);

@@ -7,7 +7,7 @@ import { migrateUp } from '@/migrations';
 import { AlertEvent, AuditEntry, MailMessage, NoteRevision, db, ROLES, ALERT_STATES, roleAtLeast } from '@/models';
 import { ConflictError, ForbiddenError } from '@/lib/http/errors';
 import { evaluateSnapshots } from '@/lib/alerts/evaluate';
-import { TRANSITIONS, acknowledgeAlert, allowedActions, assignAlert, confirmAlert, dismissAlert, escalateAlert, reopenAlert, transitionAlert } from '@/lib/alerts/triage';
+import { TRIAGE_POLICY, acknowledgeAlert, allowedActions, assignAlert, confirmAlert, dismissAlert, escalateAlert, reopenAlert, applyTriageAction } from '@/lib/alerts/triage';
 import { addNote, editNote } from '@/lib/alerts/notes';
 import { fetchAlertDetail, fetchAlertQueue } from '@/lib/alerts/queries';
 import { alertQueueSchema, TRIAGE_ACTIONS } from '@/lib/schemas/alert';
@@ -32,9 +32,9 @@ async function freshAlert(): Promise<number> {
   return report.opened[0];
 }
 
-describe('the transition table', () => {
+describe('the triage policy', () => {
   it('is what the product promises: who may act from which state', () => {
-    // Written out independently of TRANSITIONS so a change to the table is a visible change to this test.
+    // Written out independently of TRIAGE_POLICY so a change to the table is a visible change to this test.
     const expected: Record<string, Record<string, string>> = {
       acknowledge: { new: 'analyst' },
       assign: { new: 'analyst', acknowledged: 'analyst', escalated: 'analyst' },
@@ -43,7 +43,7 @@ describe('the transition table', () => {
       dismiss: { new: 'analyst', acknowledged: 'analyst', escalated: 'lead' },
       reopen: { confirmed: 'lead', dismissed: 'lead' },
     };
-    for (const action of TRIAGE_ACTIONS) expect(TRANSITIONS[action].from).toEqual(expected[action]);
+    for (const action of TRIAGE_ACTIONS) expect(TRIAGE_POLICY[action].from).toEqual(expected[action]);
     for (const state of ALERT_STATES)
       for (const role of ROLES) {
         const allowed = TRIAGE_ACTIONS.filter((a) => expected[a][state] && roleAtLeast(role, expected[a][state] as never));
@@ -106,7 +106,7 @@ describe('the transition table', () => {
 
   it('needs a reason for a dismissal and a note for "other"', async () => {
     const id = await freshAlert();
-    await expect(transitionAlert(id, { action: 'dismiss' }, analyst)).rejects.toThrow(/reason/);
+    await expect(applyTriageAction(id, { action: 'dismiss' }, analyst)).rejects.toThrow(/reason/);
     await expect(dismissAlert(id, 'other', analyst)).rejects.toThrow(/other/);
   });
 
@@ -116,7 +116,7 @@ describe('the transition table', () => {
     expect(await assignAlert(id, other.id, analyst)).toMatchObject({ state: 'acknowledged', assigneeId: other.id });
   });
 
-  it('lets exactly one of two concurrent transitions win; the other gets 409', async () => {
+  it('lets exactly one of two concurrent triage actions win; the other gets 409', async () => {
     const id = await freshAlert();
     const results = await Promise.allSettled([acknowledgeAlert(id, analyst), acknowledgeAlert(id, other)]);
     expect(results.filter((r) => r.status === 'fulfilled')).toHaveLength(1);

@@ -32,15 +32,15 @@ describe('backtest API, job and cancel (real server and scheduler)', () => {
   it('checks roles: signed out 401, viewer 403 on POST, lead 202', async () => {
     expect((await new Session(app.baseUrl).json(`/api/rules/${ruleId}/backtest`, 'POST', {})).status).toBe(401);
     expect((await viewer.json(`/api/rules/${ruleId}/backtest`, 'POST', {})).status).toBe(403);
-    expect((await viewer.json(`/api/series/${SLUG}/transitions`, 'POST', { at: Date.now(), note: 'x' })).status).toBe(403);
+    expect((await viewer.json(`/api/series/${SLUG}/marks`, 'POST', { at: Date.now(), note: 'x' })).status).toBe(403);
     expect((await viewer.json(`/api/rules/${ruleId}/threshold`, 'POST', { threshold: 0.4 })).status).toBe(403);
     expect((await lead.json(`/api/rules/${ruleId}/backtest`, 'POST', { every: 0 })).status).toBe(422);
     expect((await viewer.fetch('/api/backtests')).status).toBe(200);
   });
 
   it('runs a queued backtest with calibration to the end and stores the result', async () => {
-    const transitions = (await (await viewer.fetch(`/api/series/${SLUG}/transitions`)).json()).transitions;
-    expect(transitions.length).toBeGreaterThan(0);
+    const tippingPoints = ((await (await viewer.fetch(`/api/series/${SLUG}/marks`)).json()).marks as { kind: string }[]).filter((m) => m.kind === 'tipping-point');
+    expect(tippingPoints.length).toBeGreaterThan(0);
     const res = await lead.json(`/api/rules/${ruleId}/backtest`, 'POST', { every: 5, calibration: { surrogates: 40, method: 'ar1' } });
     expect(res.status).toBe(202);
     const { jobId } = await res.json();
@@ -48,7 +48,7 @@ describe('backtest API, job and cancel (real server and scheduler)', () => {
     expect(job.error).toBeNull();
     expect(job.status).toBe('succeeded');
     expect(job.progress).toBe(1);
-    expect(job.result.transitions).toHaveLength(transitions.length);
+    expect(job.result.tippingPoints).toHaveLength(tippingPoints.length);
     expect(job.result.calibration.surrogates).toBe(40);
     expect(job.result.calibration.roc.length).toBeGreaterThan(10);
     const list = await (await viewer.fetch(`/api/backtests?rule=${ruleId}&series=${SLUG}`)).json();
@@ -70,13 +70,32 @@ describe('backtest API, job and cancel (real server and scheduler)', () => {
     expect(job.result).toBeNull();
   }, 180_000);
 
-  it('marks and removes a transition (lead), validating the instant', async () => {
-    expect((await lead.json(`/api/series/${SLUG}/transitions`, 'POST', { at: 'not a date' })).status).toBe(422);
-    const made = await lead.json(`/api/series/${SLUG}/transitions`, 'POST', { at: '2020-03-01T00:00:00Z', note: 'test mark' });
+  it('marks and removes a tipping point (lead), validating the instant', async () => {
+    expect((await lead.json(`/api/series/${SLUG}/marks`, 'POST', { at: 'not a date' })).status).toBe(422);
+    const made = await lead.json(`/api/series/${SLUG}/marks`, 'POST', { at: '2020-03-01T00:00:00Z', note: 'test mark' });
     expect(made.status).toBe(201);
     const { id, at } = await made.json();
     expect(at).toBe(Date.UTC(2020, 2, 1));
-    expect((await viewer.fetch(`/api/transitions/${id}`, { method: 'DELETE' })).status).toBe(403);
-    expect((await lead.fetch(`/api/transitions/${id}`, { method: 'DELETE' })).status).toBe(204);
+    expect((await viewer.fetch(`/api/marks/${id}`, { method: 'DELETE' })).status).toBe(403);
+    expect((await lead.fetch(`/api/marks/${id}`, { method: 'DELETE' })).status).toBe(204);
+  });
+
+  it('answers at the former /transitions addresses for one release, saying where the marks moved', async () => {
+    // RFC 9745 (Deprecation header) and RFC 8288 (Link, rel="successor-version").
+    const listed = await viewer.fetch(`/api/series/${SLUG}/transitions`);
+    expect(listed.status).toBe(200);
+    expect(listed.headers.get('deprecation')).toBe('true');
+    expect(listed.headers.get('link')).toBe(`</api/series/${SLUG}/marks>; rel="successor-version"`);
+    const current = (await (await viewer.fetch(`/api/series/${SLUG}/marks`)).json()).marks;
+    expect((await listed.json()).transitions).toEqual(current);
+
+    // the former kind name is read as the new one
+    const made = await lead.json(`/api/series/${SLUG}/transitions`, 'POST', { at: '2020-04-01T00:00:00Z', kind: 'transition' });
+    expect(made.status).toBe(201);
+    const { id, kind } = await made.json();
+    expect(kind).toBe('tipping-point');
+    const removed = await lead.fetch(`/api/transitions/${id}`, { method: 'DELETE' });
+    expect(removed.status).toBe(204);
+    expect(removed.headers.get('link')).toBe(`</api/marks/${id}>; rel="successor-version"`);
   });
 });

@@ -14,7 +14,7 @@ const FOLDS = cessiFolds(6.2);
 
 /**
  * An approach to a fold: Cessi's (1994) box model (J. Phys. Oceanogr. 24, 1911–1920) with its freshwater
- * forcing ramped to reach the fold one step after the last sample, so the record ends at the transition.
+ * forcing ramped to reach the fold one step after the last sample, so the record ends at the tipping point.
  */
 function approach(seed: number): Float64Array {
   const dt = 0.2;
@@ -42,7 +42,7 @@ describe('ROC from simulated approaches to a fold fitted to the record (Boettige
   const M = 150;
   it('on an approach to a fold, hit rate exceeds the false-alarm rate', async () => {
     const r = await runBacktest(
-      { time: t, value: approach(5), intervalMs: DAY, settings, rule: rule(), transitions: [{ at: t[n - 1] + DAY }], every: 5, calibration: { surrogates: 10, method: 'ar1', approaches: M } },
+      { time: t, value: approach(5), intervalMs: DAY, settings, rule: rule(), tippingPoints: [{ at: t[n - 1] + DAY }], every: 5, calibration: { surrogates: 10, method: 'ar1', approaches: M } },
       { threads: 1 },
     );
     const cal = r.calibration!;
@@ -70,7 +70,7 @@ describe('ROC from simulated approaches to a fold fitted to the record (Boettige
     for (const seed of [3, 8]) {
       const x = simulateAr1({ n, phi: 0.5, sigma: 1, seed });
       const r = await runBacktest(
-        { time: t, value: x, intervalMs: DAY, settings, rule: rule(), transitions: [{ at: t[n - 1] + DAY }], every: 5, calibration: { surrogates: 10, method: 'ar1', approaches: M } },
+        { time: t, value: x, intervalMs: DAY, settings, rule: rule(), tippingPoints: [{ at: t[n - 1] + DAY }], every: 5, calibration: { surrogates: 10, method: 'ar1', approaches: M } },
         { threads: 1 },
       );
       for (const threshold of [0.3, 0.5]) {
@@ -85,19 +85,19 @@ describe('ROC from simulated approaches to a fold fitted to the record (Boettige
 });
 
 describe('a falling-direction rule (recovery rate) on approaches to a fold', () => {
-  it('is open at the transition on most approaches; read as rising it is open on none', async () => {
-    // Power check on 20 independent approaches. Acceptance: at least 15 open at the transition. If the power
+  it('is open at the tipping point on most approaches; read as rising it is open on none', async () => {
+    // Power check on 20 independent approaches. Acceptance: at least 15 open at the tipping point. If the power
     // were 0.9, fewer than 15 of 20 happens with probability 0.011 (binomial, scipy.stats.binom.cdf(14, 20, 0.9)).
     let open = 0;
     let risingOpen = 0;
     for (let seed = 100; seed < 120; seed++) {
       const x = approach(seed);
-      const base = { time: t, value: x, intervalMs: DAY, settings, transitions: [{ at: t[n - 1] + DAY }], every: 5 };
+      const base = { time: t, value: x, intervalMs: DAY, settings, tippingPoints: [{ at: t[n - 1] + DAY }], every: 5 };
       const falling = await runBacktest({ ...base, rule: rule({ indicator: 'recovery', minTau: 0.5 }) });
       expect(falling.direction).toBe('falling');
-      if (falling.transitions[0].openAtTransition) open++;
+      if (falling.tippingPoints[0].openAtTippingPoint) open++;
       const rising = await runBacktest({ ...base, rule: rule({ indicator: 'recovery', minTau: 0.5, direction: 'rising' }) });
-      if (rising.transitions[0].openAtTransition) risingOpen++;
+      if (rising.tippingPoints[0].openAtTippingPoint) risingOpen++;
     }
     expect(open).toBeGreaterThanOrEqual(15);
     expect(risingOpen).toBe(0);

@@ -60,7 +60,7 @@ describe('calibrated false-alarm rate of the full live procedure on AR(1) nulls'
     let years = 0;
     for (let m = 0; m < M; m++) {
       const x = simulateAr1({ n, phi: 0.5, sigma: 1, seed: 77, stream: m });
-      const res = await runBacktest({ time: t, value: x, intervalMs: DAY, settings, rule: r, transitions: [], every: 25 });
+      const res = await runBacktest({ time: t, value: x, intervalMs: DAY, settings, rule: r, tippingPoints: [], every: 25 });
       expect(res.judged.notJudgedSteps).toBe(0);
       if (res.alarms.length > 0) fired++;
       onsets += res.alarms.length;
@@ -69,7 +69,7 @@ describe('calibrated false-alarm rate of the full live procedure on AR(1) nulls'
     const control = simulateAr1({ n, phi: 0.5, sigma: 1, seed: 78 });
     const N = 120;
     const cal = (await runBacktest(
-      { time: t, value: control, intervalMs: DAY, settings, rule: r, transitions: [], every: 25, calibration: { surrogates: N, method: 'ar1', approaches: 20 } },
+      { time: t, value: control, intervalMs: DAY, settings, rule: r, tippingPoints: [], every: 25, calibration: { surrogates: N, method: 'ar1', approaches: 20 } },
       { threads: 1 },
     )).calibration!;
     expect(cal.notJudgedSteps).toBe(0);

@@ -84,19 +84,19 @@ describe('replay evidence equals a full recomputation at each judged instant', (
 });
 
 describe('backtest on a record from a model with a known fold', () => {
-  it('the rule warns before the marked transition of the demo Cessi (1994) box-model series', async () => {
+  it('the rule warns before the marked tipping point of the demo Cessi (1994) box-model series', async () => {
     const series = buildDemoScenario(new Date(Date.UTC(2025, 0, 1))).find((s) => s.input.slug === 'veskary-salinity-contrast')!;
-    const mark = series.transitions[0];
+    const mark = series.marks[0];
     const result = await runBacktest({
       time: series.times,
       value: series.values,
       intervalMs: series.input.intervalMs,
       settings: { ...series.input.settings, surrogates: 0 },
       rule: rule({ minTau: 0.5 }),
-      transitions: [{ at: mark.at, note: mark.note }],
+      tippingPoints: [{ at: mark.at, note: mark.note }],
       every: 5,
     });
-    const outcome = result.transitions[0];
+    const outcome = result.tippingPoints[0];
     expect(outcome.firstWarningAt).not.toBeNull();
     expect(outcome.firstWarningAt!).toBeLessThan(mark.at);
     expect(outcome.leadTimeMs!).toBeGreaterThan(0);

@@ -9,7 +9,7 @@ const { createSeries } = await import('@/lib/series/registry');
 const { ingestObservations } = await import('@/lib/intake/pipeline');
 const { queueRuleCalibration, latestRuleCalibration, runNextBacktest } = await import('@/lib/backtest/jobs');
 const { simulateAr1 } = await import('@/lib/demo/models');
-const { markTransition, removeTransition } = await import('@/lib/backtest/transitions');
+const { createMark, removeMark } = await import('@/lib/marks/write');
 
 beforeAll(async () => {
   await migrateUp();
@@ -68,14 +68,14 @@ describe('a rule’s own calibration (queueRuleCalibration, latestRuleCalibratio
     expect((await latestRuleCalibration([rule.id])).has(rule.id)).toBe(false);
   }, 180_000);
 
-  it('a marked or removed transition queues the series’ rules again (their pre-transition record changed)', async () => {
+  it('a marked or removed tipping point queues the series’ rules again (their record before the first tipping point changed)', async () => {
     const series = await createSeries({ slug: 'marked-series', name: 'Marked series', intervalMs: DAY }, null);
     const rule = await ruleOn(series.id);
     const lead = await User.create({ email: 'lead@example.test', name: 'Lead', role: 'lead', passwordHash: 'not used', active: true });
     const queued = () => BacktestJob.count({ where: { ruleId: rule.id, status: 'queued' } });
-    const mark = await markTransition(series.id, { at: Date.UTC(2020, 5, 1), note: 'test', kind: 'transition' }, lead);
+    const mark = await createMark(series.id, { at: Date.UTC(2020, 5, 1), note: 'test', kind: 'tipping-point' }, lead);
     expect(await queued()).toBe(1);
-    await removeTransition(mark.id, lead);
+    await removeMark(mark.id, lead);
     // the earlier waiting calibration is cancelled in favour of the newest
     expect(await queued()).toBe(1);
     expect(await BacktestJob.count({ where: { ruleId: rule.id, status: 'cancelled' } })).toBe(1);

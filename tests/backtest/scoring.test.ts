@@ -65,7 +65,7 @@ describe('judged time, hand-computed on a small record', () => {
   const x = simulateAr1({ n, phi: 0.5, sigma: 1, seed: 21 });
   const settings = analysisSettingsSchema.parse({ detrend: 'none', window: 0.2, surrogates: 19 });
   it('divides false alarms by the 32 days that could host one, not the 100-day record', async () => {
-    const r = await runBacktest({ time: t, value: x, intervalMs: DAY, settings, rule: rule({ minTau: -1, persistence: 1 }), transitions: [{ at: t[80] }], every: 1 });
+    const r = await runBacktest({ time: t, value: x, intervalMs: DAY, settings, rule: rule({ minTau: -1, persistence: 1 }), tippingPoints: [{ at: t[80] }], every: 1 });
     expect(r.steps).toBe(52);
     expect(r.horizonMs).toBe(20 * DAY);
     expect(r.judged.years * YEAR).toBeCloseTo(52 * DAY, 3);
@@ -77,7 +77,7 @@ describe('judged time, hand-computed on a small record', () => {
   it('instants left unjudged by the cost bound leave the judged time', async () => {
     // with a surrogate criterion and no budget every instant that passes on tau (all of them) is not judged
     const r = await runBacktest(
-      { time: t, value: x, intervalMs: DAY, settings, rule: rule({ minTau: -1, persistence: 1, maxSurrogateP: 0.05 }), transitions: [{ at: t[80] }], every: 1 },
+      { time: t, value: x, intervalMs: DAY, settings, rule: rule({ minTau: -1, persistence: 1, maxSurrogateP: 0.05 }), tippingPoints: [{ at: t[80] }], every: 1 },
       { surrogateBudget: 0 },
     );
     expect(r.judged.notJudgedSteps).toBe(52);
@@ -88,7 +88,7 @@ describe('judged time, hand-computed on a small record', () => {
   });
 });
 
-describe('after a marked transition the replay judges only the record since it, as the live analysis does', () => {
+describe('after a marked tipping point the replay judges only the record since it, as the live analysis does', () => {
   it('restarts window, warm-up and trend at the mark; judged time hand-computed', async () => {
     // 200 daily points, no detrending, window 0.1 → w = 20, warm-up 10 values; mark at index 100.
     // Stretch 0..99: judged 28..99 (72 instants); stretch 100..199: judged 128..199 (72). Horizon 20 days:
@@ -97,7 +97,7 @@ describe('after a marked transition the replay judges only the record since it, 
     const t = days(n);
     const x = simulateAr1({ n, phi: 0.5, sigma: 1, seed: 23 });
     const settings = analysisSettingsSchema.parse({ detrend: 'none', window: 0.1, surrogates: 0 });
-    const r = await runBacktest({ time: t, value: x, intervalMs: DAY, settings, rule: rule({ minTau: -1, persistence: 1 }), transitions: [{ at: t[100] }], every: 1 });
+    const r = await runBacktest({ time: t, value: x, intervalMs: DAY, settings, rule: rule({ minTau: -1, persistence: 1 }), tippingPoints: [{ at: t[100] }], every: 1 });
     expect(r.steps).toBe(144);
     expect(r.evidence.time[72]).toBe(t[128]);
     expect(r.judged.years * YEAR).toBeCloseTo(144 * DAY, 3);
@@ -115,11 +115,11 @@ describe('the replayed stretch restarts where the live analysis restarts', () =>
   const t = days(n);
   const noise = simulateAr1({ n, phi: 0.3, sigma: 1, seed: 41 });
   const r0 = rule({ minTau: -1, persistence: 1 });
-  it('after an abrupt shift of level found by the engine detector (not a transition: nothing is scored)', async () => {
+  it('after an abrupt shift of level found by the engine detector (not a tipping point: nothing is scored)', async () => {
     // a step of 4 noise sd at index 600, well beyond the detector's calibrated penalty (lib/engine/shifts.ts)
     const x = Float64Array.from(noise, (v, i) => v + (i >= 600 ? 4 : 0));
     const settings = analysisSettingsSchema.parse({ detrend: 'none', window: 0.1, surrogates: 0 });
-    const r = await runBacktest({ time: t, value: x, intervalMs: DAY, settings, rule: r0, transitions: [], every: 1 });
+    const r = await runBacktest({ time: t, value: x, intervalMs: DAY, settings, rule: r0, tippingPoints: [], every: 1 });
     expect(r.restarts).toHaveLength(1);
     const { index, reason, knownFromIndex } = r.restarts[0];
     expect(reason).toBe('shift');
@@ -132,18 +132,18 @@ describe('the replayed stretch restarts where the live analysis restarts', () =>
     // sees the shift) and index+148..1199 on the second; one alarm opens at the first instant of each stretch
     expect(r.steps).toBe(knownFromIndex - 148 + (n - index - 148));
     expect(r.alarms.map((a) => (a.time - t[0]) / DAY)).toEqual([148, index + 148]);
-    expect(r.transitions).toHaveLength(0);
+    expect(r.tippingPoints).toHaveLength(0);
     // with shift detection off the replay runs straight across the step, as the live analysis then would
-    const off = await runBacktest({ time: t, value: x, intervalMs: DAY, settings: { ...settings, shiftDetection: 'off' }, rule: r0, transitions: [], every: 1 });
+    const off = await runBacktest({ time: t, value: x, intervalMs: DAY, settings: { ...settings, shiftDetection: 'off' }, rule: r0, tippingPoints: [], every: 1 });
     expect(off.restarts).toHaveLength(0);
     expect(off.steps).toBe(n - 148);
   });
-  it('after a maintenance break, which is never scored as a transition', async () => {
+  it('after a maintenance break, which is never scored as a tipping point', async () => {
     const settings = analysisSettingsSchema.parse({ detrend: 'none', window: 0.1, surrogates: 0, shiftDetection: 'off' });
-    const r = await runBacktest({ time: t, value: noise, intervalMs: DAY, settings, rule: r0, transitions: [], breaks: [{ at: t[600] }], every: 1 });
+    const r = await runBacktest({ time: t, value: noise, intervalMs: DAY, settings, rule: r0, tippingPoints: [], breaks: [{ at: t[600] }], every: 1 });
     expect(r.restarts).toEqual([{ time: t[600], index: 600, reason: 'maintenance', knownAt: t[600], knownFromIndex: 600 }]);
     expect(r.steps).toBe(452 + 452);
-    expect(r.transitions).toHaveLength(0);
+    expect(r.tippingPoints).toHaveLength(0);
     // both alarms are false (no warning stretch, no settling stretch), counted over all judged time
     expect(r.alarms.map((a) => [a.kind, (a.time - t[0]) / DAY])).toEqual([['false', 148], ['false', 748]]);
     expect(r.falseAlarms.exposureYears * YEAR).toBeCloseTo(904 * DAY, 3);
@@ -159,7 +159,7 @@ describe('windows inside a flat run (a stuck sensor) are not judged', () => {
     const x = simulateAr1({ n, phi: 0.3, sigma: 1, seed: 43 });
     x.fill(0, 500, 700);
     const settings = analysisSettingsSchema.parse({ detrend: 'none', window: 0.1, surrogates: 0, shiftDetection: 'off' });
-    const r = await runBacktest({ time: t, value: x, intervalMs: DAY, settings, rule: rule({ minTau: -1, persistence: 1 }), transitions: [], every: 1 });
+    const r = await runBacktest({ time: t, value: x, intervalMs: DAY, settings, rule: rule({ minTau: -1, persistence: 1 }), tippingPoints: [], every: 1 });
     expect(r.judged.inFlatRun).toBe(81);
     expect(r.judged.belowCoverage).toBe(0);
     expect(r.judged.notJudged).toEqual([{ from: t[619], to: t[699], steps: 81 }]);
@@ -181,7 +181,7 @@ describe('windows below the coverage floor are not judged', () => {
       intervalMs: DAY,
       settings,
       rule: rule({ minTau: -1, persistence: 1 }),
-      transitions: [],
+      tippingPoints: [],
       every: 1,
     });
     expect(r.geometry.windowPoints).toBe(60);
@@ -210,17 +210,17 @@ describe('a stationary record with a mark at its end', () => {
   const settings = analysisSettingsSchema.parse({ detrend: 'linear', window: 0.25, surrogates: 0 });
   const r0 = rule({ persistence: 2 });
   it('scores no multi-year lead time; the early alarm is a false alarm over 655 judged days', async () => {
-    const r = await runBacktest({ time: t, value: x, intervalMs: DAY, settings, rule: r0, transitions: [{ at: t[N - 1] }], every: 5 });
+    const r = await runBacktest({ time: t, value: x, intervalMs: DAY, settings, rule: r0, tippingPoints: [{ at: t[N - 1] }], every: 5 });
     expect(r.horizonMs).toBe(375 * DAY);
-    const lead = r.transitions[0].leadTimeMs;
+    const lead = r.tippingPoints[0].leadTimeMs;
     expect(lead === null || lead <= r.horizonMs).toBe(true);
     expect(r.falseAlarms.exposureYears * YEAR).toBeCloseTo(655 * DAY, 3);
     expect(r.falseAlarms.count).toBeGreaterThanOrEqual(1);
     expect(r.falseAlarms.count).toBe(r.alarms.filter((a) => a.kind === 'false').length);
   });
   it('without a finite horizon the same alarm would have claimed a lead time of years', async () => {
-    const r = await runBacktest({ time: t, value: x, intervalMs: DAY, settings, rule: r0, transitions: [{ at: t[N - 1] }], every: 5, horizonMs: 1e15 });
-    expect(r.transitions[0].leadTimeMs!).toBeGreaterThan(2 * r.geometry.windowPoints * DAY);
+    const r = await runBacktest({ time: t, value: x, intervalMs: DAY, settings, rule: r0, tippingPoints: [{ at: t[N - 1] }], every: 5, horizonMs: 1e15 });
+    expect(r.tippingPoints[0].leadTimeMs!).toBeGreaterThan(2 * r.geometry.windowPoints * DAY);
     expect(r.falseAlarms.count).toBe(0);
   });
 });

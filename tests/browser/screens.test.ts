@@ -158,7 +158,7 @@ describe('screens in Chromium', () => {
   });
 
   it('marks where the live analysis of the collapsed demo record starts, and the abrupt shift it detected', async () => {
-    // The salinity record collapses after its marked transition: its latest analysis must start after the mark and
+    // The salinity record collapses after its marked tipping point: its latest analysis must start after the mark and
     // show the detected shift (issue 13). Reference lines are zero-width SVG lines, so they are counted, not waited
     // on as visible; the page is reloaded until the scheduler has stored the first analysis.
     const page = await open('viewer', '/series/veskary-salinity-contrast');
@@ -215,17 +215,17 @@ describe('screens in Chromium', () => {
     await queue.close();
   }, 180_000);
 
-  it('runs a backtest from the series page as a lead: progress, lead times before the marked transition, false alarms', async () => {
+  it('runs a backtest from the series page as a lead: progress, lead times before the marked tipping point, false alarms', async () => {
     const { items } = await (await api.fetch('/api/series')).json();
     let slug: string | null = null;
     for (const s of items as { slug: string }[]) {
-      const marked = await (await api.fetch(`/api/series/${s.slug}/transitions`)).json();
-      if ((marked.transitions ?? marked.items ?? []).length) {
+      const marked = await (await api.fetch(`/api/series/${s.slug}/marks`)).json();
+      if ((marked.marks ?? []).length) {
         slug = s.slug;
         break;
       }
     }
-    expect(slug, 'a demo series with a marked transition').not.toBeNull();
+    expect(slug, 'a demo series with a marked tipping point').not.toBeNull();
     const page = await open('lead', `/series/${slug}`);
     const panel = page.getByRole('region', { name: 'Backtest' });
     await panel.getByRole('button', { name: 'Start backtest' }).waitFor();

@@ -1,12 +1,12 @@
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { useTempDataDir } from '../support/temp-db';
 
-// The demo as the scheduler analyses it: seeded into a fresh database, then each series with a marked transition
+// The demo as the scheduler analyses it: seeded into a fresh database, then each series with a marked tipping point
 // analysed by refreshSeriesAnalysis, the function the analysis job calls.
 useTempDataDir('bw-demo-live-');
 process.env.BCRYPT_COST = '10';
 const { migrateUp } = await import('@/migrations');
-const { AnalysisSnapshot, Series, Transition, closeDatabase, db } = await import('@/models');
+const { AnalysisSnapshot, Series, Mark, closeDatabase, db } = await import('@/models');
 const { buildDemoScenario } = await import('@/lib/demo/scenario');
 const { seedDemoScenario } = await import('@/lib/demo/seed');
 const { refreshSeriesAnalysis } = await import('@/lib/analysis/snapshot');
@@ -15,7 +15,7 @@ const NOW = new Date('2031-05-17T15:42:07Z');
 vi.useFakeTimers({ now: NOW, toFake: ['Date'] });
 const DAY = 86_400_000;
 const scenario = buildDemoScenario(NOW);
-const marked = scenario.filter((s) => s.transitions.length > 0);
+const marked = scenario.filter((s) => s.marks.length > 0);
 
 interface Summary {
   stretch: { from: number; to: number; startsAfter: string };
@@ -39,21 +39,21 @@ afterAll(async () => {
 });
 
 describe('the demo analysed live', () => {
-  it('has marked transitions and a maintenance break, stored with their kind', async () => {
+  it('has marked tipping points and a maintenance break, stored with their kind', async () => {
     expect(marked.length).toBeGreaterThan(1);
-    const kinds = (await Transition.findAll({ attributes: ['kind'], raw: true })).map((t) => t.kind);
-    expect(new Set(kinds)).toEqual(new Set(['transition', 'maintenance']));
+    const kinds = (await Mark.findAll({ attributes: ['kind'], raw: true })).map((t) => t.kind);
+    expect(new Set(kinds)).toEqual(new Set(['tipping-point', 'maintenance']));
   });
 
-  it('never spans a mark: the latest analysis of each series starts at or after its last transition or maintenance break', () => {
+  it('never spans a mark: the latest analysis of each series starts at or after its last tipping point or maintenance break', () => {
     for (const demo of marked) {
       const snapshot = latest.get(demo.input.slug)!;
       expect(snapshot.status, `${demo.input.slug}: ${snapshot.error}`).toBe('ok');
       const summary = snapshot.summary as unknown as Summary;
-      const lastMark = Math.max(...demo.transitions.map((t) => t.at));
+      const lastMark = Math.max(...demo.marks.map((t) => t.at));
       expect(summary.stretch.from).toBeGreaterThanOrEqual(lastMark);
       expect(summary.stretch.to).toBe(demo.times[demo.times.length - 1]);
-      expect(['transition', 'maintenance', 'shift']).toContain(summary.stretch.startsAfter);
+      expect(['tipping-point', 'maintenance', 'shift']).toContain(summary.stretch.startsAfter);
     }
   });
 
@@ -63,7 +63,7 @@ describe('the demo analysed live', () => {
     // jump from one level to the other takes about 50 days in this record, so a change point anywhere on it lies
     // within 60 days of that crossing: the stated tolerance.
     const demo = marked.find((s) => s.input.slug === 'veskary-salinity-contrast')!;
-    const mark = demo.transitions[0];
+    const mark = demo.marks[0];
     const mean = (from: number, to: number) => demo.values.slice(from, to).reduce((a, b) => a + b, 0) / (to - from);
     const mid = (mean(mark.index - 100, mark.index) + mean(demo.values.length - 100, demo.values.length)) / 2;
     const crossing = demo.times[mark.index + demo.values.slice(mark.index).findIndex((v) => v > mid)];

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { DEMO_SERIES_SLUGS, DEMO_SITES, buildDemoScenario, demoRecordEnd, demoTransitions } from '@/lib/demo/scenario';
+import { DEMO_SERIES_SLUGS, DEMO_SITES, buildDemoScenario, demoRecordEnd, demoMarks } from '@/lib/demo/scenario';
 import { seriesCreateSchema } from '@/lib/schemas/series';
 import { analysisSettingsSchema } from '@/lib/engine/settings';
 import { runAnalysis } from '@/lib/engine/analyze';
@@ -16,7 +16,7 @@ describe('demo scenario', () => {
       expect(Buffer.from(again[k].values.buffer).equals(Buffer.from(scenario[k].values.buffer))).toBe(true);
       expect(Buffer.from(again[k].times.buffer).equals(Buffer.from(scenario[k].times.buffer))).toBe(true);
     }
-    expect(demoTransitions(NOW)).toEqual(scenario.flatMap((s) => s.transitions.map((t) => ({ slug: s.input.slug, ...t }))));
+    expect(demoMarks(NOW)).toEqual(scenario.flatMap((s) => s.marks.map((t) => ({ slug: s.input.slug, ...t }))));
   });
 
   it('has 8–10 series on 3–4 fictional sites, each a valid series with 1,000–5,000 samples ending today at 00:00 UTC', () => {
@@ -48,23 +48,23 @@ describe('demo scenario', () => {
   });
 
   it('marks each tipping record at its fold instant, inside the record, and the record does pass the unstable branch', () => {
-    const marked = scenario.filter((s) => s.transitions.some((t) => t.kind === 'transition')).map((s) => s.input.slug);
+    const marked = scenario.filter((s) => s.marks.some((t) => t.kind === 'tipping-point')).map((s) => s.input.slug);
     expect(marked).toEqual(['veskary-salinity-contrast', 'orlemere-whitefish-stock']);
     for (const slug of marked) {
       const s = bySlug.get(slug)!;
-      const [mark] = s.transitions;
+      const [mark] = s.marks;
       expect(mark.at).toBe(s.times[mark.index]);
       expect(mark.index).toBeGreaterThan(0.8 * s.values.length);
       expect(mark.index).toBeLessThan(s.values.length - 100);
       expect(mark.note).not.toMatch(/after the record ends/);
-      expect(mark.kind).toBe('transition');
+      expect(mark.kind).toBe('tipping-point');
     }
   });
 
   it('marks the cleaning of the drifting probe as a maintenance break, where its reading jumps back up', () => {
     const s = bySlug.get('orlemere-oxygen-probe')!;
-    expect(s.transitions.map((t) => t.kind)).toEqual(['maintenance']);
-    const [mark] = s.transitions;
+    expect(s.marks.map((t) => t.kind)).toEqual(['maintenance']);
+    const [mark] = s.marks;
     expect(mark.at).toBe(s.times[mark.index]);
     // Mean of 30 readings either side: the fouling lost about 0.0008 mg/L a day for 1,800 days (1.44 mg/L).
     const mean = (a: number, b: number) => s.values.slice(a, b).reduce((x, y) => x + y, 0) / (b - a);
@@ -98,12 +98,12 @@ describe('demo scenario', () => {
   it('shows what each record is for: rising ac1 against surrogates before the mark on the tipping records and live on the approaching one, none on the controls', async () => {
     // The demo's own promise, checked with the engine at each series' live settings (span, window, detrending,
     // seasonal removal) and 99 AR(1) surrogates: a tipping record as the live analysis saw it the day before its
-    // marked transition (afterwards it judges only the new state), the others as they stand.
+    // marked tipping point (afterwards it judges only the new state), the others as they stand.
     const verdict = async (slug: string) => {
       const s = bySlug.get(slug)!;
-      const end = s.transitions.find((t) => t.kind === 'transition')?.index ?? s.values.length;
+      const end = s.marks.find((t) => t.kind === 'tipping-point')?.index ?? s.values.length;
       const kept = [...s.values.keys()].filter((i) => i < end && !Number.isNaN(s.values[i]));
-      const breaks = s.transitions.filter((t) => t.index < end).map((t) => ({ time: t.at, kind: t.kind }));
+      const breaks = s.marks.filter((t) => t.index < end).map((t) => ({ time: t.at, kind: t.kind }));
       const result = await runAnalysis(
         { time: Float64Array.from(kept, (i) => s.times[i]), value: Float64Array.from(kept, (i) => s.values[i]), intervalMs: s.input.intervalMs, breaks },
         { ...s.input.settings, surrogates: 99, indicators: ['ac1'] },
@@ -121,9 +121,9 @@ describe('demo scenario', () => {
     }
   }, 120_000);
 
-  it('leaves the approaching record on its stocked branch: its transition has not happened yet', () => {
+  it('leaves the approaching record on its stocked branch: its tipping point has not happened yet', () => {
     const s = bySlug.get('brandwhistle-sedge-biomass')!;
-    expect(s.transitions).toEqual([]);
+    expect(s.marks).toEqual([]);
     // 40 g/m² per model unit; the collapse fold state is x ≈ 4.78 (r = 1, K = 10, h = 1).
     expect(Math.min(...s.values)).toBeGreaterThan(40 * 4.78);
   });

@@ -5,7 +5,7 @@ import { useTempDataDir } from '../support/temp-db';
 useTempDataDir('bw-demo-seed-');
 process.env.BCRYPT_COST = '10';
 const { migrateUp } = await import('@/migrations');
-const { AlertRule, AppState, Observation, Series, SettingsChange, Transition, User, Watch, closeDatabase, db } = await import('@/models');
+const { AlertRule, AppState, Observation, Series, SettingsChange, Mark, User, Watch, closeDatabase, db } = await import('@/models');
 const { verifyPassword } = await import('@/lib/auth/password');
 const { buildDemoScenario } = await import('@/lib/demo/scenario');
 const { DEMO_USERS, seedDemoScenario, seedIfEmpty } = await import('@/lib/demo/seed');
@@ -23,7 +23,7 @@ async function counts() {
     series: await Series.count(),
     observations: await Observation.count(),
     rules: await AlertRule.count(),
-    transitions: await Transition.count(),
+    marks: await Mark.count(),
     watches: await Watch.count(),
   };
 }
@@ -33,7 +33,7 @@ const FULL = {
   series: expected.length,
   observations: expectedObservations,
   rules: expected.reduce((sum, s) => sum + s.rules.length, 0),
-  transitions: expected.reduce((sum, s) => sum + s.transitions.length, 0),
+  marks: expected.reduce((sum, s) => sum + s.marks.length, 0),
   watches: 2 * expected.length,
 };
 
@@ -79,8 +79,8 @@ describe('seedIfEmpty', () => {
       expect(rules.map((r) => ({ indicator: r.indicator, minTau: r.minTau, severity: r.severity, createdBy: r.createdBy }))).toEqual(
         demo.rules.map((r) => ({ indicator: r.indicator, minTau: r.minTau, severity: r.severity, createdBy: lead!.id })),
       );
-      const marks = await Transition.findAll({ where: { seriesId: series!.id }, raw: true });
-      expect(marks.map((m) => [Number(m.at), m.kind])).toEqual(demo.transitions.map((m) => [m.at, m.kind]));
+      const marks = await Mark.findAll({ where: { seriesId: series!.id }, raw: true });
+      expect(marks.map((m) => [Number(m.at), m.kind])).toEqual(demo.marks.map((m) => [m.at, m.kind]));
       const watchers = await Watch.findAll({ where: { seriesId: series!.id }, raw: true });
       expect(watchers.map((w) => [w.userId, w.mode]).sort()).toEqual([[lead!.id, 'immediate'], [analyst!.id, 'immediate']].sort());
     }
@@ -100,7 +100,7 @@ describe('seedIfEmpty', () => {
     await AppState.destroy({ where: { key: 'seed.completed' } });
     const [half, missing] = await Promise.all(expected.slice(-2).map((s) => Series.findOne({ where: { slug: s.input.slug } })));
     const where = { seriesId: half!.id };
-    await Promise.all([Observation.destroy({ where }), AlertRule.destroy({ where }), Transition.destroy({ where }), Watch.destroy({ where })]);
+    await Promise.all([Observation.destroy({ where }), AlertRule.destroy({ where }), Mark.destroy({ where }), Watch.destroy({ where })]);
     await missing!.destroy();
     await User.destroy({ where: { email: 'viewer@brinkwatch.test' } });
     expect(await seedIfEmpty({ demo: true, password: PASSWORD })).toBe(true);

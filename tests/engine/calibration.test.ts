@@ -5,7 +5,7 @@ import { analysisSettingsSchema } from '@/lib/engine/settings';
 import { binomCdf } from './binomial';
 
 describe('surrogate significance calibration', () => {
-  // Under the null (a stationary AR(1) series, no approach to any transition), a valid test rejects at
+  // Under the null (a stationary AR(1) series, no approach to any tipping point), a valid test rejects at
   // p ≤ 0.05 in 5% of series. With 99 surrogates, p = (1 + #{τ_s ≥ τ})/100 ≤ 0.05 exactly when at most 4
   // surrogates reach τ, which has probability 5/100 under exchangeability (Davison & Hinkley 1997,
   // Sec. 4.2.1, from memory). The rejection count over 300 series must lie inside the central 99.8% of

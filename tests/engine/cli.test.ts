@@ -61,7 +61,7 @@ describe('analyze command line', () => {
   });
 
   it('--summary carries directions, shifts and the stretch, with times as the time column has them', () => {
-    const r = analyze([good, '--summary', '--surrogates', '19', '--indicators', 'ac1,recovery,skewness', '--transition', '2022-01-21', '--shift-detection', 'off']);
+    const r = analyze([good, '--summary', '--surrogates', '19', '--indicators', 'ac1,recovery,skewness', '--tipping-point', '2022-01-21', '--shift-detection', 'off']);
     expect(r.code, r.stderr).toBe(0);
     const out = JSON.parse(r.stdout);
     expect(out.significance.ac1).toMatchObject({ direction: 'rising', p: expect.any(Number), count: 19 });
@@ -69,7 +69,7 @@ describe('analyze command line', () => {
     expect(out.significance.skewness.direction).toBe('two-sided');
     expect(out.kendall.recovery.direction).toBe('falling');
     expect(out.shifts).toEqual(expect.any(Array));
-    expect(out.stretch).toEqual({ from: '2022-01-21T00:00:00.000Z', to: '2022-04-30T00:00:00.000Z', startsAfter: 'transition' });
+    expect(out.stretch).toEqual({ from: '2022-01-21T00:00:00.000Z', to: '2022-04-30T00:00:00.000Z', startsAfter: 'tipping-point' });
     expect(out.n).toBe(100);
     expect(out.latest.ac1.time).toBe('2022-04-30T00:00:00.000Z');
     expect(out.quality).toMatchObject({ coverage: 1, windowsBelowCoverage: 0, flatRuns: [], samplingChanges: [], samplingHandling: null });

@@ -8,7 +8,7 @@ export const DAY = 86_400_000;
 export const NOMINAL = 0.05;
 
 /**
- * Share-of-rejections check of a surrogate test: under a null (no approach to any transition) a valid test has
+ * Share-of-rejections check of a surrogate test: under a null (no approach to any tipping point) a valid test has
  * P(p ≤ 0.05) = 5/100 for 99 surrogates (p = (1 + #{as extreme})/100, exchangeability; Davison & Hinkley (1997),
  * Sec. 4.2.1, from memory), so the count of rejections in R independent seeded series is Binomial(R, 0.05); the
  * check is that it lies in the equal-tailed central 99.9% interval (binomialInterval). Shift detection is off:

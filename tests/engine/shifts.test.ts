@@ -237,7 +237,7 @@ describe('detectShifts on the demo records, as the live analysis runs it', () =>
     // the midpoint between the 100 days before the mark and the last 100 days. The jump takes about 50 days, so a
     // change point anywhere on it lies within 60 days of the crossing (the same tolerance as that test).
     const { s, days } = await shiftsOf('veskary-salinity-contrast');
-    const mark = s.transitions[0].index;
+    const mark = s.marks[0].index;
     const mean = (a: number, b: number) => s.values.slice(a, b).reduce((p, q) => p + q, 0) / (b - a);
     const mid = (mean(mark - 100, mark) + mean(s.values.length - 100, s.values.length)) / 2;
     const crossing = mark + s.values.slice(mark).findIndex((v) => v > mid);
@@ -247,7 +247,7 @@ describe('detectShifts on the demo records, as the live analysis runs it', () =>
 
   it('the drifting oxygen probe: only its cleaning, within 5 days', async () => {
     const { s, days } = await shiftsOf('orlemere-oxygen-probe');
-    const cleaning = s.transitions[0].index;
+    const cleaning = s.marks[0].index;
     expect(days.length).toBeLessThanOrEqual(1);
     for (const d of days) expect(Math.abs(d - cleaning)).toBeLessThanOrEqual(5);
   });

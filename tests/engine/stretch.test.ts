@@ -39,12 +39,12 @@ describe('the analysed stretch', () => {
 
   it('starts at the first grid point at or after the latest break; the later of break and shift wins', async () => {
     detected.shifts = [{ index: 100, size: 1 }];
-    const later = await runAnalysis({ time, value, breaks: [{ time: t0 + 150.5 * DAY, kind: 'maintenance' }, { time: t0 + 40 * DAY, kind: 'transition' }] }, settings);
+    const later = await runAnalysis({ time, value, breaks: [{ time: t0 + 150.5 * DAY, kind: 'maintenance' }, { time: t0 + 40 * DAY, kind: 'tipping-point' }] }, settings);
     expect(later.stretch).toEqual({ from: time[151], to: time[n - 1], startsAfter: 'maintenance' });
-    const earlier = await runAnalysis({ time, value, breaks: [{ time: t0 + 80 * DAY, kind: 'transition' }] }, settings);
+    const earlier = await runAnalysis({ time, value, breaks: [{ time: t0 + 80 * DAY, kind: 'tipping-point' }] }, settings);
     expect(earlier.stretch.startsAfter).toBe('shift');
     detected.shifts = [];
-    const before = await runAnalysis({ time, value, breaks: [{ time: t0 - DAY, kind: 'transition' }] }, settings);
+    const before = await runAnalysis({ time, value, breaks: [{ time: t0 - DAY, kind: 'tipping-point' }] }, settings);
     expect(before.stretch).toEqual({ from: time[0], to: time[n - 1], startsAfter: 'record-start' });
   });
 

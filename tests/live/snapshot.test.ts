@@ -7,9 +7,9 @@ const { Observation, User, closeDatabase, db } = await import('@/models');
 const { createSeries } = await import('@/lib/series/registry');
 const { refreshSeriesAnalysis } = await import('@/lib/analysis/snapshot');
 const { analyseStored } = await import('@/lib/analysis/preview');
-const { listTransitions } = await import('@/lib/backtest/marks');
-const { markTransition } = await import('@/lib/backtest/transitions');
-const { transitionCreateSchema } = await import('@/lib/schemas/backtest');
+const { listMarks } = await import('@/lib/marks/read');
+const { createMark } = await import('@/lib/marks/write');
+const { markCreateSchema } = await import('@/lib/schemas/backtest');
 const { LIVE_SETTINGS_DEFAULTS, seriesCreateSchema, seriesUpdateSchema } = await import('@/lib/schemas/series');
 const { benjaminiHochberg } = await import('@/lib/engine/fdr');
 const { simulateAr1 } = await import('@/lib/demo/models');
@@ -60,7 +60,7 @@ describe('new-series defaults', () => {
 describe('marks as breaks of the live analysis', () => {
   it('judges only the stretch after a maintenance break inside the span, and reads only the span', async () => {
     const { series, times } = await dailySeries('after-maintenance', 600, { span: 'P500D', window: 0.5, surrogates: 20 });
-    await markTransition(series.id, transitionCreateSchema.parse({ at: times[400] - 3_600_000, note: 'probe swapped', kind: 'maintenance' }), lead);
+    await createMark(series.id, markCreateSchema.parse({ at: times[400] - 3_600_000, note: 'probe swapped', kind: 'maintenance' }), lead);
     const snapshot = await refreshSeriesAnalysis(series, { parallel: false });
     expect(snapshot.status, snapshot.error ?? '').toBe('ok');
     const summary = snapshot.summary as unknown as Summary;
@@ -90,25 +90,25 @@ describe('marks as breaks of the live analysis', () => {
 
   it('ignores a mark before the span and one after the last reading', async () => {
     const { series, times } = await dailySeries('marks-outside', 600, { span: '300 points', window: 0.5, surrogates: 0 });
-    await markTransition(series.id, transitionCreateSchema.parse({ at: times[100], note: 'long ago' }), lead);
-    await markTransition(series.id, transitionCreateSchema.parse({ at: LAST + 5 * DAY, note: 'sensor to be replaced', kind: 'maintenance' }), lead);
+    await createMark(series.id, markCreateSchema.parse({ at: times[100], note: 'long ago' }), lead);
+    await createMark(series.id, markCreateSchema.parse({ at: LAST + 5 * DAY, note: 'sensor to be replaced', kind: 'maintenance' }), lead);
     const snapshot = await refreshSeriesAnalysis(series, { parallel: false });
     const summary = snapshot.summary as unknown as Summary;
     expect(summary.stretch.startsAfter).toBe('span');
     expect(summary.stretch.from).toBe(times[300]);
   });
 
-  it('keeps maintenance breaks out of the transitions backtests score against', async () => {
+  it('keeps maintenance breaks out of the tipping points backtests score against', async () => {
     const { series, times } = await dailySeries('both-kinds', 50, {});
     await series.update({ needsAnalysis: false });
-    const made = await markTransition(series.id, transitionCreateSchema.parse({ at: times[10], note: 'collapse' }), lead);
-    expect(made.kind).toBe('transition');
+    const made = await createMark(series.id, markCreateSchema.parse({ at: times[10], note: 'collapse' }), lead);
+    expect(made.kind).toBe('tipping-point');
     // A new mark moves where the live analysis starts, so the series is analysed again on the next cycle.
     await series.reload();
     expect(series.needsAnalysis).toBe(true);
-    await markTransition(series.id, transitionCreateSchema.parse({ at: times[20], kind: 'maintenance' }), lead);
-    expect((await listTransitions(series.id)).map((t) => t.kind)).toEqual(['transition']);
-    expect((await listTransitions(series.id, ['transition', 'maintenance'])).map((t) => t.kind)).toEqual(['transition', 'maintenance']);
-    expect(transitionCreateSchema.safeParse({ at: times[0], kind: 'repair' }).success).toBe(false);
+    await createMark(series.id, markCreateSchema.parse({ at: times[20], kind: 'maintenance' }), lead);
+    expect((await listMarks(series.id)).map((t) => t.kind)).toEqual(['tipping-point']);
+    expect((await listMarks(series.id, ['tipping-point', 'maintenance'])).map((t) => t.kind)).toEqual(['tipping-point', 'maintenance']);
+    expect(markCreateSchema.safeParse({ at: times[0], kind: 'repair' }).success).toBe(false);
   });
 });

@@ -127,7 +127,7 @@ describe('hostile input against the started product', () => {
       ['forged token', () => fetch(`${app.baseUrl}/api/series/${slug}/observations`, { method: 'POST', headers: { authorization: `Bearer ${token}x`, 'content-type': 'text/csv' }, body: 'time,value\n2024-01-01T00:00:00Z,1\n' }), 401],
       // SQL in query parameters and ids: validated, never spliced.
       ['SQL in a queue filter', () => lead.fetch(`/api/alerts?queue=${encodeURIComponent("all' OR '1'='1")}`), 422],
-      ['SQL in an id', () => analyst.json(`/api/alerts/${encodeURIComponent('1 OR 1=1')}/transitions`, 'POST', { action: 'acknowledge', version: 1 }), [404, 422]],
+      ['SQL in an id', () => analyst.json(`/api/alerts/${encodeURIComponent('1 OR 1=1')}/actions`, 'POST', { action: 'acknowledge', version: 1 }), [404, 422]],
     ];
     for (const [name, send, status] of cases) {
       const response = await send();

@@ -41,6 +41,9 @@ const EXPECTED: Record<string, Role | 'public' | 'token'> = {
   'POST /api/series/[slug]/analysis/preview': 'analyst',
   'GET /api/series/[slug]/rules': 'viewer',
   'POST /api/series/[slug]/rules': 'lead',
+  'GET /api/series/[slug]/marks': 'viewer',
+  'POST /api/series/[slug]/marks': 'lead',
+  'DELETE /api/marks/[id]': 'lead',
   'GET /api/series/[slug]/transitions': 'viewer',
   'POST /api/series/[slug]/transitions': 'lead',
   'DELETE /api/transitions/[id]': 'lead',
@@ -53,6 +56,7 @@ const EXPECTED: Record<string, Role | 'public' | 'token'> = {
 
   'GET /api/alerts': 'viewer',
   'GET /api/alerts/[id]': 'viewer',
+  'POST /api/alerts/[id]/actions': 'analyst',
   'POST /api/alerts/[id]/transitions': 'analyst',
   'POST /api/alerts/[id]/notes': 'analyst',
   'PATCH /api/notes/[id]': 'analyst',

@@ -17,19 +17,19 @@ function collide(layout: ReturnType<typeof placeMarkLabels>, gap = 4): boolean {
 }
 
 describe('labels of chart marks', () => {
-  it('puts a transition label and the one-window label that meet near the right edge in different rows', () => {
-    // the case seen on the time charts: a transition marked inside the last window, whose label ran into the
+  it('puts a tipping-point label and the one-window label that meet near the right edge in different rows', () => {
+    // the case seen on the time charts: a tipping point marked inside the last window, whose label ran into the
     // window band's label at the plot's top right
     const labels: MarkLabel[] = [
       { id: 'window', x: 600, text: 'one window', side: 'before' },
-      { id: 'transition', x: 540, text: '◆ known transition' },
+      { id: 'tipping-point', x: 540, text: '◆ marked tipping point' },
     ];
     const layout = placeMarkLabels(labels, { width: 600, charWidth: CHAR });
     expect(layout.overflow).toEqual([]);
     expect(layout.rows).toBe(2);
     expect(collide(layout)).toBe(false);
-    // the transition's text would run past the right edge, so it ends at its mark instead
-    expect(layout.placed.find((p) => p.id === 'transition')!.side).toBe('before');
+    // the tipping point's text would run past the right edge, so it ends at its mark instead
+    expect(layout.placed.find((p) => p.id === 'tipping-point')!.side).toBe('before');
   });
 
   it('keeps labels far apart in one row', () => {

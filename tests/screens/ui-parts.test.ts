@@ -53,7 +53,7 @@ describe('shared UI parts (rendered on the server)', () => {
   it('renders a time chart on the server (theme colours as CSS variables until the browser resolves them)', () => {
     const html = renderToStaticMarkup(h(TimeChart, {
       rows: [{ t: 0, v: 1 }, { t: 30 * 86_400_000, v: 2 }], lines: [{ key: 'v', label: 'value', color: 'tide' }], timeZone: 'UTC',
-      transitions: [{ at: 20 * 86_400_000, note: 'marked' }], windowBand: { from: 20 * 86_400_000, to: 30 * 86_400_000 },
+      marks: [{ at: 20 * 86_400_000, note: 'marked' }], windowBand: { from: 20 * 86_400_000, to: 30 * 86_400_000 },
     }));
     expect(html).toContain('recharts-responsive-container');
   });

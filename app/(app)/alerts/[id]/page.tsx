@@ -27,7 +27,7 @@ const SHOWS_STATE = new Set(['open', 'assign', 'reopen', 'evaluate']);
 export default async function AlertPage({ params }: { params: Promise<{ id: string }> }) {
   const actor = await requireRole('viewer');
   const id = idParam((await params).id, 'Alert');
-  const { detail, firstView, latestView, transitions, colleagues } = await fetchAlertPage(id, actor);
+  const { detail, firstView, latestView, marks, colleagues } = await fetchAlertPage(id, actor);
   const tz = detail.series.timeZone;
   const lastEval = detail.evidence.evaluations[detail.evidence.evaluations.length - 1];
   const rule = detail.rule;
@@ -68,7 +68,7 @@ export default async function AlertPage({ params }: { params: Promise<{ id: stri
             )}
             <EvidenceCharts first={firstView} latest={latestView ?? firstView} indicator={rule?.indicator ?? null}
               series={{ slug: detail.series.slug, name: detail.series.name, unit: detail.series.unit, timeZone: tz }}
-              transitions={detail.shift ? [...transitions, { at: detail.shift.time, note: 'abrupt shift (this alert)' }] : transitions} />
+              marks={detail.shift ? [...marks, { at: detail.shift.time, note: 'abrupt shift (this alert)' }] : marks} />
           </Panel>
           <Panel title="Notes" id="notes">
             <AlertNotes alertId={detail.id} notes={detail.notes} canWrite={roleAtLeast(actor.role, 'analyst')} timeZone={tz} />

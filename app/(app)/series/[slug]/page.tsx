@@ -41,7 +41,7 @@ export default async function SeriesPage({ params }: { params: Promise<{ slug: s
         initialView={bench.view}
         canTune={roleAtLeast(actor.role, 'analyst')}
         canSave={roleAtLeast(actor.role, 'lead')}
-        transitions={bench.transitions}
+        marks={bench.marks}
         history={bench.history}
         quality={<QualityPanel quality={bench.view?.quality ?? null} stretch={bench.view?.stretch ?? null} shifts={bench.view?.shifts ?? []} runs={bench.runs} rejectedRows={bench.rejectedRows} extent={bench.extent} timeZone={series.timeZone} />}
       />

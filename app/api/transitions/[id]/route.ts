@@ -1,11 +1,5 @@
-import { NextResponse } from 'next/server';
-import { requireRole } from '@/lib/auth/guard';
-import { removeTransition } from '@/lib/backtest/transitions';
-import { handle } from '@/lib/http/handler';
-import { idParam } from '@/lib/http/params';
+import { formerPath } from '@/lib/http/former-path';
+import * as mark from '../../marks/[id]/route';
 
-export const DELETE = handle<{ id: string }>(async (_request, { params }) => {
-  const actor = await requireRole('lead');
-  await removeTransition(idParam((await params).id, 'Transition'), actor);
-  return new NextResponse(null, { status: 204 });
-});
+/** Former address of /api/marks/{id} (until the next release). */
+export const DELETE = formerPath(mark.DELETE, (pathname) => pathname.replace(/^\/api\/transitions\//, '/api/marks/'));

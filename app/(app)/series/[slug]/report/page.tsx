@@ -67,7 +67,7 @@ export default async function SeriesReportPage({ params }: { params: Promise<{ s
             {view.bandwidthPoints !== null && view.settings.detrend !== 'moving-average' ? `, bandwidth ${describeExtent(view.settings.bandwidth, 'the stretch')}` : ''}, rolling window {describeExtent(view.settings.window, 'the stretch')} ({view.windowPoints} of {view.n} points{view.stretch ? `, ${stretchReason(view.stretch.startsAfter)}` : ''}),
             {' '}seasonal removal {view.settings.seasonal}. Analysed <LocalTime t={bench.snapshot?.createdAt} timeZone={series.timeZone} withZone />.
           </p>
-          <ReportCharts view={view} series={{ slug: series.slug, name: series.name, unit: series.unit, timeZone: series.timeZone }} transitions={bench.transitions} />
+          <ReportCharts view={view} series={{ slug: series.slug, name: series.name, unit: series.unit, timeZone: series.timeZone }} marks={bench.marks} />
         </>
       )}
     </article>

@@ -1,15 +1,5 @@
-import { NextResponse } from 'next/server';
-import { requireRole } from '@/lib/auth/guard';
-import { handle } from '@/lib/http/handler';
-import { readJson } from '@/lib/http/body';
-import { idParam } from '@/lib/http/params';
-import { transitionSchema } from '@/lib/schemas/alert';
-import { transitionAlert } from '@/lib/alerts/triage';
+import { formerPath } from '@/lib/http/former-path';
+import * as actions from '../actions/route';
 
-/** Every triage action needs at least the analyst role; lead-only actions are refused by the transition table (403). */
-export const POST = handle<{ id: string }>(async (request, { params }) => {
-  const actor = await requireRole('analyst');
-  const id = idParam((await params).id, 'Alert');
-  const input = await readJson(request, transitionSchema);
-  return NextResponse.json(await transitionAlert(id, input, actor));
-});
+/** Former address of /api/alerts/{id}/actions (until the next release). */
+export const POST = formerPath(actions.POST, (pathname) => pathname.replace(/\/transitions$/, '/actions'));

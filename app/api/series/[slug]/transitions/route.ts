@@ -1,23 +1,15 @@
 import { NextResponse } from 'next/server';
-import { requireRole } from '@/lib/auth/guard';
-import { listTransitions } from '@/lib/backtest/marks';
-import { markTransition } from '@/lib/backtest/transitions';
-import { readJson } from '@/lib/http/body';
-import { handle } from '@/lib/http/handler';
-import { transitionCreateSchema } from '@/lib/schemas/backtest';
-import { findSeriesBySlug } from '@/lib/series/registry';
-import { MARK_KINDS } from '@/models/Transition';
+import { formerPath } from '@/lib/http/former-path';
+import * as marks from '../marks/route';
 
-export const GET = handle<{ slug: string }>(async (_request, { params }) => {
-  await requireRole('viewer');
-  const series = await findSeriesBySlug((await params).slug);
-  return NextResponse.json({ transitions: await listTransitions(series.id, MARK_KINDS) });
-});
+/** Former address of /api/series/{slug}/marks (until the next release); the list keeps its former key. */
+const successor = (pathname: string) => pathname.replace(/\/transitions$/, '/marks');
 
-/** Marks a known transition or a maintenance break: { at: ISO 8601 or epoch ms, note, kind?: 'transition' | 'maintenance' }. */
-export const POST = handle<{ slug: string }>(async (request, { params }) => {
-  const actor = await requireRole('lead');
-  const series = await findSeriesBySlug((await params).slug);
-  const body = await readJson(request, transitionCreateSchema);
-  return NextResponse.json(await markTransition(series.id, body, actor), { status: 201 });
-});
+export const GET = formerPath<Parameters<typeof marks.GET>[1]>(async (request, context) => {
+  const response = await marks.GET(request, context);
+  if (!response.ok) return response;
+  const { marks: list } = (await response.json()) as { marks: unknown[] };
+  return NextResponse.json({ transitions: list });
+}, successor);
+
+export const POST = formerPath(marks.POST, successor);

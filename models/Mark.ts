@@ -1,14 +1,12 @@
 import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize';
 
-/** What a mark on a series' record stands for (migration 0008). */
-export const MARK_KINDS = ['transition', 'maintenance'] as const;
-export type MarkKind = (typeof MARK_KINDS)[number];
+import { MARK_KINDS, type MarkKind } from '@/lib/marks/kinds';
 
 /**
- * An instant a lead marked in a series' record: a known transition (the ground truth for backtests) or a maintenance
+ * An instant a lead marked in a series' record: a marked tipping point (the ground truth for backtests) or a maintenance
  * break (sensor swap, recalibration). The live analysis judges only the stretch after the latest mark of either kind.
  */
-export class Transition extends Model<InferAttributes<Transition>, InferCreationAttributes<Transition>> {
+export class Mark extends Model<InferAttributes<Mark>, InferCreationAttributes<Mark>> {
   declare id: CreationOptional<number>;
   declare seriesId: number;
   declare at: number;
@@ -19,18 +17,18 @@ export class Transition extends Model<InferAttributes<Transition>, InferCreation
   declare updatedAt: CreationOptional<Date>;
 
   static initModel(sequelize: Sequelize): void {
-    Transition.init(
+    Mark.init(
       {
         id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
         seriesId: { type: DataTypes.INTEGER, allowNull: false },
         at: { type: DataTypes.BIGINT, allowNull: false },
         note: { type: DataTypes.TEXT, allowNull: false, defaultValue: '' },
-        kind: { type: DataTypes.STRING, allowNull: false, defaultValue: 'transition', validate: { isIn: [[...MARK_KINDS]] } },
+        kind: { type: DataTypes.STRING, allowNull: false, defaultValue: 'tipping-point', validate: { isIn: [[...MARK_KINDS]] } },
         createdBy: { type: DataTypes.INTEGER, allowNull: true },
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },
-      { sequelize, tableName: 'transitions' },
+      { sequelize, tableName: 'marks' },
     );
   }
 }
