@@ -10,6 +10,7 @@ import * as snapshotChartView from './0006-snapshot-chart-view';
 import * as ruleDirection from './0007-rule-direction-and-alert-kinds';
 import * as transitionKind from './0008-transition-kind';
 import * as markNames from './0009-marks-and-triage-names';
+import * as analysisProvenance from './0012-analysis-provenance';
 
 /**
  * The ordered list of schema changes. Listed explicitly (not globbed) so the same list works in the Next.js server
@@ -25,6 +26,7 @@ const MIGRATIONS = [
   { name: '0007-rule-direction-and-alert-kinds', ...ruleDirection },
   { name: '0008-transition-kind', ...transitionKind },
   { name: '0009-marks-and-triage-names', ...markNames },
+  { name: '0012-analysis-provenance', ...analysisProvenance },
 ];
 
 async function migrator(): Promise<Umzug<QueryInterface>> {

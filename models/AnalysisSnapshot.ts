@@ -1,3 +1,4 @@
+import type { SnapshotProvenance } from '@/lib/analysis/provenance-record';
 import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize';
 
 /**
@@ -23,6 +24,8 @@ export class AnalysisSnapshot extends Model<InferAttributes<AnalysisSnapshot>, I
   declare dataFrom: number | null;
   declare dataTo: number | null;
   declare durationMs: number | null;
+  /** where the numbers came from (lib/analysis/provenance.ts); null on snapshots stored before migration 0012 */
+  declare provenance: CreationOptional<SnapshotProvenance | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 
@@ -41,6 +44,7 @@ export class AnalysisSnapshot extends Model<InferAttributes<AnalysisSnapshot>, I
         dataFrom: { type: DataTypes.BIGINT, allowNull: true },
         dataTo: { type: DataTypes.BIGINT, allowNull: true },
         durationMs: { type: DataTypes.INTEGER, allowNull: true },
+        provenance: { type: DataTypes.JSON, allowNull: true },
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },

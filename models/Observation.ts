@@ -5,6 +5,8 @@ export class Observation extends Model<InferAttributes<Observation>, InferCreati
   declare seriesId: number;
   declare t: number;
   declare value: number;
+  /** the ingest run that last wrote this row; null for seeded rows and rows stored before runs were recorded */
+  declare ingestRunId?: number | null;
 
   static initModel(sequelize: Sequelize): void {
     Observation.init(
@@ -12,6 +14,7 @@ export class Observation extends Model<InferAttributes<Observation>, InferCreati
         seriesId: { type: DataTypes.INTEGER, allowNull: false, primaryKey: true },
         t: { type: DataTypes.BIGINT, allowNull: false, primaryKey: true },
         value: { type: DataTypes.DOUBLE, allowNull: false },
+        ingestRunId: { type: DataTypes.INTEGER, allowNull: true },
       },
       { sequelize, tableName: 'observations', timestamps: false },
     );

@@ -6,7 +6,7 @@
  *     [--min-coverage F] [--sampling-change start-after|subsample] [--shift-detection on|off]
  *     [--moving-average-width N] [--tipping-point TIME]... [--maintenance TIME]... [--sensitivity] [--summary]
  *     [--time-format iso8601|date|epoch-seconds|epoch-milliseconds|decimal-year|age-years-bp|age-kyr-bp|number]
- *     [--time-zone IANA-ZONE]
+ *     [--time-zone IANA-ZONE] [--interval-ms N]
  * An EXTENT is a fraction of the analysed stretch, "<n> points" or an ISO 8601 duration (P90D, P2Y, PT12H).
  * Prints the analysis as JSON on stdout. Bad input: exit code 2, one line on stderr, nothing on stdout.
  * The file is read by the intake's reader (lib/intake), as an upload of a series with that time format and zone
@@ -14,10 +14,12 @@
  * --time-zone (default UTC) places ISO times without an offset. `series.time`, `stretch`, `shifts` and the quality
  * findings' instants are written as the time column is: the numbers themselves for plain numbers, ISO 8601 UTC
  * strings otherwise (±YYYYYY years outside 0000–9999).
+ * A file that starts with `# settings: {...}` and `# input: {"intervalMs", "breaks"}` lines (an analysis's download,
+ * GET /api/snapshots/{id}/data.csv) is analysed with those settings, interval and breaks; options override them.
  */
 import { readFileSync } from 'node:fs';
 import { ZodError } from 'zod';
-import { AnalysisInputError, analysisSettingsSchema, runAnalysis, summarizeAnalysis, type AnalysisResult } from '../lib/engine';
+import { AnalysisInputError, analysisSettingsSchema, runAnalysis, summarizeAnalysis, type AnalysisResult, type RecordBreak } from '../lib/engine';
 import { CsvFileError, readCsv } from '../lib/intake/csv';
 import { collectCsvRows } from '../lib/intake/rows';
 import { formatInstant, parseTime, type TimeReading } from '../lib/intake/time-formats';
@@ -32,6 +34,7 @@ const FLAGS = new Set(['sensitivity', 'summary', 'log']);
 const OPTIONS = new Set([
   'time', 'value', 'detrend', 'bandwidth', 'window', 'span', 'indicators', 'surrogates', 'surrogate-method', 'seed', 'seasonal',
   'max-gap', 'gap-policy', 'min-coverage', 'sampling-change', 'shift-detection', 'moving-average-width', 'time-format', 'time-zone',
+  'interval-ms',
 ]);
 /** Options that may be given more than once (each adds a break). */
 const REPEATED = new Set(['tipping-point', 'maintenance']);
@@ -77,8 +80,13 @@ function extentOption(opts: Record<string, string>, key: string): number | strin
   return t !== '' && Number.isFinite(Number(t)) ? Number(t) : t;
 }
 
-function settingsFrom(opts: Record<string, string>, flags: Set<string>) {
-  const raw = {
+/**
+ * Settings from the options over those the file carries (`# settings:`): an option given wins, a setting given by
+ * neither takes the engine's default. Flags count only when present, so a file's `logTransform: true` stands unless
+ * overridden by an explicit setting.
+ */
+function settingsFrom(opts: Record<string, string>, flags: Set<string>, fromFile: Record<string, unknown>) {
+  const options = {
     detrend: opts.detrend,
     bandwidth: extentOption(opts, 'bandwidth'),
     window: extentOption(opts, 'window'),
@@ -89,15 +97,16 @@ function settingsFrom(opts: Record<string, string>, flags: Set<string>) {
     surrogateMethod: opts['surrogate-method'],
     seed: numberOption(opts, 'seed'),
     seasonal: opts.seasonal,
-    logTransform: flags.has('log'),
+    logTransform: flags.has('log') || undefined,
     maxGap: numberOption(opts, 'max-gap'),
     gapPolicy: opts['gap-policy'],
     minCoverage: numberOption(opts, 'min-coverage'),
     samplingChange: opts['sampling-change'],
     shiftDetection: opts['shift-detection'],
-    sensitivity: flags.has('sensitivity'),
+    sensitivity: flags.has('sensitivity') || undefined,
   };
-  const parsed = analysisSettingsSchema.safeParse(raw);
+  const given = Object.fromEntries(Object.entries(options).filter(([, v]) => v !== undefined));
+  const parsed = analysisSettingsSchema.safeParse({ ...fromFile, ...given });
   if (!parsed.success) {
     const issue = parsed.error.issues[0];
     const field = String(issue.path[0] ?? '');
@@ -105,6 +114,41 @@ function settingsFrom(opts: Record<string, string>, flags: Set<string>) {
     throw new CliInputError(`option --${flag}: ${issue.message}`);
   }
   return parsed.data;
+}
+
+/** What a download of an analysis carries in its leading `#` lines (lib/analysis/provenance.ts writes them). */
+interface FileHeader {
+  settings: Record<string, unknown>;
+  intervalMs?: number;
+  breaks: { time: string; kind: 'tipping-point' | 'maintenance' }[];
+}
+
+/**
+ * Reads `# settings: {...}` and `# input: {...}` from the comment lines before the first record, so an analysis's
+ * download reproduces it with no options. Other comment lines are notes for people and are skipped, as the
+ * intake's reader skips them.
+ */
+function fileHeader(bytes: Buffer): FileHeader {
+  const header: FileHeader = { settings: {}, breaks: [] };
+  const head = bytes.subarray(0, 1 << 20).toString('utf8').split(/\r?\n/);
+  for (const line of head) {
+    if (!line.startsWith('#')) break;
+    const match = /^#\s*(settings|input):\s*(\{.*\})\s*$/.exec(line);
+    if (!match) continue;
+    let parsed: unknown;
+    try {
+      parsed = JSON.parse(match[2]);
+    } catch {
+      throw new CliInputError(`the file's "# ${match[1]}:" line is not valid JSON`);
+    }
+    if (match[1] === 'settings') header.settings = parsed as Record<string, unknown>;
+    else {
+      const input = parsed as { intervalMs?: unknown; breaks?: unknown };
+      if (typeof input.intervalMs === 'number') header.intervalMs = input.intervalMs;
+      if (Array.isArray(input.breaks)) header.breaks = input.breaks as FileHeader['breaks'];
+    }
+  }
+  return header;
 }
 
 interface Table {
@@ -149,19 +193,13 @@ async function firstTimeCell(bytes: Buffer, column: string | undefined): Promise
  * (encoding, delimiter, header, sorting, duplicates). Without --time-format, the time column is ISO 8601, or plain
  * numbers when its first cell is a number. Any rejected row or file-level problem stops the command.
  */
-async function readTable(file: string, opts: Record<string, string>): Promise<Table> {
+async function readTable(bytes: Buffer, opts: Record<string, string>): Promise<Table> {
   const zoneCheck = seriesFieldsSchema.shape.timeZone.safeParse(opts['time-zone'] ?? 'UTC');
   if (!zoneCheck.success) throw new CliInputError(`option --time-zone: '${opts['time-zone']}': ${zoneCheck.error.issues[0].message}`);
   const zone = zoneCheck.data;
   const given = opts['time-format'];
   if (given !== undefined && !TIME_READINGS.includes(given as TimeReading)) {
     throw new CliInputError(`option --time-format: '${given}' is not one of ${TIME_READINGS.join(', ')}`);
-  }
-  let bytes: Buffer;
-  try {
-    bytes = readFileSync(file);
-  } catch (e) {
-    throw new CliInputError(`cannot read file: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`);
   }
   let format = given as TimeReading | undefined;
   if (format === undefined) {
@@ -201,13 +239,26 @@ function locate(err: AnalysisInputError, table: Table): string {
   return `${range}, column "${table.valueName}"`;
 }
 
-/** A break given on the command line, read as the time column is (format and zone). */
-function breakTimes(values: string[] | undefined, kind: 'tipping-point' | 'maintenance', table: Table): { time: number; kind: 'tipping-point' | 'maintenance' }[] {
-  return (values ?? []).map((v) => {
-    const time = parseTime(v, table.format, table.zone);
-    if (!time.ok) throw new CliInputError(`option --${kind}: ${time.reason} (read as the time column, ${table.format})`);
-    return { time: time.t, kind };
-  });
+function readFile(file: string): Buffer {
+  try {
+    return readFileSync(file);
+  } catch (e) {
+    throw new CliInputError(`cannot read file: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`);
+  }
+}
+
+/** A break given on the command line or in the file's `# input:` line, read as the time column is (format and zone). */
+function breakTime(text: string, kind: 'tipping-point' | 'maintenance', table: Table, origin: string): RecordBreak {
+  const time = parseTime(text, table.format, table.zone);
+  if (!time.ok) throw new CliInputError(`${origin}: ${time.reason} (read as the time column, ${table.format})`);
+  return { time: time.t, kind };
+}
+
+/** Breaks from the options when any is given, else those the file carries. */
+function breaksFrom(repeated: Record<string, string[]>, header: FileHeader, table: Table): RecordBreak[] {
+  const given = (['tipping-point', 'maintenance'] as const).flatMap((kind) => (repeated[kind] ?? []).map((v) => breakTime(v, kind, table, `option --${kind}`)));
+  if (given.length) return given;
+  return header.breaks.map((b) => breakTime(b.time, b.kind, table, 'the file\u2019s "# input:" breaks'));
 }
 
 function toJson(result: AnalysisResult, summary: boolean, numericTime: boolean): unknown {
@@ -247,10 +298,14 @@ async function main(): Promise<number> {
   try {
     const args = parseArgs(argv);
     file = args.file;
-    const settings = settingsFrom(args.opts, args.flags);
-    table = await readTable(args.file, args.opts);
-    const breaks = [...breakTimes(args.repeated['tipping-point'], 'tipping-point', table), ...breakTimes(args.repeated.maintenance, 'maintenance', table)];
-    const result = await runAnalysis({ time: table.time, value: table.value, timeKind: table.numericTime ? 'numeric' : 'utc-ms', breaks }, settings);
+    const bytes = readFile(args.file);
+    const header = fileHeader(bytes);
+    const settings = settingsFrom(args.opts, args.flags, header.settings);
+    table = await readTable(bytes, args.opts);
+    const breaks = breaksFrom(args.repeated, header, table);
+    const intervalMs = numberOption(args.opts, 'interval-ms') ?? header.intervalMs;
+    const timeKind = table.numericTime ? 'numeric' : 'utc-ms';
+    const result = await runAnalysis({ time: table.time, value: table.value, timeKind, breaks, ...(intervalMs === undefined ? {} : { intervalMs }) }, settings);
     process.stdout.write(`${JSON.stringify(toJson(result, args.flags.has('summary'), table.numericTime))}\n`);
     return 0;
   } catch (e) {

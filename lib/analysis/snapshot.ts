@@ -7,6 +7,7 @@ import { extentPoints } from '@/lib/engine/extent';
 import { curvesOf } from './curves';
 import { completeSavedView, viewFromSnapshot, type AnalysisView } from './view';
 import { AnalysisInputError } from '@/lib/engine/errors';
+import { provenanceOf } from './provenance';
 import { loadObservations, observationExtent, type ObservationRange } from './observations';
 
 /**
@@ -87,6 +88,7 @@ export async function refreshSeriesAnalysis(series: Series, options: { parallel?
   const n = observations.time.length;
   const dataFrom = n ? observations.time[0] : null;
   const dataTo = n ? observations.time[n - 1] : null;
+  const provenance = await provenanceOf(series.id, observations, settings, { intervalMs, breaks });
   try {
     const result = await runAnalysis({ ...observations, intervalMs, breaks }, settings, options);
     // Through JSON first, so the saved view is exactly the one the stored row's curves would give (NaN → null).
@@ -103,6 +105,7 @@ export async function refreshSeriesAnalysis(series: Series, options: { parallel?
       dataFrom,
       dataTo,
       durationMs: Math.round(performance.now() - started),
+      provenance,
     });
   } catch (error) {
     if (!(error instanceof AnalysisInputError)) console.error(`[analysis] series ${series.slug} failed`, error);
@@ -118,6 +121,7 @@ export async function refreshSeriesAnalysis(series: Series, options: { parallel?
       dataFrom,
       dataTo,
       durationMs: Math.round(performance.now() - started),
+      provenance,
     });
   }
 }

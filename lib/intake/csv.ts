@@ -197,10 +197,44 @@ function detectDelimiter(sample: string, complete: boolean): { delimiter: Delimi
 }
 
 /**
+ * Length of the leading block of blank and `#` comment lines (its last line break included), in code units of
+ * `at` (characters of a string, bytes of an ASCII-compatible byte input, after a UTF-8 byte order mark). Nothing
+ * before it can open a quoted field, so its lines are comments for sure, whatever characters they hold. O(length).
+ */
+function preambleLength(length: number, at: (i: number) => number): number {
+  let i = length >= 3 && at(0) === 0xef && at(1) === 0xbb && at(2) === 0xbf ? 3 : 0;
+  let end = 0;
+  while (i < length) {
+    let j = i;
+    while (j < length && (at(j) === 32 || at(j) === 9)) j++;
+    const c = j < length ? at(j) : -1;
+    if (c !== 35 && c !== 10 && c !== 13) break;
+    while (j < length && at(j) !== 10) j++;
+    if (j === length) break; // an unfinished last line is left to the reader
+    i = end = j + 1;
+  }
+  return end;
+}
+
+/**
+ * The sample with every comment line of its leading block cut to its `#` (line breaks kept, so line numbers hold):
+ * such a line may hold JSON, whose double quotes papaparse would otherwise read as the start of a quoted field
+ * running into the data (an analysis's download starts with `# settings: {...}`).
+ */
+function quietPreamble(sample: string): { text: string; length: number } {
+  const length = preambleLength(sample.length, (i) => sample.charCodeAt(i));
+  const head = sample.slice(0, length).replace(/^([ \t]*#)[^\r\n]*/gm, '$1');
+  return { text: head + sample.slice(length), length };
+}
+
+/**
  * True when a whole input has no double quote and its line breaks are all LF or all CRLF (no lone CR): then
  * papaparse's records are its lines and its fields the text between delimiters. O(n) over the bytes or characters.
  */
-function unquotedLines(input: string | Uint8Array): boolean {
+function unquotedLines(whole: string | Uint8Array): boolean {
+  const input = typeof whole === 'string'
+    ? whole.slice(preambleLength(whole.length, (i) => whole.charCodeAt(i)))
+    : whole.subarray(preambleLength(whole.length, (i) => whole[i]));
   if (input instanceof Uint8Array) {
     const bytes = Buffer.from(input.buffer, input.byteOffset, input.byteLength);
     // The usual case, LF only, is decided by native scans.
@@ -224,7 +258,7 @@ function unquotedLines(input: string | Uint8Array): boolean {
 /**
  * Reads a CSV streaming (papaparse over a Node stream): detects encoding, binary content and the delimiter from
  * the first 64 K characters, refuses a line longer than MAX_LINE_CHARS before papaparse buffers it, skips blank
- * lines and `#` comment lines (counting them), decides whether the first record is a header, and hands every data
+ * lines and `#` comment lines (counting them; those of the leading block may hold any characters, quotes too), decides whether the first record is a header, and hands every data
  * record to `onRow` with its line number. Line numbers count physical lines, including those inside quoted fields.
  * Memory is bounded by one chunk plus one record. Throws CsvFileError for problems of the file as a whole.
  */
@@ -242,6 +276,7 @@ export async function readCsv(input: CsvInput, options: CsvReadOptions): Promise
     sample += next.value;
   }
   if (sample.trim() === '') throw new CsvFileError('empty', 'The file is empty.');
+  sample = quietPreamble(sample).text;
   const binary = binaryProblem(sample.slice(0, SNIFF_CHARS));
   if (binary) throw new CsvFileError('binary', binary);
   const detected = detectDelimiter(sample, ended);

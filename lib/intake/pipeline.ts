@@ -162,7 +162,7 @@ async function ingestUnderLease(request: IngestRequest, key: string, started: nu
       }
       const classified = await classifyAgainstStored(series.id, rows, connectionOf(transaction));
       const replace = series.duplicatePolicy === 'replace';
-      const { inserted, replaced } = await writeRows(transaction, series.id, rows, classified, replace);
+      const { inserted, replaced } = await writeRows(transaction, series.id, rows, classified, replace, run.id);
       let duplicates = rows.duplicatesInInput;
       for (let i = 0; i < classified.kind.length; i++) if (classified.kind[i] === ROW_DUPLICATE) duplicates++;
       const conflicts = replace ? [] : conflictRejections(rows, classified);

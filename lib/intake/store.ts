@@ -3,7 +3,7 @@ import type { Database, Statement } from 'sqlite3';
 import { allRows as all } from '@/models/db';
 import type { CollectedRows, RejectedRow } from './rows';
 
-/** Rows per multi-row INSERT: 500 × 3 parameters stays far below SQLite's variable limit and amortises each call. */
+/** Rows per multi-row INSERT: 500 × 4 parameters stays far below SQLite's variable limit and amortises each call. */
 const INSERT_BATCH = 500;
 const READ_PAGE = 50_000;
 
@@ -92,12 +92,22 @@ export function conflictRejections(rows: CollectedRows, classified: Classified):
   return out;
 }
 
-/** Inserts the new rows and overwrites the replaced ones on the transaction's connection, with statements prepared once. */
-export async function writeRows(transaction: Transaction, seriesId: number, rows: CollectedRows, classified: Classified, replace: boolean): Promise<{ inserted: number; replaced: number }> {
+/**
+ * Inserts the new rows and overwrites the replaced ones on the transaction's connection, with statements prepared
+ * once; each row written names the run that wrote it (an analysis's provenance lists them).
+ */
+export async function writeRows(
+  transaction: Transaction,
+  seriesId: number,
+  rows: CollectedRows,
+  classified: Classified,
+  replace: boolean,
+  runId: number,
+): Promise<{ inserted: number; replaced: number }> {
   const conn = connectionOf(transaction);
-  const values = (count: number) => new Array(count).fill('(?,?,?)').join(',');
-  const full = await prepare(conn, `INSERT INTO observations (series_id, t, value) VALUES ${values(INSERT_BATCH)}`);
-  const update = await prepare(conn, 'UPDATE observations SET value = ? WHERE series_id = ? AND t = ?');
+  const values = (count: number) => new Array(count).fill('(?,?,?,?)').join(',');
+  const full = await prepare(conn, `INSERT INTO observations (series_id, t, value, ingest_run_id) VALUES ${values(INSERT_BATCH)}`);
+  const update = await prepare(conn, 'UPDATE observations SET value = ?, ingest_run_id = ? WHERE series_id = ? AND t = ?');
   let inserted = 0;
   let replaced = 0;
   try {
@@ -105,19 +115,19 @@ export async function writeRows(transaction: Transaction, seriesId: number, rows
     for (let i = 0; i < rows.t.length; i++) {
       const kind = classified.kind[i];
       if (kind === ROW_NEW) {
-        batch.push(seriesId, rows.t[i], rows.value[i]);
+        batch.push(seriesId, rows.t[i], rows.value[i], runId);
         inserted++;
-        if (batch.length === INSERT_BATCH * 3) {
+        if (batch.length === INSERT_BATCH * 4) {
           await run(full, batch);
           batch.length = 0;
         }
       } else if (kind === ROW_CONFLICT && replace) {
-        await run(update, [rows.value[i], seriesId, rows.t[i]]);
+        await run(update, [rows.value[i], runId, seriesId, rows.t[i]]);
         replaced++;
       }
     }
     if (batch.length) {
-      const rest = await prepare(conn, `INSERT INTO observations (series_id, t, value) VALUES ${values(batch.length / 3)}`);
+      const rest = await prepare(conn, `INSERT INTO observations (series_id, t, value, ingest_run_id) VALUES ${values(batch.length / 4)}`);
       try {
         await run(rest, batch);
       } finally {

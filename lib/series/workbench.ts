@@ -10,6 +10,7 @@ import { analysisSettingsSchema, type AnalysisSettings } from '@/lib/engine/sett
 import { findSeriesBySlug, presentSeries, type SeriesRecord } from '@/lib/series/registry';
 import { presentRun } from '@/lib/intake/runs';
 import type { IngestRunRecord } from '@/lib/intake/run-record';
+import { provenanceView, type ProvenanceView } from '@/lib/analysis/provenance-record';
 
 export interface Workbench {
   series: SeriesRecord;
@@ -22,6 +23,8 @@ export interface Workbench {
   rejectedRows: number;
   history: SettingsHistoryEntry[];
   marks: { id: number; at: number; note: string; kind: 'tipping-point' | 'maintenance' }[];
+  /** where the numbers drawn (the last good analysis) came from; null before provenance was recorded */
+  provenance: ProvenanceView | null;
 }
 
 /**
@@ -63,5 +66,6 @@ async function loadWorkbench(slug: string): Promise<Workbench> {
     rejectedRows: Number(rejected[0]?.total ?? 0),
     history,
     marks: marks.map((t) => ({ id: t.id, at: Number(t.at), note: t.note, kind: t.kind })),
+    provenance: good?.provenance ? provenanceView(good.id, series.slug, good.provenance) : null,
   };
 }

@@ -129,6 +129,14 @@ describe('alerts end to end', () => {
     expect(mail.text).toMatch(new RegExp(`Kendall tau\\s+${formatTau(first.summary.kendall.ac1.tau)} \\(rising\\)\\r?\\n`));
     expect(mail.text).toMatch(/False alarms\s+(not yet calibrated|not available|\S+ false alarms per year)/);
     expect(mail.raw).not.toContain('<test>)</h1>');
+    // The evidence can be handed to a reviewer: the analysed data with its settings, for viewers and up only.
+    const download = await viewer.fetch(`/api/snapshots/${first.id}/data.csv`);
+    expect(download.status).toBe(200);
+    expect(download.headers.get('content-type')).toMatch(/^text\/csv/);
+    expect(download.headers.get('x-brinkwatch-data-matches')).toBe('true');
+    expect(await download.text()).toMatch(/^# settings: \{.*"surrogates":200/m);
+    expect((await new Session(app.baseUrl).fetch(`/api/snapshots/${first.id}/data.csv`)).status).toBe(401);
+    expect((await viewer.fetch('/api/snapshots/999999/data.csv')).status).toBe(404);
     // Several cycles, one message.
     await new Promise((r) => setTimeout(r, 2500));
     expect(mailsTo('analyst@brinkwatch.test', /alert #/)).toHaveLength(1);

@@ -42,6 +42,7 @@ const EXPECTED: Record<string, Role | 'public' | 'token'> = {
   'GET /api/series/[slug]/rules': 'viewer',
   'POST /api/series/[slug]/rules': 'lead',
   'GET /api/series/[slug]/marks': 'viewer',
+  'GET /api/snapshots/[id]/data.csv': 'viewer',
   'POST /api/series/[slug]/marks': 'lead',
   'DELETE /api/marks/[id]': 'lead',
   'GET /api/series/[slug]/transitions': 'viewer',

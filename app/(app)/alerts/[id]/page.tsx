@@ -2,6 +2,7 @@ import Link from 'next/link';
 import { AlertActions } from '@/components/alerts/AlertActions';
 import { AlertNotes } from '@/components/alerts/AlertNotes';
 import { EvidenceCharts } from '@/components/alerts/EvidenceCharts';
+import { ProvenancePanel } from '@/components/provenance/ProvenancePanel';
 import { AlertStateBadge, SeverityBadge } from '@/components/Badges';
 import { Caution } from '@/components/Caution';
 import { LocalTime } from '@/components/LocalTime';
@@ -27,7 +28,7 @@ const SHOWS_STATE = new Set(['open', 'assign', 'reopen', 'evaluate']);
 export default async function AlertPage({ params }: { params: Promise<{ id: string }> }) {
   const actor = await requireRole('viewer');
   const id = idParam((await params).id, 'Alert');
-  const { detail, firstView, latestView, marks, colleagues } = await fetchAlertPage(id, actor);
+  const { detail, firstView, latestView, marks, colleagues, provenance } = await fetchAlertPage(id, actor);
   const tz = detail.series.timeZone;
   const lastEval = detail.evidence.evaluations[detail.evidence.evaluations.length - 1];
   const rule = detail.rule;
@@ -78,6 +79,9 @@ export default async function AlertPage({ params }: { params: Promise<{ id: stri
           <Panel title="Decide" id="actions">
             <p className="mb-2 text-sm text-ink-soft">Assigned to {detail.assignee?.name ?? 'nobody'}.{detail.dismissReason ? ` Set aside as: ${detail.dismissReason}.` : ''}</p>
             <AlertActions alertId={detail.id} version={detail.version} actions={detail.allowedActions} users={colleagues} />
+          </Panel>
+          <Panel title="Reproduce the evidence" id="provenance">
+            <ProvenancePanel analyses={provenance} />
           </Panel>
           <Panel title="Timeline" id="timeline">
             {detail.timeline.length === 0 ? (

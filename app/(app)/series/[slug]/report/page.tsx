@@ -3,6 +3,7 @@ import { LocalTime } from '@/components/LocalTime';
 import { Empty } from '@/components/States';
 import { CELL_TIGHT, DataTable } from '@/components/ui/DataTable';
 import { PrintButton } from '@/components/workbench/PrintButton';
+import { ProvenancePanel } from '@/components/provenance/ProvenancePanel';
 import { ReportCharts } from '@/components/workbench/ReportCharts';
 import { requireRole } from '@/lib/auth/guard';
 import { formatP, formatTau } from '@/lib/display/format';
@@ -68,6 +69,10 @@ export default async function SeriesReportPage({ params }: { params: Promise<{ s
             {' '}seasonal removal {view.settings.seasonal}. Analysed <LocalTime t={bench.snapshot?.createdAt} timeZone={series.timeZone} withZone />.
           </p>
           <ReportCharts view={view} series={{ slug: series.slug, name: series.name, unit: series.unit, timeZone: series.timeZone }} marks={bench.marks} />
+          <section aria-labelledby="provenance-heading">
+            <h2 id="provenance-heading" className="mb-1 font-semibold">Reproducing these numbers</h2>
+            <ProvenancePanel analyses={bench.provenance ? [bench.provenance] : []} />
+          </section>
         </>
       )}
     </article>

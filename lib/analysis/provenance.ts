@@ -1,0 +1,105 @@
+import { createHash } from 'node:crypto';
+import { QueryTypes } from 'sequelize';
+import { AnalysisSnapshot, Series, db } from '@/models';
+import { ANALYSIS_CAUTION, type AnalysisSettings, type RecordBreak } from '@/lib/engine';
+import { ENGINE_VERSION } from '@/lib/engine/version';
+import { formatInstant } from '@/lib/intake/time-formats';
+import { ConflictError, NotFoundError } from '@/lib/http/errors';
+import { analysisFileName, reproduceCommand, type SnapshotProvenance } from './provenance-record';
+import { loadObservations } from './observations';
+
+/**
+ * The canonical form of analysed observations, the text their SHA-256 is taken over: the header `time,value`, then
+ * one line per observation in time order, the instant as ISO 8601 UTC with milliseconds (`formatInstant`; years
+ * outside 0000–9999 in the expanded ±YYYYYY form, ISO 8601 §4.1.2.4) and the value as ECMAScript's shortest
+ * decimal that reads back to the same double (Number::toString, ECMA-262 §6.1.6.1.20), each line ended by `\n`;
+ * UTF-8. It is also the body of the download, so `grep -v '^#' FILE | sha256sum` checks a download. O(n).
+ */
+export function canonicalObservationsCsv(time: Float64Array, value: Float64Array): string {
+  const lines = new Array<string>(time.length + 1);
+  lines[0] = 'time,value';
+  for (let i = 0; i < time.length; i++) lines[i + 1] = `${formatInstant(time[i])},${String(value[i])}`;
+  return `${lines.join('\n')}\n`;
+}
+
+export function sha256Hex(text: string): string {
+  return createHash('sha256').update(text, 'utf8').digest('hex');
+}
+
+/** Which ingest runs last wrote the rows of [from, to], and how many rows no recorded run wrote. One grouped scan. */
+async function contributingRuns(seriesId: number, from: number, to: number): Promise<{ ingestRuns: number[]; rowsWithoutRun: number }> {
+  const sequelize = await db();
+  const groups = await sequelize.query<{ run: number | null; rows: number }>(
+    'SELECT ingest_run_id AS run, COUNT(*) AS rows FROM observations WHERE series_id = :seriesId AND t >= :from AND t <= :to GROUP BY ingest_run_id',
+    { replacements: { seriesId, from, to }, type: QueryTypes.SELECT },
+  );
+  return {
+    ingestRuns: groups.filter((g) => g.run !== null).map((g) => Number(g.run)).sort((a, b) => a - b),
+    rowsWithoutRun: groups.filter((g) => g.run === null).reduce((sum, g) => sum + Number(g.rows), 0),
+  };
+}
+
+/** The provenance of an analysis about to be stored: the hash of exactly the observations the engine was given. */
+export async function provenanceOf(
+  seriesId: number,
+  observations: { time: Float64Array; value: Float64Array },
+  settings: AnalysisSettings,
+  input: { intervalMs: number | undefined; breaks: RecordBreak[] },
+): Promise<SnapshotProvenance> {
+  const n = observations.time.length;
+  const runs = n ? await contributingRuns(seriesId, observations.time[0], observations.time[n - 1]) : { ingestRuns: [], rowsWithoutRun: 0 };
+  return {
+    dataSha256: sha256Hex(canonicalObservationsCsv(observations.time, observations.value)),
+    canonicalForm: 'brinkwatch-observations-csv-v1',
+    rows: n,
+    ...runs,
+    engineVersion: ENGINE_VERSION,
+    seed: settings.seed,
+    intervalMs: input.intervalMs ?? null,
+    breaks: input.breaks.map((b) => ({ time: b.time, kind: b.kind })),
+  };
+}
+
+export interface SnapshotDataDownload {
+  fileName: string;
+  csv: string;
+  /** false when the stored observations no longer hash to what the analysis saw (values replaced since) */
+  matches: boolean;
+}
+
+/**
+ * A snapshot's analysed observations as CSV for a reviewer: `#` lines first — what it is, the settings (with the
+ * seed) as `# settings: {...}` and the engine's other inputs as `# input: {...}` (both applied by the command line,
+ * so `brinkwatch analyze FILE --summary` reproduces the snapshot), the provenance, the command and the caution —
+ * then the observations in the canonical form. When values in the analysed range were replaced after the
+ * analysis, the rows served are today's and a `# warning:` line says they will not reproduce it (the hash tells).
+ */
+export async function snapshotDataCsv(snapshotId: number): Promise<SnapshotDataDownload> {
+  await db();
+  const snapshot = await AnalysisSnapshot.findByPk(snapshotId, { attributes: ['id', 'seriesId', 'settings', 'status', 'dataFrom', 'dataTo', 'provenance', 'createdAt'] });
+  if (!snapshot) throw new NotFoundError('Analysis');
+  if (!snapshot.provenance || snapshot.dataFrom === null || snapshot.dataTo === null) {
+    throw new ConflictError('This analysis was stored before Brinkwatch recorded which data an analysis saw, so its data cannot be handed out as analysed. A newer analysis of the series can.');
+  }
+  const series = await Series.findByPk(snapshot.seriesId, { attributes: ['id', 'slug', 'name', 'timeZone'] });
+  if (!series) throw new NotFoundError('Series');
+  const provenance = snapshot.provenance;
+  const observations = await loadObservations(series.id, { from: Number(snapshot.dataFrom), to: Number(snapshot.dataTo) });
+  const body = canonicalObservationsCsv(observations.time, observations.value);
+  const matches = sha256Hex(body) === provenance.dataSha256;
+  const fileName = analysisFileName(series.slug, snapshot.id);
+  const input = {
+    intervalMs: provenance.intervalMs,
+    breaks: provenance.breaks.map((b) => ({ time: formatInstant(b.time), kind: b.kind })),
+  };
+  const head = [
+    `# Brinkwatch analysis ${snapshot.id} of series "${series.slug}" (${series.name}), stored ${snapshot.createdAt.toISOString()}, status ${snapshot.status}`,
+    `# settings: ${JSON.stringify(snapshot.settings)}`,
+    `# input: ${JSON.stringify(input)}`,
+    `# provenance: ${JSON.stringify(provenance)}`,
+    `# reproduce: ${reproduceCommand(fileName)}   (engine version ${provenance.engineVersion}; check the data with: grep -v '^#' ${fileName} | sha256sum)`,
+    ...(matches ? [] : ['# warning: values in this range were replaced after the analysis; the rows below are today\u2019s and do not hash to dataSha256, so they will not reproduce its numbers']),
+    `# caution: ${ANALYSIS_CAUTION}`,
+  ];
+  return { fileName, csv: `${head.join('\n')}\n${body}`, matches };
+}

@@ -1,0 +1,130 @@
+import { spawnSync } from 'node:child_process';
+import { createHash } from 'node:crypto';
+import { mkdtempSync, writeFileSync } from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { useTempDataDir } from '../support/temp-db';
+
+useTempDataDir('bw-provenance-');
+const { migrateUp } = await import('@/migrations');
+const { AnalysisSnapshot, Series, User, closeDatabase, db } = await import('@/models');
+const { createSeries } = await import('@/lib/series/registry');
+const { refreshSeriesAnalysis } = await import('@/lib/analysis/snapshot');
+const { snapshotDataCsv, canonicalObservationsCsv } = await import('@/lib/analysis/provenance');
+const { ingestObservations } = await import('@/lib/intake/pipeline');
+const { createMark } = await import('@/lib/marks/write');
+const { simulateAr1 } = await import('@/lib/demo/models');
+const { ENGINE_VERSION } = await import('@/lib/engine/version');
+
+const ROOT = path.resolve(__dirname, '../..');
+const DAY = 86_400_000;
+const START = Date.UTC(2024, 0, 1);
+const N = 700;
+const csvOf = (times: number[], values: Float64Array | number[], from: number, to: number) =>
+  `time,value\n${times.slice(from, to).map((t, i) => `${new Date(t).toISOString()},${values[from + i]}`).join('\n')}\n`;
+
+let seriesId: number;
+let snapshotId: number;
+let runIds: number[];
+
+beforeAll(async () => {
+  await migrateUp();
+  await db();
+  const lead = await User.create({ email: 'lead@example.test', name: 'Lead', role: 'lead', passwordHash: null });
+  // A daily record with a slowing-down trend in its second half, delivered by two uploads, a maintenance break inside
+  // the span, 99 surrogates and the live defaults: every input the engine takes from the database is exercised.
+  const series = await createSeries({ slug: 'pond-oxygen', name: 'Pond oxygen', intervalMs: DAY, settings: { surrogates: 99, span: '600 points', seed: 7 } }, null);
+  seriesId = series.id;
+  const calm = simulateAr1({ n: N / 2, phi: 0.3, sigma: 1, mean: 8, seed: 3 });
+  const slowing = simulateAr1({ n: N / 2, phi: 0.9, sigma: 1, mean: 8, seed: 4 });
+  const values = [...calm, ...slowing].map((v, i) => v + i * 1e-3 + (i % 97 === 0 ? 1 / 3 : 0));
+  const times = Array.from({ length: N }, (_, i) => START + i * DAY);
+  runIds = [];
+  for (const [from, to] of [[0, 400], [400, N]]) {
+    const outcome = await ingestObservations({ series, source: 'upload', fileName: `part-${from}.csv`, csv: csvOf(times, values, from, to) });
+    expect(outcome.status).toBe('succeeded');
+    runIds.push(outcome.runId);
+  }
+  await createMark(series.id, { at: times[250], note: 'probe swapped', kind: 'maintenance' }, lead);
+  const stored = await Series.findByPk(series.id);
+  const snapshot = await refreshSeriesAnalysis(stored!);
+  expect(snapshot.status).toBe('ok');
+  snapshotId = snapshot.id;
+});
+afterAll(async () => {
+  await closeDatabase();
+});
+
+describe('an analysis records where its numbers came from and can be reproduced from its download', () => {
+  it('records the hash of the canonical observations, the runs, the engine version, the interval, breaks and seed', async () => {
+    const snapshot = (await AnalysisSnapshot.findByPk(snapshotId))!;
+    const p = snapshot.provenance!;
+    expect(p.canonicalForm).toBe('brinkwatch-observations-csv-v1');
+    expect(p.ingestRuns).toEqual(runIds);
+    expect(p.rowsWithoutRun).toBe(0);
+    expect(p.engineVersion).toBe(ENGINE_VERSION);
+    expect(p.seed).toBe(7);
+    expect(p.intervalMs).toBe(DAY);
+    expect(p.breaks).toEqual([{ time: START + 250 * DAY, kind: 'maintenance' }]);
+    // The span is 600 points counted back from the last reading (one interval to spare): rows from day 99 on.
+    expect(Number(snapshot.dataFrom)).toBe(START + 99 * DAY);
+    expect(p.rows).toBe(N - 99);
+  });
+
+  it('the download is the canonical rows under # lines, and `sha256sum` of its rows is the recorded hash', async () => {
+    const download = await snapshotDataCsv(snapshotId);
+    expect(download.matches).toBe(true);
+    const lines = download.csv.split('\n');
+    const comments = lines.filter((l) => l.startsWith('#'));
+    expect(comments.some((l) => l.startsWith('# settings: {'))).toBe(true);
+    expect(comments.some((l) => l.startsWith('# input: {'))).toBe(true);
+    expect(comments.some((l) => l.startsWith('# caution: '))).toBe(true);
+    const body = lines.filter((l) => !l.startsWith('#')).join('\n');
+    // SHA-256 from Node's crypto (OpenSSL), the same digest `grep -v '^#' FILE | sha256sum` prints (FIPS 180-4).
+    const digest = createHash('sha256').update(body, 'utf8').digest('hex');
+    expect(digest).toBe((await AnalysisSnapshot.findByPk(snapshotId))!.provenance!.dataSha256);
+    expect(body.startsWith('time,value\n2024-04-09T00:00:00.000Z,')).toBe(true);
+  });
+
+  it('the command line on the download gives every tau and p of the stored analysis to 1e-12', async () => {
+    const download = await snapshotDataCsv(snapshotId);
+    const dir = mkdtempSync(path.join(os.tmpdir(), 'bw-reproduce-'));
+    const file = path.join(dir, download.fileName);
+    writeFileSync(file, download.csv);
+    const run = spawnSync(process.execPath, [path.join(ROOT, 'bin/brinkwatch.mjs'), 'analyze', file, '--summary'], { encoding: 'utf8', cwd: ROOT, timeout: 120_000 });
+    expect(run.stderr).toBe('');
+    expect(run.status).toBe(0);
+    const cli = JSON.parse(run.stdout) as { kendall: Record<string, { tau: number; p: number }>; significance: Record<string, { p: number }> };
+    const summary = (await AnalysisSnapshot.findByPk(snapshotId))!.summary as typeof cli & { stretch: { startsAfter: string } };
+    expect(summary.stretch.startsAfter).toBe('maintenance');
+    const indicators = Object.keys(summary.kendall);
+    expect(indicators.length).toBeGreaterThan(3);
+    for (const name of indicators) {
+      expect(Math.abs(cli.kendall[name].tau - summary.kendall[name].tau), `${name} tau`).toBeLessThanOrEqual(1e-12);
+      expect(Math.abs(cli.kendall[name].p - summary.kendall[name].p), `${name} Kendall p`).toBeLessThanOrEqual(1e-12);
+    }
+    const tested = Object.keys(summary.significance);
+    expect(tested.length).toBeGreaterThan(0);
+    for (const name of tested) {
+      expect(Math.abs(cli.significance[name].p - summary.significance[name].p), `${name} surrogate p`).toBeLessThanOrEqual(1e-12);
+    }
+  }, 180_000);
+
+  it('says so when values in the analysed range were replaced after the analysis', async () => {
+    const series = (await Series.findByPk(seriesId))!;
+    await series.update({ duplicatePolicy: 'replace' });
+    const at = new Date(START + 500 * DAY).toISOString();
+    expect((await ingestObservations({ series, source: 'upload', fileName: 'fix.csv', csv: `time,value\n${at},42\n` })).status).toBe('succeeded');
+    const download = await snapshotDataCsv(snapshotId);
+    expect(download.matches).toBe(false);
+    expect(download.csv).toMatch(/^# warning: values in this range were replaced/m);
+  });
+
+  it('writes the canonical form by its definition: ISO 8601 UTC with milliseconds, shortest round-trip values', () => {
+    // ECMA-262 Number::toString gives the shortest decimal that reads back to the same double (0.1 + 0.2 → 0.30000000000000004).
+    expect(canonicalObservationsCsv(Float64Array.of(0, Date.UTC(-12000, 0, 1)), Float64Array.of(0.1 + 0.2, -1e-7))).toBe(
+      'time,value\n1970-01-01T00:00:00.000Z,0.30000000000000004\n-012000-01-01T00:00:00.000Z,-1e-7\n',
+    );
+  });
+});
