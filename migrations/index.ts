@@ -11,6 +11,7 @@ import * as ruleDirection from './0007-rule-direction-and-alert-kinds';
 import * as transitionKind from './0008-transition-kind';
 import * as markNames from './0009-marks-and-triage-names';
 import * as analysisProvenance from './0012-analysis-provenance';
+import * as personalApiTokens from './0013-personal-api-tokens';
 
 /**
  * The ordered list of schema changes. Listed explicitly (not globbed) so the same list works in the Next.js server
@@ -27,6 +28,7 @@ const MIGRATIONS = [
   { name: '0008-transition-kind', ...transitionKind },
   { name: '0009-marks-and-triage-names', ...markNames },
   { name: '0012-analysis-provenance', ...analysisProvenance },
+  { name: '0013-personal-api-tokens', ...personalApiTokens },
 ];
 
 async function migrator(): Promise<Umzug<QueryInterface>> {

@@ -21,6 +21,7 @@ import { UserToken } from './UserToken';
 import { Mark } from './Mark';
 import { BacktestJob } from './BacktestJob';
 import { AppState } from './AppState';
+import { ApiToken } from './ApiToken';
 
 const initialised = new WeakSet<Sequelize>();
 
@@ -56,6 +57,7 @@ function associate(): void {
   Series.hasMany(SettingsChange, { foreignKey: 'seriesId', as: 'settingsHistory' });
   SettingsChange.belongsTo(User, { foreignKey: 'changedBy', as: 'author' });
   UserToken.belongsTo(User, { foreignKey: 'userId', as: 'user' });
+  ApiToken.belongsTo(User, { foreignKey: 'userId', as: 'owner' });
   Series.hasMany(Mark, { foreignKey: 'seriesId', as: 'marks' });
   BacktestJob.belongsTo(AlertRule, { foreignKey: 'ruleId', as: 'rule' });
   BacktestJob.belongsTo(Series, { foreignKey: 'seriesId', as: 'series' });
@@ -64,7 +66,7 @@ function associate(): void {
 const MODELS = [
   User, Series, Observation, IngestRun, AnalysisSnapshot, AlertRule, RuleEvaluation, Alert, AlertEvent, Note,
   NoteRevision, IngestToken, MailMessage, AuditEntry, Watch, Lease, SettingsChange, SignInThrottle, UserToken,
-  Mark, BacktestJob, AppState,
+  Mark, BacktestJob, AppState, ApiToken,
 ];
 
 /** Binds the models to this process's one Sequelize instance (idempotent) and returns it once it is ready. */
@@ -81,7 +83,7 @@ export async function db(): Promise<Sequelize> {
 export {
   User, Series, Observation, IngestRun, AnalysisSnapshot, AlertRule, RuleEvaluation, Alert, AlertEvent, Note,
   NoteRevision, IngestToken, MailMessage, AuditEntry, Watch, Lease, SettingsChange, SignInThrottle, UserToken,
-  Mark, BacktestJob, AppState,
+  Mark, BacktestJob, AppState, ApiToken,
 };
 /**
  * `writeTransaction` of models/db.ts with the models bound first: a web worker's first request may be a write

@@ -1,20 +1,26 @@
 import 'server-only';
 import { getServerSession } from 'next-auth';
+import { headers } from 'next/headers';
 import { cache } from 'react';
 import { User, db } from '@/models';
 import { ForbiddenError, UnauthenticatedError } from '@/lib/http/errors';
 import { cachedRead } from '@/lib/db/read-cache';
 import { authOptions } from './options';
+import { bearerActor } from './api-tokens';
 import { roleAtLeast, type Actor, type Role } from './roles';
 
 /**
- * Who is asking, with their current role, or why they may not ask at all. The session only says who; role, active
+ * Who is asking, with their current role, or why they may not ask at all: the bearer of a personal API token, or
+ * the signed-in user. The session only says who; role, active
  * flag and session version come from the database (through the read cache, which drops an answer at the next
  * commit), so a deactivation, a role change or a password change takes effect at once. Memoised per server render
  * with React's `cache`, so a page and its layout decode the session and read the user once; route handlers and
  * server actions run outside a render and get a fresh lookup on every call.
  */
 const sessionActor = cache(async (): Promise<Actor | UnauthenticatedError> => {
+  // A script's personal token speaks for its owner instead of a session (lib/auth/api-tokens.ts).
+  const authorization = (await headers()).get('authorization');
+  if (authorization !== null) return bearerActor(authorization);
   const session = await getServerSession(authOptions);
   const id = session?.user?.id;
   if (!id) return new UnauthenticatedError();

@@ -2,6 +2,7 @@ import 'server-only';
 import { IngestToken, Series, db } from '@/models';
 import { ForbiddenError, NotFoundError, UnauthenticatedError } from '@/lib/http/errors';
 import { requireRole } from '@/lib/auth/guard';
+import { isPersonalBearer } from '@/lib/auth/api-tokens';
 import type { Actor } from '@/lib/auth/roles';
 import { hashIngestToken } from './tokens';
 
@@ -15,12 +16,13 @@ export interface IngestWriter {
 
 /**
  * Who may add data to the series `slug`: a bearer ingest token of that series (401 when missing, unknown or
- * revoked; 403 when it belongs to another series; its last use is recorded), or else a signed-in lead or admin
- * (404 when the series does not exist).
+ * revoked; 403 when it belongs to another series; its last use is recorded), or else a signed-in lead or admin, or
+ * the personal token of one (404 when the series does not exist).
  */
 export async function requireIngestWriter(request: Request, slug: string): Promise<IngestWriter> {
   const authorization = request.headers.get('authorization');
-  if (authorization !== null) {
+  // A personal token is a person: it writes as a lead would, through requireRole below.
+  if (authorization !== null && !isPersonalBearer(authorization)) {
     const match = /^Bearer\s+(\S+)$/i.exec(authorization.trim());
     if (!match) throw new UnauthenticatedError('Send the ingest token as "Authorization: Bearer <token>".');
     await db();
