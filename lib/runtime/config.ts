@@ -74,6 +74,8 @@ export const configSchema = z.object({
   MAIL_CRON: cron('*/15 * * * * *'),
   DIGEST_CRON: cron('0 7 * * *'),
   BACKTEST_CRON: cron('*/5 * * * * *'),
+  /** How often the live demo's stations deliver (lib/demo/feed.ts); only when the demo is seeded and SEED_DEMO is not 0. */
+  DEMO_FEED_CRON: cron('*/2 * * * *'),
   START_SCHEDULER: flag(true),
   /** Web processes sharing the port; unset = one per core (read by scripts/web.mjs after the start script validated it). */
   WEB_WORKERS: whole(1, 1, 256).optional(),
@@ -133,7 +135,7 @@ export function publicBaseUrl(): string {
   return (config().NEXTAUTH_URL ?? `http://localhost:${appPort()}`).replace(/\/$/, '');
 }
 
-export function cronSetting(name: 'INGEST_CRON' | 'ANALYSIS_CRON' | 'MAIL_CRON' | 'DIGEST_CRON' | 'BACKTEST_CRON'): string {
+export function cronSetting(name: 'INGEST_CRON' | 'ANALYSIS_CRON' | 'MAIL_CRON' | 'DIGEST_CRON' | 'BACKTEST_CRON' | 'DEMO_FEED_CRON'): string {
   return config()[name];
 }
 
