@@ -15,6 +15,7 @@ delete process.env.DATABASE_PATH;
 
 const { Alert, AlertRule, AnalysisSnapshot, IngestRun, Series, closeDatabase, db } = await import('@/models');
 const { Op, QueryTypes } = await import('sequelize');
+const { demoRecordEnd } = await import('@/lib/demo/scenario');
 
 const FIVE_MINUTES = 300_000;
 const FOLD_SLUG = 'brandwhistle-sedge-biomass';
@@ -58,12 +59,11 @@ describe('the live demo after a fresh start', () => {
     const series = await Series.findOne({ where: { slug: FOLD_SLUG } });
     await waitFor('a feed run on the fold series', () =>
       IngestRun.findOne({ where: { seriesId: series!.id, status: 'succeeded', fileName: { [Op.like]: 'demo-feed-%' } }, order: [['id', 'ASC']] }), left(), 1000);
-    const seeded = await AnalysisSnapshot.findOne({ where: { seriesId: series!.id }, order: [['id', 'ASC']] });
-    const newer = await waitFor('a snapshot of the fold series that includes fed points', async () => {
-      const latest = await AnalysisSnapshot.findOne({ where: { seriesId: series!.id, status: 'ok' }, order: [['id', 'DESC']] });
-      return latest && seeded && latest.id > seeded.id && latest.dataTo! > seeded.dataTo! ? latest : null;
-    }, left(), 1000);
-    expect(newer.dataTo).toBeLessThanOrEqual(Date.now());
+    // The seeded record ends where the scenario put it at seeding (the series' creation); fed points lie after it.
+    const seededEnd = demoRecordEnd(series!.createdAt, series!.intervalMs!);
+    const newer = await waitFor('a snapshot of the fold series that includes fed points', () =>
+      AnalysisSnapshot.findOne({ where: { seriesId: series!.id, status: 'ok', dataTo: { [Op.gt]: seededEnd } }, order: [['id', 'DESC']] }), left(), 1000);
+    expect(Number(newer.dataTo)).toBeLessThanOrEqual(Date.now());
 
     const rule = await AlertRule.findOne({ where: { seriesId: series!.id, indicator: 'ac1', severity: 'warning' } });
     const alert = await waitFor('the ac1 alert of the fold series', () => Alert.findOne({ where: { seriesId: series!.id, ruleId: rule!.id } }), left(), 1000);
