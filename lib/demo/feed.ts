@@ -209,6 +209,9 @@ async function feedSeries(model: DemoFeedModel, now: number, baseUrl: string): P
   const { points, withheld } = pointsDue(model, { start: extent.first, lastT: extent.last, lastValue: last!.value }, now);
   if (!points.length) return report(withheld ? 'silent' : 'up-to-date', [], withheld);
   if (model.delivery !== 'push') {
+    // The intake refused this very delivery before (e.g. a lead changed the series' CSV mapping): sending it again
+    // every cycle would only pile up rejected files, so the station waits until someone looks.
+    if (fs.existsSync(path.join(folder, 'rejected', feedFileName(points)))) return report('refused', points);
     const file = writeDropFile(folder, points);
     log(`${model.slug}: ${points.length} point(s) written to ${path.basename(file)}`);
     return report('written', points);

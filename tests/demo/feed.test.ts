@@ -198,6 +198,20 @@ describe('the demo feed, delivering', () => {
     expect((await recordEnd(DROP.slug)).lastT).toBe(Date.UTC(2031, 4, 17));
   });
 
+  it('does not send a delivery again that the intake rejected', async () => {
+    const slug = 'orlemere-oxygen-probe';
+    const folder = path.join(dataDir, 'drops', slug);
+    // Tomorrow's sample, refused by the intake as it would be after a lead changed the series' CSV mapping.
+    const tomorrow = NOW.getTime() + DAY;
+    const due = pointsDue(model(slug), await recordEnd(slug), tomorrow).points;
+    fs.mkdirSync(path.join(folder, 'rejected'), { recursive: true });
+    fs.writeFileSync(path.join(folder, 'rejected', `demo-feed-${new Date(due[0].t).toISOString().slice(0, 10).replace(/-/g, '')}T000000Z.csv`), feedCsv(due));
+    const refused = (await runDemoFeed({ now: tomorrow, baseUrl: closedUrl })).find((r) => r.slug === slug)!;
+    expect(refused.outcome).toBe('refused');
+    expect(fs.readdirSync(folder).filter((name) => name.endsWith('.csv'))).toEqual([]);
+    await runDropIntake({ settleMs: 0 });
+  });
+
   it('pushes with the series\' own ingest token, keeps the points while the server is down, and stops once the token is revoked', async () => {
     // The closed port of the cycles above: nothing stored, a token issued and kept.
     const end = await recordEnd(PUSH.slug);
