@@ -28,10 +28,10 @@ import {
  * at seeding (demoRecordEnd), which keeps it fresh (late only after three intervals, lib/overview) and leaves the
  * demo feed (lib/demo/feed.ts) points to deliver from its first cycle on; the feed then continues each model from
  * the stored record's last value, one sample at a time (`DemoFeedModel.next`). The series approaching its fold
- * (the sedge biomass) already passes its ac1 rule on the seeded record, which asks for two passing analyses in a
- * row: the first analysis after the start is one, and the analysis after the feed's first points the second, so
- * its alert opens (and its e-mail goes out) in the first minutes of a fresh start. Nothing was tuned for that: it
- * is the record the published model gives with DEMO_SEED, checked by tests/demo/scenario.test.ts.
+ * (the sedge biomass) already passes its ac1 rule on the seeded record; the rule asks for two passing analyses in a
+ * row, and the feed's first samples bring the second within minutes of a fresh start, so its alert opens and its
+ * e-mail goes out then. Nothing was tuned for that: it is the record the published model gives with DEMO_SEED (its
+ * verdict checked by tests/demo/scenario.test.ts); continued, the ramp reaches the fold about 177 samples (days) past the seeded record.
  */
 
 export const DEMO_SEED = 730_519;
@@ -190,7 +190,7 @@ function toUnits(x: Float64Array, scale: number, decimals: number): Float64Array
 /**
  * One sample of a stochastic differential equation continued from the stored value `previous` (series units,
  * divided by `scale` into model units) at sample `index`, model time (index − 1)·dt, with 10 substeps as the
- * records use. Cost O(substeps).
+ * records use. Cost O(substeps). Source: as eulerMaruyama (lib/demo/models.ts).
  */
 function sdeNext(dynamics: Dynamics, dt: number, scale: number, decimals: number) {
   return (previous: number, index: number, rng: RandomStream) =>
