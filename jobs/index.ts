@@ -4,6 +4,7 @@ import { mailJob } from './mail';
 import { digestJob } from './digest';
 import { backtestJob } from './backtest';
 import { ingestJob } from './ingest';
+import { demoFeedJob } from './demo-feed';
 
 /** Every scheduled job of the product, in one list; the scheduler runs each on its own cron expression. */
-export const JOBS: ScheduledJob[] = [analysisJob, mailJob, digestJob, backtestJob, ingestJob];
+export const JOBS: ScheduledJob[] = [analysisJob, mailJob, digestJob, backtestJob, ingestJob, demoFeedJob];

@@ -19,6 +19,12 @@ export interface SdeGrid extends Seeded {
   substeps: number;
 }
 
+/** The two parts of dx = a(x, t) dt + b(x) dW. */
+export interface Dynamics {
+  drift: (x: number, t: number) => number;
+  diffusion: (x: number) => number;
+}
+
 /** A run whose control parameter ramps linearly through a saddle-node fold of the model's deterministic part. */
 export interface ForcedRun {
   values: Float64Array;
@@ -46,19 +52,30 @@ export function eulerMaruyama(
   const { n, dt, substeps } = grid;
   if (!(n > 0 && dt > 0 && substeps >= 1)) throw new RangeError('eulerMaruyama needs n > 0, dt > 0 and substeps ≥ 1');
   const rng = new RandomStream(grid.seed, grid.stream ?? 0);
+  const out = new Float64Array(n);
+  out[0] = x0;
+  for (let i = 1; i < n; i++) out[i] = eulerMaruyamaSample(drift, diffusion, out[i - 1], (i - 1) * dt, dt, substeps, rng);
+  return out;
+}
+
+/**
+ * One sample interval of the Euler–Maruyama scheme (see eulerMaruyama): from x at model time t0, `substeps` steps
+ * of h = dt/substeps, each drawing one normal deviate from `rng`. The whole-record simulator and the live demo
+ * feed (which continues a stored record one sample at a time) share it. Cost O(substeps). Source: as eulerMaruyama.
+ */
+export function eulerMaruyamaSample(
+  drift: (x: number, t: number) => number,
+  diffusion: (x: number) => number,
+  x: number,
+  t0: number,
+  dt: number,
+  substeps: number,
+  rng: RandomStream,
+): number {
   const h = dt / substeps;
   const sqrtH = Math.sqrt(h);
-  const out = new Float64Array(n);
-  let x = x0;
-  out[0] = x;
-  for (let i = 1; i < n; i++) {
-    const t0 = (i - 1) * dt;
-    for (let k = 0; k < substeps; k++) {
-      x += drift(x, t0 + k * h) * h + diffusion(x) * sqrtH * rng.normal();
-    }
-    out[i] = x;
-  }
-  return out;
+  for (let k = 0; k < substeps; k++) x += drift(x, t0 + k * h) * h + diffusion(x) * sqrtH * rng.normal();
+  return x;
 }
 
 /**
@@ -143,6 +160,11 @@ export interface CessiOptions extends SdeGrid {
   sigma: number;
 }
 
+/** Drift and diffusion of the forced Cessi model (see simulateCessi), for whole runs and one-sample steps alike. */
+export function cessiDynamics(o: Omit<CessiOptions, keyof SdeGrid>): Dynamics {
+  return { drift: (y, t) => o.p0 + o.rate * t - cessiRelaxation(y, o.mu2), diffusion: () => o.sigma };
+}
+
 /**
  * Cessi's nondimensional two-box model with a slowly rising freshwater forcing and additive noise:
  * dy = [p(t) − y(1 + μ²(1 − y)²)] dt + σ dW, p(t) = p0 + rate·t, started on the low-branch equilibrium of p0.
@@ -153,12 +175,8 @@ export interface CessiOptions extends SdeGrid {
  */
 export function simulateCessi(o: CessiOptions): ForcedRun {
   const { rising } = cessiFolds(o.mu2);
-  const values = eulerMaruyama(
-    (y, t) => o.p0 + o.rate * t - cessiRelaxation(y, o.mu2),
-    () => o.sigma,
-    cessiLowBranch(o.p0, o.mu2),
-    o,
-  );
+  const { drift, diffusion } = cessiDynamics(o);
+  const values = eulerMaruyama(drift, diffusion, cessiLowBranch(o.p0, o.mu2), o);
   const foldTime = (rising.p - o.p0) / o.rate;
   return { values, forcing: linearRamp(o.n, o.dt, o.p0, o.rate), foldTime, foldIndex: foldTime / o.dt };
 }
@@ -235,6 +253,11 @@ export interface GrazingOptions extends SdeGrid, GrazingParameters {
   sigma: number;
 }
 
+/** Drift and diffusion of the forced grazing model (see simulateGrazing), for whole runs and one-sample steps alike. */
+export function grazingDynamics(o: Omit<GrazingOptions, keyof SdeGrid>): Dynamics {
+  return { drift: (x, t) => grazingGrowth(x, o.c0 + o.rate * t, o), diffusion: (x) => o.sigma * x };
+}
+
 /**
  * May's grazing model with a rising harvest rate and multiplicative environmental noise:
  * dx = [r x(1 − x/K) − c(t) x²/(x² + h²)] dt + σ x dW, c(t) = c0 + rate·t, started on the well-stocked
@@ -245,12 +268,8 @@ export interface GrazingOptions extends SdeGrid, GrazingParameters {
  */
 export function simulateGrazing(o: GrazingOptions): ForcedRun {
   const { collapse } = grazingFolds(o);
-  const values = eulerMaruyama(
-    (x, t) => grazingGrowth(x, o.c0 + o.rate * t, o),
-    (x) => o.sigma * x,
-    grazingEquilibrium(o.c0, o, 'stocked'),
-    o,
-  );
+  const { drift, diffusion } = grazingDynamics(o);
+  const values = eulerMaruyama(drift, diffusion, grazingEquilibrium(o.c0, o, 'stocked'), o);
   const foldTime = (collapse.c - o.c0) / o.rate;
   return { values, forcing: linearRamp(o.n, o.dt, o.c0, o.rate), foldTime, foldIndex: foldTime / o.dt };
 }
@@ -368,6 +387,12 @@ export interface DoubleWellOptions extends SdeGrid {
  * stochastic resonance", J. Phys. A 14, L453–L457; the quartic normal form is common practice.
  */
 export function simulateDoubleWell(o: DoubleWellOptions): Float64Array {
+  const { drift, diffusion } = doubleWellDynamics(o);
+  return eulerMaruyama(drift, diffusion, o.x0, o);
+}
+
+/** Drift and diffusion of the forced double well (see simulateDoubleWell), for whole runs and one-sample steps alike. */
+export function doubleWellDynamics(o: Pick<DoubleWellOptions, 'amplitude' | 'period' | 'sigma'>): Dynamics {
   const omega = (2 * Math.PI) / o.period;
-  return eulerMaruyama((x, t) => x - x * x * x + o.amplitude * Math.sin(omega * t), () => o.sigma, o.x0, o);
+  return { drift: (x, t) => x - x * x * x + o.amplitude * Math.sin(omega * t), diffusion: () => o.sigma };
 }

@@ -1,7 +1,12 @@
 import { analysisSettingsSchema, type AnalysisSettings, type IndicatorName } from '@/lib/engine/settings';
 import type { SeriesCreateInput } from '@/lib/schemas/series';
+import { RandomStream } from '@/lib/engine/random';
 import {
+  cessiDynamics,
   cessiFolds,
+  doubleWellDynamics,
+  eulerMaruyamaSample,
+  grazingDynamics,
   grazingFolds,
   simulateAr1,
   simulateCessi,
@@ -9,6 +14,7 @@ import {
   simulateDrift,
   simulateGrazing,
   simulateSeasonal,
+  type Dynamics,
   type ForcedRun,
   type GrazingParameters,
 } from './models';
@@ -17,6 +23,15 @@ import {
  * The demo: an invented observing network (every place and station name is fictional) whose records are
  * generated from published models with one fixed seed. Values depend only on DEMO_SEED, except the
  * phase of the seasonal series, which follows the calendar of the record's end day.
+ *
+ * The demo is live: each record ends DEMO_BACKLOG_SAMPLES sampling intervals before the last instant of its grid
+ * at seeding (demoRecordEnd), which keeps it fresh (late only after three intervals, lib/overview) and leaves the
+ * demo feed (lib/demo/feed.ts) points to deliver from its first cycle on; the feed then continues each model from
+ * the stored record's last value, one sample at a time (`DemoFeedModel.next`). The series approaching its fold
+ * (the sedge biomass) already passes its ac1 rule on the seeded record; the rule asks for two passing analyses in a
+ * row, and the feed's first samples bring the second within minutes of a fresh start, so its alert opens and its
+ * e-mail goes out then. Nothing was tuned for that: it is the record the published model gives with DEMO_SEED (its
+ * verdict checked by tests/demo/scenario.test.ts); continued, the ramp reaches the fold about 177 samples (days) past the seeded record.
  */
 
 export const DEMO_SEED = 730_519;
@@ -78,9 +93,16 @@ export interface DemoSeries {
   rules: DemoRule[];
 }
 
-/** The record's last instant: the start (00:00 UTC) of the day that contains `now`. */
-export function demoRecordEnd(now: Date): number {
-  return Math.floor(now.getTime() / DAY_MS) * DAY_MS;
+/** Samples between a seeded record's end and the last instant of its grid at seeding: the feed's first deliveries. */
+export const DEMO_BACKLOG_SAMPLES = 2;
+
+/**
+ * A record's last instant: DEMO_BACKLOG_SAMPLES intervals before the last instant ≤ `now` of the series' grid
+ * (whole multiples of the interval since the Unix epoch: 00:00 UTC for daily series, the full hour for hourly ones).
+ * Its age at seeding is below DEMO_BACKLOG_SAMPLES + 1 intervals, so the series is not late.
+ */
+export function demoRecordEnd(now: Date, intervalMs: number): number {
+  return (Math.floor(now.getTime() / intervalMs) - DEMO_BACKLOG_SAMPLES) * intervalMs;
 }
 
 const rule = (fields: Partial<DemoRule> & Pick<DemoRule, 'indicator' | 'minTau' | 'severity'>): DemoRule => ({
@@ -138,6 +160,10 @@ interface SeriesPlan {
   rules: DemoRule[];
   /** Values of the record (NaN = missing) and, for forced runs, the run itself. */
   generate: (start: number) => { values: Float64Array; run?: ForcedRun };
+  /** How the series' station delivers live points (see DemoFeedModel). */
+  delivery: DemoDelivery;
+  /** The live continuation (see DemoFeedModel.next). */
+  next: DemoFeedModel['next'];
   /**
    * For a run forced through its fold: the tipping point is marked at the fold instant of the deterministic
    * part (known exactly, whatever the noise did); `crossed` tells when the record has passed the unstable
@@ -149,14 +175,36 @@ interface SeriesPlan {
 }
 
 /**
- * Model units to the series' unit (scale × model value), rounded to the resolution a logger would write;
+ * A model value in the series' unit (scale × model value), rounded to the resolution a logger would write;
  * NaN (a missing sample) stays NaN.
  */
-function toUnits(x: Float64Array, scale: number, decimals: number): Float64Array {
-  const out = new Float64Array(x.length);
+function inUnits(x: number, scale: number, decimals: number): number {
   const f = 10 ** decimals;
-  for (let i = 0; i < x.length; i++) out[i] = Math.round(scale * x[i] * f) / f;
-  return out;
+  return Math.round(scale * x * f) / f;
+}
+
+function toUnits(x: Float64Array, scale: number, decimals: number): Float64Array {
+  return x.map((v) => inUnits(v, scale, decimals));
+}
+
+/**
+ * One sample of a stochastic differential equation continued from the stored value `previous` (series units,
+ * divided by `scale` into model units) at sample `index`, model time (index − 1)·dt, with 10 substeps as the
+ * records use. Cost O(substeps). Source: as eulerMaruyama (lib/demo/models.ts).
+ */
+function sdeNext(dynamics: Dynamics, dt: number, scale: number, decimals: number) {
+  return (previous: number, index: number, rng: RandomStream) =>
+    inUnits(eulerMaruyamaSample(dynamics.drift, dynamics.diffusion, previous / scale, (index - 1) * dt, dt, 10, rng), scale, decimals);
+}
+
+/**
+ * One step of a stationary AR(1) about `level(index)` continued from the stored value: x_i = level(i) +
+ * φ(x_{i−1} − level(i − 1)) + σ ε_i, rounded like the record. Exact for the process (Box et al. 2015, Sec. 3.2);
+ * the rounding of the stored value carries over, as it would from a real logger. O(1).
+ */
+function ar1Next(phi: number, sigma: number, decimals: number, level: (index: number, start: number) => number) {
+  return (previous: number, index: number, rng: RandomStream, start: number) =>
+    inUnits(level(index, start) + phi * (previous - level(index - 1, start)) + sigma * rng.normal(), 1, decimals);
 }
 
 function foldMark(plan: SeriesPlan, run: ForcedRun, values: Float64Array): { index: number; note: string } {
@@ -174,9 +222,25 @@ const GRAZING: GrazingParameters = { r: 1, K: 10, h: 1 };
 const LAKE_STOCK = { n: 3000, dt: 0.1, c0: 1.0, sigma: 0.1, foldAt: 0.85 };
 const FEN = { n: 3000, dt: 0.1, c0: 1.2, sigma: 0.05, endShare: 0.97 };
 /** The drifting oxygen probe: fouling lowers the reading by `drift` a day until it is cleaned at sample `cleaning`. */
-const OXYGEN = { n: 2500, drift: -0.0008, cleaning: 1800 };
+const OXYGEN = { n: 2500, drift: -0.0008, cleaning: 1800, mean: 10.4 };
 const CESSI_FOLDS = cessiFolds(CESSI.mu2);
 const GRAZING_FOLDS = grazingFolds(GRAZING);
+/** Ramp rates that put each fold where the plan says: at `foldAt` of the record, or `endShare` of the way at its end. */
+const CESSI_RATE = (CESSI_FOLDS.rising.p - CESSI.p0) / (CESSI.foldAt * (CESSI.n - 1) * CESSI.dt);
+const LAKE_STOCK_RATE = (GRAZING_FOLDS.collapse.c - LAKE_STOCK.c0) / (LAKE_STOCK.foldAt * (LAKE_STOCK.n - 1) * LAKE_STOCK.dt);
+const FEN_RATE = (FEN.endShare * GRAZING_FOLDS.collapse.c - FEN.c0) / ((FEN.n - 1) * FEN.dt);
+const LAKE_TEMPERATURE = { phi: 0.7, sigma: 0.6, mean: 10.5, amplitude: 7, samplesPerCycle: 365.2425 };
+const DOUBLE_WELL = { dt: 0.25, amplitude: 0.12, period: 66, sigma: 0.5 };
+
+/** Phase of the lake's annual cycle at the record's first sample: peak in early August (day 213), as in a northern temperate lake. */
+function lakePhase(start: number): number {
+  return (((yearFraction(start) - 213 / 365.2425 + 0.25) % 1) + 1) % 1;
+}
+
+/** Mean reading of the fouling oxygen probe at sample `index`: fouling since the cleaning (or since the start, before it). */
+function oxygenLevel(index: number): number {
+  return OXYGEN.mean + OXYGEN.drift * (index >= OXYGEN.cleaning ? index - OXYGEN.cleaning : index);
+}
 
 /** Day of the year (0-based, UTC) of an instant, as a fraction of the mean Gregorian year. */
 function yearFraction(t: number): number {
@@ -203,10 +267,11 @@ const PLANS: SeriesPlan[] = [
     settings: { ...LIVE, seed: 11, span: 'P10Y', window: 0.5 },
     rules: [...SLOWING_DOWN_RULES, HIGH_MEMORY_RULE],
     generate: () => {
-      const rate = (CESSI_FOLDS.rising.p - CESSI.p0) / (CESSI.foldAt * (CESSI.n - 1) * CESSI.dt);
-      const run = simulateCessi({ ...CESSI, rate, substeps: 10, seed: DEMO_SEED, stream: 1 });
+      const run = simulateCessi({ ...CESSI, rate: CESSI_RATE, substeps: 10, seed: DEMO_SEED, stream: 1 });
       return { values: toUnits(run.values, 2.5, 4), run };
     },
+    delivery: 'drop',
+    next: sdeNext(cessiDynamics({ ...CESSI, rate: CESSI_RATE }), CESSI.dt, 2.5, 4),
     tippingPoint: {
       crossed: (v) => v > 2.5 * ((CESSI_FOLDS.rising.y + CESSI_FOLDS.falling.y) / 2),
       note: (when) =>
@@ -228,6 +293,8 @@ const PLANS: SeriesPlan[] = [
     settings: { ...LIVE, seed: 12, span: 'P120D', window: 'P30D' },
     rules: CONTROL_RULES,
     generate: () => ({ values: toUnits(simulateAr1({ n: 4800, phi: 0.6, sigma: 0.004, mean: 3.82, seed: DEMO_SEED, stream: 2 }), 1, 4) }),
+    delivery: 'intermittent',
+    next: ar1Next(0.6, 0.004, 4, () => 3.82),
   },
   {
     slug: 'orlemere-whitefish-stock',
@@ -246,10 +313,11 @@ const PLANS: SeriesPlan[] = [
     settings: { ...LIVE, seed: 13, span: 'P7Y', window: 0.5 },
     rules: SLOWING_DOWN_RULES,
     generate: () => {
-      const rate = (GRAZING_FOLDS.collapse.c - LAKE_STOCK.c0) / (LAKE_STOCK.foldAt * (LAKE_STOCK.n - 1) * LAKE_STOCK.dt);
-      const run = simulateGrazing({ ...GRAZING, ...LAKE_STOCK, rate, substeps: 10, seed: DEMO_SEED, stream: 3 });
+      const run = simulateGrazing({ ...GRAZING, ...LAKE_STOCK, rate: LAKE_STOCK_RATE, substeps: 10, seed: DEMO_SEED, stream: 3 });
       return { values: toUnits(run.values, 12, 2), run };
     },
+    delivery: 'drop',
+    next: sdeNext(grazingDynamics({ ...GRAZING, ...LAKE_STOCK, rate: LAKE_STOCK_RATE }), LAKE_STOCK.dt, 12, 2),
     tippingPoint: {
       crossed: (v) => v < 12 * ((GRAZING_FOLDS.collapse.x + GRAZING_FOLDS.recovery.x) / 2),
       note: (when) =>
@@ -272,14 +340,16 @@ const PLANS: SeriesPlan[] = [
     settings: { ...LIVE, seed: 14, seasonal: 'day-of-year', maxGap: 3, gapPolicy: 'latest-stretch', span: 'P8Y', window: 'P2Y' },
     rules: CONTROL_RULES,
     generate: (start) => {
-      // Peak in early August (day 213), as in a northern temperate lake.
-      const phaseAtStart = (((yearFraction(start) - 213 / 365.2425 + 0.25) % 1) + 1) % 1;
       const x = simulateSeasonal({
-        n: 5000, phi: 0.7, sigma: 0.6, mean: 10.5, amplitude: 7, samplesPerCycle: 365.2425, phaseAtStart,
+        n: 5000, ...LAKE_TEMPERATURE, phaseAtStart: lakePhase(start),
         shortGapRate: 0.01, maxShortGap: 3, longGap: { start: 420, length: 21 }, seed: DEMO_SEED, stream: 4,
       });
       return { values: toUnits(x, 1, 2) };
     },
+    delivery: 'drop',
+    // The live points have no gaps: the logger outage and the short gaps belong to the record's past.
+    next: ar1Next(LAKE_TEMPERATURE.phi, LAKE_TEMPERATURE.sigma, 2, (index, start) =>
+      LAKE_TEMPERATURE.mean + LAKE_TEMPERATURE.amplitude * Math.sin(2 * Math.PI * (lakePhase(start) + index / LAKE_TEMPERATURE.samplesPerCycle))),
   },
   {
     slug: 'orlemere-oxygen-probe',
@@ -298,11 +368,13 @@ const PLANS: SeriesPlan[] = [
     settings: { ...LIVE, seed: 15, detrend: 'linear', span: 'P5Y', window: 0.5 },
     rules: CONTROL_RULES,
     generate: () => {
-      const x = simulateDrift({ n: OXYGEN.n, phi: 0.5, sigma: 0.15, mean: 10.4, driftPerSample: OXYGEN.drift, seed: DEMO_SEED, stream: 5 });
+      const x = simulateDrift({ n: OXYGEN.n, phi: 0.5, sigma: 0.15, mean: OXYGEN.mean, driftPerSample: OXYGEN.drift, seed: DEMO_SEED, stream: 5 });
       // Cleaning removes the fouling: from then on the reading has lost only the drift since the cleaning.
       for (let t = OXYGEN.cleaning; t < x.length; t++) x[t] -= OXYGEN.drift * OXYGEN.cleaning;
       return { values: toUnits(x, 1, 3) };
     },
+    delivery: 'drop',
+    next: ar1Next(0.5, 0.15, 3, oxygenLevel),
     maintenance: { index: OXYGEN.cleaning, note: 'Probe cleaned and recalibrated: readings jump back to the clean-probe level.' },
   },
   {
@@ -321,10 +393,11 @@ const PLANS: SeriesPlan[] = [
     settings: { ...LIVE, seed: 16, span: 'P8Y', window: 0.5 },
     rules: [...SLOWING_DOWN_RULES, HIGH_MEMORY_RULE],
     generate: () => {
-      const rate = (FEN.endShare * GRAZING_FOLDS.collapse.c - FEN.c0) / ((FEN.n - 1) * FEN.dt);
-      const run = simulateGrazing({ ...GRAZING, ...FEN, rate, substeps: 10, seed: DEMO_SEED, stream: 6 });
+      const run = simulateGrazing({ ...GRAZING, ...FEN, rate: FEN_RATE, substeps: 10, seed: DEMO_SEED, stream: 6 });
       return { values: toUnits(run.values, 40, 1), run };
     },
+    delivery: 'drop',
+    next: sdeNext(grazingDynamics({ ...GRAZING, ...FEN, rate: FEN_RATE }), FEN.dt, 40, 1),
   },
   {
     slug: 'brandwhistle-water-table',
@@ -341,6 +414,8 @@ const PLANS: SeriesPlan[] = [
     settings: { ...LIVE, seed: 17, span: 'P4Y', window: 'P1Y' },
     rules: CONTROL_RULES,
     generate: () => ({ values: toUnits(simulateAr1({ n: 2000, phi: 0.85, sigma: 1.2, mean: -24, seed: DEMO_SEED, stream: 7 }), 1, 1) }),
+    delivery: 'drop',
+    next: ar1Next(0.85, 1.2, 1, () => -24),
   },
   {
     slug: 'kestrith-temperature-anomaly',
@@ -358,8 +433,10 @@ const PLANS: SeriesPlan[] = [
     settings: { ...LIVE, seed: 18, span: 'P5Y', window: 0.5 },
     rules: SLOWING_DOWN_RULES,
     generate: () => ({
-      values: toUnits(simulateDoubleWell({ n: 3650, dt: 0.25, substeps: 10, amplitude: 0.12, period: 66, sigma: 0.5, x0: -1, seed: DEMO_SEED, stream: 8 }), 1.8, 3),
+      values: toUnits(simulateDoubleWell({ n: 3650, ...DOUBLE_WELL, substeps: 10, x0: -1, seed: DEMO_SEED, stream: 8 }), 1.8, 3),
     }),
+    delivery: 'drop',
+    next: sdeNext(doubleWellDynamics(DOUBLE_WELL), DOUBLE_WELL.dt, 1.8, 3),
   },
   {
     slug: 'kestrith-station-pressure',
@@ -376,6 +453,8 @@ const PLANS: SeriesPlan[] = [
     settings: { ...LIVE, seed: 19, span: '1000 points', window: '250 points' },
     rules: CONTROL_RULES,
     generate: () => ({ values: toUnits(simulateAr1({ n: 1500, phi: 0.3, sigma: 4, mean: 912, seed: DEMO_SEED, stream: 9 }), 1, 1) }),
+    delivery: 'push',
+    next: ar1Next(0.3, 4, 1, () => 912),
   },
 ];
 
@@ -383,13 +462,43 @@ const PLANS: SeriesPlan[] = [
 export const DEMO_SERIES_SLUGS: readonly string[] = PLANS.map((plan) => plan.slug);
 
 /**
- * Builds the whole demo network with records ending at `demoRecordEnd(now)`: each series' create input,
- * sample instants and values, marked tipping points and alert rules. Deterministic for a given end day.
+ * How a demo station delivers its live points: 'drop' writes CSV files into the series' drop folder, 'push' sends
+ * them to the push API with an ingest token, 'intermittent' is a drop-folder logger that goes silent for stretches
+ * and then sends everything it held at once.
+ */
+export type DemoDelivery = 'drop' | 'push' | 'intermittent';
+
+/** What the demo feed needs to continue one demo series. */
+export interface DemoFeedModel {
+  slug: string;
+  intervalMs: number;
+  delivery: DemoDelivery;
+  /** The series' position in the network (1-based), the stream its record was drawn from; live points use their own streams of it. */
+  position: number;
+  /**
+   * The value of sample `index` (0 = the record's first sample, at instant `start`) from the stored value of sample
+   * index − 1, both in the series' units, drawing from `rng`: the record's model continued one step. O(1).
+   */
+  next: (previous: number, index: number, rng: RandomStream, start: number) => number;
+}
+
+/** The live continuation of every demo series, in seeding order. */
+export const DEMO_FEED_MODELS: readonly DemoFeedModel[] = PLANS.map((plan, k) => ({
+  slug: plan.slug,
+  intervalMs: plan.intervalMs,
+  delivery: plan.delivery,
+  position: k + 1,
+  next: plan.next,
+}));
+
+/**
+ * Builds the whole demo network with each record ending at `demoRecordEnd(now, interval)`: each series' create
+ * input, sample instants and values, marked tipping points and alert rules. Deterministic for a given end instant.
  * Cost O(total samples × substeps), a few milliseconds.
  */
 export function buildDemoScenario(now: Date = new Date()): DemoSeries[] {
-  const end = demoRecordEnd(now);
   return PLANS.map((plan) => {
+    const end = demoRecordEnd(now, plan.intervalMs);
     const start = end - (plan.n - 1) * plan.intervalMs;
     const times = new Float64Array(plan.n);
     for (let i = 0; i < plan.n; i++) times[i] = start + i * plan.intervalMs;

@@ -60,8 +60,8 @@ async function fillSeries(series: Series, demo: DemoSeries, actorId: number | nu
 }
 
 /**
- * Seeds the demo network (lib/demo/scenario.ts) with records ending today: each series through
- * `createSeries`, then its observations, rules, tipping points and watches in one transaction per series.
+ * Seeds the demo network (lib/demo/scenario.ts) with records ending just before now (demoRecordEnd): each series through
+ * `createSeries`, then its observations, rules, marks and watches in one transaction per series.
  * Resumable: a series whose registry entry exists but holds no observations (a crash between the two
  * transactions) is filled now; a filled one is left alone. Returns what this call added.
  */
@@ -83,6 +83,13 @@ export async function seedDemoScenario(actorId: number | null): Promise<{ series
   }
   await recordAudit({ actorId, action: 'demo.seed', entity: 'series', details: { series: seriesAdded, observations } });
   return { series: seriesAdded, observations };
+}
+
+/** Whether this installation's seed, finished, included the demo network (what the demo feed continues). */
+export async function demoSeeded(): Promise<boolean> {
+  if (!(await readAppState(SEED_COMPLETED))) return false;
+  const started = await readAppState(SEED_STARTED);
+  return started !== null && (JSON.parse(started.value) as { demo?: boolean }).demo === true;
 }
 
 /**

@@ -1,5 +1,5 @@
-import 'server-only';
 import crypto from 'node:crypto';
+import type { Transaction } from 'sequelize';
 import { IngestToken, db, writeTransaction } from '@/models';
 import { NotFoundError } from '@/lib/http/errors';
 import { recordAudit } from '@/lib/audit';
@@ -18,14 +18,19 @@ export function presentToken(token: IngestToken) {
   };
 }
 
-/** Issues a push token for one series: 32 random bytes, base64url, with a `bwi_` prefix so a leaked one is recognisable. */
-export async function issueIngestToken(seriesId: number, label: string, actor: Pick<Actor, 'id'>): Promise<{ id: number; token: string }> {
+/**
+ * Issues a push token for one series: 32 random bytes, base64url, with a `bwi_` prefix so a leaked one is
+ * recognisable. `actor` null: issued by Brinkwatch itself (the demo's push station). Inside `transaction` when one
+ * is given, so a caller can keep what it needs of the token in the same commit.
+ */
+export async function issueIngestToken(seriesId: number, label: string, actor: Pick<Actor, 'id'> | null, transaction?: Transaction): Promise<{ id: number; token: string }> {
   const token = `bwi_${crypto.randomBytes(32).toString('base64url')}`;
-  return writeTransaction(async (transaction) => {
-    const row = await IngestToken.create({ seriesId, tokenHash: hashIngestToken(token), label, createdBy: actor.id, lastUsedAt: null, revokedAt: null }, { transaction });
-    await recordAudit({ actorId: actor.id, action: 'ingest-token.issue', entity: 'ingest-token', entityId: row.id, details: { seriesId, label } }, transaction);
+  const issue = async (within: Transaction) => {
+    const row = await IngestToken.create({ seriesId, tokenHash: hashIngestToken(token), label, createdBy: actor?.id ?? null, lastUsedAt: null, revokedAt: null }, { transaction: within });
+    await recordAudit({ actorId: actor?.id ?? null, action: 'ingest-token.issue', entity: 'ingest-token', entityId: row.id, details: { seriesId, label } }, within);
     return { id: row.id, token };
-  });
+  };
+  return transaction ? issue(transaction) : writeTransaction(issue);
 }
 
 export async function listIngestTokens(seriesId: number): Promise<IngestToken[]> {

@@ -74,6 +74,12 @@ export const configSchema = z.object({
   MAIL_CRON: cron('*/15 * * * * *'),
   DIGEST_CRON: cron('0 7 * * *'),
   BACKTEST_CRON: cron('*/5 * * * * *'),
+  /**
+   * How often the live demo's stations deliver (lib/demo/feed.ts); only when the demo is seeded and SEED_DEMO is not 0.
+   * Every 2 minutes at half past the minute, between the ticks of the intake and analysis jobs, so a delivery is taken
+   * in by the next intake pass and analysed in the next analysis cycle instead of racing them on the same tick.
+   */
+  DEMO_FEED_CRON: cron('30 */2 * * * *'),
   START_SCHEDULER: flag(true),
   /** Web processes sharing the port; unset = one per core (read by scripts/web.mjs after the start script validated it). */
   WEB_WORKERS: whole(1, 1, 256).optional(),
@@ -133,7 +139,7 @@ export function publicBaseUrl(): string {
   return (config().NEXTAUTH_URL ?? `http://localhost:${appPort()}`).replace(/\/$/, '');
 }
 
-export function cronSetting(name: 'INGEST_CRON' | 'ANALYSIS_CRON' | 'MAIL_CRON' | 'DIGEST_CRON' | 'BACKTEST_CRON'): string {
+export function cronSetting(name: 'INGEST_CRON' | 'ANALYSIS_CRON' | 'MAIL_CRON' | 'DIGEST_CRON' | 'BACKTEST_CRON' | 'DEMO_FEED_CRON'): string {
   return config()[name];
 }
 

@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { DEMO_SERIES_SLUGS, DEMO_SITES, buildDemoScenario, demoRecordEnd, demoMarks } from '@/lib/demo/scenario';
+import { DEMO_BACKLOG_SAMPLES, DEMO_SERIES_SLUGS, DEMO_SITES, buildDemoScenario, demoRecordEnd, demoMarks } from '@/lib/demo/scenario';
+import { LATE_AFTER_INTERVALS, freshnessOf } from '@/lib/overview';
 import { seriesCreateSchema } from '@/lib/schemas/series';
 import { analysisSettingsSchema } from '@/lib/engine/settings';
 import { runAnalysis } from '@/lib/engine/analyze';
@@ -10,7 +11,8 @@ const bySlug = new Map(scenario.map((s) => [s.input.slug, s]));
 
 describe('demo scenario', () => {
   it('is deterministic: the same end day gives byte-identical records, rules and marks', () => {
-    const again = buildDemoScenario(new Date('2031-05-17T00:00:01Z'));
+    // The same day and the same hour: every record (daily and hourly) ends where it did.
+    const again = buildDemoScenario(new Date('2031-05-17T15:00:01Z'));
     expect(again.map((s) => s.input)).toEqual(scenario.map((s) => s.input));
     for (let k = 0; k < scenario.length; k++) {
       expect(Buffer.from(again[k].values.buffer).equals(Buffer.from(scenario[k].values.buffer))).toBe(true);
@@ -19,15 +21,23 @@ describe('demo scenario', () => {
     expect(demoMarks(NOW)).toEqual(scenario.flatMap((s) => s.marks.map((t) => ({ slug: s.input.slug, ...t }))));
   });
 
-  it('has 8–10 series on 3–4 fictional sites, each a valid series with 1,000–5,000 samples ending today at 00:00 UTC', () => {
+  it('has 8–10 series on 3–4 fictional sites, each a valid series with 1,000–5,000 samples ending a backlog of intervals before now, and fresh', () => {
     expect(scenario.length).toBeGreaterThanOrEqual(8);
     expect(scenario.length).toBeLessThanOrEqual(10);
     expect(new Set(scenario.map((s) => s.input.site))).toEqual(new Set(Object.values(DEMO_SITES)));
     expect(DEMO_SERIES_SLUGS).toEqual(scenario.map((s) => s.input.slug));
     expect(new Set(DEMO_SERIES_SLUGS).size).toBe(DEMO_SERIES_SLUGS.length);
-    const end = demoRecordEnd(NOW);
-    expect(end).toBe(Date.UTC(2031, 4, 17));
+    // Daily records end two days before 00:00 UTC of the current day, hourly ones two hours before the current full hour.
+    expect(DEMO_BACKLOG_SAMPLES).toBe(2);
+    expect(demoRecordEnd(NOW, 86_400_000)).toBe(Date.UTC(2031, 4, 15));
+    expect(demoRecordEnd(NOW, 3_600_000)).toBe(Date.UTC(2031, 4, 17, 13));
+    expect(DEMO_BACKLOG_SAMPLES).toBeLessThan(LATE_AFTER_INTERVALS);
     for (const s of scenario) {
+      const end = demoRecordEnd(NOW, s.input.intervalMs);
+      // Not late at seeding, even at the last moment of the grid step (one ms before the next instant).
+      const lastMoment = end + (DEMO_BACKLOG_SAMPLES + 1) * s.input.intervalMs - 1;
+      expect(freshnessOf(end, s.input.intervalMs, NOW.getTime())).toBe('fresh');
+      expect(freshnessOf(end, s.input.intervalMs, lastMoment)).toBe('fresh');
       expect(() => seriesCreateSchema.parse(s.input)).not.toThrow();
       expect(s.input.settings).toEqual(analysisSettingsSchema.parse(s.input.settings));
       // Benjamini–Hochberg at q = 0.05 over the demo's m series passes nothing unless N ≥ m/q − 1 (its step-up
