@@ -21,6 +21,7 @@ import { UserToken } from './UserToken';
 import { Transition } from './Transition';
 import { BacktestJob } from './BacktestJob';
 import { AppState } from './AppState';
+import { UserPreference } from './UserPreference';
 
 const initialised = new WeakSet<Sequelize>();
 
@@ -59,12 +60,13 @@ function associate(): void {
   Series.hasMany(Transition, { foreignKey: 'seriesId', as: 'transitions' });
   BacktestJob.belongsTo(AlertRule, { foreignKey: 'ruleId', as: 'rule' });
   BacktestJob.belongsTo(Series, { foreignKey: 'seriesId', as: 'series' });
+  UserPreference.belongsTo(User, { foreignKey: 'userId', as: 'user' });
 }
 
 const MODELS = [
   User, Series, Observation, IngestRun, AnalysisSnapshot, AlertRule, RuleEvaluation, Alert, AlertEvent, Note,
   NoteRevision, IngestToken, MailMessage, AuditEntry, Watch, Lease, SettingsChange, SignInThrottle, UserToken,
-  Transition, BacktestJob, AppState,
+  Transition, BacktestJob, AppState, UserPreference,
 ];
 
 /** Binds the models to this process's one Sequelize instance (idempotent) and returns it once it is ready. */
@@ -81,7 +83,7 @@ export async function db(): Promise<Sequelize> {
 export {
   User, Series, Observation, IngestRun, AnalysisSnapshot, AlertRule, RuleEvaluation, Alert, AlertEvent, Note,
   NoteRevision, IngestToken, MailMessage, AuditEntry, Watch, Lease, SettingsChange, SignInThrottle, UserToken,
-  Transition, BacktestJob, AppState,
+  Transition, BacktestJob, AppState, UserPreference,
 };
 /**
  * `writeTransaction` of models/db.ts with the models bound first: a web worker's first request may be a write
