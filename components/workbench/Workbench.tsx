@@ -3,7 +3,7 @@
 import { keepPreviousData, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import Link from 'next/link';
 import { useRouter } from 'next/navigation';
-import { useEffect, useState } from 'react';
+import { useState } from 'react';
 import { api } from '@/components/api';
 import { Empty, ErrorNote, Loading, Panel } from '@/components/States';
 import { SensitivityHeatmap } from '@/components/charts/SensitivityHeatmap';
@@ -17,16 +17,10 @@ import type { SettingsHistoryEntry } from '@/lib/analysis/settings-history';
 import { AnalysisCharts, type ChartSeries } from './AnalysisCharts';
 import { SettingsHistory } from './SettingsHistory';
 import { TuningPanel } from './TuningPanel';
+import { useDebounced } from './use-debounced';
+import { ChartChooser } from './ChartChooser';
+import type { SeriesChart } from '@/lib/schemas/account';
 import { Button, buttonClass } from '@/components/ui/Button';
-
-function useDebounced<T>(value: T, ms: number): T {
-  const [debounced, setDebounced] = useState(value);
-  useEffect(() => {
-    const timer = setTimeout(() => setDebounced(value), ms);
-    return () => clearTimeout(timer);
-  }, [value, ms]);
-  return debounced;
-}
 
 const same = (a: unknown, b: unknown) => JSON.stringify(a) === JSON.stringify(b);
 const linkButton = buttonClass('secondary');
@@ -40,6 +34,8 @@ export interface WorkbenchProps {
   transitions: { at: number; note: string; kind?: 'transition' | 'maintenance' }[];
   history: SettingsHistoryEntry[];
   quality: React.ReactNode;
+  /** the reader's saved choice of charts, in order (their preferences) */
+  charts: SeriesChart[];
 }
 
 async function downloadPosted(slug: string, settings: AnalysisSettings, format: 'csv' | 'json') {
@@ -61,7 +57,8 @@ async function downloadPosted(slug: string, settings: AnalysisSettings, format: 
  * The series workbench: evidence charts of the saved analysis, and for analysts a tuning form whose changes are
  * recomputed (debounced) by the preview endpoint without saving; leads save the settings they settle on.
  */
-export function Workbench({ series, savedSettings, initialView, canTune, canSave, transitions, history, quality }: WorkbenchProps) {
+export function Workbench({ series, savedSettings, initialView, canTune, canSave, transitions, history, quality, charts: savedCharts }: WorkbenchProps) {
+  const [charts, setCharts] = useState(savedCharts);
   const router = useRouter();
   const queryClient = useQueryClient();
   const [saved, setSaved] = useState(savedSettings);
@@ -109,7 +106,10 @@ export function Workbench({ series, savedSettings, initialView, canTune, canSave
         {preview.isError ? <ErrorNote error={preview.error}>These settings cannot be applied to this record.</ErrorNote> : null}
         {view ? (
           <>
-            <AnalysisCharts view={view} series={series} transitions={transitions} />
+            <AnalysisCharts view={view} series={series} transitions={transitions} charts={charts} />
+            {charts.every((key) => key !== 'record' && key !== 'residuals' && !view.indicators.includes(key)) ? (
+              <Empty>No chart chosen. Tick the charts to show under “Charts shown”.</Empty>
+            ) : null}
             <Panel title="Significance against surrogate data" id="significance">
               {Object.keys(view.significance).length === 0 ? (
                 <Empty>No surrogates in these settings. Set a number of surrogate series to test each trend against chance.</Empty>
@@ -161,6 +161,9 @@ export function Workbench({ series, savedSettings, initialView, canTune, canSave
             {save.isSuccess && !changed ? <p role="status" className="mt-2 text-sm text-calm">✓ Saved. The next analysis run uses these settings.</p> : null}
           </Panel>
         ) : null}
+        <Panel title="Charts shown" id="charts">
+          <ChartChooser available={['record', 'residuals', ...(view?.indicators ?? [])]} chosen={charts} onChange={setCharts} />
+        </Panel>
         <Panel title="Exports" id="exports">
           <div className="flex flex-wrap gap-2">
             <a className={linkButton} href={`/api/series/${series.slug}/indicators?format=csv`} download>Indicators (CSV)</a>
