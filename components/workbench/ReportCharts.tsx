@@ -2,8 +2,14 @@
 
 import { AnalysisCharts, type ChartSeries } from './AnalysisCharts';
 import type { AnalysisView } from '@/lib/analysis/view';
+import type { IndicatorName } from '@/lib/engine/settings';
 
-/** The report's charts: the record and the first two indicators, so the page fits on one printed sheet. */
-export function ReportCharts({ view, series, transitions }: { view: AnalysisView; series: ChartSeries; transitions: { at: number; note: string; kind?: 'transition' | 'maintenance' }[] }) {
-  return <AnalysisCharts view={{ ...view, indicators: view.indicators.slice(0, 2) }} series={series} transitions={transitions} idPrefix="report" compact />;
+/** The report's charts: the record and the indicators the series' rules watch, small enough to fit one printed sheet. */
+export function ReportCharts({ view, series, transitions, indicators }: {
+  view: AnalysisView;
+  series: ChartSeries;
+  transitions: { at: number; note: string; kind?: 'transition' | 'maintenance' }[];
+  indicators: IndicatorName[];
+}) {
+  return <AnalysisCharts view={view} series={series} transitions={transitions} idPrefix="report" compact charts={['record', ...indicators]} />;
 }

@@ -42,3 +42,18 @@ export function evidenceRows(view: Pick<AnalysisView, 'indicators' | 'kendall' |
   });
   return rows.sort((a, b) => Number(b.rules.length > 0) - Number(a.rules.length > 0));
 }
+
+/** What a report charts when the series has no rule: the two indicators most early-warning work reads first (common practice). */
+const REPORT_FALLBACK: IndicatorName[] = ['ac1', 'variance'];
+
+/**
+ * The indicators the one-page report charts: those the series' active rules watch (paused ones too when none is
+ * active), in the order the rules were written; without rules, lag-1 autocorrelation and variance. Only computed
+ * indicators are charted. Pure.
+ */
+export function reportIndicators(computed: readonly IndicatorName[], rules: { indicator: string; active: boolean }[]): IndicatorName[] {
+  const active = rules.filter((r) => r.active);
+  const watched = [...new Set((active.length ? active : rules).map((r) => r.indicator as IndicatorName))];
+  const chosen = (watched.length ? watched : REPORT_FALLBACK).filter((name) => computed.includes(name));
+  return chosen.length ? chosen : REPORT_FALLBACK.filter((name) => computed.includes(name));
+}
