@@ -45,10 +45,13 @@ describe('rules, who hears and chart choice on the series page (Chromium)', () =
     // a demo series once the scheduler has analysed it, so the draft has something to be judged on
     const { items } = await (await leadApi.fetch('/api/series')).json();
     slug = items[0].slug;
-    await expect.poll(async () => {
+    const deadline = Date.now() + 120_000;
+    for (;;) {
       const answer = await (await leadApi.json(`/api/series/${slug}/rules/preview`, 'POST', { rule: { indicator: 'ac1', minTau: 0.3 } })).json();
-      return answer.snapshot?.status ?? null;
-    }, { timeout: 120_000, interval: 2000 }).toBe('ok');
+      if (answer.snapshot?.status === 'ok') break;
+      if (Date.now() > deadline) throw new Error(`${slug} was not analysed within 120 s`);
+      await new Promise((r) => setTimeout(r, 2000));
+    }
   }, 600_000);
 
   afterAll(async () => {
@@ -76,7 +79,7 @@ describe('rules, who hears and chart choice on the series page (Chromium)', () =
     const rules = (await (await leadApi.fetch(`/api/series/${slug}/rules`)).json()).items as { id: number; indicator: string; maxSurrogateP: number | null }[];
     const created = rules.find((r) => r.indicator === 'variance' && r.maxSurrogateP === 0.05);
     expect(created, 'the rule written in the editor').toBeDefined();
-    await page.locator(`li[data-rule="${created!.id}"]`).waitFor();
+    await page.getByTestId('rule-statuses').locator(`li[data-rule="${created!.id}"]`).waitFor();
 
     await page.getByTestId(`rule-edit-${created!.id}`).click();
     await editor.getByTestId('rule-min-tau').fill('0.4');
