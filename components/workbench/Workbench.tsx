@@ -86,6 +86,8 @@ export function Workbench({ series, savedSettings, initialView, canTune, canSave
   const showingPreview = canTune && (changed || initialView === null) && preview.data !== undefined;
   const view = showingPreview ? preview.data! : initialView;
   const pending = draft !== debounced || preview.isFetching;
+  // Surrogate histograms of the indicators the reader charts, in the same order, so the page stays as long as they chose.
+  const tested = view ? (charts.filter((key) => (view.indicators as string[]).includes(key) && view.significance[key as keyof AnalysisView['significance']]) as (keyof AnalysisView['significance'])[]) : [];
 
   return (
     <div className="grid grid-cols-1 gap-4 lg:grid-cols-[minmax(0,1fr)_320px]">
@@ -113,9 +115,11 @@ export function Workbench({ series, savedSettings, initialView, canTune, canSave
             <Panel title="Significance against surrogate data" id="significance">
               {Object.keys(view.significance).length === 0 ? (
                 <Empty>No surrogates in these settings. Set a number of surrogate series to test each trend against chance.</Empty>
+              ) : tested.length === 0 ? (
+                <Empty>Tick an indicator under “Charts shown” to see its surrogate taus here; the evidence table above lists every indicator’s p.</Empty>
               ) : (
                 <div className="grid grid-cols-1 gap-3 md:grid-cols-2">
-                  {view.indicators.filter((name) => view.significance[name]).map((name) => {
+                  {tested.map((name) => {
                     const s = view.significance[name]!;
                     return (
                       <ChartFrame key={name} title={`${indicatorLabel(name, 'title')}: surrogate taus`} fileName={`${series.slug}-${name}-surrogates`}
