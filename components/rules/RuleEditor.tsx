@@ -136,7 +136,9 @@ export function RuleEditor({ slug, ruleId, initial, indicators, templates, onClo
     },
   });
   const error = save.error ?? backtest.error ?? preview.error;
-  const errorOf = (field: string) => fieldError(error, field);
+  // The server's answer to a save wins; before one, the preview says what a save would refuse.
+  const refused = preview.data?.refused ?? {};
+  const errorOf = (field: string) => fieldError(error, field) ?? refused[field]?.join(' ') ?? null;
 
   return (
     <form
@@ -222,6 +224,7 @@ export function RuleEditor({ slug, ruleId, initial, indicators, templates, onClo
         {preview.isFetching && !preview.isLoading ? <p className="text-xs text-ink-soft">Judging the draft…</p> : null}
       </section>
 
+      {refused._ ? <ErrorNote>{refused._.join(' ')}</ErrorNote> : null}
       {error ? <ErrorNote error={error}>{error === preview.error ? 'This draft is not a valid rule yet.' : 'Not done.'}</ErrorNote> : null}
       {backtest.data ? (
         <p role="status" className="text-sm text-calm" data-testid="rule-backtest-started">

@@ -4,6 +4,7 @@ import type { RuleFields } from '@/lib/schemas/rule';
 import { fdrFamilyOutside, judgeRule, type Judgement, type RuleThresholds } from './evaluate';
 import { indicatorFacts, snapshotTaus, type StoredSummary } from './evidence';
 import { portfolioFdr } from './portfolio-fdr';
+import { judgeabilityProblems } from './rules';
 import { tauThreshold, tauWithDirection } from './wording';
 import { indicatorLabel } from '@/lib/display/analysis-labels';
 import { formatP, formatValue } from '@/lib/display/format';
@@ -69,20 +70,26 @@ export function previewRule(rule: PreviewRule, summary: StoredSummary, qValue: n
 export interface DraftPreview {
   snapshot: { id: number; createdAt: string; status: string; error: string | null } | null;
   preview: RulePreview | null;
+  /** why saving the draft would be refused, by field (the same checks the save makes); empty when it would not */
+  refused: Record<string, string[]>;
 }
 
 /**
  * What a draft rule says now: `previewRule` on the series' latest analysis. Surrogate taus are read only when the
  * draft looks another way than the stored p; with a false-discovery level the draft's p joins the current family
  * (every other active FDR rule's latest p; `replacing` leaves out the stored rule the draft edits) for its q-value.
- * A failed latest analysis is reported, not judged. Two indexed reads, three with taus or a family.
+ * A failed latest analysis is reported, not judged. With it, what a save would refuse (`judgeabilityProblems`).
+ * A few indexed reads.
  */
 export async function previewDraftRule(seriesId: number, draft: RuleFields, replacing: number | null): Promise<DraftPreview> {
   await db();
-  const snapshot = await AnalysisSnapshot.findOne({ where: { seriesId }, order: [['id', 'DESC']], attributes: WITHOUT_CHARTS });
-  if (!snapshot) return { snapshot: null, preview: null };
+  const [snapshot, { fields: refused }] = await Promise.all([
+    AnalysisSnapshot.findOne({ where: { seriesId }, order: [['id', 'DESC']], attributes: WITHOUT_CHARTS }),
+    judgeabilityProblems(seriesId, draft),
+  ]);
+  if (!snapshot) return { snapshot: null, preview: null, refused };
   const header = { id: snapshot.id, createdAt: snapshot.createdAt.toISOString(), status: snapshot.status, error: snapshot.error };
-  if (snapshot.status !== 'ok') return { snapshot: header, preview: null };
+  if (snapshot.status !== 'ok') return { snapshot: header, preview: null, refused };
   const summary = (snapshot.summary ?? {}) as StoredSummary;
   const direction = trendDirectionOf(draft.direction);
   const taus = indicatorFacts(summary, draft.indicator, direction).needsTaus ? await snapshotTaus(snapshot.id, draft.indicator) : null;
@@ -93,5 +100,5 @@ export async function previewDraftRule(seriesId: number, draft: RuleFields, repl
     const decisions = portfolioFdr([...family, { ruleId: -1, seriesId, fdrLevel: draft.fdrLevel, surrogateP: own }]);
     qValue = decisions[decisions.length - 1].qValue;
   }
-  return { snapshot: header, preview: previewRule(draft, summary, qValue, taus) };
+  return { snapshot: header, preview: previewRule(draft, summary, qValue, taus), refused };
 }

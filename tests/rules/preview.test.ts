@@ -67,7 +67,7 @@ describe('previewRule (pure)', () => {
 describe('previewDraftRule (on a stored series)', () => {
   it('judges the draft on the latest snapshot without saving anything', async () => {
     const series = await makeSeries();
-    expect(await previewDraftRule(series.id, ruleCreateSchema.parse({ indicator: 'ac1', minTau: 0.3 }), null)).toEqual({ snapshot: null, preview: null });
+    expect(await previewDraftRule(series.id, ruleCreateSchema.parse({ indicator: 'ac1', minTau: 0.3 }), null)).toEqual({ snapshot: null, preview: null, refused: {} });
     await makeSnapshot(series, { tau: 0.1, surrogateP: 0.4 });
     const latest = await makeSnapshot(series, { tau: 0.7, surrogateP: 0.01 });
     const { snapshot, preview } = await previewDraftRule(series.id, ruleCreateSchema.parse({ indicator: 'ac1', minTau: 0.3, maxSurrogateP: 0.05 }), null);
@@ -81,6 +81,7 @@ describe('previewDraftRule (on a stored series)', () => {
     await makeSnapshot(series, { tau: null }, { status: 'error', error: 'record too short for the window' });
     const result = await previewDraftRule(series.id, ruleCreateSchema.parse({ indicator: 'ac1', minTau: 0.3 }), null);
     expect(result.preview).toBeNull();
+    expect(result.refused._?.[0]).toMatch(/too short/);
     expect(result.snapshot).toMatchObject({ status: 'error', error: 'record too short for the window' });
   });
 
@@ -93,6 +94,17 @@ describe('previewDraftRule (on a stored series)', () => {
     const alone = await previewDraftRule(series.id, draft, stored.id);
     expect(alone.preview?.judgement.qValue).toBeCloseTo(0.01, 12);
     expect(alone.preview?.verdict).toBe('passes');
+  });
+
+  it('says before any save what the save would refuse: a p below the surrogate floor, an indicator not computed', async () => {
+    const series = await makeSeries();
+    await series.update({ settings: { window: 0.5, detrend: 'gaussian', bandwidth: 0.1, surrogates: 19, indicators: ['ac1', 'variance'] } });
+    await makeSnapshot(series, { tau: 0.7, surrogateP: 0.05, count: 19 });
+    // 19 surrogates: the smallest Monte Carlo p is 1/(19 + 1) = 0.05 (Davison & Hinkley 1997, Sec. 4.2.1, from memory), so p ≤ 0.01 can never pass.
+    const { refused } = await previewDraftRule(series.id, ruleCreateSchema.parse({ indicator: 'recovery', minTau: 0.3, maxSurrogateP: 0.01 }), null);
+    expect(Object.keys(refused).sort()).toEqual(['indicator', 'maxSurrogateP']);
+    expect(refused.indicator[0]).toMatch(/does not compute recovery rate/);
+    expect(refused.maxSurrogateP[0]).toMatch(/1\/20 = 0.050/);
   });
 
   it('the preview body is validated by the rule schema: a Kendall p gate is refused', () => {

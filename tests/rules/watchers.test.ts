@@ -75,7 +75,7 @@ describe('preferences and the rule preview over HTTP', () => {
   it('an analyst previews a draft (nothing analysed yet); a viewer may not; a Kendall p gate is a 422', async () => {
     const preview = await analyst.json(`/api/series/${SLUG}/rules/preview`, 'POST', { rule: { indicator: 'ac1', minTau: 0.3 } });
     expect(preview.status).toBe(200);
-    expect(await preview.json()).toEqual({ snapshot: null, preview: null });
+    expect(await preview.json()).toEqual({ snapshot: null, preview: null, refused: {} });
     expect((await viewer.json(`/api/series/${SLUG}/rules/preview`, 'POST', { rule: { indicator: 'ac1', minTau: 0.3 } })).status).toBe(403);
     const gated = await analyst.json(`/api/series/${SLUG}/rules/preview`, 'POST', { rule: { indicator: 'ac1', minTau: 0.3, maxKendallP: 0.05 } });
     expect(gated.status).toBe(422);
