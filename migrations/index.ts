@@ -12,6 +12,7 @@ import * as transitionKind from './0008-transition-kind';
 import * as markNames from './0009-marks-and-triage-names';
 import * as analysisProvenance from './0012-analysis-provenance';
 import * as personalApiTokens from './0013-personal-api-tokens';
+import * as userPreferences from './0014-user-preferences';
 
 /**
  * The ordered list of schema changes. Listed explicitly (not globbed) so the same list works in the Next.js server
@@ -29,6 +30,7 @@ const MIGRATIONS = [
   { name: '0009-marks-and-triage-names', ...markNames },
   { name: '0012-analysis-provenance', ...analysisProvenance },
   { name: '0013-personal-api-tokens', ...personalApiTokens },
+  { name: '0014-user-preferences', ...userPreferences },
 ];
 
 async function migrator(): Promise<Umzug<QueryInterface>> {

@@ -22,6 +22,7 @@ import { Mark } from './Mark';
 import { BacktestJob } from './BacktestJob';
 import { AppState } from './AppState';
 import { ApiToken } from './ApiToken';
+import { UserPreference } from './UserPreference';
 
 const initialised = new WeakSet<Sequelize>();
 
@@ -61,12 +62,13 @@ function associate(): void {
   Series.hasMany(Mark, { foreignKey: 'seriesId', as: 'marks' });
   BacktestJob.belongsTo(AlertRule, { foreignKey: 'ruleId', as: 'rule' });
   BacktestJob.belongsTo(Series, { foreignKey: 'seriesId', as: 'series' });
+  UserPreference.belongsTo(User, { foreignKey: 'userId', as: 'user' });
 }
 
 const MODELS = [
   User, Series, Observation, IngestRun, AnalysisSnapshot, AlertRule, RuleEvaluation, Alert, AlertEvent, Note,
   NoteRevision, IngestToken, MailMessage, AuditEntry, Watch, Lease, SettingsChange, SignInThrottle, UserToken,
-  Mark, BacktestJob, AppState, ApiToken,
+  Mark, BacktestJob, AppState, ApiToken, UserPreference,
 ];
 
 /** Binds the models to this process's one Sequelize instance (idempotent) and returns it once it is ready. */
@@ -83,7 +85,7 @@ export async function db(): Promise<Sequelize> {
 export {
   User, Series, Observation, IngestRun, AnalysisSnapshot, AlertRule, RuleEvaluation, Alert, AlertEvent, Note,
   NoteRevision, IngestToken, MailMessage, AuditEntry, Watch, Lease, SettingsChange, SignInThrottle, UserToken,
-  Mark, BacktestJob, AppState, ApiToken,
+  Mark, BacktestJob, AppState, ApiToken, UserPreference,
 };
 /**
  * `writeTransaction` of models/db.ts with the models bound first: a web worker's first request may be a write

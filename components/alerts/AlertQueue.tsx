@@ -14,6 +14,7 @@ import { CELL, DataTable } from '@/components/ui/DataTable';
 import { CONTROL, Field } from '@/components/ui/Field';
 import { Pager, pageCount } from '@/components/ui/Pager';
 import { formatP, formatValue } from '@/lib/display/format';
+import { indicatorLabel } from '@/lib/display/analysis-labels';
 import { tauWithDirection } from '@/lib/alerts/wording';
 import type { AlertListItem } from '@/lib/alerts/queries';
 
@@ -143,7 +144,7 @@ export function AlertQueue({ initialFilters, initialPage, initialSeries }: { ini
           {data.items.map((a) => (
             <tr key={a.id} data-alert={a.id}>
               <td className={CELL}>
-                <Link href={`/alerts/${a.id}`} className="font-medium text-tide hover:underline">#{a.id} {a.rule ? a.rule.indicator : 'abrupt shift'}</Link>
+                <Link href={`/alerts/${a.id}`} className="font-medium text-tide hover:underline">#{a.id} {a.rule ? indicatorLabel(a.rule.indicator) : 'abrupt shift'}</Link>
                 <span className="block text-xs text-ink-soft" data-kind={a.kind}>{a.kind === 'abrupt-shift' ? 'abrupt shift' : 'slowing down'}</span>
               </td>
               <td className={CELL}><Link href={`/series/${a.series.slug}`} className="hover:underline">{a.series.name}</Link></td>

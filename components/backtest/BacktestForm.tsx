@@ -8,6 +8,7 @@ import { Button } from '@/components/ui/Button';
 import { CONTROL, Field } from '@/components/ui/Field';
 import type { RuleRecord } from '@/lib/alerts/rules';
 import { directionWord, ruleDirection } from './wording';
+import { indicatorLabel } from '@/lib/display/analysis-labels';
 
 /** The settings of a new backtest of one of the series' rules; `onStarted` gets the queued job. */
 export function BacktestForm({ slug, rules, onStarted }: { slug: string; rules: RuleRecord[] | undefined; onStarted: (jobId: number) => void }) {
@@ -42,7 +43,7 @@ export function BacktestForm({ slug, rules, onStarted }: { slug: string; rules: 
         <select className={CONTROL} value={chosenRule ?? ''} onChange={(e) => setRuleId(Number(e.target.value))} disabled={!rules?.length}>
           {rules?.map((r) => (
             <option key={r.id} value={r.id}>
-              #{r.id} {r.indicator} τ ≥ {r.minTau} {directionWord(ruleDirection(r))} ({r.severity})
+              #{r.id} {indicatorLabel(r.indicator)} τ ≥ {r.minTau} {directionWord(ruleDirection(r))} ({r.severity})
             </option>
           ))}
         </select>

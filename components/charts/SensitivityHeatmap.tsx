@@ -2,6 +2,7 @@
 
 import { useState } from 'react';
 import { formatTau } from '@/lib/display/format';
+import { indicatorLabel } from '@/lib/display/analysis-labels';
 import type { AnalysisView } from '@/lib/analysis/view';
 import { hexChannels, useChartPalette, type ChartPalette } from './theme';
 
@@ -36,12 +37,12 @@ export function SensitivityHeatmap({ grid, indicators }: { grid: NonNullable<Ana
       <label className="mb-2 flex items-center gap-2 text-sm">
         Indicator
         <select className="rounded border border-rule bg-card px-2 py-1 text-sm" value={indicator} onChange={(e) => setIndicator(e.target.value)}>
-          {available.map((name) => <option key={name} value={name}>{name}</option>)}
+          {available.map((name) => <option key={name} value={name}>{indicatorLabel(name, 'title')}</option>)}
         </select>
         {cells.positiveShare !== null ? <span className="text-ink-soft">{percent(cells.positiveShare)} of cells show a rising trend (tau &gt; 0)</span> : null}
       </label>
       <div className="overflow-x-auto">
-        <svg role="img" aria-label={`Kendall tau of ${indicator} for each rolling window and bandwidth`}
+        <svg role="img" aria-label={`Kendall tau of ${indicatorLabel(indicator)} for each rolling window and bandwidth`}
           viewBox={`0 0 ${60 + grid.windows.length * 34} ${30 + rows.length * 26}`} className="w-full min-w-[420px] max-w-3xl">
           {grid.windows.map((w, j) => (
             <text key={w} x={60 + j * 34 + 17} y={rows.length * 26 + 16} fontSize="10" textAnchor="middle" fill={colours['ink-soft']}>{percent(w)}</text>
@@ -76,7 +77,7 @@ export function SensitivityHeatmap({ grid, indicators }: { grid: NonNullable<Ana
         <summary className="cursor-pointer text-tide">Show the grid as a table</summary>
         <div className="overflow-x-auto">
           <table className="num mt-2 text-xs">
-            <caption className="sr-only">Kendall tau of {indicator} by bandwidth (rows) and window (columns)</caption>
+            <caption className="sr-only">Kendall tau of {indicatorLabel(indicator)} by bandwidth (rows) and window (columns)</caption>
             <thead>
               <tr>
                 <th scope="col" className="px-1 text-left">bandwidth \ window</th>

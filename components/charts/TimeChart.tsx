@@ -34,6 +34,8 @@ export interface TimeChartProps {
   /** where the analysed stretch starts and why (labelled when `label` is set) */
   stretchStart?: { at: number; label?: string } | null;
   zeroLine?: boolean;
+  /** the time axis, when several charts are stacked and must share it (small multiples); else it spans what this chart draws */
+  xDomain?: [number, number] | null;
 }
 
 /** Reference lines drawn as plain SVG lines that carry a test id, so browser tests find them without wording. */
@@ -77,17 +79,19 @@ function MarkText({ placed, colour, atRightEdge = false, viewBox }: {
  * shifts, the stretch start, one window) are laid out by `placeMarkLabels` so none overlap; those that do not fit
  * on the plot are listed under it.
  */
-export function TimeChart({ rows, lines, timeZone, unit = '', height = 220, windowBand, marks = [], shifts = [], stretchStart = null, zeroLine }: TimeChartProps) {
+export function TimeChart({ rows, lines, timeZone, unit = '', height = 220, windowBand, marks = [], shifts = [], stretchStart = null, zeroLine, xDomain = null }: TimeChartProps) {
   const colours = useChartPalette();
   const [width, setWidth] = useState(0);
   const first = rows[0]?.t ?? null;
   const last = rows[rows.length - 1]?.t ?? null;
-  const ticks = useMemo(() => (first !== null && last !== null ? calendarTicks(first, last, timeZone) : []), [first, last, timeZone]);
+  const tickFrom = xDomain?.[0] ?? first;
+  const tickTo = xDomain?.[1] ?? last;
+  const ticks = useMemo(() => (tickFrom !== null && tickTo !== null ? calendarTicks(tickFrom, tickTo, timeZone) : []), [tickFrom, tickTo, timeZone]);
   const labels = useMemo(() => new Map(ticks.map((tick) => [tick.t, tick.label])), [ticks]);
 
   // The axis spans the data, the window band and the stretch start; marks outside it are not drawn.
-  const lo = Math.min(...[first, windowBand?.from, stretchStart?.at].filter((v): v is number => v !== null && v !== undefined));
-  const hi = Math.max(...[last, windowBand?.to, stretchStart?.at].filter((v): v is number => v !== null && v !== undefined));
+  const lo = xDomain?.[0] ?? Math.min(...[first, windowBand?.from, stretchStart?.at].filter((v): v is number => v !== null && v !== undefined));
+  const hi = xDomain?.[1] ?? Math.max(...[last, windowBand?.to, stretchStart?.at].filter((v): v is number => v !== null && v !== undefined));
   const inside = (t: number) => t >= lo && t <= hi;
 
   // A handful of marks: laid out afresh on every render, after the container has measured itself.

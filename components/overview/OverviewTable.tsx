@@ -9,7 +9,7 @@ import { Sparkline } from '@/components/charts/Sparkline';
 import { Button } from '@/components/ui/Button';
 import { DataTable } from '@/components/ui/DataTable';
 import { CONTROL, Field } from '@/components/ui/Field';
-import { formatDirection } from '@/lib/display/analysis-labels';
+import { formatDirection, indicatorLabel } from '@/lib/display/analysis-labels';
 import { formatAge, formatP, formatTau } from '@/lib/display/format';
 import type { OverviewRow, SeriesState } from '@/lib/overview';
 
@@ -175,7 +175,7 @@ export function OverviewTable({ rows, sites, now }: { rows: OverviewRow[]; sites
               </td>
               <td className="hidden px-3 py-2 sm:table-cell">
                 {row.spark ? (
-                  <Sparkline path={row.spark.path} label={`Rolling ${row.spark.indicator} of ${row.name}`} />
+                  <Sparkline path={row.spark.path} label={`Rolling ${indicatorLabel(row.spark.indicator)} of ${row.name}`} />
                 ) : (
                   <span className="text-ink-faint">–</span>
                 )}

@@ -5,6 +5,7 @@ import { ChartFrame } from '@/components/charts/ChartFrame';
 import { TimeChart } from '@/components/charts/TimeChart';
 import { chartRows } from '@/lib/analysis/chart-rows';
 import type { AnalysisView } from '@/lib/analysis/view';
+import type { SeriesChart } from '@/lib/schemas/account';
 import { formatP } from '@/lib/display/format';
 import { formatTauDirection, indicatorLabel, stretchReason } from '@/lib/display/analysis-labels';
 
@@ -31,17 +32,21 @@ function trendLegend(view: AnalysisView, name: string): string {
 }
 
 /**
- * The evidence charts of one analysis: raw series with trend, residuals, and every indicator's rolling curve,
- * each with the span of one rolling window drawn at the end, the marked tipping points and detected abrupt shifts
- * marked, and a line where the analysed stretch starts (labelled with its reason on the record chart).
+ * The evidence charts of one analysis as small multiples: the record with its trend, the residuals and each
+ * indicator's rolling curve, in the reader's order (`charts`; indicators the analysis lacks are skipped), all on
+ * one shared time axis (same domain, same y-axis width, so instants line up down the stack). Every chart draws the
+ * marked tipping points, maintenance breaks, detected abrupt shifts and the line where the analysed stretch starts
+ * (its reason written once, on the first chart); indicator charts also show the span of one rolling window.
  */
-export function AnalysisCharts({ view, series, marks = [], idPrefix = '', compact = false }: {
+export function AnalysisCharts({ view, series, marks = [], idPrefix = '', compact = false, charts }: {
   view: AnalysisView;
   series: ChartSeries;
   marks?: { at: number; note: string; kind?: 'tipping-point' | 'maintenance' }[];
   idPrefix?: string;
-  /** fewer, shorter charts (report, alert evidence) */
+  /** shorter charts, without the residuals unless asked for (report, alert evidence) */
   compact?: boolean;
+  /** which charts, in this order; default: the record, the residuals (unless compact) and every indicator */
+  charts?: readonly SeriesChart[];
 }) {
   const rows = useMemo(() => chartRows(view.curves), [view.curves]);
   const last = view.curves.time[view.curves.time.length - 1];
@@ -49,35 +54,51 @@ export function AnalysisCharts({ view, series, marks = [], idPrefix = '', compac
   const windowBand = last !== undefined ? { from: Math.max(first, last - view.windowSpanMs), to: last } : null;
   const base = `${series.slug}${idPrefix ? `-${idPrefix}` : ''}`;
   const shifts = view.shifts;
-  // The start line is drawn on every chart; its reason is written once, on the record chart.
   const stretchAt = view.stretch?.from ?? null;
-  const stretchLabelled = view.stretch ? { at: view.stretch.from, label: stretchReason(view.stretch.startsAfter) } : null;
-  const stretchPlain = stretchAt === null ? null : { at: stretchAt };
+  const xDomain: [number, number] | null = first === undefined
+    ? null
+    : [Math.min(first, windowBand?.from ?? first, stretchAt ?? first), Math.max(last, windowBand?.to ?? last, stretchAt ?? last)];
   // Shifts before the drawn stretch are not on the charts; the count says so and the quality panel lists them all.
   const before = first === undefined ? 0 : shifts.filter((shift) => shift.time < first).length;
   const shiftNote = shifts.length
     ? ` · ${shifts.length} abrupt shift${shifts.length === 1 ? '' : 's'} detected${before ? ` (${before} before the analysed stretch, listed under data quality)` : ''}`
     : '';
+  const order = charts ?? (['record', ...(compact ? [] : ['residuals']), ...view.indicators] as SeriesChart[]);
+  const shown = order.filter((key) => key === 'record' || key === 'residuals' || view.indicators.includes(key));
+  const height = compact ? 140 : 150;
+  const common = { rows, timeZone: series.timeZone, marks, shifts, xDomain, height };
+
   return (
-    <div className="space-y-3">
-      <ChartFrame title={`${series.name}: record and trend`} fileName={`${base}-record`} testId="chart-record"
-        legend={`${view.n} points analysed${view.stretch ? `, ${stretchReason(view.stretch.startsAfter)}` : ''} · detrending: ${view.settings.detrend}${shiftNote}`}>
-        <TimeChart rows={rows} timeZone={series.timeZone} unit={series.unit} marks={marks} shifts={shifts} stretchStart={stretchLabelled} height={compact ? 170 : 220}
-          lines={[{ key: 'value', label: `value${series.unit ? ` (${series.unit})` : ''}`, color: 'ink-soft', width: 1 }, { key: 'trend', label: 'trend', color: 'tide', width: 2.5 }]} />
-      </ChartFrame>
-      {compact ? null : (
-      <ChartFrame title="Residuals (value − trend)" fileName={`${base}-residuals`} testId="chart-residuals">
-        <TimeChart rows={rows} timeZone={series.timeZone} unit={series.unit} marks={marks} shifts={shifts} stretchStart={stretchPlain} zeroLine height={160}
-          lines={[{ key: 'residual', label: 'residual', color: 'ink-faint', width: 1 }]} />
-      </ChartFrame>
-      )}
-      {view.indicators.map((name) => (
-        <ChartFrame key={name} title={`${indicatorLabel(name, 'title')} in a rolling window`} fileName={`${base}-${name}`} testId={`chart-${name}`}
-          legend={<span data-testid={`trend-${name}`}>{trendLegend(view, name)}</span>}>
-          <TimeChart rows={rows} timeZone={series.timeZone} marks={marks} shifts={shifts} stretchStart={stretchPlain} windowBand={windowBand} height={compact ? 150 : 180}
-            lines={[{ key: name, label: `${name} (window of ${view.windowPoints} points)`, color: 'tide', width: 2 }]} />
-        </ChartFrame>
-      ))}
+    <div className="space-y-2">
+      {shown.map((key, i) => {
+        // The start line is drawn on every chart; its reason is written once, on the first.
+        const stretchStart = stretchAt === null ? null : { at: stretchAt, label: i === 0 && view.stretch ? stretchReason(view.stretch.startsAfter) : undefined };
+        if (key === 'record') {
+          return (
+            <ChartFrame key={key} title={`${series.name}: record and trend`} fileName={`${base}-record`} testId="chart-record"
+              legend={`${view.n} points analysed${view.stretch ? `, ${stretchReason(view.stretch.startsAfter)}` : ''} · detrending: ${view.settings.detrend}${shiftNote}`}>
+              <TimeChart {...common} unit={series.unit} stretchStart={stretchStart}
+                lines={[{ key: 'value', label: `value${series.unit ? ` (${series.unit})` : ''}`, color: 'ink-soft', width: 1 }, { key: 'trend', label: 'trend', color: 'tide', width: 2.5 }]} />
+            </ChartFrame>
+          );
+        }
+        if (key === 'residuals') {
+          return (
+            <ChartFrame key={key} title="Residuals (value − trend)" fileName={`${base}-residuals`} testId="chart-residuals">
+              <TimeChart {...common} unit={series.unit} stretchStart={stretchStart} zeroLine lines={[{ key: 'residual', label: 'residual', color: 'ink-faint', width: 1 }]} />
+            </ChartFrame>
+          );
+        }
+        return (
+          <div key={key} id={idPrefix ? undefined : `chart-${key}`}>
+            <ChartFrame title={`${indicatorLabel(key, 'title')} in a rolling window`} fileName={`${base}-${key}`} testId={`chart-${key}`}
+              legend={<span data-testid={`trend-${key}`}>{trendLegend(view, key)}</span>}>
+              <TimeChart {...common} stretchStart={stretchStart} windowBand={windowBand}
+                lines={[{ key, label: `${indicatorLabel(key)} (window of ${view.windowPoints} points)`, color: 'tide', width: 2 }]} />
+            </ChartFrame>
+          </div>
+        );
+      })}
     </div>
   );
 }

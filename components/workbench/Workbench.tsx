@@ -3,7 +3,7 @@
 import { keepPreviousData, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import Link from 'next/link';
 import { useRouter } from 'next/navigation';
-import { useEffect, useState } from 'react';
+import { useState } from 'react';
 import { api } from '@/components/api';
 import { Empty, ErrorNote, Loading, Panel } from '@/components/States';
 import { SensitivityHeatmap } from '@/components/charts/SensitivityHeatmap';
@@ -17,16 +17,10 @@ import type { SettingsHistoryEntry } from '@/lib/analysis/settings-history';
 import { AnalysisCharts, type ChartSeries } from './AnalysisCharts';
 import { SettingsHistory } from './SettingsHistory';
 import { TuningPanel } from './TuningPanel';
+import { useDebounced } from './use-debounced';
+import { ChartChooser } from './ChartChooser';
+import type { SeriesChart } from '@/lib/schemas/account';
 import { Button, buttonClass } from '@/components/ui/Button';
-
-function useDebounced<T>(value: T, ms: number): T {
-  const [debounced, setDebounced] = useState(value);
-  useEffect(() => {
-    const timer = setTimeout(() => setDebounced(value), ms);
-    return () => clearTimeout(timer);
-  }, [value, ms]);
-  return debounced;
-}
 
 const same = (a: unknown, b: unknown) => JSON.stringify(a) === JSON.stringify(b);
 const linkButton = buttonClass('secondary');
@@ -40,6 +34,8 @@ export interface WorkbenchProps {
   marks: { at: number; note: string; kind?: 'tipping-point' | 'maintenance' }[];
   history: SettingsHistoryEntry[];
   quality: React.ReactNode;
+  /** the reader's saved choice of charts, in order (their preferences) */
+  charts: SeriesChart[];
 }
 
 async function downloadPosted(slug: string, settings: AnalysisSettings, format: 'csv' | 'json') {
@@ -61,7 +57,8 @@ async function downloadPosted(slug: string, settings: AnalysisSettings, format: 
  * The series workbench: evidence charts of the saved analysis, and for analysts a tuning form whose changes are
  * recomputed (debounced) by the preview endpoint without saving; leads save the settings they settle on.
  */
-export function Workbench({ series, savedSettings, initialView, canTune, canSave, marks, history, quality }: WorkbenchProps) {
+export function Workbench({ series, savedSettings, initialView, canTune, canSave, marks, history, quality, charts: savedCharts }: WorkbenchProps) {
+  const [charts, setCharts] = useState(savedCharts);
   const router = useRouter();
   const queryClient = useQueryClient();
   const [saved, setSaved] = useState(savedSettings);
@@ -89,6 +86,8 @@ export function Workbench({ series, savedSettings, initialView, canTune, canSave
   const showingPreview = canTune && (changed || initialView === null) && preview.data !== undefined;
   const view = showingPreview ? preview.data! : initialView;
   const pending = draft !== debounced || preview.isFetching;
+  // Surrogate histograms of the indicators the reader charts, in the same order, so the page stays as long as they chose.
+  const tested = view ? (charts.filter((key) => (view.indicators as string[]).includes(key) && view.significance[key as keyof AnalysisView['significance']]) as (keyof AnalysisView['significance'])[]) : [];
 
   return (
     <div className="grid grid-cols-1 gap-4 lg:grid-cols-[minmax(0,1fr)_320px]">
@@ -109,13 +108,18 @@ export function Workbench({ series, savedSettings, initialView, canTune, canSave
         {preview.isError ? <ErrorNote error={preview.error}>These settings cannot be applied to this record.</ErrorNote> : null}
         {view ? (
           <>
-            <AnalysisCharts view={view} series={series} marks={marks} />
+            <AnalysisCharts view={view} series={series} marks={marks} charts={charts} />
+            {charts.every((key) => key !== 'record' && key !== 'residuals' && !view.indicators.includes(key)) ? (
+              <Empty>No chart chosen. Tick the charts to show under “Charts shown”.</Empty>
+            ) : null}
             <Panel title="Significance against surrogate data" id="significance">
               {Object.keys(view.significance).length === 0 ? (
                 <Empty>No surrogates in these settings. Set a number of surrogate series to test each trend against chance.</Empty>
+              ) : tested.length === 0 ? (
+                <Empty>Tick an indicator under “Charts shown” to see its surrogate taus here; the evidence table above lists every indicator’s p.</Empty>
               ) : (
                 <div className="grid grid-cols-1 gap-3 md:grid-cols-2">
-                  {view.indicators.filter((name) => view.significance[name]).map((name) => {
+                  {tested.map((name) => {
                     const s = view.significance[name]!;
                     return (
                       <ChartFrame key={name} title={`${indicatorLabel(name, 'title')}: surrogate taus`} fileName={`${series.slug}-${name}-surrogates`}
@@ -161,6 +165,9 @@ export function Workbench({ series, savedSettings, initialView, canTune, canSave
             {save.isSuccess && !changed ? <p role="status" className="mt-2 text-sm text-calm">✓ Saved. The next analysis run uses these settings.</p> : null}
           </Panel>
         ) : null}
+        <Panel title="Charts shown" id="charts">
+          <ChartChooser available={['record', 'residuals', ...(view?.indicators ?? [])]} chosen={charts} onChange={setCharts} />
+        </Panel>
         <Panel title="Exports" id="exports">
           <div className="flex flex-wrap gap-2">
             <a className={linkButton} href={`/api/series/${series.slug}/indicators?format=csv`} download>Indicators (CSV)</a>

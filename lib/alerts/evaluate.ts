@@ -238,7 +238,7 @@ async function openShiftAlert(series: Series, snapshot: AnalysisSnapshot): Promi
  * The latest surrogate p of every active FDR rule on a live series outside `except` (rules judged in this cycle
  * bring their fresh p): the rest of the Benjamini–Hochberg family. One indexed lookup per rule.
  */
-async function fdrFamilyOutside(except: Set<number>): Promise<PortfolioEntry[]> {
+export async function fdrFamilyOutside(except: Set<number>): Promise<PortfolioEntry[]> {
   const sequelize = await db();
   const rows = await sequelize.query<{ rule_id: number; series_id: number; fdr_level: number; surrogate_p: number | null }>(
     `SELECT r.id AS rule_id, r.series_id, r.fdr_level,

@@ -6,6 +6,7 @@ import type { Actor } from '@/lib/auth/roles';
 import { latestRuleCalibration, queueRuleCalibration, type RuleCalibration } from '@/lib/backtest/jobs';
 import { analysisSettingsSchema } from '@/lib/engine/settings';
 import type { RuleDirection } from '@/lib/engine/direction';
+import { indicatorLabel } from '@/lib/display/analysis-labels';
 import { ruleCreateSchema, ruleUpdateSchema, type RuleCreateInput, type RuleFields, type RuleUpdate } from '@/lib/schemas/rule';
 
 /** What presentRule adds beyond the stored fields. */
@@ -88,13 +89,14 @@ async function ruleWarnings(rules: AlertRule[]): Promise<Map<number, string[]>> 
 type Criteria = Pick<RuleFields, 'indicator' | 'maxSurrogateP' | 'fdrLevel'>;
 
 /**
- * Refuses (422, with the field to change) a rule whose criterion its series can never judge: an indicator the
+ * Why a rule's criterion could never be judged on its series, by field (empty when it can): an indicator the
  * series does not compute; a surrogate p or false-discovery test on a series that runs no surrogates; a
  * threshold below the smallest p N surrogates can give (1/(N + 1)), which no evidence can ever meet (for BH at q
  * this holds for any family size: k p-values at the floor pass only if 1/(N + 1) ≤ k·q/m ≤ q); and, when the
- * series' latest analysis failed because its stretch is too short for the window, that failure.
+ * series' latest analysis failed because its stretch is too short for the window, that failure. The rule
+ * editor's preview shows these before a save; `assertJudgeable` refuses the save with them.
  */
-async function assertJudgeable(seriesId: number, rule: Criteria, transaction: Transaction): Promise<void> {
+export async function judgeabilityProblems(seriesId: number, rule: Criteria, transaction?: Transaction): Promise<{ series: string; fields: Record<string, string[]> }> {
   const series = await Series.findByPk(seriesId, { transaction });
   if (!series) throw new NotFoundError('Series');
   const settings = analysisSettingsSchema.parse(series.settings ?? {});
@@ -102,7 +104,7 @@ async function assertJudgeable(seriesId: number, rule: Criteria, transaction: Tr
   const floor = 1 / (N + 1);
   const fields: Record<string, string[]> = {};
   if (!(settings.indicators as readonly string[]).includes(rule.indicator))
-    fields.indicator = [`${series.name} does not compute ${rule.indicator} (its indicators: ${settings.indicators.join(', ')}). Add it to the series settings first.`];
+    fields.indicator = [`${series.name} does not compute ${indicatorLabel(rule.indicator)} (its indicators: ${settings.indicators.map((name) => indicatorLabel(name)).join(', ')}). Add it to the series settings first.`];
   for (const [field, level] of [['maxSurrogateP', rule.maxSurrogateP], ['fdrLevel', rule.fdrLevel]] as const) {
     if (level === null) continue;
     if (N === 0) fields[field] = [`${series.name} runs no surrogates, so no surrogate p is ever computed and this test could never pass. Set surrogates (at least 99) in the series settings first.`];
@@ -111,8 +113,14 @@ async function assertJudgeable(seriesId: number, rule: Criteria, transaction: Tr
   const latest = await AnalysisSnapshot.findOne({ where: { seriesId }, order: [['id', 'DESC']], attributes: ['id', 'status', 'error'], transaction });
   if (latest?.status === 'error' && latest.error && /too short/i.test(latest.error))
     fields._ = [`The latest analysis of ${series.name} could not judge anything: ${latest.error}`];
+  return { series: series.name, fields };
+}
+
+/** Refuses (422, with the field to change) a rule whose criterion its series can never judge (see judgeabilityProblems). */
+async function assertJudgeable(seriesId: number, rule: Criteria, transaction: Transaction): Promise<void> {
+  const { series, fields } = await judgeabilityProblems(seriesId, rule, transaction);
   const problems = Object.values(fields).flat();
-  if (problems.length) throw new UnprocessableError(`This rule cannot be judged on ${series.name}: ${problems.join(' ')}`, fields);
+  if (problems.length) throw new UnprocessableError(`This rule cannot be judged on ${series}: ${problems.join(' ')}`, fields);
 }
 
 /** Fields whose change makes the previous calibration describe another procedure. */

@@ -6,6 +6,7 @@ import { loadObservations } from '@/lib/analysis/observations';
 import { analysisSettingsSchema, type IndicatorName } from '@/lib/engine/settings';
 import { ConflictError, NotFoundError, UnprocessableError } from '@/lib/http/errors';
 import type { BacktestRequest } from '@/lib/schemas/backtest';
+import type { RuleFields } from '@/lib/schemas/rule';
 import { findSeriesBySlug } from '@/lib/series/registry';
 import { CancelledError } from './pool';
 import { listMarks } from '@/lib/marks/read';
@@ -28,7 +29,7 @@ const RULE_CALIBRATION = { every: 1, horizonDays: null, calibration: { surrogate
  * The parts of a stored rule a replay judges. `direction` is read when the rule record has it and falls back
  * to the indicator's own direction otherwise (rules stored before the field existed).
  */
-export function replayRuleOf(rule: AlertRule): ReplayRule {
+export function replayRuleOf(rule: Pick<AlertRule, 'indicator' | 'direction' | 'minTau' | 'maxKendallP' | 'maxSurrogateP' | 'levelThreshold' | 'levelDirection' | 'persistence' | 'quietPeriodHours'>): ReplayRule {
   const indicator = rule.indicator as IndicatorName;
   return {
     indicator,
@@ -69,7 +70,10 @@ export function presentBacktestJob(job: BacktestJob, options: { withResult?: boo
 }
 export type BacktestJobRecord = ReturnType<typeof presentBacktestJob>;
 
-/** Queues a backtest of a rule on its series (or, for a default rule, on `request.series`). */
+/**
+ * Queues a backtest of a rule on its series (or, for a default rule, on `request.series`); with `request.draft` the
+ * replay judges the draft's fields instead of the stored ones (the rule editor's backtest of unsaved changes).
+ */
 export async function requestBacktest(ruleId: number, request: BacktestRequest, actor: Pick<Actor, 'id'>): Promise<BacktestJob> {
   await db();
   const rule = await AlertRule.findByPk(ruleId);
@@ -88,7 +92,7 @@ export async function requestBacktest(ruleId: number, request: BacktestRequest, 
         ruleId,
         seriesId: sid,
         kind: request.calibration ? 'calibration' : 'backtest',
-        params: { every: request.every, horizonDays: request.horizonDays, calibration: request.calibration },
+        params: { every: request.every, horizonDays: request.horizonDays, calibration: request.calibration, ...(request.draft ? { draft: request.draft } : {}) },
         result: null,
         error: null,
         createdBy: actor.id,
@@ -182,8 +186,8 @@ export async function runNextBacktest(options: { threads?: number } = {}): Promi
   try {
     const [rule, series] = await Promise.all([AlertRule.findByPk(job.ruleId), Series.findByPk(job.seriesId)]);
     if (!rule || !series) throw new UnprocessableError('The rule or series of this backtest no longer exists.');
-    const params = job.params as { every?: number; horizonDays?: number | null; calibration?: { surrogates: number; method: 'ar1' | 'phase'; approaches?: number; budget?: number } | null };
-    const replayRule = replayRuleOf(rule);
+    const params = job.params as { every?: number; horizonDays?: number | null; calibration?: { surrogates: number; method: 'ar1' | 'phase'; approaches?: number; budget?: number } | null; draft?: RuleFields };
+    const replayRule = replayRuleOf(params.draft ?? rule);
     const settings = analysisSettingsSchema.parse(series.settings);
     const { time, value } = await loadObservations(series.id);
     // Both kinds of mark restart the replayed stretch; only tipping points are warned of (and scored).

@@ -26,7 +26,7 @@ export function healthNotices(report: HealthReport, now: number): HealthNotice[]
   }
   if (report.mail.failed > 0) {
     const count = report.mail.failed === 1 ? '1 message' : `${report.mail.failed} messages`;
-    notices.push({ key: 'mail', text: `${count} could not be delivered after every retry; an admin can send them again under Admin › Mail.` });
+    notices.push({ key: 'mail', text: `${count} could not be delivered after every retry; an admin can send them again under Admin › Outbox and mailbox.` });
   }
   return notices;
 }

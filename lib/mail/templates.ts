@@ -127,7 +127,7 @@ function evidenceRows(e: AlertEvidence): Row[] {
   const label = indicatorLabel(e.indicator ?? '');
   return [
     series,
-    ['Indicator', `${label} (${e.indicator})`],
+    ['Indicator', label],
     ['Kendall tau', tauWithDirection(e.tau, e.direction)],
     ['Surrogate p', e.surrogateCount > 0 ? `${formatP(e.surrogateP)} (${DIRECTION_WORDS[e.direction as 'rising'] ?? e.direction}) from ${e.surrogateCount} ${e.surrogateMethod ?? ''} surrogates`.replace(/\s+/g, ' ') : 'not tested (no surrogates in the series settings)'],
     ['Kendall p', `${kendallPLabel(e.kendallP)}, ${DIRECTION_WORDS[e.kendallDirection as 'rising'] ?? e.kendallDirection}`],

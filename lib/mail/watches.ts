@@ -1,16 +1,52 @@
 import { Op, type Transaction } from 'sequelize';
 import { Series, User, Watch, db, writeTransaction } from '@/models';
 import type { WatchMode } from '@/models/Watch';
-import type { Actor } from '@/lib/auth/roles';
+import type { Actor, Role } from '@/lib/auth/roles';
+import { UnprocessableError } from '@/lib/http/errors';
 import { recordAudit } from '@/lib/audit';
 
-/** Sets the signed-in user's mail preference for one series ('none' keeps the row, so the choice is remembered). */
-export async function setWatch(actor: Pick<Actor, 'id'>, series: Series, mode: WatchMode): Promise<Watch> {
-  return writeTransaction(async (transaction) => {
-    const existing = await Watch.findOne({ where: { userId: actor.id, seriesId: series.id }, transaction });
-    const watch = existing ? await existing.update({ mode }, { transaction }) : await Watch.create({ userId: actor.id, seriesId: series.id, mode }, { transaction });
-    await recordAudit({ actorId: actor.id, action: 'watch.set', entity: 'series', entityId: series.id, details: { mode } }, transaction);
+/**
+ * Sets one user's mail preference for one series ('none' keeps the row, so the choice is remembered): the signed-in
+ * user's own choice, or a lead's for someone else (`userId`), audited with whose it is.
+ */
+export async function setWatch(actor: Pick<Actor, 'id'>, series: Series, mode: WatchMode, userId = actor.id, transaction?: Transaction): Promise<Watch> {
+  const work = async (t: Transaction) => {
+    const existing = await Watch.findOne({ where: { userId, seriesId: series.id }, transaction: t });
+    const watch = existing ? await existing.update({ mode }, { transaction: t }) : await Watch.create({ userId, seriesId: series.id, mode }, { transaction: t });
+    await recordAudit({ actorId: actor.id, action: userId === actor.id ? 'watch.set' : 'watch.set-for', entity: 'series', entityId: series.id, details: { mode, userId } }, t);
     return watch;
+  };
+  return transaction ? work(transaction) : writeTransaction(work);
+}
+
+/** One active user and how they hear of a series' alerts ('none' also when they never chose). */
+export interface SeriesWatcher {
+  userId: number;
+  name: string;
+  email: string;
+  role: Role;
+  mode: WatchMode;
+}
+
+/** Every active user with their watch mode for a series, by name: the "who hears" panel. Two queries. */
+export async function seriesWatchers(seriesId: number): Promise<SeriesWatcher[]> {
+  await db();
+  const [users, watches] = await Promise.all([
+    User.findAll({ where: { active: true }, attributes: ['id', 'name', 'email', 'role'], order: [['name', 'ASC'], ['id', 'ASC']] }),
+    Watch.findAll({ where: { seriesId }, attributes: ['userId', 'mode'] }),
+  ]);
+  const modeOf = new Map(watches.map((w) => [w.userId, w.mode]));
+  return users.map((u) => ({ userId: u.id, name: u.name, email: u.email, role: u.role, mode: modeOf.get(u.id) ?? 'none' }));
+}
+
+/** A lead sets several users' modes for a series in one transaction (each change audited); unknown or inactive users are refused. */
+export async function setSeriesWatchers(actor: Pick<Actor, 'id'>, series: Series, changes: { userId: number; mode: WatchMode }[]): Promise<void> {
+  await writeTransaction(async (transaction) => {
+    const ids = [...new Set(changes.map((c) => c.userId))];
+    const known = new Set((await User.findAll({ where: { id: { [Op.in]: ids }, active: true }, attributes: ['id'], transaction })).map((u) => u.id));
+    const unknown = ids.filter((id) => !known.has(id));
+    if (unknown.length) throw new UnprocessableError(`No active user with id ${unknown.join(', ')}.`, { watchers: [`unknown or inactive user: ${unknown.join(', ')}`] });
+    for (const change of changes) await setWatch(actor, series, change.mode, change.userId, transaction);
   });
 }
 

@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { passwordSchema } from './user';
+import { INDICATOR_NAMES } from '@/lib/engine/settings';
 
 /** What a signed-in person may change about themselves (role and active flag are the admin's). */
 export const accountUpdateSchema = z.object({ name: z.string().trim().min(1, 'Enter a name.').max(200) }).strict();
@@ -15,3 +16,25 @@ export const auditQuerySchema = z.object({
   action: z.string().trim().max(100).optional(),
   entity: z.string().trim().max(100).optional(),
 });
+
+/** The charts the series page can show, besides one per indicator: the record with its trend, and the residuals. */
+export const SERIES_CHARTS = ['record', 'residuals', ...INDICATOR_NAMES] as const;
+export type SeriesChart = (typeof SERIES_CHARTS)[number];
+/** What a reader sees first: the record and the two indicators most rules watch. */
+export const DEFAULT_SERIES_CHARTS: SeriesChart[] = ['record', 'ac1', 'variance'];
+
+/**
+ * A signed-in person's preferences (PUT /api/account/preferences merges the fields sent). `seriesCharts`: which
+ * charts the series page shows, in this order (indicators a series does not compute are skipped).
+ */
+export const preferencesSchema = z
+  .object({
+    seriesCharts: z
+      .array(z.enum(SERIES_CHARTS))
+      .max(SERIES_CHARTS.length)
+      .refine((list) => new Set(list).size === list.length, 'Each chart at most once.'),
+  })
+  .strict();
+export const preferencesUpdateSchema = preferencesSchema.partial().strict();
+export type Preferences = z.output<typeof preferencesSchema>;
+export const DEFAULT_PREFERENCES: Preferences = { seriesCharts: DEFAULT_SERIES_CHARTS };

@@ -58,3 +58,7 @@ export const alertQueueSchema = z.object({
 export type AlertQueueQuery = z.output<typeof alertQueueSchema>;
 
 export const watchSchema = z.object({ mode: z.enum(WATCH_MODES) }).strict();
+/** Body of PUT /api/series/{slug}/watchers: a lead sets how each listed user hears of the series' alerts. */
+export const watchersUpdateSchema = z
+  .object({ watchers: z.array(z.object({ userId: z.number().int().positive(), mode: z.enum(WATCH_MODES) }).strict()).min(1).max(1000) })
+  .strict();

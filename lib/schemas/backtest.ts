@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import { SURROGATE_METHODS } from '@/lib/engine/settings';
 import { MARK_KINDS } from '@/lib/marks/kinds';
+import { ruleCreateSchema } from './rule';
 
 /** Body of POST /api/rules/{id}/backtest. */
 export const backtestRequestSchema = z
@@ -22,6 +23,8 @@ export const backtestRequestSchema = z
       .strict()
       .nullable()
       .default(null),
+    /** replay these fields instead of the stored rule's: a draft being edited in the rule editor (the rule stays as saved) */
+    draft: ruleCreateSchema.optional(),
   })
   .strict();
 export type BacktestRequest = z.output<typeof backtestRequestSchema>;

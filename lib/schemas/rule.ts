@@ -60,3 +60,9 @@ export const ruleUpdateSchema = z.object(ruleShape).partial().strict();
 export type RuleCreateInput = z.input<typeof ruleCreateSchema>;
 export type RuleFields = z.output<typeof ruleCreateSchema>;
 export type RuleUpdate = z.output<typeof ruleUpdateSchema>;
+
+/**
+ * Body of POST /api/series/{slug}/rules/preview: a draft rule (validated as a new rule is) and, when the draft edits
+ * a stored rule, that rule's id (it leaves the false-discovery family so the draft takes its place).
+ */
+export const rulePreviewSchema = z.object({ rule: ruleCreateSchema, replacing: z.number().int().positive().nullable().default(null) }).strict();

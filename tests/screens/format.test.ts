@@ -69,7 +69,7 @@ describe('service notices from the health report', () => {
   });
   it('counts undelivered mail, and says only that the database is gone when it is', () => {
     expect(healthNotices({ ...healthy, mail: { ...healthy.mail, ok: false, failed: 2 } }, NOW).map((n) => n.text)).toEqual([
-      '2 messages could not be delivered after every retry; an admin can send them again under Admin › Mail.',
+      '2 messages could not be delivered after every retry; an admin can send them again under Admin › Outbox and mailbox.',
     ]);
     const down = { ok: false, db: { ok: false, error: 'x' }, scheduler: { ok: false, lastBeatAt: null, holder: null }, mail: { ok: false, transport: 'smtp' as const, pending: 0, failed: 0 } };
     expect(healthNotices(down, NOW).map((n) => n.key)).toEqual(['db']);

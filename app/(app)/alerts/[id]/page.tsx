@@ -10,7 +10,7 @@ import { Empty, Panel } from '@/components/States';
 import { fetchAlertPage } from '@/lib/alerts/page-data';
 import { requireRole } from '@/lib/auth/guard';
 import { formatP, formatTau, formatValue } from '@/lib/display/format';
-import { DIRECTION_WORDS } from '@/lib/display/analysis-labels';
+import { DIRECTION_WORDS, indicatorLabel } from '@/lib/display/analysis-labels';
 import { describeCalibration, kendallPLabel, tauThreshold, tauWithDirection } from '@/lib/alerts/wording';
 import { idParam } from '@/lib/http/params';
 import { roleAtLeast } from '@/lib/auth/roles';
@@ -39,7 +39,7 @@ export default async function AlertPage({ params }: { params: Promise<{ id: stri
       </nav>
       <header className="flex flex-wrap items-center gap-3">
         <h1 className="text-xl font-semibold">
-          Alert #{detail.id}: {rule ? `${rule.indicator} ${DIRECTION_WORDS[rule.direction]}` : 'abrupt shift of level'} on <Link href={`/series/${detail.series.slug}`} className="text-tide hover:underline">{detail.series.name}</Link>
+          Alert #{detail.id}: {rule ? `${indicatorLabel(rule.indicator)} ${DIRECTION_WORDS[rule.direction]}` : 'abrupt shift of level'} on <Link href={`/series/${detail.series.slug}`} className="text-tide hover:underline">{detail.series.name}</Link>
         </h1>
         <SeverityBadge severity={detail.severity} />
         <span data-testid="alert-state"><AlertStateBadge state={detail.state} /></span>

@@ -1,6 +1,11 @@
 import Link from 'next/link';
 import { BacktestPanel } from '@/components/backtest/BacktestPanel';
-import { SeriesRules } from '@/components/alerts/SeriesRules';
+import { RulesPanel } from '@/components/rules/RulesPanel';
+import { WhoHears } from '@/components/rules/WhoHears';
+import { EvidenceTable } from '@/components/workbench/EvidenceTable';
+import { RULE_TEMPLATES } from '@/lib/alerts/rule-templates';
+import { evidenceRows } from '@/lib/series/evidence';
+import { readPreferences } from '@/lib/users/preferences';
 import { ruleStatuses } from '@/lib/alerts/rules';
 import { Caution } from '@/components/Caution';
 import { LocalTime } from '@/components/LocalTime';
@@ -18,6 +23,8 @@ export default async function SeriesPage({ params }: { params: Promise<{ slug: s
   const { slug } = await params;
   const bench = await fetchWorkbench(slug);
   const { series } = bench;
+  const [statuses, preferences] = await Promise.all([ruleStatuses(series.id), readPreferences(actor)]);
+  const canLead = roleAtLeast(actor.role, 'lead');
   return (
     <section className="space-y-4">
       <nav aria-label="Breadcrumb" className="text-sm text-ink-soft">
@@ -35,18 +42,21 @@ export default async function SeriesPage({ params }: { params: Promise<{ slug: s
       {bench.snapshot?.status === 'error' ? (
         <ErrorNote>The latest analysis run failed: {bench.snapshot.error}. The charts show the last successful one.</ErrorNote>
       ) : null}
+      <EvidenceTable rows={evidenceRows(bench.view, statuses)} />
       <Workbench
         series={{ slug: series.slug, name: series.name, unit: series.unit, timeZone: series.timeZone }}
         savedSettings={bench.savedSettings}
         initialView={bench.view}
         canTune={roleAtLeast(actor.role, 'analyst')}
-        canSave={roleAtLeast(actor.role, 'lead')}
+        canSave={canLead}
+        charts={preferences.seriesCharts}
         marks={bench.marks}
         history={bench.history}
         quality={<QualityPanel quality={bench.view?.quality ?? null} stretch={bench.view?.stretch ?? null} shifts={bench.view?.shifts ?? []} runs={bench.runs} rejectedRows={bench.rejectedRows} extent={bench.extent} timeZone={series.timeZone} />}
       />
-      <SeriesRules statuses={await ruleStatuses(series.id)} timeZone={series.timeZone} />
-      <BacktestPanel slug={series.slug} timeZone={series.timeZone} canRun={roleAtLeast(actor.role, 'lead')} />
+      <RulesPanel slug={series.slug} statuses={statuses} timeZone={series.timeZone} canEdit={canLead} indicators={bench.savedSettings.indicators} templates={RULE_TEMPLATES} />
+      {canLead ? <WhoHears slug={series.slug} /> : null}
+      <BacktestPanel slug={series.slug} timeZone={series.timeZone} canRun={canLead} />
     </section>
   );
 }

@@ -7,7 +7,9 @@ import { ProvenancePanel } from '@/components/provenance/ProvenancePanel';
 import { ReportCharts } from '@/components/workbench/ReportCharts';
 import { requireRole } from '@/lib/auth/guard';
 import { formatP, formatTau } from '@/lib/display/format';
-import { describeExtent, formatDirection, stretchReason } from '@/lib/display/analysis-labels';
+import { describeExtent, formatDirection, indicatorLabel, stretchReason } from '@/lib/display/analysis-labels';
+import { listRules } from '@/lib/alerts/rules';
+import { reportIndicators } from '@/lib/series/evidence';
 import { fetchWorkbench } from '@/lib/series/workbench';
 
 export const metadata = { title: 'Report' };
@@ -30,6 +32,7 @@ export default async function SeriesReportPage({ params }: { params: Promise<{ s
   // eslint-disable-next-line react-hooks/purity
   const preparedAt = Date.now();
   const { series, view } = bench;
+  const rules = await listRules(series.id);
   return (
     <article className="report mx-auto max-w-4xl space-y-4 bg-card p-6 print:p-0">
       <style>{PRINT_STYLE}</style>
@@ -53,7 +56,7 @@ export default async function SeriesReportPage({ params }: { params: Promise<{ s
               const latest = [...values].reverse().find((v) => v !== null && v !== undefined);
               return (
                 <tr key={name}>
-                  <th scope="row" className={`${CELL_TIGHT} text-left font-medium`}>{name}</th>
+                  <th scope="row" className={`${CELL_TIGHT} text-left font-medium`}>{indicatorLabel(name, 'title')}</th>
                   <td className={CELL_TIGHT}>{formatTau(view.kendall[name]?.tau)}</td>
                   <td className={CELL_TIGHT}>{formatDirection(view.significance[name]?.direction ?? view.kendall[name]?.direction ?? 'rising')}</td>
                   <td className={CELL_TIGHT}>{formatP(view.kendall[name]?.p)}</td>
@@ -68,7 +71,8 @@ export default async function SeriesReportPage({ params }: { params: Promise<{ s
             {view.bandwidthPoints !== null && view.settings.detrend !== 'moving-average' ? `, bandwidth ${describeExtent(view.settings.bandwidth, 'the stretch')}` : ''}, rolling window {describeExtent(view.settings.window, 'the stretch')} ({view.windowPoints} of {view.n} points{view.stretch ? `, ${stretchReason(view.stretch.startsAfter)}` : ''}),
             {' '}seasonal removal {view.settings.seasonal}. Analysed <LocalTime t={bench.snapshot?.createdAt} timeZone={series.timeZone} withZone />.
           </p>
-          <ReportCharts view={view} series={{ slug: series.slug, name: series.name, unit: series.unit, timeZone: series.timeZone }} marks={bench.marks} />
+          <ReportCharts view={view} series={{ slug: series.slug, name: series.name, unit: series.unit, timeZone: series.timeZone }} marks={bench.marks}
+            indicators={reportIndicators(view.indicators, rules)} />
           <section aria-labelledby="provenance-heading">
             <h2 id="provenance-heading" className="mb-1 font-semibold">Reproducing these numbers</h2>
             <ProvenancePanel analyses={bench.provenance ? [bench.provenance] : []} />

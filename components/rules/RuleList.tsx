@@ -1,10 +1,12 @@
+import type { ReactNode } from 'react';
 import { LocalTime } from '@/components/LocalTime';
-import { Empty, Panel } from '@/components/States';
+import { Empty } from '@/components/States';
+import { indicatorLabel } from '@/lib/display/analysis-labels';
 import { formatP } from '@/lib/display/format';
 import { describeCalibration, tauThreshold, tauWithDirection } from '@/lib/alerts/wording';
-import type { RuleStanding, RuleStatus } from '@/lib/alerts/rules';
+import type { RuleRecord, RuleStanding, RuleStatus } from '@/lib/alerts/rules';
 
-const STANDING_WORDS: Record<RuleStanding, string> = {
+export const STANDING_WORDS: Record<RuleStanding, string> = {
   met: 'met',
   building: 'passing, not yet persistent',
   'not-met': 'not met',
@@ -12,25 +14,32 @@ const STANDING_WORDS: Record<RuleStanding, string> = {
   'not-yet-judged': 'not judged yet',
 };
 
+/** A rule's tests in one line, e.g. "lag-1 autocorrelation: tau ≥ 0.30 (rising), surrogate p ≤ 0.05". */
+export function ruleSummary(rule: Pick<RuleRecord, 'indicator' | 'minTau' | 'direction' | 'maxSurrogateP' | 'fdrLevel' | 'levelThreshold' | 'levelDirection' | 'persistence'>): string {
+  return `${indicatorLabel(rule.indicator)}: ${tauThreshold(rule.minTau, rule.direction)}`
+    + (rule.maxSurrogateP !== null ? `, surrogate p ≤ ${rule.maxSurrogateP}` : '')
+    + (rule.fdrLevel !== null ? `, q ≤ ${rule.fdrLevel}` : '')
+    + (rule.levelThreshold !== null ? `, latest ${rule.levelDirection === 'below' ? '≤' : '≥'} ${rule.levelThreshold}` : '')
+    + (rule.persistence > 1 ? `, ${rule.persistence} analyses in a row` : '');
+}
+
 /**
  * The series' rules with how each stood at its latest judgement: a rule that could not be judged says why (failed
  * analysis, windows below the coverage floor, no surrogate p), with its calibrated false-alarm rate and warnings.
+ * `actions` adds a lead's controls to each rule.
  */
-export function SeriesRules({ statuses, timeZone }: { statuses: RuleStatus[]; timeZone: string }) {
+export function RuleList({ statuses, timeZone, actions }: { statuses: RuleStatus[]; timeZone: string; actions?: (rule: RuleRecord) => ReactNode }) {
   return (
-    <Panel title="Alert rules" id="rules">
+    <>
       {statuses.length === 0 ? (
         <Empty>This series has no alert rules.</Empty>
       ) : (
         <ul className="space-y-3 text-sm" data-testid="rule-statuses">
           {statuses.map(({ rule, standing, latest }) => (
             <li key={rule.id} className="border-l-2 border-rule pl-3" data-rule={rule.id} data-standing={standing}>
-              <div className="font-medium">
-                #{rule.id} {rule.indicator}: {tauThreshold(rule.minTau, rule.direction)}
-                {rule.maxSurrogateP !== null ? `, surrogate p ≤ ${rule.maxSurrogateP}` : ''}
-                {rule.fdrLevel !== null ? `, q ≤ ${rule.fdrLevel}` : ''}
-                {rule.persistence > 1 ? `, ${rule.persistence} analyses in a row` : ''} · {rule.severity}
-                {rule.active ? '' : ' · inactive'}
+              <div className="flex flex-wrap items-baseline gap-2">
+                <span className="font-medium">#{rule.id} {ruleSummary(rule)} · {rule.severity}{rule.active ? '' : ' · paused'}</span>
+                {actions ? <span className="ml-auto flex gap-1">{actions(rule)}</span> : null}
               </div>
               <div className={standing === 'cannot-judge' ? 'font-medium text-warning' : 'text-ink-soft'}>
                 Latest: {STANDING_WORDS[standing]}
@@ -46,6 +55,6 @@ export function SeriesRules({ statuses, timeZone }: { statuses: RuleStatus[]; ti
           ))}
         </ul>
       )}
-    </Panel>
+    </>
   );
 }
