@@ -9,6 +9,7 @@ import * as alertTauOrder from './0005-alert-tau-order';
 import * as snapshotChartView from './0006-snapshot-chart-view';
 import * as ruleDirection from './0007-rule-direction-and-alert-kinds';
 import * as transitionKind from './0008-transition-kind';
+import * as sites from './0010-sites';
 
 /**
  * The ordered list of schema changes. Listed explicitly (not globbed) so the same list works in the Next.js server
@@ -23,6 +24,7 @@ const MIGRATIONS = [
   { name: '0006-snapshot-chart-view', ...snapshotChartView },
   { name: '0007-rule-direction-and-alert-kinds', ...ruleDirection },
   { name: '0008-transition-kind', ...transitionKind },
+  { name: '0010-sites', ...sites },
 ];
 
 async function migrator(): Promise<Umzug<QueryInterface>> {
