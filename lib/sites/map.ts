@@ -87,3 +87,10 @@ export function siteMap(sites: Placeable[], width = 640, height = 360, padding =
   const barKm = roundScale(innerW / 4 / pxPerKm);
   return { width, height, points, scale: { km: barKm, px: barKm * pxPerKm }, unplaced };
 }
+
+/** "59.9139° N, 10.7522° E" (four decimals, about 11 m), or "no position". */
+export function formatCoordinates(latitude: number | null, longitude: number | null): string {
+  if (latitude === null || longitude === null) return 'no position';
+  const part = (value: number, positive: string, negative: string) => `${Math.abs(value).toFixed(4)}° ${value >= 0 ? positive : negative}`;
+  return `${part(latitude, 'N', 'S')}, ${part(longitude, 'E', 'W')}`;
+}
