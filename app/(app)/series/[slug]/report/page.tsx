@@ -8,6 +8,7 @@ import { requireRole } from '@/lib/auth/guard';
 import { formatP, formatTau } from '@/lib/display/format';
 import { describeExtent, formatDirection, stretchReason } from '@/lib/display/analysis-labels';
 import { fetchWorkbench } from '@/lib/series/workbench';
+import { foundOr404 } from '@/lib/http/page';
 
 export const metadata = { title: 'Report' };
 
@@ -24,7 +25,7 @@ const PRINT_STYLE = `@media print {
 export default async function SeriesReportPage({ params }: { params: Promise<{ slug: string }> }) {
   const actor = await requireRole('viewer');
   const { slug } = await params;
-  const bench = await fetchWorkbench(slug);
+  const bench = await foundOr404(() => fetchWorkbench(slug));
   // A server component renders once per request, so the report states the moment it was prepared.
   // eslint-disable-next-line react-hooks/purity
   const preparedAt = Date.now();
