@@ -11,9 +11,12 @@ export const slugSchema = z
 
 const SLUG_MAX = 64;
 
+/** Latin letters that Unicode does not decompose into a base letter and a mark, written as they are usually spelt in ASCII. */
+const LATIN_LETTERS: Record<string, string> = { æ: 'ae', ø: 'o', œ: 'oe', ß: 'ss', ł: 'l', đ: 'd', ð: 'd', þ: 'th', ı: 'i' };
+
 /**
- * A slug suggested for a name: accents dropped (Unicode NFKD, combining marks removed), lower case, every run of
- * other characters one hyphen, at most 64 characters. '' when nothing of the name is left (a name in another
+ * A slug suggested for a name: accents dropped (Unicode NFKD, combining marks removed; æ, ø, ß and the like
+ * spelt out), lower case, every run of other characters one hyphen, at most 64 characters. '' when nothing of the name is left (a name in another
  * script); the form then asks for one. O(length).
  */
 export function suggestSlug(name: string): string {
@@ -21,6 +24,7 @@ export function suggestSlug(name: string): string {
     .normalize('NFKD')
     .replace(/[\u0300-\u036f]/g, '')
     .toLowerCase()
+    .replace(/[æøœßłđðþı]/g, (letter) => LATIN_LETTERS[letter])
     .replace(/[^a-z0-9]+/g, '-')
     .slice(0, SLUG_MAX)
     .replace(/^-+|-+$/g, '');
