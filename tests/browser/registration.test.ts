@@ -65,7 +65,7 @@ describe('registration screens in Chromium', () => {
     await expect.poll(() => form.getByLabel('Slug').inputValue()).toBe('browser-fjord-temperature');
     await form.getByLabel('Site').selectOption({ index: 1 });
     const siteName = (await form.getByLabel('Site').locator('option:checked').textContent())!;
-    await form.getByLabel('Unit').fill('°C');
+    await form.getByLabel('Unit', { exact: true }).fill('°C');
     await form.getByLabel('Interval count').fill('30');
     await form.getByLabel('Interval unit').selectOption('minutes');
     await form.getByLabel('Rolling window').fill('not a window');
@@ -83,7 +83,7 @@ describe('registration screens in Chromium', () => {
 
     await page.getByTestId('series-settings-link').click();
     await page.waitForURL(/\/settings$/);
-    await page.getByTestId('series-form').getByLabel('Unit').fill('K');
+    await page.getByTestId('series-form').getByLabel('Unit', { exact: true }).fill('K');
     await page.getByRole('button', { name: 'Save the changes' }).click();
     await page.getByText('✓ Saved').waitFor();
     await page.getByRole('button', { name: 'Retire the series' }).click();
