@@ -1,7 +1,7 @@
 'use client';
 
 import Link from 'next/link';
-import { Fragment, useMemo, useState } from 'react';
+import { Fragment, useMemo, useState, type ReactNode } from 'react';
 import { FreshnessBadge, StateBadge, STATE_LABELS } from '@/components/Badges';
 import { LocalTime } from '@/components/LocalTime';
 import { Empty } from '@/components/States';
@@ -76,7 +76,13 @@ const COLUMNS = 6;
  * The network's series, filtered, sorted and (with more than one site) optionally grouped by site: each group
  * under a heading row naming its site, in the chosen order within it. The site page shows its own rows here too.
  */
-export function OverviewTable({ rows, sites, now }: { rows: OverviewRow[]; sites: string[]; now: number }) {
+export function OverviewTable({ rows, sites, now, noSeries }: {
+  rows: OverviewRow[];
+  sites: string[];
+  now: number;
+  /** what to say when there are no rows at all */
+  noSeries?: ReactNode;
+}) {
   const [text, setText] = useState('');
   const [site, setSite] = useState('');
   const [grouped, setGrouped] = useState(false);
@@ -149,7 +155,7 @@ export function OverviewTable({ rows, sites, now }: { rows: OverviewRow[]; sites
         <p className="ml-auto text-sm text-ink-soft" aria-live="polite">{shown.length} of {rows.length} series</p>
       </div>
       {shown.length === 0 ? (
-        <Empty>{rows.length === 0 ? <>No series are registered yet. <Link href="/series/new" className="text-tide hover:underline">Register one</Link> (leads).</> : 'No series match these filters.'}</Empty>
+        <Empty>{rows.length === 0 ? noSeries ?? <>No series are registered yet. <Link href="/series/new" className="text-tide hover:underline">Register one</Link> (leads).</> : 'No series match these filters.'}</Empty>
       ) : (
         <DataTable caption="Every series with its data freshness, state and latest indicator trends" testId="overview-table" className="sm:min-w-[640px]"
           head={<>

@@ -148,7 +148,8 @@ export async function updateSeries(slug: string, input: unknown, actor: Pick<Act
     const series = await Series.findOne({ where: { slug }, transaction });
     if (!series) throw new NotFoundError('Series');
     const { retired, siteId, site, ...rest } = patch;
-    const fields = siteId !== undefined || site !== undefined ? { ...rest, ...(await resolveSeriesSite({ siteId, site }, actor, transaction)) } : rest;
+    const timeZone = rest.timeZone ?? series.timeZone;
+    const fields = siteId !== undefined || site !== undefined ? { ...rest, ...(await resolveSeriesSite({ siteId, site, timeZone }, actor, transaction)) } : rest;
     const changed = Object.keys(fields).filter((key) => JSON.stringify(fields[key as keyof typeof fields]) !== JSON.stringify(series.get(key)));
     const settingsChanged = changed.includes('settings');
     series.set(fields);

@@ -91,10 +91,10 @@ export interface SeriesSiteFields {
 
 /**
  * Which site a series gets, inside the caller's transaction. `siteId` names an existing site (422 when there is
- * none); otherwise a non-empty `site` name picks the site of that name, creating it (audited) when there is none, so
- * clients that send only a name keep working; '' means no site.
+ * none); otherwise a non-empty `site` name picks the site of that name, creating it (audited, in the series' time
+ * zone) when there is none, so clients that send only a name keep working; '' means no site.
  */
-export async function resolveSeriesSite(input: { siteId?: number | null; site?: string }, actor: Pick<Actor, 'id'> | null, transaction: Transaction): Promise<SeriesSiteFields> {
+export async function resolveSeriesSite(input: { siteId?: number | null; site?: string; timeZone?: string }, actor: Pick<Actor, 'id'> | null, transaction: Transaction): Promise<SeriesSiteFields> {
   if (input.siteId !== undefined && input.siteId !== null) {
     const site = await Site.findByPk(input.siteId, { transaction });
     if (!site) throw new UnprocessableError('Some fields are not valid.', { siteId: ['No such site.'] });
@@ -105,7 +105,7 @@ export async function resolveSeriesSite(input: { siteId?: number | null; site?: 
   const existing = await Site.findOne({ where: { name }, transaction });
   if (existing) return { siteId: existing.id, site: existing.name };
   const taken = new Set((await Site.findAll({ attributes: ['slug'], transaction })).map((site) => site.slug));
-  const site = await Site.create({ slug: uniqueSlug(name, taken), name, latitude: null, longitude: null }, { transaction });
+  const site = await Site.create({ slug: uniqueSlug(name, taken), name, latitude: null, longitude: null, timeZone: input.timeZone ?? 'UTC' }, { transaction });
   await recordAudit({ actorId: actor?.id ?? null, action: 'site.create', entity: 'site', entityId: site.id, details: { slug: site.slug, from: 'series' } }, transaction);
   return { siteId: site.id, site: site.name };
 }

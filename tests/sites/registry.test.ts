@@ -69,9 +69,9 @@ describe('a series and its site', () => {
     const site = await createSite({ slug: 'east-mooring', name: 'East mooring', latitude: 60.1, longitude: 5.2, timeZone: 'Europe/Oslo' }, lead);
     const byId = await createSeries({ slug: 'east-temp', name: 'East temperature', siteId: site.id }, lead);
     expect(presentSeries(byId)).toMatchObject({ siteId: site.id, site: 'East mooring' });
-    const byName = await createSeries({ slug: 'west-level', name: 'West level', site: 'West weir' }, lead);
+    const byName = await createSeries({ slug: 'west-level', name: 'West level', site: 'West weir', timeZone: 'Europe/Oslo' }, lead);
     const created = await Site.findOne({ where: { name: 'West weir' } });
-    expect(created).toMatchObject({ slug: 'west-weir', latitude: null });
+    expect(created).toMatchObject({ slug: 'west-weir', latitude: null, timeZone: 'Europe/Oslo' }); // the series' zone
     expect(byName.siteId).toBe(created!.id);
     const again = await createSeries({ slug: 'west-temp', name: 'West temperature', site: 'West weir' }, lead);
     expect(again.siteId).toBe(created!.id);
