@@ -135,6 +135,14 @@ describe('registration screens in Chromium', () => {
   it('shows sites on a map and a site page with its series; a viewer sees no editing controls', async () => {
     const page = await viewer.newPage();
     await page.goto(`${app.baseUrl}/`);
+    // The overview groups its rows under one heading row per site.
+    const table = page.getByTestId('overview-table');
+    await expect(table.locator('tr[data-site-group]').count()).resolves.toBe(0);
+    await page.getByTestId('group-by-site').check();
+    const { items: sites } = await (await api.fetch('/api/sites')).json();
+    const withSeries = sites.filter((site: { seriesCount: number }) => site.seriesCount > 0).length;
+    await expect.poll(() => table.locator('tr[data-site-group]').count()).toBe(withSeries);
+    await shot(page, 'overview-by-site');
     await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Sites' }).click();
     await page.waitForURL(/\/sites$/);
     await page.getByTestId('site-map').waitFor();
