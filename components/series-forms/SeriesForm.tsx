@@ -30,7 +30,7 @@ const extent = (text: string) => (text.trim() !== '' && Number.isFinite(Number(t
 
 /** The analysis settings the form offers, each with what its default means. The rest keep their stored values. */
 const SETTINGS_HELP: { key: 'window' | 'bandwidth' | 'span' | 'surrogates' | 'minCoverage'; label: string; help: string }[] = [
-  { key: 'span', label: 'Span analysed', help: `Default ${LIVE_SETTINGS_DEFAULTS.span}: only the latest 1,000 sampling intervals are judged, so windows stop growing with the record. Also a fraction of the record or an ISO 8601 duration (P5Y).` },
+  { key: 'span', label: 'Span analysed', help: `Default ${LIVE_SETTINGS_DEFAULTS.span}: only the latest 1,000 sampling intervals are judged, so windows stop growing with the record. Also a fraction of the record or an ISO 8601 duration (P5Y); empty for the whole record.` },
   { key: 'window', label: 'Rolling window', help: `Default ${LIVE_SETTINGS_DEFAULTS.window}: half of the analysed stretch. Also "<n> points" or a duration such as P90D.` },
   { key: 'bandwidth', label: 'Detrending bandwidth', help: `Default ${LIVE_SETTINGS_DEFAULTS.bandwidth}: the smoother's width as a tenth of the stretch; wider keeps slower changes in the residuals.` },
   { key: 'surrogates', label: 'Surrogate series', help: `Default ${LIVE_SETTINGS_DEFAULTS.surrogates}: a surrogate p is at least 1/(N + 1); networks judged together with a false-discovery rule need more (about series ÷ q).` },
@@ -71,7 +71,8 @@ export function SeriesForm({ sites, series, initialSiteId = null }: SeriesFormPr
     timeZone: series?.timeZone ?? startSite?.timeZone ?? 'UTC',
     timeColumn: String(series?.csvMapping.timeColumn ?? 0), valueColumn: String(series?.csvMapping.valueColumn ?? 1),
     timeFormat: series?.csvMapping.timeFormat ?? 'iso8601', duplicatePolicy: series?.duplicatePolicy ?? 'reject',
-    ...Object.fromEntries(SETTINGS_HELP.map(({ key }) => [key, String(settings[key] ?? LIVE_SETTINGS_DEFAULTS[key])])) as Record<(typeof SETTINGS_HELP)[number]['key'], string>,
+    // A stored null (a span of the whole record) shows as an empty box, and is sent back as null.
+    ...Object.fromEntries(SETTINGS_HELP.map(({ key }) => [key, key in settings ? String(settings[key] ?? '') : String(LIVE_SETTINGS_DEFAULTS[key])])) as Record<(typeof SETTINGS_HELP)[number]['key'], string>,
   });
   const [slugEdited, setSlugEdited] = useState(Boolean(series));
   const [zoneEdited, setZoneEdited] = useState(Boolean(series));
@@ -95,7 +96,7 @@ export function SeriesForm({ sites, series, initialSiteId = null }: SeriesFormPr
         csvMapping: { timeColumn: column(form.timeColumn), valueColumn: column(form.valueColumn), timeFormat: form.timeFormat },
         duplicatePolicy: form.duplicatePolicy,
         // The API replaces settings whole: keep what the form does not show.
-        settings: { ...settings, span: extent(form.span), window: extent(form.window), bandwidth: extent(form.bandwidth), surrogates: Number(form.surrogates), minCoverage: Number(form.minCoverage) },
+        settings: { ...settings, span: form.span.trim() === '' ? null : extent(form.span), window: extent(form.window), bandwidth: extent(form.bandwidth), surrogates: Number(form.surrogates), minCoverage: Number(form.minCoverage) },
       };
       return series
         ? api<SeriesRecord>(`/api/series/${series.slug}`, { method: 'PATCH', body })
@@ -175,7 +176,7 @@ export function SeriesForm({ sites, series, initialSiteId = null }: SeriesFormPr
 
       <Section title="Analysis">
         {SETTINGS_HELP.map(({ key, label, help }) => (
-          <Field key={key} label={label} hint={help} error={error(`settings.${key}`)}>{text(key, { required: true })}</Field>
+          <Field key={key} label={label} hint={help} error={error(`settings.${key}`)}>{text(key, { required: key !== 'span' })}</Field>
         ))}
         <p className="text-xs text-ink-soft sm:col-span-2">
           Every other setting (detrending, indicators, surrogate method, shift detection) keeps its default, or its saved value;

@@ -7,7 +7,7 @@ useTempDataDir('bw-sites-');
 const { migrateDown, migrateUp } = await import('@/migrations');
 const { AuditEntry, Series, Site, User, db } = await import('@/models');
 const { createSeries, updateSeries, presentSeries } = await import('@/lib/series/registry');
-const { checkBulkList, registerBulk } = await import('@/lib/series/bulk');
+const { BULK_MAX_ROWS, checkBulkList, registerBulk } = await import('@/lib/series/bulk');
 const { createSite, listSites, updateSite } = await import('@/lib/sites/registry');
 const { fetchSitePage } = await import('@/lib/sites/page-data');
 const { fetchSeriesOverview } = await import('@/lib/overview');
@@ -131,6 +131,8 @@ describe('bulk registration', () => {
     expect(report.rows).toEqual([]);
     expect(report.listErrors.join(' ')).toMatch(/Unknown columns: title.*Missing columns: name/);
     expect((await checkBulkList(`${HEADER}\n`)).report.listErrors).toEqual(['The list has no rows.']);
+    const long = [HEADER, ...Array.from({ length: BULK_MAX_ROWS + 1 }, (_, i) => `long-${i},Long ${i},,,,,`)].join('\n');
+    expect((await checkBulkList(long)).report.listErrors).toEqual([`The list has ${BULK_MAX_ROWS + 1} rows; register at most ${BULK_MAX_ROWS} at once.`]);
   });
 
   it('registers all or nothing', async () => {
