@@ -16,8 +16,8 @@ const LATIN_LETTERS: Record<string, string> = { æ: 'ae', ø: 'o', œ: 'oe', ß:
 
 /**
  * A slug suggested for a name: accents dropped (Unicode NFKD, combining marks removed; æ, ø, ß and the like
- * spelt out), lower case, every run of other characters one hyphen, at most 64 characters. '' when nothing of the name is left (a name in another
- * script); the form then asks for one. O(length).
+ * spelt out), lower case, every run of other characters one hyphen, at most 64 characters. '' when nothing of the
+ * name is left (a name in another script); the form then asks for one. O(length).
  */
 export function suggestSlug(name: string): string {
   return name
@@ -159,7 +159,7 @@ export type SeriesListQuery = z.output<typeof seriesListQuerySchema>;
 
 /**
  * A sampling interval written as an ISO 8601 duration (PT15M, PT1H, P1D; ISO 8601-1:2019, Sec. 5.5.2, read by the
- * engine's `parseExtent`), in milliseconds; '' is an irregular record (null). Used by the bulk list and the forms.
+ * engine's `parseExtent`), in milliseconds; '' is an irregular record (null). The bulk list's `interval` column.
  */
 export const intervalTextSchema = z
   .string()
@@ -189,7 +189,6 @@ export const BULK_COLUMNS = {
   span: 'trailing span analysed, default "1000 points"',
   surrogates: 'number of surrogate series, default 199',
 } as const;
-export type BulkColumn = keyof typeof BULK_COLUMNS;
 
 const cell = z.string().optional().transform((value) => value?.trim() ?? '');
 /** A column given as a header name, or as a 0-based position when it is all digits. */
