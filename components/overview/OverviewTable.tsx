@@ -70,18 +70,19 @@ function SiteName({ row }: { row: OverviewRow }) {
   return row.siteSlug ? <Link href={`/sites/${row.siteSlug}`} className="hover:underline">{row.site}</Link> : <>{row.site}</>;
 }
 
-const COLUMNS = 6;
 
 /**
  * The network's series, filtered, sorted and (with more than one site) optionally grouped by site: each group
  * under a heading row naming its site, in the chosen order within it. The site page shows its own rows here too.
  */
-export function OverviewTable({ rows, sites, now, noSeries }: {
+export function OverviewTable({ rows, sites, now, noSeries, siteColumn = true }: {
   rows: OverviewRow[];
   sites: string[];
   now: number;
   /** what to say when there are no rows at all */
   noSeries?: ReactNode;
+  /** false where every row has the same site (the site page) */
+  siteColumn?: boolean;
 }) {
   const [text, setText] = useState('');
   const [site, setSite] = useState('');
@@ -162,7 +163,7 @@ export function OverviewTable({ rows, sites, now, noSeries }: {
             {header('name', 'Series')}
             {header('state', 'State')}
             {header('lastData', 'Last data', 'hidden sm:table-cell')}
-            {header('site', 'Site', 'hidden md:table-cell')}
+            {siteColumn ? header('site', 'Site', 'hidden md:table-cell') : null}
             {header('tau', 'Indicator trend (tau, p)', 'hidden sm:table-cell')}
             <th scope="col" className="hidden px-3 py-2 text-left font-medium sm:table-cell">Recent curve</th>
           </>}
@@ -181,7 +182,7 @@ export function OverviewTable({ rows, sites, now, noSeries }: {
             <Fragment key={row.id}>
               {grouped && (index === 0 || page[index - 1].site !== row.site) ? (
                 <tr className="border-t border-rule bg-paper" data-site-group={row.siteSlug ?? ''}>
-                  <th scope="colgroup" colSpan={COLUMNS} className="px-3 py-1.5 text-left font-semibold">
+                  <th scope="colgroup" colSpan={siteColumn ? 6 : 5} className="px-3 py-1.5 text-left font-semibold">
                     {row.site ? <SiteName row={row} /> : 'No site'} <span className="font-normal text-ink-soft">· {groupSizes.get(row.site)} series</span>
                   </th>
                 </tr>
@@ -190,7 +191,7 @@ export function OverviewTable({ rows, sites, now, noSeries }: {
                 <td className="px-3 py-2">
                   <Link href={`/series/${row.slug}`} className="font-medium text-tide hover:underline">{row.name}</Link>
                   <div className="font-mono text-xs text-ink-faint">{row.slug}</div>
-                  {row.site ? <div className="text-xs text-ink-soft md:hidden">{row.site}</div> : null}
+                  {siteColumn && row.site ? <div className="text-xs text-ink-soft md:hidden">{row.site}</div> : null}
                   {row.indicators.length ? <div className="mt-1 text-xs sm:hidden"><IndicatorTrends indicators={row.indicators} /></div> : null}
                 </td>
                 <td className="px-3 py-2">
@@ -210,7 +211,7 @@ export function OverviewTable({ rows, sites, now, noSeries }: {
                     <span>{row.timeZone}</span>
                   </div>
                 </td>
-                <td className="hidden px-3 py-2 md:table-cell"><SiteName row={row} /></td>
+                {siteColumn ? <td className="hidden px-3 py-2 md:table-cell"><SiteName row={row} /></td> : null}
                 <td className="hidden px-3 py-2 sm:table-cell">
                   <IndicatorTrends indicators={row.indicators} />
                 </td>

@@ -38,7 +38,7 @@ export default async function SitePage({ params }: { params: Promise<{ slug: str
       <div className="grid grid-cols-1 gap-4 lg:grid-cols-[minmax(0,1fr)_360px]">
         <div className="min-w-0 space-y-4">
           <Panel title="Series and their latest data" id="site-series">
-            <OverviewTable rows={series} sites={[]} now={generatedAt} noSeries="No active series at this site." />
+            <OverviewTable rows={series} sites={[]} now={generatedAt} noSeries="No active series at this site." siteColumn={false} />
           </Panel>
           <Panel title="Open alerts" id="site-alerts">
             {openAlerts.length === 0 ? <Empty>No open alerts at this site.</Empty> : (
