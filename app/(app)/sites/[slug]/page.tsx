@@ -22,6 +22,7 @@ export default async function SitePage({ params }: { params: Promise<{ slug: str
   const { slug } = await params;
   const { site, series, openAlerts, generatedAt } = await foundOr404(() => fetchSitePage(slug, actor.id));
   const canEdit = roleAtLeast(actor.role, 'lead');
+  const placed = site.latitude !== null;
   return (
     <section className="space-y-4">
       <nav aria-label="Breadcrumb" className="text-sm text-ink-soft">
@@ -35,7 +36,7 @@ export default async function SitePage({ params }: { params: Promise<{ slug: str
       {site.description ? <p className="max-w-3xl text-sm text-ink-soft">{site.description}</p> : null}
       {site.notes ? <p className="max-w-3xl whitespace-pre-line text-sm"><span className="font-medium">Notes: </span>{site.notes}</p> : null}
       <Caution />
-      <div className="grid grid-cols-1 gap-4 lg:grid-cols-[minmax(0,1fr)_360px]">
+      <div className={`grid grid-cols-1 gap-4 ${placed || canEdit ? 'lg:grid-cols-[minmax(0,1fr)_360px]' : ''}`}>
         <div className="min-w-0 space-y-4">
           <Panel title="Series and their latest data" id="site-series">
             <OverviewTable rows={series} sites={[]} now={generatedAt} noSeries="No active series at this site." siteColumn={false} />
@@ -60,14 +61,16 @@ export default async function SitePage({ params }: { params: Promise<{ slug: str
             )}
           </Panel>
         </div>
-        <div className="space-y-4">
-          {site.latitude !== null ? <SiteMap map={siteMap([site], 360, 200)} /> : null}
-          {canEdit ? (
-            <Panel title="Edit the site" id="edit-site">
-              <SiteForm site={site} />
-            </Panel>
-          ) : null}
-        </div>
+        {placed || canEdit ? (
+          <div className="space-y-4">
+            {placed ? <SiteMap map={siteMap([site], 360, 200)} /> : null}
+            {canEdit ? (
+              <Panel title="Edit the site" id="edit-site">
+                <SiteForm site={site} />
+              </Panel>
+            ) : null}
+          </div>
+        ) : null}
       </div>
     </section>
   );
