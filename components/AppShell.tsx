@@ -8,6 +8,7 @@ import { SystemStatus } from './SystemStatus';
 const NAV: { href: string; label: string; minRole: Actor['role'] }[] = [
   { href: '/', label: 'Overview', minRole: 'viewer' },
   { href: '/alerts', label: 'Alerts', minRole: 'viewer' },
+  { href: '/sites', label: 'Sites', minRole: 'viewer' },
   { href: '/intake', label: 'Intake', minRole: 'viewer' },
   { href: '/admin', label: 'Admin', minRole: 'admin' },
   { href: '/account', label: 'Account', minRole: 'viewer' },

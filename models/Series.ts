@@ -11,7 +11,9 @@ export class Series extends Model<InferAttributes<Series>, InferCreationAttribut
   declare id: CreationOptional<number>;
   declare slug: string;
   declare name: string;
+  /** The site's name, kept beside `siteId` by lib/sites (see models/Site.ts); '' when the series has no site. */
   declare site: CreationOptional<string>;
+  declare siteId: CreationOptional<number | null>;
   declare unit: CreationOptional<string>;
   declare description: CreationOptional<string>;
   /** Sampling interval in milliseconds; null when the record is irregular and kept as it comes. */
@@ -34,6 +36,7 @@ export class Series extends Model<InferAttributes<Series>, InferCreationAttribut
         slug: { type: DataTypes.STRING, allowNull: false, unique: true },
         name: { type: DataTypes.STRING, allowNull: false },
         site: { type: DataTypes.STRING, allowNull: false, defaultValue: '' },
+        siteId: { type: DataTypes.INTEGER, allowNull: true, defaultValue: null },
         unit: { type: DataTypes.STRING, allowNull: false, defaultValue: '' },
         description: { type: DataTypes.TEXT, allowNull: false, defaultValue: '' },
         intervalMs: { type: DataTypes.BIGINT, allowNull: true },

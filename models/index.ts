@@ -2,6 +2,7 @@ import type { Sequelize, Transaction } from 'sequelize';
 import { databaseReady, getSequelize, writeTransaction as writeInTransaction } from './db';
 import { User } from './User';
 import { Series } from './Series';
+import { Site } from './Site';
 import { Observation } from './Observation';
 import { IngestRun } from './IngestRun';
 import { AnalysisSnapshot } from './AnalysisSnapshot';
@@ -28,6 +29,8 @@ const initialised = new WeakSet<Sequelize>();
 
 /** Every association of the data model, wired in this one place. */
 function associate(): void {
+  Site.hasMany(Series, { foreignKey: 'siteId', as: 'series' });
+  Series.belongsTo(Site, { foreignKey: 'siteId', as: 'siteRecord' });
   Series.hasMany(Observation, { foreignKey: 'seriesId', as: 'observations' });
   Series.hasMany(IngestRun, { foreignKey: 'seriesId', as: 'ingestRuns' });
   IngestRun.belongsTo(Series, { foreignKey: 'seriesId', as: 'series' });
@@ -68,7 +71,7 @@ function associate(): void {
 const MODELS = [
   User, Series, Observation, IngestRun, AnalysisSnapshot, AlertRule, RuleEvaluation, Alert, AlertEvent, Note,
   NoteRevision, IngestToken, MailMessage, AuditEntry, Watch, Lease, SettingsChange, SignInThrottle, UserToken,
-  Mark, BacktestJob, AppState, ApiToken, UserPreference,
+  Mark, BacktestJob, AppState, ApiToken, UserPreference, Site,
 ];
 
 /** Binds the models to this process's one Sequelize instance (idempotent) and returns it once it is ready. */
@@ -85,7 +88,7 @@ export async function db(): Promise<Sequelize> {
 export {
   User, Series, Observation, IngestRun, AnalysisSnapshot, AlertRule, RuleEvaluation, Alert, AlertEvent, Note,
   NoteRevision, IngestToken, MailMessage, AuditEntry, Watch, Lease, SettingsChange, SignInThrottle, UserToken,
-  Mark, BacktestJob, AppState, ApiToken, UserPreference,
+  Mark, BacktestJob, AppState, ApiToken, UserPreference, Site,
 };
 /**
  * `writeTransaction` of models/db.ts with the models bound first: a web worker's first request may be a write

@@ -1,7 +1,7 @@
 'use client';
 
 import Link from 'next/link';
-import { useMemo, useState } from 'react';
+import { Fragment, useMemo, useState, type ReactNode } from 'react';
 import { FreshnessBadge, StateBadge, STATE_LABELS } from '@/components/Badges';
 import { LocalTime } from '@/components/LocalTime';
 import { Empty } from '@/components/States';
@@ -64,9 +64,29 @@ function IndicatorTrends({ indicators }: { indicators: OverviewRow['indicators']
   );
 }
 
-export function OverviewTable({ rows, sites, now }: { rows: OverviewRow[]; sites: string[]; now: number }) {
+/** The site cell: its name linked to its page, or a dash. */
+function SiteName({ row }: { row: OverviewRow }) {
+  if (!row.site) return <span className="text-ink-faint">–</span>;
+  return row.siteSlug ? <Link href={`/sites/${row.siteSlug}`} className="hover:underline">{row.site}</Link> : <>{row.site}</>;
+}
+
+
+/**
+ * The network's series, filtered, sorted and (with more than one site) optionally grouped by site: each group
+ * under a heading row naming its site, in the chosen order within it. The site page shows its own rows here too.
+ */
+export function OverviewTable({ rows, sites, now, noSeries, siteColumn = true }: {
+  rows: OverviewRow[];
+  sites: string[];
+  now: number;
+  /** what to say when there are no rows at all */
+  noSeries?: ReactNode;
+  /** false where every row has the same site (the site page) */
+  siteColumn?: boolean;
+}) {
   const [text, setText] = useState('');
   const [site, setSite] = useState('');
+  const [grouped, setGrouped] = useState(false);
   const [state, setState] = useState('');
   const [sort, setSort] = useState<{ key: SortKey; desc: boolean }>({ key: 'state', desc: true });
   const [limit, setLimit] = useState(ROWS_PER_STEP);
@@ -85,8 +105,14 @@ export function OverviewTable({ rows, sites, now }: { rows: OverviewRow[]; sites
         (!state || r.state === state),
     );
     const compare = SORTS[sort.key];
-    return filtered.sort((a, b) => (sort.desc ? -1 : 1) * compare(a, b) || a.name.localeCompare(b.name));
-  }, [rows, text, site, state, sort]);
+    const bySite = (a: OverviewRow, b: OverviewRow) => (grouped ? (a.site === '' ? 1 : 0) - (b.site === '' ? 1 : 0) || a.site.localeCompare(b.site) : 0);
+    return filtered.sort((a, b) => bySite(a, b) || (sort.desc ? -1 : 1) * compare(a, b) || a.name.localeCompare(b.name));
+  }, [rows, text, site, state, sort, grouped]);
+  const groupSizes = useMemo(() => {
+    const sizes = new Map<string, number>();
+    for (const row of shown) sizes.set(row.site, (sizes.get(row.site) ?? 0) + 1);
+    return sizes;
+  }, [shown]);
 
   function header(key: SortKey, label: string, className = '') {
     const active = sort.key === key;
@@ -107,12 +133,20 @@ export function OverviewTable({ rows, sites, now }: { rows: OverviewRow[]; sites
         <Field label="Find a series" tone="filter">
           <input type="search" value={text} onChange={(e) => refine(setText)(e.target.value)} placeholder="Name, slug or site" className={`${CONTROL} w-56`} />
         </Field>
-        <Field label="Site" tone="filter">
-          <select value={site} onChange={(e) => refine(setSite)(e.target.value)} className={CONTROL}>
-            <option value="">All sites</option>
-            {sites.map((s) => <option key={s} value={s}>{s}</option>)}
-          </select>
-        </Field>
+        {sites.length > 1 ? (
+          <>
+            <Field label="Site" tone="filter">
+              <select value={site} onChange={(e) => refine(setSite)(e.target.value)} className={CONTROL}>
+                <option value="">All sites</option>
+                {sites.map((s) => <option key={s} value={s}>{s}</option>)}
+              </select>
+            </Field>
+            <label className="flex items-center gap-2 pb-1.5 text-sm">
+              <input type="checkbox" checked={grouped} onChange={(e) => refine(setGrouped)(e.target.checked)} data-testid="group-by-site" />
+              Group by site
+            </label>
+          </>
+        ) : null}
         <Field label="State" tone="filter">
           <select value={state} onChange={(e) => refine(setState)(e.target.value)} className={CONTROL}>
             <option value="">Any state</option>
@@ -122,14 +156,14 @@ export function OverviewTable({ rows, sites, now }: { rows: OverviewRow[]; sites
         <p className="ml-auto text-sm text-ink-soft" aria-live="polite">{shown.length} of {rows.length} series</p>
       </div>
       {shown.length === 0 ? (
-        <Empty>{rows.length === 0 ? 'No series are registered yet. Add one on the Intake page.' : 'No series match these filters.'}</Empty>
+        <Empty>{rows.length === 0 ? noSeries ?? <>No series are registered yet. <Link href="/series/new" className="text-tide hover:underline">Register one</Link> (leads).</> : 'No series match these filters.'}</Empty>
       ) : (
         <DataTable caption="Every series with its data freshness, state and latest indicator trends" testId="overview-table" className="sm:min-w-[640px]"
           head={<>
             {header('name', 'Series')}
             {header('state', 'State')}
             {header('lastData', 'Last data', 'hidden sm:table-cell')}
-            {header('site', 'Site', 'hidden md:table-cell')}
+            {siteColumn ? header('site', 'Site', 'hidden md:table-cell') : null}
             {header('tau', 'Indicator trend (tau, p)', 'hidden sm:table-cell')}
             <th scope="col" className="hidden px-3 py-2 text-left font-medium sm:table-cell">Recent curve</th>
           </>}
@@ -144,43 +178,52 @@ export function OverviewTable({ rows, sites, now }: { rows: OverviewRow[]; sites
               </Button>
             </div>
           ) : null}>
-          {shown.slice(0, limit).map((row) => (
-            <tr key={row.id} data-series={row.slug} className="hover:bg-paper/60">
-              <td className="px-3 py-2">
-                <Link href={`/series/${row.slug}`} className="font-medium text-tide hover:underline">{row.name}</Link>
-                <div className="font-mono text-xs text-ink-faint">{row.slug}</div>
-                {row.site ? <div className="text-xs text-ink-soft md:hidden">{row.site}</div> : null}
-                {row.indicators.length ? <div className="mt-1 text-xs sm:hidden"><IndicatorTrends indicators={row.indicators} /></div> : null}
-              </td>
-              <td className="px-3 py-2">
-                {row.state === 'alert' ? (
-                  <Link href={`/alerts?queue=triage&series=${row.slug}`} className="rounded">
-                    <StateBadge state={row.state} detail={`${row.openAlerts}`} />
-                  </Link>
-                ) : (
-                  <StateBadge state={row.state} />
-                )}
-                <div className="mt-1 text-xs sm:hidden"><RowFreshness row={row} now={now} /></div>
-              </td>
-              <td className="hidden px-3 py-2 sm:table-cell">
-                <div><LocalTime t={row.lastDataAt} timeZone={row.timeZone} /></div>
-                <div className="mt-0.5 flex items-center gap-1 text-xs text-ink-faint">
-                  <RowFreshness row={row} now={now} />
-                  <span>{row.timeZone}</span>
-                </div>
-              </td>
-              <td className="hidden px-3 py-2 md:table-cell">{row.site || <span className="text-ink-faint">–</span>}</td>
-              <td className="hidden px-3 py-2 sm:table-cell">
-                <IndicatorTrends indicators={row.indicators} />
-              </td>
-              <td className="hidden px-3 py-2 sm:table-cell">
-                {row.spark ? (
-                  <Sparkline path={row.spark.path} label={`Rolling ${indicatorLabel(row.spark.indicator)} of ${row.name}`} />
-                ) : (
-                  <span className="text-ink-faint">–</span>
-                )}
-              </td>
-            </tr>
+          {shown.slice(0, limit).map((row, index, page) => (
+            <Fragment key={row.id}>
+              {grouped && (index === 0 || page[index - 1].site !== row.site) ? (
+                <tr className="border-t border-rule bg-paper" data-site-group={row.siteSlug ?? ''}>
+                  <th scope="colgroup" colSpan={siteColumn ? 6 : 5} className="px-3 py-1.5 text-left font-semibold">
+                    {row.site ? <SiteName row={row} /> : 'No site'} <span className="font-normal text-ink-soft">· {groupSizes.get(row.site)} series</span>
+                  </th>
+                </tr>
+              ) : null}
+              <tr data-series={row.slug} className="hover:bg-paper/60">
+                <td className="px-3 py-2">
+                  <Link href={`/series/${row.slug}`} className="font-medium text-tide hover:underline">{row.name}</Link>
+                  <div className="font-mono text-xs text-ink-faint">{row.slug}</div>
+                  {siteColumn && row.site ? <div className="text-xs text-ink-soft md:hidden">{row.site}</div> : null}
+                  {row.indicators.length ? <div className="mt-1 text-xs sm:hidden"><IndicatorTrends indicators={row.indicators} /></div> : null}
+                </td>
+                <td className="px-3 py-2">
+                  {row.state === 'alert' ? (
+                    <Link href={`/alerts?queue=triage&series=${row.slug}`} className="rounded">
+                      <StateBadge state={row.state} detail={`${row.openAlerts}`} />
+                    </Link>
+                  ) : (
+                    <StateBadge state={row.state} />
+                  )}
+                  <div className="mt-1 text-xs sm:hidden"><RowFreshness row={row} now={now} /></div>
+                </td>
+                <td className="hidden px-3 py-2 sm:table-cell">
+                  <div><LocalTime t={row.lastDataAt} timeZone={row.timeZone} /></div>
+                  <div className="mt-0.5 flex items-center gap-1 text-xs text-ink-faint">
+                    <RowFreshness row={row} now={now} />
+                    <span>{row.timeZone}</span>
+                  </div>
+                </td>
+                {siteColumn ? <td className="hidden px-3 py-2 md:table-cell"><SiteName row={row} /></td> : null}
+                <td className="hidden px-3 py-2 sm:table-cell">
+                  <IndicatorTrends indicators={row.indicators} />
+                </td>
+                <td className="hidden px-3 py-2 sm:table-cell">
+                  {row.spark ? (
+                    <Sparkline path={row.spark.path} label={`Rolling ${indicatorLabel(row.spark.indicator)} of ${row.name}`} />
+                  ) : (
+                    <span className="text-ink-faint">–</span>
+                  )}
+                </td>
+              </tr>
+            </Fragment>
           ))}
         </DataTable>
       )}

@@ -6,3 +6,8 @@ export function sqlDate(instant: number | Date): string {
   const ms = typeof instant === 'number' ? instant : instant.getTime();
   return new Date(ms).toISOString().replace('T', ' ').replace('Z', ' +00:00');
 }
+
+/** The inverse of `sqlDate`: a DATE column read by raw SQL, as an ISO 8601 UTC string. */
+export function isoFromSqlDate(value: unknown): string {
+  return new Date(String(value).replace(' +00:00', 'Z').replace(' ', 'T')).toISOString();
+}

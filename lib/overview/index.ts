@@ -31,7 +31,9 @@ export interface OverviewRow {
   id: number;
   slug: string;
   name: string;
+  /** the site's name ('' for none) and its slug, the address of its page */
   site: string;
+  siteSlug: string | null;
   unit: string;
   timeZone: string;
   intervalMs: number | null;
@@ -77,6 +79,7 @@ interface SeriesRow {
   slug: string;
   name: string;
   site: string;
+  site_slug: string | null;
   unit: string;
   time_zone: string;
   interval_ms: number | null;
@@ -189,11 +192,11 @@ async function loadOverview(): Promise<StoredOverview> {
            (SELECT MAX(id) FROM analysis_snapshots x WHERE x.series_id = s.id AND x.status = 'ok') AS snap_id,
            (SELECT indicator FROM alert_rules r WHERE r.series_id = s.id AND r.active = 1 ORDER BY r.id LIMIT 1) AS rule_indicator
          FROM series s WHERE s.retired_at IS NULL)
-       SELECT b.id, b.slug, b.name, b.site, b.unit, b.time_zone, b.interval_ms, b.last_t, b.snap_id, b.rule_indicator,
+       SELECT b.id, b.slug, b.name, b.site, st.slug AS site_slug, b.unit, b.time_zone, b.interval_ms, b.last_t, b.snap_id, b.rule_indicator,
          a.created_at AS snap_created,
          json_extract(a.summary, '$.kendall') AS kendall,
          json_object(${SURROGATE_P}) AS surrogate_p
-       FROM base b LEFT JOIN analysis_snapshots a ON a.id = b.snap_id
+       FROM base b LEFT JOIN analysis_snapshots a ON a.id = b.snap_id LEFT JOIN sites st ON st.id = b.site_id
        ORDER BY b.name`,
       { type: QueryTypes.SELECT },
     ),
@@ -250,6 +253,7 @@ async function loadOverview(): Promise<StoredOverview> {
       slug: s.slug,
       name: s.name,
       site: s.site,
+      siteSlug: s.site_slug,
       unit: s.unit,
       timeZone: s.time_zone,
       intervalMs,

@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { analysisSettingsSchema } from '@/lib/engine/settings';
+import { isExtent, parseExtent } from '@/lib/engine/extent';
 
 /** Lower-case words joined by hyphens: safe as a folder name and in URLs, never a path. */
 export const slugSchema = z
@@ -7,6 +8,36 @@ export const slugSchema = z
   .min(2)
   .max(64)
   .regex(/^[a-z0-9]+(?:-[a-z0-9]+)*$/, 'Use lower-case letters, digits and single hyphens (e.g. north-basin-temp).');
+
+const SLUG_MAX = 64;
+
+/** Latin letters that Unicode does not decompose into a base letter and a mark, written as they are usually spelt in ASCII. */
+const LATIN_LETTERS: Record<string, string> = { æ: 'ae', ø: 'o', œ: 'oe', ß: 'ss', ł: 'l', đ: 'd', ð: 'd', þ: 'th', ı: 'i' };
+
+/**
+ * A slug suggested for a name: accents dropped (Unicode NFKD, combining marks removed; æ, ø, ß and the like
+ * spelt out), lower case, every run of other characters one hyphen, at most 64 characters. '' when nothing of the
+ * name is left (a name in another script); the form then asks for one. O(length).
+ */
+export function suggestSlug(name: string): string {
+  return name
+    .normalize('NFKD')
+    .replace(/[\u0300-\u036f]/g, '')
+    .toLowerCase()
+    .replace(/[æøœßłđðþı]/g, (letter) => LATIN_LETTERS[letter])
+    .replace(/[^a-z0-9]+/g, '-')
+    .slice(0, SLUG_MAX)
+    .replace(/^-+|-+$/g, '');
+}
+
+/** `suggestSlug(name)`, or `fallback` when that is too short, made unique against `taken` by -2, -3, … */
+export function uniqueSlug(name: string, taken: ReadonlySet<string>, fallback = 'site'): string {
+  const suggested = suggestSlug(name);
+  const base = suggested.length >= 2 ? suggested : fallback;
+  let slug = base;
+  for (let n = 2; taken.has(slug); n++) slug = `${base.slice(0, SLUG_MAX - String(n).length - 1).replace(/-+$/, '')}-${n}`;
+  return slug;
+}
 
 export const TIME_FORMATS = [
   'iso8601',
@@ -34,6 +65,9 @@ function isTimeZone(zone: string): boolean {
 }
 
 const text = (max: number) => z.string().trim().max(max);
+
+/** An IANA time zone name the runtime knows (Intl), as series and sites carry. */
+export const timeZoneSchema = z.string().refine(isTimeZone, 'Unknown IANA time zone (e.g. Europe/Oslo or UTC).');
 
 /**
  * Analysis settings a new series starts with, suited to a live record that grows with every reading (the engine's
@@ -71,14 +105,22 @@ export const seriesSettingsSchema = z.preprocess((input) => {
   return { ...('spanPoints' in input ? withoutSpan : LIVE_SETTINGS_DEFAULTS), ...input };
 }, analysisSettingsSchema);
 
-/** Everything a lead can set on a series; the one schema behind the API, the forms and the seed. */
+/** A site chosen by id; null for none. Wins over `site` (a name) when both are given. */
+const siteIdSchema = z.number().int().positive().nullable();
+
+/**
+ * Everything a lead can set on a series; the one schema behind the API, the forms and the seed. The site is given
+ * either by `siteId` or by its name in `site` (a name not yet known creates the site, which keeps clients that only
+ * ever sent a name working); `site: ''` means none.
+ */
 export const seriesFieldsSchema = z.object({
   name: text(200).min(1),
   site: text(200).default(''),
+  siteId: siteIdSchema.optional(),
   unit: text(50).default(''),
   description: text(5000).default(''),
   intervalMs: z.number().int().positive().max(100 * 366 * 86_400_000).nullable().default(null),
-  timeZone: z.string().refine(isTimeZone, 'Unknown IANA time zone (e.g. Europe/Oslo or UTC).').default('UTC'),
+  timeZone: timeZoneSchema.default('UTC'),
   csvMapping: csvMappingSchema.default(csvMappingSchema.parse({})),
   settings: seriesSettingsSchema.default(seriesSettingsSchema.parse({})),
   duplicatePolicy: z.enum(['reject', 'replace']).default('reject'),
@@ -93,10 +135,11 @@ export const seriesUpdateSchema = z
   .object({
     name: text(200).min(1),
     site: text(200),
+    siteId: siteIdSchema,
     unit: text(50),
     description: text(5000),
     intervalMs: z.number().int().positive().nullable(),
-    timeZone: z.string().refine(isTimeZone, 'Unknown IANA time zone.'),
+    timeZone: timeZoneSchema,
     csvMapping: csvMappingSchema,
     settings: seriesSettingsSchema,
     duplicatePolicy: z.enum(['reject', 'replace']),
@@ -113,3 +156,71 @@ export const seriesListQuerySchema = z.object({
   limit: z.coerce.number().int().min(1).max(1000).optional(),
 });
 export type SeriesListQuery = z.output<typeof seriesListQuerySchema>;
+
+/**
+ * A sampling interval written as an ISO 8601 duration (PT15M, PT1H, P1D; ISO 8601-1:2019, Sec. 5.5.2, read by the
+ * engine's `parseExtent`), in milliseconds; '' is an irregular record (null). The bulk list's `interval` column.
+ */
+export const intervalTextSchema = z
+  .string()
+  .trim()
+  .transform((value, context) => {
+    if (value === '') return null;
+    const parsed = isExtent(value) ? parseExtent(value) : null;
+    if (parsed?.kind === 'duration') return Math.round(parsed.ms);
+    context.addIssue({ code: 'custom', message: 'Write the interval as an ISO 8601 duration such as PT15M, PT1H or P1D, or leave it empty for an irregular record.' });
+    return z.NEVER;
+  });
+
+/** The columns of a bulk registration list (one row a series; the header names them, in any order). */
+export const BULK_COLUMNS = {
+  slug: 'required; lower-case letters, digits and single hyphens',
+  name: 'required',
+  site: 'the site\'s name; a name not yet known creates the site',
+  unit: 'e.g. °C or m',
+  description: 'free text',
+  interval: 'ISO 8601 duration: PT15M, PT1H, P1D; empty for an irregular record',
+  timeZone: 'IANA zone, default UTC',
+  timeColumn: 'header name or 0-based position of the time column in the series\' CSV files, default 0',
+  valueColumn: 'header name or position of the value column, default 1',
+  timeFormat: `one of ${TIME_FORMATS.join(', ')}; default iso8601`,
+  duplicatePolicy: 'reject or replace, default reject',
+  window: 'rolling window, default 0.5 (a fraction of the analysed stretch, "<n> points" or a duration)',
+  span: 'trailing span analysed, default "1000 points"',
+  surrogates: 'number of surrogate series, default 199',
+} as const;
+
+const cell = z.string().optional().transform((value) => value?.trim() ?? '');
+/** A column given as a header name, or as a 0-based position when it is all digits. */
+const columnCell = cell.transform((value) => (value === '' ? undefined : /^\d+$/.test(value) ? Number(value) : value));
+/** A fraction when numeric, else the text ("200 points", "P90D"); left out when empty. */
+const extentCell = cell.transform((value) => (value === '' ? undefined : Number.isFinite(Number(value)) ? Number(value) : value));
+
+/**
+ * One row of a bulk list, as papaparse gives it (every cell a string), read into what `seriesCreateSchema` takes
+ * and checked by it: so a row is valid here exactly when `POST /api/series` would take it.
+ */
+export const bulkRowSchema = z
+  .object({
+    slug: cell, name: cell, site: cell, unit: cell, description: cell, interval: cell.pipe(intervalTextSchema),
+    timeZone: cell, timeColumn: columnCell, valueColumn: columnCell, timeFormat: cell, duplicatePolicy: cell,
+    window: extentCell, span: extentCell, surrogates: cell,
+  })
+  // Typed loosely here on purpose: seriesCreateSchema, piped after it, is what checks every value.
+  .transform((row): Record<string, unknown> => {
+    const settings = Object.fromEntries(
+      Object.entries({ window: row.window, span: row.span, surrogates: row.surrogates === '' ? undefined : Number(row.surrogates) }).filter(([, v]) => v !== undefined),
+    );
+    const csvMapping = Object.fromEntries(
+      Object.entries({ timeColumn: row.timeColumn, valueColumn: row.valueColumn, timeFormat: row.timeFormat || undefined }).filter(([, v]) => v !== undefined),
+    );
+    return {
+      slug: row.slug, name: row.name, site: row.site, unit: row.unit, description: row.description, intervalMs: row.interval,
+      timeZone: row.timeZone || undefined, duplicatePolicy: row.duplicatePolicy || undefined, csvMapping, settings,
+    };
+  })
+  .pipe(seriesCreateSchema);
+
+/** POST /api/series/bulk: the list as CSV text; `dryRun` checks it and creates nothing. */
+export const bulkRequestSchema = z.object({ csv: z.string().min(1, 'The list is empty.').max(1_000_000) }).strict();
+export const bulkQuerySchema = z.object({ dryRun: z.enum(['1', 'true']).optional() });

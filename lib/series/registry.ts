@@ -5,7 +5,8 @@ import { ConflictError, NotFoundError } from '@/lib/http/errors';
 import { recordAudit } from '@/lib/audit';
 import { cachedRead } from '@/lib/db/read-cache';
 import type { Actor } from '@/lib/auth/roles';
-import { seriesCreateSchema, seriesUpdateSchema, type SeriesCreateInput } from '@/lib/schemas/series';
+import { seriesCreateSchema, seriesUpdateSchema, type SeriesCreate, type SeriesCreateInput } from '@/lib/schemas/series';
+import { resolveSeriesSite } from '@/lib/sites/registry';
 
 /** The public shape of a series record (what the API returns). */
 export function presentSeries(series: Series) {
@@ -14,6 +15,7 @@ export function presentSeries(series: Series) {
     slug: series.slug,
     name: series.name,
     site: series.site,
+    siteId: series.siteId ?? null,
     unit: series.unit,
     description: series.description,
     intervalMs: series.intervalMs === null ? null : Number(series.intervalMs),
@@ -85,17 +87,25 @@ export async function applyDefaultRules(seriesId: number, transaction: Transacti
   return defaults.length;
 }
 
+/**
+ * Writes one validated series inside the caller's transaction: the record with its site, the first entry of its
+ * settings history, the default rules and the audit entry. Shared by single and bulk registration.
+ */
+export async function insertSeries(fields: SeriesCreate, actor: Pick<Actor, 'id'> | null, transaction: Transaction): Promise<Series> {
+  const { siteId: _siteId, site: _site, ...rest } = fields;
+  const site = await resolveSeriesSite(fields, actor, transaction);
+  const series = await Series.create({ ...rest, ...site, retiredAt: null, dataChangedAt: null }, { transaction });
+  await SettingsChange.create({ seriesId: series.id, settings: fields.settings, changedBy: actor?.id ?? null }, { transaction });
+  await applyDefaultRules(series.id, transaction);
+  await recordAudit({ actorId: actor?.id ?? null, action: 'series.create', entity: 'series', entityId: series.id, details: { slug: series.slug } }, transaction);
+  return series;
+}
+
 /** Registers a series; defaults fill everything but slug and name. 409 when the slug is taken. */
 export async function createSeries(input: SeriesCreateInput, actor: Pick<Actor, 'id'> | null): Promise<Series> {
   const fields = seriesCreateSchema.parse(input);
   try {
-    return await writeTransaction(async (transaction) => {
-      const series = await Series.create({ ...fields, retiredAt: null, dataChangedAt: null }, { transaction });
-      await SettingsChange.create({ seriesId: series.id, settings: fields.settings, changedBy: actor?.id ?? null }, { transaction });
-      await applyDefaultRules(series.id, transaction);
-      await recordAudit({ actorId: actor?.id ?? null, action: 'series.create', entity: 'series', entityId: series.id, details: { slug: series.slug } }, transaction);
-      return series;
-    });
+    return await writeTransaction((transaction) => insertSeries(fields, actor, transaction));
   } catch (error) {
     if (error instanceof UniqueConstraintError) throw new ConflictError(`A series with the slug "${fields.slug}" already exists.`);
     throw error;
@@ -137,7 +147,9 @@ export async function updateSeries(slug: string, input: unknown, actor: Pick<Act
   return writeTransaction(async (transaction) => {
     const series = await Series.findOne({ where: { slug }, transaction });
     if (!series) throw new NotFoundError('Series');
-    const { retired, ...fields } = patch;
+    const { retired, siteId, site, ...rest } = patch;
+    const timeZone = rest.timeZone ?? series.timeZone;
+    const fields = siteId !== undefined || site !== undefined ? { ...rest, ...(await resolveSeriesSite({ siteId, site, timeZone }, actor, transaction)) } : rest;
     const changed = Object.keys(fields).filter((key) => JSON.stringify(fields[key as keyof typeof fields]) !== JSON.stringify(series.get(key)));
     const settingsChanged = changed.includes('settings');
     series.set(fields);

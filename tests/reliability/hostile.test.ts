@@ -206,8 +206,10 @@ describe('hostile input against the started product', () => {
     // Exactly the rows asked for were added; every table the SQL text names is intact.
     const after = await raw.tableCounts(BOOKKEEPING);
     const grew = Object.fromEntries(Object.keys(after).filter((t) => after[t] !== before[t]).map((t) => [t, after[t] - before[t]]));
-    expect(grew).toEqual(expect.objectContaining({ series: 1, notes: 1, alerts: 1, alert_rules: 1, analysis_snapshots: 1 }));
-    for (const table of Object.keys(grew)) expect(['series', 'notes', 'alerts', 'alert_rules', 'analysis_snapshots', 'settings_changes', 'note_revisions']).toContain(table);
+    // The series names a site not known yet, which creates it (its name kept verbatim as well).
+    expect(grew).toEqual(expect.objectContaining({ series: 1, sites: 1, notes: 1, alerts: 1, alert_rules: 1, analysis_snapshots: 1 }));
+    expect(await raw.get('SELECT name FROM sites WHERE name = ?', [SQL_TEXT])).toEqual({ name: SQL_TEXT });
+    for (const table of Object.keys(grew)) expect(['series', 'sites', 'notes', 'alerts', 'alert_rules', 'analysis_snapshots', 'settings_changes', 'note_revisions']).toContain(table);
     expect(await raw.count('users')).toBe(4);
 
     // HTML: the text appears escaped; no element the text tried to inject exists.

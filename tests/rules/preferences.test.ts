@@ -43,7 +43,9 @@ describe('per-user preferences', () => {
   });
 
   it('migration 0014 goes down and up again', async () => {
-    expect(await migrateDown('0014-user-preferences')).toEqual(['0014-user-preferences']);
-    expect(await migrateUp()).toEqual(['0014-user-preferences']);
+    // Reverting 0014 reverts what came after it too; all of it comes back.
+    const reverted = await migrateDown('0014-user-preferences');
+    expect(reverted).toContain('0014-user-preferences');
+    expect((await migrateUp()).sort()).toEqual([...reverted].sort());
   });
 });

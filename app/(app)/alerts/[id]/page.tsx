@@ -13,6 +13,7 @@ import { formatP, formatTau, formatValue } from '@/lib/display/format';
 import { DIRECTION_WORDS, indicatorLabel } from '@/lib/display/analysis-labels';
 import { describeCalibration, kendallPLabel, tauThreshold, tauWithDirection } from '@/lib/alerts/wording';
 import { idParam } from '@/lib/http/params';
+import { foundOr404 } from '@/lib/http/page';
 import { roleAtLeast } from '@/lib/auth/roles';
 
 export const metadata = { title: 'Alert' };
@@ -27,8 +28,8 @@ const SHOWS_STATE = new Set(['open', 'assign', 'reopen', 'evaluate']);
 
 export default async function AlertPage({ params }: { params: Promise<{ id: string }> }) {
   const actor = await requireRole('viewer');
-  const id = idParam((await params).id, 'Alert');
-  const { detail, firstView, latestView, marks, colleagues, provenance } = await fetchAlertPage(id, actor);
+  const { id: raw } = await params;
+  const { detail, firstView, latestView, marks, colleagues, provenance } = await foundOr404(async () => fetchAlertPage(idParam(raw, 'Alert'), actor));
   const tz = detail.series.timeZone;
   const lastEval = detail.evidence.evaluations[detail.evidence.evaluations.length - 1];
   const rule = detail.rule;

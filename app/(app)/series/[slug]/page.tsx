@@ -15,13 +15,14 @@ import { Workbench } from '@/components/workbench/Workbench';
 import { requireRole } from '@/lib/auth/guard';
 import { fetchWorkbench } from '@/lib/series/workbench';
 import { roleAtLeast } from '@/lib/auth/roles';
+import { foundOr404 } from '@/lib/http/page';
 
 export const metadata = { title: 'Series' };
 
 export default async function SeriesPage({ params }: { params: Promise<{ slug: string }> }) {
   const actor = await requireRole('viewer');
   const { slug } = await params;
-  const bench = await fetchWorkbench(slug);
+  const bench = await foundOr404(() => fetchWorkbench(slug));
   const { series } = bench;
   const [statuses, preferences] = await Promise.all([ruleStatuses(series.id), readPreferences(actor)]);
   const canLead = roleAtLeast(actor.role, 'lead');
@@ -36,6 +37,7 @@ export default async function SeriesPage({ params }: { params: Promise<{ slug: s
         {bench.snapshot ? (
           <span className="text-sm text-ink-soft">analysed <LocalTime t={bench.snapshot.createdAt} timeZone={series.timeZone} /></span>
         ) : null}
+        {roleAtLeast(actor.role, 'lead') ? <Link href={`/series/${series.slug}/settings`} className="ml-auto text-sm text-tide hover:underline" data-testid="series-settings-link">Settings</Link> : null}
       </header>
       {series.description ? <p className="max-w-3xl text-sm text-ink-soft">{series.description}</p> : null}
       <Caution />

@@ -11,6 +11,7 @@ import { describeExtent, formatDirection, indicatorLabel, stretchReason } from '
 import { listRules } from '@/lib/alerts/rules';
 import { reportIndicators } from '@/lib/series/evidence';
 import { fetchWorkbench } from '@/lib/series/workbench';
+import { foundOr404 } from '@/lib/http/page';
 
 export const metadata = { title: 'Report' };
 
@@ -27,7 +28,7 @@ const PRINT_STYLE = `@media print {
 export default async function SeriesReportPage({ params }: { params: Promise<{ slug: string }> }) {
   const actor = await requireRole('viewer');
   const { slug } = await params;
-  const bench = await fetchWorkbench(slug);
+  const bench = await foundOr404(() => fetchWorkbench(slug));
   // A server component renders once per request, so the report states the moment it was prepared.
   // eslint-disable-next-line react-hooks/purity
   const preparedAt = Date.now();

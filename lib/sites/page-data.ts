@@ -1,0 +1,58 @@
+import { QueryTypes } from 'sequelize';
+import { OPEN_ALERT_STATES, db } from '@/models';
+import { fetchSeriesOverview, type OverviewRow } from '@/lib/overview';
+import { cachedRead } from '@/lib/db/read-cache';
+import { isoFromSqlDate } from '@/lib/db/sql-date';
+import type { SiteRecord } from '@/lib/schemas/site';
+import { findSiteBySlug, presentSite } from './registry';
+
+export interface SiteAlert {
+  id: number;
+  state: string;
+  severity: string;
+  kind: string;
+  indicator: string | null;
+  series: { slug: string; name: string; timeZone: string };
+  createdAt: string;
+}
+
+export interface SitePage {
+  site: SiteRecord;
+  /** the site's active series as the overview shows them (state, latest data and its freshness, trends) */
+  series: OverviewRow[];
+  openAlerts: SiteAlert[];
+  generatedAt: number;
+}
+
+/** Open alerts shown on a site page at most; the alerts screen, filtered by series, has the rest. */
+const SITE_ALERTS_SHOWN = 50;
+const OPEN = OPEN_ALERT_STATES.map((state) => `'${state}'`).join(',');
+
+async function openAlertsOfSite(siteId: number): Promise<SiteAlert[]> {
+  return cachedRead(`site-alerts:${siteId}`, async () => {
+    const sequelize = await db();
+    const rows = await sequelize.query<{ id: number; state: string; severity: string; kind: string | null; indicator: string | null; slug: string; name: string; time_zone: string; created_at: string }>(
+      `SELECT a.id, a.state, a.severity, a.kind, r.indicator, s.slug, s.name, s.time_zone, a.created_at
+       FROM alerts a JOIN series s ON s.id = a.series_id LEFT JOIN alert_rules r ON r.id = a.rule_id
+       WHERE s.site_id = :siteId AND s.retired_at IS NULL AND a.state IN (${OPEN})
+       ORDER BY CASE a.severity WHEN 'warning' THEN 0 ELSE 1 END, a.created_at DESC, a.id DESC LIMIT :limit`,
+      { type: QueryTypes.SELECT, replacements: { siteId, limit: SITE_ALERTS_SHOWN } },
+    );
+    return rows.map((r) => ({
+      id: Number(r.id), state: r.state, severity: r.severity, kind: r.kind ?? 'slowing-down', indicator: r.indicator,
+      series: { slug: r.slug, name: r.name, timeZone: r.time_zone },
+      createdAt: isoFromSqlDate(r.created_at),
+    }));
+  });
+}
+
+/**
+ * A site with its series and open alerts. The series rows are the overview's own (one cached read for the whole
+ * network, filtered here), so state and freshness read the same on both screens. 404 for an unknown slug.
+ */
+export async function fetchSitePage(slug: string, actorId: number | null, now = Date.now()): Promise<SitePage> {
+  const site = await findSiteBySlug(slug);
+  const [overview, openAlerts] = await Promise.all([fetchSeriesOverview(actorId, now), openAlertsOfSite(site.id)]);
+  const series = overview.rows.filter((row) => row.siteSlug === site.slug);
+  return { site: presentSite(site, series.length), series, openAlerts, generatedAt: now };
+}
