@@ -52,6 +52,17 @@ export const DEMO_SITES = {
   ridge: 'Kestrith Ridge Climate Station',
 } as const;
 
+/**
+ * Where the invented sites lie: made-up positions a few tens of kilometres apart (a sound, a lake, a fen and a
+ * ridge of one fictional basin), so the sites map has something to draw; no real station is meant.
+ */
+export const DEMO_SITE_PLACES: readonly { name: string; latitude: number; longitude: number; timeZone: string; description: string }[] = [
+  { name: DEMO_SITES.mooring, latitude: 60.412, longitude: 5.118, timeZone: 'UTC', description: 'Subsurface mooring in the sound: salinity and temperature at depth (invented).' },
+  { name: DEMO_SITES.lake, latitude: 60.655, longitude: 5.604, timeZone: 'Europe/Oslo', description: 'Shallow-lake monitoring raft: oxygen and algal biomass (invented).' },
+  { name: DEMO_SITES.fen, latitude: 60.528, longitude: 5.893, timeZone: 'Europe/London', description: 'Fen vegetation plot with a water-table logger (invented).' },
+  { name: DEMO_SITES.ridge, latitude: 60.881, longitude: 6.247, timeZone: 'Europe/Helsinki', description: 'Ridge-top climate station: pressure and air temperature (invented).' },
+];
+
 const HOUR_MS = 3_600_000;
 const DAY_MS = 24 * HOUR_MS;
 

@@ -1,9 +1,10 @@
-import { AlertRule, Observation, Series, Mark, User, Watch, db, writeTransaction, type Role } from '@/models';
+import { AlertRule, Observation, Series, Mark, Site, User, Watch, db, writeTransaction, type Role } from '@/models';
 import { hashPassword } from '@/lib/auth/password';
 import { readAppState, writeAppState } from '@/lib/db/app-state';
 import { recordAudit } from '@/lib/audit';
 import { createSeries } from '@/lib/series/registry';
-import { buildDemoScenario, type DemoSeries } from './scenario';
+import { suggestSlug } from '@/lib/schemas/series';
+import { DEMO_SITE_PLACES, buildDemoScenario, type DemoSeries } from './scenario';
 
 /** The four demo accounts, one per role; all share the password given at start (DEMO_PASSWORD). */
 export const DEMO_USERS: readonly { email: string; name: string; role: Role }[] = [
@@ -71,6 +72,11 @@ export async function seedDemoScenario(actorId: number | null): Promise<{ series
   const watcherIds = watchers.map((user) => user.id);
   let seriesAdded = 0;
   let observations = 0;
+  // The sites first, with their places, so the series find them by name instead of creating bare ones.
+  for (const place of DEMO_SITE_PLACES) {
+    if (await Site.findOne({ where: { name: place.name } })) continue;
+    await Site.create({ slug: suggestSlug(place.name), ...place });
+  }
   for (const demo of buildDemoScenario(new Date())) {
     let series = await Series.findOne({ where: { slug: demo.input.slug } });
     if (!series) {

@@ -5,9 +5,9 @@ import { useTempDataDir } from '../support/temp-db';
 useTempDataDir('bw-demo-seed-');
 process.env.BCRYPT_COST = '10';
 const { migrateUp } = await import('@/migrations');
-const { AlertRule, AppState, Observation, Series, SettingsChange, Mark, User, Watch, closeDatabase, db } = await import('@/models');
+const { AlertRule, AppState, Observation, Series, SettingsChange, Mark, Site, User, Watch, closeDatabase, db } = await import('@/models');
 const { verifyPassword } = await import('@/lib/auth/password');
-const { buildDemoScenario } = await import('@/lib/demo/scenario');
+const { DEMO_SITE_PLACES, buildDemoScenario } = await import('@/lib/demo/scenario');
 const { DEMO_USERS, seedDemoScenario, seedIfEmpty } = await import('@/lib/demo/seed');
 
 const PASSWORD = 'demo-seed-test-pw';
@@ -84,6 +84,12 @@ describe('seedIfEmpty', () => {
       const watchers = await Watch.findAll({ where: { seriesId: series!.id }, raw: true });
       expect(watchers.map((w) => [w.userId, w.mode]).sort()).toEqual([[lead!.id, 'immediate'], [analyst!.id, 'immediate']].sort());
     }
+    // The invented sites carry their places, and every demo series sits at one of them.
+    const sites = await Site.findAll({ order: [['name', 'ASC']], raw: true });
+    expect(sites.map((site) => [site.name, site.latitude, site.longitude])).toEqual(
+      [...DEMO_SITE_PLACES].sort((a, b) => a.name.localeCompare(b.name)).map((place) => [place.name, place.latitude, place.longitude]),
+    );
+    expect(await Series.count({ where: { siteId: null } })).toBe(0);
     expect(await AppState.findByPk('seed.completed')).not.toBeNull();
   });
 
