@@ -1,5 +1,6 @@
 'use client';
 
+import Link from 'next/link';
 import { useQuery } from '@tanstack/react-query';
 import { api } from '@/components/api';
 
@@ -24,7 +25,12 @@ export function DropFolders() {
         {query.data?.items.map((folder) => (
           <li key={folder.slug} className="rounded border border-rule bg-card p-3 text-sm" data-testid={`drop-folder-${folder.slug}`}>
             <p className="font-mono font-medium">{folder.slug}/</p>
-            {!folder.known && <p className="mt-1 text-warning">No series has this slug, so its files are left alone. Rename the folder or register the series.</p>}
+            {!folder.known && (
+              <p className="mt-1 text-warning">
+                No series has this slug, so its files are left alone. Rename the folder or{' '}
+                <Link href="/series/new" className="underline">register the series</Link>.
+              </p>
+            )}
             {folder.pending.length > 0 && <p className="mt-1 text-ink-soft">Waiting: {folder.pending.join(', ')}</p>}
             {folder.rejected.length > 0 && (
               <div className="mt-2">
