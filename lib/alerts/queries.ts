@@ -181,6 +181,12 @@ function presentSnapshot(snapshot: AnalysisSnapshot | null, charts: EvidenceChar
  * their curves), the evaluation trail, the timeline with who and when, notes with their edit history, and the
  * actions the asking user may take.
  */
+/** Throws NotFoundError unless alert `id` exists: one primary-key lookup, for pages that must answer 404 before streaming. */
+export async function assertAlertExists(id: number): Promise<void> {
+  await db();
+  if (!(await Alert.findByPk(id, { attributes: ['id'] }))) throw new NotFoundError('Alert');
+}
+
 export async function fetchAlertDetail(id: number, actor?: Pick<Actor, 'role'>, charts: EvidenceCharts = 'curves') {
   await db();
   const alert = await Alert.findByPk(id, {
