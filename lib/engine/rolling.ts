@@ -1,7 +1,8 @@
 import { AnalysisInputError } from './errors';
 import { extentPoints, type Extent } from './extent';
 import type { TimeKind } from './time-kind';
-import type { IndicatorName } from './settings';
+import { indicatorDefinition, needsRawMean, type IndicatorName } from './indicators';
+import type { MomentIndicator, WindowMomentValues } from './indicators/definition';
 
 /** Smallest rolling window, in points, for which the moment estimators mean anything. */
 export const MIN_WINDOW_POINTS = 8;
@@ -108,13 +109,15 @@ export function windowMoments(r: Float64Array, w: number): WindowMoments {
   return { mean, m2, m3, m4, lag };
 }
 
+function momentDefinition(name: IndicatorName): MomentIndicator {
+  const definition = indicatorDefinition(name);
+  if (definition?.kind !== 'moments') throw new RangeError(`${name} is not computed from window moments`);
+  return definition;
+}
+
 /**
- * One indicator of a window of w points from its centred moments (see WindowMoments): variance = M2/(w−1);
- * sd = √variance; cv = sd/|rawMean|; ac1 = lag/M2 (NIST StRD estimator); skewness = (M3/w)/(M2/w)^{3/2};
- * kurtosis = (M4/w)/(M2/w)² − 3 (moment estimators g1, g2); recovery = −ln(ac1)/dt where ac1 > 0. NaN where
- * undefined (zero variance, zero mean). Cost O(1). Sources: NIST StRD univariate summary statistics (variance, sd,
- * r(1)); Joanes & Gill (1998), The Statistician 47, 183–189 (g1, g2); Gillespie (1996), Phys. Rev. E 54, 2084
- * (ac1 = e^{−λΔt}).
+ * One moment indicator of a window of w points from its centred moments (see WindowMoments), by the definition its
+ * file in lib/engine/indicators declares (formula, cost and source there); NaN where undefined. O(1).
  */
 export function indicatorFromMoments(
   name: IndicatorName,
@@ -126,22 +129,7 @@ export function indicatorFromMoments(
   rawMean: number,
   dt: number,
 ): number {
-  let v: number;
-  if (name === 'variance') v = m2 / (w - 1);
-  else if (name === 'sd') v = Math.sqrt(m2 / (w - 1));
-  else if (name === 'cv') v = Math.sqrt(m2 / (w - 1)) / Math.abs(rawMean);
-  else if (!(m2 > 0)) return Number.NaN;
-  else if (name === 'ac1') v = lag / m2;
-  else if (name === 'skewness') {
-    const q = m2 / w;
-    v = m3 / w / (q * Math.sqrt(q));
-  } else if (name === 'kurtosis') {
-    const q = m2 / w;
-    v = m4 / w / (q * q) - 3;
-  } else {
-    const a = lag / m2;
-    v = a > 0 ? -Math.log(a) / dt : Number.NaN;
-  }
+  const v = momentDefinition(name).fromMoments({ w, m2, m3, m4, lag, rawMean, dt });
   return Number.isFinite(v) ? v : Number.NaN;
 }
 
@@ -160,14 +148,23 @@ export function rollingIndicators(
   const { m2, m3, m4, lag } = windowMoments(residual, w);
   const count = m2.length;
   let rawMean = opts.rawMean;
-  if (!rawMean && names.includes('cv')) rawMean = windowMoments(opts.raw ?? residual, w).mean;
+  if (!rawMean && needsRawMean(names)) rawMean = windowMoments(opts.raw ?? residual, w).mean;
   const out = {} as Record<IndicatorName, Float64Array>;
+  // One moments record refilled per window: no allocation in the loop.
+  const m: WindowMomentValues = { w, m2: 0, m3: 0, m4: 0, lag: 0, rawMean: Number.NaN, dt: opts.dt };
   for (const name of names) {
+    const definition = momentDefinition(name);
     const values = new Float64Array(n).fill(Number.NaN);
     const skip = opts.skip;
     for (let s = 0; s < count; s++) {
       if (skip && skip[s]) continue;
-      values[s + w - 1] = indicatorFromMoments(name, w, m2[s], m3[s], m4[s], lag[s], rawMean ? rawMean[s] : Number.NaN, opts.dt);
+      m.m2 = m2[s];
+      m.m3 = m3[s];
+      m.m4 = m4[s];
+      m.lag = lag[s];
+      m.rawMean = rawMean ? rawMean[s] : Number.NaN;
+      const v = definition.fromMoments(m);
+      values[s + w - 1] = Number.isFinite(v) ? v : Number.NaN;
     }
     out[name] = values;
   }

@@ -1,4 +1,5 @@
 import { detrend, type DetrendMethod } from './detrend';
+import { needsRawMean } from './indicators';
 import { indicatorTrends } from './kendall';
 import { MIN_WINDOW_POINTS, rollingIndicators, windowMoments } from './rolling';
 import type { IndicatorName } from './settings';
@@ -48,7 +49,7 @@ export function sensitivityGrid(
         for (const name of opts.indicators) row[name]!.push(null);
         continue;
       }
-      const rawMean = opts.indicators.includes('cv') ? windowMoments(rawPart, w).mean : undefined;
+      const rawMean = needsRawMean(opts.indicators) ? windowMoments(rawPart, w).mean : undefined;
       const ind = rollingIndicators(d.residual, w, opts.indicators, { rawMean, dt: opts.dt });
       const trends = indicatorTrends(ind);
       for (const name of opts.indicators) {

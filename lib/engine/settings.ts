@@ -1,10 +1,10 @@
 import { z } from 'zod';
 import { DETREND_METHODS } from './detrend';
 import { isExtent } from './extent';
+import { DEFAULT_INDICATORS, INDICATOR_NAMES } from './indicators';
 
-/** The rolling indicators the engine computes (see README, "Indicator definitions"). */
-export const INDICATOR_NAMES = ['variance', 'sd', 'cv', 'ac1', 'skewness', 'kurtosis', 'recovery'] as const;
-export type IndicatorName = (typeof INDICATOR_NAMES)[number];
+/** The rolling indicators the engine computes (the registry, lib/engine/indicators; README, "Indicator definitions"). */
+export { INDICATOR_NAMES, type IndicatorName } from './indicators';
 
 export const SURROGATE_METHODS = ['ar1', 'phase'] as const;
 export type SurrogateMethod = (typeof SURROGATE_METHODS)[number];
@@ -45,7 +45,7 @@ export const analysisSettingsSchema = z.preprocess(
       .array(z.enum(INDICATOR_NAMES))
       .min(1)
       .transform((list) => INDICATOR_NAMES.filter((name) => list.includes(name)))
-      .default([...INDICATOR_NAMES]),
+      .default([...DEFAULT_INDICATORS]),
     surrogates: z.number().int().min(0).max(100000).default(0),
     surrogateMethod: z.enum(SURROGATE_METHODS).default('ar1'),
     seed: z.number().int().default(1),

@@ -1,6 +1,7 @@
 import { accurateMean } from './detrend';
 import { orientedTau, type TrendDirection } from './direction';
 import { dft } from './fft';
+import { needsRawMean } from './indicators';
 import { indicatorTrends } from './kendall';
 import { fillLinear } from './prepare';
 import { RandomStream } from './random';
@@ -77,7 +78,7 @@ export function prepareSurrogateJob(
   return {
     ...base,
     n: residual.length,
-    rawMean: base.indicators.includes('cv') ? windowMoments(raw, base.w).mean : null,
+    rawMean: needsRawMean(base.indicators) ? windowMoments(raw, base.w).mean : null,
     ar1: base.method === 'ar1' ? fitAr1(residual, observed) : null,
     spectrum: base.method === 'phase' ? dft(residual, new Float64Array(residual.length)) : null,
     observed,
