@@ -20,6 +20,11 @@ export const INDICATOR_LABELS: Record<IndicatorName, string> = {
   skewness: 'skewness',
   kurtosis: 'kurtosis',
   recovery: 'recovery rate',
+  'restoring-rate': 'restoring rate (regression)',
+  'spectral-ratio': 'spectral ratio (low/high frequency)',
+  ch: 'conditional heteroskedasticity',
+  dfa: 'fluctuation exponent (DFA)',
+  bimodality: 'bimodality coefficient',
 };
 
 /**

@@ -109,6 +109,10 @@ export function windowMoments(r: Float64Array, w: number): WindowMoments {
   return { mean, m2, m3, m4, lag };
 }
 
+function finite(v: number): number {
+  return Number.isFinite(v) ? v : Number.NaN;
+}
+
 function momentDefinition(name: IndicatorName): MomentIndicator {
   const definition = indicatorDefinition(name);
   if (definition?.kind !== 'moments') throw new RangeError(`${name} is not computed from window moments`);
@@ -129,33 +133,58 @@ export function indicatorFromMoments(
   rawMean: number,
   dt: number,
 ): number {
-  const v = momentDefinition(name).fromMoments({ w, m2, m3, m4, lag, rawMean, dt });
-  return Number.isFinite(v) ? v : Number.NaN;
+  return finite(momentDefinition(name).fromMoments({ w, m2, m3, m4, lag, rawMean, dt }));
 }
 
 /**
- * Rolling indicators (indicatorFromMoments) over windows of w points ending at each index i ≥ w−1 (earlier entries
- * NaN = none), from the sliding moments of windowMoments; windows with skip[s] = 1 (unjudgedWindows) are NaN,
- * exactly. Cost O(n) per indicator.
+ * Every how many windows the per-window indicators are evaluated when at most `maxEvaluated` of the `count`
+ * windows may be: ⌈count/maxEvaluated⌉ (1 when all fit). O(1).
+ */
+export function evaluationStride(count: number, maxEvaluated: number): number {
+  return Math.max(1, Math.ceil(count / maxEvaluated));
+}
+
+/** Per-window companion values (a standard error, a p-value) of the indicators that declare them, by indicator and name. */
+export type IndicatorCompanions = Partial<Record<IndicatorName, Record<string, Float64Array>>>;
+
+/**
+ * Rolling indicators over windows of w points ending at each index i ≥ w−1 (earlier entries NaN = none); windows
+ * with skip[s] = 1 (unjudgedWindows) are NaN, exactly. Moment indicators (indicatorFromMoments) come from the sliding
+ * moments of windowMoments at every window, O(n) each. Per-window indicators are evaluated on the window's residuals
+ * at every `stride`-th window counted back from the latest (the latest is always evaluated; default every window),
+ * NaN between, O(n/stride × their cost per window); their companion values go into `opts.companions` when given.
  */
 export function rollingIndicators(
   residual: Float64Array,
   w: number,
   names: readonly IndicatorName[],
-  opts: { raw?: Float64Array; rawMean?: Float64Array; dt: number; skip?: Uint8Array | null },
+  opts: { raw?: Float64Array; rawMean?: Float64Array; dt: number; skip?: Uint8Array | null; stride?: number; companions?: IndicatorCompanions },
 ): Record<IndicatorName, Float64Array> {
   const n = residual.length;
-  const { m2, m3, m4, lag } = windowMoments(residual, w);
-  const count = m2.length;
+  const moments = names.some((name) => indicatorDefinition(name)?.kind === 'moments');
+  const { m2, m3, m4, lag } = moments ? windowMoments(residual, w) : windowMoments(residual.subarray(0, 0), w);
+  const count = Math.max(0, n - w + 1);
   let rawMean = opts.rawMean;
   if (!rawMean && needsRawMean(names)) rawMean = windowMoments(opts.raw ?? residual, w).mean;
   const out = {} as Record<IndicatorName, Float64Array>;
+  const skip = opts.skip;
   // One moments record refilled per window: no allocation in the loop.
   const m: WindowMomentValues = { w, m2: 0, m3: 0, m4: 0, lag: 0, rawMean: Number.NaN, dt: opts.dt };
   for (const name of names) {
-    const definition = momentDefinition(name);
+    const definition = indicatorDefinition(name)!;
     const values = new Float64Array(n).fill(Number.NaN);
-    const skip = opts.skip;
+    out[name] = values;
+    if (definition.kind === 'window') {
+      const extra = definition.companions.map(() => new Float64Array(n).fill(Number.NaN));
+      if (opts.companions && extra.length) opts.companions[name] = Object.fromEntries(definition.companions.map((c, k) => [c, extra[k]]));
+      for (let s = count - 1; s >= 0; s -= opts.stride ?? 1) {
+        if (skip && skip[s]) continue;
+        const v = definition.evaluate(residual.subarray(s, s + w), opts.dt);
+        values[s + w - 1] = finite(v.value);
+        extra.forEach((a, k) => (a[s + w - 1] = finite(v.companions?.[k] ?? Number.NaN)));
+      }
+      continue;
+    }
     for (let s = 0; s < count; s++) {
       if (skip && skip[s]) continue;
       m.m2 = m2[s];
@@ -163,10 +192,8 @@ export function rollingIndicators(
       m.m4 = m4[s];
       m.lag = lag[s];
       m.rawMean = rawMean ? rawMean[s] : Number.NaN;
-      const v = definition.fromMoments(m);
-      values[s + w - 1] = Number.isFinite(v) ? v : Number.NaN;
+      values[s + w - 1] = finite(definition.fromMoments(m));
     }
-    out[name] = values;
   }
   return out;
 }

@@ -9,6 +9,12 @@ export { INDICATOR_NAMES, type IndicatorName } from './indicators';
 export const SURROGATE_METHODS = ['ar1', 'phase'] as const;
 export type SurrogateMethod = (typeof SURROGATE_METHODS)[number];
 
+/**
+ * Default of `maxEvaluatedWindows`: chosen so a 1e6-point record with 50 % windows analyses with every indicator in
+ * under 30 s on one core (bench/engine.bench.ts), while a record of a few thousand points evaluates every window.
+ */
+export const MAX_EVALUATED_WINDOWS = 400;
+
 const EXTENT_MESSAGE = 'must be a fraction, "<n> points" or an ISO 8601 duration such as P90D';
 /** An extent (lib/engine/extent.ts): a fraction up to `maxFraction` of the stretch, "<n> points", or an ISO 8601 duration. */
 const extent = (maxFraction: number) =>
@@ -46,6 +52,11 @@ export const analysisSettingsSchema = z.preprocess(
       .min(1)
       .transform((list) => INDICATOR_NAMES.filter((name) => list.includes(name)))
       .default([...DEFAULT_INDICATORS]),
+    /**
+     * The indicators that cost more than O(1) per window (restoring-rate, spectral-ratio, ch, dfa) are evaluated at no
+     * more than this many windows, evenly spaced and always including the latest; their Kendall tau is taken over those.
+     */
+    maxEvaluatedWindows: z.number().int().min(10).max(1_000_000).default(MAX_EVALUATED_WINDOWS),
     surrogates: z.number().int().min(0).max(100000).default(0),
     surrogateMethod: z.enum(SURROGATE_METHODS).default('ar1'),
     seed: z.number().int().default(1),

@@ -1,0 +1,122 @@
+import { readFileSync } from 'node:fs';
+import path from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { runAnalysis, summarizeAnalysis } from '@/lib/engine/analyze';
+import { INDICATORS, indicatorDefinition, type IndicatorName } from '@/lib/engine/indicators';
+import { indicatorTrends } from '@/lib/engine/kendall';
+import { RandomStream } from '@/lib/engine/random';
+import { evaluationStride, rollingIndicators, type IndicatorCompanions } from '@/lib/engine/rolling';
+import { analysisSettingsSchema } from '@/lib/engine/settings';
+
+// Source: reference values written by tests/reference/make_indicator_fixtures.py (library versions recorded in the
+// JSON): scipy.stats.linregress (restoring rate and its standard error), numpy.fft.fft (periodogram),
+// statsmodels het_arch (Engle's LM statistic and χ²(1) p), numpy.polyfit (DFA), scipy.stats.skew/kurtosis
+// (bimodality), scipy.stats.kendalltau(method='asymptotic').
+const ref = JSON.parse(readFileSync(path.resolve(__dirname, '../../fixtures/reference/indicator_reference.json'), 'utf8'));
+const NEW: IndicatorName[] = ['restoring-rate', 'spectral-ratio', 'ch', 'dfa', 'bimodality'];
+
+function rel(a: number, b: number): number {
+  return Math.abs(a - b) / Math.abs(b);
+}
+
+/** The value and companions of one indicator on one whole window, through the same rolling path an analysis uses. */
+function onWindow(name: IndicatorName, r: Float64Array, dt: number): { value: number; companions: Record<string, number> } {
+  const companions: IndicatorCompanions = {};
+  const values = rollingIndicators(r, r.length, [name], { dt, companions });
+  const last = r.length - 1;
+  return { value: values[name][last], companions: Object.fromEntries(Object.entries(companions[name] ?? {}).map(([k, a]) => [k, a[last]])) };
+}
+
+describe('indicators of issue 17 against numpy/scipy/statsmodels', () => {
+  it('records the library versions it came from', () => {
+    for (const lib of ['numpy', 'scipy', 'statsmodels']) expect(ref.versions[lib]).toMatch(/^\d+\./);
+  });
+
+  for (const window of ref.windows as { name: string; r: number[]; dt: number; values: Record<string, Record<string, number | null>> }[]) {
+    it(`${window.name} (w = ${window.r.length}): every indicator and companion to 1e-9 relative`, () => {
+      const r = Float64Array.from(window.r);
+      for (const name of NEW) {
+        const want = window.values[name];
+        const got = onWindow(name, r, window.dt);
+        if (want.value === null) {
+          expect(got.value, name).toBeNaN();
+          continue;
+        }
+        expect(rel(got.value, want.value), `${name}: ${got.value} vs ${want.value}`).toBeLessThan(1e-9);
+        for (const [companion, value] of Object.entries(want)) {
+          if (companion === 'value') continue;
+          expect(rel(got.companions[companion], value!), `${name} ${companion}`).toBeLessThan(1e-9);
+        }
+      }
+    });
+  }
+
+  it('rolling at a stride: windows counted back from the latest, Kendall tau over the evaluated ones (scipy)', () => {
+    const { r: values, w, stride, dt, ends, indicators } = ref.rolling;
+    const r = Float64Array.from(values as number[]);
+    const companions: IndicatorCompanions = {};
+    const ind = rollingIndicators(r, w, NEW, { dt, stride, companions });
+    const trends = indicatorTrends(ind);
+    for (const name of NEW) {
+      const want = indicators[name];
+      const evaluated = ends as number[];
+      const defined = [...ind[name].keys()].filter((i) => Number.isFinite(ind[name][i]));
+      // bimodality is O(1) per window, so it is computed at every window; the others only at the stride
+      if (indicatorDefinition(name)!.kind === 'window') expect(defined, name).toEqual(evaluated);
+      evaluated.forEach((e, k) => {
+        expect(rel(ind[name][e], want.values[k].value), `${name} at ${e}`).toBeLessThan(1e-9);
+        if (name === 'restoring-rate') expect(rel(companions[name]!.standardError[e], want.values[k].standardError)).toBeLessThan(1e-9);
+        if (name === 'ch') expect(rel(companions[name]!.p[e], want.values[k].p)).toBeLessThan(1e-9);
+      });
+      if (indicatorDefinition(name)!.kind !== 'window') continue;
+      expect(Math.abs(trends[name]!.tau - want.kendall.tau), `${name} tau`).toBeLessThan(1e-12);
+      expect(rel(trends[name]!.p, want.kendall.p), `${name} p`).toBeLessThan(1e-9);
+    }
+  });
+});
+
+describe('the registry', () => {
+  it('declares for every indicator a direction, formula, cost and source; new ones are opt-in', () => {
+    for (const d of INDICATORS) {
+      expect(['rising', 'falling', 'two-sided'], d.name).toContain(d.direction);
+      for (const text of [d.formula, d.cost, d.source]) expect(text.length, d.name).toBeGreaterThan(5);
+    }
+    expect(analysisSettingsSchema.parse({}).indicators).toEqual(['variance', 'sd', 'cv', 'ac1', 'skewness', 'kurtosis', 'recovery']);
+    expect(analysisSettingsSchema.parse({ indicators: ['dfa', 'ch', 'variance'] }).indicators).toEqual(['variance', 'ch', 'dfa']);
+    expect(analysisSettingsSchema.safeParse({ indicators: ['spectral'] }).success).toBe(false);
+  });
+
+  // ⌈count/max⌉ by hand: 500,001 windows at most 400 evaluated → every 1,251st; 300 windows fit in 400 → every one.
+  it('evaluation stride', () => {
+    expect(evaluationStride(500_001, 400)).toBe(1251);
+    expect(evaluationStride(300, 400)).toBe(1);
+    expect(Math.floor((500_001 - 1) / 1251) + 1).toBeLessThanOrEqual(400);
+  });
+});
+
+describe('an analysis with the new indicators', () => {
+  it('carries companions, the evaluation stride and the latest companion values; surrogates go through the same path', async () => {
+    const rng = new RandomStream(5, 0);
+    const n = 3000;
+    const value = new Float64Array(n);
+    for (let i = 1; i < n; i++) value[i] = (0.2 + (0.7 * i) / n) * value[i - 1] + rng.normal();
+    const time = Float64Array.from({ length: n }, (_, i) => i);
+    const settings = analysisSettingsSchema.parse({ indicators: [...NEW, 'ac1'], surrogates: 19, maxEvaluatedWindows: 100, shiftDetection: 'off' });
+    const result = await runAnalysis({ time, value, timeKind: 'numeric' }, settings, { parallel: false });
+    const stride = Math.ceil((n - result.windowPoints + 1) / 100);
+    expect(result.evaluatedEvery).toMatchObject({ ac1: 1, bimodality: 1, dfa: stride, ch: stride, 'restoring-rate': stride, 'spectral-ratio': stride });
+    const dfa = result.indicators.dfa!;
+    expect(dfa.filter((v) => v !== null).length).toBeLessThanOrEqual(100);
+    expect(dfa[n - 1]).not.toBeNull();
+    expect(result.companions['restoring-rate']!.standardError[n - 1]).toBeGreaterThan(0);
+    expect(result.companions.ch!.p[n - 1]).toBeGreaterThanOrEqual(0);
+    for (const name of NEW) {
+      expect(result.kendall[name]!.direction).toBe('rising');
+      expect(result.significance[name]!.count).toBe(19);
+    }
+    const summary = summarizeAnalysis(result);
+    expect('companions' in summary).toBe(false);
+    expect(summary.latest['restoring-rate']!.companions!.standardError).toBe(result.companions['restoring-rate']!.standardError[n - 1]);
+    expect(summary.latest.ac1!.companions).toBeUndefined();
+  });
+});
