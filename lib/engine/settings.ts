@@ -13,7 +13,7 @@ export type SurrogateMethod = (typeof SURROGATE_METHODS)[number];
  * Default of `maxEvaluatedWindows`: chosen so a 1e6-point record with 50 % windows analyses with every indicator in
  * under 30 s on one core (bench/engine.bench.ts), while a record of a few thousand points evaluates every window.
  */
-export const MAX_EVALUATED_WINDOWS = 400;
+export const MAX_EVALUATED_WINDOWS = 100;
 
 const EXTENT_MESSAGE = 'must be a fraction, "<n> points" or an ISO 8601 duration such as P90D';
 /** An extent (lib/engine/extent.ts): a fraction up to `maxFraction` of the stretch, "<n> points", or an ISO 8601 duration. */
