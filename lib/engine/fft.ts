@@ -284,3 +284,42 @@ export function dft(re: Float64Array, im: Float64Array, inverse = false): { re: 
   }
   return { re: outR, im: outI };
 }
+
+/**
+ * Spectrum X_k, k = 0..⌊n/2⌋, of a real sequence x of any length n. Even n: one complex DFT (dft) of length n/2 on
+ * z_j = x_{2j} + i x_{2j+1}, then X_k = (Z_k + Z*_{h−k})/2 − i e^{−2πik/n} (Z_k − Z*_{h−k})/2 (h = n/2, indices mod h),
+ * half the work of a complex DFT of length n; odd n: the complex DFT itself. Cost O(n log n).
+ * Source: Press et al., Numerical Recipes (3rd ed., 2007), Sec. 12.3.
+ */
+export function realDft(x: Float64Array): { re: Float64Array; im: Float64Array } {
+  const n = x.length;
+  const half = n >> 1;
+  if (n % 2 === 1 || n < 4) {
+    const full = dft(x, new Float64Array(n));
+    return { re: full.re.subarray(0, half + 1), im: full.im.subarray(0, half + 1) };
+  }
+  if (isPowerOfTwo(n)) return realFft(x, n);
+  const zr = new Float64Array(half);
+  const zi = new Float64Array(half);
+  for (let j = 0; j < half; j++) {
+    zr[j] = x[2 * j];
+    zi[j] = x[2 * j + 1];
+  }
+  const z = dft(zr, zi);
+  const re = new Float64Array(half + 1);
+  const im = new Float64Array(half + 1);
+  re[0] = z.re[0] + z.im[0];
+  re[half] = z.re[0] - z.im[0];
+  for (let k = 1; k < half; k++) {
+    const ar = z.re[k], ai = z.im[k], br = z.re[half - k], bi = -z.im[half - k];
+    const er = (ar + br) / 2, ei = (ai + bi) / 2;
+    const dr = (ar - br) / 2, di = (ai - bi) / 2;
+    const angle = (2 * Math.PI * k) / n;
+    const wr = Math.cos(angle), wi = -Math.sin(angle);
+    // −i·w·d
+    const tr = wr * dr - wi * di, ti = wr * di + wi * dr;
+    re[k] = er + ti;
+    im[k] = ei - tr;
+  }
+  return { re, im };
+}

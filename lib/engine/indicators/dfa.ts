@@ -31,12 +31,18 @@ export const dfa = windowIndicator({
       let squares = 0;
       for (let b = 0; b < boxes; b++) {
         const from = b * s;
-        const yBar = accurateMean(profile, from, from + s);
-        let sxy = 0;
-        for (let k = 0; k < s; k++) sxy += (k - xBar) * (profile[from + k] - yBar);
+        // Sums about the box's first value, so the profile's level costs no digits; one pass for Σy and Σ(k − x̄)y.
+        const origin = profile[from];
+        let sy = 0, sxy = 0;
+        for (let k = 0; k < s; k++) {
+          const y = profile[from + k] - origin;
+          sy += y;
+          sxy += (k - xBar) * y;
+        }
+        const yBar = sy / s;
         const slope = sxy / sxx;
         for (let k = 0; k < s; k++) {
-          const e = profile[from + k] - yBar - slope * (k - xBar);
+          const e = profile[from + k] - origin - yBar - slope * (k - xBar);
           squares += e * e;
         }
       }

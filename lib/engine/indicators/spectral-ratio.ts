@@ -1,11 +1,11 @@
 import { accurateMean } from '../detrend';
-import { dft } from '../fft';
+import { realDft } from '../fft';
 import { windowIndicator } from './definition';
 
 /**
  * Spectral reddening: with the periodogram P_k = |Σ_j (r_j − r̄) e^{−2πijk/w}|², K = ⌊w/2⌋ and m = max(1, ⌊K/10⌋),
  * the ratio of the mean of P_1..P_m to the mean of P_{K−m+1}..P_K. Rises as power shifts to low frequencies.
- * NaN for a flat window. Cost O(w log w) per window (one DFT; Bluestein's method for lengths that are not powers of two).
+ * NaN for a flat window. Cost O(w log w) per window (one real DFT: half a complex one of length w/2, by Bluestein's method for lengths that are not powers of two).
  */
 export const spectralRatio = windowIndicator({
   name: 'spectral-ratio',
@@ -21,7 +21,7 @@ export const spectralRatio = windowIndicator({
     const m = Math.max(1, Math.floor(half / 10));
     const mean = accurateMean(r);
     const centred = Float64Array.from(r, (v) => v - mean);
-    const { re, im } = dft(centred, new Float64Array(w));
+    const { re, im } = realDft(centred);
     let low = 0, high = 0;
     for (let k = 1; k <= m; k++) low += re[k] * re[k] + im[k] * im[k];
     for (let k = half - m + 1; k <= half; k++) high += re[k] * re[k] + im[k] * im[k];
