@@ -48,6 +48,23 @@ describe('analyze command line', () => {
     expect(r.stderr).toBe('');
   });
 
+  it('--indicators takes the further indicators; companions and the evaluation stride are printed', () => {
+    const r = analyze([good, '--indicators', 'restoring-rate,spectral-ratio,ch,dfa,bimodality', '--shift-detection', 'off']);
+    expect(r.code, r.stderr).toBe(0);
+    const out = JSON.parse(r.stdout);
+    expect(Object.keys(out.indicators)).toEqual(['restoring-rate', 'spectral-ratio', 'ch', 'dfa', 'bimodality']);
+    // 61 windows of 60 points: all fit under the default maxEvaluatedWindows
+    expect(out.evaluatedEvery).toEqual({ 'restoring-rate': 1, 'spectral-ratio': 1, ch: 1, dfa: 1, bimodality: 1 });
+    expect(typeof out.companions['restoring-rate'].standardError[119]).toBe('number');
+    expect(out.companions.ch.p[119]).toBeGreaterThanOrEqual(0);
+    expect(out.companions.ch.p[58]).toBeNull();
+    for (const name of Object.keys(out.indicators)) expect(out.kendall[name].direction).toBe('rising');
+    const summary = JSON.parse(analyze([good, '--summary', '--indicators', 'ch', '--shift-detection', 'off']).stdout);
+    expect(summary.companions).toBeUndefined();
+    expect(summary.latest.ch.companions.p).toEqual(expect.any(Number));
+    expect(analyze([good, '--indicators', 'variance,spectral']).code).toBe(2);
+  });
+
   it('--summary leaves out the per-point arrays; numeric times stay numbers', () => {
     const file = csv('numeric.csv', `t,x\n${rows(50, (i) => `${1990 + i},${Math.cos(i) + i / 10}`)}\n`);
     const r = analyze([file, '--summary', '--detrend', 'linear', '--shift-detection', 'off']);
