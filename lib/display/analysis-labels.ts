@@ -25,6 +25,7 @@ export const INDICATOR_LABELS: Record<IndicatorName, string> = {
   ch: 'conditional heteroskedasticity',
   dfa: 'fluctuation exponent (DFA)',
   bimodality: 'bimodality coefficient',
+  'potential-wells': 'wells of the fitted potential',
 };
 
 /**

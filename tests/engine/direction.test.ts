@@ -10,7 +10,7 @@ describe('directions', () => {
     expect(INDICATOR_DIRECTIONS).toEqual({
       variance: 'rising', sd: 'rising', cv: 'rising', ac1: 'rising', recovery: 'falling', skewness: 'two-sided', kurtosis: 'two-sided',
       // as issue 17 defines them, each with its source in its file under lib/engine/indicators
-      'restoring-rate': 'rising', 'spectral-ratio': 'rising', ch: 'rising', dfa: 'rising', bimodality: 'rising',
+      'restoring-rate': 'rising', 'spectral-ratio': 'rising', ch: 'rising', dfa: 'rising', bimodality: 'rising', 'potential-wells': 'rising',
     });
     expect(trendDirectionOf('either')).toBe('two-sided');
     expect(trendDirectionOf('falling')).toBe('falling');

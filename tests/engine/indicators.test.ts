@@ -11,9 +11,10 @@ import { analysisSettingsSchema } from '@/lib/engine/settings';
 // Source: reference values written by tests/reference/make_indicator_fixtures.py (library versions recorded in the
 // JSON): scipy.stats.linregress (restoring rate and its standard error), numpy.fft.fft (periodogram),
 // statsmodels het_arch (Engle's LM statistic and χ²(1) p), numpy.polyfit (DFA), scipy.stats.skew/kurtosis
-// (bimodality), scipy.stats.kendalltau(method='asymptotic').
+// (bimodality), scipy.stats.kendalltau(method='asymptotic'); potential wells by the same recipe in numpy (numpy.polyfit)
+// and, on well-separated states, by scipy.stats.gaussian_kde without binning.
 const ref = JSON.parse(readFileSync(path.resolve(__dirname, '../../fixtures/reference/indicator_reference.json'), 'utf8'));
-const NEW: IndicatorName[] = ['restoring-rate', 'spectral-ratio', 'ch', 'dfa', 'bimodality'];
+const NEW: IndicatorName[] = ['restoring-rate', 'spectral-ratio', 'ch', 'dfa', 'bimodality', 'potential-wells'];
 
 function rel(a: number, b: number): number {
   return Math.abs(a - b) / Math.abs(b);
@@ -48,6 +49,13 @@ describe('indicators of issue 17 against numpy/scipy/statsmodels', () => {
           expect(rel(got.companions[companion], value!), `${name} ${companion}`).toBeLessThan(1e-9);
         }
       }
+    });
+  }
+
+  for (const sample of ref.wells as { name: string; r: number[]; states: number; binned: number; unbinned: number }[]) {
+    it(`potential wells: ${sample.name} gives ${sample.states}, as numpy and scipy's unbinned density do`, () => {
+      expect([sample.binned, sample.unbinned]).toEqual([sample.states, sample.states]);
+      expect(onWindow('potential-wells', Float64Array.from(sample.r), 1).value).toBe(sample.states);
     });
   }
 
@@ -104,7 +112,7 @@ describe('an analysis with the new indicators', () => {
     const settings = analysisSettingsSchema.parse({ indicators: [...NEW, 'ac1'], surrogates: 19, maxEvaluatedWindows: 100, shiftDetection: 'off' });
     const result = await runAnalysis({ time, value, timeKind: 'numeric' }, settings, { parallel: false });
     const stride = Math.ceil((n - result.windowPoints + 1) / 100);
-    expect(result.evaluatedEvery).toMatchObject({ ac1: 1, bimodality: 1, dfa: stride, ch: stride, 'restoring-rate': stride, 'spectral-ratio': stride });
+    expect(result.evaluatedEvery).toMatchObject({ ac1: 1, bimodality: 1, dfa: stride, ch: stride, 'restoring-rate': stride, 'spectral-ratio': stride, 'potential-wells': stride });
     const dfa = result.indicators.dfa!;
     expect(dfa.filter((v) => v !== null).length).toBeLessThanOrEqual(100);
     expect(dfa[n - 1]).not.toBeNull();
@@ -112,7 +120,9 @@ describe('an analysis with the new indicators', () => {
     expect(result.companions.ch!.p[n - 1]).toBeGreaterThanOrEqual(0);
     for (const name of NEW) {
       expect(result.kendall[name]!.direction).toBe('rising');
-      expect(result.significance[name]!.count).toBe(19);
+      // An AR(1) surrogate has one well in every window, so its tau is undefined (all tied) and it is not counted.
+      if (name === 'potential-wells') expect(result.significance[name]!.count).toBeLessThanOrEqual(19);
+      else expect(result.significance[name]!.count).toBe(19);
     }
     const summary = summarizeAnalysis(result);
     expect('companions' in summary).toBe(false);

@@ -9,7 +9,9 @@ means, independently of the engine's code:
   its chi-square(1) p-value);
 - dfa: numpy.cumsum profile, numpy.polyfit line per box, numpy.polyfit of log F(s) on log s;
 - bimodality: scipy.stats.skew / scipy.stats.kurtosis (bias=True, the moment forms);
-- Kendall tau over the evaluated windows: scipy.stats.kendalltau(method='asymptotic').
+- Kendall tau over the evaluated windows: scipy.stats.kendalltau(method='asymptotic');
+- potential-wells: the same recipe (linear binning, Gaussian kernel, numpy.polyfit of -ln f) written with numpy,
+  and beside it the count from scipy.stats.gaussian_kde (unbinned) on clearly separated samples.
 
 Run from the repository root with Debian's interpreter (python3-numpy, python3-scipy, python3-statsmodels):
     /usr/bin/python3 tests/reference/make_indicator_fixtures.py
@@ -76,6 +78,44 @@ def bimodality(r):
     return {"value": float((g * g + 1) / (k + 3))}
 
 
+GRID, SEARCH, FLOOR = 256, 1001, 0.01
+
+
+def wells_from(grid, density, lo, hi):
+    keep = density >= FLOOR * density.max()
+    x = (grid[keep] - (hi + lo) / 2) / ((hi - lo) / 2)
+    y = -np.log(density[keep])
+    for half in (4, 3, 2, 1):
+        if len(x) <= 2 * half + 1:
+            continue
+        coef = np.polyfit(x, y, 2 * half)  # highest power first
+        if not coef[0] > 0:
+            continue
+        v = np.polyval(coef, np.linspace(-1, 1, SEARCH))
+        minima = int(np.sum((v[1:-1] < v[:-2]) & (v[1:-1] <= v[2:])))
+        return max(minima, 1)
+    return None
+
+
+def potential_wells(r, binned=True):
+    w = len(r)
+    u = (r - r.mean()) / r.std(ddof=1)
+    lo, hi = u.min(), u.max()
+    grid = np.linspace(lo, hi, GRID)
+    h = 1.06 * w ** -0.2
+    if binned:
+        step = (hi - lo) / (GRID - 1)
+        pos = (u - lo) / step
+        k = np.minimum(GRID - 2, np.floor(pos).astype(int))
+        frac = pos - k
+        counts = np.bincount(k, weights=1 - frac, minlength=GRID) + np.bincount(k + 1, weights=frac, minlength=GRID)
+        d = (grid[:, None] - grid[None, :]) / h
+        density = (np.exp(-0.5 * d * d) @ counts) / (w * h * np.sqrt(2 * np.pi))
+    else:
+        density = stats.gaussian_kde(u, bw_method=h)(grid)
+    return wells_from(grid, density, lo, hi)
+
+
 def all_of(r, dt):
     return {
         "restoring-rate": restoring_rate(r, dt),
@@ -83,6 +123,7 @@ def all_of(r, dt):
         "ch": ch(r),
         "dfa": dfa(r),
         "bimodality": bimodality(r),
+        "potential-wells": {"value": potential_wells(r)},
     }
 
 
@@ -124,10 +165,22 @@ def main():
         r[t] = phis[t] * r[t - 1] + rng.standard_normal()
     ends = list(range(n - 1, w - 2, -stride))[::-1]
     rolling = {}
-    for key in ["restoring-rate", "spectral-ratio", "ch", "dfa", "bimodality"]:
+    for key in ["restoring-rate", "spectral-ratio", "ch", "dfa", "bimodality", "potential-wells"]:
         vals = [all_of(r[e - w + 1 : e + 1], dt)[key] for e in ends]
         tau = stats.kendalltau(np.arange(len(ends)), [v["value"] for v in vals], method="asymptotic")
         rolling[key] = {"values": vals, "kendall": {"tau": float(tau.statistic), "p": float(tau.pvalue)}}
+
+    # States the potential must count: one, two and three well-separated levels with noise, 2,000 points each.
+    wells = []
+    for name, centres in [("one state", [0.0]), ("two states", [-3.0, 3.0]), ("three states", [-6.0, 0.0, 6.0])]:
+        sample = rng.choice(centres, size=2000) + rng.standard_normal(2000)
+        wells.append({
+            "name": name,
+            "r": sample.tolist(),
+            "states": len(centres),
+            "binned": potential_wells(sample),
+            "unbinned": potential_wells(sample, binned=False),
+        })
 
     doc = {
         "generator": "tests/reference/make_indicator_fixtures.py",
@@ -138,6 +191,7 @@ def main():
             "statsmodels": statsmodels.__version__,
         },
         "windows": windows,
+        "wells": wells,
         "rolling": {"r": r.tolist(), "w": w, "stride": stride, "dt": dt, "ends": ends, "indicators": rolling},
     }
     OUT.write_text(json.dumps(doc, indent=1) + "\n")

@@ -5,6 +5,7 @@ import { ch } from './ch';
 import { cv } from './cv';
 import { dfa } from './dfa';
 import { kurtosis } from './kurtosis';
+import { potentialWells } from './potential-wells';
 import { recovery } from './recovery';
 import { restoringRate } from './restoring-rate';
 import { sd } from './sd';
@@ -16,7 +17,7 @@ import { variance } from './variance';
  * Every indicator the engine computes, one file each, in the order settings, charts, exports and the command
  * line list them. Adding an indicator is a file here and a line in this list (DEVELOPERS.md, "Adding an indicator").
  */
-export const INDICATORS = [variance, sd, cv, ac1, skewness, kurtosis, recovery, restoringRate, spectralRatio, ch, dfa, bimodality] as const;
+export const INDICATORS = [variance, sd, cv, ac1, skewness, kurtosis, recovery, restoringRate, spectralRatio, ch, dfa, bimodality, potentialWells] as const;
 
 export type IndicatorDefinition = (typeof INDICATORS)[number];
 export type IndicatorName = IndicatorDefinition['name'];
