@@ -285,6 +285,24 @@ export function dft(re: Float64Array, im: Float64Array, inverse = false): { re: 
   return { re: outR, im: outI };
 }
 
+const unpackingCache = new Map<number, Twiddles>();
+
+/** cos/sin(2πk/n) for k < n/2, evaluated directly (no recurrence), kept for the last few lengths: a rolling indicator asks for one length many times. */
+function unpackingTwiddles(n: number): Twiddles {
+  const hit = unpackingCache.get(n);
+  if (hit) return hit;
+  const half = n >> 1;
+  const t = { cos: new Float64Array(half), sin: new Float64Array(half) };
+  for (let k = 0; k < half; k++) {
+    const a = (2 * Math.PI * k) / n;
+    t.cos[k] = Math.cos(a);
+    t.sin[k] = Math.sin(a);
+  }
+  if (unpackingCache.size >= 4) unpackingCache.delete(unpackingCache.keys().next().value!);
+  unpackingCache.set(n, t);
+  return t;
+}
+
 /**
  * Spectrum X_k, k = 0..⌊n/2⌋, of a real sequence x of any length n. Even n: one complex DFT (dft) of length n/2 on
  * z_j = x_{2j} + i x_{2j+1}, then X_k = (Z_k + Z*_{h−k})/2 − i e^{−2πik/n} (Z_k − Z*_{h−k})/2 (h = n/2, indices mod h),
@@ -306,6 +324,7 @@ export function realDft(x: Float64Array): { re: Float64Array; im: Float64Array }
     zi[j] = x[2 * j + 1];
   }
   const z = dft(zr, zi);
+  const { cos, sin } = unpackingTwiddles(n);
   const re = new Float64Array(half + 1);
   const im = new Float64Array(half + 1);
   re[0] = z.re[0] + z.im[0];
@@ -314,8 +333,7 @@ export function realDft(x: Float64Array): { re: Float64Array; im: Float64Array }
     const ar = z.re[k], ai = z.im[k], br = z.re[half - k], bi = -z.im[half - k];
     const er = (ar + br) / 2, ei = (ai + bi) / 2;
     const dr = (ar - br) / 2, di = (ai - bi) / 2;
-    const angle = (2 * Math.PI * k) / n;
-    const wr = Math.cos(angle), wi = -Math.sin(angle);
+    const wr = cos[k], wi = -sin[k];
     // −i·w·d
     const tr = wr * dr - wi * di, ti = wr * di + wi * dr;
     re[k] = er + ti;

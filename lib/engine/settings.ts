@@ -53,8 +53,9 @@ export const analysisSettingsSchema = z.preprocess(
       .transform((list) => INDICATOR_NAMES.filter((name) => list.includes(name)))
       .default([...DEFAULT_INDICATORS]),
     /**
-     * The indicators that cost more than O(1) per window (restoring-rate, spectral-ratio, ch, dfa) are evaluated at no
-     * more than this many windows, evenly spaced and always including the latest; their Kendall tau is taken over those.
+     * The indicators that cost more than O(1) per window (those computed from the window's residuals, kind 'window' in
+     * lib/engine/indicators) are evaluated at no more than this many windows, evenly spaced and always including the
+     * latest; their Kendall tau is taken over those.
      */
     maxEvaluatedWindows: z.number().int().min(10).max(1_000_000).default(MAX_EVALUATED_WINDOWS),
     surrogates: z.number().int().min(0).max(100000).default(0),

@@ -20,7 +20,8 @@ export const spectralRatio = windowIndicator({
     const half = w >> 1;
     const m = Math.max(1, Math.floor(half / 10));
     const mean = accurateMean(r);
-    const centred = Float64Array.from(r, (v) => v - mean);
+    const centred = new Float64Array(w);
+    for (let j = 0; j < w; j++) centred[j] = r[j] - mean;
     const { re, im } = realDft(centred);
     let low = 0, high = 0;
     for (let k = 1; k <= m; k++) low += re[k] * re[k] + im[k] * im[k];
