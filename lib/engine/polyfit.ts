@@ -20,8 +20,10 @@ export function polynomialFit(x: ArrayLike<number>, y: ArrayLike<number>, degree
   const b = Float64Array.from(y);
   const diagonal = new Float64Array(p);
   for (let k = 0; k < p; k++) {
-    let norm = 0;
-    for (let i = k; i < m; i++) norm = Math.hypot(norm, a[k * m + i]);
+    // Powers of |x| ≤ 1 cannot overflow a plain sum of squares.
+    let squares = 0;
+    for (let i = k; i < m; i++) squares += a[k * m + i] * a[k * m + i];
+    const norm = Math.sqrt(squares);
     const alpha = a[k * m + k] > 0 ? -norm : norm;
     // v = column − alpha e_k, stored over the column; H = I − 2vvᵀ/vᵀv.
     a[k * m + k] -= alpha;
