@@ -11,6 +11,7 @@ import { runAnalysis } from '../lib/engine/analyze';
 import { INDICATORS, type IndicatorName } from '../lib/engine/indicators';
 import { RandomStream } from '../lib/engine/random';
 import { analysisSettingsSchema } from '../lib/engine/settings';
+import { binomCdf } from '../tests/engine/binomial';
 import type { BenchRow } from './index';
 
 export const title = 'indicator power';
@@ -52,26 +53,17 @@ function stationary(run: number): Float64Array {
 
 /** Exact binomial 95% interval by bisection on the binomial tails (Clopper & Pearson (1934), Biometrika 26, 404–413). */
 function clopperPearson(k: number, n: number): [number, number] {
-  const cdf = (j: number, p: number) => {
-    let term = Math.pow(1 - p, n);
-    let sum = term;
-    for (let i = 1; i <= j; i++) {
-      term *= ((n - i + 1) / i) * (p / (1 - p));
-      sum += term;
-    }
-    return sum;
-  };
-  const solve = (f: (p: number) => number) => {
+  const solve = (above: (p: number) => boolean) => {
     let lo = 0, hi = 1;
     for (let it = 0; it < 60; it++) {
       const mid = (lo + hi) / 2;
-      if (f(mid) > 0) lo = mid;
+      if (above(mid)) lo = mid;
       else hi = mid;
     }
     return (lo + hi) / 2;
   };
-  const lower = k === 0 ? 0 : solve((p) => 1 - cdf(k - 1, p) < 0.025 ? 1 : -1);
-  const upper = k === n ? 1 : solve((p) => cdf(k, p) > 0.025 ? 1 : -1);
+  const lower = k === 0 ? 0 : solve((p) => 1 - binomCdf(k - 1, n, p) < 0.025);
+  const upper = k === n ? 1 : solve((p) => binomCdf(k, n, p) > 0.025);
   return [lower, upper];
 }
 

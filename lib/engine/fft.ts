@@ -157,6 +157,16 @@ export function realFft(x: Float64Array, size: number): { re: Float64Array; im: 
     if (2 * j + 1 < len) zi[j] = x[2 * j + 1];
   }
   fftPow2(zr, zi);
+  return unpackHalfSpectrum(zr, zi, { cos, sin });
+}
+
+/**
+ * The half spectrum X_k, k = 0..h, of a real sequence of length 2h from the DFT Z of z_j = x_{2j} + i x_{2j+1}:
+ * X_k = (Z_k + Z*_{h−k})/2 − i e^{−2πik/2h} (Z_k − Z*_{h−k})/2, with cos/sin(2πk/2h) given. O(h).
+ * Source: Press et al., Numerical Recipes (3rd ed., 2007), Sec. 12.3.
+ */
+function unpackHalfSpectrum(zr: Float64Array, zi: Float64Array, { cos, sin }: Twiddles): { re: Float64Array; im: Float64Array } {
+  const h = zr.length;
   const re = new Float64Array(h + 1);
   const im = new Float64Array(h + 1);
   re[0] = zr[0] + zi[0];
@@ -305,8 +315,8 @@ function unpackingTwiddles(n: number): Twiddles {
 
 /**
  * Spectrum X_k, k = 0..⌊n/2⌋, of a real sequence x of any length n. Even n: one complex DFT (dft) of length n/2 on
- * z_j = x_{2j} + i x_{2j+1}, then X_k = (Z_k + Z*_{h−k})/2 − i e^{−2πik/n} (Z_k − Z*_{h−k})/2 (h = n/2, indices mod h),
- * half the work of a complex DFT of length n; odd n: the complex DFT itself. Cost O(n log n).
+ * z_j = x_{2j} + i x_{2j+1}, unpacked by unpackHalfSpectrum, half the work of a complex DFT of length n; odd n: the
+ * complex DFT itself. Cost O(n log n).
  * Source: Press et al., Numerical Recipes (3rd ed., 2007), Sec. 12.3.
  */
 export function realDft(x: Float64Array): { re: Float64Array; im: Float64Array } {
@@ -324,20 +334,5 @@ export function realDft(x: Float64Array): { re: Float64Array; im: Float64Array }
     zi[j] = x[2 * j + 1];
   }
   const z = dft(zr, zi);
-  const { cos, sin } = unpackingTwiddles(n);
-  const re = new Float64Array(half + 1);
-  const im = new Float64Array(half + 1);
-  re[0] = z.re[0] + z.im[0];
-  re[half] = z.re[0] - z.im[0];
-  for (let k = 1; k < half; k++) {
-    const ar = z.re[k], ai = z.im[k], br = z.re[half - k], bi = -z.im[half - k];
-    const er = (ar + br) / 2, ei = (ai + bi) / 2;
-    const dr = (ar - br) / 2, di = (ai - bi) / 2;
-    const wr = cos[k], wi = -sin[k];
-    // −i·w·d
-    const tr = wr * dr - wi * di, ti = wr * di + wi * dr;
-    re[k] = er + ti;
-    im[k] = ei - tr;
-  }
-  return { re, im };
+  return unpackHalfSpectrum(z.re, z.im, unpackingTwiddles(n));
 }
