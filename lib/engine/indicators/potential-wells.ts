@@ -11,18 +11,18 @@ const MAX_HALF_DEGREE = 4;
 const DENSITY_FLOOR = 0.01;
 
 /**
- * Density of the standardised window on GRID equally spaced points spanning its range: linear binning of the
+ * Density of the window standardised by (mean, sd) on GRID equally spaced points spanning its range [lo, hi]: linear binning of the
  * points onto the grid, then a Gaussian kernel with Silverman's bandwidth h = 1.06·w^{−1/5} (for unit variance)
  * summed over the bins, f(t_m) = Σ_k c_k φ((t_m − t_k)/h)/(w h). O(w + GRID²). Sources: Silverman (1986), Density
  * Estimation for Statistics and Data Analysis, eq. 3.28 (bandwidth); Wand (1994), J. Comput. Graph. Stat. 3,
  * 433–445 (linear binning) (both from memory).
  */
-function binnedDensity(u: Float64Array, lo: number, hi: number): { grid: Float64Array; density: Float64Array } {
-  const w = u.length;
+function binnedDensity(r: Float64Array, mean: number, sd: number, lo: number, hi: number): { grid: Float64Array; density: Float64Array } {
+  const w = r.length;
   const step = (hi - lo) / (GRID - 1);
   const counts = new Float64Array(GRID);
   for (let j = 0; j < w; j++) {
-    const pos = (u[j] - lo) / step;
+    const pos = ((r[j] - mean) / sd - lo) / step;
     const k = Math.min(GRID - 2, Math.floor(pos));
     const frac = pos - k;
     counts[k] += 1 - frac;
@@ -70,13 +70,14 @@ export const potentialWells = windowIndicator({
     for (let j = 0; j < w; j++) ss += (r[j] - mean) ** 2;
     const sd = Math.sqrt(ss / (w - 1));
     if (!(sd > 0)) return { value: Number.NaN };
-    const u = Float64Array.from(r, (v) => (v - mean) / sd);
-    let lo = Infinity, hi = -Infinity;
-    for (const v of u) {
-      if (v < lo) lo = v;
-      if (v > hi) hi = v;
+    let min = Infinity, max = -Infinity;
+    for (let j = 0; j < w; j++) {
+      if (r[j] < min) min = r[j];
+      if (r[j] > max) max = r[j];
     }
-    const { grid, density } = binnedDensity(u, lo, hi);
+    const lo = (min - mean) / sd;
+    const hi = (max - mean) / sd;
+    const { grid, density } = binnedDensity(r, mean, sd, lo, hi);
     let peak = 0;
     for (const f of density) peak = Math.max(peak, f);
     const x: number[] = [];
