@@ -10,6 +10,8 @@ means, independently of the engine's code:
 - dfa: numpy.cumsum profile, numpy.polyfit line per box, numpy.polyfit of log F(s) on log s;
 - bimodality: scipy.stats.skew / scipy.stats.kurtosis (bias=True, the moment forms);
 - Kendall tau over the evaluated windows: scipy.stats.kendalltau(method='asymptotic');
+- site-level pc1-variance, pc1-share and maf-ac1: numpy.cov (ddof 1), numpy.linalg.eigvalsh and
+  scipy.linalg.eigh(cov of differences, cov, eigvals_only=True) for the generalised problem;
 - potential-wells: the same recipe (linear binning, Gaussian kernel, numpy.polyfit of -ln f) written with numpy,
   and beside it the count from scipy.stats.gaussian_kde (unbinned) on clearly separated samples.
 
@@ -23,6 +25,7 @@ from pathlib import Path
 
 import numpy as np
 import scipy
+import scipy.linalg
 import statsmodels
 from scipy import stats
 from statsmodels.stats.diagnostic import het_arch
@@ -127,6 +130,14 @@ def all_of(r, dt):
     }
 
 
+def site_window(matrix):
+    cov = np.cov(matrix, rowvar=False, ddof=1)
+    cov_diff = np.cov(np.diff(matrix, axis=0), rowvar=False, ddof=1)
+    eig = np.linalg.eigvalsh(cov)
+    smallest = scipy.linalg.eigh(cov_diff, cov, eigvals_only=True)[0]
+    return {"pc1-variance": float(eig[-1]), "pc1-share": float(eig[-1] / np.trace(cov)), "maf-ac1": float(1 - smallest / 2)}
+
+
 def ar1(rng, n, phi, offset=0.0):
     x = np.zeros(n)
     x[0] = rng.standard_normal() / np.sqrt(1 - phi * phi)
@@ -182,6 +193,19 @@ def main():
             "unbinned": potential_wells(sample, binned=False),
         })
 
+    # Site-level: k correlated AR(1) columns sharing a common driver, whole windows and a rolling pass at a stride.
+    site_windows = []
+    for k, w_site, phi in [(2, 40, 0.5), (3, 100, 0.8), (5, 250, 0.95)]:
+        common = ar1(rng, w_site, phi)
+        matrix = np.column_stack([common * rng.uniform(0.5, 1.5) + ar1(rng, w_site, 0.3) for _ in range(k)])
+        site_windows.append({"columns": matrix.T.tolist(), "values": site_window(matrix)})
+    n_site, w_roll, stride_site = 300, 90, 11
+    common = ar1(rng, n_site, 0.6)
+    matrix = np.column_stack([common + ar1(rng, n_site, 0.5) for _ in range(3)])
+    site_ends = list(range(n_site - 1, w_roll - 2, -stride_site))[::-1]
+    site_rolling = {"columns": matrix.T.tolist(), "w": w_roll, "stride": stride_site, "ends": site_ends,
+                    "values": [site_window(matrix[e - w_roll + 1 : e + 1]) for e in site_ends]}
+
     doc = {
         "generator": "tests/reference/make_indicator_fixtures.py",
         "versions": {
@@ -192,6 +216,7 @@ def main():
         },
         "windows": windows,
         "wells": wells,
+        "site": {"windows": site_windows, "rolling": site_rolling},
         "rolling": {"r": r.tolist(), "w": w, "stride": stride, "dt": dt, "ends": ends, "indicators": rolling},
     }
     OUT.write_text(json.dumps(doc, indent=1) + "\n")
