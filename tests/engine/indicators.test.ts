@@ -4,8 +4,10 @@ import { describe, expect, it } from 'vitest';
 import { runAnalysis, summarizeAnalysis } from '@/lib/engine/analyze';
 import { INDICATORS, indicatorDefinition, type IndicatorName } from '@/lib/engine/indicators';
 import { indicatorTrends } from '@/lib/engine/kendall';
+import { simulateDoubleWell } from '@/lib/demo/models';
 import { RandomStream } from '@/lib/engine/random';
 import { evaluationStride, rollingIndicators, type IndicatorCompanions } from '@/lib/engine/rolling';
+import { sensitivityGrid } from '@/lib/engine/sensitivity';
 import { analysisSettingsSchema } from '@/lib/engine/settings';
 
 // Source: reference values written by tests/reference/make_indicator_fixtures.py (library versions recorded in the
@@ -128,5 +130,36 @@ describe('an analysis with the new indicators', () => {
     expect('companions' in summary).toBe(false);
     expect(summary.latest['restoring-rate']!.companions!.standardError).toBe(result.companions['restoring-rate']!.standardError[n - 1]);
     expect(summary.latest.ac1!.companions).toBeUndefined();
+  });
+});
+
+describe('flickering by potential analysis', () => {
+  // Published behaviour (Livina et al. (2010), Clim. Past 6, 77–82, from memory): a record that stays in one well of
+  // the double-well potential U(x) = x⁴/4 − x²/2 shows one state; once noise kicks it between the wells at ±1 it
+  // shows two. Model: lib/demo/models.ts simulateDoubleWell (no forcing), σ = 0.2 (the barrier ΔU = 1/4 is not
+  // crossed in 1,000 samples) followed by σ = 0.6 (frequent crossings).
+  it('one well while the record stays in one state, two once it flickers; the count rises', async () => {
+    const grid = { n: 1000, dt: 0.5, substeps: 20, amplitude: 0, period: 1 };
+    const calm = simulateDoubleWell({ ...grid, sigma: 0.2, x0: 1, seed: 8 });
+    const flicker = simulateDoubleWell({ ...grid, sigma: 0.6, x0: calm[calm.length - 1], seed: 9 });
+    const value = new Float64Array([...calm, ...flicker]);
+    const time = Float64Array.from({ length: value.length }, (_, i) => i);
+    const settings = analysisSettingsSchema.parse({ indicators: ['potential-wells'], detrend: 'linear', window: 0.25, shiftDetection: 'off' });
+    const result = await runAnalysis({ time, value, timeKind: 'numeric' }, settings, { parallel: false });
+    const wells = result.indicators['potential-wells']!.filter((v): v is number => v !== null);
+    expect(wells[0]).toBe(1);
+    expect(wells[wells.length - 1]).toBe(2);
+    expect(result.kendall['potential-wells']!.tau!).toBeGreaterThan(0.5);
+  });
+});
+
+describe('sensitivity of a per-window indicator', () => {
+  it('evaluates each (bandwidth, window) cell at the same bounded number of windows', () => {
+    const rng = new RandomStream(6, 0);
+    const x = new Float64Array(800);
+    for (let i = 1; i < x.length; i++) x[i] = (0.2 + (0.7 * i) / x.length) * x[i - 1] + rng.normal();
+    const grid = sensitivityGrid(x, x, { detrend: 'gaussian', movingAverageWidth: 11, bandwidth: 0.1, indicators: ['dfa', 'ac1'], dt: 1, maxEvaluatedWindows: 40, windows: [0.3, 0.5], bandwidths: [0.05, 0.1] });
+    expect(grid.indicators.dfa!.tau.flat().every((t) => t !== null)).toBe(true);
+    expect(grid.indicators.ac1!.tau).toHaveLength(2);
   });
 });
