@@ -106,6 +106,15 @@ export class SlidingMoments {
     this.p = p;
   }
 
+  /** The window's values in order, oldest first (a copy). O(w). */
+  values(): Float64Array {
+    const out = new Float64Array(this.k);
+    const tail = Math.min(this.k, this.w - this.head);
+    out.set(this.ring.subarray(this.head, this.head + tail));
+    out.set(this.ring.subarray(0, this.k - tail), tail);
+    return out;
+  }
+
   mean(): number {
     return this.c + this.s1 / this.k;
   }
@@ -122,7 +131,7 @@ export class SlidingMoments {
   indicator(name: IndicatorName, opts: { dt: number; rawMean?: number }): number {
     const definition = indicatorDefinition(name);
     if (definition?.kind === 'window') {
-      const v = definition.evaluate(Float64Array.from({ length: this.k }, (_, j) => this.at(j)), opts.dt).value;
+      const v = definition.evaluate(this.values(), opts.dt).value;
       return Number.isFinite(v) ? v : Number.NaN;
     }
     const { m2, m3, m4, lag } = this.moments();
