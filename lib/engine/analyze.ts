@@ -157,8 +157,8 @@ function stretchStart(
 /**
  * The whole pipeline: prepare (sampling changes, grid, span, gaps with an observed mask, flat runs, log, seasonal)
  * → abrupt shifts over the prepared record (detectShifts) → the stretch after the latest shift, break or cut →
- * detrend → rolling indicators (per-window ones at a stride of at most maxEvaluatedWindows windows; windows below the coverage floor or inside a flat run not judged) → Kendall tau
- * of each, p in the indicator's direction → surrogate significance (same gaps, interpolation and unjudged
+ * detrend → rolling indicators (per-window ones at no more than maxEvaluatedWindows windows; windows below the
+ * coverage floor or inside a flat run not judged) → Kendall tau of each, p in the indicator's direction → surrogate significance (same gaps, interpolation and unjudged
  * windows as the record; worker threads unless options.parallel is false, identical numbers either way) →
  * optional sensitivity grid. Window and bandwidth are extents of the stretch. Throws AnalysisInputError for
  * input the caller can fix (a stretch too short for the window names where it starts and why).

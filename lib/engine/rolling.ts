@@ -161,8 +161,9 @@ export function rollingIndicators(
   opts: { raw?: Float64Array; rawMean?: Float64Array; dt: number; skip?: Uint8Array | null; stride?: number; companions?: IndicatorCompanions },
 ): Record<IndicatorName, Float64Array> {
   const n = residual.length;
-  const moments = names.some((name) => indicatorDefinition(name)?.kind === 'moments');
-  const { m2, m3, m4, lag } = moments ? windowMoments(residual, w) : windowMoments(residual.subarray(0, 0), w);
+  // Per-window indicators alone need no sliding moments.
+  const none = new Float64Array(0);
+  const { m2, m3, m4, lag } = names.some((name) => indicatorDefinition(name)?.kind === 'moments') ? windowMoments(residual, w) : { m2: none, m3: none, m4: none, lag: none };
   const count = Math.max(0, n - w + 1);
   let rawMean = opts.rawMean;
   if (!rawMean && needsRawMean(names)) rawMean = windowMoments(opts.raw ?? residual, w).mean;
