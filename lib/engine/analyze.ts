@@ -158,9 +158,9 @@ function stretchStart(
  * The whole pipeline: prepare (sampling changes, grid, span, gaps with an observed mask, flat runs, log, seasonal)
  * → abrupt shifts over the prepared record (detectShifts) → the stretch after the latest shift, break or cut →
  * detrend → rolling indicators (per-window ones at no more than maxEvaluatedWindows windows; windows below the
- * coverage floor or inside a flat run not judged) → Kendall tau of each, p in the indicator's direction → surrogate significance (same gaps, interpolation and unjudged
- * windows as the record; worker threads unless options.parallel is false, identical numbers either way) →
- * optional sensitivity grid. Window and bandwidth are extents of the stretch. Throws AnalysisInputError for
+ * coverage floor or inside a flat run not judged) → Kendall tau of each, p in the indicator's direction →
+ * surrogate significance (same gaps, interpolation, unjudged and evaluated windows as the record; worker threads
+ * unless options.parallel is false, identical numbers either way) → optional sensitivity grid. Window and bandwidth are extents of the stretch. Throws AnalysisInputError for
  * input the caller can fix (a stretch too short for the window names where it starts and why).
  * Cost O(n log n) + O(N·n log n) for N surrogates, plus the shift detector's. Sources: those of each step
  * (README, "Indicator definitions"). The returned arrays are the engine's own (never the caller's input).
