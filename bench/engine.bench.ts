@@ -7,8 +7,9 @@ import { runAnalysis } from '../lib/engine/analyze';
 import { detrend } from '../lib/engine/detrend';
 import { indicatorTrends } from '../lib/engine/kendall';
 import { RandomStream } from '../lib/engine/random';
-import { rollingIndicators } from '../lib/engine/rolling';
-import { analysisSettingsSchema, INDICATOR_NAMES } from '../lib/engine/settings';
+import { evaluationStride, rollingIndicators } from '../lib/engine/rolling';
+import { DEFAULT_INDICATORS, INDICATORS, INDICATOR_NAMES } from '../lib/engine/indicators';
+import { analysisSettingsSchema, MAX_EVALUATED_WINDOWS } from '../lib/engine/settings';
 import { computeSurrogateTaus } from '../lib/engine/surrogate-pool';
 import { prepareSurrogateJob } from '../lib/engine/surrogates';
 import type { BenchRow } from './index';
@@ -54,9 +55,9 @@ export async function run(): Promise<BenchRow[]> {
     const repeats = n >= 1e6 ? 3 : 5;
     const w = Math.round(0.5 * n);
     const d = detrend(x, 'gaussian', { bandwidthPoints: 0.1 * n, movingAverageWidth: 11 });
-    const ind = rollingIndicators(d.residual, w, INDICATOR_NAMES, { raw: x, dt: 1 });
+    const ind = rollingIndicators(d.residual, w, DEFAULT_INDICATORS, { raw: x, dt: 1 });
     stage.detrend[n] = await timeIt(repeats, () => detrend(x, 'gaussian', { bandwidthPoints: 0.1 * n, movingAverageWidth: 11 }));
-    stage.rolling[n] = await timeIt(repeats, () => rollingIndicators(d.residual, w, INDICATOR_NAMES, { raw: x, dt: 1 }));
+    stage.rolling[n] = await timeIt(repeats, () => rollingIndicators(d.residual, w, DEFAULT_INDICATORS, { raw: x, dt: 1 }));
     stage.kendall[n] = await timeIt(repeats, () => indicatorTrends(ind));
     stage.whole[n] = await timeIt(repeats, () => runAnalysis({ time, value: x, timeKind: 'numeric' }, settings));
     rows.push({ case: 'gaussian detrend (bandwidth 0.1)', n, value: stage.detrend[n], unit: 'ms' });
@@ -80,13 +81,49 @@ export async function run(): Promise<BenchRow[]> {
 
   const x4 = series(1e4, 2);
   const job = prepareSurrogateJob(detrend(x4, 'gaussian', { bandwidthPoints: 1e3, movingAverageWidth: 11 }).residual, x4, {
-    method: 'ar1', seed: 1, w: 5000, dt: 1, indicators: [...INDICATOR_NAMES],
+    method: 'ar1', seed: 1, w: 5000, dt: 1, indicators: [...DEFAULT_INDICATORS],
   });
   let workers = 0;
   const tSur = await timeIt(1, async () => {
     workers = (await computeSurrogateTaus(job, 1000)).workers;
   });
-  rows.push({ case: '1,000 AR(1) surrogates, all indicators', n: 1e4, value: tSur, unit: 'ms', target: '< 5000 ms', pass: tSur < 5000, note: `${workers} worker threads` });
+  rows.push({ case: '1,000 AR(1) surrogates, default indicators', n: 1e4, value: tSur, unit: 'ms', target: '< 5000 ms', pass: tSur < 5000, note: `${workers} worker threads` });
 
+  rows.push(...(await eachIndicator()));
+  return rows;
+}
+
+/**
+ * Each indicator alone at n = 1e5 and 1e6 (window 0.5, so 5e4 and 5e5 windows of 5e4 and 5e5 points), the per-window
+ * ones at the default stride (at most MAX_EVALUATED_WINDOWS windows); then the whole analysis at 1e6 with every
+ * indicator (issue 17: under 30 s) and with the O(1) set (under 2 s).
+ */
+async function eachIndicator(): Promise<BenchRow[]> {
+  const rows: BenchRow[] = [];
+  for (const n of [1e5, 1e6]) {
+    const x = series(n);
+    const d = detrend(x, 'gaussian', { bandwidthPoints: 0.1 * n, movingAverageWidth: 11 });
+    const w = Math.round(0.5 * n);
+    const stride = evaluationStride(n - w + 1, MAX_EVALUATED_WINDOWS);
+    for (const definition of INDICATORS) {
+      const perWindow = definition.kind === 'window';
+      const t = await timeIt(perWindow ? 1 : 3, () => rollingIndicators(d.residual, w, [definition.name], { raw: x, dt: 1, stride }));
+      rows.push({
+        case: `indicator ${definition.name} (window 0.5)`,
+        n,
+        value: t,
+        unit: 'ms',
+        note: perWindow ? `${Math.floor((n - w) / stride) + 1} windows evaluated (every ${stride}th), ${definition.cost}` : definition.cost,
+      });
+    }
+  }
+  const n = 1e6;
+  const x = series(n);
+  const time = Float64Array.from({ length: n }, (_, i) => i);
+  const constantCost = INDICATORS.filter((d) => d.kind === 'moments').map((d) => d.name);
+  const every = await timeIt(1, () => runAnalysis({ time, value: x, timeKind: 'numeric' }, analysisSettingsSchema.parse({ indicators: [...INDICATOR_NAMES] })));
+  rows.push({ case: 'whole analysis, every indicator', n, value: every, unit: 'ms', target: '< 30000 ms', pass: every < 30_000, note: `maxEvaluatedWindows ${MAX_EVALUATED_WINDOWS}` });
+  const constant = await timeIt(3, () => runAnalysis({ time, value: x, timeKind: 'numeric' }, analysisSettingsSchema.parse({ indicators: constantCost })));
+  rows.push({ case: 'whole analysis, the O(1) indicators', n, value: constant, unit: 'ms', target: '< 2000 ms', pass: constant < 2000, note: constantCost.join(', ') });
   return rows;
 }

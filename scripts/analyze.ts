@@ -7,6 +7,8 @@
  *     [--moving-average-width N] [--tipping-point TIME]... [--maintenance TIME]... [--sensitivity] [--summary]
  *     [--time-format iso8601|date|epoch-seconds|epoch-milliseconds|decimal-year|age-years-bp|age-kyr-bp|number]
  *     [--time-zone IANA-ZONE] [--interval-ms N]
+ *   npm run --silent analyze -- FILE.csv --multivariate --value a,b,c [--time COLUMN] [--detrend ...] [--window EXTENT] ...
+ *     site-level indicators (pc1-variance, pc1-share, maf-ac1) of several value columns sharing the time column.
  * An EXTENT is a fraction of the analysed stretch, "<n> points" or an ISO 8601 duration (P90D, P2Y, PT12H).
  * Prints the analysis as JSON on stdout. Bad input: exit code 2, one line on stderr, nothing on stdout.
  * The file is read by the intake's reader (lib/intake), as an upload of a series with that time format and zone
@@ -19,7 +21,7 @@
  */
 import { readFileSync } from 'node:fs';
 import { ZodError } from 'zod';
-import { AnalysisInputError, analysisSettingsSchema, runAnalysis, summarizeAnalysis, type AnalysisResult, type RecordBreak } from '../lib/engine';
+import { AnalysisInputError, analysisSettingsSchema, runAnalysis, runSiteAnalysis, summarizeAnalysis, type AnalysisResult, type RecordBreak, type SiteAnalysisResult } from '../lib/engine';
 import { CsvFileError, readCsv } from '../lib/intake/csv';
 import { collectCsvRows } from '../lib/intake/rows';
 import { formatInstant, parseTime, type TimeReading } from '../lib/intake/time-formats';
@@ -30,7 +32,7 @@ class CliInputError extends Error {}
 /** The intake's time formats, and plain numbers (no calendar). */
 const TIME_READINGS: readonly TimeReading[] = [...TIME_FORMATS, 'number'];
 
-const FLAGS = new Set(['sensitivity', 'summary', 'log']);
+const FLAGS = new Set(['sensitivity', 'summary', 'log', 'multivariate']);
 const OPTIONS = new Set([
   'time', 'value', 'detrend', 'bandwidth', 'window', 'span', 'indicators', 'surrogates', 'surrogate-method', 'seed', 'seasonal',
   'max-gap', 'gap-policy', 'min-coverage', 'sampling-change', 'shift-detection', 'moving-average-width', 'time-format', 'time-zone',
@@ -291,6 +293,24 @@ function toJson(result: AnalysisResult, summary: boolean, numericTime: boolean):
   };
 }
 
+/**
+ * The site-level analysis of several value columns (--multivariate --value a,b,c): each column read as a single
+ * series is, and every column must have a value at every instant of the first (same times, same order).
+ */
+async function siteJson(bytes: Buffer, opts: Record<string, string>, settings: ReturnType<typeof settingsFrom>, summary: boolean): Promise<unknown> {
+  const names = (opts.value ?? '').split(',').map((v) => v.trim()).filter(Boolean);
+  if (names.length < 2) throw new CliInputError('option --multivariate needs --value with two or more columns, e.g. --value a,b,c');
+  const tables: Table[] = [];
+  for (const name of names) tables.push(await readTable(bytes, { ...opts, value: name }));
+  const [first] = tables;
+  for (const t of tables.slice(1)) {
+    const differs = t.time.length !== first.time.length ? Math.min(t.time.length, first.time.length) : t.time.findIndex((v, i) => v !== first.time[i]);
+    if (differs >= 0) throw new CliInputError(`line ${(t.lines[differs] ?? first.lines[differs])}, column "${t.valueName}": every value column needs a value at every instant of column "${first.valueName}"`);
+  }
+  const result: SiteAnalysisResult = runSiteAnalysis({ values: tables.map((t) => t.value) }, settings);
+  return { series: names, ...(summary ? { ...result, indicators: undefined } : result) };
+}
+
 async function main(): Promise<number> {
   const argv = process.argv.slice(2);
   let file = argv.find((a) => !a.startsWith('--')) ?? '(no file)';
@@ -301,6 +321,10 @@ async function main(): Promise<number> {
     const bytes = readFile(args.file);
     const header = fileHeader(bytes);
     const settings = settingsFrom(args.opts, args.flags, header.settings);
+    if (args.flags.has('multivariate')) {
+      process.stdout.write(`${JSON.stringify(await siteJson(bytes, args.opts, settings, args.flags.has('summary')))}\n`);
+      return 0;
+    }
     table = await readTable(bytes, args.opts);
     const breaks = breaksFrom(args.repeated, header, table);
     const intervalMs = numberOption(args.opts, 'interval-ms') ?? header.intervalMs;

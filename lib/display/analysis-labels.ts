@@ -20,6 +20,12 @@ export const INDICATOR_LABELS: Record<IndicatorName, string> = {
   skewness: 'skewness',
   kurtosis: 'kurtosis',
   recovery: 'recovery rate',
+  'restoring-rate': 'restoring rate (regression)',
+  'spectral-ratio': 'spectral ratio (low/high frequency)',
+  ch: 'conditional heteroskedasticity',
+  dfa: 'fluctuation exponent (DFA)',
+  bimodality: 'bimodality coefficient',
+  'potential-wells': 'wells of the fitted potential',
 };
 
 /**

@@ -7,7 +7,8 @@ import { extentPoints } from './extent';
 import { formatInstant, prepareSeries, type PreparationQuality } from './prepare';
 import type { TimeKind } from './time-kind';
 import { detectShifts } from './shifts';
-import { MIN_WINDOW_POINTS, rollingIndicators, windowPoints } from './rolling';
+import { indicatorDefinition } from './indicators';
+import { evaluationStride, MIN_WINDOW_POINTS, rollingIndicators, windowPoints, type IndicatorCompanions } from './rolling';
 import { sensitivityGrid, type SensitivityResult } from './sensitivity';
 import { computeSurrogateTaus } from './surrogate-pool';
 import { prepareSurrogateJob, surrogatePValue } from './surrogates';
@@ -62,6 +63,13 @@ export interface AnalysisResult {
   stretch: { from: number; to: number; startsAfter: StretchStart };
   series: { time: Float64Array; value: Float64Array; trend: Float64Array; residual: Float64Array };
   indicators: Partial<Record<IndicatorName, (number | null)[]>>;
+  /**
+   * Per-point companion values of the indicators that declare them (null where the indicator is): the restoring
+   * rate's `standardError` (for a band of ± its multiples), ch's χ²(1) `p`.
+   */
+  companions: Partial<Record<IndicatorName, Record<string, (number | null)[]>>>;
+  /** Every how many windows each indicator was evaluated (1: every window; more for the per-window indicators, see `maxEvaluatedWindows`). */
+  evaluatedEvery: Partial<Record<IndicatorName, number>>;
   /** Kendall tau of each indicator against time, with a descriptive normal-approximation p in the indicator's direction
    * (it assumes independent values, which overlapping windows are not: never a gate) */
   kendall: Partial<Record<IndicatorName, { tau: number | null; p: number | null; direction: TrendDirection }>>;
@@ -72,9 +80,9 @@ export interface AnalysisResult {
   caution: string;
 }
 
-export type AnalysisSummary = Omit<AnalysisResult, 'series' | 'indicators'> & {
-  /** last defined value of each indicator, with its time */
-  latest: Partial<Record<IndicatorName, { time: number; value: number } | null>>;
+export type AnalysisSummary = Omit<AnalysisResult, 'series' | 'indicators' | 'companions'> & {
+  /** last defined value of each indicator, with its time (and its companion values there, if it has any) */
+  latest: Partial<Record<IndicatorName, { time: number; value: number; companions?: Record<string, number | null> } | null>>;
 };
 
 const DAY_MS = 86_400_000;
@@ -149,10 +157,10 @@ function stretchStart(
 /**
  * The whole pipeline: prepare (sampling changes, grid, span, gaps with an observed mask, flat runs, log, seasonal)
  * → abrupt shifts over the prepared record (detectShifts) → the stretch after the latest shift, break or cut →
- * detrend → rolling indicators (windows below the coverage floor or inside a flat run not judged) → Kendall tau
- * of each, p in the indicator's direction → surrogate significance (same gaps, interpolation and unjudged
- * windows as the record; worker threads unless options.parallel is false, identical numbers either way) →
- * optional sensitivity grid. Window and bandwidth are extents of the stretch. Throws AnalysisInputError for
+ * detrend → rolling indicators (per-window ones at no more than maxEvaluatedWindows windows; windows below the
+ * coverage floor or inside a flat run not judged) → Kendall tau of each, p in the indicator's direction →
+ * surrogate significance (same gaps, interpolation, unjudged and evaluated windows as the record; worker threads
+ * unless options.parallel is false, identical numbers either way) → optional sensitivity grid. Window and bandwidth are extents of the stretch. Throws AnalysisInputError for
  * input the caller can fix (a stretch too short for the window names where it starts and why).
  * Cost O(n log n) + O(N·n log n) for N surrogates, plus the shift detector's. Sources: those of each step
  * (README, "Indicator definitions"). The returned arrays are the engine's own (never the caller's input).
@@ -193,7 +201,14 @@ export async function runAnalysis(input: AnalysisInput, settings: AnalysisSettin
     .filter((r) => r.end > r.start);
   const { skip, belowCoverage } = unjudgedWindows(observed, flat, w, settings.minCoverage);
   const names = settings.indicators;
-  const values = rollingIndicators(d.residual, w, names, { raw, dt, skip });
+  const stride = evaluationStride(n - w + 1, settings.maxEvaluatedWindows);
+  const companionValues: IndicatorCompanions = {};
+  const values = rollingIndicators(d.residual, w, names, { raw, dt, skip, stride, companions: companionValues });
+  const companions: AnalysisResult['companions'] = {};
+  for (const [name, byName] of Object.entries(companionValues) as [IndicatorName, Record<string, Float64Array>][]) {
+    companions[name] = Object.fromEntries(Object.entries(byName).map(([k, a]) => [k, toNullable(a)]));
+  }
+  const evaluatedEvery: AnalysisResult['evaluatedEvery'] = Object.fromEntries(names.map((name) => [name, indicatorDefinition(name)!.kind === 'window' ? stride : 1]));
 
   const indicators = lazyIndicators(values);
   const kendall: AnalysisResult['kendall'] = {};
@@ -206,7 +221,7 @@ export async function runAnalysis(input: AnalysisInput, settings: AnalysisSettin
 
   const significance: AnalysisResult['significance'] = {};
   if (settings.surrogates > 0) {
-    const job = prepareSurrogateJob(d.residual, raw, { method: settings.surrogateMethod, seed: settings.seed, w, dt, indicators: [...names], observed, skip });
+    const job = prepareSurrogateJob(d.residual, raw, { method: settings.surrogateMethod, seed: settings.seed, w, dt, indicators: [...names], stride, observed, skip });
     const { taus } = await computeSurrogateTaus(job, settings.surrogates, { parallel: options.parallel });
     for (const name of names) {
       const direction = INDICATOR_DIRECTIONS[name];
@@ -216,7 +231,14 @@ export async function runAnalysis(input: AnalysisInput, settings: AnalysisSettin
   }
 
   const sensitivity = settings.sensitivity
-    ? sensitivityGrid(x, x, { detrend: settings.detrend, movingAverageWidth: settings.movingAverageWidth, bandwidth: h / x.length, indicators: [...names], dt })
+    ? sensitivityGrid(x, x, {
+        detrend: settings.detrend,
+        movingAverageWidth: settings.movingAverageWidth,
+        bandwidth: h / x.length,
+        indicators: [...names],
+        dt,
+        maxEvaluatedWindows: settings.maxEvaluatedWindows,
+      })
     : null;
 
   let seen = 0;
@@ -232,6 +254,8 @@ export async function runAnalysis(input: AnalysisInput, settings: AnalysisSettin
     stretch: { from: time[0], to: time[time.length - 1], startsAfter: cut.startsAfter },
     series: { time: time.subarray(d.offset), value: raw, trend: d.trend, residual: d.residual },
     indicators,
+    companions,
+    evaluatedEvery,
     kendall,
     significance,
     sensitivity,
@@ -242,14 +266,18 @@ export async function runAnalysis(input: AnalysisInput, settings: AnalysisSettin
 
 /** The result without per-point arrays (JSON-friendly), plus the latest value of each indicator. O(n). */
 export function summarizeAnalysis(result: AnalysisResult): AnalysisSummary {
-  const { series, indicators, ...rest } = result;
+  const { series, indicators, companions, ...rest } = result;
   const latest: AnalysisSummary['latest'] = {};
   const typed = rawIndicators.get(indicators);
   for (const name of Object.keys(indicators) as IndicatorName[]) {
     const vals: ArrayLike<number | null> = typed?.[name] ?? indicators[name]!;
     let i = vals.length - 1;
     while (i >= 0 && !Number.isFinite(vals[i])) i--;
-    latest[name] = i >= 0 ? { time: series.time[i], value: vals[i]! } : null;
+    const extra = companions?.[name];
+    latest[name] =
+      i < 0
+        ? null
+        : { time: series.time[i], value: vals[i]!, ...(extra ? { companions: Object.fromEntries(Object.entries(extra).map(([k, a]) => [k, a[i]])) } : {}) };
   }
   return { ...rest, latest };
 }

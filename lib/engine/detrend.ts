@@ -24,19 +24,26 @@ export function accurateMean(x: ArrayLike<number>, from = 0, to = x.length): num
 
 /**
  * Ordinary least squares line y ≈ a + b·x with centred sums: b = Σ(x−x̄)(y−ȳ)/Σ(x−x̄)², a = ȳ − b x̄,
- * residual sd = √(Σ e²/(n−2)). O(n). Source: Draper & Smith (1998), Applied Regression Analysis,
- * 3rd ed., Ch. 1; checked against NIST StRD Norris.
+ * residual sd = √(Σ e²/(n−2)); the centred sums Sxx, Sxy, Syy and the residual sum of squares come with it
+ * (standard error of b = residual sd/√Sxx; R² = Sxy²/(Sxx·Syy)). O(n). Source: Draper & Smith (1998), Applied
+ * Regression Analysis, 3rd ed., Ch. 1; checked against NIST StRD Norris.
  */
-export function linearFit(x: ArrayLike<number>, y: ArrayLike<number>): { intercept: number; slope: number; residualSd: number } {
+export function linearFit(
+  x: ArrayLike<number>,
+  y: ArrayLike<number>,
+): { intercept: number; slope: number; residualSd: number; sxx: number; sxy: number; syy: number; sse: number } {
   const n = y.length;
   const mx = accurateMean(x);
   const my = accurateMean(y);
   let sxx = 0;
   let sxy = 0;
+  let syy = 0;
   for (let i = 0; i < n; i++) {
     const dx = x[i] - mx;
+    const dy = y[i] - my;
     sxx += dx * dx;
-    sxy += dx * (y[i] - my);
+    sxy += dx * dy;
+    syy += dy * dy;
   }
   const slope = sxx > 0 ? sxy / sxx : 0;
   const intercept = my - slope * mx;
@@ -45,7 +52,7 @@ export function linearFit(x: ArrayLike<number>, y: ArrayLike<number>): { interce
     const e = y[i] - my - slope * (x[i] - mx);
     sse += e * e;
   }
-  return { intercept, slope, residualSd: n > 2 ? Math.sqrt(sse / (n - 2)) : Number.NaN };
+  return { intercept, slope, residualSd: n > 2 ? Math.sqrt(sse / (n - 2)) : Number.NaN, sxx, sxy, syy, sse };
 }
 
 /** exp(−d²/2h²) falls below 1e-17 for |d| > GAUSS_REACH·h (√(2 ln 1e17) ≈ 8.85). */

@@ -1,26 +1,16 @@
+import { INDICATORS, type IndicatorName } from './indicators';
+import type { TrendDirection } from './indicators/definition';
 import { erfc } from './normal';
-import type { IndicatorName } from './settings';
 
-/** Which way an indicator is expected to move under critical slowing down. */
-export type TrendDirection = 'rising' | 'falling' | 'two-sided';
+export type { TrendDirection } from './indicators/definition';
 /** What rules store: 'either' is the rule-facing name of 'two-sided'. */
 export type RuleDirection = 'rising' | 'falling' | 'either';
 
 /**
- * Expected direction of each indicator as a system slows down towards a fold: variance, sd, cv and lag-1
- * autocorrelation rise and the recovery rate falls (Scheffer et al. (2009), Nature 461, 53–59; Dakos et al.
- * (2012), PLoS ONE 7, e41010, from memory); skewness and kurtosis can move either way depending on which side
- * of the state the other basin lies (Guttal & Jayaprakash (2008), Ecol. Lett. 11, 450–460, from memory).
+ * Expected direction of each indicator as a system slows down towards a fold, as each indicator's file declares it
+ * with its source (lib/engine/indicators).
  */
-export const INDICATOR_DIRECTIONS: Record<IndicatorName, TrendDirection> = {
-  variance: 'rising',
-  sd: 'rising',
-  cv: 'rising',
-  ac1: 'rising',
-  recovery: 'falling',
-  skewness: 'two-sided',
-  kurtosis: 'two-sided',
-};
+export const INDICATOR_DIRECTIONS = Object.fromEntries(INDICATORS.map((d) => [d.name, d.direction])) as Record<IndicatorName, TrendDirection>;
 
 /** A rule's direction as the engine's: 'either' → 'two-sided'. O(1). */
 export function trendDirectionOf(d: RuleDirection): TrendDirection {

@@ -157,6 +157,16 @@ export function realFft(x: Float64Array, size: number): { re: Float64Array; im: 
     if (2 * j + 1 < len) zi[j] = x[2 * j + 1];
   }
   fftPow2(zr, zi);
+  return unpackHalfSpectrum(zr, zi, { cos, sin });
+}
+
+/**
+ * The half spectrum X_k, k = 0..h, of a real sequence of length 2h from the DFT Z of z_j = x_{2j} + i x_{2j+1}:
+ * X_k = (Z_k + Z*_{h−k})/2 − i e^{−2πik/2h} (Z_k − Z*_{h−k})/2, with cos/sin(2πk/2h) given. O(h).
+ * Source: Press et al., Numerical Recipes (3rd ed., 2007), Sec. 12.3.
+ */
+function unpackHalfSpectrum(zr: Float64Array, zi: Float64Array, { cos, sin }: Twiddles): { re: Float64Array; im: Float64Array } {
+  const h = zr.length;
   const re = new Float64Array(h + 1);
   const im = new Float64Array(h + 1);
   re[0] = zr[0] + zi[0];
@@ -283,4 +293,46 @@ export function dft(re: Float64Array, im: Float64Array, inverse = false): { re: 
     outI[k] = s * (xr * ci[k] + xi * cr[k]) * scale;
   }
   return { re: outR, im: outI };
+}
+
+const unpackingCache = new Map<number, Twiddles>();
+
+/** cos/sin(2πk/n) for k < n/2, evaluated directly (no recurrence), kept for the last few lengths: a rolling indicator asks for one length many times. */
+function unpackingTwiddles(n: number): Twiddles {
+  const hit = unpackingCache.get(n);
+  if (hit) return hit;
+  const half = n >> 1;
+  const t = { cos: new Float64Array(half), sin: new Float64Array(half) };
+  for (let k = 0; k < half; k++) {
+    const a = (2 * Math.PI * k) / n;
+    t.cos[k] = Math.cos(a);
+    t.sin[k] = Math.sin(a);
+  }
+  if (unpackingCache.size >= 4) unpackingCache.delete(unpackingCache.keys().next().value!);
+  unpackingCache.set(n, t);
+  return t;
+}
+
+/**
+ * Spectrum X_k, k = 0..⌊n/2⌋, of a real sequence x of any length n. Even n: one complex DFT (dft) of length n/2 on
+ * z_j = x_{2j} + i x_{2j+1}, unpacked by unpackHalfSpectrum, half the work of a complex DFT of length n; odd n: the
+ * complex DFT itself. Cost O(n log n).
+ * Source: Press et al., Numerical Recipes (3rd ed., 2007), Sec. 12.3.
+ */
+export function realDft(x: Float64Array): { re: Float64Array; im: Float64Array } {
+  const n = x.length;
+  const half = n >> 1;
+  if (n % 2 === 1 || n < 4) {
+    const full = dft(x, new Float64Array(n));
+    return { re: full.re.subarray(0, half + 1), im: full.im.subarray(0, half + 1) };
+  }
+  if (isPowerOfTwo(n)) return realFft(x, n);
+  const zr = new Float64Array(half);
+  const zi = new Float64Array(half);
+  for (let j = 0; j < half; j++) {
+    zr[j] = x[2 * j];
+    zi[j] = x[2 * j + 1];
+  }
+  const z = dft(zr, zi);
+  return unpackHalfSpectrum(z.re, z.im, unpackingTwiddles(n));
 }

@@ -1,6 +1,6 @@
 import { twoSidedNormalP } from './normal';
 import { centredMoments, indicatorFromMoments } from './rolling';
-import type { IndicatorName } from './settings';
+import { indicatorDefinition, type IndicatorName } from './indicators';
 
 /**
  * Centred moments of the last `w` values pushed (fewer while the window fills), updated in O(1) per push.
@@ -106,6 +106,15 @@ export class SlidingMoments {
     this.p = p;
   }
 
+  /** The window's values in order, oldest first (a copy). O(w). */
+  values(): Float64Array {
+    const out = new Float64Array(this.k);
+    const tail = Math.min(this.k, this.w - this.head);
+    out.set(this.ring.subarray(this.head, this.head + tail));
+    out.set(this.ring.subarray(0, this.k - tail), tail);
+    return out;
+  }
+
   mean(): number {
     return this.c + this.s1 / this.k;
   }
@@ -115,8 +124,16 @@ export class SlidingMoments {
     return centredMoments(this.k, this.s1, this.s2, this.s3, this.s4, this.p, this.at(0) - this.c, this.at(this.k - 1) - this.c);
   }
 
-  /** One indicator of the current window, by the definitions of rollingIndicators (indicatorFromMoments). O(1). */
+  /**
+   * One indicator of the current window, by the definitions of rollingIndicators: O(1) for a moment indicator
+   * (indicatorFromMoments); a per-window indicator is evaluated on the window's values in order, O(its cost per window).
+   */
   indicator(name: IndicatorName, opts: { dt: number; rawMean?: number }): number {
+    const definition = indicatorDefinition(name);
+    if (definition?.kind === 'window') {
+      const v = definition.evaluate(this.values(), opts.dt).value;
+      return Number.isFinite(v) ? v : Number.NaN;
+    }
     const { m2, m3, m4, lag } = this.moments();
     return indicatorFromMoments(name, this.k, m2, m3, m4, lag, opts.rawMean ?? this.mean(), opts.dt);
   }

@@ -12,3 +12,4 @@ export { computeSurrogateTaus } from './surrogate-pool';
 export { sensitivityGrid, DEFAULT_SENSITIVITY_BANDWIDTHS, DEFAULT_SENSITIVITY_WINDOWS, type SensitivityResult } from './sensitivity';
 export type { TimeKind } from './time-kind';
 export { prepareSeries, formatInstant, FLAT_RUN_MIN, type PreparationQuality, type GapReport, type FlatRun, type SamplingChange } from './prepare';
+export { runSiteAnalysis, SITE_INDICATORS, type SiteAnalysisResult, type SiteIndicatorName } from './site';

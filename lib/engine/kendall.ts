@@ -1,3 +1,4 @@
+import { indicatorDefinition } from './indicators';
 import { twoSidedNormalP } from './normal';
 
 /** Pair counts behind Kendall's tau and the Mann–Kendall test. */
@@ -182,26 +183,29 @@ export function mannKendall(values: Float64Array): MannKendallResult {
 }
 
 /**
- * Kendall trend (tau, p) of each indicator series. sd = √variance and recovery = −ln(ac1)/Δt are
- * strictly monotone transforms, so their tau equals that of variance and −(that of ac1) (the latter
- * when recovery is defined wherever ac1 is, i.e. every ac1 > 0); those are reused, not recomputed.
- * Cost O(m log m) per distinct indicator. Source: invariance of rank statistics under monotone
+ * Kendall trend (tau, p) of each indicator series. An indicator its definition declares a strictly monotone
+ * transform of another (`trendOf`: sd = √variance; recovery = −ln(ac1)/Δt) has that one's tau times the sign,
+ * when both are present and defined at the same points (recovery is undefined where ac1 ≤ 0); those are reused, not
+ * recomputed. Cost O(m log m) per distinct indicator. Source: invariance of rank statistics under monotone
  * transforms, Kendall & Gibbons (1990), Ch. 1 (from memory).
  */
 export function indicatorTrends<K extends string>(values: Partial<Record<K, Float64Array>>): Partial<Record<K, KendallResult>> {
   const out: Partial<Record<string, KendallResult>> = {};
   const v = values as Partial<Record<string, Float64Array>>;
-  const names = Object.keys(v);
   const sameDefined = (a: Float64Array, b: Float64Array) => {
     for (let i = 0; i < a.length; i++) if (Number.isFinite(a[i]) !== Number.isFinite(b[i])) return false;
     return true;
   };
-  for (const name of names) {
-    if (name === 'sd' && v.variance) continue;
-    if (name === 'recovery' && v.ac1 && sameDefined(v.ac1, v.recovery!)) continue;
-    out[name] = indicatorTrend(v[name]!);
+  const reused: { name: string; base: string; sign: 1 | -1 }[] = [];
+  for (const name of Object.keys(v)) {
+    const of = indicatorDefinition(name)?.trendOf;
+    const base = of ? v[of.name] : undefined;
+    if (of && base && sameDefined(base, v[name]!)) reused.push({ name, base: of.name, sign: of.sign });
+    else out[name] = indicatorTrend(v[name]!);
   }
-  if (v.sd && v.variance) out.sd = out.variance;
-  if (v.recovery && !out.recovery) out.recovery = { ...out.ac1!, tau: -out.ac1!.tau, s: -out.ac1!.s };
+  for (const { name, base, sign } of reused) {
+    const t = out[base]!;
+    out[name] = sign === 1 ? t : { ...t, tau: -t.tau, s: -t.s };
+  }
   return out as Partial<Record<K, KendallResult>>;
 }

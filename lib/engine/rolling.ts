@@ -1,7 +1,8 @@
 import { AnalysisInputError } from './errors';
 import { extentPoints, type Extent } from './extent';
 import type { TimeKind } from './time-kind';
-import type { IndicatorName } from './settings';
+import { indicatorDefinition, needsRawMean, type IndicatorName } from './indicators';
+import type { MomentIndicator, WindowMomentValues } from './indicators/definition';
 
 /** Smallest rolling window, in points, for which the moment estimators mean anything. */
 export const MIN_WINDOW_POINTS = 8;
@@ -108,13 +109,19 @@ export function windowMoments(r: Float64Array, w: number): WindowMoments {
   return { mean, m2, m3, m4, lag };
 }
 
+function finite(v: number): number {
+  return Number.isFinite(v) ? v : Number.NaN;
+}
+
+function momentDefinition(name: IndicatorName): MomentIndicator {
+  const definition = indicatorDefinition(name);
+  if (definition?.kind !== 'moments') throw new RangeError(`${name} is not computed from window moments`);
+  return definition;
+}
+
 /**
- * One indicator of a window of w points from its centred moments (see WindowMoments): variance = M2/(w−1);
- * sd = √variance; cv = sd/|rawMean|; ac1 = lag/M2 (NIST StRD estimator); skewness = (M3/w)/(M2/w)^{3/2};
- * kurtosis = (M4/w)/(M2/w)² − 3 (moment estimators g1, g2); recovery = −ln(ac1)/dt where ac1 > 0. NaN where
- * undefined (zero variance, zero mean). Cost O(1). Sources: NIST StRD univariate summary statistics (variance, sd,
- * r(1)); Joanes & Gill (1998), The Statistician 47, 183–189 (g1, g2); Gillespie (1996), Phys. Rev. E 54, 2084
- * (ac1 = e^{−λΔt}).
+ * One moment indicator of a window of w points from its centred moments (see WindowMoments), by the definition its
+ * file in lib/engine/indicators declares (formula, cost and source there); NaN where undefined. O(1).
  */
 export function indicatorFromMoments(
   name: IndicatorName,
@@ -126,50 +133,68 @@ export function indicatorFromMoments(
   rawMean: number,
   dt: number,
 ): number {
-  let v: number;
-  if (name === 'variance') v = m2 / (w - 1);
-  else if (name === 'sd') v = Math.sqrt(m2 / (w - 1));
-  else if (name === 'cv') v = Math.sqrt(m2 / (w - 1)) / Math.abs(rawMean);
-  else if (!(m2 > 0)) return Number.NaN;
-  else if (name === 'ac1') v = lag / m2;
-  else if (name === 'skewness') {
-    const q = m2 / w;
-    v = m3 / w / (q * Math.sqrt(q));
-  } else if (name === 'kurtosis') {
-    const q = m2 / w;
-    v = m4 / w / (q * q) - 3;
-  } else {
-    const a = lag / m2;
-    v = a > 0 ? -Math.log(a) / dt : Number.NaN;
-  }
-  return Number.isFinite(v) ? v : Number.NaN;
+  return finite(momentDefinition(name).fromMoments({ w, m2, m3, m4, lag, rawMean, dt }));
 }
 
 /**
- * Rolling indicators (indicatorFromMoments) over windows of w points ending at each index i ≥ w−1 (earlier entries
- * NaN = none), from the sliding moments of windowMoments; windows with skip[s] = 1 (unjudgedWindows) are NaN,
- * exactly. Cost O(n) per indicator.
+ * Every how many windows the per-window indicators are evaluated when at most `maxEvaluated` of the `count`
+ * windows may be: ⌈count/maxEvaluated⌉ (1 when all fit). O(1).
+ */
+export function evaluationStride(count: number, maxEvaluated: number): number {
+  return Math.max(1, Math.ceil(count / maxEvaluated));
+}
+
+/** Per-window companion values (a standard error, a p-value) of the indicators that declare them, by indicator and name. */
+export type IndicatorCompanions = Partial<Record<IndicatorName, Record<string, Float64Array>>>;
+
+/**
+ * Rolling indicators over windows of w points ending at each index i ≥ w−1 (earlier entries NaN = none); windows
+ * with skip[s] = 1 (unjudgedWindows) are NaN, exactly. Moment indicators (indicatorFromMoments) come from the sliding
+ * moments of windowMoments at every window, O(n) each. Per-window indicators are evaluated on the window's residuals
+ * at every `stride`-th window counted back from the latest (the latest is always evaluated; default every window),
+ * NaN between, O(n/stride × their cost per window); their companion values go into `opts.companions` when given.
  */
 export function rollingIndicators(
   residual: Float64Array,
   w: number,
   names: readonly IndicatorName[],
-  opts: { raw?: Float64Array; rawMean?: Float64Array; dt: number; skip?: Uint8Array | null },
+  opts: { raw?: Float64Array; rawMean?: Float64Array; dt: number; skip?: Uint8Array | null; stride?: number; companions?: IndicatorCompanions },
 ): Record<IndicatorName, Float64Array> {
   const n = residual.length;
-  const { m2, m3, m4, lag } = windowMoments(residual, w);
-  const count = m2.length;
+  // Per-window indicators alone need no sliding moments.
+  const none = new Float64Array(0);
+  const { m2, m3, m4, lag } = names.some((name) => indicatorDefinition(name)?.kind === 'moments') ? windowMoments(residual, w) : { m2: none, m3: none, m4: none, lag: none };
+  const count = Math.max(0, n - w + 1);
   let rawMean = opts.rawMean;
-  if (!rawMean && names.includes('cv')) rawMean = windowMoments(opts.raw ?? residual, w).mean;
+  if (!rawMean && needsRawMean(names)) rawMean = windowMoments(opts.raw ?? residual, w).mean;
   const out = {} as Record<IndicatorName, Float64Array>;
+  const skip = opts.skip;
+  // One moments record refilled per window: no allocation in the loop.
+  const m: WindowMomentValues = { w, m2: 0, m3: 0, m4: 0, lag: 0, rawMean: Number.NaN, dt: opts.dt };
   for (const name of names) {
+    const definition = indicatorDefinition(name)!;
     const values = new Float64Array(n).fill(Number.NaN);
-    const skip = opts.skip;
+    out[name] = values;
+    if (definition.kind === 'window') {
+      const extra = definition.companions.map(() => new Float64Array(n).fill(Number.NaN));
+      if (opts.companions && extra.length) opts.companions[name] = Object.fromEntries(definition.companions.map((c, k) => [c, extra[k]]));
+      for (let s = count - 1; s >= 0; s -= opts.stride ?? 1) {
+        if (skip && skip[s]) continue;
+        const v = definition.evaluate(residual.subarray(s, s + w), opts.dt);
+        values[s + w - 1] = finite(v.value);
+        extra.forEach((a, k) => (a[s + w - 1] = finite(v.companions?.[k] ?? Number.NaN)));
+      }
+      continue;
+    }
     for (let s = 0; s < count; s++) {
       if (skip && skip[s]) continue;
-      values[s + w - 1] = indicatorFromMoments(name, w, m2[s], m3[s], m4[s], lag[s], rawMean ? rawMean[s] : Number.NaN, opts.dt);
+      m.m2 = m2[s];
+      m.m3 = m3[s];
+      m.m4 = m4[s];
+      m.lag = lag[s];
+      m.rawMean = rawMean ? rawMean[s] : Number.NaN;
+      values[s + w - 1] = finite(definition.fromMoments(m));
     }
-    out[name] = values;
   }
   return out;
 }

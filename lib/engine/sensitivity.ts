@@ -1,6 +1,7 @@
 import { detrend, type DetrendMethod } from './detrend';
+import { needsRawMean } from './indicators';
 import { indicatorTrends } from './kendall';
-import { MIN_WINDOW_POINTS, rollingIndicators, windowMoments } from './rolling';
+import { evaluationStride, MIN_WINDOW_POINTS, rollingIndicators, windowMoments } from './rolling';
 import type { IndicatorName } from './settings';
 
 function steps(from: number, to: number, step: number): number[] {
@@ -29,7 +30,17 @@ export interface SensitivityResult {
 export function sensitivityGrid(
   x: Float64Array,
   raw: Float64Array,
-  opts: { detrend: DetrendMethod; movingAverageWidth: number; bandwidth: number; indicators: IndicatorName[]; dt: number; windows?: number[]; bandwidths?: number[] },
+  opts: {
+    detrend: DetrendMethod;
+    movingAverageWidth: number;
+    bandwidth: number;
+    indicators: IndicatorName[];
+    dt: number;
+    /** as settings `maxEvaluatedWindows`: per-window indicators are evaluated at no more windows than this */
+    maxEvaluatedWindows?: number;
+    windows?: number[];
+    bandwidths?: number[];
+  },
 ): SensitivityResult {
   const windows = opts.windows ?? DEFAULT_SENSITIVITY_WINDOWS;
   const bandwidths = opts.detrend === 'gaussian' || opts.detrend === 'local-linear' ? (opts.bandwidths ?? DEFAULT_SENSITIVITY_BANDWIDTHS) : null;
@@ -48,8 +59,9 @@ export function sensitivityGrid(
         for (const name of opts.indicators) row[name]!.push(null);
         continue;
       }
-      const rawMean = opts.indicators.includes('cv') ? windowMoments(rawPart, w).mean : undefined;
-      const ind = rollingIndicators(d.residual, w, opts.indicators, { rawMean, dt: opts.dt });
+      const rawMean = needsRawMean(opts.indicators) ? windowMoments(rawPart, w).mean : undefined;
+      const stride = opts.maxEvaluatedWindows ? evaluationStride(n - w + 1, opts.maxEvaluatedWindows) : 1;
+      const ind = rollingIndicators(d.residual, w, opts.indicators, { rawMean, dt: opts.dt, stride });
       const trends = indicatorTrends(ind);
       for (const name of opts.indicators) {
         const tau = trends[name]!.tau;

@@ -1,13 +1,19 @@
 import { z } from 'zod';
 import { DETREND_METHODS } from './detrend';
 import { isExtent } from './extent';
+import { DEFAULT_INDICATORS, INDICATOR_NAMES } from './indicators';
 
-/** The rolling indicators the engine computes (see README, "Indicator definitions"). */
-export const INDICATOR_NAMES = ['variance', 'sd', 'cv', 'ac1', 'skewness', 'kurtosis', 'recovery'] as const;
-export type IndicatorName = (typeof INDICATOR_NAMES)[number];
+/** The rolling indicators the engine computes (the registry, lib/engine/indicators; README, "Indicator definitions"). */
+export { INDICATOR_NAMES, type IndicatorName } from './indicators';
 
 export const SURROGATE_METHODS = ['ar1', 'phase'] as const;
 export type SurrogateMethod = (typeof SURROGATE_METHODS)[number];
+
+/**
+ * Default of `maxEvaluatedWindows`: chosen so a 1e6-point record with 50 % windows analyses with every indicator in
+ * under 30 s on one core (bench/engine.bench.ts), while a record of a few thousand points evaluates every window.
+ */
+export const MAX_EVALUATED_WINDOWS = 100;
 
 const EXTENT_MESSAGE = 'must be a fraction, "<n> points" or an ISO 8601 duration such as P90D';
 /** An extent (lib/engine/extent.ts): a fraction up to `maxFraction` of the stretch, "<n> points", or an ISO 8601 duration. */
@@ -45,7 +51,13 @@ export const analysisSettingsSchema = z.preprocess(
       .array(z.enum(INDICATOR_NAMES))
       .min(1)
       .transform((list) => INDICATOR_NAMES.filter((name) => list.includes(name)))
-      .default([...INDICATOR_NAMES]),
+      .default([...DEFAULT_INDICATORS]),
+    /**
+     * The indicators that cost more than O(1) per window (those computed from the window's residuals, kind 'window' in
+     * lib/engine/indicators) are evaluated at no more than this many windows, evenly spaced and always including the
+     * latest; their Kendall tau is taken over those.
+     */
+    maxEvaluatedWindows: z.number().int().min(10).max(1_000_000).default(MAX_EVALUATED_WINDOWS),
     surrogates: z.number().int().min(0).max(100000).default(0),
     surrogateMethod: z.enum(SURROGATE_METHODS).default('ar1'),
     seed: z.number().int().default(1),

@@ -1,6 +1,7 @@
 import { accurateMean } from './detrend';
 import { orientedTau, type TrendDirection } from './direction';
 import { dft } from './fft';
+import { needsRawMean } from './indicators';
 import { indicatorTrends } from './kendall';
 import { fillLinear } from './prepare';
 import { RandomStream } from './random';
@@ -15,6 +16,8 @@ export interface SurrogateJob {
   w: number;
   dt: number;
   indicators: IndicatorName[];
+  /** Per-window indicators are evaluated at every `stride`-th window from the latest, as in the record (rollingIndicators). */
+  stride: number;
   /** Rolling mean of the observed raw values (the cv denominator is kept from the observed series). */
   rawMean: Float64Array | null;
   ar1: { phi: number; innovationSd: number; mean: number } | null;
@@ -71,13 +74,14 @@ export function fitAr1(r: Float64Array, observed: Uint8Array | null = null): { p
 export function prepareSurrogateJob(
   residual: Float64Array,
   raw: Float64Array,
-  base: { method: SurrogateMethod; seed: number; w: number; dt: number; indicators: IndicatorName[]; observed?: Uint8Array | null; skip?: Uint8Array | null },
+  base: { method: SurrogateMethod; seed: number; w: number; dt: number; indicators: IndicatorName[]; stride?: number; observed?: Uint8Array | null; skip?: Uint8Array | null },
 ): SurrogateJob {
   const observed = base.observed && base.observed.includes(0) ? base.observed : null;
   return {
     ...base,
+    stride: base.stride ?? 1,
     n: residual.length,
-    rawMean: base.indicators.includes('cv') ? windowMoments(raw, base.w).mean : null,
+    rawMean: needsRawMean(base.indicators) ? windowMoments(raw, base.w).mean : null,
     ar1: base.method === 'ar1' ? fitAr1(residual, observed) : null,
     spectrum: base.method === 'phase' ? dft(residual, new Float64Array(residual.length)) : null,
     observed,
@@ -137,7 +141,7 @@ export function surrogateTaus(job: SurrogateJob, from: number, to: number): Reco
   for (const name of job.indicators) out[name] = new Float64Array(to - from);
   for (let i = from; i < to; i++) {
     const series = makeSurrogate(job, i);
-    const ind = rollingIndicators(series, job.w, job.indicators, { rawMean: job.rawMean ?? undefined, dt: job.dt, skip: job.skip });
+    const ind = rollingIndicators(series, job.w, job.indicators, { rawMean: job.rawMean ?? undefined, dt: job.dt, skip: job.skip, stride: job.stride });
     const trends = indicatorTrends(ind);
     for (const name of job.indicators) out[name][i - from] = trends[name]!.tau;
   }

@@ -48,6 +48,40 @@ describe('analyze command line', () => {
     expect(r.stderr).toBe('');
   });
 
+  it('--indicators takes the further indicators; companions and the evaluation stride are printed', () => {
+    const r = analyze([good, '--indicators', 'restoring-rate,spectral-ratio,ch,dfa,bimodality', '--shift-detection', 'off']);
+    expect(r.code, r.stderr).toBe(0);
+    const out = JSON.parse(r.stdout);
+    expect(Object.keys(out.indicators)).toEqual(['restoring-rate', 'spectral-ratio', 'ch', 'dfa', 'bimodality']);
+    // 61 windows of 60 points: all fit under the default maxEvaluatedWindows
+    expect(out.evaluatedEvery).toEqual({ 'restoring-rate': 1, 'spectral-ratio': 1, ch: 1, dfa: 1, bimodality: 1 });
+    expect(typeof out.companions['restoring-rate'].standardError[119]).toBe('number');
+    expect(out.companions.ch.p[119]).toBeGreaterThanOrEqual(0);
+    expect(out.companions.ch.p[58]).toBeNull();
+    for (const name of Object.keys(out.indicators)) expect(out.kendall[name].direction).toBe('rising');
+    const summary = JSON.parse(analyze([good, '--summary', '--indicators', 'ch', '--shift-detection', 'off']).stdout);
+    expect(summary.companions).toBeUndefined();
+    expect(summary.latest.ch.companions.p).toEqual(expect.any(Number));
+    expect(analyze([good, '--indicators', 'variance,spectral']).code).toBe(2);
+  });
+
+  it('--multivariate --value a,b,c gives the site-level indicators of several columns; one column is refused', () => {
+    const file = csv('site.csv', `t,a,b,c\n${rows(200, (i) => `${i},${Math.sin(i / 7) + ((i * 37) % 11) / 11},${Math.sin(i / 7) + ((i * 17) % 13) / 13},${((i * 29) % 7) / 7}`)}\n`);
+    const r = analyze([file, '--multivariate', '--value', 'a,b,c', '--surrogates', '9']);
+    expect(r.code, r.stderr).toBe(0);
+    const out = JSON.parse(r.stdout);
+    expect(out.series).toEqual(['a', 'b', 'c']);
+    expect(out.windowPoints).toBe(100);
+    expect(Object.keys(out.indicators)).toEqual(['pc1-variance', 'pc1-share', 'maf-ac1']);
+    expect(out.indicators['pc1-share'][199]).toBeGreaterThan(1 / 3);
+    expect(out.kendall['maf-ac1'].direction).toBe('rising');
+    expect(out.significance['pc1-variance']).toMatchObject({ count: 9, method: 'phase' });
+    expect(JSON.parse(analyze([file, '--multivariate', '--value', 'a,b', '--summary']).stdout).indicators).toBeUndefined();
+    const one = analyze([file, '--multivariate', '--value', 'a']);
+    expect(one.code).toBe(2);
+    expect(one.stderr).toMatch(/two or more columns/);
+  });
+
   it('--summary leaves out the per-point arrays; numeric times stay numbers', () => {
     const file = csv('numeric.csv', `t,x\n${rows(50, (i) => `${1990 + i},${Math.cos(i) + i / 10}`)}\n`);
     const r = analyze([file, '--summary', '--detrend', 'linear', '--shift-detection', 'off']);

@@ -3,7 +3,8 @@ import { runAnalysis } from '@/lib/engine/analyze';
 import { AnalysisInputError } from '@/lib/engine/errors';
 import { prepareSeries } from '@/lib/engine/prepare';
 import { sensitivityGrid, DEFAULT_SENSITIVITY_BANDWIDTHS, DEFAULT_SENSITIVITY_WINDOWS } from '@/lib/engine/sensitivity';
-import { analysisSettingsSchema, INDICATOR_NAMES } from '@/lib/engine/settings';
+import { DEFAULT_INDICATORS } from '@/lib/engine/indicators';
+import { analysisSettingsSchema, MAX_EVALUATED_WINDOWS } from '@/lib/engine/settings';
 
 const DAY = 86_400_000;
 const base = { maxGap: 3, gapPolicy: 'error' as const, span: null, logTransform: false, seasonal: 'none' as const, samplingChange: 'start-after' as const };
@@ -11,8 +12,8 @@ const base = { maxGap: 3, gapPolicy: 'error' as const, span: null, logTransform:
 describe('settings', () => {
   it('parse({}) gives the engine defaults (the command line contract)', () => {
     expect(analysisSettingsSchema.parse({})).toEqual({
-      detrend: 'local-linear', bandwidth: 0.1, movingAverageWidth: 11, window: 0.5, indicators: [...INDICATOR_NAMES],
-      surrogates: 0, surrogateMethod: 'ar1', seed: 1, seasonal: 'none', logTransform: false, maxGap: 3,
+      detrend: 'local-linear', bandwidth: 0.1, movingAverageWidth: 11, window: 0.5, indicators: [...DEFAULT_INDICATORS],
+      maxEvaluatedWindows: MAX_EVALUATED_WINDOWS, surrogates: 0, surrogateMethod: 'ar1', seed: 1, seasonal: 'none', logTransform: false, maxGap: 3,
       gapPolicy: 'error', span: null, minCoverage: 0.8, samplingChange: 'start-after', shiftDetection: 'on', sensitivity: false,
     });
   });
