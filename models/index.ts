@@ -23,6 +23,8 @@ import { BacktestJob } from './BacktestJob';
 import { AppState } from './AppState';
 import { ApiToken } from './ApiToken';
 import { UserPreference } from './UserPreference';
+import { WebhookEndpoint } from './WebhookEndpoint';
+import { WebhookAttempt, WebhookDelivery } from './WebhookDelivery';
 
 const initialised = new WeakSet<Sequelize>();
 
@@ -63,12 +65,15 @@ function associate(): void {
   BacktestJob.belongsTo(AlertRule, { foreignKey: 'ruleId', as: 'rule' });
   BacktestJob.belongsTo(Series, { foreignKey: 'seriesId', as: 'series' });
   UserPreference.belongsTo(User, { foreignKey: 'userId', as: 'user' });
+  WebhookEndpoint.hasMany(WebhookDelivery, { foreignKey: 'endpointId', as: 'deliveries' });
+  WebhookDelivery.belongsTo(WebhookEndpoint, { foreignKey: 'endpointId', as: 'endpoint' });
+  WebhookDelivery.hasMany(WebhookAttempt, { foreignKey: 'deliveryId', as: 'attemptLog' });
 }
 
 const MODELS = [
   User, Series, Observation, IngestRun, AnalysisSnapshot, AlertRule, RuleEvaluation, Alert, AlertEvent, Note,
   NoteRevision, IngestToken, MailMessage, AuditEntry, Watch, Lease, SettingsChange, SignInThrottle, UserToken,
-  Mark, BacktestJob, AppState, ApiToken, UserPreference,
+  Mark, BacktestJob, AppState, ApiToken, UserPreference, WebhookEndpoint, WebhookDelivery, WebhookAttempt,
 ];
 
 /** Binds the models to this process's one Sequelize instance (idempotent) and returns it once it is ready. */
@@ -85,7 +90,7 @@ export async function db(): Promise<Sequelize> {
 export {
   User, Series, Observation, IngestRun, AnalysisSnapshot, AlertRule, RuleEvaluation, Alert, AlertEvent, Note,
   NoteRevision, IngestToken, MailMessage, AuditEntry, Watch, Lease, SettingsChange, SignInThrottle, UserToken,
-  Mark, BacktestJob, AppState, ApiToken, UserPreference,
+  Mark, BacktestJob, AppState, ApiToken, UserPreference, WebhookEndpoint, WebhookDelivery, WebhookAttempt,
 };
 /**
  * `writeTransaction` of models/db.ts with the models bound first: a web worker's first request may be a write
