@@ -129,16 +129,24 @@ export async function deliverDueWebhooks(now = Date.now(), timeoutMs = WEBHOOK_T
     (await WebhookEndpoint.findAll({ where: { id: { [Op.in]: [...new Set(rows.map((r) => r.endpoint_id))] } }, attributes: ['id', 'url', 'secret'] })).map((e) => [e.id, e]),
   );
   const sequelize = await db();
+  // Requests go out together; their outcomes are written one at a time. Concurrent write transactions in one
+  // process would each hold a libuv thread while waiting for SQLite's lock, and enough of them starve the holder.
+  let settled: Promise<unknown> = Promise.resolve();
+  const settleInTurn = (write: () => Promise<void>) => {
+    const turn = settled.then(write);
+    settled = turn.catch(() => undefined);
+    return turn;
+  };
   await Promise.all(
     rows.map(async (row) => {
       const endpoint = endpoints.get(row.endpoint_id);
-      // Deleted between the claim and here: its deliveries went with it (ON DELETE CASCADE).
+      // Removed between the claim and here: its deliveries went with it.
       if (!endpoint) return;
       const outcome = await post(endpoint.url, endpoint.secret, row, timeoutMs);
       const attempts = row.attempts + 1;
       const delivered = outcome.error === null;
       const giveUp = !delivered && attempts >= WEBHOOK_RETRY_POLICY.maxAttempts;
-      await writeTransaction(async (transaction) => {
+      await settleInTurn(() => writeTransaction(async (transaction) => {
         await WebhookAttempt.create({ deliveryId: row.id, attemptedAt: new Date(now), durationMs: outcome.durationMs, statusCode: outcome.statusCode, error: outcome.error }, { transaction });
         await sequelize.query(
           `UPDATE webhook_deliveries SET status = :status, attempts = :attempts, last_status = :statusCode, last_error = :error,
@@ -159,7 +167,7 @@ export async function deliverDueWebhooks(now = Date.now(), timeoutMs = WEBHOOK_T
             transaction,
           },
         );
-      });
+      }));
       if (delivered) report.delivered++;
       else if (giveUp) report.failed++;
       else report.retrying++;
