@@ -99,6 +99,13 @@ afterAll(async () => {
   await receiver.stop();
 });
 
+/** Queues an intake rejection of run `runId` straight through the outbox; answers the payload and how many were queued. */
+async function queueRejection(runId: number) {
+  const payload = rejectedRunPayload({ id: runId, source: 'push', fileName: null, rowsRead: 1, rejected: 1, message: 'bad row' }, series, new Date());
+  const queued = await writeTransaction((t) => enqueueWebhookEvent('intake.rejected', payload, t));
+  return { payload, queued };
+}
+
 const deliveriesOf = async (status?: string) => WebhookDelivery.count({ where: { endpointId, ...(status ? { status } : {}) } });
 
 describe('each event reaches the receiver once, signed', () => {
@@ -204,8 +211,7 @@ describe('a receiver that was down gets what it missed, once', () => {
 
   it('a refusing receiver costs the attempt budget, then the delivery is failed until an admin retries it', async () => {
     receiver.status = 503;
-    const payload = rejectedRunPayload({ id: 500_001, source: 'push', fileName: null, rowsRead: 1, rejected: 1, message: 'bad' }, series, new Date());
-    await writeTransaction((t) => enqueueWebhookEvent('intake.rejected', payload, t));
+    const { payload } = await queueRejection(500_001);
     let now = Date.now();
     for (let attempt = 1; attempt <= WEBHOOK_RETRY_POLICY.maxAttempts; attempt++) {
       const report = await deliverDueWebhooks(now);
@@ -229,8 +235,7 @@ describe('a receiver that was down gets what it missed, once', () => {
 
   it('a receiver that never answers costs one timed-out attempt, not the job', async () => {
     receiver.hang = true;
-    const payload = rejectedRunPayload({ id: 500_002, source: 'push', fileName: null, rowsRead: 1, rejected: 1, message: 'slow' }, series, new Date());
-    await writeTransaction((t) => enqueueWebhookEvent('intake.rejected', payload, t));
+    const { payload } = await queueRejection(500_002);
     const started = Date.now();
     expect(await deliverDueWebhooks(Date.now(), 300)).toMatchObject({ claimed: 1, retrying: 1 });
     expect(Date.now() - started).toBeLessThan(5_000);
@@ -247,15 +252,13 @@ describe('a receiver that was down gets what it missed, once', () => {
 describe('claims, pauses', () => {
   it('two passes at once send each delivery once; an abandoned claim is taken over after it expires', async () => {
     for (let i = 0; i < 5; i++) {
-      const payload = rejectedRunPayload({ id: 600_000 + i, source: 'push', fileName: null, rowsRead: 1, rejected: 1, message: 'x' }, series, new Date());
-      await writeTransaction((t) => enqueueWebhookEvent('intake.rejected', payload, t));
+      await queueRejection(600_000 + i);
     }
     const [a, b] = await Promise.all([deliverDueWebhooks(), deliverDueWebhooks()]);
     expect(a.delivered + b.delivered).toBe(5);
     expect(receiver.take()).toHaveLength(5);
 
-    const payload = rejectedRunPayload({ id: 600_100, source: 'push', fileName: null, rowsRead: 1, rejected: 1, message: 'x' }, series, new Date());
-    await writeTransaction((t) => enqueueWebhookEvent('intake.rejected', payload, t));
+    const { payload } = await queueRejection(600_100);
     // A sender that claimed it and died: the claim holds until its expiry.
     await WebhookDelivery.update({ status: 'sending', claimedBy: 'dead-process', nextAttemptAt: new Date(Date.now() + 60_000) }, { where: { idempotencyKey: payload.id } });
     expect(await deliverDueWebhooks()).toMatchObject({ claimed: 0 });
@@ -264,11 +267,9 @@ describe('claims, pauses', () => {
   });
 
   it('a paused endpoint gets no new events, and what was queued waits until it is resumed', async () => {
-    const queued = rejectedRunPayload({ id: 700_001, source: 'push', fileName: null, rowsRead: 1, rejected: 1, message: 'x' }, series, new Date());
-    await writeTransaction((t) => enqueueWebhookEvent('intake.rejected', queued, t));
+    const { payload: queued } = await queueRejection(700_001);
     await updateWebhook(admin, endpointId, { active: false });
-    const during = rejectedRunPayload({ id: 700_002, source: 'push', fileName: null, rowsRead: 1, rejected: 1, message: 'x' }, series, new Date());
-    expect(await writeTransaction((t) => enqueueWebhookEvent('intake.rejected', during, t))).toBe(0);
+    expect((await queueRejection(700_002)).queued).toBe(0);
     expect(await deliverDueWebhooks()).toMatchObject({ claimed: 0 });
     await updateWebhook(admin, endpointId, { active: true });
     expect(await deliverDueWebhooks()).toMatchObject({ claimed: 1, delivered: 1 });
@@ -280,8 +281,7 @@ describe('claims, pauses', () => {
     await second.start();
     try {
       const { id } = await registerWebhook(admin, { url: second.url, events: ['alert.decided'], description: '' });
-      const payload = rejectedRunPayload({ id: 800_001, source: 'push', fileName: null, rowsRead: 1, rejected: 1, message: 'x' }, series, new Date());
-      expect(await writeTransaction((t) => enqueueWebhookEvent('intake.rejected', payload, t))).toBe(1);
+      expect((await queueRejection(800_001)).queued).toBe(1);
       await deliverDueWebhooks();
       expect(second.take()).toEqual([]);
       expect(await WebhookDelivery.count({ where: { endpointId: id } })).toBe(0);
