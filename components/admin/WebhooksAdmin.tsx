@@ -16,7 +16,8 @@ const KEY = ['webhooks'];
 /** Register endpoints (the secret is shown once), pause, resume or remove them, and open their deliveries. */
 export function WebhooksAdmin() {
   const client = useQueryClient();
-  const endpoints = useQuery({ queryKey: KEY, queryFn: () => api<{ items: WebhookEndpointRecord[] }>('/api/webhooks').then((r) => r.items) });
+  // Counts change as the delivery job works, so the list refreshes itself like the deliveries under it.
+  const endpoints = useQuery({ queryKey: KEY, queryFn: () => api<{ items: WebhookEndpointRecord[] }>('/api/webhooks').then((r) => r.items), refetchInterval: 15_000 });
   const [open, setOpen] = useState<number | null>(null);
   const refresh = () => client.invalidateQueries({ queryKey: KEY });
   const toggle = useMutation({ mutationFn: (e: WebhookEndpointRecord) => api(`/api/webhooks/${e.id}`, { method: 'PATCH', body: { active: !e.active } }), onSuccess: refresh });
