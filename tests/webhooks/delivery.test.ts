@@ -16,7 +16,7 @@ import { WEBHOOK_EVENTS } from '@/lib/webhooks/events';
 import { enqueueWebhookEvent } from '@/lib/webhooks/outbox';
 import { rejectedRunPayload } from '@/lib/webhooks/payloads';
 import { WEBHOOK_RETRY_POLICY, deliverDueWebhooks } from '@/lib/webhooks/sender';
-import { fetchDeliveries, registerWebhook, retryDelivery, updateWebhook } from '@/lib/webhooks/admin';
+import { fetchDeliveries, listWebhooks, registerWebhook, retryDelivery, updateWebhook } from '@/lib/webhooks/admin';
 import type { Actor } from '@/lib/auth/roles';
 import { makeRule, makeSeries, makeSnapshot, makeUser } from '../alerts/helpers';
 
@@ -141,6 +141,10 @@ describe('each event reaches the receiver once, signed', () => {
       if (bodies[i].event.startsWith('alert.')) expect(bodies[i].caution).toBe(ANALYSIS_CAUTION);
     }
     expect(new Set(bodies.map((b) => b.id)).size).toBe(7);
+    const [listed] = await listWebhooks();
+    expect(listed).toMatchObject({ id: endpointId, counts: { delivered: 7 }, active: true });
+    expect(Date.now() - Date.parse(listed.lastDeliveredAt!)).toBeLessThan(60_000);
+    expect(JSON.stringify(listed)).not.toContain(secret);
     const byEvent = (event: string) => bodies.filter((b) => b.event === event);
     expect(byEvent('alert.opened').find((b) => b.alert.id === opened)).toMatchObject({ series: { slug: 'harbour-oxygen', name: 'Series harbour-oxygen' }, alert: { kind: 'slowing-down', state: 'new', tau: 0.6 }, url: expect.stringMatching(new RegExp(`/alerts/${opened}$`)) });
     expect(byEvent('alert.abrupt-shift')[0]).toMatchObject({ alert: { id: shift, kind: 'abrupt-shift', shift: { time: '2020-09-01T00:00:00.000Z', size: -1.5 } } });
