@@ -14,6 +14,7 @@ import * as analysisProvenance from './0012-analysis-provenance';
 import * as personalApiTokens from './0013-personal-api-tokens';
 import * as userPreferences from './0014-user-preferences';
 import * as sites from './0015-sites';
+import * as webhooks from './0017-webhooks';
 
 /**
  * The ordered list of schema changes. Listed explicitly (not globbed) so the same list works in the Next.js server
@@ -33,6 +34,7 @@ const MIGRATIONS = [
   { name: '0013-personal-api-tokens', ...personalApiTokens },
   { name: '0014-user-preferences', ...userPreferences },
   { name: '0015-sites', ...sites },
+  { name: '0017-webhooks', ...webhooks },
 ];
 
 async function migrator(): Promise<Umzug<QueryInterface>> {

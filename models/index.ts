@@ -24,6 +24,8 @@ import { BacktestJob } from './BacktestJob';
 import { AppState } from './AppState';
 import { ApiToken } from './ApiToken';
 import { UserPreference } from './UserPreference';
+import { WebhookEndpoint } from './WebhookEndpoint';
+import { WebhookAttempt, WebhookDelivery } from './WebhookDelivery';
 
 const initialised = new WeakSet<Sequelize>();
 
@@ -66,12 +68,15 @@ function associate(): void {
   BacktestJob.belongsTo(AlertRule, { foreignKey: 'ruleId', as: 'rule' });
   BacktestJob.belongsTo(Series, { foreignKey: 'seriesId', as: 'series' });
   UserPreference.belongsTo(User, { foreignKey: 'userId', as: 'user' });
+  WebhookEndpoint.hasMany(WebhookDelivery, { foreignKey: 'endpointId', as: 'deliveries' });
+  WebhookDelivery.belongsTo(WebhookEndpoint, { foreignKey: 'endpointId', as: 'endpoint' });
+  WebhookDelivery.hasMany(WebhookAttempt, { foreignKey: 'deliveryId', as: 'attemptLog' });
 }
 
 const MODELS = [
   User, Series, Observation, IngestRun, AnalysisSnapshot, AlertRule, RuleEvaluation, Alert, AlertEvent, Note,
   NoteRevision, IngestToken, MailMessage, AuditEntry, Watch, Lease, SettingsChange, SignInThrottle, UserToken,
-  Mark, BacktestJob, AppState, ApiToken, UserPreference, Site,
+  Mark, BacktestJob, AppState, ApiToken, UserPreference, Site, WebhookEndpoint, WebhookDelivery, WebhookAttempt,
 ];
 
 /** Binds the models to this process's one Sequelize instance (idempotent) and returns it once it is ready. */
@@ -88,7 +93,7 @@ export async function db(): Promise<Sequelize> {
 export {
   User, Series, Observation, IngestRun, AnalysisSnapshot, AlertRule, RuleEvaluation, Alert, AlertEvent, Note,
   NoteRevision, IngestToken, MailMessage, AuditEntry, Watch, Lease, SettingsChange, SignInThrottle, UserToken,
-  Mark, BacktestJob, AppState, ApiToken, UserPreference, Site,
+  Mark, BacktestJob, AppState, ApiToken, UserPreference, Site, WebhookEndpoint, WebhookDelivery, WebhookAttempt,
 };
 /**
  * `writeTransaction` of models/db.ts with the models bound first: a web worker's first request may be a write

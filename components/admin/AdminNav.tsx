@@ -7,6 +7,7 @@ const LINKS = [
   { href: '/admin', label: 'Users' },
   { href: '/admin/tokens', label: 'Ingest tokens' },
   { href: '/admin/mail', label: 'Outbox and mailbox' },
+  { href: '/admin/webhooks', label: 'Webhooks' },
   { href: '/admin/audit', label: 'Audit log' },
 ];
 

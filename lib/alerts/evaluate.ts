@@ -9,6 +9,8 @@ import { newAlertMail } from '@/lib/mail/templates';
 import { watchersOf } from '@/lib/mail/watches';
 import { evidenceFrom, indicatorFacts, snapshotTaus, type StoredSummary } from './evidence';
 import { seriesBreaks } from '@/lib/analysis/snapshot';
+import { enqueueWebhookEvent } from '@/lib/webhooks/outbox';
+import { alertWebhookPayload } from '@/lib/webhooks/payloads';
 
 /** The thresholds of a rule that judgement reads (an AlertRule or its plain fields). */
 export type RuleThresholds = Pick<AlertRule, 'indicator' | 'direction' | 'minTau' | 'maxSurrogateP' | 'levelThreshold' | 'levelDirection' | 'fdrLevel'>;
@@ -169,7 +171,9 @@ async function openAlert(rule: AlertRule, series: Series, snapshot: AnalysisSnap
   );
   await AlertEvent.create({ alertId: alert.id, actorId: null, action: 'open', fromState: null, toState: 'new', reason: null, detail: `Rule #${rule.id} met on snapshot #${snapshot.id}.` }, { transaction });
   await recordAudit({ actorId: null, action: 'alert.open', entity: 'alert', entityId: alert.id, details: { seriesId: series.id, ruleId: rule.id, snapshotId: snapshot.id, tau: judgement.tau, direction: rule.direction } }, transaction);
-  await mailWatchers(alert, series, newAlertMail(evidenceFrom(alert, series, rule, snapshot, calibration, taus)), 'alert-new', transaction);
+  const evidence = evidenceFrom(alert, series, rule, snapshot, calibration, taus);
+  await mailWatchers(alert, series, newAlertMail(evidence), 'alert-new', transaction);
+  await enqueueWebhookEvent('alert.opened', alertWebhookPayload('alert.opened', evidence, null, alert.createdAt), transaction);
   return alert;
 }
 
@@ -195,7 +199,7 @@ export function explainedByMark(shiftTime: number, marks: number[], summary: Pic
  * Opens an abrupt-shift alert when the snapshot's detected shifts include one newer than any shift already alerted
  * for the series (by more than SAME_SHIFT_INTERVALS) and not explained by a mark (explainedByMark), so re-analysis
  * never reopens the same shift; the newest such shift is alerted, earlier new ones are named in its timeline. The database holds one alert per series and shift
- * instant. Mailed to immediate watchers in the same transaction. Null when nothing new.
+ * instant. Mailed to immediate watchers and queued for webhooks in the same transaction. Null when nothing new.
  */
 async function openShiftAlert(series: Series, snapshot: AnalysisSnapshot): Promise<number | null> {
   const summary = snapshot.summary as StoredSummary;
@@ -229,7 +233,9 @@ async function openShiftAlert(series: Series, snapshot: AnalysisSnapshot): Promi
     const earlier = fresh.length > 1 ? ` Earlier shifts first seen in the same analysis: ${fresh.slice(0, -1).map((s) => new Date(s.time).toISOString()).join(', ')}.` : '';
     await AlertEvent.create({ alertId: alert.id, actorId: null, action: 'open', fromState: null, toState: 'new', reason: null, detail: `Abrupt shift at ${new Date(shift.time).toISOString()} detected on snapshot #${snapshot.id}.${earlier}` }, { transaction });
     await recordAudit({ actorId: null, action: 'alert.open', entity: 'alert', entityId: alert.id, details: { seriesId: series.id, kind: 'abrupt-shift', snapshotId: snapshot.id, shift } }, transaction);
-    await mailWatchers(alert, series, newAlertMail(evidenceFrom(alert, series, null, snapshot, null)), 'alert-shift', transaction);
+    const evidence = evidenceFrom(alert, series, null, snapshot, null);
+    await mailWatchers(alert, series, newAlertMail(evidence), 'alert-shift', transaction);
+    await enqueueWebhookEvent('alert.abrupt-shift', alertWebhookPayload('alert.abrupt-shift', evidence, null, alert.createdAt), transaction);
     return alert.id;
   });
 }

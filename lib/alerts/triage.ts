@@ -9,6 +9,8 @@ import { escalationMail, signOffMail } from '@/lib/mail/templates';
 import { watchersOf } from '@/lib/mail/watches';
 import { triageActionSchema, type DismissReason, type TriageActionInput, type TriageAction } from '@/lib/schemas/alert';
 import { alertEvidence } from './evidence';
+import { enqueueWebhookEvent } from '@/lib/webhooks/outbox';
+import { alertWebhookPayload } from '@/lib/webhooks/payloads';
 
 interface TriagePolicyEntry {
   /** The states the action applies to, each with the lowest role allowed to take it from there. */
@@ -55,8 +57,9 @@ async function activeLeads(transaction: Transaction): Promise<User[]> {
 /**
  * Applies one triage action in one IMMEDIATE transaction: checks the triage policy for the alert's current
  * state and the actor's role, then writes with a compare-and-set on id + version + state. Of two concurrent
- * actions exactly one wins; the other finds the alert changed and gets 409. The timeline event, the audit entry
- * and any mail (escalation to leads, sign-off to watchers) are written in the same transaction.
+ * actions exactly one wins; the other finds the alert changed and gets 409. The timeline event, the audit entry,
+ * any mail (escalation to leads, sign-off to watchers) and webhook deliveries (escalated, decided) are written in
+ * the same transaction.
  */
 export async function applyTriageAction(alertId: number, input: TriageActionInput, actor: Actor): Promise<TriageResult> {
   const command = triageActionSchema.parse(input);
@@ -115,8 +118,13 @@ export async function applyTriageAction(alertId: number, input: TriageActionInpu
       { actorId: actor.id, action: `alert.${command.action}`, entity: 'alert', entityId: alert.id, details: { from: alert.state, to, reason: command.reason ?? null, assigneeId } },
       transaction,
     );
-    if (command.action === 'escalate' || command.action === 'confirm') {
-      const evidence = await alertEvidence(alert, transaction);
+    const webhookEvent = command.action === 'escalate' ? 'alert.escalated' : command.action === 'confirm' || command.action === 'dismiss' ? 'alert.decided' : null;
+    const evidence = webhookEvent ? await alertEvidence(alert, transaction) : null;
+    if (webhookEvent && evidence) {
+      const change = { eventId: event.id, by: actor.name, state: to, note: command.note || null, reason: command.reason ?? null };
+      await enqueueWebhookEvent(webhookEvent, alertWebhookPayload(webhookEvent, evidence, change, new Date(now)), transaction);
+    }
+    if (evidence && (command.action === 'escalate' || command.action === 'confirm')) {
       const note = command.note || null;
       const [mail, recipients, kind] =
         command.action === 'escalate'

@@ -9,6 +9,8 @@ import { CsvFileError, readCsv, type CsvInput, type CsvLayout } from './csv';
 import { collectCsvRows, collectPushedRows, type CollectedRows, type IntakeMapping, type RejectedRow } from './rows';
 import { classifyAgainstStored, conflictRejections, connectionOf, ROW_CONFLICT, ROW_DUPLICATE, ROW_NEW, writeRows } from './store';
 import { guessTimeFormat, type TimeFormat } from './time-formats';
+import { enqueueWebhookEvent } from '@/lib/webhooks/outbox';
+import { rejectedRunPayload } from '@/lib/webhooks/payloads';
 
 /** A run's lease lives this long without renewal; a run whose holder died is marked failed once it has lapsed. */
 const RUN_LEASE_MS = 30_000;
@@ -117,7 +119,18 @@ async function ingestUnderLease(request: IngestRequest, key: string, started: nu
   const finish = async (run: IngestRun, fields: Partial<IngestOutcome> & { status: IngestStatus; message: string; report: Record<string, unknown> }, transaction?: Transaction): Promise<IngestOutcome> => {
     const durationMs = Date.now() - started;
     const counts = { rowsRead: fields.rowsRead ?? 0, accepted: fields.accepted ?? 0, duplicates: fields.duplicates ?? 0, replaced: fields.replaced ?? 0, rejected: fields.rejected ?? 0 };
-    await run.update({ ...counts, status: fields.status, message: fields.message, report: { ...run.report, ...fields.report }, durationMs, finishedAt: new Date() }, { transaction });
+    const record = async (t?: Transaction) => run.update({ ...counts, status: fields.status, message: fields.message, report: { ...run.report, ...fields.report }, durationMs, finishedAt: new Date() }, { transaction: t });
+    if (fields.status === 'rejected') {
+      // A rejection reaches webhook receivers: the delivery is written with the run's outcome, never one without the other.
+      const rejected = { id: run.id, source: run.source, fileName: run.fileName, rowsRead: counts.rowsRead, rejected: counts.rejected, message: fields.message };
+      const write = async (t: Transaction) => {
+        await record(t);
+        await enqueueWebhookEvent('intake.rejected', rejectedRunPayload(rejected, series, new Date()), t);
+      };
+      await (transaction ? write(transaction) : writeTransaction(write));
+    } else {
+      await record(transaction);
+    }
     return {
       runId: run.id, status: fields.status, alreadyApplied: fields.alreadyApplied ?? false, previousRunId: fields.previousRunId ?? null,
       ...counts, rejectedRows: fields.rejectedRows ?? [], notes: fields.notes ?? [], message: fields.message, durationMs,

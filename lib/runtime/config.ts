@@ -74,6 +74,8 @@ export const configSchema = z.object({
   MAIL_CRON: cron('*/15 * * * * *'),
   DIGEST_CRON: cron('0 7 * * *'),
   BACKTEST_CRON: cron('*/5 * * * * *'),
+  /** How often the webhook outbox is sent (lib/webhooks/sender.ts); a delivery's retries follow their own backoff. */
+  WEBHOOK_CRON: cron('*/10 * * * * *'),
   /**
    * How often the live demo's stations deliver (lib/demo/feed.ts); only when the demo is seeded and SEED_DEMO is not 0.
    * Every 2 minutes at half past the minute, between the ticks of the intake and analysis jobs, so a delivery is taken
@@ -139,7 +141,7 @@ export function publicBaseUrl(): string {
   return (config().NEXTAUTH_URL ?? `http://localhost:${appPort()}`).replace(/\/$/, '');
 }
 
-export function cronSetting(name: 'INGEST_CRON' | 'ANALYSIS_CRON' | 'MAIL_CRON' | 'DIGEST_CRON' | 'BACKTEST_CRON' | 'DEMO_FEED_CRON'): string {
+export function cronSetting(name: 'INGEST_CRON' | 'ANALYSIS_CRON' | 'MAIL_CRON' | 'DIGEST_CRON' | 'BACKTEST_CRON' | 'DEMO_FEED_CRON' | 'WEBHOOK_CRON'): string {
   return config()[name];
 }
 

@@ -92,6 +92,12 @@ const EXPECTED: Record<string, Role | 'public' | 'token'> = {
   'GET /api/admin/outbox': 'admin',
   'POST /api/admin/outbox/[id]/retry': 'admin',
   'GET /api/admin/mailbox': 'admin',
+  'GET /api/webhooks': 'admin',
+  'POST /api/webhooks': 'admin',
+  'PATCH /api/webhooks/[id]': 'admin',
+  'DELETE /api/webhooks/[id]': 'admin',
+  'GET /api/webhooks/[id]/deliveries': 'admin',
+  'POST /api/webhooks/[id]/deliveries/[deliveryId]/retry': 'admin',
 };
 
 /** Server actions ('use server' exports), keyed `file#export`, with the lowest role that may call them. */
