@@ -16,6 +16,11 @@ export interface SnapshotCurves {
   trend: (number | null)[];
   residual: (number | null)[];
   indicators: Record<string, (number | null)[]>;
+  /**
+   * Indicators computed at every k-th window only (costly ones, `evaluatedEvery` k > 1): their kept points carry
+   * the latest value computed in the thinned stretch each stands for. Absent on snapshots stored before.
+   */
+  evaluatedEvery?: Record<string, number>;
   /** Surrogate taus per indicator, for the null-distribution histogram. */
   surrogateTaus: Record<string, number[]>;
   sensitivity: AnalysisResult['sensitivity'];
@@ -37,12 +42,43 @@ export function thinnedIndices(n: number, max = MAX_CURVE_POINTS): { stride: num
   return { stride, indices };
 }
 
+/**
+ * One value per kept index for an indicator computed at every k-th window only: the latest non-null value after
+ * the previous kept index and at or before this one, so a chart thinned more coarsely than k still shows every
+ * evaluation its stretch holds, and one thinned more finely shows gaps, not invented values. O(n).
+ */
+function latestInEachStretch(values: ArrayLike<number | null | undefined>, indices: number[]): (number | null)[] {
+  let from = 0;
+  return indices.map((index) => {
+    let found: number | null = null;
+    for (let i = index; i >= from; i--) {
+      const v = values[i];
+      if (v !== null && v !== undefined && Number.isFinite(v)) {
+        found = v;
+        break;
+      }
+    }
+    from = index + 1;
+    return found;
+  });
+}
+
+/** The kept values of one indicator: at the kept indices, or, for a sparse one, the latest in each stretch. */
+export function thinIndicator(values: ArrayLike<number | null | undefined>, indices: number[], evaluatedEvery = 1): (number | null)[] {
+  return evaluatedEvery > 1 ? latestInEachStretch(values, indices) : indices.map((i) => values[i] ?? null);
+}
+
 /** The per-point arrays of a result, thinned for charts. O(n). */
 export function curvesOf(result: AnalysisResult, max = MAX_CURVE_POINTS): SnapshotCurves {
   const { stride, indices } = thinnedIndices(result.series.time.length, max);
   const pick = (source: ArrayLike<number>) => indices.map((i) => finite(source[i]));
   const indicators: SnapshotCurves['indicators'] = {};
-  for (const [name, values] of Object.entries(result.indicators)) indicators[name] = indices.map((i) => values![i] ?? null);
+  const evaluatedEvery: Record<string, number> = {};
+  for (const [name, values] of Object.entries(result.indicators)) {
+    const every = result.evaluatedEvery[name as keyof typeof result.evaluatedEvery] ?? 1;
+    if (every > 1) evaluatedEvery[name] = every;
+    indicators[name] = thinIndicator(values!, indices, every);
+  }
   const surrogateTaus: SnapshotCurves['surrogateTaus'] = {};
   for (const [name, sig] of Object.entries(result.significance)) surrogateTaus[name] = sig!.taus;
   return {
@@ -52,6 +88,7 @@ export function curvesOf(result: AnalysisResult, max = MAX_CURVE_POINTS): Snapsh
     trend: pick(result.series.trend),
     residual: pick(result.series.residual),
     indicators,
+    ...(Object.keys(evaluatedEvery).length ? { evaluatedEvery } : {}),
     surrogateTaus,
     sensitivity: result.sensitivity,
   };

@@ -2,7 +2,7 @@ import type { AnalysisResult, AnalysisSummary } from '@/lib/engine/analyze';
 import type { TrendDirection } from '@/lib/engine/direction';
 import type { SensitivityResult } from '@/lib/engine/sensitivity';
 import { analysisSettingsSchema, type AnalysisSettings, type IndicatorName } from '@/lib/engine/settings';
-import { curvesOf, MAX_CURVE_POINTS, thinnedIndices, type SnapshotCurves } from './curves';
+import { curvesOf, MAX_CURVE_POINTS, thinIndicator, thinnedIndices, type SnapshotCurves } from './curves';
 
 /** The per-point curves of an analysis as stored on a snapshot and sent to charts (every `stride`-th point). */
 export type CurveSet = SnapshotCurves;
@@ -71,7 +71,7 @@ export function thinCurves(curves: CurveSet, maxPoints = MAX_CURVE_POINTS): Curv
   if (stride === 1) return curves;
   const pick = <T,>(a: T[]) => indices.map((i) => a[i]);
   const indicators: CurveSet['indicators'] = {};
-  for (const [name, values] of Object.entries(curves.indicators)) indicators[name] = pick(values);
+  for (const [name, values] of Object.entries(curves.indicators)) indicators[name] = thinIndicator(values, indices, curves.evaluatedEvery?.[name]);
   return {
     ...curves,
     stride: curves.stride * stride,
