@@ -14,6 +14,8 @@ export interface LineSpec {
   color: ChartColour;
   dashed?: boolean;
   width?: number;
+  /** an indicator computed at every k-th window only: its evaluations are joined and marked, gaps are not breaks */
+  sparse?: boolean;
 }
 
 export interface TimeChartProps {
@@ -157,7 +159,7 @@ export function TimeChart({ rows, lines, timeZone, unit = '', height = 220, wind
           ))}
           {lines.map((line) => (
             <Line key={line.key} dataKey={line.key} name={line.label} stroke={colours[line.color]} strokeWidth={line.width ?? 1.5}
-              strokeDasharray={line.dashed ? '6 3' : undefined} dot={false} isAnimationActive={false} connectNulls={false} />
+              strokeDasharray={line.dashed ? '6 3' : undefined} dot={line.sparse ? { r: 2 } : false} isAnimationActive={false} connectNulls={line.sparse ?? false} />
           ))}
         </LineChart>
       </ResponsiveContainer>

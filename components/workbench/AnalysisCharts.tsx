@@ -94,7 +94,7 @@ export function AnalysisCharts({ view, series, marks = [], idPrefix = '', compac
             <ChartFrame title={`${indicatorLabel(key, 'title')} in a rolling window`} fileName={`${base}-${key}`} testId={`chart-${key}`}
               legend={<span data-testid={`trend-${key}`}>{trendLegend(view, key)}</span>}>
               <TimeChart {...common} stretchStart={stretchStart} windowBand={windowBand}
-                lines={[{ key, label: `${indicatorLabel(key)} (window of ${view.windowPoints} points)`, color: 'tide', width: 2 }]} />
+                lines={[{ key, label: `${indicatorLabel(key)} (window of ${view.windowPoints} points${(view.curves.evaluatedEvery?.[key] ?? 1) > 1 ? `, every ${view.curves.evaluatedEvery![key]}th window` : ''})`, color: 'tide', width: 2, sparse: (view.curves.evaluatedEvery?.[key] ?? 1) > 1 }]} />
             </ChartFrame>
           </div>
         );
