@@ -49,10 +49,17 @@ export async function buildIndicatorTable(series: Series, posted?: AnalysisSetti
     const p = (storedSummary?.significance ?? result.significance)[name]?.p;
     if (p !== undefined) surrogateP[name] = p;
   }
+  // Values that come with an indicator (the restoring rate's standard error, the LM test's p) follow it as
+  // `<indicator>.<name>` columns.
+  const companions = names.flatMap((name) => Object.entries(result.companions[name] ?? {}).map(([key, values]) => ({ column: `${name}.${key}`, values })));
   const rows: IndicatorTable['rows'] = [];
   const { time, value, trend, residual } = result.series;
   for (let i = 0; i < time.length; i++) {
-    rows.push([new Date(time[i]).toISOString(), num(value[i]), num(trend[i]), num(residual[i]), ...names.map((name) => result.indicators[name]![i])]);
+    rows.push([
+      new Date(time[i]).toISOString(), num(value[i]), num(trend[i]), num(residual[i]),
+      ...names.map((name) => result.indicators[name]![i]),
+      ...companions.map((c) => c.values[i] ?? null),
+    ]);
   }
   return {
     series: { slug: series.slug, name: series.name, unit: series.unit, timeZone: series.timeZone },
@@ -64,7 +71,7 @@ export async function buildIndicatorTable(series: Series, posted?: AnalysisSetti
     windowPoints: result.windowPoints,
     kendall: result.kendall,
     surrogateP,
-    columns: ['time_utc', 'value', 'trend', 'residual', ...names],
+    columns: ['time_utc', 'value', 'trend', 'residual', ...names, ...companions.map((c) => c.column)],
     rows,
   };
 }

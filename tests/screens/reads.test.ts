@@ -194,6 +194,19 @@ describe('analysis views and exports', () => {
     expect(csv).toContain('\ntime_utc,value,trend,residual,variance,ac1\n');
   });
 
+  it('exports the values that come with an indicator beside it: the restoring rate\u2019s standard error, the LM test\u2019s p', async () => {
+    const series = await seriesWith('companion-export', 600, NOW, DAY);
+    const table = await buildIndicatorTable(series, analysisSettingsSchema.parse({ indicators: ['restoring-rate', 'ch'], window: 0.5, surrogates: 0 }));
+    const columns = table.columns.slice(4);
+    expect(columns).toEqual(expect.arrayContaining(['restoring-rate', 'ch', 'restoring-rate.standardError', 'ch.p']));
+    const last = table.rows[table.rows.length - 1];
+    const se = last[table.columns.indexOf('restoring-rate.standardError')] as number;
+    const p = last[table.columns.indexOf('ch.p')] as number;
+    expect(se).toBeGreaterThan(0);
+    expect(p).toBeGreaterThanOrEqual(0);
+    expect(p).toBeLessThanOrEqual(1);
+  });
+
   it('previews other settings without saving them and caps surrogates at 199', async () => {
     const series = await seriesWith('preview-check', 400, NOW, DAY);
     const before = await AnalysisSnapshot.count();
