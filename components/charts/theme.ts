@@ -7,7 +7,7 @@ import { useSyncExternalStore } from 'react';
  * (`@theme`); charts read the resolved values rather than `var(--…)` so that a chart saved as SVG or PNG
  * (components/charts/export.ts), which leaves the page's stylesheet behind, keeps its colours.
  */
-export const CHART_COLOURS = [
+const CHART_COLOURS = [
   'ink', 'ink-soft', 'ink-faint', 'rule', 'paper', 'card', 'tide', 'tide-dark', 'watch', 'warning', 'grid', 'surrogate', 'shift', 'shift-dark',
 ] as const;
 export type ChartColour = (typeof CHART_COLOURS)[number];

@@ -15,7 +15,7 @@ export const STANDING_WORDS: Record<RuleStanding, string> = {
 };
 
 /** A rule's tests in one line, e.g. "lag-1 autocorrelation: tau ≥ 0.30 (rising), surrogate p ≤ 0.05". */
-export function ruleSummary(rule: Pick<RuleRecord, 'indicator' | 'minTau' | 'direction' | 'maxSurrogateP' | 'fdrLevel' | 'levelThreshold' | 'levelDirection' | 'persistence'>): string {
+function ruleSummary(rule: Pick<RuleRecord, 'indicator' | 'minTau' | 'direction' | 'maxSurrogateP' | 'fdrLevel' | 'levelThreshold' | 'levelDirection' | 'persistence'>): string {
   return `${indicatorLabel(rule.indicator)}: ${tauThreshold(rule.minTau, rule.direction)}`
     + (rule.maxSurrogateP !== null ? `, surrogate p ≤ ${rule.maxSurrogateP}` : '')
     + (rule.fdrLevel !== null ? `, q ≤ ${rule.fdrLevel}` : '')

@@ -9,7 +9,7 @@ import { allowedActions } from './triage';
 import type { AlertQueue, AlertQueueQuery } from '@/lib/schemas/alert';
 
 /** Which states each queue shows; "mine" is open alerts assigned to the asking user. */
-export const QUEUE_STATES: Record<AlertQueue, AlertState[]> = {
+const QUEUE_STATES: Record<AlertQueue, AlertState[]> = {
   triage: ['new', 'acknowledged'],
   escalated: ['escalated'],
   mine: ['new', 'acknowledged', 'escalated'],

@@ -22,7 +22,7 @@ export function canonicalObservationsCsv(time: Float64Array, value: Float64Array
   return `${lines.join('\n')}\n`;
 }
 
-export function sha256Hex(text: string): string {
+function sha256Hex(text: string): string {
   return createHash('sha256').update(text, 'utf8').digest('hex');
 }
 

@@ -16,7 +16,7 @@ import { loadObservations, observationExtent, type ObservationRange } from './ob
  * (the independent-data formula understates it many times on overlapping windows); `nullCount` is how many finite
  * taus it rests on. Null below two taus. O(N).
  */
-export function nullSpread(taus: readonly number[]): { nullSd: number | null; nullCount: number } {
+function nullSpread(taus: readonly number[]): { nullSd: number | null; nullCount: number } {
   const finite = taus.filter(Number.isFinite);
   return { nullSd: finite.length >= 2 ? sampleStandardDeviation(finite) : null, nullCount: finite.length };
 }
@@ -27,7 +27,7 @@ export function nullSpread(taus: readonly number[]): { nullSd: number | null; nu
  * the taus' spread instead (nullSd, nullCount). `shifts` (detected abrupt shifts) and `stretch` (what was judged
  * and why it starts there) are named here so they stay on the summary whatever the engine's summary carries.
  */
-export function snapshotSummary(result: AnalysisResult): Record<string, unknown> {
+function snapshotSummary(result: AnalysisResult): Record<string, unknown> {
   const summary = summarizeAnalysis(result);
   const significance: Record<string, unknown> = {};
   for (const [name, sig] of Object.entries(summary.significance)) {

@@ -8,7 +8,7 @@ import type { ApiTokenCreate } from '@/lib/schemas/api-token';
 import { ROLES, roleAtLeast, type Actor, type Role } from './roles';
 
 /** Personal tokens start with this, push tokens with `bwi_`: a leaked one is recognisable, and each finds its check. */
-export const PERSONAL_TOKEN_PREFIX = 'bwp_';
+const PERSONAL_TOKEN_PREFIX = 'bwp_';
 const INGEST_TOKEN_PREFIX = 'bwi_';
 /** A token's last use is written at most this often, so a busy script does not turn every read into a write. */
 const LAST_USE_RESOLUTION_MS = 60_000;
@@ -21,7 +21,7 @@ export function isPersonalBearer(authorization: string): boolean {
 const hashOf = (token: string) => crypto.createHash('sha256').update(token, 'utf8').digest('hex');
 
 /** A token as its owner sees it on the account page (never the secret). */
-export function presentApiToken(token: ApiToken) {
+function presentApiToken(token: ApiToken) {
   return {
     id: token.id,
     name: token.name,

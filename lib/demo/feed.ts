@@ -87,7 +87,7 @@ export function feedCsv(points: FeedPoint[]): string {
 }
 
 /** The feed's file name for a delivery: its first instant in ISO 8601 basic format, e.g. demo-feed-20310515T000000Z.csv. */
-export function feedFileName(points: FeedPoint[]): string {
+function feedFileName(points: FeedPoint[]): string {
   return `${FILE_PREFIX}${new Date(points[0].t).toISOString().replace(/[-:]/g, '').replace(/\.\d+Z$/, 'Z')}.csv`;
 }
 

@@ -199,7 +199,7 @@ export interface GrazingParameters {
  * Source: May (1977), "Thresholds and breakpoints in ecosystems with a multiplicity of stable states",
  * Nature 269, 471–477.
  */
-export function grazingGrowth(x: number, c: number, q: GrazingParameters): number {
+function grazingGrowth(x: number, c: number, q: GrazingParameters): number {
   return q.r * x * (1 - x / q.K) - (c * x * x) / (x * x + q.h * q.h);
 }
 

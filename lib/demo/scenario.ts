@@ -36,15 +36,6 @@ import {
 
 export const DEMO_SEED = 730_519;
 
-export const DEMO_NETWORK = {
-  name: 'Veskary Basin Observing Network',
-  description:
-    'A fictional network of four stations, seeded as demo data. Every record is synthetic, simulated from a ' +
-    'published model with a fixed random seed; none is a measurement. Early-warning indicators are statistical ' +
-    'evidence, not forecasts: decisions on public safety, water supply or ecosystems rest with the responsible ' +
-    'authorities and local rules.',
-} as const;
-
 export const DEMO_SITES = {
   mooring: 'Veskary Sound Mooring',
   lake: 'Orlemere Lake Station',

@@ -28,7 +28,7 @@ const SEED_STARTED = 'seed.started';
 const SEED_COMPLETED = 'seed.completed';
 
 /** Creates the demo accounts that do not exist yet (matched by e-mail). Returns all four. */
-export async function seedDemoUsers(password: string): Promise<User[]> {
+async function seedDemoUsers(password: string): Promise<User[]> {
   await db();
   const users: User[] = [];
   for (const account of DEMO_USERS) {

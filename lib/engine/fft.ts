@@ -54,7 +54,7 @@ function twiddles(n: number): Twiddles {
 }
 
 /** True when n is a power of two (n ≥ 1): n & (n − 1) = 0. O(1). */
-export function isPowerOfTwo(n: number): boolean {
+function isPowerOfTwo(n: number): boolean {
   return n >= 1 && (n & (n - 1)) === 0;
 }
 
@@ -70,7 +70,7 @@ export function nextPowerOfTwo(n: number): number {
  * Length must be a power of two. Cost O(N log N). Source: Cooley & Tukey (1965), Math. Comp. 19, 297–301;
  * Press et al., Numerical Recipes (3rd ed., 2007), Sec. 12.2.
  */
-export function fftPow2(re: Float64Array, im: Float64Array, inverse = false): void {
+function fftPow2(re: Float64Array, im: Float64Array, inverse = false): void {
   const n = re.length;
   if (!isPowerOfTwo(n)) throw new RangeError(`FFT length ${n} is not a power of two`);
   for (let i = 1, j = 0; i < n; i++) {

@@ -65,7 +65,7 @@ export function formatInstant(t: number, kind: TimeKind): string {
  * Sampling interval: the median of the positive differences between consecutive sorted times.
  * Cost O(n log n). Common practice (robust to a few missing or doubled observations).
  */
-export function inferInterval(sortedTime: Float64Array): number {
+function inferInterval(sortedTime: Float64Array): number {
   const n = sortedTime.length;
   const first = sortedTime[1] - sortedTime[0];
   let regular = first > 0;
@@ -92,7 +92,7 @@ const MAX_GRID_POINTS = 50_000_000;
  * drift off a fixed grid. A bin's time is its first observation's; an empty bin's is interpolated.
  * Times must be sorted; an exactly regular record is returned as it is (not copied). Cost O(n). Common practice (block averaging onto a regular grid).
  */
-export function binToGrid(
+function binToGrid(
   time: Float64Array,
   value: Float64Array,
   interval: number,
@@ -144,7 +144,7 @@ export function binToGrid(
  * (`observed` marks the points that were not filled).
  * The result may share memory with the input when nothing needs filling. Cost O(n). Common practice (short-gap linear interpolation).
  */
-export function fillGaps(
+function fillGaps(
   time: Float64Array,
   value: Float64Array,
   maxGap: number,
@@ -216,7 +216,7 @@ export function fillLinear(v: Float64Array, observed: Uint8Array): number {
 }
 
 /** Natural logarithm of each value; a value ≤ 0 is an AnalysisInputError naming its instant. O(n). */
-export function logValues(time: Float64Array, value: Float64Array, kind: TimeKind): Float64Array {
+function logValues(time: Float64Array, value: Float64Array, kind: TimeKind): Float64Array {
   const out = new Float64Array(value.length);
   for (let i = 0; i < value.length; i++) {
     if (!(value[i] > 0)) {
@@ -357,7 +357,7 @@ export function detectSamplingChanges(sortedTime: Float64Array): { index: number
  * variance and so change the indicators. A grid instant with no observation within Δ/2 is missing. O(n).
  * Common practice (decimation to a coarser grid).
  */
-export function subsampleToGrid(time: Float64Array, value: Float64Array, interval: number, anchor: number): { time: Float64Array; value: Float64Array } {
+function subsampleToGrid(time: Float64Array, value: Float64Array, interval: number, anchor: number): { time: Float64Array; value: Float64Array } {
   const n = time.length;
   const k0 = Math.round((time[0] - anchor) / interval);
   const bins = Math.round((time[n - 1] - anchor) / interval) - k0 + 1;
@@ -383,7 +383,7 @@ export function subsampleToGrid(time: Float64Array, value: Float64Array, interva
  * practice (QARTOD flat-line test, U.S. IOOS (2020), Manual for Real-Time Quality Control of In-situ Temperature
  * and Salinity Data, v2.1, from memory).
  */
-export function findFlatRuns(value: Float64Array): { start: number; end: number }[] {
+function findFlatRuns(value: Float64Array): { start: number; end: number }[] {
   const out: { start: number; end: number }[] = [];
   for (let i = 0; i < value.length; ) {
     let j = i + 1;

@@ -27,7 +27,7 @@ export const DEFAULT_MIN_SEGMENT = 5;
  * (tests/reference/calibrate_shifts.ts); 4 was kept for power: a step of three long-run sd in a 200-point record
  * stands about 8 standard errors above zero, and the Nile record's shift 28 years into 100 is found at α = 0.05.
  */
-export const BANDWIDTH_FACTOR = 4;
+const BANDWIDTH_FACTOR = 4;
 
 /**
  * Each side's noise scale (long-run variance) is also fitted over SCALE_FACTOR · G points on that side, not just
@@ -90,7 +90,7 @@ export function scanNormalisation(x: number): { a: number; b: number } {
  * Threshold constants for a false-positive rate: the calibrated constants at their rates, log-linear in the rate
  * between them; rates outside the calibrated range are refused (RangeError). O(1).
  */
-export function shiftThresholdConstants(rate: number): { interior: number; end: number } {
+function shiftThresholdConstants(rate: number): { interior: number; end: number } {
   const table = SHIFT_THRESHOLD_CONSTANTS;
   for (let i = 0; i < table.length; i++) {
     if (rate === table[i].rate) return { interior: table[i].interior, end: table[i].end };
@@ -105,7 +105,7 @@ export function shiftThresholdConstants(rate: number): { interior: number; end: 
 }
 
 /** Threshold on the interior T_t of an n-point record scanned at bandwidth G: (b(n/G) + c) / a(n/G) (see scanNormalisation). O(1). */
-export function shiftThreshold(n: number, bandwidth: number, constant: number): number {
+function shiftThreshold(n: number, bandwidth: number, constant: number): number {
   const { a, b } = scanNormalisation(n / bandwidth);
   return (b + constant) / a;
 }

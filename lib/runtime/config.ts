@@ -53,7 +53,7 @@ const url = (protocols: string[]) =>
     }
   }, `must be a URL starting with ${protocols.map((p) => `${p}//`).join(' or ')}`);
 
-export const configSchema = z.object({
+const configSchema = z.object({
   DATA_DIR: optionalText,
   DATABASE_PATH: optionalText,
   DROP_DIR: optionalText,
@@ -133,7 +133,7 @@ export function mailboxDir(): string {
   return path.join(/*turbopackIgnore: true*/ dataDir(), 'mailbox');
 }
 
-export function appPort(): number {
+function appPort(): number {
   return config().PORT;
 }
 

@@ -18,10 +18,10 @@ export const auditQuerySchema = z.object({
 });
 
 /** The charts the series page can show, besides one per indicator: the record with its trend, and the residuals. */
-export const SERIES_CHARTS = ['record', 'residuals', ...INDICATOR_NAMES] as const;
+const SERIES_CHARTS = ['record', 'residuals', ...INDICATOR_NAMES] as const;
 export type SeriesChart = (typeof SERIES_CHARTS)[number];
 /** What a reader sees first: the record and the two indicators most rules watch. */
-export const DEFAULT_SERIES_CHARTS: SeriesChart[] = ['record', 'ac1', 'variance'];
+const DEFAULT_SERIES_CHARTS: SeriesChart[] = ['record', 'ac1', 'variance'];
 
 /**
  * A signed-in person's preferences (PUT /api/account/preferences merges the fields sent). `seriesCharts`: which

@@ -35,9 +35,9 @@ export type TriageActionInput = z.output<typeof triageActionSchema>;
 
 export const noteSchema = z.object({ body: z.string().trim().min(1).max(10_000) }).strict();
 
-export const ALERT_QUEUES = ['triage', 'escalated', 'mine', 'closed', 'all'] as const;
+const ALERT_QUEUES = ['triage', 'escalated', 'mine', 'closed', 'all'] as const;
 export type AlertQueue = (typeof ALERT_QUEUES)[number];
-export const ALERT_SORTS = ['newest', 'oldest', 'severity', 'tau', 'updated'] as const;
+const ALERT_SORTS = ['newest', 'oldest', 'severity', 'tau', 'updated'] as const;
 
 /**
  * Queue filters. `age` is a number of hours or days with an optional direction: `7d` or `<7d` = opened within

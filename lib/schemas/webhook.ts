@@ -49,7 +49,7 @@ export const webhookUpdateSchema = z
   .strict();
 export type WebhookUpdate = z.output<typeof webhookUpdateSchema>;
 
-export const WEBHOOK_DELIVERY_STATUSES = ['pending', 'sending', 'delivered', 'failed'] as const;
+const WEBHOOK_DELIVERY_STATUSES = ['pending', 'sending', 'delivered', 'failed'] as const;
 export type WebhookDeliveryStatus = (typeof WEBHOOK_DELIVERY_STATUSES)[number];
 
 /** GET /api/webhooks/{id}/deliveries: filter by status, paged. */

@@ -13,12 +13,12 @@ import { webhookSignature } from './signature';
  */
 export const WEBHOOK_RETRY_POLICY = { baseMs: 10_000, maxMs: 3_600_000, maxAttempts: 15 };
 /** One request may take this long; a receiver that hangs costs one attempt, not the job. */
-export const WEBHOOK_TIMEOUT_MS = 10_000;
+const WEBHOOK_TIMEOUT_MS = 10_000;
 /**
  * How long a 'sending' claim protects a delivery; past it the claim counts as abandoned (its sender died). Far
  * above the request timeout, since a batch is sent at once and settled within about one timeout.
  */
-export const WEBHOOK_CLAIM_TTL_MS = 60_000;
+const WEBHOOK_CLAIM_TTL_MS = 60_000;
 const BATCH = 20;
 /** How much of a refusing receiver's answer the attempt log keeps. */
 const ANSWER_KEPT = 500;
