@@ -1,5 +1,5 @@
 import { ANALYSIS_CAUTION } from '@/lib/engine/analyze';
-import { formatP, formatUtc, formatValue } from '@/lib/display/format';
+import { formatAge, formatP, formatUtc, formatValue } from '@/lib/display/format';
 import { publicBaseUrl } from '@/lib/runtime/config';
 import { DIRECTION_WORDS, describeExtent, indicatorLabel } from '@/lib/display/analysis-labels';
 import { describeCalibration, kendallPLabel, tauThreshold, tauWithDirection, type CalibrationLine } from '@/lib/alerts/wording';
@@ -56,7 +56,7 @@ ${parts.caution ? `<p style="font-size:12px;color:#52606d;border-top:1px solid #
 /** What an alert message says about the evidence; built by lib/alerts from the alert, its rule (if any) and snapshot. */
 export interface AlertEvidence {
   alertId: number;
-  kind: 'slowing-down' | 'abrupt-shift';
+  kind: 'slowing-down' | 'abrupt-shift' | 'data-late';
   severity: 'watch' | 'warning';
   series: { name: string; slug: string; site: string; timeZone: string };
   /** the rule's indicator; null for an abrupt-shift alert */
@@ -84,6 +84,8 @@ export interface AlertEvidence {
   calibration: CalibrationLine | null;
   /** the abrupt shift an abrupt-shift alert reports */
   shift: { time: number; size: number | null } | null;
+  /** the silence a data-late alert reports: last observation before it, first after it (null while silent) */
+  silence?: { lastDataAt: number; backAt: number | null } | null;
 }
 
 function alertLink(alertId: number): string {
@@ -115,6 +117,14 @@ function describeRule(r: NonNullable<AlertEvidence['rule']>): string {
 function evidenceRows(e: AlertEvidence): Row[] {
   const series: Row = ['Series', `${e.series.name} (${e.series.slug})${e.series.site ? `, ${e.series.site}` : ''}`];
   const span: Row = ['Data span', `${formatUtc(e.dataFrom)} to ${formatUtc(e.dataTo)} (${e.n} points analysed)`];
+  if (e.kind === 'data-late') {
+    return [
+      series,
+      ['Kind', 'data late (the series stopped delivering)'],
+      ['Last data', formatUtc(e.silence?.lastDataAt ?? null)],
+      ['Data back', e.silence?.backAt ? formatUtc(e.silence.backAt) : 'not yet'],
+    ];
+  }
   if (e.kind === 'abrupt-shift') {
     return [
       series,
@@ -245,5 +255,46 @@ export function digestMail(input: { name: string; since: Date; entries: DigestEn
     ]),
     link: { href: `${publicBaseUrl()}/alerts`, label: 'Open the alert queues' },
     caution: true,
+  });
+}
+
+/** What a data-late or data-back message names: the alert, its series and the silence. */
+interface SilenceFacts {
+  alertId: number;
+  series: { name: string; slug: string; site: string };
+  lastDataAt: number;
+}
+
+function silenceRows(f: SilenceFacts): Row[] {
+  return [
+    ['Series', `${f.series.name} (${f.series.slug})${f.series.site ? `, ${f.series.site}` : ''}`],
+    ['Last data', formatUtc(f.lastDataAt)],
+  ];
+}
+
+/** A series stopped delivering for longer than its lateness allows: a sensor, logger or transfer to check. */
+export function dataLateMail(f: SilenceFacts & { lateAfterMs: number; now: number }): RenderedMail {
+  return compose({
+    subject: `[Brinkwatch] Data late: ${f.series.name} (alert #${f.alertId})`,
+    heading: `No new data from ${f.series.name}`,
+    intro: [
+      `${f.series.name} has delivered nothing for ${formatAge(f.now - f.lastDataAt)}; it counts as late after ${formatAge(f.lateAfterMs)}. The sensor, its logger or the transfer may need a look.`,
+      'While no data arrive, no early-warning indicator of this series is updated. The alert closes by itself when data return.',
+    ],
+    rows: silenceRows(f),
+    link: { href: alertLink(f.alertId), label: 'Open the alert' },
+    outro: ['You receive this because you watch this series. Change it on the series page.'],
+  });
+}
+
+/** The data of a silent series returned, and its data-late alert closed by itself. */
+export function dataBackMail(f: SilenceFacts & { backAt: number }): RenderedMail {
+  return compose({
+    subject: `[Brinkwatch] Data back: ${f.series.name} (alert #${f.alertId})`,
+    heading: `${f.series.name} delivers again`,
+    intro: [`New data reached Brinkwatch after a silence of ${formatAge(f.backAt - f.lastDataAt)} in the record. The data-late alert closed by itself.`],
+    rows: [...silenceRows(f), ['Data back', formatUtc(f.backAt)]],
+    link: { href: alertLink(f.alertId), label: 'See the alert' },
+    outro: ['You receive this because you watch this series. Change it on the series page.'],
   });
 }
