@@ -12,21 +12,10 @@ import { ensureAuthSecret } from '@/lib/runtime/secret';
 import { formatUtc } from '@/lib/display/format';
 import { reportScheduleSchema, reportScheduleUpdateSchema, type ReportScheduleInput, type ReportScheduleUpdate } from '@/lib/schemas/report';
 import { buildPeriodReport } from './period';
+import type { ReportScheduleView } from './schedules-view';
 import { periodBounds, previousPeriod, type PeriodKind, type PeriodReport } from './period-shape';
 
 const CADENCE_PERIOD: Record<ReportCadence, PeriodKind> = { monthly: 'month', quarterly: 'quarter' };
-
-/** A schedule as the reports page and the API carry it. */
-export interface ReportScheduleView {
-  id: number;
-  name: string;
-  site: string;
-  cadence: string;
-  recipients: string[];
-  active: boolean;
-  createdAt: string;
-  updatedAt: string;
-}
 
 export function presentSchedule(s: ReportSchedule): ReportScheduleView {
   return { id: s.id, name: s.name, site: s.site, cadence: s.cadence, recipients: s.recipients, active: s.active, createdAt: s.createdAt.toISOString(), updatedAt: s.updatedAt.toISOString() };
