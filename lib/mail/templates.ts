@@ -233,7 +233,8 @@ export function passwordResetMail(input: { name: string; link: string; expiresAt
 export interface DigestEntry {
   alertId: number;
   seriesName: string;
-  /** the rule's indicator; null for an abrupt-shift alert */
+  kind: AlertEvidence['kind'];
+  /** the rule's indicator; null for an abrupt-shift or data-late alert */
   indicator: string | null;
   direction: string | null;
   severity: string;
@@ -252,7 +253,7 @@ export function digestMail(input: { name: string; since: Date; entries: DigestEn
     rows: input.entries.map((e) => [
       `#${e.alertId} ${e.seriesName}`,
       e.indicator === null
-        ? `${e.severity}, abrupt shift, ${e.state} — ${alertLink(e.alertId)}`
+        ? `${e.severity}, ${e.kind === 'data-late' ? 'data late' : 'abrupt shift'}, ${e.state} — ${alertLink(e.alertId)}`
         : `${e.severity}, ${indicatorLabel(e.indicator)}, tau ${tauWithDirection(e.tau, e.direction)}, surrogate p ${formatP(e.surrogateP)}, ${e.state} — ${alertLink(e.alertId)}`,
     ]),
     link: { href: `${publicBaseUrl()}/alerts`, label: 'Open the alert queues' },
