@@ -63,7 +63,7 @@ export function PeriodReportView({ report }: { report: PeriodReport }) {
             <tr key={s.id}>
               <th scope="row" className={`${CELL_TIGHT} text-left font-medium`}>{s.name}</th>
               <td className={CELL_TIGHT}>{s.site || '–'}</td>
-              <td className={CELL_TIGHT}>{s.stateNow}{s.freshnessNow === 'late' ? ', late' : ''}</td>
+              <td className={CELL_TIGHT}>{s.stateNow.replace('-', ' ')}{s.freshnessNow === 'late' ? ', data late' : ''}</td>
               <td className={CELL_TIGHT}>{s.received} / {s.expected ?? '–'}</td>
               <td className={CELL_TIGHT}>{pct(s.completeness)}</td>
               <td className={CELL_TIGHT}>{s.lateStretches}</td>

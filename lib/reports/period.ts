@@ -306,10 +306,11 @@ function parseJson(text: string | null): Record<string, unknown> {
   }
 }
 
-/** "window 0.5 → 0.4; detrend gaussian → linear": the settings that changed, or the whole settings when first set. */
+/** "window 0.5 → 0.4; detrend gaussian → linear": the settings that changed since the series' previous settings. */
 function describeSettingsChange(before: string | null, after: string): string {
+  // The first settings of a series are its starting point, not a change a reader weighs; the series page has them.
+  if (before === null) return 'first settings of the series';
   const next = parseJson(after);
-  if (before === null) return Object.entries(next).map(([k, v]) => `${k} ${JSON.stringify(v)}`).join('; ');
   const prev = parseJson(before);
   const keys = [...new Set([...Object.keys(prev), ...Object.keys(next)])].filter((k) => JSON.stringify(prev[k]) !== JSON.stringify(next[k]));
   return keys.map((k) => `${k} ${JSON.stringify(prev[k] ?? null)} → ${JSON.stringify(next[k] ?? null)}`).join('; ') || 'no effective change';
