@@ -71,6 +71,9 @@ export const seriesSettingsSchema = z.preprocess((input) => {
   return { ...('spanPoints' in input ? withoutSpan : LIVE_SETTINGS_DEFAULTS), ...input };
 }, analysisSettingsSchema);
 
+/** A lateness allowance: a minute at least (the freshness pass runs every few minutes), ten years at most. */
+const LATE_AFTER = z.number().int().min(60_000, 'At least a minute (60000 ms).').max(3660 * 86_400_000);
+
 /** Everything a lead can set on a series; the one schema behind the API, the forms and the seed. */
 export const seriesFieldsSchema = z.object({
   name: text(200).min(1),
@@ -79,6 +82,8 @@ export const seriesFieldsSchema = z.object({
   description: text(5000).default(''),
   intervalMs: z.number().int().positive().max(100 * 366 * 86_400_000).nullable().default(null),
   timeZone: z.string().refine(isTimeZone, 'Unknown IANA time zone (e.g. Europe/Oslo or UTC).').default('UTC'),
+  /** How long the series may deliver nothing before it is late (ms); null = 3 intervals, or 2 days (lib/alerts/lateness.ts). */
+  lateAfterMs: LATE_AFTER.nullable().default(null),
   csvMapping: csvMappingSchema.default(csvMappingSchema.parse({})),
   settings: seriesSettingsSchema.default(seriesSettingsSchema.parse({})),
   duplicatePolicy: z.enum(['reject', 'replace']).default('reject'),
@@ -97,6 +102,7 @@ export const seriesUpdateSchema = z
     description: text(5000),
     intervalMs: z.number().int().positive().nullable(),
     timeZone: z.string().refine(isTimeZone, 'Unknown IANA time zone.'),
+    lateAfterMs: LATE_AFTER.nullable(),
     csvMapping: csvMappingSchema,
     settings: seriesSettingsSchema,
     duplicatePolicy: z.enum(['reject', 'replace']),

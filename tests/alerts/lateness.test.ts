@@ -8,6 +8,8 @@ import { Alert, AlertEvent, MailMessage, Observation, db } from '@/models';
 import { checkFreshness, freshnessOf, lateAfterMs, LATE_AFTER_INTERVALS } from '@/lib/alerts/lateness';
 import { fetchSeriesOverview } from '@/lib/overview';
 import { reopenAlert } from '@/lib/alerts/triage';
+import { presentSeries, updateSeries } from '@/lib/series/registry';
+import { seriesUpdateSchema } from '@/lib/schemas/series';
 import { makeSeries, makeSnapshot, makeUser, watch } from './helpers';
 
 const DAY = 86_400_000;
@@ -95,8 +97,12 @@ describe('data-late alerts', () => {
 
   it('asks nobody again about a silence an analyst dismissed while it lasts, and respects the series setting', async () => {
     const analyst = await makeUser('analyst');
+    const lead = await makeUser('lead');
     const series = await makeSeries();
-    await series.update({ lateAfterMs: 10 * DAY });
+    // A lead sets the series' own allowance through the series update every screen and the API use.
+    expect(seriesUpdateSchema.safeParse({ lateAfterMs: 1000 }).success).toBe(false);
+    expect(presentSeries(await updateSeries(series.slug, { lateAfterMs: 10 * DAY }, lead)).lateAfterMs).toBe(10 * DAY);
+    await series.reload();
     await makeSnapshot(series, { tau: 0.1, surrogateP: 0.5 });
     await deliver(series.id, T0, 5);
     const last = T0 + 4 * DAY;
