@@ -59,7 +59,14 @@ describe('period reports (Chromium)', () => {
     const seriesRows = await page.getByTestId('report-series').locator('tbody tr').count();
     expect(seriesRows).toBeGreaterThan(3);
     expect(await page.getByRole('note').count()).toBe(1); // the caution, once
-    await page.getByTestId('schedule-form').waitFor(); // a lead manages scheduled reports here
+    // A lead schedules the quarterly report to an address without an account.
+    const form = page.getByTestId('schedule-form');
+    await form.getByLabel('Name').fill('Quarterly to the water authority');
+    await form.getByLabel('Recipients').fill('officer@authority.example, Officer@authority.example');
+    await form.getByRole('button', { name: 'Add schedule' }).click();
+    const row = page.getByTestId('schedule-table').locator('tbody tr', { hasText: 'Quarterly to the water authority' });
+    await expect.poll(() => row.textContent()).toContain('officer@authority.example');
+    expect(await row.textContent()).not.toContain('Officer@');
     await page.screenshot({ path: path.join(SHOTS, 'period-report.png'), fullPage: true });
 
     await page.emulateMedia({ media: 'print' });
