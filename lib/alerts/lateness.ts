@@ -50,7 +50,7 @@ interface FreshnessRow {
  *
  * - a late series (freshnessOf) with no data-late alert still waiting for its data opens one (kind 'data-late',
  *   no rule, severity 'warning', `data_last_at` = its last observation), with a timeline event, an audit entry and
- *   mail to its immediate and digest watchers, in one transaction;
+ *   mail to its watchers with immediate mail (digest readers find it in their digest), in one transaction;
  * - a series that is fresh again closes its waiting data-late alert by itself: `data_back_at` = the first
  *   observation after the silence, the alert dismissed ('data-gap-or-artefact') if nobody decided it yet, and a
  *   timeline event saying that the data returned; its watchers hear of it.
@@ -90,7 +90,8 @@ export async function checkFreshness(now = Date.now()): Promise<FreshnessReport>
 }
 
 async function mailWatchers(alert: Alert, mail: { subject: string; text: string; html: string }, kind: string, transaction: Transaction): Promise<void> {
-  for (const user of await watchersOf(alert.seriesId, ['immediate', 'digest'], transaction)) {
+  // Digest readers hear of it in their next digest, which lists alerts opened or closed since the last one.
+  for (const user of await watchersOf(alert.seriesId, ['immediate'], transaction)) {
     await enqueueMail({ kind, dedupeKey: `${kind}:${alert.id}:user-${user.id}`, to: user.email, ...mail }, transaction);
   }
 }

@@ -51,14 +51,14 @@ describe('data-late alerts', () => {
 
     // Within the allowance: nothing.
     expect((await checkFreshness(last + 3 * DAY)).opened).toEqual([]);
-    // Past it: one alert, mailed to the immediate and digest watchers, not to the bystander.
+    // Past it: one alert, mailed to the immediate watcher (the digest reader finds it in the digest), not to the bystander.
     const late = last + 3 * DAY + 1;
     const first = await checkFreshness(late);
     expect(first.opened).toHaveLength(1);
     const alert = (await Alert.findByPk(first.opened[0]))!;
     expect(alert).toMatchObject({ kind: 'data-late', ruleId: null, state: 'new', dataLastAt: last, dataBackAt: null });
     const mails = await MailMessage.findAll({ where: { kind: 'alert-data-late' }, order: [['id', 'ASC']] });
-    expect(mails.map((m) => m.toAddress).sort()).toEqual([analyst.email, digestReader.email].sort());
+    expect(mails.map((m) => m.toAddress)).toEqual([analyst.email]);
     expect(mails[0].subject).toContain('Data late');
     expect(mails[0].textBody).toContain('3 d'); // silent for 3 days and a millisecond, late after 3 days
 
@@ -66,7 +66,7 @@ describe('data-late alerts', () => {
     expect((await checkFreshness(late + DAY)).opened).toEqual([]);
     expect((await checkFreshness(late + 2 * DAY)).opened).toEqual([]);
     expect(await Alert.count({ where: { seriesId: series.id, kind: 'data-late' } })).toBe(1);
-    expect(await MailMessage.count({ where: { kind: 'alert-data-late' } })).toBe(2);
+    expect(await MailMessage.count({ where: { kind: 'alert-data-late' } })).toBe(1);
     const overview = await fetchSeriesOverview(null, late + DAY);
     expect(overview.rows.find((r) => r.id === series.id)!.freshness).toBe('late');
 
@@ -81,9 +81,9 @@ describe('data-late alerts', () => {
     const events = await AlertEvent.findAll({ where: { alertId: alert.id }, order: [['id', 'ASC']] });
     expect(events.map((e) => e.action)).toEqual(['open', 'data-returned']);
     expect(events[1].detail).toContain('closed by itself');
-    expect(await MailMessage.count({ where: { kind: 'alert-data-back' } })).toBe(2);
+    expect(await MailMessage.count({ where: { kind: 'alert-data-back' } })).toBe(1);
     expect((await checkFreshness(back + DAY + 2000)).returned).toEqual([]);
-    expect(await MailMessage.count({ where: { kind: 'alert-data-back' } })).toBe(2);
+    expect(await MailMessage.count({ where: { kind: 'alert-data-back' } })).toBe(1);
 
     // Triaged like the others: a lead may reopen it.
     const lead = await makeUser('lead');
