@@ -70,28 +70,47 @@ function alertSubject(row: AlertRow): string {
   return row.indicator ? indicatorLabel(row.indicator) : 'rule deleted';
 }
 
+const allowanceOf = (s: SeriesRow) => lateAfterMs(s.interval_ms === null ? null : Number(s.interval_ms), s.late_after_ms === null ? null : Number(s.late_after_ms));
+
+interface RecordFacts {
+  /** observations in [start, until) */
+  received: number;
+  /** silences longer than the series' allowance touching [start, until); backAt null = still silent at `until` */
+  stretches: { lastDataAt: number; backAt: number | null }[];
+}
+
 /**
- * Silences in a series' record longer than its lateness allowance that touch [start, until): each gap between
- * consecutive observations (the one before `start` included), and a trailing silence still running at `until`.
- * One indexed range read of the series' observations with LAG (SQLite window function); only the gaps come back.
+ * Each series' observations received in [start, until) and its silences longer than its lateness allowance: every
+ * gap between consecutive observations ending inside the period (the observation before `start` included, so a
+ * silence that began earlier counts), and a trailing silence still running at `until`. Two queries for all series:
+ * indexed counts and last instants per series, then one window pass (LAG per series) over the observations from
+ * each series' last one before the period, returning only the gaps.
  */
-async function lateStretches(series: SeriesRow, start: number, until: number): Promise<{ lastDataAt: number; backAt: number | null }[]> {
+async function recordFacts(series: SeriesRow[], start: number, until: number): Promise<Map<number, RecordFacts>> {
   const sequelize = await db();
-  const allowed = lateAfterMs(series.interval_ms === null ? null : Number(series.interval_ms), series.late_after_ms === null ? null : Number(series.late_after_ms));
-  const gaps = await sequelize.query<{ prev: number; t: number }>(
-    `WITH o AS (
-       SELECT t, LAG(t) OVER (ORDER BY t) AS prev FROM observations
-       WHERE series_id = :id AND t >= COALESCE((SELECT MAX(t) FROM observations WHERE series_id = :id AND t < :start), :start) AND t < :until)
-     SELECT prev, t FROM o WHERE prev IS NOT NULL AND t - prev > :allowed AND t > :start ORDER BY t`,
-    { replacements: { id: series.id, start, until, allowed }, type: QueryTypes.SELECT },
+  const edges = await sequelize.query<{ id: number; n: number; before_t: number | null; tail_t: number | null }>(
+    `SELECT s.value AS id,
+       (SELECT COUNT(*) FROM observations o WHERE o.series_id = s.value AND o.t >= :start AND o.t < :until) AS n,
+       (SELECT MAX(t) FROM observations o WHERE o.series_id = s.value AND o.t < :start) AS before_t,
+       (SELECT MAX(t) FROM observations o WHERE o.series_id = s.value AND o.t < :until) AS tail_t
+     FROM json_each(:ids) s`,
+    { replacements: { ids: JSON.stringify(series.map((s) => s.id)), start, until }, type: QueryTypes.SELECT },
   );
-  const stretches: { lastDataAt: number; backAt: number | null }[] = gaps.map((g) => ({ lastDataAt: Number(g.prev), backAt: Number(g.t) }));
-  const [tail] = await sequelize.query<{ t: number | null }>('SELECT MAX(t) AS t FROM observations WHERE series_id = :id AND t < :until', {
-    replacements: { id: series.id, until },
-    type: QueryTypes.SELECT,
-  });
-  if (tail?.t !== null && tail?.t !== undefined && until - Number(tail.t) > allowed) stretches.push({ lastDataAt: Number(tail.t), backAt: null });
-  return stretches;
+  const byId = new Map(series.map((s) => [s.id, s]));
+  const scope = edges.map((e) => [Number(e.id), allowanceOf(byId.get(Number(e.id))!), e.before_t === null ? start : Number(e.before_t)]);
+  const gaps = await sequelize.query<{ series_id: number; prev: number; t: number }>(
+    `WITH scope AS (SELECT json_extract(value, '$[0]') AS id, json_extract(value, '$[1]') AS allowed, json_extract(value, '$[2]') AS from_t FROM json_each(:scope)),
+     o AS (SELECT o.series_id, o.t, LAG(o.t) OVER (PARTITION BY o.series_id ORDER BY o.t) AS prev, s.allowed
+           FROM scope s JOIN observations o ON o.series_id = s.id AND o.t >= s.from_t AND o.t < :until)
+     SELECT series_id, prev, t FROM o WHERE prev IS NOT NULL AND t - prev > allowed AND t > :start ORDER BY series_id, t`,
+    { replacements: { scope: JSON.stringify(scope), start, until }, type: QueryTypes.SELECT },
+  );
+  const facts = new Map<number, RecordFacts>(edges.map((e) => [Number(e.id), { received: Number(e.n), stretches: [] }]));
+  for (const g of gaps) facts.get(Number(g.series_id))!.stretches.push({ lastDataAt: Number(g.prev), backAt: Number(g.t) });
+  for (const e of edges) {
+    if (e.tail_t !== null && until - Number(e.tail_t) > allowanceOf(byId.get(Number(e.id))!)) facts.get(Number(e.id))!.stretches.push({ lastDataAt: Number(e.tail_t), backAt: null });
+  }
+  return facts;
 }
 
 /**
@@ -200,16 +219,14 @@ export async function buildPeriodReport(period: Period, site: string | null = nu
   const seriesLines: ReportSeries[] = [];
   let received = 0;
   let expected = 0;
+  const record = await recordFacts(series, start, until);
+  const openedBySeries = new Map<string, number>();
+  for (const a of reportAlerts) openedBySeries.set(a.seriesSlug, (openedBySeries.get(a.seriesSlug) ?? 0) + 1);
   for (const s of series) {
-    const [count] = await sequelize.query<{ n: number }>('SELECT COUNT(*) AS n FROM observations WHERE series_id = :id AND t >= :start AND t < :until', {
-      replacements: { id: s.id, start, until },
-      type: QueryTypes.SELECT,
-    });
-    const n = Number(count?.n ?? 0);
+    const { received: n, stretches } = record.get(s.id)!;
     const since = s.first_t === null ? until : Math.max(start, Number(s.first_t));
     const share = completeness(n, s.interval_ms === null ? null : Number(s.interval_ms), since, until);
-    const allowed = lateAfterMs(s.interval_ms === null ? null : Number(s.interval_ms), s.late_after_ms === null ? null : Number(s.late_after_ms));
-    const stretches = s.first_t === null ? [] : await lateStretches(s, start, until);
+    const allowed = allowanceOf(s);
     let lateMs = 0;
     for (const stretch of stretches) {
       const stop = stretch.backAt ?? until;
@@ -240,7 +257,7 @@ export async function buildPeriodReport(period: Period, site: string | null = nu
       completeness: share.share,
       lateStretches: stretches.length,
       lateHours: hours(lateMs),
-      alertsOpened: reportAlerts.filter((a) => a.seriesSlug === s.slug).length,
+      alertsOpened: openedBySeries.get(s.slug) ?? 0,
       openAtEnd: openEnd.get(s.id) ?? 0,
     });
   }

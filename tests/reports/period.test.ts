@@ -141,4 +141,18 @@ describe('period report on a small seeded network', () => {
     expect(parsed.data[3].decision).toBe('');
     expect(periodReportCsv(await buildPeriodReport({ from: '2020-01-01', to: '2020-01-31' }, null, NOW), 'alerts').split('\r\n')[0]).toBe(parsed.meta.fields!.join(','));
   });
+
+  it('counts a silence that began before the period and still runs at its end', async () => {
+    const east = await makeSeries('east-turbidity');
+    await east.update({ site: 'East Shore' });
+    await Observation.bulkCreate(Array.from({ length: 17 }, (_, i) => ({ seriesId: east.id, t: Date.UTC(2025, 11, 20) + i * DAY, value: i }))); // Dec 20 – Jan 5
+    const report = await buildPeriodReport(JANUARY, 'East Shore', NOW);
+    // Received Jan 1–5 of 31 expected; silent from Jan 5 to the period's end (27 days), late from Jan 8 (24 days).
+    expect(report.series).toMatchObject([{ slug: 'east-turbidity', received: 5, expected: 31, lateStretches: 1, lateHours: 576 }]);
+    expect(report.late).toEqual([{ seriesSlug: 'east-turbidity', seriesName: 'Series east-turbidity', lastDataAt: new Date(jan(5)).toISOString(), backAt: null, silentHours: 648, alertId: null }]);
+    // February: the silence began in January and still runs at the report's moment (NOW, 10 February).
+    const february = await buildPeriodReport({ from: '2026-02-01', to: '2026-02-28' }, 'East Shore', NOW);
+    // Up to now: 9 daily values expected (1–10 February), none received.
+    expect(february.series[0]).toMatchObject({ received: 0, expected: 9, completeness: 0, lateStretches: 1, lateHours: 9 * 24 });
+  });
 });
