@@ -1,7 +1,7 @@
 import { NextResponse, type NextRequest } from 'next/server';
 import { getToken } from 'next-auth/jwt';
 
-const PUBLIC_PAGES = [/^\/signin(?:\/|$)/, /^\/invite\//, /^\/reset(?:\/|$)/];
+const PUBLIC_PAGES = [/^\/signin(?:\/|$)/, /^\/invite\//, /^\/reset(?:\/|$)/, /^\/unsubscribe\//];
 
 /**
  * A fresh nonce per page view: Next.js reads it from the request's CSP header and puts it on its own scripts, so

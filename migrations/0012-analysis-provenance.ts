@@ -15,7 +15,12 @@ export async function up({ context: q }: { context: QueryInterface }): Promise<v
   await q.addColumn('analysis_snapshots', 'provenance', { type: DataTypes.JSON, allowNull: true });
 }
 
+/**
+ * Native DROP COLUMN (SQLite ≥ 3.35): the query interface's removeColumn rebuilds a table on SQLite, and dropping
+ * analysis_snapshots during that rebuild would fire the foreign keys that point at it (alerts' evidence), besides
+ * copying every observation.
+ */
 export async function down({ context: q }: { context: QueryInterface }): Promise<void> {
-  await q.removeColumn('analysis_snapshots', 'provenance');
-  await q.removeColumn('observations', 'ingest_run_id');
+  await q.sequelize.query('ALTER TABLE analysis_snapshots DROP COLUMN provenance');
+  await q.sequelize.query('ALTER TABLE observations DROP COLUMN ingest_run_id');
 }

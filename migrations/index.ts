@@ -15,6 +15,7 @@ import * as personalApiTokens from './0013-personal-api-tokens';
 import * as userPreferences from './0014-user-preferences';
 import * as sites from './0015-sites';
 import * as webhooks from './0017-webhooks';
+import * as periodReports from './0018-period-reports';
 
 /**
  * The ordered list of schema changes. Listed explicitly (not globbed) so the same list works in the Next.js server
@@ -35,6 +36,7 @@ const MIGRATIONS = [
   { name: '0014-user-preferences', ...userPreferences },
   { name: '0015-sites', ...sites },
   { name: '0017-webhooks', ...webhooks },
+  { name: '0018-period-reports', ...periodReports },
 ];
 
 async function migrator(): Promise<Umzug<QueryInterface>> {
@@ -47,9 +49,12 @@ async function migrator(): Promise<Umzug<QueryInterface>> {
   });
 }
 
-/** Applies every pending migration; a no-op when the schema is current, so it is safe at every start. */
-export async function migrateUp(): Promise<string[]> {
-  const applied = await (await migrator()).up();
+/**
+ * Applies every pending migration (or those up to and including `to`, for tests of one migration); a no-op when
+ * the schema is current, so it is safe at every start.
+ */
+export async function migrateUp(to?: string): Promise<string[]> {
+  const applied = await (await migrator()).up(to ? { to } : undefined);
   return applied.map((m) => m.name);
 }
 

@@ -3,19 +3,25 @@ import type { Severity } from './AlertRule';
 
 export const ALERT_STATES = ['new', 'acknowledged', 'escalated', 'confirmed', 'dismissed'] as const;
 export type AlertState = (typeof ALERT_STATES)[number];
-export const ALERT_KINDS = ['slowing-down', 'abrupt-shift'] as const;
+export const ALERT_KINDS = ['slowing-down', 'abrupt-shift', 'data-late'] as const;
 export type AlertKind = (typeof ALERT_KINDS)[number];
 export const OPEN_ALERT_STATES: readonly AlertState[] = ['new', 'acknowledged', 'escalated'];
 
 export class Alert extends Model<InferAttributes<Alert>, InferCreationAttributes<Alert>> {
   declare id: CreationOptional<number>;
   declare seriesId: number;
-  /** 'slowing-down' alerts come from a rule; 'abrupt-shift' alerts from the change-point detection (no rule). */
+  /**
+   * 'slowing-down' alerts come from a rule; 'abrupt-shift' alerts from the change-point detection (no rule);
+   * 'data-late' alerts from the freshness pass when a series falls silent (no rule; lib/alerts/lateness.ts).
+   */
   declare kind: CreationOptional<AlertKind>;
   declare ruleId: number | null;
   /** The abrupt shift's instant (first grid instant of the new level, epoch ms as series times) and level change. */
   declare shiftTime: CreationOptional<number | null>;
   declare shiftSize: CreationOptional<number | null>;
+  /** For a data-late alert: the last observation before the silence and the first after it (null while silent). */
+  declare dataLastAt: CreationOptional<number | null>;
+  declare dataBackAt: CreationOptional<number | null>;
   declare state: AlertState;
   declare severity: Severity;
   declare assigneeId: number | null;
@@ -43,6 +49,8 @@ export class Alert extends Model<InferAttributes<Alert>, InferCreationAttributes
         ruleId: { type: DataTypes.INTEGER, allowNull: true },
         shiftTime: { type: DataTypes.BIGINT, allowNull: true, get() { const v = this.getDataValue('shiftTime'); return v === null || v === undefined ? null : Number(v); } },
         shiftSize: { type: DataTypes.DOUBLE, allowNull: true },
+        dataLastAt: { type: DataTypes.BIGINT, allowNull: true, get() { const v = this.getDataValue('dataLastAt'); return v === null || v === undefined ? null : Number(v); } },
+        dataBackAt: { type: DataTypes.BIGINT, allowNull: true, get() { const v = this.getDataValue('dataBackAt'); return v === null || v === undefined ? null : Number(v); } },
         state: { type: DataTypes.STRING, allowNull: false, validate: { isIn: [[...ALERT_STATES]] } },
         severity: { type: DataTypes.STRING, allowNull: false },
         assigneeId: { type: DataTypes.INTEGER, allowNull: true },

@@ -19,6 +19,8 @@ export class Series extends Model<InferAttributes<Series>, InferCreationAttribut
   /** Sampling interval in milliseconds; null when the record is irregular and kept as it comes. */
   declare intervalMs: number | null;
   declare timeZone: CreationOptional<string>;
+  /** How long the series may go without new data before it is late; null = derived from the interval (lib/alerts/lateness.ts). */
+  declare lateAfterMs: CreationOptional<number | null>;
   declare csvMapping: CsvMapping;
   /** Engine settings, always validated with `analysisSettingsSchema` before they are stored. */
   declare settings: Record<string, unknown>;
@@ -41,6 +43,7 @@ export class Series extends Model<InferAttributes<Series>, InferCreationAttribut
         description: { type: DataTypes.TEXT, allowNull: false, defaultValue: '' },
         intervalMs: { type: DataTypes.BIGINT, allowNull: true },
         timeZone: { type: DataTypes.STRING, allowNull: false, defaultValue: 'UTC' },
+        lateAfterMs: { type: DataTypes.BIGINT, allowNull: true, get() { const v = this.getDataValue('lateAfterMs'); return v === null || v === undefined ? null : Number(v); } },
         csvMapping: { type: DataTypes.JSON, allowNull: false },
         settings: { type: DataTypes.JSON, allowNull: false },
         duplicatePolicy: { type: DataTypes.STRING, allowNull: false, defaultValue: 'reject', validate: { isIn: [['reject', 'replace']] } },

@@ -26,6 +26,7 @@ import { ApiToken } from './ApiToken';
 import { UserPreference } from './UserPreference';
 import { WebhookEndpoint } from './WebhookEndpoint';
 import { WebhookAttempt, WebhookDelivery } from './WebhookDelivery';
+import { ReportSchedule } from './ReportSchedule';
 
 const initialised = new WeakSet<Sequelize>();
 
@@ -76,7 +77,7 @@ function associate(): void {
 const MODELS = [
   User, Series, Observation, IngestRun, AnalysisSnapshot, AlertRule, RuleEvaluation, Alert, AlertEvent, Note,
   NoteRevision, IngestToken, MailMessage, AuditEntry, Watch, Lease, SettingsChange, SignInThrottle, UserToken,
-  Mark, BacktestJob, AppState, ApiToken, UserPreference, Site, WebhookEndpoint, WebhookDelivery, WebhookAttempt,
+  Mark, BacktestJob, AppState, ApiToken, UserPreference, Site, WebhookEndpoint, WebhookDelivery, WebhookAttempt, ReportSchedule,
 ];
 
 /** Binds the models to this process's one Sequelize instance (idempotent) and returns it once it is ready. */
@@ -93,7 +94,7 @@ export async function db(): Promise<Sequelize> {
 export {
   User, Series, Observation, IngestRun, AnalysisSnapshot, AlertRule, RuleEvaluation, Alert, AlertEvent, Note,
   NoteRevision, IngestToken, MailMessage, AuditEntry, Watch, Lease, SettingsChange, SignInThrottle, UserToken,
-  Mark, BacktestJob, AppState, ApiToken, UserPreference, Site, WebhookEndpoint, WebhookDelivery, WebhookAttempt,
+  Mark, BacktestJob, AppState, ApiToken, UserPreference, Site, WebhookEndpoint, WebhookDelivery, WebhookAttempt, ReportSchedule,
 };
 /**
  * `writeTransaction` of models/db.ts with the models bound first: a web worker's first request may be a write

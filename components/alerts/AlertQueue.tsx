@@ -18,11 +18,13 @@ import { indicatorLabel } from '@/lib/display/analysis-labels';
 import { tauWithDirection } from '@/lib/alerts/wording';
 import type { AlertListItem } from '@/lib/alerts/queries';
 
+const KIND_WORDS: Record<AlertListItem['kind'], string> = { 'slowing-down': 'slowing down', 'abrupt-shift': 'abrupt shift', 'data-late': 'data late' };
+
 export interface QueueFilters {
   queue: 'triage' | 'escalated' | 'mine' | 'closed';
   series: string;
   severity: '' | 'watch' | 'warning';
-  kind: '' | 'slowing-down' | 'abrupt-shift';
+  kind: '' | 'slowing-down' | 'abrupt-shift' | 'data-late';
   age: string;
   sort: 'newest' | 'oldest' | 'severity' | 'tau' | 'updated';
   page: number;
@@ -118,6 +120,7 @@ export function AlertQueue({ initialFilters, initialPage, initialSeries }: { ini
             <option value="">Any kind</option>
             <option value="slowing-down">Slowing down</option>
             <option value="abrupt-shift">Abrupt shift</option>
+            <option value="data-late">Data late</option>
           </select>
         </Field>
         <Field label="Age" tone="filter">
@@ -144,14 +147,16 @@ export function AlertQueue({ initialFilters, initialPage, initialSeries }: { ini
           {data.items.map((a) => (
             <tr key={a.id} data-alert={a.id}>
               <td className={CELL}>
-                <Link href={`/alerts/${a.id}`} className="font-medium text-tide hover:underline">#{a.id} {a.rule ? indicatorLabel(a.rule.indicator) : 'abrupt shift'}</Link>
-                <span className="block text-xs text-ink-soft" data-kind={a.kind}>{a.kind === 'abrupt-shift' ? 'abrupt shift' : 'slowing down'}</span>
+                <Link href={`/alerts/${a.id}`} className="font-medium text-tide hover:underline">#{a.id} {a.rule ? indicatorLabel(a.rule.indicator) : KIND_WORDS[a.kind]}</Link>
+                <span className="block text-xs text-ink-soft" data-kind={a.kind}>{KIND_WORDS[a.kind]}</span>
               </td>
               <td className={CELL}><Link href={`/series/${a.series.slug}`} className="hover:underline">{a.series.name}</Link></td>
               <td className={CELL}><SeverityBadge severity={a.severity} /></td>
               <td className={CELL}><AlertStateBadge state={a.state} /></td>
               <td className={`num ${CELL} whitespace-nowrap`}>
-                {a.kind === 'abrupt-shift'
+                {a.kind === 'data-late'
+                  ? <>no data since <LocalTime t={a.silence?.lastDataAt ?? null} timeZone={a.series.timeZone} />{a.silence?.backAt ? <> · back <LocalTime t={a.silence.backAt} timeZone={a.series.timeZone} /></> : ''}</>
+                  : a.kind === 'abrupt-shift'
                   ? <>shift at <LocalTime t={a.shift?.time ?? null} timeZone={a.series.timeZone} />{a.shift?.size !== null && a.shift?.size !== undefined ? ` · size ${formatValue(a.shift.size)}` : ''}</>
                   : <>τ {tauWithDirection(a.latest.tau, a.latest.direction)} · surrogate p {formatP(a.latest.surrogateP)}</>}
               </td>

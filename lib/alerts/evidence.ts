@@ -64,7 +64,7 @@ export function indicatorFacts(summary: StoredSummary, indicator: string, direct
  * carries the evidence and the rule's latest calibration. `taus` as for indicatorFacts.
  */
 export function evidenceFrom(
-  alert: Pick<Alert, 'id' | 'severity' | 'kind' | 'shiftTime' | 'shiftSize'>,
+  alert: Pick<Alert, 'id' | 'severity' | 'kind' | 'shiftTime' | 'shiftSize'> & Partial<Pick<Alert, 'dataLastAt' | 'dataBackAt'>>,
   series: Series,
   rule: AlertRule | null,
   snapshot: AnalysisSnapshot,
@@ -100,6 +100,7 @@ export function evidenceFrom(
     rule: rule ? presentRule(rule) : null,
     calibration,
     shift: alert.kind === 'abrupt-shift' && alert.shiftTime !== null ? { time: Number(alert.shiftTime), size: alert.shiftSize ?? null } : null,
+    silence: alert.kind === 'data-late' && alert.dataLastAt != null ? { lastDataAt: alert.dataLastAt, backAt: alert.dataBackAt ?? null } : null,
   };
 }
 

@@ -37,6 +37,8 @@ export interface AlertListItem {
   rule: { id: number; indicator: string; direction: string } | null;
   /** the abrupt shift (epoch ms, level change); null for a slowing-down alert */
   shift: { time: number; size: number | null } | null;
+  /** a data-late alert's silence: last observation before it, first after it (null while silent) */
+  silence: { lastDataAt: number; backAt: number | null } | null;
   assignee: { id: number; name: string } | null;
   /** strongest tau while open, seen in the rule's direction */
   peakTau: number | null;
@@ -108,7 +110,7 @@ async function loadAlertQueue(query: AlertQueueQuery, actor: Pick<Actor, 'id'>, 
   const { rows, counts, total } = await sequelize.transaction({ type: Transaction.TYPES.DEFERRED }, async (transaction) => {
     const rows = await sequelize.query<Record<string, unknown>>(
       `SELECT a.id, a.kind, a.state, a.severity, a.version, a.peak_tau, a.evaluation_count, a.dismiss_reason, a.created_at, a.updated_at, a.closed_at,
-              a.shift_time, a.shift_size, s.id AS series_id, s.slug, s.name AS series_name, s.time_zone, r.id AS rule_id, r.indicator, r.direction AS rule_direction,
+              a.shift_time, a.shift_size, a.data_last_at, a.data_back_at, s.id AS series_id, s.slug, s.name AS series_name, s.time_zone, r.id AS rule_id, r.indicator, r.direction AS rule_direction,
               u.id AS assignee_id, u.name AS assignee_name, e.tau, e.direction AS judged_direction, e.surrogate_p, e.kendall_p
        FROM (SELECT a.id FROM alerts a WHERE ${filter.sql} ORDER BY ${ORDER[query.sort]} LIMIT :limit OFFSET :offset) page
        JOIN alerts a ON a.id = page.id
@@ -142,6 +144,7 @@ async function loadAlertQueue(query: AlertQueueQuery, actor: Pick<Actor, 'id'>, 
     kind: (r.kind ?? 'slowing-down') as AlertKind,
     rule: r.rule_id === null ? null : { id: Number(r.rule_id), indicator: String(r.indicator), direction: String(r.rule_direction) },
     shift: r.shift_time === null ? null : { time: Number(r.shift_time), size: r.shift_size as number | null },
+    silence: r.data_last_at === null ? null : { lastDataAt: Number(r.data_last_at), backAt: r.data_back_at === null ? null : Number(r.data_back_at) },
     assignee: r.assignee_id === null ? null : { id: Number(r.assignee_id), name: String(r.assignee_name) },
     peakTau: r.peak_tau as number | null,
     latest: { tau: r.tau as number | null, direction: (r.judged_direction ?? r.rule_direction ?? null) as string | null, surrogateP: r.surrogate_p as number | null, kendallP: r.kendall_p as number | null },
@@ -217,6 +220,7 @@ export async function fetchAlertDetail(id: number, actor?: Pick<Actor, 'role'>, 
     /** strongest tau while open, seen in the rule's direction */
     peakTau: alert.peakTau,
     shift: alert.kind === 'abrupt-shift' && alert.shiftTime !== null ? { time: Number(alert.shiftTime), size: alert.shiftSize } : null,
+    silence: alert.kind === 'data-late' && alert.dataLastAt !== null ? { lastDataAt: alert.dataLastAt, backAt: alert.dataBackAt } : null,
     evaluationCount: alert.evaluationCount,
     dismissReason: alert.dismissReason,
     createdAt: alert.createdAt.toISOString(),

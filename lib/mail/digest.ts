@@ -39,7 +39,8 @@ export async function enqueueDigests(now = new Date()): Promise<number> {
       entries.push({
         alertId: alert.id,
         seriesName: joined.series?.name ?? `series ${alert.seriesId}`,
-        indicator: alert.kind === 'abrupt-shift' ? null : joined.rule?.indicator ?? '',
+        kind: alert.kind,
+        indicator: alert.kind === 'slowing-down' ? joined.rule?.indicator ?? '' : null,
         direction: evaluation?.direction ?? joined.rule?.direction ?? null,
         severity: alert.severity,
         state: alert.state,

@@ -1,5 +1,5 @@
 import { ANALYSIS_CAUTION } from '@/lib/engine/analyze';
-import { formatP, formatUtc, formatValue } from '@/lib/display/format';
+import { formatAge, formatP, formatUtc, formatValue } from '@/lib/display/format';
 import { publicBaseUrl } from '@/lib/runtime/config';
 import { DIRECTION_WORDS, describeExtent, indicatorLabel } from '@/lib/display/analysis-labels';
 import { describeCalibration, kendallPLabel, tauThreshold, tauWithDirection, type CalibrationLine } from '@/lib/alerts/wording';
@@ -26,7 +26,7 @@ type Row = [label: string, value: string];
  * The one layout of every message: heading, an optional table of facts, paragraphs, an optional button link,
  * and the standing caution when the message carries indicator evidence. Everything user-supplied is escaped here.
  */
-function compose(parts: { subject: string; heading: string; intro: string[]; rows?: Row[]; link?: { href: string; label: string }; outro?: string[]; caution?: boolean }): RenderedMail {
+function compose(parts: { subject: string; heading: string; intro: string[]; rows?: Row[]; link?: { href: string; label: string }; outro?: string[]; caution?: boolean; unsubscribe?: string }): RenderedMail {
   const rows = parts.rows ?? [];
   const width = Math.max(0, ...rows.map(([label]) => label.length));
   const text = [
@@ -37,6 +37,7 @@ function compose(parts: { subject: string; heading: string; intro: string[]; row
     ...(parts.link ? [`${parts.link.label}: ${parts.link.href}`, ''] : []),
     ...(parts.outro ?? []).flatMap((p) => [p, '']),
     ...(parts.caution ? [`Caution: ${ANALYSIS_CAUTION}`, ''] : []),
+    ...(parts.unsubscribe ? [`To stop receiving these: ${parts.unsubscribe}`, ''] : []),
     '— Brinkwatch',
   ].join('\n');
   const cell = 'padding:4px 12px 4px 0;vertical-align:top;border-bottom:1px solid #e3e0d8';
@@ -49,6 +50,7 @@ ${rows.length ? `<table style="border-collapse:collapse;margin:8px 0 16px;font-s
 ${parts.link ? `<p style="margin:16px 0"><a href="${escapeHtml(parts.link.href)}" style="display:inline-block;background:#1f6f8b;color:#fff;text-decoration:none;padding:10px 16px;border-radius:6px">${escapeHtml(parts.link.label)}</a></p><p style="font-size:12px;color:#52606d;margin:0 0 16px">${escapeHtml(parts.link.href)}</p>` : ''}
 ${(parts.outro ?? []).map((p) => `<p style="margin:0 0 12px;line-height:1.5">${escapeHtml(p)}</p>`).join('\n')}
 ${parts.caution ? `<p style="font-size:12px;color:#52606d;border-top:1px solid #e3e0d8;padding-top:12px;margin-top:16px"><strong>Caution:</strong> ${escapeHtml(ANALYSIS_CAUTION)}</p>` : ''}
+${parts.unsubscribe ? `<p style="font-size:12px;color:#52606d;margin-top:12px"><a href="${escapeHtml(parts.unsubscribe)}" style="color:#52606d">Stop receiving these reports</a></p>` : ''}
 </div></body></html>`;
   return { subject: oneLine(parts.subject), text, html };
 }
@@ -56,7 +58,7 @@ ${parts.caution ? `<p style="font-size:12px;color:#52606d;border-top:1px solid #
 /** What an alert message says about the evidence; built by lib/alerts from the alert, its rule (if any) and snapshot. */
 export interface AlertEvidence {
   alertId: number;
-  kind: 'slowing-down' | 'abrupt-shift';
+  kind: 'slowing-down' | 'abrupt-shift' | 'data-late';
   severity: 'watch' | 'warning';
   series: { name: string; slug: string; site: string; timeZone: string };
   /** the rule's indicator; null for an abrupt-shift alert */
@@ -84,6 +86,8 @@ export interface AlertEvidence {
   calibration: CalibrationLine | null;
   /** the abrupt shift an abrupt-shift alert reports */
   shift: { time: number; size: number | null } | null;
+  /** the silence a data-late alert reports: last observation before it, first after it (null while silent) */
+  silence?: { lastDataAt: number; backAt: number | null } | null;
 }
 
 function alertLink(alertId: number): string {
@@ -115,6 +119,14 @@ function describeRule(r: NonNullable<AlertEvidence['rule']>): string {
 function evidenceRows(e: AlertEvidence): Row[] {
   const series: Row = ['Series', `${e.series.name} (${e.series.slug})${e.series.site ? `, ${e.series.site}` : ''}`];
   const span: Row = ['Data span', `${formatUtc(e.dataFrom)} to ${formatUtc(e.dataTo)} (${e.n} points analysed)`];
+  if (e.kind === 'data-late') {
+    return [
+      series,
+      ['Kind', 'data late (the series stopped delivering)'],
+      ['Last data', formatUtc(e.silence?.lastDataAt ?? null)],
+      ['Data back', e.silence?.backAt ? formatUtc(e.silence.backAt) : 'not yet'],
+    ];
+  }
   if (e.kind === 'abrupt-shift') {
     return [
       series,
@@ -221,7 +233,8 @@ export function passwordResetMail(input: { name: string; link: string; expiresAt
 export interface DigestEntry {
   alertId: number;
   seriesName: string;
-  /** the rule's indicator; null for an abrupt-shift alert */
+  kind: AlertEvidence['kind'];
+  /** the rule's indicator; null for an abrupt-shift or data-late alert */
   indicator: string | null;
   direction: string | null;
   severity: string;
@@ -240,10 +253,94 @@ export function digestMail(input: { name: string; since: Date; entries: DigestEn
     rows: input.entries.map((e) => [
       `#${e.alertId} ${e.seriesName}`,
       e.indicator === null
-        ? `${e.severity}, abrupt shift, ${e.state} — ${alertLink(e.alertId)}`
+        ? `${e.severity}, ${e.kind === 'data-late' ? 'data late' : 'abrupt shift'}, ${e.state} — ${alertLink(e.alertId)}`
         : `${e.severity}, ${indicatorLabel(e.indicator)}, tau ${tauWithDirection(e.tau, e.direction)}, surrogate p ${formatP(e.surrogateP)}, ${e.state} — ${alertLink(e.alertId)}`,
     ]),
     link: { href: `${publicBaseUrl()}/alerts`, label: 'Open the alert queues' },
     caution: true,
+  });
+}
+
+/** What a data-late or data-back message names: the alert, its series and the silence. */
+interface SilenceFacts {
+  alertId: number;
+  series: { name: string; slug: string; site: string };
+  lastDataAt: number;
+}
+
+function silenceRows(f: SilenceFacts): Row[] {
+  return [
+    ['Series', `${f.series.name} (${f.series.slug})${f.series.site ? `, ${f.series.site}` : ''}`],
+    ['Last data', formatUtc(f.lastDataAt)],
+  ];
+}
+
+/** A series stopped delivering for longer than its lateness allows: a sensor, logger or transfer to check. */
+export function dataLateMail(f: SilenceFacts & { lateAfterMs: number; now: number }): RenderedMail {
+  return compose({
+    subject: `[Brinkwatch] Data late: ${f.series.name} (alert #${f.alertId})`,
+    heading: `No new data from ${f.series.name}`,
+    intro: [
+      `${f.series.name} has delivered nothing for ${formatAge(f.now - f.lastDataAt)}; it counts as late after ${formatAge(f.lateAfterMs)}. The sensor, its logger or the transfer may need a look.`,
+      'While no data arrive, no early-warning indicator of this series is updated. The alert closes by itself when data return.',
+    ],
+    rows: silenceRows(f),
+    link: { href: alertLink(f.alertId), label: 'Open the alert' },
+    outro: ['You receive this because you watch this series. Change it on the series page.'],
+  });
+}
+
+/** The data of a silent series returned, and its data-late alert closed by itself. */
+export function dataBackMail(f: SilenceFacts & { backAt: number }): RenderedMail {
+  return compose({
+    subject: `[Brinkwatch] Data back: ${f.series.name} (alert #${f.alertId})`,
+    heading: `${f.series.name} delivers again`,
+    intro: [`New data reached Brinkwatch after a silence of ${formatAge(f.backAt - f.lastDataAt)} in the record. The data-late alert closed by itself.`],
+    rows: [...silenceRows(f), ['Data back', formatUtc(f.backAt)]],
+    link: { href: alertLink(f.alertId), label: 'See the alert' },
+    outro: ['You receive this because you watch this series. Change it on the series page.'],
+  });
+}
+
+/** What a scheduled period report mail states; built by lib/reports/schedules from the assembled report. */
+export interface PeriodReportMailFacts {
+  scheduleName: string;
+  scope: string;
+  periodLabel: string;
+  from: string;
+  to: string;
+  seriesCount: number;
+  completeness: number | null;
+  alertsOpened: number;
+  decided: number;
+  undecided: number;
+  medianHoursToDecision: number | null;
+  lateStretches: number;
+  changes: number;
+  /** one line per series and per alert, already worded */
+  seriesLines: Row[];
+  alertLines: Row[];
+  reportLink: string;
+  unsubscribeLink: string;
+}
+
+/**
+ * A scheduled period report, readable without an account: the headline numbers, one line per series and per alert
+ * opened, the caution, a link to the full report for those who sign in, and an unsubscribe link that needs none.
+ */
+export function periodReportMail(f: PeriodReportMailFacts): RenderedMail {
+  const percent = f.completeness === null ? 'not defined (irregular records only)' : `${(f.completeness * 100).toFixed(1)} %`;
+  return compose({
+    subject: `[Brinkwatch] ${f.scheduleName}: period report ${f.periodLabel} (${f.scope})`,
+    heading: `Period report ${f.periodLabel}: ${f.scope}`,
+    intro: [
+      `The ${f.scheduleName} report for ${f.from} to ${f.to} (UTC days): ${f.seriesCount} series, data completeness ${percent}, ${f.lateStretches} late stretch${f.lateStretches === 1 ? '' : 'es'}.`,
+      `${f.alertsOpened} alert${f.alertsOpened === 1 ? '' : 's'} opened; ${f.decided} decided by the team${f.medianHoursToDecision === null ? '' : ` (median time to decision ${f.medianHoursToDecision.toFixed(1)} h)`}, ${f.undecided} awaiting a decision. ${f.changes} change${f.changes === 1 ? '' : 's'} of settings or rules.`,
+    ],
+    rows: [...f.seriesLines, ...f.alertLines],
+    link: { href: f.reportLink, label: 'Open the full report (sign-in needed)' },
+    outro: ['You receive this because a lead of the team added your address to this scheduled report.'],
+    caution: true,
+    unsubscribe: f.unsubscribeLink,
   });
 }

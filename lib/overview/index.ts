@@ -5,11 +5,10 @@ import { INDICATOR_NAMES, type IndicatorName } from '@/lib/engine/settings';
 import { sparkline, sparkPath } from '@/lib/display/sparkline';
 import { cachedRead } from '@/lib/db/read-cache';
 
-/** How many sampling intervals may pass without new data before a series counts as late. */
-export const LATE_AFTER_INTERVALS = 3;
-/** For series without a fixed interval (irregular records), late after two days without data. */
-export const LATE_AFTER_MS_IRREGULAR = 2 * 86_400_000;
-export type Freshness = 'fresh' | 'late' | 'no-data';
+import { freshnessOf, type Freshness } from '@/lib/alerts/lateness';
+
+// Lateness has one definition, shared with the data-late alerts.
+export { LATE_AFTER_INTERVALS, LATE_AFTER_MS_IRREGULAR, freshnessOf, type Freshness } from '@/lib/alerts/lateness';
 /** quiet: no rule passes; watch/warning: a rule of that severity passes now but no alert is open; alert: one is open. */
 export type SeriesState = 'not-analysed' | 'quiet' | 'watch' | 'warning' | 'alert';
 
@@ -37,6 +36,8 @@ export interface OverviewRow {
   unit: string;
   timeZone: string;
   intervalMs: number | null;
+  /** the series' own lateness setting (null = derived from the interval) */
+  lateAfterMs: number | null;
   lastDataAt: number | null;
   freshness: Freshness;
   state: SeriesState;
@@ -62,13 +63,6 @@ export interface SeriesOverview {
   generatedAt: number;
 }
 
-/** Late when the last observation is older than 3 intervals (2 days for irregular records). */
-export function freshnessOf(lastDataAt: number | null, intervalMs: number | null, now: number): Freshness {
-  if (lastDataAt === null) return 'no-data';
-  const allowed = intervalMs ? LATE_AFTER_INTERVALS * intervalMs : LATE_AFTER_MS_IRREGULAR;
-  return now - lastDataAt > allowed ? 'late' : 'fresh';
-}
-
 function sparkOf(indicator: string, curve: (number | null)[]): Spark {
   const values = sparkline(curve);
   return { indicator, points: values.length, path: sparkPath(values) };
@@ -83,6 +77,7 @@ interface SeriesRow {
   unit: string;
   time_zone: string;
   interval_ms: number | null;
+  late_after_ms: number | null;
   last_t: number | null;
   snap_id: number | null;
   rule_indicator: string | null;
@@ -162,7 +157,7 @@ export async function fetchSeriesOverview(actorId: number | null = null, now = D
     if (actorId !== null && group.assignee_id === actorId) queues.mine += n;
   }
   return {
-    rows: stored.rows.map((row) => ({ ...row, freshness: freshnessOf(row.lastDataAt, row.intervalMs, now) })),
+    rows: stored.rows.map((row) => ({ ...row, freshness: freshnessOf(row.lastDataAt, row.intervalMs, now, row.lateAfterMs) })),
     queues,
     sites: stored.sites,
     generatedAt: now,
@@ -192,7 +187,7 @@ async function loadOverview(): Promise<StoredOverview> {
            (SELECT MAX(id) FROM analysis_snapshots x WHERE x.series_id = s.id AND x.status = 'ok') AS snap_id,
            (SELECT indicator FROM alert_rules r WHERE r.series_id = s.id AND r.active = 1 ORDER BY r.id LIMIT 1) AS rule_indicator
          FROM series s WHERE s.retired_at IS NULL)
-       SELECT b.id, b.slug, b.name, b.site, st.slug AS site_slug, b.unit, b.time_zone, b.interval_ms, b.last_t, b.snap_id, b.rule_indicator,
+       SELECT b.id, b.slug, b.name, b.site, st.slug AS site_slug, b.unit, b.time_zone, b.interval_ms, b.late_after_ms, b.last_t, b.snap_id, b.rule_indicator,
          a.created_at AS snap_created,
          json_extract(a.summary, '$.kendall') AS kendall,
          json_object(${SURROGATE_P}) AS surrogate_p
@@ -257,6 +252,7 @@ async function loadOverview(): Promise<StoredOverview> {
       unit: s.unit,
       timeZone: s.time_zone,
       intervalMs,
+      lateAfterMs: s.late_after_ms === null ? null : Number(s.late_after_ms),
       lastDataAt,
       state,
       openAlerts: open?.count ?? 0,

@@ -82,6 +82,8 @@ const configSchema = z.object({
    * in by the next intake pass and analysed in the next analysis cycle instead of racing them on the same tick.
    */
   DEMO_FEED_CRON: cron('30 */2 * * * *'),
+  /** The freshness watch (data-late alerts open and close) and the due scheduled reports: every 5 minutes. */
+  FRESHNESS_CRON: cron('*/5 * * * *'),
   START_SCHEDULER: flag(true),
   /** Web processes sharing the port; unset = one per core (read by scripts/web.mjs after the start script validated it). */
   WEB_WORKERS: whole(1, 1, 256).optional(),
@@ -141,7 +143,7 @@ export function publicBaseUrl(): string {
   return (config().NEXTAUTH_URL ?? `http://localhost:${appPort()}`).replace(/\/$/, '');
 }
 
-export function cronSetting(name: 'INGEST_CRON' | 'ANALYSIS_CRON' | 'MAIL_CRON' | 'DIGEST_CRON' | 'BACKTEST_CRON' | 'DEMO_FEED_CRON' | 'WEBHOOK_CRON'): string {
+export function cronSetting(name: 'INGEST_CRON' | 'ANALYSIS_CRON' | 'MAIL_CRON' | 'DIGEST_CRON' | 'BACKTEST_CRON' | 'DEMO_FEED_CRON' | 'WEBHOOK_CRON' | 'FRESHNESS_CRON'): string {
   return config()[name];
 }
 

@@ -105,6 +105,9 @@ export const seriesSettingsSchema = z.preprocess((input) => {
   return { ...('spanPoints' in input ? withoutSpan : LIVE_SETTINGS_DEFAULTS), ...input };
 }, analysisSettingsSchema);
 
+/** A lateness allowance: a minute at least (the freshness pass runs every few minutes), ten years at most. */
+const LATE_AFTER = z.number().int().min(60_000, 'At least a minute (60000 ms).').max(3660 * 86_400_000);
+
 /** A site chosen by id; null for none. Wins over `site` (a name) when both are given. */
 const siteIdSchema = z.number().int().positive().nullable();
 
@@ -121,6 +124,8 @@ export const seriesFieldsSchema = z.object({
   description: text(5000).default(''),
   intervalMs: z.number().int().positive().max(100 * 366 * 86_400_000).nullable().default(null),
   timeZone: timeZoneSchema.default('UTC'),
+  /** How long the series may deliver nothing before it is late (ms); null = 3 intervals, or 2 days (lib/alerts/lateness.ts). */
+  lateAfterMs: LATE_AFTER.nullable().default(null),
   csvMapping: csvMappingSchema.default(csvMappingSchema.parse({})),
   settings: seriesSettingsSchema.default(seriesSettingsSchema.parse({})),
   duplicatePolicy: z.enum(['reject', 'replace']).default('reject'),
@@ -140,6 +145,7 @@ export const seriesUpdateSchema = z
     description: text(5000),
     intervalMs: z.number().int().positive().nullable(),
     timeZone: timeZoneSchema,
+    lateAfterMs: LATE_AFTER.nullable(),
     csvMapping: csvMappingSchema,
     settings: seriesSettingsSchema,
     duplicatePolicy: z.enum(['reject', 'replace']),

@@ -20,6 +20,7 @@ export function presentSeries(series: Series) {
     description: series.description,
     intervalMs: series.intervalMs === null ? null : Number(series.intervalMs),
     timeZone: series.timeZone,
+    lateAfterMs: series.lateAfterMs ?? null,
     csvMapping: series.csvMapping,
     settings: series.settings,
     duplicatePolicy: series.duplicatePolicy,

@@ -23,7 +23,7 @@ export interface WebhookPayload {
   series: { slug: string; name: string; site: string };
   alert?: {
     id: number;
-    kind: 'slowing-down' | 'abrupt-shift';
+    kind: 'slowing-down' | 'abrupt-shift' | 'data-late';
     /** the state the event left the alert in */
     state: string;
     severity: 'watch' | 'warning';
@@ -40,6 +40,8 @@ export interface WebhookPayload {
     note?: string | null;
   };
   run?: { id: number; source: string; fileName: string | null; status: string; rowsRead: number; rejected: number; message: string };
+  /** data.late: the last reading before the silence and the allowance it exceeded */
+  silence?: { lastDataAt: string; lateAfterMs: number };
   caution?: string;
 }
 
@@ -71,7 +73,7 @@ function alertHeadline(e: AlertEvidence): string {
  * analysis opened the alert). The event's id names the alert and, for triage, its timeline event, so a second
  * escalation after a reopen is a new event while a repeated enqueue of the same one is not. O(1).
  */
-export function alertWebhookPayload(event: Exclude<WebhookEvent, 'intake.rejected'>, e: AlertEvidence, change: AlertChange | null, occurredAt: Date): WebhookPayload {
+export function alertWebhookPayload(event: Exclude<WebhookEvent, 'intake.rejected' | 'data.late'>, e: AlertEvidence, change: AlertChange | null, occurredAt: Date): WebhookPayload {
   const url = `${publicBaseUrl()}/alerts/${e.alertId}`;
   const headline = alertHeadline(e);
   const subject = where(e.series);
@@ -137,5 +139,26 @@ export function rejectedRunPayload(run: RejectedRun, series: { slug: string; nam
     url,
     series: { slug: series.slug, name: series.name, site: series.site },
     run: { ...run, status: 'rejected' },
+  };
+}
+
+/** The body of `data.late`: the data-late alert a silent series opened, with the last reading and the allowance. O(1). */
+export function dataLatePayload(
+  late: { alertId: number; lastDataAt: number; lateAfterMs: number },
+  series: { slug: string; name: string; site: string },
+  occurredAt: Date,
+): WebhookPayload {
+  const url = `${publicBaseUrl()}/alerts/${late.alertId}`;
+  const hours = Math.round(late.lateAfterMs / 360_000) / 10;
+  return {
+    id: `data.late:alert-${late.alertId}`,
+    event: 'data.late',
+    occurredAt: occurredAt.toISOString(),
+    title: `Data late: ${series.name} (alert #${late.alertId})`,
+    text: oneLine(`Brinkwatch: no data from ${where(series)} since ${formatUtc(late.lastDataAt)}, longer than its allowance of ${hours} h. ${url}`),
+    url,
+    severity: 'warning',
+    series: { slug: series.slug, name: series.name, site: series.site },
+    silence: { lastDataAt: new Date(late.lastDataAt).toISOString(), lateAfterMs: late.lateAfterMs },
   };
 }

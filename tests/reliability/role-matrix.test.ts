@@ -20,6 +20,12 @@ const EXPECTED: Record<string, Role | 'public' | 'token'> = {
   'POST /api/auth/reset-request': 'public',
   'POST /api/invitations/[token]/accept': 'public',
   'POST /api/password-resets/[token]': 'public',
+  'POST /api/reports/unsubscribe/[token]': 'public',
+  'GET /api/reports/period': 'viewer',
+  'GET /api/reports/schedules': 'lead',
+  'POST /api/reports/schedules': 'lead',
+  'PATCH /api/reports/schedules/[id]': 'lead',
+  'DELETE /api/reports/schedules/[id]': 'lead',
 
   'GET /api/account': 'viewer',
   'PATCH /api/account': 'viewer',

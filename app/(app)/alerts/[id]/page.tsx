@@ -40,7 +40,7 @@ export default async function AlertPage({ params }: { params: Promise<{ id: stri
       </nav>
       <header className="flex flex-wrap items-center gap-3">
         <h1 className="text-xl font-semibold">
-          Alert #{detail.id}: {rule ? `${indicatorLabel(rule.indicator)} ${DIRECTION_WORDS[rule.direction]}` : 'abrupt shift of level'} on <Link href={`/series/${detail.series.slug}`} className="text-tide hover:underline">{detail.series.name}</Link>
+          Alert #{detail.id}: {rule ? `${indicatorLabel(rule.indicator)} ${DIRECTION_WORDS[rule.direction]}` : detail.kind === 'data-late' ? 'data late' : 'abrupt shift of level'} on <Link href={`/series/${detail.series.slug}`} className="text-tide hover:underline">{detail.series.name}</Link>
         </h1>
         <SeverityBadge severity={detail.severity} />
         <span data-testid="alert-state"><AlertStateBadge state={detail.state} /></span>
@@ -59,6 +59,13 @@ export default async function AlertPage({ params }: { params: Promise<{ id: stri
                 <dt className="text-ink-soft">Kendall p</dt><dd>{kendallPLabel(lastEval?.kendallP)}</dd>
                 <dt className="text-ink-soft">Evaluations</dt><dd>{detail.evaluationCount}</dd>
                 <dt className="text-ink-soft">False alarms</dt><dd className="sm:col-span-3" data-testid="rule-calibration">{describeCalibration(rule.calibration)}</dd>
+              </dl>
+            ) : detail.silence ? (
+              <dl className="num mb-3 grid grid-cols-2 gap-x-4 gap-y-1 text-sm sm:grid-cols-4" data-testid="alert-evidence">
+                <dt className="text-ink-soft">Kind</dt><dd>data late: the series stopped delivering</dd>
+                <dt className="text-ink-soft">Last data</dt><dd><LocalTime t={detail.silence.lastDataAt} timeZone={tz} withZone /></dd>
+                <dt className="text-ink-soft">Data back</dt><dd>{detail.silence.backAt === null ? 'not yet' : <LocalTime t={detail.silence.backAt} timeZone={tz} withZone />}</dd>
+                <dt className="text-ink-soft">Closes</dt><dd>by itself when data return</dd>
               </dl>
             ) : (
               <dl className="num mb-3 grid grid-cols-2 gap-x-4 gap-y-1 text-sm sm:grid-cols-4" data-testid="alert-evidence">
