@@ -13,6 +13,7 @@ import * as markNames from './0009-marks-and-triage-names';
 import * as analysisProvenance from './0012-analysis-provenance';
 import * as personalApiTokens from './0013-personal-api-tokens';
 import * as userPreferences from './0014-user-preferences';
+import * as stationData from './0016-station-data';
 
 /**
  * The ordered list of schema changes. Listed explicitly (not globbed) so the same list works in the Next.js server
@@ -31,6 +32,7 @@ const MIGRATIONS = [
   { name: '0012-analysis-provenance', ...analysisProvenance },
   { name: '0013-personal-api-tokens', ...personalApiTokens },
   { name: '0014-user-preferences', ...userPreferences },
+  { name: '0016-station-data', ...stationData },
 ];
 
 async function migrator(): Promise<Umzug<QueryInterface>> {

@@ -20,6 +20,8 @@ export class Series extends Model<InferAttributes<Series>, InferCreationAttribut
   declare csvMapping: CsvMapping;
   /** Engine settings, always validated with `analysisSettingsSchema` before they are stored. */
   declare settings: Record<string, unknown>;
+  /** Quality-control settings, validated with `qcConfigSchema` (lib/schemas/quality.ts); null: no automatic tests. */
+  declare qc: CreationOptional<Record<string, unknown> | null>;
   declare duplicatePolicy: CreationOptional<'reject' | 'replace'>;
   declare needsAnalysis: CreationOptional<boolean>;
   declare dataChangedAt: Date | null;
@@ -40,6 +42,7 @@ export class Series extends Model<InferAttributes<Series>, InferCreationAttribut
         timeZone: { type: DataTypes.STRING, allowNull: false, defaultValue: 'UTC' },
         csvMapping: { type: DataTypes.JSON, allowNull: false },
         settings: { type: DataTypes.JSON, allowNull: false },
+        qc: { type: DataTypes.JSON, allowNull: true },
         duplicatePolicy: { type: DataTypes.STRING, allowNull: false, defaultValue: 'reject', validate: { isIn: [['reject', 'replace']] } },
         needsAnalysis: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
         dataChangedAt: { type: DataTypes.DATE, allowNull: true },

@@ -23,6 +23,7 @@ import { BacktestJob } from './BacktestJob';
 import { AppState } from './AppState';
 import { ApiToken } from './ApiToken';
 import { UserPreference } from './UserPreference';
+import { Feed } from './Feed';
 
 const initialised = new WeakSet<Sequelize>();
 
@@ -68,7 +69,7 @@ function associate(): void {
 const MODELS = [
   User, Series, Observation, IngestRun, AnalysisSnapshot, AlertRule, RuleEvaluation, Alert, AlertEvent, Note,
   NoteRevision, IngestToken, MailMessage, AuditEntry, Watch, Lease, SettingsChange, SignInThrottle, UserToken,
-  Mark, BacktestJob, AppState, ApiToken, UserPreference,
+  Mark, BacktestJob, AppState, ApiToken, UserPreference, Feed,
 ];
 
 /** Binds the models to this process's one Sequelize instance (idempotent) and returns it once it is ready. */
@@ -85,7 +86,7 @@ export async function db(): Promise<Sequelize> {
 export {
   User, Series, Observation, IngestRun, AnalysisSnapshot, AlertRule, RuleEvaluation, Alert, AlertEvent, Note,
   NoteRevision, IngestToken, MailMessage, AuditEntry, Watch, Lease, SettingsChange, SignInThrottle, UserToken,
-  Mark, BacktestJob, AppState, ApiToken, UserPreference,
+  Mark, BacktestJob, AppState, ApiToken, UserPreference, Feed,
 };
 /**
  * `writeTransaction` of models/db.ts with the models bound first: a web worker's first request may be a write

@@ -1,0 +1,40 @@
+import { DataTypes, type QueryInterface } from 'sequelize';
+
+/**
+ * Station data: quality flags on every observation, quality-control settings per series, and feeds that map one
+ * station file onto several series.
+ * - `observations.flag`: the point's flag on the QARTOD scale (1 pass, 2 not evaluated, 3 suspect, 4 fail,
+ *   9 missing; U.S. IOOS QARTOD manuals); 2 for every row stored before this migration, since nothing judged them.
+ * - `observations.flag_test`: which test set that flag (`gross-range`, `spike`, `rate-of-change`, `flat-line`,
+ *   `sampling-interval`), `source` when the file's own flag column did, `analyst` for an override; null when none.
+ * - `observations.source_flag`: the flag the file carried, kept apart so a re-run of the tests can combine it again.
+ * - `series.qc`: the series' quality-control settings (`qcConfigSchema` in lib/schemas/quality.ts), null for none.
+ * - `feeds`: a file layout (time column and format, value columns → series slugs, flag columns).
+ * SQLite adds a column with a constant default without rewriting the table, so this is instant on a large record.
+ */
+export async function up({ context: q }: { context: QueryInterface }): Promise<void> {
+  await q.addColumn('observations', 'flag', { type: DataTypes.INTEGER, allowNull: false, defaultValue: 2 });
+  await q.addColumn('observations', 'flag_test', { type: DataTypes.STRING(32), allowNull: true });
+  await q.addColumn('observations', 'source_flag', { type: DataTypes.INTEGER, allowNull: true });
+  await q.addColumn('series', 'qc', { type: DataTypes.JSON, allowNull: true });
+  await q.createTable('feeds', {
+    id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+    slug: { type: DataTypes.STRING, allowNull: false, unique: true },
+    name: { type: DataTypes.STRING, allowNull: false },
+    time_column: { type: DataTypes.STRING, allowNull: false },
+    time_format: { type: DataTypes.STRING, allowNull: false },
+    columns: { type: DataTypes.JSON, allowNull: false },
+    flag_columns: { type: DataTypes.JSON, allowNull: false },
+    created_by: { type: DataTypes.INTEGER, allowNull: true },
+    created_at: { type: DataTypes.DATE, allowNull: false },
+    updated_at: { type: DataTypes.DATE, allowNull: false },
+  });
+}
+
+export async function down({ context: q }: { context: QueryInterface }): Promise<void> {
+  await q.dropTable('feeds');
+  await q.removeColumn('series', 'qc');
+  await q.removeColumn('observations', 'source_flag');
+  await q.removeColumn('observations', 'flag_test');
+  await q.removeColumn('observations', 'flag');
+}
