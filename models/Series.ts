@@ -5,6 +5,7 @@ export interface CsvMapping {
   timeColumn: string | number;
   valueColumn: string | number;
   timeFormat: string;
+  flagColumn?: string | number;
 }
 
 export class Series extends Model<InferAttributes<Series>, InferCreationAttributes<Series>> {

@@ -9,6 +9,8 @@ import { CsvFileError, readCsv, type CsvInput, type CsvLayout } from './csv';
 import { collectCsvRows, collectPushedRows, type CollectedRows, type IntakeMapping, type RejectedRow } from './rows';
 import { classifyAgainstStored, conflictRejections, connectionOf, ROW_CONFLICT, ROW_DUPLICATE, ROW_NEW, writeRows } from './store';
 import { guessTimeFormat, type TimeFormat } from './time-formats';
+import { judgeIncoming } from '@/lib/quality/records';
+import { FLAG_LABELS, type QartodFlag } from '@/lib/quality/flags';
 
 /** A run's lease lives this long without renewal; a run whose holder died is marked failed once it has lapsed. */
 const RUN_LEASE_MS = 30_000;
@@ -44,6 +46,8 @@ export interface IngestOutcome {
   notes: string[];
   message: string;
   durationMs: number;
+  /** How many of the points written carry each QARTOD flag, by its label (e.g. { pass: 98, fail: 2 }). */
+  flagged: Record<string, number>;
 }
 
 export function mappingFor(series: Series, overrides: Partial<IntakeMapping> = {}): IntakeMapping {
@@ -54,6 +58,7 @@ export function mappingFor(series: Series, overrides: Partial<IntakeMapping> = {
     timeFormat: (overrides.timeFormat ?? base.timeFormat ?? 'iso8601') as TimeFormat,
     delimiter: overrides.delimiter,
     header: overrides.header,
+    flagColumn: overrides.flagColumn ?? base.flagColumn,
   };
 }
 
@@ -121,6 +126,7 @@ async function ingestUnderLease(request: IngestRequest, key: string, started: nu
     return {
       runId: run.id, status: fields.status, alreadyApplied: fields.alreadyApplied ?? false, previousRunId: fields.previousRunId ?? null,
       ...counts, rejectedRows: fields.rejectedRows ?? [], notes: fields.notes ?? [], message: fields.message, durationMs,
+      flagged: fields.flagged ?? {},
     };
   };
   const alreadyApplied = async (run: IngestRun, previous: IngestRun, transaction?: Transaction) => finish(run, {
@@ -162,7 +168,9 @@ async function ingestUnderLease(request: IngestRequest, key: string, started: nu
       }
       const classified = await classifyAgainstStored(series.id, rows, connectionOf(transaction));
       const replace = series.duplicatePolicy === 'replace';
-      const { inserted, replaced } = await writeRows(transaction, series.id, rows, classified, replace, run.id);
+      const quality = await judgeIncoming(transaction, series, rows);
+      const { inserted, replaced } = await writeRows(transaction, series.id, rows, classified, replace, run.id, quality);
+      const flagged = flagCountsOfWritten(quality.flag, classified.kind, replace);
       let duplicates = rows.duplicatesInInput;
       for (let i = 0; i < classified.kind.length; i++) if (classified.kind[i] === ROW_DUPLICATE) duplicates++;
       const conflicts = replace ? [] : conflictRejections(rows, classified);
@@ -178,8 +186,8 @@ async function ingestUnderLease(request: IngestRequest, key: string, started: nu
         details: { runId: run.id, fileName: request.fileName ?? null, tokenId: request.tokenId ?? null, ...counts },
       }, transaction);
       return finish(run, {
-        ...counts, status: 'succeeded', rejectedRows, notes: rows.notes, message: summaryMessage(counts),
-        report: report(rejectedRows, counts.rejected),
+        ...counts, status: 'succeeded', rejectedRows, notes: rows.notes, message: summaryMessage(counts), flagged,
+        report: { ...report(rejectedRows, counts.rejected), flagged },
       }, transaction);
     });
   } catch (error) {
@@ -188,6 +196,17 @@ async function ingestUnderLease(request: IngestRequest, key: string, started: nu
     await run.reload().catch(() => undefined);
     return finish(run, { status: 'failed', message: `The intake failed before anything was stored: ${message}. Nothing from this run was stored.`, report: {} });
   }
+}
+
+function flagCountsOfWritten(flag: Uint8Array, kind: Uint8Array, replace: boolean): Record<string, number> {
+  const counts: Record<string, number> = {};
+  for (let i = 0; i < flag.length; i++) {
+    if (kind[i] === ROW_NEW || (replace && kind[i] === ROW_CONFLICT)) {
+      const label = FLAG_LABELS[flag[i] as QartodFlag];
+      counts[label] = (counts[label] ?? 0) + 1;
+    }
+  }
+  return counts;
 }
 
 function describeLayout(layout: CsvLayout | null) {

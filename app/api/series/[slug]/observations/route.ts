@@ -6,7 +6,7 @@ import { readQuery } from '@/lib/http/body';
 import { ServiceUnavailableError, UnprocessableError } from '@/lib/http/errors';
 import { observationQuerySchema } from '@/lib/schemas/observation';
 import { findSeriesBySlug } from '@/lib/series/registry';
-import { loadObservations } from '@/lib/analysis/observations';
+import { loadFlaggedObservations } from '@/lib/analysis/observations';
 import { observationsCsvStream } from '@/lib/intake/export';
 import { ingestObservations } from '@/lib/intake/pipeline';
 import { readIntakeBody } from '@/lib/intake/request-body';
@@ -30,9 +30,9 @@ export const GET = handle<{ slug: string }>(async (request, { params }) => {
       headers: { 'content-type': 'text/csv; charset=utf-8', 'content-disposition': `attachment; filename="${series.slug}.csv"` },
     });
   }
-  const { time, value } = await loadObservations(series.id, { ...range, limit: range.limit ?? 100_000 });
+  const { time, value, flag } = await loadFlaggedObservations(series.id, { ...range, limit: range.limit ?? 100_000 });
   const items = new Array(time.length);
-  for (let i = 0; i < time.length; i++) items[i] = { time: formatInstant(time[i]), t: time[i], value: value[i] };
+  for (let i = 0; i < time.length; i++) items[i] = { time: formatInstant(time[i]), t: time[i], value: value[i], flag: flag[i] };
   return NextResponse.json({ slug: series.slug, unit: series.unit, count: items.length, items });
 });
 
