@@ -248,13 +248,34 @@ function columnLabel(column: string | number, header: string[] | null): string {
 
 /** Reads a CSV into validated, sorted, unique rows; file-level problems throw CsvFileError. */
 export async function collectCsvRows(input: CsvInput, mapping: CsvRowMapping, zone: string): Promise<CollectedRows> {
-  const collector = new RowCollector(mapping.timeFormat, zone);
-  const named = typeof mapping.timeColumn === 'string' || typeof mapping.valueColumn === 'string';
+  const [rows] = await collectCsvColumns(input, { ...mapping, values: [{ valueColumn: mapping.valueColumn, flagColumn: mapping.flagColumn, zone }] });
+  return rows;
+}
+
+/** One value column of a file (a station feed's variable), with its flag column and the time zone of its series. */
+export interface ValueColumn {
+  valueColumn: string | number;
+  flagColumn?: string | number;
+  zone: string;
+}
+
+/**
+ * Reads a CSV once into validated, sorted, unique rows for each value column (a station file with many variables
+ * feeds one series per column): every column gets its own rejections, duplicates and notes, since a sensor may be
+ * off while the others read. File-level problems (no such column, wrong delimiter, binary data) throw CsvFileError
+ * for the whole file. O(rows × columns).
+ */
+export async function collectCsvColumns(
+  input: CsvInput,
+  mapping: Omit<CsvRowMapping, 'valueColumn' | 'flagColumn'> & { values: ValueColumn[] },
+): Promise<CollectedRows[]> {
+  const collectors = mapping.values.map((column) => new RowCollector(mapping.timeFormat, column.zone));
+  const first = mapping.values[0];
+  const named = typeof mapping.timeColumn === 'string' || mapping.values.some((v) => typeof v.valueColumn === 'string');
   let timeIndex = -1;
-  let valueIndex = -1;
-  let flagIndex = -1;
-  let flagLabel = '';
-  let labels: [string, string] = ['', ''];
+  let timeLabel = '';
+  let indexes: { value: number; flag: number; valueLabel: string; flagLabel: string }[] = [];
+  let needed = 0;
   let delimiterName = '';
   const resolve = (layout: CsvLayout) => {
     const find = (column: string | number): number => {
@@ -272,45 +293,54 @@ export async function collectCsvRows(input: CsvInput, mapping: CsvRowMapping, zo
       return index;
     };
     timeIndex = find(mapping.timeColumn);
-    valueIndex = find(mapping.valueColumn);
-    if (mapping.flagColumn !== undefined) {
-      flagIndex = find(mapping.flagColumn);
-      flagLabel = columnLabel(mapping.flagColumn, layout.header);
-      collector.hasFlags = true;
-    }
-    labels = [columnLabel(mapping.timeColumn, layout.header), columnLabel(mapping.valueColumn, layout.header)];
-    collector.timeLabel = labels[0];
+    timeLabel = columnLabel(mapping.timeColumn, layout.header);
+    indexes = mapping.values.map((v) => ({
+      value: find(v.valueColumn),
+      flag: v.flagColumn === undefined ? -1 : find(v.flagColumn),
+      valueLabel: columnLabel(v.valueColumn, layout.header),
+      flagLabel: v.flagColumn === undefined ? '' : columnLabel(v.flagColumn, layout.header),
+    }));
+    needed = Math.max(timeIndex, ...indexes.map((c) => Math.max(c.value, c.flag))) + 1;
+    collectors.forEach((collector, k) => {
+      collector.timeLabel = timeLabel;
+      collector.hasFlags = indexes[k].flag !== -1;
+    });
     delimiterName = layout.delimiter === '\t' ? 'tab' : `"${layout.delimiter}"`;
   };
   const looksLikeData = (fields: string[]) => {
     const ti = typeof mapping.timeColumn === 'number' ? mapping.timeColumn : 0;
-    const vi = typeof mapping.valueColumn === 'number' ? mapping.valueColumn : 1;
-    return numericLike(fields[vi]) || parseTime(fields[ti] ?? '', mapping.timeFormat, zone).ok;
+    const vi = typeof first.valueColumn === 'number' ? first.valueColumn : 1;
+    return numericLike(fields[vi]) || parseTime(fields[ti] ?? '', mapping.timeFormat, first.zone).ok;
   };
-  const needed = () => Math.max(timeIndex, valueIndex, flagIndex) + 1;
   const { layout, stats } = await readCsv(input, {
     delimiter: mapping.delimiter,
     header: mapping.header ?? (named ? true : 'auto'),
     looksLikeData,
     onLayout: resolve,
     onRow: (fields, line, problem) => {
-      if (problem) {
-        collector.rowsRead++;
-        return collector.reject(line, null, problem);
+      for (let k = 0; k < collectors.length; k++) {
+        const collector = collectors[k];
+        const column = indexes[k];
+        if (problem) {
+          collector.rowsRead++;
+          collector.reject(line, null, problem);
+        } else if (fields.length < needed) {
+          collector.rowsRead++;
+          const missing = fields.length <= timeIndex ? timeLabel : fields.length <= column.value ? column.valueLabel : column.flagLabel || column.valueLabel;
+          collector.reject(line, missing, `the line has ${fields.length} field${fields.length === 1 ? '' : 's'}; expected at least ${needed} separated by ${delimiterName}`);
+        } else {
+          collector.add(line, fields[timeIndex], fields[column.value], timeLabel, column.valueLabel, column.flag === -1 ? undefined : fields[column.flag], column.flagLabel);
+        }
       }
-      if (fields.length < needed()) {
-        collector.rowsRead++;
-        const missing = fields.length <= timeIndex ? labels[0] : fields.length <= valueIndex ? labels[1] : flagLabel;
-        return collector.reject(line, missing, `the line has ${fields.length} field${fields.length === 1 ? '' : 's'}; expected at least ${needed()} separated by ${delimiterName}`);
-      }
-      collector.add(line, fields[timeIndex], fields[valueIndex], labels[0], labels[1], flagIndex === -1 ? undefined : fields[flagIndex], flagLabel);
     },
   });
-  if (layout.bom) collector.notes.push(`A byte order mark (${layout.encoding}) was found and removed.`);
-  if (layout.encoding === 'windows-1252') {
-    collector.notes.push('The file is not valid UTF-8, so it was read as Windows-1252 (Western European), as older spreadsheets and loggers write it; check that names and units with accents or symbols read right.');
-  }
-  return collector.finish(layout, stats);
+  return collectors.map((collector) => {
+    if (layout.bom) collector.notes.push(`A byte order mark (${layout.encoding}) was found and removed.`);
+    if (layout.encoding === 'windows-1252') {
+      collector.notes.push('The file is not valid UTF-8, so it was read as Windows-1252 (Western European), as older spreadsheets and loggers write it; check that names and units with accents or symbols read right.');
+    }
+    return collector.finish(layout, stats);
+  });
 }
 
 /** Validates pushed JSON points; `line` in reports is the 1-based position in the array. */

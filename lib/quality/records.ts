@@ -4,6 +4,8 @@ import { Series, writeTransaction } from '@/models';
 import { allRows } from '@/models/db';
 import { recordAudit } from '@/lib/audit';
 import { connectionOf } from '@/lib/intake/store';
+import { parseInstantParam } from '@/lib/intake/time-formats';
+import { UnprocessableError } from '@/lib/http/errors';
 import type { CollectedRows } from '@/lib/intake/rows';
 import { qcConfigSchema, type FlagOverride, type QcConfig } from '@/lib/schemas/quality';
 import { FLAG_LABELS, setterCode, setterName, type QartodFlag } from './flags';
@@ -136,8 +138,16 @@ async function flagCounts(conn: Database, seriesId: number): Promise<Record<stri
 /**
  * An analyst's override: every point in [from, to] gets the given flag, set by 'analyst', which re-runs of the
  * tests leave alone. Audited with the reason, the range and the number of points; the series is analysed afresh.
+ * from/to are epoch ms or ISO 8601 (in the series' zone without an offset); a bad one is a 422 naming the field.
  */
-export async function overrideFlags(series: Series, input: Omit<FlagOverride, 'from' | 'to'> & { from: number; to: number }, actor: { id: number }): Promise<{ changed: number }> {
+export async function overrideFlags(series: Series, override: FlagOverride, actor: { id: number }): Promise<{ changed: number }> {
+  const instant = (name: 'from' | 'to') => {
+    const parsed = parseInstantParam(String(override[name]), series.timeZone);
+    if (!parsed.ok) throw new UnprocessableError('Some fields are not valid.', { [name]: [`Give ISO 8601 or epoch milliseconds: ${parsed.reason}`] });
+    return parsed.t;
+  };
+  const input = { ...override, from: instant('from'), to: instant('to') };
+  if (input.from > input.to) throw new UnprocessableError('Some fields are not valid.', { to: ['The end of the range is before its start.'] });
   return writeTransaction(async (transaction) => {
     const conn = connectionOf(transaction);
     const changed = await new Promise<number>((resolve, reject) => conn.run(
