@@ -13,8 +13,8 @@ import { judgeIncoming } from '@/lib/quality/records';
 import { FLAG_LABELS, type QartodFlag } from '@/lib/quality/flags';
 
 /** A run's lease lives this long without renewal; a run whose holder died is marked failed once it has lapsed. */
-const RUN_LEASE_MS = 30_000;
-const runLease = (key: string) => `ingest-run:${key}`;
+export const RUN_LEASE_MS = 30_000;
+export const runLease = (key: string) => `ingest-run:${key}`;
 
 export interface IngestRequest {
   series: Series;
