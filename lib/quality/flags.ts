@@ -54,3 +54,18 @@ export function moreSevere(a: number, b: number): boolean {
 export function flagsLeftOut(suspectInAnalysis: boolean): number[] {
   return suspectInAnalysis ? [FLAG_FAIL, FLAG_MISSING] : [FLAG_SUSPECT, FLAG_FAIL, FLAG_MISSING];
 }
+
+/** A point flagged suspect, fail or missing, as the record chart draws it (a shape per flag, not a colour alone). */
+export interface FlaggedPoint {
+  t: number;
+  value: number;
+  flag: QartodFlag;
+  test: FlagSetter | null;
+}
+
+/** The shape each flag is drawn with on the record chart, and the words of its legend. */
+export const FLAG_SHAPES: Partial<Record<QartodFlag, { symbol: string; label: string }>> = {
+  3: { symbol: '▲', label: 'suspect' },
+  4: { symbol: '✕', label: 'fail (left out of the analysis)' },
+  9: { symbol: '○', label: 'missing (left out of the analysis)' },
+};

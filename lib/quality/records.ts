@@ -1,4 +1,5 @@
 import type { Database } from 'sqlite3';
+import { rawReadConnection } from '@/models/db';
 import type { Transaction } from 'sequelize';
 import { Series, writeTransaction } from '@/models';
 import { allRows } from '@/models/db';
@@ -8,7 +9,7 @@ import { parseInstantParam } from '@/lib/intake/time-formats';
 import { UnprocessableError } from '@/lib/http/errors';
 import type { CollectedRows } from '@/lib/intake/rows';
 import { qcConfigSchema, type FlagOverride, type QcConfig } from '@/lib/schemas/quality';
-import { FLAG_LABELS, setterCode, setterName, type QartodFlag } from './flags';
+import { FLAG_LABELS, setterCode, setterName, type FlaggedPoint, type FlagSetter, type QartodFlag } from './flags';
 import { runQualityTests, type PointFlags } from './run';
 
 /** Stored readings before new data that the tests look back on: enough for a day's rate-of-change period at 5 s. */
@@ -165,4 +166,17 @@ export async function overrideFlags(series: Series, override: FlagOverride, acto
     }, transaction);
     return { changed };
   });
+}
+
+/**
+ * The points of [from, to] flagged suspect, fail or missing, in time order, at most `limit` (the total says how many
+ * there are): what the record chart marks. A range scan of the primary key. O(points in range).
+ */
+export async function flaggedPoints(seriesId: number, from: number, to: number, limit: number): Promise<{ points: FlaggedPoint[]; total: number }> {
+  const conn = await rawReadConnection();
+  const [rows, [{ total }]] = await Promise.all([
+    allRows<{ t: number; value: number; flag: QartodFlag; flag_test: FlagSetter | null }>(conn, 'SELECT t, value, flag, flag_test FROM observations WHERE series_id = ? AND t >= ? AND t <= ? AND flag IN (3, 4, 9) ORDER BY t LIMIT ?', [seriesId, from, to, limit]),
+    allRows<{ total: number }>(conn, 'SELECT COUNT(*) AS total FROM observations WHERE series_id = ? AND t >= ? AND t <= ? AND flag IN (3, 4, 9)', [seriesId, from, to]),
+  ]);
+  return { points: rows.map((row) => ({ t: Number(row.t), value: row.value, flag: row.flag, test: row.flag_test })), total };
 }

@@ -62,3 +62,10 @@ export const flagOverrideSchema = z
   })
   .strict();
 export type FlagOverride = z.output<typeof flagOverrideSchema>;
+
+/** GET the flagged points of a stretch (what the record chart draws): from/to in epoch ms; at most `limit` points. */
+export const flaggedQuerySchema = z.object({
+  from: z.coerce.number().int(),
+  to: z.coerce.number().int(),
+  limit: z.coerce.number().int().min(1).max(5000).default(1000),
+});

@@ -54,7 +54,7 @@ describe('station feeds', () => {
     expect(report.series[0].flagged).toEqual({ pass: 8, suspect: 1, fail: 1 });
     await db();
     for (let k = 0; k < VARIABLES.length; k++) {
-      const seriesId = (await IngestRun.findByPk(report.series[k].runId))!.seriesId;
+      const seriesId = (await IngestRun.findByPk(report.series[k].runId))!.seriesId!;
       const { flag } = await loadFlaggedObservations(seriesId);
       const expected = Array.from({ length: 10 }, (_, i) => (i === 3 + k ? 4 : i === 5 ? 3 : 1));
       expect(Array.from(flag)).toEqual(expected);

@@ -34,6 +34,7 @@ const EXPECTED: Record<string, Role | 'public' | 'token'> = {
   'GET /api/series/[slug]/observations': 'viewer',
   'POST /api/series/[slug]/observations': 'token',
   'POST /api/series/[slug]/observations/flags': 'analyst',
+  'GET /api/series/[slug]/observations/flags': 'viewer',
   'POST /api/series/[slug]/qc/rerun': 'lead',
   'GET /api/feeds': 'viewer',
   'POST /api/feeds': 'lead',
