@@ -1,10 +1,9 @@
-import crypto from 'node:crypto';
-import { IngestRun, Series, db, writeTransaction, type Feed } from '@/models';
+import { IngestRun, Series, writeTransaction, type Feed } from '@/models';
 import type { IngestSource } from '@/models/IngestRun';
-import { PROCESS_HOLDER, withLease } from '@/lib/db/leases';
+import { PROCESS_HOLDER } from '@/lib/db/leases';
 import { CsvFileError, type CsvInput } from '@/lib/intake/csv';
 import { collectCsvColumns, type CollectedRows } from '@/lib/intake/rows';
-import { finishRun, inputReport, previousApplication, RUN_LEASE_MS, runLease, storeCollected, summaryMessage, type IngestOutcome } from '@/lib/intake/pipeline';
+import { finishRun, inputReport, previousApplication, storeCollected, summaryMessage, underNewRunLease, type IngestOutcome } from '@/lib/intake/pipeline';
 import type { TimeFormat } from '@/lib/intake/time-formats';
 
 export interface FeedSeriesOutcome extends IngestOutcome {
@@ -41,12 +40,7 @@ export interface FeedIngestRequest {
  * content is applied once: when every series already took it, nothing is applied again.
  */
 export async function ingestFeedFile(request: FeedIngestRequest): Promise<FeedOutcome> {
-  await db();
-  const started = Date.now();
-  const key = crypto.randomUUID();
-  const outcome = await withLease(runLease(key), RUN_LEASE_MS, () => ingestUnderLease(request, key, started));
-  if (!outcome) throw new Error('could not take the lease of a new ingest run');
-  return outcome;
+  return underNewRunLease((key, started) => ingestUnderLease(request, key, started));
 }
 
 async function ingestUnderLease(request: FeedIngestRequest, key: string, started: number): Promise<FeedOutcome> {

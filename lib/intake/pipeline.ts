@@ -13,8 +13,8 @@ import { judgeIncoming } from '@/lib/quality/records';
 import { FLAG_LABELS, type QartodFlag } from '@/lib/quality/flags';
 
 /** A run's lease lives this long without renewal; a run whose holder died is marked failed once it has lapsed. */
-export const RUN_LEASE_MS = 30_000;
-export const runLease = (key: string) => `ingest-run:${key}`;
+const RUN_LEASE_MS = 30_000;
+const runLease = (key: string) => `ingest-run:${key}`;
 
 export interface IngestRequest {
   series: Series;
@@ -105,11 +105,19 @@ export async function previousApplication(seriesId: number, contentHash: string,
  *   values are all rejected, whatever the policy: there is no telling which one is right.
  */
 export async function ingestObservations(request: IngestRequest): Promise<IngestOutcome> {
+  return underNewRunLease((key, started) => ingestUnderLease(request, key, started));
+}
+
+/**
+ * Runs an intake under the lease of a new run key (its runs carry the key, so `sweepStaleRuns` can tell a dead
+ * holder's runs from live ones); `started` is when the work began.
+ */
+export async function underNewRunLease<T>(work: (key: string, started: number) => Promise<T>): Promise<T> {
   await db();
   const started = Date.now();
   const key = crypto.randomUUID();
-  const outcome = await withLease(runLease(key), RUN_LEASE_MS, () => ingestUnderLease(request, key, started));
-  if (!outcome) throw new Error('could not take the lease of a new ingest run');
+  const outcome = await withLease(runLease(key), RUN_LEASE_MS, () => work(key, started));
+  if (outcome === null) throw new Error('could not take the lease of a new ingest run');
   return outcome;
 }
 
