@@ -274,8 +274,7 @@ export async function collectCsvColumns(
   const named = typeof mapping.timeColumn === 'string' || mapping.values.some((v) => typeof v.valueColumn === 'string');
   let timeIndex = -1;
   let timeLabel = '';
-  let indexes: { value: number; flag: number; valueLabel: string; flagLabel: string }[] = [];
-  let needed = 0;
+  let indexes: { value: number; flag: number; valueLabel: string; flagLabel: string; needed: number }[] = [];
   let delimiterName = '';
   const resolve = (layout: CsvLayout) => {
     const find = (column: string | number): number => {
@@ -294,13 +293,15 @@ export async function collectCsvColumns(
     };
     timeIndex = find(mapping.timeColumn);
     timeLabel = columnLabel(mapping.timeColumn, layout.header);
-    indexes = mapping.values.map((v) => ({
-      value: find(v.valueColumn),
-      flag: v.flagColumn === undefined ? -1 : find(v.flagColumn),
-      valueLabel: columnLabel(v.valueColumn, layout.header),
-      flagLabel: v.flagColumn === undefined ? '' : columnLabel(v.flagColumn, layout.header),
-    }));
-    needed = Math.max(timeIndex, ...indexes.map((c) => Math.max(c.value, c.flag))) + 1;
+    indexes = mapping.values.map((v) => {
+      const value = find(v.valueColumn);
+      const flag = v.flagColumn === undefined ? -1 : find(v.flagColumn);
+      return {
+        value, flag, needed: Math.max(timeIndex, value, flag) + 1,
+        valueLabel: columnLabel(v.valueColumn, layout.header),
+        flagLabel: v.flagColumn === undefined ? '' : columnLabel(v.flagColumn, layout.header),
+      };
+    });
     collectors.forEach((collector, k) => {
       collector.timeLabel = timeLabel;
       collector.hasFlags = indexes[k].flag !== -1;
@@ -324,10 +325,11 @@ export async function collectCsvColumns(
         if (problem) {
           collector.rowsRead++;
           collector.reject(line, null, problem);
-        } else if (fields.length < needed) {
+        } else if (fields.length < column.needed) {
+          // Each column needs only its own cells: a short line may still carry the first variables of a station file.
           collector.rowsRead++;
           const missing = fields.length <= timeIndex ? timeLabel : fields.length <= column.value ? column.valueLabel : column.flagLabel || column.valueLabel;
-          collector.reject(line, missing, `the line has ${fields.length} field${fields.length === 1 ? '' : 's'}; expected at least ${needed} separated by ${delimiterName}`);
+          collector.reject(line, missing, `the line has ${fields.length} field${fields.length === 1 ? '' : 's'}; expected at least ${column.needed} separated by ${delimiterName}`);
         } else {
           collector.add(line, fields[timeIndex], fields[column.value], timeLabel, column.valueLabel, column.flag === -1 ? undefined : fields[column.flag], column.flagLabel);
         }
