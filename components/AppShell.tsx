@@ -9,6 +9,7 @@ const NAV: { href: string; label: string; minRole: Actor['role'] }[] = [
   { href: '/', label: 'Overview', minRole: 'viewer' },
   { href: '/alerts', label: 'Alerts', minRole: 'viewer' },
   { href: '/intake', label: 'Intake', minRole: 'viewer' },
+  { href: '/feeds', label: 'Feeds', minRole: 'viewer' },
   { href: '/admin', label: 'Admin', minRole: 'admin' },
   { href: '/account', label: 'Account', minRole: 'viewer' },
 ];
