@@ -81,6 +81,22 @@ describe('station data through the API', () => {
     expect(marks.points.map((p: { t: number; flag: number }) => [p.t, p.flag])).toContainEqual([T0 + 4 * HOUR, 4]);
   });
 
+  it('takes an uploaded station file through the feed', async () => {
+    const text = `Time,temp,temp_qc,sal,sal_qc,do,do_qc,turb,turb_qc\n${new Date(T0 + 12 * HOUR).toISOString()},15.2,1,31.2,1,8,1,14,1\n`;
+    const form = () => {
+      const body = new FormData();
+      body.set('file', new Blob([text], { type: 'text/csv' }), 'pier-upload.csv');
+      return body;
+    };
+    expect((await analyst.fetch('/api/feeds/pier-station/uploads', { method: 'POST', body: form() })).status).toBe(403);
+    const uploaded = await lead.fetch('/api/feeds/pier-station/uploads', { method: 'POST', body: form() });
+    expect(uploaded.status).toBe(200);
+    const outcome = await uploaded.json();
+    expect(outcome).toMatchObject({ feed: 'pier-station', status: 'succeeded' });
+    expect(outcome.series.map((s: { accepted: number }) => s.accepted)).toEqual([1, 1, 1, 1]);
+    expect((await lead.fetch('/api/feeds/no-such-feed/uploads', { method: 'POST', body: form() })).status).toBe(404);
+  });
+
   it('re-runs the tests (lead) and takes an analyst override with a reason', async () => {
     expect((await analyst.json('/api/series/pier-do/qc/rerun', 'POST')).status).toBe(403);
     await lead.json('/api/series/pier-do', 'PATCH', { qc: { grossRange: { fail: [0, 7] } } });

@@ -38,6 +38,7 @@ const EXPECTED: Record<string, Role | 'public' | 'token'> = {
   'POST /api/series/[slug]/qc/rerun': 'lead',
   'GET /api/feeds': 'viewer',
   'POST /api/feeds': 'lead',
+  'POST /api/feeds/[slug]/uploads': 'lead',
   'POST /api/series/[slug]/uploads': 'lead',
   'POST /api/series/[slug]/uploads/preview': 'lead',
   'GET /api/series/[slug]/settings-history': 'viewer',
