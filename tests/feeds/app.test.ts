@@ -102,7 +102,7 @@ describe('station data through the API', () => {
     await lead.json('/api/series/pier-do', 'PATCH', { qc: { grossRange: { fail: [0, 7] } } });
     const rerun = await lead.json('/api/series/pier-do/qc/rerun', 'POST');
     expect(rerun.status).toBe(200);
-    expect(await rerun.json()).toMatchObject({ points: 12, counts: { fail: 12 } });
+    expect(await rerun.json()).toMatchObject({ points: 13, counts: { fail: 13 } });
 
     const at = new Date(T0 + 2 * HOUR).toISOString();
     expect((await viewer.json('/api/series/pier-do/observations/flags', 'POST', { from: at, to: at, flag: 1, reason: 'checked' })).status).toBe(403);
