@@ -12,7 +12,7 @@ import { qcConfigSchema, type FlagOverride, type QcConfig } from '@/lib/schemas/
 import { FLAG_LABELS, setterCode, setterName, type FlaggedPoint, type FlagSetter, type QartodFlag } from './flags';
 import { runQualityTests, type PointFlags } from './run';
 
-/** Stored readings before new data that the tests look back on: enough for a day's rate-of-change period at 5 s. */
+/** At most this many stored readings before new data are looked back on: a day's rate-of-change period at 5 s. */
 const MAX_CONTEXT = 20_000;
 const READ_PAGE = 50_000;
 const ANALYST = setterCode('analyst');
@@ -84,11 +84,14 @@ export async function judgeIncoming(transaction: Transaction, series: Series, ro
   const config = qcConfigOf(series);
   if (!config || rows.t.length === 0) return runQualityTests(rows.t, rows.value, null, { sourceFlag: rows.sourceFlag ?? undefined });
   const conn = connectionOf(transaction);
-  const lookBack = config.rateOfChange ? MAX_CONTEXT : Math.max(2, (config.flatLine?.fail ?? 0) + 1);
+  // The spike test looks one reading back, the flat line REP_CNT_FAIL; the rate of change its whole period.
+  const lookBack = Math.max(2, (config.flatLine?.fail ?? 0) + 1);
   const context = (await allRows<StoredRow>(
     conn,
-    'SELECT t, value, flag, flag_test, source_flag FROM observations WHERE series_id = ? AND t < ? ORDER BY t DESC LIMIT ?',
-    [series.id, rows.t[0], lookBack],
+    `SELECT t, value, flag, flag_test, source_flag FROM observations WHERE series_id = ? AND t < ?
+      AND (t >= ? OR t >= (SELECT MIN(t) FROM (SELECT t FROM observations WHERE series_id = ? AND t < ? ORDER BY t DESC LIMIT ?)))
+      ORDER BY t DESC LIMIT ?`,
+    [series.id, rows.t[0], config.rateOfChange ? rows.t[0] - config.rateOfChange.periodHours * 3_600_000 : rows.t[0], series.id, rows.t[0], lookBack, MAX_CONTEXT],
   )).reverse();
   const all = runOver(series, context, rows);
   await updateChanged(conn, series.id, context, { flag: all.flag.subarray(0, context.length), setter: all.setter.subarray(0, context.length) });

@@ -82,6 +82,18 @@ describe('quality flags at intake', () => {
     expect(Array.from((await loadObservations(series.id)).value)).not.toContain(25);
   });
 
+  it('judges the rate of change of a new reading against the stored period before it', async () => {
+    const series = await createSeries({ slug: 'roc-buoy', name: 'Rate of change', intervalMs: HOUR, qc: { rateOfChange: { deviations: 3, periodHours: 6 } } }, null);
+    const values = [10, 10.5, 10, 10.5, 10, 10.5, 10, 10.5, 10, 10.5];
+    await ingestObservations({ series, source: 'drop', csv: `time,value\n${values.map((v, i) => `${iso(i)},${v}`).join('\n')}\n` });
+    // hours 4-9 (the period of hour 10) hold 10, 10.5 three times each: SD 0.274, 3 SD = 0.82, so a step of 0.3 passes;
+    // hours 5-10 give SD 0.319, 3 SD = 0.96, and a step of 5.3 is suspect (sample SDs worked by hand)
+    await ingestObservations({ series, source: 'push', points: [{ time: iso(10), value: 10.8 }] });
+    await ingestObservations({ series, source: 'push', points: [{ time: iso(11), value: 16.1 }] });
+    const { flag } = await storedFlags(series.id);
+    expect(flag.slice(10)).toEqual([1, 3]);
+  });
+
   it('flags a stuck sensor and the stuck stretch gives no indicator values', async () => {
     const n = 900;
     const values = noise(n, 5).map((x, i) => 10 + x + 0.001 * i);

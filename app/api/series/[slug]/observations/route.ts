@@ -51,5 +51,5 @@ export const POST = handle<{ slug: string }>(async (request, { params }) => {
     for (const row of rejected.slice(0, 100)) (fields[`line.${row.line}`] ??= []).push(row.reason);
     throw new UnprocessableError(outcome.message, Object.keys(fields).length ? fields : undefined);
   }
-  return NextResponse.json({ runId: outcome.runId, accepted: outcome.accepted, duplicates: outcome.duplicates, replaced: outcome.replaced, rejected, message: outcome.message });
+  return NextResponse.json({ runId: outcome.runId, accepted: outcome.accepted, duplicates: outcome.duplicates, replaced: outcome.replaced, rejected, flagged: outcome.flagged, message: outcome.message });
 });
