@@ -9,7 +9,8 @@ import { DataTypes, type QueryInterface } from 'sequelize';
  *   `sampling-interval`), `source` when the file's own flag column did, `analyst` for an override; null when none.
  * - `observations.source_flag`: the flag the file carried, kept apart so a re-run of the tests can combine it again.
  * - `series.qc`: the series' quality-control settings (`qcConfigSchema` in lib/schemas/quality.ts), null for none.
- * - `feeds`: a file layout (time column and format, value columns → series slugs, flag columns).
+ * - `feeds`: a file layout (time column and format, value columns → series slugs, flag columns, and a column whose
+ *   filled cells mark maintenance visits or sensor events on every series of the feed).
  * SQLite adds a column with a constant default without rewriting the table, so this is instant on a large record.
  */
 export async function up({ context: q }: { context: QueryInterface }): Promise<void> {
@@ -25,6 +26,7 @@ export async function up({ context: q }: { context: QueryInterface }): Promise<v
     time_format: { type: DataTypes.STRING, allowNull: false },
     columns: { type: DataTypes.JSON, allowNull: false },
     flag_columns: { type: DataTypes.JSON, allowNull: false },
+    maintenance_column: { type: DataTypes.STRING, allowNull: true },
     created_by: { type: DataTypes.INTEGER, allowNull: true },
     created_at: { type: DataTypes.DATE, allowNull: false },
     updated_at: { type: DataTypes.DATE, allowNull: false },

@@ -11,6 +11,8 @@ export class Feed extends Model<InferAttributes<Feed>, InferCreationAttributes<F
   declare columns: Record<string, string>;
   /** value column → the file column holding its QARTOD flag */
   declare flagColumns: Record<string, string>;
+  /** a column whose filled cells mark a maintenance visit or sensor event (the cell is the note); null: none */
+  declare maintenanceColumn: CreationOptional<string | null>;
   declare createdBy: number | null;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
@@ -25,6 +27,7 @@ export class Feed extends Model<InferAttributes<Feed>, InferCreationAttributes<F
         timeFormat: { type: DataTypes.STRING, allowNull: false },
         columns: { type: DataTypes.JSON, allowNull: false },
         flagColumns: { type: DataTypes.JSON, allowNull: false },
+        maintenanceColumn: { type: DataTypes.STRING, allowNull: true },
         createdBy: { type: DataTypes.INTEGER, allowNull: true },
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,

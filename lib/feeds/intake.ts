@@ -1,10 +1,12 @@
-import { IngestRun, Series, writeTransaction, type Feed } from '@/models';
+import type { Transaction } from 'sequelize';
+import { IngestRun, Mark, Series, writeTransaction, type Feed } from '@/models';
 import type { IngestSource } from '@/models/IngestRun';
 import { PROCESS_HOLDER } from '@/lib/db/leases';
 import { CsvFileError, type CsvInput } from '@/lib/intake/csv';
 import { collectCsvColumns, type CollectedRows } from '@/lib/intake/rows';
 import { finishRun, inputReport, previousApplication, storeCollected, summaryMessage, underNewRunLease, type IngestOutcome } from '@/lib/intake/pipeline';
-import type { TimeFormat } from '@/lib/intake/time-formats';
+import { parseTime, type TimeFormat } from '@/lib/intake/time-formats';
+import { addMark } from '@/lib/marks/write';
 
 export interface FeedSeriesOutcome extends IngestOutcome {
   series: string;
@@ -19,6 +21,8 @@ export interface FeedOutcome {
   message: string;
   /** one entry per series the feed maps, with its own run and counts */
   series: FeedSeriesOutcome[];
+  /** maintenance marks the file's maintenance column added (per series; marks already there are not added again) */
+  marksAdded: number;
   durationMs: number;
 }
 
@@ -47,8 +51,9 @@ async function ingestUnderLease(request: FeedIngestRequest, key: string, started
   const { feed, contentHash = null } = request;
   const mapped = Object.entries(feed.columns);
   const bySlug = new Map((await Series.findAll({ where: { slug: mapped.map(([, slug]) => slug) } })).map((s) => [s.slug, s]));
+  let marksAdded = 0;
   const done = (status: FeedOutcome['status'], message: string, series: FeedSeriesOutcome[], alreadyApplied = false): FeedOutcome => ({
-    feed: feed.slug, status, alreadyApplied, message, series, durationMs: Date.now() - started,
+    feed: feed.slug, status, alreadyApplied, message, series, marksAdded, durationMs: Date.now() - started,
   });
   const unusable = mapped.filter(([, slug]) => !bySlug.get(slug) || bySlug.get(slug)!.retiredAt);
   if (unusable.length) {
@@ -71,12 +76,20 @@ async function ingestUnderLease(request: FeedIngestRequest, key: string, started
       }
     }
     let collected: CollectedRows[];
+    // Maintenance visits and sensor events by instant; a time that does not read is reported with the rows already.
+    const events = new Map<number, string>();
+    const zone = targets[0].series.timeZone;
     try {
       collected = await collectCsvColumns(request.csv, {
         timeColumn: feed.timeColumn,
         timeFormat: feed.timeFormat as TimeFormat,
         header: true,
         values: targets.map(({ column, series }) => ({ valueColumn: column, flagColumn: flagColumnOf(feed, column), zone: series.timeZone })),
+        eventColumn: feed.maintenanceColumn ?? undefined,
+        onEvent: (timeCell, note) => {
+          const time = parseTime(timeCell, feed.timeFormat as TimeFormat, zone);
+          if (time.ok && Number.isInteger(time.t)) events.set(time.t, note.slice(0, 2000));
+        },
       });
     } catch (error) {
       if (!(error instanceof CsvFileError)) throw error;
@@ -98,10 +111,12 @@ async function ingestUnderLease(request: FeedIngestRequest, key: string, started
           source: request.source, fileName: request.fileName, actorId: request.actor?.id ?? null, tokenId: null, timeFormat: feed.timeFormat,
         }));
       }
+      marksAdded = await markEvents(transaction, targets.map((t) => t.series.id), events, request.actor ?? null);
       return results;
     });
     const stored = outcomes.reduce((sum, o) => sum + o.accepted + o.replaced, 0);
-    return done('succeeded', `Stored ${stored.toLocaleString('en-US')} new or replaced points in ${targets.length} series: ${outcomes.map((o, k) => `${targets[k].series.slug} ${o.accepted}`).join(', ')}.`, label(outcomes));
+    const marked = marksAdded ? ` Marked ${marksAdded} maintenance break${marksAdded === 1 ? '' : 's'}.` : '';
+    return done('succeeded', `Stored ${stored.toLocaleString('en-US')} new or replaced points in ${targets.length} series: ${outcomes.map((o, k) => `${targets[k].series.slug} ${o.accepted}`).join(', ')}.${marked}`, label(outcomes));
   } catch (error) {
     const message = error instanceof Error ? error.message : String(error);
     console.error(`[intake] feed ${feed.slug} failed`, error);
@@ -109,6 +124,22 @@ async function ingestUnderLease(request: FeedIngestRequest, key: string, started
     const text = `The intake failed before anything was stored: ${message}. Nothing from this file was stored.`;
     return done('failed', text, await finishAll({ status: 'failed', message: text, report: {} }));
   }
+}
+
+/**
+ * Each maintenance visit or sensor event of the file becomes a maintenance mark on every series of the feed (the
+ * analysed stretch starts after the latest), unless that series already has one at that instant. Returns how many.
+ */
+async function markEvents(transaction: Transaction, seriesIds: number[], events: Map<number, string>, actor: { id: number } | null): Promise<number> {
+  let added = 0;
+  for (const seriesId of seriesIds) {
+    for (const [at, note] of events) {
+      if (await Mark.findOne({ where: { seriesId, at, kind: 'maintenance' }, transaction })) continue;
+      await addMark(transaction, seriesId, { at, note, kind: 'maintenance' }, actor);
+      added++;
+    }
+  }
+  return added;
 }
 
 function flagColumnOf(feed: Feed, column: string): string | undefined {

@@ -14,6 +14,7 @@ export function presentFeed(feed: Feed) {
     timeFormat: feed.timeFormat,
     columns: feed.columns,
     flagColumns: feed.flagColumns,
+    maintenanceColumn: feed.maintenanceColumn ?? null,
     /** where station files for this feed are dropped, relative to DROP_DIR */
     dropFolder: `feeds/${feed.slug}`,
     createdAt: feed.createdAt,

@@ -267,12 +267,18 @@ export interface ValueColumn {
  */
 export async function collectCsvColumns(
   input: CsvInput,
-  mapping: Omit<CsvRowMapping, 'valueColumn' | 'flagColumn'> & { values: ValueColumn[] },
+  mapping: Omit<CsvRowMapping, 'valueColumn' | 'flagColumn'> & {
+    values: ValueColumn[];
+    /** a column of notes (maintenance visits): each filled cell is handed to `onEvent` with its row's time cell */
+    eventColumn?: string;
+    onEvent?: (timeCell: string, note: string, line: number) => void;
+  },
 ): Promise<CollectedRows[]> {
   const collectors = mapping.values.map((column) => new RowCollector(mapping.timeFormat, column.zone));
   const first = mapping.values[0];
   const named = typeof mapping.timeColumn === 'string' || mapping.values.some((v) => typeof v.valueColumn === 'string');
   let timeIndex = -1;
+  let eventIndex = -1;
   let timeLabel = '';
   let indexes: { value: number; flag: number; valueLabel: string; flagLabel: string; needed: number }[] = [];
   let delimiterName = '';
@@ -293,6 +299,7 @@ export async function collectCsvColumns(
     };
     timeIndex = find(mapping.timeColumn);
     timeLabel = columnLabel(mapping.timeColumn, layout.header);
+    if (mapping.eventColumn !== undefined) eventIndex = find(mapping.eventColumn);
     indexes = mapping.values.map((v) => {
       const value = find(v.valueColumn);
       const flag = v.flagColumn === undefined ? -1 : find(v.flagColumn);
@@ -319,6 +326,8 @@ export async function collectCsvColumns(
     looksLikeData,
     onLayout: resolve,
     onRow: (fields, line, problem) => {
+      const note = eventIndex === -1 || problem ? '' : (fields[eventIndex] ?? '').trim();
+      if (note) mapping.onEvent?.(fields[timeIndex] ?? '', note, line);
       for (let k = 0; k < collectors.length; k++) {
         const collector = collectors[k];
         const column = indexes[k];

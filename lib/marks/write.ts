@@ -11,20 +11,26 @@ import { presentMark, type MarkRecord } from './read';
  * A mark moves the end of the record before the first tipping point every calibration copies, so each rule of the series is
  * calibrated again.
  */
-async function recalibrateRulesOf(seriesId: number, actor: Pick<Actor, 'id'>, transaction: Transaction): Promise<void> {
+async function recalibrateRulesOf(seriesId: number, actor: Pick<Actor, 'id'> | null, transaction: Transaction): Promise<void> {
   const rules = await AlertRule.findAll({ where: { seriesId, active: true }, attributes: ['id'], transaction });
   for (const rule of rules) await queueRuleCalibration(rule.id, actor, transaction);
 }
 
 export async function createMark(seriesId: number, input: MarkCreate, actor: Pick<Actor, 'id'>): Promise<MarkRecord> {
-  return writeTransaction(async (transaction) => {
-    const row = await Mark.create({ seriesId, at: input.at, note: input.note, kind: input.kind, createdBy: actor.id }, { transaction });
-    // A mark moves where the live analysis starts: analyse the series again on the next cycle.
-    await Series.update({ needsAnalysis: true }, { where: { id: seriesId }, transaction });
-    await recordAudit({ actorId: actor.id, action: 'mark.create', entity: 'mark', entityId: row.id, details: { seriesId, at: input.at, note: input.note, kind: input.kind } }, transaction);
-    await recalibrateRulesOf(seriesId, actor, transaction);
-    return presentMark(row);
-  });
+  return writeTransaction((transaction) => addMark(transaction, seriesId, input, actor));
+}
+
+/**
+ * Marks inside the caller's transaction (a station file's maintenance column lands with its data); `actor` null for
+ * the scheduler's drop-folder pass.
+ */
+export async function addMark(transaction: Transaction, seriesId: number, input: MarkCreate, actor: Pick<Actor, 'id'> | null): Promise<MarkRecord> {
+  const row = await Mark.create({ seriesId, at: input.at, note: input.note, kind: input.kind, createdBy: actor?.id ?? null }, { transaction });
+  // A mark moves where the live analysis starts: analyse the series again on the next cycle.
+  await Series.update({ needsAnalysis: true }, { where: { id: seriesId }, transaction });
+  await recordAudit({ actorId: actor?.id ?? null, action: 'mark.create', entity: 'mark', entityId: row.id, details: { seriesId, at: input.at, note: input.note, kind: input.kind } }, transaction);
+  await recalibrateRulesOf(seriesId, actor, transaction);
+  return presentMark(row);
 }
 
 export async function removeMark(id: number, actor: Pick<Actor, 'id'>): Promise<void> {

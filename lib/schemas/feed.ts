@@ -20,6 +20,8 @@ export const feedCreateSchema = z
       .refine((columns) => Object.keys(columns).length <= 200, 'A feed maps at most 200 columns.')
       .refine((columns) => new Set(Object.values(columns)).size === Object.keys(columns).length, 'Each series can be fed by one column only.'),
     flagColumns: z.record(columnName, columnName).default({}),
+    /** A column whose filled cells mark a maintenance visit, sensor swap or recalibration on every series of the feed. */
+    maintenanceColumn: columnName.nullable().default(null),
   })
   .strict()
   .superRefine((feed, context) => {
@@ -27,6 +29,10 @@ export const feedCreateSchema = z
     const valueColumns = new Set(Object.keys(feed.columns).map(lower));
     if (valueColumns.has(lower(feed.timeColumn))) {
       context.addIssue({ code: 'custom', path: ['columns'], message: `"${feed.timeColumn}" is the time column; it cannot also be a value column.` });
+    }
+    const taken = new Set([lower(feed.timeColumn), ...valueColumns, ...Object.values(feed.flagColumns).map(lower)]);
+    if (feed.maintenanceColumn && taken.has(lower(feed.maintenanceColumn))) {
+      context.addIssue({ code: 'custom', path: ['maintenanceColumn'], message: `"${feed.maintenanceColumn}" is already the time column, a value column or a flag column.` });
     }
     for (const [valueColumn, flagColumn] of Object.entries(feed.flagColumns)) {
       if (!valueColumns.has(lower(valueColumn))) {

@@ -6,7 +6,7 @@ import { useTempDataDir } from '../support/temp-db';
 const dataDir = useTempDataDir('bw-feeds-');
 
 const { migrateUp } = await import('@/migrations');
-const { IngestRun, db } = await import('@/models');
+const { IngestRun, Mark, Series, db } = await import('@/models');
 const { createSeries } = await import('@/lib/series/registry');
 const { createFeed } = await import('@/lib/feeds/registry');
 const { runDropIntake } = await import('@/lib/intake/drop-folders');
@@ -86,6 +86,30 @@ describe('station feeds', () => {
     await runDropIntake({ settleMs: 0 });
     const again = JSON.parse(fs.readFileSync(path.join(feedFolder(), 'processed', 'gap-again.csv.report.json'), 'utf8'));
     expect(again).toMatchObject({ status: 'succeeded', alreadyApplied: true });
+  });
+
+  it('marks a maintenance break on every series of the feed from its maintenance column, once', async () => {
+    for (const slug of ['south-temp', 'south-sal']) await createSeries({ slug, name: slug, intervalMs: HOUR }, null);
+    await createFeed({ slug: 'south-mooring', name: 'South mooring', timeColumn: 'time', columns: { temp: 'south-temp', sal: 'south-sal' }, maintenanceColumn: 'event' }, null);
+    const folder = path.join(dataDir, 'drops', 'feeds', 'south-mooring');
+    fs.mkdirSync(folder, { recursive: true });
+    const row = (i: number, event = '') => `${new Date(T0 + i * HOUR).toISOString()},${10 + i / 10},${30 + i / 10},${event}`;
+    fs.writeFileSync(path.join(folder, 'a.csv'), ['time,temp,sal,event', row(0), row(1), row(2, 'sensor swap (new CT serial 4411)'), row(3)].join('\n'));
+    await runDropIntake({ settleMs: 0 });
+    const report = JSON.parse(fs.readFileSync(path.join(folder, 'processed', 'a.csv.report.json'), 'utf8'));
+    expect(report).toMatchObject({ status: 'succeeded', marksAdded: 2 });
+    const ids = (await Series.findAll({ where: { slug: ['south-temp', 'south-sal'] } })).map((s) => s.id);
+    const marks = await Mark.findAll({ where: { seriesId: ids } });
+    expect(marks.map((m) => [Number(m.at), m.kind, m.note])).toEqual([
+      [T0 + 2 * HOUR, 'maintenance', 'sensor swap (new CT serial 4411)'],
+      [T0 + 2 * HOUR, 'maintenance', 'sensor swap (new CT serial 4411)'],
+    ]);
+    // the same visit in the next file (overlapping rows) is not marked twice
+    fs.writeFileSync(path.join(folder, 'b.csv'), ['time,temp,sal,event', row(2, 'sensor swap (new CT serial 4411)'), row(4)].join('\n'));
+    await runDropIntake({ settleMs: 0 });
+    expect(JSON.parse(fs.readFileSync(path.join(folder, 'processed', 'b.csv.report.json'), 'utf8')).marksAdded).toBe(0);
+    expect(await Mark.count({ where: { seriesId: ids } })).toBe(2);
+    expect(feedCreateSchema.safeParse({ slug: 'x-feed', name: 'X', timeColumn: 'time', columns: { temp: 'south-temp' }, maintenanceColumn: 'temp' }).success).toBe(false);
   });
 
   it('refuses feeds that cannot work', async () => {
