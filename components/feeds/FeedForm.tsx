@@ -35,8 +35,9 @@ export function FeedForm() {
   const [timeFormat, setTimeFormat] = useState<TimeFormat>('iso8601');
   const [columns, setColumns] = useState<Record<string, string>>({});
   const [flagColumns, setFlagColumns] = useState<Record<string, string>>({});
+  const [maintenanceColumn, setMaintenanceColumn] = useState('');
   const create = useMutation({
-    mutationFn: () => api('/api/feeds', { method: 'POST', body: { slug, name, timeColumn, timeFormat, columns: pick(columns), flagColumns: pick(flagColumns, columns) } }),
+    mutationFn: () => api('/api/feeds', { method: 'POST', body: { slug, name, timeColumn, timeFormat, columns: pick(columns), flagColumns: pick(flagColumns, columns), maintenanceColumn: maintenanceColumn || null } }),
     onSuccess: () => queryClient.invalidateQueries({ queryKey: ['feeds'] }),
   });
   const fields = create.error instanceof ApiError ? create.error.fields ?? {} : {};
@@ -51,12 +52,13 @@ export function FeedForm() {
       setTimeColumn(guessTimeColumn(read.columns));
       setFlagColumns(guessFlagColumns(read.columns));
       setColumns({});
+      setMaintenanceColumn('');
     } catch (error) {
       setSample(null);
       setSampleError(error instanceof Error ? error.message : 'The sample could not be read.');
     }
   };
-  const valueColumns = sample ? sample.columns.filter((c) => c !== timeColumn && !Object.values(flagColumns).includes(c)) : [];
+  const valueColumns = sample ? sample.columns.filter((c) => c !== timeColumn && c !== maintenanceColumn && !Object.values(flagColumns).includes(c)) : [];
   const sampleOf = (column: string) => sample?.rows.map((row) => row[sample.columns.indexOf(column)] ?? '').slice(0, 3).join(' · ') ?? '';
 
   return (
@@ -80,6 +82,12 @@ export function FeedForm() {
             <Field label="Time format" error={fields.timeFormat?.[0]}>
               <select className={CONTROL} value={timeFormat} onChange={(e) => setTimeFormat(e.target.value as TimeFormat)}>
                 {Object.entries(TIME_FORMAT_LABELS).map(([value, label]) => <option key={value} value={value}>{label}</option>)}
+              </select>
+            </Field>
+            <Field label="Maintenance column (optional)" hint="A filled cell marks a maintenance visit or sensor event on every series of the feed; the analysis starts after the latest." error={fields.maintenanceColumn?.[0]}>
+              <select className={CONTROL} value={maintenanceColumn} onChange={(e) => setMaintenanceColumn(e.target.value)}>
+                <option value="">none</option>
+                {sample.columns.filter((c) => c !== timeColumn).map((c) => <option key={c} value={c}>{c}</option>)}
               </select>
             </Field>
           </div>

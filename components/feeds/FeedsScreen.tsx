@@ -27,6 +27,7 @@ export function FeedsScreen({ initial, canCreate }: { initial: FeedRecord[]; can
                 {Object.entries(feed.columns).map(([column, slug]) => (
                   <div key={column}>{column} → {slug}{feed.flagColumns[column] ? ` (${feed.flagColumns[column]})` : ''}</div>
                 ))}
+                {feed.maintenanceColumn ? <div className="text-xs text-ink-soft">maintenance visits from {feed.maintenanceColumn}</div> : null}
               </td>
             </tr>
           ))}
