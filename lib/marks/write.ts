@@ -33,6 +33,21 @@ export async function addMark(transaction: Transaction, seriesId: number, input:
   return presentMark(row);
 }
 
+/**
+ * A maintenance visit for a whole site (a buoy's service, a station's relocation): one maintenance mark on every
+ * active series of that site, in one transaction, so each analysed stretch starts after it. 404 when no active
+ * series has that site.
+ */
+export async function markSiteMaintenance(site: string, input: { at: number; note: string }, actor: Pick<Actor, 'id'>): Promise<{ site: string; marks: MarkRecord[] }> {
+  return writeTransaction(async (transaction) => {
+    const series = await Series.findAll({ where: { site, retiredAt: null }, attributes: ['id'], order: [['id', 'ASC']], transaction });
+    if (series.length === 0) throw new NotFoundError('Site');
+    const marks: MarkRecord[] = [];
+    for (const { id } of series) marks.push(await addMark(transaction, id, { at: input.at, note: input.note, kind: 'maintenance' }, actor));
+    return { site, marks };
+  });
+}
+
 export async function removeMark(id: number, actor: Pick<Actor, 'id'>): Promise<void> {
   await writeTransaction(async (transaction) => {
     const row = await Mark.findByPk(id, { transaction });

@@ -39,6 +39,7 @@ const EXPECTED: Record<string, Role | 'public' | 'token'> = {
   'GET /api/feeds': 'viewer',
   'POST /api/feeds': 'lead',
   'POST /api/feeds/[slug]/uploads': 'lead',
+  'POST /api/sites/[site]/maintenance': 'lead',
   'POST /api/series/[slug]/uploads': 'lead',
   'POST /api/series/[slug]/uploads/preview': 'lead',
   'GET /api/series/[slug]/settings-history': 'viewer',
