@@ -11,6 +11,9 @@ import { DataTypes, type QueryInterface } from 'sequelize';
  * - `series.qc`: the series' quality-control settings (`qcConfigSchema` in lib/schemas/quality.ts), null for none.
  * - `feeds`: a file layout (time column and format, value columns → series slugs, flag columns, and a column whose
  *   filled cells mark maintenance visits or sensor events on every series of the feed).
+ * - `observation_versions`: the earlier value of every replaced point (reprocessed data sent again with the duplicate
+ *   policy `replace`), with the run that had written it and the run that replaced it, so who, when and why stay
+ *   on record (the runs carry user, token, file and time).
  * SQLite adds a column with a constant default without rewriting the table, so this is instant on a large record.
  */
 export async function up({ context: q }: { context: QueryInterface }): Promise<void> {
@@ -31,9 +34,24 @@ export async function up({ context: q }: { context: QueryInterface }): Promise<v
     created_at: { type: DataTypes.DATE, allowNull: false },
     updated_at: { type: DataTypes.DATE, allowNull: false },
   });
+  await q.createTable('observation_versions', {
+    id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+    series_id: { type: DataTypes.INTEGER, allowNull: false },
+    t: { type: DataTypes.BIGINT, allowNull: false },
+    value: { type: DataTypes.DOUBLE, allowNull: false },
+    flag: { type: DataTypes.INTEGER, allowNull: false },
+    flag_test: { type: DataTypes.STRING(32), allowNull: true },
+    source_flag: { type: DataTypes.INTEGER, allowNull: true },
+    /** the run that had written the earlier value (null for rows stored before runs were recorded) */
+    ingest_run_id: { type: DataTypes.INTEGER, allowNull: true },
+    replaced_by_run_id: { type: DataTypes.INTEGER, allowNull: false },
+    replaced_at: { type: DataTypes.DATE, allowNull: false },
+  });
+  await q.addIndex('observation_versions', ['series_id', 't']);
 }
 
 export async function down({ context: q }: { context: QueryInterface }): Promise<void> {
+  await q.dropTable('observation_versions');
   await q.dropTable('feeds');
   await q.removeColumn('series', 'qc');
   await q.removeColumn('observations', 'source_flag');

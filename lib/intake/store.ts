@@ -3,6 +3,7 @@ import type { Database, Statement } from 'sqlite3';
 import { allRows as all } from '@/models/db';
 import type { PointFlags } from '@/lib/quality/run';
 import { setterName } from '@/lib/quality/flags';
+import { sqlDate } from '@/lib/db/sql-date';
 import type { CollectedRows, RejectedRow } from './rows';
 
 /** Rows per multi-row INSERT: 500 × 7 parameters stays far below SQLite's variable limit and amortises each call. */
@@ -113,6 +114,10 @@ export async function writeRows(
   const conn = connectionOf(transaction);
   const full = await prepare(conn, INSERT_SQL(INSERT_BATCH));
   const update = await prepare(conn, 'UPDATE observations SET value = ?, ingest_run_id = ?, flag = ?, flag_test = ?, source_flag = ? WHERE series_id = ? AND t = ?');
+  // A replaced value is kept as an earlier version, naming the run that replaces it (reprocessed data stays traceable).
+  const keep = await prepare(conn, `INSERT INTO observation_versions (series_id, t, value, flag, flag_test, source_flag, ingest_run_id, replaced_by_run_id, replaced_at)
+    SELECT series_id, t, value, flag, flag_test, source_flag, ingest_run_id, ?, ? FROM observations WHERE series_id = ? AND t = ?`);
+  const now = sqlDate(Date.now());
   const sourceFlag = (i: number) => (rows.sourceFlag && rows.sourceFlag[i] ? rows.sourceFlag[i] : null);
   let inserted = 0;
   let replaced = 0;
@@ -128,6 +133,7 @@ export async function writeRows(
           batch.length = 0;
         }
       } else if (kind === ROW_CONFLICT && replace) {
+        await run(keep, [runId, now, seriesId, rows.t[i]]);
         await run(update, [rows.value[i], runId, quality.flag[i], setterName(quality.setter[i]), sourceFlag(i), seriesId, rows.t[i]]);
         replaced++;
       }
@@ -143,6 +149,7 @@ export async function writeRows(
   } finally {
     await finalize(full);
     await finalize(update);
+    await finalize(keep);
   }
   return { inserted, replaced };
 }

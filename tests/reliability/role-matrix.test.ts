@@ -35,6 +35,7 @@ const EXPECTED: Record<string, Role | 'public' | 'token'> = {
   'POST /api/series/[slug]/observations': 'token',
   'POST /api/series/[slug]/observations/flags': 'analyst',
   'GET /api/series/[slug]/observations/flags': 'viewer',
+  'GET /api/series/[slug]/observations/versions': 'viewer',
   'POST /api/series/[slug]/qc/rerun': 'lead',
   'GET /api/feeds': 'viewer',
   'POST /api/feeds': 'lead',

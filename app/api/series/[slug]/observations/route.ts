@@ -10,21 +10,15 @@ import { loadFlaggedObservations } from '@/lib/analysis/observations';
 import { observationsCsvStream } from '@/lib/intake/export';
 import { ingestObservations } from '@/lib/intake/pipeline';
 import { readIntakeBody } from '@/lib/intake/request-body';
-import { formatInstant, parseInstantParam } from '@/lib/intake/time-formats';
+import { formatInstant } from '@/lib/intake/time-formats';
+import { queryRange } from '@/lib/http/range';
 
 export const GET = handle<{ slug: string }>(async (request, { params }) => {
   await requireRole('viewer');
   const { slug } = await params;
   const query = readQuery(request, observationQuerySchema);
   const series = await findSeriesBySlug(slug);
-  const instant = (name: 'from' | 'to') => {
-    const raw = query[name];
-    if (raw === undefined) return undefined;
-    const parsed = parseInstantParam(raw, series.timeZone);
-    if (!parsed.ok) throw new UnprocessableError('Some fields are not valid.', { [name]: [`Give ISO 8601 or epoch milliseconds: ${parsed.reason}`] });
-    return parsed.t;
-  };
-  const range = { from: instant('from'), to: instant('to'), limit: query.limit };
+  const range = { ...queryRange(query, series.timeZone), limit: query.limit };
   if (query.format === 'csv') {
     return new Response(observationsCsvStream(series.id, range), {
       headers: { 'content-type': 'text/csv; charset=utf-8', 'content-disposition': `attachment; filename="${series.slug}.csv"` },
