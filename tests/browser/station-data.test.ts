@@ -54,6 +54,21 @@ describe('station data in Chromium', () => {
     await page.getByTestId('chart-record').first().screenshot({ path: path.join(SHOTS, 'record-flags.png') });
   }, 180_000);
 
+  it('lets a lead set the quality-control tests on the series page and re-run them over the record', async () => {
+    await page.goto(`${app.baseUrl}/series/${SLUG}`);
+    const panel = page.getByTestId('qc-settings');
+    await panel.locator('summary').click();
+    await panel.getByLabel('sensor min').fill('-2');
+    await panel.getByLabel('sensor max').fill('3.815');
+    await panel.getByRole('button', { name: 'Save tests' }).click();
+    await panel.getByText('Saved.').waitFor();
+    await panel.getByRole('button', { name: 'Re-run over the stored record' }).click();
+    await expect.poll(() => panel.getByTestId('qc-rerun-result').textContent().catch(() => ''), { timeout: 30_000 }).toMatch(/points judged, [\d,]+ flags changed\. Now: .*fail/);
+    await panel.screenshot({ path: path.join(SHOTS, 'qc-settings.png') });
+    const qc = (await (await analyst.fetch(`/api/series/${SLUG}`)).json()).qc;
+    expect(qc).toMatchObject({ grossRange: { fail: [-2, 3.815] }, suspectInAnalysis: true });
+  }, 120_000);
+
   it('adds a feed from a sample file, mapping columns by picking', async () => {
     await page.goto(`${app.baseUrl}/feeds`);
     await page.getByTestId('feeds-empty').waitFor();
