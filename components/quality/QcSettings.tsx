@@ -73,7 +73,7 @@ export function QcSettings({ slug, initial, canEdit }: { slug: string; initial: 
             </div>
           ))}
           <Field label="Suspect points in the analysis">
-            <select className={`${CONTROL} w-60`} value={draft.suspectInAnalysis} onChange={set('suspectInAnalysis')}>
+            <select className={`${CONTROL} w-80`} value={draft.suspectInAnalysis} onChange={set('suspectInAnalysis')}>
               <option value="yes">analysed (marked on the record)</option>
               <option value="no">left out like failed points</option>
             </select>
