@@ -11,6 +11,7 @@ const NAV: { href: string; label: string; minRole: Actor['role'] }[] = [
   { href: '/sites', label: 'Sites', minRole: 'viewer' },
   { href: '/intake', label: 'Intake', minRole: 'viewer' },
   { href: '/reports', label: 'Reports', minRole: 'viewer' },
+  { href: '/feeds', label: 'Feeds', minRole: 'viewer' },
   { href: '/admin', label: 'Admin', minRole: 'admin' },
   { href: '/account', label: 'Account', minRole: 'viewer' },
 ];

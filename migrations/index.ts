@@ -16,6 +16,7 @@ import * as userPreferences from './0014-user-preferences';
 import * as sites from './0015-sites';
 import * as webhooks from './0017-webhooks';
 import * as periodReports from './0018-period-reports';
+import * as stationData from './0019-station-data';
 
 /**
  * The ordered list of schema changes. Listed explicitly (not globbed) so the same list works in the Next.js server
@@ -37,6 +38,7 @@ const MIGRATIONS = [
   { name: '0015-sites', ...sites },
   { name: '0017-webhooks', ...webhooks },
   { name: '0018-period-reports', ...periodReports },
+  { name: '0019-station-data', ...stationData },
 ];
 
 async function migrator(): Promise<Umzug<QueryInterface>> {

@@ -5,6 +5,7 @@ export interface CsvMapping {
   timeColumn: string | number;
   valueColumn: string | number;
   timeFormat: string;
+  flagColumn?: string | number;
 }
 
 export class Series extends Model<InferAttributes<Series>, InferCreationAttributes<Series>> {
@@ -24,6 +25,8 @@ export class Series extends Model<InferAttributes<Series>, InferCreationAttribut
   declare csvMapping: CsvMapping;
   /** Engine settings, always validated with `analysisSettingsSchema` before they are stored. */
   declare settings: Record<string, unknown>;
+  /** Quality-control settings, validated with `qcConfigSchema` (lib/schemas/quality.ts); null: no automatic tests. */
+  declare qc: CreationOptional<Record<string, unknown> | null>;
   declare duplicatePolicy: CreationOptional<'reject' | 'replace'>;
   declare needsAnalysis: CreationOptional<boolean>;
   declare dataChangedAt: Date | null;
@@ -46,6 +49,7 @@ export class Series extends Model<InferAttributes<Series>, InferCreationAttribut
         lateAfterMs: { type: DataTypes.BIGINT, allowNull: true, get() { const v = this.getDataValue('lateAfterMs'); return v === null || v === undefined ? null : Number(v); } },
         csvMapping: { type: DataTypes.JSON, allowNull: false },
         settings: { type: DataTypes.JSON, allowNull: false },
+        qc: { type: DataTypes.JSON, allowNull: true },
         duplicatePolicy: { type: DataTypes.STRING, allowNull: false, defaultValue: 'reject', validate: { isIn: [['reject', 'replace']] } },
         needsAnalysis: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
         dataChangedAt: { type: DataTypes.DATE, allowNull: true },

@@ -27,6 +27,7 @@ import { UserPreference } from './UserPreference';
 import { WebhookEndpoint } from './WebhookEndpoint';
 import { WebhookAttempt, WebhookDelivery } from './WebhookDelivery';
 import { ReportSchedule } from './ReportSchedule';
+import { Feed } from './Feed';
 
 const initialised = new WeakSet<Sequelize>();
 
@@ -77,7 +78,7 @@ function associate(): void {
 const MODELS = [
   User, Series, Observation, IngestRun, AnalysisSnapshot, AlertRule, RuleEvaluation, Alert, AlertEvent, Note,
   NoteRevision, IngestToken, MailMessage, AuditEntry, Watch, Lease, SettingsChange, SignInThrottle, UserToken,
-  Mark, BacktestJob, AppState, ApiToken, UserPreference, Site, WebhookEndpoint, WebhookDelivery, WebhookAttempt, ReportSchedule,
+  Mark, BacktestJob, AppState, ApiToken, UserPreference, Site, WebhookEndpoint, WebhookDelivery, WebhookAttempt, ReportSchedule, Feed,
 ];
 
 /** Binds the models to this process's one Sequelize instance (idempotent) and returns it once it is ready. */
@@ -94,7 +95,7 @@ export async function db(): Promise<Sequelize> {
 export {
   User, Series, Observation, IngestRun, AnalysisSnapshot, AlertRule, RuleEvaluation, Alert, AlertEvent, Note,
   NoteRevision, IngestToken, MailMessage, AuditEntry, Watch, Lease, SettingsChange, SignInThrottle, UserToken,
-  Mark, BacktestJob, AppState, ApiToken, UserPreference, Site, WebhookEndpoint, WebhookDelivery, WebhookAttempt, ReportSchedule,
+  Mark, BacktestJob, AppState, ApiToken, UserPreference, Site, WebhookEndpoint, WebhookDelivery, WebhookAttempt, ReportSchedule, Feed,
 };
 /**
  * `writeTransaction` of models/db.ts with the models bound first: a web worker's first request may be a write

@@ -1,10 +1,11 @@
 'use client';
 
 import { useMemo, useState } from 'react';
-import { CartesianGrid, Legend, Line, LineChart, ReferenceArea, ReferenceLine, ResponsiveContainer, Tooltip, XAxis, YAxis } from 'recharts';
+import { CartesianGrid, Legend, Line, LineChart, ReferenceArea, ReferenceDot, ReferenceLine, ResponsiveContainer, Tooltip, XAxis, YAxis } from 'recharts';
 import { formatLocal, formatLocalDate, formatUtc, formatValue } from '@/lib/display/format';
 import { placeMarkLabels, type MarkLabel, type PlacedMarkLabel } from '@/lib/display/mark-labels';
 import { calendarTicks } from '@/lib/display/time-ticks';
+import { FLAG_FAIL, FLAG_SUSPECT, type FlaggedPoint } from '@/lib/quality/flags';
 import { useChartPalette, type ChartColour } from './theme';
 
 export interface LineSpec {
@@ -38,6 +39,8 @@ export interface TimeChartProps {
   zeroLine?: boolean;
   /** the time axis, when several charts are stacked and must share it (small multiples); else it spans what this chart draws */
   xDomain?: [number, number] | null;
+  /** points flagged suspect or fail (the record chart): drawn as a triangle or a cross, so the shape tells them apart */
+  flagged?: FlaggedPoint[];
 }
 
 /** Reference lines drawn as plain SVG lines that carry a test id, so browser tests find them without wording. */
@@ -45,6 +48,16 @@ const taggedLine = (testId: string) => function TaggedLine(props: React.SVGProps
   return <line {...props} className="recharts-reference-line-line" data-testid={testId} />;
 };
 const shiftLine = taggedLine('shift-marker');
+
+/** A flagged point's mark: an open triangle for suspect, a cross for fail (shape first, colour second). */
+function flagMark(flag: number, colour: string) {
+  return function FlagMark({ cx = 0, cy = 0 }: { cx?: number; cy?: number }) {
+    if (flag === FLAG_SUSPECT) {
+      return <path d={`M${cx},${cy - 5} L${cx + 4.5},${cy + 3.5} L${cx - 4.5},${cy + 3.5} Z`} fill="none" stroke={colour} strokeWidth={1.5} data-testid="flag-suspect" />;
+    }
+    return <path d={`M${cx - 4},${cy - 4} L${cx + 4},${cy + 4} M${cx + 4},${cy - 4} L${cx - 4},${cy + 4}`} stroke={colour} strokeWidth={2} data-testid="flag-fail" />;
+  };
+}
 const stretchLine = taggedLine('stretch-start');
 
 const MARGIN = { top: 8, right: 12, bottom: 4, left: 4 };
@@ -81,7 +94,7 @@ function MarkText({ placed, colour, atRightEdge = false, viewBox }: {
  * shifts, the stretch start, one window) are laid out by `placeMarkLabels` so none overlap; those that do not fit
  * on the plot are listed under it.
  */
-export function TimeChart({ rows, lines, timeZone, unit = '', height = 220, windowBand, marks = [], shifts = [], stretchStart = null, zeroLine, xDomain = null }: TimeChartProps) {
+export function TimeChart({ rows, lines, timeZone, unit = '', height = 220, windowBand, marks = [], shifts = [], stretchStart = null, zeroLine, xDomain = null, flagged = [] }: TimeChartProps) {
   const colours = useChartPalette();
   const [width, setWidth] = useState(0);
   const first = rows[0]?.t ?? null;
@@ -114,6 +127,8 @@ export function TimeChart({ rows, lines, timeZone, unit = '', height = 220, wind
     : { placed: [], overflow: [], rows: 0 };
   const placedById = new Map(layout.placed.map((p) => [p.id, p]));
   const atOf = new Map(markLabels.map((m) => [m.id, m.at]));
+  const suspectMark = useMemo(() => flagMark(FLAG_SUSPECT, colours.warning), [colours.warning]);
+  const failMark = useMemo(() => flagMark(FLAG_FAIL, colours.shift), [colours.shift]);
   const labelFor = (id: string, colour: string, atRightEdge = false) => {
     const placed = placedById.get(id);
     return placed ? <MarkText placed={placed} colour={colour} atRightEdge={atRightEdge} /> : undefined;
@@ -160,6 +175,9 @@ export function TimeChart({ rows, lines, timeZone, unit = '', height = 220, wind
           {lines.map((line) => (
             <Line key={line.key} dataKey={line.key} name={line.label} stroke={colours[line.color]} strokeWidth={line.width ?? 1.5}
               strokeDasharray={line.dashed ? '6 3' : undefined} dot={line.sparse ? { r: 2 } : false} isAnimationActive={false} connectNulls={line.sparse ?? false} />
+          ))}
+          {flagged.filter((point) => inside(point.t) && (point.flag === FLAG_SUSPECT || point.flag === FLAG_FAIL)).map((point) => (
+            <ReferenceDot key={`f-${point.t}`} x={point.t} y={point.value} ifOverflow="discard" shape={point.flag === FLAG_SUSPECT ? suspectMark : failMark} />
           ))}
         </LineChart>
       </ResponsiveContainer>

@@ -1,6 +1,9 @@
 'use client';
 
 import { useMemo } from 'react';
+import { useQuery } from '@tanstack/react-query';
+import { api } from '@/components/api';
+import { FLAG_SHAPES, type FlaggedPoint } from '@/lib/quality/flags';
 import { ChartFrame } from '@/components/charts/ChartFrame';
 import { TimeChart } from '@/components/charts/TimeChart';
 import { chartRows } from '@/lib/analysis/chart-rows';
@@ -66,6 +69,19 @@ export function AnalysisCharts({ view, series, marks = [], idPrefix = '', compac
   const order = charts ?? (['record', ...(compact ? [] : ['residuals']), ...view.indicators] as SeriesChart[]);
   const shown = order.filter((key) => key === 'record' || key === 'residuals' || view.indicators.includes(key));
   const height = compact ? 140 : 150;
+  // Flagged points of the drawn span, for the record chart: they change when flags are re-run or overridden.
+  const flags = useQuery({
+    queryKey: ['flagged', series.slug, xDomain?.[0], xDomain?.[1]],
+    queryFn: ({ signal }) => api<{ points: FlaggedPoint[]; total: number }>(`/api/series/${series.slug}/observations/flags?from=${Math.floor(xDomain![0])}&to=${Math.ceil(xDomain![1])}`, { signal }),
+    enabled: xDomain !== null && shown.includes('record'),
+  });
+  const flagNote = flags.isError
+    ? 'Quality flags could not be loaded.'
+    : flags.data
+      ? flags.data.total === 0
+        ? 'No point of this span is flagged.'
+        : `${flags.data.total} flagged point${flags.data.total === 1 ? '' : 's'}${flags.data.total > flags.data.points.length ? ` (first ${flags.data.points.length} drawn)` : ''}: ${[3, 4].map((flag) => `${FLAG_SHAPES[flag as 3 | 4]!.symbol} ${FLAG_SHAPES[flag as 3 | 4]!.label}`).join(' · ')}`
+      : 'Checking quality flags…';
   const common = { rows, timeZone: series.timeZone, marks, shifts, xDomain, height };
 
   return (
@@ -76,8 +92,11 @@ export function AnalysisCharts({ view, series, marks = [], idPrefix = '', compac
         if (key === 'record') {
           return (
             <ChartFrame key={key} title={`${series.name}: record and trend`} fileName={`${base}-record`} testId="chart-record"
-              legend={`${view.n} points analysed${view.stretch ? `, ${stretchReason(view.stretch.startsAfter)}` : ''} · detrending: ${view.settings.detrend}${shiftNote}`}>
-              <TimeChart {...common} unit={series.unit} stretchStart={stretchStart}
+              legend={<>
+                {`${view.n} points analysed${view.stretch ? `, ${stretchReason(view.stretch.startsAfter)}` : ''} · detrending: ${view.settings.detrend}${shiftNote}`}
+                <span className="block" data-testid="flag-legend">{flagNote}</span>
+              </>}>
+              <TimeChart {...common} unit={series.unit} stretchStart={stretchStart} flagged={flags.data?.points}
                 lines={[{ key: 'value', label: `value${series.unit ? ` (${series.unit})` : ''}`, color: 'ink-soft', width: 1 }, { key: 'trend', label: 'trend', color: 'tide', width: 2.5 }]} />
             </ChartFrame>
           );

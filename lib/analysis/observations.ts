@@ -1,6 +1,9 @@
 import { QueryTypes } from 'sequelize';
 import { db } from '@/models';
+import type { Database } from 'sqlite3';
 import { allRows, rawReadConnection } from '@/models/db';
+import { qcConfigSchema } from '@/lib/schemas/quality';
+import { flagsLeftOut } from '@/lib/quality/flags';
 
 export interface ObservationRange {
   from?: number;
@@ -12,17 +15,34 @@ export interface ObservationRange {
 const PACKED_ROWS = 100_000;
 
 /**
- * A series' observations in time order as typed arrays (UTC ms, value): what the engine takes. Indexed range scans
- * of the (series_id, t) primary key on the raw sqlite3 handle, PACKED_ROWS at a time, each answered as ONE string
- * `t,value;t,value;…` built inside SQLite: node-sqlite3 spends most of a large read making one JS object per row,
- * and one string per 100,000 rows reads about 40 % faster. Exact: SQLite turns a REAL into text that reads back as
- * the same double (from memory, since its 3.43 rewrite of that conversion; the bundled SQLite is 3.52), and
- * ECMAScript's Number() reads decimal text correctly rounded (ECMA-262 §7.1.4.1.1), so every stored double comes
- * back bit for bit; tests/intake/pipeline.test.ts checks it on random bit patterns, so an SQLite that did not
- * would fail there. O(n).
+ * A series' observations in time order as typed arrays (UTC ms, value): what the engine takes. Only the points an
+ * analysis may use: those flagged 4 (fail) or 9 (missing) on the QARTOD scale are left out, and 3 (suspect) too
+ * when the series' QC settings say so (`suspectInAnalysis: false`), so every analysis, preview, backtest and
+ * provenance hash reads the same points. `loadFlaggedObservations` reads every point with its flag.
+ *
+ * Indexed range scans of the (series_id, t) primary key on the raw sqlite3 handle, PACKED_ROWS at a time, each
+ * answered as ONE string `t,value;t,value;…` built inside SQLite: node-sqlite3 spends most of a large read making
+ * one JS object per row, and one string per 100,000 rows reads about 40 % faster. Exact: SQLite turns a REAL into
+ * text that reads back as the same double (from memory, since its 3.43 rewrite of that conversion; the bundled
+ * SQLite is 3.52), and ECMAScript's Number() reads decimal text correctly rounded (ECMA-262 §7.1.4.1.1), so every
+ * stored double comes back bit for bit; tests/intake/pipeline.test.ts checks it on random bit patterns, so an
+ * SQLite that did not would fail there. O(n).
  */
 export async function loadObservations(seriesId: number, range: ObservationRange = {}): Promise<{ time: Float64Array; value: Float64Array }> {
   const connection = await rawReadConnection();
+  const [series] = await allRows<{ qc: string | null }>(connection, 'SELECT qc FROM series WHERE id = ?', [seriesId]);
+  const qc = series?.qc ? qcConfigSchema.safeParse(JSON.parse(series.qc)) : null;
+  const { time, value } = await readPacked(connection, seriesId, range, flagsLeftOut(qc?.success ? qc.data.suspectInAnalysis : true));
+  return { time, value };
+}
+
+/** Every point of a series in time order with its QARTOD flag (what the observations API and the record chart show). O(n). */
+export async function loadFlaggedObservations(seriesId: number, range: ObservationRange = {}): Promise<{ time: Float64Array; value: Float64Array; flag: Uint8Array }> {
+  const { time, value, flag } = await readPacked(await rawReadConnection(), seriesId, range, null);
+  return { time, value, flag: flag! };
+}
+
+async function readPacked(connection: Database, seriesId: number, range: ObservationRange, leaveOut: number[] | null) {
   const clauses = ['series_id = ?', 't > ?'];
   const bounds: unknown[] = [seriesId];
   if (range.from !== undefined) {
@@ -33,10 +53,15 @@ export async function loadObservations(seriesId: number, range: ObservationRange
     clauses.push('t <= ?');
     bounds.push(range.to);
   }
-  const sql = `SELECT COUNT(*) AS n, MAX(t) AS last, group_concat(t || ',' || CAST(value AS TEXT), ';' ORDER BY t) AS packed
-    FROM (SELECT t, value FROM observations WHERE ${clauses.join(' AND ')} ORDER BY t LIMIT ?)`;
+  // The flags are small integers from a fixed list, written into the statement rather than bound.
+  if (leaveOut) clauses.push(`flag NOT IN (${leaveOut.map(Number).join(',')})`);
+  const withFlag = leaveOut === null;
+  const record = withFlag ? "t || ',' || CAST(value AS TEXT) || ',' || flag" : "t || ',' || CAST(value AS TEXT)";
+  const sql = `SELECT COUNT(*) AS n, MAX(t) AS last, group_concat(${record}, ';' ORDER BY t) AS packed
+    FROM (SELECT t, value, flag FROM observations WHERE ${clauses.join(' AND ')} ORDER BY t LIMIT ?)`;
   const times: Float64Array[] = [];
   const values: Float64Array[] = [];
+  const flags: Uint8Array[] = [];
   let total = 0;
   // Keyset paging: each query starts after the last instant of the one before (first: before any instant).
   let after = -Number.MAX_VALUE;
@@ -52,28 +77,38 @@ export async function loadObservations(seriesId: number, range: ObservationRange
     const records = chunk.packed.split(';');
     const time = new Float64Array(records.length);
     const value = new Float64Array(records.length);
+    const flag = withFlag ? new Uint8Array(records.length) : null;
     for (let i = 0; i < records.length; i++) {
-      const record = records[i];
-      const comma = record.indexOf(',');
-      time[i] = Number(record.slice(0, comma));
-      value[i] = Number(record.slice(comma + 1));
+      const text = records[i];
+      const comma = text.indexOf(',');
+      time[i] = Number(text.slice(0, comma));
+      if (flag) {
+        const second = text.lastIndexOf(',');
+        value[i] = Number(text.slice(comma + 1, second));
+        flag[i] = Number(text.slice(second + 1));
+      } else {
+        value[i] = Number(text.slice(comma + 1));
+      }
     }
     times.push(time);
     values.push(value);
+    if (flag) flags.push(flag);
     total += records.length;
     after = Number(chunk.last);
     if (records.length < want) break;
   }
-  if (times.length === 1) return { time: times[0], value: values[0] };
-  const time = new Float64Array(total);
-  const value = new Float64Array(total);
+  return { time: joined(times, Float64Array, total), value: joined(values, Float64Array, total), flag: withFlag ? joined(flags, Uint8Array, total) : null };
+}
+
+function joined<A extends Float64Array | Uint8Array>(parts: A[], Kind: new (n: number) => A, total: number): A {
+  if (parts.length === 1) return parts[0];
+  const out = new Kind(total);
   let offset = 0;
-  for (let k = 0; k < times.length; k++) {
-    time.set(times[k], offset);
-    value.set(values[k], offset);
-    offset += times[k].length;
+  for (const part of parts) {
+    out.set(part, offset);
+    offset += part.length;
   }
-  return { time, value };
+  return out;
 }
 
 /** Count, first and last instant of a series' record. */

@@ -1,6 +1,7 @@
 import fs from 'node:fs';
 import path from 'node:path';
-import { Series, db } from '@/models';
+import { Feed, Series, db } from '@/models';
+import { ingestFeedFile, type FeedOutcome } from '@/lib/feeds/intake';
 import { dropDir } from '@/lib/runtime/config';
 import { withLease } from '@/lib/db/leases';
 import { slugSchema } from '@/lib/schemas/series';
@@ -22,12 +23,18 @@ function csvFilesIn(folder: string): string[] {
     .sort();
 }
 
-function seriesFolders(): { slug: string; folder: string }[] {
-  const root = dropDir();
+/** The folder of station feeds under the drop folder: `DROP_DIR/feeds/<feed-slug>/` (no series may be called so). */
+export const FEEDS_FOLDER = 'feeds';
+
+function subfolders(root: string): { slug: string; folder: string }[] {
   fs.mkdirSync(root, { recursive: true });
   return fs.readdirSync(root, { withFileTypes: true })
     .filter((entry) => entry.isDirectory())
     .map((entry) => ({ slug: entry.name, folder: path.join(root, entry.name) }));
+}
+
+function seriesFolders(): { slug: string; folder: string }[] {
+  return subfolders(dropDir()).filter(({ slug }) => slug !== FEEDS_FOLDER);
 }
 
 function freeName(folder: string, name: string, runId: number): string {
@@ -43,12 +50,17 @@ export interface DropReport extends Omit<IngestOutcome, 'runId'> {
   finishedAt: string;
 }
 
+/** A feed file's report: the feed's answer with each series' counts. */
+export interface FeedDropReport extends FeedOutcome {
+  file: string;
+  finishedAt: string;
+}
+
 /** Moves a finished file beside its report: the report first, so a file in processed/ or rejected/ always has one. */
-function settle(folder: string, name: string, slug: string, outcome: IngestOutcome): string {
-  const target = path.join(folder, outcome.status === 'rejected' ? 'rejected' : 'processed');
+function settle(folder: string, name: string, rejected: boolean, runId: number, report: DropReport | FeedDropReport): string {
+  const target = path.join(folder, rejected ? 'rejected' : 'processed');
   fs.mkdirSync(target, { recursive: true });
-  const finalName = freeName(target, name, outcome.runId);
-  const report: DropReport = { file: name, series: slug, ...outcome, finishedAt: new Date().toISOString() };
+  const finalName = freeName(target, name, runId);
   const reportPath = path.join(target, `${finalName}.report.json`);
   fs.writeFileSync(`${reportPath}.tmp`, `${JSON.stringify(report, null, 2)}\n`);
   fs.renameSync(`${reportPath}.tmp`, reportPath);
@@ -69,31 +81,48 @@ export async function runDropIntake(options: { settleMs?: number } = {}): Promis
   await db();
   await sweepStaleRuns();
   const known = new Map((await Series.findAll()).map((s) => [s.slug, s]));
-  const candidates: { slug: string; folder: string; name: string; stat: fs.Stats }[] = [];
-  for (const { slug, folder } of seriesFolders()) {
-    if (!slugSchema.safeParse(slug).success || !known.has(slug)) {
-      if (!unknownReported.has(slug)) log(`folder "${slug}" matches no registered series; its files are left alone`);
-      unknownReported.add(slug);
-      continue;
+  const feeds = new Map((await Feed.findAll()).map((f) => [f.slug, f]));
+  const candidates: { slug: string; feed: boolean; folder: string; name: string; stat: fs.Stats }[] = [];
+  const look = (folders: { slug: string; folder: string }[], registered: Map<string, unknown>, feed: boolean) => {
+    for (const { slug, folder } of folders) {
+      if (!slugSchema.safeParse(slug).success || !registered.has(slug)) {
+        const what = feed ? `${FEEDS_FOLDER}/${slug}` : slug;
+        if (!unknownReported.has(what)) log(`folder "${what}" matches no registered ${feed ? 'feed' : 'series'}; its files are left alone`);
+        unknownReported.add(what);
+        continue;
+      }
+      for (const name of csvFilesIn(folder)) candidates.push({ slug, feed, folder, name, stat: fs.statSync(path.join(folder, name)) });
     }
-    for (const name of csvFilesIn(folder)) candidates.push({ slug, folder, name, stat: fs.statSync(path.join(folder, name)) });
-  }
+  };
+  look(seriesFolders(), known, false);
+  look(subfolders(path.join(dropDir(), FEEDS_FOLDER)), feeds, true);
   if (candidates.length === 0) return [];
   await new Promise((resolve) => setTimeout(resolve, options.settleMs ?? 1000));
   const results: { file: string; status: string; movedTo: string | null }[] = [];
-  for (const { slug, folder, name, stat } of candidates) {
+  for (const { slug, feed, folder, name, stat } of candidates) {
     const file = path.join(folder, name);
     const now = fs.statSync(file, { throwIfNoEntry: false });
     if (!now || now.size !== stat.size || now.mtimeMs !== stat.mtimeMs) continue;
-    const done = await withLease(`ingest:${slug}/${name}`, FILE_LEASE_MS, async () => {
+    const where = feed ? `${FEEDS_FOLDER}/${slug}` : slug;
+    const done = await withLease(`ingest:${where}/${name}`, FILE_LEASE_MS, async () => {
       // Another scheduler may have finished the file between our look and our lease.
       if (!fs.existsSync(file)) return null;
-      const series = known.get(slug)!;
       const contentHash = await hashFile(file);
-      const outcome = await ingestObservations({ series, source: 'drop', fileName: name, contentHash, csv: fs.createReadStream(file) });
-      const movedTo = outcome.status === 'failed' ? null : settle(folder, name, slug, outcome);
-      log(`${slug}/${name}: ${outcome.status} — ${outcome.message}${movedTo ? ` → ${movedTo}` : ''}`);
-      return { file: `${slug}/${name}`, status: outcome.status, movedTo };
+      const finishedAt = () => new Date().toISOString();
+      let status: string;
+      let message: string;
+      let movedTo: string | null = null;
+      if (feed) {
+        const outcome = await ingestFeedFile({ feed: feeds.get(slug)!, source: 'drop', fileName: name, contentHash, csv: fs.createReadStream(file) });
+        ({ status, message } = outcome);
+        if (status !== 'failed') movedTo = settle(folder, name, status === 'rejected', outcome.series[0]?.runId ?? 0, { file: name, ...outcome, finishedAt: finishedAt() });
+      } else {
+        const outcome = await ingestObservations({ series: known.get(slug)!, source: 'drop', fileName: name, contentHash, csv: fs.createReadStream(file) });
+        ({ status, message } = outcome);
+        if (status !== 'failed') movedTo = settle(folder, name, status === 'rejected', outcome.runId, { file: name, series: slug, ...outcome, finishedAt: finishedAt() });
+      }
+      log(`${where}/${name}: ${status} — ${message}${movedTo ? ` → ${movedTo}` : ''}`);
+      return { file: `${where}/${name}`, status, movedTo };
     });
     if (done) results.push(done);
   }

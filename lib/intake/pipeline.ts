@@ -11,6 +11,8 @@ import { classifyAgainstStored, conflictRejections, connectionOf, ROW_CONFLICT, 
 import { guessTimeFormat, type TimeFormat } from './time-formats';
 import { enqueueWebhookEvent } from '@/lib/webhooks/outbox';
 import { rejectedRunPayload } from '@/lib/webhooks/payloads';
+import { judgeIncoming } from '@/lib/quality/records';
+import { FLAG_LABELS, type QartodFlag } from '@/lib/quality/flags';
 
 /** A run's lease lives this long without renewal; a run whose holder died is marked failed once it has lapsed. */
 const RUN_LEASE_MS = 30_000;
@@ -46,6 +48,8 @@ export interface IngestOutcome {
   notes: string[];
   message: string;
   durationMs: number;
+  /** How many of the points written carry each QARTOD flag, by its label (e.g. { pass: 98, fail: 2 }). */
+  flagged: Record<string, number>;
 }
 
 export function mappingFor(series: Series, overrides: Partial<IntakeMapping> = {}): IntakeMapping {
@@ -56,6 +60,7 @@ export function mappingFor(series: Series, overrides: Partial<IntakeMapping> = {
     timeFormat: (overrides.timeFormat ?? base.timeFormat ?? 'iso8601') as TimeFormat,
     delimiter: overrides.delimiter,
     header: overrides.header,
+    flagColumn: overrides.flagColumn ?? base.flagColumn,
   };
 }
 
@@ -69,7 +74,7 @@ function plural(n: number, word: string): string {
   return `${n.toLocaleString('en-US')} ${word}${n === 1 ? '' : 's'}`;
 }
 
-function summaryMessage(o: Pick<IngestOutcome, 'accepted' | 'duplicates' | 'replaced' | 'rejected' | 'rowsRead'>, firstReason?: string): string {
+export function summaryMessage(o: Pick<IngestOutcome, 'accepted' | 'duplicates' | 'replaced' | 'rejected' | 'rowsRead'>, firstReason?: string): string {
   if (o.accepted + o.duplicates + o.replaced === 0) {
     return `Nothing stored: all ${plural(o.rejected, 'row')} were rejected${firstReason ? ` (first: ${firstReason})` : ''}.`;
   }
@@ -80,7 +85,7 @@ function summaryMessage(o: Pick<IngestOutcome, 'accepted' | 'duplicates' | 'repl
   return `${parts.join('; ')}.`;
 }
 
-async function previousApplication(seriesId: number, contentHash: string, transaction?: Transaction): Promise<IngestRun | null> {
+export async function previousApplication(seriesId: number, contentHash: string, transaction?: Transaction): Promise<IngestRun | null> {
   return IngestRun.findOne({
     where: { seriesId, contentHash, status: 'succeeded' },
     order: [['id', 'ASC']],
@@ -102,12 +107,92 @@ async function previousApplication(seriesId: number, contentHash: string, transa
  *   values are all rejected, whatever the policy: there is no telling which one is right.
  */
 export async function ingestObservations(request: IngestRequest): Promise<IngestOutcome> {
+  return underNewRunLease((key, started) => ingestUnderLease(request, key, started));
+}
+
+/**
+ * Runs an intake under the lease of a new run key (its runs carry the key, so `sweepStaleRuns` can tell a dead
+ * holder's runs from live ones); `started` is when the work began.
+ */
+export async function underNewRunLease<T>(work: (key: string, started: number) => Promise<T>): Promise<T> {
   await db();
   const started = Date.now();
   const key = crypto.randomUUID();
-  const outcome = await withLease(runLease(key), RUN_LEASE_MS, () => ingestUnderLease(request, key, started));
-  if (!outcome) throw new Error('could not take the lease of a new ingest run');
+  const outcome = await withLease(runLease(key), RUN_LEASE_MS, () => work(key, started));
+  if (outcome === null) throw new Error('could not take the lease of a new ingest run');
   return outcome;
+}
+
+export type RunEnd = Partial<IngestOutcome> & { status: IngestStatus; message: string; report: Record<string, unknown> };
+
+/** Records a run's end (counts, status, message, report) and answers it as an outcome. */
+export async function finishRun(run: IngestRun, started: number, fields: RunEnd, transaction?: Transaction): Promise<IngestOutcome> {
+  const durationMs = Date.now() - started;
+  const counts = { rowsRead: fields.rowsRead ?? 0, accepted: fields.accepted ?? 0, duplicates: fields.duplicates ?? 0, replaced: fields.replaced ?? 0, rejected: fields.rejected ?? 0 };
+  const record = (t?: Transaction) => run.update({ ...counts, status: fields.status, message: fields.message, report: { ...run.report, ...fields.report }, durationMs, finishedAt: new Date() }, { transaction: t });
+  if (fields.status === 'rejected') {
+    // A rejection reaches webhook receivers: the delivery is written with the run's outcome, never one without the other.
+    const rejected = { id: run.id, source: run.source, fileName: run.fileName, rowsRead: counts.rowsRead, rejected: counts.rejected, message: fields.message };
+    const write = async (t: Transaction) => {
+      await record(t);
+      const series = run.seriesId === null ? null : await Series.findByPk(run.seriesId, { attributes: ['slug', 'name', 'site'], transaction: t });
+      if (series) await enqueueWebhookEvent('intake.rejected', rejectedRunPayload(rejected, series, new Date()), t);
+    };
+    await (transaction ? write(transaction) : writeTransaction(write));
+  } else {
+    await record(transaction);
+  }
+  return {
+    runId: run.id, status: fields.status, alreadyApplied: fields.alreadyApplied ?? false, previousRunId: fields.previousRunId ?? null,
+    ...counts, rejectedRows: fields.rejectedRows ?? [], notes: fields.notes ?? [], message: fields.message, durationMs,
+    flagged: fields.flagged ?? {},
+  };
+}
+
+/** What a run reports about its input besides the counts. */
+export function inputReport(rows: CollectedRows, timeFormat: string, rejectedRows: RejectedRow[], rejectedTotal: number) {
+  return {
+    rejectedRows, rejectedTotal, notes: rows.notes, layout: describeLayout(rows.layout), stats: rows.stats, timeFormat,
+    first: rows.t.length ? rows.t[0] : null, last: rows.t.length ? rows.t[rows.t.length - 1] : null,
+  };
+}
+
+/**
+ * Stores collected rows into one series inside the caller's write transaction: compare with what is stored, judge
+ * the flags, write, mark the series for analysis and audit; answers the run's end. A station feed calls it once per
+ * series inside one transaction, so a file lands whole or not at all.
+ */
+export async function storeCollected(
+  transaction: Transaction,
+  series: Series,
+  rows: CollectedRows,
+  run: IngestRun,
+  started: number,
+  context: { source: IngestSource; fileName?: string | null; actorId: number | null; tokenId: number | null; timeFormat: string },
+): Promise<IngestOutcome> {
+  const classified = await classifyAgainstStored(series.id, rows, connectionOf(transaction));
+  const replace = series.duplicatePolicy === 'replace';
+  const quality = await judgeIncoming(transaction, series, rows);
+  const { inserted, replaced } = await writeRows(transaction, series.id, rows, classified, replace, run.id, quality);
+  const flagged = flagCountsOfWritten(quality.flag, classified.kind, replace);
+  let duplicates = rows.duplicatesInInput;
+  for (let i = 0; i < classified.kind.length; i++) if (classified.kind[i] === ROW_DUPLICATE) duplicates++;
+  const conflicts = replace ? [] : conflictRejections(rows, classified);
+  const rejectedRows = [...rows.rejectedRows, ...conflicts].sort((a, b) => a.line - b.line).slice(0, 1000);
+  const counts = { rowsRead: rows.rowsRead, accepted: inserted, duplicates, replaced, rejected: rows.rejectedCount + conflicts.length };
+  if (inserted + replaced > 0) {
+    const now = new Date();
+    // The analysis job picks the series up from this mark; set with the data so neither exists without the other.
+    await Series.update({ needsAnalysis: true, dataChangedAt: now }, { where: { id: series.id }, transaction });
+  }
+  await recordAudit({
+    actorId: context.actorId, action: `intake.${context.source}`, entity: 'series', entityId: series.id,
+    details: { runId: run.id, fileName: context.fileName ?? null, tokenId: context.tokenId, ...counts },
+  }, transaction);
+  return finishRun(run, started, {
+    ...counts, status: 'succeeded', rejectedRows, notes: rows.notes, message: summaryMessage(counts), flagged,
+    report: { ...inputReport(rows, context.timeFormat, rejectedRows, counts.rejected), flagged },
+  }, transaction);
 }
 
 async function ingestUnderLease(request: IngestRequest, key: string, started: number): Promise<IngestOutcome> {
@@ -116,26 +201,7 @@ async function ingestUnderLease(request: IngestRequest, key: string, started: nu
     seriesId: series.id, source: request.source, fileName: request.fileName ?? null, contentHash,
     userId: request.actor?.id ?? null, tokenId: request.tokenId ?? null, startedAt: new Date(started),
   };
-  const finish = async (run: IngestRun, fields: Partial<IngestOutcome> & { status: IngestStatus; message: string; report: Record<string, unknown> }, transaction?: Transaction): Promise<IngestOutcome> => {
-    const durationMs = Date.now() - started;
-    const counts = { rowsRead: fields.rowsRead ?? 0, accepted: fields.accepted ?? 0, duplicates: fields.duplicates ?? 0, replaced: fields.replaced ?? 0, rejected: fields.rejected ?? 0 };
-    const record = async (t?: Transaction) => run.update({ ...counts, status: fields.status, message: fields.message, report: { ...run.report, ...fields.report }, durationMs, finishedAt: new Date() }, { transaction: t });
-    if (fields.status === 'rejected') {
-      // A rejection reaches webhook receivers: the delivery is written with the run's outcome, never one without the other.
-      const rejected = { id: run.id, source: run.source, fileName: run.fileName, rowsRead: counts.rowsRead, rejected: counts.rejected, message: fields.message };
-      const write = async (t: Transaction) => {
-        await record(t);
-        await enqueueWebhookEvent('intake.rejected', rejectedRunPayload(rejected, series, new Date()), t);
-      };
-      await (transaction ? write(transaction) : writeTransaction(write));
-    } else {
-      await record(transaction);
-    }
-    return {
-      runId: run.id, status: fields.status, alreadyApplied: fields.alreadyApplied ?? false, previousRunId: fields.previousRunId ?? null,
-      ...counts, rejectedRows: fields.rejectedRows ?? [], notes: fields.notes ?? [], message: fields.message, durationMs,
-    };
-  };
+  const finish = (run: IngestRun, fields: RunEnd, transaction?: Transaction) => finishRun(run, started, fields, transaction);
   const alreadyApplied = async (run: IngestRun, previous: IngestRun, transaction?: Transaction) => finish(run, {
     status: 'succeeded', alreadyApplied: true, previousRunId: previous.id,
     message: `Same content as run #${previous.id} of ${previous.startedAt.toISOString()}; it was applied then and is not applied again.`,
@@ -158,14 +224,10 @@ async function ingestUnderLease(request: IngestRequest, key: string, started: nu
       if (!(error instanceof CsvFileError)) throw error;
       return await finish(run, { status: 'rejected', message: error.message, report: { fileError: error.code } });
     }
-    const report = (rejectedRows: RejectedRow[], rejectedTotal: number) => ({
-      rejectedRows, rejectedTotal, notes: rows.notes, layout: describeLayout(rows.layout), stats: rows.stats,
-      timeFormat: mappingFor(series, request.mapping).timeFormat,
-      first: rows.t.length ? rows.t[0] : null, last: rows.t.length ? rows.t[rows.t.length - 1] : null,
-    });
+    const timeFormat = mappingFor(series, request.mapping).timeFormat;
     if (rows.t.length === 0) {
       const counts = { rowsRead: rows.rowsRead, accepted: 0, duplicates: rows.duplicatesInInput, replaced: 0, rejected: rows.rejectedCount };
-      return await finish(run, { ...counts, status: 'rejected', rejectedRows: rows.rejectedRows, notes: rows.notes, message: summaryMessage(counts, rows.rejectedRows[0]?.reason), report: report(rows.rejectedRows, rows.rejectedCount) });
+      return await finish(run, { ...counts, status: 'rejected', rejectedRows: rows.rejectedRows, notes: rows.notes, message: summaryMessage(counts, rows.rejectedRows[0]?.reason), report: inputReport(rows, timeFormat, rows.rejectedRows, rows.rejectedCount) });
     }
     return await writeTransaction(async (transaction) => {
       if (contentHash) {
@@ -173,27 +235,9 @@ async function ingestUnderLease(request: IngestRequest, key: string, started: nu
         const previous = await previousApplication(series.id, contentHash, transaction);
         if (previous) return alreadyApplied(run, previous, transaction);
       }
-      const classified = await classifyAgainstStored(series.id, rows, connectionOf(transaction));
-      const replace = series.duplicatePolicy === 'replace';
-      const { inserted, replaced } = await writeRows(transaction, series.id, rows, classified, replace, run.id);
-      let duplicates = rows.duplicatesInInput;
-      for (let i = 0; i < classified.kind.length; i++) if (classified.kind[i] === ROW_DUPLICATE) duplicates++;
-      const conflicts = replace ? [] : conflictRejections(rows, classified);
-      const rejectedRows = [...rows.rejectedRows, ...conflicts].sort((a, b) => a.line - b.line).slice(0, 1000);
-      const counts = { rowsRead: rows.rowsRead, accepted: inserted, duplicates, replaced, rejected: rows.rejectedCount + conflicts.length };
-      if (inserted + replaced > 0) {
-        const now = new Date();
-        // The analysis job picks the series up from this mark; set with the data so neither exists without the other.
-        await Series.update({ needsAnalysis: true, dataChangedAt: now }, { where: { id: series.id }, transaction });
-      }
-      await recordAudit({
-        actorId: request.actor?.id ?? null, action: `intake.${request.source}`, entity: 'series', entityId: series.id,
-        details: { runId: run.id, fileName: request.fileName ?? null, tokenId: request.tokenId ?? null, ...counts },
-      }, transaction);
-      return finish(run, {
-        ...counts, status: 'succeeded', rejectedRows, notes: rows.notes, message: summaryMessage(counts),
-        report: report(rejectedRows, counts.rejected),
-      }, transaction);
+      return storeCollected(transaction, series, rows, run, started, {
+        source: request.source, fileName: request.fileName, actorId: request.actor?.id ?? null, tokenId: request.tokenId ?? null, timeFormat,
+      });
     });
   } catch (error) {
     const message = error instanceof Error ? error.message : String(error);
@@ -201,6 +245,17 @@ async function ingestUnderLease(request: IngestRequest, key: string, started: nu
     await run.reload().catch(() => undefined);
     return finish(run, { status: 'failed', message: `The intake failed before anything was stored: ${message}. Nothing from this run was stored.`, report: {} });
   }
+}
+
+function flagCountsOfWritten(flag: Uint8Array, kind: Uint8Array, replace: boolean): Record<string, number> {
+  const counts: Record<string, number> = {};
+  for (let i = 0; i < flag.length; i++) {
+    if (kind[i] === ROW_NEW || (replace && kind[i] === ROW_CONFLICT)) {
+      const label = FLAG_LABELS[flag[i] as QartodFlag];
+      counts[label] = (counts[label] ?? 0) + 1;
+    }
+  }
+  return counts;
 }
 
 function describeLayout(layout: CsvLayout | null) {

@@ -2,6 +2,7 @@ import { observationSchema, type PushedObservation } from '@/lib/schemas/observa
 import type { Delimiter } from './choices';
 import { CsvFileError, readCsv, type CsvInput, type CsvLayout, type CsvStats } from './csv';
 import { MAX_ABS_TIME_MS, parseTime, type TimeFormat, type TimeReading } from './time-formats';
+import { FLAG_MISSING, isQartodFlag } from '@/lib/quality/flags';
 
 /** How to read the time and value of each record; columns by header name or 0-based position. */
 export interface IntakeMapping {
@@ -11,6 +12,8 @@ export interface IntakeMapping {
   delimiter?: Delimiter;
   /** true: first record is a header; false: it is data; 'auto' (default with positional columns): decided per file. */
   header?: boolean | 'auto';
+  /** The column holding each value's QARTOD flag from the source (a station file's flag column); none when absent. */
+  flagColumn?: string | number;
 }
 
 /** A mapping that may also read plain numeric times (`number`): the command line's, since a stored series holds instants. */
@@ -31,6 +34,8 @@ export interface CollectedRows {
   t: Float64Array;
   value: Float64Array;
   line: Int32Array;
+  /** The source's QARTOD flag per row (0: none given); null when the input has no flag column. */
+  sourceFlag: Uint8Array | null;
   rowsRead: number;
   /** Label of the time column (header name or "column N"), for rejections found after reading. */
   timeColumn: string;
@@ -48,9 +53,10 @@ class Columns {
   t = new Float64Array(1024);
   value = new Float64Array(1024);
   line = new Int32Array(1024);
+  flag = new Uint8Array(1024);
   length = 0;
 
-  push(t: number, value: number, line: number): void {
+  push(t: number, value: number, line: number, flag = 0): void {
     if (this.length === this.t.length) {
       const grow = <A extends Float64Array | Int32Array>(a: A): A => {
         const b = new (a.constructor as new (n: number) => A)(a.length * 2);
@@ -60,10 +66,14 @@ class Columns {
       this.t = grow(this.t);
       this.value = grow(this.value);
       this.line = grow(this.line);
+      const flags = new Uint8Array(this.flag.length * 2);
+      flags.set(this.flag);
+      this.flag = flags;
     }
     this.t[this.length] = t;
     this.value[this.length] = value;
     this.line[this.length] = line;
+    this.flag[this.length] = flag;
     this.length++;
   }
 }
@@ -101,6 +111,9 @@ class RowCollector {
   readonly columns = new Columns();
   rowsRead = 0;
   rejectedCount = 0;
+  /** Rows the source flagged 9 (missing) with no value: expected gaps, neither stored nor rejected. */
+  missing = 0;
+  hasFlags = false;
   readonly rejectedRows: RejectedRow[] = [];
   readonly notes: string[] = [];
   private offsetStyle: 'offset' | 'local' | null = null;
@@ -115,8 +128,16 @@ class RowCollector {
     if (this.rejectedRows.length < MAX_LISTED_REJECTIONS) this.rejectedRows.push({ line, column, reason });
   }
 
-  add(line: number, timeCell: string | number, valueCell: string | number, timeColumn: string, valueColumn: string): void {
+  add(line: number, timeCell: string | number, valueCell: string | number, timeColumn: string, valueColumn: string, flagCell?: string, flagColumn?: string): void {
     this.rowsRead++;
+    let flag = 0;
+    if (flagCell !== undefined) {
+      const text = flagCell.trim();
+      if (text !== '') {
+        flag = Number(text);
+        if (!isQartodFlag(flag)) return this.reject(line, flagColumn ?? 'flag', `the flag "${text.slice(0, 20)}" is not on the QARTOD scale (1 pass, 2 not evaluated, 3 suspect, 4 fail, 9 missing)`);
+      }
+    }
     const time = typeof timeCell === 'number'
       ? parseTime(String(timeCell), this.format === 'iso8601' || this.format === 'date' ? 'epoch-milliseconds' : this.format, this.zone)
       : parseTime(timeCell, this.format, this.zone);
@@ -133,27 +154,32 @@ class RowCollector {
       if (time.offset !== undefined && this.offsets.size < 10) this.offsets.add(time.offset);
     }
     const value = parseValue(valueCell);
+    if (flag === FLAG_MISSING && (typeof value === 'string' || Number.isNaN(value))) {
+      this.missing++;
+      return;
+    }
     if (typeof value === 'string') return this.reject(line, valueColumn, value);
     // A plain numeric time is no instant: only its value goes through the schema.
     if (this.format === 'number') {
-      if (Number.isFinite(value)) return this.columns.push(time.t, value, line);
+      if (Number.isFinite(value)) return this.columns.push(time.t, value, line, flag);
       return this.reject(line, valueColumn, observationSchema.shape.value.safeParse(value).error?.issues[0].message ?? 'the value must be a number');
     }
     // What the schema accepts, decided without building its issue list for each of a million good rows.
-    if (Number.isFinite(value) && Number.isInteger(time.t) && Math.abs(time.t) <= MAX_ABS_TIME_MS) return this.columns.push(time.t, value, line);
+    if (Number.isFinite(value) && Number.isInteger(time.t) && Math.abs(time.t) <= MAX_ABS_TIME_MS) return this.columns.push(time.t, value, line, flag);
     const checked = observationSchema.safeParse({ t: time.t, value });
     if (!checked.success) {
       const issue = checked.error.issues[0];
       return this.reject(line, issue.path[0] === 't' ? timeColumn : valueColumn, issue.message);
     }
-    this.columns.push(time.t, value, line);
+    this.columns.push(time.t, value, line, flag);
   }
 
   finish(layout: CsvLayout | null, stats: CsvStats | null): CollectedRows {
     if (this.offsets.size > 1) {
       this.notes.push(`Rows carry different UTC offsets (${[...this.offsets].join(', ')}); each time was converted with its own offset.`);
     }
-    const unique = normalise(this.columns, this.notes, (line, reason) => this.reject(line, this.timeLabel, reason), this.format);
+    if (this.missing) this.notes.push(`${this.missing.toLocaleString('en-US')} row${this.missing === 1 ? ' was' : 's were'} flagged 9 (missing) without a value; they were skipped.`);
+    const unique = normalise(this.columns, this.notes, (line, reason) => this.reject(line, this.timeLabel, reason), this.format, this.hasFlags);
     return { ...unique, timeColumn: this.timeLabel, rowsRead: this.rowsRead, rejectedCount: this.rejectedCount, rejectedRows: this.rejectedRows, notes: this.notes, layout, stats };
   }
 }
@@ -167,9 +193,10 @@ function normalise(
   notes: string[],
   reject: (line: number, reason: string) => void,
   format: TimeReading,
-): Pick<CollectedRows, 't' | 'value' | 'line' | 'duplicatesInInput'> {
+  hasFlags: boolean,
+): Pick<CollectedRows, 't' | 'value' | 'line' | 'sourceFlag' | 'duplicatesInInput'> {
   const n = columns.length;
-  const { t, value, line } = columns;
+  const { t, value, line, flag } = columns;
   let firstUnsorted = -1;
   for (let i = 1; i < n; i++) {
     if (t[i] < t[i - 1]) {
@@ -187,6 +214,7 @@ function normalise(
   const outT = new Float64Array(n);
   const outV = new Float64Array(n);
   const outL = new Int32Array(n);
+  const outF = hasFlags ? new Uint8Array(n) : null;
   let m = 0;
   let duplicates = 0;
   for (let i = 0; i < n; ) {
@@ -199,6 +227,7 @@ function normalise(
       outT[m] = t[first];
       outV[m] = value[first];
       outL[m] = line[first];
+      if (outF) outF[m] = flag[first];
       m++;
       duplicates += j - i - 1;
     } else {
@@ -209,7 +238,7 @@ function normalise(
     }
     i = j;
   }
-  return { t: outT.subarray(0, m), value: outV.subarray(0, m), line: outL.subarray(0, m), duplicatesInInput: duplicates };
+  return { t: outT.subarray(0, m), value: outV.subarray(0, m), line: outL.subarray(0, m), sourceFlag: outF ? outF.subarray(0, m) : null, duplicatesInInput: duplicates };
 }
 
 function columnLabel(column: string | number, header: string[] | null): string {
@@ -219,11 +248,39 @@ function columnLabel(column: string | number, header: string[] | null): string {
 
 /** Reads a CSV into validated, sorted, unique rows; file-level problems throw CsvFileError. */
 export async function collectCsvRows(input: CsvInput, mapping: CsvRowMapping, zone: string): Promise<CollectedRows> {
-  const collector = new RowCollector(mapping.timeFormat, zone);
-  const named = typeof mapping.timeColumn === 'string' || typeof mapping.valueColumn === 'string';
+  const [rows] = await collectCsvColumns(input, { ...mapping, values: [{ valueColumn: mapping.valueColumn, flagColumn: mapping.flagColumn, zone }] });
+  return rows;
+}
+
+/** One value column of a file (a station feed's variable), with its flag column and the time zone of its series. */
+export interface ValueColumn {
+  valueColumn: string | number;
+  flagColumn?: string | number;
+  zone: string;
+}
+
+/**
+ * Reads a CSV once into validated, sorted, unique rows for each value column (a station file with many variables
+ * feeds one series per column): every column gets its own rejections, duplicates and notes, since a sensor may be
+ * off while the others read. File-level problems (no such column, wrong delimiter, binary data) throw CsvFileError
+ * for the whole file. O(rows × columns).
+ */
+export async function collectCsvColumns(
+  input: CsvInput,
+  mapping: Omit<CsvRowMapping, 'valueColumn' | 'flagColumn'> & {
+    values: ValueColumn[];
+    /** a column of notes (maintenance visits): each filled cell is handed to `onEvent` with its row's time cell */
+    eventColumn?: string;
+    onEvent?: (timeCell: string, note: string, line: number) => void;
+  },
+): Promise<CollectedRows[]> {
+  const collectors = mapping.values.map((column) => new RowCollector(mapping.timeFormat, column.zone));
+  const first = mapping.values[0];
+  const named = typeof mapping.timeColumn === 'string' || mapping.values.some((v) => typeof v.valueColumn === 'string');
   let timeIndex = -1;
-  let valueIndex = -1;
-  let labels: [string, string] = ['', ''];
+  let eventIndex = -1;
+  let timeLabel = '';
+  let indexes: { value: number; flag: number; valueLabel: string; flagLabel: string; needed: number }[] = [];
   let delimiterName = '';
   const resolve = (layout: CsvLayout) => {
     const find = (column: string | number): number => {
@@ -241,40 +298,60 @@ export async function collectCsvRows(input: CsvInput, mapping: CsvRowMapping, zo
       return index;
     };
     timeIndex = find(mapping.timeColumn);
-    valueIndex = find(mapping.valueColumn);
-    labels = [columnLabel(mapping.timeColumn, layout.header), columnLabel(mapping.valueColumn, layout.header)];
-    collector.timeLabel = labels[0];
+    timeLabel = columnLabel(mapping.timeColumn, layout.header);
+    if (mapping.eventColumn !== undefined) eventIndex = find(mapping.eventColumn);
+    indexes = mapping.values.map((v) => {
+      const value = find(v.valueColumn);
+      const flag = v.flagColumn === undefined ? -1 : find(v.flagColumn);
+      return {
+        value, flag, needed: Math.max(timeIndex, value, flag) + 1,
+        valueLabel: columnLabel(v.valueColumn, layout.header),
+        flagLabel: v.flagColumn === undefined ? '' : columnLabel(v.flagColumn, layout.header),
+      };
+    });
+    collectors.forEach((collector, k) => {
+      collector.timeLabel = timeLabel;
+      collector.hasFlags = indexes[k].flag !== -1;
+    });
     delimiterName = layout.delimiter === '\t' ? 'tab' : `"${layout.delimiter}"`;
   };
   const looksLikeData = (fields: string[]) => {
     const ti = typeof mapping.timeColumn === 'number' ? mapping.timeColumn : 0;
-    const vi = typeof mapping.valueColumn === 'number' ? mapping.valueColumn : 1;
-    return numericLike(fields[vi]) || parseTime(fields[ti] ?? '', mapping.timeFormat, zone).ok;
+    const vi = typeof first.valueColumn === 'number' ? first.valueColumn : 1;
+    return numericLike(fields[vi]) || parseTime(fields[ti] ?? '', mapping.timeFormat, first.zone).ok;
   };
-  const needed = () => Math.max(timeIndex, valueIndex) + 1;
   const { layout, stats } = await readCsv(input, {
     delimiter: mapping.delimiter,
     header: mapping.header ?? (named ? true : 'auto'),
     looksLikeData,
     onLayout: resolve,
     onRow: (fields, line, problem) => {
-      if (problem) {
-        collector.rowsRead++;
-        return collector.reject(line, null, problem);
+      const note = eventIndex === -1 || problem ? '' : (fields[eventIndex] ?? '').trim();
+      if (note) mapping.onEvent?.(fields[timeIndex] ?? '', note, line);
+      for (let k = 0; k < collectors.length; k++) {
+        const collector = collectors[k];
+        const column = indexes[k];
+        if (problem) {
+          collector.rowsRead++;
+          collector.reject(line, null, problem);
+        } else if (fields.length < column.needed) {
+          // Each column needs only its own cells: a short line may still carry the first variables of a station file.
+          collector.rowsRead++;
+          const missing = fields.length <= timeIndex ? timeLabel : fields.length <= column.value ? column.valueLabel : column.flagLabel || column.valueLabel;
+          collector.reject(line, missing, `the line has ${fields.length} field${fields.length === 1 ? '' : 's'}; expected at least ${column.needed} separated by ${delimiterName}`);
+        } else {
+          collector.add(line, fields[timeIndex], fields[column.value], timeLabel, column.valueLabel, column.flag === -1 ? undefined : fields[column.flag], column.flagLabel);
+        }
       }
-      if (fields.length < needed()) {
-        collector.rowsRead++;
-        const missing = fields.length <= timeIndex ? labels[0] : labels[1];
-        return collector.reject(line, missing, `the line has ${fields.length} field${fields.length === 1 ? '' : 's'}; expected at least ${needed()} separated by ${delimiterName}`);
-      }
-      collector.add(line, fields[timeIndex], fields[valueIndex], labels[0], labels[1]);
     },
   });
-  if (layout.bom) collector.notes.push(`A byte order mark (${layout.encoding}) was found and removed.`);
-  if (layout.encoding === 'windows-1252') {
-    collector.notes.push('The file is not valid UTF-8, so it was read as Windows-1252 (Western European), as older spreadsheets and loggers write it; check that names and units with accents or symbols read right.');
-  }
-  return collector.finish(layout, stats);
+  return collectors.map((collector) => {
+    if (layout.bom) collector.notes.push(`A byte order mark (${layout.encoding}) was found and removed.`);
+    if (layout.encoding === 'windows-1252') {
+      collector.notes.push('The file is not valid UTF-8, so it was read as Windows-1252 (Western European), as older spreadsheets and loggers write it; check that names and units with accents or symbols read right.');
+    }
+    return collector.finish(layout, stats);
+  });
 }
 
 /** Validates pushed JSON points; `line` in reports is the 1-based position in the array. */

@@ -1,10 +1,15 @@
 import type { Transaction } from 'sequelize';
 import type { Database, Statement } from 'sqlite3';
 import { allRows as all } from '@/models/db';
+import type { PointFlags } from '@/lib/quality/run';
+import { setterName } from '@/lib/quality/flags';
+import { sqlDate } from '@/lib/db/sql-date';
 import type { CollectedRows, RejectedRow } from './rows';
 
-/** Rows per multi-row INSERT: 500 × 4 parameters stays far below SQLite's variable limit and amortises each call. */
+/** Rows per multi-row INSERT: 500 × 7 parameters stays far below SQLite's variable limit and amortises each call. */
 const INSERT_BATCH = 500;
+const COLUMNS = 7;
+const INSERT_SQL = (count: number) => `INSERT INTO observations (series_id, t, value, ingest_run_id, flag, flag_test, source_flag) VALUES ${new Array(count).fill('(?,?,?,?,?,?,?)').join(',')}`;
 const READ_PAGE = 50_000;
 
 export const ROW_NEW = 0;
@@ -94,7 +99,8 @@ export function conflictRejections(rows: CollectedRows, classified: Classified):
 
 /**
  * Inserts the new rows and overwrites the replaced ones on the transaction's connection, with statements prepared
- * once; each row written names the run that wrote it (an analysis's provenance lists them).
+ * once; each row written names the run that wrote it (an analysis's provenance lists them) and carries its QARTOD
+ * flag, what set it, and the source's own flag.
  */
 export async function writeRows(
   transaction: Transaction,
@@ -103,31 +109,37 @@ export async function writeRows(
   classified: Classified,
   replace: boolean,
   runId: number,
+  quality: PointFlags,
 ): Promise<{ inserted: number; replaced: number }> {
   const conn = connectionOf(transaction);
-  const values = (count: number) => new Array(count).fill('(?,?,?,?)').join(',');
-  const full = await prepare(conn, `INSERT INTO observations (series_id, t, value, ingest_run_id) VALUES ${values(INSERT_BATCH)}`);
-  const update = await prepare(conn, 'UPDATE observations SET value = ?, ingest_run_id = ? WHERE series_id = ? AND t = ?');
+  const full = await prepare(conn, INSERT_SQL(INSERT_BATCH));
+  const update = await prepare(conn, 'UPDATE observations SET value = ?, ingest_run_id = ?, flag = ?, flag_test = ?, source_flag = ? WHERE series_id = ? AND t = ?');
+  // A replaced value is kept as an earlier version, naming the run that replaces it (reprocessed data stays traceable).
+  const keep = await prepare(conn, `INSERT INTO observation_versions (series_id, t, value, flag, flag_test, source_flag, ingest_run_id, replaced_by_run_id, replaced_at)
+    SELECT series_id, t, value, flag, flag_test, source_flag, ingest_run_id, ?, ? FROM observations WHERE series_id = ? AND t = ?`);
+  const now = sqlDate(Date.now());
+  const sourceFlag = (i: number) => (rows.sourceFlag && rows.sourceFlag[i] ? rows.sourceFlag[i] : null);
   let inserted = 0;
   let replaced = 0;
   try {
-    const batch: number[] = [];
+    const batch: (number | string | null)[] = [];
     for (let i = 0; i < rows.t.length; i++) {
       const kind = classified.kind[i];
       if (kind === ROW_NEW) {
-        batch.push(seriesId, rows.t[i], rows.value[i], runId);
+        batch.push(seriesId, rows.t[i], rows.value[i], runId, quality.flag[i], setterName(quality.setter[i]), sourceFlag(i));
         inserted++;
-        if (batch.length === INSERT_BATCH * 4) {
+        if (batch.length === INSERT_BATCH * COLUMNS) {
           await run(full, batch);
           batch.length = 0;
         }
       } else if (kind === ROW_CONFLICT && replace) {
-        await run(update, [rows.value[i], runId, seriesId, rows.t[i]]);
+        await run(keep, [runId, now, seriesId, rows.t[i]]);
+        await run(update, [rows.value[i], runId, quality.flag[i], setterName(quality.setter[i]), sourceFlag(i), seriesId, rows.t[i]]);
         replaced++;
       }
     }
     if (batch.length) {
-      const rest = await prepare(conn, `INSERT INTO observations (series_id, t, value, ingest_run_id) VALUES ${values(batch.length / 4)}`);
+      const rest = await prepare(conn, INSERT_SQL(batch.length / COLUMNS));
       try {
         await run(rest, batch);
       } finally {
@@ -137,6 +149,7 @@ export async function writeRows(
   } finally {
     await finalize(full);
     await finalize(update);
+    await finalize(keep);
   }
   return { inserted, replaced };
 }

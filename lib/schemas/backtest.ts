@@ -59,3 +59,6 @@ export const markCreateSchema = z
   })
   .strict();
 export type MarkCreate = z.output<typeof markCreateSchema>;
+
+/** A maintenance visit for every series of a site: { at, note }. */
+export const siteMaintenanceSchema = z.object({ at: instantSchema, note: z.string().trim().max(2000).default('') }).strict();

@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import { analysisSettingsSchema } from '@/lib/engine/settings';
 import { isExtent, parseExtent } from '@/lib/engine/extent';
+import { qcConfigSchema } from './quality';
 
 /** Lower-case words joined by hyphens: safe as a folder name and in URLs, never a path. */
 export const slugSchema = z
@@ -53,6 +54,8 @@ export const csvMappingSchema = z.object({
   timeColumn: z.union([z.string().min(1).max(200), z.number().int().min(0)]).default(0),
   valueColumn: z.union([z.string().min(1).max(200), z.number().int().min(0)]).default(1),
   timeFormat: z.enum(TIME_FORMATS).default('iso8601'),
+  /** A column holding each value's QARTOD flag from the source (1, 2, 3, 4 or 9); optional. */
+  flagColumn: z.union([z.string().min(1).max(200), z.number().int().min(0)]).optional(),
 });
 
 function isTimeZone(zone: string): boolean {
@@ -129,6 +132,8 @@ export const seriesFieldsSchema = z.object({
   csvMapping: csvMappingSchema.default(csvMappingSchema.parse({})),
   settings: seriesSettingsSchema.default(seriesSettingsSchema.parse({})),
   duplicatePolicy: z.enum(['reject', 'replace']).default('reject'),
+  /** Automatic quality-control tests (lib/quality); null: none. */
+  qc: qcConfigSchema.nullable().default(null),
 });
 
 export const seriesCreateSchema = seriesFieldsSchema.extend({ slug: slugSchema });
@@ -149,6 +154,7 @@ export const seriesUpdateSchema = z
     csvMapping: csvMappingSchema,
     settings: seriesSettingsSchema,
     duplicatePolicy: z.enum(['reject', 'replace']),
+    qc: qcConfigSchema.nullable(),
     retired: z.boolean(),
   })
   .partial()

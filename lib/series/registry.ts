@@ -24,6 +24,7 @@ export function presentSeries(series: Series) {
     csvMapping: series.csvMapping,
     settings: series.settings,
     duplicatePolicy: series.duplicatePolicy,
+    qc: series.qc ?? null,
     retired: series.retiredAt !== null,
     retiredAt: series.retiredAt,
     createdAt: series.createdAt,
@@ -154,7 +155,8 @@ export async function updateSeries(slug: string, input: unknown, actor: Pick<Act
     const changed = Object.keys(fields).filter((key) => JSON.stringify(fields[key as keyof typeof fields]) !== JSON.stringify(series.get(key)));
     const settingsChanged = changed.includes('settings');
     series.set(fields);
-    if (settingsChanged) series.needsAnalysis = true;
+    // Which flags enter the analysis is part of the QC settings.
+    if (settingsChanged || changed.includes('qc')) series.needsAnalysis = true;
     const retiring = retired !== undefined && retired !== (series.retiredAt !== null);
     if (retiring) series.retiredAt = retired ? new Date() : null;
     await series.save({ transaction });

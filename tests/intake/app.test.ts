@@ -160,9 +160,9 @@ describe('push API and ingest tokens', () => {
 
   it('reads observations back as JSON and CSV with from/to', async () => {
     const json = await (await viewer.fetch(`/api/series/north-basin/observations?from=2024-03-01T00:00:00Z&to=${Date.UTC(2024, 2, 2)}`)).json();
-    expect(json.items).toEqual([{ time: '2024-03-01T00:00:00.000Z', t: Date.UTC(2024, 2, 1), value: 1.5 }, { time: '2024-03-02T00:00:00.000Z', t: Date.UTC(2024, 2, 2), value: 2 }]);
+    expect(json.items).toEqual([{ time: '2024-03-01T00:00:00.000Z', t: Date.UTC(2024, 2, 1), value: 1.5, flag: 2 }, { time: '2024-03-02T00:00:00.000Z', t: Date.UTC(2024, 2, 2), value: 2, flag: 2 }]);
     const text = await (await viewer.fetch('/api/series/north-basin/observations?format=csv&from=2024-03-01T00:00:00Z')).text();
-    expect(text).toBe(`time,t,value\n2024-03-01T00:00:00.000Z,${Date.UTC(2024, 2, 1)},1.5\n2024-03-02T00:00:00.000Z,${Date.UTC(2024, 2, 2)},2\n2024-03-03T00:00:00.000Z,${Date.UTC(2024, 2, 3)},3\n`);
+    expect(text).toBe(`time,t,value,flag\n2024-03-01T00:00:00.000Z,${Date.UTC(2024, 2, 1)},1.5,2\n2024-03-02T00:00:00.000Z,${Date.UTC(2024, 2, 2)},2,2\n2024-03-03T00:00:00.000Z,${Date.UTC(2024, 2, 3)},3,2\n`);
     expect((await viewer.fetch('/api/series/north-basin/observations?from=yesterday')).status).toBe(422);
   });
 });

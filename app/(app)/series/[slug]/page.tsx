@@ -11,6 +11,8 @@ import { Caution } from '@/components/Caution';
 import { LocalTime } from '@/components/LocalTime';
 import { ErrorNote } from '@/components/States';
 import { QualityPanel } from '@/components/workbench/QualityPanel';
+import { QcSettings } from '@/components/quality/QcSettings';
+import type { QcConfig } from '@/lib/schemas/quality';
 import { Workbench } from '@/components/workbench/Workbench';
 import { requireRole } from '@/lib/auth/guard';
 import { fetchWorkbench } from '@/lib/series/workbench';
@@ -58,6 +60,7 @@ export default async function SeriesPage({ params }: { params: Promise<{ slug: s
       />
       <RulesPanel slug={series.slug} statuses={statuses} timeZone={series.timeZone} canEdit={canLead} indicators={bench.savedSettings.indicators} templates={RULE_TEMPLATES} />
       {canLead ? <WhoHears slug={series.slug} /> : null}
+      <QcSettings slug={series.slug} initial={series.qc as QcConfig | null} canEdit={canLead} />
       <BacktestPanel slug={series.slug} timeZone={series.timeZone} canRun={canLead} />
     </section>
   );

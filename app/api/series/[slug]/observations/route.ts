@@ -6,33 +6,27 @@ import { readQuery } from '@/lib/http/body';
 import { ServiceUnavailableError, UnprocessableError } from '@/lib/http/errors';
 import { observationQuerySchema } from '@/lib/schemas/observation';
 import { findSeriesBySlug } from '@/lib/series/registry';
-import { loadObservations } from '@/lib/analysis/observations';
+import { loadFlaggedObservations } from '@/lib/analysis/observations';
 import { observationsCsvStream } from '@/lib/intake/export';
 import { ingestObservations } from '@/lib/intake/pipeline';
 import { readIntakeBody } from '@/lib/intake/request-body';
-import { formatInstant, parseInstantParam } from '@/lib/intake/time-formats';
+import { formatInstant } from '@/lib/intake/time-formats';
+import { queryRange } from '@/lib/http/range';
 
 export const GET = handle<{ slug: string }>(async (request, { params }) => {
   await requireRole('viewer');
   const { slug } = await params;
   const query = readQuery(request, observationQuerySchema);
   const series = await findSeriesBySlug(slug);
-  const instant = (name: 'from' | 'to') => {
-    const raw = query[name];
-    if (raw === undefined) return undefined;
-    const parsed = parseInstantParam(raw, series.timeZone);
-    if (!parsed.ok) throw new UnprocessableError('Some fields are not valid.', { [name]: [`Give ISO 8601 or epoch milliseconds: ${parsed.reason}`] });
-    return parsed.t;
-  };
-  const range = { from: instant('from'), to: instant('to'), limit: query.limit };
+  const range = { ...queryRange(query, series.timeZone), limit: query.limit };
   if (query.format === 'csv') {
     return new Response(observationsCsvStream(series.id, range), {
       headers: { 'content-type': 'text/csv; charset=utf-8', 'content-disposition': `attachment; filename="${series.slug}.csv"` },
     });
   }
-  const { time, value } = await loadObservations(series.id, { ...range, limit: range.limit ?? 100_000 });
+  const { time, value, flag } = await loadFlaggedObservations(series.id, { ...range, limit: range.limit ?? 100_000 });
   const items = new Array(time.length);
-  for (let i = 0; i < time.length; i++) items[i] = { time: formatInstant(time[i]), t: time[i], value: value[i] };
+  for (let i = 0; i < time.length; i++) items[i] = { time: formatInstant(time[i]), t: time[i], value: value[i], flag: flag[i] };
   return NextResponse.json({ slug: series.slug, unit: series.unit, count: items.length, items });
 });
 
@@ -51,5 +45,5 @@ export const POST = handle<{ slug: string }>(async (request, { params }) => {
     for (const row of rejected.slice(0, 100)) (fields[`line.${row.line}`] ??= []).push(row.reason);
     throw new UnprocessableError(outcome.message, Object.keys(fields).length ? fields : undefined);
   }
-  return NextResponse.json({ runId: outcome.runId, accepted: outcome.accepted, duplicates: outcome.duplicates, replaced: outcome.replaced, rejected, message: outcome.message });
+  return NextResponse.json({ runId: outcome.runId, accepted: outcome.accepted, duplicates: outcome.duplicates, replaced: outcome.replaced, rejected, flagged: outcome.flagged, message: outcome.message });
 });
