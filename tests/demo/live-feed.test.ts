@@ -70,7 +70,13 @@ describe('the live demo after a fresh start', () => {
     expect(Number(newer.dataTo)).toBeLessThanOrEqual(Date.now());
 
     const rule = await AlertRule.findOne({ where: { seriesId: series!.id, indicator: 'ac1', severity: 'warning' } });
-    const alert = await waitFor('the ac1 alert of the fold series', () => Alert.findOne({ where: { seriesId: series!.id, ruleId: rule!.id } }), left(), 1000);
+    const alert = await waitFor('the ac1 alert of the fold series', () => Alert.findOne({ where: { seriesId: series!.id, ruleId: rule!.id } }), left(), 1000).catch(async (error) => {
+      // Say what the rule made of each analysis, so a miss can be read from the log.
+      const sequelize = await db();
+      const judged = await sequelize.query('SELECT snapshot_id, tau, surrogate_p, streak, outcome FROM rule_evaluations WHERE rule_id = :rule ORDER BY id', { replacements: { rule: rule!.id }, type: QueryTypes.SELECT });
+      console.log(`[live-feed] evaluations of rule ${rule!.id}: ${JSON.stringify(judged)}`);
+      throw error;
+    });
     expect(alert.state).toBe('new');
     const mail = await waitFor('its e-mail in the local mailbox', () =>
       readMailbox(path.join(dataDir, 'mailbox')).find((m) => m.subject.includes(`(alert #${alert.id})`) && m.to.includes('analyst@brinkwatch.test')), left(), 1000);
