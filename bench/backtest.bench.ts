@@ -39,12 +39,27 @@ export async function run(): Promise<BenchRow[]> {
 
   // the live default: local-linear point-in-time trend, with abrupt-shift detection over the record and its prefixes
   const tl = performance.now();
-  const ll = await runBacktest({ ...big, intervalMs: DAY, settings: analysisSettingsSchema.parse({ window: 0.5 }), rule: rule('ac1'), tippingPoints: [{ at: big.time[45_000] }], every: 10 });
+  const ll = await runBacktest({
+    ...big,
+    intervalMs: DAY,
+    settings: analysisSettingsSchema.parse({ window: 0.5 }),
+    rule: rule('ac1'),
+    tippingPoints: [{ at: big.time[45_000] }],
+    every: 10,
+  });
   const localLinear = (performance.now() - tl) / 1000;
 
   const small = record(5_000, 2);
   const t1 = performance.now();
-  const cal = await runBacktest({ ...small, intervalMs: DAY, settings, rule: rule('ac1'), tippingPoints: [], every: 1, calibration: { surrogates: 200, method: 'ar1' } });
+  const cal = await runBacktest({
+    ...small,
+    intervalMs: DAY,
+    settings,
+    rule: rule('ac1'),
+    tippingPoints: [],
+    every: 1,
+    calibration: { surrogates: 200, method: 'ar1' },
+  });
   const calibration = (performance.now() - t1) / 1000;
 
   const live = record(2_000, 3);
@@ -61,7 +76,15 @@ export async function run(): Promise<BenchRow[]> {
   const ruleCalibration = (performance.now() - t2) / 1000;
   const c = own.calibration!;
   return [
-    { case: 'replay every 10 points, ac1 + variance (gaussian detrend)', n: 50_000, value: replay, unit: 's', target: '< 10 s', pass: replay < 10, note: `${steps} judged instants` },
+    {
+      case: 'replay every 10 points, ac1 + variance (gaussian detrend)',
+      n: 50_000,
+      value: replay,
+      unit: 's',
+      target: '< 10 s',
+      pass: replay < 10,
+      note: `${steps} judged instants`,
+    },
     {
       case: 'replay every 10 points, ac1 (local-linear detrend, shift detection on)',
       n: 50_000,

@@ -11,16 +11,26 @@ const VARIABLES = ['temp', 'sal', 'do', 'chl'];
 async function main() {
   await migrateUp();
   for (const name of VARIABLES) {
-    await createSeries({
-      slug: `bench-${name}`, name, intervalMs: 60_000,
-      qc: { grossRange: { fail: [-5, 50] }, spike: { suspect: 1, fail: 3 }, flatLine: { tolerance: 0, suspect: 5, fail: 10 } },
-    }, null);
+    await createSeries(
+      {
+        slug: `bench-${name}`,
+        name,
+        intervalMs: 60_000,
+        qc: { grossRange: { fail: [-5, 50] }, spike: { suspect: 1, fail: 3 }, flatLine: { tolerance: 0, suspect: 5, fail: 10 } },
+      },
+      null,
+    );
   }
-  await createFeed({
-    slug: 'bench-station', name: 'Bench station', timeColumn: 'time',
-    columns: Object.fromEntries(VARIABLES.map((name) => [name, `bench-${name}`])),
-    flagColumns: Object.fromEntries(VARIABLES.map((name) => [name, `${name}_qc`])),
-  }, null);
+  await createFeed(
+    {
+      slug: 'bench-station',
+      name: 'Bench station',
+      timeColumn: 'time',
+      columns: Object.fromEntries(VARIABLES.map((name) => [name, `bench-${name}`])),
+      flagColumns: Object.fromEntries(VARIABLES.map((name) => [name, `${name}_qc`])),
+    },
+    null,
+  );
   const t0 = performance.now();
   const results = await runDropIntake({ settleMs: 0 });
   const intakeMs = performance.now() - t0;

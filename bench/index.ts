@@ -46,7 +46,11 @@ function printTable(rows: (BenchRow & { suite: string })[]): void {
     r.note ?? '',
   ]);
   const widths = head.map((h, i) => Math.max(h.length, ...body.map((b) => b[i].length)));
-  const line = (cells: string[]) => cells.map((c, i) => (i === 3 ? c.padStart(widths[i]) : c.padEnd(widths[i]))).join('  ').trimEnd();
+  const line = (cells: string[]) =>
+    cells
+      .map((c, i) => (i === 3 ? c.padStart(widths[i]) : c.padEnd(widths[i])))
+      .join('  ')
+      .trimEnd();
   console.log(line(head));
   console.log(widths.map((w) => '-'.repeat(w)).join('  '));
   for (const b of body) console.log(line(b));

@@ -56,7 +56,8 @@ function stationary(run: number): Float64Array {
 /** Exact binomial 95% interval by bisection on the binomial tails (Clopper & Pearson (1934), Biometrika 26, 404–413). */
 function clopperPearson(k: number, n: number): [number, number] {
   const solve = (above: (p: number) => boolean) => {
-    let lo = 0, hi = 1;
+    let lo = 0,
+      hi = 1;
     for (let it = 0; it < 60; it++) {
       const mid = (lo + hi) / 2;
       if (above(mid)) lo = mid;

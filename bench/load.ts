@@ -99,7 +99,13 @@ async function serviceTimes(session: Session): Promise<Map<string, number>> {
       await (await session.fetch(endpoint.path(i, i))).arrayBuffer();
       times.push(performance.now() - t0);
     }
-    medians.set(endpoint.name, percentile(times.sort((a, b) => a - b), 50));
+    medians.set(
+      endpoint.name,
+      percentile(
+        times.sort((a, b) => a - b),
+        50,
+      ),
+    );
   }
   return medians;
 }
@@ -146,22 +152,39 @@ async function runScenario(sessions: Session[], thinkMs: number, alone: Map<stri
     const pass = errorCount === 0 && p95 < TARGET_P95_MS;
     failed ||= !pass;
     total += sorted.length;
-    rows.push([endpoint.name, alone.get(endpoint.name)!.toFixed(1), String(sorted.length), String(errorCount), percentile(sorted, 50).toFixed(0), p95.toFixed(0),
-      percentile(sorted, 99).toFixed(0), `p95 < ${TARGET_P95_MS}, 0 errors`, pass ? 'pass' : 'FAIL']);
+    rows.push([
+      endpoint.name,
+      alone.get(endpoint.name)!.toFixed(1),
+      String(sorted.length),
+      String(errorCount),
+      percentile(sorted, 50).toFixed(0),
+      p95.toFixed(0),
+      percentile(sorted, 99).toFixed(0),
+      `p95 < ${TARGET_P95_MS}, 0 errors`,
+      pass ? 'pass' : 'FAIL',
+    ]);
   }
   const widths = head.map((h, i) => Math.max(h.length, ...rows.map((r) => r[i].length)));
-  const line = (cells: string[]) => cells.map((cell, i) => (i >= 1 && i <= 6 ? cell.padStart(widths[i]) : cell.padEnd(widths[i]))).join('  ').trimEnd();
-  console.log(`\nload: ${CLIENTS} clients (think time ${thinkMs} ms), ${total} requests in ${elapsed.toFixed(1)} s (${(total / elapsed).toFixed(0)} req/s), ` +
-    `${SERIES} series, ${SERIES * OBSERVATIONS_PER_SERIES} observations, ${SERIES * RULES_PER_SERIES * ALERTS_PER_RULE} alerts; ` +
-    `${os.cpus().length} cores, Node ${process.version}`);
+  const line = (cells: string[]) =>
+    cells
+      .map((cell, i) => (i >= 1 && i <= 6 ? cell.padStart(widths[i]) : cell.padEnd(widths[i])))
+      .join('  ')
+      .trimEnd();
+  console.log(
+    `\nload: ${CLIENTS} clients (think time ${thinkMs} ms), ${total} requests in ${elapsed.toFixed(1)} s (${(total / elapsed).toFixed(0)} req/s), ` +
+      `${SERIES} series, ${SERIES * OBSERVATIONS_PER_SERIES} observations, ${SERIES * RULES_PER_SERIES * ALERTS_PER_RULE} alerts; ` +
+      `${os.cpus().length} cores, Node ${process.version}`,
+  );
   console.log(line(head));
   console.log(widths.map((w) => '-'.repeat(w)).join('  '));
   for (const row of rows) console.log(line(row));
   if (!thinkMs) {
     const meanCost = ENDPOINTS.reduce((sum, e) => sum + alone.get(e.name)!, 0) / ENDPOINTS.length;
     const cores = os.availableParallelism();
-    console.log(`alone ms: one request at a time. Closed-loop floor: ${CLIENTS} clients × ${meanCost.toFixed(1)} ms / ${cores} cores ` +
-      `≈ ${((CLIENTS * meanCost) / cores).toFixed(0)} ms mean latency with no queueing loss at all (Little's law), against a p95 target of ${TARGET_P95_MS} ms`);
+    console.log(
+      `alone ms: one request at a time. Closed-loop floor: ${CLIENTS} clients × ${meanCost.toFixed(1)} ms / ${cores} cores ` +
+        `≈ ${((CLIENTS * meanCost) / cores).toFixed(0)} ms mean latency with no queueing loss at all (Little's law), against a p95 target of ${TARGET_P95_MS} ms`,
+    );
   }
   for (const [name, list] of errors) if (list.length) console.log(`errors on ${name} (first 5): ${list.slice(0, 5).join('; ')}`);
   console.log(failed ? 'FAIL: see the rows above' : 'pass: zero errors and every p95 under target');

@@ -111,15 +111,15 @@ export async function generatePortfolio(dataDir: string, password: string, shape
   });
 
   // 25 alerts per rule over the last two years: the newest open (new/acknowledged/escalated), the rest closed.
-  const rules = await sequelize.query<{ id: number; series_id: number; severity: string }>(
-    'SELECT id, series_id, severity FROM alert_rules ORDER BY id',
-    { type: 'SELECT' as never },
-  );
+  const rules = await sequelize.query<{ id: number; series_id: number; severity: string }>('SELECT id, series_id, severity FROM alert_rules ORDER BY id', {
+    type: 'SELECT' as never,
+  });
   const snapshots = new Map<number, number>();
   for (const row of await sequelize.query<{ series_id: number; latest: number }>(
     'SELECT series_id, MAX(id) AS latest FROM analysis_snapshots GROUP BY series_id',
     { type: 'SELECT' as never },
-  )) snapshots.set(row.series_id, row.latest);
+  ))
+    snapshots.set(row.series_id, row.latest);
   const users = await sequelize.query<{ id: number }>("SELECT id FROM users WHERE role IN ('analyst', 'lead') ORDER BY id", { type: 'SELECT' as never });
   const openStates = ['new', 'acknowledged', 'escalated'];
   await writeTransaction(async (transaction) => {
@@ -131,9 +131,20 @@ export async function generatePortfolio(dataDir: string, password: string, shape
         const state = open ? openStates[rule.id % 3] : a % 3 ? 'dismissed' : 'confirmed';
         const snapshot = snapshots.get(rule.series_id)!;
         const assignee = state === 'new' ? null : users[(rule.id + a) % users.length].id;
-        rows.push([rule.series_id, rule.id, state, rule.severity, assignee, snapshot, snapshot, 0.3 + (a % 50) / 100,
+        rows.push([
+          rule.series_id,
+          rule.id,
+          state,
+          rule.severity,
+          assignee,
+          snapshot,
+          snapshot,
+          0.3 + (a % 50) / 100,
           state === 'dismissed' ? DISMISS_REASONS[a % DISMISS_REASONS.length] : null,
-          open ? null : sqlDate(createdAt + 5 * DAY_MS), sqlDate(createdAt), sqlDate(open ? createdAt : createdAt + 5 * DAY_MS)]);
+          open ? null : sqlDate(createdAt + 5 * DAY_MS),
+          sqlDate(createdAt),
+          sqlDate(open ? createdAt : createdAt + 5 * DAY_MS),
+        ]);
       }
     }
     const BATCH = 1000;

@@ -24,7 +24,7 @@ const MODES = [
 ];
 
 function fieldError(error: unknown, field: string): string | null {
-  return error instanceof ApiError ? error.fields?.[field]?.[0] ?? null : null;
+  return error instanceof ApiError ? (error.fields?.[field]?.[0] ?? null) : null;
 }
 
 /** Name, password change, and the mail preference for every series (watched or not). */
@@ -64,28 +64,55 @@ export function AccountForms({ name, email, role, series }: { name: string; emai
   return (
     <div className="grid grid-cols-1 gap-4 lg:grid-cols-2">
       <Panel title="You" id="you">
-        <p className="mb-3 text-sm text-ink-soft">{email} · role <strong className="text-ink">{role}</strong> (set by an admin)</p>
+        <p className="mb-3 text-sm text-ink-soft">
+          {email} · role <strong className="text-ink">{role}</strong> (set by an admin)
+        </p>
         <form onSubmit={submitName} className="space-y-2">
           <Field label="Name">
             <input value={newName} onChange={(e) => setNewName(e.target.value)} required className={control} />
           </Field>
-          <Button type="submit" variant="primary" disabled={rename.isPending || newName.trim() === name}>Save name</Button>
-          {rename.isSuccess ? <p role="status" className="text-sm text-calm">✓ Saved</p> : null}
+          <Button type="submit" variant="primary" disabled={rename.isPending || newName.trim() === name}>
+            Save name
+          </Button>
+          {rename.isSuccess ? (
+            <p role="status" className="text-sm text-calm">
+              ✓ Saved
+            </p>
+          ) : null}
           {rename.isError ? <ErrorNote error={rename.error}>Not saved.</ErrorNote> : null}
         </form>
       </Panel>
       <Panel title="Password" id="password">
         <form onSubmit={submitPassword} className="space-y-2">
           <Field label="Current password" error={fieldError(change.error, 'currentPassword')}>
-            <input type="password" autoComplete="current-password" required value={passwords.currentPassword}
-              onChange={(e) => setPasswords({ ...passwords, currentPassword: e.target.value })} className={control} />
+            <input
+              type="password"
+              autoComplete="current-password"
+              required
+              value={passwords.currentPassword}
+              onChange={(e) => setPasswords({ ...passwords, currentPassword: e.target.value })}
+              className={control}
+            />
           </Field>
           <Field label="New password (at least 12 characters)" error={fieldError(change.error, 'newPassword')}>
-            <input type="password" autoComplete="new-password" required minLength={12} value={passwords.newPassword}
-              onChange={(e) => setPasswords({ ...passwords, newPassword: e.target.value })} className={control} />
+            <input
+              type="password"
+              autoComplete="new-password"
+              required
+              minLength={12}
+              value={passwords.newPassword}
+              onChange={(e) => setPasswords({ ...passwords, newPassword: e.target.value })}
+              className={control}
+            />
           </Field>
-          <Button type="submit" variant="primary" disabled={change.isPending}>Change password</Button>
-          {change.isSuccess ? <p role="status" className="text-sm text-calm">✓ Password changed</p> : null}
+          <Button type="submit" variant="primary" disabled={change.isPending}>
+            Change password
+          </Button>
+          {change.isSuccess ? (
+            <p role="status" className="text-sm text-calm">
+              ✓ Password changed
+            </p>
+          ) : null}
           {change.isError && !(change.error instanceof ApiError && change.error.fields) ? <ErrorNote error={change.error}>Not changed.</ErrorNote> : null}
         </form>
       </Panel>
@@ -99,19 +126,32 @@ export function AccountForms({ name, email, role, series }: { name: string; emai
               <label className="flex items-center gap-2 pb-1.5">
                 <input type="checkbox" checked={onlyMailing} onChange={(e) => setOnlyMailing(e.target.checked)} /> Only series that send me mail
               </label>
-              <span className="ml-auto pb-1.5 text-ink-soft" aria-live="polite">{listed.length} of {series.length} series</span>
+              <span className="ml-auto pb-1.5 text-ink-soft" aria-live="polite">
+                {listed.length} of {series.length} series
+              </span>
             </div>
           ) : null}
-          {watches.isPending ? <Loading /> : watches.isError ? <ErrorNote error={watches.error} /> : series.length === 0 ? <Empty>No series yet.</Empty> : listed.length === 0 ? <Empty>No series match.</Empty> : (
+          {watches.isPending ? (
+            <Loading />
+          ) : watches.isError ? (
+            <ErrorNote error={watches.error} />
+          ) : series.length === 0 ? (
+            <Empty>No series yet.</Empty>
+          ) : listed.length === 0 ? (
+            <Empty>No series match.</Empty>
+          ) : (
             <ul className="divide-y divide-rule text-sm">
               {listed.map((s) => (
                 <li key={s.slug} className="flex flex-wrap items-center gap-3 py-2">
                   <span className="min-w-48 flex-1">{s.name}</span>
                   <label className="flex items-center gap-2">
                     <span className="sr-only">Mail for {s.name}</span>
-                    <select value={modeOf(s.slug)} onChange={(e) => setWatch.mutate({ slug: s.slug, mode: e.target.value })}
-                      className={CONTROL_BARE}>
-                      {MODES.map((m) => <option key={m.value} value={m.value}>{m.label}</option>)}
+                    <select value={modeOf(s.slug)} onChange={(e) => setWatch.mutate({ slug: s.slug, mode: e.target.value })} className={CONTROL_BARE}>
+                      {MODES.map((m) => (
+                        <option key={m.value} value={m.value}>
+                          {m.label}
+                        </option>
+                      ))}
                     </select>
                   </label>
                 </li>

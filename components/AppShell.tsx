@@ -21,7 +21,9 @@ export function AppShell({ actor, children }: { actor: Actor; children: ReactNod
     <div className="flex min-h-screen flex-col">
       <header className="no-print border-b border-rule bg-card">
         <div className="mx-auto flex max-w-7xl flex-wrap items-center gap-x-6 gap-y-2 px-4 py-3">
-          <Link href="/" className="font-mono text-sm font-semibold uppercase tracking-widest text-tide">Brinkwatch</Link>
+          <Link href="/" className="font-mono text-sm font-semibold uppercase tracking-widest text-tide">
+            Brinkwatch
+          </Link>
           <nav aria-label="Main" className="flex flex-wrap gap-1">
             {NAV.filter((item) => roleAtLeast(actor.role, item.minRole)).map((item) => (
               <Link key={item.href} href={item.href} className="rounded px-3 py-1.5 text-sm hover:bg-tide-light">
@@ -31,7 +33,10 @@ export function AppShell({ actor, children }: { actor: Actor; children: ReactNod
           </nav>
           <div className="ml-auto flex items-center gap-3 text-sm">
             <span className="text-ink-soft">
-              {actor.name} · <span className="font-medium text-ink" data-testid="actor-role">{actor.role}</span>
+              {actor.name} ·{' '}
+              <span className="font-medium text-ink" data-testid="actor-role">
+                {actor.role}
+              </span>
             </span>
             <SignOutButton />
           </div>

@@ -27,9 +27,10 @@ const STATE: Record<SeriesState, { symbol: string; label: string; className: str
   alert: { symbol: '!', label: 'Alert open', className: 'bg-warning text-white' },
 };
 
-export const STATE_LABELS: Record<SeriesState, string> = Object.fromEntries(
-  Object.entries(STATE).map(([key, value]) => [key, value.label]),
-) as Record<SeriesState, string>;
+export const STATE_LABELS: Record<SeriesState, string> = Object.fromEntries(Object.entries(STATE).map(([key, value]) => [key, value.label])) as Record<
+  SeriesState,
+  string
+>;
 
 export function StateBadge({ state, detail }: { state: SeriesState; detail?: string }) {
   const s = STATE[state];
@@ -63,7 +64,10 @@ const ALERT_STATE_LABELS: Record<string, string> = {
 export function AlertStateBadge({ state }: { state: string }) {
   const closed = state === 'confirmed' || state === 'dismissed';
   return (
-    <span className={`${base} ${closed ? 'bg-paper text-ink-soft border border-rule' : state === 'escalated' ? 'bg-warning-light text-warning' : 'bg-tide-light text-tide-dark'}`} data-alert-state={state}>
+    <span
+      className={`${base} ${closed ? 'bg-paper text-ink-soft border border-rule' : state === 'escalated' ? 'bg-warning-light text-warning' : 'bg-tide-light text-tide-dark'}`}
+      data-alert-state={state}
+    >
       <span aria-hidden="true">{closed ? '✓' : state === 'escalated' ? '↑' : '○'}</span>
       {ALERT_STATE_LABELS[state] ?? state}
     </span>

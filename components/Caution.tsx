@@ -5,9 +5,8 @@
 export function Caution({ compact = false }: { compact?: boolean }) {
   return (
     <p role="note" className={compact ? 'text-xs text-ink-soft' : 'text-sm text-ink-soft'}>
-      <strong className="font-semibold text-ink">Caution:</strong> these indicators are statistical evidence of slowing
-      down, not a forecast of a tipping point or of its timing. Decisions that affect public safety, water supply or
-      ecosystems rest with the responsible authorities under local rules.
+      <strong className="font-semibold text-ink">Caution:</strong> these indicators are statistical evidence of slowing down, not a forecast of a tipping point
+      or of its timing. Decisions that affect public safety, water supply or ecosystems rest with the responsible authorities under local rules.
     </p>
   );
 }

@@ -15,7 +15,11 @@ export function LabelledInput({ id, label, hint, ...input }: { id: string; label
 export function FormFooter({ error, busy, busyLabel, label }: { error: string | null; busy: boolean; busyLabel: string; label: string }) {
   return (
     <>
-      {error && <p role="alert" className="rounded bg-warning-light px-3 py-2 text-sm text-warning">{error}</p>}
+      {error && (
+        <p role="alert" className="rounded bg-warning-light px-3 py-2 text-sm text-warning">
+          {error}
+        </p>
+      )}
       <Button type="submit" variant="primary" size="lg" disabled={busy} className="w-full">
         {busy ? busyLabel : label}
       </Button>

@@ -19,8 +19,12 @@ export function PageError({ error, reset }: { error: Error & { digest?: string }
           : `Drawing it in the browser failed: ${error.message}`}
       </p>
       <div className="flex flex-wrap items-center gap-4">
-        <Button variant="primary" onClick={reset}>Try again</Button>
-        <Link href="/" className="text-sm text-tide hover:underline">Overview</Link>
+        <Button variant="primary" onClick={reset}>
+          Try again
+        </Button>
+        <Link href="/" className="text-sm text-tide hover:underline">
+          Overview
+        </Link>
       </div>
     </section>
   );

@@ -7,13 +7,19 @@ export function NotFoundNotice() {
       <p className="font-mono text-xs uppercase tracking-widest text-ink-faint">404 · not found</p>
       <h1 className="text-xl font-semibold">Nothing is registered at this address</h1>
       <p className="text-sm text-ink-soft">
-        The series, site, alert or page it names does not exist, or its address was mistyped. A retired series keeps its
-        address; a slug that was never registered has none.
+        The series, site, alert or page it names does not exist, or its address was mistyped. A retired series keeps its address; a slug that was never
+        registered has none.
       </p>
       <p className="flex flex-wrap gap-4 text-sm">
-        <Link href="/" className="text-tide hover:underline">Overview</Link>
-        <Link href="/sites" className="text-tide hover:underline">Sites</Link>
-        <Link href="/alerts" className="text-tide hover:underline">Alerts</Link>
+        <Link href="/" className="text-tide hover:underline">
+          Overview
+        </Link>
+        <Link href="/sites" className="text-tide hover:underline">
+          Sites
+        </Link>
+        <Link href="/alerts" className="text-tide hover:underline">
+          Alerts
+        </Link>
       </p>
     </section>
   );

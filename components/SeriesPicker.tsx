@@ -24,7 +24,12 @@ function findQuery(find: string) {
  * matches (keyboard: arrows, Enter, Escape), instead of a menu holding every series. As a filter, `value` null
  * means all series and ✕ returns to that; with `required` there is no "all", only a prompt to choose.
  */
-export function SeriesPicker({ label, value, onChange, required = false }: {
+export function SeriesPicker({
+  label,
+  value,
+  onChange,
+  required = false,
+}: {
   label: string;
   value: SeriesChoice | null;
   onChange: (choice: SeriesChoice | null) => void;
@@ -107,30 +112,48 @@ export function SeriesPicker({ label, value, onChange, required = false }: {
           className={`w-48 rounded border border-rule bg-card px-2 py-1.5 text-sm font-normal text-ink ${value ? 'placeholder:text-ink' : ''}`}
         />
         {value && !required ? (
-          <button type="button" onClick={() => choose(null)} className="rounded px-1.5 py-1 text-sm text-tide hover:underline" aria-label={`Show all series instead of ${value.name}`}>
+          <button
+            type="button"
+            onClick={() => choose(null)}
+            className="rounded px-1.5 py-1 text-sm text-tide hover:underline"
+            aria-label={`Show all series instead of ${value.name}`}
+          >
             ✕
           </button>
         ) : null}
       </div>
       {/* always in the page, hidden when closed, so the box's aria-controls names an element that exists */}
-      <ul id={listId} role="listbox" aria-label={`${label} matches`} hidden={!open}
-        className="absolute left-0 top-full z-20 mt-1 max-h-72 w-64 overflow-y-auto rounded border border-rule bg-card py-1 text-sm font-normal text-ink shadow-lg">
+      <ul
+        id={listId}
+        role="listbox"
+        aria-label={`${label} matches`}
+        hidden={!open}
+        className="absolute left-0 top-full z-20 mt-1 max-h-72 w-64 overflow-y-auto rounded border border-rule bg-card py-1 text-sm font-normal text-ink shadow-lg"
+      >
         {!open ? null : matches.isError ? (
           <li className="px-3 py-2 text-warning">The series could not be searched. {matches.error.message}</li>
         ) : matches.isPending ? (
-          <li className="px-3 py-2 text-ink-soft" role="status">Searching…</li>
+          <li className="px-3 py-2 text-ink-soft" role="status">
+            Searching…
+          </li>
         ) : items.length === 0 ? (
           <li className="px-3 py-2 text-ink-soft">No series match “{asked}”.</li>
         ) : (
           items.map((item, i) => (
-            <li key={item.slug} id={`${listId}-${i}`} role="option" aria-selected={i === active} data-slug={item.slug}
+            <li
+              key={item.slug}
+              id={`${listId}-${i}`}
+              role="option"
+              aria-selected={i === active}
+              data-slug={item.slug}
               // mousedown, not click: a click would come after the input's blur has closed the list
               onMouseDown={(event) => {
                 event.preventDefault();
                 choose(item);
               }}
               onMouseEnter={() => setActive(i)}
-              className={`cursor-pointer px-3 py-1.5 ${i === active ? 'bg-tide-light' : ''}`}>
+              className={`cursor-pointer px-3 py-1.5 ${i === active ? 'bg-tide-light' : ''}`}
+            >
               {item.name} <span className="font-mono text-xs text-ink-faint">{item.slug}</span>
             </li>
           ))

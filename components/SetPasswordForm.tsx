@@ -35,15 +35,25 @@ export function SetPasswordForm({ endpoint, submitLabel }: { endpoint: string; s
   if (done) {
     return (
       <div className="space-y-3">
-        <p role="status" className="rounded bg-calm-light px-3 py-2 text-sm text-calm">Your password is set.</p>
-        <Link href="/signin" className={buttonClass('primary', 'lg')}>Sign in</Link>
+        <p role="status" className="rounded bg-calm-light px-3 py-2 text-sm text-calm">
+          Your password is set.
+        </p>
+        <Link href="/signin" className={buttonClass('primary', 'lg')}>
+          Sign in
+        </Link>
       </div>
     );
   }
   return (
     <form onSubmit={submit} className="space-y-4" noValidate>
-      <LabelledInput id="password" label="New password" type="password" autoComplete="new-password" minLength={12}
-        hint="At least 12 characters. A few unrelated words make a good one." />
+      <LabelledInput
+        id="password"
+        label="New password"
+        type="password"
+        autoComplete="new-password"
+        minLength={12}
+        hint="At least 12 characters. A few unrelated words make a good one."
+      />
       <LabelledInput id="confirm" label="The same again" type="password" autoComplete="new-password" />
       <FormFooter error={error} busy={busy} busyLabel="Saving…" label={submitLabel} />
     </form>

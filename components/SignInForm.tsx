@@ -13,7 +13,7 @@ const MESSAGES: Record<string, string> = {
 export function SignInForm() {
   const router = useRouter();
   const params = useSearchParams();
-  const [error, setError] = useState<string | null>(params.get('error') ? MESSAGES[params.get('error')!] ?? 'Sign-in failed.' : null);
+  const [error, setError] = useState<string | null>(params.get('error') ? (MESSAGES[params.get('error')!] ?? 'Sign-in failed.') : null);
   const [busy, setBusy] = useState(false);
 
   async function submit(event: FormEvent<HTMLFormElement>) {

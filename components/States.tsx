@@ -28,7 +28,9 @@ export function Panel({ title, actions, children, id }: { title: string; actions
   return (
     <section aria-labelledby={id ? `${id}-title` : undefined} className="rounded-lg border border-rule bg-card p-4 shadow-sm">
       <div className="mb-3 flex flex-wrap items-center gap-2">
-        <h2 id={id ? `${id}-title` : undefined} className="text-base font-semibold">{title}</h2>
+        <h2 id={id ? `${id}-title` : undefined} className="text-base font-semibold">
+          {title}
+        </h2>
         {actions ? <div className="ml-auto flex flex-wrap gap-2">{actions}</div> : null}
       </div>
       {children}

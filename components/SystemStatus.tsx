@@ -31,7 +31,10 @@ export function SystemStatus() {
     <div role="alert" data-testid="system-status" className="no-print border-b border-warning bg-warning-light">
       <ul className="mx-auto max-w-7xl space-y-0.5 px-4 py-2 text-sm text-warning">
         {notices.map((notice) => (
-          <li key={notice.key} data-notice={notice.key}><span aria-hidden="true">✕ </span>{notice.text}</li>
+          <li key={notice.key} data-notice={notice.key}>
+            <span aria-hidden="true">✕ </span>
+            {notice.text}
+          </li>
         ))}
       </ul>
     </div>

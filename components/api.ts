@@ -1,6 +1,10 @@
 /** Fetch wrapper for client components: JSON in and out, and the API's error contract turned into an Error. */
 export class ApiError extends Error {
-  constructor(readonly status: number, message: string, readonly fields?: Record<string, string[]>) {
+  constructor(
+    readonly status: number,
+    message: string,
+    readonly fields?: Record<string, string[]>,
+  ) {
     super(message);
   }
 }

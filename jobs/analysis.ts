@@ -25,10 +25,7 @@ export async function runAnalysisCycle(): Promise<{ analysed: number; snapshots:
       if (!series || !series.needsAnalysis) return null;
       const seen = series.dataChangedAt;
       const result = await refreshSeriesAnalysis(series, { parallel: true });
-      await Series.update(
-        { needsAnalysis: false },
-        { where: { id, needsAnalysis: true, dataChangedAt: seen === null ? { [Op.is]: null } : seen } },
-      );
+      await Series.update({ needsAnalysis: false }, { where: { id, needsAnalysis: true, dataChangedAt: seen === null ? { [Op.is]: null } : seen } });
       await pruneSnapshotCurves(id);
       return result;
     });

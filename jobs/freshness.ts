@@ -15,7 +15,8 @@ export const freshnessJob: ScheduledJob = {
     await withLease('freshness', 10 * 60_000, async () => {
       const now = Date.now();
       const report = await checkFreshness(now);
-      if (report.opened.length || report.returned.length) console.log(`[freshness] data-late alerts opened ${report.opened.join(', ') || 'none'}; data back on ${report.returned.join(', ') || 'none'}`);
+      if (report.opened.length || report.returned.length)
+        console.log(`[freshness] data-late alerts opened ${report.opened.join(', ') || 'none'}; data back on ${report.returned.join(', ') || 'none'}`);
       await sendDueReports(now);
     });
   },

@@ -25,17 +25,21 @@ async function main(): Promise<void> {
   const heartbeat = setInterval(beat, HEARTBEAT_MS);
   const tasks = JOBS.map((job) => {
     let running = false;
-    return cron.schedule(job.schedule(), async () => {
-      if (running) return;
-      running = true;
-      try {
-        await job.run();
-      } catch (error) {
-        log(`${job.name} failed: ${error instanceof Error ? error.stack : error}`);
-      } finally {
-        running = false;
-      }
-    }, { name: job.name });
+    return cron.schedule(
+      job.schedule(),
+      async () => {
+        if (running) return;
+        running = true;
+        try {
+          await job.run();
+        } catch (error) {
+          log(`${job.name} failed: ${error instanceof Error ? error.stack : error}`);
+        } finally {
+          running = false;
+        }
+      },
+      { name: job.name },
+    );
   });
   log(`started ${JOBS.map((j) => `${j.name} (${j.schedule()})`).join(', ') || 'no jobs'} as ${PROCESS_HOLDER}`);
   const stop = async () => {

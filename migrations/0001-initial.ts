@@ -14,9 +14,28 @@ const ref = (table: string, allowNull = false, onDelete: 'CASCADE' | 'SET NULL' 
 
 /** Order matters for foreign keys on the way up, and is reversed on the way down. */
 const TABLES = [
-  'users', 'series', 'observations', 'ingest_tokens', 'ingest_runs', 'analysis_snapshots', 'alert_rules', 'alerts',
-  'rule_evaluations', 'alert_events', 'notes', 'note_revisions', 'mail_outbox', 'audit_log', 'watches', 'leases',
-  'settings_changes', 'sign_in_throttle', 'user_tokens', 'transitions', 'backtest_jobs', 'app_state',
+  'users',
+  'series',
+  'observations',
+  'ingest_tokens',
+  'ingest_runs',
+  'analysis_snapshots',
+  'alert_rules',
+  'alerts',
+  'rule_evaluations',
+  'alert_events',
+  'notes',
+  'note_revisions',
+  'mail_outbox',
+  'audit_log',
+  'watches',
+  'leases',
+  'settings_changes',
+  'sign_in_throttle',
+  'user_tokens',
+  'transitions',
+  'backtest_jobs',
+  'app_state',
 ];
 
 export async function up({ context: q }: { context: QueryInterface }): Promise<void> {

@@ -34,7 +34,9 @@ const DIRECTION_BY_INDICATOR = `CASE indicator WHEN 'recovery' THEN 'falling' WH
 async function rebuildAlerts(q: QueryInterface, edit: (sql: string) => string, columns: string): Promise<void> {
   const s = q.sequelize;
   const [table] = await s.query<{ sql: string }>(`SELECT sql FROM sqlite_master WHERE type = 'table' AND name = 'alerts'`, { type: QueryTypes.SELECT });
-  const indexes = await s.query<{ sql: string }>(`SELECT sql FROM sqlite_master WHERE type = 'index' AND tbl_name = 'alerts' AND sql IS NOT NULL`, { type: QueryTypes.SELECT });
+  const indexes = await s.query<{ sql: string }>(`SELECT sql FROM sqlite_master WHERE type = 'index' AND tbl_name = 'alerts' AND sql IS NOT NULL`, {
+    type: QueryTypes.SELECT,
+  });
   const created = edit(table.sql).replace(/^CREATE TABLE [`"]?alerts[`"]?/, 'CREATE TABLE `alerts_rebuilt`');
   await s.query('PRAGMA foreign_keys = OFF');
   try {
@@ -51,15 +53,30 @@ async function rebuildAlerts(q: QueryInterface, edit: (sql: string) => string, c
 }
 
 const OLD_ALERT_COLUMNS = [
-  'id', 'series_id', 'rule_id', 'state', 'severity', 'assignee_id', 'first_snapshot_id', 'latest_snapshot_id', 'evaluation_count',
-  'peak_tau', 'dismiss_reason', 'closed_at', 'version', 'created_at', 'updated_at',
+  'id',
+  'series_id',
+  'rule_id',
+  'state',
+  'severity',
+  'assignee_id',
+  'first_snapshot_id',
+  'latest_snapshot_id',
+  'evaluation_count',
+  'peak_tau',
+  'dismiss_reason',
+  'closed_at',
+  'version',
+  'created_at',
+  'updated_at',
 ].join(', ');
 
 export async function up({ context: q }: { context: QueryInterface }): Promise<void> {
   const s = q.sequelize;
   await q.addColumn('alert_rules', 'direction', { type: DataTypes.STRING, allowNull: false, defaultValue: 'rising' });
   await s.query(`UPDATE alert_rules SET direction = ${DIRECTION_BY_INDICATOR}`);
-  const kendall = await s.query<{ id: number; max_kendall_p: number }>('SELECT id, max_kendall_p FROM alert_rules WHERE max_kendall_p IS NOT NULL', { type: QueryTypes.SELECT });
+  const kendall = await s.query<{ id: number; max_kendall_p: number }>('SELECT id, max_kendall_p FROM alert_rules WHERE max_kendall_p IS NOT NULL', {
+    type: QueryTypes.SELECT,
+  });
   if (kendall.length) {
     await s.query('INSERT INTO app_state (key, value, updated_at) VALUES (:key, :value, CURRENT_TIMESTAMP)', {
       replacements: { key: MAX_KENDALL_KEY, value: JSON.stringify(kendall.map((r) => [r.id, r.max_kendall_p])) },
@@ -101,7 +118,10 @@ export async function down({ context: q }: { context: QueryInterface }): Promise
   );
   // Native DROP COLUMN (SQLite ≥ 3.35) keeps the table's indexes, which a rebuild by the query interface would not.
   await s.query('ALTER TABLE rule_evaluations DROP COLUMN direction');
-  const [saved] = await s.query<{ value: string }>('SELECT value FROM app_state WHERE key = :key', { replacements: { key: MAX_KENDALL_KEY }, type: QueryTypes.SELECT });
+  const [saved] = await s.query<{ value: string }>('SELECT value FROM app_state WHERE key = :key', {
+    replacements: { key: MAX_KENDALL_KEY },
+    type: QueryTypes.SELECT,
+  });
   if (saved) {
     for (const [id, p] of JSON.parse(saved.value) as [number, number][]) {
       await s.query('UPDATE alert_rules SET max_kendall_p = :p WHERE id = :id', { replacements: { id, p } });

@@ -47,10 +47,31 @@ export class Alert extends Model<InferAttributes<Alert>, InferCreationAttributes
         seriesId: { type: DataTypes.INTEGER, allowNull: false },
         kind: { type: DataTypes.STRING, allowNull: false, defaultValue: 'slowing-down', validate: { isIn: [[...ALERT_KINDS]] } },
         ruleId: { type: DataTypes.INTEGER, allowNull: true },
-        shiftTime: { type: DataTypes.BIGINT, allowNull: true, get() { const v = this.getDataValue('shiftTime'); return v === null || v === undefined ? null : Number(v); } },
+        shiftTime: {
+          type: DataTypes.BIGINT,
+          allowNull: true,
+          get() {
+            const v = this.getDataValue('shiftTime');
+            return v === null || v === undefined ? null : Number(v);
+          },
+        },
         shiftSize: { type: DataTypes.DOUBLE, allowNull: true },
-        dataLastAt: { type: DataTypes.BIGINT, allowNull: true, get() { const v = this.getDataValue('dataLastAt'); return v === null || v === undefined ? null : Number(v); } },
-        dataBackAt: { type: DataTypes.BIGINT, allowNull: true, get() { const v = this.getDataValue('dataBackAt'); return v === null || v === undefined ? null : Number(v); } },
+        dataLastAt: {
+          type: DataTypes.BIGINT,
+          allowNull: true,
+          get() {
+            const v = this.getDataValue('dataLastAt');
+            return v === null || v === undefined ? null : Number(v);
+          },
+        },
+        dataBackAt: {
+          type: DataTypes.BIGINT,
+          allowNull: true,
+          get() {
+            const v = this.getDataValue('dataBackAt');
+            return v === null || v === undefined ? null : Number(v);
+          },
+        },
         state: { type: DataTypes.STRING, allowNull: false, validate: { isIn: [[...ALERT_STATES]] } },
         severity: { type: DataTypes.STRING, allowNull: false },
         assigneeId: { type: DataTypes.INTEGER, allowNull: true },

@@ -46,7 +46,14 @@ export class Series extends Model<InferAttributes<Series>, InferCreationAttribut
         description: { type: DataTypes.TEXT, allowNull: false, defaultValue: '' },
         intervalMs: { type: DataTypes.BIGINT, allowNull: true },
         timeZone: { type: DataTypes.STRING, allowNull: false, defaultValue: 'UTC' },
-        lateAfterMs: { type: DataTypes.BIGINT, allowNull: true, get() { const v = this.getDataValue('lateAfterMs'); return v === null || v === undefined ? null : Number(v); } },
+        lateAfterMs: {
+          type: DataTypes.BIGINT,
+          allowNull: true,
+          get() {
+            const v = this.getDataValue('lateAfterMs');
+            return v === null || v === undefined ? null : Number(v);
+          },
+        },
         csvMapping: { type: DataTypes.JSON, allowNull: false },
         settings: { type: DataTypes.JSON, allowNull: false },
         qc: { type: DataTypes.JSON, allowNull: true },

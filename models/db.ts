@@ -94,7 +94,5 @@ export async function rawReadConnection(): Promise<Database> {
 
 /** `Database#all` as a promise. */
 export function allRows<T>(connection: Database, sql: string, params: unknown[]): Promise<T[]> {
-  return new Promise((resolve, reject) =>
-    connection.all(sql, params, (error, rows) => (error ? reject(error) : resolve(rows as T[]))),
-  );
+  return new Promise((resolve, reject) => connection.all(sql, params, (error, rows) => (error ? reject(error) : resolve(rows as T[]))));
 }

@@ -21,7 +21,16 @@
  */
 import { readFileSync } from 'node:fs';
 import { ZodError } from 'zod';
-import { AnalysisInputError, analysisSettingsSchema, runAnalysis, runSiteAnalysis, summarizeAnalysis, type AnalysisResult, type RecordBreak, type SiteAnalysisResult } from '../lib/engine';
+import {
+  AnalysisInputError,
+  analysisSettingsSchema,
+  runAnalysis,
+  runSiteAnalysis,
+  summarizeAnalysis,
+  type AnalysisResult,
+  type RecordBreak,
+  type SiteAnalysisResult,
+} from '../lib/engine';
 import { CsvFileError, readCsv } from '../lib/intake/csv';
 import { collectCsvRows } from '../lib/intake/rows';
 import { formatInstant, parseTime, type TimeReading } from '../lib/intake/time-formats';
@@ -34,8 +43,25 @@ const TIME_READINGS: readonly TimeReading[] = [...TIME_FORMATS, 'number'];
 
 const FLAGS = new Set(['sensitivity', 'summary', 'log', 'multivariate']);
 const OPTIONS = new Set([
-  'time', 'value', 'detrend', 'bandwidth', 'window', 'span', 'indicators', 'surrogates', 'surrogate-method', 'seed', 'seasonal',
-  'max-gap', 'gap-policy', 'min-coverage', 'sampling-change', 'shift-detection', 'moving-average-width', 'time-format', 'time-zone',
+  'time',
+  'value',
+  'detrend',
+  'bandwidth',
+  'window',
+  'span',
+  'indicators',
+  'surrogates',
+  'surrogate-method',
+  'seed',
+  'seasonal',
+  'max-gap',
+  'gap-policy',
+  'min-coverage',
+  'sampling-change',
+  'shift-detection',
+  'moving-average-width',
+  'time-format',
+  'time-zone',
   'interval-ms',
 ]);
 /** Options that may be given more than once (each adds a break). */
@@ -63,7 +89,8 @@ function parseArgs(argv: string[]): { file: string; opts: Record<string, string>
     } else if (file === undefined) file = a;
     else throw new CliInputError(`unexpected argument ${a}`);
   }
-  if (!file) throw new CliInputError('usage: analyze FILE.csv [--time COLUMN] [--value COLUMN] [--time-format FORMAT] [--time-zone ZONE] [--detrend ...] [--summary]');
+  if (!file)
+    throw new CliInputError('usage: analyze FILE.csv [--time COLUMN] [--value COLUMN] [--time-format FORMAT] [--time-zone ZONE] [--detrend ...] [--summary]');
   return { file, opts, flags, repeated };
 }
 
@@ -132,7 +159,10 @@ interface FileHeader {
  */
 function fileHeader(bytes: Buffer): FileHeader {
   const header: FileHeader = { settings: {}, breaks: [] };
-  const head = bytes.subarray(0, 1 << 20).toString('utf8').split(/\r?\n/);
+  const head = bytes
+    .subarray(0, 1 << 20)
+    .toString('utf8')
+    .split(/\r?\n/);
   for (const line of head) {
     if (!line.startsWith('#')) break;
     const match = /^#\s*(settings|input):\s*(\{.*\})\s*$/.exec(line);
@@ -298,14 +328,20 @@ function toJson(result: AnalysisResult, summary: boolean, numericTime: boolean):
  * series is, and every column must have a value at every instant of the first (same times, same order).
  */
 async function siteJson(bytes: Buffer, opts: Record<string, string>, settings: ReturnType<typeof settingsFrom>, summary: boolean): Promise<unknown> {
-  const names = (opts.value ?? '').split(',').map((v) => v.trim()).filter(Boolean);
+  const names = (opts.value ?? '')
+    .split(',')
+    .map((v) => v.trim())
+    .filter(Boolean);
   if (names.length < 2) throw new CliInputError('option --multivariate needs --value with two or more columns, e.g. --value a,b,c');
   const tables: Table[] = [];
   for (const name of names) tables.push(await readTable(bytes, { ...opts, value: name }));
   const [first] = tables;
   for (const t of tables.slice(1)) {
     const differs = t.time.length !== first.time.length ? Math.min(t.time.length, first.time.length) : t.time.findIndex((v, i) => v !== first.time[i]);
-    if (differs >= 0) throw new CliInputError(`line ${(t.lines[differs] ?? first.lines[differs])}, column "${t.valueName}": every value column needs a value at every instant of column "${first.valueName}"`);
+    if (differs >= 0)
+      throw new CliInputError(
+        `line ${t.lines[differs] ?? first.lines[differs]}, column "${t.valueName}": every value column needs a value at every instant of column "${first.valueName}"`,
+      );
   }
   const result: SiteAnalysisResult = runSiteAnalysis({ values: tables.map((t) => t.value) }, settings);
   return { series: names, ...(summary ? { ...result, indicators: undefined } : result) };

@@ -32,19 +32,23 @@ export function ApiTokens({ role }: { role: Role }) {
     },
   });
   const revoke = useMutation({ mutationFn: (id: number) => api(`/api/account/tokens/${id}`, { method: 'DELETE' }), onSuccess: refresh });
-  const fieldError = (field: string) => (issue.error instanceof ApiError ? issue.error.fields?.[field]?.[0] ?? null : null);
+  const fieldError = (field: string) => (issue.error instanceof ApiError ? (issue.error.fields?.[field]?.[0] ?? null) : null);
 
   return (
     <div className="space-y-3 text-sm" data-testid="api-tokens">
       <p className="text-ink-soft">
-        A personal token lets a script read through the API as you (<code>Authorization: Bearer &lt;token&gt;</code>), with your role or a
-        lower one. Treat it as a password: it is shown once, and revoking it stops it at once.
+        A personal token lets a script read through the API as you (<code>Authorization: Bearer &lt;token&gt;</code>), with your role or a lower one. Treat it
+        as a password: it is shown once, and revoking it stops it at once.
       </p>
       {issued ? (
         <div className="rounded border border-calm bg-calm-light p-2" role="status">
           <p className="font-medium">Token &ldquo;{issued.name}&rdquo; — copy it now, it will not be shown again:</p>
-          <code className="block break-all font-mono text-xs" data-testid="issued-token">{issued.token}</code>
-          <Button size="sm" variant="secondary" className="mt-1" onClick={() => setIssued(null)}>Done</Button>
+          <code className="block break-all font-mono text-xs" data-testid="issued-token">
+            {issued.token}
+          </code>
+          <Button size="sm" variant="secondary" className="mt-1" onClick={() => setIssued(null)}>
+            Done
+          </Button>
         </div>
       ) : null}
       {list.isLoading ? (
@@ -82,16 +86,28 @@ export function ApiTokens({ role }: { role: Role }) {
         }}
       >
         <Field label="Name" error={fieldError('name')} className="flex-1">
-          <input type="text" required maxLength={100} className={CONTROL} value={name} onChange={(e) => setName(e.target.value)} placeholder="e.g. weekly R report" />
+          <input
+            type="text"
+            required
+            maxLength={100}
+            className={CONTROL}
+            value={name}
+            onChange={(e) => setName(e.target.value)}
+            placeholder="e.g. weekly R report"
+          />
         </Field>
         <Field label="Acts as" error={fieldError('role')}>
           <select className={CONTROL} value={tokenRole} onChange={(e) => setTokenRole(e.target.value as Role)}>
             {ROLES.filter((r) => roleAtLeast(role, r)).map((r) => (
-              <option key={r} value={r}>{r}</option>
+              <option key={r} value={r}>
+                {r}
+              </option>
             ))}
           </select>
         </Field>
-        <Button type="submit" disabled={issue.isPending || !name.trim()}>Make a token</Button>
+        <Button type="submit" disabled={issue.isPending || !name.trim()}>
+          Make a token
+        </Button>
       </form>
       {issue.error && !fieldError('name') && !fieldError('role') ? <ErrorNote error={issue.error}>The token could not be made.</ErrorNote> : null}
       {revoke.error ? <ErrorNote error={revoke.error}>The token could not be revoked.</ErrorNote> : null}

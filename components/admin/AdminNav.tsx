@@ -18,8 +18,12 @@ export function AdminNav() {
       {LINKS.map((link) => {
         const current = pathname === link.href;
         return (
-          <Link key={link.href} href={link.href} aria-current={current ? 'page' : undefined}
-            className={`rounded px-3 py-1.5 text-sm ${current ? 'bg-tide text-white' : 'hover:bg-tide-light'}`}>
+          <Link
+            key={link.href}
+            href={link.href}
+            aria-current={current ? 'page' : undefined}
+            className={`rounded px-3 py-1.5 text-sm ${current ? 'bg-tide text-white' : 'hover:bg-tide-light'}`}
+          >
             {link.label}
           </Link>
         );

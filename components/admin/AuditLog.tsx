@@ -42,17 +42,37 @@ export function AuditLog({ initial }: { initial: AuditPageData }) {
   return (
     <div className="space-y-3">
       <Field label="Action (exact, e.g. alert.confirm)" tone="filter" className="w-fit">
-        <input value={action} onChange={(e) => { setAction(e.target.value.trim()); setPage(1); }} className={CONTROL} />
+        <input
+          value={action}
+          onChange={(e) => {
+            setAction(e.target.value.trim());
+            setPage(1);
+          }}
+          className={CONTROL}
+        />
       </Field>
-      {query.isError ? <ErrorNote error={query.error} /> : !query.data ? <Loading /> : query.data.items.length === 0 ? <Empty>No entries.</Empty> : (
+      {query.isError ? (
+        <ErrorNote error={query.error} />
+      ) : !query.data ? (
+        <Loading />
+      ) : query.data.items.length === 0 ? (
+        <Empty>No entries.</Empty>
+      ) : (
         <DataTable caption="Audit log" className="min-w-[640px]" columns={['When', 'Who', 'Action', 'On', 'Details']}>
           {query.data.items.map((e) => (
             <tr key={e.id}>
-              <td className={CELL_TIGHT}><LocalTime t={e.at} timeZone="UTC" withZone /></td>
+              <td className={CELL_TIGHT}>
+                <LocalTime t={e.at} timeZone="UTC" withZone />
+              </td>
               <td className={CELL_TIGHT}>{e.actor?.name ?? 'system'}</td>
               <td className={`${CELL_TIGHT} font-mono text-xs`}>{e.action}</td>
-              <td className={CELL_TIGHT}>{e.entity}{e.entityId ? ` #${e.entityId}` : ''}</td>
-              <td className={`${CELL_TIGHT} max-w-xs truncate font-mono text-xs`} title={JSON.stringify(e.details)}>{JSON.stringify(e.details)}</td>
+              <td className={CELL_TIGHT}>
+                {e.entity}
+                {e.entityId ? ` #${e.entityId}` : ''}
+              </td>
+              <td className={`${CELL_TIGHT} max-w-xs truncate font-mono text-xs`} title={JSON.stringify(e.details)}>
+                {JSON.stringify(e.details)}
+              </td>
             </tr>
           ))}
         </DataTable>

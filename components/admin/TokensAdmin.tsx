@@ -39,36 +39,71 @@ export function TokensAdmin({ hasSeries }: { hasSeries: boolean }) {
       void client.invalidateQueries({ queryKey: key });
     },
   });
-  const revoke = useMutation({ mutationFn: (id: number) => api(`/api/tokens/${id}`, { method: 'DELETE' }), onSuccess: () => client.invalidateQueries({ queryKey: key }) });
+  const revoke = useMutation({
+    mutationFn: (id: number) => api(`/api/tokens/${id}`, { method: 'DELETE' }),
+    onSuccess: () => client.invalidateQueries({ queryKey: key }),
+  });
   if (!hasSeries) return <Empty>Register a series first.</Empty>;
   return (
     <div className="space-y-4">
       <div className="flex flex-wrap items-end gap-3">
-        <SeriesPicker label="Series" required value={series} onChange={(choice) => { setSeries(choice); setSecret(null); }} />
-        <form className="flex flex-wrap items-end gap-2" onSubmit={(e) => { e.preventDefault(); issue.mutate(); }}>
+        <SeriesPicker
+          label="Series"
+          required
+          value={series}
+          onChange={(choice) => {
+            setSeries(choice);
+            setSecret(null);
+          }}
+        />
+        <form
+          className="flex flex-wrap items-end gap-2"
+          onSubmit={(e) => {
+            e.preventDefault();
+            issue.mutate();
+          }}
+        >
           <Field label="Label (who uses it)" tone="filter">
             <input value={label} onChange={(e) => setLabel(e.target.value)} className={CONTROL} placeholder="e.g. buoy logger 3" />
           </Field>
-          <Button type="submit" variant="primary" disabled={issue.isPending || !series}>Issue a token</Button>
+          <Button type="submit" variant="primary" disabled={issue.isPending || !series}>
+            Issue a token
+          </Button>
         </form>
       </div>
       {secret ? (
         <div role="status" className="rounded border border-watch bg-watch-light p-3 text-sm">
           <p className="font-medium">Copy this token now; it is not shown again.</p>
-          <code className="mt-1 block break-all font-mono" data-testid="new-token">{secret}</code>
+          <code className="mt-1 block break-all font-mono" data-testid="new-token">
+            {secret}
+          </code>
         </div>
       ) : null}
       {issue.isError ? <ErrorNote error={issue.error}>No token issued.</ErrorNote> : null}
       {revoke.isError ? <ErrorNote error={revoke.error}>Not revoked.</ErrorNote> : null}
-      {!series ? <p className="text-sm text-ink-soft">Choose a series to see its tokens and issue one.</p> : tokens.isPending ? <Loading /> : tokens.isError ? <ErrorNote error={tokens.error} /> : tokens.data.length === 0 ? <Empty>No tokens for this series.</Empty> : (
+      {!series ? (
+        <p className="text-sm text-ink-soft">Choose a series to see its tokens and issue one.</p>
+      ) : tokens.isPending ? (
+        <Loading />
+      ) : tokens.isError ? (
+        <ErrorNote error={tokens.error} />
+      ) : tokens.data.length === 0 ? (
+        <Empty>No tokens for this series.</Empty>
+      ) : (
         <ul className="divide-y divide-rule rounded-lg border border-rule bg-card text-sm">
           {tokens.data.map((t) => (
             <li key={t.id} className="flex flex-wrap items-center gap-3 px-3 py-2">
               <span className="font-medium">{t.label || `token #${t.id}`}</span>
-              <span className="text-ink-soft">issued <LocalTime t={t.createdAt} timeZone="UTC" withZone /></span>
+              <span className="text-ink-soft">
+                issued <LocalTime t={t.createdAt} timeZone="UTC" withZone />
+              </span>
               <span className="text-ink-soft">last used {t.lastUsedAt ? <LocalTime t={t.lastUsedAt} timeZone="UTC" withZone /> : 'never'}</span>
-              {t.revokedAt ? <span className="text-ink-faint">○ revoked</span> : (
-                <Button size="sm" onClick={() => revoke.mutate(t.id)} className="ml-auto">Revoke</Button>
+              {t.revokedAt ? (
+                <span className="text-ink-faint">○ revoked</span>
+              ) : (
+                <Button size="sm" onClick={() => revoke.mutate(t.id)} className="ml-auto">
+                  Revoke
+                </Button>
               )}
             </li>
           ))}

@@ -24,7 +24,10 @@ export function UsersAdmin({ initial, selfId }: { initial: UserRow[]; selfId: nu
   const users = useQuery({ queryKey: ['users'], queryFn: () => api<{ items: UserRow[] }>('/api/users').then((r) => r.items), initialData: initial });
   const refresh = () => client.invalidateQueries({ queryKey: ['users'] });
   const invite = useMutation({ mutationFn: (body: Record<string, string>) => api('/api/users', { method: 'POST', body }), onSuccess: refresh });
-  const update = useMutation({ mutationFn: ({ id, ...body }: { id: number; role?: string; active?: boolean }) => api(`/api/users/${id}`, { method: 'PATCH', body }), onSuccess: refresh });
+  const update = useMutation({
+    mutationFn: ({ id, ...body }: { id: number; role?: string; active?: boolean }) => api(`/api/users/${id}`, { method: 'PATCH', body }),
+    onSuccess: refresh,
+  });
   const [form, setForm] = useState({ email: '', name: '', role: 'viewer' });
 
   function submit(event: FormEvent) {
@@ -43,23 +46,49 @@ export function UsersAdmin({ initial, selfId }: { initial: UserRow[]; selfId: nu
         </Field>
         <Field label="Role" tone="filter">
           <select value={form.role} onChange={(e) => setForm({ ...form, role: e.target.value })} className={CONTROL}>
-            {ROLES.map((r) => <option key={r} value={r}>{r}</option>)}
+            {ROLES.map((r) => (
+              <option key={r} value={r}>
+                {r}
+              </option>
+            ))}
           </select>
         </Field>
-        <Button type="submit" variant="primary" disabled={invite.isPending}>Send invitation</Button>
-        {invite.isSuccess ? <span role="status" className="text-sm text-calm">✓ Invitation sent</span> : null}
+        <Button type="submit" variant="primary" disabled={invite.isPending}>
+          Send invitation
+        </Button>
+        {invite.isSuccess ? (
+          <span role="status" className="text-sm text-calm">
+            ✓ Invitation sent
+          </span>
+        ) : null}
       </form>
       {invite.isError ? <ErrorNote error={invite.error}>Not invited.</ErrorNote> : null}
       {update.isError ? <ErrorNote error={update.error}>Not changed.</ErrorNote> : null}
-      {users.isPending ? <Loading /> : users.isError ? <ErrorNote error={users.error} /> : users.data.length === 0 ? <Empty>No users.</Empty> : (
+      {users.isPending ? (
+        <Loading />
+      ) : users.isError ? (
+        <ErrorNote error={users.error} />
+      ) : users.data.length === 0 ? (
+        <Empty>No users.</Empty>
+      ) : (
         <DataTable caption="Users" className="min-w-[600px]" columns={['Name', 'E-mail', 'Role', 'Status', { label: 'Actions', srOnly: true }]}>
           {users.data.map((u) => (
             <tr key={u.id}>
               <td className={CELL}>{u.name}</td>
               <td className={CELL}>{u.email}</td>
               <td className={CELL}>
-                <select aria-label={`Role of ${u.name}`} value={u.role} disabled={u.id === selfId} onChange={(e) => update.mutate({ id: u.id, role: e.target.value })} className={CONTROL_BARE}>
-                  {ROLES.map((r) => <option key={r} value={r}>{r}</option>)}
+                <select
+                  aria-label={`Role of ${u.name}`}
+                  value={u.role}
+                  disabled={u.id === selfId}
+                  onChange={(e) => update.mutate({ id: u.id, role: e.target.value })}
+                  className={CONTROL_BARE}
+                >
+                  {ROLES.map((r) => (
+                    <option key={r} value={r}>
+                      {r}
+                    </option>
+                  ))}
                 </select>
               </td>
               <td className={CELL}>{u.invited ? '✉ invited' : u.active ? '● active' : '○ deactivated'}</td>

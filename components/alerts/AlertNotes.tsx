@@ -47,10 +47,13 @@ export function AlertNotes({ alertId, notes, canWrite, timeZone }: { alertId: nu
         </ul>
       )}
       {canWrite ? (
-        <form onSubmit={(e) => {
-          e.preventDefault();
-          if (body.trim()) add.mutate(body.trim());
-        }} className="space-y-2">
+        <form
+          onSubmit={(e) => {
+            e.preventDefault();
+            if (body.trim()) add.mutate(body.trim());
+          }}
+          className="space-y-2"
+        >
           <Field label="Add a note">
             <textarea value={body} onChange={(e) => setBody(e.target.value)} rows={3} className={`${CONTROL} w-full`} />
           </Field>

@@ -70,7 +70,15 @@ function queueSearch(f: QueueFilters): string {
 }
 
 /** The queues as tabs with their counts, filters kept in the address so a view can be shared; pages of 25. */
-export function AlertQueue({ initialFilters, initialPage, initialSeries }: { initialFilters: QueueFilters; initialPage: QueuePage | null; initialSeries: SeriesChoice | null }) {
+export function AlertQueue({
+  initialFilters,
+  initialPage,
+  initialSeries,
+}: {
+  initialFilters: QueueFilters;
+  initialPage: QueuePage | null;
+  initialSeries: SeriesChoice | null;
+}) {
   const router = useRouter();
   const pathname = usePathname();
   const [filters, setFilters] = useState(initialFilters);
@@ -96,18 +104,29 @@ export function AlertQueue({ initialFilters, initialPage, initialSeries }: { ini
         {TABS.map((tab) => {
           const active = filters.queue === tab.key;
           return (
-            <button key={tab.key} type="button" role="tab" aria-selected={active} onClick={() => update({ queue: tab.key })} data-tab={tab.key}
-              className={`-mb-px rounded-t border px-3 py-1.5 text-sm ${active ? 'border-rule border-b-card bg-card font-semibold' : 'border-transparent text-ink-soft hover:text-ink'}`}>
+            <button
+              key={tab.key}
+              type="button"
+              role="tab"
+              aria-selected={active}
+              onClick={() => update({ queue: tab.key })}
+              data-tab={tab.key}
+              className={`-mb-px rounded-t border px-3 py-1.5 text-sm ${active ? 'border-rule border-b-card bg-card font-semibold' : 'border-transparent text-ink-soft hover:text-ink'}`}
+            >
               {tab.label} <span className="num rounded-full bg-paper px-1.5 text-xs">{data?.counts?.[tab.key] ?? '·'}</span>
             </button>
           );
         })}
       </div>
       <div className="flex flex-wrap items-end gap-3">
-        <SeriesPicker label="Series" value={series} onChange={(choice) => {
-          setSeries(choice);
-          update({ series: choice?.slug ?? '' });
-        }} />
+        <SeriesPicker
+          label="Series"
+          value={series}
+          onChange={(choice) => {
+            setSeries(choice);
+            update({ series: choice?.slug ?? '' });
+          }}
+        />
         <Field label="Severity" tone="filter">
           <select className={CONTROL} value={filters.severity} onChange={(e) => update({ severity: e.target.value as QueueFilters['severity'] })}>
             <option value="">Any severity</option>
@@ -125,15 +144,27 @@ export function AlertQueue({ initialFilters, initialPage, initialSeries }: { ini
         </Field>
         <Field label="Age" tone="filter">
           <select className={CONTROL} value={filters.age} onChange={(e) => update({ age: e.target.value })}>
-            {AGES.map((a) => <option key={a.value} value={a.value}>{a.label}</option>)}
+            {AGES.map((a) => (
+              <option key={a.value} value={a.value}>
+                {a.label}
+              </option>
+            ))}
           </select>
         </Field>
         <Field label="Sort" tone="filter">
           <select className={CONTROL} value={filters.sort} onChange={(e) => update({ sort: e.target.value as QueueFilters['sort'] })}>
-            {SORTS.map((s) => <option key={s.value} value={s.value}>{s.label}</option>)}
+            {SORTS.map((s) => (
+              <option key={s.value} value={s.value}>
+                {s.label}
+              </option>
+            ))}
           </select>
         </Field>
-        {query.isFetching ? <span className="text-xs text-ink-soft" role="status">Updating…</span> : null}
+        {query.isFetching ? (
+          <span className="text-xs text-ink-soft" role="status">
+            Updating…
+          </span>
+        ) : null}
       </div>
       {query.isError ? (
         <ErrorNote error={query.error} />
@@ -142,32 +173,70 @@ export function AlertQueue({ initialFilters, initialPage, initialSeries }: { ini
       ) : data.items.length === 0 ? (
         <Empty>No alerts in this queue{filters.series || filters.severity || filters.kind || filters.age ? ' with these filters' : ''}.</Empty>
       ) : (
-        <DataTable caption={`Alerts in the ${filters.queue} queue`} testId="alert-table" className="min-w-[680px]"
-          columns={['Alert', 'Series', 'Severity', 'State', 'Latest evidence', 'Opened', 'Assigned']}>
+        <DataTable
+          caption={`Alerts in the ${filters.queue} queue`}
+          testId="alert-table"
+          className="min-w-[680px]"
+          columns={['Alert', 'Series', 'Severity', 'State', 'Latest evidence', 'Opened', 'Assigned']}
+        >
           {data.items.map((a) => (
             <tr key={a.id} data-alert={a.id}>
               <td className={CELL}>
-                <Link href={`/alerts/${a.id}`} className="font-medium text-tide hover:underline">#{a.id} {a.rule ? indicatorLabel(a.rule.indicator) : KIND_WORDS[a.kind]}</Link>
-                <span className="block text-xs text-ink-soft" data-kind={a.kind}>{KIND_WORDS[a.kind]}</span>
+                <Link href={`/alerts/${a.id}`} className="font-medium text-tide hover:underline">
+                  #{a.id} {a.rule ? indicatorLabel(a.rule.indicator) : KIND_WORDS[a.kind]}
+                </Link>
+                <span className="block text-xs text-ink-soft" data-kind={a.kind}>
+                  {KIND_WORDS[a.kind]}
+                </span>
               </td>
-              <td className={CELL}><Link href={`/series/${a.series.slug}`} className="hover:underline">{a.series.name}</Link></td>
-              <td className={CELL}><SeverityBadge severity={a.severity} /></td>
-              <td className={CELL}><AlertStateBadge state={a.state} /></td>
+              <td className={CELL}>
+                <Link href={`/series/${a.series.slug}`} className="hover:underline">
+                  {a.series.name}
+                </Link>
+              </td>
+              <td className={CELL}>
+                <SeverityBadge severity={a.severity} />
+              </td>
+              <td className={CELL}>
+                <AlertStateBadge state={a.state} />
+              </td>
               <td className={`num ${CELL} whitespace-nowrap`}>
-                {a.kind === 'data-late'
-                  ? <>no data since <LocalTime t={a.silence?.lastDataAt ?? null} timeZone={a.series.timeZone} />{a.silence?.backAt ? <> · back <LocalTime t={a.silence.backAt} timeZone={a.series.timeZone} /></> : ''}</>
-                  : a.kind === 'abrupt-shift'
-                  ? <>shift at <LocalTime t={a.shift?.time ?? null} timeZone={a.series.timeZone} />{a.shift?.size !== null && a.shift?.size !== undefined ? ` · size ${formatValue(a.shift.size)}` : ''}</>
-                  : <>τ {tauWithDirection(a.latest.tau, a.latest.direction)} · surrogate p {formatP(a.latest.surrogateP)}</>}
+                {a.kind === 'data-late' ? (
+                  <>
+                    no data since <LocalTime t={a.silence?.lastDataAt ?? null} timeZone={a.series.timeZone} />
+                    {a.silence?.backAt ? (
+                      <>
+                        {' '}
+                        · back <LocalTime t={a.silence.backAt} timeZone={a.series.timeZone} />
+                      </>
+                    ) : (
+                      ''
+                    )}
+                  </>
+                ) : a.kind === 'abrupt-shift' ? (
+                  <>
+                    shift at <LocalTime t={a.shift?.time ?? null} timeZone={a.series.timeZone} />
+                    {a.shift?.size !== null && a.shift?.size !== undefined ? ` · size ${formatValue(a.shift.size)}` : ''}
+                  </>
+                ) : (
+                  <>
+                    τ {tauWithDirection(a.latest.tau, a.latest.direction)} · surrogate p {formatP(a.latest.surrogateP)}
+                  </>
+                )}
               </td>
-              <td className={CELL}><LocalTime t={a.createdAt} timeZone={a.series.timeZone} withZone /></td>
+              <td className={CELL}>
+                <LocalTime t={a.createdAt} timeZone={a.series.timeZone} withZone />
+              </td>
               <td className={CELL}>{a.assignee?.name ?? <span className="text-ink-faint">nobody</span>}</td>
             </tr>
           ))}
         </DataTable>
       )}
       {data && data.total > PAGE_SIZE ? (
-        <Pager label="Pages" page={filters.page} pages={pages} onPage={(page) => update({ page })}> · {data.total} alerts</Pager>
+        <Pager label="Pages" page={filters.page} pages={pages} onPage={(page) => update({ page })}>
+          {' '}
+          · {data.total} alerts
+        </Pager>
       ) : null}
     </div>
   );

@@ -8,7 +8,13 @@ import type { AnalysisView } from '@/lib/analysis/view';
  * The alert's indicator as it stood when the alert opened, and as it stands in the latest evaluation; for an
  * abrupt-shift alert (no indicator) the record itself.
  */
-export function EvidenceCharts({ first, latest, indicator, series, marks }: {
+export function EvidenceCharts({
+  first,
+  latest,
+  indicator,
+  series,
+  marks,
+}: {
   first: AnalysisView | null;
   latest: AnalysisView | null;
   indicator: string | null;
@@ -20,7 +26,11 @@ export function EvidenceCharts({ first, latest, indicator, series, marks }: {
     <div className="grid grid-cols-1 gap-4 xl:grid-cols-2">
       <div>
         <h3 className="mb-2 text-sm font-semibold">When the alert opened</h3>
-        {first ? <AnalysisCharts view={only(first)} series={series} marks={marks} idPrefix="at-alert" compact /> : <Empty>The first snapshot holds no curves.</Empty>}
+        {first ? (
+          <AnalysisCharts view={only(first)} series={series} marks={marks} idPrefix="at-alert" compact />
+        ) : (
+          <Empty>The first snapshot holds no curves.</Empty>
+        )}
       </div>
       <div>
         <h3 className="mb-2 text-sm font-semibold">Latest evaluation</h3>

@@ -67,7 +67,14 @@ export function BacktestForm({ slug, rules, onStarted }: { slug: string; rules: 
       {calibrate ? (
         <>
           <Field label="Surrogates">
-            <input type="number" min={1} max={2000} className={`${CONTROL} w-24`} value={surrogates} onChange={(e) => setSurrogates(Math.min(2000, Math.max(1, Number(e.target.value) || 1)))} />
+            <input
+              type="number"
+              min={1}
+              max={2000}
+              className={`${CONTROL} w-24`}
+              value={surrogates}
+              onChange={(e) => setSurrogates(Math.min(2000, Math.max(1, Number(e.target.value) || 1)))}
+            />
           </Field>
           <Field label="Kind">
             <select className={CONTROL} value={method} onChange={(e) => setMethod(e.target.value as 'ar1' | 'phase')}>

@@ -23,7 +23,10 @@ type JobWithResult = BacktestJobRecord & { result?: BacktestResult | null };
 export function BacktestPanel({ slug, timeZone, canRun }: { slug: string; timeZone: string; canRun: boolean }) {
   const client = useQueryClient();
   const rules = useQuery({ queryKey: ['rules', slug], queryFn: () => api<{ items: RuleRecord[] }>(`/api/series/${slug}/rules`) });
-  const list = useQuery({ queryKey: ['backtests', slug], queryFn: () => api<{ backtests: BacktestJobRecord[] }>(`/api/backtests?series=${encodeURIComponent(slug)}`) });
+  const list = useQuery({
+    queryKey: ['backtests', slug],
+    queryFn: () => api<{ backtests: BacktestJobRecord[] }>(`/api/backtests?series=${encodeURIComponent(slug)}`),
+  });
   const [selected, setSelected] = useState<number | null>(null);
   const shownId = selected ?? list.data?.backtests[0]?.id ?? null;
 
@@ -45,13 +48,18 @@ export function BacktestPanel({ slug, timeZone, canRun }: { slug: string; timeZo
   return (
     <Panel title="Backtest" id="backtest">
       <p className="mb-3 max-w-3xl text-sm text-ink-soft">
-        Replays a rule on this record as if the data had arrived point by point, and counts how early it would have warned
-        before each marked tipping point and how often it would have raised an alarm with no tipping point near. A backtest is
-        evidence of past performance, not a guarantee.
+        Replays a rule on this record as if the data had arrived point by point, and counts how early it would have warned before each marked tipping point and
+        how often it would have raised an alarm with no tipping point near. A backtest is evidence of past performance, not a guarantee.
       </p>
       <MarkList slug={slug} timeZone={timeZone} canEdit={canRun} />
       {canRun ? <BacktestForm slug={slug} rules={rules.data?.items} onStarted={setSelected} /> : null}
-      {rules.isLoading ? <Loading label="Loading rules…" /> : rules.error ? <ErrorNote error={rules.error} /> : !rules.data?.items.length ? <Empty>This series has no rules to backtest yet.</Empty> : null}
+      {rules.isLoading ? (
+        <Loading label="Loading rules…" />
+      ) : rules.error ? (
+        <ErrorNote error={rules.error} />
+      ) : !rules.data?.items.length ? (
+        <Empty>This series has no rules to backtest yet.</Empty>
+      ) : null}
 
       <div className="mt-4">
         {list.isLoading ? (
@@ -80,8 +88,16 @@ export function BacktestPanel({ slug, timeZone, canRun }: { slug: string; timeZo
       {current?.status === 'failed' ? <ErrorNote>This backtest failed: {current.error}</ErrorNote> : null}
       {current?.status === 'cancelled' ? <p className="mt-3 text-sm text-ink-soft">This backtest was cancelled.</p> : null}
       {current?.status === 'succeeded' && current.result ? (
-        <BacktestResults key={current.id} result={current.result} timeZone={timeZone} slug={slug} ruleId={current.ruleId} jobId={current.id}
-          currentThreshold={rules.data?.items.find((r) => r.id === current.ruleId)?.minTau ?? null} canSave={canRun} />
+        <BacktestResults
+          key={current.id}
+          result={current.result}
+          timeZone={timeZone}
+          slug={slug}
+          ruleId={current.ruleId}
+          jobId={current.id}
+          currentThreshold={rules.data?.items.find((r) => r.id === current.ruleId)?.minTau ?? null}
+          canSave={canRun}
+        />
       ) : null}
     </Panel>
   );

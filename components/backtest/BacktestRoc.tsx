@@ -18,7 +18,16 @@ type Calibration = NonNullable<BacktestResult['calibration']>;
  * Hit rate against false-alarm rate for each threshold on tau, from the simulated approaches; a threshold picked
  * here is marked on the curve and (for those who may) saved into the rule.
  */
-export function BacktestRoc({ calibration: cal, word, initialThreshold, slug, ruleId, jobId, currentThreshold, canSave }: {
+export function BacktestRoc({
+  calibration: cal,
+  word,
+  initialThreshold,
+  slug,
+  ruleId,
+  jobId,
+  currentThreshold,
+  canSave,
+}: {
   calibration: Calibration;
   /** the direction tau is read in, in words */
   word: string;
@@ -61,8 +70,8 @@ export function BacktestRoc({ calibration: cal, word, initialThreshold, slug, ru
         </ResponsiveContainer>
         {cal.approaches ? (
           <p className="mt-1 text-xs text-ink-soft">
-            {cal.approaches.replicates} simulated records of each kind. Fitted lag-1 memory without a fold: {cal.approaches.nullModel.phiStart.toFixed(3)} throughout; towards a
-            fold: {cal.approaches.foldModel.phiStart.toFixed(3)} at the start, {cal.approaches.foldModel.phiEnd.toFixed(3)} at the end.
+            {cal.approaches.replicates} simulated records of each kind. Fitted lag-1 memory without a fold: {cal.approaches.nullModel.phiStart.toFixed(3)}{' '}
+            throughout; towards a fold: {cal.approaches.foldModel.phiStart.toFixed(3)} at the start, {cal.approaches.foldModel.phiEnd.toFixed(3)} at the end.
           </p>
         ) : null}
       </ChartFrame>
@@ -72,7 +81,8 @@ export function BacktestRoc({ calibration: cal, word, initialThreshold, slug, ru
           <select className={CONTROL} value={pick} onChange={(e) => setPick(Number(e.target.value))}>
             {cal.roc.map((p) => (
               <option key={p.threshold} value={p.threshold}>
-                τ {word} ≥ {p.threshold.toFixed(2)} — hits {p.hitRate === null ? '–' : `${Math.round(p.hitRate * 100)} %`}, false alarms {(p.falseAlarmRate * 100).toFixed(1)} %
+                τ {word} ≥ {p.threshold.toFixed(2)} — hits {p.hitRate === null ? '–' : `${Math.round(p.hitRate * 100)} %`}, false alarms{' '}
+                {(p.falseAlarmRate * 100).toFixed(1)} %
               </option>
             ))}
           </select>
@@ -82,7 +92,11 @@ export function BacktestRoc({ calibration: cal, word, initialThreshold, slug, ru
             {useThreshold.isPending ? 'Saving…' : 'Use this threshold'}
           </Button>
         ) : null}
-        {saved !== null ? <span role="status" className="text-calm">Saved τ ≥ {saved.toFixed(2)} into the rule.</span> : null}
+        {saved !== null ? (
+          <span role="status" className="text-calm">
+            Saved τ ≥ {saved.toFixed(2)} into the rule.
+          </span>
+        ) : null}
         {currentThreshold !== null ? <span className="text-ink-soft">The rule now uses τ ≥ {formatTau(currentThreshold)}.</span> : null}
       </div>
       {useThreshold.error ? <ErrorNote error={useThreshold.error}>The threshold could not be saved.</ErrorNote> : null}

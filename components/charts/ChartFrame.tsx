@@ -5,7 +5,19 @@ import { savePng, saveSvg } from './export';
 import { Button } from '@/components/ui/Button';
 
 /** A titled chart with its legend text and SVG/PNG export buttons (hidden when printing). */
-export function ChartFrame({ title, fileName, legend, children, testId }: { title: string; fileName: string; legend?: ReactNode; children: ReactNode; testId?: string }) {
+export function ChartFrame({
+  title,
+  fileName,
+  legend,
+  children,
+  testId,
+}: {
+  title: string;
+  fileName: string;
+  legend?: ReactNode;
+  children: ReactNode;
+  testId?: string;
+}) {
   const ref = useRef<HTMLDivElement>(null);
   const [error, setError] = useState<string | null>(null);
   async function save(kind: 'svg' | 'png') {
@@ -24,12 +36,20 @@ export function ChartFrame({ title, fileName, legend, children, testId }: { titl
         <span className="text-sm font-semibold">{title}</span>
         {legend ? <span className="text-xs text-ink-soft">{legend}</span> : null}
         <span className="no-print ml-auto flex gap-1">
-          <Button size="sm" onClick={() => save('svg')} aria-label={`Save ${title} as SVG`}>SVG</Button>
-          <Button size="sm" onClick={() => save('png')} aria-label={`Save ${title} as PNG`}>PNG</Button>
+          <Button size="sm" onClick={() => save('svg')} aria-label={`Save ${title} as SVG`}>
+            SVG
+          </Button>
+          <Button size="sm" onClick={() => save('png')} aria-label={`Save ${title} as PNG`}>
+            PNG
+          </Button>
         </span>
       </figcaption>
       <div ref={ref}>{children}</div>
-      {error ? <p role="alert" className="mt-1 text-xs text-warning">{error}</p> : null}
+      {error ? (
+        <p role="alert" className="mt-1 text-xs text-warning">
+          {error}
+        </p>
+      ) : null}
     </figure>
   );
 }

@@ -17,10 +17,19 @@ export function SurrogateHistogram({ bins, observed, height = 180 }: { bins: His
         <CartesianGrid stroke={colours.grid} strokeDasharray="2 4" vertical={false} />
         <XAxis dataKey="mid" type="number" domain={[lo, hi]} tickFormatter={(v: number) => formatTau(v)} tick={{ fontSize: 11, fill: colours['ink-soft'] }} />
         <YAxis allowDecimals={false} tick={{ fontSize: 11, fill: colours['ink-soft'] }} width={36} />
-        <Tooltip labelFormatter={(_l, payload) => `tau ${payload?.[0]?.payload?.range ?? ''}`} formatter={(v) => [v, 'surrogates']} contentStyle={{ fontSize: 12 }} />
+        <Tooltip
+          labelFormatter={(_l, payload) => `tau ${payload?.[0]?.payload?.range ?? ''}`}
+          formatter={(v) => [v, 'surrogates']}
+          contentStyle={{ fontSize: 12 }}
+        />
         <Bar dataKey="count" fill={colours.surrogate} isAnimationActive={false} />
         {observed !== null ? (
-          <ReferenceLine x={observed} stroke={colours.warning} strokeWidth={2} label={{ value: `observed ${formatTau(observed)}`, position: 'top', fontSize: 11, fill: colours.warning }} />
+          <ReferenceLine
+            x={observed}
+            stroke={colours.warning}
+            strokeWidth={2}
+            label={{ value: `observed ${formatTau(observed)}`, position: 'top', fontSize: 11, fill: colours.warning }}
+          />
         ) : null}
       </BarChart>
     </ResponsiveContainer>

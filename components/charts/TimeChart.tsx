@@ -44,18 +44,29 @@ export interface TimeChartProps {
 }
 
 /** Reference lines drawn as plain SVG lines that carry a test id, so browser tests find them without wording. */
-const taggedLine = (testId: string) => function TaggedLine(props: React.SVGProps<SVGLineElement>) {
-  return <line {...props} className="recharts-reference-line-line" data-testid={testId} />;
-};
+const taggedLine = (testId: string) =>
+  function TaggedLine(props: React.SVGProps<SVGLineElement>) {
+    return <line {...props} className="recharts-reference-line-line" data-testid={testId} />;
+  };
 const shiftLine = taggedLine('shift-marker');
 
 /** A flagged point's mark: an open triangle for suspect, a cross for fail (shape first, colour second). */
 function flagMark(flag: number, colour: string) {
   return function FlagMark({ cx = 0, cy = 0 }: { cx?: number; cy?: number }) {
     if (flag === FLAG_SUSPECT) {
-      return <path d={`M${cx},${cy - 5} L${cx + 4.5},${cy + 3.5} L${cx - 4.5},${cy + 3.5} Z`} fill="none" stroke={colour} strokeWidth={1.5} data-testid="flag-suspect" />;
+      return (
+        <path
+          d={`M${cx},${cy - 5} L${cx + 4.5},${cy + 3.5} L${cx - 4.5},${cy + 3.5} Z`}
+          fill="none"
+          stroke={colour}
+          strokeWidth={1.5}
+          data-testid="flag-suspect"
+        />
+      );
     }
-    return <path d={`M${cx - 4},${cy - 4} L${cx + 4},${cy + 4} M${cx + 4},${cy - 4} L${cx - 4},${cy + 4}`} stroke={colour} strokeWidth={2} data-testid="flag-fail" />;
+    return (
+      <path d={`M${cx - 4},${cy - 4} L${cx + 4},${cy + 4} M${cx + 4},${cy - 4} L${cx - 4},${cy + 4}`} stroke={colour} strokeWidth={2} data-testid="flag-fail" />
+    );
   };
 }
 const stretchLine = taggedLine('stretch-start');
@@ -72,17 +83,28 @@ const LABEL_GAP = 4;
  * The text of one mark label at its row (rows count down from the plot's top), starting just after its mark or
  * ending just before it, as `placeMarkLabels` decided. Recharts hands it the line's (or band's) box as `viewBox`.
  */
-function MarkText({ placed, colour, atRightEdge = false, viewBox }: {
+function MarkText({
+  placed,
+  colour,
+  atRightEdge = false,
+  viewBox,
+}: {
   placed: PlacedMarkLabel;
   colour: string;
   /** a band's label sits at the band's right edge, a line's at the line */
   atRightEdge?: boolean;
   viewBox?: { x?: number; y?: number; width?: number };
 }) {
-  const x = (viewBox?.x ?? 0) + (atRightEdge ? viewBox?.width ?? 0 : 0);
+  const x = (viewBox?.x ?? 0) + (atRightEdge ? (viewBox?.width ?? 0) : 0);
   const y = (viewBox?.y ?? 0) + LABEL_FONT + 2 + placed.row * LABEL_ROW_HEIGHT;
   return (
-    <text x={placed.side === 'after' ? x + LABEL_GAP : x - LABEL_GAP} y={y} textAnchor={placed.side === 'after' ? 'start' : 'end'} fontSize={LABEL_FONT} fill={colour}>
+    <text
+      x={placed.side === 'after' ? x + LABEL_GAP : x - LABEL_GAP}
+      y={y}
+      textAnchor={placed.side === 'after' ? 'start' : 'end'}
+      fontSize={LABEL_FONT}
+      fill={colour}
+    >
       {placed.text}
     </text>
   );
@@ -94,7 +116,20 @@ function MarkText({ placed, colour, atRightEdge = false, viewBox }: {
  * shifts, the stretch start, one window) are laid out by `placeMarkLabels` so none overlap; those that do not fit
  * on the plot are listed under it.
  */
-export function TimeChart({ rows, lines, timeZone, unit = '', height = 220, windowBand, marks = [], shifts = [], stretchStart = null, zeroLine, xDomain = null, flagged = [] }: TimeChartProps) {
+export function TimeChart({
+  rows,
+  lines,
+  timeZone,
+  unit = '',
+  height = 220,
+  windowBand,
+  marks = [],
+  shifts = [],
+  stretchStart = null,
+  zeroLine,
+  xDomain = null,
+  flagged = [],
+}: TimeChartProps) {
   const colours = useChartPalette();
   const [width, setWidth] = useState(0);
   const first = rows[0]?.t ?? null;
@@ -116,15 +151,19 @@ export function TimeChart({ rows, lines, timeZone, unit = '', height = 220, wind
   if (windowBand) markLabels.push({ id: 'window', at: windowBand.to, x: px(windowBand.to), text: 'one window', side: 'before' });
   for (const tr of marks) {
     if (!inside(tr.at)) continue;
-    markLabels.push(tr.kind === 'maintenance'
-      ? { id: `m-${tr.at}`, at: tr.at, x: px(tr.at), text: `⚙ ${tr.note || 'maintenance break'}` }
-      : { id: `t-${tr.at}`, at: tr.at, x: px(tr.at), text: `◆ ${tr.note || 'marked tipping point'}` });
+    markLabels.push(
+      tr.kind === 'maintenance'
+        ? { id: `m-${tr.at}`, at: tr.at, x: px(tr.at), text: `⚙ ${tr.note || 'maintenance break'}` }
+        : { id: `t-${tr.at}`, at: tr.at, x: px(tr.at), text: `◆ ${tr.note || 'marked tipping point'}` },
+    );
   }
   if (stretchStart?.label) markLabels.push({ id: 'stretch', at: stretchStart.at, x: px(stretchStart.at), text: `▸ ${stretchStart.label}` });
-  for (const shift of shifts) if (inside(shift.time)) markLabels.push({ id: `s-${shift.time}`, at: shift.time, x: px(shift.time), text: '⇵ abrupt shift', side: 'before' });
-  const layout = plotWidth > 0
-    ? placeMarkLabels(markLabels, { width: plotWidth, charWidth: LABEL_CHAR_WIDTH, gap: LABEL_GAP, maxRows: height < 200 ? 2 : 3 })
-    : { placed: [], overflow: [], rows: 0 };
+  for (const shift of shifts)
+    if (inside(shift.time)) markLabels.push({ id: `s-${shift.time}`, at: shift.time, x: px(shift.time), text: '⇵ abrupt shift', side: 'before' });
+  const layout =
+    plotWidth > 0
+      ? placeMarkLabels(markLabels, { width: plotWidth, charWidth: LABEL_CHAR_WIDTH, gap: LABEL_GAP, maxRows: height < 200 ? 2 : 3 })
+      : { placed: [], overflow: [], rows: 0 };
   const placedById = new Map(layout.placed.map((p) => [p.id, p]));
   const atOf = new Map(markLabels.map((m) => [m.id, m.at]));
   const suspectMark = useMemo(() => flagMark(FLAG_SUSPECT, colours.warning), [colours.warning]);
@@ -139,11 +178,23 @@ export function TimeChart({ rows, lines, timeZone, unit = '', height = 220, wind
       <ResponsiveContainer width="100%" height={height} onResize={(w) => setWidth(w)}>
         <LineChart data={rows} margin={MARGIN}>
           <CartesianGrid stroke={colours.grid} strokeDasharray="2 4" />
-          <XAxis dataKey="t" type="number" scale="time" domain={Number.isFinite(lo) && Number.isFinite(hi) ? [lo, hi] : ['dataMin', 'dataMax']}
+          <XAxis
+            dataKey="t"
+            type="number"
+            scale="time"
+            domain={Number.isFinite(lo) && Number.isFinite(hi) ? [lo, hi] : ['dataMin', 'dataMax']}
             ticks={ticks.length >= 2 ? ticks.map((tick) => tick.t) : undefined}
             tickFormatter={(t: number) => labels.get(t) ?? formatLocalDate(t, timeZone)}
-            tick={{ fontSize: 11, fill: colours['ink-soft'] }} minTickGap={40} />
-          <YAxis tick={{ fontSize: 11, fill: colours['ink-soft'] }} width={Y_AXIS_WIDTH} domain={['auto', 'auto']} niceTicks="snap125" tickFormatter={(v: number) => formatValue(v)} />
+            tick={{ fontSize: 11, fill: colours['ink-soft'] }}
+            minTickGap={40}
+          />
+          <YAxis
+            tick={{ fontSize: 11, fill: colours['ink-soft'] }}
+            width={Y_AXIS_WIDTH}
+            domain={['auto', 'auto']}
+            niceTicks="snap125"
+            tickFormatter={(v: number) => formatValue(v)}
+          />
           <Tooltip
             labelFormatter={(t) => `${formatLocal(Number(t), timeZone)} (${formatUtc(Number(t))})`}
             formatter={(value, name) => [formatValue(Number(value), unit), name]}
@@ -151,34 +202,85 @@ export function TimeChart({ rows, lines, timeZone, unit = '', height = 220, wind
           />
           <Legend wrapperStyle={{ fontSize: 12 }} />
           {windowBand ? (
-            <ReferenceArea x1={windowBand.from} x2={windowBand.to} fill={colours.tide} fillOpacity={0.08} stroke={colours.tide} strokeOpacity={0.4} strokeDasharray="3 3"
-              label={labelFor('window', colours['tide-dark'], true)} ifOverflow="extendDomain" />
+            <ReferenceArea
+              x1={windowBand.from}
+              x2={windowBand.to}
+              fill={colours.tide}
+              fillOpacity={0.08}
+              stroke={colours.tide}
+              strokeOpacity={0.4}
+              strokeDasharray="3 3"
+              label={labelFor('window', colours['tide-dark'], true)}
+              ifOverflow="extendDomain"
+            />
           ) : null}
           {zeroLine ? <ReferenceLine y={0} stroke={colours['ink-faint']} strokeDasharray="4 2" /> : null}
           {marks.map((tr) =>
             tr.kind === 'maintenance' ? (
-              <ReferenceLine key={`m-${tr.at}`} x={tr.at} stroke={colours['ink-faint']} strokeWidth={1.5} strokeDasharray="1 3"
-                label={labelFor(`m-${tr.at}`, colours['ink-soft'])} />
+              <ReferenceLine
+                key={`m-${tr.at}`}
+                x={tr.at}
+                stroke={colours['ink-faint']}
+                strokeWidth={1.5}
+                strokeDasharray="1 3"
+                label={labelFor(`m-${tr.at}`, colours['ink-soft'])}
+              />
             ) : (
-              <ReferenceLine key={tr.at} x={tr.at} stroke={colours.warning} strokeWidth={1.5} strokeDasharray="6 3"
-                label={labelFor(`t-${tr.at}`, colours.warning)} />
+              <ReferenceLine
+                key={tr.at}
+                x={tr.at}
+                stroke={colours.warning}
+                strokeWidth={1.5}
+                strokeDasharray="6 3"
+                label={labelFor(`t-${tr.at}`, colours.warning)}
+              />
             ),
           )}
           {stretchStart ? (
-            <ReferenceLine x={stretchStart.at} stroke={colours.tide} strokeWidth={2} ifOverflow="extendDomain" shape={stretchLine}
-              label={labelFor('stretch', colours['tide-dark'])} />
+            <ReferenceLine
+              x={stretchStart.at}
+              stroke={colours.tide}
+              strokeWidth={2}
+              ifOverflow="extendDomain"
+              shape={stretchLine}
+              label={labelFor('stretch', colours['tide-dark'])}
+            />
           ) : null}
           {shifts.map((shift) => (
-            <ReferenceLine key={`shift-${shift.time}`} x={shift.time} stroke={colours.shift} strokeWidth={1.5} strokeDasharray="2 2" shape={shiftLine}
-              label={labelFor(`s-${shift.time}`, colours['shift-dark'])} />
+            <ReferenceLine
+              key={`shift-${shift.time}`}
+              x={shift.time}
+              stroke={colours.shift}
+              strokeWidth={1.5}
+              strokeDasharray="2 2"
+              shape={shiftLine}
+              label={labelFor(`s-${shift.time}`, colours['shift-dark'])}
+            />
           ))}
           {lines.map((line) => (
-            <Line key={line.key} dataKey={line.key} name={line.label} stroke={colours[line.color]} strokeWidth={line.width ?? 1.5}
-              strokeDasharray={line.dashed ? '6 3' : undefined} dot={line.sparse ? { r: 2 } : false} isAnimationActive={false} connectNulls={line.sparse ?? false} />
+            <Line
+              key={line.key}
+              dataKey={line.key}
+              name={line.label}
+              stroke={colours[line.color]}
+              strokeWidth={line.width ?? 1.5}
+              strokeDasharray={line.dashed ? '6 3' : undefined}
+              dot={line.sparse ? { r: 2 } : false}
+              isAnimationActive={false}
+              connectNulls={line.sparse ?? false}
+            />
           ))}
-          {flagged.filter((point) => inside(point.t) && (point.flag === FLAG_SUSPECT || point.flag === FLAG_FAIL)).map((point) => (
-            <ReferenceDot key={`f-${point.t}`} x={point.t} y={point.value} ifOverflow="discard" shape={point.flag === FLAG_SUSPECT ? suspectMark : failMark} />
-          ))}
+          {flagged
+            .filter((point) => inside(point.t) && (point.flag === FLAG_SUSPECT || point.flag === FLAG_FAIL))
+            .map((point) => (
+              <ReferenceDot
+                key={`f-${point.t}`}
+                x={point.t}
+                y={point.value}
+                ifOverflow="discard"
+                shape={point.flag === FLAG_SUSPECT ? suspectMark : failMark}
+              />
+            ))}
         </LineChart>
       </ResponsiveContainer>
       {layout.overflow.length ? (

@@ -8,7 +8,20 @@ import { useSyncExternalStore } from 'react';
  * (components/charts/export.ts), which leaves the page's stylesheet behind, keeps its colours.
  */
 const CHART_COLOURS = [
-  'ink', 'ink-soft', 'ink-faint', 'rule', 'paper', 'card', 'tide', 'tide-dark', 'watch', 'warning', 'grid', 'surrogate', 'shift', 'shift-dark',
+  'ink',
+  'ink-soft',
+  'ink-faint',
+  'rule',
+  'paper',
+  'card',
+  'tide',
+  'tide-dark',
+  'watch',
+  'warning',
+  'grid',
+  'surrogate',
+  'shift',
+  'shift-dark',
 ] as const;
 export type ChartColour = (typeof CHART_COLOURS)[number];
 export type ChartPalette = Record<ChartColour, string>;

@@ -9,7 +9,13 @@ import { StatusBadge } from './StatusBadge';
 import { Button } from '@/components/ui/Button';
 
 interface RunDetail extends RunSummary {
-  report: { rejectedRows?: RejectedRow[]; rejectedTotal?: number; notes?: string[]; layout?: { delimiter: string; header: string[] | null; encoding: string } | null; timeFormat?: string };
+  report: {
+    rejectedRows?: RejectedRow[];
+    rejectedTotal?: number;
+    notes?: string[];
+    layout?: { delimiter: string; header: string[] | null; encoding: string } | null;
+    timeFormat?: string;
+  };
 }
 
 export function RunReport({ runId, onClose }: { runId: number; onClose: () => void }) {
@@ -17,11 +23,21 @@ export function RunReport({ runId, onClose }: { runId: number; onClose: () => vo
   return (
     <section aria-labelledby="run-report-title" className="rounded border border-rule bg-card p-4" data-testid="run-report">
       <div className="flex items-center justify-between gap-2">
-        <h3 id="run-report-title" className="font-semibold">Report of run #{runId}</h3>
+        <h3 id="run-report-title" className="font-semibold">
+          Report of run #{runId}
+        </h3>
         <Button onClick={onClose}>Close report</Button>
       </div>
-      {query.isPending && <p className="mt-2 text-sm text-ink-soft" role="status">Loading the report…</p>}
-      {query.isError && <p className="mt-2 text-sm text-warning" role="alert">{query.error.message}</p>}
+      {query.isPending && (
+        <p className="mt-2 text-sm text-ink-soft" role="status">
+          Loading the report…
+        </p>
+      )}
+      {query.isError && (
+        <p className="mt-2 text-sm text-warning" role="alert">
+          {query.error.message}
+        </p>
+      )}
       {query.data && (
         <div className="mt-3 space-y-3 text-sm">
           <p className="flex flex-wrap items-center gap-2">
@@ -29,19 +45,43 @@ export function RunReport({ runId, onClose }: { runId: number; onClose: () => vo
             <span>{query.data.message}</span>
           </p>
           <dl className="grid grid-cols-2 gap-x-4 gap-y-1 sm:grid-cols-6">
-            {([['Rows read', query.data.rowsRead], ['Accepted', query.data.accepted], ['Duplicates', query.data.duplicates], ['Replaced', query.data.replaced], ['Rejected', query.data.rejected]] as const).map(([label, n]) => (
-              <div key={label}><dt className="text-xs text-ink-soft">{label}</dt><dd className="font-mono">{formatCount(n)}</dd></div>
+            {(
+              [
+                ['Rows read', query.data.rowsRead],
+                ['Accepted', query.data.accepted],
+                ['Duplicates', query.data.duplicates],
+                ['Replaced', query.data.replaced],
+                ['Rejected', query.data.rejected],
+              ] as const
+            ).map(([label, n]) => (
+              <div key={label}>
+                <dt className="text-xs text-ink-soft">{label}</dt>
+                <dd className="font-mono">{formatCount(n)}</dd>
+              </div>
             ))}
-            <div><dt className="text-xs text-ink-soft">Duration</dt><dd className="font-mono">{formatDuration(query.data.durationMs)}</dd></div>
+            <div>
+              <dt className="text-xs text-ink-soft">Duration</dt>
+              <dd className="font-mono">{formatDuration(query.data.durationMs)}</dd>
+            </div>
           </dl>
           {query.data.report.layout && (
             <p className="text-ink-soft">
-              Read as {query.data.report.layout.encoding}, delimiter “{query.data.report.layout.delimiter === '\t' ? 'tab' : query.data.report.layout.delimiter}”,
-              {query.data.report.layout.header ? ` header: ${query.data.report.layout.header.join(', ')}` : ' no header'}; time format {query.data.report.timeFormat}.
+              Read as {query.data.report.layout.encoding}, delimiter “{query.data.report.layout.delimiter === '\t' ? 'tab' : query.data.report.layout.delimiter}
+              ”,
+              {query.data.report.layout.header ? ` header: ${query.data.report.layout.header.join(', ')}` : ' no header'}; time format{' '}
+              {query.data.report.timeFormat}.
             </p>
           )}
-          {query.data.report.notes?.map((note) => <p key={note} className="rounded bg-watch-light px-2 py-1 text-watch">{note}</p>)}
-          <RejectedRowsTable rows={query.data.report.rejectedRows ?? []} total={query.data.report.rejectedTotal ?? 0} caption={`Rejected rows of run ${runId}`} />
+          {query.data.report.notes?.map((note) => (
+            <p key={note} className="rounded bg-watch-light px-2 py-1 text-watch">
+              {note}
+            </p>
+          ))}
+          <RejectedRowsTable
+            rows={query.data.report.rejectedRows ?? []}
+            total={query.data.report.rejectedTotal ?? 0}
+            caption={`Rejected rows of run ${runId}`}
+          />
         </div>
       )}
     </section>

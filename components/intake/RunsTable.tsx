@@ -33,30 +33,81 @@ export function RunsTable() {
   const pages = pageCount(query.data?.total ?? 0, PAGE_SIZE);
   return (
     <section aria-labelledby="runs-title" className="space-y-3">
-      <h2 id="runs-title" className="text-lg font-semibold">Ingest runs</h2>
+      <h2 id="runs-title" className="text-lg font-semibold">
+        Ingest runs
+      </h2>
       <div className="flex flex-wrap items-end gap-3 text-sm">
-        <SeriesPicker label="Series" value={series} onChange={(choice) => { setSeries(choice); setPage(1); }} />
+        <SeriesPicker
+          label="Series"
+          value={series}
+          onChange={(choice) => {
+            setSeries(choice);
+            setPage(1);
+          }}
+        />
         <Field label="Status" tone="filter">
-          <select value={status} onChange={(e) => { setStatus(e.target.value); setPage(1); }} className={CONTROL}>
+          <select
+            value={status}
+            onChange={(e) => {
+              setStatus(e.target.value);
+              setPage(1);
+            }}
+            className={CONTROL}
+          >
             <option value="">Any status</option>
-            {['succeeded', 'rejected', 'failed', 'running'].map((s) => <option key={s} value={s}>{s}</option>)}
+            {['succeeded', 'rejected', 'failed', 'running'].map((s) => (
+              <option key={s} value={s}>
+                {s}
+              </option>
+            ))}
           </select>
         </Field>
       </div>
-      {query.isPending && <p className="text-sm text-ink-soft" role="status">Loading runs…</p>}
-      {query.isError && <p className="text-sm text-warning" role="alert">Could not load the runs: {query.error.message}</p>}
-      {query.data && query.data.items.length === 0 && <p className="text-sm text-ink-soft">No ingest runs yet. Files dropped into a series folder, uploads and pushes appear here.</p>}
+      {query.isPending && (
+        <p className="text-sm text-ink-soft" role="status">
+          Loading runs…
+        </p>
+      )}
+      {query.isError && (
+        <p className="text-sm text-warning" role="alert">
+          Could not load the runs: {query.error.message}
+        </p>
+      )}
+      {query.data && query.data.items.length === 0 && (
+        <p className="text-sm text-ink-soft">No ingest runs yet. Files dropped into a series folder, uploads and pushes appear here.</p>
+      )}
       {query.data && query.data.items.length > 0 && (
-        <DataTable caption="Ingest runs, newest first" testId="runs-table" className="text-left"
-          columns={['Run', 'Started', 'Series', 'Source', 'File', 'Status', 'Read', 'Accepted', 'Duplicates', 'Rejected', 'Duration', { label: 'Report', srOnly: true }]}>
+        <DataTable
+          caption="Ingest runs, newest first"
+          testId="runs-table"
+          className="text-left"
+          columns={[
+            'Run',
+            'Started',
+            'Series',
+            'Source',
+            'File',
+            'Status',
+            'Read',
+            'Accepted',
+            'Duplicates',
+            'Rejected',
+            'Duration',
+            { label: 'Report', srOnly: true },
+          ]}
+        >
           {query.data.items.map((run) => (
             <tr key={run.id} className={open === run.id ? 'bg-tide-light/40' : undefined}>
               <td className={`${CELL_TIGHT} font-mono`}>#{run.id}</td>
-              <td className={CELL_TIGHT}><LocalTime t={run.startedAt} timeZone={run.series?.timeZone ?? 'UTC'} withZone /></td>
+              <td className={CELL_TIGHT}>
+                <LocalTime t={run.startedAt} timeZone={run.series?.timeZone ?? 'UTC'} withZone />
+              </td>
               <td className={CELL_TIGHT}>{run.series?.name ?? '—'}</td>
               <td className={CELL_TIGHT}>{run.source}</td>
               <td className={`${CELL_TIGHT} font-mono text-xs`}>{run.fileName ?? '—'}</td>
-              <td className={CELL_TIGHT}><StatusBadge status={run.status} alreadyApplied={run.alreadyApplied} /></td>
+              <td className={CELL_TIGHT}>
+                <StatusBadge status={run.status} alreadyApplied={run.alreadyApplied} />
+              </td>
               <td className={`${CELL_TIGHT} font-mono`}>{formatCount(run.rowsRead)}</td>
               <td className={`${CELL_TIGHT} font-mono`}>{formatCount(run.accepted)}</td>
               <td className={`${CELL_TIGHT} font-mono`}>{formatCount(run.duplicates)}</td>
@@ -64,7 +115,8 @@ export function RunsTable() {
               <td className={`${CELL_TIGHT} font-mono`}>{formatDuration(run.durationMs)}</td>
               <td className={CELL_TIGHT}>
                 <Button variant="quiet" size="sm" onClick={() => setOpen(open === run.id ? null : run.id)} aria-expanded={open === run.id}>
-                  {open === run.id ? 'Hide report' : 'Report'}<span className="sr-only"> of run {run.id}</span>
+                  {open === run.id ? 'Hide report' : 'Report'}
+                  <span className="sr-only"> of run {run.id}</span>
                 </Button>
               </td>
             </tr>

@@ -32,7 +32,18 @@ interface Preview {
   timeFormatGuess: string | null;
   mapping: { timeColumn: string | number; valueColumn: string | number; timeFormat: string };
   sample: { line: number; fields: string[] }[];
-  summary: { rowsRead: number; wouldAccept: number; wouldBeDuplicates: number; wouldReplace: number; conflicts: number; rejected: number; rejectedRows: RejectedRow[]; first: number | null; last: number | null; notes: string[] } | null;
+  summary: {
+    rowsRead: number;
+    wouldAccept: number;
+    wouldBeDuplicates: number;
+    wouldReplace: number;
+    conflicts: number;
+    rejected: number;
+    rejectedRows: RejectedRow[];
+    first: number | null;
+    last: number | null;
+    notes: string[];
+  } | null;
   fileError: { code: string; message: string } | null;
 }
 
@@ -79,7 +90,13 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
       if (input.mapping || !data.layout) return;
       const header = data.layout.header;
       const index = (c: string | number) => (typeof c === 'number' ? c : Math.max(0, header?.findIndex((h) => h.toLowerCase() === c.toLowerCase()) ?? 0));
-      setMapping({ timeColumn: index(data.mapping.timeColumn), valueColumn: index(data.mapping.valueColumn), timeFormat: data.mapping.timeFormat, delimiter: data.layout.delimiter, header: header !== null });
+      setMapping({
+        timeColumn: index(data.mapping.timeColumn),
+        valueColumn: index(data.mapping.valueColumn),
+        timeFormat: data.mapping.timeFormat,
+        delimiter: data.layout.delimiter,
+        header: header !== null,
+      });
     },
   });
   const commit = useMutation({
@@ -96,7 +113,9 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
     setFile(picked);
     if (!picked) return;
     if (picked.size > MAX_BYTES) {
-      setSizeError(`This file is ${(picked.size / 1024 / 1024).toFixed(1)} MB; uploads are limited to 50 MB. Put larger files in the series' drop folder instead.`);
+      setSizeError(
+        `This file is ${(picked.size / 1024 / 1024).toFixed(1)} MB; uploads are limited to 50 MB. Put larger files in the series' drop folder instead.`,
+      );
       return;
     }
     preview.mutate({ file: picked, mapping: null });
@@ -120,61 +139,122 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
   if (!hasSeries) return <p className="text-sm text-ink-soft">Register a series before uploading data.</p>;
   return (
     <section aria-labelledby={`${id}-title`} className="space-y-4 rounded border border-rule bg-card p-4" data-testid="upload-panel">
-      <h2 id={`${id}-title`} className="text-lg font-semibold">Upload a CSV</h2>
-      <SeriesPicker label="Series" required value={target} onChange={(choice) => { setTarget(choice); choose(null); }} />
-      {!target ? <p className="text-sm text-ink-soft">Choose the series these observations belong to, then the file.</p> : (
-      <label
-        htmlFor={`${id}-file`}
-        onDragOver={(e) => { e.preventDefault(); setDragging(true); }}
-        onDragLeave={() => setDragging(false)}
-        onDrop={onDrop}
-        className={`flex cursor-pointer flex-col items-center rounded border-2 border-dashed px-4 py-6 text-sm focus-within:ring-2 focus-within:ring-tide ${dragging ? 'border-tide bg-tide-light' : 'border-rule'}`}
-      >
-        <span className="font-medium">Drag a CSV file here, or choose one</span>
-        <span className="text-ink-soft">Up to 50 MB. Nothing is stored until you commit.</span>
-        <input id={`${id}-file`} type="file" accept=".csv,text/csv,text/plain" className="mt-2 text-sm" onChange={(e) => choose(e.target.files?.[0] ?? null)} />
-      </label>
+      <h2 id={`${id}-title`} className="text-lg font-semibold">
+        Upload a CSV
+      </h2>
+      <SeriesPicker
+        label="Series"
+        required
+        value={target}
+        onChange={(choice) => {
+          setTarget(choice);
+          choose(null);
+        }}
+      />
+      {!target ? (
+        <p className="text-sm text-ink-soft">Choose the series these observations belong to, then the file.</p>
+      ) : (
+        <label
+          htmlFor={`${id}-file`}
+          onDragOver={(e) => {
+            e.preventDefault();
+            setDragging(true);
+          }}
+          onDragLeave={() => setDragging(false)}
+          onDrop={onDrop}
+          className={`flex cursor-pointer flex-col items-center rounded border-2 border-dashed px-4 py-6 text-sm focus-within:ring-2 focus-within:ring-tide ${dragging ? 'border-tide bg-tide-light' : 'border-rule'}`}
+        >
+          <span className="font-medium">Drag a CSV file here, or choose one</span>
+          <span className="text-ink-soft">Up to 50 MB. Nothing is stored until you commit.</span>
+          <input
+            id={`${id}-file`}
+            type="file"
+            accept=".csv,text/csv,text/plain"
+            className="mt-2 text-sm"
+            onChange={(e) => choose(e.target.files?.[0] ?? null)}
+          />
+        </label>
       )}
-      {sizeError && <p role="alert" className="text-sm text-warning">{sizeError}</p>}
-      {preview.isPending && <p role="status" className="text-sm text-ink-soft">Reading the file…</p>}
-      {preview.isError && <p role="alert" className="text-sm text-warning">{preview.error.message}</p>}
-      {data?.fileError && <p role="alert" className="rounded bg-warning-light px-3 py-2 text-sm text-warning" data-testid="file-error">{data.fileError.message}</p>}
+      {sizeError && (
+        <p role="alert" className="text-sm text-warning">
+          {sizeError}
+        </p>
+      )}
+      {preview.isPending && (
+        <p role="status" className="text-sm text-ink-soft">
+          Reading the file…
+        </p>
+      )}
+      {preview.isError && (
+        <p role="alert" className="text-sm text-warning">
+          {preview.error.message}
+        </p>
+      )}
+      {data?.fileError && (
+        <p role="alert" className="rounded bg-warning-light px-3 py-2 text-sm text-warning" data-testid="file-error">
+          {data.fileError.message}
+        </p>
+      )}
       {data?.layout && mapping && (
         <div className="space-y-3">
           <p className="text-sm text-ink-soft" data-testid="detected">
-            Detected: delimiter “{data.layout.delimiter === '\t' ? 'tab' : data.layout.delimiter}”{!data.layout.delimiterDetected && ' (no delimiter split the lines; check it)'},
-            {data.layout.header ? ' a header line' : ' no header line'}, {data.layout.encoding}{data.layout.bom && ' with byte order mark'}; time format guess: {data.timeFormatGuess ?? 'none'}.
+            Detected: delimiter “{data.layout.delimiter === '\t' ? 'tab' : data.layout.delimiter}”
+            {!data.layout.delimiterDetected && ' (no delimiter split the lines; check it)'},{data.layout.header ? ' a header line' : ' no header line'},{' '}
+            {data.layout.encoding}
+            {data.layout.bom && ' with byte order mark'}; time format guess: {data.timeFormatGuess ?? 'none'}.
           </p>
           <fieldset className="grid gap-3 text-sm sm:grid-cols-5">
             <legend className="sr-only">Column mapping</legend>
             <Field label="Time column">
               <select value={mapping.timeColumn} onChange={(e) => change({ timeColumn: Number(e.target.value) })} className={CONTROL}>
-                {columns.map((c, i) => <option key={i} value={i}>{c}</option>)}
+                {columns.map((c, i) => (
+                  <option key={i} value={i}>
+                    {c}
+                  </option>
+                ))}
               </select>
             </Field>
             <Field label="Value column">
               <select value={mapping.valueColumn} onChange={(e) => change({ valueColumn: Number(e.target.value) })} className={CONTROL}>
-                {columns.map((c, i) => <option key={i} value={i}>{c}</option>)}
+                {columns.map((c, i) => (
+                  <option key={i} value={i}>
+                    {c}
+                  </option>
+                ))}
               </select>
             </Field>
             <Field label="Time format">
               <select value={mapping.timeFormat} onChange={(e) => change({ timeFormat: e.target.value })} className={CONTROL}>
-                {TIME_FORMATS.map(([value, label]) => <option key={value} value={value}>{label}</option>)}
+                {TIME_FORMATS.map(([value, label]) => (
+                  <option key={value} value={value}>
+                    {label}
+                  </option>
+                ))}
               </select>
             </Field>
             <Field label="Delimiter">
               <select value={mapping.delimiter} onChange={(e) => change({ delimiter: e.target.value })} className={CONTROL}>
-                {DELIMITERS.map(([value, label]) => <option key={label} value={value}>{label}</option>)}
+                {DELIMITERS.map(([value, label]) => (
+                  <option key={label} value={value}>
+                    {label}
+                  </option>
+                ))}
               </select>
             </Field>
             <label className="flex items-center gap-2 self-end pb-1">
               <input type="checkbox" checked={mapping.header} onChange={(e) => change({ header: e.target.checked })} /> First line is a header
             </label>
           </fieldset>
-          <DataTable caption="First rows as read" testId="preview-rows" className="font-mono text-xs"
-            columns={['Line', ...columns]}>
+          <DataTable caption="First rows as read" testId="preview-rows" className="font-mono text-xs" columns={['Line', ...columns]}>
             {data.sample.map((row) => (
-              <tr key={row.line}><td className="px-2 py-1">{row.line}</td>{columns.map((_, i) => <td key={i} className="px-2 py-1">{row.fields[i] ?? ''}</td>)}</tr>
+              <tr key={row.line}>
+                <td className="px-2 py-1">{row.line}</td>
+                {columns.map((_, i) => (
+                  <td key={i} className="px-2 py-1">
+                    {row.fields[i] ?? ''}
+                  </td>
+                ))}
+              </tr>
             ))}
           </DataTable>
         </div>
@@ -183,15 +263,25 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
         <div className="space-y-2 text-sm" data-testid="validation-summary">
           <h3 className="font-semibold">Validation summary</h3>
           <p>
-            {formatCount(summary.rowsRead)} rows read: <strong>{formatCount(summary.wouldAccept)} new</strong>, {formatCount(summary.wouldBeDuplicates)} already stored or repeated,
+            {formatCount(summary.rowsRead)} rows read: <strong>{formatCount(summary.wouldAccept)} new</strong>, {formatCount(summary.wouldBeDuplicates)} already
+            stored or repeated,
             {summary.wouldReplace > 0 && ` ${formatCount(summary.wouldReplace)} would replace stored values,`} {formatCount(summary.rejected)} rejected.
-            {summary.first !== null && summary.last !== null && ` Spans ${formatLocal(summary.first, timeZone, false)} to ${formatLocal(summary.last, timeZone)}.`}
+            {summary.first !== null &&
+              summary.last !== null &&
+              ` Spans ${formatLocal(summary.first, timeZone, false)} to ${formatLocal(summary.last, timeZone)}.`}
           </p>
-          {summary.notes.map((note) => <p key={note} className="rounded bg-watch-light px-2 py-1 text-watch">{note}</p>)}
+          {summary.notes.map((note) => (
+            <p key={note} className="rounded bg-watch-light px-2 py-1 text-watch">
+              {note}
+            </p>
+          ))}
           <RejectedRowsTable rows={summary.rejectedRows} total={summary.rejected} caption="Rows that would be rejected" />
           <div className="rounded border border-rule bg-paper p-3">
             <Caution />
-            <p className="mt-2 text-xs text-ink-soft">Committing stores the new points now and marks the series for a fresh analysis; rejected rows are not stored and stay listed in the run&apos;s report.</p>
+            <p className="mt-2 text-xs text-ink-soft">
+              Committing stores the new points now and marks the series for a fresh analysis; rejected rows are not stored and stay listed in the run&apos;s
+              report.
+            </p>
           </div>
           <Button
             variant="primary"
@@ -201,8 +291,16 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
           >
             {commit.isPending ? 'Storing…' : `Commit ${formatCount(summary.wouldAccept + summary.wouldReplace)} points`}
           </Button>
-          {commit.isError && <p role="alert" className="text-warning">{commit.error.message}</p>}
-          {commit.data && <p role="status" className="rounded bg-calm-light px-3 py-2 text-calm" data-testid="commit-outcome">Run #{commit.data.runId}: {commit.data.message}</p>}
+          {commit.isError && (
+            <p role="alert" className="text-warning">
+              {commit.error.message}
+            </p>
+          )}
+          {commit.data && (
+            <p role="status" className="rounded bg-calm-light px-3 py-2 text-calm" data-testid="commit-outcome">
+              Run #{commit.data.runId}: {commit.data.message}
+            </p>
+          )}
         </div>
       )}
     </section>

@@ -52,7 +52,14 @@ export function MarkList({ slug, timeZone, canEdit }: { slug: string; timeZone: 
               <span data-testid="mark-kind">{t.kind === 'maintenance' ? '⚙ maintenance break' : '◆ tipping point'}</span>
               <span className="text-ink-soft">{t.note}</span>
               {canEdit ? (
-                <Button variant="danger" size="sm" className="ml-auto" onClick={() => remove.mutate(t.id)} disabled={remove.isPending} aria-label={`Remove the mark of ${formatLocal(t.at, timeZone)}`}>
+                <Button
+                  variant="danger"
+                  size="sm"
+                  className="ml-auto"
+                  onClick={() => remove.mutate(t.id)}
+                  disabled={remove.isPending}
+                  aria-label={`Remove the mark of ${formatLocal(t.at, timeZone)}`}
+                >
                   Remove
                 </Button>
               ) : null}
@@ -81,7 +88,14 @@ export function MarkList({ slug, timeZone, canEdit }: { slug: string; timeZone: 
             </select>
           </Field>
           <Field label="Note" className="flex-1">
-            <input type="text" maxLength={2000} className={CONTROL} value={note} onChange={(e) => setNote(e.target.value)} placeholder="What happened, and how it is known" />
+            <input
+              type="text"
+              maxLength={2000}
+              className={CONTROL}
+              value={note}
+              onChange={(e) => setNote(e.target.value)}
+              placeholder="What happened, and how it is known"
+            />
           </Field>
           <Button type="submit" disabled={add.isPending || !instant?.ok}>
             Mark

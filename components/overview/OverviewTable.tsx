@@ -47,14 +47,26 @@ function IndicatorTrends({ indicators }: { indicators: OverviewRow['indicators']
     <ul className="space-y-0.5">
       {indicators.map((ind) => (
         <li key={ind.name} className="num whitespace-nowrap">
-          <span className="inline-block w-20 text-ink-soft">{ind.name}</span>
-          τ {formatTau(ind.tau)}
-          <span className="ml-1 text-ink-soft" title={`tested ${formatDirection(ind.direction)}`}>{formatDirection(ind.direction).split(' ').pop()}</span>
-          <span className="ml-2 text-ink-soft" title={ind.pKind === 'surrogate' ? `p from surrogate data, ${formatDirection(ind.direction)}` : 'p from the Kendall test: descriptive only, it assumes independent values'}>
-            p {formatP(ind.p)}{ind.pKind === 'kendall' ? '*' : ''}
+          <span className="inline-block w-20 text-ink-soft">{ind.name}</span>τ {formatTau(ind.tau)}
+          <span className="ml-1 text-ink-soft" title={`tested ${formatDirection(ind.direction)}`}>
+            {formatDirection(ind.direction).split(' ').pop()}
+          </span>
+          <span
+            className="ml-2 text-ink-soft"
+            title={
+              ind.pKind === 'surrogate'
+                ? `p from surrogate data, ${formatDirection(ind.direction)}`
+                : 'p from the Kendall test: descriptive only, it assumes independent values'
+            }
+          >
+            p {formatP(ind.p)}
+            {ind.pKind === 'kendall' ? '*' : ''}
           </span>
           {ind.q !== null && (
-            <span className="ml-2 text-ink-soft" title="Benjamini–Hochberg q-value: the surrogate p adjusted for every series judged in the same analysis cycle">
+            <span
+              className="ml-2 text-ink-soft"
+              title="Benjamini–Hochberg q-value: the surrogate p adjusted for every series judged in the same analysis cycle"
+            >
               q {formatP(ind.q)}
             </span>
           )}
@@ -67,15 +79,26 @@ function IndicatorTrends({ indicators }: { indicators: OverviewRow['indicators']
 /** The site cell: its name linked to its page, or a dash. */
 function SiteName({ row }: { row: OverviewRow }) {
   if (!row.site) return <span className="text-ink-faint">–</span>;
-  return row.siteSlug ? <Link href={`/sites/${row.siteSlug}`} className="hover:underline">{row.site}</Link> : <>{row.site}</>;
+  return row.siteSlug ? (
+    <Link href={`/sites/${row.siteSlug}`} className="hover:underline">
+      {row.site}
+    </Link>
+  ) : (
+    <>{row.site}</>
+  );
 }
-
 
 /**
  * The network's series, filtered, sorted and (with more than one site) optionally grouped by site: each group
  * under a heading row naming its site, in the chosen order within it. The site page shows its own rows here too.
  */
-export function OverviewTable({ rows, sites, now, noSeries, siteColumn = true }: {
+export function OverviewTable({
+  rows,
+  sites,
+  now,
+  noSeries,
+  siteColumn = true,
+}: {
   rows: OverviewRow[];
   sites: string[];
   now: number;
@@ -91,18 +114,17 @@ export function OverviewTable({ rows, sites, now, noSeries, siteColumn = true }:
   const [sort, setSort] = useState<{ key: SortKey; desc: boolean }>({ key: 'state', desc: true });
   const [limit, setLimit] = useState(ROWS_PER_STEP);
   // A new search, filter or order starts again from its first rows.
-  const refine = <T,>(set: (value: T) => void) => (value: T) => {
-    set(value);
-    setLimit(ROWS_PER_STEP);
-  };
+  const refine =
+    <T,>(set: (value: T) => void) =>
+    (value: T) => {
+      set(value);
+      setLimit(ROWS_PER_STEP);
+    };
 
   const shown = useMemo(() => {
     const needle = text.trim().toLowerCase();
     const filtered = rows.filter(
-      (r) =>
-        (!needle || `${r.name} ${r.slug} ${r.site}`.toLowerCase().includes(needle)) &&
-        (!site || r.site === site) &&
-        (!state || r.state === state),
+      (r) => (!needle || `${r.name} ${r.slug} ${r.site}`.toLowerCase().includes(needle)) && (!site || r.site === site) && (!state || r.state === state),
     );
     const compare = SORTS[sort.key];
     const bySite = (a: OverviewRow, b: OverviewRow) => (grouped ? (a.site === '' ? 1 : 0) - (b.site === '' ? 1 : 0) || a.site.localeCompare(b.site) : 0);
@@ -118,10 +140,15 @@ export function OverviewTable({ rows, sites, now, noSeries, siteColumn = true }:
     const active = sort.key === key;
     return (
       <th scope="col" aria-sort={active ? (sort.desc ? 'descending' : 'ascending') : 'none'} className={`px-3 py-2 text-left font-medium ${className}`}>
-        <button type="button" className="inline-flex items-center gap-1 rounded hover:text-tide"
-          onClick={() => refine(setSort)({ key, desc: active ? !sort.desc : key !== 'name' && key !== 'site' })}>
+        <button
+          type="button"
+          className="inline-flex items-center gap-1 rounded hover:text-tide"
+          onClick={() => refine(setSort)({ key, desc: active ? !sort.desc : key !== 'name' && key !== 'site' })}
+        >
           {label}
-          <span aria-hidden="true" className="text-ink-faint">{active ? (sort.desc ? '↓' : '↑') : '↕'}</span>
+          <span aria-hidden="true" className="text-ink-faint">
+            {active ? (sort.desc ? '↓' : '↑') : '↕'}
+          </span>
         </button>
       </th>
     );
@@ -138,7 +165,11 @@ export function OverviewTable({ rows, sites, now, noSeries, siteColumn = true }:
             <Field label="Site" tone="filter">
               <select value={site} onChange={(e) => refine(setSite)(e.target.value)} className={CONTROL}>
                 <option value="">All sites</option>
-                {sites.map((s) => <option key={s} value={s}>{s}</option>)}
+                {sites.map((s) => (
+                  <option key={s} value={s}>
+                    {s}
+                  </option>
+                ))}
               </select>
             </Field>
             <label className="flex items-center gap-2 pb-1.5 text-sm">
@@ -150,34 +181,64 @@ export function OverviewTable({ rows, sites, now, noSeries, siteColumn = true }:
         <Field label="State" tone="filter">
           <select value={state} onChange={(e) => refine(setState)(e.target.value)} className={CONTROL}>
             <option value="">Any state</option>
-            {Object.entries(STATE_LABELS).map(([value, label]) => <option key={value} value={value}>{label}</option>)}
+            {Object.entries(STATE_LABELS).map(([value, label]) => (
+              <option key={value} value={value}>
+                {label}
+              </option>
+            ))}
           </select>
         </Field>
-        <p className="ml-auto text-sm text-ink-soft" aria-live="polite">{shown.length} of {rows.length} series</p>
+        <p className="ml-auto text-sm text-ink-soft" aria-live="polite">
+          {shown.length} of {rows.length} series
+        </p>
       </div>
       {shown.length === 0 ? (
-        <Empty>{rows.length === 0 ? noSeries ?? <>No series are registered yet. <Link href="/series/new" className="text-tide hover:underline">Register one</Link> (leads).</> : 'No series match these filters.'}</Empty>
+        <Empty>
+          {rows.length === 0
+            ? (noSeries ?? (
+                <>
+                  No series are registered yet.{' '}
+                  <Link href="/series/new" className="text-tide hover:underline">
+                    Register one
+                  </Link>{' '}
+                  (leads).
+                </>
+              ))
+            : 'No series match these filters.'}
+        </Empty>
       ) : (
-        <DataTable caption="Every series with its data freshness, state and latest indicator trends" testId="overview-table" className="sm:min-w-[640px]"
-          head={<>
-            {header('name', 'Series')}
-            {header('state', 'State')}
-            {header('lastData', 'Last data', 'hidden sm:table-cell')}
-            {siteColumn ? header('site', 'Site', 'hidden md:table-cell') : null}
-            {header('tau', 'Indicator trend (tau, p)', 'hidden sm:table-cell')}
-            <th scope="col" className="hidden px-3 py-2 text-left font-medium sm:table-cell">Recent curve</th>
-          </>}
-          footer={shown.length > limit ? (
-            <div className="flex flex-wrap items-center gap-3 border-t border-rule px-3 py-2 text-sm">
-              <span className="text-ink-soft">Showing the first {limit} of {shown.length}.</span>
-              <Button className="text-tide" onClick={() => setLimit(limit + ROWS_PER_STEP)}>
-                Show {Math.min(ROWS_PER_STEP, shown.length - limit)} more
-              </Button>
-              <Button variant="quiet" onClick={() => setLimit(shown.length)}>
-                Show all {shown.length}
-              </Button>
-            </div>
-          ) : null}>
+        <DataTable
+          caption="Every series with its data freshness, state and latest indicator trends"
+          testId="overview-table"
+          className="sm:min-w-[640px]"
+          head={
+            <>
+              {header('name', 'Series')}
+              {header('state', 'State')}
+              {header('lastData', 'Last data', 'hidden sm:table-cell')}
+              {siteColumn ? header('site', 'Site', 'hidden md:table-cell') : null}
+              {header('tau', 'Indicator trend (tau, p)', 'hidden sm:table-cell')}
+              <th scope="col" className="hidden px-3 py-2 text-left font-medium sm:table-cell">
+                Recent curve
+              </th>
+            </>
+          }
+          footer={
+            shown.length > limit ? (
+              <div className="flex flex-wrap items-center gap-3 border-t border-rule px-3 py-2 text-sm">
+                <span className="text-ink-soft">
+                  Showing the first {limit} of {shown.length}.
+                </span>
+                <Button className="text-tide" onClick={() => setLimit(limit + ROWS_PER_STEP)}>
+                  Show {Math.min(ROWS_PER_STEP, shown.length - limit)} more
+                </Button>
+                <Button variant="quiet" onClick={() => setLimit(shown.length)}>
+                  Show all {shown.length}
+                </Button>
+              </div>
+            ) : null
+          }
+        >
           {shown.slice(0, limit).map((row, index, page) => (
             <Fragment key={row.id}>
               {grouped && (index === 0 || page[index - 1].site !== row.site) ? (
@@ -189,10 +250,16 @@ export function OverviewTable({ rows, sites, now, noSeries, siteColumn = true }:
               ) : null}
               <tr data-series={row.slug} className="hover:bg-paper/60">
                 <td className="px-3 py-2">
-                  <Link href={`/series/${row.slug}`} className="font-medium text-tide hover:underline">{row.name}</Link>
+                  <Link href={`/series/${row.slug}`} className="font-medium text-tide hover:underline">
+                    {row.name}
+                  </Link>
                   <div className="font-mono text-xs text-ink-faint">{row.slug}</div>
                   {siteColumn && row.site ? <div className="text-xs text-ink-soft md:hidden">{row.site}</div> : null}
-                  {row.indicators.length ? <div className="mt-1 text-xs sm:hidden"><IndicatorTrends indicators={row.indicators} /></div> : null}
+                  {row.indicators.length ? (
+                    <div className="mt-1 text-xs sm:hidden">
+                      <IndicatorTrends indicators={row.indicators} />
+                    </div>
+                  ) : null}
                 </td>
                 <td className="px-3 py-2">
                   {row.state === 'alert' ? (
@@ -202,16 +269,24 @@ export function OverviewTable({ rows, sites, now, noSeries, siteColumn = true }:
                   ) : (
                     <StateBadge state={row.state} />
                   )}
-                  <div className="mt-1 text-xs sm:hidden"><RowFreshness row={row} now={now} /></div>
+                  <div className="mt-1 text-xs sm:hidden">
+                    <RowFreshness row={row} now={now} />
+                  </div>
                 </td>
                 <td className="hidden px-3 py-2 sm:table-cell">
-                  <div><LocalTime t={row.lastDataAt} timeZone={row.timeZone} /></div>
+                  <div>
+                    <LocalTime t={row.lastDataAt} timeZone={row.timeZone} />
+                  </div>
                   <div className="mt-0.5 flex items-center gap-1 text-xs text-ink-faint">
                     <RowFreshness row={row} now={now} />
                     <span>{row.timeZone}</span>
                   </div>
                 </td>
-                {siteColumn ? <td className="hidden px-3 py-2 md:table-cell"><SiteName row={row} /></td> : null}
+                {siteColumn ? (
+                  <td className="hidden px-3 py-2 md:table-cell">
+                    <SiteName row={row} />
+                  </td>
+                ) : null}
                 <td className="hidden px-3 py-2 sm:table-cell">
                   <IndicatorTrends indicators={row.indicators} />
                 </td>
@@ -228,10 +303,9 @@ export function OverviewTable({ rows, sites, now, noSeries, siteColumn = true }:
         </DataTable>
       )}
       <p className="mt-2 text-xs text-ink-faint">
-        Late: no new observation for more than three sampling intervals (two days for irregular records). The arrow is
-        the direction each indicator is tested in (↑ rising, ↓ falling, ↕ either way); p is the surrogate p in that
-        direction. p* is the Kendall test&apos;s p, shown where the series runs no surrogates: descriptive only, since it
-        assumes independent values. Times are in each series&apos; time zone; hover for UTC.
+        Late: no new observation for more than three sampling intervals (two days for irregular records). The arrow is the direction each indicator is tested in
+        (↑ rising, ↓ falling, ↕ either way); p is the surrogate p in that direction. p* is the Kendall test&apos;s p, shown where the series runs no surrogates:
+        descriptive only, since it assumes independent values. Times are in each series&apos; time zone; hover for UTC.
       </p>
     </div>
   );

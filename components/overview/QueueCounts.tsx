@@ -13,8 +13,7 @@ export function QueueCounts({ counts }: { counts: Counts }) {
     <ul className="grid grid-cols-1 gap-3 sm:grid-cols-3" aria-label="Open alerts by queue">
       {QUEUES.map((q) => (
         <li key={q.key}>
-          <Link href={q.href} data-queue={q.key}
-            className="block rounded-lg border border-rule bg-card px-4 py-3 shadow-sm hover:border-tide">
+          <Link href={q.href} data-queue={q.key} className="block rounded-lg border border-rule bg-card px-4 py-3 shadow-sm hover:border-tide">
             <span className="num block text-2xl font-semibold">{counts[q.key]}</span>
             <span className="text-sm text-ink-soft">{q.label}</span>
           </Link>

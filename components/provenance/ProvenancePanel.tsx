@@ -14,16 +14,29 @@ export function ProvenancePanel({ analyses }: { analyses: ProvenanceView[] }) {
           <div className="font-medium">Analysis #{p.snapshotId}</div>
           <dl className="grid grid-cols-[auto_minmax(0,1fr)] gap-x-3 gap-y-0.5 text-xs">
             <dt className="text-ink-soft">Data</dt>
-            <dd>{p.rows.toLocaleString('en-GB')} rows from {p.ingestRuns.length ? `ingest run${p.ingestRuns.length > 1 ? 's' : ''} ${p.ingestRuns.map((id) => `#${id}`).join(', ')}` : 'no recorded run'}{p.rowsWithoutRun ? ` and ${p.rowsWithoutRun.toLocaleString('en-GB')} rows stored before runs were recorded or seeded` : ''}</dd>
+            <dd>
+              {p.rows.toLocaleString('en-GB')} rows from{' '}
+              {p.ingestRuns.length ? `ingest run${p.ingestRuns.length > 1 ? 's' : ''} ${p.ingestRuns.map((id) => `#${id}`).join(', ')}` : 'no recorded run'}
+              {p.rowsWithoutRun ? ` and ${p.rowsWithoutRun.toLocaleString('en-GB')} rows stored before runs were recorded or seeded` : ''}
+            </dd>
             <dt className="text-ink-soft">SHA-256</dt>
-            <dd className="break-all font-mono" data-testid="provenance-sha256">{p.dataSha256}</dd>
+            <dd className="break-all font-mono" data-testid="provenance-sha256">
+              {p.dataSha256}
+            </dd>
             <dt className="text-ink-soft">Engine</dt>
-            <dd>version {p.engineVersion}, seed {p.seed}</dd>
+            <dd>
+              version {p.engineVersion}, seed {p.seed}
+            </dd>
           </dl>
           <p className="text-xs">
-            <a className="text-tide hover:underline" href={p.downloadHref} download={p.fileName}>Download the analysed data ({p.fileName})</a>, then reproduce it with:
+            <a className="text-tide hover:underline" href={p.downloadHref} download={p.fileName}>
+              Download the analysed data ({p.fileName})
+            </a>
+            , then reproduce it with:
           </p>
-          <code className="block break-all rounded bg-paper px-2 py-1 text-xs" data-testid="provenance-command">{p.command}</code>
+          <code className="block break-all rounded bg-paper px-2 py-1 text-xs" data-testid="provenance-command">
+            {p.command}
+          </code>
         </div>
       ))}
     </div>

@@ -46,8 +46,12 @@ export function PeriodPicker({ period, site, sites }: { period: Period; site: st
       </Field>
       {choice === 'dates' ? (
         <>
-          <Field label="From" tone="filter"><input type="date" className={CONTROL} value={from} onChange={(e) => setFrom(e.target.value)} required /></Field>
-          <Field label="To" tone="filter"><input type="date" className={CONTROL} value={to} onChange={(e) => setTo(e.target.value)} required /></Field>
+          <Field label="From" tone="filter">
+            <input type="date" className={CONTROL} value={from} onChange={(e) => setFrom(e.target.value)} required />
+          </Field>
+          <Field label="To" tone="filter">
+            <input type="date" className={CONTROL} value={to} onChange={(e) => setTo(e.target.value)} required />
+          </Field>
         </>
       ) : (
         <Field label={`A day in the ${choice}`} tone="filter">
@@ -57,10 +61,16 @@ export function PeriodPicker({ period, site, sites }: { period: Period; site: st
       <Field label="Site" tone="filter">
         <select className={CONTROL} value={where} onChange={(e) => setWhere(e.target.value)} data-testid="period-site">
           <option value="">Whole network</option>
-          {sites.map((s) => <option key={s} value={s}>{s}</option>)}
+          {sites.map((s) => (
+            <option key={s} value={s}>
+              {s}
+            </option>
+          ))}
         </select>
       </Field>
-      <Button type="submit" variant="primary">Show report</Button>
+      <Button type="submit" variant="primary">
+        Show report
+      </Button>
     </form>
   );
 }

@@ -14,8 +14,14 @@ function Section({ title, table, csvBase, children, count }: { title: string; ta
   return (
     <section className="report-section space-y-2" aria-label={title} data-testid={`report-${table ?? title.toLowerCase().replace(/\W+/g, '-')}`}>
       <div className="flex items-baseline justify-between gap-3">
-        <h2 className="font-semibold">{title} <span className="text-sm font-normal text-ink-soft">({count})</span></h2>
-        {table ? <a className="no-print text-sm text-tide hover:underline" href={`${csvBase}&format=csv&table=${table}`} download>CSV</a> : null}
+        <h2 className="font-semibold">
+          {title} <span className="text-sm font-normal text-ink-soft">({count})</span>
+        </h2>
+        {table ? (
+          <a className="no-print text-sm text-tide hover:underline" href={`${csvBase}&format=csv&table=${table}`} download>
+            CSV
+          </a>
+        ) : null}
       </div>
       {count === 0 ? <Empty>None in this period.</Empty> : children}
     </section>
@@ -34,8 +40,12 @@ export function PeriodReportView({ report }: { report: PeriodReport }) {
     <article className="report space-y-5" data-testid="period-report">
       <header>
         <p className="font-mono text-xs uppercase tracking-widest text-tide">Brinkwatch · period report</p>
-        <h1 className="text-2xl font-semibold">{report.period.label} · {report.site ?? 'whole network'}</h1>
-        <p className="text-sm text-ink-soft">{report.period.from} to {report.period.to} (UTC days) · prepared {when(report.generatedAt)}</p>
+        <h1 className="text-2xl font-semibold">
+          {report.period.label} · {report.site ?? 'whole network'}
+        </h1>
+        <p className="text-sm text-ink-soft">
+          {report.period.from} to {report.period.to} (UTC days) · prepared {when(report.generatedAt)}
+        </p>
       </header>
       <Caution />
       <dl className="grid grid-cols-2 gap-3 text-sm sm:grid-cols-4" data-testid="report-headline">
@@ -57,14 +67,25 @@ export function PeriodReportView({ report }: { report: PeriodReport }) {
       </dl>
 
       <Section title="Series" table="series" csvBase={csvBase} count={report.series.length}>
-        <DataTable caption="Status of every series" frame="plain" className="num text-sm"
-          columns={['Series', 'Site', 'Now', 'Received / expected', 'Complete', 'Late stretches', 'Late time', 'Alerts opened', 'Open at end']}>
+        <DataTable
+          caption="Status of every series"
+          frame="plain"
+          className="num text-sm"
+          columns={['Series', 'Site', 'Now', 'Received / expected', 'Complete', 'Late stretches', 'Late time', 'Alerts opened', 'Open at end']}
+        >
           {report.series.map((s) => (
             <tr key={s.id}>
-              <th scope="row" className={`${CELL_TIGHT} text-left font-medium`}>{s.name}</th>
+              <th scope="row" className={`${CELL_TIGHT} text-left font-medium`}>
+                {s.name}
+              </th>
               <td className={CELL_TIGHT}>{s.site || '–'}</td>
-              <td className={CELL_TIGHT}>{s.stateNow.replace('-', ' ')}{s.freshnessNow === 'late' ? ', data late' : ''}</td>
-              <td className={CELL_TIGHT}>{s.received} / {s.expected ?? '–'}</td>
+              <td className={CELL_TIGHT}>
+                {s.stateNow.replace('-', ' ')}
+                {s.freshnessNow === 'late' ? ', data late' : ''}
+              </td>
+              <td className={CELL_TIGHT}>
+                {s.received} / {s.expected ?? '–'}
+              </td>
               <td className={CELL_TIGHT}>{pct(s.completeness)}</td>
               <td className={CELL_TIGHT}>{s.lateStretches}</td>
               <td className={CELL_TIGHT}>{hrs(s.lateHours)}</td>
@@ -76,11 +97,17 @@ export function PeriodReportView({ report }: { report: PeriodReport }) {
       </Section>
 
       <Section title="Alerts opened and their decisions" table="alerts" csvBase={csvBase} count={report.alerts.length}>
-        <DataTable caption="Alerts opened in the period" frame="plain" className="text-sm"
-          columns={['Alert', 'Series', 'What', 'Opened', 'Decision', 'Reason and note', 'Time to decision']}>
+        <DataTable
+          caption="Alerts opened in the period"
+          frame="plain"
+          className="text-sm"
+          columns={['Alert', 'Series', 'What', 'Opened', 'Decision', 'Reason and note', 'Time to decision']}
+        >
           {report.alerts.map((a) => (
             <tr key={a.id}>
-              <th scope="row" className={`${CELL_TIGHT} text-left font-medium`}>#{a.id} <span className="text-ink-soft">{a.severity}</span></th>
+              <th scope="row" className={`${CELL_TIGHT} text-left font-medium`}>
+                #{a.id} <span className="text-ink-soft">{a.severity}</span>
+              </th>
               <td className={CELL_TIGHT}>{a.seriesName}</td>
               <td className={CELL_TIGHT}>{a.subject}</td>
               <td className={`${CELL_TIGHT} whitespace-nowrap`}>{when(a.openedAt)}</td>
@@ -93,11 +120,17 @@ export function PeriodReportView({ report }: { report: PeriodReport }) {
       </Section>
 
       <Section title="Late stretches" table="late" csvBase={csvBase} count={report.late.length}>
-        <DataTable caption="Silences longer than each series' lateness allowance" frame="plain" className="text-sm"
-          columns={['Series', 'Last data', 'Data back', 'Silent for', 'Alert']}>
+        <DataTable
+          caption="Silences longer than each series' lateness allowance"
+          frame="plain"
+          className="text-sm"
+          columns={['Series', 'Last data', 'Data back', 'Silent for', 'Alert']}
+        >
           {report.late.map((l) => (
             <tr key={`${l.seriesSlug}-${l.lastDataAt}`}>
-              <th scope="row" className={`${CELL_TIGHT} text-left font-medium`}>{l.seriesName}</th>
+              <th scope="row" className={`${CELL_TIGHT} text-left font-medium`}>
+                {l.seriesName}
+              </th>
               <td className={CELL_TIGHT}>{when(l.lastDataAt)}</td>
               <td className={CELL_TIGHT}>{l.backAt ? when(l.backAt) : 'still silent at the end'}</td>
               <td className={`${CELL_TIGHT} num`}>{hrs(l.silentHours)}</td>
@@ -123,11 +156,17 @@ export function PeriodReportView({ report }: { report: PeriodReport }) {
       </Section>
 
       <Section title="Calibrated false-alarm rates of the rules" table="calibrations" csvBase={csvBase} count={report.calibrations.length}>
-        <DataTable caption="Each active rule's calibrated false alarms per year on records without slowing down" frame="plain" className="num text-sm"
-          columns={['Rule', 'Series', 'Indicator', 'Severity', 'False alarms per year', 'Interval', 'Calibrated']}>
+        <DataTable
+          caption="Each active rule's calibrated false alarms per year on records without slowing down"
+          frame="plain"
+          className="num text-sm"
+          columns={['Rule', 'Series', 'Indicator', 'Severity', 'False alarms per year', 'Interval', 'Calibrated']}
+        >
           {report.calibrations.map((c) => (
             <tr key={c.ruleId}>
-              <th scope="row" className={`${CELL_TIGHT} text-left font-medium`}>#{c.ruleId}</th>
+              <th scope="row" className={`${CELL_TIGHT} text-left font-medium`}>
+                #{c.ruleId}
+              </th>
               <td className={CELL_TIGHT}>{c.seriesSlug}</td>
               <td className={CELL_TIGHT}>{c.indicator}</td>
               <td className={CELL_TIGHT}>{c.severity}</td>
@@ -154,10 +193,17 @@ export function PeriodReportView({ report }: { report: PeriodReport }) {
       </Section>
 
       <Section title="Abrupt shifts" csvBase={csvBase} count={report.shifts.length}>
-        <DataTable caption="Abrupt shifts of level alerted in the period" frame="plain" className="text-sm" columns={['Alert', 'Series', 'Shift at', 'Size', 'Now']}>
+        <DataTable
+          caption="Abrupt shifts of level alerted in the period"
+          frame="plain"
+          className="text-sm"
+          columns={['Alert', 'Series', 'Shift at', 'Size', 'Now']}
+        >
           {report.shifts.map((s) => (
             <tr key={s.alertId}>
-              <th scope="row" className={`${CELL_TIGHT} text-left font-medium`}>#{s.alertId}</th>
+              <th scope="row" className={`${CELL_TIGHT} text-left font-medium`}>
+                #{s.alertId}
+              </th>
               <td className={CELL_TIGHT}>{s.seriesSlug}</td>
               <td className={CELL_TIGHT}>{when(s.at || null)}</td>
               <td className={`${CELL_TIGHT} num`}>{s.size === null ? '–' : s.size.toPrecision(3)}</td>

@@ -23,7 +23,11 @@ export function ScheduleManager({ sites }: { sites: string[] }) {
   const [cadence, setCadence] = useState<'monthly' | 'quarterly'>('quarterly');
   const [recipients, setRecipients] = useState('');
   const create = useMutation({
-    mutationFn: () => api<ReportScheduleView>('/api/reports/schedules', { method: 'POST', body: { name, site, cadence, recipients: recipients.split(/[\s,;]+/).filter(Boolean) } }),
+    mutationFn: () =>
+      api<ReportScheduleView>('/api/reports/schedules', {
+        method: 'POST',
+        body: { name, site, cadence, recipients: recipients.split(/[\s,;]+/).filter(Boolean) },
+      }),
     onSuccess: () => {
       setName('');
       setRecipients('');
@@ -35,7 +39,7 @@ export function ScheduleManager({ sites }: { sites: string[] }) {
       api(`/api/reports/schedules/${id}`, body ? { method: 'PATCH', body } : { method: 'DELETE' }),
     onSuccess: () => client.invalidateQueries({ queryKey: KEY }),
   });
-  const fields = create.error instanceof ApiError ? create.error.fields ?? {} : {};
+  const fields = create.error instanceof ApiError ? (create.error.fields ?? {}) : {};
 
   const submit = (event: FormEvent) => {
     event.preventDefault();
@@ -52,17 +56,29 @@ export function ScheduleManager({ sites }: { sites: string[] }) {
         ) : list.data.items.length === 0 ? (
           <Empty>No scheduled reports yet.</Empty>
         ) : (
-          <DataTable caption="Scheduled reports" frame="plain" className="text-sm" testId="schedule-table" columns={['Name', 'Covers', 'Every', 'Recipients', 'State', { label: 'Actions', srOnly: true }]}>
+          <DataTable
+            caption="Scheduled reports"
+            frame="plain"
+            className="text-sm"
+            testId="schedule-table"
+            columns={['Name', 'Covers', 'Every', 'Recipients', 'State', { label: 'Actions', srOnly: true }]}
+          >
             {list.data.items.map((s) => (
               <tr key={s.id}>
-                <th scope="row" className={`${CELL_TIGHT} text-left font-medium`}>{s.name}</th>
+                <th scope="row" className={`${CELL_TIGHT} text-left font-medium`}>
+                  {s.name}
+                </th>
                 <td className={CELL_TIGHT}>{s.site || 'whole network'}</td>
                 <td className={CELL_TIGHT}>{s.cadence === 'monthly' ? 'month' : 'quarter'}</td>
                 <td className={`${CELL_TIGHT} break-all`}>{s.recipients.join(', ') || 'nobody (all unsubscribed)'}</td>
                 <td className={CELL_TIGHT}>{s.active ? 'active' : 'paused'}</td>
                 <td className={`${CELL_TIGHT} whitespace-nowrap`}>
-                  <Button size="sm" variant="quiet" onClick={() => change.mutate({ id: s.id, body: { active: !s.active } })}>{s.active ? 'Pause' : 'Resume'}</Button>
-                  <Button size="sm" variant="danger" onClick={() => change.mutate({ id: s.id })}>Delete</Button>
+                  <Button size="sm" variant="quiet" onClick={() => change.mutate({ id: s.id, body: { active: !s.active } })}>
+                    {s.active ? 'Pause' : 'Resume'}
+                  </Button>
+                  <Button size="sm" variant="danger" onClick={() => change.mutate({ id: s.id })}>
+                    Delete
+                  </Button>
                 </td>
               </tr>
             ))}
@@ -70,11 +86,17 @@ export function ScheduleManager({ sites }: { sites: string[] }) {
         )}
         {change.isError ? <ErrorNote error={change.error}>The change was not saved.</ErrorNote> : null}
         <form onSubmit={submit} className="mt-4 grid gap-3 sm:grid-cols-2" data-testid="schedule-form">
-          <Field label="Name" error={fields.name?.[0]}><input className={CONTROL} value={name} onChange={(e) => setName(e.target.value)} required placeholder="Quarterly report to the water authority" /></Field>
+          <Field label="Name" error={fields.name?.[0]}>
+            <input className={CONTROL} value={name} onChange={(e) => setName(e.target.value)} required placeholder="Quarterly report to the water authority" />
+          </Field>
           <Field label="Covers">
             <select className={CONTROL} value={site} onChange={(e) => setSite(e.target.value)}>
               <option value="">Whole network</option>
-              {sites.map((s) => <option key={s} value={s}>{s}</option>)}
+              {sites.map((s) => (
+                <option key={s} value={s}>
+                  {s}
+                </option>
+              ))}
             </select>
           </Field>
           <Field label="Every">
@@ -83,11 +105,17 @@ export function ScheduleManager({ sites }: { sites: string[] }) {
               <option value="monthly">Month (sent after each month ends)</option>
             </select>
           </Field>
-          <Field label="Recipients" hint="E-mail addresses, separated by commas or spaces; they need no account." error={fields.recipients?.[0] ?? Object.entries(fields).find(([k]) => k.startsWith('recipients.'))?.[1]?.[0]}>
+          <Field
+            label="Recipients"
+            hint="E-mail addresses, separated by commas or spaces; they need no account."
+            error={fields.recipients?.[0] ?? Object.entries(fields).find(([k]) => k.startsWith('recipients.'))?.[1]?.[0]}
+          >
             <textarea className={CONTROL} value={recipients} onChange={(e) => setRecipients(e.target.value)} required rows={2} />
           </Field>
           <div className="sm:col-span-2">
-            <Button type="submit" variant="primary" disabled={create.isPending}>{create.isPending ? 'Saving…' : 'Add schedule'}</Button>
+            <Button type="submit" variant="primary" disabled={create.isPending}>
+              {create.isPending ? 'Saving…' : 'Add schedule'}
+            </Button>
             {create.isError && !Object.keys(fields).length ? <ErrorNote error={create.error}>The schedule was not saved.</ErrorNote> : null}
           </div>
         </form>

@@ -76,7 +76,7 @@ function bodyOf(d: RuleDraft): RuleCreateInput {
   };
 }
 
-const fieldError = (error: unknown, field: string) => (error instanceof ApiError ? error.fields?.[field]?.join(' ') ?? null : null);
+const fieldError = (error: unknown, field: string) => (error instanceof ApiError ? (error.fields?.[field]?.join(' ') ?? null) : null);
 
 /**
  * Writes or edits one rule of a series: every field with its plain-words explanation, templates to start from, a
@@ -84,7 +84,14 @@ const fieldError = (error: unknown, field: string) => (error instanceof ApiError
  * would), and a backtest of the draft. A stored rule's draft is backtested as drafted while the rule stays as
  * saved; a new draft is first saved paused, since a backtest belongs to a rule.
  */
-export function RuleEditor({ slug, ruleId, initial, indicators, templates, onClose }: {
+export function RuleEditor({
+  slug,
+  ruleId,
+  initial,
+  indicators,
+  templates,
+  onClose,
+}: {
   slug: string;
   /** the stored rule being edited; null for a new one */
   ruleId: number | null;
@@ -114,9 +121,8 @@ export function RuleEditor({ slug, ruleId, initial, indicators, templates, onClo
     router.refresh();
   };
   const save = useMutation({
-    mutationFn: () => (id === null
-      ? api<RuleRecord>(`/api/series/${slug}/rules`, { method: 'POST', body })
-      : api<RuleRecord>(`/api/rules/${id}`, { method: 'PATCH', body })),
+    mutationFn: () =>
+      id === null ? api<RuleRecord>(`/api/series/${slug}/rules`, { method: 'POST', body }) : api<RuleRecord>(`/api/rules/${id}`, { method: 'PATCH', body }),
     onSuccess: () => {
       refresh();
       onClose();
@@ -152,41 +158,73 @@ export function RuleEditor({ slug, ruleId, initial, indicators, templates, onClo
       <div className="flex flex-wrap items-end gap-3">
         <h3 className="text-sm font-semibold">{id === null ? 'New rule' : `Editing rule #${id}`}</h3>
         <Field label="Start from a template" tone="filter" className="ml-auto">
-          <select className={CONTROL} value="" data-testid="rule-template"
+          <select
+            className={CONTROL}
+            value=""
+            data-testid="rule-template"
             onChange={(e) => {
               const template = templates.find((t) => t.key === e.target.value);
               if (template) setDraft(draftOf(template.rule));
-            }}>
+            }}
+          >
             <option value="">Choose…</option>
-            {templates.map((t) => <option key={t.key} value={t.key} title={t.summary}>{t.title}</option>)}
+            {templates.map((t) => (
+              <option key={t.key} value={t.key} title={t.summary}>
+                {t.title}
+              </option>
+            ))}
           </select>
         </Field>
       </div>
 
       <div className="grid grid-cols-1 gap-4 md:grid-cols-2">
         <Field label="Indicator" hint={RULE_FIELD_HELP.indicator} error={errorOf('indicator')}>
-          <select className={CONTROL} value={draft.indicator} data-testid="rule-indicator"
+          <select
+            className={CONTROL}
+            value={draft.indicator}
+            data-testid="rule-indicator"
             onChange={(e) => {
               const indicator = e.target.value as IndicatorName;
               setDraft((d) => ({ ...d, indicator, direction: ownDirection(indicator) }));
-            }}>
-            {(indicators.includes(draft.indicator) ? indicators : [...indicators, draft.indicator]).map((name) => <option key={name} value={name}>{indicatorLabel(name, 'title')}</option>)}
+            }}
+          >
+            {(indicators.includes(draft.indicator) ? indicators : [...indicators, draft.indicator]).map((name) => (
+              <option key={name} value={name}>
+                {indicatorLabel(name, 'title')}
+              </option>
+            ))}
           </select>
         </Field>
         <Field label="Direction of the trend" hint={RULE_FIELD_HELP.direction} error={errorOf('direction')}>
           <select className={CONTROL} value={draft.direction} onChange={(e) => set('direction', e.target.value as RuleDirection)}>
-            {(['rising', 'falling', 'either'] as const).map((d) => <option key={d} value={d}>{DIRECTION_WORDS[d]}</option>)}
+            {(['rising', 'falling', 'either'] as const).map((d) => (
+              <option key={d} value={d}>
+                {DIRECTION_WORDS[d]}
+              </option>
+            ))}
           </select>
         </Field>
         <Field label="Minimum trend (Kendall τ)" hint={RULE_FIELD_HELP.minTau} error={errorOf('minTau')}>
           <input className={CONTROL} inputMode="decimal" value={draft.minTau} onChange={(e) => set('minTau', e.target.value)} data-testid="rule-min-tau" />
         </Field>
         <Field label="Largest surrogate p" hint={RULE_FIELD_HELP.maxSurrogateP} error={errorOf('maxSurrogateP')}>
-          <input className={CONTROL} inputMode="decimal" value={draft.maxSurrogateP} placeholder="not tested" onChange={(e) => set('maxSurrogateP', e.target.value)} />
+          <input
+            className={CONTROL}
+            inputMode="decimal"
+            value={draft.maxSurrogateP}
+            placeholder="not tested"
+            onChange={(e) => set('maxSurrogateP', e.target.value)}
+          />
         </Field>
         <div className="grid grid-cols-[minmax(0,1fr)_auto] gap-2">
           <Field label="Level of the latest value" hint={RULE_FIELD_HELP.levelThreshold} error={errorOf('levelThreshold')}>
-            <input className={CONTROL} inputMode="decimal" value={draft.levelThreshold} placeholder="not tested" onChange={(e) => set('levelThreshold', e.target.value)} />
+            <input
+              className={CONTROL}
+              inputMode="decimal"
+              value={draft.levelThreshold}
+              placeholder="not tested"
+              onChange={(e) => set('levelThreshold', e.target.value)}
+            />
           </Field>
           <Field label="Must be">
             <select className={CONTROL} value={draft.levelDirection} onChange={(e) => set('levelDirection', e.target.value as 'above' | 'below')}>
@@ -228,15 +266,23 @@ export function RuleEditor({ slug, ruleId, initial, indicators, templates, onClo
       {error ? <ErrorNote error={error}>{error === preview.error ? 'This draft is not a valid rule yet.' : 'Not done.'}</ErrorNote> : null}
       {backtest.data ? (
         <p role="status" className="text-sm text-calm" data-testid="rule-backtest-started">
-          ✓ Backtest #{backtest.data.jobId} of {ruleId === null ? `rule #${backtest.data.ruleId} (saved paused)` : 'this draft'} queued; follow it in the <a className="text-tide underline" href="#backtest">Backtest</a> panel.
+          ✓ Backtest #{backtest.data.jobId} of {ruleId === null ? `rule #${backtest.data.ruleId} (saved paused)` : 'this draft'} queued; follow it in the{' '}
+          <a className="text-tide underline" href="#backtest">
+            Backtest
+          </a>{' '}
+          panel.
         </p>
       ) : null}
       <div className="flex flex-wrap gap-2">
-        <Button type="submit" variant="primary" disabled={save.isPending}>{save.isPending ? 'Saving…' : 'Save rule'}</Button>
+        <Button type="submit" variant="primary" disabled={save.isPending}>
+          {save.isPending ? 'Saving…' : 'Save rule'}
+        </Button>
         <Button onClick={() => backtest.mutate()} disabled={backtest.isPending} data-testid="rule-backtest">
           {backtest.isPending ? 'Queuing…' : id === null ? 'Save paused and backtest' : 'Backtest this draft'}
         </Button>
-        <Button variant="quiet" onClick={onClose}>Close</Button>
+        <Button variant="quiet" onClick={onClose}>
+          Close
+        </Button>
       </div>
     </form>
   );
@@ -247,8 +293,18 @@ function DraftVerdict({ preview, loading, failed }: { preview: DraftPreview | un
   if (loading) return <Loading label="Judging the draft on the latest analysis…" />;
   if (failed && !preview) return null;
   if (!preview) return null;
-  if (!preview.snapshot) return <p className="text-ink-soft" data-testid="rule-preview" data-verdict="none">This series has not been analysed yet, so there is nothing to judge the draft on.</p>;
-  if (!preview.preview) return <p className="text-warning" data-testid="rule-preview" data-verdict="none">The latest analysis failed ({preview.snapshot.error}); the draft cannot be judged until one succeeds.</p>;
+  if (!preview.snapshot)
+    return (
+      <p className="text-ink-soft" data-testid="rule-preview" data-verdict="none">
+        This series has not been analysed yet, so there is nothing to judge the draft on.
+      </p>
+    );
+  if (!preview.preview)
+    return (
+      <p className="text-warning" data-testid="rule-preview" data-verdict="none">
+        The latest analysis failed ({preview.snapshot.error}); the draft cannot be judged until one succeeds.
+      </p>
+    );
   const { verdict, headline, checks, persistenceNote } = preview.preview;
   return (
     <div data-testid="rule-preview" data-verdict={verdict}>

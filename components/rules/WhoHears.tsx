@@ -19,7 +19,8 @@ export function WhoHears({ slug }: { slug: string }) {
   const key = ['watchers', slug];
   const list = useQuery({ queryKey: key, queryFn: () => api<{ items: SeriesWatcher[] }>(`/api/series/${slug}/watchers`) });
   const set = useMutation({
-    mutationFn: (change: { userId: number; mode: WatchMode }) => api<{ items: SeriesWatcher[] }>(`/api/series/${slug}/watchers`, { method: 'PUT', body: { watchers: [change] } }),
+    mutationFn: (change: { userId: number; mode: WatchMode }) =>
+      api<{ items: SeriesWatcher[] }>(`/api/series/${slug}/watchers`, { method: 'PUT', body: { watchers: [change] } }),
     onSuccess: (data) => client.setQueryData(key, data),
   });
   const hearing = list.data?.items.filter((w) => w.mode !== 'none').length ?? 0;
@@ -38,12 +39,23 @@ export function WhoHears({ slug }: { slug: string }) {
         <DataTable caption="Who hears of this series' alerts" testId="who-hears" frame="plain" columns={['Person', 'Role', 'Hears']}>
           {list.data.items.map((w) => (
             <tr key={w.userId} className="border-b border-rule last:border-0" data-user={w.userId}>
-              <td className={CELL}>{w.name} <span className="text-xs text-ink-soft">{w.email}</span></td>
+              <td className={CELL}>
+                {w.name} <span className="text-xs text-ink-soft">{w.email}</span>
+              </td>
               <td className={CELL}>{w.role}</td>
               <td className={CELL}>
-                <select className={CONTROL_BARE} aria-label={`How ${w.name} hears`} value={w.mode} disabled={set.isPending}
-                  onChange={(e) => set.mutate({ userId: w.userId, mode: e.target.value as WatchMode })}>
-                  {(Object.keys(MODE_WORDS) as WatchMode[]).map((m) => <option key={m} value={m}>{MODE_WORDS[m]}</option>)}
+                <select
+                  className={CONTROL_BARE}
+                  aria-label={`How ${w.name} hears`}
+                  value={w.mode}
+                  disabled={set.isPending}
+                  onChange={(e) => set.mutate({ userId: w.userId, mode: e.target.value as WatchMode })}
+                >
+                  {(Object.keys(MODE_WORDS) as WatchMode[]).map((m) => (
+                    <option key={m} value={m}>
+                      {MODE_WORDS[m]}
+                    </option>
+                  ))}
                 </select>
               </td>
             </tr>

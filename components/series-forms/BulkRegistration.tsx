@@ -22,7 +22,12 @@ function Preview({ report }: { report: BulkReport }) {
   return (
     <div className="space-y-2" data-testid="bulk-preview">
       <p className="text-sm" role="status">
-        {report.rows.length} rows · {bad ? <span className="text-warning">{bad} with errors: fix them and check again; nothing is registered until every row is right.</span> : <span className="text-calm">all ready</span>}
+        {report.rows.length} rows ·{' '}
+        {bad ? (
+          <span className="text-warning">{bad} with errors: fix them and check again; nothing is registered until every row is right.</span>
+        ) : (
+          <span className="text-calm">all ready</span>
+        )}
         {report.newSites.length ? ` · new sites: ${report.newSites.join(', ')}` : ''}
       </p>
       <DataTable caption="Rows of the list" frame="scroll" columns={['Row', 'Slug', 'Name', 'Site', 'Check']}>
@@ -35,9 +40,16 @@ function Preview({ report }: { report: BulkReport }) {
               <td className={CELL_TIGHT}>{row.name}</td>
               <td className={CELL_TIGHT}>{row.site}</td>
               <td className={CELL_TIGHT}>
-                {errors.length === 0 ? <span className="text-calm">✓ ready</span> : (
+                {errors.length === 0 ? (
+                  <span className="text-calm">✓ ready</span>
+                ) : (
                   <ul className="text-warning" data-testid="row-errors">
-                    {errors.map(([field, messages]) => <li key={field}>✕ {field === '_' ? '' : `${field}: `}{messages.join(' ')}</li>)}
+                    {errors.map(([field, messages]) => (
+                      <li key={field}>
+                        ✕ {field === '_' ? '' : `${field}: `}
+                        {messages.join(' ')}
+                      </li>
+                    ))}
                   </ul>
                 )}
               </td>
@@ -57,7 +69,10 @@ function Preview({ report }: { report: BulkReport }) {
 export function BulkRegistration() {
   const [csv, setCsv] = useState('');
   const [checked, setChecked] = useState<string | null>(null);
-  const check = useMutation({ mutationFn: (list: string) => api<BulkReport>('/api/series/bulk?dryRun=1', { method: 'POST', body: { csv: list } }), onSuccess: (_report, list) => setChecked(list) });
+  const check = useMutation({
+    mutationFn: (list: string) => api<BulkReport>('/api/series/bulk?dryRun=1', { method: 'POST', body: { csv: list } }),
+    onSuccess: (_report, list) => setChecked(list),
+  });
   const create = useMutation({ mutationFn: (list: string) => api<BulkReport>('/api/series/bulk', { method: 'POST', body: { csv: list } }) });
   // A preview belongs to the text it checked; an edit asks for a new check.
   const report = check.data && checked === csv ? check.data : null;
@@ -70,7 +85,15 @@ export function BulkRegistration() {
   if (create.isSuccess) {
     return (
       <p role="status" className="rounded bg-calm-light px-4 py-3 text-sm" data-testid="bulk-created">
-        ✓ {create.data.created} series registered{create.data.newSites.length ? `, with ${create.data.newSites.length} new sites` : ''}. See them on the <Link href="/" className="text-tide hover:underline">overview</Link> or the <Link href="/sites" className="text-tide hover:underline">sites</Link> page.
+        ✓ {create.data.created} series registered{create.data.newSites.length ? `, with ${create.data.newSites.length} new sites` : ''}. See them on the{' '}
+        <Link href="/" className="text-tide hover:underline">
+          overview
+        </Link>{' '}
+        or the{' '}
+        <Link href="/sites" className="text-tide hover:underline">
+          sites
+        </Link>{' '}
+        page.
       </p>
     );
   }
@@ -79,10 +102,16 @@ export function BulkRegistration() {
     <div className="space-y-4">
       <details className="rounded-lg border border-rule bg-card p-3 text-sm">
         <summary className="cursor-pointer font-medium">Columns of the list</summary>
-        <p className="mt-2 text-ink-soft">One row a series; the header row names the columns, in any order. Only slug and name are required; the rest take the defaults of a single registration.</p>
+        <p className="mt-2 text-ink-soft">
+          One row a series; the header row names the columns, in any order. Only slug and name are required; the rest take the defaults of a single
+          registration.
+        </p>
         <dl className="mt-2 grid grid-cols-[auto_1fr] gap-x-4 gap-y-1">
           {Object.entries(BULK_COLUMNS).map(([name, help]) => (
-            <div key={name} className="contents"><dt className="font-mono">{name}</dt><dd className="text-ink-soft">{help}</dd></div>
+            <div key={name} className="contents">
+              <dt className="font-mono">{name}</dt>
+              <dd className="text-ink-soft">{help}</dd>
+            </div>
           ))}
         </dl>
         <pre className="mt-2 overflow-x-auto rounded bg-paper p-2 text-xs">{EXAMPLE}</pre>
@@ -94,7 +123,15 @@ export function BulkRegistration() {
         <span className="pb-2 text-sm text-ink-soft">or paste the list below</span>
       </div>
       <Field label="The list">
-        <textarea rows={10} value={csv} onChange={(e) => setCsv(e.target.value)} placeholder={EXAMPLE} spellCheck={false} className={`${CONTROL} w-full font-mono text-xs`} data-testid="bulk-text" />
+        <textarea
+          rows={10}
+          value={csv}
+          onChange={(e) => setCsv(e.target.value)}
+          placeholder={EXAMPLE}
+          spellCheck={false}
+          className={`${CONTROL} w-full font-mono text-xs`}
+          data-testid="bulk-text"
+        />
       </Field>
       <div className="flex flex-wrap gap-3">
         <Button variant={report?.valid ? 'secondary' : 'primary'} disabled={!csv.trim() || check.isPending} onClick={() => check.mutate(csv)}>

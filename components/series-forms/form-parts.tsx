@@ -6,7 +6,7 @@ import { CONTROL } from '@/components/ui/Field';
 
 /** The server's first message for a field (dotted path as the API gives it), for `Field`'s error line. */
 export function fieldError(error: unknown, key: string): string | null {
-  return error instanceof ApiError ? error.fields?.[key]?.[0] ?? null : null;
+  return error instanceof ApiError ? (error.fields?.[key]?.[0] ?? null) : null;
 }
 
 /** What failed, for the line under a form: the server's message, or that it could not be reached. */
@@ -27,9 +27,20 @@ export function TimeZoneInput({ value, onChange, id, ...aria }: { value: string;
   const known = useSyncExternalStore(noSubscribe, zones, noZones);
   return (
     <>
-      <input {...aria} value={value} onChange={(e) => onChange(e.target.value)} list={`${id}-zones`} required autoComplete="off" spellCheck={false} className={`${CONTROL} w-full`} />
+      <input
+        {...aria}
+        value={value}
+        onChange={(e) => onChange(e.target.value)}
+        list={`${id}-zones`}
+        required
+        autoComplete="off"
+        spellCheck={false}
+        className={`${CONTROL} w-full`}
+      />
       <datalist id={`${id}-zones`}>
-        {known.map((zone) => <option key={zone} value={zone} />)}
+        {known.map((zone) => (
+          <option key={zone} value={zone} />
+        ))}
       </datalist>
     </>
   );

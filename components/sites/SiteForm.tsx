@@ -25,13 +25,20 @@ function coordinate(text: string): number | null {
  */
 export function SiteForm({ site }: { site?: SiteRecord }) {
   const router = useRouter();
-  const [form, setForm] = useState(site
-    ? { ...BLANK, ...site, latitude: site.latitude?.toString() ?? '', longitude: site.longitude?.toString() ?? '' }
-    : BLANK);
+  const [form, setForm] = useState(
+    site ? { ...BLANK, ...site, latitude: site.latitude?.toString() ?? '', longitude: site.longitude?.toString() ?? '' } : BLANK,
+  );
   const [slugEdited, setSlugEdited] = useState(false);
   const save = useMutation({
     mutationFn: () => {
-      const body = { name: form.name, latitude: coordinate(form.latitude), longitude: coordinate(form.longitude), timeZone: form.timeZone, description: form.description, notes: form.notes };
+      const body = {
+        name: form.name,
+        latitude: coordinate(form.latitude),
+        longitude: coordinate(form.longitude),
+        timeZone: form.timeZone,
+        description: form.description,
+        notes: form.notes,
+      };
       return site
         ? api<SiteRecord>(`/api/sites/${site.slug}`, { method: 'PATCH', body })
         : api<SiteRecord>('/api/sites', { method: 'POST', body: { ...body, slug: form.slug } });
@@ -41,9 +48,12 @@ export function SiteForm({ site }: { site?: SiteRecord }) {
       else router.push(`/sites/${saved.slug}`);
     },
   });
-  const set = (key: keyof typeof BLANK) => (value: string) => setForm((current) => ({
-    ...current, [key]: value, ...(key === 'name' && !site && !slugEdited ? { slug: suggestSlug(value) } : {}),
-  }));
+  const set = (key: keyof typeof BLANK) => (value: string) =>
+    setForm((current) => ({
+      ...current,
+      [key]: value,
+      ...(key === 'name' && !site && !slugEdited ? { slug: suggestSlug(value) } : {}),
+    }));
   const error = (key: string) => fieldError(save.error, key);
 
   function submit(event: FormEvent) {
@@ -58,7 +68,15 @@ export function SiteForm({ site }: { site?: SiteRecord }) {
       </Field>
       {site ? null : (
         <Field label="Slug" hint="The site's address, suggested from the name." error={error('slug')}>
-          <input required value={form.slug} onChange={(e) => { setSlugEdited(true); set('slug')(e.target.value); }} className={`${CONTROL} w-full font-mono`} />
+          <input
+            required
+            value={form.slug}
+            onChange={(e) => {
+              setSlugEdited(true);
+              set('slug')(e.target.value);
+            }}
+            className={`${CONTROL} w-full font-mono`}
+          />
         </Field>
       )}
       <Field label="Latitude" hint="Decimal degrees, north positive (WGS 84); leave both empty when unknown." error={error('latitude')}>
@@ -77,10 +95,22 @@ export function SiteForm({ site }: { site?: SiteRecord }) {
         <textarea rows={2} value={form.notes} onChange={(e) => set('notes')(e.target.value)} className={`${CONTROL} w-full`} />
       </Field>
       <div className="flex flex-wrap items-center gap-3 sm:col-span-2">
-        <Button type="submit" variant="primary" disabled={save.isPending}>{save.isPending ? 'Saving…' : site ? 'Save the site' : 'Add the site'}</Button>
-        {save.isSuccess && site ? <span role="status" className="text-sm text-calm">✓ Saved</span> : null}
+        <Button type="submit" variant="primary" disabled={save.isPending}>
+          {save.isPending ? 'Saving…' : site ? 'Save the site' : 'Add the site'}
+        </Button>
+        {save.isSuccess && site ? (
+          <span role="status" className="text-sm text-calm">
+            ✓ Saved
+          </span>
+        ) : null}
       </div>
-      {save.isError ? <div className="sm:col-span-2"><ErrorNote>{site ? 'Not saved.' : 'Not added.'} {failureText(save.error)}</ErrorNote></div> : null}
+      {save.isError ? (
+        <div className="sm:col-span-2">
+          <ErrorNote>
+            {site ? 'Not saved.' : 'Not added.'} {failureText(save.error)}
+          </ErrorNote>
+        </div>
+      ) : null}
     </form>
   );
 }

@@ -15,25 +15,31 @@ export function SiteMap({ map }: { map: SiteMapGeometry }) {
           <rect x={0.5} y={0.5} width={width - 1} height={height - 1} fill="var(--color-paper)" stroke="var(--color-rule)" />
           <g aria-hidden="true" fontSize={11} fill="var(--color-ink-soft)">
             <path d={`M ${width - 22} 34 L ${width - 16} 18 L ${width - 10} 34 Z`} fill="var(--color-ink-soft)" />
-            <text x={width - 16} y={46} textAnchor="middle">N</text>
+            <text x={width - 16} y={46} textAnchor="middle">
+              N
+            </text>
           </g>
           {points.map((point) => (
             <a key={point.slug} href={`/sites/${point.slug}`} aria-label={point.name}>
               <circle cx={point.x} cy={point.y} r={6} fill="var(--color-tide)" stroke="white" strokeWidth={1.5} />
-              <text x={point.x + 9} y={point.y + 4} fontSize={12} fill="var(--color-ink)">{point.name}</text>
+              <text x={point.x + 9} y={point.y + 4} fontSize={12} fill="var(--color-ink)">
+                {point.name}
+              </text>
             </a>
           ))}
           {scale ? (
             <g aria-label={`Scale bar: ${scale.km} km`} fontSize={11} fill="var(--color-ink-soft)">
               <path d={`M 16 ${height - 18} v 5 h ${scale.px} v -5`} fill="none" stroke="var(--color-ink)" strokeWidth={1.5} />
-              <text x={16 + scale.px / 2} y={height - 20} textAnchor="middle">{scale.km.toLocaleString('en-GB')} km</text>
+              <text x={16 + scale.px / 2} y={height - 20} textAnchor="middle">
+                {scale.km.toLocaleString('en-GB')} km
+              </text>
             </g>
           ) : null}
         </svg>
       )}
       <figcaption className="mt-2 text-xs text-ink-soft">
-        Positions in WGS 84 latitude and longitude, drawn to one scale about the network&apos;s centre (distances away from the
-        centre latitude are approximate).{unplaced.length ? ` Without a position: ${unplaced.join(', ')}.` : ''}
+        Positions in WGS 84 latitude and longitude, drawn to one scale about the network&apos;s centre (distances away from the centre latitude are
+        approximate).{unplaced.length ? ` Without a position: ${unplaced.join(', ')}.` : ''}
       </figcaption>
     </figure>
   );

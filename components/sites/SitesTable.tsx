@@ -12,7 +12,9 @@ export function SitesTable({ sites }: { sites: SiteRecord[] }) {
       {sites.map((site) => (
         <tr key={site.id} data-site={site.slug}>
           <td className={CELL}>
-            <Link href={`/sites/${site.slug}`} className="font-medium text-tide hover:underline">{site.name}</Link>
+            <Link href={`/sites/${site.slug}`} className="font-medium text-tide hover:underline">
+              {site.name}
+            </Link>
             {site.description ? <div className="text-xs text-ink-soft">{site.description}</div> : null}
           </td>
           <td className={`${CELL} num`}>{formatCoordinates(site.latitude, site.longitude)}</td>

@@ -26,7 +26,13 @@ export function buttonClass(variant: ButtonVariant = 'secondary', size: ButtonSi
 }
 
 /** A button (type "button" unless told otherwise, so it never submits a form by accident). */
-export function Button({ variant = 'secondary', size = 'md', className = '', type = 'button', ...props }: ButtonHTMLAttributes<HTMLButtonElement> & {
+export function Button({
+  variant = 'secondary',
+  size = 'md',
+  className = '',
+  type = 'button',
+  ...props
+}: ButtonHTMLAttributes<HTMLButtonElement> & {
   variant?: ButtonVariant;
   size?: ButtonSize;
 }) {

@@ -29,7 +29,17 @@ function isColumnSpec(column: Column): column is { label: ReactNode; className?:
  * knows what to say; this draws only a table that has rows. `head` replaces the heading cells where they do more
  * than name a column (sorting).
  */
-export function DataTable({ caption, showCaption = false, columns, head, children, testId, className = '', frame = 'card', footer }: {
+export function DataTable({
+  caption,
+  showCaption = false,
+  columns,
+  head,
+  children,
+  testId,
+  className = '',
+  frame = 'card',
+  footer,
+}: {
   caption: string;
   showCaption?: boolean;
   columns?: Column[];
@@ -48,14 +58,15 @@ export function DataTable({ caption, showCaption = false, columns, head, childre
         <caption className={showCaption ? 'mb-1 text-left font-semibold' : 'sr-only'}>{caption}</caption>
         <thead className={`border-b border-rule bg-paper text-left text-ink-soft${frame === 'scroll' ? ' sticky top-0' : ''}`}>
           <tr>
-            {head ?? columns?.map((column, i) => {
-              const spec = isColumnSpec(column) ? column : { label: column };
-              return (
-                <th key={i} scope="col" className={`${CELL} font-medium ${spec.className ?? ''}`}>
-                  {spec.srOnly ? <span className="sr-only">{spec.label}</span> : spec.label}
-                </th>
-              );
-            })}
+            {head ??
+              columns?.map((column, i) => {
+                const spec = isColumnSpec(column) ? column : { label: column };
+                return (
+                  <th key={i} scope="col" className={`${CELL} font-medium ${spec.className ?? ''}`}>
+                    {spec.srOnly ? <span className="sr-only">{spec.label}</span> : spec.label}
+                  </th>
+                );
+              })}
           </tr>
         </thead>
         <tbody className="divide-y divide-rule">{children}</tbody>

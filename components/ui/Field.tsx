@@ -22,7 +22,14 @@ export const CONTROL = `mt-1 ${CONTROL_BARE}`;
  * so its words are the control's name and nothing else; hint and error are tied to the control through
  * aria-describedby, and an error sets aria-invalid.
  */
-export function Field({ label, hint, error, tone = 'form', className = '', children }: {
+export function Field({
+  label,
+  hint,
+  error,
+  tone = 'form',
+  className = '',
+  children,
+}: {
   label: ReactNode;
   hint?: ReactNode;
   error?: string | null;
@@ -38,13 +45,30 @@ export function Field({ label, hint, error, tone = 'form', className = '', child
     ...(error ? { 'aria-invalid': true } : {}),
   });
   if (!hint && !error) {
-    return <label className={`${LABELS[tone]} ${className}`}>{label}{control}</label>;
+    return (
+      <label className={`${LABELS[tone]} ${className}`}>
+        {label}
+        {control}
+      </label>
+    );
   }
   return (
     <div className={className}>
-      <label className={LABELS[tone]}>{label}{control}</label>
-      {hint ? <p id={`${id}-hint`} className="mt-1 text-xs text-ink-soft">{hint}</p> : null}
-      {error ? <p id={`${id}-error`} className="mt-1 text-xs text-warning"><span aria-hidden="true">✕ </span>{error}</p> : null}
+      <label className={LABELS[tone]}>
+        {label}
+        {control}
+      </label>
+      {hint ? (
+        <p id={`${id}-hint`} className="mt-1 text-xs text-ink-soft">
+          {hint}
+        </p>
+      ) : null}
+      {error ? (
+        <p id={`${id}-error`} className="mt-1 text-xs text-warning">
+          <span aria-hidden="true">✕ </span>
+          {error}
+        </p>
+      ) : null}
     </div>
   );
 }

@@ -41,7 +41,14 @@ function trendLegend(view: AnalysisView, name: string): string {
  * marked tipping points, maintenance breaks, detected abrupt shifts and the line where the analysed stretch starts
  * (its reason written once, on the first chart); indicator charts also show the span of one rolling window.
  */
-export function AnalysisCharts({ view, series, marks = [], idPrefix = '', compact = false, charts }: {
+export function AnalysisCharts({
+  view,
+  series,
+  marks = [],
+  idPrefix = '',
+  compact = false,
+  charts,
+}: {
   view: AnalysisView;
   series: ChartSeries;
   marks?: { at: number; note: string; kind?: 'tipping-point' | 'maintenance' }[];
@@ -58,9 +65,8 @@ export function AnalysisCharts({ view, series, marks = [], idPrefix = '', compac
   const base = `${series.slug}${idPrefix ? `-${idPrefix}` : ''}`;
   const shifts = view.shifts;
   const stretchAt = view.stretch?.from ?? null;
-  const xDomain: [number, number] | null = first === undefined
-    ? null
-    : [Math.min(first, windowBand?.from ?? first, stretchAt ?? first), Math.max(last, windowBand?.to ?? last, stretchAt ?? last)];
+  const xDomain: [number, number] | null =
+    first === undefined ? null : [Math.min(first, windowBand?.from ?? first, stretchAt ?? first), Math.max(last, windowBand?.to ?? last, stretchAt ?? last)];
   // Shifts before the drawn stretch are not on the charts; the count says so and the quality panel lists them all.
   const before = first === undefined ? 0 : shifts.filter((shift) => shift.time < first).length;
   const shiftNote = shifts.length
@@ -72,7 +78,11 @@ export function AnalysisCharts({ view, series, marks = [], idPrefix = '', compac
   // Flagged points of the drawn span, for the record chart: they change when flags are re-run or overridden.
   const flags = useQuery({
     queryKey: ['flagged', series.slug, xDomain?.[0], xDomain?.[1]],
-    queryFn: ({ signal }) => api<{ points: FlaggedPoint[]; total: number }>(`/api/series/${series.slug}/observations/flags?from=${Math.floor(xDomain![0])}&to=${Math.ceil(xDomain![1])}`, { signal }),
+    queryFn: ({ signal }) =>
+      api<{ points: FlaggedPoint[]; total: number }>(
+        `/api/series/${series.slug}/observations/flags?from=${Math.floor(xDomain![0])}&to=${Math.ceil(xDomain![1])}`,
+        { signal },
+      ),
     enabled: xDomain !== null && shown.includes('record'),
   });
   const flagNote = flags.isError
@@ -88,32 +98,72 @@ export function AnalysisCharts({ view, series, marks = [], idPrefix = '', compac
     <div className="space-y-2">
       {shown.map((key, i) => {
         // The start line is drawn on every chart; its reason is written once, on the first.
-        const stretchStart = stretchAt === null ? null : { at: stretchAt, label: i === 0 && view.stretch ? stretchReason(view.stretch.startsAfter) : undefined };
+        const stretchStart =
+          stretchAt === null ? null : { at: stretchAt, label: i === 0 && view.stretch ? stretchReason(view.stretch.startsAfter) : undefined };
         if (key === 'record') {
           return (
-            <ChartFrame key={key} title={`${series.name}: record and trend`} fileName={`${base}-record`} testId="chart-record"
-              legend={<>
-                {`${view.n} points analysed${view.stretch ? `, ${stretchReason(view.stretch.startsAfter)}` : ''} · detrending: ${view.settings.detrend}${shiftNote}`}
-                <span className="block" data-testid="flag-legend">{flagNote}</span>
-              </>}>
-              <TimeChart {...common} unit={series.unit} stretchStart={stretchStart} flagged={flags.data?.points}
-                lines={[{ key: 'value', label: `value${series.unit ? ` (${series.unit})` : ''}`, color: 'ink-soft', width: 1 }, { key: 'trend', label: 'trend', color: 'tide', width: 2.5 }]} />
+            <ChartFrame
+              key={key}
+              title={`${series.name}: record and trend`}
+              fileName={`${base}-record`}
+              testId="chart-record"
+              legend={
+                <>
+                  {`${view.n} points analysed${view.stretch ? `, ${stretchReason(view.stretch.startsAfter)}` : ''} · detrending: ${view.settings.detrend}${shiftNote}`}
+                  <span className="block" data-testid="flag-legend">
+                    {flagNote}
+                  </span>
+                </>
+              }
+            >
+              <TimeChart
+                {...common}
+                unit={series.unit}
+                stretchStart={stretchStart}
+                flagged={flags.data?.points}
+                lines={[
+                  { key: 'value', label: `value${series.unit ? ` (${series.unit})` : ''}`, color: 'ink-soft', width: 1 },
+                  { key: 'trend', label: 'trend', color: 'tide', width: 2.5 },
+                ]}
+              />
             </ChartFrame>
           );
         }
         if (key === 'residuals') {
           return (
             <ChartFrame key={key} title="Residuals (value − trend)" fileName={`${base}-residuals`} testId="chart-residuals">
-              <TimeChart {...common} unit={series.unit} stretchStart={stretchStart} zeroLine lines={[{ key: 'residual', label: 'residual', color: 'ink-faint', width: 1 }]} />
+              <TimeChart
+                {...common}
+                unit={series.unit}
+                stretchStart={stretchStart}
+                zeroLine
+                lines={[{ key: 'residual', label: 'residual', color: 'ink-faint', width: 1 }]}
+              />
             </ChartFrame>
           );
         }
         return (
           <div key={key} id={idPrefix ? undefined : `chart-${key}`}>
-            <ChartFrame title={`${indicatorLabel(key, 'title')} in a rolling window`} fileName={`${base}-${key}`} testId={`chart-${key}`}
-              legend={<span data-testid={`trend-${key}`}>{trendLegend(view, key)}</span>}>
-              <TimeChart {...common} stretchStart={stretchStart} windowBand={windowBand}
-                lines={[{ key, label: `${indicatorLabel(key)} (window of ${view.windowPoints} points${(view.curves.evaluatedEvery?.[key] ?? 1) > 1 ? `, every ${view.curves.evaluatedEvery![key]}th window` : ''})`, color: 'tide', width: 2, sparse: (view.curves.evaluatedEvery?.[key] ?? 1) > 1 }]} />
+            <ChartFrame
+              title={`${indicatorLabel(key, 'title')} in a rolling window`}
+              fileName={`${base}-${key}`}
+              testId={`chart-${key}`}
+              legend={<span data-testid={`trend-${key}`}>{trendLegend(view, key)}</span>}
+            >
+              <TimeChart
+                {...common}
+                stretchStart={stretchStart}
+                windowBand={windowBand}
+                lines={[
+                  {
+                    key,
+                    label: `${indicatorLabel(key)} (window of ${view.windowPoints} points${(view.curves.evaluatedEvery?.[key] ?? 1) > 1 ? `, every ${view.curves.evaluatedEvery![key]}th window` : ''})`,
+                    color: 'tide',
+                    width: 2,
+                    sparse: (view.curves.evaluatedEvery?.[key] ?? 1) > 1,
+                  },
+                ]}
+              />
             </ChartFrame>
           </div>
         );

@@ -15,7 +15,9 @@ const chartName = (key: SeriesChart) => (key === 'record' ? 'Record and trend' :
  * series and in every browser they sign in from.
  */
 export function ChartChooser({ available, chosen, onChange }: { available: SeriesChart[]; chosen: SeriesChart[]; onChange: (charts: SeriesChart[]) => void }) {
-  const save = useMutation({ mutationFn: (seriesCharts: SeriesChart[]) => api<Preferences>('/api/account/preferences', { method: 'PUT', body: { seriesCharts } }) });
+  const save = useMutation({
+    mutationFn: (seriesCharts: SeriesChart[]) => api<Preferences>('/api/account/preferences', { method: 'PUT', body: { seriesCharts } }),
+  });
   const apply = (next: SeriesChart[]) => {
     onChange(next);
     save.mutate(next);
@@ -37,14 +39,22 @@ export function ChartChooser({ available, chosen, onChange }: { available: Serie
           return (
             <li key={key} className="flex items-center gap-2">
               <label className="flex flex-1 items-center gap-2">
-                <input type="checkbox" checked={on} data-testid={`chart-choice-${key}`}
-                  onChange={(e) => apply(e.target.checked ? [...chosen, key] : chosen.filter((k) => k !== key))} />
+                <input
+                  type="checkbox"
+                  checked={on}
+                  data-testid={`chart-choice-${key}`}
+                  onChange={(e) => apply(e.target.checked ? [...chosen, key] : chosen.filter((k) => k !== key))}
+                />
                 {chartName(key)}
               </label>
               {on ? (
                 <>
-                  <Button size="sm" variant="quiet" aria-label={`Move ${chartName(key)} up`} onClick={() => move(key, -1)}>↑</Button>
-                  <Button size="sm" variant="quiet" aria-label={`Move ${chartName(key)} down`} onClick={() => move(key, 1)}>↓</Button>
+                  <Button size="sm" variant="quiet" aria-label={`Move ${chartName(key)} up`} onClick={() => move(key, -1)}>
+                    ↑
+                  </Button>
+                  <Button size="sm" variant="quiet" aria-label={`Move ${chartName(key)} down`} onClick={() => move(key, 1)}>
+                    ↓
+                  </Button>
                 </>
               ) : null}
             </li>
@@ -52,7 +62,11 @@ export function ChartChooser({ available, chosen, onChange }: { available: Serie
         })}
       </ul>
       {save.isError ? <ErrorNote error={save.error}>Your choice applies here but was not saved.</ErrorNote> : null}
-      {save.isSuccess ? <p role="status" className="mt-1 text-xs text-ink-soft" data-testid="charts-saved">Saved for your account.</p> : null}
+      {save.isSuccess ? (
+        <p role="status" className="mt-1 text-xs text-ink-soft" data-testid="charts-saved">
+          Saved for your account.
+        </p>
+      ) : null}
     </div>
   );
 }

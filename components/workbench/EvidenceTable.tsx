@@ -19,12 +19,22 @@ export function EvidenceTable({ rows }: { rows: EvidenceRow[] }) {
       {rows.length === 0 ? (
         <Empty>No analysis and no rules yet: the table fills in after the first analysis run.</Empty>
       ) : (
-        <DataTable caption="Each indicator's trend and the rules it feeds" frame="plain" testId="evidence-table"
-          columns={['Indicator', 'Read as', 'Trend τ', 'Surrogate p', 'Rules it feeds, and what they say now']}>
+        <DataTable
+          caption="Each indicator's trend and the rules it feeds"
+          frame="plain"
+          testId="evidence-table"
+          columns={['Indicator', 'Read as', 'Trend τ', 'Surrogate p', 'Rules it feeds, and what they say now']}
+        >
           {rows.map((row) => (
             <tr key={row.indicator} className="border-b border-rule align-top last:border-0" data-indicator={row.indicator}>
               <th scope="row" className={`${CELL_TIGHT} text-left font-medium`}>
-                {row.computed ? <a className="text-tide hover:underline" href={`#chart-${row.indicator}`}>{indicatorLabel(row.indicator, 'title')}</a> : indicatorLabel(row.indicator, 'title')}
+                {row.computed ? (
+                  <a className="text-tide hover:underline" href={`#chart-${row.indicator}`}>
+                    {indicatorLabel(row.indicator, 'title')}
+                  </a>
+                ) : (
+                  indicatorLabel(row.indicator, 'title')
+                )}
               </th>
               <td className={`${CELL_TIGHT} whitespace-nowrap`}>{formatDirection(row.direction)}</td>
               <td className={`${CELL_TIGHT} num whitespace-nowrap`}>{row.computed ? tauWithDirection(row.tau, row.direction) : 'not computed'}</td>
@@ -36,9 +46,18 @@ export function EvidenceTable({ rows }: { rows: EvidenceRow[] }) {
                   <ul className="space-y-0.5">
                     {row.rules.map((r) => (
                       <li key={r.id} data-rule={r.id}>
-                        <a className="text-tide hover:underline" href="#rules">#{r.id}</a>{' '}
-                        <span className="text-ink-soft">{tauThreshold(r.rule.minTau, r.rule.direction)}{r.rule.maxSurrogateP !== null ? `, p ≤ ${r.rule.maxSurrogateP}` : ''} · {r.severity}</span>{' '}
-                        {r.active ? <span className={STANDING_TONE[r.standing] ?? 'text-ink-soft'}>— {STANDING_WORDS[r.standing]}</span> : <span className="text-ink-faint">— paused</span>}
+                        <a className="text-tide hover:underline" href="#rules">
+                          #{r.id}
+                        </a>{' '}
+                        <span className="text-ink-soft">
+                          {tauThreshold(r.rule.minTau, r.rule.direction)}
+                          {r.rule.maxSurrogateP !== null ? `, p ≤ ${r.rule.maxSurrogateP}` : ''} · {r.severity}
+                        </span>{' '}
+                        {r.active ? (
+                          <span className={STANDING_TONE[r.standing] ?? 'text-ink-soft'}>— {STANDING_WORDS[r.standing]}</span>
+                        ) : (
+                          <span className="text-ink-faint">— paused</span>
+                        )}
                       </li>
                     ))}
                   </ul>

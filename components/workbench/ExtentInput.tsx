@@ -21,7 +21,16 @@ export function extentFromText(text: string): Extent {
  * passed on; `accepts` decides (the settings schema, so the form and the server agree). Empty means null where
  * `nullable`.
  */
-export function ExtentInput({ label, value, onChange, accepts, nullable = false, testId, valueTestId, of }: {
+export function ExtentInput({
+  label,
+  value,
+  onChange,
+  accepts,
+  nullable = false,
+  testId,
+  valueTestId,
+  of,
+}: {
   label: string;
   value: Extent | null;
   onChange: (value: Extent | null) => void;
@@ -53,11 +62,24 @@ export function ExtentInput({ label, value, onChange, accepts, nullable = false,
   }
   return (
     <label className="block text-sm font-medium">
-      {label}: <span className="num" data-testid={valueTestId}>{describeExtent(value, of)}</span>
-      <input type="text" inputMode="text" value={text} onChange={(e) => change(e.target.value)} className={field} data-testid={testId}
-        aria-invalid={invalid} aria-describedby={hintId} placeholder={nullable ? 'whole record' : undefined} />
+      {label}:{' '}
+      <span className="num" data-testid={valueTestId}>
+        {describeExtent(value, of)}
+      </span>
+      <input
+        type="text"
+        inputMode="text"
+        value={text}
+        onChange={(e) => change(e.target.value)}
+        className={field}
+        data-testid={testId}
+        aria-invalid={invalid}
+        aria-describedby={hintId}
+        placeholder={nullable ? 'whole record' : undefined}
+      />
       <span id={hintId} className={`mt-1 block text-xs font-normal ${invalid ? 'text-warning' : 'text-ink-soft'}`}>
-        {invalid ? 'Not read: ' : ''}a fraction (0.5), a number of points (500 points) or an ISO 8601 duration (P90D, P2Y, PT12H){nullable ? '; empty for the whole record' : ''}.
+        {invalid ? 'Not read: ' : ''}a fraction (0.5), a number of points (500 points) or an ISO 8601 duration (P90D, P2Y, PT12H)
+        {nullable ? '; empty for the whole record' : ''}.
       </span>
     </label>
   );

@@ -30,51 +30,110 @@ export function TuningPanel({ draft, onChange, disabled }: { draft: AnalysisSett
   const set = <K extends keyof AnalysisSettings>(key: K, value: AnalysisSettings[K]) => onChange({ ...draft, [key]: value });
   function toggleIndicator(name: (typeof INDICATOR_NAMES)[number], on: boolean) {
     const next = on ? [...draft.indicators, name] : draft.indicators.filter((n) => n !== name);
-    if (next.length) set('indicators', INDICATOR_NAMES.filter((n) => next.includes(n)));
+    if (next.length)
+      set(
+        'indicators',
+        INDICATOR_NAMES.filter((n) => next.includes(n)),
+      );
   }
   return (
     <fieldset disabled={disabled} className="space-y-4" aria-describedby="tuning-help">
       <legend className="sr-only">Analysis settings</legend>
-      <p id="tuning-help" className="text-xs text-ink-soft">Charts recompute as you change these; nothing is saved until a lead saves.</p>
+      <p id="tuning-help" className="text-xs text-ink-soft">
+        Charts recompute as you change these; nothing is saved until a lead saves.
+      </p>
       <label className="block text-sm font-medium">
         Detrending
-        <select className={field} value={draft.detrend} onChange={(e) => set('detrend', e.target.value as AnalysisSettings['detrend'])} data-testid="detrend-input">
-          {DETREND_METHODS.map((m) => <option key={m} value={m}>{DETREND_LABELS[m] ?? m}</option>)}
+        <select
+          className={field}
+          value={draft.detrend}
+          onChange={(e) => set('detrend', e.target.value as AnalysisSettings['detrend'])}
+          data-testid="detrend-input"
+        >
+          {DETREND_METHODS.map((m) => (
+            <option key={m} value={m}>
+              {DETREND_LABELS[m] ?? m}
+            </option>
+          ))}
         </select>
       </label>
       {KERNEL_METHODS.includes(draft.detrend) ? (
-        <ExtentInput label="Bandwidth (kernel standard deviation)" of="the stretch" value={draft.bandwidth} accepts={acceptsField(draft, 'bandwidth')}
-          onChange={(v) => v !== null && set('bandwidth', v)} testId="bandwidth-input" />
+        <ExtentInput
+          label="Bandwidth (kernel standard deviation)"
+          of="the stretch"
+          value={draft.bandwidth}
+          accepts={acceptsField(draft, 'bandwidth')}
+          onChange={(v) => v !== null && set('bandwidth', v)}
+          testId="bandwidth-input"
+        />
       ) : null}
       {draft.detrend === 'moving-average' ? (
         <label className="block text-sm font-medium">
           Moving-average width (points, odd)
-          <input type="number" min={3} step={2} value={draft.movingAverageWidth} className={field}
+          <input
+            type="number"
+            min={3}
+            step={2}
+            value={draft.movingAverageWidth}
+            className={field}
             onChange={(e) => {
               const v = Math.max(3, Math.round(Number(e.target.value)));
               set('movingAverageWidth', v % 2 ? v : v + 1);
-            }} />
+            }}
+          />
         </label>
       ) : null}
-      <ExtentInput label="Rolling window" of="the stretch" value={draft.window} accepts={acceptsField(draft, 'window')}
-        onChange={(v) => v !== null && set('window', v)} testId="window-input" valueTestId="window-value" />
-      <ExtentInput label="Analysis span (latest part of the record)" of="the record" value={draft.span} nullable accepts={acceptsField(draft, 'span')}
-        onChange={(v) => set('span', v)} testId="span-input" />
+      <ExtentInput
+        label="Rolling window"
+        of="the stretch"
+        value={draft.window}
+        accepts={acceptsField(draft, 'window')}
+        onChange={(v) => v !== null && set('window', v)}
+        testId="window-input"
+        valueTestId="window-value"
+      />
+      <ExtentInput
+        label="Analysis span (latest part of the record)"
+        of="the record"
+        value={draft.span}
+        nullable
+        accepts={acceptsField(draft, 'span')}
+        onChange={(v) => set('span', v)}
+        testId="span-input"
+      />
       <label className="flex items-center gap-2 text-sm">
-        <input type="checkbox" checked={draft.shiftDetection === 'on'} onChange={(e) => set('shiftDetection', e.target.checked ? 'on' : 'off')}
-          className="accent-tide" data-testid="shift-detection-input" />
+        <input
+          type="checkbox"
+          checked={draft.shiftDetection === 'on'}
+          onChange={(e) => set('shiftDetection', e.target.checked ? 'on' : 'off')}
+          className="accent-tide"
+          data-testid="shift-detection-input"
+        />
         Start the analysis after a detected abrupt shift
       </label>
       <label className="block text-sm font-medium">
         Least observed share per window: <span className="num">{Math.round(draft.minCoverage * 100)}%</span>
-        <input type="range" min={0.5} max={1} step={0.05} value={draft.minCoverage} aria-valuetext={`${Math.round(draft.minCoverage * 100)}%`}
-          onChange={(e) => set('minCoverage', Number(e.target.value))} className="mt-1 w-full accent-tide" data-testid="min-coverage-input" />
+        <input
+          type="range"
+          min={0.5}
+          max={1}
+          step={0.05}
+          value={draft.minCoverage}
+          aria-valuetext={`${Math.round(draft.minCoverage * 100)}%`}
+          onChange={(e) => set('minCoverage', Number(e.target.value))}
+          className="mt-1 w-full accent-tide"
+          data-testid="min-coverage-input"
+        />
         <span className="mt-1 block text-xs font-normal text-ink-soft">Windows with fewer observed (not interpolated) points are not judged.</span>
       </label>
       <label className="block text-sm font-medium">
         When the sampling interval changes
-        <select className={field} value={draft.samplingChange} onChange={(e) => set('samplingChange', e.target.value as AnalysisSettings['samplingChange'])}
-          data-testid="sampling-change-input">
+        <select
+          className={field}
+          value={draft.samplingChange}
+          onChange={(e) => set('samplingChange', e.target.value as AnalysisSettings['samplingChange'])}
+          data-testid="sampling-change-input"
+        >
           <option value="start-after">Analyse only the stretch after the change</option>
           <option value="subsample">Subsample the finer part to the coarser interval</option>
         </select>
@@ -84,7 +143,12 @@ export function TuningPanel({ draft, onChange, disabled }: { draft: AnalysisSett
         <div className="mt-1 grid grid-cols-1 gap-1 sm:grid-cols-2">
           {INDICATOR_NAMES.map((name) => (
             <label key={name} className="flex items-center gap-2 text-sm">
-              <input type="checkbox" checked={draft.indicators.includes(name)} onChange={(e) => toggleIndicator(name, e.target.checked)} className="accent-tide" />
+              <input
+                type="checkbox"
+                checked={draft.indicators.includes(name)}
+                onChange={(e) => toggleIndicator(name, e.target.checked)}
+                className="accent-tide"
+              />
               {indicatorLabel(name, 'title')}
             </label>
           ))}
@@ -100,12 +164,27 @@ export function TuningPanel({ draft, onChange, disabled }: { draft: AnalysisSett
       </label>
       <label className="block text-sm font-medium">
         Surrogate series for significance
-        <input type="number" min={0} max={100000} step={1} value={draft.surrogates} className={field}
-          onChange={(e) => set('surrogates', Math.max(0, Math.round(Number(e.target.value) || 0)))} />
-        <span className="mt-1 block text-xs font-normal text-ink-soft">The live preview uses at most {PREVIEW_MAX_SURROGATES}; saved settings use the full number.</span>
+        <input
+          type="number"
+          min={0}
+          max={100000}
+          step={1}
+          value={draft.surrogates}
+          className={field}
+          onChange={(e) => set('surrogates', Math.max(0, Math.round(Number(e.target.value) || 0)))}
+        />
+        <span className="mt-1 block text-xs font-normal text-ink-soft">
+          The live preview uses at most {PREVIEW_MAX_SURROGATES}; saved settings use the full number.
+        </span>
       </label>
       <label className="flex items-center gap-2 text-sm">
-        <input type="checkbox" checked={draft.sensitivity} onChange={(e) => set('sensitivity', e.target.checked)} className="accent-tide" data-testid="sensitivity-input" />
+        <input
+          type="checkbox"
+          checked={draft.sensitivity}
+          onChange={(e) => set('sensitivity', e.target.checked)}
+          className="accent-tide"
+          data-testid="sensitivity-input"
+        />
         Compute the window × bandwidth sensitivity grid
       </label>
     </fieldset>

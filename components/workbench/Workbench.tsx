@@ -87,14 +87,20 @@ export function Workbench({ series, savedSettings, initialView, canTune, canSave
   const view = showingPreview ? preview.data! : initialView;
   const pending = draft !== debounced || preview.isFetching;
   // Surrogate histograms of the indicators the reader charts, in the same order, so the page stays as long as they chose.
-  const tested = view ? (charts.filter((key) => (view.indicators as string[]).includes(key) && view.significance[key as keyof AnalysisView['significance']]) as (keyof AnalysisView['significance'])[]) : [];
+  const tested = view
+    ? (charts.filter(
+        (key) => (view.indicators as string[]).includes(key) && view.significance[key as keyof AnalysisView['significance']],
+      ) as (keyof AnalysisView['significance'])[])
+    : [];
 
   return (
     <div className="grid grid-cols-1 gap-4 lg:grid-cols-[minmax(0,1fr)_320px]">
       <div className="min-w-0 space-y-4">
         <div className="flex flex-wrap items-center gap-2 text-sm" aria-live="polite">
           {showingPreview ? (
-            <span className="rounded bg-watch-light px-2 py-0.5 text-watch" data-testid="preview-flag">◐ Preview of unsaved settings</span>
+            <span className="rounded bg-watch-light px-2 py-0.5 text-watch" data-testid="preview-flag">
+              ◐ Preview of unsaved settings
+            </span>
           ) : (
             <span className="rounded bg-calm-light px-2 py-0.5 text-calm">● Saved analysis</span>
           )}
@@ -122,8 +128,12 @@ export function Workbench({ series, savedSettings, initialView, canTune, canSave
                   {tested.map((name) => {
                     const s = view.significance[name]!;
                     return (
-                      <ChartFrame key={name} title={`${indicatorLabel(name, 'title')}: surrogate taus`} fileName={`${series.slug}-${name}-surrogates`}
-                        legend={`observed ${formatTauDirection(view.kendall[name]?.tau, s.direction)} · p ${formatP(s.p)} of ${s.count}`}>
+                      <ChartFrame
+                        key={name}
+                        title={`${indicatorLabel(name, 'title')}: surrogate taus`}
+                        fileName={`${series.slug}-${name}-surrogates`}
+                        legend={`observed ${formatTauDirection(view.kendall[name]?.tau, s.direction)} · p ${formatP(s.p)} of ${s.count}`}
+                      >
                         <SurrogateHistogram bins={s.bins} observed={view.kendall[name]?.tau ?? null} />
                       </ChartFrame>
                     );
@@ -135,7 +145,11 @@ export function Workbench({ series, savedSettings, initialView, canTune, canSave
               {view.sensitivity ? (
                 <SensitivityHeatmap grid={view.sensitivity} indicators={view.indicators} />
               ) : (
-                <Empty>{canTune ? 'Tick “Compute the window × bandwidth sensitivity grid” in the tuning panel to see how tau depends on them.' : 'The saved analysis has no sensitivity grid.'}</Empty>
+                <Empty>
+                  {canTune
+                    ? 'Tick “Compute the window × bandwidth sensitivity grid” in the tuning panel to see how tau depends on them.'
+                    : 'The saved analysis has no sensitivity grid.'}
+                </Empty>
               )}
             </Panel>
           </>
@@ -162,7 +176,11 @@ export function Workbench({ series, savedSettings, initialView, canTune, canSave
               </Button>
             </div>
             {save.isError ? <ErrorNote error={save.error}>Not saved.</ErrorNote> : null}
-            {save.isSuccess && !changed ? <p role="status" className="mt-2 text-sm text-calm">✓ Saved. The next analysis run uses these settings.</p> : null}
+            {save.isSuccess && !changed ? (
+              <p role="status" className="mt-2 text-sm text-calm">
+                ✓ Saved. The next analysis run uses these settings.
+              </p>
+            ) : null}
           </Panel>
         ) : null}
         <Panel title="Charts shown" id="charts">
@@ -170,15 +188,28 @@ export function Workbench({ series, savedSettings, initialView, canTune, canSave
         </Panel>
         <Panel title="Exports" id="exports">
           <div className="flex flex-wrap gap-2">
-            <a className={linkButton} href={`/api/series/${series.slug}/indicators?format=csv`} download>Indicators (CSV)</a>
-            <a className={linkButton} href={`/api/series/${series.slug}/indicators?format=json`} download>Indicators (JSON)</a>
-            <Link className={linkButton} href={`/series/${series.slug}/report`}>One-page report</Link>
+            <a className={linkButton} href={`/api/series/${series.slug}/indicators?format=csv`} download>
+              Indicators (CSV)
+            </a>
+            <a className={linkButton} href={`/api/series/${series.slug}/indicators?format=json`} download>
+              Indicators (JSON)
+            </a>
+            <Link className={linkButton} href={`/series/${series.slug}/report`}>
+              One-page report
+            </Link>
           </div>
           {canTune && changed ? (
             <div className="mt-2 flex flex-wrap gap-2">
               {(['csv', 'json'] as const).map((format) => (
-                <Button key={format}
-                  onClick={() => downloadPosted(series.slug, draft, format).then(() => setExportError(null), (e: Error) => setExportError(e.message))}>
+                <Button
+                  key={format}
+                  onClick={() =>
+                    downloadPosted(series.slug, draft, format).then(
+                      () => setExportError(null),
+                      (e: Error) => setExportError(e.message),
+                    )
+                  }
+                >
                   Preview indicators ({format.toUpperCase()})
                 </Button>
               ))}
@@ -187,7 +218,9 @@ export function Workbench({ series, savedSettings, initialView, canTune, canSave
           {exportError ? <ErrorNote>{exportError}</ErrorNote> : null}
           <p className="mt-2 text-xs text-ink-soft">Each chart saves itself as SVG or PNG from its own buttons.</p>
         </Panel>
-        <Panel title="Data quality" id="quality">{quality}</Panel>
+        <Panel title="Data quality" id="quality">
+          {quality}
+        </Panel>
         <Panel title="Settings history" id="history">
           <SettingsHistory slug={series.slug} initial={history} timeZone={series.timeZone} />
         </Panel>

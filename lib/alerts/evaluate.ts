@@ -57,7 +57,8 @@ export function judgeRule(rule: RuleThresholds, summary: StoredSummary, qValue: 
     const below = summary.quality?.windowsBelowCoverage;
     cannotJudge = `no ${rule.indicator} trend: too few windows with a value${below ? ` (${below} windows below the coverage floor)` : ''}`;
   } else if (needsSurrogates && !facts.surrogateTested) cannotJudge = 'no surrogate test (the series runs no surrogates)';
-  else if (needsSurrogates && facts.needsTaus) cannotJudge = `the surrogate p ${DIRECTION_TEXT[direction]} needs the surrogate taus, which this snapshot no longer keeps`;
+  else if (needsSurrogates && facts.needsTaus)
+    cannotJudge = `the surrogate p ${DIRECTION_TEXT[direction]} needs the surrogate taus, which this snapshot no longer keeps`;
   else if (needsSurrogates && facts.surrogateP === null) cannotJudge = 'no surrogate p (no surrogate gave a defined tau)';
   else if (rule.levelThreshold !== null && facts.level === null) cannotJudge = `no latest ${rule.indicator} value`;
 
@@ -153,7 +154,15 @@ async function mailWatchers(alert: Alert, series: Series, mail: ReturnType<typeo
   }
 }
 
-async function openAlert(rule: AlertRule, series: Series, snapshot: AnalysisSnapshot, judgement: Judgement, calibration: RuleCalibration | null, taus: number[] | null, transaction: Transaction): Promise<Alert> {
+async function openAlert(
+  rule: AlertRule,
+  series: Series,
+  snapshot: AnalysisSnapshot,
+  judgement: Judgement,
+  calibration: RuleCalibration | null,
+  taus: number[] | null,
+  transaction: Transaction,
+): Promise<Alert> {
   const alert = await Alert.create(
     {
       seriesId: series.id,
@@ -169,8 +178,28 @@ async function openAlert(rule: AlertRule, series: Series, snapshot: AnalysisSnap
     },
     { transaction },
   );
-  await AlertEvent.create({ alertId: alert.id, actorId: null, action: 'open', fromState: null, toState: 'new', reason: null, detail: `Rule #${rule.id} met on snapshot #${snapshot.id}.` }, { transaction });
-  await recordAudit({ actorId: null, action: 'alert.open', entity: 'alert', entityId: alert.id, details: { seriesId: series.id, ruleId: rule.id, snapshotId: snapshot.id, tau: judgement.tau, direction: rule.direction } }, transaction);
+  await AlertEvent.create(
+    {
+      alertId: alert.id,
+      actorId: null,
+      action: 'open',
+      fromState: null,
+      toState: 'new',
+      reason: null,
+      detail: `Rule #${rule.id} met on snapshot #${snapshot.id}.`,
+    },
+    { transaction },
+  );
+  await recordAudit(
+    {
+      actorId: null,
+      action: 'alert.open',
+      entity: 'alert',
+      entityId: alert.id,
+      details: { seriesId: series.id, ruleId: rule.id, snapshotId: snapshot.id, tau: judgement.tau, direction: rule.direction },
+    },
+    transaction,
+  );
   const evidence = evidenceFrom(alert, series, rule, snapshot, calibration, taus);
   await mailWatchers(alert, series, newAlertMail(evidence), 'alert-new', transaction);
   await enqueueWebhookEvent('alert.opened', alertWebhookPayload('alert.opened', evidence, null, alert.createdAt), transaction);
@@ -230,9 +259,35 @@ async function openShiftAlert(series: Series, snapshot: AnalysisSnapshot): Promi
       },
       { transaction },
     );
-    const earlier = fresh.length > 1 ? ` Earlier shifts first seen in the same analysis: ${fresh.slice(0, -1).map((s) => new Date(s.time).toISOString()).join(', ')}.` : '';
-    await AlertEvent.create({ alertId: alert.id, actorId: null, action: 'open', fromState: null, toState: 'new', reason: null, detail: `Abrupt shift at ${new Date(shift.time).toISOString()} detected on snapshot #${snapshot.id}.${earlier}` }, { transaction });
-    await recordAudit({ actorId: null, action: 'alert.open', entity: 'alert', entityId: alert.id, details: { seriesId: series.id, kind: 'abrupt-shift', snapshotId: snapshot.id, shift } }, transaction);
+    const earlier =
+      fresh.length > 1
+        ? ` Earlier shifts first seen in the same analysis: ${fresh
+            .slice(0, -1)
+            .map((s) => new Date(s.time).toISOString())
+            .join(', ')}.`
+        : '';
+    await AlertEvent.create(
+      {
+        alertId: alert.id,
+        actorId: null,
+        action: 'open',
+        fromState: null,
+        toState: 'new',
+        reason: null,
+        detail: `Abrupt shift at ${new Date(shift.time).toISOString()} detected on snapshot #${snapshot.id}.${earlier}`,
+      },
+      { transaction },
+    );
+    await recordAudit(
+      {
+        actorId: null,
+        action: 'alert.open',
+        entity: 'alert',
+        entityId: alert.id,
+        details: { seriesId: series.id, kind: 'abrupt-shift', snapshotId: snapshot.id, shift },
+      },
+      transaction,
+    );
     const evidence = evidenceFrom(alert, series, null, snapshot, null);
     await mailWatchers(alert, series, newAlertMail(evidence), 'alert-shift', transaction);
     await enqueueWebhookEvent('alert.abrupt-shift', alertWebhookPayload('alert.abrupt-shift', evidence, null, alert.createdAt), transaction);
@@ -255,7 +310,12 @@ export async function fdrFamilyOutside(except: Set<number>): Promise<PortfolioEn
   );
   return rows
     .filter((r) => !except.has(Number(r.rule_id)))
-    .map((r) => ({ ruleId: Number(r.rule_id), seriesId: Number(r.series_id), fdrLevel: Number(r.fdr_level), surrogateP: r.surrogate_p === null ? null : Number(r.surrogate_p) }));
+    .map((r) => ({
+      ruleId: Number(r.rule_id),
+      seriesId: Number(r.series_id),
+      fdrLevel: Number(r.fdr_level),
+      surrogateP: r.surrogate_p === null ? null : Number(r.surrogate_p),
+    }));
 }
 
 /**
@@ -309,7 +369,12 @@ export async function evaluateSnapshots(snapshots: AnalysisSnapshot[], now = new
   });
   const others = await (latestPair.size ? fdrFamilyOutside(new Set(latestPair.keys())) : Promise.resolve([]));
   const slotOf = new Map([...latestPair.values()].map((pairIndex, slot) => [pairIndex, slot]));
-  const family: PortfolioEntry[] = [...latestPair.values()].map((i) => ({ ruleId: pairs[i].rule.id, seriesId: pairs[i].snapshot.seriesId, fdrLevel: pairs[i].rule.fdrLevel, surrogateP: pairs[i].surrogateP }));
+  const family: PortfolioEntry[] = [...latestPair.values()].map((i) => ({
+    ruleId: pairs[i].rule.id,
+    seriesId: pairs[i].snapshot.seriesId,
+    fdrLevel: pairs[i].rule.fdrLevel,
+    surrogateP: pairs[i].surrogateP,
+  }));
   const decided = portfolioFdr([...family, ...others]);
   const qOf = (index: number): number | null => {
     const pair = pairs[index];
@@ -342,7 +407,10 @@ export async function evaluateSnapshots(snapshots: AnalysisSnapshot[], now = new
         const open = await Alert.findOne({ where: { seriesId: series.id, ruleId: rule.id, state: { [Op.in]: [...OPEN_ALERT_STATES] } }, transaction });
         if (open) {
           const stronger = open.peakTau === null || (judgement.orientedTau !== null && judgement.orientedTau > open.peakTau);
-          await open.update({ latestSnapshotId: snapshot.id, evaluationCount: open.evaluationCount + 1, peakTau: stronger ? judgement.orientedTau : open.peakTau }, { transaction });
+          await open.update(
+            { latestSnapshotId: snapshot.id, evaluationCount: open.evaluationCount + 1, peakTau: stronger ? judgement.orientedTau : open.peakTau },
+            { transaction },
+          );
           result = 'evidence-added';
           alertId = open.id;
         } else {
@@ -400,7 +468,15 @@ export async function evaluateSnapshots(snapshots: AnalysisSnapshot[], now = new
 function emptyJudgement(rule: RuleThresholds): Judgement {
   return {
     direction: trendDirectionOf(rule.direction),
-    tau: null, orientedTau: null, kendallP: null, surrogateP: null, nullSd: null, qValue: null, level: null,
-    passed: false, failed: [], cannotJudge: null,
+    tau: null,
+    orientedTau: null,
+    kendallP: null,
+    surrogateP: null,
+    nullSd: null,
+    qValue: null,
+    level: null,
+    passed: false,
+    failed: [],
+    cannotJudge: null,
   };
 }

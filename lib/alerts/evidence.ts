@@ -15,7 +15,10 @@ export interface StoredSummary {
   /** p is one-sided in `direction` (two-sided for 'two-sided'); descriptive only. Snapshots before directions: upwards. */
   kendall?: Record<string, { tau: number | null; p: number | null; direction?: TrendDirection } | undefined>;
   /** p in `direction`; nullSd = standard deviation of the finite surrogate taus (the null spread of tau). */
-  significance?: Record<string, { p: number | null; count: number; method: string; direction?: TrendDirection; nullSd?: number | null; nullCount?: number } | undefined>;
+  significance?: Record<
+    string,
+    { p: number | null; count: number; method: string; direction?: TrendDirection; nullSd?: number | null; nullCount?: number } | undefined
+  >;
   latest?: Record<string, { time: number; value: number } | null | undefined>;
   shifts?: { time: number; index: number; size?: number }[];
   stretch?: { from: number; to: number; startsAfter: string };
@@ -37,7 +40,13 @@ export function indicatorFacts(summary: StoredSummary, indicator: string, direct
   let surrogateP = significance?.p ?? null;
   let surrogateCount = significance?.count ?? 0;
   if (significance && storedDirection !== direction) {
-    const recomputed = tau !== null && taus ? surrogatePValue(orientedTau(tau, direction), Float64Array.from(taus, (t) => orientedTau(t ?? Number.NaN, direction))) : null;
+    const recomputed =
+      tau !== null && taus
+        ? surrogatePValue(
+            orientedTau(tau, direction),
+            Float64Array.from(taus, (t) => orientedTau(t ?? Number.NaN, direction)),
+          )
+        : null;
     surrogateP = recomputed?.p ?? null;
     surrogateCount = recomputed?.count ?? surrogateCount;
   }
@@ -113,10 +122,11 @@ export async function alertEvidence(alert: Alert, transaction?: Transaction): Pr
     alert.ruleId === null ? new Map<number, RuleCalibration>() : latestRuleCalibration([alert.ruleId]),
   ]);
   if (!series || (alert.ruleId !== null && !rule) || !snapshot) throw new Error(`alert ${alert.id} lost its series, rule or snapshot`);
-  const taus = rule && indicatorFacts((snapshot.summary ?? {}) as StoredSummary, rule.indicator, trendDirectionOf(rule.direction)).needsTaus
-    ? await snapshotTaus(snapshot.id, rule.indicator, transaction)
-    : null;
-  return evidenceFrom(alert, series, rule, snapshot, alert.ruleId === null ? null : calibrations.get(alert.ruleId) ?? null, taus);
+  const taus =
+    rule && indicatorFacts((snapshot.summary ?? {}) as StoredSummary, rule.indicator, trendDirectionOf(rule.direction)).needsTaus
+      ? await snapshotTaus(snapshot.id, rule.indicator, transaction)
+      : null;
+  return evidenceFrom(alert, series, rule, snapshot, alert.ruleId === null ? null : (calibrations.get(alert.ruleId) ?? null), taus);
 }
 
 /** Surrogate taus of one indicator kept in a snapshot's curves, read inside SQLite (no parse of the whole curves); null when pruned. */

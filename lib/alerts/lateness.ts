@@ -77,7 +77,12 @@ export async function checkFreshness(now = Date.now()): Promise<FreshnessReport>
   const report: FreshnessReport = { opened: [], returned: [], unanalysed: [] };
   for (const row of rows) {
     const lastT = row.last_t === null ? null : Number(row.last_t);
-    const freshness = freshnessOf(lastT, row.interval_ms === null ? null : Number(row.interval_ms), now, row.late_after_ms === null ? null : Number(row.late_after_ms));
+    const freshness = freshnessOf(
+      lastT,
+      row.interval_ms === null ? null : Number(row.interval_ms),
+      now,
+      row.late_after_ms === null ? null : Number(row.late_after_ms),
+    );
     if (freshness === 'late' && row.silent_alert_id === null) {
       if (row.snapshot_id === null) report.unanalysed.push(row.id);
       else {
@@ -101,7 +106,11 @@ async function mailWatchers(alert: Alert, mail: { subject: string; text: string;
 async function openLateAlert(seriesId: number, lastDataAt: number, snapshotId: number, now: number): Promise<number | null> {
   return writeTransaction(async (transaction) => {
     // Re-read inside the write lock: another scheduler may have opened it since the pass's query.
-    const waiting = await Alert.findOne({ where: { seriesId, kind: 'data-late', [Op.or]: [{ dataBackAt: null }, { dataLastAt: lastDataAt }] }, attributes: ['id'], transaction });
+    const waiting = await Alert.findOne({
+      where: { seriesId, kind: 'data-late', [Op.or]: [{ dataBackAt: null }, { dataLastAt: lastDataAt }] },
+      attributes: ['id'],
+      transaction,
+    });
     if (waiting) return null;
     const alert = await Alert.create(
       {
@@ -124,12 +133,33 @@ async function openLateAlert(seriesId: number, lastDataAt: number, snapshotId: n
     const series = (await Series.findByPk(seriesId, { transaction }))!;
     const allowed = lateAfterMs(series.intervalMs, series.lateAfterMs);
     await AlertEvent.create(
-      { alertId: alert.id, actorId: null, action: 'open', fromState: null, toState: 'new', reason: null, detail: `No data since ${new Date(lastDataAt).toISOString()}; the series is late after ${Math.round(allowed / 60_000)} min without data.` },
+      {
+        alertId: alert.id,
+        actorId: null,
+        action: 'open',
+        fromState: null,
+        toState: 'new',
+        reason: null,
+        detail: `No data since ${new Date(lastDataAt).toISOString()}; the series is late after ${Math.round(allowed / 60_000)} min without data.`,
+      },
       { transaction },
     );
-    await recordAudit({ actorId: null, action: 'alert.open', entity: 'alert', entityId: alert.id, details: { seriesId, kind: 'data-late', lastDataAt, lateAfterMs: allowed, checkedAt: now } }, transaction);
+    await recordAudit(
+      {
+        actorId: null,
+        action: 'alert.open',
+        entity: 'alert',
+        entityId: alert.id,
+        details: { seriesId, kind: 'data-late', lastDataAt, lateAfterMs: allowed, checkedAt: now },
+      },
+      transaction,
+    );
     await mailWatchers(alert, dataLateMail({ alertId: alert.id, series, lastDataAt, lateAfterMs: allowed, now }), 'alert-data-late', transaction);
-    await enqueueWebhookEvent('data.late', dataLatePayload({ alertId: alert.id, lastDataAt, lateAfterMs: allowed }, { slug: series.slug, name: series.name, site: series.site }, new Date(now)), transaction);
+    await enqueueWebhookEvent(
+      'data.late',
+      dataLatePayload({ alertId: alert.id, lastDataAt, lateAfterMs: allowed }, { slug: series.slug, name: series.name, site: series.site }, new Date(now)),
+      transaction,
+    );
     return alert.id;
   });
 }
@@ -154,8 +184,20 @@ async function closeReturned(alertId: number, now: number): Promise<boolean> {
       { transaction },
     );
     const detail = `Data returned: first new observation at ${new Date(backAt).toISOString()} after the last at ${new Date(alert.dataLastAt).toISOString()}.${open ? ' The alert closed by itself.' : ''}`;
-    await AlertEvent.create({ alertId, actorId: null, action: 'data-returned', fromState, toState: alert.state, reason: open ? 'data-gap-or-artefact' : null, detail }, { transaction });
-    await recordAudit({ actorId: null, action: 'alert.data-returned', entity: 'alert', entityId: alertId, details: { seriesId: alert.seriesId, dataLastAt: alert.dataLastAt, dataBackAt: backAt, closed: open, checkedAt: now } }, transaction);
+    await AlertEvent.create(
+      { alertId, actorId: null, action: 'data-returned', fromState, toState: alert.state, reason: open ? 'data-gap-or-artefact' : null, detail },
+      { transaction },
+    );
+    await recordAudit(
+      {
+        actorId: null,
+        action: 'alert.data-returned',
+        entity: 'alert',
+        entityId: alertId,
+        details: { seriesId: alert.seriesId, dataLastAt: alert.dataLastAt, dataBackAt: backAt, closed: open, checkedAt: now },
+      },
+      transaction,
+    );
     const series = (await Series.findByPk(alert.seriesId, { transaction }))!;
     await mailWatchers(alert, dataBackMail({ alertId, series, lastDataAt: alert.dataLastAt, backAt }), 'alert-data-back', transaction);
     return true;

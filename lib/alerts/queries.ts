@@ -1,5 +1,19 @@
 import { QueryTypes, Transaction } from 'sequelize';
-import { ALERT_STATES, Alert, AlertEvent, AlertRule, AnalysisSnapshot, Note, NoteRevision, RuleEvaluation, Series, User, db, type AlertKind, type AlertState } from '@/models';
+import {
+  ALERT_STATES,
+  Alert,
+  AlertEvent,
+  AlertRule,
+  AnalysisSnapshot,
+  Note,
+  NoteRevision,
+  RuleEvaluation,
+  Series,
+  User,
+  db,
+  type AlertKind,
+  type AlertState,
+} from '@/models';
 import { NotFoundError } from '@/lib/http/errors';
 import type { Actor } from '@/lib/auth/roles';
 import { cachedRead } from '@/lib/db/read-cache';
@@ -124,13 +138,21 @@ async function loadAlertQueue(query: AlertQueueQuery, actor: Pick<Actor, 'id'>, 
     const counts = {} as Record<Exclude<AlertQueue, 'all'>, number>;
     for (const queue of ['triage', 'escalated', 'mine', 'closed'] as const) {
       const f = where({ ...query, state: undefined }, actor, queue, now);
-      const [row] = await sequelize.query<{ count: number }>(`SELECT COUNT(*) AS count FROM alerts a WHERE ${f.sql}`, { replacements: f.replacements, type: QueryTypes.SELECT, transaction });
+      const [row] = await sequelize.query<{ count: number }>(`SELECT COUNT(*) AS count FROM alerts a WHERE ${f.sql}`, {
+        replacements: f.replacements,
+        type: QueryTypes.SELECT,
+        transaction,
+      });
       counts[queue] = Number(row.count);
     }
     let total: number;
     if (query.queue !== 'all' && !query.state) total = counts[query.queue];
     else {
-      const [row] = await sequelize.query<{ count: number }>(`SELECT COUNT(*) AS count FROM alerts a WHERE ${filter.sql}`, { replacements: filter.replacements, type: QueryTypes.SELECT, transaction });
+      const [row] = await sequelize.query<{ count: number }>(`SELECT COUNT(*) AS count FROM alerts a WHERE ${filter.sql}`, {
+        replacements: filter.replacements,
+        type: QueryTypes.SELECT,
+        transaction,
+      });
       total = Number(row.count);
     }
     return { rows, counts, total };
@@ -147,7 +169,12 @@ async function loadAlertQueue(query: AlertQueueQuery, actor: Pick<Actor, 'id'>, 
     silence: r.data_last_at === null ? null : { lastDataAt: Number(r.data_last_at), backAt: r.data_back_at === null ? null : Number(r.data_back_at) },
     assignee: r.assignee_id === null ? null : { id: Number(r.assignee_id), name: String(r.assignee_name) },
     peakTau: r.peak_tau as number | null,
-    latest: { tau: r.tau as number | null, direction: (r.judged_direction ?? r.rule_direction ?? null) as string | null, surrogateP: r.surrogate_p as number | null, kendallP: r.kendall_p as number | null },
+    latest: {
+      tau: r.tau as number | null,
+      direction: (r.judged_direction ?? r.rule_direction ?? null) as string | null,
+      surrogateP: r.surrogate_p as number | null,
+      kendallP: r.kendall_p as number | null,
+    },
     evaluationCount: Number(r.evaluation_count),
     dismissReason: r.dismiss_reason as string | null,
     createdAt: toIso(r.created_at),
@@ -207,7 +234,14 @@ export async function fetchAlertDetail(id: number, actor?: Pick<Actor, 'role'>, 
     AnalysisSnapshot.findByPk(alert.firstSnapshotId, { attributes: snapshotAttributes }),
     alert.latestSnapshotId === alert.firstSnapshotId ? null : AnalysisSnapshot.findByPk(alert.latestSnapshotId, { attributes: snapshotAttributes }),
     AlertEvent.findAll({ where: { alertId: id }, include: [{ model: User, as: 'actor', attributes: ['id', 'name'] }], order: [['id', 'ASC']] }),
-    Note.findAll({ where: { alertId: id }, include: [{ model: User, as: 'author', attributes: ['id', 'name'] }, { model: NoteRevision, as: 'revisions' }], order: [['id', 'ASC']] }),
+    Note.findAll({
+      where: { alertId: id },
+      include: [
+        { model: User, as: 'author', attributes: ['id', 'name'] },
+        { model: NoteRevision, as: 'revisions' },
+      ],
+      order: [['id', 'ASC']],
+    }),
     RuleEvaluation.findAll({ where: { alertId: id }, order: [['snapshotId', 'ASC']], limit: 500 }),
     joined.rule ? presentRules([joined.rule]) : Promise.resolve([]),
   ]);
@@ -226,17 +260,44 @@ export async function fetchAlertDetail(id: number, actor?: Pick<Actor, 'role'>, 
     createdAt: alert.createdAt.toISOString(),
     updatedAt: alert.updatedAt.toISOString(),
     closedAt: alert.closedAt?.toISOString() ?? null,
-    series: { id: joined.series.id, slug: joined.series.slug, name: joined.series.name, site: joined.series.site, unit: joined.series.unit, timeZone: joined.series.timeZone },
+    series: {
+      id: joined.series.id,
+      slug: joined.series.slug,
+      name: joined.series.name,
+      site: joined.series.site,
+      unit: joined.series.unit,
+      timeZone: joined.series.timeZone,
+    },
     rule: rules[0] ?? null,
     assignee: joined.assignee ? { id: joined.assignee.id, name: joined.assignee.name, email: joined.assignee.email } : null,
     evidence: {
       first: presentSnapshot(first, charts),
       latest: presentSnapshot(latest ?? first, charts),
-      evaluations: evaluations.map((e) => ({ snapshotId: e.snapshotId, direction: e.direction ?? 'rising', tau: e.tau, kendallP: e.kendallP, surrogateP: e.surrogateP, qValue: e.qValue, level: e.level, streak: e.streak, outcome: e.outcome, at: e.createdAt.toISOString() })),
+      evaluations: evaluations.map((e) => ({
+        snapshotId: e.snapshotId,
+        direction: e.direction ?? 'rising',
+        tau: e.tau,
+        kendallP: e.kendallP,
+        surrogateP: e.surrogateP,
+        qValue: e.qValue,
+        level: e.level,
+        streak: e.streak,
+        outcome: e.outcome,
+        at: e.createdAt.toISOString(),
+      })),
     },
     timeline: events.map((e) => {
       const by = (e as AlertEvent & { actor?: User | null }).actor;
-      return { id: e.id, action: e.action, fromState: e.fromState, toState: e.toState, reason: e.reason, detail: e.detail, actor: by ? { id: by.id, name: by.name } : null, at: e.createdAt.toISOString() };
+      return {
+        id: e.id,
+        action: e.action,
+        fromState: e.fromState,
+        toState: e.toState,
+        reason: e.reason,
+        detail: e.detail,
+        actor: by ? { id: by.id, name: by.name } : null,
+        at: e.createdAt.toISOString(),
+      };
     }),
     notes: notes.map((n) => {
       const j = n as Note & { author?: User; revisions?: NoteRevision[] };

@@ -39,11 +39,23 @@ export function previewRule(rule: PreviewRule, summary: StoredSummary, qValue: n
   const name = indicatorLabel(rule.indicator);
   const checks: RulePreview['checks'] = [];
   if (!judgement.cannotJudge) {
-    checks.push({ test: tauThreshold(rule.minTau, rule.direction), observed: `τ ${tauWithDirection(judgement.tau, rule.direction)}`, passed: judgement.orientedTau! >= rule.minTau });
+    checks.push({
+      test: tauThreshold(rule.minTau, rule.direction),
+      observed: `τ ${tauWithDirection(judgement.tau, rule.direction)}`,
+      passed: judgement.orientedTau! >= rule.minTau,
+    });
     if (rule.maxSurrogateP !== null)
-      checks.push({ test: `surrogate p ≤ ${rule.maxSurrogateP}`, observed: `p ${formatP(judgement.surrogateP)}`, passed: judgement.surrogateP! <= rule.maxSurrogateP });
+      checks.push({
+        test: `surrogate p ≤ ${rule.maxSurrogateP}`,
+        observed: `p ${formatP(judgement.surrogateP)}`,
+        passed: judgement.surrogateP! <= rule.maxSurrogateP,
+      });
     if (rule.fdrLevel !== null)
-      checks.push({ test: `q-value ≤ ${rule.fdrLevel} (all rules with a false-discovery level)`, observed: `q ${formatP(qValue)}`, passed: qValue !== null && qValue <= rule.fdrLevel });
+      checks.push({
+        test: `q-value ≤ ${rule.fdrLevel} (all rules with a false-discovery level)`,
+        observed: `q ${formatP(qValue)}`,
+        passed: qValue !== null && qValue <= rule.fdrLevel,
+      });
     if (rule.levelThreshold !== null) {
       const below = rule.levelDirection === 'below';
       checks.push({
@@ -60,9 +72,8 @@ export function previewRule(rule: PreviewRule, summary: StoredSummary, qValue: n
       : verdict === 'passes'
         ? `On the latest analysis every test of this rule passes (${name}).`
         : `On the latest analysis this rule does not pass: ${judgement.failed.join('; ')}.`;
-  const persistenceNote = rule.persistence > 1
-    ? `An alert opens only after ${rule.persistence} analyses in a row pass; this preview judges the latest one alone.`
-    : null;
+  const persistenceNote =
+    rule.persistence > 1 ? `An alert opens only after ${rule.persistence} analyses in a row pass; this preview judges the latest one alone.` : null;
   return { verdict, headline, checks, persistenceNote, judgement };
 }
 

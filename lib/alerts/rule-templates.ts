@@ -19,7 +19,17 @@ export interface RuleTemplate {
   rule: RuleCreateInput;
 }
 
-const base = { minTau: 0.3, maxKendallP: null, levelThreshold: null, levelDirection: 'above', persistence: 1, severity: 'watch', quietPeriodHours: 0, fdrLevel: null, active: true } as const;
+const base = {
+  minTau: 0.3,
+  maxKendallP: null,
+  levelThreshold: null,
+  levelDirection: 'above',
+  persistence: 1,
+  severity: 'watch',
+  quietPeriodHours: 0,
+  fdrLevel: null,
+  active: true,
+} as const;
 
 export const RULE_TEMPLATES: readonly RuleTemplate[] = [
   {

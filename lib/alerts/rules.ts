@@ -96,7 +96,11 @@ type Criteria = Pick<RuleFields, 'indicator' | 'maxSurrogateP' | 'fdrLevel'>;
  * series' latest analysis failed because its stretch is too short for the window, that failure. The rule
  * editor's preview shows these before a save; `assertJudgeable` refuses the save with them.
  */
-export async function judgeabilityProblems(seriesId: number, rule: Criteria, transaction?: Transaction): Promise<{ series: string; fields: Record<string, string[]> }> {
+export async function judgeabilityProblems(
+  seriesId: number,
+  rule: Criteria,
+  transaction?: Transaction,
+): Promise<{ series: string; fields: Record<string, string[]> }> {
   const series = await Series.findByPk(seriesId, { transaction });
   if (!series) throw new NotFoundError('Series');
   const settings = analysisSettingsSchema.parse(series.settings ?? {});
@@ -104,11 +108,22 @@ export async function judgeabilityProblems(seriesId: number, rule: Criteria, tra
   const floor = 1 / (N + 1);
   const fields: Record<string, string[]> = {};
   if (!(settings.indicators as readonly string[]).includes(rule.indicator))
-    fields.indicator = [`${series.name} does not compute ${indicatorLabel(rule.indicator)} (its indicators: ${settings.indicators.map((name) => indicatorLabel(name)).join(', ')}). Add it to the series settings first.`];
-  for (const [field, level] of [['maxSurrogateP', rule.maxSurrogateP], ['fdrLevel', rule.fdrLevel]] as const) {
+    fields.indicator = [
+      `${series.name} does not compute ${indicatorLabel(rule.indicator)} (its indicators: ${settings.indicators.map((name) => indicatorLabel(name)).join(', ')}). Add it to the series settings first.`,
+    ];
+  for (const [field, level] of [
+    ['maxSurrogateP', rule.maxSurrogateP],
+    ['fdrLevel', rule.fdrLevel],
+  ] as const) {
     if (level === null) continue;
-    if (N === 0) fields[field] = [`${series.name} runs no surrogates, so no surrogate p is ever computed and this test could never pass. Set surrogates (at least 99) in the series settings first.`];
-    else if (level < floor) fields[field] = [`With ${N} surrogates the smallest surrogate p is 1/${N + 1} = ${floor.toPrecision(2)}, above ${level}: this test could never pass. Run at least ${Math.ceil(1 / level - 1)} surrogates.`];
+    if (N === 0)
+      fields[field] = [
+        `${series.name} runs no surrogates, so no surrogate p is ever computed and this test could never pass. Set surrogates (at least 99) in the series settings first.`,
+      ];
+    else if (level < floor)
+      fields[field] = [
+        `With ${N} surrogates the smallest surrogate p is 1/${N + 1} = ${floor.toPrecision(2)}, above ${level}: this test could never pass. Run at least ${Math.ceil(1 / level - 1)} surrogates.`,
+      ];
   }
   const latest = await AnalysisSnapshot.findOne({ where: { seriesId }, order: [['id', 'DESC']], attributes: ['id', 'status', 'error'], transaction });
   if (latest?.status === 'error' && latest.error && /too short/i.test(latest.error))
@@ -124,7 +139,18 @@ async function assertJudgeable(seriesId: number, rule: Criteria, transaction: Tr
 }
 
 /** Fields whose change makes the previous calibration describe another procedure. */
-const CALIBRATED_FIELDS = ['indicator', 'direction', 'minTau', 'maxSurrogateP', 'levelThreshold', 'levelDirection', 'persistence', 'quietPeriodHours', 'fdrLevel', 'active'] as const;
+const CALIBRATED_FIELDS = [
+  'indicator',
+  'direction',
+  'minTau',
+  'maxSurrogateP',
+  'levelThreshold',
+  'levelDirection',
+  'persistence',
+  'quietPeriodHours',
+  'fdrLevel',
+  'active',
+] as const;
 
 /** Rules of one series, or the defaults for new series when `seriesId` is null. */
 export async function listRules(seriesId: number | null): Promise<AlertRule[]> {
@@ -141,7 +167,16 @@ export async function createRule(seriesId: number | null, input: RuleCreateInput
   return writeTransaction(async (transaction) => {
     if (seriesId !== null) await assertJudgeable(seriesId, fields, transaction);
     const rule = await AlertRule.create({ ...fields, seriesId, createdBy: actor.id }, { transaction });
-    await recordAudit({ actorId: actor.id, action: seriesId === null ? 'rule.default.create' : 'rule.create', entity: 'alert_rule', entityId: rule.id, details: { seriesId, ...fields } }, transaction);
+    await recordAudit(
+      {
+        actorId: actor.id,
+        action: seriesId === null ? 'rule.default.create' : 'rule.create',
+        entity: 'alert_rule',
+        entityId: rule.id,
+        details: { seriesId, ...fields },
+      },
+      transaction,
+    );
     if (seriesId !== null && rule.active) await queueRuleCalibration(rule.id, actor, transaction);
     return rule;
   });
@@ -181,7 +216,10 @@ export async function deleteRule(id: number, actor: Pick<Actor, 'id'>): Promise<
       await BacktestJob.destroy({ where: { ruleId: id }, transaction });
       await rule.destroy({ transaction });
     }
-    await recordAudit({ actorId: actor.id, action: hasAlerts ? 'rule.deactivate' : 'rule.delete', entity: 'alert_rule', entityId: id, details: presentRule(rule) }, transaction);
+    await recordAudit(
+      { actorId: actor.id, action: hasAlerts ? 'rule.deactivate' : 'rule.delete', entity: 'alert_rule', entityId: id, details: presentRule(rule) },
+      transaction,
+    );
     return { deleted: !hasAlerts, deactivated: hasAlerts };
   });
 }
@@ -213,7 +251,16 @@ export async function ruleStatuses(seriesId: number) {
       rule,
       standing: standingOf(e),
       latest: e
-        ? { snapshotId: e.snapshotId, at: e.createdAt.toISOString(), outcome: e.outcome, direction: e.direction ?? 'rising', tau: e.tau, surrogateP: e.surrogateP, qValue: e.qValue, streak: e.streak }
+        ? {
+            snapshotId: e.snapshotId,
+            at: e.createdAt.toISOString(),
+            outcome: e.outcome,
+            direction: e.direction ?? 'rising',
+            tau: e.tau,
+            surrogateP: e.surrogateP,
+            qValue: e.qValue,
+            streak: e.streak,
+          }
         : null,
     };
   });

@@ -71,7 +71,8 @@ export async function applyTriageAction(alertId: number, input: TriageActionInpu
       throw new ConflictError(`The alert changed since you loaded it (it is now ${alert.state}). Reload and decide again.`);
     const minimum = rule.from[alert.state];
     if (minimum === undefined) throw new ConflictError(`An alert that is ${alert.state} cannot be ${pastTense(command.action)}.`);
-    if (!roleAtLeast(actor.role, minimum)) throw new ForbiddenError(`To ${command.action} an alert that is ${alert.state} needs the ${minimum} role or higher.`);
+    if (!roleAtLeast(actor.role, minimum))
+      throw new ForbiddenError(`To ${command.action} an alert that is ${alert.state} needs the ${minimum} role or higher.`);
 
     let assigneeId = alert.assigneeId;
     if (command.action === 'acknowledge') assigneeId = actor.id;
@@ -83,7 +84,10 @@ export async function applyTriageAction(alertId: number, input: TriageActionInpu
     }
     // Abrupt-shift alerts have no rule: each is one shift, and several may be open at once.
     if (command.action === 'reopen' && alert.ruleId !== null) {
-      const other = await Alert.findOne({ where: { seriesId: alert.seriesId, ruleId: alert.ruleId, state: { [Op.in]: [...OPEN_ALERT_STATES] }, id: { [Op.ne]: alert.id } }, transaction });
+      const other = await Alert.findOne({
+        where: { seriesId: alert.seriesId, ruleId: alert.ruleId, state: { [Op.in]: [...OPEN_ALERT_STATES] }, id: { [Op.ne]: alert.id } },
+        transaction,
+      });
       if (other) throw new ConflictError(`Alert #${other.id} for the same series and rule is open; work on that one instead.`);
     }
     const to = rule.to(alert);
@@ -111,14 +115,29 @@ export async function applyTriageAction(alertId: number, input: TriageActionInpu
     );
     if (updated.length !== 1) throw new ConflictError('Someone else changed this alert at the same moment. Reload and decide again.');
     const event = await AlertEvent.create(
-      { alertId: alert.id, actorId: actor.id, action: command.action, fromState: alert.state, toState: to, reason: command.reason ?? null, detail: command.note || (command.action === 'assign' ? `Assigned to user #${assigneeId}.` : null) },
+      {
+        alertId: alert.id,
+        actorId: actor.id,
+        action: command.action,
+        fromState: alert.state,
+        toState: to,
+        reason: command.reason ?? null,
+        detail: command.note || (command.action === 'assign' ? `Assigned to user #${assigneeId}.` : null),
+      },
       { transaction },
     );
     await recordAudit(
-      { actorId: actor.id, action: `alert.${command.action}`, entity: 'alert', entityId: alert.id, details: { from: alert.state, to, reason: command.reason ?? null, assigneeId } },
+      {
+        actorId: actor.id,
+        action: `alert.${command.action}`,
+        entity: 'alert',
+        entityId: alert.id,
+        details: { from: alert.state, to, reason: command.reason ?? null, assigneeId },
+      },
       transaction,
     );
-    const webhookEvent = command.action === 'escalate' ? 'alert.escalated' : command.action === 'confirm' || command.action === 'dismiss' ? 'alert.decided' : null;
+    const webhookEvent =
+      command.action === 'escalate' ? 'alert.escalated' : command.action === 'confirm' || command.action === 'dismiss' ? 'alert.decided' : null;
     const evidence = webhookEvent ? await alertEvidence(alert, transaction) : null;
     if (webhookEvent && evidence) {
       const change = { eventId: event.id, by: actor.name, state: to, note: command.note || null, reason: command.reason ?? null };
@@ -145,8 +164,10 @@ function pastTense(action: TriageAction): string {
 type Options = { version?: number; note?: string };
 
 export const acknowledgeAlert = (id: number, actor: Actor, options: Options = {}) => applyTriageAction(id, { action: 'acknowledge', ...options }, actor);
-export const assignAlert = (id: number, assignee: number, actor: Actor, options: Options = {}) => applyTriageAction(id, { action: 'assign', assignee, ...options }, actor);
+export const assignAlert = (id: number, assignee: number, actor: Actor, options: Options = {}) =>
+  applyTriageAction(id, { action: 'assign', assignee, ...options }, actor);
 export const escalateAlert = (id: number, actor: Actor, options: Options = {}) => applyTriageAction(id, { action: 'escalate', ...options }, actor);
 export const confirmAlert = (id: number, actor: Actor, options: Options = {}) => applyTriageAction(id, { action: 'confirm', ...options }, actor);
-export const dismissAlert = (id: number, reason: DismissReason, actor: Actor, options: Options = {}) => applyTriageAction(id, { action: 'dismiss', reason, ...options }, actor);
+export const dismissAlert = (id: number, reason: DismissReason, actor: Actor, options: Options = {}) =>
+  applyTriageAction(id, { action: 'dismiss', reason, ...options }, actor);
 export const reopenAlert = (id: number, actor: Actor, options: Options = {}) => applyTriageAction(id, { action: 'reopen', ...options }, actor);

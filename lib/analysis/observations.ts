@@ -37,7 +37,10 @@ export async function loadObservations(seriesId: number, range: ObservationRange
 }
 
 /** Every point of a series in time order with its QARTOD flag (what the observations API and the record chart show). O(n). */
-export async function loadFlaggedObservations(seriesId: number, range: ObservationRange = {}): Promise<{ time: Float64Array; value: Float64Array; flag: Uint8Array }> {
+export async function loadFlaggedObservations(
+  seriesId: number,
+  range: ObservationRange = {},
+): Promise<{ time: Float64Array; value: Float64Array; flag: Uint8Array }> {
   const { time, value, flag } = await readPacked(await rawReadConnection(), seriesId, range, null);
   return { time, value, flag: flag! };
 }
@@ -68,11 +71,7 @@ async function readPacked(connection: Database, seriesId: number, range: Observa
   for (;;) {
     const want = Math.min(PACKED_ROWS, range.limit === undefined ? PACKED_ROWS : range.limit - total);
     if (want <= 0) break;
-    const [chunk] = await allRows<{ n: number; last: number | null; packed: string | null }>(
-      connection,
-      sql,
-      [bounds[0], after, ...bounds.slice(1), want],
-    );
+    const [chunk] = await allRows<{ n: number; last: number | null; packed: string | null }>(connection, sql, [bounds[0], after, ...bounds.slice(1), want]);
     if (!chunk.n || chunk.packed === null) break;
     const records = chunk.packed.split(';');
     const time = new Float64Array(records.length);

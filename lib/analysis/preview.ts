@@ -8,7 +8,6 @@ import { PREVIEW_MAX_SURROGATES } from './preview-limits';
 import { seriesBreaks } from './snapshot';
 import { viewFromResult, type AnalysisView } from './view';
 
-
 /** Caps the cost of a what-if run so one request cannot occupy the server. */
 export function boundedSettings(settings: AnalysisSettings): AnalysisSettings {
   return { ...settings, surrogates: Math.min(settings.surrogates, PREVIEW_MAX_SURROGATES) };
@@ -20,16 +19,11 @@ export function boundedSettings(settings: AnalysisSettings): AnalysisSettings {
  * short, gaps) becomes a 422 the form can show.
  */
 export async function analyseStored(series: Series, settings: AnalysisSettings, options: { to?: number } = {}) {
-  const [{ time, value }, breaks] = await Promise.all([
-    loadObservations(series.id, { to: options.to }),
-    seriesBreaks(series.id, { to: options.to ?? null }),
-  ]);
+  const [{ time, value }, breaks] = await Promise.all([loadObservations(series.id, { to: options.to }), seriesBreaks(series.id, { to: options.to ?? null })]);
   try {
-    return await runAnalysis(
-      { time, value, intervalMs: series.intervalMs === null ? undefined : Number(series.intervalMs), breaks },
-      settings,
-      { parallel: false },
-    );
+    return await runAnalysis({ time, value, intervalMs: series.intervalMs === null ? undefined : Number(series.intervalMs), breaks }, settings, {
+      parallel: false,
+    });
   } catch (error) {
     if (error instanceof AnalysisInputError) throw new UnprocessableError(error.message);
     throw error;

@@ -34,7 +34,10 @@ async function contributingRuns(seriesId: number, from: number, to: number): Pro
     { replacements: { seriesId, from, to }, type: QueryTypes.SELECT },
   );
   return {
-    ingestRuns: groups.filter((g) => g.run !== null).map((g) => Number(g.run)).sort((a, b) => a - b),
+    ingestRuns: groups
+      .filter((g) => g.run !== null)
+      .map((g) => Number(g.run))
+      .sort((a, b) => a - b),
     rowsWithoutRun: groups.filter((g) => g.run === null).reduce((sum, g) => sum + Number(g.rows), 0),
   };
 }
@@ -76,10 +79,14 @@ export interface SnapshotDataDownload {
  */
 export async function snapshotDataCsv(snapshotId: number): Promise<SnapshotDataDownload> {
   await db();
-  const snapshot = await AnalysisSnapshot.findByPk(snapshotId, { attributes: ['id', 'seriesId', 'settings', 'status', 'dataFrom', 'dataTo', 'provenance', 'createdAt'] });
+  const snapshot = await AnalysisSnapshot.findByPk(snapshotId, {
+    attributes: ['id', 'seriesId', 'settings', 'status', 'dataFrom', 'dataTo', 'provenance', 'createdAt'],
+  });
   if (!snapshot) throw new NotFoundError('Analysis');
   if (!snapshot.provenance || snapshot.dataFrom === null || snapshot.dataTo === null) {
-    throw new ConflictError('This analysis was stored before Brinkwatch recorded which data an analysis saw, so its data cannot be handed out as analysed. A newer analysis of the series can.');
+    throw new ConflictError(
+      'This analysis was stored before Brinkwatch recorded which data an analysis saw, so its data cannot be handed out as analysed. A newer analysis of the series can.',
+    );
   }
   const series = await Series.findByPk(snapshot.seriesId, { attributes: ['id', 'slug', 'name', 'timeZone'] });
   if (!series) throw new NotFoundError('Series');
@@ -98,7 +105,11 @@ export async function snapshotDataCsv(snapshotId: number): Promise<SnapshotDataD
     `# input: ${JSON.stringify(input)}`,
     `# provenance: ${JSON.stringify(provenance)}`,
     `# reproduce: ${reproduceCommand(fileName)}   (engine version ${provenance.engineVersion}; check the data with: grep -v '^#' ${fileName} | sha256sum)`,
-    ...(matches ? [] : ['# warning: values in this range were replaced after the analysis; the rows below are today\u2019s and do not hash to dataSha256, so they will not reproduce its numbers']),
+    ...(matches
+      ? []
+      : [
+          '# warning: values in this range were replaced after the analysis; the rows below are today\u2019s and do not hash to dataSha256, so they will not reproduce its numbers',
+        ]),
     `# caution: ${ANALYSIS_CAUTION}`,
   ];
   return { fileName, csv: `${head.join('\n')}\n${body}`, matches };

@@ -52,7 +52,15 @@ export async function seriesBreaks(
   if (range.from !== undefined) at[Op.gt] = range.from;
   if (range.to !== undefined && range.to !== null) at[Op.lte] = range.to;
   const where = Object.getOwnPropertySymbols(at).length ? { seriesId, at } : { seriesId };
-  const marks = await Mark.findAll({ where, attributes: ['at', 'kind'], order: [['at', 'ASC'], ['id', 'ASC']], transaction });
+  const marks = await Mark.findAll({
+    where,
+    attributes: ['at', 'kind'],
+    order: [
+      ['at', 'ASC'],
+      ['id', 'ASC'],
+    ],
+    transaction,
+  });
   return marks.map((mark) => ({ time: Number(mark.at), kind: mark.kind }));
 }
 
@@ -63,7 +71,11 @@ export async function seriesBreaks(
  * after gridding, not this read, decides where the span starts. Everything when there is no span or no declared
  * interval (the engine then infers it from all the data). O(1) queries.
  */
-export async function spanReadRange(seriesId: number, settings: AnalysisSettings, intervalMs: number | undefined): Promise<{ range: ObservationRange; last: number | null }> {
+export async function spanReadRange(
+  seriesId: number,
+  settings: AnalysisSettings,
+  intervalMs: number | undefined,
+): Promise<{ range: ObservationRange; last: number | null }> {
   const extent = await observationExtent(seriesId);
   if (settings.span === null || intervalMs === undefined || extent.first === null || extent.last === null) return { range: {}, last: extent.last };
   const recordPoints = Math.floor((extent.last - extent.first) / intervalMs) + 1;
@@ -116,7 +128,8 @@ export async function refreshSeriesAnalysis(series: Series, options: { parallel?
       curves: null,
       chartView: null,
       status: 'error',
-      error: error instanceof AnalysisInputError ? error.message : `The analysis failed unexpectedly: ${error instanceof Error ? error.message : String(error)}`,
+      error:
+        error instanceof AnalysisInputError ? error.message : `The analysis failed unexpectedly: ${error instanceof Error ? error.message : String(error)}`,
       n,
       dataFrom,
       dataTo,

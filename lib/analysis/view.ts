@@ -69,7 +69,7 @@ function forChart(values: (number | null)[]): (number | null)[] {
 export function thinCurves(curves: CurveSet, maxPoints = MAX_CURVE_POINTS): CurveSet {
   const { stride, indices } = thinnedIndices(curves.time.length, maxPoints);
   if (stride === 1) return curves;
-  const pick = <T,>(a: T[]) => indices.map((i) => a[i]);
+  const pick = <T>(a: T[]) => indices.map((i) => a[i]);
   const indicators: CurveSet['indicators'] = {};
   for (const [name, values] of Object.entries(curves.indicators)) indicators[name] = thinIndicator(values, indices, curves.evaluatedEvery?.[name]);
   return {
@@ -116,7 +116,12 @@ export function buildView(
   settingsInput: unknown,
   summary: Pick<AnalysisSummary, 'n' | 'windowPoints' | 'bandwidthPoints' | 'interval'> & {
     kendall: Partial<Record<IndicatorName, { tau: number | null; p: number | null; direction?: TrendDirection }>>;
-    significance?: Partial<Record<IndicatorName, Omit<NonNullable<AnalysisSummary['significance'][IndicatorName]>, 'taus' | 'direction'> & { taus?: number[]; direction?: TrendDirection }>>;
+    significance?: Partial<
+      Record<
+        IndicatorName,
+        Omit<NonNullable<AnalysisSummary['significance'][IndicatorName]>, 'taus' | 'direction'> & { taus?: number[]; direction?: TrendDirection }
+      >
+    >;
     sensitivity?: SensitivityResult | null;
     quality?: ViewQuality | null;
     shifts?: AnalysisResult['shifts'];
@@ -137,17 +142,30 @@ export function buildView(
     const s = summary.significance?.[name];
     if (!s) continue;
     const taus = stored.surrogateTaus?.[name] ?? s.taus ?? [];
-    significance[name] = { p: s.p, count: s.count, method: s.method, direction: s.direction ?? UPPER_TAIL, bins: tauHistogram(taus, summary.kendall[name]?.tau ?? null) };
+    significance[name] = {
+      p: s.p,
+      count: s.count,
+      method: s.method,
+      direction: s.direction ?? UPPER_TAIL,
+      bins: tauHistogram(taus, summary.kendall[name]?.tau ?? null),
+    };
   }
   // The grid's axes are fractions of the analysed stretch; a window or bandwidth given in points or as a duration
   // is placed on them by the points it came to.
   const chosenWindow = typeof settings.window === 'number' ? settings.window : summary.windowPoints / summary.n;
-  const chosenBandwidth = typeof settings.bandwidth === 'number' ? settings.bandwidth : summary.bandwidthPoints === null ? null : summary.bandwidthPoints / summary.n;
+  const chosenBandwidth =
+    typeof settings.bandwidth === 'number' ? settings.bandwidth : summary.bandwidthPoints === null ? null : summary.bandwidthPoints / summary.n;
   const grid = stored.sensitivity ?? summary.sensitivity ?? null;
   const { surrogateTaus: _taus, sensitivity: _grid, ...thinned } = curves;
   const indicatorCurves: CurveSet['indicators'] = {};
   for (const name of indicators) indicatorCurves[name] = forChart(curves.indicators[name]!);
-  const chartCurves = { ...thinned, value: forChart(thinned.value), trend: forChart(thinned.trend), residual: forChart(thinned.residual), indicators: indicatorCurves };
+  const chartCurves = {
+    ...thinned,
+    value: forChart(thinned.value),
+    trend: forChart(thinned.trend),
+    residual: forChart(thinned.residual),
+    indicators: indicatorCurves,
+  };
   return {
     settings,
     n: summary.n,
@@ -160,7 +178,13 @@ export function buildView(
     kendall,
     significance,
     sensitivity: grid
-      ? { ...grid, chosen: { window: nearest(grid.windows, chosenWindow), bandwidth: grid.bandwidths && chosenBandwidth !== null ? nearest(grid.bandwidths, chosenBandwidth) : null } }
+      ? {
+          ...grid,
+          chosen: {
+            window: nearest(grid.windows, chosenWindow),
+            bandwidth: grid.bandwidths && chosenBandwidth !== null ? nearest(grid.bandwidths, chosenBandwidth) : null,
+          },
+        }
       : null,
     quality: summary.quality ?? null,
     shifts: summary.shifts ?? [],
@@ -196,5 +220,8 @@ export function viewFromSnapshot(snapshot: { settings: unknown; summary: unknown
   if (snapshot.status === 'error' || !snapshot.curves || !snapshot.summary) return null;
   const curves = snapshot.curves as Partial<CurveSet>;
   if (!Array.isArray(curves.time)) return null;
-  return buildView(snapshot.settings, snapshot.summary as Parameters<typeof buildView>[1], { ...(curves as CurveSet), surrogateTaus: curves.surrogateTaus ?? {} });
+  return buildView(snapshot.settings, snapshot.summary as Parameters<typeof buildView>[1], {
+    ...(curves as CurveSet),
+    surrogateTaus: curves.surrogateTaus ?? {},
+  });
 }

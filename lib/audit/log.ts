@@ -38,7 +38,12 @@ export async function fetchAuditPage(input: unknown): Promise<AuditPage> {
     items: rows.map((row) => {
       const actor = (row as AuditEntry & { actor?: User | null }).actor;
       return {
-        id: row.id, at: row.createdAt.toISOString(), action: row.action, entity: row.entity, entityId: row.entityId, details: row.details,
+        id: row.id,
+        at: row.createdAt.toISOString(),
+        action: row.action,
+        entity: row.entity,
+        entityId: row.entityId,
+        details: row.details,
         actor: actor ? { id: actor.id, name: actor.name, email: actor.email } : null,
       };
     }),

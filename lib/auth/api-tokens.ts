@@ -36,11 +36,18 @@ export type ApiTokenRecord = ReturnType<typeof presentApiToken>;
 /** Issues a token for the actor: 32 random bytes, base64url, shown once; only its SHA-256 is kept. Audited. */
 export async function issueApiToken(actor: Actor, input: ApiTokenCreate): Promise<{ id: number; token: string; role: Role }> {
   const role = input.role ?? actor.role;
-  if (!roleAtLeast(actor.role, role)) throw new UnprocessableError('A token cannot have a higher role than its owner.', { role: [`Choose ${actor.role} or lower.`] });
+  if (!roleAtLeast(actor.role, role))
+    throw new UnprocessableError('A token cannot have a higher role than its owner.', { role: [`Choose ${actor.role} or lower.`] });
   const token = `${PERSONAL_TOKEN_PREFIX}${crypto.randomBytes(32).toString('base64url')}`;
   return writeTransaction(async (transaction) => {
-    const row = await ApiToken.create({ userId: actor.id, name: input.name, tokenHash: hashOf(token), role, lastUsedAt: null, revokedAt: null }, { transaction });
-    await recordAudit({ actorId: actor.id, action: 'api-token.issue', entity: 'api-token', entityId: row.id, details: { name: input.name, role } }, transaction);
+    const row = await ApiToken.create(
+      { userId: actor.id, name: input.name, tokenHash: hashOf(token), role, lastUsedAt: null, revokedAt: null },
+      { transaction },
+    );
+    await recordAudit(
+      { actorId: actor.id, action: 'api-token.issue', entity: 'api-token', entityId: row.id, details: { name: input.name, role } },
+      transaction,
+    );
     return { id: row.id, token, role };
   });
 }
@@ -85,7 +92,11 @@ export async function bearerActor(authorization: string): Promise<Actor> {
     if (!token || token.revokedAt) return null;
     const owner = await User.findByPk(token.userId, { attributes: ['id', 'email', 'name', 'role', 'active'] });
     if (!owner || !owner.active) return null;
-    return { tokenId: token.id, lastUsedAt: token.lastUsedAt?.getTime() ?? null, actor: { id: owner.id, email: owner.email, name: owner.name, role: lowerRole(token.role, owner.role) } };
+    return {
+      tokenId: token.id,
+      lastUsedAt: token.lastUsedAt?.getTime() ?? null,
+      actor: { id: owner.id, email: owner.email, name: owner.name, role: lowerRole(token.role, owner.role) },
+    };
   });
   if (!found) throw new UnauthenticatedError('The token is not valid or has been revoked.');
   if (found.lastUsedAt === null || Date.now() - found.lastUsedAt > LAST_USE_RESOLUTION_MS) {

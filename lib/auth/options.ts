@@ -17,7 +17,10 @@ const SIGN_IN_ERRORS = {
  * pose as many).
  */
 function clientAddress(headers: Record<string, unknown> | undefined): string {
-  const forwarded = String(headers?.['x-forwarded-for'] ?? '').split(',').pop()!.trim();
+  const forwarded = String(headers?.['x-forwarded-for'] ?? '')
+    .split(',')
+    .pop()!
+    .trim();
   return forwarded || String(headers?.['x-real-ip'] ?? 'local');
 }
 
@@ -29,7 +32,9 @@ export const authOptions: NextAuthOptions = {
       name: 'Brinkwatch account',
       credentials: { email: { label: 'E-mail', type: 'email' }, password: { label: 'Password', type: 'password' } },
       async authorize(credentials, request) {
-        const email = String(credentials?.email ?? '').trim().toLowerCase();
+        const email = String(credentials?.email ?? '')
+          .trim()
+          .toLowerCase();
         const password = String(credentials?.password ?? '');
         if (!email || !password) return null;
         const keys = throttleKeys(email, clientAddress(request?.headers as Record<string, unknown> | undefined));

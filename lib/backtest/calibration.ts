@@ -1,7 +1,17 @@
 import { makeSurrogate, type SurrogateJob } from '@/lib/engine/surrogates';
 import { simulateRestoring, type RestoringModel } from './fold';
 import type { AnalysisSettings } from '@/lib/engine/settings';
-import { alarmOnsets, firingStatistic, prefixSurrogateChecker, replayStretches, shiftCuts, stepSpans, type RecordQuality, type ReplayGeometry, type ReplayRule } from './replay';
+import {
+  alarmOnsets,
+  firingStatistic,
+  prefixSurrogateChecker,
+  replayStretches,
+  shiftCuts,
+  stepSpans,
+  type RecordQuality,
+  type ReplayGeometry,
+  type ReplayRule,
+} from './replay';
 
 /** Where the residual of each replicate comes from: a surrogate of the record, or a fitted restoring model. */
 export type ReplicateSource = { kind: 'surrogate'; job: SurrogateJob } | { kind: 'restoring'; model: RestoringModel; seed: number };
@@ -67,7 +77,12 @@ export function calibrateChunk(task: CalibrationTask, from: number, to: number, 
     out.statistic[i - from] = firingStatistic(evidence, task.rule, first);
     const checker =
       task.liveSurrogateP && task.rule.maxSurrogateP !== null
-        ? prefixSurrogateChecker(residuals, record, evidence, task.rule, g, { budget: task.budget, decisionOnly: true, seed: g.seed + (i + 1) * 104_729, quality: task.quality })
+        ? prefixSurrogateChecker(residuals, record, evidence, task.rule, g, {
+            budget: task.budget,
+            decisionOnly: true,
+            seed: g.seed + (i + 1) * 104_729,
+            quality: task.quality,
+          })
         : null;
     const report = alarmOnsets(evidence, task.rule, task.rule.minTau, checker?.check ?? (() => ({ p: null, passed: true })));
     const spans = stepSpans(evidence, g);

@@ -80,7 +80,17 @@ export function fitRestoringModel(x: Float64Array, options: { constant?: boolean
     let moved = true;
     while (moved) {
       moved = false;
-      const moves = options.constant ? [[step, 0], [-step, 0]] : [[step, 0], [-step, 0], [0, step], [0, -step]];
+      const moves = options.constant
+        ? [
+            [step, 0],
+            [-step, 0],
+          ]
+        : [
+            [step, 0],
+            [-step, 0],
+            [0, step],
+            [0, -step],
+          ];
       for (const [da, db] of moves) {
         const a = Math.min(hi, Math.max(lo, best.a + da));
         const b = options.constant ? a : Math.min(hi, Math.max(lo, best.b + db));

@@ -29,7 +29,12 @@ const RULE_CALIBRATION = { every: 1, horizonDays: null, calibration: { surrogate
  * The parts of a stored rule a replay judges. `direction` is read when the rule record has it and falls back
  * to the indicator's own direction otherwise (rules stored before the field existed).
  */
-export function replayRuleOf(rule: Pick<AlertRule, 'indicator' | 'direction' | 'minTau' | 'maxKendallP' | 'maxSurrogateP' | 'levelThreshold' | 'levelDirection' | 'persistence' | 'quietPeriodHours'>): ReplayRule {
+export function replayRuleOf(
+  rule: Pick<
+    AlertRule,
+    'indicator' | 'direction' | 'minTau' | 'maxKendallP' | 'maxSurrogateP' | 'levelThreshold' | 'levelDirection' | 'persistence' | 'quietPeriodHours'
+  >,
+): ReplayRule {
   const indicator = rule.indicator as IndicatorName;
   return {
     indicator,
@@ -81,7 +86,8 @@ export async function requestBacktest(ruleId: number, request: BacktestRequest, 
   let seriesId = rule.seriesId;
   if (request.series !== undefined) {
     const series = await findSeriesBySlug(request.series);
-    if (rule.seriesId !== null && rule.seriesId !== series.id) throw new UnprocessableError('This rule belongs to another series.', { series: ['not the rule’s series'] });
+    if (rule.seriesId !== null && rule.seriesId !== series.id)
+      throw new UnprocessableError('This rule belongs to another series.', { series: ['not the rule’s series'] });
     seriesId = series.id;
   }
   if (seriesId === null) throw new UnprocessableError('A default rule needs a series to replay on.', { series: ['required for a default rule'] });
@@ -92,7 +98,12 @@ export async function requestBacktest(ruleId: number, request: BacktestRequest, 
         ruleId,
         seriesId: sid,
         kind: request.calibration ? 'calibration' : 'backtest',
-        params: { every: request.every, horizonDays: request.horizonDays, calibration: request.calibration, ...(request.draft ? { draft: request.draft } : {}) },
+        params: {
+          every: request.every,
+          horizonDays: request.horizonDays,
+          calibration: request.calibration,
+          ...(request.draft ? { draft: request.draft } : {}),
+        },
         result: null,
         error: null,
         createdBy: actor.id,
@@ -101,7 +112,10 @@ export async function requestBacktest(ruleId: number, request: BacktestRequest, 
       },
       { transaction },
     );
-    await recordAudit({ actorId: actor.id, action: 'backtest.request', entity: 'backtest_job', entityId: job.id, details: { ruleId, seriesId: sid, ...job.params } }, transaction);
+    await recordAudit(
+      { actorId: actor.id, action: 'backtest.request', entity: 'backtest_job', entityId: job.id, details: { ruleId, seriesId: sid, ...job.params } },
+      transaction,
+    );
     return job;
   });
 }
@@ -151,7 +165,13 @@ export async function saveRuleThreshold(ruleId: number, input: { threshold: numb
     const before = rule.minTau;
     await rule.update({ minTau: input.threshold }, { transaction });
     await recordAudit(
-      { actorId: actor.id, action: 'rule.threshold', entity: 'alert_rule', entityId: ruleId, details: { before, after: input.threshold, jobId: input.jobId, rocPoint } },
+      {
+        actorId: actor.id,
+        action: 'rule.threshold',
+        entity: 'alert_rule',
+        entityId: ruleId,
+        details: { before, after: input.threshold, jobId: input.jobId, rocPoint },
+      },
       transaction,
     );
     return rule;
@@ -177,16 +197,23 @@ export async function runNextBacktest(options: { threads?: number } = {}): Promi
     const now = Date.now();
     if (now - lastWrite < PROGRESS_EVERY_MS) return;
     lastWrite = now;
-    pending = pending.then(async () => {
-      await BacktestJob.update({ progress: Math.min(0.99, fraction) }, { where: { id: job.id } });
-      const fresh = await BacktestJob.findByPk(job.id, { attributes: ['cancelRequested'] });
-      if (fresh?.cancelRequested) controller.abort();
-    }).catch(() => undefined);
+    pending = pending
+      .then(async () => {
+        await BacktestJob.update({ progress: Math.min(0.99, fraction) }, { where: { id: job.id } });
+        const fresh = await BacktestJob.findByPk(job.id, { attributes: ['cancelRequested'] });
+        if (fresh?.cancelRequested) controller.abort();
+      })
+      .catch(() => undefined);
   };
   try {
     const [rule, series] = await Promise.all([AlertRule.findByPk(job.ruleId), Series.findByPk(job.seriesId)]);
     if (!rule || !series) throw new UnprocessableError('The rule or series of this backtest no longer exists.');
-    const params = job.params as { every?: number; horizonDays?: number | null; calibration?: { surrogates: number; method: 'ar1' | 'phase'; approaches?: number; budget?: number } | null; draft?: RuleFields };
+    const params = job.params as {
+      every?: number;
+      horizonDays?: number | null;
+      calibration?: { surrogates: number; method: 'ar1' | 'phase'; approaches?: number; budget?: number } | null;
+      draft?: RuleFields;
+    };
     const replayRule = replayRuleOf(params.draft ?? rule);
     const settings = analysisSettingsSchema.parse(series.settings);
     const { time, value } = await loadObservations(series.id);
@@ -251,13 +278,27 @@ export async function queueRuleCalibration(ruleId: number, actor: { id: number }
     if (rule.seriesId === null) return null;
     const waiting = await BacktestJob.findAll({ where: { ruleId, kind: 'calibration', status: 'queued' }, transaction: t });
     for (const old of waiting) {
-      if ((old.params as { ruleCalibration?: boolean }).ruleCalibration) await old.update({ status: 'cancelled', cancelRequested: true, finishedAt: new Date() }, { transaction: t });
+      if ((old.params as { ruleCalibration?: boolean }).ruleCalibration)
+        await old.update({ status: 'cancelled', cancelRequested: true, finishedAt: new Date() }, { transaction: t });
     }
     const job = await BacktestJob.create(
-      { ruleId, seriesId: rule.seriesId, kind: 'calibration', params: { ...RULE_CALIBRATION, ruleCalibration: true }, result: null, error: null, createdBy: actor?.id ?? null, startedAt: null, finishedAt: null },
+      {
+        ruleId,
+        seriesId: rule.seriesId,
+        kind: 'calibration',
+        params: { ...RULE_CALIBRATION, ruleCalibration: true },
+        result: null,
+        error: null,
+        createdBy: actor?.id ?? null,
+        startedAt: null,
+        finishedAt: null,
+      },
       { transaction: t },
     );
-    await recordAudit({ actorId: actor?.id ?? null, action: 'rule.calibration.queue', entity: 'backtest_job', entityId: job.id, details: { ruleId, seriesId: rule.seriesId } }, t);
+    await recordAudit(
+      { actorId: actor?.id ?? null, action: 'rule.calibration.queue', entity: 'backtest_job', entityId: job.id, details: { ruleId, seriesId: rule.seriesId } },
+      t,
+    );
     return job;
   };
   if (transaction) return work(transaction);
@@ -290,7 +331,10 @@ export async function latestRuleCalibration(ruleIds: number[]): Promise<Map<numb
   const current = new Map(rules.map((r) => [r.id, replayRuleOf(r)]));
   const seriesIds = [...new Set(jobs.map((j) => j.seriesId))];
   const settingsOf = new Map(
-    (await Series.findAll({ where: { id: { [Op.in]: seriesIds } }, attributes: ['id', 'settings'] })).map((x) => [x.id, JSON.stringify(analysisSettingsSchema.parse(x.settings))]),
+    (await Series.findAll({ where: { id: { [Op.in]: seriesIds } }, attributes: ['id', 'settings'] })).map((x) => [
+      x.id,
+      JSON.stringify(analysisSettingsSchema.parse(x.settings)),
+    ]),
   );
   for (const job of jobs) {
     if (out.has(job.ruleId) || !(job.params as { ruleCalibration?: boolean }).ruleCalibration) continue;

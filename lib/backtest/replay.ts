@@ -90,13 +90,7 @@ export function ruleDirectionOf(rule: { indicator: IndicatorName; direction?: st
  * that long (the span when one is set, else the whole record). `interval` is in the unit of time (ms for
  * 'utc-ms'). Throws AnalysisInputError where the live analysis would (e.g. a window of fewer than 8 points). O(1).
  */
-export function replayGeometry(
-  settings: AnalysisSettings,
-  recordPoints: number,
-  interval: number,
-  every: number,
-  kind: TimeKind = 'utc-ms',
-): ReplayGeometry {
+export function replayGeometry(settings: AnalysisSettings, recordPoints: number, interval: number, every: number, kind: TimeKind = 'utc-ms'): ReplayGeometry {
   const offset = settings.detrend === 'difference' ? 1 : 0;
   const nRef = spanPoints(settings.span, recordPoints, interval, kind);
   const w = windowPoints(settings.window, nRef - offset, interval, kind);
@@ -117,7 +111,6 @@ export function replayGeometry(
     minCoverage: settings.minCoverage,
   };
 }
-
 
 /**
  * Point-in-time residuals: each point detrended with the trend of the record available when it arrived,
@@ -151,7 +144,10 @@ export function pointInTimeResiduals(x: Float64Array, g: Pick<ReplayGeometry, 'd
       r[i] = x[i] - acc.mean();
     }
   } else if (g.detrend === 'linear') {
-    let mx = 0, my = 0, cxx = 0, cxy = 0;
+    let mx = 0,
+      my = 0,
+      cxx = 0,
+      cxy = 0;
     for (let i = 0; i < n; i++) {
       const k = i + 1;
       const dx = i - mx;
@@ -609,16 +605,42 @@ export function replayStretches(
   const lengths = parts.map((e) => e.index.length);
   const from = Int32Array.from(lengths.flatMap((k, i) => new Array<number>(k).fill(froms[i])));
   const evidence: Evidence = {
-    index: concat(parts.map((e) => e.index), Int32Array),
-    time: concat(parts.map((e) => e.time), Float64Array),
-    tau: concat(parts.map((e) => e.tau), Float64Array),
-    p: concat(parts.map((e) => e.p), Float64Array),
-    level: concat(parts.map((e) => e.level), Float64Array),
-    count: concat(parts.map((e) => e.count), Int32Array),
+    index: concat(
+      parts.map((e) => e.index),
+      Int32Array,
+    ),
+    time: concat(
+      parts.map((e) => e.time),
+      Float64Array,
+    ),
+    tau: concat(
+      parts.map((e) => e.tau),
+      Float64Array,
+    ),
+    p: concat(
+      parts.map((e) => e.p),
+      Float64Array,
+    ),
+    level: concat(
+      parts.map((e) => e.level),
+      Float64Array,
+    ),
+    count: concat(
+      parts.map((e) => e.count),
+      Int32Array,
+    ),
     from,
   };
-  if (parts.some((e) => e.covered)) evidence.covered = concat(parts.map((e) => e.covered ?? new Uint8Array(e.index.length).fill(1)), Uint8Array);
-  if (parts.some((e) => e.inFlatRun)) evidence.inFlatRun = concat(parts.map((e) => e.inFlatRun ?? new Uint8Array(e.index.length)), Uint8Array);
+  if (parts.some((e) => e.covered))
+    evidence.covered = concat(
+      parts.map((e) => e.covered ?? new Uint8Array(e.index.length).fill(1)),
+      Uint8Array,
+    );
+  if (parts.some((e) => e.inFlatRun))
+    evidence.inFlatRun = concat(
+      parts.map((e) => e.inFlatRun ?? new Uint8Array(e.index.length)),
+      Uint8Array,
+    );
   return { residuals, evidence };
 }
 

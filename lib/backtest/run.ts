@@ -25,8 +25,7 @@ import {
   type ReplayRule,
 } from './replay';
 
-const BACKTEST_CAUTION =
-  'A backtest is evidence of how this rule would have behaved on past data, not a guarantee of how it will behave. ' + ANALYSIS_CAUTION;
+const BACKTEST_CAUTION = 'A backtest is evidence of how this rule would have behaved on past data, not a guarantee of how it will behave. ' + ANALYSIS_CAUTION;
 
 const YEAR_MS = 365.25 * 86_400_000;
 /** Stored evidence curves are thinned to at most this many instants (the statistics use every instant). */
@@ -212,13 +211,20 @@ function thin(ev: Evidence): BacktestResult['evidence'] {
 }
 
 function modelReport(m: RestoringModel): ModelReport {
-  return { restoringRateStart: m.k0, restoringRateEnd: m.k1, phiStart: Math.exp(-m.k0), phiEnd: Math.exp(-m.k1), sigma: m.sigma, logLikelihood: m.logLikelihood };
+  return {
+    restoringRateStart: m.k0,
+    restoringRateEnd: m.k1,
+    phiStart: Math.exp(-m.k0),
+    phiEnd: Math.exp(-m.k1),
+    sigma: m.sigma,
+    logLikelihood: m.logLikelihood,
+  };
 }
 
 /** Runs of consecutive step numbers as time stretches. O(k). */
 function stretches(steps: Int32Array, time: Float64Array): { from: number; to: number; steps: number }[] {
   const out: { from: number; to: number; steps: number }[] = [];
-  for (let a = 0; a < steps.length; ) {
+  for (let a = 0; a < steps.length;) {
     let b = a;
     while (b + 1 < steps.length && steps[b + 1] === steps[b] + 1) b++;
     out.push({ from: time[steps[a]], to: time[steps[b]], steps: b - a + 1 });
@@ -235,7 +241,12 @@ const METHOD =
  * stretch, as the live analysis detrends only its stretch). Not for differencing (one point fewer per stretch).
  * O(n log n).
  */
-function detrendByStretch(x: Float64Array, cuts: number[], method: DetrendMethod, opts: { bandwidthPoints: number; movingAverageWidth: number }): { trend: Float64Array; residual: Float64Array } {
+function detrendByStretch(
+  x: Float64Array,
+  cuts: number[],
+  method: DetrendMethod,
+  opts: { bandwidthPoints: number; movingAverageWidth: number },
+): { trend: Float64Array; residual: Float64Array } {
   const bounds = [0, ...[...new Set(cuts)].filter((c) => c > 0 && c < x.length).sort((a, b) => a - b), x.length];
   const trend = new Float64Array(x.length);
   const residual = new Float64Array(x.length);
@@ -286,7 +297,10 @@ export async function runBacktest(
   // where the replayed stretch restarts, and why (a mark names the reason before a shift at the same point, as in the engine)
   const restartAt = new Map<number, { reason: Restart['reason']; knownFrom: number }>();
   for (const c of shifts) if (c.index > 0) restartAt.set(c.index, { reason: 'shift', knownFrom: c.knownFrom });
-  for (const [list, reason] of [[maintenanceCuts, 'maintenance'], [tippingPointCuts, 'tipping-point']] as const) {
+  for (const [list, reason] of [
+    [maintenanceCuts, 'maintenance'],
+    [tippingPointCuts, 'tipping-point'],
+  ] as const) {
     for (const c of list) if (c > 0 && c < x.length) restartAt.set(c, { reason, knownFrom: c });
   }
   const restarts: Restart[] = [...restartAt]
@@ -313,7 +327,15 @@ export async function runBacktest(
 
   const alarms: AlarmRecord[] = onsets.map((o) => {
     const c = classify(o.time);
-    return { time: o.time, tau: o.tau, orientedTau: orientedTau(o.tau, direction), p: o.p, surrogateP: o.surrogateP, kind: c.kind, tippingPointAt: c.j >= 0 ? marks[c.j].at : null };
+    return {
+      time: o.time,
+      tau: o.tau,
+      orientedTau: orientedTau(o.tau, direction),
+      p: o.p,
+      surrogateP: o.surrogateP,
+      kind: c.kind,
+      tippingPointAt: c.j >= 0 ? marks[c.j].at : null,
+    };
   });
 
   const spans = stepSpans(ev, g);
@@ -370,10 +392,15 @@ export async function runBacktest(
     // Maintenance breaks and shifts inside the record before the first tipping point: detrended stretch by stretch, so a jump
     // stays in the trend the replicates share and never inflates the residual their surrogates copy.
     const preBreaks = breakCuts.filter((c) => c > 0 && c < nPre);
-    const d = detrendByStretch(pre, [...preBreaks, ...shifts.map((c) => c.index).filter((c) => c < nPre)], settings.detrend === 'difference' ? 'none' : settings.detrend, {
-      bandwidthPoints: g.h,
-      movingAverageWidth: g.movingAverageWidth,
-    });
+    const d = detrendByStretch(
+      pre,
+      [...preBreaks, ...shifts.map((c) => c.index).filter((c) => c < nPre)],
+      settings.detrend === 'difference' ? 'none' : settings.detrend,
+      {
+        bandwidthPoints: g.h,
+        movingAverageWidth: g.movingAverageWidth,
+      },
+    );
     const method = input.calibration.method;
     const job = prepareSurrogateJob(d.residual, pre, { method, seed: settings.seed, w: g.w, dt: g.dt, indicators: [rule.indicator] });
     job.rawMean = null;
@@ -383,14 +410,23 @@ export async function runBacktest(
     const base = {
       trend: d.trend,
       time: preTime,
-      quality: { observed: prepared.observed.slice(0, nPre), flat: prepared.flat.map((r) => ({ start: r.start, end: Math.min(r.end, nPre) })).filter((r) => r.start < r.end) },
+      quality: {
+        observed: prepared.observed.slice(0, nPre),
+        flat: prepared.flat.map((r) => ({ start: r.start, end: Math.min(r.end, nPre) })).filter((r) => r.start < r.end),
+      },
       breaks: preBreaks,
       shiftDetection: settings.shiftDetection,
       rule,
       geometry: g,
     };
     const surrogateRuns = await runCalibration(
-      { ...base, source: { kind: 'surrogate', job }, scoreFrom: Number.NEGATIVE_INFINITY, liveSurrogateP: true, budget: (input.calibration.budget ?? CALIBRATION_WORK_BUDGET) / N },
+      {
+        ...base,
+        source: { kind: 'surrogate', job },
+        scoreFrom: Number.NEGATIVE_INFINITY,
+        liveSurrogateP: true,
+        budget: (input.calibration.budget ?? CALIBRATION_WORK_BUDGET) / N,
+      },
       N,
       { threads, signal: options.signal, onProgress: (f) => options.onProgress?.(0.1 + 0.6 * f) },
     );
@@ -403,11 +439,11 @@ export async function runBacktest(
     const nullModel = fitRestoringModel(d.residual, { constant: true });
     const foldModel = fitRestoringModel(d.residual);
     const approach = (model: RestoringModel, seed: number, from: number, to: number) =>
-      runCalibration(
-        { ...base, source: { kind: 'restoring', model, seed }, scoreFrom: end - horizon, liveSurrogateP: false, budget: 0 },
-        M,
-        { threads, signal: options.signal, onProgress: (f) => options.onProgress?.(from + (to - from) * f) },
-      );
+      runCalibration({ ...base, source: { kind: 'restoring', model, seed }, scoreFrom: end - horizon, liveSurrogateP: false, budget: 0 }, M, {
+        threads,
+        signal: options.signal,
+        onProgress: (f) => options.onProgress?.(from + (to - from) * f),
+      });
     // distinct seeds for the two kinds, so null and fold replicates share no random numbers
     const nullRuns = await approach(nullModel, settings.seed * 2 + 1, 0.7, 0.85);
     const foldRuns = await approach(foldModel, settings.seed * 2 + 2, 0.85, 1);
@@ -468,7 +504,12 @@ export async function runBacktest(
       inFlatRun: report.inFlatRun,
       minCoverage: g.minCoverage,
     },
-    falseAlarms: { count: falseCount, exposureYears, perYear: exposureYears > 0 ? falseCount / exposureYears : null, interval: garwoodInterval(falseCount, exposureYears) },
+    falseAlarms: {
+      count: falseCount,
+      exposureYears,
+      perYear: exposureYears > 0 ? falseCount / exposureYears : null,
+      interval: garwoodInterval(falseCount, exposureYears),
+    },
     evidence: thin(ev),
     surrogateChecks: report.surrogateChecks,
     calibration,

@@ -43,9 +43,12 @@ export async function releaseLease(name: string, holder = PROCESS_HOLDER): Promi
 /** Runs `work` only while holding the lease, renewing it every ttl/3, and releases it afterwards. Null if not won. */
 export async function withLease<T>(name: string, ttlMs: number, work: () => Promise<T>): Promise<T | null> {
   if (!(await acquireLease(name, ttlMs))) return null;
-  const timer = setInterval(() => {
-    renewLease(name, ttlMs).catch(() => undefined);
-  }, Math.max(1000, Math.floor(ttlMs / 3)));
+  const timer = setInterval(
+    () => {
+      renewLease(name, ttlMs).catch(() => undefined);
+    },
+    Math.max(1000, Math.floor(ttlMs / 3)),
+  );
   try {
     return await work();
   } finally {

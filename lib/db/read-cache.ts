@@ -39,7 +39,11 @@ function state(): State {
   const file = databasePath();
   const current = holder.__brinkwatchReadCache;
   if (current && current.path === file) return current;
-  if (current) void current.probe.then((c) => c.close(), () => undefined);
+  if (current)
+    void current.probe.then(
+      (c) => c.close(),
+      () => undefined,
+    );
   const probe = openProbe(file);
   // A failed open is retried on the next read rather than remembered.
   probe.catch(() => {

@@ -88,7 +88,10 @@ export function feedCsv(points: FeedPoint[]): string {
 
 /** The feed's file name for a delivery: its first instant in ISO 8601 basic format, e.g. demo-feed-20310515T000000Z.csv. */
 function feedFileName(points: FeedPoint[]): string {
-  return `${FILE_PREFIX}${new Date(points[0].t).toISOString().replace(/[-:]/g, '').replace(/\.\d+Z$/, 'Z')}.csv`;
+  return `${FILE_PREFIX}${new Date(points[0].t)
+    .toISOString()
+    .replace(/[-:]/g, '')
+    .replace(/\.\d+Z$/, 'Z')}.csv`;
 }
 
 /**
@@ -191,7 +194,13 @@ async function push(slug: string, points: FeedPoint[], token: string, baseUrl: s
 }
 
 async function feedSeries(model: DemoFeedModel, now: number, baseUrl: string): Promise<FeedReport> {
-  const report = (outcome: FeedOutcome, points: FeedPoint[] = [], withheld = 0): FeedReport => ({ slug: model.slug, delivery: model.delivery, outcome, points, withheld });
+  const report = (outcome: FeedOutcome, points: FeedPoint[] = [], withheld = 0): FeedReport => ({
+    slug: model.slug,
+    delivery: model.delivery,
+    outcome,
+    points,
+    withheld,
+  });
   const series = await Series.findOne({ where: { slug: model.slug } });
   if (!series || series.retiredAt) return report('not-there');
   const extent = await observationExtent(series.id);

@@ -43,12 +43,7 @@ export interface ForcedRun {
  * Cost O(n·substeps). Source: Kloeden & Platen (1992), Numerical Solution of Stochastic Differential
  * Equations, Springer, Sec. 10.2.
  */
-export function eulerMaruyama(
-  drift: (x: number, t: number) => number,
-  diffusion: (x: number) => number,
-  x0: number,
-  grid: SdeGrid,
-): Float64Array {
+export function eulerMaruyama(drift: (x: number, t: number) => number, diffusion: (x: number) => number, x0: number, grid: SdeGrid): Float64Array {
   const { n, dt, substeps } = grid;
   if (!(n > 0 && dt > 0 && substeps >= 1)) throw new RangeError('eulerMaruyama needs n > 0, dt > 0 and substeps ≥ 1');
   const rng = new RandomStream(grid.seed, grid.stream ?? 0);

@@ -48,10 +48,34 @@ export const DEMO_SITES = {
  * ridge of one fictional basin), so the sites map has something to draw; no real station is meant.
  */
 export const DEMO_SITE_PLACES: readonly { name: string; latitude: number; longitude: number; timeZone: string; description: string }[] = [
-  { name: DEMO_SITES.mooring, latitude: 60.412, longitude: 5.118, timeZone: 'UTC', description: 'Subsurface mooring in the sound: salinity and temperature at depth (invented).' },
-  { name: DEMO_SITES.lake, latitude: 60.655, longitude: 5.604, timeZone: 'Europe/Oslo', description: 'Shallow-lake monitoring raft: oxygen and algal biomass (invented).' },
-  { name: DEMO_SITES.fen, latitude: 60.528, longitude: 5.893, timeZone: 'Europe/London', description: 'Fen vegetation plot with a water-table logger (invented).' },
-  { name: DEMO_SITES.ridge, latitude: 60.881, longitude: 6.247, timeZone: 'Europe/Helsinki', description: 'Ridge-top climate station: pressure and air temperature (invented).' },
+  {
+    name: DEMO_SITES.mooring,
+    latitude: 60.412,
+    longitude: 5.118,
+    timeZone: 'UTC',
+    description: 'Subsurface mooring in the sound: salinity and temperature at depth (invented).',
+  },
+  {
+    name: DEMO_SITES.lake,
+    latitude: 60.655,
+    longitude: 5.604,
+    timeZone: 'Europe/Oslo',
+    description: 'Shallow-lake monitoring raft: oxygen and algal biomass (invented).',
+  },
+  {
+    name: DEMO_SITES.fen,
+    latitude: 60.528,
+    longitude: 5.893,
+    timeZone: 'Europe/London',
+    description: 'Fen vegetation plot with a water-table logger (invented).',
+  },
+  {
+    name: DEMO_SITES.ridge,
+    latitude: 60.881,
+    longitude: 6.247,
+    timeZone: 'Europe/Helsinki',
+    description: 'Ridge-top climate station: pressure and air temperature (invented).',
+  },
 ];
 
 const HOUR_MS = 3_600_000;
@@ -131,10 +155,7 @@ const SLOWING_DOWN_RULES: DemoRule[] = [
 const HIGH_MEMORY_RULE = rule({ indicator: 'ac1', minTau: 0.3, maxSurrogateP: 0.05, levelThreshold: 0.9, severity: 'watch', quietPeriodHours: 48 });
 
 /** Controls carry the same rules as the watched records, so a firing on them shows the false-alarm rate. */
-const CONTROL_RULES: DemoRule[] = [
-  SLOWING_DOWN_RULES[0],
-  rule({ indicator: 'sd', minTau: 0.4, maxSurrogateP: 0.05, severity: 'watch', quietPeriodHours: 48 }),
-];
+const CONTROL_RULES: DemoRule[] = [SLOWING_DOWN_RULES[0], rule({ indicator: 'sd', minTau: 0.4, maxSurrogateP: 0.05, severity: 'watch', quietPeriodHours: 48 })];
 
 /**
  * Analysis settings every demo series shares, as a live series would run: 199 AR(1) surrogates (Benjamini–Hochberg
@@ -215,7 +236,8 @@ function foldMark(plan: SeriesPlan, run: ForcedRun, values: Float64Array): { ind
   const steps = jump - index;
   const unit = plan.intervalMs === DAY_MS ? 'day' : 'sample';
   const plural = (k: number) => `${k} ${unit}${k === 1 ? '' : 's'}`;
-  const when = jump < 0 ? 'only after the record ends' : steps === 0 ? 'at the fold instant' : steps > 0 ? `${plural(steps)} later` : `${plural(-steps)} earlier`;
+  const when =
+    jump < 0 ? 'only after the record ends' : steps === 0 ? 'at the fold instant' : steps > 0 ? `${plural(steps)} later` : `${plural(-steps)} earlier`;
   return { index, note: plan.tippingPoint!.note(when) };
 }
 
@@ -343,15 +365,26 @@ const PLANS: SeriesPlan[] = [
     rules: CONTROL_RULES,
     generate: (start) => {
       const x = simulateSeasonal({
-        n: 5000, ...LAKE_TEMPERATURE, phaseAtStart: lakePhase(start),
-        shortGapRate: 0.01, maxShortGap: 3, longGap: { start: 420, length: 21 }, seed: DEMO_SEED, stream: 4,
+        n: 5000,
+        ...LAKE_TEMPERATURE,
+        phaseAtStart: lakePhase(start),
+        shortGapRate: 0.01,
+        maxShortGap: 3,
+        longGap: { start: 420, length: 21 },
+        seed: DEMO_SEED,
+        stream: 4,
       });
       return { values: toUnits(x, 1, 2) };
     },
     delivery: 'drop',
     // The live points have no gaps: the logger outage and the short gaps belong to the record's past.
-    next: ar1Next(LAKE_TEMPERATURE.phi, LAKE_TEMPERATURE.sigma, 2, (index, start) =>
-      LAKE_TEMPERATURE.mean + LAKE_TEMPERATURE.amplitude * Math.sin(2 * Math.PI * (lakePhase(start) + index / LAKE_TEMPERATURE.samplesPerCycle))),
+    next: ar1Next(
+      LAKE_TEMPERATURE.phi,
+      LAKE_TEMPERATURE.sigma,
+      2,
+      (index, start) =>
+        LAKE_TEMPERATURE.mean + LAKE_TEMPERATURE.amplitude * Math.sin(2 * Math.PI * (lakePhase(start) + index / LAKE_TEMPERATURE.samplesPerCycle)),
+    ),
   },
   {
     slug: 'orlemere-oxygen-probe',

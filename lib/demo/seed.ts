@@ -52,9 +52,18 @@ async function fillSeries(series: Series, demo: DemoSeries, actorId: number | nu
     for (let from = 0; from < rows.length; from += OBSERVATIONS_PER_INSERT) {
       await Observation.bulkCreate(rows.slice(from, from + OBSERVATIONS_PER_INSERT), { transaction, validate: false, hooks: false });
     }
-    await AlertRule.bulkCreate(demo.rules.map((rule) => ({ ...rule, seriesId: series.id, active: true, createdBy: actorId })), { transaction });
-    await Mark.bulkCreate(demo.marks.map(({ at, note, kind }) => ({ seriesId: series.id, at, note, kind, createdBy: actorId })), { transaction });
-    await Watch.bulkCreate(watcherIds.map((userId) => ({ userId, seriesId: series.id, mode: 'immediate' as const })), { transaction });
+    await AlertRule.bulkCreate(
+      demo.rules.map((rule) => ({ ...rule, seriesId: series.id, active: true, createdBy: actorId })),
+      { transaction },
+    );
+    await Mark.bulkCreate(
+      demo.marks.map(({ at, note, kind }) => ({ seriesId: series.id, at, note, kind, createdBy: actorId })),
+      { transaction },
+    );
+    await Watch.bulkCreate(
+      watcherIds.map((userId) => ({ userId, seriesId: series.id, mode: 'immediate' as const })),
+      { transaction },
+    );
     await Series.update({ needsAnalysis: true, dataChangedAt: new Date() }, { where: { id: series.id }, transaction });
     return rows.length;
   });
@@ -110,9 +119,7 @@ export async function seedIfEmpty(options: { demo: boolean; password: string }):
   if (await readAppState(SEED_COMPLETED)) return false;
   const started = await readAppState(SEED_STARTED);
   if (!started && (await User.count()) > 0) return false;
-  const plan: { startedAt: string; demo: boolean } = started
-    ? JSON.parse(started.value)
-    : { startedAt: new Date().toISOString(), demo: options.demo };
+  const plan: { startedAt: string; demo: boolean } = started ? JSON.parse(started.value) : { startedAt: new Date().toISOString(), demo: options.demo };
   if (!started) await writeAppState(SEED_STARTED, JSON.stringify(plan));
   const users = await seedDemoUsers(options.password);
   if (plan.demo) {

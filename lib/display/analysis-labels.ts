@@ -38,7 +38,12 @@ export function indicatorLabel(name: string, form: 'sentence' | 'title' = 'sente
 }
 
 /** How a direction reads in words (mails, alert pages) — the one place they are written. */
-export const DIRECTION_WORDS: Record<TrendDirection | RuleDirection, string> = { rising: 'rising', falling: 'falling', 'two-sided': 'either way', either: 'either way' };
+export const DIRECTION_WORDS: Record<TrendDirection | RuleDirection, string> = {
+  rising: 'rising',
+  falling: 'falling',
+  'two-sided': 'either way',
+  either: 'either way',
+};
 const DIRECTION_ARROWS: Record<TrendDirection | RuleDirection, string> = { rising: '↑', falling: '↓', 'two-sided': '↕', either: '↕' };
 
 /** "rising ↑", "falling ↓" or "either way ↕". */

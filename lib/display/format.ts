@@ -19,9 +19,7 @@ export function formatP(p: number | null | undefined): string {
 export function formatValue(value: number | null | undefined, unit = ''): string {
   if (value === null || value === undefined || !Number.isFinite(value)) return '–';
   const abs = Math.abs(value);
-  const text = abs !== 0 && (abs >= 1e6 || abs < 1e-3)
-    ? value.toExponential(3).replace(/\.?0+e/, 'e')
-    : Number(value.toPrecision(4)).toString();
+  const text = abs !== 0 && (abs >= 1e6 || abs < 1e-3) ? value.toExponential(3).replace(/\.?0+e/, 'e') : Number(value.toPrecision(4)).toString();
   return unit ? `${text} ${unit}` : text;
 }
 

@@ -70,8 +70,8 @@ export function calendarTicks(from: number, to: number, timeZone: string, target
     const [y0, m0] = civilFromDays(Math.floor(start / DAY_MS));
     let index = y0 * 12 + (m0 - 1);
     if (start > daysFromCivil(y0, m0, 1) * DAY_MS) index++;
-    index += (((-index) % step.count) + step.count) % step.count;
-    for (;; index += step.count) {
+    index += ((-index % step.count) + step.count) % step.count;
+    for (; ; index += step.count) {
       const year = Math.floor(index / 12);
       const month = index - year * 12 + 1;
       const l = daysFromCivil(year, month, 1) * DAY_MS;
@@ -81,7 +81,7 @@ export function calendarTicks(from: number, to: number, timeZone: string, target
   } else {
     const [y0] = civilFromDays(Math.floor(start / DAY_MS));
     let year = y0 + (start > daysFromCivil(y0, 1, 1) * DAY_MS ? 1 : 0);
-    year += (((-year) % step.count) + step.count) % step.count;
+    year += ((-year % step.count) + step.count) % step.count;
     for (; daysFromCivil(year, 1, 1) * DAY_MS <= end; year += step.count) {
       boundaries.push({ local: daysFromCivil(year, 1, 1) * DAY_MS, label: String(year) });
     }

@@ -143,7 +143,8 @@ function stretchStart(
   for (const s of shifts) consider(s.index, 'shift', 1);
   for (const b of breaks) {
     if (!(b.time > time[0])) continue;
-    let lo = 0, hi = time.length;
+    let lo = 0,
+      hi = time.length;
     while (lo < hi) {
       const mid = (lo + hi) >> 1;
       if (time[mid] < b.time) lo = mid + 1;
@@ -208,7 +209,9 @@ export async function runAnalysis(input: AnalysisInput, settings: AnalysisSettin
   for (const [name, byName] of Object.entries(companionValues) as [IndicatorName, Record<string, Float64Array>][]) {
     companions[name] = Object.fromEntries(Object.entries(byName).map(([k, a]) => [k, toNullable(a)]));
   }
-  const evaluatedEvery: AnalysisResult['evaluatedEvery'] = Object.fromEntries(names.map((name) => [name, indicatorDefinition(name)!.kind === 'window' ? stride : 1]));
+  const evaluatedEvery: AnalysisResult['evaluatedEvery'] = Object.fromEntries(
+    names.map((name) => [name, indicatorDefinition(name)!.kind === 'window' ? stride : 1]),
+  );
 
   const indicators = lazyIndicators(values);
   const kendall: AnalysisResult['kendall'] = {};
@@ -221,7 +224,16 @@ export async function runAnalysis(input: AnalysisInput, settings: AnalysisSettin
 
   const significance: AnalysisResult['significance'] = {};
   if (settings.surrogates > 0) {
-    const job = prepareSurrogateJob(d.residual, raw, { method: settings.surrogateMethod, seed: settings.seed, w, dt, indicators: [...names], stride, observed, skip });
+    const job = prepareSurrogateJob(d.residual, raw, {
+      method: settings.surrogateMethod,
+      seed: settings.seed,
+      w,
+      dt,
+      indicators: [...names],
+      stride,
+      observed,
+      skip,
+    });
     const { taus } = await computeSurrogateTaus(job, settings.surrogates, { parallel: options.parallel });
     for (const name of names) {
       const direction = INDICATOR_DIRECTIONS[name];
@@ -246,7 +258,8 @@ export async function runAnalysis(input: AnalysisInput, settings: AnalysisSettin
   return {
     n,
     windowPoints: w,
-    bandwidthPoints: settings.detrend === 'gaussian' || settings.detrend === 'local-linear' ? h : settings.detrend === 'moving-average' ? settings.movingAverageWidth : null,
+    bandwidthPoints:
+      settings.detrend === 'gaussian' || settings.detrend === 'local-linear' ? h : settings.detrend === 'moving-average' ? settings.movingAverageWidth : null,
     dt,
     rateUnit: kind === 'utc-ms' ? 'per day' : 'per time unit',
     interval: prepared.interval,

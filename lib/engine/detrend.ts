@@ -69,7 +69,9 @@ export function gaussianKernelSums(h: number, L: number): { k0: Float64Array; k1
   const s0 = new Float64Array(L + 1);
   const s1 = new Float64Array(L + 1);
   const s2 = new Float64Array(L + 1);
-  let a0 = 0, a1 = 0, a2 = 0;
+  let a0 = 0,
+    a1 = 0,
+    a2 = 0;
   for (let d = 0; d <= L; d++) {
     k0[d] = Math.exp(-(d * d) / (2 * h * h));
     k1[d] = d * k0[d];

@@ -7,10 +7,7 @@ import type { TimeKind } from './time-kind';
  */
 export type Extent = number | string;
 
-export type ParsedExtent =
-  | { kind: 'fraction'; value: number }
-  | { kind: 'points'; value: number }
-  | { kind: 'duration'; ms: number };
+export type ParsedExtent = { kind: 'fraction'; value: number } | { kind: 'points'; value: number } | { kind: 'duration'; ms: number };
 
 const DAY_MS = 86_400_000;
 /** Mean Gregorian year (146,097 days / 400 years) and month (its twelfth), so a duration has one length wherever it falls. */

@@ -91,7 +91,8 @@ function fftPow2(re: Float64Array, im: Float64Array, inverse = false): void {
   let done = 1;
   if (Math.log2(n) % 2 === 1) {
     for (let a = 0; a < n; a += 2) {
-      const br = re[a + 1], bi = im[a + 1];
+      const br = re[a + 1],
+        bi = im[a + 1];
       re[a + 1] = re[a] - br;
       im[a + 1] = im[a] - bi;
       re[a] += br;
@@ -107,19 +108,36 @@ function fftPow2(re: Float64Array, im: Float64Array, inverse = false): void {
     const s2 = n / (4 * q);
     for (let start = 0; start < n; start += 4 * q) {
       for (let k = 0; k < q; k++) {
-        const w1r = cos[k * s1], w1i = sign * sin[k * s1];
-        const w2r = cos[k * s2], w2i = sign * sin[k * s2];
-        const a0 = start + k, a1 = a0 + q, a2 = a1 + q, a3 = a2 + q;
-        const x1r = re[a1], x1i = im[a1], x3r = re[a3], x3i = im[a3];
-        const t1r = x1r * w1r - x1i * w1i, t1i = x1r * w1i + x1i * w1r;
-        const t3r = x3r * w1r - x3i * w1i, t3i = x3r * w1i + x3i * w1r;
-        const y0r = re[a0] + t1r, y0i = im[a0] + t1i;
-        const y1r = re[a0] - t1r, y1i = im[a0] - t1i;
-        const y2r = re[a2] + t3r, y2i = im[a2] + t3i;
-        const y3r = re[a2] - t3r, y3i = im[a2] - t3i;
-        const ur = y2r * w2r - y2i * w2i, ui = y2r * w2i + y2i * w2r;
-        const pr = y3r * w2r - y3i * w2i, pi = y3r * w2i + y3i * w2r;
-        const vr = -sign * pi, vi = sign * pr;
+        const w1r = cos[k * s1],
+          w1i = sign * sin[k * s1];
+        const w2r = cos[k * s2],
+          w2i = sign * sin[k * s2];
+        const a0 = start + k,
+          a1 = a0 + q,
+          a2 = a1 + q,
+          a3 = a2 + q;
+        const x1r = re[a1],
+          x1i = im[a1],
+          x3r = re[a3],
+          x3i = im[a3];
+        const t1r = x1r * w1r - x1i * w1i,
+          t1i = x1r * w1i + x1i * w1r;
+        const t3r = x3r * w1r - x3i * w1i,
+          t3i = x3r * w1i + x3i * w1r;
+        const y0r = re[a0] + t1r,
+          y0i = im[a0] + t1i;
+        const y1r = re[a0] - t1r,
+          y1i = im[a0] - t1i;
+        const y2r = re[a2] + t3r,
+          y2i = im[a2] + t3i;
+        const y3r = re[a2] - t3r,
+          y3i = im[a2] - t3i;
+        const ur = y2r * w2r - y2i * w2i,
+          ui = y2r * w2i + y2i * w2r;
+        const pr = y3r * w2r - y3i * w2i,
+          pi = y3r * w2i + y3i * w2r;
+        const vr = -sign * pi,
+          vi = sign * pr;
         re[a0] = y0r + ur;
         im[a0] = y0i + ui;
         re[a2] = y0r - ur;
@@ -172,12 +190,19 @@ function unpackHalfSpectrum(zr: Float64Array, zi: Float64Array, { cos, sin }: Tw
   re[0] = zr[0] + zi[0];
   re[h] = zr[0] - zi[0];
   for (let k = 1; k < h; k++) {
-    const ar = zr[k], ai = zi[k], br = zr[h - k], bi = -zi[h - k];
-    const er = (ar + br) / 2, ei = (ai + bi) / 2;
-    const dr = (ar - br) / 2, di = (ai - bi) / 2;
-    const wr = cos[k], wi = -sin[k];
+    const ar = zr[k],
+      ai = zi[k],
+      br = zr[h - k],
+      bi = -zi[h - k];
+    const er = (ar + br) / 2,
+      ei = (ai + bi) / 2;
+    const dr = (ar - br) / 2,
+      di = (ai - bi) / 2;
+    const wr = cos[k],
+      wi = -sin[k];
     // −i·w·d
-    const tr = wr * dr - wi * di, ti = wr * di + wi * dr;
+    const tr = wr * dr - wi * di,
+      ti = wr * di + wi * dr;
     re[k] = er + ti;
     im[k] = ei - tr;
   }
@@ -194,12 +219,19 @@ export function inverseRealFft(re: Float64Array, im: Float64Array, size: number)
   const zi = new Float64Array(h);
   const { cos, sin } = twiddles(size);
   for (let k = 0; k < h; k++) {
-    const ar = re[k], ai = im[k], br = re[h - k], bi = -im[h - k];
-    const er = (ar + br) / 2, ei = (ai + bi) / 2;
-    const dr = (ar - br) / 2, di = (ai - bi) / 2;
-    const wr = cos[k], wi = sin[k];
+    const ar = re[k],
+      ai = im[k],
+      br = re[h - k],
+      bi = -im[h - k];
+    const er = (ar + br) / 2,
+      ei = (ai + bi) / 2;
+    const dr = (ar - br) / 2,
+      di = (ai - bi) / 2;
+    const wr = cos[k],
+      wi = sin[k];
     // odd part O = d·e^{+2πik/N}; Z = E + i·O
-    const or = dr * wr - di * wi, oi = dr * wi + di * wr;
+    const or = dr * wr - di * wi,
+      oi = dr * wi + di * wr;
     zr[k] = er - oi;
     zi[k] = ei + or;
   }

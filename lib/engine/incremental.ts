@@ -88,7 +88,12 @@ export class SlidingMoments {
     let corr = 0;
     for (let j = 0; j < k; j++) corr += this.at(j) - m;
     this.c = m + corr / k;
-    let s1 = 0, s2 = 0, s3 = 0, s4 = 0, p = 0, prev = 0;
+    let s1 = 0,
+      s2 = 0,
+      s3 = 0,
+      s4 = 0,
+      p = 0,
+      prev = 0;
     for (let j = 0; j < k; j++) {
       const y = this.at(j) - this.c;
       const y2 = y * y;

@@ -1,4 +1,13 @@
-export { runAnalysis, summarizeAnalysis, ANALYSIS_CAUTION, type AnalysisInput, type AnalysisResult, type AnalysisSummary, type RecordBreak, type StretchStart } from './analyze';
+export {
+  runAnalysis,
+  summarizeAnalysis,
+  ANALYSIS_CAUTION,
+  type AnalysisInput,
+  type AnalysisResult,
+  type AnalysisSummary,
+  type RecordBreak,
+  type StretchStart,
+} from './analyze';
 export { INDICATOR_DIRECTIONS, orientedTau, trendDirectionOf, type RuleDirection, type TrendDirection } from './direction';
 export { extentPoints, parseExtent, MONTH_MS, YEAR_MS, type Extent, type ParsedExtent } from './extent';
 export { unjudgedWindows } from './coverage';

@@ -14,8 +14,10 @@ export interface KendallCounts {
 }
 
 function tieStats(sorted: Float64Array): { pairs: number; v0: number; v1: number } {
-  let pairs = 0, v0 = 0, v1 = 0;
-  for (let i = 0; i < sorted.length; ) {
+  let pairs = 0,
+    v0 = 0,
+    v1 = 0;
+  for (let i = 0; i < sorted.length;) {
     let j = i + 1;
     while (j < sorted.length && sorted[j] === sorted[i]) j++;
     const t = j - i;
@@ -58,7 +60,9 @@ function sortCountingInversions(a: Float64Array): number {
     for (let lo = 0; lo < m; lo += 2 * width) {
       const mid = Math.min(m, lo + width);
       const hi = Math.min(m, lo + 2 * width);
-      let i = lo, j = mid, k = lo;
+      let i = lo,
+        j = mid,
+        k = lo;
       while (i < mid && j < hi) {
         if (src[j] < src[i]) {
           swaps += mid - i;
@@ -99,7 +103,7 @@ export function kendallCounts(x: Float64Array | null, y: Float64Array): KendallC
       ys[i] = y[order[i]];
     }
     xTies = tieStats(xs);
-    for (let i = 0; i < m; ) {
+    for (let i = 0; i < m;) {
       let j = i + 1;
       while (j < m && xs[j] === xs[i] && ys[j] === ys[i]) j++;
       joint += ((j - i) * (j - i - 1)) / 2;
@@ -137,10 +141,7 @@ export function kendallTau(x: Float64Array | null, y: Float64Array): KendallResu
   const denom = Math.sqrt((n0 - c.xTies.pairs) * (n0 - c.yTies.pairs));
   const tau = denom > 0 ? Math.max(-1, Math.min(1, c.s / denom)) : Number.NaN;
   const mm = n * (n - 1);
-  const varS =
-    (mm * (2 * n + 5) - c.xTies.v1 - c.yTies.v1) / 18 +
-    (2 * c.xTies.pairs * c.yTies.pairs) / mm +
-    (c.xTies.v0 * c.yTies.v0) / (9 * mm * (n - 2));
+  const varS = (mm * (2 * n + 5) - c.xTies.v1 - c.yTies.v1) / 18 + (2 * c.xTies.pairs * c.yTies.pairs) / mm + (c.xTies.v0 * c.yTies.v0) / (9 * mm * (n - 2));
   const p = denom > 0 && varS > 0 ? twoSidedNormalP(c.s / Math.sqrt(varS)) : Number.NaN;
   return { tau, p, s: c.s, varS, n };
 }

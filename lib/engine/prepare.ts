@@ -92,11 +92,7 @@ const MAX_GRID_POINTS = 50_000_000;
  * drift off a fixed grid. A bin's time is its first observation's; an empty bin's is interpolated.
  * Times must be sorted; an exactly regular record is returned as it is (not copied). Cost O(n). Common practice (block averaging onto a regular grid).
  */
-function binToGrid(
-  time: Float64Array,
-  value: Float64Array,
-  interval: number,
-): { time: Float64Array; value: Float64Array; binnedBins: number } {
+function binToGrid(time: Float64Array, value: Float64Array, interval: number): { time: Float64Array; value: Float64Array; binnedBins: number } {
   const n = time.length;
   for (let i = 0; i < n; i++) {
     if (!Number.isFinite(time[i])) throw new AnalysisInputError(`time at observation ${i + 1} is not a finite number`, { index: i });
@@ -150,7 +146,15 @@ function fillGaps(
   maxGap: number,
   policy: 'error' | 'latest-stretch',
   kind: TimeKind,
-): { time: Float64Array; value: Float64Array; observed: Uint8Array; filledPoints: number; gaps: GapReport[]; droppedBeforeStretch: number; trimmedEnds: number } {
+): {
+  time: Float64Array;
+  value: Float64Array;
+  observed: Uint8Array;
+  filledPoints: number;
+  gaps: GapReport[];
+  droppedBeforeStretch: number;
+  trimmedEnds: number;
+} {
   let a = 0;
   let b = value.length;
   while (a < b && Number.isNaN(value[a])) a++;
@@ -159,7 +163,7 @@ function fillGaps(
   if (a === b) throw new AnalysisInputError('the series has no numeric values');
   const gaps: GapReport[] = [];
   let start = a;
-  for (let i = a; i < b; ) {
+  for (let i = a; i < b;) {
     if (!Number.isNaN(value[i])) {
       i++;
       continue;
@@ -335,7 +339,8 @@ export function detectSamplingChanges(sortedTime: Float64Array): { index: number
     // misfits(s) = #{new-looking before s} + #{old-looking from s on}; scan s = lo..hi.
     let misfit = 0;
     for (let j = lo; j < hi; j++) if (!isNew(sp[j])) misfit++;
-    let best = misfit, split = lo;
+    let best = misfit,
+      split = lo;
     for (let s = lo + 1; s <= hi; s++) {
       misfit += isNew(sp[s - 1]) ? 1 : -1;
       if (misfit < best) {
@@ -361,7 +366,8 @@ function subsampleToGrid(time: Float64Array, value: Float64Array, interval: numb
   const n = time.length;
   const k0 = Math.round((time[0] - anchor) / interval);
   const bins = Math.round((time[n - 1] - anchor) / interval) - k0 + 1;
-  if (bins > MAX_GRID_POINTS) throw new AnalysisInputError(`the record spans ${bins} sampling intervals of ${interval}; at most ${MAX_GRID_POINTS} are supported`);
+  if (bins > MAX_GRID_POINTS)
+    throw new AnalysisInputError(`the record spans ${bins} sampling intervals of ${interval}; at most ${MAX_GRID_POINTS} are supported`);
   const grid = Float64Array.from({ length: bins }, (_, k) => anchor + (k0 + k) * interval);
   const out = new Float64Array(bins).fill(Number.NaN);
   const dist = new Float64Array(bins).fill(Infinity);
@@ -385,7 +391,7 @@ function subsampleToGrid(time: Float64Array, value: Float64Array, interval: numb
  */
 function findFlatRuns(value: Float64Array): { start: number; end: number }[] {
   const out: { start: number; end: number }[] = [];
-  for (let i = 0; i < value.length; ) {
+  for (let i = 0; i < value.length;) {
     let j = i + 1;
     while (j < value.length && value[j] === value[i]) j++;
     if (j - i >= FLAT_RUN_MIN) out.push({ start: i, end: j });

@@ -31,7 +31,7 @@ export class RandomStream {
   constructor(seed: number, stream = 0) {
     const lo = seed >>> 0;
     const hi = Math.floor(seed / 4294967296) >>> 0;
-    let z = mix32(lo ^ mix32(hi ^ mix32(stream >>> 0 ^ mix32(Math.floor(stream / 4294967296) >>> 0))));
+    let z = mix32(lo ^ mix32(hi ^ mix32((stream >>> 0) ^ mix32(Math.floor(stream / 4294967296) >>> 0))));
     this.s0 = z = mix32(z);
     this.s1 = z = mix32(z);
     this.s2 = z = mix32(z);

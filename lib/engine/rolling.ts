@@ -75,7 +75,11 @@ export function windowMoments(r: Float64Array, w: number): WindowMoments {
     let c = 0;
     for (let i = start; i < start + w; i++) c += r[i];
     c /= w;
-    let s1 = 0, s2 = 0, s3 = 0, s4 = 0, p = 0;
+    let s1 = 0,
+      s2 = 0,
+      s3 = 0,
+      s4 = 0,
+      p = 0;
     for (let i = start; i < start + w; i++) {
       const y = r[i] - c;
       const y2 = y * y;
@@ -123,16 +127,7 @@ function momentDefinition(name: IndicatorName): MomentIndicator {
  * One moment indicator of a window of w points from its centred moments (see WindowMoments), by the definition its
  * file in lib/engine/indicators declares (formula, cost and source there); NaN where undefined. O(1).
  */
-export function indicatorFromMoments(
-  name: IndicatorName,
-  w: number,
-  m2: number,
-  m3: number,
-  m4: number,
-  lag: number,
-  rawMean: number,
-  dt: number,
-): number {
+export function indicatorFromMoments(name: IndicatorName, w: number, m2: number, m3: number, m4: number, lag: number, rawMean: number, dt: number): number {
   return finite(momentDefinition(name).fromMoments({ w, m2, m3, m4, lag, rawMean, dt }));
 }
 
@@ -163,7 +158,9 @@ export function rollingIndicators(
   const n = residual.length;
   // Per-window indicators alone need no sliding moments.
   const none = new Float64Array(0);
-  const { m2, m3, m4, lag } = names.some((name) => indicatorDefinition(name)?.kind === 'moments') ? windowMoments(residual, w) : { m2: none, m3: none, m4: none, lag: none };
+  const { m2, m3, m4, lag } = names.some((name) => indicatorDefinition(name)?.kind === 'moments')
+    ? windowMoments(residual, w)
+    : { m2: none, m3: none, m4: none, lag: none };
   const count = Math.max(0, n - w + 1);
   let rawMean = opts.rawMean;
   if (!rawMean && needsRawMean(names)) rawMean = windowMoments(opts.raw ?? residual, w).mean;

@@ -17,8 +17,7 @@ export const MAX_EVALUATED_WINDOWS = 100;
 
 const EXTENT_MESSAGE = 'must be a fraction, "<n> points" or an ISO 8601 duration such as P90D';
 /** An extent (lib/engine/extent.ts): a fraction up to `maxFraction` of the stretch, "<n> points", or an ISO 8601 duration. */
-const extent = (maxFraction: number) =>
-  z.union([z.number().positive().max(maxFraction), z.string().refine(isExtent, { message: EXTENT_MESSAGE })]);
+const extent = (maxFraction: number) => z.union([z.number().positive().max(maxFraction), z.string().refine(isExtent, { message: EXTENT_MESSAGE })]);
 
 /** Stored settings from before spans were extents carry `spanPoints` (an integer); it reads as "<n> points". */
 function upgradeLegacy(raw: unknown): unknown {

@@ -22,7 +22,12 @@ export const SITE_INDICATORS = [
     formula: 'largest eigenvalue of Σ',
     source: 'Dakos et al. (2012), PLoS ONE 7, e41010 (principal components, from memory); Weinans et al. (2019), J. R. Soc. Interface 16, 20180734',
   },
-  { name: 'pc1-share', direction: 'rising', formula: 'largest eigenvalue of Σ over its trace', source: 'Weinans et al. (2019), J. R. Soc. Interface 16, 20180734' },
+  {
+    name: 'pc1-share',
+    direction: 'rising',
+    formula: 'largest eigenvalue of Σ over its trace',
+    source: 'Weinans et al. (2019), J. R. Soc. Interface 16, 20180734',
+  },
   {
     name: 'maf-ac1',
     direction: 'rising',
@@ -138,7 +143,8 @@ export function runSiteAnalysis(input: { values: readonly Float64Array[]; interv
   values.forEach((v, c) => {
     if (v.length !== n) throw new AnalysisInputError(`series ${c + 1} has ${v.length} points where the first has ${n}: put them on one grid first`);
     const missing = v.findIndex((x) => !Number.isFinite(x));
-    if (missing >= 0) throw new AnalysisInputError(`series ${c + 1} has no value at point ${missing + 1}; site-level indicators need every series at every instant`);
+    if (missing >= 0)
+      throw new AnalysisInputError(`series ${c + 1} has no value at point ${missing + 1}; site-level indicators need every series at every instant`);
   });
   const h = extentPoints(settings.bandwidth, n, input.interval ?? Number.NaN, 'numeric');
   const residuals = values.map((v) => detrend(v, settings.detrend, { bandwidthPoints: h, movingAverageWidth: settings.movingAverageWidth }).residual);
@@ -164,7 +170,8 @@ export function runSiteAnalysis(input: { values: readonly Float64Array[]; interv
       const rolled = rollingSiteIndicators(coherentPhaseSurrogate(spectra, settings.seed, s), w, stride);
       for (const d of SITE_INDICATORS) nullTaus[d.name][s] = indicatorTrend(rolled[d.name]).tau;
     }
-    for (const d of SITE_INDICATORS) significance[d.name] = { ...surrogatePValue(taus[d.name], nullTaus[d.name], d.direction), method: 'phase', direction: d.direction };
+    for (const d of SITE_INDICATORS)
+      significance[d.name] = { ...surrogatePValue(taus[d.name], nullTaus[d.name], d.direction), method: 'phase', direction: d.direction };
   }
   return { n: m, windowPoints: w, evaluatedEvery: stride, indicators, kendall, significance };
 }

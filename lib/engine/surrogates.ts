@@ -42,14 +42,19 @@ export function fitAr1(r: Float64Array, observed: Uint8Array | null = null): { p
   const n = r.length;
   let mean: number;
   if (observed) {
-    let sum = 0, m = 0;
-    for (let i = 0; i < n; i++) if (observed[i]) {
-      sum += r[i];
-      m++;
-    }
+    let sum = 0,
+      m = 0;
+    for (let i = 0; i < n; i++)
+      if (observed[i]) {
+        sum += r[i];
+        m++;
+      }
     mean = sum / m;
   } else mean = accurateMean(r);
-  let num = 0, den = 0, pairs = 0, points = 0;
+  let num = 0,
+    den = 0,
+    pairs = 0,
+    points = 0;
   for (let i = 0; i < n; i++) {
     if (observed && !observed[i]) continue;
     const d = r[i] - mean;
@@ -60,7 +65,7 @@ export function fitAr1(r: Float64Array, observed: Uint8Array | null = null): { p
       pairs++;
     }
   }
-  const ratio = observed ? (num / pairs) / (den / points) : num / den;
+  const ratio = observed ? num / pairs / (den / points) : num / den;
   const phi = den > 0 && pairs > 0 ? Math.max(-0.999999, Math.min(0.999999, ratio)) : 0;
   const variance = points > 1 ? den / (points - 1) : 0;
   return { phi, innovationSd: Math.sqrt(variance * (1 - phi * phi)), mean };
@@ -74,7 +79,16 @@ export function fitAr1(r: Float64Array, observed: Uint8Array | null = null): { p
 export function prepareSurrogateJob(
   residual: Float64Array,
   raw: Float64Array,
-  base: { method: SurrogateMethod; seed: number; w: number; dt: number; indicators: IndicatorName[]; stride?: number; observed?: Uint8Array | null; skip?: Uint8Array | null },
+  base: {
+    method: SurrogateMethod;
+    seed: number;
+    w: number;
+    dt: number;
+    indicators: IndicatorName[];
+    stride?: number;
+    observed?: Uint8Array | null;
+    skip?: Uint8Array | null;
+  },
 ): SurrogateJob {
   const observed = base.observed && base.observed.includes(0) ? base.observed : null;
   return {
@@ -156,7 +170,8 @@ export function surrogateTaus(job: SurrogateJob, from: number, to: number): Reco
  */
 export function surrogatePValue(observed: number, taus: Float64Array, direction: TrendDirection = 'rising'): { p: number | null; count: number } {
   const o = orientedTau(observed, direction);
-  let count = 0, beyond = 0;
+  let count = 0,
+    beyond = 0;
   for (const t of taus) {
     if (!Number.isFinite(t)) continue;
     count++;

@@ -128,5 +128,8 @@ export async function answerRange<Task, T extends { [K in keyof T]: Float64Array
   const result = compute(task, from, to, (done) => {
     if (done % progressEvery === 0) parentPort!.postMessage({ progress: done } satisfies RangeMessage<T>);
   });
-  parentPort!.postMessage({ result } satisfies RangeMessage<T>, Object.values<Float64Array>(result).map((a) => a.buffer as ArrayBuffer));
+  parentPort!.postMessage(
+    { result } satisfies RangeMessage<T>,
+    Object.values<Float64Array>(result).map((a) => a.buffer as ArrayBuffer),
+  );
 }

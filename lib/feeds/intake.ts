@@ -53,18 +53,34 @@ async function ingestUnderLease(request: FeedIngestRequest, key: string, started
   const bySlug = new Map((await Series.findAll({ where: { slug: mapped.map(([, slug]) => slug) } })).map((s) => [s.slug, s]));
   let marksAdded = 0;
   const done = (status: FeedOutcome['status'], message: string, series: FeedSeriesOutcome[], alreadyApplied = false): FeedOutcome => ({
-    feed: feed.slug, status, alreadyApplied, message, series, marksAdded, durationMs: Date.now() - started,
+    feed: feed.slug,
+    status,
+    alreadyApplied,
+    message,
+    series,
+    marksAdded,
+    durationMs: Date.now() - started,
   });
   const unusable = mapped.filter(([, slug]) => !bySlug.get(slug) || bySlug.get(slug)!.retiredAt);
   if (unusable.length) {
     return done('rejected', `The feed maps to series that are missing or retired (${unusable.map(([, slug]) => slug).join(', ')}); nothing was stored.`, []);
   }
   const targets = mapped.map(([column, slug]) => ({ column, series: bySlug.get(slug)! }));
-  const runs = await Promise.all(targets.map(({ series, column }) => IngestRun.create({
-    seriesId: series.id, source: request.source, fileName: request.fileName ?? null, contentHash,
-    userId: request.actor?.id ?? null, tokenId: null, startedAt: new Date(started), status: 'running',
-    report: { runKey: key, holder: PROCESS_HOLDER, feed: feed.slug, column },
-  })));
+  const runs = await Promise.all(
+    targets.map(({ series, column }) =>
+      IngestRun.create({
+        seriesId: series.id,
+        source: request.source,
+        fileName: request.fileName ?? null,
+        contentHash,
+        userId: request.actor?.id ?? null,
+        tokenId: null,
+        startedAt: new Date(started),
+        status: 'running',
+        report: { runKey: key, holder: PROCESS_HOLDER, feed: feed.slug, column },
+      }),
+    ),
+  );
   const label = (outcomes: IngestOutcome[]) => outcomes.map((o, k) => ({ ...o, series: targets[k].series.slug, column: targets[k].column }));
   const finishAll = async (fields: Parameters<typeof finishRun>[2]) => label(await Promise.all(runs.map((run) => finishRun(run, started, fields))));
   try {
@@ -107,16 +123,31 @@ async function ingestUnderLease(request: FeedIngestRequest, key: string, started
           results.push(await rejectedRun(runs[k], rows, started, feed.timeFormat, transaction));
           continue;
         }
-        results.push(await storeCollected(transaction, targets[k].series, rows, runs[k], started, {
-          source: request.source, fileName: request.fileName, actorId: request.actor?.id ?? null, tokenId: null, timeFormat: feed.timeFormat,
-        }));
+        results.push(
+          await storeCollected(transaction, targets[k].series, rows, runs[k], started, {
+            source: request.source,
+            fileName: request.fileName,
+            actorId: request.actor?.id ?? null,
+            tokenId: null,
+            timeFormat: feed.timeFormat,
+          }),
+        );
       }
-      marksAdded = await markEvents(transaction, targets.map((t) => t.series.id), events, request.actor ?? null);
+      marksAdded = await markEvents(
+        transaction,
+        targets.map((t) => t.series.id),
+        events,
+        request.actor ?? null,
+      );
       return results;
     });
     const stored = outcomes.reduce((sum, o) => sum + o.accepted + o.replaced, 0);
     const marked = marksAdded ? ` Marked ${marksAdded} maintenance break${marksAdded === 1 ? '' : 's'}.` : '';
-    return done('succeeded', `Stored ${stored.toLocaleString('en-US')} new or replaced points in ${targets.length} series: ${outcomes.map((o, k) => `${targets[k].series.slug} ${o.accepted}`).join(', ')}.${marked}`, label(outcomes));
+    return done(
+      'succeeded',
+      `Stored ${stored.toLocaleString('en-US')} new or replaced points in ${targets.length} series: ${outcomes.map((o, k) => `${targets[k].series.slug} ${o.accepted}`).join(', ')}.${marked}`,
+      label(outcomes),
+    );
   } catch (error) {
     const message = error instanceof Error ? error.message : String(error);
     console.error(`[intake] feed ${feed.slug} failed`, error);
@@ -147,10 +178,25 @@ function flagColumnOf(feed: Feed, column: string): string | undefined {
   return entry?.[1];
 }
 
-function rejectedRun(run: IngestRun, rows: CollectedRows, started: number, timeFormat: string, transaction?: Parameters<typeof finishRun>[3]): Promise<IngestOutcome> {
+function rejectedRun(
+  run: IngestRun,
+  rows: CollectedRows,
+  started: number,
+  timeFormat: string,
+  transaction?: Parameters<typeof finishRun>[3],
+): Promise<IngestOutcome> {
   const counts = { rowsRead: rows.rowsRead, accepted: 0, duplicates: rows.duplicatesInInput, replaced: 0, rejected: rows.rejectedCount };
-  return finishRun(run, started, {
-    ...counts, status: 'rejected', rejectedRows: rows.rejectedRows, notes: rows.notes,
-    message: summaryMessage(counts, rows.rejectedRows[0]?.reason), report: inputReport(rows, timeFormat, rows.rejectedRows, rows.rejectedCount),
-  }, transaction);
+  return finishRun(
+    run,
+    started,
+    {
+      ...counts,
+      status: 'rejected',
+      rejectedRows: rows.rejectedRows,
+      notes: rows.notes,
+      message: summaryMessage(counts, rows.rejectedRows[0]?.reason),
+      report: inputReport(rows, timeFormat, rows.rejectedRows, rows.rejectedCount),
+    },
+    transaction,
+  );
 }

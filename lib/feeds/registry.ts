@@ -54,7 +54,10 @@ export async function createFeed(input: FeedCreateInput, actor: { id: number } |
   try {
     return await writeTransaction(async (transaction) => {
       const feed = await Feed.create({ ...fields, createdBy: actor?.id ?? null }, { transaction });
-      await recordAudit({ actorId: actor?.id ?? null, action: 'feed.create', entity: 'feed', entityId: feed.id, details: { slug: feed.slug, series: slugs } }, transaction);
+      await recordAudit(
+        { actorId: actor?.id ?? null, action: 'feed.create', entity: 'feed', entityId: feed.id, details: { slug: feed.slug, series: slugs } },
+        transaction,
+      );
       return feed;
     });
   } catch (error) {

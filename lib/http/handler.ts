@@ -41,9 +41,7 @@ type RouteContext<P> = { params: Promise<P> };
  * Wraps a route handler so every failure answers with the JSON error contract. Authorisation is NOT done here:
  * each handler calls `requireRole` (lib/auth/guard.ts) as its first statement, visibly.
  */
-export function handle<P = Record<string, string>>(
-  fn: (request: Request, context: RouteContext<P>) => Promise<Response>,
-) {
+export function handle<P = Record<string, string>>(fn: (request: Request, context: RouteContext<P>) => Promise<Response>) {
   return async (request: Request, context: RouteContext<P>): Promise<Response> => {
     try {
       return await fn(request, context);

@@ -232,9 +232,10 @@ function quietPreamble(sample: string): { text: string; length: number } {
  * papaparse's records are its lines and its fields the text between delimiters. O(n) over the bytes or characters.
  */
 function unquotedLines(whole: string | Uint8Array): boolean {
-  const input = typeof whole === 'string'
-    ? whole.slice(preambleLength(whole.length, (i) => whole.charCodeAt(i)))
-    : whole.subarray(preambleLength(whole.length, (i) => whole[i]));
+  const input =
+    typeof whole === 'string'
+      ? whole.slice(preambleLength(whole.length, (i) => whole.charCodeAt(i)))
+      : whole.subarray(preambleLength(whole.length, (i) => whole[i]));
   if (input instanceof Uint8Array) {
     const bytes = Buffer.from(input.buffer, input.byteOffset, input.byteLength);
     // The usual case, LF only, is decided by native scans.
@@ -293,7 +294,10 @@ export async function readCsv(input: CsvInput, options: CsvReadOptions): Promise
         const nl = chunk.indexOf('\n', from);
         const piece = (nl === -1 ? chunk.length : nl) - from;
         if (length + piece > MAX_LINE_CHARS) {
-          throw new CsvFileError('line-too-long', `Line ${line} is longer than ${MAX_LINE_CHARS.toLocaleString('en-US')} characters; a CSV record of time and value is far shorter, so the file is not read.`);
+          throw new CsvFileError(
+            'line-too-long',
+            `Line ${line} is longer than ${MAX_LINE_CHARS.toLocaleString('en-US')} characters; a CSV record of time and value is far shorter, so the file is not read.`,
+          );
         }
         if (nl === -1) {
           length += piece;

@@ -17,7 +17,8 @@ function log(line: string): void {
 
 /** Regular `*.csv` files of a folder (symlinks and `.part` files are not; names come from readdir only). */
 function csvFilesIn(folder: string): string[] {
-  return fs.readdirSync(folder, { withFileTypes: true })
+  return fs
+    .readdirSync(folder, { withFileTypes: true })
     .filter((entry) => entry.isFile() && !entry.name.startsWith('.') && entry.name.toLowerCase().endsWith('.csv'))
     .map((entry) => entry.name)
     .sort();
@@ -28,7 +29,8 @@ export const FEEDS_FOLDER = 'feeds';
 
 function subfolders(root: string): { slug: string; folder: string }[] {
   fs.mkdirSync(root, { recursive: true });
-  return fs.readdirSync(root, { withFileTypes: true })
+  return fs
+    .readdirSync(root, { withFileTypes: true })
     .filter((entry) => entry.isDirectory())
     .map((entry) => ({ slug: entry.name, folder: path.join(root, entry.name) }));
 }
@@ -115,11 +117,13 @@ export async function runDropIntake(options: { settleMs?: number } = {}): Promis
       if (feed) {
         const outcome = await ingestFeedFile({ feed: feeds.get(slug)!, source: 'drop', fileName: name, contentHash, csv: fs.createReadStream(file) });
         ({ status, message } = outcome);
-        if (status !== 'failed') movedTo = settle(folder, name, status === 'rejected', outcome.series[0]?.runId ?? 0, { file: name, ...outcome, finishedAt: finishedAt() });
+        if (status !== 'failed')
+          movedTo = settle(folder, name, status === 'rejected', outcome.series[0]?.runId ?? 0, { file: name, ...outcome, finishedAt: finishedAt() });
       } else {
         const outcome = await ingestObservations({ series: known.get(slug)!, source: 'drop', fileName: name, contentHash, csv: fs.createReadStream(file) });
         ({ status, message } = outcome);
-        if (status !== 'failed') movedTo = settle(folder, name, status === 'rejected', outcome.runId, { file: name, series: slug, ...outcome, finishedAt: finishedAt() });
+        if (status !== 'failed')
+          movedTo = settle(folder, name, status === 'rejected', outcome.runId, { file: name, series: slug, ...outcome, finishedAt: finishedAt() });
       }
       log(`${where}/${name}: ${status} — ${message}${movedTo ? ` → ${movedTo}` : ''}`);
       return { file: `${where}/${name}`, status, movedTo };
@@ -143,14 +147,17 @@ export async function listDropFolders(): Promise<DropFolderListing[]> {
   return seriesFolders().map(({ slug, folder }) => {
     const rejectedDir = path.join(folder, 'rejected');
     const rejected = fs.existsSync(rejectedDir)
-      ? csvFilesIn(rejectedDir).slice(-100).reverse().map((file) => {
-        try {
-          const report = JSON.parse(fs.readFileSync(path.join(rejectedDir, `${file}.report.json`), 'utf8')) as DropReport;
-          return { file, runId: report.runId, message: report.message, rejected: report.rejected };
-        } catch {
-          return { file, runId: null, message: 'No report was found beside this file.', rejected: 0 };
-        }
-      })
+      ? csvFilesIn(rejectedDir)
+          .slice(-100)
+          .reverse()
+          .map((file) => {
+            try {
+              const report = JSON.parse(fs.readFileSync(path.join(rejectedDir, `${file}.report.json`), 'utf8')) as DropReport;
+              return { file, runId: report.runId, message: report.message, rejected: report.rejected };
+            } catch {
+              return { file, runId: null, message: 'No report was found beside this file.', rejected: 0 };
+            }
+          })
       : [];
     return { slug, known: known.has(slug) && slugSchema.safeParse(slug).success, pending: csvFilesIn(folder), rejected };
   });

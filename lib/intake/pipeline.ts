@@ -128,8 +128,18 @@ export type RunEnd = Partial<IngestOutcome> & { status: IngestStatus; message: s
 /** Records a run's end (counts, status, message, report) and answers it as an outcome. */
 export async function finishRun(run: IngestRun, started: number, fields: RunEnd, transaction?: Transaction): Promise<IngestOutcome> {
   const durationMs = Date.now() - started;
-  const counts = { rowsRead: fields.rowsRead ?? 0, accepted: fields.accepted ?? 0, duplicates: fields.duplicates ?? 0, replaced: fields.replaced ?? 0, rejected: fields.rejected ?? 0 };
-  const record = (t?: Transaction) => run.update({ ...counts, status: fields.status, message: fields.message, report: { ...run.report, ...fields.report }, durationMs, finishedAt: new Date() }, { transaction: t });
+  const counts = {
+    rowsRead: fields.rowsRead ?? 0,
+    accepted: fields.accepted ?? 0,
+    duplicates: fields.duplicates ?? 0,
+    replaced: fields.replaced ?? 0,
+    rejected: fields.rejected ?? 0,
+  };
+  const record = (t?: Transaction) =>
+    run.update(
+      { ...counts, status: fields.status, message: fields.message, report: { ...run.report, ...fields.report }, durationMs, finishedAt: new Date() },
+      { transaction: t },
+    );
   if (fields.status === 'rejected') {
     // A rejection reaches webhook receivers: the delivery is written with the run's outcome, never one without the other.
     const rejected = { id: run.id, source: run.source, fileName: run.fileName, rowsRead: counts.rowsRead, rejected: counts.rejected, message: fields.message };
@@ -143,8 +153,15 @@ export async function finishRun(run: IngestRun, started: number, fields: RunEnd,
     await record(transaction);
   }
   return {
-    runId: run.id, status: fields.status, alreadyApplied: fields.alreadyApplied ?? false, previousRunId: fields.previousRunId ?? null,
-    ...counts, rejectedRows: fields.rejectedRows ?? [], notes: fields.notes ?? [], message: fields.message, durationMs,
+    runId: run.id,
+    status: fields.status,
+    alreadyApplied: fields.alreadyApplied ?? false,
+    previousRunId: fields.previousRunId ?? null,
+    ...counts,
+    rejectedRows: fields.rejectedRows ?? [],
+    notes: fields.notes ?? [],
+    message: fields.message,
+    durationMs,
     flagged: fields.flagged ?? {},
   };
 }
@@ -152,8 +169,14 @@ export async function finishRun(run: IngestRun, started: number, fields: RunEnd,
 /** What a run reports about its input besides the counts. */
 export function inputReport(rows: CollectedRows, timeFormat: string, rejectedRows: RejectedRow[], rejectedTotal: number) {
   return {
-    rejectedRows, rejectedTotal, notes: rows.notes, layout: describeLayout(rows.layout), stats: rows.stats, timeFormat,
-    first: rows.t.length ? rows.t[0] : null, last: rows.t.length ? rows.t[rows.t.length - 1] : null,
+    rejectedRows,
+    rejectedTotal,
+    notes: rows.notes,
+    layout: describeLayout(rows.layout),
+    stats: rows.stats,
+    timeFormat,
+    first: rows.t.length ? rows.t[0] : null,
+    last: rows.t.length ? rows.t[rows.t.length - 1] : null,
   };
 }
 
@@ -185,28 +208,56 @@ export async function storeCollected(
     // The analysis job picks the series up from this mark; set with the data so neither exists without the other.
     await Series.update({ needsAnalysis: true, dataChangedAt: now }, { where: { id: series.id }, transaction });
   }
-  await recordAudit({
-    actorId: context.actorId, action: `intake.${context.source}`, entity: 'series', entityId: series.id,
-    details: { runId: run.id, fileName: context.fileName ?? null, tokenId: context.tokenId, ...counts },
-  }, transaction);
-  return finishRun(run, started, {
-    ...counts, status: 'succeeded', rejectedRows, notes: rows.notes, message: summaryMessage(counts), flagged,
-    report: { ...inputReport(rows, context.timeFormat, rejectedRows, counts.rejected), flagged },
-  }, transaction);
+  await recordAudit(
+    {
+      actorId: context.actorId,
+      action: `intake.${context.source}`,
+      entity: 'series',
+      entityId: series.id,
+      details: { runId: run.id, fileName: context.fileName ?? null, tokenId: context.tokenId, ...counts },
+    },
+    transaction,
+  );
+  return finishRun(
+    run,
+    started,
+    {
+      ...counts,
+      status: 'succeeded',
+      rejectedRows,
+      notes: rows.notes,
+      message: summaryMessage(counts),
+      flagged,
+      report: { ...inputReport(rows, context.timeFormat, rejectedRows, counts.rejected), flagged },
+    },
+    transaction,
+  );
 }
 
 async function ingestUnderLease(request: IngestRequest, key: string, started: number): Promise<IngestOutcome> {
   const { series, contentHash = null } = request;
   const base = {
-    seriesId: series.id, source: request.source, fileName: request.fileName ?? null, contentHash,
-    userId: request.actor?.id ?? null, tokenId: request.tokenId ?? null, startedAt: new Date(started),
+    seriesId: series.id,
+    source: request.source,
+    fileName: request.fileName ?? null,
+    contentHash,
+    userId: request.actor?.id ?? null,
+    tokenId: request.tokenId ?? null,
+    startedAt: new Date(started),
   };
   const finish = (run: IngestRun, fields: RunEnd, transaction?: Transaction) => finishRun(run, started, fields, transaction);
-  const alreadyApplied = async (run: IngestRun, previous: IngestRun, transaction?: Transaction) => finish(run, {
-    status: 'succeeded', alreadyApplied: true, previousRunId: previous.id,
-    message: `Same content as run #${previous.id} of ${previous.startedAt.toISOString()}; it was applied then and is not applied again.`,
-    report: { alreadyApplied: true, previousRunId: previous.id },
-  }, transaction);
+  const alreadyApplied = async (run: IngestRun, previous: IngestRun, transaction?: Transaction) =>
+    finish(
+      run,
+      {
+        status: 'succeeded',
+        alreadyApplied: true,
+        previousRunId: previous.id,
+        message: `Same content as run #${previous.id} of ${previous.startedAt.toISOString()}; it was applied then and is not applied again.`,
+        report: { alreadyApplied: true, previousRunId: previous.id },
+      },
+      transaction,
+    );
 
   const run = await IngestRun.create({ ...base, status: 'running', report: { runKey: key, holder: PROCESS_HOLDER } });
   try {
@@ -227,7 +278,14 @@ async function ingestUnderLease(request: IngestRequest, key: string, started: nu
     const timeFormat = mappingFor(series, request.mapping).timeFormat;
     if (rows.t.length === 0) {
       const counts = { rowsRead: rows.rowsRead, accepted: 0, duplicates: rows.duplicatesInInput, replaced: 0, rejected: rows.rejectedCount };
-      return await finish(run, { ...counts, status: 'rejected', rejectedRows: rows.rejectedRows, notes: rows.notes, message: summaryMessage(counts, rows.rejectedRows[0]?.reason), report: inputReport(rows, timeFormat, rows.rejectedRows, rows.rejectedCount) });
+      return await finish(run, {
+        ...counts,
+        status: 'rejected',
+        rejectedRows: rows.rejectedRows,
+        notes: rows.notes,
+        message: summaryMessage(counts, rows.rejectedRows[0]?.reason),
+        report: inputReport(rows, timeFormat, rows.rejectedRows, rows.rejectedCount),
+      });
     }
     return await writeTransaction(async (transaction) => {
       if (contentHash) {
@@ -236,14 +294,22 @@ async function ingestUnderLease(request: IngestRequest, key: string, started: nu
         if (previous) return alreadyApplied(run, previous, transaction);
       }
       return storeCollected(transaction, series, rows, run, started, {
-        source: request.source, fileName: request.fileName, actorId: request.actor?.id ?? null, tokenId: request.tokenId ?? null, timeFormat,
+        source: request.source,
+        fileName: request.fileName,
+        actorId: request.actor?.id ?? null,
+        tokenId: request.tokenId ?? null,
+        timeFormat,
       });
     });
   } catch (error) {
     const message = error instanceof Error ? error.message : String(error);
     console.error(`[intake] run ${run.id} failed`, error);
     await run.reload().catch(() => undefined);
-    return finish(run, { status: 'failed', message: `The intake failed before anything was stored: ${message}. Nothing from this run was stored.`, report: {} });
+    return finish(run, {
+      status: 'failed',
+      message: `The intake failed before anything was stored: ${message}. Nothing from this run was stored.`,
+      report: {},
+    });
   }
 }
 
@@ -277,8 +343,11 @@ export async function sweepStaleRuns(now = Date.now()): Promise<number[]> {
     if (!key || !(await acquireLease(runLease(key), 1000, holder, now))) continue;
     try {
       await run.update({
-        status: 'failed', finishedAt: new Date(), durationMs: now - run.startedAt.getTime(),
-        message: 'The process taking in this data stopped before finishing; nothing from this run was stored. A dropped file is taken in again on the next pass.',
+        status: 'failed',
+        finishedAt: new Date(),
+        durationMs: now - run.startedAt.getTime(),
+        message:
+          'The process taking in this data stopped before finishing; nothing from this run was stored. A dropped file is taken in again on the next pass.',
       });
       swept.push(run.id);
     } finally {
@@ -337,14 +406,26 @@ export async function previewObservations(series: Series, csv: string | Uint8Arr
   } catch (error) {
     if (!(error instanceof CsvFileError)) throw error;
     if (error.code !== 'header-only' && error.code !== 'no-data') {
-      return { layout: null, timeFormatGuess: null, mapping: mappingFor(series, overrides), sample, summary: null, fileError: { code: error.code, message: error.message } };
+      return {
+        layout: null,
+        timeFormatGuess: null,
+        mapping: mappingFor(series, overrides),
+        sample,
+        summary: null,
+        fileError: { code: error.code, message: error.message },
+      };
     }
   }
-  const column = typeof overrides.timeColumn === 'string' && layout?.header
-    ? layout.header.findIndex((h) => h.toLowerCase() === String(overrides.timeColumn).toLowerCase())
-    : timeIndex;
+  const column =
+    typeof overrides.timeColumn === 'string' && layout?.header
+      ? layout.header.findIndex((h) => h.toLowerCase() === String(overrides.timeColumn).toLowerCase())
+      : timeIndex;
   const timeFormatGuess = guessTimeFormat(sample.map((row) => row.fields[column] ?? ''));
-  const mapping = mappingFor(series, { ...overrides, timeFormat: overrides.timeFormat ?? timeFormatGuess ?? undefined, header: overrides.header ?? (layout?.header ? true : undefined) });
+  const mapping = mappingFor(series, {
+    ...overrides,
+    timeFormat: overrides.timeFormat ?? timeFormatGuess ?? undefined,
+    header: overrides.header ?? (layout?.header ? true : undefined),
+  });
   const described = layout ? { ...describeLayout(layout)!, delimiterDetected: layout.delimiterDetected, fieldCount: layout.fieldCount } : null;
   let rows: CollectedRows;
   try {
@@ -354,7 +435,9 @@ export async function previewObservations(series: Series, csv: string | Uint8Arr
     return { layout: described, timeFormatGuess, mapping, sample, summary: null, fileError: { code: error.code, message: error.message } };
   }
   const sequelize = await db();
-  const classified = await sequelize.transaction({ type: Transaction.TYPES.DEFERRED }, (transaction) => classifyAgainstStored(series.id, rows, connectionOf(transaction)));
+  const classified = await sequelize.transaction({ type: Transaction.TYPES.DEFERRED }, (transaction) =>
+    classifyAgainstStored(series.id, rows, connectionOf(transaction)),
+  );
   let wouldAccept = 0;
   let duplicates = rows.duplicatesInInput;
   let conflicts = 0;
@@ -371,10 +454,16 @@ export async function previewObservations(series: Series, csv: string | Uint8Arr
     mapping,
     sample,
     summary: {
-      rowsRead: rows.rowsRead, wouldAccept, wouldBeDuplicates: duplicates, wouldReplace: replace ? conflicts : 0,
-      conflicts: replace ? 0 : conflicts, rejected: rows.rejectedCount + conflictRows.length,
+      rowsRead: rows.rowsRead,
+      wouldAccept,
+      wouldBeDuplicates: duplicates,
+      wouldReplace: replace ? conflicts : 0,
+      conflicts: replace ? 0 : conflicts,
+      rejected: rows.rejectedCount + conflictRows.length,
       rejectedRows: [...rows.rejectedRows, ...conflictRows].sort((a, b) => a.line - b.line).slice(0, 200),
-      first: rows.t.length ? rows.t[0] : null, last: rows.t.length ? rows.t[rows.t.length - 1] : null, notes: rows.notes,
+      first: rows.t.length ? rows.t[0] : null,
+      last: rows.t.length ? rows.t[rows.t.length - 1] : null,
+      notes: rows.notes,
     },
     fileError: null,
   };

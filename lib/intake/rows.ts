@@ -121,35 +121,56 @@ class RowCollector {
   /** Label of the time column, for rejections found after reading (in-input conflicts). */
   timeLabel = 'time';
 
-  constructor(private readonly format: TimeReading, private readonly zone: string) {}
+  constructor(
+    private readonly format: TimeReading,
+    private readonly zone: string,
+  ) {}
 
   reject(line: number, column: string | null, reason: string): void {
     this.rejectedCount++;
     if (this.rejectedRows.length < MAX_LISTED_REJECTIONS) this.rejectedRows.push({ line, column, reason });
   }
 
-  add(line: number, timeCell: string | number, valueCell: string | number, timeColumn: string, valueColumn: string, flagCell?: string, flagColumn?: string): void {
+  add(
+    line: number,
+    timeCell: string | number,
+    valueCell: string | number,
+    timeColumn: string,
+    valueColumn: string,
+    flagCell?: string,
+    flagColumn?: string,
+  ): void {
     this.rowsRead++;
     let flag = 0;
     if (flagCell !== undefined) {
       const text = flagCell.trim();
       if (text !== '') {
         flag = Number(text);
-        if (!isQartodFlag(flag)) return this.reject(line, flagColumn ?? 'flag', `the flag "${text.slice(0, 20)}" is not on the QARTOD scale (1 pass, 2 not evaluated, 3 suspect, 4 fail, 9 missing)`);
+        if (!isQartodFlag(flag))
+          return this.reject(
+            line,
+            flagColumn ?? 'flag',
+            `the flag "${text.slice(0, 20)}" is not on the QARTOD scale (1 pass, 2 not evaluated, 3 suspect, 4 fail, 9 missing)`,
+          );
       }
     }
-    const time = typeof timeCell === 'number'
-      ? parseTime(String(timeCell), this.format === 'iso8601' || this.format === 'date' ? 'epoch-milliseconds' : this.format, this.zone)
-      : parseTime(timeCell, this.format, this.zone);
+    const time =
+      typeof timeCell === 'number'
+        ? parseTime(String(timeCell), this.format === 'iso8601' || this.format === 'date' ? 'epoch-milliseconds' : this.format, this.zone)
+        : parseTime(timeCell, this.format, this.zone);
     if (!time.ok) return this.reject(line, timeColumn, time.reason);
     if (time.offset !== undefined || time.local) {
       // Offsets on some rows and none on others usually means two exports were pasted together; guessing is unsafe.
       const style = time.local ? 'local' : 'offset';
       this.offsetStyle ??= style;
       if (style !== this.offsetStyle) {
-        return this.reject(line, timeColumn, style === 'local'
-          ? 'this time has no UTC offset while earlier rows have one; give every row an offset (or none)'
-          : 'this time has a UTC offset while earlier rows have none; give every row an offset (or none)');
+        return this.reject(
+          line,
+          timeColumn,
+          style === 'local'
+            ? 'this time has no UTC offset while earlier rows have one; give every row an offset (or none)'
+            : 'this time has a UTC offset while earlier rows have none; give every row an offset (or none)',
+        );
       }
       if (time.offset !== undefined && this.offsets.size < 10) this.offsets.add(time.offset);
     }
@@ -178,9 +199,21 @@ class RowCollector {
     if (this.offsets.size > 1) {
       this.notes.push(`Rows carry different UTC offsets (${[...this.offsets].join(', ')}); each time was converted with its own offset.`);
     }
-    if (this.missing) this.notes.push(`${this.missing.toLocaleString('en-US')} row${this.missing === 1 ? ' was' : 's were'} flagged 9 (missing) without a value; they were skipped.`);
+    if (this.missing)
+      this.notes.push(
+        `${this.missing.toLocaleString('en-US')} row${this.missing === 1 ? ' was' : 's were'} flagged 9 (missing) without a value; they were skipped.`,
+      );
     const unique = normalise(this.columns, this.notes, (line, reason) => this.reject(line, this.timeLabel, reason), this.format, this.hasFlags);
-    return { ...unique, timeColumn: this.timeLabel, rowsRead: this.rowsRead, rejectedCount: this.rejectedCount, rejectedRows: this.rejectedRows, notes: this.notes, layout, stats };
+    return {
+      ...unique,
+      timeColumn: this.timeLabel,
+      rowsRead: this.rowsRead,
+      rejectedCount: this.rejectedCount,
+      rejectedRows: this.rejectedRows,
+      notes: this.notes,
+      layout,
+      stats,
+    };
   }
 }
 
@@ -217,7 +250,7 @@ function normalise(
   const outF = hasFlags ? new Uint8Array(n) : null;
   let m = 0;
   let duplicates = 0;
-  for (let i = 0; i < n; ) {
+  for (let i = 0; i < n;) {
     let j = i + 1;
     while (j < n && t[order[j]] === t[order[i]]) j++;
     const first = order[i];
@@ -238,7 +271,13 @@ function normalise(
     }
     i = j;
   }
-  return { t: outT.subarray(0, m), value: outV.subarray(0, m), line: outL.subarray(0, m), sourceFlag: outF ? outF.subarray(0, m) : null, duplicatesInInput: duplicates };
+  return {
+    t: outT.subarray(0, m),
+    value: outV.subarray(0, m),
+    line: outL.subarray(0, m),
+    sourceFlag: outF ? outF.subarray(0, m) : null,
+    duplicatesInInput: duplicates,
+  };
 }
 
 function columnLabel(column: string | number, header: string[] | null): string {
@@ -286,7 +325,10 @@ export async function collectCsvColumns(
     const find = (column: string | number): number => {
       if (typeof column === 'number') {
         if (column >= layout.fieldCount && layout.fieldCount <= 1) {
-          throw new CsvFileError('single-column', `Only one column was found. Brinkwatch reads comma, semicolon, tab or pipe delimited files; check the delimiter (expected time and value in separate columns).`);
+          throw new CsvFileError(
+            'single-column',
+            `Only one column was found. Brinkwatch reads comma, semicolon, tab or pipe delimited files; check the delimiter (expected time and value in separate columns).`,
+          );
         }
         return column;
       }
@@ -304,7 +346,9 @@ export async function collectCsvColumns(
       const value = find(v.valueColumn);
       const flag = v.flagColumn === undefined ? -1 : find(v.flagColumn);
       return {
-        value, flag, needed: Math.max(timeIndex, value, flag) + 1,
+        value,
+        flag,
+        needed: Math.max(timeIndex, value, flag) + 1,
         valueLabel: columnLabel(v.valueColumn, layout.header),
         flagLabel: v.flagColumn === undefined ? '' : columnLabel(v.flagColumn, layout.header),
       };
@@ -338,9 +382,21 @@ export async function collectCsvColumns(
           // Each column needs only its own cells: a short line may still carry the first variables of a station file.
           collector.rowsRead++;
           const missing = fields.length <= timeIndex ? timeLabel : fields.length <= column.value ? column.valueLabel : column.flagLabel || column.valueLabel;
-          collector.reject(line, missing, `the line has ${fields.length} field${fields.length === 1 ? '' : 's'}; expected at least ${column.needed} separated by ${delimiterName}`);
+          collector.reject(
+            line,
+            missing,
+            `the line has ${fields.length} field${fields.length === 1 ? '' : 's'}; expected at least ${column.needed} separated by ${delimiterName}`,
+          );
         } else {
-          collector.add(line, fields[timeIndex], fields[column.value], timeLabel, column.valueLabel, column.flag === -1 ? undefined : fields[column.flag], column.flagLabel);
+          collector.add(
+            line,
+            fields[timeIndex],
+            fields[column.value],
+            timeLabel,
+            column.valueLabel,
+            column.flag === -1 ? undefined : fields[column.flag],
+            column.flagLabel,
+          );
         }
       }
     },
@@ -348,7 +404,9 @@ export async function collectCsvColumns(
   return collectors.map((collector) => {
     if (layout.bom) collector.notes.push(`A byte order mark (${layout.encoding}) was found and removed.`);
     if (layout.encoding === 'windows-1252') {
-      collector.notes.push('The file is not valid UTF-8, so it was read as Windows-1252 (Western European), as older spreadsheets and loggers write it; check that names and units with accents or symbols read right.');
+      collector.notes.push(
+        'The file is not valid UTF-8, so it was read as Windows-1252 (Western European), as older spreadsheets and loggers write it; check that names and units with accents or symbols read right.',
+      );
     }
     return collector.finish(layout, stats);
   });

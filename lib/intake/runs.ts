@@ -7,11 +7,24 @@ import type { IngestRunRecord } from './run-record';
 /** The public shape of a run (its report apart). */
 export function presentRun(run: IngestRun & { series?: Series | null }): IngestRunRecord {
   return {
-    id: run.id, series: run.series ? { slug: run.series.slug, name: run.series.name, timeZone: run.series.timeZone } : null, source: run.source,
-    fileName: run.fileName, contentHash: run.contentHash, status: run.status, rowsRead: run.rowsRead, accepted: run.accepted,
-    duplicates: run.duplicates, replaced: run.replaced, rejected: run.rejected, message: run.message,
-    alreadyApplied: run.report?.alreadyApplied === true, durationMs: run.durationMs, userId: run.userId, tokenId: run.tokenId,
-    startedAt: run.startedAt.toISOString(), finishedAt: run.finishedAt?.toISOString() ?? null,
+    id: run.id,
+    series: run.series ? { slug: run.series.slug, name: run.series.name, timeZone: run.series.timeZone } : null,
+    source: run.source,
+    fileName: run.fileName,
+    contentHash: run.contentHash,
+    status: run.status,
+    rowsRead: run.rowsRead,
+    accepted: run.accepted,
+    duplicates: run.duplicates,
+    replaced: run.replaced,
+    rejected: run.rejected,
+    message: run.message,
+    alreadyApplied: run.report?.alreadyApplied === true,
+    durationMs: run.durationMs,
+    userId: run.userId,
+    tokenId: run.tokenId,
+    startedAt: run.startedAt.toISOString(),
+    finishedAt: run.finishedAt?.toISOString() ?? null,
   };
 }
 

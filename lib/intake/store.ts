@@ -9,7 +9,8 @@ import type { CollectedRows, RejectedRow } from './rows';
 /** Rows per multi-row INSERT: 500 × 7 parameters stays far below SQLite's variable limit and amortises each call. */
 const INSERT_BATCH = 500;
 const COLUMNS = 7;
-const INSERT_SQL = (count: number) => `INSERT INTO observations (series_id, t, value, ingest_run_id, flag, flag_test, source_flag) VALUES ${new Array(count).fill('(?,?,?,?,?,?,?)').join(',')}`;
+const INSERT_SQL = (count: number) =>
+  `INSERT INTO observations (series_id, t, value, ingest_run_id, flag, flag_test, source_flag) VALUES ${new Array(count).fill('(?,?,?,?,?,?,?)').join(',')}`;
 const READ_PAGE = 50_000;
 
 export const ROW_NEW = 0;
@@ -52,7 +53,11 @@ export async function classifyAgainstStored(seriesId: number, rows: CollectedRow
   const kind = new Uint8Array(n);
   const stored = new Float64Array(n);
   if (n === 0) return { kind, stored };
-  const [{ count }] = await all<{ count: number }>(conn, 'SELECT COUNT(*) AS count FROM observations WHERE series_id = ? AND t BETWEEN ? AND ?', [seriesId, rows.t[0], rows.t[n - 1]]);
+  const [{ count }] = await all<{ count: number }>(conn, 'SELECT COUNT(*) AS count FROM observations WHERE series_id = ? AND t BETWEEN ? AND ?', [
+    seriesId,
+    rows.t[0],
+    rows.t[n - 1],
+  ]);
   const mark = (i: number, value: number) => {
     stored[i] = value;
     kind[i] = value === rows.value[i] ? ROW_DUPLICATE : ROW_CONFLICT;
@@ -62,7 +67,11 @@ export async function classifyAgainstStored(seriesId: number, rows: CollectedRow
     let i = 0;
     let after = rows.t[0] - 1;
     for (;;) {
-      const page = await all<{ t: number; value: number }>(conn, 'SELECT t, value FROM observations WHERE series_id = ? AND t > ? AND t <= ? ORDER BY t LIMIT ?', [seriesId, after, rows.t[n - 1], READ_PAGE]);
+      const page = await all<{ t: number; value: number }>(
+        conn,
+        'SELECT t, value FROM observations WHERE series_id = ? AND t > ? AND t <= ? ORDER BY t LIMIT ?',
+        [seriesId, after, rows.t[n - 1], READ_PAGE],
+      );
       for (const row of page) {
         while (i < n && rows.t[i] < row.t) i++;
         if (i < n && rows.t[i] === row.t) mark(i, row.value);
@@ -80,7 +89,11 @@ export async function classifyAgainstStored(seriesId: number, rows: CollectedRow
         index.set(rows.t[i], i);
         params.push(rows.t[i]);
       }
-      const found = await all<{ t: number; value: number }>(conn, `SELECT t, value FROM observations WHERE series_id = ? AND t IN (${new Array(end - start).fill('?').join(',')})`, params);
+      const found = await all<{ t: number; value: number }>(
+        conn,
+        `SELECT t, value FROM observations WHERE series_id = ? AND t IN (${new Array(end - start).fill('?').join(',')})`,
+        params,
+      );
       for (const row of found) mark(index.get(row.t)!, row.value);
     }
   }
@@ -91,7 +104,11 @@ export function conflictRejections(rows: CollectedRows, classified: Classified):
   const out: RejectedRow[] = [];
   for (let i = 0; i < rows.t.length; i++) {
     if (classified.kind[i] === ROW_CONFLICT) {
-      out.push({ line: rows.line[i], column: rows.timeColumn, reason: `a different value (${classified.stored[i]}) is already stored for this instant; the stored value is kept (duplicate policy: reject)` });
+      out.push({
+        line: rows.line[i],
+        column: rows.timeColumn,
+        reason: `a different value (${classified.stored[i]}) is already stored for this instant; the stored value is kept (duplicate policy: reject)`,
+      });
     }
   }
   return out;
@@ -113,10 +130,16 @@ export async function writeRows(
 ): Promise<{ inserted: number; replaced: number }> {
   const conn = connectionOf(transaction);
   const full = await prepare(conn, INSERT_SQL(INSERT_BATCH));
-  const update = await prepare(conn, 'UPDATE observations SET value = ?, ingest_run_id = ?, flag = ?, flag_test = ?, source_flag = ? WHERE series_id = ? AND t = ?');
+  const update = await prepare(
+    conn,
+    'UPDATE observations SET value = ?, ingest_run_id = ?, flag = ?, flag_test = ?, source_flag = ? WHERE series_id = ? AND t = ?',
+  );
   // A replaced value is kept as an earlier version, naming the run that replaces it (reprocessed data stays traceable).
-  const keep = await prepare(conn, `INSERT INTO observation_versions (series_id, t, value, flag, flag_test, source_flag, ingest_run_id, replaced_by_run_id, replaced_at)
-    SELECT series_id, t, value, flag, flag_test, source_flag, ingest_run_id, ?, ? FROM observations WHERE series_id = ? AND t = ?`);
+  const keep = await prepare(
+    conn,
+    `INSERT INTO observation_versions (series_id, t, value, flag, flag_test, source_flag, ingest_run_id, replaced_by_run_id, replaced_at)
+    SELECT series_id, t, value, flag, flag_test, source_flag, ingest_run_id, ?, ? FROM observations WHERE series_id = ? AND t = ?`,
+  );
   const now = sqlDate(Date.now());
   const sourceFlag = (i: number) => (rows.sourceFlag && rows.sourceFlag[i] ? rows.sourceFlag[i] : null);
   let inserted = 0;
@@ -153,4 +176,3 @@ export async function writeRows(
   }
   return { inserted, replaced };
 }
-

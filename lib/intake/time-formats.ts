@@ -99,16 +99,26 @@ export function zoneOffsetMs(zone: string, utcMs: number): number {
   let formatter = formatters.get(zone);
   if (!formatter) {
     formatter = new Intl.DateTimeFormat('en-US', {
-      timeZone: zone, hourCycle: 'h23', era: 'short', year: 'numeric', month: 'numeric', day: 'numeric',
-      hour: 'numeric', minute: 'numeric', second: 'numeric',
+      timeZone: zone,
+      hourCycle: 'h23',
+      era: 'short',
+      year: 'numeric',
+      month: 'numeric',
+      day: 'numeric',
+      hour: 'numeric',
+      minute: 'numeric',
+      second: 'numeric',
     });
     formatters.set(zone, formatter);
   }
   const parts: Record<string, string> = {};
   for (const part of formatter.formatToParts(new Date(utcMs))) parts[part.type] = part.value;
   const year = parts.era === 'BC' || parts.era === 'B' ? 1 - Number(parts.year) : Number(parts.year);
-  const local = daysFromCivil(year, Number(parts.month), Number(parts.day)) * DAY_MS
-    + Number(parts.hour) * 3_600_000 + Number(parts.minute) * 60_000 + Number(parts.second) * 1000;
+  const local =
+    daysFromCivil(year, Number(parts.month), Number(parts.day)) * DAY_MS +
+    Number(parts.hour) * 3_600_000 +
+    Number(parts.minute) * 60_000 +
+    Number(parts.second) * 1000;
   const offset = local - (utcMs - (((utcMs % 1000) + 1000) % 1000));
   if (offsetMemo.size > 200_000) offsetMemo.clear();
   offsetMemo.set(key, offset);
@@ -133,9 +143,7 @@ export function localToUtc(localMs: number, zone: string): number | null {
   return best;
 }
 
-export type TimeParse =
-  | { ok: true; t: number; offset?: string; local?: boolean }
-  | { ok: false; reason: string };
+export type TimeParse = { ok: true; t: number; offset?: string; local?: boolean } | { ok: false; reason: string };
 
 const fail = (reason: string): TimeParse => ({ ok: false, reason });
 

@@ -13,8 +13,14 @@ export function hashIngestToken(token: string): string {
 
 export function presentToken(token: IngestToken) {
   return {
-    id: token.id, seriesId: token.seriesId, label: token.label, createdBy: token.createdBy, createdAt: token.createdAt,
-    lastUsedAt: token.lastUsedAt, revokedAt: token.revokedAt, revoked: token.revokedAt !== null,
+    id: token.id,
+    seriesId: token.seriesId,
+    label: token.label,
+    createdBy: token.createdBy,
+    createdAt: token.createdAt,
+    lastUsedAt: token.lastUsedAt,
+    revokedAt: token.revokedAt,
+    revoked: token.revokedAt !== null,
   };
 }
 
@@ -23,11 +29,22 @@ export function presentToken(token: IngestToken) {
  * recognisable. `actor` null: issued by Brinkwatch itself (the demo's push station). Inside `transaction` when one
  * is given, so a caller can keep what it needs of the token in the same commit.
  */
-export async function issueIngestToken(seriesId: number, label: string, actor: Pick<Actor, 'id'> | null, transaction?: Transaction): Promise<{ id: number; token: string }> {
+export async function issueIngestToken(
+  seriesId: number,
+  label: string,
+  actor: Pick<Actor, 'id'> | null,
+  transaction?: Transaction,
+): Promise<{ id: number; token: string }> {
   const token = `bwi_${crypto.randomBytes(32).toString('base64url')}`;
   const issue = async (within: Transaction) => {
-    const row = await IngestToken.create({ seriesId, tokenHash: hashIngestToken(token), label, createdBy: actor?.id ?? null, lastUsedAt: null, revokedAt: null }, { transaction: within });
-    await recordAudit({ actorId: actor?.id ?? null, action: 'ingest-token.issue', entity: 'ingest-token', entityId: row.id, details: { seriesId, label } }, within);
+    const row = await IngestToken.create(
+      { seriesId, tokenHash: hashIngestToken(token), label, createdBy: actor?.id ?? null, lastUsedAt: null, revokedAt: null },
+      { transaction: within },
+    );
+    await recordAudit(
+      { actorId: actor?.id ?? null, action: 'ingest-token.issue', entity: 'ingest-token', entityId: row.id, details: { seriesId, label } },
+      within,
+    );
     return { id: row.id, token };
   };
   return transaction ? issue(transaction) : writeTransaction(issue);
@@ -46,7 +63,10 @@ export async function revokeIngestToken(id: number, actor: Pick<Actor, 'id'>): P
     if (!token) throw new NotFoundError('Ingest token');
     if (!token.revokedAt) {
       await token.update({ revokedAt: new Date() }, { transaction });
-      await recordAudit({ actorId: actor.id, action: 'ingest-token.revoke', entity: 'ingest-token', entityId: id, details: { seriesId: token.seriesId } }, transaction);
+      await recordAudit(
+        { actorId: actor.id, action: 'ingest-token.revoke', entity: 'ingest-token', entityId: id, details: { seriesId: token.seriesId } },
+        transaction,
+      );
     }
     return token;
   });

@@ -19,7 +19,17 @@ export interface ObservationVersion {
  * reprocessing changed, with the run (user, token or file) that changed it. Indexed by (series_id, t).
  */
 export async function observationVersions(seriesId: number, range: { from?: number; to?: number; limit?: number }): Promise<ObservationVersion[]> {
-  const rows = await allRows<{ t: number; value: number; flag: number; ingest_run_id: number | null; replaced_by_run_id: number; replaced_at: string; source: string | null; file_name: string | null; user_id: number | null }>(
+  const rows = await allRows<{
+    t: number;
+    value: number;
+    flag: number;
+    ingest_run_id: number | null;
+    replaced_by_run_id: number;
+    replaced_at: string;
+    source: string | null;
+    file_name: string | null;
+    user_id: number | null;
+  }>(
     await rawReadConnection(),
     `SELECT v.t, v.value, v.flag, v.ingest_run_id, v.replaced_by_run_id, v.replaced_at, r.source, r.file_name, r.user_id
       FROM observation_versions v LEFT JOIN ingest_runs r ON r.id = v.replaced_by_run_id
@@ -27,7 +37,11 @@ export async function observationVersions(seriesId: number, range: { from?: numb
     [seriesId, range.from ?? -Number.MAX_VALUE, range.to ?? Number.MAX_VALUE, range.limit ?? 10_000],
   );
   return rows.map((row) => ({
-    t: Number(row.t), time: formatInstant(Number(row.t)), value: row.value, flag: row.flag, writtenByRun: row.ingest_run_id,
+    t: Number(row.t),
+    time: formatInstant(Number(row.t)),
+    value: row.value,
+    flag: row.flag,
+    writtenByRun: row.ingest_run_id,
     replacedAt: new Date(row.replaced_at.replace(' +00:00', 'Z').replace(' ', 'T')).toISOString(),
     replacedBy: { runId: row.replaced_by_run_id, source: row.source, fileName: row.file_name, userId: row.user_id },
   }));

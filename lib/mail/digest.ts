@@ -40,7 +40,7 @@ export async function enqueueDigests(now = new Date()): Promise<number> {
         alertId: alert.id,
         seriesName: joined.series?.name ?? `series ${alert.seriesId}`,
         kind: alert.kind,
-        indicator: alert.kind === 'slowing-down' ? joined.rule?.indicator ?? '' : null,
+        indicator: alert.kind === 'slowing-down' ? (joined.rule?.indicator ?? '') : null,
         direction: evaluation?.direction ?? joined.rule?.direction ?? null,
         severity: alert.severity,
         state: alert.state,

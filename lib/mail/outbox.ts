@@ -58,7 +58,9 @@ export async function fetchOutbox(filter: { status?: string; page: number; pageS
     offset: (filter.page - 1) * filter.pageSize,
   });
   const sequelize = await db();
-  const totals = await sequelize.query<{ status: string; count: number }>('SELECT status, COUNT(*) AS count FROM mail_outbox GROUP BY status', { type: QueryTypes.SELECT });
+  const totals = await sequelize.query<{ status: string; count: number }>('SELECT status, COUNT(*) AS count FROM mail_outbox GROUP BY status', {
+    type: QueryTypes.SELECT,
+  });
   return { items: rows.map(presentOutboxMessage), total: count, counts: Object.fromEntries(totals.map((t) => [t.status, Number(t.count)])) };
 }
 
@@ -70,8 +72,10 @@ export async function retryMail(id: number, actor: Pick<Actor, 'id'>): Promise<M
     if (message.status === 'sent') throw new ConflictError('This message has already been delivered.');
     if (message.status === 'sending') throw new ConflictError('This message is being sent right now.');
     await message.update({ status: 'pending', attempts: 0, nextAttemptAt: new Date(), claimedBy: null }, { transaction });
-    await recordAudit({ actorId: actor.id, action: 'mail.retry', entity: 'mail_outbox', entityId: id, details: { to: message.toAddress, kind: message.kind } }, transaction);
+    await recordAudit(
+      { actorId: actor.id, action: 'mail.retry', entity: 'mail_outbox', entityId: id, details: { to: message.toAddress, kind: message.kind } },
+      transaction,
+    );
     return message;
   });
 }
-

@@ -54,7 +54,9 @@ async function claimDue(claim: string, now: number): Promise<ClaimedRow[]> {
 
 async function finish(id: number, claim: string, fields: Record<string, unknown>): Promise<void> {
   const sequelize = await db();
-  const sets = Object.keys(fields).map((k) => `${k} = :${k}`).join(', ');
+  const sets = Object.keys(fields)
+    .map((k) => `${k} = :${k}`)
+    .join(', ');
   // Only the holder of the claim may settle the row; a sender whose claim was taken over leaves it alone.
   await sequelize.query(`UPDATE mail_outbox SET ${sets}, claimed_by = NULL, updated_at = :updatedAt WHERE id = :id AND claimed_by = :claim`, {
     replacements: { ...fields, id, claim, updatedAt: sqlDate(Date.now()) },

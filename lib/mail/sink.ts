@@ -59,7 +59,10 @@ export function decodeEncodedWords(value: string): string {
       const bytes =
         encoding.toUpperCase() === 'B'
           ? Buffer.from(text, 'base64')
-          : Buffer.from(text.replace(/_/g, ' ').replace(/=([0-9A-Fa-f]{2})/g, (_m, hex: string) => String.fromCharCode(parseInt(hex, 16))), 'latin1');
+          : Buffer.from(
+              text.replace(/_/g, ' ').replace(/=([0-9A-Fa-f]{2})/g, (_m, hex: string) => String.fromCharCode(parseInt(hex, 16))),
+              'latin1',
+            );
       return new TextDecoder(/^utf-?8$/i.test(charset) ? 'utf-8' : charset).decode(bytes);
     });
 }

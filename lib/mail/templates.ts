@@ -26,7 +26,16 @@ type Row = [label: string, value: string];
  * The one layout of every message: heading, an optional table of facts, paragraphs, an optional button link,
  * and the standing caution when the message carries indicator evidence. Everything user-supplied is escaped here.
  */
-function compose(parts: { subject: string; heading: string; intro: string[]; rows?: Row[]; link?: { href: string; label: string }; outro?: string[]; caution?: boolean; unsubscribe?: string }): RenderedMail {
+function compose(parts: {
+  subject: string;
+  heading: string;
+  intro: string[];
+  rows?: Row[];
+  link?: { href: string; label: string };
+  outro?: string[];
+  caution?: boolean;
+  unsubscribe?: string;
+}): RenderedMail {
   const rows = parts.rows ?? [];
   const width = Math.max(0, ...rows.map(([label]) => label.length));
   const text = [
@@ -81,7 +90,15 @@ export interface AlertEvidence {
   dataFrom: number | null;
   dataTo: number | null;
   n: number;
-  rule: { minTau: number; direction: string; maxSurrogateP: number | null; fdrLevel: number | null; levelThreshold: number | null; levelDirection: string; persistence: number } | null;
+  rule: {
+    minTau: number;
+    direction: string;
+    maxSurrogateP: number | null;
+    fdrLevel: number | null;
+    levelThreshold: number | null;
+    levelDirection: string;
+    persistence: number;
+  } | null;
   /** the rule's calibrated false-alarm rate; null = not yet calibrated */
   calibration: CalibrationLine | null;
   /** the abrupt shift an abrupt-shift alert reports */
@@ -102,7 +119,8 @@ const SMOOTHERS: Partial<Record<string, string>> = { gaussian: 'Gaussian kernel 
 
 function describeDetrending(e: AlertEvidence): string {
   const smoother = SMOOTHERS[e.detrend];
-  if (smoother) return `${smoother}, bandwidth ${describeExtent(e.bandwidth, 'the analysed stretch')}${e.bandwidthPoints !== null ? ` (kernel sd h = ${Math.round(e.bandwidthPoints)} points)` : ''}`;
+  if (smoother)
+    return `${smoother}, bandwidth ${describeExtent(e.bandwidth, 'the analysed stretch')}${e.bandwidthPoints !== null ? ` (kernel sd h = ${Math.round(e.bandwidthPoints)} points)` : ''}`;
   if (e.detrend === 'moving-average') return `centred moving average of ${e.bandwidthPoints ?? '?'} points`;
   return e.detrend;
 }
@@ -141,7 +159,15 @@ function evidenceRows(e: AlertEvidence): Row[] {
     series,
     ['Indicator', label],
     ['Kendall tau', tauWithDirection(e.tau, e.direction)],
-    ['Surrogate p', e.surrogateCount > 0 ? `${formatP(e.surrogateP)} (${DIRECTION_WORDS[e.direction as 'rising'] ?? e.direction}) from ${e.surrogateCount} ${e.surrogateMethod ?? ''} surrogates`.replace(/\s+/g, ' ') : 'not tested (no surrogates in the series settings)'],
+    [
+      'Surrogate p',
+      e.surrogateCount > 0
+        ? `${formatP(e.surrogateP)} (${DIRECTION_WORDS[e.direction as 'rising'] ?? e.direction}) from ${e.surrogateCount} ${e.surrogateMethod ?? ''} surrogates`.replace(
+            /\s+/g,
+            ' ',
+          )
+        : 'not tested (no surrogates in the series settings)',
+    ],
     ['Kendall p', `${kendallPLabel(e.kendallP)}, ${DIRECTION_WORDS[e.kendallDirection as 'rising'] ?? e.kendallDirection}`],
     ['Latest value', formatValue(e.latestValue)],
     ['Rolling window', withPoints(e.windowFraction, e.windowPoints, 'the analysed stretch')],
@@ -159,7 +185,9 @@ export function newAlertMail(e: AlertEvidence): RenderedMail {
   return compose({
     subject: `[Brinkwatch] ${level}: ${label} trend on ${e.series.name} (alert #${e.alertId})`,
     heading: `${level}: evidence of slowing down on ${e.series.name}`,
-    intro: [`A rule on ${e.series.name} was met by the latest analysis: the ${label} trend is ${DIRECTION_WORDS[e.direction as 'rising'] ?? e.direction} as the rule asks. Please take the alert in the triage queue and decide what it means.`],
+    intro: [
+      `A rule on ${e.series.name} was met by the latest analysis: the ${label} trend is ${DIRECTION_WORDS[e.direction as 'rising'] ?? e.direction} as the rule asks. Please take the alert in the triage queue and decide what it means.`,
+    ],
     rows: evidenceRows(e),
     link: { href: alertLink(e.alertId), label: 'Open the alert' },
     outro: ['You receive this because you watch this series with immediate mail. Change it on the series page.'],

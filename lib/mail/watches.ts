@@ -12,8 +12,13 @@ import { recordAudit } from '@/lib/audit';
 export async function setWatch(actor: Pick<Actor, 'id'>, series: Series, mode: WatchMode, userId = actor.id, transaction?: Transaction): Promise<Watch> {
   const work = async (t: Transaction) => {
     const existing = await Watch.findOne({ where: { userId, seriesId: series.id }, transaction: t });
-    const watch = existing ? await existing.update({ mode }, { transaction: t }) : await Watch.create({ userId, seriesId: series.id, mode }, { transaction: t });
-    await recordAudit({ actorId: actor.id, action: userId === actor.id ? 'watch.set' : 'watch.set-for', entity: 'series', entityId: series.id, details: { mode, userId } }, t);
+    const watch = existing
+      ? await existing.update({ mode }, { transaction: t })
+      : await Watch.create({ userId, seriesId: series.id, mode }, { transaction: t });
+    await recordAudit(
+      { actorId: actor.id, action: userId === actor.id ? 'watch.set' : 'watch.set-for', entity: 'series', entityId: series.id, details: { mode, userId } },
+      t,
+    );
     return watch;
   };
   return transaction ? work(transaction) : writeTransaction(work);
@@ -32,7 +37,14 @@ export interface SeriesWatcher {
 export async function seriesWatchers(seriesId: number): Promise<SeriesWatcher[]> {
   await db();
   const [users, watches] = await Promise.all([
-    User.findAll({ where: { active: true }, attributes: ['id', 'name', 'email', 'role'], order: [['name', 'ASC'], ['id', 'ASC']] }),
+    User.findAll({
+      where: { active: true },
+      attributes: ['id', 'name', 'email', 'role'],
+      order: [
+        ['name', 'ASC'],
+        ['id', 'ASC'],
+      ],
+    }),
     Watch.findAll({ where: { seriesId }, attributes: ['userId', 'mode'] }),
   ]);
   const modeOf = new Map(watches.map((w) => [w.userId, w.mode]));
@@ -45,7 +57,8 @@ export async function setSeriesWatchers(actor: Pick<Actor, 'id'>, series: Series
     const ids = [...new Set(changes.map((c) => c.userId))];
     const known = new Set((await User.findAll({ where: { id: { [Op.in]: ids }, active: true }, attributes: ['id'], transaction })).map((u) => u.id));
     const unknown = ids.filter((id) => !known.has(id));
-    if (unknown.length) throw new UnprocessableError(`No active user with id ${unknown.join(', ')}.`, { watchers: [`unknown or inactive user: ${unknown.join(', ')}`] });
+    if (unknown.length)
+      throw new UnprocessableError(`No active user with id ${unknown.join(', ')}.`, { watchers: [`unknown or inactive user: ${unknown.join(', ')}`] });
     for (const change of changes) await setWatch(actor, series, change.mode, change.userId, transaction);
   });
 }

@@ -3,7 +3,16 @@ import type { MarkKind } from '@/lib/marks/kinds';
 
 /** A mark (marked tipping point or maintenance break) as the API and the screens carry it. */
 export function presentMark(t: Mark) {
-  return { id: t.id, seriesId: t.seriesId, at: Number(t.at), atIso: new Date(Number(t.at)).toISOString(), note: t.note, kind: t.kind, createdBy: t.createdBy, createdAt: t.createdAt.toISOString() };
+  return {
+    id: t.id,
+    seriesId: t.seriesId,
+    at: Number(t.at),
+    atIso: new Date(Number(t.at)).toISOString(),
+    note: t.note,
+    kind: t.kind,
+    createdBy: t.createdBy,
+    createdAt: t.createdAt.toISOString(),
+  };
 }
 export type MarkRecord = ReturnType<typeof presentMark>;
 
@@ -13,6 +22,12 @@ export type MarkRecord = ReturnType<typeof presentMark>;
  */
 export async function listMarks(seriesId: number, kinds: readonly MarkKind[] = ['tipping-point']): Promise<MarkRecord[]> {
   await db();
-  const rows = await Mark.findAll({ where: { seriesId, kind: [...kinds] }, order: [['at', 'ASC'], ['id', 'ASC']] });
+  const rows = await Mark.findAll({
+    where: { seriesId, kind: [...kinds] },
+    order: [
+      ['at', 'ASC'],
+      ['id', 'ASC'],
+    ],
+  });
   return rows.map(presentMark);
 }

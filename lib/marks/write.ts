@@ -29,7 +29,16 @@ export async function addMark(transaction: Transaction, seriesId: number, input:
   const row = await Mark.create({ seriesId, at: input.at, note: input.note, kind: input.kind, createdBy: actor?.id ?? null }, { transaction });
   // A mark moves where the live analysis starts: analyse the series again on the next cycle.
   await Series.update({ needsAnalysis: true }, { where: { id: seriesId }, transaction });
-  await recordAudit({ actorId: actor?.id ?? null, action: 'mark.create', entity: 'mark', entityId: row.id, details: { seriesId, at: input.at, note: input.note, kind: input.kind } }, transaction);
+  await recordAudit(
+    {
+      actorId: actor?.id ?? null,
+      action: 'mark.create',
+      entity: 'mark',
+      entityId: row.id,
+      details: { seriesId, at: input.at, note: input.note, kind: input.kind },
+    },
+    transaction,
+  );
   await recalibrateRulesOf(seriesId, actor, transaction);
   return presentMark(row);
 }
@@ -39,7 +48,11 @@ export async function addMark(transaction: Transaction, seriesId: number, input:
  * active series of that site, in one transaction, so each analysed stretch starts after it. 404 when no active
  * series has that site.
  */
-export async function markSiteMaintenance(slug: string, input: { at: number; note: string }, actor: Pick<Actor, 'id'>): Promise<{ site: string; marks: MarkRecord[] }> {
+export async function markSiteMaintenance(
+  slug: string,
+  input: { at: number; note: string },
+  actor: Pick<Actor, 'id'>,
+): Promise<{ site: string; marks: MarkRecord[] }> {
   return writeTransaction(async (transaction) => {
     const site = await findSiteBySlug(slug, transaction);
     const series = await Series.findAll({ where: { siteId: site.id, retiredAt: null }, attributes: ['id'], order: [['id', 'ASC']], transaction });

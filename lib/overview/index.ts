@@ -134,7 +134,7 @@ async function sparklines(rows: SeriesRow[]): Promise<Map<number, Spark>> {
       sparkCache.set(key(r), spark);
     }
   }
-  return new Map(rows.map((r) => [r.id, r.snap_id === null ? null : sparkCache.get(key(r)) ?? null]));
+  return new Map(rows.map((r) => [r.id, r.snap_id === null ? null : (sparkCache.get(key(r)) ?? null)]));
 }
 
 const OPEN = OPEN_ALERT_STATES.map((s) => `'${s}'`).join(',');

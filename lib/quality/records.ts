@@ -63,11 +63,13 @@ async function updateChanged(conn: Database, seriesId: number, rows: StoredRow[]
     const row = rows[i];
     if (setterOf(row) === ANALYST) continue;
     if (row.flag === flags.flag[i] && setterOf(row) === flags.setter[i]) continue;
-    await new Promise<void>((resolve, reject) => conn.run(
-      'UPDATE observations SET flag = ?, flag_test = ? WHERE series_id = ? AND t = ?',
-      [flags.flag[i], setterName(flags.setter[i]), seriesId, row.t],
-      (error) => (error ? reject(error) : resolve()),
-    ));
+    await new Promise<void>((resolve, reject) =>
+      conn.run(
+        'UPDATE observations SET flag = ?, flag_test = ? WHERE series_id = ? AND t = ?',
+        [flags.flag[i], setterName(flags.setter[i]), seriesId, row.t],
+        (error) => (error ? reject(error) : resolve()),
+      ),
+    );
     changed++;
   }
   return changed;
@@ -86,13 +88,23 @@ export async function judgeIncoming(transaction: Transaction, series: Series, ro
   const conn = connectionOf(transaction);
   // The spike test looks one reading back, the flat line REP_CNT_FAIL; the rate of change its whole period.
   const lookBack = Math.max(2, (config.flatLine?.fail ?? 0) + 1);
-  const context = (await allRows<StoredRow>(
-    conn,
-    `SELECT t, value, flag, flag_test, source_flag FROM observations WHERE series_id = ? AND t < ?
+  const context = (
+    await allRows<StoredRow>(
+      conn,
+      `SELECT t, value, flag, flag_test, source_flag FROM observations WHERE series_id = ? AND t < ?
       AND (t >= ? OR t >= (SELECT MIN(t) FROM (SELECT t FROM observations WHERE series_id = ? AND t < ? ORDER BY t DESC LIMIT ?)))
       ORDER BY t DESC LIMIT ?`,
-    [series.id, rows.t[0], config.rateOfChange ? rows.t[0] - config.rateOfChange.periodHours * 3_600_000 : rows.t[0], series.id, rows.t[0], lookBack, MAX_CONTEXT],
-  )).reverse();
+      [
+        series.id,
+        rows.t[0],
+        config.rateOfChange ? rows.t[0] - config.rateOfChange.periodHours * 3_600_000 : rows.t[0],
+        series.id,
+        rows.t[0],
+        lookBack,
+        MAX_CONTEXT,
+      ],
+    )
+  ).reverse();
   const all = runOver(series, context, rows);
   await updateChanged(conn, series.id, context, { flag: all.flag.subarray(0, context.length), setter: all.setter.subarray(0, context.length) });
   return { flag: all.flag.subarray(context.length), setter: all.setter.subarray(context.length) };
@@ -128,14 +140,19 @@ export async function rerunQuality(series: Series, actor: { id: number } | null)
     const changed = await updateChanged(conn, series.id, rows, flags);
     if (changed) await Series.update({ needsAnalysis: true }, { where: { id: series.id }, transaction });
     const counts = await flagCounts(conn, series.id);
-    await recordAudit({ actorId: actor?.id ?? null, action: 'quality.rerun', entity: 'series', entityId: series.id, details: { points: rows.length, changed, counts } }, transaction);
+    await recordAudit(
+      { actorId: actor?.id ?? null, action: 'quality.rerun', entity: 'series', entityId: series.id, details: { points: rows.length, changed, counts } },
+      transaction,
+    );
     return { points: rows.length, changed, counts };
   });
 }
 
 /** How many of the series' points carry each flag, by its label. */
 async function flagCounts(conn: Database, seriesId: number): Promise<Record<string, number>> {
-  const rows = await allRows<{ flag: QartodFlag; n: number }>(conn, 'SELECT flag, COUNT(*) AS n FROM observations WHERE series_id = ? GROUP BY flag', [seriesId]);
+  const rows = await allRows<{ flag: QartodFlag; n: number }>(conn, 'SELECT flag, COUNT(*) AS n FROM observations WHERE series_id = ? GROUP BY flag', [
+    seriesId,
+  ]);
   return Object.fromEntries(rows.map((row) => [FLAG_LABELS[row.flag] ?? String(row.flag), row.n]));
 }
 
@@ -154,19 +171,27 @@ export async function overrideFlags(series: Series, override: FlagOverride, acto
   if (input.from > input.to) throw new UnprocessableError('Some fields are not valid.', { to: ['The end of the range is before its start.'] });
   return writeTransaction(async (transaction) => {
     const conn = connectionOf(transaction);
-    const changed = await new Promise<number>((resolve, reject) => conn.run(
-      "UPDATE observations SET flag = ?, flag_test = 'analyst' WHERE series_id = ? AND t >= ? AND t <= ?",
-      [input.flag, series.id, input.from, input.to],
-      function done(this: { changes: number }, error: Error | null) {
-        if (error) reject(error);
-        else resolve(this.changes);
-      },
-    ));
+    const changed = await new Promise<number>((resolve, reject) =>
+      conn.run(
+        "UPDATE observations SET flag = ?, flag_test = 'analyst' WHERE series_id = ? AND t >= ? AND t <= ?",
+        [input.flag, series.id, input.from, input.to],
+        function done(this: { changes: number }, error: Error | null) {
+          if (error) reject(error);
+          else resolve(this.changes);
+        },
+      ),
+    );
     if (changed) await Series.update({ needsAnalysis: true }, { where: { id: series.id }, transaction });
-    await recordAudit({
-      actorId: actor.id, action: 'quality.override', entity: 'series', entityId: series.id,
-      details: { from: input.from, to: input.to, flag: input.flag, reason: input.reason, changed },
-    }, transaction);
+    await recordAudit(
+      {
+        actorId: actor.id,
+        action: 'quality.override',
+        entity: 'series',
+        entityId: series.id,
+        details: { from: input.from, to: input.to, flag: input.flag, reason: input.reason, changed },
+      },
+      transaction,
+    );
     return { changed };
   });
 }
@@ -178,8 +203,16 @@ export async function overrideFlags(series: Series, override: FlagOverride, acto
 export async function flaggedPoints(seriesId: number, from: number, to: number, limit: number): Promise<{ points: FlaggedPoint[]; total: number }> {
   const conn = await rawReadConnection();
   const [rows, [{ total }]] = await Promise.all([
-    allRows<{ t: number; value: number; flag: QartodFlag; flag_test: FlagSetter | null }>(conn, 'SELECT t, value, flag, flag_test FROM observations WHERE series_id = ? AND t >= ? AND t <= ? AND flag IN (3, 4, 9) ORDER BY t LIMIT ?', [seriesId, from, to, limit]),
-    allRows<{ total: number }>(conn, 'SELECT COUNT(*) AS total FROM observations WHERE series_id = ? AND t >= ? AND t <= ? AND flag IN (3, 4, 9)', [seriesId, from, to]),
+    allRows<{ t: number; value: number; flag: QartodFlag; flag_test: FlagSetter | null }>(
+      conn,
+      'SELECT t, value, flag, flag_test FROM observations WHERE series_id = ? AND t >= ? AND t <= ? AND flag IN (3, 4, 9) ORDER BY t LIMIT ?',
+      [seriesId, from, to, limit],
+    ),
+    allRows<{ total: number }>(conn, 'SELECT COUNT(*) AS total FROM observations WHERE series_id = ? AND t >= ? AND t <= ? AND flag IN (3, 4, 9)', [
+      seriesId,
+      from,
+      to,
+    ]),
   ]);
   return { points: rows.map((row) => ({ t: Number(row.t), value: row.value, flag: row.flag, test: row.flag_test })), total };
 }

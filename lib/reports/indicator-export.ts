@@ -5,7 +5,6 @@ import type { AnalysisSummary } from '@/lib/engine/analyze';
 import { analysisSettingsSchema, type AnalysisSettings, type IndicatorName } from '@/lib/engine/settings';
 import { AnalysisSnapshot, WITHOUT_CHARTS, db, type Series } from '@/models';
 
-
 export interface IndicatorTable {
   series: { slug: string; name: string; unit: string; timeZone: string };
   source: 'snapshot' | 'saved-settings' | 'posted-settings';
@@ -56,7 +55,10 @@ export async function buildIndicatorTable(series: Series, posted?: AnalysisSetti
   const { time, value, trend, residual } = result.series;
   for (let i = 0; i < time.length; i++) {
     rows.push([
-      new Date(time[i]).toISOString(), num(value[i]), num(trend[i]), num(residual[i]),
+      new Date(time[i]).toISOString(),
+      num(value[i]),
+      num(trend[i]),
+      num(residual[i]),
       ...names.map((name) => result.indicators[name]![i]),
       ...companions.map((c) => c.values[i] ?? null),
     ]);

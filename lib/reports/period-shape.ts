@@ -172,7 +172,14 @@ export interface PeriodReport {
   caution: string;
   series: ReportSeries[];
   alerts: ReportAlert[];
-  decisions: { opened: number; decided: number; undecided: number; closedBySelf: number; medianHoursToDecision: number | null; meanHoursToDecision: number | null };
+  decisions: {
+    opened: number;
+    decided: number;
+    undecided: number;
+    closedBySelf: number;
+    medianHoursToDecision: number | null;
+    meanHoursToDecision: number | null;
+  };
   completeness: { received: number; expected: number; share: number | null };
   late: LateStretch[];
   changes: ReportChange[];
@@ -195,8 +202,40 @@ const COLUMNS: { [K in ReportTable]: { rows: (r: PeriodReport) => object[] } } =
 
 /** Header names of each table, so an empty table still downloads with its columns. */
 const HEADERS: Record<ReportTable, string[]> = {
-  alerts: ['id', 'kind', 'seriesSlug', 'seriesName', 'site', 'severity', 'subject', 'openedAt', 'stateNow', 'decision', 'decidedAt', 'decidedBy', 'reason', 'note', 'hoursToDecision'],
-  series: ['id', 'slug', 'name', 'site', 'intervalMs', 'stateNow', 'freshnessNow', 'lastDataAt', 'received', 'expected', 'completeness', 'lateStretches', 'lateHours', 'alertsOpened', 'openAtEnd'],
+  alerts: [
+    'id',
+    'kind',
+    'seriesSlug',
+    'seriesName',
+    'site',
+    'severity',
+    'subject',
+    'openedAt',
+    'stateNow',
+    'decision',
+    'decidedAt',
+    'decidedBy',
+    'reason',
+    'note',
+    'hoursToDecision',
+  ],
+  series: [
+    'id',
+    'slug',
+    'name',
+    'site',
+    'intervalMs',
+    'stateNow',
+    'freshnessNow',
+    'lastDataAt',
+    'received',
+    'expected',
+    'completeness',
+    'lateStretches',
+    'lateHours',
+    'alertsOpened',
+    'openAtEnd',
+  ],
   late: ['seriesSlug', 'seriesName', 'lastDataAt', 'backAt', 'silentHours', 'alertId'],
   changes: ['at', 'who', 'seriesSlug', 'what', 'detail', 'why'],
   calibrations: ['ruleId', 'seriesSlug', 'indicator', 'severity', 'falseAlarmsPerYear', 'interval', 'calibratedAt'],
@@ -212,6 +251,10 @@ export function periodReportCsv(report: PeriodReport, table: ReportTable = 'aler
 
 /** The download's file name: brinkwatch-report-<site or network>-<from>-<to>-<table>.csv */
 export function periodCsvName(report: Pick<PeriodReport, 'period' | 'site'>, table: ReportTable): string {
-  const scope = (report.site ?? 'network').toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-|-$/g, '') || 'site';
+  const scope =
+    (report.site ?? 'network')
+      .toLowerCase()
+      .replace(/[^a-z0-9]+/g, '-')
+      .replace(/^-|-$/g, '') || 'site';
   return `brinkwatch-report-${scope}-${report.period.from}-${report.period.to}-${table}.csv`;
 }

@@ -27,7 +27,11 @@ const HOUR = 3_600_000;
  * one function.
  */
 export function siteKey(site: string): string {
-  return site.trim().toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-|-$/g, '');
+  return site
+    .trim()
+    .toLowerCase()
+    .replace(/[^a-z0-9]+/g, '-')
+    .replace(/^-|-$/g, '');
 }
 
 interface SeriesRow {
@@ -70,7 +74,8 @@ function alertSubject(row: AlertRow): string {
   return row.indicator ? indicatorLabel(row.indicator) : 'rule deleted';
 }
 
-const allowanceOf = (s: SeriesRow) => lateAfterMs(s.interval_ms === null ? null : Number(s.interval_ms), s.late_after_ms === null ? null : Number(s.late_after_ms));
+const allowanceOf = (s: SeriesRow) =>
+  lateAfterMs(s.interval_ms === null ? null : Number(s.interval_ms), s.late_after_ms === null ? null : Number(s.late_after_ms));
 
 interface RecordFacts {
   /** observations in [start, until) */
@@ -108,7 +113,8 @@ async function recordFacts(series: SeriesRow[], start: number, until: number): P
   const facts = new Map<number, RecordFacts>(edges.map((e) => [Number(e.id), { received: Number(e.n), stretches: [] }]));
   for (const g of gaps) facts.get(Number(g.series_id))!.stretches.push({ lastDataAt: Number(g.prev), backAt: Number(g.t) });
   for (const e of edges) {
-    if (e.tail_t !== null && until - Number(e.tail_t) > allowanceOf(byId.get(Number(e.id))!)) facts.get(Number(e.id))!.stretches.push({ lastDataAt: Number(e.tail_t), backAt: null });
+    if (e.tail_t !== null && until - Number(e.tail_t) > allowanceOf(byId.get(Number(e.id))!))
+      facts.get(Number(e.id))!.stretches.push({ lastDataAt: Number(e.tail_t), backAt: null });
   }
   return facts;
 }
@@ -273,7 +279,12 @@ export async function buildPeriodReport(period: Period, site: string | null = nu
     })),
     ...ruleChanges
       .filter((c) => c.series_id !== null && bySeries.has(Number(c.series_id)))
-      .map((c) => ({ at: isoOf(c.created_at), who: c.who ?? 'system', seriesSlug: bySeries.get(Number(c.series_id))!.slug, ...describeRuleChange(c.action, Number(c.entity_id), parseJson(c.details)) })),
+      .map((c) => ({
+        at: isoOf(c.created_at),
+        who: c.who ?? 'system',
+        seriesSlug: bySeries.get(Number(c.series_id))!.slug,
+        ...describeRuleChange(c.action, Number(c.entity_id), parseJson(c.details)),
+      })),
   ].sort((a, b) => a.at.localeCompare(b.at));
 
   return {
@@ -309,7 +320,13 @@ export async function buildPeriodReport(period: Period, site: string | null = nu
     marks: marks.map((m) => ({ seriesSlug: bySeries.get(Number(m.series_id))!.slug, kind: m.kind, at: iso(Number(m.at)), note: m.note, by: m.who })),
     shifts: alerts
       .filter((a) => a.kind === 'abrupt-shift')
-      .map((a) => ({ alertId: Number(a.id), seriesSlug: bySeries.get(Number(a.series_id))!.slug, at: a.shift_time === null ? '' : iso(Number(a.shift_time)), size: a.shift_size === null ? null : Number(a.shift_size), stateNow: a.state })),
+      .map((a) => ({
+        alertId: Number(a.id),
+        seriesSlug: bySeries.get(Number(a.series_id))!.slug,
+        at: a.shift_time === null ? '' : iso(Number(a.shift_time)),
+        size: a.shift_size === null ? null : Number(a.shift_size),
+        stateNow: a.state,
+      })),
   };
 }
 
@@ -346,11 +363,20 @@ const RULE_WORDS: Record<string, string> = {
  * given, the backtest a threshold was chosen from; otherwise none was asked for.
  */
 function describeRuleChange(action: string, ruleId: number, details: Record<string, unknown>): Pick<ReportChange, 'what' | 'detail' | 'why'> {
-  const why = typeof details.reason === 'string' ? details.reason : typeof details.note === 'string' ? details.note : action === 'rule.threshold' && details.jobId ? `chosen from backtest #${String(details.jobId)}` : null;
+  const why =
+    typeof details.reason === 'string'
+      ? details.reason
+      : typeof details.note === 'string'
+        ? details.note
+        : action === 'rule.threshold' && details.jobId
+          ? `chosen from backtest #${String(details.jobId)}`
+          : null;
   let detail = '';
   if (action === 'rule.update' && details.changes && typeof details.changes === 'object') {
     const before = (details.before ?? {}) as Record<string, unknown>;
-    detail = Object.entries(details.changes as Record<string, unknown>).map(([k, v]) => `${k} ${JSON.stringify(before[k] ?? null)} → ${JSON.stringify(v)}`).join('; ');
+    detail = Object.entries(details.changes as Record<string, unknown>)
+      .map(([k, v]) => `${k} ${JSON.stringify(before[k] ?? null)} → ${JSON.stringify(v)}`)
+      .join('; ');
   } else if (action === 'rule.threshold') detail = `threshold ${JSON.stringify(details.before ?? null)} → ${JSON.stringify(details.after ?? null)}`;
   else if (action === 'rule.create') detail = `${indicatorLabel(String(details.indicator ?? ''))}, min tau ${String(details.minTau ?? '?')}`;
   return { what: `${RULE_WORDS[action] ?? action} (#${ruleId})`, detail, why };

@@ -18,12 +18,28 @@ import { periodBounds, previousPeriod, type PeriodKind, type PeriodReport } from
 const CADENCE_PERIOD: Record<ReportCadence, PeriodKind> = { monthly: 'month', quarterly: 'quarter' };
 
 export function presentSchedule(s: ReportSchedule): ReportScheduleView {
-  return { id: s.id, name: s.name, site: s.site, cadence: s.cadence, recipients: s.recipients, active: s.active, createdAt: s.createdAt.toISOString(), updatedAt: s.updatedAt.toISOString() };
+  return {
+    id: s.id,
+    name: s.name,
+    site: s.site,
+    cadence: s.cadence,
+    recipients: s.recipients,
+    active: s.active,
+    createdAt: s.createdAt.toISOString(),
+    updatedAt: s.updatedAt.toISOString(),
+  };
 }
 
 export async function listSchedules(): Promise<ReportScheduleView[]> {
   await db();
-  return (await ReportSchedule.findAll({ order: [['name', 'ASC'], ['id', 'ASC']] })).map(presentSchedule);
+  return (
+    await ReportSchedule.findAll({
+      order: [
+        ['name', 'ASC'],
+        ['id', 'ASC'],
+      ],
+    })
+  ).map(presentSchedule);
 }
 
 export async function createSchedule(input: ReportScheduleInput, actor: Pick<Actor, 'id'>): Promise<ReportScheduleView> {
@@ -42,7 +58,10 @@ export async function updateSchedule(id: number, input: ReportScheduleUpdate, ac
     if (!schedule) throw new NotFoundError('Report schedule');
     const before = presentSchedule(schedule);
     await schedule.update(changes, { transaction });
-    await recordAudit({ actorId: actor.id, action: 'report-schedule.update', entity: 'report_schedule', entityId: id, details: { before, changes } }, transaction);
+    await recordAudit(
+      { actorId: actor.id, action: 'report-schedule.update', entity: 'report_schedule', entityId: id, details: { before, changes } },
+      transaction,
+    );
     return presentSchedule(schedule);
   });
 }
@@ -52,7 +71,16 @@ export async function deleteSchedule(id: number, actor: Pick<Actor, 'id'>): Prom
     const schedule = await ReportSchedule.findByPk(id, { transaction });
     if (!schedule) throw new NotFoundError('Report schedule');
     await schedule.destroy({ transaction });
-    await recordAudit({ actorId: actor.id, action: 'report-schedule.delete', entity: 'report_schedule', entityId: id, details: presentSchedule(schedule) as unknown as Record<string, unknown> }, transaction);
+    await recordAudit(
+      {
+        actorId: actor.id,
+        action: 'report-schedule.delete',
+        entity: 'report_schedule',
+        entityId: id,
+        details: presentSchedule(schedule) as unknown as Record<string, unknown>,
+      },
+      transaction,
+    );
   });
 }
 
@@ -102,7 +130,10 @@ export async function unsubscribe(token: string): Promise<{ address: string; rem
     const schedule = await ReportSchedule.findByPk(read.scheduleId, { transaction });
     if (!schedule || !schedule.recipients.includes(read.address)) return { address: read.address, removed: false };
     await schedule.update({ recipients: schedule.recipients.filter((r) => r !== read.address) }, { transaction });
-    await recordAudit({ actorId: null, action: 'report-schedule.unsubscribe', entity: 'report_schedule', entityId: schedule.id, details: { address: read.address } }, transaction);
+    await recordAudit(
+      { actorId: null, action: 'report-schedule.unsubscribe', entity: 'report_schedule', entityId: schedule.id, details: { address: read.address } },
+      transaction,
+    );
     return { address: read.address, removed: true };
   });
 }
@@ -134,7 +165,12 @@ export async function sendDueReports(now = Date.now()): Promise<number> {
     if (periodBounds(period).end <= schedule.createdAt.getTime() || !schedule.recipients.length) continue;
     const keys = schedule.recipients.map((r) => dedupeKey(schedule.id, period.from, r));
     const sent = new Set(
-      (await sequelize.query<{ dedupe_key: string }>('SELECT dedupe_key FROM mail_outbox WHERE dedupe_key IN (SELECT value FROM json_each(:keys))', { replacements: { keys: JSON.stringify(keys) }, type: QueryTypes.SELECT })).map((r) => r.dedupe_key),
+      (
+        await sequelize.query<{ dedupe_key: string }>('SELECT dedupe_key FROM mail_outbox WHERE dedupe_key IN (SELECT value FROM json_each(:keys))', {
+          replacements: { keys: JSON.stringify(keys) },
+          type: QueryTypes.SELECT,
+        })
+      ).map((r) => r.dedupe_key),
     );
     const waiting = schedule.recipients.filter((r) => !sent.has(dedupeKey(schedule.id, period.from, r)));
     if (!waiting.length) continue;
@@ -168,7 +204,8 @@ export async function sendDueReports(now = Date.now()): Promise<number> {
       const current = await ReportSchedule.findOne({ where: { id: schedule.id, active: true }, transaction });
       for (const address of waiting.filter((r) => current?.recipients.includes(r))) {
         const mail = periodReportMail({ ...facts, unsubscribeLink: `${publicBaseUrl()}/unsubscribe/${unsubscribeToken(schedule.id, address)}` });
-        if (await enqueueMail({ kind: 'period-report', dedupeKey: dedupeKey(schedule.id, period.from, address), to: address, ...mail }, transaction)) enqueued += 1;
+        if (await enqueueMail({ kind: 'period-report', dedupeKey: dedupeKey(schedule.id, period.from, address), to: address, ...mail }, transaction))
+          enqueued += 1;
       }
     });
   }

@@ -5,8 +5,19 @@ import path from 'node:path';
 
 const ROOT = process.cwd();
 /** Everything that changes what `next build` produces. */
-const BUILD_INPUTS = ['app', 'components', 'lib', 'models', 'migrations', 'types', 'proxy.ts', 'next.config.mjs',
-  'tailwind.config.ts', 'postcss.config.mjs', 'package-lock.json'];
+const BUILD_INPUTS = [
+  'app',
+  'components',
+  'lib',
+  'models',
+  'migrations',
+  'types',
+  'proxy.ts',
+  'next.config.mjs',
+  'tailwind.config.ts',
+  'postcss.config.mjs',
+  'package-lock.json',
+];
 
 function distDir(): string {
   return path.join(ROOT, process.env.NEXT_DIST_DIR || '.next');

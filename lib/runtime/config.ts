@@ -44,14 +44,17 @@ const flag = (fallback: boolean) =>
     .optional()
     .transform((v) => (v === undefined || v === '' ? fallback : v === '1'));
 const url = (protocols: string[]) =>
-  optionalText.refine((v) => {
-    if (v === undefined) return true;
-    try {
-      return protocols.includes(new URL(v).protocol);
-    } catch {
-      return false;
-    }
-  }, `must be a URL starting with ${protocols.map((p) => `${p}//`).join(' or ')}`);
+  optionalText.refine(
+    (v) => {
+      if (v === undefined) return true;
+      try {
+        return protocols.includes(new URL(v).protocol);
+      } catch {
+        return false;
+      }
+    },
+    `must be a URL starting with ${protocols.map((p) => `${p}//`).join(' or ')}`,
+  );
 
 const configSchema = z.object({
   DATA_DIR: optionalText,
@@ -143,7 +146,9 @@ export function publicBaseUrl(): string {
   return (config().NEXTAUTH_URL ?? `http://localhost:${appPort()}`).replace(/\/$/, '');
 }
 
-export function cronSetting(name: 'INGEST_CRON' | 'ANALYSIS_CRON' | 'MAIL_CRON' | 'DIGEST_CRON' | 'BACKTEST_CRON' | 'DEMO_FEED_CRON' | 'WEBHOOK_CRON' | 'FRESHNESS_CRON'): string {
+export function cronSetting(
+  name: 'INGEST_CRON' | 'ANALYSIS_CRON' | 'MAIL_CRON' | 'DIGEST_CRON' | 'BACKTEST_CRON' | 'DEMO_FEED_CRON' | 'WEBHOOK_CRON' | 'FRESHNESS_CRON',
+): string {
   return config()[name];
 }
 

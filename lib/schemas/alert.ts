@@ -6,13 +6,7 @@ export const TRIAGE_ACTIONS = ['acknowledge', 'assign', 'escalate', 'confirm', '
 export type TriageAction = (typeof TRIAGE_ACTIONS)[number];
 
 /** Why an alert was set aside; the analyst adds free text for the specifics. */
-export const DISMISS_REASONS = [
-  'instrument-fault',
-  'data-gap-or-artefact',
-  'seasonal-or-external-forcing',
-  'statistical-fluke',
-  'other',
-] as const;
+export const DISMISS_REASONS = ['instrument-fault', 'data-gap-or-artefact', 'seasonal-or-external-forcing', 'statistical-fluke', 'other'] as const;
 export type DismissReason = (typeof DISMISS_REASONS)[number];
 
 export const triageActionSchema = z
@@ -50,7 +44,10 @@ export const alertQueueSchema = z.object({
   severity: z.enum(['watch', 'warning']).optional(),
   /** 'slowing-down' (rule alerts) or 'abrupt-shift' */
   kind: z.enum(ALERT_KINDS).optional(),
-  age: z.string().regex(/^[<>]?\d{1,5}[hd]$/, 'Use e.g. 24h, <7d or >2d.').optional(),
+  age: z
+    .string()
+    .regex(/^[<>]?\d{1,5}[hd]$/, 'Use e.g. 24h, <7d or >2d.')
+    .optional(),
   sort: z.enum(ALERT_SORTS).default('newest'),
   page: z.coerce.number().int().min(1).default(1),
   pageSize: z.coerce.number().int().min(1).max(100).default(25),
@@ -60,5 +57,10 @@ export type AlertQueueQuery = z.output<typeof alertQueueSchema>;
 export const watchSchema = z.object({ mode: z.enum(WATCH_MODES) }).strict();
 /** Body of PUT /api/series/{slug}/watchers: a lead sets how each listed user hears of the series' alerts. */
 export const watchersUpdateSchema = z
-  .object({ watchers: z.array(z.object({ userId: z.number().int().positive(), mode: z.enum(WATCH_MODES) }).strict()).min(1).max(1000) })
+  .object({
+    watchers: z
+      .array(z.object({ userId: z.number().int().positive(), mode: z.enum(WATCH_MODES) }).strict())
+      .min(1)
+      .max(1000),
+  })
   .strict();

@@ -11,7 +11,12 @@ export const backtestRequestSchema = z
     /** series to replay on, for a default rule (one with no series of its own) */
     series: z.string().min(1).max(120).optional(),
     /** an alarm counts as a warning only this many days before a tipping point (null: one rolling window) */
-    horizonDays: z.number().positive().max(365 * 1000).nullable().default(null),
+    horizonDays: z
+      .number()
+      .positive()
+      .max(365 * 1000)
+      .nullable()
+      .default(null),
     calibration: z
       .object({
         /** surrogate replicates of the record before the first tipping point (calibrated false-alarm rate) */
@@ -35,9 +40,7 @@ export const backtestListQuerySchema = z.object({
 });
 
 /** Body of POST /api/rules/{id}/threshold: the tau threshold picked from a calibration's ROC. */
-export const thresholdSchema = z
-  .object({ threshold: z.number().min(-1).max(1), jobId: z.number().int().positive().nullable().default(null) })
-  .strict();
+export const thresholdSchema = z.object({ threshold: z.number().min(-1).max(1), jobId: z.number().int().positive().nullable().default(null) }).strict();
 
 /** An instant as ISO 8601 text (with a zone or Z) or UTC epoch milliseconds. */
 const instantSchema = z.union([

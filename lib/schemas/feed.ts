@@ -32,7 +32,11 @@ export const feedCreateSchema = z
     }
     const taken = new Set([lower(feed.timeColumn), ...valueColumns, ...Object.values(feed.flagColumns).map(lower)]);
     if (feed.maintenanceColumn && taken.has(lower(feed.maintenanceColumn))) {
-      context.addIssue({ code: 'custom', path: ['maintenanceColumn'], message: `"${feed.maintenanceColumn}" is already the time column, a value column or a flag column.` });
+      context.addIssue({
+        code: 'custom',
+        path: ['maintenanceColumn'],
+        message: `"${feed.maintenanceColumn}" is already the time column, a value column or a flag column.`,
+      });
     }
     for (const [valueColumn, flagColumn] of Object.entries(feed.flagColumns)) {
       if (!valueColumns.has(lower(valueColumn))) {

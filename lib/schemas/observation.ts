@@ -13,9 +13,12 @@ export const observationSchema = z.object({
     .refine((t) => Math.abs(t) <= MAX_ABS_TIME_MS, 'the instant is outside the supported range'),
   // zod's number already refuses NaN and ±Infinity; the messages say why in the data manager's terms.
   value: z.number({
-    error: (issue) => Number.isNaN(issue.input)
-      ? 'NaN is not a measurement (leave the row out when a value is missing)'
-      : typeof issue.input === 'number' ? 'an infinite value is not a measurement' : 'the value must be a number',
+    error: (issue) =>
+      Number.isNaN(issue.input)
+        ? 'NaN is not a measurement (leave the row out when a value is missing)'
+        : typeof issue.input === 'number'
+          ? 'an infinite value is not a measurement'
+          : 'the value must be a number',
   }),
 });
 

@@ -1,9 +1,7 @@
 import { z } from 'zod';
 
 /** [min, max] with min < max, both finite. */
-const limits = z
-  .tuple([z.number().finite(), z.number().finite()])
-  .refine(([min, max]) => min < max, 'Give [min, max] with min below max.');
+const limits = z.tuple([z.number().finite(), z.number().finite()]).refine(([min, max]) => min < max, 'Give [min, max] with min below max.');
 
 /**
  * A series' automatic quality-control tests, named and defined as the U.S. IOOS QARTOD manuals do (each test's
@@ -29,7 +27,13 @@ export const qcConfigSchema = z
       .optional(),
     /** Rate of change: |xₙ − xₙ₋₁| above `deviations` standard deviations of the preceding `periodHours` → 3. */
     rateOfChange: z
-      .object({ deviations: z.number().positive().max(100), periodHours: z.number().positive().max(24 * 366) })
+      .object({
+        deviations: z.number().positive().max(100),
+        periodHours: z
+          .number()
+          .positive()
+          .max(24 * 366),
+      })
       .strict()
       .optional(),
     /** Flat line: the last `suspect` (or `fail`) readings all within `tolerance` of this one → 3 (or 4). */

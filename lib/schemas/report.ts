@@ -2,20 +2,29 @@ import { z } from 'zod';
 import { REPORT_CADENCES } from '@/models/ReportSchedule';
 import { REPORT_TABLES } from '@/lib/reports/period-shape';
 
-const day = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'Use YYYY-MM-DD.').refine((v) => !Number.isNaN(Date.parse(`${v}T00:00:00Z`)) && new Date(`${v}T00:00:00Z`).toISOString().startsWith(v), 'Not a calendar date.');
+const day = z
+  .string()
+  .regex(/^\d{4}-\d{2}-\d{2}$/, 'Use YYYY-MM-DD.')
+  .refine((v) => !Number.isNaN(Date.parse(`${v}T00:00:00Z`)) && new Date(`${v}T00:00:00Z`).toISOString().startsWith(v), 'Not a calendar date.');
 
 /** GET /api/reports/period: a period of whole UTC days (at most 10 years), optionally one site, JSON or one CSV table. */
 export const periodReportQuerySchema = z
   .object({
     from: day,
     to: day,
-    site: z.string().trim().max(200).optional().transform((v) => v || undefined),
+    site: z
+      .string()
+      .trim()
+      .max(200)
+      .optional()
+      .transform((v) => v || undefined),
     format: z.enum(['json', 'csv']).default('json'),
     table: z.enum(REPORT_TABLES).default('alerts'),
   })
   .superRefine((v, ctx) => {
     if (v.to < v.from) ctx.addIssue({ code: 'custom', path: ['to'], message: 'The period ends before it starts.' });
-    else if (Date.parse(v.to) - Date.parse(v.from) > 3660 * 86_400_000) ctx.addIssue({ code: 'custom', path: ['to'], message: 'A report covers at most ten years.' });
+    else if (Date.parse(v.to) - Date.parse(v.from) > 3660 * 86_400_000)
+      ctx.addIssue({ code: 'custom', path: ['to'], message: 'A report covers at most ten years.' });
   });
 export type PeriodReportQuery = z.output<typeof periodReportQuerySchema>;
 

@@ -32,7 +32,10 @@ const ruleShape = {
   persistence: z.number().int().min(1).max(100),
   severity: z.enum(['watch', 'warning']),
   /** After a dismissal, no new alert for this long unless the evidence is clearly stronger (see lib/alerts/evaluate.ts). */
-  quietPeriodHours: z.number().min(0).max(24 * 366),
+  quietPeriodHours: z
+    .number()
+    .min(0)
+    .max(24 * 366),
   /** Benjamini–Hochberg false-discovery level across the latest surrogate p of every rule that sets one (every series). */
   fdrLevel: z.number().gt(0).max(0.5).nullable(),
   active: z.boolean(),

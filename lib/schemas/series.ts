@@ -40,15 +40,7 @@ export function uniqueSlug(name: string, taken: ReadonlySet<string>, fallback = 
   return slug;
 }
 
-export const TIME_FORMATS = [
-  'iso8601',
-  'date',
-  'epoch-seconds',
-  'epoch-milliseconds',
-  'decimal-year',
-  'age-years-bp',
-  'age-kyr-bp',
-] as const;
+export const TIME_FORMATS = ['iso8601', 'date', 'epoch-seconds', 'epoch-milliseconds', 'decimal-year', 'age-years-bp', 'age-kyr-bp'] as const;
 
 export const csvMappingSchema = z.object({
   timeColumn: z.union([z.string().min(1).max(200), z.number().int().min(0)]).default(0),
@@ -109,7 +101,11 @@ export const seriesSettingsSchema = z.preprocess((input) => {
 }, analysisSettingsSchema);
 
 /** A lateness allowance: a minute at least (the freshness pass runs every few minutes), ten years at most. */
-const LATE_AFTER = z.number().int().min(60_000, 'At least a minute (60000 ms).').max(3660 * 86_400_000);
+const LATE_AFTER = z
+  .number()
+  .int()
+  .min(60_000, 'At least a minute (60000 ms).')
+  .max(3660 * 86_400_000);
 
 /** A site chosen by id; null for none. Wins over `site` (a name) when both are given. */
 const siteIdSchema = z.number().int().positive().nullable();
@@ -125,7 +121,13 @@ export const seriesFieldsSchema = z.object({
   siteId: siteIdSchema.optional(),
   unit: text(50).default(''),
   description: text(5000).default(''),
-  intervalMs: z.number().int().positive().max(100 * 366 * 86_400_000).nullable().default(null),
+  intervalMs: z
+    .number()
+    .int()
+    .positive()
+    .max(100 * 366 * 86_400_000)
+    .nullable()
+    .default(null),
   timeZone: timeZoneSchema.default('UTC'),
   /** How long the series may deliver nothing before it is late (ms); null = 3 intervals, or 2 days (lib/alerts/lateness.ts). */
   lateAfterMs: LATE_AFTER.nullable().default(null),
@@ -180,7 +182,10 @@ export const intervalTextSchema = z
     if (value === '') return null;
     const parsed = isExtent(value) ? parseExtent(value) : null;
     if (parsed?.kind === 'duration') return Math.round(parsed.ms);
-    context.addIssue({ code: 'custom', message: 'Write the interval as an ISO 8601 duration such as PT15M, PT1H or P1D, or leave it empty for an irregular record.' });
+    context.addIssue({
+      code: 'custom',
+      message: 'Write the interval as an ISO 8601 duration such as PT15M, PT1H or P1D, or leave it empty for an irregular record.',
+    });
     return z.NEVER;
   });
 
@@ -188,12 +193,12 @@ export const intervalTextSchema = z
 export const BULK_COLUMNS = {
   slug: 'required; lower-case letters, digits and single hyphens',
   name: 'required',
-  site: 'the site\'s name; a name not yet known creates the site',
+  site: "the site's name; a name not yet known creates the site",
   unit: 'e.g. °C or m',
   description: 'free text',
   interval: 'ISO 8601 duration: PT15M, PT1H, P1D; empty for an irregular record',
   timeZone: 'IANA zone, default UTC',
-  timeColumn: 'header name or 0-based position of the time column in the series\' CSV files, default 0',
+  timeColumn: "header name or 0-based position of the time column in the series' CSV files, default 0",
   valueColumn: 'header name or position of the value column, default 1',
   timeFormat: `one of ${TIME_FORMATS.join(', ')}; default iso8601`,
   duplicatePolicy: 'reject or replace, default reject',
@@ -202,7 +207,10 @@ export const BULK_COLUMNS = {
   surrogates: 'number of surrogate series, default 199',
 } as const;
 
-const cell = z.string().optional().transform((value) => value?.trim() ?? '');
+const cell = z
+  .string()
+  .optional()
+  .transform((value) => value?.trim() ?? '');
 /** A column given as a header name, or as a 0-based position when it is all digits. */
 const columnCell = cell.transform((value) => (value === '' ? undefined : /^\d+$/.test(value) ? Number(value) : value));
 /** A fraction when numeric, else the text ("200 points", "P90D"); left out when empty. */
@@ -214,21 +222,42 @@ const extentCell = cell.transform((value) => (value === '' ? undefined : Number.
  */
 export const bulkRowSchema = z
   .object({
-    slug: cell, name: cell, site: cell, unit: cell, description: cell, interval: cell.pipe(intervalTextSchema),
-    timeZone: cell, timeColumn: columnCell, valueColumn: columnCell, timeFormat: cell, duplicatePolicy: cell,
-    window: extentCell, span: extentCell, surrogates: cell,
+    slug: cell,
+    name: cell,
+    site: cell,
+    unit: cell,
+    description: cell,
+    interval: cell.pipe(intervalTextSchema),
+    timeZone: cell,
+    timeColumn: columnCell,
+    valueColumn: columnCell,
+    timeFormat: cell,
+    duplicatePolicy: cell,
+    window: extentCell,
+    span: extentCell,
+    surrogates: cell,
   })
   // Typed loosely here on purpose: seriesCreateSchema, piped after it, is what checks every value.
   .transform((row): Record<string, unknown> => {
     const settings = Object.fromEntries(
-      Object.entries({ window: row.window, span: row.span, surrogates: row.surrogates === '' ? undefined : Number(row.surrogates) }).filter(([, v]) => v !== undefined),
+      Object.entries({ window: row.window, span: row.span, surrogates: row.surrogates === '' ? undefined : Number(row.surrogates) }).filter(
+        ([, v]) => v !== undefined,
+      ),
     );
     const csvMapping = Object.fromEntries(
       Object.entries({ timeColumn: row.timeColumn, valueColumn: row.valueColumn, timeFormat: row.timeFormat || undefined }).filter(([, v]) => v !== undefined),
     );
     return {
-      slug: row.slug, name: row.name, site: row.site, unit: row.unit, description: row.description, intervalMs: row.interval,
-      timeZone: row.timeZone || undefined, duplicatePolicy: row.duplicatePolicy || undefined, csvMapping, settings,
+      slug: row.slug,
+      name: row.name,
+      site: row.site,
+      unit: row.unit,
+      description: row.description,
+      intervalMs: row.interval,
+      timeZone: row.timeZone || undefined,
+      duplicatePolicy: row.duplicatePolicy || undefined,
+      csvMapping,
+      settings,
     };
   })
   .pipe(seriesCreateSchema);

@@ -17,7 +17,8 @@ export function webhookUrlProblem(value: string): string | null {
   }
   if (url.username || url.password) return 'Leave user and password out of the address; the signature authenticates each delivery.';
   if (url.protocol === 'https:') return null;
-  if (url.protocol === 'http:') return LOOPBACK_HOSTS.has(url.hostname.toLowerCase()) ? null : 'Plain http:// is allowed only to this machine (127.0.0.1, ::1, localhost); use https://.';
+  if (url.protocol === 'http:')
+    return LOOPBACK_HOSTS.has(url.hostname.toLowerCase()) ? null : 'Plain http:// is allowed only to this machine (127.0.0.1, ::1, localhost); use https://.';
   return 'The address must start with https:// (or http:// to this machine).';
 }
 
@@ -29,10 +30,14 @@ const events = z
 /** POST /api/webhooks: where to deliver, which events, and a note saying what the receiver is. */
 export const webhookCreateSchema = z
   .object({
-    url: z.string().trim().max(2000).superRefine((value, ctx) => {
-      const problem = webhookUrlProblem(value);
-      if (problem) ctx.addIssue({ code: 'custom', message: problem });
-    }),
+    url: z
+      .string()
+      .trim()
+      .max(2000)
+      .superRefine((value, ctx) => {
+        const problem = webhookUrlProblem(value);
+        if (problem) ctx.addIssue({ code: 'custom', message: problem });
+      }),
     events,
     description: z.string().trim().max(200).optional().default(''),
   })

@@ -102,10 +102,14 @@ export async function registerBulk(csv: string, actor: Pick<Actor, 'id'>, option
   try {
     await writeTransaction(async (transaction) => {
       for (const fields of valid) await insertSeries(fields, actor, transaction);
-      await recordAudit({ actorId: actor.id, action: 'series.bulk-create', entity: 'series', details: { count: valid.length, slugs: valid.map((f) => f.slug) } }, transaction);
+      await recordAudit(
+        { actorId: actor.id, action: 'series.bulk-create', entity: 'series', details: { count: valid.length, slugs: valid.map((f) => f.slug) } },
+        transaction,
+      );
     });
   } catch (error) {
-    if (error instanceof UniqueConstraintError) throw new ConflictError('A slug of the list was registered meanwhile; nothing was registered. Check the list again.');
+    if (error instanceof UniqueConstraintError)
+      throw new ConflictError('A slug of the list was registered meanwhile; nothing was registered. Check the list again.');
     throw error;
   }
   return { ...report, created: valid.length };

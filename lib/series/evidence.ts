@@ -37,7 +37,14 @@ export function evidenceRows(view: Pick<AnalysisView, 'indicators' | 'kendall' |
       computed: computed.includes(indicator),
       rules: statuses
         .filter((s) => s.rule.indicator === indicator)
-        .map((s) => ({ id: s.rule.id, active: s.rule.active, severity: s.rule.severity, standing: s.standing, outcome: s.latest?.outcome ?? null, rule: s.rule })),
+        .map((s) => ({
+          id: s.rule.id,
+          active: s.rule.active,
+          severity: s.rule.severity,
+          standing: s.standing,
+          outcome: s.latest?.outcome ?? null,
+          rule: s.rule,
+        })),
     };
   });
   return rows.sort((a, b) => Number(b.rules.length > 0) - Number(a.rules.length > 0));

@@ -62,7 +62,9 @@ export async function listSeriesChoices(): Promise<SeriesChoice[]> {
 export async function hasActiveSeries(): Promise<boolean> {
   return cachedRead('series-any', async () => {
     const sequelize = await db();
-    const [row] = await sequelize.query<{ found: number }>('SELECT EXISTS (SELECT 1 FROM series WHERE retired_at IS NULL) AS found', { type: QueryTypes.SELECT });
+    const [row] = await sequelize.query<{ found: number }>('SELECT EXISTS (SELECT 1 FROM series WHERE retired_at IS NULL) AS found', {
+      type: QueryTypes.SELECT,
+    });
     return Boolean(row?.found);
   });
 }
@@ -99,7 +101,10 @@ export async function insertSeries(fields: SeriesCreate, actor: Pick<Actor, 'id'
   const series = await Series.create({ ...rest, ...site, retiredAt: null, dataChangedAt: null }, { transaction });
   await SettingsChange.create({ seriesId: series.id, settings: fields.settings, changedBy: actor?.id ?? null }, { transaction });
   await applyDefaultRules(series.id, transaction);
-  await recordAudit({ actorId: actor?.id ?? null, action: 'series.create', entity: 'series', entityId: series.id, details: { slug: series.slug } }, transaction);
+  await recordAudit(
+    { actorId: actor?.id ?? null, action: 'series.create', entity: 'series', entityId: series.id, details: { slug: series.slug } },
+    transaction,
+  );
   return series;
 }
 
@@ -132,8 +137,13 @@ async function loadSeriesDetail(slug: string) {
     dataChangedAt: series.dataChangedAt,
     observations: { count: extent.count, first: extent.first, last: extent.last },
     latestAnalysis: latest && {
-      id: latest.id, createdAt: latest.createdAt, status: latest.status, error: latest.error, n: latest.n,
-      dataFrom: latest.dataFrom === null ? null : Number(latest.dataFrom), dataTo: latest.dataTo === null ? null : Number(latest.dataTo),
+      id: latest.id,
+      createdAt: latest.createdAt,
+      status: latest.status,
+      error: latest.error,
+      n: latest.n,
+      dataFrom: latest.dataFrom === null ? null : Number(latest.dataFrom),
+      dataTo: latest.dataTo === null ? null : Number(latest.dataTo),
       summary: latest.summary,
     },
   };
@@ -151,7 +161,8 @@ export async function updateSeries(slug: string, input: unknown, actor: Pick<Act
     if (!series) throw new NotFoundError('Series');
     const { retired, siteId, site, ...rest } = patch;
     const timeZone = rest.timeZone ?? series.timeZone;
-    const fields = siteId !== undefined || site !== undefined ? { ...rest, ...(await resolveSeriesSite({ siteId, site, timeZone }, actor, transaction)) } : rest;
+    const fields =
+      siteId !== undefined || site !== undefined ? { ...rest, ...(await resolveSeriesSite({ siteId, site, timeZone }, actor, transaction)) } : rest;
     const changed = Object.keys(fields).filter((key) => JSON.stringify(fields[key as keyof typeof fields]) !== JSON.stringify(series.get(key)));
     const settingsChanged = changed.includes('settings');
     series.set(fields);
@@ -161,9 +172,13 @@ export async function updateSeries(slug: string, input: unknown, actor: Pick<Act
     if (retiring) series.retiredAt = retired ? new Date() : null;
     await series.save({ transaction });
     if (settingsChanged) await SettingsChange.create({ seriesId: series.id, settings: series.settings, changedBy: actor.id }, { transaction });
-    if (changed.length) await recordAudit({ actorId: actor.id, action: 'series.update', entity: 'series', entityId: series.id, details: { fields: changed } }, transaction);
+    if (changed.length)
+      await recordAudit({ actorId: actor.id, action: 'series.update', entity: 'series', entityId: series.id, details: { fields: changed } }, transaction);
     if (retiring) {
-      await recordAudit({ actorId: actor.id, action: retired ? 'series.retire' : 'series.restore', entity: 'series', entityId: series.id, details: {} }, transaction);
+      await recordAudit(
+        { actorId: actor.id, action: retired ? 'series.retire' : 'series.restore', entity: 'series', entityId: series.id, details: {} },
+        transaction,
+      );
     }
     return series;
   });

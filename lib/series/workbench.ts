@@ -51,15 +51,22 @@ async function loadWorkbench(slug: string): Promise<Workbench> {
     Mark.findAll({ where: { seriesId: series.id }, order: [['at', 'ASC']] }),
   ]);
   // An error snapshot explains why the evidence is stale; the view then comes from the last good one.
-  const good = snapshot?.status === 'ok'
-    ? snapshot
-    : await AnalysisSnapshot.findOne({ where: { seriesId: series.id, status: 'ok' }, order: [['id', 'DESC']], attributes: { exclude: ['curves'] } });
+  const good =
+    snapshot?.status === 'ok'
+      ? snapshot
+      : await AnalysisSnapshot.findOne({ where: { seriesId: series.id, status: 'ok' }, order: [['id', 'DESC']], attributes: { exclude: ['curves'] } });
   return {
     series: presentSeries(series),
     savedSettings: analysisSettingsSchema.parse(series.settings ?? {}),
     view: good ? await loadSnapshotView(good) : null,
     snapshot: snapshot
-      ? { id: snapshot.id, createdAt: snapshot.createdAt.toISOString(), status: snapshot.status, error: snapshot.error, dataTo: snapshot.dataTo === null ? null : Number(snapshot.dataTo) }
+      ? {
+          id: snapshot.id,
+          createdAt: snapshot.createdAt.toISOString(),
+          status: snapshot.status,
+          error: snapshot.error,
+          dataTo: snapshot.dataTo === null ? null : Number(snapshot.dataTo),
+        }
       : null,
     extent,
     runs: runs.map((r) => presentRun(r)),

@@ -63,10 +63,11 @@ export function siteMap(sites: Placeable[], width = 640, height = 360, padding =
   if (placed.length === 0) return { width, height, points: [], scale: null, unplaced };
   const lat0 = placed.reduce((sum, s) => sum + s.latitude, 0) / placed.length;
   // Circular mean of longitudes, so a network across the antimeridian is centred on it.
-  const lon0 = Math.atan2(
-    placed.reduce((sum, s) => sum + Math.sin(s.longitude * RAD), 0),
-    placed.reduce((sum, s) => sum + Math.cos(s.longitude * RAD), 0),
-  ) / RAD;
+  const lon0 =
+    Math.atan2(
+      placed.reduce((sum, s) => sum + Math.sin(s.longitude * RAD), 0),
+      placed.reduce((sum, s) => sum + Math.cos(s.longitude * RAD), 0),
+    ) / RAD;
   const km = placed.map((s) => ({
     site: s,
     x: EARTH_RADIUS_KM * wrap(s.longitude - lon0) * RAD * Math.cos(lat0 * RAD),
@@ -80,7 +81,8 @@ export function siteMap(sites: Placeable[], width = 640, height = 360, padding =
   const midX = (minX + maxX) / 2;
   const midY = (minY + maxY) / 2;
   const points = km.map(({ site, x, y }) => ({
-    slug: site.slug, name: site.name,
+    slug: site.slug,
+    name: site.name,
     x: width / 2 + (x - midX) * pxPerKm,
     y: height / 2 - (y - midY) * pxPerKm,
   }));

@@ -31,7 +31,17 @@ const OPEN = OPEN_ALERT_STATES.map((state) => `'${state}'`).join(',');
 async function openAlertsOfSite(siteId: number): Promise<SiteAlert[]> {
   return cachedRead(`site-alerts:${siteId}`, async () => {
     const sequelize = await db();
-    const rows = await sequelize.query<{ id: number; state: string; severity: string; kind: string | null; indicator: string | null; slug: string; name: string; time_zone: string; created_at: string }>(
+    const rows = await sequelize.query<{
+      id: number;
+      state: string;
+      severity: string;
+      kind: string | null;
+      indicator: string | null;
+      slug: string;
+      name: string;
+      time_zone: string;
+      created_at: string;
+    }>(
       `SELECT a.id, a.state, a.severity, a.kind, r.indicator, s.slug, s.name, s.time_zone, a.created_at
        FROM alerts a JOIN series s ON s.id = a.series_id LEFT JOIN alert_rules r ON r.id = a.rule_id
        WHERE s.site_id = :siteId AND s.retired_at IS NULL AND a.state IN (${OPEN})
@@ -39,7 +49,11 @@ async function openAlertsOfSite(siteId: number): Promise<SiteAlert[]> {
       { type: QueryTypes.SELECT, replacements: { siteId, limit: SITE_ALERTS_SHOWN } },
     );
     return rows.map((r) => ({
-      id: Number(r.id), state: r.state, severity: r.severity, kind: r.kind ?? 'slowing-down', indicator: r.indicator,
+      id: Number(r.id),
+      state: r.state,
+      severity: r.severity,
+      kind: r.kind ?? 'slowing-down',
+      indicator: r.indicator,
       series: { slug: r.slug, name: r.name, timeZone: r.time_zone },
       createdAt: isoFromSqlDate(r.created_at),
     }));

@@ -9,9 +9,15 @@ import { siteCreateSchema, siteUpdateSchema, type SiteCreateInput, type SiteReco
 
 export function presentSite(site: Site, seriesCount: number): SiteRecord {
   return {
-    id: site.id, slug: site.slug, name: site.name, description: site.description,
-    latitude: site.latitude === null ? null : Number(site.latitude), longitude: site.longitude === null ? null : Number(site.longitude),
-    timeZone: site.timeZone, notes: site.notes, seriesCount,
+    id: site.id,
+    slug: site.slug,
+    name: site.name,
+    description: site.description,
+    latitude: site.latitude === null ? null : Number(site.latitude),
+    longitude: site.longitude === null ? null : Number(site.longitude),
+    timeZone: site.timeZone,
+    notes: site.notes,
+    seriesCount,
   };
 }
 
@@ -75,7 +81,8 @@ export async function updateSite(slug: string, input: unknown, actor: Pick<Actor
       site.set(patch);
       await site.save({ transaction });
       if (changed.includes('name')) await Series.update({ site: site.name }, { where: { siteId: site.id }, transaction });
-      if (changed.length) await recordAudit({ actorId: actor.id, action: 'site.update', entity: 'site', entityId: site.id, details: { fields: changed } }, transaction);
+      if (changed.length)
+        await recordAudit({ actorId: actor.id, action: 'site.update', entity: 'site', entityId: site.id, details: { fields: changed } }, transaction);
       return presentSite(site, await Series.count({ where: { siteId: site.id, retiredAt: null }, transaction }));
     });
   } catch (error) {
@@ -94,7 +101,11 @@ export interface SeriesSiteFields {
  * none); otherwise a non-empty `site` name picks the site of that name, creating it (audited, in the series' time
  * zone) when there is none, so clients that send only a name keep working; '' means no site.
  */
-export async function resolveSeriesSite(input: { siteId?: number | null; site?: string; timeZone?: string }, actor: Pick<Actor, 'id'> | null, transaction: Transaction): Promise<SeriesSiteFields> {
+export async function resolveSeriesSite(
+  input: { siteId?: number | null; site?: string; timeZone?: string },
+  actor: Pick<Actor, 'id'> | null,
+  transaction: Transaction,
+): Promise<SeriesSiteFields> {
   if (input.siteId !== undefined && input.siteId !== null) {
     const site = await Site.findByPk(input.siteId, { transaction });
     if (!site) throw new UnprocessableError('Some fields are not valid.', { siteId: ['No such site.'] });
@@ -106,6 +117,9 @@ export async function resolveSeriesSite(input: { siteId?: number | null; site?: 
   if (existing) return { siteId: existing.id, site: existing.name };
   const taken = new Set((await Site.findAll({ attributes: ['slug'], transaction })).map((site) => site.slug));
   const site = await Site.create({ slug: uniqueSlug(name, taken), name, latitude: null, longitude: null, timeZone: input.timeZone ?? 'UTC' }, { transaction });
-  await recordAudit({ actorId: actor?.id ?? null, action: 'site.create', entity: 'site', entityId: site.id, details: { slug: site.slug, from: 'series' } }, transaction);
+  await recordAudit(
+    { actorId: actor?.id ?? null, action: 'site.create', entity: 'site', entityId: site.id, details: { slug: site.slug, from: 'series' } },
+    transaction,
+  );
   return { siteId: site.id, site: site.name };
 }

@@ -39,7 +39,12 @@ export function presentUser(user: User): UserView {
 
 export async function listUsers(): Promise<User[]> {
   await db();
-  return User.findAll({ order: [['name', 'ASC'], ['id', 'ASC']] });
+  return User.findAll({
+    order: [
+      ['name', 'ASC'],
+      ['id', 'ASC'],
+    ],
+  });
 }
 
 /** Creates an inactive account with the chosen role and mails a single-use link to set a password. 409 if the address is taken. */
@@ -51,7 +56,10 @@ export async function inviteUser(input: InviteInput, actor: Actor): Promise<User
       const { token, expiresAt } = await issueUserToken(user, 'invite', transaction);
       const mail = invitationMail({ name: user.name, role: user.role, invitedBy: actor.name, link: `${publicBaseUrl()}/invite/${token}`, expiresAt });
       await enqueueMail({ kind: 'invitation', dedupeKey: `invite:${user.id}:${expiresAt.getTime()}`, to: user.email, ...mail }, transaction);
-      await recordAudit({ actorId: actor.id, action: 'user.invite', entity: 'user', entityId: user.id, details: { email: user.email, role: user.role } }, transaction);
+      await recordAudit(
+        { actorId: actor.id, action: 'user.invite', entity: 'user', entityId: user.id, details: { email: user.email, role: user.role } },
+        transaction,
+      );
       return user;
     });
   } catch (error) {

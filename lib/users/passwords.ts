@@ -42,7 +42,10 @@ async function setPassword(token: string, password: string, purpose: 'invite' | 
     const user = await User.findByPk(record.userId, { transaction });
     if (!user) throw new Error(`token ${record.id} points at a missing user`);
     await user.update(purpose === 'invite' ? { passwordHash, active: true } : { passwordHash }, { transaction });
-    await recordAudit({ actorId: user.id, action: purpose === 'invite' ? 'user.accept-invitation' : 'user.reset-password', entity: 'user', entityId: user.id }, transaction);
+    await recordAudit(
+      { actorId: user.id, action: purpose === 'invite' ? 'user.accept-invitation' : 'user.reset-password', entity: 'user', entityId: user.id },
+      transaction,
+    );
     return user;
   });
 }

@@ -90,8 +90,14 @@ function present(endpoint: WebhookEndpoint, stats?: { counts: WebhookEndpointRec
 export async function registerWebhook(actor: Actor, input: WebhookCreate): Promise<{ id: number; secret: string }> {
   const secret = `${SECRET_PREFIX}${crypto.randomBytes(32).toString('base64url')}`;
   return writeTransaction(async (transaction) => {
-    const endpoint = await WebhookEndpoint.create({ url: input.url, events: input.events, secret, description: input.description, active: true, createdBy: actor.id }, { transaction });
-    await recordAudit({ actorId: actor.id, action: 'webhook.register', entity: 'webhook', entityId: endpoint.id, details: { url: input.url, events: input.events } }, transaction);
+    const endpoint = await WebhookEndpoint.create(
+      { url: input.url, events: input.events, secret, description: input.description, active: true, createdBy: actor.id },
+      { transaction },
+    );
+    await recordAudit(
+      { actorId: actor.id, action: 'webhook.register', entity: 'webhook', entityId: endpoint.id, details: { url: input.url, events: input.events } },
+      transaction,
+    );
     return { id: endpoint.id, secret };
   });
 }
@@ -126,12 +132,18 @@ export async function removeWebhook(actor: Actor, id: number): Promise<void> {
     if (deliveryIds.length) await WebhookAttempt.destroy({ where: { deliveryId: deliveryIds }, transaction });
     await WebhookDelivery.destroy({ where: { endpointId: id }, transaction });
     await found.destroy({ transaction });
-    await recordAudit({ actorId: actor.id, action: 'webhook.remove', entity: 'webhook', entityId: id, details: { url: found.url, events: found.events } }, transaction);
+    await recordAudit(
+      { actorId: actor.id, action: 'webhook.remove', entity: 'webhook', entityId: id, details: { url: found.url, events: found.events } },
+      transaction,
+    );
   });
 }
 
 /** One endpoint's deliveries, newest first, each with its attempts: a page of them and the total. */
-export async function fetchDeliveries(endpointId: number, filter: { status?: WebhookDeliveryStatus; page: number; pageSize: number }): Promise<{ items: WebhookDeliveryRecord[]; total: number }> {
+export async function fetchDeliveries(
+  endpointId: number,
+  filter: { status?: WebhookDeliveryStatus; page: number; pageSize: number },
+): Promise<{ items: WebhookDeliveryRecord[]; total: number }> {
   await db();
   if (!(await WebhookEndpoint.count({ where: { id: endpointId } }))) throw new NotFoundError('Webhook');
   const { rows, count } = await WebhookDelivery.findAndCountAll({
@@ -178,7 +190,10 @@ export async function retryDelivery(actor: Actor, endpointId: number, deliveryId
     if (delivery.status === 'delivered') throw new ConflictError('This delivery has already been received.');
     if (delivery.status === 'sending') throw new ConflictError('This delivery is being sent right now.');
     await delivery.update({ status: 'pending', attempts: 0, nextAttemptAt: new Date(), claimedBy: null }, { transaction });
-    await recordAudit({ actorId: actor.id, action: 'webhook.retry', entity: 'webhook', entityId: endpointId, details: { deliveryId, event: delivery.event } }, transaction);
+    await recordAudit(
+      { actorId: actor.id, action: 'webhook.retry', entity: 'webhook', entityId: endpointId, details: { deliveryId, event: delivery.event } },
+      transaction,
+    );
     return { id: delivery.id, status: 'pending' };
   });
 }

@@ -73,7 +73,12 @@ function alertHeadline(e: AlertEvidence): string {
  * analysis opened the alert). The event's id names the alert and, for triage, its timeline event, so a second
  * escalation after a reopen is a new event while a repeated enqueue of the same one is not. O(1).
  */
-export function alertWebhookPayload(event: Exclude<WebhookEvent, 'intake.rejected' | 'data.late'>, e: AlertEvidence, change: AlertChange | null, occurredAt: Date): WebhookPayload {
+export function alertWebhookPayload(
+  event: Exclude<WebhookEvent, 'intake.rejected' | 'data.late'>,
+  e: AlertEvidence,
+  change: AlertChange | null,
+  occurredAt: Date,
+): WebhookPayload {
   const url = `${publicBaseUrl()}/alerts/${e.alertId}`;
   const headline = alertHeadline(e);
   const subject = where(e.series);

@@ -100,7 +100,9 @@ async function post(url: string, secret: string, delivery: ClaimedDelivery, time
   } catch (error) {
     const cause = (error as { cause?: { code?: string; message?: string } }).cause;
     const timedOut = (error as { name?: string }).name === 'TimeoutError';
-    const message = timedOut ? `no answer within ${timeoutMs / 1000} s` : cause?.code ?? cause?.message ?? (error instanceof Error ? error.message : String(error));
+    const message = timedOut
+      ? `no answer within ${timeoutMs / 1000} s`
+      : (cause?.code ?? cause?.message ?? (error instanceof Error ? error.message : String(error)));
     return { statusCode: null, error: message.slice(0, 2000), durationMs: Date.now() - started };
   }
 }
@@ -126,7 +128,9 @@ export async function deliverDueWebhooks(now = Date.now(), timeoutMs = WEBHOOK_T
   const report: WebhookSendReport = { claimed: rows.length, delivered: 0, retrying: 0, failed: 0 };
   if (!rows.length) return report;
   const endpoints = new Map(
-    (await WebhookEndpoint.findAll({ where: { id: { [Op.in]: [...new Set(rows.map((r) => r.endpoint_id))] } }, attributes: ['id', 'url', 'secret'] })).map((e) => [e.id, e]),
+    (await WebhookEndpoint.findAll({ where: { id: { [Op.in]: [...new Set(rows.map((r) => r.endpoint_id))] } }, attributes: ['id', 'url', 'secret'] })).map(
+      (e) => [e.id, e],
+    ),
   );
   const sequelize = await db();
   // Requests go out together; their outcomes are written one at a time. Concurrent write transactions in one
@@ -146,28 +150,33 @@ export async function deliverDueWebhooks(now = Date.now(), timeoutMs = WEBHOOK_T
       const attempts = row.attempts + 1;
       const delivered = outcome.error === null;
       const giveUp = !delivered && attempts >= WEBHOOK_RETRY_POLICY.maxAttempts;
-      await settleInTurn(() => writeTransaction(async (transaction) => {
-        await WebhookAttempt.create({ deliveryId: row.id, attemptedAt: new Date(now), durationMs: outcome.durationMs, statusCode: outcome.statusCode, error: outcome.error }, { transaction });
-        await sequelize.query(
-          `UPDATE webhook_deliveries SET status = :status, attempts = :attempts, last_status = :statusCode, last_error = :error,
+      await settleInTurn(() =>
+        writeTransaction(async (transaction) => {
+          await WebhookAttempt.create(
+            { deliveryId: row.id, attemptedAt: new Date(now), durationMs: outcome.durationMs, statusCode: outcome.statusCode, error: outcome.error },
+            { transaction },
+          );
+          await sequelize.query(
+            `UPDATE webhook_deliveries SET status = :status, attempts = :attempts, last_status = :statusCode, last_error = :error,
              next_attempt_at = :next, delivered_at = :deliveredAt, claimed_by = NULL, updated_at = :nowIso
            WHERE id = :id AND claimed_by = :claim`,
-          {
-            replacements: {
-              id: row.id,
-              claim,
-              status: delivered ? 'delivered' : giveUp ? 'failed' : 'pending',
-              attempts,
-              statusCode: outcome.statusCode,
-              error: outcome.error,
-              next: sqlDate(delivered || giveUp ? now : now + retryDelayMs(attempts, WEBHOOK_RETRY_POLICY)),
-              deliveredAt: delivered ? sqlDate(now) : null,
-              nowIso: sqlDate(now),
+            {
+              replacements: {
+                id: row.id,
+                claim,
+                status: delivered ? 'delivered' : giveUp ? 'failed' : 'pending',
+                attempts,
+                statusCode: outcome.statusCode,
+                error: outcome.error,
+                next: sqlDate(delivered || giveUp ? now : now + retryDelayMs(attempts, WEBHOOK_RETRY_POLICY)),
+                deliveredAt: delivered ? sqlDate(now) : null,
+                nowIso: sqlDate(now),
+              },
+              transaction,
             },
-            transaction,
-          },
-        );
-      }));
+          );
+        }),
+      );
       if (delivered) report.delivered++;
       else if (giveUp) report.failed++;
       else report.retrying++;

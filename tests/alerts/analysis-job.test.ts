@@ -147,4 +147,3 @@ describe('snapshot housekeeping', () => {
     expect(await Alert.count({ where: { seriesId: series.id, firstSnapshotId: snapshot.id } })).toBe(1);
   });
 });
-

@@ -35,7 +35,15 @@ const summaryOf = (indicator: string, tau: number, p: number, direction: TrendDi
 });
 
 describe('rules judged in a direction', () => {
-  const recovery: RuleThresholds = { indicator: 'recovery', direction: 'falling', minTau: 0.5, maxSurrogateP: 0.05, levelThreshold: null, levelDirection: 'above', fdrLevel: null };
+  const recovery: RuleThresholds = {
+    indicator: 'recovery',
+    direction: 'falling',
+    minTau: 0.5,
+    maxSurrogateP: 0.05,
+    levelThreshold: null,
+    levelDirection: 'above',
+    fdrLevel: null,
+  };
   // The issue's example: memory rising from φ = 0.2 to 0.97 gives recovery tau = −0.96, surrogate p 0.01 downwards.
   const falling = summaryOf('recovery', -0.96, 0.01, 'falling');
 
@@ -67,11 +75,14 @@ describe('rules judged in a direction', () => {
     // A rising rule on the same skewness needs the upper-tail p: (1 + #{τs ≥ −0.7})/(N + 1) with τs = [−0.8, −0.2, 0.1, 0.75] → 4/5.
     expect(judgeRule({ ...either, direction: 'rising' }, skew, null, [-0.8, -0.2, 0.1, 0.75]).surrogateP).toBeCloseTo(4 / 5, 15);
     // Either way with the same taus: (1 + #{|τs| ≥ 0.7})/(N + 1) = (1 + 2)/5 (by hand).
-    expect(judgeRule(either, { ...skew, significance: { skewness: { ...skew.significance.skewness, direction: 'rising' as const } } }, null, [-0.8, -0.2, 0.1, 0.75]).surrogateP).toBeCloseTo(3 / 5, 15);
+    expect(
+      judgeRule(either, { ...skew, significance: { skewness: { ...skew.significance.skewness, direction: 'rising' as const } } }, null, [-0.8, -0.2, 0.1, 0.75])
+        .surrogateP,
+    ).toBeCloseTo(3 / 5, 15);
   });
 });
 
-describe('a rule looking against the indicator\'s own direction, in the analysis cycle', () => {
+describe("a rule looking against the indicator's own direction, in the analysis cycle", () => {
   it('reads the surrogate taus kept with the snapshot and judges the p in its own direction', async () => {
     const series = await makeSeries();
     const rule = await makeRule(series, lead, { direction: 'falling', minTau: 0.5, maxSurrogateP: 0.2 });
@@ -86,13 +97,18 @@ describe('a rule looking against the indicator\'s own direction, in the analysis
     // Once the curves are pruned, the same rule cannot be judged on that snapshot's summary alone.
     const pruned = await makeSnapshot(series, { tau: -0.8, surrogateP: 0.99 });
     await evaluateSnapshots([pruned]);
-    expect((await RuleEvaluation.findOne({ where: { ruleId: rule.id, snapshotId: pruned.id } }))!.outcome).toMatch(/^cannot-judge: the surrogate p \(falling\) needs the surrogate taus/);
+    expect((await RuleEvaluation.findOne({ where: { ruleId: rule.id, snapshotId: pruned.id } }))!.outcome).toMatch(
+      /^cannot-judge: the surrogate p \(falling\) needs the surrogate taus/,
+    );
   });
 });
 
 describe('rules a series cannot judge are refused with 422', () => {
   async function refusal(promise: Promise<unknown>): Promise<UnprocessableError> {
-    const error = await promise.then(() => null, (e: unknown) => e);
+    const error = await promise.then(
+      () => null,
+      (e: unknown) => e,
+    );
     expect(error).toBeInstanceOf(UnprocessableError);
     return error as UnprocessableError;
   }
@@ -107,7 +123,12 @@ describe('rules a series cannot judge are refused with 422', () => {
 
   it('a surrogate test on a series without surrogates, an indicator the series does not compute, an unreachable p', async () => {
     const bare = await Series.create({
-      slug: 'no-surrogates', name: 'No surrogates', csvMapping: { timeColumn: 0, valueColumn: 1, timeFormat: 'iso8601' }, intervalMs: 86_400_000, dataChangedAt: null, retiredAt: null,
+      slug: 'no-surrogates',
+      name: 'No surrogates',
+      csvMapping: { timeColumn: 0, valueColumn: 1, timeFormat: 'iso8601' },
+      intervalMs: 86_400_000,
+      dataChangedAt: null,
+      retiredAt: null,
       settings: { surrogates: 0, indicators: ['variance', 'ac1'] },
     });
     const e1 = await refusal(createRule(bare.id, { indicator: 'ac1', minTau: 0.3, maxSurrogateP: 0.05 }, lead));
@@ -138,7 +159,11 @@ describe('rules a series cannot judge are refused with 422', () => {
 
   it('when the latest analysis says the stretch is too short', async () => {
     const series = await makeSeries();
-    await makeSnapshot(series, { tau: null }, { status: 'error', error: 'The stretch since the shift on 2024-05-01 is too short for the window (40 of 200 points).' });
+    await makeSnapshot(
+      series,
+      { tau: null },
+      { status: 'error', error: 'The stretch since the shift on 2024-05-01 is too short for the window (40 of 200 points).' },
+    );
     const e = await refusal(createRule(series.id, { indicator: 'ac1', minTau: 0.3 }, lead));
     expect(e.message).toMatch(/too short for the window/);
   });
@@ -153,7 +178,10 @@ describe('a rule that cannot be judged says so on its series', () => {
     const report = await evaluateSnapshots([first, failed]);
     expect(report).toMatchObject({ evaluated: 2, cannotJudge: 1, opened: [] });
     const rows = await RuleEvaluation.findAll({ where: { ruleId: rule.id }, order: [['snapshotId', 'ASC']] });
-    expect(rows.map((r) => [r.streak, r.passed])).toEqual([[1, true], [0, false]]);
+    expect(rows.map((r) => [r.streak, r.passed])).toEqual([
+      [1, true],
+      [0, false],
+    ]);
     expect(rows[1].outcome).toBe('cannot-judge: the analysis failed: A gap of 12 days is longer than maxGap (3 points).');
 
     let [status] = await ruleStatuses(series.id);
@@ -214,7 +242,11 @@ describe('calibrated false-alarm rate and direction in rules and mails', () => {
 
     // A finished calibration stores the rule and settings it replayed (lib/backtest/jobs.ts), so a later change makes it stale.
     const replayed = { rule: replayRuleOf(rule), settings: analysisSettingsSchema.parse((await Series.findByPk(series.id))!.settings) };
-    await queued[0].update({ status: 'succeeded', finishedAt: new Date(Date.UTC(2026, 0, 5)), result: { ...replayed, calibration: { surrogates: 200, falseAlarmsPerYear: 0.21, falseAlarmsPerYearInterval: [0.12, 0.34] } } });
+    await queued[0].update({
+      status: 'succeeded',
+      finishedAt: new Date(Date.UTC(2026, 0, 5)),
+      result: { ...replayed, calibration: { surrogates: 200, falseAlarmsPerYear: 0.21, falseAlarmsPerYearInterval: [0.12, 0.34] } },
+    });
     [record] = await presentRules([rule]);
     expect(record.calibration).toMatchObject({ jobId: queued[0].id, falseAlarmsPerYear: 0.21, interval: [0.12, 0.34], surrogates: 200 });
 
@@ -226,10 +258,27 @@ describe('calibrated false-alarm rate and direction in rules and mails', () => {
 
   it('the mail template states the calibrated rate', () => {
     const evidence: AlertEvidence = {
-      alertId: 3, kind: 'slowing-down', severity: 'watch', series: { name: 'Lake', slug: 'lake', site: '', timeZone: 'UTC' },
-      indicator: 'ac1', direction: 'rising', tau: 0.55, kendallP: 0.01, kendallDirection: 'rising', surrogateP: 0.02, surrogateCount: 99,
-      surrogateMethod: 'ar1', latestValue: 0.7, windowFraction: 0.5, windowPoints: 100, detrend: 'gaussian', bandwidth: 0.1, bandwidthPoints: 20,
-      dataFrom: 0, dataTo: 86_400_000, n: 200,
+      alertId: 3,
+      kind: 'slowing-down',
+      severity: 'watch',
+      series: { name: 'Lake', slug: 'lake', site: '', timeZone: 'UTC' },
+      indicator: 'ac1',
+      direction: 'rising',
+      tau: 0.55,
+      kendallP: 0.01,
+      kendallDirection: 'rising',
+      surrogateP: 0.02,
+      surrogateCount: 99,
+      surrogateMethod: 'ar1',
+      latestValue: 0.7,
+      windowFraction: 0.5,
+      windowPoints: 100,
+      detrend: 'gaussian',
+      bandwidth: 0.1,
+      bandwidthPoints: 20,
+      dataFrom: 0,
+      dataTo: 86_400_000,
+      n: 200,
       rule: { minTau: 0.3, direction: 'rising', maxSurrogateP: 0.05, fdrLevel: null, levelThreshold: null, levelDirection: 'above', persistence: 1 },
       calibration: { falseAlarmsPerYear: 0.21, interval: [0.12, 0.34], surrogates: 200, finishedAt: '2026-01-05T00:00:00.000Z' },
       shift: null,

@@ -33,7 +33,11 @@ const closeSink = () => new Promise<void>((resolve) => (sink ? sink.close(() => 
 
 /** Pushes observations through the push API as the lead, as an instrument gateway would. */
 async function ingest(rows: { t: number; value: number }[]): Promise<void> {
-  const response = await lead.json(`/api/series/${SLUG}/observations`, 'POST', rows.map((r) => ({ time: new Date(r.t).toISOString(), value: r.value })));
+  const response = await lead.json(
+    `/api/series/${SLUG}/observations`,
+    'POST',
+    rows.map((r) => ({ time: new Date(r.t).toISOString(), value: r.value })),
+  );
   expect(response.status).toBe(200);
   expect((await response.json()).accepted).toBe(rows.length);
 }
@@ -76,9 +80,21 @@ describe('alerts end to end', () => {
   let ruleId: number;
 
   it('a series approaching a fold raises one alert, however many analyses follow, and mails the watcher', async () => {
-    const created = await lead.json('/api/series', 'POST', { slug: SLUG, name: 'Fold basin <test>', site: 'Station 9', intervalMs: 86_400_000, settings: { surrogates: 200, seed: 5 } });
+    const created = await lead.json('/api/series', 'POST', {
+      slug: SLUG,
+      name: 'Fold basin <test>',
+      site: 'Station 9',
+      intervalMs: 86_400_000,
+      settings: { surrogates: 200, seed: 5 },
+    });
     expect(created.status).toBe(201);
-    const rule = await lead.json(`/api/series/${SLUG}/rules`, 'POST', { indicator: 'ac1', minTau: 0.3, maxSurrogateP: 0.05, persistence: 1, severity: 'warning' });
+    const rule = await lead.json(`/api/series/${SLUG}/rules`, 'POST', {
+      indicator: 'ac1',
+      minTau: 0.3,
+      maxSurrogateP: 0.05,
+      persistence: 1,
+      severity: 'warning',
+    });
     expect(rule.status).toBe(201);
     ruleId = (await rule.json()).id;
     expect((await viewer.json(`/api/series/${SLUG}/rules`, 'POST', { indicator: 'variance', minTau: 0.3 })).status).toBe(403);
@@ -87,10 +103,14 @@ describe('alerts end to end', () => {
     expect((await (await analyst.fetch('/api/watches')).json()).items).toEqual([expect.objectContaining({ slug: SLUG, mode: 'immediate' })]);
 
     await ingest(record.slice(0, 440));
-    const queue = await waitFor('the alert', async () => {
-      const body = await (await analyst.fetch(`/api/alerts?queue=triage&series=${SLUG}`)).json();
-      return body.total > 0 ? body : null;
-    }, 90_000);
+    const queue = await waitFor(
+      'the alert',
+      async () => {
+        const body = await (await analyst.fetch(`/api/alerts?queue=triage&series=${SLUG}`)).json();
+        return body.total > 0 ? body : null;
+      },
+      90_000,
+    );
     expect(queue.items).toHaveLength(1);
     alertId = queue.items[0].id;
     expect(queue.items[0]).toMatchObject({ state: 'new', severity: 'warning', rule: { indicator: 'ac1' } });
@@ -143,7 +163,7 @@ describe('alerts end to end', () => {
     expect(mailsTo('viewer@brinkwatch.test', /alert #/)).toHaveLength(0);
 
     // The viewer follows by digest: the alert reaches them in the digest instead, once, not in the analyst's daily one.
-    const digest = await waitFor('the viewer\'s digest', () => mailsTo('viewer@brinkwatch.test', /Daily digest/)[0], 30_000);
+    const digest = await waitFor("the viewer's digest", () => mailsTo('viewer@brinkwatch.test', /Daily digest/)[0], 30_000);
     expect(digest.subject).toBe('[Brinkwatch] Daily digest: 1 alert on series you watch');
     expect(digest.text).toContain(`#${alertId} Fold basin <test>`);
     expect(digest.text).toContain('not forecasts');
@@ -202,7 +222,11 @@ describe('alerts end to end', () => {
 
   it('holds the quiet period after a dismissal while the evidence is no stronger', async () => {
     expect((await lead.json(`/api/rules/${ruleId}`, 'PATCH', { quietPeriodHours: 72 })).status).toBe(200);
-    const dismissed = await lead.json(`/api/alerts/${alertId}/actions`, 'POST', { action: 'dismiss', reason: 'seasonal-or-external-forcing', note: 'Dam release upstream.' });
+    const dismissed = await lead.json(`/api/alerts/${alertId}/actions`, 'POST', {
+      action: 'dismiss',
+      reason: 'seasonal-or-external-forcing',
+      note: 'Dam release upstream.',
+    });
     expect(dismissed.status).toBe(200);
     for (let k = 0; k < 2; k++) {
       const before = (await evaluationsOf(ruleId)).length;
@@ -213,7 +237,9 @@ describe('alerts end to end', () => {
     expect(latest.map((e) => e.outcome)).toEqual(['quiet-period', 'quiet-period']);
     expect((await (await analyst.fetch(`/api/alerts?queue=all&series=${SLUG}`)).json()).total).toBe(1);
     await db();
-    expect(await AnalysisSnapshot.count({ where: { seriesId: (await Series.findOne({ where: { slug: SLUG } }))!.id, status: 'ok' } })).toBeGreaterThanOrEqual(6);
+    expect(await AnalysisSnapshot.count({ where: { seriesId: (await Series.findOne({ where: { slug: SLUG } }))!.id, status: 'ok' } })).toBeGreaterThanOrEqual(
+      6,
+    );
   });
 });
 
@@ -226,11 +252,15 @@ describe('mail through an outage', () => {
     expect(await invited.json()).toMatchObject({ active: false, invited: true, role: 'analyst' });
     expect((await lead.json('/api/users', 'POST', { email: 'x@example.test', name: 'X', role: 'admin' })).status).toBe(403);
 
-    const failing = await waitFor('two failed attempts', async () => {
-      const outbox = await (await admin.fetch('/api/admin/outbox')).json();
-      const row = outbox.items.find((m: { kind: string }) => m.kind === 'invitation');
-      return row && row.attempts >= 2 && row.status === 'pending' ? row : null;
-    }, 60_000);
+    const failing = await waitFor(
+      'two failed attempts',
+      async () => {
+        const outbox = await (await admin.fetch('/api/admin/outbox')).json();
+        const row = outbox.items.find((m: { kind: string }) => m.kind === 'invitation');
+        return row && row.attempts >= 2 && row.status === 'pending' ? row : null;
+      },
+      60_000,
+    );
     expect(failing.lastError).toMatch(/ECONNREFUSED|connect/i);
 
     sink = await startMailSink(smtpPort, mailbox);

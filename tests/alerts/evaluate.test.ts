@@ -16,7 +16,15 @@ beforeAll(async () => {
   await migrateUp();
 });
 
-const base: RuleThresholds = { indicator: 'ac1', direction: 'rising', minTau: 0.3, maxSurrogateP: 0.05, levelThreshold: null, levelDirection: 'above', fdrLevel: null };
+const base: RuleThresholds = {
+  indicator: 'ac1',
+  direction: 'rising',
+  minTau: 0.3,
+  maxSurrogateP: 0.05,
+  levelThreshold: null,
+  levelDirection: 'above',
+  fdrLevel: null,
+};
 const summary = (tau: number | null, surrogateP: number | null, latest = 0.8, p = 0.01) => ({
   kendall: { ac1: { tau, p } },
   significance: surrogateP === null ? {} : { ac1: { p: surrogateP, count: 100, method: 'ar1' } },

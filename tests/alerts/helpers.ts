@@ -7,7 +7,13 @@ import type { Actor } from '@/lib/auth/roles';
 let counter = 0;
 
 export async function makeUser(role: Actor['role'], name = `${role} ${++counter}`): Promise<Actor> {
-  const user = await User.create({ email: `${role}${++counter}@example.test`, name, role, passwordHash: await hashPassword('unit-test-password'), active: true });
+  const user = await User.create({
+    email: `${role}${++counter}@example.test`,
+    name,
+    role,
+    passwordHash: await hashPassword('unit-test-password'),
+    active: true,
+  });
   return { id: user.id, email: user.email, name: user.name, role: user.role };
 }
 
@@ -39,7 +45,16 @@ export async function makeRule(series: Series, lead: Actor, input: Partial<RuleC
  */
 export async function makeSnapshot(
   series: Series,
-  ac1: { tau: number | null; p?: number | null; surrogateP?: number | null; latest?: number | null; count?: number; nullSd?: number | null; direction?: string; indicator?: string },
+  ac1: {
+    tau: number | null;
+    p?: number | null;
+    surrogateP?: number | null;
+    latest?: number | null;
+    count?: number;
+    nullSd?: number | null;
+    direction?: string;
+    indicator?: string;
+  },
   extra: { summary?: Record<string, unknown>; curves?: Record<string, unknown> | null; status?: 'ok' | 'error'; error?: string | null } = {},
 ) {
   const name = ac1.indicator ?? 'ac1';
@@ -56,7 +71,19 @@ export async function makeSnapshot(
             bandwidthPoints: 40,
             interval: 86_400_000,
             kendall: { [name]: { tau: ac1.tau, p: ac1.p ?? 0.001, direction } },
-            significance: ac1.surrogateP === undefined ? {} : { [name]: { p: ac1.surrogateP, count: ac1.count ?? 100, method: 'ar1', direction, nullSd: ac1.nullSd === undefined ? 0.05 : ac1.nullSd, nullCount: ac1.count ?? 100 } },
+            significance:
+              ac1.surrogateP === undefined
+                ? {}
+                : {
+                    [name]: {
+                      p: ac1.surrogateP,
+                      count: ac1.count ?? 100,
+                      method: 'ar1',
+                      direction,
+                      nullSd: ac1.nullSd === undefined ? 0.05 : ac1.nullSd,
+                      nullCount: ac1.count ?? 100,
+                    },
+                  },
             latest: { [name]: ac1.latest === undefined ? { time: 0, value: 0.8 } : ac1.latest === null ? null : { time: 0, value: ac1.latest } },
             shifts: [],
             ...extra.summary,

@@ -41,7 +41,10 @@ describe('data-late alerts', () => {
   it('open once, mail watchers once, and close by themselves when data return', async () => {
     const analyst = await makeUser('analyst');
     const admin = await makeUser('admin');
-    await registerWebhook({ id: admin.id, email: admin.email, name: admin.name, role: 'admin' }, { url: 'http://127.0.0.1:9/hook', events: ['data.late'], description: '' });
+    await registerWebhook(
+      { id: admin.id, email: admin.email, name: admin.name, role: 'admin' },
+      { url: 'http://127.0.0.1:9/hook', events: ['data.late'], description: '' },
+    );
     const digestReader = await makeUser('viewer');
     const bystander = await makeUser('analyst');
     const series = await makeSeries();

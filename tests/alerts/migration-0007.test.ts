@@ -16,7 +16,9 @@ async function columns(table: string): Promise<string[]> {
   return (await rows<{ name: string }>(`PRAGMA table_info(${table})`)).map((c) => c.name);
 }
 async function indexes(table: string): Promise<string[]> {
-  return (await rows<{ name: string }>(`SELECT name FROM sqlite_master WHERE type = 'index' AND tbl_name = '${table}' AND sql IS NOT NULL ORDER BY name`)).map((r) => r.name);
+  return (await rows<{ name: string }>(`SELECT name FROM sqlite_master WHERE type = 'index' AND tbl_name = '${table}' AND sql IS NOT NULL ORDER BY name`)).map(
+    (r) => r.name,
+  );
 }
 
 describe('migration 0007 (rule direction, Kendall gate removed, alert kinds)', () => {
@@ -33,12 +35,24 @@ describe('migration 0007 (rule direction, Kendall gate removed, alert kinds)', (
     const s = await db();
     const alertIndexesBefore = await indexes('alerts');
     await s.query(`INSERT INTO series (id, slug, name, csv_mapping, settings, created_at, updated_at) VALUES (1, 'a', 'A', '{}', '{}', ${now}, ${now})`);
-    for (const [id, indicator, kendall] of [[1, 'recovery', '0.01'], [2, 'skewness', 'NULL'], [3, 'ac1', '0.05']] as const) {
-      await s.query(`INSERT INTO alert_rules (id, series_id, indicator, min_tau, max_kendall_p, severity, created_at, updated_at) VALUES (${id}, 1, '${indicator}', 0.3, ${kendall}, 'watch', ${now}, ${now})`);
+    for (const [id, indicator, kendall] of [
+      [1, 'recovery', '0.01'],
+      [2, 'skewness', 'NULL'],
+      [3, 'ac1', '0.05'],
+    ] as const) {
+      await s.query(
+        `INSERT INTO alert_rules (id, series_id, indicator, min_tau, max_kendall_p, severity, created_at, updated_at) VALUES (${id}, 1, '${indicator}', 0.3, ${kendall}, 'watch', ${now}, ${now})`,
+      );
     }
-    await s.query(`INSERT INTO analysis_snapshots (id, series_id, settings, summary, status, n, created_at, updated_at) VALUES (1, 1, '{}', '{}', 'ok', 10, ${now}, ${now})`);
-    await s.query(`INSERT INTO alerts (id, series_id, rule_id, state, severity, first_snapshot_id, latest_snapshot_id, peak_tau, created_at, updated_at) VALUES (1, 1, 3, 'new', 'watch', 1, 1, 0.4, ${now}, ${now})`);
-    await s.query(`INSERT INTO rule_evaluations (rule_id, series_id, snapshot_id, passed, streak, alert_id, created_at, updated_at) VALUES (3, 1, 1, 1, 1, 1, ${now}, ${now})`);
+    await s.query(
+      `INSERT INTO analysis_snapshots (id, series_id, settings, summary, status, n, created_at, updated_at) VALUES (1, 1, '{}', '{}', 'ok', 10, ${now}, ${now})`,
+    );
+    await s.query(
+      `INSERT INTO alerts (id, series_id, rule_id, state, severity, first_snapshot_id, latest_snapshot_id, peak_tau, created_at, updated_at) VALUES (1, 1, 3, 'new', 'watch', 1, 1, 0.4, ${now}, ${now})`,
+    );
+    await s.query(
+      `INSERT INTO rule_evaluations (rule_id, series_id, snapshot_id, passed, streak, alert_id, created_at, updated_at) VALUES (3, 1, 1, 1, 1, 1, ${now}, ${now})`,
+    );
 
     // Up to this migration only, so later ones (their own indexes) do not enter its checks.
     await migrateUp(NAME);
@@ -55,7 +69,11 @@ describe('migration 0007 (rule direction, Kendall gate removed, alert kinds)', (
     await s.query(shift);
     await expect(s.query(shift)).rejects.toMatchObject({ name: 'SequelizeUniqueConstraintError' });
     // The one-open-alert-per-rule constraint survived the rebuild.
-    await expect(s.query(`INSERT INTO alerts (series_id, rule_id, state, severity, first_snapshot_id, latest_snapshot_id, created_at, updated_at) VALUES (1, 3, 'new', 'watch', 1, 1, ${now}, ${now})`)).rejects.toMatchObject({ name: 'SequelizeUniqueConstraintError' });
+    await expect(
+      s.query(
+        `INSERT INTO alerts (series_id, rule_id, state, severity, first_snapshot_id, latest_snapshot_id, created_at, updated_at) VALUES (1, 3, 'new', 'watch', 1, 1, ${now}, ${now})`,
+      ),
+    ).rejects.toMatchObject({ name: 'SequelizeUniqueConstraintError' });
     expect(await rows('PRAGMA foreign_key_check')).toEqual([]);
 
     await migrateDown(NAME);

@@ -26,7 +26,8 @@ describe('abrupt-shift alerts', () => {
     await watch(analyst, series, 'immediate');
     await makeRule(series, lead);
     const t1 = Date.UTC(2021, 0, 10);
-    const shifted = (shifts: { time: number; index: number; size?: number }[], tau = 0.1) => makeSnapshot(series, { tau, surrogateP: 0.5 }, { summary: { shifts } });
+    const shifted = (shifts: { time: number; index: number; size?: number }[], tau = 0.1) =>
+      makeSnapshot(series, { tau, surrogateP: 0.5 }, { summary: { shifts } });
 
     const first = await evaluateSnapshots([await shifted([{ time: t1, index: 375, size: -2.5 }])]);
     expect(first.shifts).toHaveLength(1);
@@ -42,13 +43,27 @@ describe('abrupt-shift alerts', () => {
     // Re-analysis finds the same shift, also a couple of points later as more data arrive, or an earlier one: nothing new.
     expect((await evaluateSnapshots([await shifted([{ time: t1, index: 375 }])])).shifts).toEqual([]);
     expect((await evaluateSnapshots([await shifted([{ time: t1 + 2 * DAY, index: 377 }])])).shifts).toEqual([]);
-    expect((await evaluateSnapshots([await shifted([{ time: t1 - 200 * DAY, index: 175 }, { time: t1, index: 375 }])])).shifts).toEqual([]);
+    expect(
+      (
+        await evaluateSnapshots([
+          await shifted([
+            { time: t1 - 200 * DAY, index: 175 },
+            { time: t1, index: 375 },
+          ]),
+        ])
+      ).shifts,
+    ).toEqual([]);
     // Failed analyses carry no shifts and open nothing.
     expect((await evaluateSnapshots([await makeSnapshot(series, { tau: null }, { status: 'error', error: 'boom' })])).shifts).toEqual([]);
 
     // A later shift is news again.
     const t2 = t1 + 120 * DAY;
-    const later = await evaluateSnapshots([await shifted([{ time: t1, index: 375 }, { time: t2, index: 495 }])]);
+    const later = await evaluateSnapshots([
+      await shifted([
+        { time: t1, index: 375 },
+        { time: t2, index: 495 },
+      ]),
+    ]);
     expect(later.shifts).toHaveLength(1);
     expect((await Alert.findByPk(later.shifts[0]))!.shiftTime).toBe(t2);
     expect(await Alert.count({ where: { seriesId: series.id, kind: 'abrupt-shift' } })).toBe(2);
@@ -91,7 +106,9 @@ describe('abrupt-shift alerts', () => {
     expect(explainedByMark(cleaned + 100 * DAY, [cleaned], summary)).toBe(true);
     expect(explainedByMark(cleaned + 101 * DAY, [cleaned], summary)).toBe(false);
     // A shift well after the mark is news.
-    const later = await evaluateSnapshots([await makeSnapshot(series, { tau: 0.2 }, { summary: { ...summary, shifts: [{ time: cleaned + 300 * DAY, index: 483 }] } })]);
+    const later = await evaluateSnapshots([
+      await makeSnapshot(series, { tau: 0.2 }, { summary: { ...summary, shifts: [{ time: cleaned + 300 * DAY, index: 483 }] } }),
+    ]);
     expect(later.shifts).toHaveLength(1);
   });
 });

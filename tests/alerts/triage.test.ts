@@ -7,7 +7,17 @@ import { migrateUp } from '@/migrations';
 import { AlertEvent, AuditEntry, MailMessage, NoteRevision, db, ROLES, ALERT_STATES, roleAtLeast } from '@/models';
 import { ConflictError, ForbiddenError } from '@/lib/http/errors';
 import { evaluateSnapshots } from '@/lib/alerts/evaluate';
-import { TRIAGE_POLICY, acknowledgeAlert, allowedActions, assignAlert, confirmAlert, dismissAlert, escalateAlert, reopenAlert, applyTriageAction } from '@/lib/alerts/triage';
+import {
+  TRIAGE_POLICY,
+  acknowledgeAlert,
+  allowedActions,
+  assignAlert,
+  confirmAlert,
+  dismissAlert,
+  escalateAlert,
+  reopenAlert,
+  applyTriageAction,
+} from '@/lib/alerts/triage';
 import { addNote, editNote } from '@/lib/alerts/notes';
 import { fetchAlertDetail, fetchAlertQueue } from '@/lib/alerts/queries';
 import { alertQueueSchema, TRIAGE_ACTIONS } from '@/lib/schemas/alert';
@@ -148,7 +158,11 @@ describe('queues', () => {
     await makeRule(series, lead, { indicator: 'variance', severity: 'warning' });
     const snap = await makeSnapshot(series, { tau: 0.6, surrogateP: 0.01 });
     // variance evidence on the same snapshot so the second rule fires too
-    snap.summary = { ...snap.summary, kendall: { ...(snap.summary.kendall as object), variance: { tau: 0.7, p: 0.001 } }, significance: { ...(snap.summary.significance as object), variance: { p: 0.01, count: 100, method: 'ar1' } } };
+    snap.summary = {
+      ...snap.summary,
+      kendall: { ...(snap.summary.kendall as object), variance: { tau: 0.7, p: 0.001 } },
+      significance: { ...(snap.summary.significance as object), variance: { p: 0.01, count: 100, method: 'ar1' } },
+    };
     await snap.save();
     const { opened } = await evaluateSnapshots([snap]);
     expect(opened).toHaveLength(2);

@@ -39,12 +39,18 @@ describe('backtest API, job and cancel (real server and scheduler)', () => {
   });
 
   it('runs a queued backtest with calibration to the end and stores the result', async () => {
-    const tippingPoints = ((await (await viewer.fetch(`/api/series/${SLUG}/marks`)).json()).marks as { kind: string }[]).filter((m) => m.kind === 'tipping-point');
+    const tippingPoints = ((await (await viewer.fetch(`/api/series/${SLUG}/marks`)).json()).marks as { kind: string }[]).filter(
+      (m) => m.kind === 'tipping-point',
+    );
     expect(tippingPoints.length).toBeGreaterThan(0);
     const res = await lead.json(`/api/rules/${ruleId}/backtest`, 'POST', { every: 5, calibration: { surrogates: 40, method: 'ar1' } });
     expect(res.status).toBe(202);
     const { jobId } = await res.json();
-    const job = await waitFor(async () => (await viewer.fetch(`/api/backtests/${jobId}`)).json(), (j) => j.status === 'succeeded' || j.status === 'failed', 120_000);
+    const job = await waitFor(
+      async () => (await viewer.fetch(`/api/backtests/${jobId}`)).json(),
+      (j) => j.status === 'succeeded' || j.status === 'failed',
+      120_000,
+    );
     expect(job.error).toBeNull();
     expect(job.status).toBe('succeeded');
     expect(job.progress).toBe(1);
@@ -62,10 +68,18 @@ describe('backtest API, job and cancel (real server and scheduler)', () => {
   it('cancels a running calibration', async () => {
     const res = await lead.json(`/api/rules/${ruleId}/backtest`, 'POST', { every: 1, calibration: { surrogates: 2000, method: 'ar1' } });
     const { jobId } = await res.json();
-    await waitFor(async () => (await viewer.fetch(`/api/backtests/${jobId}`)).json(), (j) => j.status !== 'queued', 60_000);
+    await waitFor(
+      async () => (await viewer.fetch(`/api/backtests/${jobId}`)).json(),
+      (j) => j.status !== 'queued',
+      60_000,
+    );
     expect((await viewer.json(`/api/backtests/${jobId}/cancel`, 'POST')).status).toBe(403);
     expect((await lead.json(`/api/backtests/${jobId}/cancel`, 'POST')).status).toBe(200);
-    const job = await waitFor(async () => (await viewer.fetch(`/api/backtests/${jobId}`)).json(), (j) => j.status !== 'running' && j.status !== 'queued', 60_000);
+    const job = await waitFor(
+      async () => (await viewer.fetch(`/api/backtests/${jobId}`)).json(),
+      (j) => j.status !== 'running' && j.status !== 'queued',
+      60_000,
+    );
     expect(job.status).toBe('cancelled');
     expect(job.result).toBeNull();
   }, 180_000);

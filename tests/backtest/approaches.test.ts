@@ -42,7 +42,16 @@ describe('ROC from simulated approaches to a fold fitted to the record (Boettige
   const M = 150;
   it('on an approach to a fold, hit rate exceeds the false-alarm rate', async () => {
     const r = await runBacktest(
-      { time: t, value: approach(5), intervalMs: DAY, settings, rule: rule(), tippingPoints: [{ at: t[n - 1] + DAY }], every: 5, calibration: { surrogates: 10, method: 'ar1', approaches: M } },
+      {
+        time: t,
+        value: approach(5),
+        intervalMs: DAY,
+        settings,
+        rule: rule(),
+        tippingPoints: [{ at: t[n - 1] + DAY }],
+        every: 5,
+        calibration: { surrogates: 10, method: 'ar1', approaches: M },
+      },
       { threads: 1 },
     );
     const cal = r.calibration!;
@@ -70,7 +79,16 @@ describe('ROC from simulated approaches to a fold fitted to the record (Boettige
     for (const seed of [3, 8]) {
       const x = simulateAr1({ n, phi: 0.5, sigma: 1, seed });
       const r = await runBacktest(
-        { time: t, value: x, intervalMs: DAY, settings, rule: rule(), tippingPoints: [{ at: t[n - 1] + DAY }], every: 5, calibration: { surrogates: 10, method: 'ar1', approaches: M } },
+        {
+          time: t,
+          value: x,
+          intervalMs: DAY,
+          settings,
+          rule: rule(),
+          tippingPoints: [{ at: t[n - 1] + DAY }],
+          every: 5,
+          calibration: { surrogates: 10, method: 'ar1', approaches: M },
+        },
         { threads: 1 },
       );
       for (const threshold of [0.3, 0.5]) {

@@ -53,7 +53,15 @@ describe('calibrated false-alarm rate of the full live procedure on AR(1) nulls'
     const n = 500;
     const t = days(n);
     const settings = analysisSettingsSchema.parse({ detrend: 'linear', window: 0.25, surrogates: 19 });
-    const r: ReplayRule = { indicator: 'ac1', minTau: 0, maxSurrogateP: 0.1, levelThreshold: null, levelDirection: 'above', persistence: 1, quietPeriodHours: 0 };
+    const r: ReplayRule = {
+      indicator: 'ac1',
+      minTau: 0,
+      maxSurrogateP: 0.1,
+      levelThreshold: null,
+      levelDirection: 'above',
+      persistence: 1,
+      quietPeriodHours: 0,
+    };
     const M = 60;
     let fired = 0;
     let onsets = 0;
@@ -68,10 +76,21 @@ describe('calibrated false-alarm rate of the full live procedure on AR(1) nulls'
     }
     const control = simulateAr1({ n, phi: 0.5, sigma: 1, seed: 78 });
     const N = 120;
-    const cal = (await runBacktest(
-      { time: t, value: control, intervalMs: DAY, settings, rule: r, tippingPoints: [], every: 25, calibration: { surrogates: N, method: 'ar1', approaches: 20 } },
-      { threads: 1 },
-    )).calibration!;
+    const cal = (
+      await runBacktest(
+        {
+          time: t,
+          value: control,
+          intervalMs: DAY,
+          settings,
+          rule: r,
+          tippingPoints: [],
+          every: 25,
+          calibration: { surrogates: N, method: 'ar1', approaches: 20 },
+        },
+        { threads: 1 },
+      )
+    ).calibration!;
     expect(cal.notJudgedSteps).toBe(0);
     const pReplay = fired / M;
     const pooled = (fired + cal.falseAlarmRate * N) / (M + N);

@@ -9,7 +9,6 @@ import { indicatorTrend } from '@/lib/engine/kendall';
 import { rollingIndicators } from '@/lib/engine/rolling';
 import { analysisSettingsSchema } from '@/lib/engine/settings';
 
-
 describe('point-in-time residuals equal the engine detrending of each prefix at its last point', () => {
   const x = simulateAr1({ n: 700, phi: 0.6, sigma: 1, mean: 50, seed: 3 }).map((v, i) => v + 0.01 * i);
   const ends = [0, 1, 5, 99, 400, 699];
@@ -26,7 +25,10 @@ describe('point-in-time residuals equal the engine detrending of each prefix at 
   it('local-linear (FFT path, h = 70; direct sums, h = 3; a bandwidth wider than the record, h = 900): the engine detrend of each prefix', () => {
     // the reference that ties the replay to the live analysis: detrend(prefix, 'local-linear') as runAnalysis calls it
     for (const h of [70, 3, 900]) {
-      check(pointInTimeResiduals(x, { detrend: 'local-linear', h, movingAverageWidth: 11 }), (p) => detrend(p, 'local-linear', { bandwidthPoints: h, movingAverageWidth: 11 }).trend);
+      check(
+        pointInTimeResiduals(x, { detrend: 'local-linear', h, movingAverageWidth: 11 }),
+        (p) => detrend(p, 'local-linear', { bandwidthPoints: h, movingAverageWidth: 11 }).trend,
+      );
     }
   });
   it('local-linear equals a direct O(n·L) evaluation of the one-sided fit at every point', () => {
@@ -36,7 +38,11 @@ describe('point-in-time residuals equal the engine detrending of each prefix at 
       const r = pointInTimeResiduals(x, { detrend: 'local-linear', h, movingAverageWidth: 11 });
       const L = Math.ceil(8.86 * h);
       for (let i = 0; i < x.length; i += 7) {
-        let s0 = 0, s1 = 0, s2 = 0, t0 = 0, t1 = 0;
+        let s0 = 0,
+          s1 = 0,
+          s2 = 0,
+          t0 = 0,
+          t1 = 0;
         for (let d = 0; d <= Math.min(i, L); d++) {
           const k = Math.exp(-(d * d) / (2 * h * h));
           s0 += k;
@@ -55,7 +61,10 @@ describe('point-in-time residuals equal the engine detrending of each prefix at 
   it('linear', () =>
     check(pointInTimeResiduals(x, { detrend: 'linear', h: 1, movingAverageWidth: 11 }), (p) => {
       if (p.length < 2) return Float64Array.from(p);
-      const { intercept, slope } = linearFit(Float64Array.from(p, (_, k) => k), p);
+      const { intercept, slope } = linearFit(
+        Float64Array.from(p, (_, k) => k),
+        p,
+      );
       return Float64Array.from(p, (_, k) => intercept + slope * k);
     }));
 });

@@ -25,7 +25,9 @@ describe('alarm onsets judge the surrogate p wherever it is needed', () => {
   it('an alarm after 300 failing surrogate checks is still raised (no cap that stops judging)', () => {
     // tau passes everywhere; the surrogate p fails at steps 0..299 and passes from 300 on. With persistence 3
     // the onset is at step 302, after 303 checks; a cap of 100 checks would have suppressed it.
-    const report = alarmOnsets(flatEvidence(400, 0.6), rule({ maxSurrogateP: 0.05 }), 0.3, (s) => (s < 300 ? { p: 0.5, passed: false } : { p: 0.01, passed: true }));
+    const report = alarmOnsets(flatEvidence(400, 0.6), rule({ maxSurrogateP: 0.05 }), 0.3, (s) =>
+      s < 300 ? { p: 0.5, passed: false } : { p: 0.01, passed: true },
+    );
     expect(report.onsets.map((o) => o.step)).toEqual([302]);
     expect(report.surrogateChecks).toBe(303);
     expect(report.notJudged.length).toBe(0);
@@ -65,7 +67,15 @@ describe('judged time, hand-computed on a small record', () => {
   const x = simulateAr1({ n, phi: 0.5, sigma: 1, seed: 21 });
   const settings = analysisSettingsSchema.parse({ detrend: 'none', window: 0.2, surrogates: 19 });
   it('divides false alarms by the 32 days that could host one, not the 100-day record', async () => {
-    const r = await runBacktest({ time: t, value: x, intervalMs: DAY, settings, rule: rule({ minTau: -1, persistence: 1 }), tippingPoints: [{ at: t[80] }], every: 1 });
+    const r = await runBacktest({
+      time: t,
+      value: x,
+      intervalMs: DAY,
+      settings,
+      rule: rule({ minTau: -1, persistence: 1 }),
+      tippingPoints: [{ at: t[80] }],
+      every: 1,
+    });
     expect(r.steps).toBe(52);
     expect(r.horizonMs).toBe(20 * DAY);
     expect(r.judged.years * YEAR).toBeCloseTo(52 * DAY, 3);
@@ -77,7 +87,15 @@ describe('judged time, hand-computed on a small record', () => {
   it('instants left unjudged by the cost bound leave the judged time', async () => {
     // with a surrogate criterion and no budget every instant that passes on tau (all of them) is not judged
     const r = await runBacktest(
-      { time: t, value: x, intervalMs: DAY, settings, rule: rule({ minTau: -1, persistence: 1, maxSurrogateP: 0.05 }), tippingPoints: [{ at: t[80] }], every: 1 },
+      {
+        time: t,
+        value: x,
+        intervalMs: DAY,
+        settings,
+        rule: rule({ minTau: -1, persistence: 1, maxSurrogateP: 0.05 }),
+        tippingPoints: [{ at: t[80] }],
+        every: 1,
+      },
       { surrogateBudget: 0 },
     );
     expect(r.judged.notJudgedSteps).toBe(52);
@@ -97,13 +115,24 @@ describe('after a marked tipping point the replay judges only the record since i
     const t = days(n);
     const x = simulateAr1({ n, phi: 0.5, sigma: 1, seed: 23 });
     const settings = analysisSettingsSchema.parse({ detrend: 'none', window: 0.1, surrogates: 0 });
-    const r = await runBacktest({ time: t, value: x, intervalMs: DAY, settings, rule: rule({ minTau: -1, persistence: 1 }), tippingPoints: [{ at: t[100] }], every: 1 });
+    const r = await runBacktest({
+      time: t,
+      value: x,
+      intervalMs: DAY,
+      settings,
+      rule: rule({ minTau: -1, persistence: 1 }),
+      tippingPoints: [{ at: t[100] }],
+      every: 1,
+    });
     expect(r.steps).toBe(144);
     expect(r.evidence.time[72]).toBe(t[128]);
     expect(r.judged.years * YEAR).toBeCloseTo(144 * DAY, 3);
     expect(r.falseAlarms.exposureYears * YEAR).toBeCloseTo(124 * DAY, 3);
     // threshold −1: one alarm opens at the first instant of each stretch
-    expect(r.alarms.map((a) => [a.kind, (a.time - t[0]) / DAY])).toEqual([['false', 28], ['false', 128]]);
+    expect(r.alarms.map((a) => [a.kind, (a.time - t[0]) / DAY])).toEqual([
+      ['false', 28],
+      ['false', 128],
+    ]);
   });
 });
 
@@ -134,7 +163,15 @@ describe('the replayed stretch restarts where the live analysis restarts', () =>
     expect(r.alarms.map((a) => (a.time - t[0]) / DAY)).toEqual([148, index + 148]);
     expect(r.tippingPoints).toHaveLength(0);
     // with shift detection off the replay runs straight across the step, as the live analysis then would
-    const off = await runBacktest({ time: t, value: x, intervalMs: DAY, settings: { ...settings, shiftDetection: 'off' }, rule: r0, tippingPoints: [], every: 1 });
+    const off = await runBacktest({
+      time: t,
+      value: x,
+      intervalMs: DAY,
+      settings: { ...settings, shiftDetection: 'off' },
+      rule: r0,
+      tippingPoints: [],
+      every: 1,
+    });
     expect(off.restarts).toHaveLength(0);
     expect(off.steps).toBe(n - 148);
   });
@@ -145,7 +182,10 @@ describe('the replayed stretch restarts where the live analysis restarts', () =>
     expect(r.steps).toBe(452 + 452);
     expect(r.tippingPoints).toHaveLength(0);
     // both alarms are false (no warning stretch, no settling stretch), counted over all judged time
-    expect(r.alarms.map((a) => [a.kind, (a.time - t[0]) / DAY])).toEqual([['false', 148], ['false', 748]]);
+    expect(r.alarms.map((a) => [a.kind, (a.time - t[0]) / DAY])).toEqual([
+      ['false', 148],
+      ['false', 748],
+    ]);
     expect(r.falseAlarms.exposureYears * YEAR).toBeCloseTo(904 * DAY, 3);
   });
 });

@@ -12,7 +12,16 @@ import { simulateAr1 } from '@/lib/demo/models';
  * editor, its verdict on the latest analysis and a backtest of it.
  */
 const CHROMIUM = '/usr/bin/chromium';
-const FLAGS = ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'];
+const FLAGS = [
+  '--headless',
+  '--no-sandbox',
+  '--disable-gpu',
+  '--disable-quic',
+  '--no-first-run',
+  '--disable-background-networking',
+  '--disable-component-update',
+  '--disable-sync',
+];
 const SHOTS = path.resolve(__dirname, '../../test-results/screenshots');
 const SLUG = 'journey-reservoir-oxygen';
 const DAY = 86_400_000;
@@ -35,7 +44,11 @@ function stationFile(): string {
 describe('a lead sets up monitoring on screen (Chromium)', () => {
   beforeAll(async () => {
     fs.mkdirSync(SHOTS, { recursive: true });
-    app = await startApp({ demo: false, scheduler: true, env: { INGEST_CRON: '*/2 * * * * *', ANALYSIS_CRON: '*/3 * * * * *', BACKTEST_CRON: '*/2 * * * * *' } });
+    app = await startApp({
+      demo: false,
+      scheduler: true,
+      env: { INGEST_CRON: '*/2 * * * * *', ANALYSIS_CRON: '*/3 * * * * *', BACKTEST_CRON: '*/2 * * * * *' },
+    });
     browser = await chromium.launch({ executablePath: CHROMIUM, args: FLAGS });
     api = await signedIn(app.baseUrl, 'lead@brinkwatch.test', DEMO_PASSWORD);
     lead = await browser.newContext({ viewport: { width: 1280, height: 900 } });
@@ -82,10 +95,13 @@ describe('a lead sets up monitoring on screen (Chromium)', () => {
 
     // Taken in by the intake job, then analysed by the analysis job: the page leads with the evidence table.
     await expect
-      .poll(async () => {
-        await page.reload();
-        return page.getByTestId('evidence-table').count();
-      }, { timeout: 180_000, interval: 3_000 })
+      .poll(
+        async () => {
+          await page.reload();
+          return page.getByTestId('evidence-table').count();
+        },
+        { timeout: 180_000, interval: 3_000 },
+      )
       .toBeGreaterThan(0);
     const runs = await (await api.fetch(`/api/ingest-runs?series=${SLUG}`)).json();
     expect(JSON.stringify(runs)).toContain('first-export.csv');

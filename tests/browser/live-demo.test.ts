@@ -6,7 +6,16 @@ import { DEMO_PASSWORD, startApp, type RunningApp } from '../support/app';
 
 /** Debian's Chromium, never a downloaded browser; flags as in DEVELOPERS.md ("Browser tests"). */
 const CHROMIUM = '/usr/bin/chromium';
-const FLAGS = ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'];
+const FLAGS = [
+  '--headless',
+  '--no-sandbox',
+  '--disable-gpu',
+  '--disable-quic',
+  '--no-first-run',
+  '--disable-background-networking',
+  '--disable-component-update',
+  '--disable-sync',
+];
 const SHOTS = path.resolve(__dirname, '../../test-results/screenshots');
 
 let app: RunningApp;
@@ -41,7 +50,7 @@ describe('the live demo in Chromium', () => {
     expect(freshness.every((f) => f === 'fresh')).toBe(true);
   });
 
-  it('shows the feed\'s first ingest run on the Intake screen, with its report', async () => {
+  it("shows the feed's first ingest run on the Intake screen, with its report", async () => {
     await page.goto(`${app.baseUrl}/intake`);
     const table = page.getByTestId('runs-table');
     // The runs table refreshes itself every 10 s; the first delivery is due within one feed cycle and one intake pass.

@@ -7,7 +7,16 @@ import { signedIn, type Session } from '../support/session';
 
 /** Debian's Chromium, never a downloaded browser; flags as in DEVELOPERS.md ("Browser tests"). */
 const CHROMIUM = '/usr/bin/chromium';
-const FLAGS = ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'];
+const FLAGS = [
+  '--headless',
+  '--no-sandbox',
+  '--disable-gpu',
+  '--disable-quic',
+  '--no-first-run',
+  '--disable-background-networking',
+  '--disable-component-update',
+  '--disable-sync',
+];
 const SHOTS = path.resolve(__dirname, '../../test-results/screenshots');
 
 let app: RunningApp;
@@ -101,7 +110,9 @@ describe('registration screens in Chromium', () => {
     await page.getByRole('button', { name: 'Check the list' }).click();
     const preview = page.getByTestId('bulk-preview');
     await preview.waitFor();
-    await expect(preview.locator('tr[data-row="2"][data-valid="false"]').getByTestId('row-errors').textContent()).resolves.toContain('interval: Write the interval as an ISO 8601 duration');
+    await expect(preview.locator('tr[data-row="2"][data-valid="false"]').getByTestId('row-errors').textContent()).resolves.toContain(
+      'interval: Write the interval as an ISO 8601 duration',
+    );
     await expect(preview.locator('tr[data-row="1"]').getAttribute('data-valid')).resolves.toBe('true');
     await expect(page.getByTestId('bulk-create').isDisabled()).resolves.toBe(true);
     await shot(page, 'bulk-preview-error');
@@ -117,7 +128,7 @@ describe('registration screens in Chromium', () => {
     await page.close();
   });
 
-  it('answers an unknown address with HTTP 404 and the app\'s own page', async () => {
+  it("answers an unknown address with HTTP 404 and the app's own page", async () => {
     const page = await viewer.newPage();
     for (const pathname of ['/series/no-such-series', '/alerts/999999', '/sites/none']) {
       const response = await page.goto(`${app.baseUrl}${pathname}`);

@@ -8,7 +8,16 @@ import { periodContaining } from '@/lib/reports/period-shape';
 
 /** Debian's Chromium, never a downloaded browser; flags as in DEVELOPERS.md ("Browser tests"). */
 const CHROMIUM = '/usr/bin/chromium';
-const FLAGS = ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'];
+const FLAGS = [
+  '--headless',
+  '--no-sandbox',
+  '--disable-gpu',
+  '--disable-quic',
+  '--no-first-run',
+  '--disable-background-networking',
+  '--disable-component-update',
+  '--disable-sync',
+];
 const SHOTS = path.resolve(__dirname, '../../test-results/screenshots');
 
 let app: RunningApp;
@@ -34,7 +43,10 @@ describe('period reports (Chromium)', () => {
     fs.mkdirSync(SHOTS, { recursive: true });
     app = await startApp({ demo: true });
     browser = await chromium.launch({ executablePath: CHROMIUM, args: FLAGS });
-    [leadApi, viewerApi] = await Promise.all([signedIn(app.baseUrl, 'lead@brinkwatch.test', DEMO_PASSWORD), signedIn(app.baseUrl, 'viewer@brinkwatch.test', DEMO_PASSWORD)]);
+    [leadApi, viewerApi] = await Promise.all([
+      signedIn(app.baseUrl, 'lead@brinkwatch.test', DEMO_PASSWORD),
+      signedIn(app.baseUrl, 'viewer@brinkwatch.test', DEMO_PASSWORD),
+    ]);
     lead = await signIn('lead');
   }, 600_000);
 
@@ -90,7 +102,9 @@ describe('period reports (Chromium)', () => {
     expect(body.caution).toMatch(/not forecasts/);
     const csv = await viewerApi.fetch(`/api/reports/period?from=${quarter.from}&to=${quarter.to}&format=csv`);
     expect(csv.headers.get('content-type')).toContain('text/csv');
-    expect((await csv.text()).split('\r\n')[0]).toBe('id,kind,seriesSlug,seriesName,site,severity,subject,openedAt,stateNow,decision,decidedAt,decidedBy,reason,note,hoursToDecision');
+    expect((await csv.text()).split('\r\n')[0]).toBe(
+      'id,kind,seriesSlug,seriesName,site,severity,subject,openedAt,stateNow,decision,decidedAt,decidedBy,reason,note,hoursToDecision',
+    );
     expect((await viewerApi.fetch('/api/reports/period?from=2026-02-30&to=2026-03-01')).status).toBe(422);
     expect((await viewerApi.fetch('/api/reports/schedules')).status).toBe(403);
     expect((await leadApi.fetch('/api/reports/schedules')).status).toBe(200);

@@ -7,7 +7,16 @@ import { signedIn, type Session } from '../support/session';
 
 /** Debian's Chromium, never a downloaded browser; flags as in DEVELOPERS.md ("Browser tests"). */
 const CHROMIUM = '/usr/bin/chromium';
-const FLAGS = ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'];
+const FLAGS = [
+  '--headless',
+  '--no-sandbox',
+  '--disable-gpu',
+  '--disable-quic',
+  '--no-first-run',
+  '--disable-background-networking',
+  '--disable-component-update',
+  '--disable-sync',
+];
 const SHOTS = path.resolve(__dirname, '../../test-results/screenshots');
 
 let app: RunningApp;
@@ -39,7 +48,10 @@ describe('rules, who hears and chart choice on the series page (Chromium)', () =
     fs.mkdirSync(SHOTS, { recursive: true });
     app = await startApp({ demo: true, env: { ANALYSIS_CRON: '*/5 * * * * *' } });
     browser = await chromium.launch({ executablePath: CHROMIUM, args: FLAGS });
-    [leadApi, viewerApi] = await Promise.all([signedIn(app.baseUrl, 'lead@brinkwatch.test', DEMO_PASSWORD), signedIn(app.baseUrl, 'viewer@brinkwatch.test', DEMO_PASSWORD)]);
+    [leadApi, viewerApi] = await Promise.all([
+      signedIn(app.baseUrl, 'lead@brinkwatch.test', DEMO_PASSWORD),
+      signedIn(app.baseUrl, 'viewer@brinkwatch.test', DEMO_PASSWORD),
+    ]);
     contexts.lead = await signIn('lead');
     contexts.viewer = await signIn('viewer');
     // a demo series once the scheduler has analysed it, so the draft has something to be judged on

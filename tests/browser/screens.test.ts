@@ -7,7 +7,16 @@ import { signedIn, type Session } from '../support/session';
 
 /** Debian's Chromium, never a downloaded browser; flags as in DEVELOPERS.md ("Browser tests"). */
 const CHROMIUM = '/usr/bin/chromium';
-const FLAGS = ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'];
+const FLAGS = [
+  '--headless',
+  '--no-sandbox',
+  '--disable-gpu',
+  '--disable-quic',
+  '--no-first-run',
+  '--disable-background-networking',
+  '--disable-component-update',
+  '--disable-sync',
+];
 const SHOTS = path.resolve(__dirname, '../../test-results/screenshots');
 const ROLES = ['admin', 'lead', 'analyst', 'viewer'] as const;
 type RoleName = (typeof ROLES)[number];
@@ -50,8 +59,16 @@ async function alertToTriage(): Promise<number> {
     const open = await Alert.findOne({ where: { ruleId: rule.id, state: OPEN_ALERT_STATES as string[] } });
     if (open) continue;
     const alert = await Alert.create({
-      seriesId: snapshot.seriesId, ruleId: rule.id, state: 'new', severity: rule.severity, assigneeId: null,
-      firstSnapshotId: snapshot.id, latestSnapshotId: snapshot.id, peakTau: null, dismissReason: null, closedAt: null,
+      seriesId: snapshot.seriesId,
+      ruleId: rule.id,
+      state: 'new',
+      severity: rule.severity,
+      assigneeId: null,
+      firstSnapshotId: snapshot.id,
+      latestSnapshotId: snapshot.id,
+      peakTau: null,
+      dismissReason: null,
+      closedAt: null,
     });
     return alert.id;
   }
@@ -96,11 +113,18 @@ describe('screens in Chromium', () => {
     // The health answer of a scheduler that stopped three hours ago, as GET /api/health gives it (503 when the
     // database is gone, 200 otherwise); the banner reads it either way.
     const stoppedAt = new Date(Date.now() - 3 * 3_600_000).toISOString();
-    await page.route('**/api/health', (route) => route.fulfill({
-      status: 200,
-      contentType: 'application/json',
-      body: JSON.stringify({ ok: true, db: { ok: true }, scheduler: { ok: false, lastBeatAt: stoppedAt, holder: null }, mail: { ok: false, transport: 'smtp', pending: 0, failed: 1 } }),
-    }));
+    await page.route('**/api/health', (route) =>
+      route.fulfill({
+        status: 200,
+        contentType: 'application/json',
+        body: JSON.stringify({
+          ok: true,
+          db: { ok: true },
+          scheduler: { ok: false, lastBeatAt: stoppedAt, holder: null },
+          mail: { ok: false, transport: 'smtp', pending: 0, failed: 1 },
+        }),
+      }),
+    );
     await page.reload();
     const banner = page.getByTestId('system-status');
     await banner.waitFor({ timeout: 20_000 });
@@ -139,13 +163,23 @@ describe('screens in Chromium', () => {
     const legend = page.locator('[data-testid^="trend-"]').first();
     await legend.waitFor({ timeout: 60_000 });
     const before = await legend.textContent();
-    const pathBefore = await page.getByTestId(/chart-(ac1|variance|sd|cv|skewness|kurtosis|recovery)/).first().locator('path.recharts-curve').first().getAttribute('d');
+    const pathBefore = await page
+      .getByTestId(/chart-(ac1|variance|sd|cv|skewness|kurtosis|recovery)/)
+      .first()
+      .locator('path.recharts-curve')
+      .first()
+      .getAttribute('d');
     const window = page.getByTestId('window-input');
     const current = Number(await window.inputValue());
     await window.fill(String(current > 0.4 ? 0.25 : 0.7));
     await page.getByTestId('preview-flag').waitFor({ timeout: 60_000 });
     await expect.poll(() => legend.textContent(), { timeout: 60_000 }).not.toBe(before);
-    const pathAfter = await page.getByTestId(/chart-(ac1|variance|sd|cv|skewness|kurtosis|recovery)/).first().locator('path.recharts-curve').first().getAttribute('d');
+    const pathAfter = await page
+      .getByTestId(/chart-(ac1|variance|sd|cv|skewness|kurtosis|recovery)/)
+      .first()
+      .locator('path.recharts-curve')
+      .first()
+      .getAttribute('d');
     expect(pathAfter).not.toBe(pathBefore);
     await shot(page, 'workbench-1280');
     await page.setViewportSize({ width: 390, height: 844 });
@@ -162,11 +196,16 @@ describe('screens in Chromium', () => {
     // show the detected shift (issue 13). Reference lines are zero-width SVG lines, so they are counted, not waited
     // on as visible; the page is reloaded until the scheduler has stored the first analysis.
     const page = await open('viewer', '/series/veskary-salinity-contrast');
-    await expect.poll(async () => {
-      await page.reload();
-      await page.waitForLoadState('networkidle');
-      return page.locator('[data-testid="stretch-start"]').count();
-    }, { timeout: 120_000, interval: 3000 }).toBeGreaterThan(0);
+    await expect
+      .poll(
+        async () => {
+          await page.reload();
+          await page.waitForLoadState('networkidle');
+          return page.locator('[data-testid="stretch-start"]').count();
+        },
+        { timeout: 120_000, interval: 3000 },
+      )
+      .toBeGreaterThan(0);
     await expect(page.locator('[data-testid="shift-marker"]').count()).resolves.toBeGreaterThan(0);
     await expect(page.getByTestId('chart-record').textContent()).resolves.toMatch(/analysed since/);
     await expect(page.locator('[data-testid^="trend-"]').first().textContent()).resolves.toMatch(/tested (rising|falling|either way)/);
@@ -206,7 +245,9 @@ describe('screens in Chromium', () => {
     await picker.fill(seriesName.slice(0, 6));
     await queue.getByRole('option', { name: new RegExp(seriesName) }).click();
     await expect.poll(() => new URL(queue.url()).searchParams.get('series'), { timeout: 20_000 }).toBeTruthy();
-    const shownSeries = async () => [...new Set((await queue.locator('[data-testid="alert-table"] tbody tr td:nth-child(2)').allTextContents()).map((n) => n.trim()))];
+    const shownSeries = async () => [
+      ...new Set((await queue.locator('[data-testid="alert-table"] tbody tr td:nth-child(2)').allTextContents()).map((n) => n.trim())),
+    ];
     await expect.poll(shownSeries, { timeout: 20_000 }).toEqual([seriesName]);
     await queue.locator(`tr[data-alert="${id}"]`).waitFor();
     await shot(queue, 'alerts-closed-one-series');
@@ -246,7 +287,10 @@ describe('screens in Chromium', () => {
   it('takes in a CSV through the upload flow of the Intake screen (labels from components/intake/UploadPanel.tsx)', async () => {
     const lead = await signedIn(app.baseUrl, 'lead@brinkwatch.test', DEMO_PASSWORD);
     const created = await lead.json('/api/series', 'POST', {
-      slug: 'browser-upload-check', name: 'Upload check', site: 'Test bench', intervalMs: 86_400_000,
+      slug: 'browser-upload-check',
+      name: 'Upload check',
+      site: 'Test bench',
+      intervalMs: 86_400_000,
       csvMapping: { timeColumn: 'time', valueColumn: 'value', timeFormat: 'iso8601' },
     });
     expect(created.status).toBe(201);

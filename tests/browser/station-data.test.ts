@@ -7,7 +7,16 @@ import { signedIn, type Session } from '../support/session';
 
 /** Debian's Chromium, never a downloaded browser; flags as in DEVELOPERS.md ("Browser tests"). */
 const CHROMIUM = '/usr/bin/chromium';
-const FLAGS = ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'];
+const FLAGS = [
+  '--headless',
+  '--no-sandbox',
+  '--disable-gpu',
+  '--disable-quic',
+  '--no-first-run',
+  '--disable-background-networking',
+  '--disable-component-update',
+  '--disable-sync',
+];
 const SHOTS = path.resolve(__dirname, '../../test-results/screenshots');
 const SLUG = 'veskary-deep-temperature';
 
@@ -40,18 +49,31 @@ describe('station data in Chromium', () => {
     const detail = await (await analyst.fetch(`/api/series/${SLUG}`)).json();
     const last = Number(detail.observations.last);
     const interval = Number(detail.intervalMs);
-    const override = await analyst.json(`/api/series/${SLUG}/observations/flags`, 'POST', { from: last - 5 * interval, to: last, flag: 3, reason: 'probe fouled, cleaned on the next visit' });
+    const override = await analyst.json(`/api/series/${SLUG}/observations/flags`, 'POST', {
+      from: last - 5 * interval,
+      to: last,
+      flag: 3,
+      reason: 'probe fouled, cleaned on the next visit',
+    });
     expect(override.status).toBe(200);
     const { changed } = await override.json();
     expect(changed).toBeGreaterThan(0);
     await page.goto(`${app.baseUrl}/series/${SLUG}`);
-    await expect.poll(async () => {
-      await page.reload();
-      await page.waitForLoadState('networkidle');
-      return page.locator('[data-testid="flag-suspect"]').count();
-    }, { timeout: 120_000, interval: 3000 }).toBeGreaterThan(0);
+    await expect
+      .poll(
+        async () => {
+          await page.reload();
+          await page.waitForLoadState('networkidle');
+          return page.locator('[data-testid="flag-suspect"]').count();
+        },
+        { timeout: 120_000, interval: 3000 },
+      )
+      .toBeGreaterThan(0);
     await expect(page.getByTestId('flag-legend').first().textContent()).resolves.toMatch(new RegExp(`${changed} flagged points?: ▲ suspect`));
-    await page.getByTestId('chart-record').first().screenshot({ path: path.join(SHOTS, 'record-flags.png') });
+    await page
+      .getByTestId('chart-record')
+      .first()
+      .screenshot({ path: path.join(SHOTS, 'record-flags.png') });
   }, 180_000);
 
   it('lets a lead set the quality-control tests on the series page and re-run them over the record', async () => {
@@ -63,7 +85,16 @@ describe('station data in Chromium', () => {
     await panel.getByRole('button', { name: 'Save tests' }).click();
     await panel.getByText('Saved.').waitFor();
     await panel.getByRole('button', { name: 'Re-run over the stored record' }).click();
-    await expect.poll(() => panel.getByTestId('qc-rerun-result').textContent().catch(() => ''), { timeout: 30_000 }).toMatch(/points judged, [\d,]+ flags changed\. Now: .*fail/);
+    await expect
+      .poll(
+        () =>
+          panel
+            .getByTestId('qc-rerun-result')
+            .textContent()
+            .catch(() => ''),
+        { timeout: 30_000 },
+      )
+      .toMatch(/points judged, [\d,]+ flags changed\. Now: .*fail/);
     await panel.screenshot({ path: path.join(SHOTS, 'qc-settings.png') });
     const qc = (await (await analyst.fetch(`/api/series/${SLUG}`)).json()).qc;
     expect(qc).toMatchObject({ grossRange: { fail: [-2, 3.815] }, suspectInAnalysis: true });
@@ -73,7 +104,8 @@ describe('station data in Chromium', () => {
     await page.goto(`${app.baseUrl}/feeds`);
     await page.getByTestId('feeds-empty').waitFor();
     await page.getByTestId('feed-sample').setInputFiles({
-      name: 'station.csv', mimeType: 'text/csv',
+      name: 'station.csv',
+      mimeType: 'text/csv',
       buffer: Buffer.from('TIMESTAMP,temp,temp_qc,cond\n2025-01-01T00:00:00Z,4.1,1,33.2\n2025-01-01T01:00:00Z,4.2,1,33.3\n'),
     });
     await page.getByTestId('feed-mapping').waitFor();

@@ -156,7 +156,10 @@ describe('the demo feed, pure part', () => {
 describe('the demo feed, delivering', () => {
   it('writes a drop file complete under a hidden name, then renames it into place', () => {
     const folder = path.join(dataDir, 'atomic');
-    const points = [{ t: Date.UTC(2031, 4, 15), value: 1.5 }, { t: Date.UTC(2031, 4, 16), value: -0.25 }];
+    const points = [
+      { t: Date.UTC(2031, 4, 15), value: 1.5 },
+      { t: Date.UTC(2031, 4, 16), value: -0.25 },
+    ];
     const original = fs.renameSync.bind(fs);
     const seen: { visible: string[]; hidden: string }[] = [];
     const rename = vi.spyOn(fs, 'renameSync').mockImplementation((from, to) => {
@@ -212,7 +215,7 @@ describe('the demo feed, delivering', () => {
     await runDropIntake({ settleMs: 0 });
   });
 
-  it('pushes with the series\' own ingest token, keeps the points while the server is down, and stops once the token is revoked', async () => {
+  it("pushes with the series' own ingest token, keeps the points while the server is down, and stops once the token is revoked", async () => {
     // The closed port of the cycles above: nothing stored, a token issued and kept.
     const end = await recordEnd(PUSH.slug);
     const saved = await AppState.findByPk('demo-feed.push-token');

@@ -69,7 +69,10 @@ describe('the demo analysed live', () => {
     const crossing = demo.times[mark.index + demo.values.slice(mark.index).findIndex((v) => v > mid)];
     const summary = latest.get(demo.input.slug)!.summary as unknown as Summary;
     const near = summary.shifts.filter((shift) => Math.abs(shift.time - crossing) <= 60 * DAY);
-    expect(near.length, `shifts at ${summary.shifts.map((s) => new Date(s.time).toISOString()).join(', ')}; crossing ${new Date(crossing).toISOString()}`).toBeGreaterThanOrEqual(1);
+    expect(
+      near.length,
+      `shifts at ${summary.shifts.map((s) => new Date(s.time).toISOString()).join(', ')}; crossing ${new Date(crossing).toISOString()}`,
+    ).toBeGreaterThanOrEqual(1);
   });
 
   it('keeps the spread of the surrogate taus on the summary (sample standard deviation, n − 1: common practice)', async () => {

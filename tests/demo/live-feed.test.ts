@@ -44,45 +44,81 @@ afterAll(async () => {
 });
 
 describe('the live demo after a fresh start', () => {
-  it('takes in the feed\'s first drop file with a report, and its first push', async () => {
-    const dropped = await waitFor('an ingest run of a demo feed file', () =>
-      IngestRun.findOne({ where: { source: 'drop', status: 'succeeded', fileName: { [Op.like]: 'demo-feed-%' } } }), left(), 1000);
-    expect(dropped.accepted).toBeGreaterThanOrEqual(1);
-    const series = await Series.findByPk(dropped.seriesId!);
-    const processed = path.join(dataDir, 'drops', series!.slug, 'processed');
-    expect(fs.existsSync(path.join(processed, `${dropped.fileName}.report.json`))).toBe(true);
+  it(
+    "takes in the feed's first drop file with a report, and its first push",
+    async () => {
+      const dropped = await waitFor(
+        'an ingest run of a demo feed file',
+        () => IngestRun.findOne({ where: { source: 'drop', status: 'succeeded', fileName: { [Op.like]: 'demo-feed-%' } } }),
+        left(),
+        1000,
+      );
+      expect(dropped.accepted).toBeGreaterThanOrEqual(1);
+      const series = await Series.findByPk(dropped.seriesId!);
+      const processed = path.join(dataDir, 'drops', series!.slug, 'processed');
+      expect(fs.existsSync(path.join(processed, `${dropped.fileName}.report.json`))).toBe(true);
 
-    const pushSeries = await Series.findOne({ where: { slug: PUSH_SLUG } });
-    const pushed = await waitFor('a push run of the demo station', () =>
-      IngestRun.findOne({ where: { source: 'push', status: 'succeeded', seriesId: pushSeries!.id } }), left(), 1000);
-    expect(pushed.tokenId).not.toBeNull();
-    console.log(`[live-feed] first drop run after ${Math.round((Date.now() - startedAt) / 1000)} s`);
-  }, BUDGET);
+      const pushSeries = await Series.findOne({ where: { slug: PUSH_SLUG } });
+      const pushed = await waitFor(
+        'a push run of the demo station',
+        () => IngestRun.findOne({ where: { source: 'push', status: 'succeeded', seriesId: pushSeries!.id } }),
+        left(),
+        1000,
+      );
+      expect(pushed.tokenId).not.toBeNull();
+      console.log(`[live-feed] first drop run after ${Math.round((Date.now() - startedAt) / 1000)} s`);
+    },
+    BUDGET,
+  );
 
-  it('analyses the fold series again once fed, and opens its ac1 alert with an e-mail in the local mailbox', async () => {
-    const series = await Series.findOne({ where: { slug: FOLD_SLUG } });
-    await waitFor('a feed run on the fold series', () =>
-      IngestRun.findOne({ where: { seriesId: series!.id, status: 'succeeded', fileName: { [Op.like]: 'demo-feed-%' } }, order: [['id', 'ASC']] }), left(), 1000);
-    // The seeded record ends where the scenario put it at seeding (the series' creation); fed points lie after it.
-    const seededEnd = demoRecordEnd(series!.createdAt, series!.intervalMs!);
-    const newer = await waitFor('a snapshot of the fold series that includes fed points', () =>
-      AnalysisSnapshot.findOne({ where: { seriesId: series!.id, status: 'ok', dataTo: { [Op.gt]: seededEnd } }, order: [['id', 'DESC']] }), left(), 1000);
-    expect(Number(newer.dataTo)).toBeLessThanOrEqual(Date.now());
+  it(
+    'analyses the fold series again once fed, and opens its ac1 alert with an e-mail in the local mailbox',
+    async () => {
+      const series = await Series.findOne({ where: { slug: FOLD_SLUG } });
+      await waitFor(
+        'a feed run on the fold series',
+        () => IngestRun.findOne({ where: { seriesId: series!.id, status: 'succeeded', fileName: { [Op.like]: 'demo-feed-%' } }, order: [['id', 'ASC']] }),
+        left(),
+        1000,
+      );
+      // The seeded record ends where the scenario put it at seeding (the series' creation); fed points lie after it.
+      const seededEnd = demoRecordEnd(series!.createdAt, series!.intervalMs!);
+      const newer = await waitFor(
+        'a snapshot of the fold series that includes fed points',
+        () => AnalysisSnapshot.findOne({ where: { seriesId: series!.id, status: 'ok', dataTo: { [Op.gt]: seededEnd } }, order: [['id', 'DESC']] }),
+        left(),
+        1000,
+      );
+      expect(Number(newer.dataTo)).toBeLessThanOrEqual(Date.now());
 
-    const rule = await AlertRule.findOne({ where: { seriesId: series!.id, indicator: 'ac1', severity: 'warning' } });
-    const alert = await waitFor('the ac1 alert of the fold series', () => Alert.findOne({ where: { seriesId: series!.id, ruleId: rule!.id } }), left(), 1000).catch(async (error) => {
-      // Say what the rule made of each analysis, so a miss can be read from the log.
-      const sequelize = await db();
-      const judged = await sequelize.query('SELECT snapshot_id, tau, surrogate_p, streak, outcome FROM rule_evaluations WHERE rule_id = :rule ORDER BY id', { replacements: { rule: rule!.id }, type: QueryTypes.SELECT });
-      console.log(`[live-feed] evaluations of rule ${rule!.id}: ${JSON.stringify(judged)}`);
-      throw error;
-    });
-    expect(alert.state).toBe('new');
-    const mail = await waitFor('its e-mail in the local mailbox', () =>
-      readMailbox(path.join(dataDir, 'mailbox')).find((m) => m.subject.includes(`(alert #${alert.id})`) && m.to.includes('analyst@brinkwatch.test')), left(), 1000);
-    expect(mail.subject).toContain(series!.name);
-    console.log(`[live-feed] fold alert mailed after ${Math.round((Date.now() - startedAt) / 1000)} s`);
-  }, BUDGET);
+      const rule = await AlertRule.findOne({ where: { seriesId: series!.id, indicator: 'ac1', severity: 'warning' } });
+      const alert = await waitFor(
+        'the ac1 alert of the fold series',
+        () => Alert.findOne({ where: { seriesId: series!.id, ruleId: rule!.id } }),
+        left(),
+        1000,
+      ).catch(async (error) => {
+        // Say what the rule made of each analysis, so a miss can be read from the log.
+        const sequelize = await db();
+        const judged = await sequelize.query('SELECT snapshot_id, tau, surrogate_p, streak, outcome FROM rule_evaluations WHERE rule_id = :rule ORDER BY id', {
+          replacements: { rule: rule!.id },
+          type: QueryTypes.SELECT,
+        });
+        console.log(`[live-feed] evaluations of rule ${rule!.id}: ${JSON.stringify(judged)}`);
+        throw error;
+      });
+      expect(alert.state).toBe('new');
+      const mail = await waitFor(
+        'its e-mail in the local mailbox',
+        () => readMailbox(path.join(dataDir, 'mailbox')).find((m) => m.subject.includes(`(alert #${alert.id})`) && m.to.includes('analyst@brinkwatch.test')),
+        left(),
+        1000,
+      );
+      expect(mail.subject).toContain(series!.name);
+      console.log(`[live-feed] fold alert mailed after ${Math.round((Date.now() - startedAt) / 1000)} s`);
+    },
+    BUDGET,
+  );
 
   it('keeps every stored instant at or before now, and the demo fresh', async () => {
     const response = await fetch(`${app.baseUrl}/api/health`);

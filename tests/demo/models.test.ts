@@ -20,7 +20,8 @@ function lag1(x: Float64Array): number {
   let m = 0;
   for (const v of x) m += v;
   m /= x.length;
-  let num = 0, den = 0;
+  let num = 0,
+    den = 0;
   for (let i = 0; i < x.length; i++) {
     den += (x[i] - m) ** 2;
     if (i + 1 < x.length) num += (x[i] - m) * (x[i + 1] - m);
@@ -54,8 +55,16 @@ describe('determinism', () => {
     doubleWell: (seed) => simulateDoubleWell({ ...grid, seed, amplitude: 0.1, period: 50, sigma: 0.5, x0: -1 }),
     seasonal: (seed) =>
       simulateSeasonal({
-        n: 500, phi: 0.5, sigma: 1, amplitude: 3, samplesPerCycle: 365.2425, phaseAtStart: 0.1,
-        shortGapRate: 0.02, maxShortGap: 3, longGap: { start: 50, length: 10 }, seed,
+        n: 500,
+        phi: 0.5,
+        sigma: 1,
+        amplitude: 3,
+        samplesPerCycle: 365.2425,
+        phaseAtStart: 0.1,
+        shortGapRate: 0.02,
+        maxShortGap: 3,
+        longGap: { start: 50, length: 10 },
+        seed,
       }),
   };
   for (const [name, run] of Object.entries(runs)) {
@@ -72,7 +81,9 @@ describe('stationary AR(1) control', () => {
     // Stationary moments of AR(1): γ0 = σ²/(1 − φ²), ρ1 = φ (Box, Jenkins, Reinsel & Ljung 2015, Sec. 3.2.4).
     // Sampling error (Bartlett's formulas, same book Sec. 2.1.6, from memory): var(γ̂0) ≈ (2γ0²/n)(1 + φ²)/(1 − φ²),
     // var(r1) ≈ (1 − φ²)/n. Tolerance: 4 standard errors.
-    const n = 200_000, phi = 0.7, sigma = 1.3;
+    const n = 200_000,
+      phi = 0.7,
+      sigma = 1.3;
     const x = simulateAr1({ n, phi, sigma, mean: 5, seed: 7 });
     const gamma0 = (sigma * sigma) / (1 - phi * phi);
     const seVariance = gamma0 * Math.sqrt((2 / n) * ((1 + phi * phi) / (1 - phi * phi)));
@@ -178,7 +189,9 @@ describe("May's harvested population", () => {
     const { collapse, recovery } = grazingFolds(q);
     const middle = (collapse.x + recovery.x) / 2;
     for (const sigma of [0, 0.1]) {
-      const dt = 0.1, n = 3000, c0 = 1;
+      const dt = 0.1,
+        n = 3000,
+        c0 = 1;
       const rate = (collapse.c - c0) / (0.8 * (n - 1) * dt);
       const run = simulateGrazing({ ...q, n, dt, substeps: 10, c0, rate, sigma, seed: 5 });
       const fall = firstPast(run.values, middle, false);
@@ -199,8 +212,13 @@ describe('double-well energy-balance model', () => {
     let state = Math.sign(x[0]);
     let count = 0;
     for (const v of x) {
-      if (state < 0 && v > 0.5) { state = 1; count++; }
-      else if (state > 0 && v < -0.5) { state = -1; count++; }
+      if (state < 0 && v > 0.5) {
+        state = 1;
+        count++;
+      } else if (state > 0 && v < -0.5) {
+        state = -1;
+        count++;
+      }
     }
     return count;
   }
@@ -226,7 +244,9 @@ describe('double-well energy-balance model', () => {
     // k = √(U''(±1)·|U''(0)|)/(2π)·exp(−ΔU/D) = √2/(2π)·exp(−1/(2σ²)). Kramers (1940), Physica 7, 284–304;
     // Hänggi, Talkner & Borkovec (1990), Rev. Mod. Phys. 62, 251–341 (from memory). At ΔU/D = 2 the
     // asymptotic formula carries corrections of order D/ΔU, hence the wide tolerance.
-    const sigma = 0.5, dt = 0.25, n = 200_001;
+    const sigma = 0.5,
+      dt = 0.25,
+      n = 200_001;
     const x = simulateDoubleWell({ n, dt, substeps: 25, amplitude: 0, period: 1, sigma, x0: -1, seed: 3 });
     const rate = switches(x) / ((n - 1) * dt);
     const kramers = (Math.SQRT2 / (2 * Math.PI)) * Math.exp(-1 / (2 * sigma * sigma));
@@ -238,8 +258,17 @@ describe('double-well energy-balance model', () => {
 describe('seasonal series with gaps', () => {
   it('has short gaps of at most three samples, one long gap where asked, and both ends present', () => {
     const x = simulateSeasonal({
-      n: 5000, phi: 0.7, sigma: 0.6, mean: 10, amplitude: 7, samplesPerCycle: 365.2425, phaseAtStart: 0,
-      shortGapRate: 0.01, maxShortGap: 3, longGap: { start: 420, length: 21 }, seed: 9,
+      n: 5000,
+      phi: 0.7,
+      sigma: 0.6,
+      mean: 10,
+      amplitude: 7,
+      samplesPerCycle: 365.2425,
+      phaseAtStart: 0,
+      shortGapRate: 0.01,
+      maxShortGap: 3,
+      longGap: { start: 420, length: 21 },
+      seed: 9,
     });
     const gaps: { start: number; length: number }[] = [];
     for (let i = 0; i < x.length; i++) {
@@ -262,7 +291,10 @@ describe('sensor drift', () => {
     // OLS slope of an AR(1)-error regression: var(b̂) ≈ γ0·(1 + φ)/(1 − φ)/Σ(t − t̄)² for large n
     // (Box, Jenkins, Reinsel & Ljung 2015, regression with autocorrelated errors; from memory). Fit with
     // simple-statistics' linearRegression as the independent reference. Tolerance: 4 standard errors.
-    const n = 2500, phi = 0.5, sigma = 0.15, drift = -0.0008;
+    const n = 2500,
+      phi = 0.5,
+      sigma = 0.15,
+      drift = -0.0008;
     const x = simulateDrift({ n, phi, sigma, mean: 10, driftPerSample: drift, seed: 5 });
     const { m } = linearRegression(Array.from(x, (v, t) => [t, v]));
     const gamma0 = (sigma * sigma) / (1 - phi * phi);

@@ -96,9 +96,13 @@ describe('demo scenario', () => {
     expect(lengths.filter((l) => l <= 3).length).toBeGreaterThan(10);
     // The calendar phase: warmest in summer, coldest in winter (northern temperate lake).
     const monthMean = (month: number) => {
-      let sum = 0, count = 0;
+      let sum = 0,
+        count = 0;
       s.values.forEach((v, i) => {
-        if (!Number.isNaN(v) && new Date(s.times[i]).getUTCMonth() === month) { sum += v; count++; }
+        if (!Number.isNaN(v) && new Date(s.times[i]).getUTCMonth() === month) {
+          sum += v;
+          count++;
+        }
       });
       return sum / count;
     };
@@ -126,7 +130,13 @@ describe('demo scenario', () => {
       expect(tau).toBeGreaterThan(0.5);
       expect(p).toBeLessThanOrEqual(0.05);
     }
-    for (const slug of ['veskary-deep-temperature', 'orlemere-surface-temperature', 'orlemere-oxygen-probe', 'brandwhistle-water-table', 'kestrith-station-pressure']) {
+    for (const slug of [
+      'veskary-deep-temperature',
+      'orlemere-surface-temperature',
+      'orlemere-oxygen-probe',
+      'brandwhistle-water-table',
+      'kestrith-station-pressure',
+    ]) {
       expect((await verdict(slug)).p).toBeGreaterThan(0.05);
     }
   }, 120_000);

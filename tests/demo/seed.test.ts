@@ -82,7 +82,12 @@ describe('seedIfEmpty', () => {
       const marks = await Mark.findAll({ where: { seriesId: series!.id }, raw: true });
       expect(marks.map((m) => [Number(m.at), m.kind])).toEqual(demo.marks.map((m) => [m.at, m.kind]));
       const watchers = await Watch.findAll({ where: { seriesId: series!.id }, raw: true });
-      expect(watchers.map((w) => [w.userId, w.mode]).sort()).toEqual([[lead!.id, 'immediate'], [analyst!.id, 'immediate']].sort());
+      expect(watchers.map((w) => [w.userId, w.mode]).sort()).toEqual(
+        [
+          [lead!.id, 'immediate'],
+          [analyst!.id, 'immediate'],
+        ].sort(),
+      );
     }
     // The invented sites carry their places, and every demo series sits at one of them.
     const sites = await Site.findAll({ order: [['name', 'ASC']], raw: true });

@@ -14,7 +14,14 @@ describe('surrogate significance calibration', () => {
   it('stationary AR(1) series: p ≤ 0.05 at a rate consistent with 5%', async () => {
     const series = 300;
     const n = 200;
-    const settings = analysisSettingsSchema.parse({ detrend: 'linear', shiftDetection: 'off', window: 0.5, indicators: ['variance', 'ac1'], surrogates: 99, seed: 11 });
+    const settings = analysisSettingsSchema.parse({
+      detrend: 'linear',
+      shiftDetection: 'off',
+      window: 0.5,
+      indicators: ['variance', 'ac1'],
+      surrogates: 99,
+      seed: 11,
+    });
     const time = Float64Array.from({ length: n }, (_, i) => i);
     const rejections = { variance: 0, ac1: 0 };
     for (let s = 0; s < series; s++) {

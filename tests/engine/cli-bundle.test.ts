@@ -19,7 +19,8 @@ for (let i = 0; i < 400; i++) {
 writeFileSync(file, `${lines.join('\n')}\n`);
 
 const viaBin = (args: string[]) => spawnSync(process.execPath, [path.join(root, 'bin/brinkwatch.mjs'), ...args], { cwd: root, encoding: 'utf8' });
-const viaSource = (args: string[]) => spawnSync(path.join(root, 'node_modules/.bin/tsx'), [path.join(root, 'scripts/analyze.ts'), ...args], { cwd: root, encoding: 'utf8' });
+const viaSource = (args: string[]) =>
+  spawnSync(path.join(root, 'node_modules/.bin/tsx'), [path.join(root, 'scripts/analyze.ts'), ...args], { cwd: root, encoding: 'utf8' });
 
 // The packaged command (package.json "bin") must answer exactly as the source it is bundled from.
 describe('brinkwatch command (bundled)', () => {

@@ -21,9 +21,15 @@ function csv(name: string, text: string): string {
 }
 
 const rows = (n: number, f: (i: number) => string) => Array.from({ length: n }, (_, i) => f(i)).join('\n');
-const good = csv('good.csv', `day,level,flow\n${rows(120, (i) => `2022-01-${String(1 + (i % 28)).padStart(2, '0')}T00:00:00Z,${(5 + Math.sin(i / 9) + ((i * 37) % 11) / 11).toFixed(4)},${i}`).replace(/.*/s, () =>
-  rows(120, (i) => `${new Date(Date.UTC(2022, 0, 1 + i)).toISOString().slice(0, 10)},${(5 + Math.sin(i / 9) + ((i * 37) % 11) / 11).toFixed(4)},${i % 7}`),
-)}\n`);
+const good = csv(
+  'good.csv',
+  `day,level,flow\n${rows(
+    120,
+    (i) => `2022-01-${String(1 + (i % 28)).padStart(2, '0')}T00:00:00Z,${(5 + Math.sin(i / 9) + ((i * 37) % 11) / 11).toFixed(4)},${i}`,
+  ).replace(/.*/s, () =>
+    rows(120, (i) => `${new Date(Date.UTC(2022, 0, 1 + i)).toISOString().slice(0, 10)},${(5 + Math.sin(i / 9) + ((i * 37) % 11) / 11).toFixed(4)},${i % 7}`),
+  )}\n`,
+);
 
 // The command line contract of the engine (README, "Command line"); common practice for exit codes.
 describe('analyze command line', () => {
@@ -66,7 +72,10 @@ describe('analyze command line', () => {
   });
 
   it('--multivariate --value a,b,c gives the site-level indicators of several columns; one column is refused', () => {
-    const file = csv('site.csv', `t,a,b,c\n${rows(200, (i) => `${i},${Math.sin(i / 7) + ((i * 37) % 11) / 11},${Math.sin(i / 7) + ((i * 17) % 13) / 13},${((i * 29) % 7) / 7}`)}\n`);
+    const file = csv(
+      'site.csv',
+      `t,a,b,c\n${rows(200, (i) => `${i},${Math.sin(i / 7) + ((i * 37) % 11) / 11},${Math.sin(i / 7) + ((i * 17) % 13) / 13},${((i * 29) % 7) / 7}`)}\n`,
+    );
     const r = analyze([file, '--multivariate', '--value', 'a,b,c', '--surrogates', '9']);
     expect(r.code, r.stderr).toBe(0);
     const out = JSON.parse(r.stdout);
@@ -95,7 +104,18 @@ describe('analyze command line', () => {
   });
 
   it('--summary carries directions, shifts and the stretch, with times as the time column has them', () => {
-    const r = analyze([good, '--summary', '--surrogates', '19', '--indicators', 'ac1,recovery,skewness', '--tipping-point', '2022-01-21', '--shift-detection', 'off']);
+    const r = analyze([
+      good,
+      '--summary',
+      '--surrogates',
+      '19',
+      '--indicators',
+      'ac1,recovery,skewness',
+      '--tipping-point',
+      '2022-01-21',
+      '--shift-detection',
+      'off',
+    ]);
     expect(r.code, r.stderr).toBe(0);
     const out = JSON.parse(r.stdout);
     expect(out.significance.ac1).toMatchObject({ direction: 'rising', p: expect.any(Number), count: 19 });
@@ -111,9 +131,30 @@ describe('analyze command line', () => {
 
   it('takes every analysis setting: extents in points and ISO 8601 durations, gaps, coverage, sampling, shifts', () => {
     const r = analyze([
-      good, '--summary', '--window', 'P30D', '--bandwidth', '10 points', '--span', 'P100D', '--detrend', 'local-linear',
-      '--seasonal', 'none', '--max-gap', '2', '--gap-policy', 'latest-stretch', '--min-coverage', '0.9',
-      '--sampling-change', 'subsample', '--shift-detection', 'off', '--indicators', 'variance',
+      good,
+      '--summary',
+      '--window',
+      'P30D',
+      '--bandwidth',
+      '10 points',
+      '--span',
+      'P100D',
+      '--detrend',
+      'local-linear',
+      '--seasonal',
+      'none',
+      '--max-gap',
+      '2',
+      '--gap-policy',
+      'latest-stretch',
+      '--min-coverage',
+      '0.9',
+      '--sampling-change',
+      'subsample',
+      '--shift-detection',
+      'off',
+      '--indicators',
+      'variance',
     ]);
     expect(r.code, r.stderr).toBe(0);
     const out = JSON.parse(r.stdout);
@@ -125,12 +166,27 @@ describe('analyze command line', () => {
 
   const bad: [string, string, string[], RegExp][] = [
     ['bad extent', `t,x\n1,2\n`, ['--window', 'ninety days'], /: option --window: must be a fraction, "<n> points" or an ISO 8601 duration/],
-    ['duration on numeric times', `t,x\n${rows(40, (i) => `${i},${(i * 7) % 5}`)}\n`, ['--window', 'P10D'], /: lines 2-41, column "x": the duration "P10D" needs calendar timestamps/],
+    [
+      'duration on numeric times',
+      `t,x\n${rows(40, (i) => `${i},${(i * 7) % 5}`)}\n`,
+      ['--window', 'P10D'],
+      /: lines 2-41, column "x": the duration "P10D" needs calendar timestamps/,
+    ],
     ['missing column', `t,x\n1,2\n`, ['--value', 'level'], /: line 1, column "level": The header has no column "level" \(it has: "t", "x"\)\.$/],
     ['non-numeric value', `t,x\n${rows(20, (i) => `${i},${i === 6 ? 'n/a' : i}`)}\n`, [], /: line 8, column "x": "n\/a" is not a number$/],
     ['bad date', `t,x\n2020-01-01,1\n2020-02-30,2\n`, [], /: line 3, column "t": 2020-02-30 does not exist \(that month has 29 days\)$/],
-    ['too short for w ≥ 8', `t,x\n${rows(10, (i) => `${i},${i * i % 7}`)}\n`, [], /: lines 2-11, column "x": rolling window 0\.5 × 10 points = 5 points; at least 8 are needed/],
-    ['long gap', `t,x\n${rows(40, (i) => `${i < 20 ? i : i + 10},${i % 5}`)}\n`, [], /: line 22, column "x": gap of 10 missing points from 20 to 29 is longer than maxGap = 3/],
+    [
+      'too short for w ≥ 8',
+      `t,x\n${rows(10, (i) => `${i},${(i * i) % 7}`)}\n`,
+      [],
+      /: lines 2-11, column "x": rolling window 0\.5 × 10 points = 5 points; at least 8 are needed/,
+    ],
+    [
+      'long gap',
+      `t,x\n${rows(40, (i) => `${i < 20 ? i : i + 10},${i % 5}`)}\n`,
+      [],
+      /: line 22, column "x": gap of 10 missing points from 20 to 29 is longer than maxGap = 3/,
+    ],
     ['bad option', `t,x\n1,2\n`, ['--window', '2'], /: option --window: /],
   ];
   for (const [what, text, args, message] of bad) {

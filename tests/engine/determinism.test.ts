@@ -77,7 +77,8 @@ describe('surrogate determinism (common practice: reproducible seeded Monte Carl
     for (let i = 0; i < N; i++) {
       const s = makeSurrogate(job, i);
       const m = s.reduce((p, q) => p + q, 0) / s.length;
-      let num = 0, den = 0;
+      let num = 0,
+        den = 0;
       for (let t = 0; t < s.length; t++) {
         den += (s[t] - m) ** 2;
         if (t + 1 < s.length) num += (s[t] - m) * (s[t + 1] - m);

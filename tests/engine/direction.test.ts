@@ -8,9 +8,20 @@ import { surrogatePValue } from '@/lib/engine/surrogates';
 describe('directions', () => {
   it('each indicator has its direction under slowing down; rules say "either" for two-sided', () => {
     expect(INDICATOR_DIRECTIONS).toEqual({
-      variance: 'rising', sd: 'rising', cv: 'rising', ac1: 'rising', recovery: 'falling', skewness: 'two-sided', kurtosis: 'two-sided',
+      variance: 'rising',
+      sd: 'rising',
+      cv: 'rising',
+      ac1: 'rising',
+      recovery: 'falling',
+      skewness: 'two-sided',
+      kurtosis: 'two-sided',
       // as issue 17 defines them, each with its source in its file under lib/engine/indicators
-      'restoring-rate': 'rising', 'spectral-ratio': 'rising', ch: 'rising', dfa: 'rising', bimodality: 'rising', 'potential-wells': 'rising',
+      'restoring-rate': 'rising',
+      'spectral-ratio': 'rising',
+      ch: 'rising',
+      dfa: 'rising',
+      bimodality: 'rising',
+      'potential-wells': 'rising',
     });
     expect(trendDirectionOf('either')).toBe('two-sided');
     expect(trendDirectionOf('falling')).toBe('falling');

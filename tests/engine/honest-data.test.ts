@@ -59,7 +59,10 @@ describe('coverage of observed points', () => {
 describe('sampling-interval changes (common practice: block medians of the spacing)', () => {
   const t0 = Date.UTC(2024, 0, 1);
   // 4 readings a day for 200 days, then 1 a day for 200 days
-  const time = Float64Array.from([...Array.from({ length: 800 }, (_, i) => t0 + i * 6 * HOUR), ...Array.from({ length: 200 }, (_, i) => t0 + 200 * 24 * HOUR + i * 24 * HOUR)]);
+  const time = Float64Array.from([
+    ...Array.from({ length: 800 }, (_, i) => t0 + i * 6 * HOUR),
+    ...Array.from({ length: 200 }, (_, i) => t0 + 200 * 24 * HOUR + i * 24 * HOUR),
+  ]);
   const value = noise(1000, 3);
 
   it('finds the change at the first reading on the new interval', () => {

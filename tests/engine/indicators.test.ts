@@ -114,7 +114,15 @@ describe('an analysis with the new indicators', () => {
     const settings = analysisSettingsSchema.parse({ indicators: [...NEW, 'ac1'], surrogates: 19, maxEvaluatedWindows: 100, shiftDetection: 'off' });
     const result = await runAnalysis({ time, value, timeKind: 'numeric' }, settings, { parallel: false });
     const stride = Math.ceil((n - result.windowPoints + 1) / 100);
-    expect(result.evaluatedEvery).toMatchObject({ ac1: 1, bimodality: 1, dfa: stride, ch: stride, 'restoring-rate': stride, 'spectral-ratio': stride, 'potential-wells': stride });
+    expect(result.evaluatedEvery).toMatchObject({
+      ac1: 1,
+      bimodality: 1,
+      dfa: stride,
+      ch: stride,
+      'restoring-rate': stride,
+      'spectral-ratio': stride,
+      'potential-wells': stride,
+    });
     const dfa = result.indicators.dfa!;
     expect(dfa.filter((v) => v !== null).length).toBeLessThanOrEqual(100);
     expect(dfa[n - 1]).not.toBeNull();
@@ -158,7 +166,16 @@ describe('sensitivity of a per-window indicator', () => {
     const rng = new RandomStream(6, 0);
     const x = new Float64Array(800);
     for (let i = 1; i < x.length; i++) x[i] = (0.2 + (0.7 * i) / x.length) * x[i - 1] + rng.normal();
-    const grid = sensitivityGrid(x, x, { detrend: 'gaussian', movingAverageWidth: 11, bandwidth: 0.1, indicators: ['dfa', 'ac1'], dt: 1, maxEvaluatedWindows: 40, windows: [0.3, 0.5], bandwidths: [0.05, 0.1] });
+    const grid = sensitivityGrid(x, x, {
+      detrend: 'gaussian',
+      movingAverageWidth: 11,
+      bandwidth: 0.1,
+      indicators: ['dfa', 'ac1'],
+      dt: 1,
+      maxEvaluatedWindows: 40,
+      windows: [0.3, 0.5],
+      bandwidths: [0.05, 0.1],
+    });
     expect(grid.indicators.dfa!.tau.flat().every((t) => t !== null)).toBe(true);
     expect(grid.indicators.ac1!.tau).toHaveLength(2);
   });

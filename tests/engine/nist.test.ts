@@ -17,9 +17,8 @@ const digits = (a: number, c: number) => (a === c ? Infinity : -Math.log10(Math.
 // the sums. The whole record is one rolling window (w = n), so this exercises the engine's window sums.
 describe('NIST StRD univariate datasets (one window over the whole record)', () => {
   const files = readdirSync(dir).filter((f) => f !== 'Norris.json');
-  it('has all nine datasets', () => expect(files.sort()).toEqual(
-    ['Lew', 'Lottery', 'Mavro', 'Michelso', 'NumAcc1', 'NumAcc2', 'NumAcc3', 'NumAcc4', 'PiDigits'].map((n) => `${n}.json`),
-  ));
+  it('has all nine datasets', () =>
+    expect(files.sort()).toEqual(['Lew', 'Lottery', 'Mavro', 'Michelso', 'NumAcc1', 'NumAcc2', 'NumAcc3', 'NumAcc4', 'PiDigits'].map((n) => `${n}.json`)));
   for (const f of files) {
     it(`${f.replace('.json', '')}: mean, sd and r(1) to the certified digits double precision allows`, () => {
       const d = load(f);

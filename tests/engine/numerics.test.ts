@@ -11,7 +11,11 @@ function localLinearDirect(x: Float64Array, h: number): Float64Array {
   const n = x.length;
   const out = new Float64Array(n);
   for (let i = 0; i < n; i++) {
-    let s0 = 0, s1 = 0, s2 = 0, t0 = 0, t1 = 0;
+    let s0 = 0,
+      s1 = 0,
+      s2 = 0,
+      t0 = 0,
+      t1 = 0;
     for (let j = 0; j < n; j++) {
       const d = j - i;
       const k = Math.exp(-(d * d) / (2 * h * h));
@@ -69,7 +73,12 @@ describe('linear detrending at a large offset', () => {
     const ref = detrend(small, 'linear', opts).residual;
     expect(maxAbs(big, ref)).toBeLessThan(1e-12);
     const trend = detrend(x, 'linear', opts).trend;
-    expect(maxAbs(Float64Array.from(trend, (v) => v - 1e7), detrend(small, 'linear', opts).trend)).toBeLessThan(1e-9);
+    expect(
+      maxAbs(
+        Float64Array.from(trend, (v) => v - 1e7),
+        detrend(small, 'linear', opts).trend,
+      ),
+    ).toBeLessThan(1e-9);
   });
 });
 
@@ -77,9 +86,19 @@ describe('day-of-year groups', () => {
   // Hand-worked against the Gregorian calendar (ISO 8601-1:2019; leap years divisible by 4 except centuries not
   // divisible by 400): 29 February is group 59 and only it; 1 March is group 60 in every year.
   const cases: [string, number][] = [
-    ['2023-01-01', 0], ['2023-02-28', 58], ['2023-03-01', 60], ['2023-12-31', 365],
-    ['2024-02-28', 58], ['2024-02-29', 59], ['2024-03-01', 60], ['2024-12-31', 365],
-    ['2000-02-29', 59], ['2000-03-01', 60], ['1900-03-01', 60], ['1900-12-31', 365], ['2100-03-01', 60],
+    ['2023-01-01', 0],
+    ['2023-02-28', 58],
+    ['2023-03-01', 60],
+    ['2023-12-31', 365],
+    ['2024-02-28', 58],
+    ['2024-02-29', 59],
+    ['2024-03-01', 60],
+    ['2024-12-31', 365],
+    ['2000-02-29', 59],
+    ['2000-03-01', 60],
+    ['1900-03-01', 60],
+    ['1900-12-31', 365],
+    ['2100-03-01', 60],
   ];
   for (const [day, group] of cases) it(`${day} → ${group}`, () => expect(dayOfYearGroup(Date.parse(`${day}T12:00:00Z`))).toBe(group));
 

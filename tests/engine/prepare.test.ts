@@ -12,9 +12,24 @@ const base = { maxGap: 3, gapPolicy: 'error' as const, span: null, logTransform:
 describe('settings', () => {
   it('parse({}) gives the engine defaults (the command line contract)', () => {
     expect(analysisSettingsSchema.parse({})).toEqual({
-      detrend: 'local-linear', bandwidth: 0.1, movingAverageWidth: 11, window: 0.5, indicators: [...DEFAULT_INDICATORS],
-      maxEvaluatedWindows: MAX_EVALUATED_WINDOWS, surrogates: 0, surrogateMethod: 'ar1', seed: 1, seasonal: 'none', logTransform: false, maxGap: 3,
-      gapPolicy: 'error', span: null, minCoverage: 0.8, samplingChange: 'start-after', shiftDetection: 'on', sensitivity: false,
+      detrend: 'local-linear',
+      bandwidth: 0.1,
+      movingAverageWidth: 11,
+      window: 0.5,
+      indicators: [...DEFAULT_INDICATORS],
+      maxEvaluatedWindows: MAX_EVALUATED_WINDOWS,
+      surrogates: 0,
+      surrogateMethod: 'ar1',
+      seed: 1,
+      seasonal: 'none',
+      logTransform: false,
+      maxGap: 3,
+      gapPolicy: 'error',
+      span: null,
+      minCoverage: 0.8,
+      samplingChange: 'start-after',
+      shiftDetection: 'on',
+      sensitivity: false,
     });
   });
   it('reads extents (fraction, points, ISO 8601 duration) and upgrades the legacy spanPoints', () => {
@@ -110,7 +125,10 @@ describe('pipeline shape', () => {
   const value = Float64Array.from({ length: n }, (_, i) => 3 + Math.sin(i / 7) + ((i * 7919) % 17) / 17);
 
   it('indicators are null before index w − 1 and numbers after; difference detrending has n − 1 points', async () => {
-    const r = await runAnalysis({ time, value, timeKind: 'numeric' }, analysisSettingsSchema.parse({ detrend: 'difference', window: 0.25, shiftDetection: 'off' }));
+    const r = await runAnalysis(
+      { time, value, timeKind: 'numeric' },
+      analysisSettingsSchema.parse({ detrend: 'difference', window: 0.25, shiftDetection: 'off' }),
+    );
     expect(r.n).toBe(n - 1);
     expect(r.windowPoints).toBe(Math.round(0.25 * (n - 1)));
     expect(r.series.time[0]).toBe(1);

@@ -173,7 +173,17 @@ describe('detectShifts: power on level steps', () => {
   const R = 100;
   const POWER_TOLERANCE = 5;
   const floor = binomialLower(R, 0.9, 0.001);
-  for (const [n, phi] of [[200, 0], [200, 0.5], [200, 0.95], [1000, 0], [1000, 0.5], [1000, 0.8], [1000, 0.9], [5000, 0.9], [5000, 0.95]] as const) {
+  for (const [n, phi] of [
+    [200, 0],
+    [200, 0.5],
+    [200, 0.95],
+    [1000, 0],
+    [1000, 0.5],
+    [1000, 0.8],
+    [1000, 0.9],
+    [5000, 0.9],
+    [5000, 0.95],
+  ] as const) {
     it(`n = ${n}, phi = ${phi}: found within ±${POWER_TOLERANCE} in ≥ ${floor} of ${R}`, () => {
       const at = Math.round(0.6 * n);
       const step = 3 / (1 - phi);
@@ -252,7 +262,13 @@ describe('detectShifts on the demo records, as the live analysis runs it', () =>
     for (const d of days) expect(Math.abs(d - cleaning)).toBeLessThanOrEqual(5);
   });
 
-  for (const slug of ['brandwhistle-sedge-biomass', 'veskary-deep-temperature', 'orlemere-surface-temperature', 'brandwhistle-water-table', 'kestrith-station-pressure']) {
+  for (const slug of [
+    'brandwhistle-sedge-biomass',
+    'veskary-deep-temperature',
+    'orlemere-surface-temperature',
+    'brandwhistle-water-table',
+    'kestrith-station-pressure',
+  ]) {
     it(`${slug}: no shift`, async () => {
       expect((await shiftsOf(slug)).days).toEqual([]);
     });

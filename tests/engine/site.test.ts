@@ -17,16 +17,27 @@ describe('site-level indicators against numpy/scipy eigen-solvers', () => {
     const k = window.columns.length;
     const w = window.columns[0].length;
     it(`k = ${k} series, w = ${w}: pc1-variance, pc1-share, maf-ac1 to 1e-9 relative`, () => {
-      const got = siteWindow(window.columns.map((c) => Float64Array.from(c)), w - 1, w);
+      const got = siteWindow(
+        window.columns.map((c) => Float64Array.from(c)),
+        w - 1,
+        w,
+      );
       for (const d of SITE_INDICATORS) expect(rel(got[d.name], window.values[d.name]), d.name).toBeLessThan(1e-9);
     });
   }
 
   it('rolling at a stride: the windows counted back from the latest, each as numpy gives it', () => {
     const { columns, w, stride, ends, values } = ref.rolling;
-    const out = rollingSiteIndicators((columns as number[][]).map((c) => Float64Array.from(c)), w, stride);
+    const out = rollingSiteIndicators(
+      (columns as number[][]).map((c) => Float64Array.from(c)),
+      w,
+      stride,
+    );
     for (const d of SITE_INDICATORS) {
-      expect([...out[d.name].keys()].filter((i) => Number.isFinite(out[d.name][i])), d.name).toEqual(ends);
+      expect(
+        [...out[d.name].keys()].filter((i) => Number.isFinite(out[d.name][i])),
+        d.name,
+      ).toEqual(ends);
       (ends as number[]).forEach((e, i) => expect(rel(out[d.name][e], values[i][d.name]), `${d.name} at ${e}`).toBeLessThan(1e-9));
     }
   });
@@ -40,9 +51,14 @@ describe('phase-coherent surrogates (Prichard & Theiler 1994)', () => {
     const n = 257;
     const common = Float64Array.from({ length: n }, () => rng.normal());
     const columns = [0, 1, 2].map((c) => Float64Array.from(common, (v) => (c + 1) * v + rng.normal()));
-    const surrogate = coherentPhaseSurrogate(columns.map((c) => dft(c, new Float64Array(n))), 9, 4);
+    const surrogate = coherentPhaseSurrogate(
+      columns.map((c) => dft(c, new Float64Array(n))),
+      9,
+      4,
+    );
     const dot = (a: Float64Array, b: Float64Array) => a.reduce((s, v, i) => s + v * b[i], 0);
-    for (let a = 0; a < 3; a++) for (let b = a; b < 3; b++) expect(rel(dot(surrogate[a], surrogate[b]), dot(columns[a], columns[b])), `${a}×${b}`).toBeLessThan(1e-9);
+    for (let a = 0; a < 3; a++)
+      for (let b = a; b < 3; b++) expect(rel(dot(surrogate[a], surrogate[b]), dot(columns[a], columns[b])), `${a}×${b}`).toBeLessThan(1e-9);
     expect(surrogate[0]).not.toEqual(columns[0]);
   });
 });

@@ -29,9 +29,15 @@ beforeEach(() => {
 
 describe('the analysed stretch', () => {
   it('starts at the first point of the new level after the last detected shift', async () => {
-    detected.shifts = [{ index: 60, size: 2 }, { index: 120, size: -1 }];
+    detected.shifts = [
+      { index: 60, size: 2 },
+      { index: 120, size: -1 },
+    ];
     const r = await runAnalysis({ time, value }, settings);
-    expect(r.shifts).toEqual([{ time: time[60], index: 60, size: 2 }, { time: time[120], index: 120, size: -1 }]);
+    expect(r.shifts).toEqual([
+      { time: time[60], index: 60, size: 2 },
+      { time: time[120], index: 120, size: -1 },
+    ]);
     expect(r.stretch).toEqual({ from: time[120], to: time[n - 1], startsAfter: 'shift' });
     expect(r.n).toBe(180);
     expect(r.windowPoints).toBe(90);
@@ -39,7 +45,17 @@ describe('the analysed stretch', () => {
 
   it('starts at the first grid point at or after the latest break; the later of break and shift wins', async () => {
     detected.shifts = [{ index: 100, size: 1 }];
-    const later = await runAnalysis({ time, value, breaks: [{ time: t0 + 150.5 * DAY, kind: 'maintenance' }, { time: t0 + 40 * DAY, kind: 'tipping-point' }] }, settings);
+    const later = await runAnalysis(
+      {
+        time,
+        value,
+        breaks: [
+          { time: t0 + 150.5 * DAY, kind: 'maintenance' },
+          { time: t0 + 40 * DAY, kind: 'tipping-point' },
+        ],
+      },
+      settings,
+    );
     expect(later.stretch).toEqual({ from: time[151], to: time[n - 1], startsAfter: 'maintenance' });
     const earlier = await runAnalysis({ time, value, breaks: [{ time: t0 + 80 * DAY, kind: 'tipping-point' }] }, settings);
     expect(earlier.stretch.startsAfter).toBe('shift');

@@ -47,7 +47,9 @@ describe('station data through the API', () => {
 
   it('registers a feed and lands a dropped station file in four series with flags, in one report', async () => {
     const feed = {
-      slug: 'pier-station', name: 'Pier station', timeColumn: 'Time',
+      slug: 'pier-station',
+      name: 'Pier station',
+      timeColumn: 'Time',
       columns: { temp: 'pier-temp', sal: 'pier-sal', do: 'pier-do', turb: 'pier-turb' },
       flagColumns: { temp: 'temp_qc', sal: 'sal_qc', do: 'do_qc', turb: 'turb_qc' },
     };
@@ -107,7 +109,12 @@ describe('station data through the API', () => {
     const at = new Date(T0 + 2 * HOUR).toISOString();
     expect((await viewer.json('/api/series/pier-do/observations/flags', 'POST', { from: at, to: at, flag: 1, reason: 'checked' })).status).toBe(403);
     expect((await analyst.json('/api/series/pier-do/observations/flags', 'POST', { from: at, to: at, flag: 1 })).status).toBe(422);
-    const override = await analyst.json('/api/series/pier-do/observations/flags', 'POST', { from: at, to: at, flag: 1, reason: 'sonde cross-checked against a bottle sample' });
+    const override = await analyst.json('/api/series/pier-do/observations/flags', 'POST', {
+      from: at,
+      to: at,
+      flag: 1,
+      reason: 'sonde cross-checked against a bottle sample',
+    });
     expect(override.status).toBe(200);
     expect(await override.json()).toEqual({ changed: 1 });
     const items = (await (await viewer.fetch('/api/series/pier-do/observations')).json()).items as { flag: number }[];

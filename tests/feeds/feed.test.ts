@@ -13,18 +13,29 @@ const { runDropIntake } = await import('@/lib/intake/drop-folders');
 const { loadFlaggedObservations, loadObservations } = await import('@/lib/analysis/observations');
 const { feedCreateSchema } = await import('@/lib/schemas/feed');
 
-const VARIABLES = [['temp', 'mooring-temp'], ['sal', 'mooring-sal'], ['do', 'mooring-do'], ['chl', 'mooring-chl']] as const;
+const VARIABLES = [
+  ['temp', 'mooring-temp'],
+  ['sal', 'mooring-sal'],
+  ['do', 'mooring-do'],
+  ['chl', 'mooring-chl'],
+] as const;
 const HOUR = 3_600_000;
 const T0 = Date.UTC(2025, 5, 1);
 
 beforeAll(async () => {
   await migrateUp();
   for (const [, slug] of VARIABLES) await createSeries({ slug, name: slug, intervalMs: HOUR }, null);
-  await createFeed({
-    slug: 'north-mooring', name: 'North mooring', timeColumn: 'Time', timeFormat: 'iso8601',
-    columns: Object.fromEntries(VARIABLES),
-    flagColumns: { temp: 'temp_qc', sal: 'sal_qc', do: 'do_qc', chl: 'chl_qc' },
-  }, null);
+  await createFeed(
+    {
+      slug: 'north-mooring',
+      name: 'North mooring',
+      timeColumn: 'Time',
+      timeFormat: 'iso8601',
+      columns: Object.fromEntries(VARIABLES),
+      flagColumns: { temp: 'temp_qc', sal: 'sal_qc', do: 'do_qc', chl: 'chl_qc' },
+    },
+    null,
+  );
 });
 
 function feedFolder(): string {
@@ -90,7 +101,10 @@ describe('station feeds', () => {
 
   it('marks a maintenance break on every series of the feed from its maintenance column, once', async () => {
     for (const slug of ['south-temp', 'south-sal']) await createSeries({ slug, name: slug, intervalMs: HOUR }, null);
-    await createFeed({ slug: 'south-mooring', name: 'South mooring', timeColumn: 'time', columns: { temp: 'south-temp', sal: 'south-sal' }, maintenanceColumn: 'event' }, null);
+    await createFeed(
+      { slug: 'south-mooring', name: 'South mooring', timeColumn: 'time', columns: { temp: 'south-temp', sal: 'south-sal' }, maintenanceColumn: 'event' },
+      null,
+    );
     const folder = path.join(dataDir, 'drops', 'feeds', 'south-mooring');
     fs.mkdirSync(folder, { recursive: true });
     const row = (i: number, event = '') => `${new Date(T0 + i * HOUR).toISOString()},${10 + i / 10},${30 + i / 10},${event}`;
@@ -109,7 +123,9 @@ describe('station feeds', () => {
     await runDropIntake({ settleMs: 0 });
     expect(JSON.parse(fs.readFileSync(path.join(folder, 'processed', 'b.csv.report.json'), 'utf8')).marksAdded).toBe(0);
     expect(await Mark.count({ where: { seriesId: ids } })).toBe(2);
-    expect(feedCreateSchema.safeParse({ slug: 'x-feed', name: 'X', timeColumn: 'time', columns: { temp: 'south-temp' }, maintenanceColumn: 'temp' }).success).toBe(false);
+    expect(
+      feedCreateSchema.safeParse({ slug: 'x-feed', name: 'X', timeColumn: 'time', columns: { temp: 'south-temp' }, maintenanceColumn: 'temp' }).success,
+    ).toBe(false);
   });
 
   it('refuses feeds that cannot work', async () => {

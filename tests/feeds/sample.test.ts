@@ -9,6 +9,10 @@ describe('reading a sample station file', () => {
   });
 
   it('pairs each variable with the flag column that names it', () => {
-    expect(guessFlagColumns(['time', 'temp', 'temp_qc', 'sal', 'QC_sal', 'do', 'do_flag', 'orphan_qc'])).toEqual({ temp: 'temp_qc', sal: 'QC_sal', do: 'do_flag' });
+    expect(guessFlagColumns(['time', 'temp', 'temp_qc', 'sal', 'QC_sal', 'do', 'do_flag', 'orphan_qc'])).toEqual({
+      temp: 'temp_qc',
+      sal: 'QC_sal',
+      do: 'do_flag',
+    });
   });
 });

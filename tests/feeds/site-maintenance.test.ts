@@ -30,7 +30,10 @@ describe('a maintenance visit for a whole site', () => {
 
     const at = T0 + 300 * HOUR;
     const result = await markSiteMaintenance('buoy-7', { at, note: 'annual service, all sensors swapped' }, lead);
-    expect(result.marks.map((m) => [m.seriesId, m.at, m.kind])).toEqual([[temp.id, at, 'maintenance'], [chl.id, at, 'maintenance']]);
+    expect(result.marks.map((m) => [m.seriesId, m.at, m.kind])).toEqual([
+      [temp.id, at, 'maintenance'],
+      [chl.id, at, 'maintenance'],
+    ]);
     expect(await AuditEntry.count({ where: { action: 'mark.create' } })).toBe(2);
     await expect(markSiteMaintenance('no-such-site', { at, note: '' }, lead)).rejects.toMatchObject({ status: 404 });
 
@@ -39,7 +42,9 @@ describe('a maintenance visit for a whole site', () => {
     await ingestObservations({ series: temp, source: 'drop', csv });
     const { time, value } = await loadObservations(temp.id);
     const breaks = await seriesBreaks(temp.id);
-    const analysed = await runAnalysis({ time, value, intervalMs: HOUR, breaks }, analysisSettingsSchema.parse({ surrogates: 0, shiftDetection: 'off' }), { parallel: false });
+    const analysed = await runAnalysis({ time, value, intervalMs: HOUR, breaks }, analysisSettingsSchema.parse({ surrogates: 0, shiftDetection: 'off' }), {
+      parallel: false,
+    });
     expect(analysed.stretch).toMatchObject({ from: at, startsAfter: 'maintenance' });
   });
 });

@@ -24,8 +24,20 @@ describe('migrations', () => {
     expect(applied.length).toBeGreaterThan(0);
     expect(await pendingMigrations()).toEqual([]);
     const first = await tableNames();
-    for (const table of ['users', 'series', 'observations', 'ingest_runs', 'analysis_snapshots', 'alert_rules', 'alerts',
-      'alert_events', 'notes', 'ingest_tokens', 'mail_outbox', 'audit_log']) {
+    for (const table of [
+      'users',
+      'series',
+      'observations',
+      'ingest_runs',
+      'analysis_snapshots',
+      'alert_rules',
+      'alerts',
+      'alert_events',
+      'notes',
+      'ingest_tokens',
+      'mail_outbox',
+      'audit_log',
+    ]) {
       expect(first).toContain(table);
     }
     expect(await migrateUp()).toEqual([]); // idempotent at every start

@@ -42,9 +42,38 @@ describe('model constraints', () => {
   });
 
   test('at most one open alert per series and rule', async () => {
-    const rule = await AlertRule.create({ seriesId, indicator: 'ac1', minTau: 0.3, maxSurrogateP: 0.05, maxKendallP: null, levelThreshold: null, severity: 'warning', fdrLevel: null, createdBy: null });
-    const snapshot = await AnalysisSnapshot.create({ seriesId, settings: {}, summary: {}, curves: null, error: null, dataFrom: null, dataTo: null, durationMs: null });
-    const fields = { seriesId, ruleId: rule.id, severity: 'warning' as const, assigneeId: null, firstSnapshotId: snapshot.id, latestSnapshotId: snapshot.id, peakTau: 0.5, dismissReason: null, closedAt: null };
+    const rule = await AlertRule.create({
+      seriesId,
+      indicator: 'ac1',
+      minTau: 0.3,
+      maxSurrogateP: 0.05,
+      maxKendallP: null,
+      levelThreshold: null,
+      severity: 'warning',
+      fdrLevel: null,
+      createdBy: null,
+    });
+    const snapshot = await AnalysisSnapshot.create({
+      seriesId,
+      settings: {},
+      summary: {},
+      curves: null,
+      error: null,
+      dataFrom: null,
+      dataTo: null,
+      durationMs: null,
+    });
+    const fields = {
+      seriesId,
+      ruleId: rule.id,
+      severity: 'warning' as const,
+      assigneeId: null,
+      firstSnapshotId: snapshot.id,
+      latestSnapshotId: snapshot.id,
+      peakTau: 0.5,
+      dismissReason: null,
+      closedAt: null,
+    };
     await Alert.create({ ...fields, state: 'new' });
     await expect(Alert.create({ ...fields, state: 'acknowledged' })).rejects.toBeInstanceOf(UniqueConstraintError);
     await Alert.create({ ...fields, state: 'dismissed' }); // closed alerts do not count

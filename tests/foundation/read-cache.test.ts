@@ -46,7 +46,8 @@ describe('read cache checked against PRAGMA data_version (https://sqlite.org/pra
     const before = await read();
     const baseline = loads();
     // A separate OS process writes with the sqlite3 package directly, as the scheduler would.
-    const script = `const s=require('sqlite3');const d=new s.Database(${JSON.stringify(databasePath())});d.configure('busyTimeout',5000);` +
+    const script =
+      `const s=require('sqlite3');const d=new s.Database(${JSON.stringify(databasePath())});d.configure('busyTimeout',5000);` +
       `d.run("UPDATE app_state SET value='from-elsewhere' WHERE key='probe'",(e)=>{if(e)throw e;d.close();});`;
     const result = spawnSync(process.execPath, ['-e', script], { cwd: path.resolve(__dirname, '../..'), encoding: 'utf8' });
     expect(result.status, result.stderr).toBe(0);
@@ -57,21 +58,23 @@ describe('read cache checked against PRAGMA data_version (https://sqlite.org/pra
 
   it('shares one load between concurrent misses and does not keep a failure', async () => {
     let calls = 0;
-    const slow = () => cachedRead('shared', async () => {
-      calls++;
-      await new Promise((r) => setTimeout(r, 20));
-      return { calls };
-    });
+    const slow = () =>
+      cachedRead('shared', async () => {
+        calls++;
+        await new Promise((r) => setTimeout(r, 20));
+        return { calls };
+      });
     const [a, b] = await Promise.all([slow(), slow()]);
     expect(a).toBe(b);
     expect(calls).toBe(1);
 
     let attempts = 0;
-    const flaky = () => cachedRead('flaky', async () => {
-      attempts++;
-      if (attempts === 1) throw new Error('first attempt fails');
-      return 'ok';
-    });
+    const flaky = () =>
+      cachedRead('flaky', async () => {
+        attempts++;
+        if (attempts === 1) throw new Error('first attempt fails');
+        return 'ok';
+      });
     await expect(flaky()).rejects.toThrow('first attempt fails');
     expect(await flaky()).toBe('ok');
   });

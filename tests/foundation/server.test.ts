@@ -118,11 +118,14 @@ describe('the started product', () => {
     const after = await sameCookie.fetch('/api/series');
     expect(after.status).toBe(200); // the session survived the restart
     expect((await after.json()).items).toEqual(before.items);
-    const count = await runInApp(app, `
+    const count = await runInApp(
+      app,
+      `
       const { db, User, closeDatabase } = await import('@/models');
       await db();
       console.log(await User.count());
-      await closeDatabase();`);
+      await closeDatabase();`,
+    );
     expect(count.trim()).toBe('4');
   }, 900_000); // the restart rebuilds first when sources changed since the first start
 });

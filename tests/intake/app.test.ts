@@ -11,7 +11,8 @@ let lead: Session;
 let viewer: Session;
 let drops: string;
 
-const csv = (start: number, n: number) => `time,value\n${Array.from({ length: n }, (_, i) => `${new Date(start + i * 3_600_000).toISOString()},${i / 4}`).join('\n')}\n`;
+const csv = (start: number, n: number) =>
+  `time,value\n${Array.from({ length: n }, (_, i) => `${new Date(start + i * 3_600_000).toISOString()},${i / 4}`).join('\n')}\n`;
 
 async function waitFor<T>(what: string, probe: () => T | null | undefined | false, timeoutMs = 20_000): Promise<T> {
   const deadline = Date.now() + timeoutMs;
@@ -27,7 +28,8 @@ async function waitFor<T>(what: string, probe: () => T | null | undefined | fals
 function declaredTooLarge(auth: string): Promise<number> {
   return new Promise((resolve, reject) => {
     const request = http.request(`${app.baseUrl}/api/series/north-basin/observations`, {
-      method: 'POST', headers: { authorization: auth, 'content-type': 'text/csv', 'content-length': String(50 * 1024 * 1024 + 1) },
+      method: 'POST',
+      headers: { authorization: auth, 'content-type': 'text/csv', 'content-length': String(50 * 1024 * 1024 + 1) },
     });
     request.on('response', (response) => {
       resolve(response.statusCode ?? 0);
@@ -81,14 +83,26 @@ describe('drop folders', () => {
     const good = csv(Date.UTC(2024, 0, 1), 48);
     fs.writeFileSync(path.join(folder, 'good.csv'), good);
     fs.writeFileSync(path.join(folder, 'empty-header.csv'), 'time,value\n');
-    const report = await waitFor('good.csv processed', () => fs.existsSync(path.join(folder, 'processed', 'good.csv.report.json')) && readReport(path.join(folder, 'processed', 'good.csv.report.json')));
+    const report = await waitFor(
+      'good.csv processed',
+      () => fs.existsSync(path.join(folder, 'processed', 'good.csv.report.json')) && readReport(path.join(folder, 'processed', 'good.csv.report.json')),
+    );
     expect(report).toMatchObject({ status: 'succeeded', rowsRead: 48, accepted: 48, duplicates: 0, rejected: 0 });
     expect(fs.existsSync(path.join(folder, 'processed', 'good.csv'))).toBe(true);
-    const rejected = await waitFor('empty-header.csv rejected', () => fs.existsSync(path.join(folder, 'rejected', 'empty-header.csv.report.json')) && readReport(path.join(folder, 'rejected', 'empty-header.csv.report.json')));
+    const rejected = await waitFor(
+      'empty-header.csv rejected',
+      () =>
+        fs.existsSync(path.join(folder, 'rejected', 'empty-header.csv.report.json')) &&
+        readReport(path.join(folder, 'rejected', 'empty-header.csv.report.json')),
+    );
     expect(rejected.message).toContain('header line but no data rows');
 
     fs.writeFileSync(path.join(folder, 'good-copy.csv'), good);
-    const again = await waitFor('good-copy.csv processed', () => fs.existsSync(path.join(folder, 'processed', 'good-copy.csv.report.json')) && readReport(path.join(folder, 'processed', 'good-copy.csv.report.json')));
+    const again = await waitFor(
+      'good-copy.csv processed',
+      () =>
+        fs.existsSync(path.join(folder, 'processed', 'good-copy.csv.report.json')) && readReport(path.join(folder, 'processed', 'good-copy.csv.report.json')),
+    );
     expect(again).toMatchObject({ alreadyApplied: true, previousRunId: report.runId, accepted: 0 });
 
     const detail = await (await viewer.fetch('/api/series/north-basin')).json();
@@ -100,7 +114,10 @@ describe('drop folders', () => {
     expect(one).toMatchObject({ id: report.runId, status: 'succeeded', accepted: 48, report: { rejectedRows: [] } });
 
     const listing = await (await viewer.fetch('/api/drop-folders')).json();
-    expect(listing.items.find((f: { slug: string }) => f.slug === 'north-basin').rejected[0]).toMatchObject({ file: 'empty-header.csv', runId: rejected.runId });
+    expect(listing.items.find((f: { slug: string }) => f.slug === 'north-basin').rejected[0]).toMatchObject({
+      file: 'empty-header.csv',
+      runId: rejected.runId,
+    });
   });
 
   it('leaves a file still being written (.part) alone until it is renamed, and reports unknown folders', async () => {
@@ -111,7 +128,10 @@ describe('drop folders', () => {
     await new Promise((r) => setTimeout(r, 3500));
     expect(fs.existsSync(path.join(folder, 'late.csv.part'))).toBe(true);
     fs.renameSync(path.join(folder, 'late.csv.part'), path.join(folder, 'late.csv'));
-    const report = await waitFor('late.csv processed', () => fs.existsSync(path.join(folder, 'processed', 'late.csv.report.json')) && readReport(path.join(folder, 'processed', 'late.csv.report.json')));
+    const report = await waitFor(
+      'late.csv processed',
+      () => fs.existsSync(path.join(folder, 'processed', 'late.csv.report.json')) && readReport(path.join(folder, 'processed', 'late.csv.report.json')),
+    );
     expect(report.accepted).toBe(5);
     expect(fs.existsSync(path.join(drops, 'no-such-series', 'x.csv'))).toBe(true);
     const listing = await (await viewer.fetch('/api/drop-folders')).json();
@@ -127,10 +147,17 @@ describe('push API and ingest tokens', () => {
     expect(issued.status).toBe(201);
     const { id, token } = await issued.json();
     const other = await (await admin.json('/api/series/south-basin/tokens', 'POST', {})).json();
-    const push = (auth: string | null, body: string, type = 'application/json') => fetch(`${app.baseUrl}/api/series/north-basin/observations`, {
-      method: 'POST', body, headers: { 'content-type': type, ...(auth ? { authorization: auth } : {}) },
-    });
-    const points = JSON.stringify([{ time: '2024-03-01T00:00:00Z', value: 1.5 }, { time: '2024-03-01T01:00:00Z', value: 'oops' }, { time: '2024-01-01T00:00:00Z', value: 0 }]);
+    const push = (auth: string | null, body: string, type = 'application/json') =>
+      fetch(`${app.baseUrl}/api/series/north-basin/observations`, {
+        method: 'POST',
+        body,
+        headers: { 'content-type': type, ...(auth ? { authorization: auth } : {}) },
+      });
+    const points = JSON.stringify([
+      { time: '2024-03-01T00:00:00Z', value: 1.5 },
+      { time: '2024-03-01T01:00:00Z', value: 'oops' },
+      { time: '2024-01-01T00:00:00Z', value: 0 },
+    ]);
     const ok = await push(`Bearer ${token}`, points);
     expect(ok.status).toBe(200);
     expect(await ok.json()).toMatchObject({ accepted: 1, duplicates: 1, rejected: [{ line: 2, reason: '"oops" is not a number' }] });
@@ -153,16 +180,27 @@ describe('push API and ingest tokens', () => {
     expect((await admin.fetch(`/api/tokens/${id}`, { method: 'DELETE' })).status).toBe(200);
     expect((await push(`Bearer ${token}`, points)).status).toBe(401);
 
-    const bySession = await lead.fetch('/api/series/north-basin/observations', { method: 'POST', headers: { 'content-type': 'text/csv' }, body: 'time,value\n2024-03-03T00:00:00Z,3\n' });
+    const bySession = await lead.fetch('/api/series/north-basin/observations', {
+      method: 'POST',
+      headers: { 'content-type': 'text/csv' },
+      body: 'time,value\n2024-03-03T00:00:00Z,3\n',
+    });
     expect(await bySession.json()).toMatchObject({ accepted: 1 });
-    expect((await viewer.fetch('/api/series/north-basin/observations', { method: 'POST', headers: { 'content-type': 'text/csv' }, body: 'time,value\n' })).status).toBe(403);
+    expect(
+      (await viewer.fetch('/api/series/north-basin/observations', { method: 'POST', headers: { 'content-type': 'text/csv' }, body: 'time,value\n' })).status,
+    ).toBe(403);
   });
 
   it('reads observations back as JSON and CSV with from/to', async () => {
     const json = await (await viewer.fetch(`/api/series/north-basin/observations?from=2024-03-01T00:00:00Z&to=${Date.UTC(2024, 2, 2)}`)).json();
-    expect(json.items).toEqual([{ time: '2024-03-01T00:00:00.000Z', t: Date.UTC(2024, 2, 1), value: 1.5, flag: 2 }, { time: '2024-03-02T00:00:00.000Z', t: Date.UTC(2024, 2, 2), value: 2, flag: 2 }]);
+    expect(json.items).toEqual([
+      { time: '2024-03-01T00:00:00.000Z', t: Date.UTC(2024, 2, 1), value: 1.5, flag: 2 },
+      { time: '2024-03-02T00:00:00.000Z', t: Date.UTC(2024, 2, 2), value: 2, flag: 2 },
+    ]);
     const text = await (await viewer.fetch('/api/series/north-basin/observations?format=csv&from=2024-03-01T00:00:00Z')).text();
-    expect(text).toBe(`time,t,value,flag\n2024-03-01T00:00:00.000Z,${Date.UTC(2024, 2, 1)},1.5,2\n2024-03-02T00:00:00.000Z,${Date.UTC(2024, 2, 2)},2,2\n2024-03-03T00:00:00.000Z,${Date.UTC(2024, 2, 3)},3,2\n`);
+    expect(text).toBe(
+      `time,t,value,flag\n2024-03-01T00:00:00.000Z,${Date.UTC(2024, 2, 1)},1.5,2\n2024-03-02T00:00:00.000Z,${Date.UTC(2024, 2, 2)},2,2\n2024-03-03T00:00:00.000Z,${Date.UTC(2024, 2, 3)},3,2\n`,
+    );
     expect((await viewer.fetch('/api/series/north-basin/observations?from=yesterday')).status).toBe(422);
   });
 });

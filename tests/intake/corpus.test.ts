@@ -35,8 +35,15 @@ async function outcome(input: Parameters<typeof collectCsvRows>[0], expectation:
 
 describe('bad-CSV corpus (fixtures/csv/expected.json)', () => {
   it('lists an expectation for every fixture file and a file for every expectation', () => {
-    const files = fs.readdirSync(DIR).filter((f) => f.endsWith('.csv')).sort();
-    expect(Object.keys(expected).filter((k) => !k.startsWith('_')).sort()).toEqual(files);
+    const files = fs
+      .readdirSync(DIR)
+      .filter((f) => f.endsWith('.csv'))
+      .sort();
+    expect(
+      Object.keys(expected)
+        .filter((k) => !k.startsWith('_'))
+        .sort(),
+    ).toEqual(files);
   });
 
   for (const [file, expectation] of Object.entries(expected)) {
@@ -104,7 +111,10 @@ describe('choosing the encoding of a file without a byte order mark', () => {
       expect(layout.encoding).toBe('windows-1252');
       headers.push(layout.header);
     }
-    expect(headers).toEqual([['time', 'temperature (°C)'], ['time', 'temperature (°C)']]);
+    expect(headers).toEqual([
+      ['time', 'temperature (°C)'],
+      ['time', 'temperature (°C)'],
+    ]);
   });
   it('reads bytes 0x80–0x9F of Windows-1252 as the WHATWG index gives them (€, en dash, per mille), not as C1 controls', async () => {
     const { layout } = await readCsv(bytes(0x74, 0x2c, 0x80, 0x96, 0x89, 0x0a, 0x31, 0x2c, 0x32, 0x0a), { header: true, onRow: () => undefined });

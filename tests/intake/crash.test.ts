@@ -18,7 +18,9 @@ const ROWS = 300_000;
 
 function child() {
   return spawn(process.execPath, ['--import', 'tsx', path.join(__dirname, 'crash-child.ts')], {
-    cwd: ROOT, env: { ...process.env, DATA_DIR: dataDir, DATABASE_PATH: '' }, stdio: ['ignore', 'pipe', 'pipe'],
+    cwd: ROOT,
+    env: { ...process.env, DATA_DIR: dataDir, DATABASE_PATH: '' },
+    stdio: ['ignore', 'pipe', 'pipe'],
   });
 }
 

@@ -24,7 +24,11 @@ async function freshSeries(slug: string, fields: Record<string, unknown> = {}) {
 describe('ingestObservations', () => {
   it('stores a file once, marks the series for analysis, and recognises the same content again', async () => {
     const series = await freshSeries('north-buoy');
-    const text = csv([['2024-01-02T00:00:00Z', 2], ['2024-01-01T00:00:00Z', 1], ['2024-01-03T00:00:00Z', 'x']]);
+    const text = csv([
+      ['2024-01-02T00:00:00Z', 2],
+      ['2024-01-01T00:00:00Z', 1],
+      ['2024-01-03T00:00:00Z', 'x'],
+    ]);
     const first = await ingestObservations({ series, source: 'drop', fileName: 'a.csv', contentHash: contentHashOf(text), csv: text });
     expect(first).toMatchObject({ status: 'succeeded', rowsRead: 3, accepted: 2, duplicates: 0, rejected: 1, alreadyApplied: false });
     expect(first.rejectedRows).toEqual([{ line: 4, column: 'value', reason: '"x" is not a number' }]);
@@ -44,8 +48,23 @@ describe('ingestObservations', () => {
 
   it('counts same-value points as duplicates and rejects different values unless the policy is replace', async () => {
     const series = await freshSeries('dup-check');
-    await ingestObservations({ series, source: 'push', csv: csv([['2024-01-01T00:00:00Z', 1], ['2024-01-02T00:00:00Z', 2]]) });
-    const second = await ingestObservations({ series, source: 'push', csv: csv([['2024-01-01T00:00:00Z', 1], ['2024-01-02T00:00:00Z', 5], ['2024-01-03T00:00:00Z', 3]]) });
+    await ingestObservations({
+      series,
+      source: 'push',
+      csv: csv([
+        ['2024-01-01T00:00:00Z', 1],
+        ['2024-01-02T00:00:00Z', 2],
+      ]),
+    });
+    const second = await ingestObservations({
+      series,
+      source: 'push',
+      csv: csv([
+        ['2024-01-01T00:00:00Z', 1],
+        ['2024-01-02T00:00:00Z', 5],
+        ['2024-01-03T00:00:00Z', 3],
+      ]),
+    });
     expect(second).toMatchObject({ accepted: 1, duplicates: 1, rejected: 1, replaced: 0 });
     expect(second.rejectedRows[0]).toMatchObject({ line: 3, column: 'time' });
     expect(second.rejectedRows[0].reason).toContain('already stored');
@@ -63,7 +82,15 @@ describe('ingestObservations', () => {
     const rows: [string, number][] = [];
     for (let i = 0; i < 3000; i++) rows.push([new Date(Date.UTC(2020, 0, 1) + i * 3_600_000).toISOString(), i]);
     expect((await ingestObservations({ series, source: 'upload', csv: csv(rows) })).accepted).toBe(3000);
-    const few = await ingestObservations({ series, source: 'push', points: [{ time: rows[10][0], value: 10 }, { time: rows[2000][0], value: -1 }, { time: '2019-12-31T00:00:00Z', value: 7 }] });
+    const few = await ingestObservations({
+      series,
+      source: 'push',
+      points: [
+        { time: rows[10][0], value: 10 },
+        { time: rows[2000][0], value: -1 },
+        { time: '2019-12-31T00:00:00Z', value: 7 },
+      ],
+    });
     expect(few).toMatchObject({ accepted: 1, duplicates: 1, rejected: 1 });
     const many = await ingestObservations({ series, source: 'upload', csv: csv(rows.map(([t, v], i) => [t, i === 2999 ? 0.5 : v])) });
     expect(many).toMatchObject({ accepted: 0, duplicates: 2999, rejected: 1 });
@@ -109,8 +136,32 @@ describe('sweepStaleRuns', () => {
   it('marks a run whose holder died as failed, never a live one', async () => {
     await db();
     const series = await freshSeries('sweep-me');
-    const dead = await IngestRun.create({ seriesId: series.id, source: 'drop', fileName: 'x.csv', contentHash: null, status: 'running', userId: null, tokenId: null, durationMs: null, finishedAt: null, startedAt: new Date(Date.now() - 5000), report: { runKey: 'dead-key' } });
-    const live = await IngestRun.create({ seriesId: series.id, source: 'drop', fileName: 'y.csv', contentHash: null, status: 'running', userId: null, tokenId: null, durationMs: null, finishedAt: null, startedAt: new Date(Date.now() - 5000), report: { runKey: 'live-key' } });
+    const dead = await IngestRun.create({
+      seriesId: series.id,
+      source: 'drop',
+      fileName: 'x.csv',
+      contentHash: null,
+      status: 'running',
+      userId: null,
+      tokenId: null,
+      durationMs: null,
+      finishedAt: null,
+      startedAt: new Date(Date.now() - 5000),
+      report: { runKey: 'dead-key' },
+    });
+    const live = await IngestRun.create({
+      seriesId: series.id,
+      source: 'drop',
+      fileName: 'y.csv',
+      contentHash: null,
+      status: 'running',
+      userId: null,
+      tokenId: null,
+      durationMs: null,
+      finishedAt: null,
+      startedAt: new Date(Date.now() - 5000),
+      report: { runKey: 'live-key' },
+    });
     expect(await acquireLease('ingest-run:live-key', 60_000, 'another-process')).toBe(true);
     expect(await sweepStaleRuns()).toEqual([dead.id]);
     await dead.reload();
@@ -137,7 +188,10 @@ describe('loadObservations', () => {
       if (Number.isFinite(v) && !Object.is(v, -0)) values.push(v);
     }
     const sequelize = await db();
-    await sequelize.query(`INSERT INTO observations (series_id, t, value) VALUES ${values.map((_, i) => `(${series.id}, ${1_700_000_000_000 + i * 60_000}, ?)`).join(',')}`, { replacements: values });
+    await sequelize.query(
+      `INSERT INTO observations (series_id, t, value) VALUES ${values.map((_, i) => `(${series.id}, ${1_700_000_000_000 + i * 60_000}, ?)`).join(',')}`,
+      { replacements: values },
+    );
     const read = await loadObservations(series.id);
     expect(read.time.length).toBe(values.length);
     const wrong = values.filter((v, i) => !Object.is(read.value[i], v));

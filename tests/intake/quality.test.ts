@@ -36,7 +36,10 @@ async function storedFlags(seriesId: number) {
 
 describe('quality flags at intake', () => {
   it('keeps the source flags of a flag column, rejects flags off the scale and skips rows flagged missing', async () => {
-    const series = await createSeries({ slug: 'sonde-do', name: 'Sonde DO', csvMapping: { timeColumn: 'time', valueColumn: 'do', flagColumn: 'do_qc', timeFormat: 'iso8601' } }, null);
+    const series = await createSeries(
+      { slug: 'sonde-do', name: 'Sonde DO', csvMapping: { timeColumn: 'time', valueColumn: 'do', flagColumn: 'do_qc', timeFormat: 'iso8601' } },
+      null,
+    );
     const text = ['time,do,do_qc', `${iso(0)},8.1,1`, `${iso(1)},8.2,3`, `${iso(2)},12.5,4`, `${iso(3)},,9`, `${iso(4)},8.3,`, `${iso(5)},8.4,7`].join('\n');
     const outcome = await ingestObservations({ series, source: 'drop', csv: text });
     expect(outcome).toMatchObject({ status: 'succeeded', accepted: 4, rejected: 1 });
@@ -52,10 +55,15 @@ describe('quality flags at intake', () => {
   });
 
   it('flags a gross-range failure and a spike 4 and leaves them out of the analysis', async () => {
-    const series = await createSeries({
-      slug: 'buoy-temp', name: 'Buoy temperature', intervalMs: HOUR,
-      qc: { grossRange: { fail: [-5, 40], suspect: [0, 30] }, spike: { suspect: 2, fail: 4 } },
-    }, null);
+    const series = await createSeries(
+      {
+        slug: 'buoy-temp',
+        name: 'Buoy temperature',
+        intervalMs: HOUR,
+        qc: { grossRange: { fail: [-5, 40], suspect: [0, 30] }, spike: { suspect: 2, fail: 4 } },
+      },
+      null,
+    );
     const values = noise(40).map((x) => 15 + x * 0.2);
     values[10] = 99; // beyond the sensor's range
     values[20] = 25; // a spike of about 10 above both neighbours
@@ -83,7 +91,10 @@ describe('quality flags at intake', () => {
   });
 
   it('judges the rate of change of a new reading against the stored period before it', async () => {
-    const series = await createSeries({ slug: 'roc-buoy', name: 'Rate of change', intervalMs: HOUR, qc: { rateOfChange: { deviations: 3, periodHours: 6 } } }, null);
+    const series = await createSeries(
+      { slug: 'roc-buoy', name: 'Rate of change', intervalMs: HOUR, qc: { rateOfChange: { deviations: 3, periodHours: 6 } } },
+      null,
+    );
     const values = [10, 10.5, 10, 10.5, 10, 10.5, 10, 10.5, 10, 10.5];
     await ingestObservations({ series, source: 'drop', csv: `time,value\n${values.map((v, i) => `${iso(i)},${v}`).join('\n')}\n` });
     // hours 4-9 (the period of hour 10) hold 10, 10.5 three times each: SD 0.274, 3 SD = 0.82, so a step of 0.3 passes;
@@ -98,10 +109,15 @@ describe('quality flags at intake', () => {
     const n = 900;
     const values = noise(n, 5).map((x, i) => 10 + x + 0.001 * i);
     for (let i = 300; i < 500; i++) values[i] = 10.25;
-    const series = await createSeries({
-      slug: 'stuck-logger', name: 'Stuck logger', intervalMs: HOUR,
-      qc: { flatLine: { tolerance: 0, suspect: 3, fail: 5 } },
-    }, null);
+    const series = await createSeries(
+      {
+        slug: 'stuck-logger',
+        name: 'Stuck logger',
+        intervalMs: HOUR,
+        qc: { flatLine: { tolerance: 0, suspect: 3, fail: 5 } },
+      },
+      null,
+    );
     await ingestObservations({ series, source: 'drop', csv: `time,value\n${values.map((v, i) => `${iso(i)},${v}`).join('\n')}\n` });
     const stored = await storedFlags(series.id);
     expect(stored.flag.slice(300, 306)).toEqual([1, 1, 1, 3, 3, 4]);

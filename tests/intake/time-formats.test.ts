@@ -89,7 +89,14 @@ describe('numeric time formats', () => {
 
 describe('calendar arithmetic', () => {
   it('matches Date.UTC across its range and round-trips (Hinnant days_from_civil / civil_from_days)', () => {
-    for (const [y, m, d] of [[1970, 1, 1], [2000, 2, 29], [1600, 3, 1], [1, 1, 1], [2400, 12, 31], [-44, 3, 15]]) {
+    for (const [y, m, d] of [
+      [1970, 1, 1],
+      [2000, 2, 29],
+      [1600, 3, 1],
+      [1, 1, 1],
+      [2400, 12, 31],
+      [-44, 3, 15],
+    ]) {
       const days = daysFromCivil(y, m, d);
       const reference = new Date(0);
       reference.setUTCFullYear(y, m - 1, d);

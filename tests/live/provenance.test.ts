@@ -22,7 +22,10 @@ const DAY = 86_400_000;
 const START = Date.UTC(2024, 0, 1);
 const N = 700;
 const csvOf = (times: number[], values: Float64Array | number[], from: number, to: number) =>
-  `time,value\n${times.slice(from, to).map((t, i) => `${new Date(t).toISOString()},${values[from + i]}`).join('\n')}\n`;
+  `time,value\n${times
+    .slice(from, to)
+    .map((t, i) => `${new Date(t).toISOString()},${values[from + i]}`)
+    .join('\n')}\n`;
 
 let seriesId: number;
 let snapshotId: number;
@@ -34,14 +37,20 @@ beforeAll(async () => {
   const lead = await User.create({ email: 'lead@example.test', name: 'Lead', role: 'lead', passwordHash: null });
   // A daily record with a slowing-down trend in its second half, delivered by two uploads, a maintenance break inside
   // the span, 99 surrogates and the live defaults: every input the engine takes from the database is exercised.
-  const series = await createSeries({ slug: 'pond-oxygen', name: 'Pond oxygen', intervalMs: DAY, settings: { surrogates: 99, span: '600 points', seed: 7 } }, null);
+  const series = await createSeries(
+    { slug: 'pond-oxygen', name: 'Pond oxygen', intervalMs: DAY, settings: { surrogates: 99, span: '600 points', seed: 7 } },
+    null,
+  );
   seriesId = series.id;
   const calm = simulateAr1({ n: N / 2, phi: 0.3, sigma: 1, mean: 8, seed: 3 });
   const slowing = simulateAr1({ n: N / 2, phi: 0.9, sigma: 1, mean: 8, seed: 4 });
   const values = [...calm, ...slowing].map((v, i) => v + i * 1e-3 + (i % 97 === 0 ? 1 / 3 : 0));
   const times = Array.from({ length: N }, (_, i) => START + i * DAY);
   runIds = [];
-  for (const [from, to] of [[0, 400], [400, N]]) {
+  for (const [from, to] of [
+    [0, 400],
+    [400, N],
+  ]) {
     const outcome = await ingestObservations({ series, source: 'upload', fileName: `part-${from}.csv`, csv: csvOf(times, values, from, to) });
     expect(outcome.status).toBe('succeeded');
     runIds.push(outcome.runId);
@@ -92,7 +101,11 @@ describe('an analysis records where its numbers came from and can be reproduced 
     const dir = mkdtempSync(path.join(os.tmpdir(), 'bw-reproduce-'));
     const file = path.join(dir, download.fileName);
     writeFileSync(file, download.csv);
-    const run = spawnSync(process.execPath, [path.join(ROOT, 'bin/brinkwatch.mjs'), 'analyze', file, '--summary'], { encoding: 'utf8', cwd: ROOT, timeout: 120_000 });
+    const run = spawnSync(process.execPath, [path.join(ROOT, 'bin/brinkwatch.mjs'), 'analyze', file, '--summary'], {
+      encoding: 'utf8',
+      cwd: ROOT,
+      timeout: 120_000,
+    });
     expect(run.stderr).toBe('');
     expect(run.status).toBe(0);
     const cli = JSON.parse(run.stdout) as { kendall: Record<string, { tau: number; p: number }>; significance: Record<string, { p: number }> };

@@ -42,7 +42,10 @@ describe('new-series defaults', () => {
   it('run surrogates, a span in points, shift detection and a coverage floor; omitted fields take them on create and update', () => {
     const created = seriesCreateSchema.parse({ slug: 'defaults', name: 'Defaults' }).settings;
     expect(created).toMatchObject({ surrogates: 199, span: '1000 points', window: 0.5, bandwidth: 0.1, shiftDetection: 'on', minCoverage: 0.8 });
-    expect(seriesCreateSchema.parse({ slug: 'partial', name: 'Partial', settings: { window: 'P90D' } }).settings).toMatchObject({ surrogates: 199, window: 'P90D' });
+    expect(seriesCreateSchema.parse({ slug: 'partial', name: 'Partial', settings: { window: 'P90D' } }).settings).toMatchObject({
+      surrogates: 199,
+      window: 'P90D',
+    });
     expect(seriesUpdateSchema.parse({ settings: { window: 0.3 } }).settings).toMatchObject({ surrogates: 199, span: '1000 points' });
     // A legacy spanPoints names the span itself and is not overridden by the default span.
     expect(seriesUpdateSchema.parse({ settings: { spanPoints: 300 } }).settings).toMatchObject({ span: '300 points' });

@@ -27,7 +27,10 @@ describe('the daily digest', () => {
     await watch(quiet, other, 'digest');
     await makeRule(followed, lead);
     await makeRule(other, lead, { minTau: 0.9 });
-    const report = await evaluateSnapshots([await makeSnapshot(followed, { tau: 0.61, surrogateP: 0.02 }), await makeSnapshot(other, { tau: 0.5, surrogateP: 0.02 })]);
+    const report = await evaluateSnapshots([
+      await makeSnapshot(followed, { tau: 0.61, surrogateP: 0.02 }),
+      await makeSnapshot(other, { tau: 0.5, surrogateP: 0.02 }),
+    ]);
     expect(report.opened).toHaveLength(1);
     await dismissAlert(report.opened[0], 'statistical-fluke', analyst);
 

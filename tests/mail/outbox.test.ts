@@ -178,7 +178,16 @@ describe('templates', () => {
   it('states the evidence, the method and the caution, and escapes user text in HTML', () => {
     const rendered = newAlertMail(evidence);
     expect(rendered.subject).toBe('[Brinkwatch] Warning: lag-1 autocorrelation trend on Basin <b>north</b> & "east" (alert #7)');
-    for (const fact of ['0.62', '< 0.001', '0.0123 (rising) from 500 ar1 surrogates', '50% of the analysed stretch (180 points)', 'Gaussian kernel smoothing, bandwidth 10% of the analysed stretch', '2024-01-01 00:00 UTC to 2024-12-31 00:00 UTC (366 points analysed)', '/alerts/7', 'not forecasts'])
+    for (const fact of [
+      '0.62',
+      '< 0.001',
+      '0.0123 (rising) from 500 ar1 surrogates',
+      '50% of the analysed stretch (180 points)',
+      'Gaussian kernel smoothing, bandwidth 10% of the analysed stretch',
+      '2024-01-01 00:00 UTC to 2024-12-31 00:00 UTC (366 points analysed)',
+      '/alerts/7',
+      'not forecasts',
+    ])
       expect(rendered.text).toContain(fact);
     expect(rendered.html).toContain('Basin &lt;b&gt;north&lt;/b&gt; &amp; &quot;east&quot;');
     expect(rendered.html).not.toContain('<b>north</b>');

@@ -21,11 +21,23 @@ export function readMailbox(directory: string): ReceivedMail[] {
     .map((name) => {
       const envelope = JSON.parse(fs.readFileSync(path.join(directory, name), 'utf8')) as { to: string[]; file: string };
       const raw = fs.readFileSync(path.join(directory, envelope.file), 'utf8');
-      return { file: envelope.file, to: envelope.to, subject: messageHeader(raw, 'Subject'), messageId: messageHeader(raw, 'Message-ID'), text: messageText(raw), raw };
+      return {
+        file: envelope.file,
+        to: envelope.to,
+        subject: messageHeader(raw, 'Subject'),
+        messageId: messageHeader(raw, 'Message-ID'),
+        text: messageText(raw),
+        raw,
+      };
     });
 }
 
-export async function waitFor<T>(what: string, probe: () => Promise<T | null | undefined | false> | T | null | undefined | false, timeoutMs = 60_000, everyMs = 250): Promise<T> {
+export async function waitFor<T>(
+  what: string,
+  probe: () => Promise<T | null | undefined | false> | T | null | undefined | false,
+  timeoutMs = 60_000,
+  everyMs = 250,
+): Promise<T> {
   const deadline = Date.now() + timeoutMs;
   for (;;) {
     const value = await probe();

@@ -33,7 +33,13 @@ function maxima(x: Float64Array): { interior: number; end: number } {
   return { interior: a * interior - b, end };
 }
 
-interface Cell { n: number; family: string; records: number; interior: number[]; end: number[] }
+interface Cell {
+  n: number;
+  family: string;
+  records: number;
+  interior: number[];
+  end: number[];
+}
 const cells: Cell[] = [];
 for (const n of Object.keys(RECORDS).map(Number)) {
   FAMILIES.forEach((family, f) => {
@@ -63,4 +69,8 @@ const table = cells.map((c) => ({
 }));
 console.log(JSON.stringify(constants));
 console.table(table.map((r) => ({ n: r.n, family: r.family, R: r.records, ...r.falsePositives })));
-writeFileSync('fixtures/reference/shift_calibration.json', JSON.stringify({ method: 'tests/reference/calibrate_shifts.ts', minSegment: DEFAULT_MIN_SEGMENT, endShare: END_SHARE, constants, cells: table }, null, 1) + '\n');
+writeFileSync(
+  'fixtures/reference/shift_calibration.json',
+  JSON.stringify({ method: 'tests/reference/calibrate_shifts.ts', minSegment: DEFAULT_MIN_SEGMENT, endShare: END_SHARE, constants, cells: table }, null, 1) +
+    '\n',
+);

@@ -141,14 +141,18 @@ describe('accounts and sign-in', () => {
   async function resetLink(email: string): Promise<string> {
     expect((await new Session(app.baseUrl).json('/api/auth/reset-request', 'POST', { email })).status).toBe(202);
     const dir = path.join(app.dataDir, 'mailbox');
-    return waitFor(`the reset mail to ${email}`, async () => {
-      if (!fs.existsSync(dir)) return null;
-      for (const file of fs.readdirSync(dir).filter((f) => f.endsWith('.eml'))) {
-        const raw = fs.readFileSync(path.join(dir, file), 'utf8').replace(/=\r?\n/g, '');
-        if (raw.includes(email)) return /\/reset\/([A-Za-z0-9_-]{20,})/.exec(raw)?.[1] ?? null;
-      }
-      return null;
-    }, 30_000);
+    return waitFor(
+      `the reset mail to ${email}`,
+      async () => {
+        if (!fs.existsSync(dir)) return null;
+        for (const file of fs.readdirSync(dir).filter((f) => f.endsWith('.eml'))) {
+          const raw = fs.readFileSync(path.join(dir, file), 'utf8').replace(/=\r?\n/g, '');
+          if (raw.includes(email)) return /\/reset\/([A-Za-z0-9_-]{20,})/.exec(raw)?.[1] ?? null;
+        }
+        return null;
+      },
+      30_000,
+    );
   }
 
   test('a reset link works once, and the old password stops working', async () => {

@@ -10,7 +10,10 @@ let lead: Session;
 let viewer: Session;
 
 const bearer = (token: string) => ({ authorization: `Bearer ${token}` });
-async function issue(who: Session, body: object): Promise<{ status: number; token?: string; id?: number; role?: string; error?: { fields?: Record<string, string[]> } }> {
+async function issue(
+  who: Session,
+  body: object,
+): Promise<{ status: number; token?: string; id?: number; role?: string; error?: { fields?: Record<string, string[]> } }> {
   const response = await who.json('/api/account/tokens', 'POST', body);
   return { status: response.status, ...(await response.json()) };
 }
@@ -38,7 +41,11 @@ describe('personal API tokens (real server)', () => {
     expect(csv.status).toBe(200);
     expect(csv.headers.get('content-type')).toMatch(/^text\/csv/);
     expect((await script.fetch('/api/alerts', { headers: bearer(made.token!) })).status).toBe(200);
-    const write = await script.fetch(`/api/series/${SLUG}/marks`, { method: 'POST', headers: { ...bearer(made.token!), 'content-type': 'application/json' }, body: JSON.stringify({ at: '2020-01-01' }) });
+    const write = await script.fetch(`/api/series/${SLUG}/marks`, {
+      method: 'POST',
+      headers: { ...bearer(made.token!), 'content-type': 'application/json' },
+      body: JSON.stringify({ at: '2020-01-01' }),
+    });
     expect(write.status).toBe(403);
 
     const listed = await (await viewer.fetch('/api/account/tokens')).json();
@@ -52,7 +59,11 @@ describe('personal API tokens (real server)', () => {
     const reader = await issue(lead, { name: 'dashboard', role: 'viewer' });
     const writer = await issue(lead, { name: 'loader', role: 'lead' });
     const post = (token: string) =>
-      new Session(app.baseUrl).fetch(`/api/series/${SLUG}/marks`, { method: 'POST', headers: { ...bearer(token), 'content-type': 'application/json' }, body: JSON.stringify({ at: '2019-06-01', kind: 'maintenance', note: 'scripted' }) });
+      new Session(app.baseUrl).fetch(`/api/series/${SLUG}/marks`, {
+        method: 'POST',
+        headers: { ...bearer(token), 'content-type': 'application/json' },
+        body: JSON.stringify({ at: '2019-06-01', kind: 'maintenance', note: 'scripted' }),
+      });
     expect((await post(reader.token!)).status).toBe(403);
     expect((await post(writer.token!)).status).toBe(201);
     const above = await issue(viewer, { name: 'too high', role: 'lead' });

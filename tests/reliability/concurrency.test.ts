@@ -47,13 +47,21 @@ describe('two schedulers started at once on one DATA_DIR', () => {
   test('each file is taken in once, each snapshot judged once per rule, each alert opened and mailed once', async () => {
     schedulers.push(startScheduler(app), startScheduler(app));
     const total = SERIES.length * FILES_PER_SERIES * ROWS_PER_FILE;
-    await waitFor('every file taken in', async () => (await raw.count('observations')) === total && (await raw.count('ingest_runs', "status = 'succeeded'")) === SERIES.length * FILES_PER_SERIES, 90_000);
-    await waitFor('analysis and mail to settle', async () => {
-      const pending = await raw.count('series', 'needs_analysis = 1');
-      const unsent = await raw.count('mail_outbox', "status <> 'sent'");
-      const alerts = await raw.count('alerts');
-      return pending === 0 && unsent === 0 && alerts === SERIES.length;
-    }, 90_000);
+    await waitFor(
+      'every file taken in',
+      async () => (await raw.count('observations')) === total && (await raw.count('ingest_runs', "status = 'succeeded'")) === SERIES.length * FILES_PER_SERIES,
+      90_000,
+    );
+    await waitFor(
+      'analysis and mail to settle',
+      async () => {
+        const pending = await raw.count('series', 'needs_analysis = 1');
+        const unsent = await raw.count('mail_outbox', "status <> 'sent'");
+        const alerts = await raw.count('alerts');
+        return pending === 0 && unsent === 0 && alerts === SERIES.length;
+      },
+      90_000,
+    );
     // A few more cycles of both: nothing new may appear.
     const settled = await raw.tableCounts(['leases', 'app_state', 'audit_log']);
     await new Promise((r) => setTimeout(r, 4000));
@@ -65,14 +73,19 @@ describe('two schedulers started at once on one DATA_DIR', () => {
 
     const runsPerFile = await raw.all<{ slug: string; file_name: string; runs: number; accepted: number }>(
       `SELECT s.slug, r.file_name, COUNT(*) AS runs, SUM(r.accepted) AS accepted FROM ingest_runs r JOIN series s ON s.id = r.series_id
-       GROUP BY s.slug, r.file_name ORDER BY s.slug, r.file_name`);
+       GROUP BY s.slug, r.file_name ORDER BY s.slug, r.file_name`,
+    );
     expect(runsPerFile).toHaveLength(SERIES.length * FILES_PER_SERIES);
     for (const row of runsPerFile) expect(row, JSON.stringify(row)).toMatchObject({ runs: 1, accepted: ROWS_PER_FILE });
     for (const slug of SERIES) {
       const folder = path.join(app.dataDir, 'drops', slug);
       expect(fs.readdirSync(folder).filter((f) => f.endsWith('.csv'))).toEqual([]);
-      expect(fs.readdirSync(path.join(folder, 'processed')).filter((f) => f.endsWith('.csv')).sort()).toEqual(
-        Array.from({ length: FILES_PER_SERIES }, (_, f) => `part-${f}.csv`));
+      expect(
+        fs
+          .readdirSync(path.join(folder, 'processed'))
+          .filter((f) => f.endsWith('.csv'))
+          .sort(),
+      ).toEqual(Array.from({ length: FILES_PER_SERIES }, (_, f) => `part-${f}.csv`));
     }
 
     // No series analysed twice for the same data, and every snapshot judged exactly once by its rule.

@@ -84,7 +84,11 @@ describe('the scheduler killed with SIGKILL mid-work', () => {
     expect((await lead.json(`/api/series/${slug}/rules`, 'POST', { indicator: 'variance', minTau: -1, persistence: 1, severity: 'warning' })).status).toBe(201);
     const analyst = await signedIn(app.baseUrl, 'analyst@brinkwatch.test', DEMO_PASSWORD);
     expect((await analyst.json(`/api/series/${slug}/watch`, 'PUT', { mode: 'immediate' })).status).toBe(200);
-    const pushed = await lead.fetch(`/api/series/${slug}/observations`, { method: 'POST', headers: { 'content-type': 'text/csv' }, body: dailyCsv(18_000, 2_000, 11) });
+    const pushed = await lead.fetch(`/api/series/${slug}/observations`, {
+      method: 'POST',
+      headers: { 'content-type': 'text/csv' },
+      body: dailyCsv(18_000, 2_000, 11),
+    });
     expect(pushed.status, await pushed.clone().text()).toBe(200);
     const [{ id: seriesId }] = await raw.all<{ id: number }>('SELECT id FROM series WHERE slug = ?', [slug]);
     const mailsBefore = sinkMessages(app).length;

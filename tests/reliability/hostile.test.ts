@@ -54,9 +54,7 @@ describe('hostile input against the started product', () => {
 
   beforeAll(async () => {
     app = await startApp({ demo: false, env: { INGEST_CRON: '*/1 * * * * *', ANALYSIS_CRON: '0 0 1 1 *' } });
-    [lead, admin, analyst] = await Promise.all(
-      ['lead', 'admin', 'analyst'].map((role) => signedIn(app.baseUrl, `${role}@brinkwatch.test`, DEMO_PASSWORD)),
-    );
+    [lead, admin, analyst] = await Promise.all(['lead', 'admin', 'analyst'].map((role) => signedIn(app.baseUrl, `${role}@brinkwatch.test`, DEMO_PASSWORD)));
     ok(await lead.json('/api/series', 'POST', { slug, name: 'Hostile target' }), 201);
     token = (await ok(await admin.json(`/api/series/${slug}/tokens`, 'POST', { label: 'hostile' }), 201).json()).token;
     expect(token).toEqual(expect.any(String));
@@ -71,7 +69,10 @@ describe('hostile input against the started product', () => {
   test('the bad-CSV corpus through the push API: each file stored as expected or refused with a 422 and a rejected run', async () => {
     for (const [index, [file, expectation]] of corpus.entries()) {
       const target = `corpus-${index}`;
-      ok(await lead.json('/api/series', 'POST', { slug: target, name: `Corpus ${file}`, ...(expectation.timeZone ? { timeZone: expectation.timeZone } : {}) }), 201);
+      ok(
+        await lead.json('/api/series', 'POST', { slug: target, name: `Corpus ${file}`, ...(expectation.timeZone ? { timeZone: expectation.timeZone } : {}) }),
+        201,
+      );
       const query = expectation.mapping ? `?mapping=${encodeURIComponent(JSON.stringify(expectation.mapping))}` : '';
       const response = await lead.fetch(`/api/series/${target}/observations${query}`, {
         method: 'POST',
@@ -91,7 +92,10 @@ describe('hostile input against the started product', () => {
         const body = await response.json();
         expect(body.accepted, file).toBe(expectation.usable);
         expect(stored, file).toBe(expectation.usable);
-        expect(body.rejected.map((r: { line: number }) => r.line).sort((a: number, b: number) => a - b), file).toEqual(expectation.rejectedLines ?? []);
+        expect(
+          body.rejected.map((r: { line: number }) => r.line).sort((a: number, b: number) => a - b),
+          file,
+        ).toEqual(expectation.rejectedLines ?? []);
         expect(runs, file).toEqual([{ status: 'succeeded' }]);
       }
     }
@@ -112,33 +116,62 @@ describe('hostile input against the started product', () => {
       ['100,000 open brackets', () => push({ headers: { 'content-type': 'application/json' }, body: '['.repeat(100_000) }), 422],
       ['malformed JSON', () => lead.fetch('/api/series', { method: 'POST', headers: { 'content-type': 'application/json' }, body: '{"slug": "x",' }), 422],
       // Wrong content types.
-      ['series as text/plain', () => lead.fetch('/api/series', { method: 'POST', headers: { 'content-type': 'text/plain' }, body: '{"slug":"plain","name":"Plain"}' }), 415],
-      ['series as form', () => lead.fetch('/api/series', { method: 'POST', headers: { 'content-type': 'application/x-www-form-urlencoded' }, body: 'slug=form&name=Form' }), 415],
+      [
+        'series as text/plain',
+        () => lead.fetch('/api/series', { method: 'POST', headers: { 'content-type': 'text/plain' }, body: '{"slug":"plain","name":"Plain"}' }),
+        415,
+      ],
+      [
+        'series as form',
+        () => lead.fetch('/api/series', { method: 'POST', headers: { 'content-type': 'application/x-www-form-urlencoded' }, body: 'slug=form&name=Form' }),
+        415,
+      ],
       ['push as XML', () => push({ headers: { 'content-type': 'application/xml' }, body: '<points><p t="2024-01-01" v="1"/></points>' }), 415],
       ['push without content type', () => push({ body: new Blob(['time,value\n2024-01-01T00:00:00Z,1\n']) }), 415],
       ['upload as JSON', () => lead.json(`/api/series/${slug}/uploads`, 'POST', [{ time: '2024-01-01T00:00:00Z', value: 1 }]), 415],
       // Path traversal in slugs, plain and encoded; the token's own series only.
       ['slug ../', () => lead.json('/api/series', 'POST', { slug: '../../etc', name: 'Traversal' }), 422],
       ['slug with encoded separators', () => lead.json('/api/series', 'POST', { slug: '..%2f..%2fetc', name: 'Traversal' }), 422],
-      ['encoded ../ in a push path', () => push({ headers: { 'content-type': 'text/csv' }, body: 'time,value\n2024-01-01T00:00:00Z,1\n' }, '..%2F..%2Fhostile-target'), [403, 404]],
+      [
+        'encoded ../ in a push path',
+        () => push({ headers: { 'content-type': 'text/csv' }, body: 'time,value\n2024-01-01T00:00:00Z,1\n' }, '..%2F..%2Fhostile-target'),
+        [403, 404],
+      ],
       ['double-encoded ../ in a read path', () => lead.fetch('/api/series/%252e%252e%252fhostile-target/settings-history'), 404],
       ['dot-dot segment in a read path', () => lead.fetch('/api/series/%2e%2e/settings-history'), 404],
       ['token on another series', () => push({ headers: { 'content-type': 'text/csv' }, body: 'time,value\n2024-01-01T00:00:00Z,1\n' }, 'corpus-0'), 403],
-      ['forged token', () => fetch(`${app.baseUrl}/api/series/${slug}/observations`, { method: 'POST', headers: { authorization: `Bearer ${token}x`, 'content-type': 'text/csv' }, body: 'time,value\n2024-01-01T00:00:00Z,1\n' }), 401],
+      [
+        'forged token',
+        () =>
+          fetch(`${app.baseUrl}/api/series/${slug}/observations`, {
+            method: 'POST',
+            headers: { authorization: `Bearer ${token}x`, 'content-type': 'text/csv' },
+            body: 'time,value\n2024-01-01T00:00:00Z,1\n',
+          }),
+        401,
+      ],
       // SQL in query parameters and ids: validated, never spliced.
       ['SQL in a queue filter', () => lead.fetch(`/api/alerts?queue=${encodeURIComponent("all' OR '1'='1")}`), 422],
       ['SQL in an id', () => analyst.json(`/api/alerts/${encodeURIComponent('1 OR 1=1')}/actions`, 'POST', { action: 'acknowledge', version: 1 }), [404, 422]],
     ];
     for (const [name, send, status] of cases) {
       const response = await send();
-      expect([status].flat(), `${name} answered ${response.status}: ${await response.clone().text().then((t) => t.slice(0, 300))}`).toContain(response.status);
+      expect(
+        [status].flat(),
+        `${name} answered ${response.status}: ${await response
+          .clone()
+          .text()
+          .then((t) => t.slice(0, 300))}`,
+      ).toContain(response.status);
       if (response.headers.get('content-type')?.includes('json')) await errorBody(response);
       else await response.arrayBuffer();
     }
     expect(await raw.tableCounts(BOOKKEEPING)).toEqual(before);
     // Rejected pushes are reported as runs; none stored anything.
     const runs = await raw.all<{ status: string; accepted: number }>(
-      "SELECT status, accepted FROM ingest_runs WHERE series_id = (SELECT id FROM series WHERE slug = ?)", [slug]);
+      'SELECT status, accepted FROM ingest_runs WHERE series_id = (SELECT id FROM series WHERE slug = ?)',
+      [slug],
+    );
     for (const run of runs) expect(run.accepted).toBe(0);
     expect(fs.existsSync(path.join(path.dirname(app.dataDir), 'etc'))).toBe(false);
     expect(app.process.exitCode).toBeNull();
@@ -181,7 +214,10 @@ describe('hostile input against the started product', () => {
 
   test('SQL-looking and script text in names and notes is stored verbatim, returned as JSON text, and escaped on pages', async () => {
     const before = await raw.tableCounts(BOOKKEEPING);
-    const created = ok(await lead.json('/api/series', 'POST', { slug: 'odd-names', name: SCRIPT_TEXT, site: SQL_TEXT, description: `${SQL_TEXT}\n${SCRIPT_TEXT}` }), 201);
+    const created = ok(
+      await lead.json('/api/series', 'POST', { slug: 'odd-names', name: SCRIPT_TEXT, site: SQL_TEXT, description: `${SQL_TEXT}\n${SCRIPT_TEXT}` }),
+      201,
+    );
     const record = await created.json();
     expect(record.name).toBe(SCRIPT_TEXT);
     expect(record.site).toBe(SQL_TEXT);
@@ -205,11 +241,16 @@ describe('hostile input against the started product', () => {
 
     // Exactly the rows asked for were added; every table the SQL text names is intact.
     const after = await raw.tableCounts(BOOKKEEPING);
-    const grew = Object.fromEntries(Object.keys(after).filter((t) => after[t] !== before[t]).map((t) => [t, after[t] - before[t]]));
+    const grew = Object.fromEntries(
+      Object.keys(after)
+        .filter((t) => after[t] !== before[t])
+        .map((t) => [t, after[t] - before[t]]),
+    );
     // The series names a site not known yet, which creates it (its name kept verbatim as well).
     expect(grew).toEqual(expect.objectContaining({ series: 1, sites: 1, notes: 1, alerts: 1, alert_rules: 1, analysis_snapshots: 1 }));
     expect(await raw.get('SELECT name FROM sites WHERE name = ?', [SQL_TEXT])).toEqual({ name: SQL_TEXT });
-    for (const table of Object.keys(grew)) expect(['series', 'sites', 'notes', 'alerts', 'alert_rules', 'analysis_snapshots', 'settings_changes', 'note_revisions']).toContain(table);
+    for (const table of Object.keys(grew))
+      expect(['series', 'sites', 'notes', 'alerts', 'alert_rules', 'analysis_snapshots', 'settings_changes', 'note_revisions']).toContain(table);
     expect(await raw.count('users')).toBe(4);
 
     // HTML: the text appears escaped; no element the text tried to inject exists.

@@ -132,7 +132,13 @@ function discoverRoutes(): Endpoint[] {
       if (entry.isDirectory()) walk(full);
       else if (/^route\.(ts|tsx|js|mjs)$/.test(entry.name)) {
         const source = fs.readFileSync(full, 'utf8');
-        const pattern = '/' + path.relative(path.join(ROOT, 'app'), dir).split(path.sep).filter((s) => !/^\(.*\)$/.test(s)).join('/');
+        const pattern =
+          '/' +
+          path
+            .relative(path.join(ROOT, 'app'), dir)
+            .split(path.sep)
+            .filter((s) => !/^\(.*\)$/.test(s))
+            .join('/');
         const methods = new Set<string>();
         for (const m of source.matchAll(/export\s+(?:const|let|async\s+function|function)\s+([A-Z]+)\b/g)) methods.add(m[1]);
         for (const block of source.matchAll(/export\s*\{([^}]*)\}/g)) {

@@ -62,10 +62,13 @@ export async function waitFor<T>(what: string, probe: () => Promise<T | null | u
 export function sinkMessages(app: RunningApp): { file: string; messageId: string | null }[] {
   const dir = path.join(app.dataDir, 'mailbox');
   if (!fs.existsSync(dir)) return [];
-  return fs.readdirSync(dir).filter((f) => f.endsWith('.eml')).map((file) => {
-    const raw = fs.readFileSync(path.join(dir, file), 'utf8');
-    return { file, messageId: /^message-id:\s*(\S+)/im.exec(raw)?.[1] ?? null };
-  });
+  return fs
+    .readdirSync(dir)
+    .filter((f) => f.endsWith('.eml'))
+    .map((file) => {
+      const raw = fs.readFileSync(path.join(dir, file), 'utf8');
+      return { file, messageId: /^message-id:\s*(\S+)/im.exec(raw)?.[1] ?? null };
+    });
 }
 
 /** A daily CSV of `rows` points from `startDay`, with a variance that grows along the record. */

@@ -41,9 +41,7 @@ export class RawDb {
 
   /** Row count of every table, for "nothing stored changed" checks. */
   async tableCounts(skip: string[] = []): Promise<Record<string, number>> {
-    const tables = await this.all<{ name: string }>(
-      "SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%' ORDER BY name",
-    );
+    const tables = await this.all<{ name: string }>("SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%' ORDER BY name");
     const counts: Record<string, number> = {};
     for (const { name } of tables) if (!skip.includes(name)) counts[name] = await this.count(name);
     return counts;

@@ -18,7 +18,9 @@ const NOW = Date.UTC(2026, 1, 10);
 
 async function at(table: string, id: number, instant: number): Promise<void> {
   const sequelize = await db();
-  await sequelize.query(`UPDATE ${table} SET created_at = :t WHERE id = :id`, { replacements: { t: new Date(instant).toISOString().replace('T', ' ').replace('Z', ' +00:00'), id } });
+  await sequelize.query(`UPDATE ${table} SET created_at = :t WHERE id = :id`, {
+    replacements: { t: new Date(instant).toISOString().replace('T', ' ').replace('Z', ' +00:00'), id },
+  });
 }
 
 async function days(seriesId: number, first: number, last: number): Promise<void> {
@@ -67,8 +69,27 @@ describe('period report on a small seeded network', () => {
     const snapN = await makeSnapshot(north, { tau: 0.5, surrogateP: 0.01 });
     const snapS = await makeSnapshot(south, { tau: 0.5, surrogateP: 0.01 });
 
-    const alert = async (seriesId: number, snapshotId: number, opened: number, kind: 'slowing-down' | 'abrupt-shift' = 'slowing-down', shiftTime: number | null = null) => {
-      const a = await Alert.create({ seriesId, ruleId: null, kind, shiftTime, state: 'new', severity: 'warning', assigneeId: null, firstSnapshotId: snapshotId, latestSnapshotId: snapshotId, peakTau: null, dismissReason: null, closedAt: null });
+    const alert = async (
+      seriesId: number,
+      snapshotId: number,
+      opened: number,
+      kind: 'slowing-down' | 'abrupt-shift' = 'slowing-down',
+      shiftTime: number | null = null,
+    ) => {
+      const a = await Alert.create({
+        seriesId,
+        ruleId: null,
+        kind,
+        shiftTime,
+        state: 'new',
+        severity: 'warning',
+        assigneeId: null,
+        firstSnapshotId: snapshotId,
+        latestSnapshotId: snapshotId,
+        peakTau: null,
+        dismissReason: null,
+        closedAt: null,
+      });
       await at('alerts', a.id, opened);
       return a;
     };
@@ -104,24 +125,72 @@ describe('period report on a small seeded network', () => {
     const n = report.series.find((s) => s.slug === 'north-oxygen')!;
     expect(n).toMatchObject({ received: 26, expected: 31, lateStretches: 1, lateHours: 72, alertsOpened: 3, openAtEnd: 1 });
     expect(n.completeness).toBeCloseTo(26 / 31, 12);
-    expect(report.series.find((s) => s.slug === 'south-level')).toMatchObject({ received: 31, expected: 31, completeness: 1, lateStretches: 0, alertsOpened: 1, openAtEnd: 0 });
+    expect(report.series.find((s) => s.slug === 'south-level')).toMatchObject({
+      received: 31,
+      expected: 31,
+      completeness: 1,
+      lateStretches: 0,
+      alertsOpened: 1,
+      openAtEnd: 0,
+    });
     expect(report.completeness).toEqual({ received: 57, expected: 62, share: 57 / 62 });
-    expect(report.late).toEqual([{ seriesSlug: 'north-oxygen', seriesName: 'Series north-oxygen', lastDataAt: new Date(jan(10)).toISOString(), backAt: new Date(jan(16)).toISOString(), silentHours: 144, alertId: null }]);
+    expect(report.late).toEqual([
+      {
+        seriesSlug: 'north-oxygen',
+        seriesName: 'Series north-oxygen',
+        lastDataAt: new Date(jan(10)).toISOString(),
+        backAt: new Date(jan(16)).toISOString(),
+        silentHours: 144,
+        alertId: null,
+      },
+    ]);
 
     expect(report.alerts.map((a) => a.id)).toEqual([b1.id, a1.id, a2.id, a3.id]);
-    expect(report.alerts.find((a) => a.id === a1.id)).toMatchObject({ decision: 'dismissed', decidedBy: 'Ana Lyst', reason: 'statistical-fluke', note: 'one stormy week', hoursToDecision: 30 });
+    expect(report.alerts.find((a) => a.id === a1.id)).toMatchObject({
+      decision: 'dismissed',
+      decidedBy: 'Ana Lyst',
+      reason: 'statistical-fluke',
+      note: 'one stormy week',
+      hoursToDecision: 30,
+    });
     expect(report.alerts.find((a) => a.id === a2.id)).toMatchObject({ decision: 'confirmed', decidedBy: 'Lee Head', hoursToDecision: 48 });
     expect(report.alerts.find((a) => a.id === a3.id)).toMatchObject({ decision: null, hoursToDecision: null, kind: 'abrupt-shift' });
     expect(report.decisions).toEqual({ opened: 4, decided: 3, undecided: 1, closedBySelf: 0, medianHoursToDecision: 30, meanHoursToDecision: 28 });
     expect(report.shifts).toEqual([{ alertId: a3.id, seriesSlug: 'north-oxygen', at: new Date(jan(24)).toISOString(), size: null, stateNow: 'new' }]);
 
     expect(report.changes).toEqual([
-      { at: new Date(jan(12)).toISOString(), who: 'Lee Head', seriesSlug: 'north-oxygen', what: 'analysis settings changed', detail: 'window 0.5 → 0.4', why: null },
-      { at: new Date(jan(15)).toISOString(), who: 'Lee Head', seriesSlug: 'north-oxygen', what: `rule threshold set from a backtest (#${rule.id})`, detail: 'threshold 0.3 → 0.4', why: 'chosen from backtest #7' },
+      {
+        at: new Date(jan(12)).toISOString(),
+        who: 'Lee Head',
+        seriesSlug: 'north-oxygen',
+        what: 'analysis settings changed',
+        detail: 'window 0.5 → 0.4',
+        why: null,
+      },
+      {
+        at: new Date(jan(15)).toISOString(),
+        who: 'Lee Head',
+        seriesSlug: 'north-oxygen',
+        what: `rule threshold set from a backtest (#${rule.id})`,
+        detail: 'threshold 0.3 → 0.4',
+        why: 'chosen from backtest #7',
+      },
     ]);
     // The rule is active and not yet calibrated: its false-alarm rate is unknown, not zero.
-    expect(report.calibrations).toEqual([{ ruleId: rule.id, seriesSlug: 'north-oxygen', indicator: expect.any(String), severity: rule.severity, falseAlarmsPerYear: null, interval: null, calibratedAt: null }]);
-    expect(report.marks).toEqual([{ seriesSlug: 'north-oxygen', kind: 'maintenance', at: new Date(jan(14)).toISOString(), note: 'probe swapped', by: 'Lee Head' }]);
+    expect(report.calibrations).toEqual([
+      {
+        ruleId: rule.id,
+        seriesSlug: 'north-oxygen',
+        indicator: expect.any(String),
+        severity: rule.severity,
+        falseAlarmsPerYear: null,
+        interval: null,
+        calibratedAt: null,
+      },
+    ]);
+    expect(report.marks).toEqual([
+      { seriesSlug: 'north-oxygen', kind: 'maintenance', at: new Date(jan(14)).toISOString(), note: 'probe swapped', by: 'Lee Head' },
+    ]);
 
     // One site, by name or slug: North Basin alone, its own decision times (30 h and 48 h).
     for (const site of ['North Basin', 'north-basin']) {
@@ -135,11 +204,35 @@ describe('period report on a small seeded network', () => {
     const csv = periodReportCsv(report, 'alerts');
     const parsed = Papa.parse<Record<string, string>>(csv.trim(), { header: true });
     expect(parsed.errors).toEqual([]);
-    expect(parsed.meta.fields).toEqual(['id', 'kind', 'seriesSlug', 'seriesName', 'site', 'severity', 'subject', 'openedAt', 'stateNow', 'decision', 'decidedAt', 'decidedBy', 'reason', 'note', 'hoursToDecision']);
+    expect(parsed.meta.fields).toEqual([
+      'id',
+      'kind',
+      'seriesSlug',
+      'seriesName',
+      'site',
+      'severity',
+      'subject',
+      'openedAt',
+      'stateNow',
+      'decision',
+      'decidedAt',
+      'decidedBy',
+      'reason',
+      'note',
+      'hoursToDecision',
+    ]);
     expect(parsed.data).toHaveLength(4);
-    expect(parsed.data[1]).toMatchObject({ id: String(a1.id), reason: 'statistical-fluke', note: 'one stormy week', hoursToDecision: '30', decidedBy: 'Ana Lyst' });
+    expect(parsed.data[1]).toMatchObject({
+      id: String(a1.id),
+      reason: 'statistical-fluke',
+      note: 'one stormy week',
+      hoursToDecision: '30',
+      decidedBy: 'Ana Lyst',
+    });
     expect(parsed.data[3].decision).toBe('');
-    expect(periodReportCsv(await buildPeriodReport({ from: '2020-01-01', to: '2020-01-31' }, null, NOW), 'alerts').split('\r\n')[0]).toBe(parsed.meta.fields!.join(','));
+    expect(periodReportCsv(await buildPeriodReport({ from: '2020-01-01', to: '2020-01-31' }, null, NOW), 'alerts').split('\r\n')[0]).toBe(
+      parsed.meta.fields!.join(','),
+    );
   });
 
   it('counts a silence that began before the period and still runs at its end', async () => {
@@ -149,7 +242,16 @@ describe('period report on a small seeded network', () => {
     const report = await buildPeriodReport(JANUARY, 'East Shore', NOW);
     // Received Jan 1–5 of 31 expected; silent from Jan 5 to the period's end (27 days), late from Jan 8 (24 days).
     expect(report.series).toMatchObject([{ slug: 'east-turbidity', received: 5, expected: 31, lateStretches: 1, lateHours: 576 }]);
-    expect(report.late).toEqual([{ seriesSlug: 'east-turbidity', seriesName: 'Series east-turbidity', lastDataAt: new Date(jan(5)).toISOString(), backAt: null, silentHours: 648, alertId: null }]);
+    expect(report.late).toEqual([
+      {
+        seriesSlug: 'east-turbidity',
+        seriesName: 'Series east-turbidity',
+        lastDataAt: new Date(jan(5)).toISOString(),
+        backAt: null,
+        silentHours: 648,
+        alertId: null,
+      },
+    ]);
     // February: the silence began in January and still runs at the report's moment (NOW, 10 February).
     const february = await buildPeriodReport({ from: '2026-02-01', to: '2026-02-28' }, 'East Shore', NOW);
     // Up to now: 9 daily values expected (1–10 February), none received.

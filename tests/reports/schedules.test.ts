@@ -41,7 +41,10 @@ describe('scheduled period reports', () => {
     const lead = await makeUser('lead');
     const series = await makeSeries('reservoir-chl');
     await Observation.bulkCreate(Array.from({ length: 400 }, (_, i) => ({ seriesId: series.id, t: Date.UTC(2026, 0, 1) + i * DAY, value: i })));
-    const schedule = await createSchedule({ name: 'Water authority', site: '', cadence: 'quarterly', recipients: ['funder@partner.example', lead.email], active: true }, lead);
+    const schedule = await createSchedule(
+      { name: 'Water authority', site: '', cadence: 'quarterly', recipients: ['funder@partner.example', lead.email], active: true },
+      lead,
+    );
     const made = Date.parse(schedule.createdAt);
 
     // The quarter the schedule was made in has not ended: nothing yet.

@@ -19,12 +19,26 @@ const DAY = 86_400_000;
 
 describe('a backtest of a draft (the rule editor’s unsaved changes)', () => {
   it('replays the draft’s fields while the stored rule stays as saved', async () => {
-    const series = await createSeries({ slug: 'draft-control', name: 'Draft control', intervalMs: DAY, settings: { detrend: 'linear', window: 0.25, surrogates: 19 } }, null);
+    const series = await createSeries(
+      { slug: 'draft-control', name: 'Draft control', intervalMs: DAY, settings: { detrend: 'linear', window: 0.25, surrogates: 19 } },
+      null,
+    );
     // a stationary AR(1) record of 200 days (Box et al. 2015, Sec. 3.2)
     const x = simulateAr1({ n: 200, phi: 0.5, sigma: 1, seed: 3 });
     const csv = `time,value\n${Array.from(x, (v, i) => `${new Date(Date.UTC(2021, 0, 1) + i * DAY).toISOString()},${v}`).join('\n')}\n`;
     expect((await ingestObservations({ series, source: 'push', csv })).status).toBe('succeeded');
-    const rule = await AlertRule.create({ seriesId: series.id, indicator: 'ac1', minTau: 0.3, maxSurrogateP: null, maxKendallP: null, levelThreshold: null, persistence: 1, severity: 'watch', fdrLevel: null, createdBy: null });
+    const rule = await AlertRule.create({
+      seriesId: series.id,
+      indicator: 'ac1',
+      minTau: 0.3,
+      maxSurrogateP: null,
+      maxKendallP: null,
+      levelThreshold: null,
+      persistence: 1,
+      severity: 'watch',
+      fdrLevel: null,
+      createdBy: null,
+    });
 
     const request = backtestRequestSchema.parse({ every: 5, draft: { indicator: 'variance', minTau: 0.5, persistence: 2 } });
     const lead = await User.create({ email: 'lead@example.test', name: 'Lead', role: 'lead', passwordHash: null, active: true });
@@ -33,7 +47,11 @@ describe('a backtest of a draft (the rule editor’s unsaved changes)', () => {
     expect(await runNextBacktest({ threads: 1 })).toBe(job.id);
     const done = (await BacktestJob.findByPk(job.id))!;
     expect(done.error).toBeNull();
-    expect((done.result as { rule: { indicator: string; minTau: number; persistence: number } }).rule).toMatchObject({ indicator: 'variance', minTau: 0.5, persistence: 2 });
+    expect((done.result as { rule: { indicator: string; minTau: number; persistence: number } }).rule).toMatchObject({
+      indicator: 'variance',
+      minTau: 0.5,
+      persistence: 2,
+    });
     expect((await AlertRule.findByPk(rule.id))!.indicator).toBe('ac1');
   }, 120_000);
 

@@ -3,11 +3,19 @@ import { evidenceRows, reportIndicators } from '@/lib/series/evidence';
 import type { RuleStatus } from '@/lib/alerts/rules';
 
 const status = (id: number, indicator: string, standing: RuleStatus['standing'], active = true) =>
-  ({ rule: { id, indicator, active, severity: 'watch', minTau: 0.3, direction: 'rising', maxSurrogateP: 0.05 }, standing, latest: null }) as unknown as RuleStatus;
+  ({
+    rule: { id, indicator, active, severity: 'watch', minTau: 0.3, direction: 'rising', maxSurrogateP: 0.05 },
+    standing,
+    latest: null,
+  }) as unknown as RuleStatus;
 
 const view = {
   indicators: ['variance', 'ac1', 'recovery'] as const,
-  kendall: { variance: { tau: 0.2, p: 0.1, direction: 'rising' as const }, ac1: { tau: 0.6, p: 0.01, direction: 'rising' as const }, recovery: { tau: -0.6, p: 0.01, direction: 'falling' as const } },
+  kendall: {
+    variance: { tau: 0.2, p: 0.1, direction: 'rising' as const },
+    ac1: { tau: 0.6, p: 0.01, direction: 'rising' as const },
+    recovery: { tau: -0.6, p: 0.01, direction: 'falling' as const },
+  },
   significance: { ac1: { p: 0.02, count: 99, method: 'ar1', direction: 'rising' as const, bins: [] } },
 };
 
@@ -16,7 +24,10 @@ describe('the evidence table', () => {
     const rows = evidenceRows({ ...view, indicators: [...view.indicators] }, [status(4, 'ac1', 'met'), status(5, 'ac1', 'not-met', false)]);
     expect(rows.map((r) => r.indicator)).toEqual(['ac1', 'variance', 'recovery']);
     expect(rows[0]).toMatchObject({ tau: 0.6, surrogateP: 0.02, surrogates: 99, direction: 'rising', computed: true });
-    expect(rows[0].rules.map((r) => [r.id, r.standing, r.active])).toEqual([[4, 'met', true], [5, 'not-met', false]]);
+    expect(rows[0].rules.map((r) => [r.id, r.standing, r.active])).toEqual([
+      [4, 'met', true],
+      [5, 'not-met', false],
+    ]);
     expect(rows[2]).toMatchObject({ direction: 'falling', surrogateP: null, surrogates: 0, rules: [] });
   });
 
@@ -34,7 +45,13 @@ describe('the evidence table', () => {
 describe('what the one-page report charts', () => {
   const computed = ['variance', 'sd', 'ac1', 'recovery'] as const;
   it('the indicators the active rules watch, in the order the rules were written', () => {
-    expect(reportIndicators(computed, [{ indicator: 'recovery', active: true }, { indicator: 'ac1', active: true }, { indicator: 'sd', active: false }])).toEqual(['recovery', 'ac1']);
+    expect(
+      reportIndicators(computed, [
+        { indicator: 'recovery', active: true },
+        { indicator: 'ac1', active: true },
+        { indicator: 'sd', active: false },
+      ]),
+    ).toEqual(['recovery', 'ac1']);
   });
   it('paused rules when none is active; lag-1 autocorrelation and variance when there is no rule (common practice)', () => {
     expect(reportIndicators(computed, [{ indicator: 'sd', active: false }])).toEqual(['sd']);

@@ -24,7 +24,16 @@ const summary = {
   significance: { ac1: { p: 0.02, count: 99, method: 'ar1', direction: 'rising' as const, nullSd: 0.1 } },
   latest: { ac1: { time: 0, value: 0.85 } },
 };
-const ac1Rule: PreviewRule = { indicator: 'ac1', direction: 'rising', minTau: 0.3, maxSurrogateP: 0.05, levelThreshold: null, levelDirection: 'above', fdrLevel: null, persistence: 1 };
+const ac1Rule: PreviewRule = {
+  indicator: 'ac1',
+  direction: 'rising',
+  minTau: 0.3,
+  maxSurrogateP: 0.05,
+  levelThreshold: null,
+  levelDirection: 'above',
+  fdrLevel: null,
+  persistence: 1,
+};
 
 describe('previewRule (pure)', () => {
   it('agrees with judgeRule, the live judgement, on every template and on edited thresholds', () => {
@@ -67,7 +76,11 @@ describe('previewRule (pure)', () => {
 describe('previewDraftRule (on a stored series)', () => {
   it('judges the draft on the latest snapshot without saving anything', async () => {
     const series = await makeSeries();
-    expect(await previewDraftRule(series.id, ruleCreateSchema.parse({ indicator: 'ac1', minTau: 0.3 }), null)).toEqual({ snapshot: null, preview: null, refused: {} });
+    expect(await previewDraftRule(series.id, ruleCreateSchema.parse({ indicator: 'ac1', minTau: 0.3 }), null)).toEqual({
+      snapshot: null,
+      preview: null,
+      refused: {},
+    });
     await makeSnapshot(series, { tau: 0.1, surrogateP: 0.4 });
     const latest = await makeSnapshot(series, { tau: 0.7, surrogateP: 0.01 });
     const { snapshot, preview } = await previewDraftRule(series.id, ruleCreateSchema.parse({ indicator: 'ac1', minTau: 0.3, maxSurrogateP: 0.05 }), null);

@@ -29,7 +29,8 @@ afterAll(async () => {
   await closeDatabase();
 });
 
-const watchersOf = async (session: Session) => (await (await session.fetch(`/api/series/${SLUG}/watchers`)).json()).items as { userId: number; mode: string; role: string }[];
+const watchersOf = async (session: Session) =>
+  (await (await session.fetch(`/api/series/${SLUG}/watchers`)).json()).items as { userId: number; mode: string; role: string }[];
 
 describe('who hears (GET/PUT /api/series/{slug}/watchers)', () => {
   it('a lead sees every active user, each not notified until someone chooses', async () => {

@@ -71,7 +71,12 @@ describe('service notices from the health report', () => {
     expect(healthNotices({ ...healthy, mail: { ...healthy.mail, ok: false, failed: 2 } }, NOW).map((n) => n.text)).toEqual([
       '2 messages could not be delivered after every retry; an admin can send them again under Admin › Outbox and mailbox.',
     ]);
-    const down = { ok: false, db: { ok: false, error: 'x' }, scheduler: { ok: false, lastBeatAt: null, holder: null }, mail: { ok: false, transport: 'smtp' as const, pending: 0, failed: 0 } };
+    const down = {
+      ok: false,
+      db: { ok: false, error: 'x' },
+      scheduler: { ok: false, lastBeatAt: null, holder: null },
+      mail: { ok: false, transport: 'smtp' as const, pending: 0, failed: 0 },
+    };
     expect(healthNotices(down, NOW).map((n) => n.key)).toEqual(['db']);
   });
 });
@@ -98,8 +103,21 @@ describe('time-axis ticks on calendar boundaries', () => {
   it('puts weekly ticks on Mondays (ISO 8601 weeks) and gives deep-time records round years', () => {
     // 2024-01-01 was a Monday (ISO week 2024-W01-1); fortnights are counted from Monday 1970-01-05, so every
     // second Monday from 2024-01-08 (19,726 days later, 1,409 fortnights)
-    expect(calendarTicks(utc(2024, 1, 1), utc(2024, 1, 31), 'UTC').map((tick) => tick.label)).toEqual(['2024-01-01', '2024-01-08', '2024-01-15', '2024-01-22', '2024-01-29']);
-    expect(calendarTicks(utc(2023, 12, 1), utc(2024, 2, 20), 'UTC').map((tick) => tick.label)).toEqual(['2023-12-11', '2023-12-25', '2024-01-08', '2024-01-22', '2024-02-05', '2024-02-19']);
+    expect(calendarTicks(utc(2024, 1, 1), utc(2024, 1, 31), 'UTC').map((tick) => tick.label)).toEqual([
+      '2024-01-01',
+      '2024-01-08',
+      '2024-01-15',
+      '2024-01-22',
+      '2024-01-29',
+    ]);
+    expect(calendarTicks(utc(2023, 12, 1), utc(2024, 2, 20), 'UTC').map((tick) => tick.label)).toEqual([
+      '2023-12-11',
+      '2023-12-25',
+      '2024-01-08',
+      '2024-01-22',
+      '2024-02-05',
+      '2024-02-19',
+    ]);
     const deep = calendarTicks(-798_050 * 365.2425 * 86_400_000, utc(1950, 1, 1), 'Europe/Oslo');
     expect(deep.map((tick) => tick.label)).toEqual(['-600000', '-400000', '-200000', '0']);
   });

@@ -33,10 +33,13 @@ describe('labels of chart marks', () => {
   });
 
   it('keeps labels far apart in one row', () => {
-    const layout = placeMarkLabels([
-      { id: 'a', x: 10, text: 'first' },
-      { id: 'b', x: 300, text: 'second' },
-    ], { width: 600, charWidth: CHAR });
+    const layout = placeMarkLabels(
+      [
+        { id: 'a', x: 10, text: 'first' },
+        { id: 'b', x: 300, text: 'second' },
+      ],
+      { width: 600, charWidth: CHAR },
+    );
     expect(layout.rows).toBe(1);
     expect(layout.placed.map((p) => p.row)).toEqual([0, 0]);
   });
@@ -57,7 +60,9 @@ describe('labels of chart marks', () => {
     const next = () => (seed = (seed * 16807) % 2147483647) / 2147483647;
     for (let trial = 0; trial < 200; trial++) {
       const labels: MarkLabel[] = Array.from({ length: 1 + Math.floor(next() * 8) }, (_, i) => ({
-        id: `l${i}`, x: Math.round(next() * 700), text: 'x'.repeat(3 + Math.floor(next() * 20)),
+        id: `l${i}`,
+        x: Math.round(next() * 700),
+        text: 'x'.repeat(3 + Math.floor(next() * 20)),
       }));
       const layout = placeMarkLabels(labels, { width: 700, charWidth: CHAR, maxRows: 99, gap: 0 });
       expect(collide(layout, 0)).toBe(false);

@@ -60,16 +60,60 @@ describe('overview', () => {
     const snapshots = new Map<number, AnalysisSnapshot>();
     for (const s of [alerting, warning, quiet]) snapshots.set(s.id, await refreshSeriesAnalysis(s, { parallel: false }));
     const rule = async (seriesId: number, severity: 'watch' | 'warning', passed: boolean) => {
-      const r = await AlertRule.create({ seriesId, indicator: 'ac1', minTau: 0.3, maxSurrogateP: null, maxKendallP: null, levelThreshold: null, severity, fdrLevel: null, createdBy: null });
-      await RuleEvaluation.create({ ruleId: r.id, seriesId, snapshotId: snapshots.get(seriesId)!.id, tau: 0.5, kendallP: 0.01, surrogateP: null, qValue: null, level: null, passed, streak: 1, alertId: null });
+      const r = await AlertRule.create({
+        seriesId,
+        indicator: 'ac1',
+        minTau: 0.3,
+        maxSurrogateP: null,
+        maxKendallP: null,
+        levelThreshold: null,
+        severity,
+        fdrLevel: null,
+        createdBy: null,
+      });
+      await RuleEvaluation.create({
+        ruleId: r.id,
+        seriesId,
+        snapshotId: snapshots.get(seriesId)!.id,
+        tau: 0.5,
+        kendallP: 0.01,
+        surrogateP: null,
+        qValue: null,
+        level: null,
+        passed,
+        streak: 1,
+        alertId: null,
+      });
       return r;
     };
     const alertRule = await rule(alerting.id, 'watch', true);
     await rule(warning.id, 'warning', true);
     await rule(quiet.id, 'warning', false);
     const snap = snapshots.get(alerting.id)!.id;
-    await Alert.create({ seriesId: alerting.id, ruleId: alertRule.id, state: 'escalated', severity: 'watch', assigneeId: analyst.id, firstSnapshotId: snap, latestSnapshotId: snap, peakTau: 0.5, dismissReason: null, closedAt: null });
-    await Alert.create({ seriesId: alerting.id, ruleId: alertRule.id, state: 'dismissed', severity: 'watch', assigneeId: null, firstSnapshotId: snap, latestSnapshotId: snap, peakTau: 0.5, dismissReason: 'statistical-fluke', closedAt: new Date() });
+    await Alert.create({
+      seriesId: alerting.id,
+      ruleId: alertRule.id,
+      state: 'escalated',
+      severity: 'watch',
+      assigneeId: analyst.id,
+      firstSnapshotId: snap,
+      latestSnapshotId: snap,
+      peakTau: 0.5,
+      dismissReason: null,
+      closedAt: null,
+    });
+    await Alert.create({
+      seriesId: alerting.id,
+      ruleId: alertRule.id,
+      state: 'dismissed',
+      severity: 'watch',
+      assigneeId: null,
+      firstSnapshotId: snap,
+      latestSnapshotId: snap,
+      peakTau: 0.5,
+      dismissReason: 'statistical-fluke',
+      closedAt: new Date(),
+    });
 
     const overview = await fetchSeriesOverview(analyst.id, NOW);
     const bySlug = Object.fromEntries(overview.rows.map((r) => [r.slug, r]));
@@ -82,7 +126,17 @@ describe('overview', () => {
     // series run surrogates by default (lib/schemas/series.ts), so the p shown is the surrogate p
     const summary = snapshots.get(quiet.id)!.summary as { kendall: Record<string, { tau: number }> };
     // ac1 is tested rising (README, "Indicator definitions"), so its tau is seen as it is.
-    expect(bySlug['ov-quiet'].indicators).toEqual([{ name: 'ac1', tau: summary.kendall.ac1.tau, direction: 'rising', orientedTau: summary.kendall.ac1.tau, p: expect.any(Number), pKind: 'surrogate', q: null }]);
+    expect(bySlug['ov-quiet'].indicators).toEqual([
+      {
+        name: 'ac1',
+        tau: summary.kendall.ac1.tau,
+        direction: 'rising',
+        orientedTau: summary.kendall.ac1.tau,
+        p: expect.any(Number),
+        pKind: 'surrogate',
+        q: null,
+      },
+    ]);
     expect(bySlug['ov-quiet'].spark?.indicator).toBe('ac1');
     expect(bySlug['ov-quiet'].spark?.points).toBe(60);
     // one path command per point the rolling window has filled (the first window's points have no indicator yet)
@@ -141,8 +195,29 @@ describe('analysis views and exports', () => {
     expect((await fetchWorkbench('view-saved')).view).toEqual(fromCurves);
     // the alert page draws its evidence from the same saved views, while the API still answers the full curves
     const later = await refreshSeriesAnalysis(series, { parallel: false });
-    const rule = await AlertRule.create({ seriesId: series.id, indicator: 'ac1', minTau: 0.3, maxSurrogateP: null, maxKendallP: null, levelThreshold: null, severity: 'watch', fdrLevel: null, createdBy: null });
-    const alert = await Alert.create({ seriesId: series.id, ruleId: rule.id, state: 'new', severity: 'watch', assigneeId: null, firstSnapshotId: id, latestSnapshotId: later.id, peakTau: 0.5, dismissReason: null, closedAt: null });
+    const rule = await AlertRule.create({
+      seriesId: series.id,
+      indicator: 'ac1',
+      minTau: 0.3,
+      maxSurrogateP: null,
+      maxKendallP: null,
+      levelThreshold: null,
+      severity: 'watch',
+      fdrLevel: null,
+      createdBy: null,
+    });
+    const alert = await Alert.create({
+      seriesId: series.id,
+      ruleId: rule.id,
+      state: 'new',
+      severity: 'watch',
+      assigneeId: null,
+      firstSnapshotId: id,
+      latestSnapshotId: later.id,
+      peakTau: 0.5,
+      dismissReason: null,
+      closedAt: null,
+    });
     const page = await fetchAlertPage(alert.id, { id: analyst.id, email: analyst.email, name: analyst.name, role: 'analyst' });
     expect(page.firstView).toEqual(fromCurves);
     expect(page.latestView).toEqual((await AnalysisSnapshot.findByPk(later.id))!.chartView);
@@ -156,7 +231,16 @@ describe('analysis views and exports', () => {
 
   it('keeps every k-th point and the last one when thinning, and bins every surrogate tau once', () => {
     const n = 4999;
-    const curves = { stride: 1, time: Array.from({ length: n }, (_, i) => i), value: [], trend: [], residual: [], indicators: { ac1: Array.from({ length: n }, (_, i) => i) }, surrogateTaus: {}, sensitivity: null };
+    const curves = {
+      stride: 1,
+      time: Array.from({ length: n }, (_, i) => i),
+      value: [],
+      trend: [],
+      residual: [],
+      indicators: { ac1: Array.from({ length: n }, (_, i) => i) },
+      surrogateTaus: {},
+      sensitivity: null,
+    };
     const thin = thinCurves({ ...curves, value: curves.time, trend: curves.time, residual: curves.time }, 2000);
     expect(thin.stride).toBe(3);
     expect(thin.time[1]).toBe(3);
@@ -222,7 +306,9 @@ describe('account and audit', () => {
   const actor = () => ({ id: analyst.id, email: analyst.email, name: analyst.name, role: analyst.role });
 
   it('changes a password only with the current one, and audits both changes', async () => {
-    await expect(changePassword(actor(), { currentPassword: 'wrong-password-000', newPassword: 'second-password-456' })).rejects.toBeInstanceOf(UnprocessableError);
+    await expect(changePassword(actor(), { currentPassword: 'wrong-password-000', newPassword: 'second-password-456' })).rejects.toBeInstanceOf(
+      UnprocessableError,
+    );
     await changePassword(actor(), { currentPassword: 'first-password-123', newPassword: 'second-password-456' });
     await analyst.reload();
     expect(await verifyPassword('second-password-456', analyst.passwordHash)).toBe(true);

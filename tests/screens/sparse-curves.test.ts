@@ -21,7 +21,13 @@ describe('charts of indicators computed at a stride', () => {
     const n = 20_000;
     const value = simulateAr1({ n, phi: 0.5, sigma: 1, mean: 0, seed: 9 });
     const time = Float64Array.from({ length: n }, (_, i) => i);
-    const settings = analysisSettingsSchema.parse({ indicators: ['variance', 'spectral-ratio'], window: 0.5, detrend: 'linear', shiftDetection: 'off', maxEvaluatedWindows: 50 });
+    const settings = analysisSettingsSchema.parse({
+      indicators: ['variance', 'spectral-ratio'],
+      window: 0.5,
+      detrend: 'linear',
+      shiftDetection: 'off',
+      maxEvaluatedWindows: 50,
+    });
     const result = await runAnalysis({ time, value: Float64Array.from(value), timeKind: 'numeric' }, settings);
     expect(result.evaluatedEvery['spectral-ratio']).toBeGreaterThan(1);
     const evaluated = Array.from(result.indicators['spectral-ratio']!).filter((v) => v !== null && Number.isFinite(v)).length;

@@ -8,7 +8,7 @@ import { Pager, pageCount } from '@/components/ui/Pager';
 import { TimeChart } from '@/components/charts/TimeChart';
 
 describe('shared UI parts (rendered on the server)', () => {
-  it('ties a field error to its control without putting it into the control\'s name', () => {
+  it("ties a field error to its control without putting it into the control's name", () => {
     // WAI-ARIA 1.2: aria-describedby names the description, aria-invalid marks the value as not accepted; the
     // label's own words stay the accessible name, so tests and screen readers find the field by them alone
     const html = renderToStaticMarkup(h(Field, { label: 'Current password', error: 'Wrong password.', children: h('input', { className: CONTROL }) }));
@@ -21,15 +21,22 @@ describe('shared UI parts (rendered on the server)', () => {
   });
 
   it('leaves a field without hint or error as a bare label around its control', () => {
-    const html = renderToStaticMarkup(h(Field, { label: 'Sort', tone: 'filter', children: h('select', { className: CONTROL } as SelectHTMLAttributes<HTMLSelectElement>) }));
+    const html = renderToStaticMarkup(
+      h(Field, { label: 'Sort', tone: 'filter', children: h('select', { className: CONTROL } as SelectHTMLAttributes<HTMLSelectElement>) }),
+    );
     expect(html.startsWith('<label')).toBe(true);
     expect(html).not.toContain('aria-describedby');
   });
 
   it('draws a table with its caption, headings (a silent one for screen readers only) and rows', () => {
-    const html = renderToStaticMarkup(h(DataTable, {
-      caption: 'Users', testId: 'users', columns: ['Name', { label: 'Actions', srOnly: true }], children: h('tr', null, h('td', null, 'Ada'), h('td', null)),
-    }));
+    const html = renderToStaticMarkup(
+      h(DataTable, {
+        caption: 'Users',
+        testId: 'users',
+        columns: ['Name', { label: 'Actions', srOnly: true }],
+        children: h('tr', null, h('td', null, 'Ada'), h('td', null)),
+      }),
+    );
     expect(html).toContain('<caption class="sr-only">Users</caption>');
     expect(html).toContain('data-testid="users"');
     expect(html).toContain('<span class="sr-only">Actions</span>');
@@ -51,10 +58,18 @@ describe('shared UI parts (rendered on the server)', () => {
   });
 
   it('renders a time chart on the server (theme colours as CSS variables until the browser resolves them)', () => {
-    const html = renderToStaticMarkup(h(TimeChart, {
-      rows: [{ t: 0, v: 1 }, { t: 30 * 86_400_000, v: 2 }], lines: [{ key: 'v', label: 'value', color: 'tide' }], timeZone: 'UTC',
-      marks: [{ at: 20 * 86_400_000, note: 'marked' }], windowBand: { from: 20 * 86_400_000, to: 30 * 86_400_000 },
-    }));
+    const html = renderToStaticMarkup(
+      h(TimeChart, {
+        rows: [
+          { t: 0, v: 1 },
+          { t: 30 * 86_400_000, v: 2 },
+        ],
+        lines: [{ key: 'v', label: 'value', color: 'tide' }],
+        timeZone: 'UTC',
+        marks: [{ at: 20 * 86_400_000, note: 'marked' }],
+        windowBand: { from: 20 * 86_400_000, to: 30 * 86_400_000 },
+      }),
+    );
     expect(html).toContain('recharts-responsive-container');
   });
 });

@@ -16,7 +16,7 @@ afterAll(async () => {
 });
 
 describe('sites through the API', () => {
-  it('turns the demo series\' site names into sites, each with its series', async () => {
+  it("turns the demo series' site names into sites, each with its series", async () => {
     const { items } = await (await viewer.fetch('/api/sites')).json();
     expect(items.length).toBeGreaterThan(1);
     expect(items.every((site: { seriesCount: number }) => site.seriesCount > 0)).toBe(true);
@@ -39,7 +39,13 @@ describe('sites through the API', () => {
     const patched = await lead.json('/api/sites/api-fjord', 'PATCH', { notes: 'Boat from the north quay.' });
     expect(await patched.json()).toMatchObject({ notes: 'Boat from the north quay.', seriesCount: 0 });
 
-    const series = await lead.json('/api/series', 'POST', { slug: 'api-fjord-salinity', name: 'Fjord salinity', siteId: id, unit: 'PSU', intervalMs: 3_600_000 });
+    const series = await lead.json('/api/series', 'POST', {
+      slug: 'api-fjord-salinity',
+      name: 'Fjord salinity',
+      siteId: id,
+      unit: 'PSU',
+      intervalMs: 3_600_000,
+    });
     expect(series.status).toBe(201);
     expect(await series.json()).toMatchObject({ site: 'API fjord', siteId: id });
     expect((await lead.json('/api/series', 'POST', { slug: 'api-nowhere', name: 'Nowhere', siteId: 987654 })).status).toBe(422);
@@ -69,8 +75,16 @@ describe('sites through the API', () => {
   });
 });
 
-describe('unknown addresses answer the app\'s own 404 page', () => {
-  it.each(['/series/no-such-series', '/series/no-such-series/report', '/series/no-such-series/settings', '/alerts/999999', '/alerts/abc', '/sites/none', '/no/such/page'])('%s', async (path) => {
+describe("unknown addresses answer the app's own 404 page", () => {
+  it.each([
+    '/series/no-such-series',
+    '/series/no-such-series/report',
+    '/series/no-such-series/settings',
+    '/alerts/999999',
+    '/alerts/abc',
+    '/sites/none',
+    '/no/such/page',
+  ])('%s', async (path) => {
     const response = await viewer.fetch(path);
     expect(response.status).toBe(404);
     // Rendered into the HTML, or (when a page raised it) carried in the page's data for the browser to draw: the

@@ -18,7 +18,9 @@ let lead: { id: number };
 
 async function siteRows() {
   const sequelize = await db();
-  return sequelize.query<{ slug: string; name: string; time_zone: string }>('SELECT slug, name, time_zone FROM sites ORDER BY name', { type: QueryTypes.SELECT });
+  return sequelize.query<{ slug: string; name: string; time_zone: string }>('SELECT slug, name, time_zone FROM sites ORDER BY name', {
+    type: QueryTypes.SELECT,
+  });
 }
 
 beforeAll(async () => {
@@ -31,11 +33,12 @@ describe('migration 0015: sites from the site names series carried', () => {
   it('creates one site per distinct non-empty name, points series at it, and goes down and up again', async () => {
     const sequelize = await db();
     await migrateDown('0015-sites');
-    const insert = (slug: string, site: string, zone: string) => sequelize.query(
-      `INSERT INTO series (slug, name, site, unit, description, interval_ms, time_zone, csv_mapping, settings, duplicate_policy, needs_analysis, created_at, updated_at)
+    const insert = (slug: string, site: string, zone: string) =>
+      sequelize.query(
+        `INSERT INTO series (slug, name, site, unit, description, interval_ms, time_zone, csv_mapping, settings, duplicate_policy, needs_analysis, created_at, updated_at)
        VALUES (:slug, :slug, :site, '', '', NULL, :zone, '{}', '{}', 'reject', 0, CURRENT_TIMESTAMP, CURRENT_TIMESTAMP)`,
-      { replacements: { slug, site, zone } },
-    );
+        { replacements: { slug, site, zone } },
+      );
     await insert('m-one', 'North basin', 'Europe/Oslo');
     await insert('m-two', 'North basin ', 'Europe/Oslo');
     await insert('m-three', 'North basin', 'UTC');
@@ -47,7 +50,9 @@ describe('migration 0015: sites from the site names series carried', () => {
       { slug: 'pier-4', name: 'Pier 4', time_zone: 'UTC' },
     ]);
     const linked = await sequelize.query<{ slug: string; site: string; site_slug: string | null }>(
-      'SELECT s.slug, s.site, st.slug AS site_slug FROM series s LEFT JOIN sites st ON st.id = s.site_id ORDER BY s.slug', { type: QueryTypes.SELECT });
+      'SELECT s.slug, s.site, st.slug AS site_slug FROM series s LEFT JOIN sites st ON st.id = s.site_id ORDER BY s.slug',
+      { type: QueryTypes.SELECT },
+    );
     expect(linked).toEqual([
       { slug: 'm-five', site: '', site_slug: null },
       { slug: 'm-four', site: 'Pier 4', site_slug: 'pier-4' },
@@ -94,7 +99,10 @@ describe('a series and its site', () => {
 
   it('lists sites with their active series and shows a site page with the overview rows', async () => {
     const sites = await listSites();
-    expect(sites.map((s) => [s.slug, s.seriesCount])).toEqual([['east-mooring', 1], ['west-weir', 1]]);
+    expect(sites.map((s) => [s.slug, s.seriesCount])).toEqual([
+      ['east-mooring', 1],
+      ['west-weir', 1],
+    ]);
     const page = await fetchSitePage('east-mooring', lead.id);
     expect(page.site.name).toBe('East mooring A');
     expect(page.series.map((row) => row.slug)).toEqual(['east-temp']);
@@ -109,14 +117,16 @@ describe('bulk registration', () => {
   const HEADER = 'slug,name,site,unit,interval,timeZone,valueColumn';
 
   it('reports every row: field errors, slugs repeated in the list and slugs already registered', async () => {
-    const { report } = await checkBulkList([
-      HEADER,
-      'bulk-a,Bulk A,South bay,m,PT1H,UTC,level',
-      'bulk-b,Bulk B,South bay,m,hourly,UTC,level',
-      'bulk-a,Bulk A again,,m,,UTC,',
-      'east-temp,Taken,,,,Mars/Olympus,',
-      'Bad Slug,,,,,,',
-    ].join('\n'));
+    const { report } = await checkBulkList(
+      [
+        HEADER,
+        'bulk-a,Bulk A,South bay,m,PT1H,UTC,level',
+        'bulk-b,Bulk B,South bay,m,hourly,UTC,level',
+        'bulk-a,Bulk A again,,m,,UTC,',
+        'east-temp,Taken,,,,Mars/Olympus,',
+        'Bad Slug,,,,,,',
+      ].join('\n'),
+    );
     expect(report.valid).toBe(false);
     expect(report.listErrors).toEqual([]);
     const errors = Object.fromEntries(report.rows.map((row) => [row.row, Object.keys(row.errors).sort()]));

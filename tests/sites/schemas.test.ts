@@ -36,12 +36,29 @@ describe('sampling interval as an ISO 8601 duration (ISO 8601-1:2019, Sec. 5.5.2
 describe('a bulk row is read into what POST /api/series takes', () => {
   it('maps cells, column positions, the interval and analysis overrides', () => {
     const row = bulkRowSchema.parse({
-      slug: 'north-temp', name: ' North temperature ', site: 'North basin', unit: '°C', interval: 'PT1H', timeZone: 'Europe/Oslo',
-      timeColumn: '0', valueColumn: 'temp_c', timeFormat: 'iso8601', duplicatePolicy: 'replace', window: '0.25', span: '2000 points', surrogates: '499',
+      slug: 'north-temp',
+      name: ' North temperature ',
+      site: 'North basin',
+      unit: '°C',
+      interval: 'PT1H',
+      timeZone: 'Europe/Oslo',
+      timeColumn: '0',
+      valueColumn: 'temp_c',
+      timeFormat: 'iso8601',
+      duplicatePolicy: 'replace',
+      window: '0.25',
+      span: '2000 points',
+      surrogates: '499',
     });
     expect(row).toMatchObject({
-      slug: 'north-temp', name: 'North temperature', site: 'North basin', unit: '°C', intervalMs: 3_600_000, timeZone: 'Europe/Oslo',
-      csvMapping: { timeColumn: 0, valueColumn: 'temp_c', timeFormat: 'iso8601' }, duplicatePolicy: 'replace',
+      slug: 'north-temp',
+      name: 'North temperature',
+      site: 'North basin',
+      unit: '°C',
+      intervalMs: 3_600_000,
+      timeZone: 'Europe/Oslo',
+      csvMapping: { timeColumn: 0, valueColumn: 'temp_c', timeFormat: 'iso8601' },
+      duplicatePolicy: 'replace',
     });
     expect(row.settings).toMatchObject({ window: 0.25, span: '2000 points', surrogates: 499 });
   });
@@ -101,7 +118,11 @@ describe('the sites map', () => {
     expect(map.points).toHaveLength(3);
     expect(map.unplaced).toEqual(['D']);
     const pxPerKm = map.scale!.px / map.scale!.km;
-    for (const [i, j] of [[0, 1], [0, 2], [1, 2]]) {
+    for (const [i, j] of [
+      [0, 1],
+      [0, 2],
+      [1, 2],
+    ]) {
       const px = Math.hypot(map.points[i].x - map.points[j].x, map.points[i].y - map.points[j].y);
       const km = haversineKm(sites[i].latitude!, sites[i].longitude!, sites[j].latitude!, sites[j].longitude!);
       expect(Math.abs(px / pxPerKm - km) / km).toBeLessThan(0.005);
@@ -116,7 +137,10 @@ describe('the sites map', () => {
   });
 
   it('keeps sites either side of the antimeridian together, and places one site in the middle', () => {
-    const map = siteMap([{ slug: 'w', name: 'W', latitude: -17, longitude: 179.9 }, { slug: 'e', name: 'E', latitude: -17, longitude: -179.9 }]);
+    const map = siteMap([
+      { slug: 'w', name: 'W', latitude: -17, longitude: 179.9 },
+      { slug: 'e', name: 'E', latitude: -17, longitude: -179.9 },
+    ]);
     expect(Math.abs(map.points[0].x - map.points[1].x)).toBeLessThan(640);
     expect(map.points[0].x).toBeLessThan(map.points[1].x);
     const one = siteMap([{ slug: 'o', name: 'O', latitude: 1, longitude: 2 }]);

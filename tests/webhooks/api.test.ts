@@ -56,7 +56,11 @@ describe('webhooks API (real server)', () => {
 
     // A push that stores nothing is an intake rejection; the scheduler delivers it within seconds.
     expect((await lead.json('/api/series', 'POST', { slug: 'webhook-probe', name: 'Webhook probe', intervalMs: 60_000 })).status).toBe(201);
-    const push = await lead.fetch('/api/series/webhook-probe/observations', { method: 'POST', headers: { 'content-type': 'text/csv' }, body: 'time,value\nnot-a-time,1\n' });
+    const push = await lead.fetch('/api/series/webhook-probe/observations', {
+      method: 'POST',
+      headers: { 'content-type': 'text/csv' },
+      body: 'time,value\nnot-a-time,1\n',
+    });
     expect(push.status).toBe(422);
     const deadline = Date.now() + 30_000;
     while (!received.length && Date.now() < deadline) await new Promise((r) => setTimeout(r, 250));

@@ -111,7 +111,11 @@ const deliveriesOf = async (status?: string) => WebhookDelivery.count({ where: {
 describe('each event reaches the receiver once, signed', () => {
   it('alert opened, abrupt shift, escalated, decided (confirmed and dismissed) and a rejected intake', async () => {
     const opened = (await evaluateSnapshots([await makeSnapshot(series, { tau: 0.6, surrogateP: 0.01 })])).opened[0];
-    const shift = (await evaluateSnapshots([await makeSnapshot(series, { tau: 0.6, surrogateP: 0.01 }, { summary: { shifts: [{ time: Date.UTC(2020, 8, 1), index: 244, size: -1.5 }] } })])).shifts[0];
+    const shift = (
+      await evaluateSnapshots([
+        await makeSnapshot(series, { tau: 0.6, surrogateP: 0.01 }, { summary: { shifts: [{ time: Date.UTC(2020, 8, 1), index: 244, size: -1.5 }] } }),
+      ])
+    ).shifts[0];
     expect(opened).toBeGreaterThan(0);
     expect(shift).toBeGreaterThan(0);
     await escalateAlert(opened, analyst, { note: 'Looks real;\nplease decide.' });
@@ -128,7 +132,15 @@ describe('each event reaches the receiver once, signed', () => {
     expect(report).toMatchObject({ claimed: 7, delivered: 7, retrying: 0, failed: 0 });
     const got = receiver.take();
     const bodies = got.map((d) => JSON.parse(d.raw));
-    expect(bodies.map((b) => b.event).sort()).toEqual(['alert.abrupt-shift', 'alert.decided', 'alert.decided', 'alert.escalated', 'alert.opened', 'alert.opened', 'intake.rejected']);
+    expect(bodies.map((b) => b.event).sort()).toEqual([
+      'alert.abrupt-shift',
+      'alert.decided',
+      'alert.decided',
+      'alert.escalated',
+      'alert.opened',
+      'alert.opened',
+      'intake.rejected',
+    ]);
     for (const [i, d] of got.entries()) {
       expect(validSignature(secret, d), d.raw).toBe(true);
       expect(d.headers['content-type']).toBe('application/json');
@@ -146,15 +158,35 @@ describe('each event reaches the receiver once, signed', () => {
     expect(Date.now() - Date.parse(listed.lastDeliveredAt!)).toBeLessThan(60_000);
     expect(JSON.stringify(listed)).not.toContain(secret);
     const byEvent = (event: string) => bodies.filter((b) => b.event === event);
-    expect(byEvent('alert.opened').find((b) => b.alert.id === opened)).toMatchObject({ series: { slug: 'harbour-oxygen', name: 'Series harbour-oxygen' }, alert: { kind: 'slowing-down', state: 'new', tau: 0.6 }, url: expect.stringMatching(new RegExp(`/alerts/${opened}$`)) });
-    expect(byEvent('alert.abrupt-shift')[0]).toMatchObject({ alert: { id: shift, kind: 'abrupt-shift', shift: { time: '2020-09-01T00:00:00.000Z', size: -1.5 } } });
-    expect(byEvent('alert.escalated')[0]).toMatchObject({ alert: { id: opened, state: 'escalated', by: 'Anton Analyst', note: 'Looks real;\nplease decide.' } });
-    expect(byEvent('alert.decided').map((b) => [b.alert.id, b.alert.decision, b.alert.reason])).toEqual(expect.arrayContaining([[opened, 'confirmed', null], [shift, 'dismissed', 'instrument-fault']]));
-    expect(byEvent('intake.rejected')[0]).toMatchObject({ run: { id: rejected.runId, fileName: 'bad.csv', status: 'rejected' }, series: { slug: 'harbour-oxygen' } });
+    expect(byEvent('alert.opened').find((b) => b.alert.id === opened)).toMatchObject({
+      series: { slug: 'harbour-oxygen', name: 'Series harbour-oxygen' },
+      alert: { kind: 'slowing-down', state: 'new', tau: 0.6 },
+      url: expect.stringMatching(new RegExp(`/alerts/${opened}$`)),
+    });
+    expect(byEvent('alert.abrupt-shift')[0]).toMatchObject({
+      alert: { id: shift, kind: 'abrupt-shift', shift: { time: '2020-09-01T00:00:00.000Z', size: -1.5 } },
+    });
+    expect(byEvent('alert.escalated')[0]).toMatchObject({
+      alert: { id: opened, state: 'escalated', by: 'Anton Analyst', note: 'Looks real;\nplease decide.' },
+    });
+    expect(byEvent('alert.decided').map((b) => [b.alert.id, b.alert.decision, b.alert.reason])).toEqual(
+      expect.arrayContaining([
+        [opened, 'confirmed', null],
+        [shift, 'dismissed', 'instrument-fault'],
+      ]),
+    );
+    expect(byEvent('intake.rejected')[0]).toMatchObject({
+      run: { id: rejected.runId, fileName: 'bad.csv', status: 'rejected' },
+      series: { slug: 'harbour-oxygen' },
+    });
 
     // Nothing goes twice: a second pass finds nothing due, and enqueueing an event again is a no-op.
     expect(await deliverDueWebhooks()).toMatchObject({ claimed: 0 });
-    const again = rejectedRunPayload({ id: rejected.runId, source: 'upload', fileName: 'bad.csv', rowsRead: 1, rejected: 1, message: 'again' }, series, new Date());
+    const again = rejectedRunPayload(
+      { id: rejected.runId, source: 'upload', fileName: 'bad.csv', rowsRead: 1, rejected: 1, message: 'again' },
+      series,
+      new Date(),
+    );
     expect(await writeTransaction((t) => enqueueWebhookEvent('intake.rejected', again, t))).toBe(0);
     expect(await deliverDueWebhooks()).toMatchObject({ claimed: 0 });
     expect(receiver.take()).toEqual([]);
@@ -163,10 +195,12 @@ describe('each event reaches the receiver once, signed', () => {
   it('queues nothing when the change that caused the event is rolled back', async () => {
     const before = await deliveriesOf();
     const payload = rejectedRunPayload({ id: 999_999, source: 'push', fileName: null, rowsRead: 0, rejected: 0, message: 'never' }, series, new Date());
-    await expect(writeTransaction(async (t) => {
-      expect(await enqueueWebhookEvent('intake.rejected', payload, t)).toBe(1);
-      throw new Error('the change failed');
-    })).rejects.toThrow('the change failed');
+    await expect(
+      writeTransaction(async (t) => {
+        expect(await enqueueWebhookEvent('intake.rejected', payload, t)).toBe(1);
+        throw new Error('the change failed');
+      }),
+    ).rejects.toThrow('the change failed');
     expect(await deliveriesOf()).toBe(before);
   });
 });
@@ -264,7 +298,10 @@ describe('claims, pauses', () => {
 
     const { payload } = await queueRejection(600_100);
     // A sender that claimed it and died: the claim holds until its expiry.
-    await WebhookDelivery.update({ status: 'sending', claimedBy: 'dead-process', nextAttemptAt: new Date(Date.now() + 60_000) }, { where: { idempotencyKey: payload.id } });
+    await WebhookDelivery.update(
+      { status: 'sending', claimedBy: 'dead-process', nextAttemptAt: new Date(Date.now() + 60_000) },
+      { where: { idempotencyKey: payload.id } },
+    );
     expect(await deliverDueWebhooks()).toMatchObject({ claimed: 0 });
     expect(await deliverDueWebhooks(Date.now() + 61_000)).toMatchObject({ claimed: 1, delivered: 1 });
     expect(receiver.take()).toHaveLength(1);

@@ -16,8 +16,14 @@ export default async function OverviewPage() {
     <section className="space-y-5">
       <div className="flex flex-wrap items-baseline gap-3">
         <h1 className="text-xl font-semibold">Overview</h1>
-        <p className="text-sm text-ink-soft">{overview.rows.length} series · {overview.queues.open} open alerts</p>
-        {roleAtLeast(actor.role, 'lead') ? <Link href="/series/new" className={buttonClass('secondary', 'sm', 'ml-auto')}>Register a series</Link> : null}
+        <p className="text-sm text-ink-soft">
+          {overview.rows.length} series · {overview.queues.open} open alerts
+        </p>
+        {roleAtLeast(actor.role, 'lead') ? (
+          <Link href="/series/new" className={buttonClass('secondary', 'sm', 'ml-auto')}>
+            Register a series
+          </Link>
+        ) : null}
       </div>
       <Caution />
       <QueueCounts counts={overview.queues} />

@@ -11,7 +11,9 @@ export default async function FeedsPage() {
   return (
     <section className="space-y-4">
       <h1 className="text-xl font-semibold">Station feeds</h1>
-      <p className="text-sm text-ink-soft">A feed takes a station file with many variables and their quality flags into several series at once, whole or not at all.</p>
+      <p className="text-sm text-ink-soft">
+        A feed takes a station file with many variables and their quality flags into several series at once, whole or not at all.
+      </p>
       <FeedsScreen initial={feeds} canCreate={roleAtLeast(actor.role, 'lead')} />
     </section>
   );

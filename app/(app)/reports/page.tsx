@@ -39,7 +39,7 @@ export default async function ReportsPage({ searchParams }: { searchParams: Prom
   const now = Date.now();
   const asked = raw.from || raw.to ? periodReportQuerySchema.safeParse(raw) : null;
   const period = asked?.success ? { from: asked.data.from, to: asked.data.to } : previousPeriod('quarter', now);
-  const site = asked?.success ? asked.data.site ?? null : raw.site || null;
+  const site = asked?.success ? (asked.data.site ?? null) : raw.site || null;
   const [report, overview] = await Promise.all([buildPeriodReport(period, site, now), fetchSeriesOverview(actor.id, now)]);
   return (
     <section className="space-y-5">
@@ -48,7 +48,11 @@ export default async function ReportsPage({ searchParams }: { searchParams: Prom
         <PeriodPicker period={period} site={site ?? ''} sites={overview.sites} />
         <PrintButton />
       </div>
-      {asked && !asked.success ? <div className="no-print"><ErrorNote>That period could not be read; showing the last whole quarter.</ErrorNote></div> : null}
+      {asked && !asked.success ? (
+        <div className="no-print">
+          <ErrorNote>That period could not be read; showing the last whole quarter.</ErrorNote>
+        </div>
+      ) : null}
       <PeriodReportView report={report} />
       {roleAtLeast(actor.role, 'lead') ? <ScheduleManager sites={overview.sites} /> : null}
     </section>

@@ -16,7 +16,9 @@ export default async function SitesPage() {
     <section className="space-y-4">
       <div className="flex flex-wrap items-baseline gap-3">
         <h1 className="text-xl font-semibold">Sites</h1>
-        <p className="text-sm text-ink-soft">{sites.length} sites · {sites.reduce((sum, site) => sum + site.seriesCount, 0)} active series</p>
+        <p className="text-sm text-ink-soft">
+          {sites.length} sites · {sites.reduce((sum, site) => sum + site.seriesCount, 0)} active series
+        </p>
       </div>
       <SiteMap map={siteMap(sites)} />
       <SitesTable sites={sites} />

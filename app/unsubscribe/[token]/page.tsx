@@ -14,10 +14,14 @@ export default async function UnsubscribePage({ params }: { params: Promise<{ to
       {!found ? (
         <p>This link is not valid. Copy the whole link from the message, or ask the team that sends the reports.</p>
       ) : !found.subscribed ? (
-        <p data-testid="unsubscribed">{found.address} no longer receives {found.scheduleName ? `the “${found.scheduleName}” report` : 'this report'}.</p>
+        <p data-testid="unsubscribed">
+          {found.address} no longer receives {found.scheduleName ? `the “${found.scheduleName}” report` : 'this report'}.
+        </p>
       ) : (
         <>
-          <p>Stop sending the “{found.scheduleName}” report to <strong>{found.address}</strong>?</p>
+          <p>
+            Stop sending the “{found.scheduleName}” report to <strong>{found.address}</strong>?
+          </p>
           <UnsubscribeButton token={token} />
         </>
       )}

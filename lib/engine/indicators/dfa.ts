@@ -10,7 +10,8 @@ import { windowIndicator } from './definition';
 export const dfa = windowIndicator({
   name: 'dfa',
   direction: 'rising',
-  formula: 'slope of ln F(s) on ln s, F(s)² the mean squared remainder of the profile Y_j = Σ_{i≤j}(r_i − r̄) after a line is removed in each full box of s = 4, 8, 16, … ≤ ⌊w/4⌋ points',
+  formula:
+    'slope of ln F(s) on ln s, F(s)² the mean squared remainder of the profile Y_j = Σ_{i≤j}(r_i − r̄) after a line is removed in each full box of s = 4, 8, 16, … ≤ ⌊w/4⌋ points',
   cost: 'O(w log w) per evaluated window',
   source: 'Peng et al. (1994), Phys. Rev. E 49, 1685–1689; Livina & Lenton (2007), Geophys. Res. Lett. 34, L03712',
   byDefault: false,
@@ -33,7 +34,8 @@ export const dfa = windowIndicator({
         const from = b * s;
         // Sums about the box's first value, so the profile's level costs no digits; one pass for Σy and Σ(k − x̄)y.
         const origin = profile[from];
-        let sy = 0, sxy = 0;
+        let sy = 0,
+          sxy = 0;
         for (let k = 0; k < s; k++) {
           const y = profile[from + k] - origin;
           sy += y;

@@ -55,7 +55,8 @@ function binnedDensity(r: Float64Array, mean: number, sd: number, lo: number, hi
 export const potentialWells = windowIndicator({
   name: 'potential-wells',
   direction: 'rising',
-  formula: 'minima of the even-degree (≤ 8) polynomial fitted to U = −ln f, f the kernel density of the standardised window; highest degree with a positive leading coefficient',
+  formula:
+    'minima of the even-degree (≤ 8) polynomial fitted to U = −ln f, f the kernel density of the standardised window; highest degree with a positive leading coefficient',
   cost: 'O(w) per evaluated window',
   source: 'Livina et al. (2010), Clim. Past 6, 77–82 (potential analysis, from memory); Silverman (1986), eq. 3.28 (bandwidth)',
   byDefault: false,
@@ -70,7 +71,8 @@ export const potentialWells = windowIndicator({
     for (let j = 0; j < w; j++) ss += (r[j] - mean) ** 2;
     const sd = Math.sqrt(ss / (w - 1));
     if (!(sd > 0)) return { value: Number.NaN };
-    let min = Infinity, max = -Infinity;
+    let min = Infinity,
+      max = -Infinity;
     for (let j = 0; j < w; j++) {
       if (r[j] < min) min = r[j];
       if (r[j] > max) max = r[j];

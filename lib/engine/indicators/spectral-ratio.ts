@@ -23,7 +23,8 @@ export const spectralRatio = windowIndicator({
     const centred = new Float64Array(w);
     for (let j = 0; j < w; j++) centred[j] = r[j] - mean;
     const { re, im } = realDft(centred);
-    let low = 0, high = 0;
+    let low = 0,
+      high = 0;
     for (let k = 1; k <= m; k++) low += re[k] * re[k] + im[k] * im[k];
     for (let k = half - m + 1; k <= half; k++) high += re[k] * re[k] + im[k] * im[k];
     return { value: low / high };

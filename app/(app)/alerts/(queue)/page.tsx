@@ -26,7 +26,7 @@ export default async function AlertsPage({ searchParams }: { searchParams: Promi
     <section className="space-y-4">
       <h1 className="text-xl font-semibold">Alerts</h1>
       <Caution />
-      <AlertQueue initialFilters={filters} initialPage={page} initialSeries={query.series ? series ?? { slug: query.series, name: query.series } : null} />
+      <AlertQueue initialFilters={filters} initialPage={page} initialSeries={query.series ? (series ?? { slug: query.series, name: query.series }) : null} />
     </section>
   );
 }

@@ -19,8 +19,14 @@ import { roleAtLeast } from '@/lib/auth/roles';
 export const metadata = { title: 'Alert' };
 
 const ACTION_WORDS: Record<string, string> = {
-  open: 'opened by the analysis', acknowledge: 'taken', assign: 'assigned', escalate: 'escalated', confirm: 'confirmed',
-  dismiss: 'set aside', reopen: 'reopened', evaluate: 'evaluated again',
+  open: 'opened by the analysis',
+  acknowledge: 'taken',
+  assign: 'assigned',
+  escalate: 'escalated',
+  confirm: 'confirmed',
+  dismiss: 'set aside',
+  reopen: 'reopened',
+  evaluate: 'evaluated again',
 };
 
 /** Actions whose word does not already say where the alert went. */
@@ -36,14 +42,24 @@ export default async function AlertPage({ params }: { params: Promise<{ id: stri
   return (
     <section className="space-y-4">
       <nav aria-label="Breadcrumb" className="text-sm text-ink-soft">
-        <Link href="/alerts" className="text-tide hover:underline">Alerts</Link> / #{detail.id}
+        <Link href="/alerts" className="text-tide hover:underline">
+          Alerts
+        </Link>{' '}
+        / #{detail.id}
       </nav>
       <header className="flex flex-wrap items-center gap-3">
         <h1 className="text-xl font-semibold">
-          Alert #{detail.id}: {rule ? `${indicatorLabel(rule.indicator)} ${DIRECTION_WORDS[rule.direction]}` : detail.kind === 'data-late' ? 'data late' : 'abrupt shift of level'} on <Link href={`/series/${detail.series.slug}`} className="text-tide hover:underline">{detail.series.name}</Link>
+          Alert #{detail.id}:{' '}
+          {rule ? `${indicatorLabel(rule.indicator)} ${DIRECTION_WORDS[rule.direction]}` : detail.kind === 'data-late' ? 'data late' : 'abrupt shift of level'}{' '}
+          on{' '}
+          <Link href={`/series/${detail.series.slug}`} className="text-tide hover:underline">
+            {detail.series.name}
+          </Link>
         </h1>
         <SeverityBadge severity={detail.severity} />
-        <span data-testid="alert-state"><AlertStateBadge state={detail.state} /></span>
+        <span data-testid="alert-state">
+          <AlertStateBadge state={detail.state} />
+        </span>
       </header>
       <Caution />
       <div className="grid grid-cols-1 gap-4 lg:grid-cols-[minmax(0,1fr)_340px]">
@@ -52,32 +68,62 @@ export default async function AlertPage({ params }: { params: Promise<{ id: stri
             {rule ? (
               <dl className="num mb-3 grid grid-cols-2 gap-x-4 gap-y-1 text-sm sm:grid-cols-4" data-testid="alert-evidence">
                 <dt className="text-ink-soft">Rule</dt>
-                <dd>{tauThreshold(rule.minTau, rule.direction)}{rule.maxSurrogateP !== null ? `, surrogate p ≤ ${formatP(rule.maxSurrogateP)}` : ''}{rule.fdrLevel !== null ? `, q ≤ ${rule.fdrLevel}` : ''}</dd>
-                <dt className="text-ink-soft">Strongest τ</dt><dd>{formatTau(detail.peakTau)} in the rule&apos;s direction ({DIRECTION_WORDS[rule.direction]})</dd>
-                <dt className="text-ink-soft">Latest τ</dt><dd>{tauWithDirection(lastEval?.tau, lastEval?.direction)}</dd>
-                <dt className="text-ink-soft">Surrogate p</dt><dd>{formatP(lastEval?.surrogateP)}</dd>
-                <dt className="text-ink-soft">Kendall p</dt><dd>{kendallPLabel(lastEval?.kendallP)}</dd>
-                <dt className="text-ink-soft">Evaluations</dt><dd>{detail.evaluationCount}</dd>
-                <dt className="text-ink-soft">False alarms</dt><dd className="sm:col-span-3" data-testid="rule-calibration">{describeCalibration(rule.calibration)}</dd>
+                <dd>
+                  {tauThreshold(rule.minTau, rule.direction)}
+                  {rule.maxSurrogateP !== null ? `, surrogate p ≤ ${formatP(rule.maxSurrogateP)}` : ''}
+                  {rule.fdrLevel !== null ? `, q ≤ ${rule.fdrLevel}` : ''}
+                </dd>
+                <dt className="text-ink-soft">Strongest τ</dt>
+                <dd>
+                  {formatTau(detail.peakTau)} in the rule&apos;s direction ({DIRECTION_WORDS[rule.direction]})
+                </dd>
+                <dt className="text-ink-soft">Latest τ</dt>
+                <dd>{tauWithDirection(lastEval?.tau, lastEval?.direction)}</dd>
+                <dt className="text-ink-soft">Surrogate p</dt>
+                <dd>{formatP(lastEval?.surrogateP)}</dd>
+                <dt className="text-ink-soft">Kendall p</dt>
+                <dd>{kendallPLabel(lastEval?.kendallP)}</dd>
+                <dt className="text-ink-soft">Evaluations</dt>
+                <dd>{detail.evaluationCount}</dd>
+                <dt className="text-ink-soft">False alarms</dt>
+                <dd className="sm:col-span-3" data-testid="rule-calibration">
+                  {describeCalibration(rule.calibration)}
+                </dd>
               </dl>
             ) : detail.silence ? (
               <dl className="num mb-3 grid grid-cols-2 gap-x-4 gap-y-1 text-sm sm:grid-cols-4" data-testid="alert-evidence">
-                <dt className="text-ink-soft">Kind</dt><dd>data late: the series stopped delivering</dd>
-                <dt className="text-ink-soft">Last data</dt><dd><LocalTime t={detail.silence.lastDataAt} timeZone={tz} withZone /></dd>
-                <dt className="text-ink-soft">Data back</dt><dd>{detail.silence.backAt === null ? 'not yet' : <LocalTime t={detail.silence.backAt} timeZone={tz} withZone />}</dd>
-                <dt className="text-ink-soft">Closes</dt><dd>by itself when data return</dd>
+                <dt className="text-ink-soft">Kind</dt>
+                <dd>data late: the series stopped delivering</dd>
+                <dt className="text-ink-soft">Last data</dt>
+                <dd>
+                  <LocalTime t={detail.silence.lastDataAt} timeZone={tz} withZone />
+                </dd>
+                <dt className="text-ink-soft">Data back</dt>
+                <dd>{detail.silence.backAt === null ? 'not yet' : <LocalTime t={detail.silence.backAt} timeZone={tz} withZone />}</dd>
+                <dt className="text-ink-soft">Closes</dt>
+                <dd>by itself when data return</dd>
               </dl>
             ) : (
               <dl className="num mb-3 grid grid-cols-2 gap-x-4 gap-y-1 text-sm sm:grid-cols-4" data-testid="alert-evidence">
-                <dt className="text-ink-soft">Kind</dt><dd>abrupt shift of level (change-point detection)</dd>
-                <dt className="text-ink-soft">Shift at</dt><dd><LocalTime t={detail.shift?.time ?? null} timeZone={tz} withZone /></dd>
-                <dt className="text-ink-soft">Size</dt><dd>{detail.shift?.size === null || detail.shift?.size === undefined ? 'not given' : formatValue(detail.shift.size, detail.series.unit)}</dd>
-                <dt className="text-ink-soft">After it</dt><dd>indicators are computed on the stretch after the shift only</dd>
+                <dt className="text-ink-soft">Kind</dt>
+                <dd>abrupt shift of level (change-point detection)</dd>
+                <dt className="text-ink-soft">Shift at</dt>
+                <dd>
+                  <LocalTime t={detail.shift?.time ?? null} timeZone={tz} withZone />
+                </dd>
+                <dt className="text-ink-soft">Size</dt>
+                <dd>{detail.shift?.size === null || detail.shift?.size === undefined ? 'not given' : formatValue(detail.shift.size, detail.series.unit)}</dd>
+                <dt className="text-ink-soft">After it</dt>
+                <dd>indicators are computed on the stretch after the shift only</dd>
               </dl>
             )}
-            <EvidenceCharts first={firstView} latest={latestView ?? firstView} indicator={rule?.indicator ?? null}
+            <EvidenceCharts
+              first={firstView}
+              latest={latestView ?? firstView}
+              indicator={rule?.indicator ?? null}
               series={{ slug: detail.series.slug, name: detail.series.name, unit: detail.series.unit, timeZone: tz }}
-              marks={detail.shift ? [...marks, { at: detail.shift.time, note: 'abrupt shift (this alert)' }] : marks} />
+              marks={detail.shift ? [...marks, { at: detail.shift.time, note: 'abrupt shift (this alert)' }] : marks}
+            />
           </Panel>
           <Panel title="Notes" id="notes">
             <AlertNotes alertId={detail.id} notes={detail.notes} canWrite={roleAtLeast(actor.role, 'analyst')} timeZone={tz} />
@@ -85,7 +131,9 @@ export default async function AlertPage({ params }: { params: Promise<{ id: stri
         </div>
         <aside className="space-y-4">
           <Panel title="Decide" id="actions">
-            <p className="mb-2 text-sm text-ink-soft">Assigned to {detail.assignee?.name ?? 'nobody'}.{detail.dismissReason ? ` Set aside as: ${detail.dismissReason}.` : ''}</p>
+            <p className="mb-2 text-sm text-ink-soft">
+              Assigned to {detail.assignee?.name ?? 'nobody'}.{detail.dismissReason ? ` Set aside as: ${detail.dismissReason}.` : ''}
+            </p>
             <AlertActions alertId={detail.id} version={detail.version} actions={detail.allowedActions} users={colleagues} />
           </Panel>
           <Panel title="Reproduce the evidence" id="provenance">
@@ -98,7 +146,10 @@ export default async function AlertPage({ params }: { params: Promise<{ id: stri
               <ol className="space-y-2 text-sm" data-testid="timeline">
                 {detail.timeline.map((e) => (
                   <li key={e.id} className="border-l-2 border-rule pl-3">
-                    <div className="font-medium">{ACTION_WORDS[e.action] ?? e.action}{e.toState && SHOWS_STATE.has(e.action) ? ` → ${e.toState}` : ''}</div>
+                    <div className="font-medium">
+                      {ACTION_WORDS[e.action] ?? e.action}
+                      {e.toState && SHOWS_STATE.has(e.action) ? ` → ${e.toState}` : ''}
+                    </div>
                     <div className="text-xs text-ink-soft">
                       {e.actor?.name ?? 'Brinkwatch'} · <LocalTime t={e.at} timeZone={tz} withZone />
                       {e.reason ? ` · ${e.reason}` : ''}

@@ -31,15 +31,26 @@ export default async function SeriesPage({ params }: { params: Promise<{ slug: s
   return (
     <section className="space-y-4">
       <nav aria-label="Breadcrumb" className="text-sm text-ink-soft">
-        <Link href="/" className="text-tide hover:underline">Overview</Link> / {series.name}
+        <Link href="/" className="text-tide hover:underline">
+          Overview
+        </Link>{' '}
+        / {series.name}
       </nav>
       <header className="flex flex-wrap items-baseline gap-x-4 gap-y-1">
         <h1 className="text-xl font-semibold">{series.name}</h1>
-        <span className="text-sm text-ink-soft">{series.site || 'No site'} · {series.unit || 'no unit'} · times in {series.timeZone}</span>
+        <span className="text-sm text-ink-soft">
+          {series.site || 'No site'} · {series.unit || 'no unit'} · times in {series.timeZone}
+        </span>
         {bench.snapshot ? (
-          <span className="text-sm text-ink-soft">analysed <LocalTime t={bench.snapshot.createdAt} timeZone={series.timeZone} /></span>
+          <span className="text-sm text-ink-soft">
+            analysed <LocalTime t={bench.snapshot.createdAt} timeZone={series.timeZone} />
+          </span>
         ) : null}
-        {roleAtLeast(actor.role, 'lead') ? <Link href={`/series/${series.slug}/settings`} className="ml-auto text-sm text-tide hover:underline" data-testid="series-settings-link">Settings</Link> : null}
+        {roleAtLeast(actor.role, 'lead') ? (
+          <Link href={`/series/${series.slug}/settings`} className="ml-auto text-sm text-tide hover:underline" data-testid="series-settings-link">
+            Settings
+          </Link>
+        ) : null}
       </header>
       {series.description ? <p className="max-w-3xl text-sm text-ink-soft">{series.description}</p> : null}
       <Caution />
@@ -56,9 +67,26 @@ export default async function SeriesPage({ params }: { params: Promise<{ slug: s
         charts={preferences.seriesCharts}
         marks={bench.marks}
         history={bench.history}
-        quality={<QualityPanel quality={bench.view?.quality ?? null} stretch={bench.view?.stretch ?? null} shifts={bench.view?.shifts ?? []} runs={bench.runs} rejectedRows={bench.rejectedRows} extent={bench.extent} timeZone={series.timeZone} />}
+        quality={
+          <QualityPanel
+            quality={bench.view?.quality ?? null}
+            stretch={bench.view?.stretch ?? null}
+            shifts={bench.view?.shifts ?? []}
+            runs={bench.runs}
+            rejectedRows={bench.rejectedRows}
+            extent={bench.extent}
+            timeZone={series.timeZone}
+          />
+        }
       />
-      <RulesPanel slug={series.slug} statuses={statuses} timeZone={series.timeZone} canEdit={canLead} indicators={bench.savedSettings.indicators} templates={RULE_TEMPLATES} />
+      <RulesPanel
+        slug={series.slug}
+        statuses={statuses}
+        timeZone={series.timeZone}
+        canEdit={canLead}
+        indicators={bench.savedSettings.indicators}
+        templates={RULE_TEMPLATES}
+      />
       {canLead ? <WhoHears slug={series.slug} /> : null}
       <QcSettings slug={series.slug} initial={series.qc as QcConfig | null} canEdit={canLead} />
       <BacktestPanel slug={series.slug} timeZone={series.timeZone} canRun={canLead} />

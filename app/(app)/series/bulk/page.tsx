@@ -12,7 +12,14 @@ export default async function BulkRegistrationPage() {
   return (
     <section className="max-w-5xl space-y-4">
       <nav aria-label="Breadcrumb" className="text-sm text-ink-soft">
-        <Link href="/" className="text-tide hover:underline">Overview</Link> / <Link href="/series/new" className="text-tide hover:underline">Register a series</Link> / From a list
+        <Link href="/" className="text-tide hover:underline">
+          Overview
+        </Link>{' '}
+        /{' '}
+        <Link href="/series/new" className="text-tide hover:underline">
+          Register a series
+        </Link>{' '}
+        / From a list
       </nav>
       <h1 className="text-xl font-semibold">Register series from a list</h1>
       <p className="text-sm text-ink-soft">The list is checked first; the series are registered only when every row is right, all together or none.</p>

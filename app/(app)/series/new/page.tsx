@@ -14,15 +14,20 @@ export default async function NewSeriesPage({ searchParams }: { searchParams: Pr
   return (
     <section className="max-w-4xl space-y-4">
       <nav aria-label="Breadcrumb" className="text-sm text-ink-soft">
-        <Link href="/" className="text-tide hover:underline">Overview</Link> / Register a series
+        <Link href="/" className="text-tide hover:underline">
+          Overview
+        </Link>{' '}
+        / Register a series
       </nav>
       <div className="flex flex-wrap items-baseline gap-3">
         <h1 className="text-xl font-semibold">Register a series</h1>
-        <Link href="/series/bulk" className="text-sm text-tide hover:underline">Many at once from a list</Link>
+        <Link href="/series/bulk" className="text-sm text-tide hover:underline">
+          Many at once from a list
+        </Link>
       </div>
       <p className="text-sm text-ink-soft">
-        After registering, drop CSV files into the series&apos; folder, upload one on the Intake screen, or push readings with an ingest token.
-        The series starts with the default rules.
+        After registering, drop CSV files into the series&apos; folder, upload one on the Intake screen, or push readings with an ingest token. The series
+        starts with the default rules.
       </p>
       <SeriesForm sites={sites} initialSiteId={sites.find((s) => s.slug === site)?.id ?? null} />
     </section>

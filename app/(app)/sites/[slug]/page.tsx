@@ -26,15 +26,29 @@ export default async function SitePage({ params }: { params: Promise<{ slug: str
   return (
     <section className="space-y-4">
       <nav aria-label="Breadcrumb" className="text-sm text-ink-soft">
-        <Link href="/sites" className="text-tide hover:underline">Sites</Link> / {site.name}
+        <Link href="/sites" className="text-tide hover:underline">
+          Sites
+        </Link>{' '}
+        / {site.name}
       </nav>
       <header className="flex flex-wrap items-baseline gap-x-4 gap-y-1">
         <h1 className="text-xl font-semibold">{site.name}</h1>
-        <span className="text-sm text-ink-soft">{formatCoordinates(site.latitude, site.longitude)} · times in {site.timeZone} · {series.length} active series</span>
-        {canEdit ? <Link href={`/series/new?site=${site.slug}`} className={buttonClass('secondary', 'sm', 'ml-auto')}>Register a series here</Link> : null}
+        <span className="text-sm text-ink-soft">
+          {formatCoordinates(site.latitude, site.longitude)} · times in {site.timeZone} · {series.length} active series
+        </span>
+        {canEdit ? (
+          <Link href={`/series/new?site=${site.slug}`} className={buttonClass('secondary', 'sm', 'ml-auto')}>
+            Register a series here
+          </Link>
+        ) : null}
       </header>
       {site.description ? <p className="max-w-3xl text-sm text-ink-soft">{site.description}</p> : null}
-      {site.notes ? <p className="max-w-3xl whitespace-pre-line text-sm"><span className="font-medium">Notes: </span>{site.notes}</p> : null}
+      {site.notes ? (
+        <p className="max-w-3xl whitespace-pre-line text-sm">
+          <span className="font-medium">Notes: </span>
+          {site.notes}
+        </p>
+      ) : null}
       <Caution />
       <div className={`grid grid-cols-1 gap-4 ${placed || canEdit ? 'lg:grid-cols-[minmax(0,1fr)_360px]' : ''}`}>
         <div className="min-w-0 space-y-4">
@@ -42,7 +56,9 @@ export default async function SitePage({ params }: { params: Promise<{ slug: str
             <OverviewTable rows={series} sites={[]} now={generatedAt} noSeries="No active series at this site." siteColumn={false} />
           </Panel>
           <Panel title="Open alerts" id="site-alerts">
-            {openAlerts.length === 0 ? <Empty>No open alerts at this site.</Empty> : (
+            {openAlerts.length === 0 ? (
+              <Empty>No open alerts at this site.</Empty>
+            ) : (
               <DataTable caption="Open alerts at this site" frame="plain" testId="site-alerts" columns={['Alert', 'Series', 'Severity', 'State', 'Opened']}>
                 {openAlerts.map((alert) => (
                   <tr key={alert.id}>
@@ -51,10 +67,20 @@ export default async function SitePage({ params }: { params: Promise<{ slug: str
                         #{alert.id} {alert.indicator ? indicatorLabel(alert.indicator) : 'abrupt shift of level'}
                       </Link>
                     </td>
-                    <td className={CELL}><Link href={`/series/${alert.series.slug}`} className="hover:underline">{alert.series.name}</Link></td>
-                    <td className={CELL}><SeverityBadge severity={alert.severity} /></td>
-                    <td className={CELL}><AlertStateBadge state={alert.state} /></td>
-                    <td className={CELL}><LocalTime t={alert.createdAt} timeZone={alert.series.timeZone} /></td>
+                    <td className={CELL}>
+                      <Link href={`/series/${alert.series.slug}`} className="hover:underline">
+                        {alert.series.name}
+                      </Link>
+                    </td>
+                    <td className={CELL}>
+                      <SeverityBadge severity={alert.severity} />
+                    </td>
+                    <td className={CELL}>
+                      <AlertStateBadge state={alert.state} />
+                    </td>
+                    <td className={CELL}>
+                      <LocalTime t={alert.createdAt} timeZone={alert.series.timeZone} />
+                    </td>
                   </tr>
                 ))}
               </DataTable>

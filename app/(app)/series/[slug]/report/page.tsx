@@ -37,12 +37,15 @@ export default async function SeriesReportPage({ params }: { params: Promise<{ s
   return (
     <article className="report mx-auto max-w-4xl space-y-4 bg-card p-6 print:p-0">
       <style>{PRINT_STYLE}</style>
-      <div className="no-print flex justify-end"><PrintButton /></div>
+      <div className="no-print flex justify-end">
+        <PrintButton />
+      </div>
       <header>
         <p className="font-mono text-xs uppercase tracking-widest text-tide">Brinkwatch · series report</p>
         <h1 className="text-2xl font-semibold">{series.name}</h1>
         <p className="text-sm text-ink-soft">
-          {series.site || 'No site'} · {series.unit || 'no unit'} · prepared for {actor.name} on <LocalTime t={preparedAt} timeZone={series.timeZone} withZone />
+          {series.site || 'No site'} · {series.unit || 'no unit'} · prepared for {actor.name} on{' '}
+          <LocalTime t={preparedAt} timeZone={series.timeZone} withZone />
         </p>
       </header>
       <Caution />
@@ -50,14 +53,21 @@ export default async function SeriesReportPage({ params }: { params: Promise<{ s
         <Empty>This series has not been analysed yet.</Empty>
       ) : (
         <>
-          <DataTable caption="Trend of each indicator over the record" showCaption frame="plain" className="num"
-            columns={['Indicator', 'Kendall tau', 'Tested', 'Kendall p (descriptive)', 'Surrogate p', 'Latest value']}>
+          <DataTable
+            caption="Trend of each indicator over the record"
+            showCaption
+            frame="plain"
+            className="num"
+            columns={['Indicator', 'Kendall tau', 'Tested', 'Kendall p (descriptive)', 'Surrogate p', 'Latest value']}
+          >
             {view.indicators.map((name) => {
               const values = view.curves.indicators[name] ?? [];
               const latest = [...values].reverse().find((v) => v !== null && v !== undefined);
               return (
                 <tr key={name}>
-                  <th scope="row" className={`${CELL_TIGHT} text-left font-medium`}>{indicatorLabel(name, 'title')}</th>
+                  <th scope="row" className={`${CELL_TIGHT} text-left font-medium`}>
+                    {indicatorLabel(name, 'title')}
+                  </th>
                   <td className={CELL_TIGHT}>{formatTau(view.kendall[name]?.tau)}</td>
                   <td className={CELL_TIGHT}>{formatDirection(view.significance[name]?.direction ?? view.kendall[name]?.direction ?? 'rising')}</td>
                   <td className={CELL_TIGHT}>{formatP(view.kendall[name]?.p)}</td>
@@ -69,13 +79,23 @@ export default async function SeriesReportPage({ params }: { params: Promise<{ s
           </DataTable>
           <p className="text-sm text-ink-soft">
             Settings: detrending {view.settings.detrend}
-            {view.bandwidthPoints !== null && view.settings.detrend !== 'moving-average' ? `, bandwidth ${describeExtent(view.settings.bandwidth, 'the stretch')}` : ''}, rolling window {describeExtent(view.settings.window, 'the stretch')} ({view.windowPoints} of {view.n} points{view.stretch ? `, ${stretchReason(view.stretch.startsAfter)}` : ''}),
-            {' '}seasonal removal {view.settings.seasonal}. Analysed <LocalTime t={bench.snapshot?.createdAt} timeZone={series.timeZone} withZone />.
+            {view.bandwidthPoints !== null && view.settings.detrend !== 'moving-average'
+              ? `, bandwidth ${describeExtent(view.settings.bandwidth, 'the stretch')}`
+              : ''}
+            , rolling window {describeExtent(view.settings.window, 'the stretch')} ({view.windowPoints} of {view.n} points
+            {view.stretch ? `, ${stretchReason(view.stretch.startsAfter)}` : ''}), seasonal removal {view.settings.seasonal}. Analysed{' '}
+            <LocalTime t={bench.snapshot?.createdAt} timeZone={series.timeZone} withZone />.
           </p>
-          <ReportCharts view={view} series={{ slug: series.slug, name: series.name, unit: series.unit, timeZone: series.timeZone }} marks={bench.marks}
-            indicators={reportIndicators(view.indicators, rules)} />
+          <ReportCharts
+            view={view}
+            series={{ slug: series.slug, name: series.name, unit: series.unit, timeZone: series.timeZone }}
+            marks={bench.marks}
+            indicators={reportIndicators(view.indicators, rules)}
+          />
           <section aria-labelledby="provenance-heading">
-            <h2 id="provenance-heading" className="mb-1 font-semibold">Reproducing these numbers</h2>
+            <h2 id="provenance-heading" className="mb-1 font-semibold">
+              Reproducing these numbers
+            </h2>
             <ProvenancePanel analyses={bench.provenance ? [bench.provenance] : []} />
           </section>
         </>

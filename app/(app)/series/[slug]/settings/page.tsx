@@ -20,9 +20,19 @@ export default async function SeriesSettingsPage({ params }: { params: Promise<{
   return (
     <section className="max-w-4xl space-y-4">
       <nav aria-label="Breadcrumb" className="text-sm text-ink-soft">
-        <Link href="/" className="text-tide hover:underline">Overview</Link> / <Link href={`/series/${series.slug}`} className="text-tide hover:underline">{series.name}</Link> / Settings
+        <Link href="/" className="text-tide hover:underline">
+          Overview
+        </Link>{' '}
+        /{' '}
+        <Link href={`/series/${series.slug}`} className="text-tide hover:underline">
+          {series.name}
+        </Link>{' '}
+        / Settings
       </nav>
-      <h1 className="text-xl font-semibold">Settings of {series.name}{series.retired ? ' (retired)' : ''}</h1>
+      <h1 className="text-xl font-semibold">
+        Settings of {series.name}
+        {series.retired ? ' (retired)' : ''}
+      </h1>
       <SeriesForm sites={sites} series={series} />
       <Panel title={series.retired ? 'Restore' : 'Retire'} id="retire">
         <RetireControl slug={series.slug} retired={series.retired} />

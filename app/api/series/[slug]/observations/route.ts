@@ -35,8 +35,14 @@ export const POST = handle<{ slug: string }>(async (request, { params }) => {
   const writer = await requireIngestWriter(request, slug);
   const body = await readIntakeBody(request, { allowJson: true });
   const outcome = await ingestObservations({
-    series: writer.series, source: 'push', fileName: body.fileName, csv: body.csv, points: body.points, mapping: body.mapping,
-    actor: writer.actor, tokenId: writer.tokenId,
+    series: writer.series,
+    source: 'push',
+    fileName: body.fileName,
+    csv: body.csv,
+    points: body.points,
+    mapping: body.mapping,
+    actor: writer.actor,
+    tokenId: writer.tokenId,
   });
   const rejected = outcome.rejectedRows.map(({ line, column, reason }) => ({ line, column, reason }));
   if (outcome.status === 'failed') throw new ServiceUnavailableError('The points could not be stored just now; nothing was stored. Send them again.');
@@ -45,5 +51,13 @@ export const POST = handle<{ slug: string }>(async (request, { params }) => {
     for (const row of rejected.slice(0, 100)) (fields[`line.${row.line}`] ??= []).push(row.reason);
     throw new UnprocessableError(outcome.message, Object.keys(fields).length ? fields : undefined);
   }
-  return NextResponse.json({ runId: outcome.runId, accepted: outcome.accepted, duplicates: outcome.duplicates, replaced: outcome.replaced, rejected, flagged: outcome.flagged, message: outcome.message });
+  return NextResponse.json({
+    runId: outcome.runId,
+    accepted: outcome.accepted,
+    duplicates: outcome.duplicates,
+    replaced: outcome.replaced,
+    rejected,
+    flagged: outcome.flagged,
+    message: outcome.message,
+  });
 });

@@ -13,7 +13,13 @@ export const POST = handle<{ slug: string }>(async (request, { params }) => {
   const series = await findSeriesBySlug(slug);
   const body = await readIntakeBody(request, { allowJson: false });
   const outcome = await ingestObservations({
-    series, source: 'upload', fileName: body.fileName, contentHash: body.contentHash, csv: body.csv, mapping: body.mapping, actor,
+    series,
+    source: 'upload',
+    fileName: body.fileName,
+    contentHash: body.contentHash,
+    csv: body.csv,
+    mapping: body.mapping,
+    actor,
   });
   if (outcome.status === 'failed') throw new ServiceUnavailableError('The file could not be stored just now; nothing was stored. Try again.');
   return NextResponse.json(outcome, { status: outcome.status === 'succeeded' ? 200 : 422 });
