@@ -1,28 +1,17 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { chromium, type Browser, type BrowserContext } from 'playwright-core';
+import { type Browser, type BrowserContext } from 'playwright-core';
 import { DEMO_PASSWORD, startApp, type RunningApp } from '../support/app';
 import { signedIn, type Session } from '../support/session';
 import { simulateAr1 } from '@/lib/demo/models';
+import { launchChromium, SHOTS } from '../support/browser';
 
 /**
  * A lead's first morning, end to end on the started product with its scheduler and no demo network: a site and a
  * series registered on screen, a file dropped into the series' folder and analysed, a rule written with the
  * editor, its verdict on the latest analysis and a backtest of it.
  */
-const CHROMIUM = '/usr/bin/chromium';
-const FLAGS = [
-  '--headless',
-  '--no-sandbox',
-  '--disable-gpu',
-  '--disable-quic',
-  '--no-first-run',
-  '--disable-background-networking',
-  '--disable-component-update',
-  '--disable-sync',
-];
-const SHOTS = path.resolve(__dirname, '../../test-results/screenshots');
 const SLUG = 'journey-reservoir-oxygen';
 const DAY = 86_400_000;
 
@@ -43,13 +32,12 @@ function stationFile(): string {
 
 describe('a lead sets up monitoring on screen (Chromium)', () => {
   beforeAll(async () => {
-    fs.mkdirSync(SHOTS, { recursive: true });
     app = await startApp({
       demo: false,
       scheduler: true,
       env: { INGEST_CRON: '*/2 * * * * *', ANALYSIS_CRON: '*/3 * * * * *', BACKTEST_CRON: '*/2 * * * * *' },
     });
-    browser = await chromium.launch({ executablePath: CHROMIUM, args: FLAGS });
+    browser = await launchChromium();
     api = await signedIn(app.baseUrl, 'lead@brinkwatch.test', DEMO_PASSWORD);
     lead = await browser.newContext({ viewport: { width: 1280, height: 900 } });
     const page = await lead.newPage();

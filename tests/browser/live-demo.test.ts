@@ -1,22 +1,8 @@
-import fs from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { chromium, type Browser, type Page } from 'playwright-core';
+import { type Browser, type Page } from 'playwright-core';
 import { DEMO_PASSWORD, startApp, type RunningApp } from '../support/app';
-
-/** Debian's Chromium, never a downloaded browser; flags as in DEVELOPERS.md ("Browser tests"). */
-const CHROMIUM = '/usr/bin/chromium';
-const FLAGS = [
-  '--headless',
-  '--no-sandbox',
-  '--disable-gpu',
-  '--disable-quic',
-  '--no-first-run',
-  '--disable-background-networking',
-  '--disable-component-update',
-  '--disable-sync',
-];
-const SHOTS = path.resolve(__dirname, '../../test-results/screenshots');
+import { launchChromium, SHOTS } from '../support/browser';
 
 let app: RunningApp;
 let browser: Browser;
@@ -26,9 +12,8 @@ let page: Page;
 // and the intake every 5 s, so the first delivery shows within seconds rather than minutes.
 describe('the live demo in Chromium', () => {
   beforeAll(async () => {
-    fs.mkdirSync(SHOTS, { recursive: true });
     app = await startApp({ demo: true, env: { DEMO_FEED_CRON: '*/10 * * * * *', INGEST_CRON: '*/5 * * * * *' } });
-    browser = await chromium.launch({ executablePath: CHROMIUM, args: FLAGS });
+    browser = await launchChromium();
     page = await (await browser.newContext({ viewport: { width: 1280, height: 900 } })).newPage();
     await page.goto(`${app.baseUrl}/`);
     await page.waitForURL(/\/signin/);

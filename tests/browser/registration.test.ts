@@ -1,33 +1,14 @@
-import fs from 'node:fs';
-import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core';
+import { type Browser, type BrowserContext } from 'playwright-core';
 import { DEMO_PASSWORD, startApp, type RunningApp } from '../support/app';
 import { signedIn, type Session } from '../support/session';
-
-/** Debian's Chromium, never a downloaded browser; flags as in DEVELOPERS.md ("Browser tests"). */
-const CHROMIUM = '/usr/bin/chromium';
-const FLAGS = [
-  '--headless',
-  '--no-sandbox',
-  '--disable-gpu',
-  '--disable-quic',
-  '--no-first-run',
-  '--disable-background-networking',
-  '--disable-component-update',
-  '--disable-sync',
-];
-const SHOTS = path.resolve(__dirname, '../../test-results/screenshots');
+import { launchChromium, shot } from '../support/browser';
 
 let app: RunningApp;
 let browser: Browser;
 let lead: BrowserContext;
 let viewer: BrowserContext;
 let api: Session;
-
-async function shot(page: Page, name: string): Promise<void> {
-  await page.screenshot({ path: path.join(SHOTS, `${name}.png`), fullPage: true });
-}
 
 /** A browser context signed in through the sign-in page. */
 async function signInAs(role: 'lead' | 'viewer'): Promise<BrowserContext> {
@@ -51,9 +32,8 @@ async function seriesStatus(slug: string): Promise<number> {
 
 describe('registration screens in Chromium', () => {
   beforeAll(async () => {
-    fs.mkdirSync(SHOTS, { recursive: true });
     app = await startApp({ demo: true, scheduler: false });
-    browser = await chromium.launch({ executablePath: CHROMIUM, args: FLAGS });
+    browser = await launchChromium();
     api = await signedIn(app.baseUrl, 'lead@brinkwatch.test', DEMO_PASSWORD);
     lead = await signInAs('lead');
     viewer = await signInAs('viewer');

@@ -1,24 +1,10 @@
-import fs from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { chromium, type Browser, type BrowserContext } from 'playwright-core';
+import { type Browser, type BrowserContext } from 'playwright-core';
 import { DEMO_PASSWORD, startApp, type RunningApp } from '../support/app';
 import { signedIn, type Session } from '../support/session';
 import { periodContaining } from '@/lib/reports/period-shape';
-
-/** Debian's Chromium, never a downloaded browser; flags as in DEVELOPERS.md ("Browser tests"). */
-const CHROMIUM = '/usr/bin/chromium';
-const FLAGS = [
-  '--headless',
-  '--no-sandbox',
-  '--disable-gpu',
-  '--disable-quic',
-  '--no-first-run',
-  '--disable-background-networking',
-  '--disable-component-update',
-  '--disable-sync',
-];
-const SHOTS = path.resolve(__dirname, '../../test-results/screenshots');
+import { launchChromium, SHOTS } from '../support/browser';
 
 let app: RunningApp;
 let browser: Browser;
@@ -40,9 +26,8 @@ async function signIn(role: 'lead' | 'viewer'): Promise<BrowserContext> {
 
 describe('period reports (Chromium)', () => {
   beforeAll(async () => {
-    fs.mkdirSync(SHOTS, { recursive: true });
     app = await startApp({ demo: true });
-    browser = await chromium.launch({ executablePath: CHROMIUM, args: FLAGS });
+    browser = await launchChromium();
     [leadApi, viewerApi] = await Promise.all([
       signedIn(app.baseUrl, 'lead@brinkwatch.test', DEMO_PASSWORD),
       signedIn(app.baseUrl, 'viewer@brinkwatch.test', DEMO_PASSWORD),

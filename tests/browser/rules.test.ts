@@ -1,23 +1,8 @@
-import fs from 'node:fs';
-import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core';
+import { type Browser, type BrowserContext, type Page } from 'playwright-core';
 import { DEMO_PASSWORD, startApp, type RunningApp } from '../support/app';
 import { signedIn, type Session } from '../support/session';
-
-/** Debian's Chromium, never a downloaded browser; flags as in DEVELOPERS.md ("Browser tests"). */
-const CHROMIUM = '/usr/bin/chromium';
-const FLAGS = [
-  '--headless',
-  '--no-sandbox',
-  '--disable-gpu',
-  '--disable-quic',
-  '--no-first-run',
-  '--disable-background-networking',
-  '--disable-component-update',
-  '--disable-sync',
-];
-const SHOTS = path.resolve(__dirname, '../../test-results/screenshots');
+import { launchChromium, shot } from '../support/browser';
 
 let app: RunningApp;
 let browser: Browser;
@@ -45,9 +30,8 @@ async function open(role: 'lead' | 'viewer', pathname: string): Promise<Page> {
 
 describe('rules, who hears and chart choice on the series page (Chromium)', () => {
   beforeAll(async () => {
-    fs.mkdirSync(SHOTS, { recursive: true });
     app = await startApp({ demo: true, env: { ANALYSIS_CRON: '*/5 * * * * *' } });
-    browser = await chromium.launch({ executablePath: CHROMIUM, args: FLAGS });
+    browser = await launchChromium();
     [leadApi, viewerApi] = await Promise.all([
       signedIn(app.baseUrl, 'lead@brinkwatch.test', DEMO_PASSWORD),
       signedIn(app.baseUrl, 'viewer@brinkwatch.test', DEMO_PASSWORD),
@@ -133,7 +117,3 @@ describe('rules, who hears and chart choice on the series page (Chromium)', () =
     await page.close();
   }, 120_000);
 });
-
-async function shot(page: Page, name: string): Promise<void> {
-  await page.screenshot({ path: path.join(SHOTS, `${name}.png`), fullPage: true });
-}

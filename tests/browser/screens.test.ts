@@ -1,23 +1,10 @@
-import fs from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core';
+import { type Browser, type BrowserContext, type Page } from 'playwright-core';
 import { DEMO_PASSWORD, startApp, type RunningApp } from '../support/app';
 import { signedIn, type Session } from '../support/session';
+import { launchChromium, SHOTS, shot } from '../support/browser';
 
-/** Debian's Chromium, never a downloaded browser; flags as in DEVELOPERS.md ("Browser tests"). */
-const CHROMIUM = '/usr/bin/chromium';
-const FLAGS = [
-  '--headless',
-  '--no-sandbox',
-  '--disable-gpu',
-  '--disable-quic',
-  '--no-first-run',
-  '--disable-background-networking',
-  '--disable-component-update',
-  '--disable-sync',
-];
-const SHOTS = path.resolve(__dirname, '../../test-results/screenshots');
 const ROLES = ['admin', 'lead', 'analyst', 'viewer'] as const;
 type RoleName = (typeof ROLES)[number];
 
@@ -25,10 +12,6 @@ let app: RunningApp;
 let browser: Browser;
 const contexts = {} as Record<RoleName, BrowserContext>;
 let api: Session;
-
-async function shot(page: Page, name: string): Promise<void> {
-  await page.screenshot({ path: path.join(SHOTS, `${name}.png`), fullPage: true });
-}
 
 async function open(role: RoleName, pathname: string): Promise<Page> {
   const page = await contexts[role].newPage();
@@ -77,9 +60,8 @@ async function alertToTriage(): Promise<number> {
 
 describe('screens in Chromium', () => {
   beforeAll(async () => {
-    fs.mkdirSync(SHOTS, { recursive: true });
     app = await startApp({ demo: true, env: { ANALYSIS_CRON: '*/5 * * * * *' } });
-    browser = await chromium.launch({ executablePath: CHROMIUM, args: FLAGS });
+    browser = await launchChromium();
     api = await signedIn(app.baseUrl, 'analyst@brinkwatch.test', DEMO_PASSWORD);
   });
 

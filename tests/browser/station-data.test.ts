@@ -1,23 +1,10 @@
-import fs from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { chromium, type Browser, type Page } from 'playwright-core';
+import { type Browser, type Page } from 'playwright-core';
 import { DEMO_PASSWORD, startApp, type RunningApp } from '../support/app';
 import { signedIn, type Session } from '../support/session';
+import { launchChromium, SHOTS } from '../support/browser';
 
-/** Debian's Chromium, never a downloaded browser; flags as in DEVELOPERS.md ("Browser tests"). */
-const CHROMIUM = '/usr/bin/chromium';
-const FLAGS = [
-  '--headless',
-  '--no-sandbox',
-  '--disable-gpu',
-  '--disable-quic',
-  '--no-first-run',
-  '--disable-background-networking',
-  '--disable-component-update',
-  '--disable-sync',
-];
-const SHOTS = path.resolve(__dirname, '../../test-results/screenshots');
 const SLUG = 'veskary-deep-temperature';
 
 let app: RunningApp;
@@ -27,9 +14,8 @@ let analyst: Session;
 
 describe('station data in Chromium', () => {
   beforeAll(async () => {
-    fs.mkdirSync(SHOTS, { recursive: true });
     app = await startApp({ demo: true, env: { ANALYSIS_CRON: '*/5 * * * * *' } });
-    browser = await chromium.launch({ executablePath: CHROMIUM, args: FLAGS });
+    browser = await launchChromium();
     analyst = await signedIn(app.baseUrl, 'analyst@brinkwatch.test', DEMO_PASSWORD);
     page = await (await browser.newContext({ viewport: { width: 1280, height: 900 } })).newPage();
     await page.goto(`${app.baseUrl}/`);

@@ -1,22 +1,10 @@
 import http from 'node:http';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { chromium, type Browser, type Page } from 'playwright-core';
+import { type Browser, type Page } from 'playwright-core';
 import { DEMO_PASSWORD, freePort, startApp, type RunningApp } from '../support/app';
 import { signedIn } from '../support/session';
-
-/** Debian's Chromium, never a downloaded browser; flags as in DEVELOPERS.md ("Browser tests"). */
-const FLAGS = [
-  '--headless',
-  '--no-sandbox',
-  '--disable-gpu',
-  '--disable-quic',
-  '--no-first-run',
-  '--disable-background-networking',
-  '--disable-component-update',
-  '--disable-sync',
-];
-const SHOTS = path.resolve(__dirname, '../../test-results/screenshots');
+import { launchChromium, SHOTS } from '../support/browser';
 
 let app: RunningApp;
 let browser: Browser;
@@ -38,7 +26,7 @@ describe('the webhooks screen (Chromium)', () => {
     await new Promise<void>((resolve) => receiver.listen(port, '127.0.0.1', resolve));
     receiverUrl = `http://127.0.0.1:${port}/chat-bridge`;
     app = await startApp({ scheduler: true, env: { WEBHOOK_CRON: '* * * * * *' } });
-    browser = await chromium.launch({ executablePath: '/usr/bin/chromium', args: FLAGS });
+    browser = await launchChromium();
     page = await (await browser.newContext({ viewport: { width: 1280, height: 900 } })).newPage();
     await page.goto(`${app.baseUrl}/`);
     await page.waitForURL(/\/signin/);
