@@ -85,6 +85,9 @@ describe('alerts end to end', () => {
       name: 'Fold basin <test>',
       site: 'Station 9',
       intervalMs: 86_400_000,
+      // The record is historical (2022–2023): the freshness pass would rightly call it late and open a data-late
+      // alert; this test is about the slowing-down alert, so the series may be silent for ten years.
+      lateAfterMs: 3650 * 86_400_000,
       settings: { surrogates: 200, seed: 5 },
     });
     expect(created.status).toBe(201);

@@ -60,7 +60,7 @@ describe('endpoint addresses', () => {
     expect(result.success).toBe(false);
     const paths = result.error!.issues.map((i) => i.path.join('.'));
     expect(paths).toEqual(expect.arrayContaining(['url', 'events']));
-    expect(webhookCreateSchema.safeParse({ url: 'https://x.test/', events: ['data.late'] }).success).toBe(false);
+    expect(webhookCreateSchema.safeParse({ url: 'https://x.test/', events: ['data.stale'] }).success).toBe(false);
     expect(webhookCreateSchema.parse({ url: ' https://x.test/ ', events: ['alert.opened', 'alert.opened'] })).toEqual({
       url: 'https://x.test/',
       events: ['alert.opened'],
