@@ -30,10 +30,15 @@ const PACKED_ROWS = 100_000;
  */
 export async function loadObservations(seriesId: number, range: ObservationRange = {}): Promise<{ time: Float64Array; value: Float64Array }> {
   const connection = await rawReadConnection();
-  const [series] = await allRows<{ qc: string | null }>(connection, 'SELECT qc FROM series WHERE id = ?', [seriesId]);
-  const qc = series?.qc ? qcConfigSchema.safeParse(JSON.parse(series.qc)) : null;
-  const { time, value } = await readPacked(connection, seriesId, range, flagsLeftOut(qc?.success ? qc.data.suspectInAnalysis : true));
+  const { time, value } = await readPacked(connection, seriesId, range, await flagsLeftOutOf(seriesId));
   return { time, value };
+}
+
+/** The QARTOD flags an analysis of the series leaves out: fail and missing, and suspect unless its QC keeps them. */
+export async function flagsLeftOutOf(seriesId: number): Promise<number[]> {
+  const [series] = await allRows<{ qc: string | null }>(await rawReadConnection(), 'SELECT qc FROM series WHERE id = ?', [seriesId]);
+  const qc = series?.qc ? qcConfigSchema.safeParse(JSON.parse(series.qc)) : null;
+  return flagsLeftOut(qc?.success ? qc.data.suspectInAnalysis : true);
 }
 
 /** Every point of a series in time order with its QARTOD flag (what the observations API and the record chart show). O(n). */

@@ -6,7 +6,7 @@ import { ENGINE_VERSION } from '@/lib/engine/version';
 import { formatInstant } from '@/lib/intake/time-formats';
 import { ConflictError, NotFoundError } from '@/lib/http/errors';
 import { analysisFileName, reproduceCommand, type SnapshotProvenance } from './provenance-record';
-import { loadObservations } from './observations';
+import { flagsLeftOutOf, loadObservations } from './observations';
 
 /**
  * The canonical form of analysed observations, the text their SHA-256 is taken over: the header `time,value`, then
@@ -26,12 +26,16 @@ function sha256Hex(text: string): string {
   return createHash('sha256').update(text, 'utf8').digest('hex');
 }
 
-/** Which ingest runs last wrote the rows of [from, to], and how many rows no recorded run wrote. One grouped scan. */
+/**
+ * Which ingest runs last wrote the analysed rows of [from, to] (the flags the analysis leaves out are left out here
+ * too), and how many of them no recorded run wrote. One grouped scan.
+ */
 async function contributingRuns(seriesId: number, from: number, to: number): Promise<{ ingestRuns: number[]; rowsWithoutRun: number }> {
   const sequelize = await db();
+  const leftOut = await flagsLeftOutOf(seriesId);
   const groups = await sequelize.query<{ run: number | null; rows: number }>(
-    'SELECT ingest_run_id AS run, COUNT(*) AS rows FROM observations WHERE series_id = :seriesId AND t >= :from AND t <= :to GROUP BY ingest_run_id',
-    { replacements: { seriesId, from, to }, type: QueryTypes.SELECT },
+    'SELECT ingest_run_id AS run, COUNT(*) AS rows FROM observations WHERE series_id = :seriesId AND t >= :from AND t <= :to AND flag NOT IN (:leftOut) GROUP BY ingest_run_id',
+    { replacements: { seriesId, from, to, leftOut }, type: QueryTypes.SELECT },
   );
   return {
     ingestRuns: groups

@@ -8,7 +8,7 @@ import { useTempDataDir } from '../support/temp-db';
 
 useTempDataDir('bw-provenance-');
 const { migrateUp } = await import('@/migrations');
-const { AnalysisSnapshot, Series, User, closeDatabase, db } = await import('@/models');
+const { AnalysisSnapshot, Observation, Series, User, closeDatabase, db } = await import('@/models');
 const { createSeries } = await import('@/lib/series/registry');
 const { refreshSeriesAnalysis } = await import('@/lib/analysis/snapshot');
 const { snapshotDataCsv, canonicalObservationsCsv } = await import('@/lib/analysis/provenance');
@@ -132,6 +132,20 @@ describe('an analysis records where its numbers came from and can be reproduced 
     const download = await snapshotDataCsv(snapshotId);
     expect(download.matches).toBe(false);
     expect(download.csv).toMatch(/^# warning: values in this range were replaced/m);
+  });
+
+  it('lists only the runs whose rows were analysed: a run whose only row failed QC (flag 4) is not among them', async () => {
+    const series = await createSeries({ slug: 'pond-level', name: 'Pond level', intervalMs: DAY, settings: { surrogates: 0, span: null } }, null);
+    const values = simulateAr1({ n: 200, phi: 0.5, sigma: 1, mean: 2, seed: 8 });
+    const times = Array.from({ length: 200 }, (_, i) => START + i * DAY);
+    const main = await ingestObservations({ series, source: 'upload', fileName: 'main.csv', csv: csvOf(times, values, 0, 199) });
+    const late = await ingestObservations({ series, source: 'upload', fileName: 'late.csv', csv: csvOf(times, values, 199, 200) });
+    // The last reading fails QC (QARTOD flag 4): the analysis, its hash and its provenance leave it out.
+    await Observation.update({ flag: 4 }, { where: { seriesId: series.id, t: times[199] } });
+    const snapshot = await refreshSeriesAnalysis((await Series.findByPk(series.id))!);
+    expect(snapshot.provenance!.rows).toBe(199);
+    expect(snapshot.provenance!.ingestRuns).toEqual([main.runId]);
+    expect(snapshot.provenance!.ingestRuns).not.toContain(late.runId);
   });
 
   it('writes the canonical form by its definition: ISO 8601 UTC with milliseconds, shortest round-trip values', () => {
