@@ -56,7 +56,8 @@ describe('the live demo after a fresh start', () => {
       expect(dropped.accepted).toBeGreaterThanOrEqual(1);
       const series = await Series.findByPk(dropped.seriesId!);
       const processed = path.join(dataDir, 'drops', series!.slug, 'processed');
-      expect(fs.existsSync(path.join(processed, `${dropped.fileName}.report.json`))).toBe(true);
+      // The drop job moves the file and writes its report after the run's final write: wait for them.
+      await waitFor('the run report beside the processed file', () => fs.existsSync(path.join(processed, `${dropped.fileName}.report.json`)), left(), 250);
 
       const pushSeries = await Series.findOne({ where: { slug: PUSH_SLUG } });
       const pushed = await waitFor(
