@@ -9,6 +9,7 @@ import { useChartPalette } from '@/components/charts/theme';
 import { ErrorNote } from '@/components/States';
 import { Button } from '@/components/ui/Button';
 import { CONTROL, Field } from '@/components/ui/Field';
+import { ReasonField, reasonBody } from '@/components/ui/ReasonField';
 import { formatTau } from '@/lib/display/format';
 import type { BacktestResult } from '@/lib/backtest/run';
 
@@ -41,9 +42,13 @@ export function BacktestRoc({
   const colours = useChartPalette();
   const client = useQueryClient();
   const [pick, setPick] = useState<number>(initialThreshold);
+  const [reason, setReason] = useState('');
   const useThreshold = useMutation({
-    mutationFn: (threshold: number) => api(`/api/rules/${ruleId}/threshold`, { method: 'POST', body: { threshold, jobId } }),
-    onSuccess: () => void client.invalidateQueries({ queryKey: ['rules', slug] }),
+    mutationFn: (threshold: number) => api(`/api/rules/${ruleId}/threshold`, { method: 'POST', body: { threshold, jobId, ...reasonBody(reason) } }),
+    onSuccess: () => {
+      setReason('');
+      void client.invalidateQueries({ queryKey: ['rules', slug] });
+    },
   });
   const saved = useThreshold.isSuccess ? (useThreshold.variables ?? null) : null;
   return (
@@ -87,6 +92,8 @@ export function BacktestRoc({
             ))}
           </select>
         </Field>
+        {/* The backtest is recorded as the threshold's source; the lead's reason says why this point of the curve. */}
+        {canSave ? <ReasonField className="min-w-72 flex-1" value={reason} onChange={setReason} required={false} /> : null}
         {canSave ? (
           <Button variant="primary" disabled={useThreshold.isPending || pick === currentThreshold} onClick={() => useThreshold.mutate(pick)}>
             {useThreshold.isPending ? 'Saving…' : 'Use this threshold'}

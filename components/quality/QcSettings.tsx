@@ -5,6 +5,7 @@ import { useMutation } from '@tanstack/react-query';
 import { api, ApiError } from '@/components/api';
 import { Button } from '@/components/ui/Button';
 import { CONTROL, Field } from '@/components/ui/Field';
+import { ReasonField, reasonBody } from '@/components/ui/ReasonField';
 import type { QcConfig } from '@/lib/schemas/quality';
 
 type Draft = Record<string, string>;
@@ -91,7 +92,11 @@ function settingsOf(d: Draft): Record<string, unknown> {
  */
 export function QcSettings({ slug, initial, canEdit }: { slug: string; initial: QcConfig | null; canEdit: boolean }) {
   const [draft, setDraft] = useState<Draft>(() => draftOf(initial));
-  const save = useMutation({ mutationFn: () => api(`/api/series/${slug}`, { method: 'PATCH', body: { qc: settingsOf(draft) } }) });
+  const [reason, setReason] = useState('');
+  const save = useMutation({
+    mutationFn: () => api(`/api/series/${slug}`, { method: 'PATCH', body: { qc: settingsOf(draft), ...reasonBody(reason) } }),
+    onSuccess: () => setReason(''),
+  });
   const rerun = useMutation({
     mutationFn: () => api<{ points: number; changed: number; counts: Record<string, number> }>(`/api/series/${slug}/qc/rerun`, { method: 'POST' }),
   });
@@ -132,6 +137,8 @@ export function QcSettings({ slug, initial, canEdit }: { slug: string; initial: 
               <option value="no">left out like failed points</option>
             </select>
           </Field>
+          {/* Changing limits a series already has is a threshold change a reviewer asks about; first limits are not. */}
+          {canEdit ? <ReasonField value={reason} onChange={setReason} required={initial !== null} /> : null}
         </fieldset>
         {problems.length ? (
           <ul className="text-xs text-warning" role="alert">

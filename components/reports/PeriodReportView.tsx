@@ -149,7 +149,7 @@ export function PeriodReportView({ report }: { report: PeriodReport }) {
               <td className={CELL_TIGHT}>{c.seriesSlug ?? '–'}</td>
               <td className={CELL_TIGHT}>{c.what}</td>
               <td className={`${CELL_TIGHT} break-all`}>{c.detail || '–'}</td>
-              <td className={CELL_TIGHT}>{c.why ?? 'not recorded'}</td>
+              <td className={CELL_TIGHT}>{c.why ?? 'none given'}</td>
             </tr>
           ))}
         </DataTable>

@@ -7,6 +7,7 @@ import { ApiError, api } from '@/components/api';
 import { ErrorNote, Loading } from '@/components/States';
 import { Button } from '@/components/ui/Button';
 import { CONTROL, Field } from '@/components/ui/Field';
+import { ReasonField, reasonBody } from '@/components/ui/ReasonField';
 import { useDebounced } from '@/components/workbench/use-debounced';
 import type { DraftPreview } from '@/lib/alerts/rule-preview';
 import type { RuleRecord } from '@/lib/alerts/rules';
@@ -120,9 +121,14 @@ export function RuleEditor({
     void client.invalidateQueries({ queryKey: ['rules', slug] });
     router.refresh();
   };
+  const [reason, setReason] = useState('');
   const save = useMutation({
-    mutationFn: () =>
-      id === null ? api<RuleRecord>(`/api/series/${slug}/rules`, { method: 'POST', body }) : api<RuleRecord>(`/api/rules/${id}`, { method: 'PATCH', body }),
+    mutationFn: () => {
+      const saved = { ...body, ...reasonBody(reason) };
+      return id === null
+        ? api<RuleRecord>(`/api/series/${slug}/rules`, { method: 'POST', body: saved })
+        : api<RuleRecord>(`/api/rules/${id}`, { method: 'PATCH', body: saved });
+    },
     onSuccess: () => {
       refresh();
       onClose();
@@ -261,6 +267,9 @@ export function RuleEditor({
         <DraftVerdict preview={preview.data} loading={preview.isLoading} failed={preview.isError} />
         {preview.isFetching && !preview.isLoading ? <p className="text-xs text-ink-soft">Judging the draft…</p> : null}
       </section>
+
+      {/* Editing a stored rule changes a threshold someone relied on: say why. A new rule may say why it exists. */}
+      <ReasonField value={reason} onChange={setReason} required={ruleId !== null} error={errorOf('reason')} />
 
       {refused._ ? <ErrorNote>{refused._.join(' ')}</ErrorNote> : null}
       {error ? <ErrorNote error={error}>{error === preview.error ? 'This draft is not a valid rule yet.' : 'Not done.'}</ErrorNote> : null}

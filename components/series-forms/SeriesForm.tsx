@@ -7,6 +7,7 @@ import { api } from '@/components/api';
 import { ErrorNote } from '@/components/States';
 import { Button } from '@/components/ui/Button';
 import { CONTROL, Field } from '@/components/ui/Field';
+import { ReasonField, reasonBody } from '@/components/ui/ReasonField';
 import { TIME_FORMAT_LABELS } from '@/lib/intake/choices';
 import { LIVE_SETTINGS_DEFAULTS, TIME_FORMATS, suggestSlug } from '@/lib/schemas/series';
 import type { SeriesRecord } from '@/lib/series/registry';
@@ -83,7 +84,7 @@ export function SeriesForm({ sites, series, initialSiteId = null }: SeriesFormPr
   const settings = (series?.settings ?? LIVE_SETTINGS_DEFAULTS) as Record<string, unknown>;
   const interval = intervalParts(series ? series.intervalMs : 86_400_000);
   const startSite = sites.find((s) => s.id === (series ? series.siteId : initialSiteId));
-  const [form, setForm] = useState({
+  const [initialForm] = useState(() => ({
     name: series?.name ?? '',
     slug: series?.slug ?? '',
     site: startSite ? String(startSite.id) : '',
@@ -101,7 +102,11 @@ export function SeriesForm({ sites, series, initialSiteId = null }: SeriesFormPr
     ...(Object.fromEntries(
       SETTINGS_HELP.map(({ key }) => [key, key in settings ? String(settings[key] ?? '') : String(LIVE_SETTINGS_DEFAULTS[key])]),
     ) as Record<(typeof SETTINGS_HELP)[number]['key'], string>),
-  });
+  }));
+  const [form, setForm] = useState(initialForm);
+  const [reason, setReason] = useState('');
+  // Changing how an existing series is analysed needs a reason; renaming it or fixing its unit does not.
+  const analysisChanged = Boolean(series) && SETTINGS_HELP.some(({ key }) => form[key] !== initialForm[key]);
   const [slugEdited, setSlugEdited] = useState(Boolean(series));
   const [zoneEdited, setZoneEdited] = useState(Boolean(series));
   type Key = keyof typeof form;
@@ -136,10 +141,11 @@ export function SeriesForm({ sites, series, initialSiteId = null }: SeriesFormPr
         },
       };
       return series
-        ? api<SeriesRecord>(`/api/series/${series.slug}`, { method: 'PATCH', body })
+        ? api<SeriesRecord>(`/api/series/${series.slug}`, { method: 'PATCH', body: { ...body, ...reasonBody(reason) } })
         : api<SeriesRecord>('/api/series', { method: 'POST', body: { ...body, slug: form.slug } });
     },
     onSuccess: (saved) => {
+      setReason('');
       if (series) router.refresh();
       else router.push(`/series/${saved.slug}`);
     },
@@ -283,6 +289,8 @@ export function SeriesForm({ sites, series, initialSiteId = null }: SeriesFormPr
           series page before a lead saves them there.
         </p>
       </Section>
+
+      {series ? <ReasonField value={reason} onChange={setReason} required={analysisChanged} error={error('reason')} /> : null}
 
       <div className="flex flex-wrap items-center gap-3">
         <Button type="submit" variant="primary" size="lg" disabled={save.isPending}>

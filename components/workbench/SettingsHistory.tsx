@@ -43,6 +43,7 @@ export function SettingsHistory({ slug, initial, timeZone }: { slug: string; ini
             {i === 0 ? <span className="text-xs text-calm">(in use)</span> : null}
           </div>
           <div className="text-xs text-ink-soft">{describe(entry.settings)}</div>
+          {entry.reason ? <div className="text-xs">Why: {entry.reason}</div> : null}
         </li>
       ))}
     </ol>

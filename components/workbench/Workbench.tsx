@@ -21,6 +21,7 @@ import { useDebounced } from './use-debounced';
 import { ChartChooser } from './ChartChooser';
 import type { SeriesChart } from '@/lib/schemas/account';
 import { Button, buttonClass } from '@/components/ui/Button';
+import { ReasonField, reasonBody } from '@/components/ui/ReasonField';
 
 const same = (a: unknown, b: unknown) => JSON.stringify(a) === JSON.stringify(b);
 const linkButton = buttonClass('secondary');
@@ -73,10 +74,12 @@ export function Workbench({ series, savedSettings, initialView, canTune, canSave
     staleTime: Infinity,
     retry: false,
   });
+  const [reason, setReason] = useState('');
   const save = useMutation({
-    mutationFn: (settings: AnalysisSettings) => api(`/api/series/${series.slug}`, { method: 'PATCH', body: { settings } }),
+    mutationFn: (settings: AnalysisSettings) => api(`/api/series/${series.slug}`, { method: 'PATCH', body: { settings, ...reasonBody(reason) } }),
     onSuccess: () => {
       setSaved(draft);
+      setReason('');
       void queryClient.invalidateQueries({ queryKey: ['settings-history', series.slug] });
       router.refresh();
     },
@@ -163,9 +166,10 @@ export function Workbench({ series, savedSettings, initialView, canTune, canSave
         {canTune ? (
           <Panel title="Tuning" id="tuning">
             <TuningPanel draft={draft} onChange={setDraft} />
+            {canSave && changed ? <ReasonField className="mt-4" value={reason} onChange={setReason} required /> : null}
             <div className="mt-4 flex flex-wrap gap-2">
               {canSave ? (
-                <Button variant="primary" disabled={!changed || save.isPending} onClick={() => save.mutate(draft)}>
+                <Button variant="primary" disabled={!changed || !reason.trim() || save.isPending} onClick={() => save.mutate(draft)}>
                   {save.isPending ? 'Saving…' : 'Save settings'}
                 </Button>
               ) : (

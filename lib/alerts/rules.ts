@@ -163,7 +163,7 @@ export async function listRules(seriesId: number | null): Promise<AlertRule[]> {
  * queues its calibration (false alarms per year of the live procedure on surrogates) in the same transaction.
  */
 export async function createRule(seriesId: number | null, input: RuleCreateInput, actor: Pick<Actor, 'id'>): Promise<AlertRule> {
-  const fields = ruleCreateSchema.parse(input);
+  const { reason, ...fields } = ruleCreateSchema.parse(input);
   return writeTransaction(async (transaction) => {
     if (seriesId !== null) await assertJudgeable(seriesId, fields, transaction);
     const rule = await AlertRule.create({ ...fields, seriesId, createdBy: actor.id }, { transaction });
@@ -173,7 +173,7 @@ export async function createRule(seriesId: number | null, input: RuleCreateInput
         action: seriesId === null ? 'rule.default.create' : 'rule.create',
         entity: 'alert_rule',
         entityId: rule.id,
-        details: { seriesId, ...fields },
+        details: { seriesId, ...fields, reason: reason ?? null },
       },
       transaction,
     );
@@ -183,7 +183,7 @@ export async function createRule(seriesId: number | null, input: RuleCreateInput
 }
 
 export async function updateRule(id: number, input: RuleUpdate, actor: Pick<Actor, 'id'>): Promise<AlertRule> {
-  const changes = ruleUpdateSchema.parse(input);
+  const { reason = null, ...changes } = ruleUpdateSchema.parse(input);
   return writeTransaction(async (transaction) => {
     const rule = await AlertRule.findByPk(id, { transaction });
     if (!rule) throw new NotFoundError('Rule');
@@ -193,7 +193,7 @@ export async function updateRule(id: number, input: RuleUpdate, actor: Pick<Acto
     const judgedAgain = changes.active === true || ((changes.active ?? rule.active) && ['indicator', 'maxSurrogateP', 'fdrLevel'].some((f) => f in changes));
     if (rule.seriesId !== null && judgedAgain) await assertJudgeable(rule.seriesId, after, transaction);
     await rule.update(changes, { transaction });
-    await recordAudit({ actorId: actor.id, action: 'rule.update', entity: 'alert_rule', entityId: id, details: { before, changes } }, transaction);
+    await recordAudit({ actorId: actor.id, action: 'rule.update', entity: 'alert_rule', entityId: id, details: { before, changes, reason } }, transaction);
     const recalibrate = CALIBRATED_FIELDS.some((f) => f in changes && (changes as Record<string, unknown>)[f] !== (before as Record<string, unknown>)[f]);
     if (rule.seriesId !== null && rule.active && recalibrate) await queueRuleCalibration(rule.id, actor, transaction);
     return rule;

@@ -8,9 +8,11 @@ export interface SettingsHistoryEntry {
   /** ISO 8601 */
   changedAt: string;
   changedBy: { id: number; name: string } | null;
+  /** why the lead changed them; null when no reason was given */
+  reason: string | null;
 }
 
-/** Who saved which analysis settings on a series, and when, newest first. */
+/** Who saved which analysis settings on a series, when and why, newest first. */
 export async function fetchSettingsHistory(seriesId: number, limit = 50): Promise<SettingsHistoryEntry[]> {
   await db();
   const rows = await SettingsChange.findAll({
@@ -21,6 +23,12 @@ export async function fetchSettingsHistory(seriesId: number, limit = 50): Promis
   });
   return rows.map((row) => {
     const author = (row as SettingsChange & { author?: User | null }).author;
-    return { id: row.id, settings: row.settings, changedAt: row.createdAt.toISOString(), changedBy: author ? { id: author.id, name: author.name } : null };
+    return {
+      id: row.id,
+      settings: row.settings,
+      changedAt: row.createdAt.toISOString(),
+      changedBy: author ? { id: author.id, name: author.name } : null,
+      reason: row.reason ?? null,
+    };
   });
 }

@@ -151,7 +151,11 @@ export async function cancelBacktest(id: number, actor: Pick<Actor, 'id'>): Prom
 }
 
 /** Saves a tau threshold (picked from a calibration's ROC) into the rule, with the ROC point it came from in the audit entry. */
-export async function saveRuleThreshold(ruleId: number, input: { threshold: number; jobId: number | null }, actor: Pick<Actor, 'id'>): Promise<AlertRule> {
+export async function saveRuleThreshold(
+  ruleId: number,
+  input: { threshold: number; jobId: number | null; reason?: string },
+  actor: Pick<Actor, 'id'>,
+): Promise<AlertRule> {
   return writeTransaction(async (transaction) => {
     const rule = await AlertRule.findByPk(ruleId, { transaction });
     if (!rule) throw new NotFoundError('Rule');
@@ -170,7 +174,7 @@ export async function saveRuleThreshold(ruleId: number, input: { threshold: numb
         action: 'rule.threshold',
         entity: 'alert_rule',
         entityId: ruleId,
-        details: { before, after: input.threshold, jobId: input.jobId, rocPoint },
+        details: { before, after: input.threshold, jobId: input.jobId, rocPoint, reason: input.reason ?? null },
       },
       transaction,
     );

@@ -163,17 +163,19 @@ export async function buildPeriodReport(period: Period, site: string | null = nu
        GROUP BY series_id`,
       { replacements: { ids: idList, end: sqlDate(end) }, type: QueryTypes.SELECT },
     ),
-    sequelize.query<{ id: number; series_id: number; settings: string; created_at: string; who: string | null; before: string | null }>(
-      `SELECT c.id, c.series_id, c.settings, c.created_at, u.name AS who,
+    sequelize.query<{ id: number; series_id: number; settings: string; reason: string | null; created_at: string; who: string | null; before: string | null }>(
+      `SELECT c.id, c.series_id, c.settings, c.reason, c.created_at, u.name AS who,
          (SELECT p.settings FROM settings_changes p WHERE p.series_id = c.series_id AND p.id < c.id ORDER BY p.id DESC LIMIT 1) AS before
        FROM settings_changes c LEFT JOIN users u ON u.id = c.changed_by
        WHERE c.series_id IN (SELECT value FROM json_each(:ids)) AND c.created_at >= :start AND c.created_at < :end ORDER BY c.created_at, c.id`,
       { replacements: { ids: idList, start: sqlDate(start), end: sqlDate(end) }, type: QueryTypes.SELECT },
     ),
     sequelize.query<{ action: string; entity_id: string; details: string; created_at: string; who: string | null; series_id: number | null }>(
-      `SELECT l.action, l.entity_id, l.details, l.created_at, u.name AS who, r.series_id
+      `SELECT l.action, l.entity_id, l.details, l.created_at, u.name AS who,
+         CASE WHEN l.entity = 'series' THEN CAST(l.entity_id AS INTEGER) ELSE r.series_id END AS series_id
        FROM audit_log l LEFT JOIN users u ON u.id = l.actor_id LEFT JOIN alert_rules r ON l.entity = 'alert_rule' AND r.id = CAST(l.entity_id AS INTEGER)
-       WHERE l.entity = 'alert_rule' AND l.action IN ('rule.create', 'rule.update', 'rule.threshold', 'rule.deactivate', 'rule.delete')
+       WHERE (l.entity = 'alert_rule' AND l.action IN ('rule.create', 'rule.update', 'rule.threshold', 'rule.deactivate', 'rule.delete')
+           OR l.entity = 'series' AND l.action = 'series.update')
          AND l.created_at >= :start AND l.created_at < :end ORDER BY l.created_at, l.id`,
       { replacements: { start: sqlDate(start), end: sqlDate(end) }, type: QueryTypes.SELECT },
     ),
@@ -275,16 +277,15 @@ export async function buildPeriodReport(period: Period, site: string | null = nu
       seriesSlug: bySeries.get(Number(c.series_id))!.slug,
       what: c.before === null ? 'analysis settings set' : 'analysis settings changed',
       detail: describeSettingsChange(c.before, c.settings),
-      why: null,
+      why: c.reason,
     })),
     ...ruleChanges
       .filter((c) => c.series_id !== null && bySeries.has(Number(c.series_id)))
-      .map((c) => ({
-        at: isoOf(c.created_at),
-        who: c.who ?? 'system',
-        seriesSlug: bySeries.get(Number(c.series_id))!.slug,
-        ...describeRuleChange(c.action, Number(c.entity_id), parseJson(c.details)),
-      })),
+      .flatMap((c) => {
+        const details = parseJson(c.details);
+        const change = c.action === 'series.update' ? describeQcChange(details) : describeRuleChange(c.action, Number(c.entity_id), details);
+        return change ? [{ at: isoOf(c.created_at), who: c.who ?? 'system', seriesSlug: bySeries.get(Number(c.series_id))!.slug, ...change }] : [];
+      }),
   ].sort((a, b) => a.at.localeCompare(b.at));
 
   return {
@@ -350,6 +351,24 @@ function describeSettingsChange(before: string | null, after: string): string {
   return keys.map((k) => `${k} ${JSON.stringify(prev[k] ?? null)} → ${JSON.stringify(next[k] ?? null)}`).join('; ') || 'no effective change';
 }
 
+/**
+ * A change of a series' quality-control limits from its audit entry; other series edits (name, unit, analysis
+ * settings, which have their own history above) are not threshold changes and leave no line.
+ */
+function describeQcChange(details: Record<string, unknown>): Pick<ReportChange, 'what' | 'detail' | 'why'> | null {
+  if (!Array.isArray(details.fields) || !details.fields.includes('qc')) return null;
+  const before = (details.qcBefore ?? {}) as Record<string, unknown> | null;
+  const after = (details.qcAfter ?? {}) as Record<string, unknown> | null;
+  const keys = [...new Set([...Object.keys(before ?? {}), ...Object.keys(after ?? {})])].filter(
+    (k) => JSON.stringify(before?.[k]) !== JSON.stringify(after?.[k]),
+  );
+  return {
+    what: 'quality-control limits changed',
+    detail: keys.map((k) => `${k} ${JSON.stringify(before?.[k] ?? null)} → ${JSON.stringify(after?.[k] ?? null)}`).join('; ') || 'QC tests switched off',
+    why: typeof details.reason === 'string' ? details.reason : null,
+  };
+}
+
 const RULE_WORDS: Record<string, string> = {
   'rule.create': 'rule created',
   'rule.update': 'rule changed',
@@ -363,14 +382,9 @@ const RULE_WORDS: Record<string, string> = {
  * given, the backtest a threshold was chosen from; otherwise none was asked for.
  */
 function describeRuleChange(action: string, ruleId: number, details: Record<string, unknown>): Pick<ReportChange, 'what' | 'detail' | 'why'> {
-  const why =
-    typeof details.reason === 'string'
-      ? details.reason
-      : typeof details.note === 'string'
-        ? details.note
-        : action === 'rule.threshold' && details.jobId
-          ? `chosen from backtest #${String(details.jobId)}`
-          : null;
+  const source = action === 'rule.threshold' && details.jobId ? `chosen from backtest #${String(details.jobId)}` : null;
+  const given = typeof details.reason === 'string' ? details.reason : typeof details.note === 'string' ? details.note : null;
+  const why = given && source ? `${given} (${source})` : (given ?? source);
   let detail = '';
   if (action === 'rule.update' && details.changes && typeof details.changes === 'object') {
     const before = (details.before ?? {}) as Record<string, unknown>;

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { changeReasonSchema } from './change-reason';
 import { SURROGATE_METHODS } from '@/lib/engine/settings';
 import { MARK_KINDS } from '@/lib/marks/kinds';
 import { ruleCreateSchema } from './rule';
@@ -40,7 +41,9 @@ export const backtestListQuerySchema = z.object({
 });
 
 /** Body of POST /api/rules/{id}/threshold: the tau threshold picked from a calibration's ROC. */
-export const thresholdSchema = z.object({ threshold: z.number().min(-1).max(1), jobId: z.number().int().positive().nullable().default(null) }).strict();
+export const thresholdSchema = z
+  .object({ threshold: z.number().min(-1).max(1), jobId: z.number().int().positive().nullable().default(null), reason: changeReasonSchema.optional() })
+  .strict();
 
 /** An instant as ISO 8601 text (with a zone or Z) or UTC epoch milliseconds. */
 const instantSchema = z.union([

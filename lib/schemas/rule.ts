@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { changeReasonSchema } from './change-reason';
 import { INDICATOR_NAMES } from '@/lib/engine/settings';
 import { RULE_DIRECTIONS, defaultRuleDirection } from '@/models/AlertRule';
 
@@ -55,10 +56,16 @@ export const ruleCreateSchema = z
     quietPeriodHours: ruleShape.quietPeriodHours.default(0),
     fdrLevel: ruleShape.fdrLevel.default(null),
     active: ruleShape.active.default(true),
+    /** why the rule is added; kept in its audit entry */
+    reason: changeReasonSchema.optional(),
   })
   .strict()
   .transform((rule) => ({ ...rule, direction: rule.direction ?? defaultRuleDirection(rule.indicator) }));
-export const ruleUpdateSchema = z.object(ruleShape).partial().strict();
+/** `reason`: why the rule changed, kept in its audit entry and shown in period reports. */
+export const ruleUpdateSchema = z
+  .object({ ...ruleShape, reason: changeReasonSchema })
+  .partial()
+  .strict();
 
 export type RuleCreateInput = z.input<typeof ruleCreateSchema>;
 export type RuleFields = z.output<typeof ruleCreateSchema>;

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { changeReasonSchema } from './change-reason';
 import { analysisSettingsSchema } from '@/lib/engine/settings';
 import { isExtent, parseExtent } from '@/lib/engine/extent';
 import { qcConfigSchema } from './quality';
@@ -158,6 +159,8 @@ export const seriesUpdateSchema = z
     duplicatePolicy: z.enum(['reject', 'replace']),
     qc: qcConfigSchema.nullable(),
     retired: z.boolean(),
+    /** why the settings, QC or interval changed; kept in the settings history and the audit entry */
+    reason: changeReasonSchema,
   })
   .partial()
   .strict();

@@ -159,21 +159,28 @@ export async function updateSeries(slug: string, input: unknown, actor: Pick<Act
   return writeTransaction(async (transaction) => {
     const series = await Series.findOne({ where: { slug }, transaction });
     if (!series) throw new NotFoundError('Series');
-    const { retired, siteId, site, ...rest } = patch;
+    const { retired, siteId, site, reason = null, ...rest } = patch;
     const timeZone = rest.timeZone ?? series.timeZone;
     const fields =
       siteId !== undefined || site !== undefined ? { ...rest, ...(await resolveSeriesSite({ siteId, site, timeZone }, actor, transaction)) } : rest;
     const changed = Object.keys(fields).filter((key) => JSON.stringify(fields[key as keyof typeof fields]) !== JSON.stringify(series.get(key)));
     const settingsChanged = changed.includes('settings');
+    const before = { qc: series.qc };
     series.set(fields);
     // Which flags enter the analysis is part of the QC settings.
     if (settingsChanged || changed.includes('qc')) series.needsAnalysis = true;
     const retiring = retired !== undefined && retired !== (series.retiredAt !== null);
     if (retiring) series.retiredAt = retired ? new Date() : null;
     await series.save({ transaction });
-    if (settingsChanged) await SettingsChange.create({ seriesId: series.id, settings: series.settings, changedBy: actor.id }, { transaction });
-    if (changed.length)
-      await recordAudit({ actorId: actor.id, action: 'series.update', entity: 'series', entityId: series.id, details: { fields: changed } }, transaction);
+    if (settingsChanged) await SettingsChange.create({ seriesId: series.id, settings: series.settings, changedBy: actor.id, reason }, { transaction });
+    if (changed.length) {
+      // A QC change keeps its limits before and after: the period report lists it with the other threshold changes.
+      const qc = changed.includes('qc') ? { qcBefore: before.qc, qcAfter: series.qc } : {};
+      await recordAudit(
+        { actorId: actor.id, action: 'series.update', entity: 'series', entityId: series.id, details: { fields: changed, reason, ...qc } },
+        transaction,
+      );
+    }
     if (retiring) {
       await recordAudit(
         { actorId: actor.id, action: retired ? 'series.retire' : 'series.restore', entity: 'series', entityId: series.id, details: {} },

@@ -68,6 +68,7 @@ describe('station data in Chromium', () => {
     await panel.locator('summary').click();
     await panel.getByLabel('sensor min').fill('-2');
     await panel.getByLabel('sensor max').fill('3.815');
+    await panel.getByTestId('change-reason').fill('limits from the sensor maker’s sheet');
     await panel.getByRole('button', { name: 'Save tests' }).click();
     await panel.getByText('Saved.').waitFor();
     await panel.getByRole('button', { name: 'Re-run over the stored record' }).click();

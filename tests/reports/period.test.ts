@@ -8,6 +8,7 @@ import { migrateUp } from '@/migrations';
 import { Alert, AlertEvent, AuditEntry, Mark, Observation, SettingsChange, db } from '@/models';
 import { recordAudit } from '@/lib/audit';
 import { buildPeriodReport } from '@/lib/reports/period';
+import { updateSeries } from '@/lib/series/registry';
 import { completeness, durationSummary, periodBounds, periodContaining, periodLabel, periodReportCsv, previousPeriod } from '@/lib/reports/period-shape';
 import { makeRule, makeSeries, makeSnapshot, makeUser } from '../alerts/helpers';
 
@@ -109,13 +110,22 @@ describe('period report on a small seeded network', () => {
 
     const first = await SettingsChange.create({ seriesId: north.id, settings: { window: 0.5, detrend: 'gaussian' }, changedBy: lead.id });
     await at('settings_changes', first.id, Date.UTC(2025, 11, 1));
-    const second = await SettingsChange.create({ seriesId: north.id, settings: { window: 0.4, detrend: 'gaussian' }, changedBy: lead.id });
+    const second = await SettingsChange.create({
+      seriesId: north.id,
+      settings: { window: 0.4, detrend: 'gaussian' },
+      changedBy: lead.id,
+      reason: 'faster dynamics since the weir was lowered',
+    });
     await at('settings_changes', second.id, jan(12));
     const rule = await makeRule(north, lead); // created today: outside January
     await recordAudit({ actorId: lead.id, action: 'rule.threshold', entity: 'alert_rule', entityId: rule.id, details: { before: 0.3, after: 0.4, jobId: 7 } });
     await at('audit_log', (await AuditEntry.findOne({ where: { action: 'rule.threshold' } }))!.id, jan(15));
     // A rule of another site's series stays out of a site report; one that no longer exists out of every report.
     await recordAudit({ actorId: lead.id, action: 'rule.update', entity: 'alert_rule', entityId: 999, details: { before: {}, changes: { minTau: 0.5 } } });
+    // QC limits changed through the series PATCH path, with its reason; a unit fix is not a threshold change and leaves no line.
+    await updateSeries('north-oxygen', { qc: { grossRange: { fail: [0, 20] } }, reason: 'limits from the maker’s sheet' }, lead);
+    await updateSeries('north-oxygen', { unit: 'mg/L' }, lead);
+    for (const entry of await AuditEntry.findAll({ where: { action: 'series.update' } })) await at('audit_log', entry.id, jan(18));
     await Mark.create({ seriesId: north.id, at: jan(14), note: 'probe swapped', kind: 'maintenance', createdBy: lead.id });
     await Mark.create({ seriesId: north.id, at: Date.UTC(2026, 2, 1), note: 'later', kind: 'maintenance', createdBy: lead.id });
 
@@ -165,7 +175,7 @@ describe('period report on a small seeded network', () => {
         seriesSlug: 'north-oxygen',
         what: 'analysis settings changed',
         detail: 'window 0.5 → 0.4',
-        why: null,
+        why: 'faster dynamics since the weir was lowered',
       },
       {
         at: new Date(jan(15)).toISOString(),
@@ -174,6 +184,14 @@ describe('period report on a small seeded network', () => {
         what: `rule threshold set from a backtest (#${rule.id})`,
         detail: 'threshold 0.3 → 0.4',
         why: 'chosen from backtest #7',
+      },
+      {
+        at: new Date(jan(18)).toISOString(),
+        who: 'Lee Head',
+        seriesSlug: 'north-oxygen',
+        what: 'quality-control limits changed',
+        detail: expect.stringMatching(/^grossRange null → \{"fail":\[0,20\]\}/),
+        why: 'limits from the maker’s sheet',
       },
     ]);
     // The rule is active and not yet calibrated: its false-alarm rate is unknown, not zero.
