@@ -78,6 +78,8 @@ describe('rules, who hears and chart choice on the series page (Chromium)', () =
     await page.getByTestId('rule-statuses').locator(`li[data-rule="${created!.id}"]`).waitFor();
 
     await page.getByTestId(`rule-edit-${created!.id}`).click();
+    // Editing a stored rule asks why; the reason goes with the change into the audit and period reports.
+    await expect(editor.getByTestId('change-reason').evaluate((input) => (input as HTMLInputElement).required)).resolves.toBe(true);
     await editor.getByTestId('rule-min-tau').fill('0.4');
     await editor.getByTestId('rule-backtest').click();
     await editor.getByTestId('rule-backtest-started').waitFor({ timeout: 30_000 });
