@@ -9,13 +9,46 @@ const pct = (share: number | null) => (share === null ? '–' : `${(share * 100)
 const hrs = (h: number | null) => (h === null ? '–' : `${h.toFixed(1)} h`);
 const when = (iso: string | null) => (iso ? formatUtc(Date.parse(iso)) : '–');
 
-/** A section of the report with its CSV download; `testId` names it for tests. */
-function Section({ title, table, csvBase, children, count }: { title: string; table?: ReportTable; csvBase: string; children: ReactNode; count: number }) {
+/** One column of a report table: its header and how a row fills the cell. */
+interface Column<T> {
+  header: string;
+  cell: (row: T) => ReactNode;
+  /** the row's name, read first by screen readers (a `th` of scope row) */
+  rowHeader?: boolean;
+  numeric?: boolean;
+  nowrap?: boolean;
+  breakAll?: boolean;
+}
+
+/**
+ * A section of the report: its title and count, its CSV download (`table`; a section without one has none), and
+ * the table itself, or a plain "none" when the period has no rows.
+ */
+function TableSection<T>({
+  title,
+  table,
+  csvBase,
+  caption,
+  numeric = false,
+  rows,
+  rowKey,
+  columns,
+}: {
+  title: string;
+  table?: ReportTable;
+  csvBase: string;
+  caption: string;
+  /** the whole table in figures (tabular numerals) */
+  numeric?: boolean;
+  rows: T[];
+  rowKey: (row: T, index: number) => string | number;
+  columns: Column<T>[];
+}) {
   return (
     <section className="report-section space-y-2" aria-label={title} data-testid={`report-${table ?? title.toLowerCase().replace(/\W+/g, '-')}`}>
       <div className="flex items-baseline justify-between gap-3">
         <h2 className="font-semibold">
-          {title} <span className="text-sm font-normal text-ink-soft">({count})</span>
+          {title} <span className="text-sm font-normal text-ink-soft">({rows.length})</span>
         </h2>
         {table ? (
           <a className="no-print text-sm text-tide hover:underline" href={`${csvBase}&format=csv&table=${table}`} download>
@@ -23,7 +56,30 @@ function Section({ title, table, csvBase, children, count }: { title: string; ta
           </a>
         ) : null}
       </div>
-      {count === 0 ? <Empty>None in this period.</Empty> : children}
+      {rows.length === 0 ? (
+        <Empty>None in this period.</Empty>
+      ) : (
+        <DataTable caption={caption} frame="plain" className={numeric ? 'num text-sm' : 'text-sm'} columns={columns.map((c) => c.header)}>
+          {rows.map((row, i) => (
+            <tr key={rowKey(row, i)}>
+              {columns.map((c) => {
+                const className = [CELL_TIGHT, c.numeric ? 'num' : '', c.nowrap ? 'whitespace-nowrap' : '', c.breakAll ? 'break-all' : '']
+                  .filter(Boolean)
+                  .join(' ');
+                return c.rowHeader ? (
+                  <th key={c.header} scope="row" className={`${className} text-left font-medium`}>
+                    {c.cell(row)}
+                  </th>
+                ) : (
+                  <td key={c.header} className={className}>
+                    {c.cell(row)}
+                  </td>
+                );
+              })}
+            </tr>
+          ))}
+        </DataTable>
+      )}
     </section>
   );
 }
@@ -66,152 +122,135 @@ export function PeriodReportView({ report }: { report: PeriodReport }) {
         ))}
       </dl>
 
-      <Section title="Series" table="series" csvBase={csvBase} count={report.series.length}>
-        <DataTable
-          caption="Status of every series"
-          frame="plain"
-          className="num text-sm"
-          columns={['Series', 'Site', 'Now', 'Received / expected', 'Complete', 'Late stretches', 'Late time', 'Alerts opened', 'Open at end']}
-        >
-          {report.series.map((s) => (
-            <tr key={s.id}>
-              <th scope="row" className={`${CELL_TIGHT} text-left font-medium`}>
-                {s.name}
-              </th>
-              <td className={CELL_TIGHT}>{s.site || '–'}</td>
-              <td className={CELL_TIGHT}>
-                {s.stateNow.replace('-', ' ')}
-                {s.freshnessNow === 'late' ? ', data late' : ''}
-              </td>
-              <td className={CELL_TIGHT}>
-                {s.received} / {s.expected ?? '–'}
-              </td>
-              <td className={CELL_TIGHT}>{pct(s.completeness)}</td>
-              <td className={CELL_TIGHT}>{s.lateStretches}</td>
-              <td className={CELL_TIGHT}>{hrs(s.lateHours)}</td>
-              <td className={CELL_TIGHT}>{s.alertsOpened}</td>
-              <td className={CELL_TIGHT}>{s.openAtEnd}</td>
-            </tr>
-          ))}
-        </DataTable>
-      </Section>
+      <TableSection
+        title="Series"
+        table="series"
+        csvBase={csvBase}
+        caption="Status of every series"
+        numeric
+        rows={report.series}
+        rowKey={(s) => s.id}
+        columns={[
+          { header: 'Series', rowHeader: true, cell: (s) => s.name },
+          { header: 'Site', cell: (s) => s.site || '–' },
+          { header: 'Now', cell: (s) => `${s.stateNow.replace('-', ' ')}${s.freshnessNow === 'late' ? ', data late' : ''}` },
+          { header: 'Received / expected', cell: (s) => `${s.received} / ${s.expected ?? '–'}` },
+          { header: 'Complete', cell: (s) => pct(s.completeness) },
+          { header: 'Late stretches', cell: (s) => s.lateStretches },
+          { header: 'Late time', cell: (s) => hrs(s.lateHours) },
+          { header: 'Alerts opened', cell: (s) => s.alertsOpened },
+          { header: 'Open at end', cell: (s) => s.openAtEnd },
+        ]}
+      />
 
-      <Section title="Alerts opened and their decisions" table="alerts" csvBase={csvBase} count={report.alerts.length}>
-        <DataTable
-          caption="Alerts opened in the period"
-          frame="plain"
-          className="text-sm"
-          columns={['Alert', 'Series', 'What', 'Opened', 'Decision', 'Reason and note', 'Time to decision']}
-        >
-          {report.alerts.map((a) => (
-            <tr key={a.id}>
-              <th scope="row" className={`${CELL_TIGHT} text-left font-medium`}>
+      <TableSection
+        title="Alerts opened and their decisions"
+        table="alerts"
+        csvBase={csvBase}
+        caption="Alerts opened in the period"
+        rows={report.alerts}
+        rowKey={(a) => a.id}
+        columns={[
+          {
+            header: 'Alert',
+            rowHeader: true,
+            cell: (a) => (
+              <>
                 #{a.id} <span className="text-ink-soft">{a.severity}</span>
-              </th>
-              <td className={CELL_TIGHT}>{a.seriesName}</td>
-              <td className={CELL_TIGHT}>{a.subject}</td>
-              <td className={`${CELL_TIGHT} whitespace-nowrap`}>{when(a.openedAt)}</td>
-              <td className={CELL_TIGHT}>{a.decision ? `${a.decision}${a.decidedBy ? ` by ${a.decidedBy}` : ''}` : `awaiting (${a.stateNow})`}</td>
-              <td className={CELL_TIGHT}>{[a.reason, a.note].filter(Boolean).join(': ') || '–'}</td>
-              <td className={`${CELL_TIGHT} num`}>{hrs(a.hoursToDecision)}</td>
-            </tr>
-          ))}
-        </DataTable>
-      </Section>
+              </>
+            ),
+          },
+          { header: 'Series', cell: (a) => a.seriesName },
+          { header: 'What', cell: (a) => a.subject },
+          { header: 'Opened', nowrap: true, cell: (a) => when(a.openedAt) },
+          { header: 'Decision', cell: (a) => (a.decision ? `${a.decision}${a.decidedBy ? ` by ${a.decidedBy}` : ''}` : `awaiting (${a.stateNow})`) },
+          { header: 'Reason and note', cell: (a) => [a.reason, a.note].filter(Boolean).join(': ') || '–' },
+          { header: 'Time to decision', numeric: true, cell: (a) => hrs(a.hoursToDecision) },
+        ]}
+      />
 
-      <Section title="Late stretches" table="late" csvBase={csvBase} count={report.late.length}>
-        <DataTable
-          caption="Silences longer than each series' lateness allowance"
-          frame="plain"
-          className="text-sm"
-          columns={['Series', 'Last data', 'Data back', 'Silent for', 'Alert']}
-        >
-          {report.late.map((l) => (
-            <tr key={`${l.seriesSlug}-${l.lastDataAt}`}>
-              <th scope="row" className={`${CELL_TIGHT} text-left font-medium`}>
-                {l.seriesName}
-              </th>
-              <td className={CELL_TIGHT}>{when(l.lastDataAt)}</td>
-              <td className={CELL_TIGHT}>{l.backAt ? when(l.backAt) : 'still silent at the end'}</td>
-              <td className={`${CELL_TIGHT} num`}>{hrs(l.silentHours)}</td>
-              <td className={CELL_TIGHT}>{l.alertId ? `#${l.alertId}` : '–'}</td>
-            </tr>
-          ))}
-        </DataTable>
-      </Section>
+      <TableSection
+        title="Late stretches"
+        table="late"
+        csvBase={csvBase}
+        caption="Silences longer than each series' lateness allowance"
+        rows={report.late}
+        rowKey={(l) => `${l.seriesSlug}-${l.lastDataAt}`}
+        columns={[
+          { header: 'Series', rowHeader: true, cell: (l) => l.seriesName },
+          { header: 'Last data', cell: (l) => when(l.lastDataAt) },
+          { header: 'Data back', cell: (l) => (l.backAt ? when(l.backAt) : 'still silent at the end') },
+          { header: 'Silent for', numeric: true, cell: (l) => hrs(l.silentHours) },
+          { header: 'Alert', cell: (l) => (l.alertId ? `#${l.alertId}` : '–') },
+        ]}
+      />
 
-      <Section title="Changes of settings and rules" table="changes" csvBase={csvBase} count={report.changes.length}>
-        <DataTable caption="Who changed what, when and why" frame="plain" className="text-sm" columns={['When', 'Who', 'Series', 'What', 'Change', 'Why']}>
-          {report.changes.map((c, i) => (
-            <tr key={i}>
-              <td className={`${CELL_TIGHT} whitespace-nowrap`}>{when(c.at)}</td>
-              <td className={CELL_TIGHT}>{c.who}</td>
-              <td className={CELL_TIGHT}>{c.seriesSlug ?? '–'}</td>
-              <td className={CELL_TIGHT}>{c.what}</td>
-              <td className={`${CELL_TIGHT} break-all`}>{c.detail || '–'}</td>
-              <td className={CELL_TIGHT}>{c.why ?? 'none given'}</td>
-            </tr>
-          ))}
-        </DataTable>
-      </Section>
+      <TableSection
+        title="Changes of settings and rules"
+        table="changes"
+        csvBase={csvBase}
+        caption="Who changed what, when and why"
+        rows={report.changes}
+        rowKey={(c, i) => i}
+        columns={[
+          { header: 'When', nowrap: true, cell: (c) => when(c.at) },
+          { header: 'Who', cell: (c) => c.who },
+          { header: 'Series', cell: (c) => c.seriesSlug ?? '–' },
+          { header: 'What', cell: (c) => c.what },
+          { header: 'Change', breakAll: true, cell: (c) => c.detail || '–' },
+          { header: 'Why', cell: (c) => c.why ?? 'none given' },
+        ]}
+      />
 
-      <Section title="Calibrated false-alarm rates of the rules" table="calibrations" csvBase={csvBase} count={report.calibrations.length}>
-        <DataTable
-          caption="Each active rule's calibrated false alarms per year on records without slowing down"
-          frame="plain"
-          className="num text-sm"
-          columns={['Rule', 'Series', 'Indicator', 'Severity', 'False alarms per year', 'Interval', 'Calibrated']}
-        >
-          {report.calibrations.map((c) => (
-            <tr key={c.ruleId}>
-              <th scope="row" className={`${CELL_TIGHT} text-left font-medium`}>
-                #{c.ruleId}
-              </th>
-              <td className={CELL_TIGHT}>{c.seriesSlug}</td>
-              <td className={CELL_TIGHT}>{c.indicator}</td>
-              <td className={CELL_TIGHT}>{c.severity}</td>
-              <td className={CELL_TIGHT}>{c.falseAlarmsPerYear === null ? 'not calibrated yet' : c.falseAlarmsPerYear.toPrecision(3)}</td>
-              <td className={CELL_TIGHT}>{c.interval ? `${c.interval[0].toPrecision(3)}–${c.interval[1].toPrecision(3)}` : '–'}</td>
-              <td className={CELL_TIGHT}>{when(c.calibratedAt)}</td>
-            </tr>
-          ))}
-        </DataTable>
-      </Section>
+      <TableSection
+        title="Calibrated false-alarm rates of the rules"
+        table="calibrations"
+        csvBase={csvBase}
+        caption="Each active rule's calibrated false alarms per year on records without slowing down"
+        numeric
+        rows={report.calibrations}
+        rowKey={(c) => c.ruleId}
+        columns={[
+          { header: 'Rule', rowHeader: true, cell: (c) => `#${c.ruleId}` },
+          { header: 'Series', cell: (c) => c.seriesSlug },
+          { header: 'Indicator', cell: (c) => c.indicator },
+          { header: 'Severity', cell: (c) => c.severity },
+          { header: 'False alarms per year', cell: (c) => (c.falseAlarmsPerYear === null ? 'not calibrated yet' : c.falseAlarmsPerYear.toPrecision(3)) },
+          { header: 'Interval', cell: (c) => (c.interval ? `${c.interval[0].toPrecision(3)}–${c.interval[1].toPrecision(3)}` : '–') },
+          { header: 'Calibrated', cell: (c) => when(c.calibratedAt) },
+        ]}
+      />
 
-      <Section title="Marks: tipping points and maintenance" table="marks" csvBase={csvBase} count={report.marks.length}>
-        <DataTable caption="Marks set on the records in the period" frame="plain" className="text-sm" columns={['When', 'Series', 'Kind', 'Note', 'By']}>
-          {report.marks.map((m, i) => (
-            <tr key={i}>
-              <td className={`${CELL_TIGHT} whitespace-nowrap`}>{when(m.at)}</td>
-              <td className={CELL_TIGHT}>{m.seriesSlug}</td>
-              <td className={CELL_TIGHT}>{m.kind === 'tipping-point' ? 'tipping point' : 'maintenance'}</td>
-              <td className={CELL_TIGHT}>{m.note || '–'}</td>
-              <td className={CELL_TIGHT}>{m.by ?? '–'}</td>
-            </tr>
-          ))}
-        </DataTable>
-      </Section>
+      <TableSection
+        title="Marks: tipping points and maintenance"
+        table="marks"
+        csvBase={csvBase}
+        caption="Marks set on the records in the period"
+        rows={report.marks}
+        rowKey={(m, i) => i}
+        columns={[
+          { header: 'When', nowrap: true, cell: (m) => when(m.at) },
+          { header: 'Series', cell: (m) => m.seriesSlug },
+          { header: 'Kind', cell: (m) => (m.kind === 'tipping-point' ? 'tipping point' : 'maintenance') },
+          { header: 'Note', cell: (m) => m.note || '–' },
+          { header: 'By', cell: (m) => m.by ?? '–' },
+        ]}
+      />
 
-      <Section title="Abrupt shifts" csvBase={csvBase} count={report.shifts.length}>
-        <DataTable
-          caption="Abrupt shifts of level alerted in the period"
-          frame="plain"
-          className="text-sm"
-          columns={['Alert', 'Series', 'Shift at', 'Size', 'Now']}
-        >
-          {report.shifts.map((s) => (
-            <tr key={s.alertId}>
-              <th scope="row" className={`${CELL_TIGHT} text-left font-medium`}>
-                #{s.alertId}
-              </th>
-              <td className={CELL_TIGHT}>{s.seriesSlug}</td>
-              <td className={CELL_TIGHT}>{when(s.at || null)}</td>
-              <td className={`${CELL_TIGHT} num`}>{s.size === null ? '–' : s.size.toPrecision(3)}</td>
-              <td className={CELL_TIGHT}>{s.stateNow}</td>
-            </tr>
-          ))}
-        </DataTable>
-      </Section>
+      <TableSection
+        title="Abrupt shifts"
+        csvBase={csvBase}
+        caption="Abrupt shifts of level alerted in the period"
+        rows={report.shifts}
+        rowKey={(s) => s.alertId}
+        columns={[
+          { header: 'Alert', rowHeader: true, cell: (s) => `#${s.alertId}` },
+          { header: 'Series', cell: (s) => s.seriesSlug },
+          { header: 'Shift at', cell: (s) => when(s.at || null) },
+          { header: 'Size', numeric: true, cell: (s) => (s.size === null ? '–' : s.size.toPrecision(3)) },
+          { header: 'Now', cell: (s) => s.stateNow },
+        ]}
+      />
     </article>
   );
 }
