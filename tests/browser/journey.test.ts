@@ -5,7 +5,7 @@ import { type Browser, type BrowserContext } from 'playwright-core';
 import { DEMO_PASSWORD, startApp, type RunningApp } from '../support/app';
 import { signedIn, type Session } from '../support/session';
 import { simulateAr1 } from '@/lib/demo/models';
-import { launchChromium, SHOTS } from '../support/browser';
+import { launchChromium, SHOTS, signedInContext } from '../support/browser';
 
 /**
  * A lead's first morning, end to end on the started product with its scheduler and no demo network: a site and a
@@ -39,14 +39,7 @@ describe('a lead sets up monitoring on screen (Chromium)', () => {
     });
     browser = await launchChromium();
     api = await signedIn(app.baseUrl, 'lead@brinkwatch.test', DEMO_PASSWORD);
-    lead = await browser.newContext({ viewport: { width: 1280, height: 900 } });
-    const page = await lead.newPage();
-    await page.goto(`${app.baseUrl}/signin`);
-    await page.getByLabel('E-mail').fill('lead@brinkwatch.test');
-    await page.getByLabel('Password').fill(DEMO_PASSWORD);
-    await page.getByRole('button', { name: 'Sign in' }).click();
-    await page.waitForURL(`${app.baseUrl}/`);
-    await page.close();
+    lead = await signedInContext(browser, app.baseUrl, 'lead');
   }, 600_000);
 
   afterAll(async () => {

@@ -1,8 +1,8 @@
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { type Browser, type Page } from 'playwright-core';
-import { DEMO_PASSWORD, startApp, type RunningApp } from '../support/app';
-import { launchChromium, SHOTS } from '../support/browser';
+import { startApp, type RunningApp } from '../support/app';
+import { launchChromium, SHOTS, signInPage } from '../support/browser';
 
 let app: RunningApp;
 let browser: Browser;
@@ -15,12 +15,7 @@ describe('the live demo in Chromium', () => {
     app = await startApp({ demo: true, env: { DEMO_FEED_CRON: '*/10 * * * * *', INGEST_CRON: '*/5 * * * * *' } });
     browser = await launchChromium();
     page = await (await browser.newContext({ viewport: { width: 1280, height: 900 } })).newPage();
-    await page.goto(`${app.baseUrl}/`);
-    await page.waitForURL(/\/signin/);
-    await page.getByLabel('E-mail').fill('viewer@brinkwatch.test');
-    await page.getByLabel('Password').fill(DEMO_PASSWORD);
-    await page.getByRole('button', { name: 'Sign in' }).click();
-    await page.waitForURL(`${app.baseUrl}/`);
+    await signInPage(page, app.baseUrl, 'viewer');
   }, 180_000);
 
   afterAll(async () => {

@@ -2,27 +2,13 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { type Browser, type BrowserContext } from 'playwright-core';
 import { DEMO_PASSWORD, startApp, type RunningApp } from '../support/app';
 import { signedIn, type Session } from '../support/session';
-import { launchChromium, shot } from '../support/browser';
+import { launchChromium, shot, signedInContext } from '../support/browser';
 
 let app: RunningApp;
 let browser: Browser;
 let lead: BrowserContext;
 let viewer: BrowserContext;
 let api: Session;
-
-/** A browser context signed in through the sign-in page. */
-async function signInAs(role: 'lead' | 'viewer'): Promise<BrowserContext> {
-  const context = await browser.newContext({ viewport: { width: 1280, height: 900 } });
-  const page = await context.newPage();
-  await page.goto(`${app.baseUrl}/`);
-  await page.waitForURL(/\/signin/);
-  await page.getByLabel('E-mail').fill(`${role}@brinkwatch.test`);
-  await page.getByLabel('Password').fill(DEMO_PASSWORD);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.waitForURL(`${app.baseUrl}/`);
-  await page.close();
-  return context;
-}
 
 async function seriesStatus(slug: string): Promise<number> {
   const response = await api.fetch(`/api/series/${slug}`);
@@ -35,8 +21,8 @@ describe('registration screens in Chromium', () => {
     app = await startApp({ demo: true, scheduler: false });
     browser = await launchChromium();
     api = await signedIn(app.baseUrl, 'lead@brinkwatch.test', DEMO_PASSWORD);
-    lead = await signInAs('lead');
-    viewer = await signInAs('viewer');
+    lead = await signedInContext(browser, app.baseUrl, 'lead');
+    viewer = await signedInContext(browser, app.baseUrl, 'viewer');
   });
 
   afterAll(async () => {

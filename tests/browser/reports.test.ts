@@ -4,25 +4,13 @@ import { type Browser, type BrowserContext } from 'playwright-core';
 import { DEMO_PASSWORD, startApp, type RunningApp } from '../support/app';
 import { signedIn, type Session } from '../support/session';
 import { periodContaining } from '@/lib/reports/period-shape';
-import { launchChromium, SHOTS } from '../support/browser';
+import { launchChromium, SHOTS, signedInContext } from '../support/browser';
 
 let app: RunningApp;
 let browser: Browser;
 let lead: BrowserContext;
 let leadApi: Session;
 let viewerApi: Session;
-
-async function signIn(role: 'lead' | 'viewer'): Promise<BrowserContext> {
-  const context = await browser.newContext({ viewport: { width: 1280, height: 900 } });
-  const page = await context.newPage();
-  await page.goto(`${app.baseUrl}/signin`);
-  await page.getByLabel('E-mail').fill(`${role}@brinkwatch.test`);
-  await page.getByLabel('Password').fill(DEMO_PASSWORD);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.waitForURL(`${app.baseUrl}/`);
-  await page.close();
-  return context;
-}
 
 describe('period reports (Chromium)', () => {
   beforeAll(async () => {
@@ -32,7 +20,7 @@ describe('period reports (Chromium)', () => {
       signedIn(app.baseUrl, 'lead@brinkwatch.test', DEMO_PASSWORD),
       signedIn(app.baseUrl, 'viewer@brinkwatch.test', DEMO_PASSWORD),
     ]);
-    lead = await signIn('lead');
+    lead = await signedInContext(browser, app.baseUrl, 'lead');
   }, 600_000);
 
   afterAll(async () => {

@@ -2,25 +2,13 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { type Browser, type BrowserContext, type Page } from 'playwright-core';
 import { DEMO_PASSWORD, startApp, type RunningApp } from '../support/app';
 import { signedIn, type Session } from '../support/session';
-import { launchChromium, shot } from '../support/browser';
+import { launchChromium, shot, signedInContext } from '../support/browser';
 
 let app: RunningApp;
 let browser: Browser;
 const contexts: Partial<Record<'lead' | 'viewer', BrowserContext>> = {};
 let leadApi: Session, viewerApi: Session;
 let slug: string;
-
-async function signIn(role: 'lead' | 'viewer'): Promise<BrowserContext> {
-  const context = await browser.newContext({ viewport: { width: 1280, height: 900 } });
-  const page = await context.newPage();
-  await page.goto(`${app.baseUrl}/signin`);
-  await page.getByLabel('E-mail').fill(`${role}@brinkwatch.test`);
-  await page.getByLabel('Password').fill(DEMO_PASSWORD);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.waitForURL(`${app.baseUrl}/`);
-  await page.close();
-  return context;
-}
 
 async function open(role: 'lead' | 'viewer', pathname: string): Promise<Page> {
   const page = await contexts[role]!.newPage();
@@ -36,8 +24,8 @@ describe('rules, who hears and chart choice on the series page (Chromium)', () =
       signedIn(app.baseUrl, 'lead@brinkwatch.test', DEMO_PASSWORD),
       signedIn(app.baseUrl, 'viewer@brinkwatch.test', DEMO_PASSWORD),
     ]);
-    contexts.lead = await signIn('lead');
-    contexts.viewer = await signIn('viewer');
+    contexts.lead = await signedInContext(browser, app.baseUrl, 'lead');
+    contexts.viewer = await signedInContext(browser, app.baseUrl, 'viewer');
     // a demo series once the scheduler has analysed it, so the draft has something to be judged on
     const { items } = await (await leadApi.fetch('/api/series')).json();
     slug = items[0].slug;

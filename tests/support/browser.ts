@@ -1,6 +1,7 @@
 import fs from 'node:fs';
 import path from 'node:path';
-import { chromium, type Browser, type Page } from 'playwright-core';
+import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core';
+import { DEMO_PASSWORD } from './app';
 
 /** Where browser tests save their screenshots and PDFs (git-ignored). */
 export const SHOTS = path.resolve(__dirname, '../../test-results/screenshots');
@@ -29,4 +30,23 @@ export async function launchChromium(): Promise<Browser> {
 /** A full-page screenshot under SHOTS as `<name>.png`. */
 export async function shot(page: Page, name: string): Promise<void> {
   await page.screenshot({ path: path.join(SHOTS, `${name}.png`), fullPage: true });
+}
+
+/** Signs `page` in through the sign-in page as the demo user of `role` (`lead`, `viewer`, …) and waits for the overview. */
+export async function signInPage(page: Page, baseUrl: string, role: string): Promise<void> {
+  await page.goto(`${baseUrl}/`);
+  await page.waitForURL(/\/signin/);
+  await page.getByLabel('E-mail').fill(`${role}@brinkwatch.test`);
+  await page.getByLabel('Password').fill(DEMO_PASSWORD);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.waitForURL(`${baseUrl}/`);
+}
+
+/** A new 1280 × 900 browser context whose cookies sign it in as the demo user of `role`. */
+export async function signedInContext(browser: Browser, baseUrl: string, role: string): Promise<BrowserContext> {
+  const context = await browser.newContext({ viewport: { width: 1280, height: 900 } });
+  const page = await context.newPage();
+  await signInPage(page, baseUrl, role);
+  await page.close();
+  return context;
 }
