@@ -12,6 +12,7 @@ import { CONTROL, Field } from '@/components/ui/Field';
 import { formatDirection, indicatorLabel } from '@/lib/display/analysis-labels';
 import { formatAge, formatP, formatTau } from '@/lib/display/format';
 import type { OverviewRow, SeriesState } from '@/lib/overview';
+import { SiteNameSelect } from '@/components/sites/SiteNameSelect';
 
 type SortKey = 'name' | 'site' | 'lastData' | 'state' | 'tau';
 const STATE_RANK: Record<SeriesState, number> = { alert: 4, warning: 3, watch: 2, quiet: 1, 'not-analysed': 0 };
@@ -163,14 +164,7 @@ export function OverviewTable({
         {sites.length > 1 ? (
           <>
             <Field label="Site" tone="filter">
-              <select value={site} onChange={(e) => refine(setSite)(e.target.value)} className={CONTROL}>
-                <option value="">All sites</option>
-                {sites.map((s) => (
-                  <option key={s} value={s}>
-                    {s}
-                  </option>
-                ))}
-              </select>
+              <SiteNameSelect sites={sites} value={site} onChange={refine(setSite)} anyLabel="All sites" />
             </Field>
             <label className="flex items-center gap-2 pb-1.5 text-sm">
               <input type="checkbox" checked={grouped} onChange={(e) => refine(setGrouped)(e.target.checked)} data-testid="group-by-site" />

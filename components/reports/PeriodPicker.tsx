@@ -5,6 +5,7 @@ import { useState, type FormEvent } from 'react';
 import { Button } from '@/components/ui/Button';
 import { CONTROL, Field } from '@/components/ui/Field';
 import { periodBounds, periodContaining, type Period, type PeriodKind } from '@/lib/reports/period-shape';
+import { SiteNameSelect } from '@/components/sites/SiteNameSelect';
 
 type Choice = PeriodKind | 'dates';
 
@@ -59,14 +60,7 @@ export function PeriodPicker({ period, site, sites }: { period: Period; site: st
         </Field>
       )}
       <Field label="Site" tone="filter">
-        <select className={CONTROL} value={where} onChange={(e) => setWhere(e.target.value)} data-testid="period-site">
-          <option value="">Whole network</option>
-          {sites.map((s) => (
-            <option key={s} value={s}>
-              {s}
-            </option>
-          ))}
-        </select>
+        <SiteNameSelect sites={sites} value={where} onChange={setWhere} anyLabel="Whole network" testId="period-site" />
       </Field>
       <Button type="submit" variant="primary">
         Show report

@@ -8,6 +8,7 @@ import { Button } from '@/components/ui/Button';
 import { CELL_TIGHT, DataTable } from '@/components/ui/DataTable';
 import { CONTROL, Field } from '@/components/ui/Field';
 import type { ReportScheduleView } from '@/lib/reports/schedules-view';
+import { SiteNameSelect } from '@/components/sites/SiteNameSelect';
 
 const KEY = ['report-schedules'];
 
@@ -90,14 +91,7 @@ export function ScheduleManager({ sites }: { sites: string[] }) {
             <input className={CONTROL} value={name} onChange={(e) => setName(e.target.value)} required placeholder="Quarterly report to the water authority" />
           </Field>
           <Field label="Covers">
-            <select className={CONTROL} value={site} onChange={(e) => setSite(e.target.value)}>
-              <option value="">Whole network</option>
-              {sites.map((s) => (
-                <option key={s} value={s}>
-                  {s}
-                </option>
-              ))}
-            </select>
+            <SiteNameSelect sites={sites} value={site} onChange={setSite} anyLabel="Whole network" />
           </Field>
           <Field label="Every">
             <select className={CONTROL} value={cadence} onChange={(e) => setCadence(e.target.value as 'monthly' | 'quarterly')}>
