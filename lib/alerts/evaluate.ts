@@ -1,6 +1,6 @@
 import { Op, QueryTypes, type Transaction } from 'sequelize';
-import { Alert, AlertEvent, AlertRule, RuleEvaluation, Series, db, writeTransaction, OPEN_ALERT_STATES, type AnalysisSnapshot } from '@/models';
-import { recordAudit } from '@/lib/audit';
+import { Alert, AlertRule, RuleEvaluation, Series, db, writeTransaction, OPEN_ALERT_STATES, type AnalysisSnapshot } from '@/models';
+import { createAlert } from './open';
 import { latestRuleCalibration, type RuleCalibration } from '@/lib/backtest/jobs';
 import { trendDirectionOf, type TrendDirection } from '@/lib/engine/direction';
 import { portfolioFdr, type PortfolioEntry } from './portfolio-fdr';
@@ -163,40 +163,18 @@ async function openAlert(
   taus: number[] | null,
   transaction: Transaction,
 ): Promise<Alert> {
-  const alert = await Alert.create(
+  const alert = await createAlert(
     {
-      seriesId: series.id,
-      ruleId: rule.id,
-      state: 'new',
-      severity: rule.severity,
-      assigneeId: null,
-      firstSnapshotId: snapshot.id,
-      latestSnapshotId: snapshot.id,
-      peakTau: judgement.orientedTau,
-      dismissReason: null,
-      closedAt: null,
-    },
-    { transaction },
-  );
-  await AlertEvent.create(
-    {
-      alertId: alert.id,
-      actorId: null,
-      action: 'open',
-      fromState: null,
-      toState: 'new',
-      reason: null,
+      fields: {
+        seriesId: series.id,
+        ruleId: rule.id,
+        severity: rule.severity,
+        firstSnapshotId: snapshot.id,
+        latestSnapshotId: snapshot.id,
+        peakTau: judgement.orientedTau,
+      },
       detail: `Rule #${rule.id} met on snapshot #${snapshot.id}.`,
-    },
-    { transaction },
-  );
-  await recordAudit(
-    {
-      actorId: null,
-      action: 'alert.open',
-      entity: 'alert',
-      entityId: alert.id,
-      details: { seriesId: series.id, ruleId: rule.id, snapshotId: snapshot.id, tau: judgement.tau, direction: rule.direction },
+      audit: { seriesId: series.id, ruleId: rule.id, snapshotId: snapshot.id, tau: judgement.tau, direction: rule.direction },
     },
     transaction,
   );
@@ -241,24 +219,6 @@ async function openShiftAlert(series: Series, snapshot: AnalysisSnapshot): Promi
     const fresh = shifts.filter((s) => s.time > after && !explainedByMark(s.time, marks, summary)).sort((a, b) => a.time - b.time);
     if (!fresh.length) return null;
     const shift = fresh[fresh.length - 1];
-    const alert = await Alert.create(
-      {
-        seriesId: series.id,
-        ruleId: null,
-        kind: 'abrupt-shift',
-        shiftTime: shift.time,
-        shiftSize: shift.size ?? null,
-        state: 'new',
-        severity: 'warning',
-        assigneeId: null,
-        firstSnapshotId: snapshot.id,
-        latestSnapshotId: snapshot.id,
-        peakTau: null,
-        dismissReason: null,
-        closedAt: null,
-      },
-      { transaction },
-    );
     const earlier =
       fresh.length > 1
         ? ` Earlier shifts first seen in the same analysis: ${fresh
@@ -266,25 +226,21 @@ async function openShiftAlert(series: Series, snapshot: AnalysisSnapshot): Promi
             .map((s) => new Date(s.time).toISOString())
             .join(', ')}.`
         : '';
-    await AlertEvent.create(
+    const alert = await createAlert(
       {
-        alertId: alert.id,
-        actorId: null,
-        action: 'open',
-        fromState: null,
-        toState: 'new',
-        reason: null,
+        fields: {
+          seriesId: series.id,
+          ruleId: null,
+          kind: 'abrupt-shift',
+          shiftTime: shift.time,
+          shiftSize: shift.size ?? null,
+          severity: 'warning',
+          firstSnapshotId: snapshot.id,
+          latestSnapshotId: snapshot.id,
+          peakTau: null,
+        },
         detail: `Abrupt shift at ${new Date(shift.time).toISOString()} detected on snapshot #${snapshot.id}.${earlier}`,
-      },
-      { transaction },
-    );
-    await recordAudit(
-      {
-        actorId: null,
-        action: 'alert.open',
-        entity: 'alert',
-        entityId: alert.id,
-        details: { seriesId: series.id, kind: 'abrupt-shift', snapshotId: snapshot.id, shift },
+        audit: { seriesId: series.id, kind: 'abrupt-shift', snapshotId: snapshot.id, shift },
       },
       transaction,
     );

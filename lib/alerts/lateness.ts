@@ -1,6 +1,7 @@
 import { Op, QueryTypes, type Transaction } from 'sequelize';
 import { Alert, AlertEvent, Series, db, writeTransaction, OPEN_ALERT_STATES } from '@/models';
 import { recordAudit } from '@/lib/audit';
+import { createAlert } from './open';
 import { enqueueMail } from '@/lib/mail/outbox';
 import { enqueueWebhookEvent } from '@/lib/webhooks/outbox';
 import { dataLatePayload } from '@/lib/webhooks/payloads';
@@ -112,45 +113,23 @@ async function openLateAlert(seriesId: number, lastDataAt: number, snapshotId: n
       transaction,
     });
     if (waiting) return null;
-    const alert = await Alert.create(
-      {
-        seriesId,
-        ruleId: null,
-        kind: 'data-late',
-        dataLastAt: lastDataAt,
-        dataBackAt: null,
-        state: 'new',
-        severity: 'warning',
-        assigneeId: null,
-        firstSnapshotId: snapshotId,
-        latestSnapshotId: snapshotId,
-        peakTau: null,
-        dismissReason: null,
-        closedAt: null,
-      },
-      { transaction },
-    );
     const series = (await Series.findByPk(seriesId, { transaction }))!;
     const allowed = lateAfterMs(series.intervalMs, series.lateAfterMs);
-    await AlertEvent.create(
+    const alert = await createAlert(
       {
-        alertId: alert.id,
-        actorId: null,
-        action: 'open',
-        fromState: null,
-        toState: 'new',
-        reason: null,
+        fields: {
+          seriesId,
+          ruleId: null,
+          kind: 'data-late',
+          dataLastAt: lastDataAt,
+          dataBackAt: null,
+          severity: 'warning',
+          firstSnapshotId: snapshotId,
+          latestSnapshotId: snapshotId,
+          peakTau: null,
+        },
         detail: `No data since ${new Date(lastDataAt).toISOString()}; the series is late after ${Math.round(allowed / 60_000)} min without data.`,
-      },
-      { transaction },
-    );
-    await recordAudit(
-      {
-        actorId: null,
-        action: 'alert.open',
-        entity: 'alert',
-        entityId: alert.id,
-        details: { seriesId, kind: 'data-late', lastDataAt, lateAfterMs: allowed, checkedAt: now },
+        audit: { seriesId, kind: 'data-late', lastDataAt, lateAfterMs: allowed, checkedAt: now },
       },
       transaction,
     );
