@@ -15,6 +15,9 @@ export interface IntakeMapping {
   header?: boolean | 'auto';
   /** The column holding each value's QARTOD flag from the source (a station file's flag column); none when absent. */
   flagColumn?: string | number;
+  /** netCDF files: the variable to read and its QC flag variable (lib/intake/netcdf); CSV files ignore them. */
+  variable?: string;
+  flagVariable?: string;
 }
 
 /** A mapping that may also read plain numeric times (`number`): the command line's, since a stored series holds instants. */
@@ -460,7 +463,15 @@ export function collectDecodedRows(readings: DecodedReadings, netcdf: NetcdfLayo
       collector.reject(i + 1, readings.flagLabel, flagProblem);
       continue;
     }
-    collector.addDecoded(i + 1, readings.t[i], readings.timeProblems.get(i), readings.value[i], readings.flag?.[i] ?? 0, readings.timeLabel, readings.valueLabel);
+    collector.addDecoded(
+      i + 1,
+      readings.t[i],
+      readings.timeProblems.get(i),
+      readings.value[i],
+      readings.flag?.[i] ?? 0,
+      readings.timeLabel,
+      readings.valueLabel,
+    );
   }
   collector.notes.push(...readings.notes);
   return { ...collector.finish(null, null), netcdf };

@@ -95,7 +95,7 @@ function truncated(length: number, needed: number | null): NetcdfFileError {
   return new NetcdfFileError(
     'truncated',
     needed === null
-      ? `The netCDF file is truncated: its header ends after the last of its ${length.toLocaleString('en-US')} bytes. Send the whole file again.`
+      ? `The netCDF file is truncated: it ends inside its header, after ${length.toLocaleString('en-US')} bytes. Send the whole file again.`
       : `The netCDF file is truncated: it has ${length.toLocaleString('en-US')} bytes, but its header places data up to byte ${needed.toLocaleString('en-US')}. Send the whole file again.`,
   );
 }

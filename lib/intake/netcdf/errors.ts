@@ -19,6 +19,8 @@ export class NetcdfFileError extends Error {
   constructor(
     readonly code: NetcdfErrorCode,
     message: string,
+    /** the file's data variables, when the problem is which one to read (the upload form offers them) */
+    readonly variables?: string[],
   ) {
     super(message);
     this.name = 'NetcdfFileError';

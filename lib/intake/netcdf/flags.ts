@@ -38,7 +38,10 @@ export interface FlagTable {
 export function qartodFlagTable(variable: NetcdfVariable): FlagTable {
   const name = variable.name;
   if (variable.attributes.has('flag_masks')) {
-    throw new NetcdfFileError('unknown-flags', `The flag variable "${name}" uses flag_masks (bit flags), which Brinkwatch does not read; it reads QARTOD flags (1, 2, 3, 4, 9).`);
+    throw new NetcdfFileError(
+      'unknown-flags',
+      `The flag variable "${name}" uses flag_masks (bit flags), which Brinkwatch does not read; it reads QARTOD flags (1, 2, 3, 4, 9).`,
+    );
   }
   const values = numberAttribute(variable, 'flag_values')?.numbers ?? null;
   const meanings = (textAttribute(variable, 'flag_meanings') ?? '').trim().split(/\s+/).filter(Boolean);
@@ -46,7 +49,10 @@ export function qartodFlagTable(variable: NetcdfVariable): FlagTable {
     return { flagOf: (raw) => (isQartodFlag(raw) ? raw : null), describe: `"${name}" read as QARTOD flag numbers` };
   }
   if (meanings.length && meanings.length !== values.length) {
-    throw new NetcdfFileError('unknown-flags', `The flag variable "${name}" has ${values.length} flag_values but ${meanings.length} flag_meanings; CF pairs them one to one.`);
+    throw new NetcdfFileError(
+      'unknown-flags',
+      `The flag variable "${name}" has ${values.length} flag_values but ${meanings.length} flag_meanings; CF pairs them one to one.`,
+    );
   }
   const byMeaning = meanings.map((meaning) => QARTOD_MEANINGS[meaning.toLowerCase()] ?? null);
   const table = new Map<number, QartodFlag>();
@@ -55,8 +61,11 @@ export function qartodFlagTable(variable: NetcdfVariable): FlagTable {
     return { flagOf: (raw) => table.get(raw) ?? null, describe: `"${name}" read by its flag_meanings (${meanings.join(', ')})` };
   }
   const contradicts = byMeaning.some((flag, i) => flag !== null && flag !== values[i]);
-  if (values.every(isQartodFlag) && !contradicts) {
-    return { flagOf: (raw) => (values.includes(raw) ? (raw as QartodFlag) : null), describe: `"${name}" read by its flag_values, which are QARTOD's numbers` };
+  if (!values.some((value) => !isQartodFlag(value)) && !contradicts) {
+    return {
+      flagOf: (raw) => (values.includes(raw) && isQartodFlag(raw) ? raw : null),
+      describe: `"${name}" read by its flag_values, which are QARTOD's numbers`,
+    };
   }
   throw new NetcdfFileError(
     'unknown-flags',

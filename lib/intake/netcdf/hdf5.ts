@@ -136,5 +136,8 @@ function damaged(error: unknown): NetcdfFileError {
   // The HDF5 error stack's last "minor" line says what failed; the full stack goes to the server log only.
   const minors = [...text.matchAll(/minor: (.+)/g)].map((m) => m[1].trim());
   console.error('[intake] netCDF-4 file could not be read:', text.slice(0, 4000));
-  return new NetcdfFileError('damaged', `The netCDF-4 (HDF5) file could not be read${minors.length ? ` (${minors[minors.length - 1]})` : ''}; it may be damaged.`);
+  return new NetcdfFileError(
+    'damaged',
+    `The netCDF-4 (HDF5) file could not be read${minors.length ? ` (${minors[minors.length - 1]})` : ''}; it may be damaged.`,
+  );
 }

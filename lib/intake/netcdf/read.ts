@@ -2,13 +2,13 @@ import fs from 'node:fs';
 import { collectDecodedRows, type CollectedRows } from '@/lib/intake/rows';
 import { FLAG_MISSING } from '@/lib/quality/flags';
 import { openClassic } from './classic';
-import { textAttribute, type NetcdfDataset, type NetcdfVariable } from './dataset';
+import { textAttribute, type NetcdfDataset } from './dataset';
 import { NetcdfFileError } from './errors';
 import { netcdfFormatOf, type NetcdfSource } from './format';
 import { qartodFlagTable } from './flags';
 import { withHdf5 } from './hdf5';
 import { decodeTimes, parseTimeUnits, type DecodedTimes } from './time';
-import { readingsOf, missingOf } from './values';
+import { missingOf, readingsOf } from './values';
 import { chooseVariable, dataVariables, flagVariableOf, timeOf } from './variables';
 
 /** A classic file is read whole into memory (netcdfjs reads from a buffer); past this, a file belongs in netCDF-4. */
@@ -38,7 +38,10 @@ export async function collectNetcdfColumns(source: NetcdfSource, columns: Netcdf
   };
   if (format === 'netCDF-4') return withHdf5(source, read);
   if ('path' in source && fs.statSync(source.path).size > MAX_CLASSIC_BYTES) {
-    throw new NetcdfFileError('too-large', 'The classic netCDF file is larger than 1 GiB; convert it to netCDF-4 (e.g. "nccopy -k nc4 -d 1 in.nc out.nc") or split it.');
+    throw new NetcdfFileError(
+      'too-large',
+      'The classic netCDF file is larger than 1 GiB; convert it to netCDF-4 (e.g. "nccopy -k nc4 -d 1 in.nc out.nc") or split it.',
+    );
   }
   return read(await openClassic('bytes' in source ? source.bytes : fs.readFileSync(source.path), format));
 }

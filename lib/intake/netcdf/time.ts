@@ -66,8 +66,7 @@ export interface TimeUnits {
 }
 
 /** UDUNITS reference times: "1950-01-01", "1990-1-1 0:0:0", "2000-01-01T00:00:00Z", "1992-10-8 15:15:42.5 -6:00". */
-const REFERENCE =
-  /^(\d{1,4})-(\d{1,2})-(\d{1,2})(?:[T ]+(\d{1,2}):(\d{1,2})(?::(\d{1,2}(?:\.\d*)?))?)?\s*(Z|UTC|GMT|[+-]\d{1,2}(?::?\d{2})?)?$/i;
+const REFERENCE = /^(\d{1,4})-(\d{1,2})-(\d{1,2})(?:[T ]+(\d{1,2}):(\d{1,2})(?::(\d{1,2}(?:\.\d*)?))?)?\s*(Z|UTC|GMT|[+-]\d{1,2}(?::?\d{2})?)?$/i;
 
 /** Parses a time coordinate's `units` and `calendar` attributes; unsupported units or calendars throw, naming them. */
 export function parseTimeUnits(units: string, calendarAttribute: string | null, variable: string): TimeUnits {
@@ -81,7 +80,10 @@ export function parseTimeUnits(units: string, calendarAttribute: string | null, 
   }
   const match = /^\s*([A-Za-z]+)\s+since\s+(.+?)\s*$/i.exec(units);
   if (!match) {
-    throw new NetcdfFileError('unsupported-units', `The time variable "${variable}" has units "${units}"; CF time units read "<unit> since <date>" (e.g. "days since 1950-01-01").`);
+    throw new NetcdfFileError(
+      'unsupported-units',
+      `The time variable "${variable}" has units "${units}"; CF time units read "<unit> since <date>" (e.g. "days since 1950-01-01").`,
+    );
   }
   const unitMs = UNIT_MS[match[1].toLowerCase()];
   if (unitMs === undefined) {
@@ -96,12 +98,18 @@ export function parseTimeUnits(units: string, calendarAttribute: string | null, 
   }
   const reference = REFERENCE.exec(match[2]);
   if (!reference) {
-    throw new NetcdfFileError('unsupported-units', `The reference time "${match[2]}" of the time variable "${variable}" is not a date Brinkwatch reads (e.g. 1950-01-01 00:00:00).`);
+    throw new NetcdfFileError(
+      'unsupported-units',
+      `The reference time "${match[2]}" of the time variable "${variable}" is not a date Brinkwatch reads (e.g. 1950-01-01 00:00:00).`,
+    );
   }
   const [year, month, day, hour, minute] = reference.slice(1, 6).map((part) => Number(part ?? 0));
   const second = Number(reference[6] ?? 0);
   if (year < 1 || month < 1 || month > 12 || day < 1 || day > 31 || hour > 23 || minute > 59 || second >= 60) {
-    throw new NetcdfFileError('unsupported-units', `The reference time "${match[2]}" of the time variable "${variable}" is not a valid date (years from 1 on).`);
+    throw new NetcdfFileError(
+      'unsupported-units',
+      `The reference time "${match[2]}" of the time variable "${variable}" is not a valid date (years from 1 on).`,
+    );
   }
   return { unitMs, calendar, year, month, day, timeOfDayMs: hour * 3_600_000 + minute * 60_000 + second * 1000, offsetMs: zoneOffset(reference[7]) };
 }
@@ -208,7 +216,10 @@ function referenceDays(units: TimeUnits): number {
   const { year, month, day, calendar } = units;
   const code = year * 10_000 + month * 100 + day;
   if (calendar === 'standard' && code > 15821004 && code < 15821015) {
-    throw new NetcdfFileError('unsupported-units', `The reference date ${year}-${month}-${day} does not exist in the standard calendar (1582-10-05 to 1582-10-14 were skipped).`);
+    throw new NetcdfFileError(
+      'unsupported-units',
+      `The reference date ${year}-${month}-${day} does not exist in the standard calendar (1582-10-05 to 1582-10-14 were skipped).`,
+    );
   }
   const julian = calendar === 'julian' || (calendar === 'standard' && code < 15821015);
   if (day > monthLength(julian, year, month)) throw badReference(units, calendar);

@@ -87,11 +87,16 @@ export function chooseVariable(dataset: NetcdfDataset, name: string | undefined)
           : 'The file has no time variable: CF time coordinates have units "<unit> since <date>" (CF 1.x §4.4).',
       );
     }
-    throw new NetcdfFileError('variable-needed', `The file has several data variables (${listed(candidates)}); name the one to read (the upload's "variable", or the series' intake settings).`);
+    throw new NetcdfFileError(
+      'variable-needed',
+      `The file has several data variables (${listed(candidates)}); name the one to read (the upload's "variable", or the series' intake settings).`,
+      candidates,
+    );
   }
   const variable = byName(dataset, name);
-  if (!variable) throw new NetcdfFileError('missing-variable', `The file has no variable "${name}" (its data variables: ${listed(candidates)}).`);
-  if (!NUMERIC_TYPES.has(variable.type)) throw new NetcdfFileError('not-numeric', `The variable "${variable.name}" holds ${variable.type} values, not numbers.`);
+  if (!variable) throw new NetcdfFileError('missing-variable', `The file has no variable "${name}" (its data variables: ${listed(candidates)}).`, candidates);
+  if (!NUMERIC_TYPES.has(variable.type))
+    throw new NetcdfFileError('not-numeric', `The variable "${variable.name}" holds ${variable.type} values, not numbers.`);
   if (alongDimension(variable) === null) {
     throw new NetcdfFileError(
       'not-on-time',
