@@ -143,7 +143,10 @@ describe('QC flag variables (CF 1.x §3.5 flag_values/flag_meanings; QARTOD prim
 
   it('reads the QARTOD manual names in either case and spelling of "suspect or of high interest"', () => {
     const table = qartodFlagTable(
-      variable('qc', 'byte', { flag_values: numbers('byte', 1, 2, 3, 4, 9), flag_meanings: text('PASS NOT_EVALUATED SUSPECT_OR_OF_HIGH_INTEREST FAIL MISSING') }),
+      variable('qc', 'byte', {
+        flag_values: numbers('byte', 1, 2, 3, 4, 9),
+        flag_meanings: text('PASS NOT_EVALUATED SUSPECT_OR_OF_HIGH_INTEREST FAIL MISSING'),
+      }),
     );
     expect([1, 2, 3, 4, 9].map((raw) => table.flagOf(raw))).toEqual([1, 2, 3, 4, 9]);
   });
