@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { NetcdfFileError } from '@/lib/intake/netcdf/errors';
-import { collectNetcdfRows, type NetcdfColumn } from '@/lib/intake/netcdf/read';
+import { collectNetcdfColumns, collectNetcdfRows, type NetcdfColumn } from '@/lib/intake/netcdf/read';
 import type { NetcdfSource } from '@/lib/intake/netcdf/format';
 import { formatInstant } from '@/lib/intake/time-formats';
 
@@ -85,4 +85,28 @@ describe('netCDF corpus (fixtures/netcdf/expected.json, values read by the netCD
       }
     });
   }
+});
+
+describe('netCDF station files through a feed (several variables of one file)', () => {
+  const file = { path: path.join(DIR, 'good-classic.nc') };
+
+  it('reads each mapped variable with its own flags and missing readings, once per file', async () => {
+    const [temp, sal] = await collectNetcdfColumns(file, [{ variable: 'TEMP' }, { variable: 'sal' }]);
+    expect(temp.netcdf).toMatchObject({ variable: 'temp', flagVariable: 'temp_qc' });
+    expect(Array.from(temp.sourceFlag!)).toEqual([1, 1, 3, 4, 2]);
+    expect(sal.sourceFlag).toBeNull();
+    expect(Array.from(sal.value)).toEqual(cases['classic packed sal'].values!.filter((v) => v !== null));
+  });
+
+  it('refuses the whole file when one mapped variable or flag variable is missing, or its flags are not QARTOD', async () => {
+    const refused = async (source: NetcdfSource, columns: NetcdfColumn[]) =>
+      collectNetcdfColumns(source, columns).then(
+        () => null,
+        (error: unknown) => error as NetcdfFileError,
+      );
+    expect((await refused(file, [{ variable: 'temp' }, { variable: 'oxygen' }]))?.code).toBe('missing-variable');
+    expect((await refused(file, [{ variable: 'sal', flagVariable: 'sal_qc' }]))?.code).toBe('missing-variable');
+    expect((await refused({ path: path.join(DIR, 'bad-flags.nc') }, [{ variable: 'temp' }]))?.code).toBe('unknown-flags');
+    expect((await refused({ path: path.join(DIR, 'truncated-netcdf4.nc') }, [{ variable: 'temp' }, { variable: 'oxygen' }]))?.code).toBe('truncated');
+  });
 });
