@@ -7,12 +7,14 @@ import { SeriesPicker } from '@/components/SeriesPicker';
 import type { SeriesChoice } from '@/lib/series/registry';
 import { api } from '@/components/api';
 import { formatLocal } from '@/lib/display/format';
-import { formatCount, type RejectedRow } from './api';
+import { formatCount } from './api';
 import { RejectedRowsTable } from './RejectedRowsTable';
 import { Button } from '@/components/ui/Button';
 import { DataTable } from '@/components/ui/DataTable';
 import { CONTROL, Field } from '@/components/ui/Field';
 import { DELIMITER_LABELS, INTAKE_BODY_LIMIT, TIME_FORMAT_LABELS } from '@/lib/intake/choices';
+import type { NetcdfLayout } from '@/lib/intake/netcdf/dataset';
+import type { PreviewSummary } from '@/lib/intake/run-record';
 
 const TIME_FORMATS = Object.entries(TIME_FORMAT_LABELS);
 const DELIMITERS = Object.entries(DELIMITER_LABELS);
@@ -26,36 +28,14 @@ interface Mapping {
   header: boolean;
 }
 
-/** A netCDF file as the preview describes it (lib/intake/netcdf/dataset.ts NetcdfLayout). */
-interface NetcdfPreview {
-  format: string;
-  variable: string;
-  flagVariable: string | null;
-  timeVariable: string;
-  timeUnits: string;
-  calendar: string;
-  candidates: string[];
-}
-
 interface Preview {
   fileName: string | null;
-  netcdf: NetcdfPreview | null;
+  netcdf: NetcdfLayout | null;
   layout: { delimiter: string; header: string[] | null; encoding: string; bom: boolean; delimiterDetected: boolean; fieldCount: number } | null;
   timeFormatGuess: string | null;
   mapping: { timeColumn: string | number; valueColumn: string | number; timeFormat: string };
   sample: { line: number; fields: string[] }[];
-  summary: {
-    rowsRead: number;
-    wouldAccept: number;
-    wouldBeDuplicates: number;
-    wouldReplace: number;
-    conflicts: number;
-    rejected: number;
-    rejectedRows: RejectedRow[];
-    first: number | null;
-    last: number | null;
-    notes: string[];
-  } | null;
+  summary: PreviewSummary | null;
   fileError: { code: string; message: string; variables?: string[] } | null;
 }
 
@@ -73,6 +53,24 @@ function send(slug: string, file: File, mapping: Partial<Mapping> | { variable: 
   form.append('file', file);
   if (mapping) form.append('mapping', JSON.stringify(mapping));
   return api<Preview & Outcome>(`/api/series/${slug}/uploads${commit ? '' : '/preview'}`, { method: 'POST', body: form });
+}
+
+/** The first rows of a file as the preview read them: a CSV's lines, or a netCDF variable's decoded readings. */
+function SampleTable({ caption, lineLabel, columns, sample }: { caption: string; lineLabel: string; columns: string[]; sample: Preview['sample'] }) {
+  return (
+    <DataTable caption={caption} testId="preview-rows" className="font-mono text-xs" columns={[lineLabel, ...columns]}>
+      {sample.map((row) => (
+        <tr key={row.line}>
+          <td className="px-2 py-1">{row.line}</td>
+          {columns.map((_, i) => (
+            <td key={i} className="px-2 py-1">
+              {row.fields[i] ?? ''}
+            </td>
+          ))}
+        </tr>
+      ))}
+    </DataTable>
+  );
 }
 
 /**
@@ -238,23 +236,7 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
             </select>
           </Field>
           {data.netcdf && (
-            <DataTable
-              caption="First readings as decoded"
-              testId="preview-rows"
-              className="font-mono text-xs"
-              columns={['Position', 'Time (UTC)', 'Value', 'Flag']}
-            >
-              {data.sample.map((row) => (
-                <tr key={row.line}>
-                  <td className="px-2 py-1">{row.line}</td>
-                  {[0, 1, 2].map((i) => (
-                    <td key={i} className="px-2 py-1">
-                      {row.fields[i] ?? ''}
-                    </td>
-                  ))}
-                </tr>
-              ))}
-            </DataTable>
+            <SampleTable caption="First readings as decoded" lineLabel="Position" columns={['Time (UTC)', 'Value', 'Flag']} sample={data.sample} />
           )}
         </div>
       )}
@@ -308,18 +290,7 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
               <input type="checkbox" checked={mapping.header} onChange={(e) => change({ header: e.target.checked })} /> First line is a header
             </label>
           </fieldset>
-          <DataTable caption="First rows as read" testId="preview-rows" className="font-mono text-xs" columns={['Line', ...columns]}>
-            {data.sample.map((row) => (
-              <tr key={row.line}>
-                <td className="px-2 py-1">{row.line}</td>
-                {columns.map((_, i) => (
-                  <td key={i} className="px-2 py-1">
-                    {row.fields[i] ?? ''}
-                  </td>
-                ))}
-              </tr>
-            ))}
-          </DataTable>
+          <SampleTable caption="First rows as read" lineLabel="Line" columns={columns} sample={data.sample} />
         </div>
       )}
       {summary && (

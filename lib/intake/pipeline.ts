@@ -17,6 +17,7 @@ import { NetcdfFileError } from './netcdf/errors';
 import { netcdfBytes, type NetcdfSource } from './netcdf/format';
 import { collectNetcdfRows } from './netcdf/read';
 import type { NetcdfLayout } from './netcdf/dataset';
+import type { PreviewSummary } from './run-record';
 
 /** A run's lease lives this long without renewal; a run whose holder died is marked failed once it has lapsed. */
 const RUN_LEASE_MS = 30_000;
@@ -394,19 +395,6 @@ export interface IntakePreview {
   summary: PreviewSummary | null;
   /** `variables`: a netCDF file's data variables, when the problem is which one to read */
   fileError: { code: string; message: string; variables?: string[] } | null;
-}
-
-export interface PreviewSummary {
-  rowsRead: number;
-  wouldAccept: number;
-  wouldBeDuplicates: number;
-  wouldReplace: number;
-  conflicts: number;
-  rejected: number;
-  rejectedRows: RejectedRow[];
-  first: number | null;
-  last: number | null;
-  notes: string[];
 }
 
 const PREVIEW_ROWS = 20;

@@ -1,7 +1,7 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { DEMO_PASSWORD, startApp, type RunningApp } from '../support/app';
+import { DEMO_PASSWORD, startApp, waitFor, type RunningApp } from '../support/app';
 import { Session, signedIn } from '../support/session';
 
 const FIXTURES = path.resolve(__dirname, '../../fixtures/netcdf');
@@ -15,16 +15,6 @@ const present = (name: string) => {
 let app: RunningApp;
 let lead: Session;
 let viewer: Session;
-
-async function waitFor<T>(what: string, probe: () => T | null | undefined | false, timeoutMs = 30_000): Promise<T> {
-  const deadline = Date.now() + timeoutMs;
-  for (;;) {
-    const value = probe();
-    if (value) return value;
-    if (Date.now() > deadline) throw new Error(`timed out waiting for ${what}\n${app.output().slice(-3000)}`);
-    await new Promise((r) => setTimeout(r, 250));
-  }
-}
 
 function upload(fixture: string, mapping?: Record<string, string>): FormData {
   const form = new FormData();
@@ -52,7 +42,7 @@ describe('netCDF on the started product', () => {
     fs.copyFileSync(path.join(FIXTURES, 'good-netcdf4.nc'), path.join(folder, '.buoy.nc.part'));
     fs.renameSync(path.join(folder, '.buoy.nc.part'), path.join(folder, 'buoy.nc'));
     const reportFile = path.join(folder, 'processed', 'buoy.nc.report.json');
-    const report = await waitFor('buoy.nc processed', () => fs.existsSync(reportFile) && JSON.parse(fs.readFileSync(reportFile, 'utf8')));
+    const report = await waitFor(app, 'buoy.nc processed', () => fs.existsSync(reportFile) && JSON.parse(fs.readFileSync(reportFile, 'utf8')));
     expect(report).toMatchObject({ status: 'succeeded', accepted: 4 });
     const json = await (await viewer.fetch('/api/series/harbour-oxygen/observations')).json();
     // No flag variable: stored "not evaluated" (QARTOD 2) until the series' own tests judge them.

@@ -1,3 +1,4 @@
+// Browser-safe (type imports only besides plain values): the upload form reads `NetcdfLayout` from here.
 import type { NetcdfFormat } from './format';
 
 /** netCDF external type names (netCDF User Guide, "Data Types"); CDF-5 and netCDF-4 add the unsigned and 64-bit ones. */

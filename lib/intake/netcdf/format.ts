@@ -45,6 +45,11 @@ export function netcdfBytes(input: unknown): NetcdfSource | null {
  * (then the reader reports what it found instead of the CSV reader guessing at binary data); null for a CSV.
  */
 export function netcdfFile(file: string): NetcdfSource | null {
+  return netcdfFormatOf(readHead(file)) || hasNetcdfExtension(file) ? { path: file } : null;
+}
+
+/** The first 8 bytes of a file, enough for either signature. */
+export function readHead(file: string): Uint8Array {
   const head = new Uint8Array(8);
   const fd = fs.openSync(file, 'r');
   try {
@@ -52,5 +57,5 @@ export function netcdfFile(file: string): NetcdfSource | null {
   } finally {
     fs.closeSync(fd);
   }
-  return netcdfFormatOf(head) || hasNetcdfExtension(file) ? { path: file } : null;
+  return head;
 }

@@ -4,7 +4,7 @@ import { FLAG_MISSING } from '@/lib/quality/flags';
 import { openClassic } from './classic';
 import { textAttribute, type NetcdfDataset } from './dataset';
 import { NetcdfFileError } from './errors';
-import { netcdfFormatOf, type NetcdfSource } from './format';
+import { netcdfFormatOf, readHead, type NetcdfSource } from './format';
 import { qartodFlagTable } from './flags';
 import { withHdf5 } from './hdf5';
 import { decodeTimes, parseTimeUnits, type DecodedTimes } from './time';
@@ -44,17 +44,6 @@ export async function collectNetcdfColumns(source: NetcdfSource, columns: Netcdf
     );
   }
   return read(await openClassic('bytes' in source ? source.bytes : fs.readFileSync(source.path), format));
-}
-
-function readHead(file: string): Uint8Array {
-  const head = new Uint8Array(8);
-  const fd = fs.openSync(file, 'r');
-  try {
-    fs.readSync(fd, head, 0, 8, 0);
-  } finally {
-    fs.closeSync(fd);
-  }
-  return head;
 }
 
 function readColumn(dataset: NetcdfDataset, column: NetcdfColumn, decoded: Map<string, DecodedTimes>): CollectedRows {
