@@ -236,7 +236,12 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
             </select>
           </Field>
           {data.netcdf && (
-            <SampleTable caption="First readings as decoded" lineLabel="Position" columns={['Time (UTC)', 'Value', 'Flag']} sample={data.sample} />
+            <SampleTable
+              caption="First readings as decoded"
+              lineLabel="Position"
+              columns={data.netcdf.flagVariable ? ['Time (UTC)', 'Value', 'Flag'] : ['Time (UTC)', 'Value']}
+              sample={data.sample}
+            />
           )}
         </div>
       )}

@@ -119,6 +119,8 @@ class RowCollector {
   rejectedCount = 0;
   /** Rows the source flagged 9 (missing) with no value: expected gaps, neither stored nor rejected. */
   missing = 0;
+  /** How the note names such rows: a CSV's flag column says so; a netCDF file's fill values do. */
+  missingAre = 'flagged 9 (missing) without a value';
   hasFlags = false;
   readonly rejectedRows: RejectedRow[] = [];
   readonly notes: string[] = [];
@@ -220,7 +222,7 @@ class RowCollector {
     }
     if (this.missing)
       this.notes.push(
-        `${this.missing.toLocaleString('en-US')} row${this.missing === 1 ? ' was' : 's were'} flagged 9 (missing) without a value; they were skipped.`,
+        `${this.missing.toLocaleString('en-US')} row${this.missing === 1 ? ' was' : 's were'} ${this.missingAre}; ${this.missing === 1 ? 'it was' : 'they were'} skipped.`,
       );
     const unique = normalise(this.columns, this.notes, (line, reason) => this.reject(line, this.timeLabel, reason), this.format, this.hasFlags);
     return {
@@ -444,6 +446,8 @@ export interface DecodedReadings {
   valueLabel: string;
   /** the flag variable's name; null when the variable has none (then `flag` only marks missing readings) */
   flagLabel: string | null;
+  /** what marks a missing reading (e.g. "_FillValue -999"), for the note counting them */
+  missingAre: string;
   notes: string[];
 }
 
@@ -456,6 +460,7 @@ export function collectDecodedRows(readings: DecodedReadings, netcdf: NetcdfLayo
   const collector = new RowCollector('epoch-milliseconds', 'UTC');
   collector.timeLabel = readings.timeLabel;
   collector.hasFlags = readings.flagLabel !== null;
+  collector.missingAre = `missing (${readings.missingAre}; QARTOD 9)`;
   for (let i = 0; i < readings.t.length; i++) {
     const flagProblem = readings.flagProblems.get(i);
     if (flagProblem !== undefined) {

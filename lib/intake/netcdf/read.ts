@@ -66,7 +66,6 @@ function readColumn(dataset: NetcdfDataset, column: NetcdfColumn, decoded: Map<s
   }
   const readings = readingsOf(data, raw);
   const notes: string[] = [];
-  if (readings.count) notes.push(`Readings of "${data.name}" that are ${missingOf(data).describe()} are missing (QARTOD 9).`);
   const flagVariable = flagVariableOf(dataset, data, column.flagVariable);
   let flag: Uint8Array | null = null;
   const flagProblems = new Map<number, string>();
@@ -103,6 +102,7 @@ function readColumn(dataset: NetcdfDataset, column: NetcdfColumn, decoded: Map<s
       timeLabel: time.name,
       valueLabel: data.name,
       flagLabel: flagVariable?.name ?? null,
+      missingAre: `"${data.name}" at ${missingOf(data).describe()}`,
       notes,
     },
     {

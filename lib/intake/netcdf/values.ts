@@ -20,7 +20,7 @@ const DEFAULT_FILL: Partial<Record<NetcdfType, number>> = {
 export interface Missing {
   /** true for a raw value that is no measurement */
   test(raw: number): boolean;
-  /** what the masks are, for the run's notes */
+  /** what the masks are, for the run's notes ("_FillValue -999, outside 0 to 50 or NaN") */
   describe(): string;
 }
 
@@ -50,8 +50,8 @@ export function missingOf(variable: NetcdfVariable): Missing {
       if (fill) parts.push(`_FillValue ${fill.numbers[0]}`);
       else if (fills.length) parts.push(`the default fill value ${fills[0]}`);
       if (missingValues.length) parts.push(`missing_value ${missingValues.join(', ')}`);
-      if (min || max) parts.push(`values outside ${min ? min.numbers[0] : '−∞'} to ${max ? max.numbers[0] : '∞'}`);
-      return parts.join(', ') || 'NaN';
+      if (min || max) parts.push(`outside ${min ? min.numbers[0] : '−∞'} to ${max ? max.numbers[0] : '∞'}`);
+      return [...parts, 'NaN'].join(', ').replace(/, NaN$/, ' or NaN');
     },
   };
 }
