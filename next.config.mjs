@@ -23,7 +23,8 @@ const nextConfig = {
   // Types are checked by `tsc --noEmit` in the test suite (tests/typecheck.test.ts), once, for the whole tree.
   typescript: { ignoreBuildErrors: true, tsconfigPath: generatedTsconfig },
   distDir: process.env.NEXT_DIST_DIR || '.next',
-  serverExternalPackages: ['sequelize', 'sqlite3', 'umzug', 'smtp-server', 'nodemailer', 'bcryptjs'],
+  // h5wasm (netCDF-4 intake) is an Emscripten build that loads its WebAssembly beside itself: Node loads it, unbundled.
+  serverExternalPackages: ['sequelize', 'sqlite3', 'umzug', 'smtp-server', 'nodemailer', 'bcryptjs', 'h5wasm'],
   async headers() {
     return [
       { source: '/:path*', headers: securityHeaders },

@@ -6,6 +6,9 @@ export interface CsvMapping {
   valueColumn: string | number;
   timeFormat: string;
   flagColumn?: string | number;
+  /** The netCDF variable a netCDF file feeds this series from, and its QC flag variable (lib/intake/netcdf). */
+  variable?: string;
+  flagVariable?: string;
 }
 
 export class Series extends Model<InferAttributes<Series>, InferCreationAttributes<Series>> {

@@ -4,6 +4,7 @@ import { useQuery } from '@tanstack/react-query';
 import { api } from '@/components/api';
 import { formatCount, formatDuration, type RejectedRow } from './api';
 import type { IngestRunRecord as RunSummary } from '@/lib/intake/run-record';
+import type { NetcdfLayout } from '@/lib/intake/netcdf/dataset';
 import { RejectedRowsTable } from './RejectedRowsTable';
 import { StatusBadge } from './StatusBadge';
 import { Button } from '@/components/ui/Button';
@@ -15,6 +16,7 @@ interface RunDetail extends RunSummary {
     notes?: string[];
     layout?: { delimiter: string; header: string[] | null; encoding: string } | null;
     timeFormat?: string;
+    netcdf?: NetcdfLayout | null;
   };
 }
 
@@ -70,6 +72,13 @@ export function RunReport({ runId, onClose }: { runId: number; onClose: () => vo
               ”,
               {query.data.report.layout.header ? ` header: ${query.data.report.layout.header.join(', ')}` : ' no header'}; time format{' '}
               {query.data.report.timeFormat}.
+            </p>
+          )}
+          {query.data.report.netcdf && (
+            <p className="text-ink-soft" data-testid="run-netcdf">
+              Read from a netCDF file ({query.data.report.netcdf.format}): variable “{query.data.report.netcdf.variable}”
+              {query.data.report.netcdf.flagVariable && `, flags from “${query.data.report.netcdf.flagVariable}”`}, times from “
+              {query.data.report.netcdf.timeVariable}” in {query.data.report.netcdf.timeUnits} ({query.data.report.netcdf.calendar} calendar).
             </p>
           )}
           {query.data.report.notes?.map((note) => (

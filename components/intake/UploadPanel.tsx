@@ -7,12 +7,14 @@ import { SeriesPicker } from '@/components/SeriesPicker';
 import type { SeriesChoice } from '@/lib/series/registry';
 import { api } from '@/components/api';
 import { formatLocal } from '@/lib/display/format';
-import { formatCount, type RejectedRow } from './api';
+import { formatCount } from './api';
 import { RejectedRowsTable } from './RejectedRowsTable';
 import { Button } from '@/components/ui/Button';
 import { DataTable } from '@/components/ui/DataTable';
 import { CONTROL, Field } from '@/components/ui/Field';
 import { DELIMITER_LABELS, INTAKE_BODY_LIMIT, TIME_FORMAT_LABELS } from '@/lib/intake/choices';
+import type { NetcdfLayout } from '@/lib/intake/netcdf/dataset';
+import type { PreviewSummary } from '@/lib/intake/run-record';
 
 const TIME_FORMATS = Object.entries(TIME_FORMAT_LABELS);
 const DELIMITERS = Object.entries(DELIMITER_LABELS);
@@ -28,23 +30,13 @@ interface Mapping {
 
 interface Preview {
   fileName: string | null;
+  netcdf: NetcdfLayout | null;
   layout: { delimiter: string; header: string[] | null; encoding: string; bom: boolean; delimiterDetected: boolean; fieldCount: number } | null;
   timeFormatGuess: string | null;
   mapping: { timeColumn: string | number; valueColumn: string | number; timeFormat: string };
   sample: { line: number; fields: string[] }[];
-  summary: {
-    rowsRead: number;
-    wouldAccept: number;
-    wouldBeDuplicates: number;
-    wouldReplace: number;
-    conflicts: number;
-    rejected: number;
-    rejectedRows: RejectedRow[];
-    first: number | null;
-    last: number | null;
-    notes: string[];
-  } | null;
-  fileError: { code: string; message: string } | null;
+  summary: PreviewSummary | null;
+  fileError: { code: string; message: string; variables?: string[] } | null;
 }
 
 interface Outcome {
@@ -56,14 +48,35 @@ interface Outcome {
   rejected: number;
 }
 
-function send(slug: string, file: File, mapping: Partial<Mapping> | null, commit: boolean) {
+function send(slug: string, file: File, mapping: Partial<Mapping> | { variable: string } | null, commit: boolean) {
   const form = new FormData();
   form.append('file', file);
   if (mapping) form.append('mapping', JSON.stringify(mapping));
   return api<Preview & Outcome>(`/api/series/${slug}/uploads${commit ? '' : '/preview'}`, { method: 'POST', body: form });
 }
 
-/** Upload flow: pick or drop a CSV, check what was detected, adjust the mapping, read the summary, then commit. */
+/** The first rows of a file as the preview read them: a CSV's lines, or a netCDF variable's decoded readings. */
+function SampleTable({ caption, lineLabel, columns, sample }: { caption: string; lineLabel: string; columns: string[]; sample: Preview['sample'] }) {
+  return (
+    <DataTable caption={caption} testId="preview-rows" className="font-mono text-xs" columns={[lineLabel, ...columns]}>
+      {sample.map((row) => (
+        <tr key={row.line}>
+          <td className="px-2 py-1">{row.line}</td>
+          {columns.map((_, i) => (
+            <td key={i} className="px-2 py-1">
+              {row.fields[i] ?? ''}
+            </td>
+          ))}
+        </tr>
+      ))}
+    </DataTable>
+  );
+}
+
+/**
+ * Upload flow: pick or drop a CSV or netCDF file, check what was detected, adjust the mapping (for netCDF, the
+ * variable), read the summary, then commit.
+ */
 export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
   const id = useId();
   const client = useQueryClient();
@@ -72,6 +85,8 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
   const slug = target?.slug ?? '';
   const [file, setFile] = useState<File | null>(null);
   const [mapping, setMapping] = useState<Mapping | null>(null);
+  // A netCDF file's variable, as chosen on the form (null: the series' own choice, or the file's only variable).
+  const [variable, setVariable] = useState<string | null>(null);
   const [dragging, setDragging] = useState(false);
   const [sizeError, setSizeError] = useState<string | null>(null);
   // The picker gives slug and name; the series' own record gives the zone its times are shown in (README: every
@@ -85,8 +100,9 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
   const timeZone = zone.data ?? 'UTC';
 
   const preview = useMutation({
-    mutationFn: (input: { file: File; mapping: Mapping | null }) => send(slug, input.file, input.mapping, false),
+    mutationFn: (input: { file: File; mapping: Mapping | { variable: string } | null }) => send(slug, input.file, input.mapping, false),
     onSuccess: (data, input) => {
+      if (data.netcdf) setVariable(data.netcdf.variable);
       if (input.mapping || !data.layout) return;
       const header = data.layout.header;
       const index = (c: string | number) => (typeof c === 'number' ? c : Math.max(0, header?.findIndex((h) => h.toLowerCase() === c.toLowerCase()) ?? 0));
@@ -100,7 +116,7 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
     },
   });
   const commit = useMutation({
-    mutationFn: () => send(slug, file!, mapping, true),
+    mutationFn: () => send(slug, file!, variable !== null ? { variable } : mapping, true),
     onSettled: () => {
       client.invalidateQueries({ queryKey: ['ingest-runs'] });
     },
@@ -109,6 +125,7 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
   const choose = (picked: File | null) => {
     commit.reset();
     setMapping(null);
+    setVariable(null);
     setSizeError(null);
     setFile(picked);
     if (!picked) return;
@@ -126,6 +143,11 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
     commit.reset();
     if (file) preview.mutate({ file, mapping: next });
   };
+  const chooseVariable = (name: string) => {
+    setVariable(name);
+    commit.reset();
+    if (file) preview.mutate({ file, mapping: { variable: name } });
+  };
   const onDrop = (event: DragEvent<HTMLLabelElement>) => {
     event.preventDefault();
     setDragging(false);
@@ -140,7 +162,7 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
   return (
     <section aria-labelledby={`${id}-title`} className="space-y-4 rounded border border-rule bg-card p-4" data-testid="upload-panel">
       <h2 id={`${id}-title`} className="text-lg font-semibold">
-        Upload a CSV
+        Upload a CSV or netCDF file
       </h2>
       <SeriesPicker
         label="Series"
@@ -164,12 +186,12 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
           onDrop={onDrop}
           className={`flex cursor-pointer flex-col items-center rounded border-2 border-dashed px-4 py-6 text-sm focus-within:ring-2 focus-within:ring-tide ${dragging ? 'border-tide bg-tide-light' : 'border-rule'}`}
         >
-          <span className="font-medium">Drag a CSV file here, or choose one</span>
+          <span className="font-medium">Drag a CSV or netCDF file here, or choose one</span>
           <span className="text-ink-soft">Up to 50 MB. Nothing is stored until you commit.</span>
           <input
             id={`${id}-file`}
             type="file"
-            accept=".csv,text/csv,text/plain"
+            accept=".csv,text/csv,text/plain,.nc,.nc4,.cdf,.netcdf,application/x-netcdf"
             className="mt-2 text-sm"
             onChange={(e) => choose(e.target.files?.[0] ?? null)}
           />
@@ -194,6 +216,34 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
         <p role="alert" className="rounded bg-warning-light px-3 py-2 text-sm text-warning" data-testid="file-error">
           {data.fileError.message}
         </p>
+      )}
+      {data && (data.netcdf || (data.fileError?.variables?.length ?? 0) > 0) && (
+        <div className="space-y-3" data-testid="netcdf-detected">
+          {data.netcdf && (
+            <p className="text-sm text-ink-soft">
+              Detected: a netCDF file ({data.netcdf.format}); times from “{data.netcdf.timeVariable}” in {data.netcdf.timeUnits} ({data.netcdf.calendar}{' '}
+              calendar){data.netcdf.flagVariable && `; flags from “${data.netcdf.flagVariable}”`}.
+            </p>
+          )}
+          <Field label="Variable" hint="The netCDF variable this series takes its values from.">
+            <select value={variable ?? ''} onChange={(e) => chooseVariable(e.target.value)} className={CONTROL} data-testid="netcdf-variable">
+              {variable === null && <option value="">Choose a variable</option>}
+              {(data.netcdf?.candidates ?? data.fileError?.variables ?? []).map((name) => (
+                <option key={name} value={name}>
+                  {name}
+                </option>
+              ))}
+            </select>
+          </Field>
+          {data.netcdf && (
+            <SampleTable
+              caption="First readings as decoded"
+              lineLabel="Position"
+              columns={data.netcdf.flagVariable ? ['Time (UTC)', 'Value', 'Flag'] : ['Time (UTC)', 'Value']}
+              sample={data.sample}
+            />
+          )}
+        </div>
       )}
       {data?.layout && mapping && (
         <div className="space-y-3">
@@ -245,18 +295,7 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
               <input type="checkbox" checked={mapping.header} onChange={(e) => change({ header: e.target.checked })} /> First line is a header
             </label>
           </fieldset>
-          <DataTable caption="First rows as read" testId="preview-rows" className="font-mono text-xs" columns={['Line', ...columns]}>
-            {data.sample.map((row) => (
-              <tr key={row.line}>
-                <td className="px-2 py-1">{row.line}</td>
-                {columns.map((_, i) => (
-                  <td key={i} className="px-2 py-1">
-                    {row.fields[i] ?? ''}
-                  </td>
-                ))}
-              </tr>
-            ))}
-          </DataTable>
+          <SampleTable caption="First rows as read" lineLabel="Line" columns={columns} sample={data.sample} />
         </div>
       )}
       {summary && (

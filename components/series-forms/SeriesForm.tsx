@@ -97,6 +97,7 @@ export function SeriesForm({ sites, series, initialSiteId = null }: SeriesFormPr
     timeColumn: String(series?.csvMapping.timeColumn ?? 0),
     valueColumn: String(series?.csvMapping.valueColumn ?? 1),
     timeFormat: series?.csvMapping.timeFormat ?? 'iso8601',
+    variable: series?.csvMapping.variable ?? '',
     duplicatePolicy: series?.duplicatePolicy ?? 'reject',
     // A stored null (a span of the whole record) shows as an empty box, and is sent back as null.
     ...(Object.fromEntries(
@@ -128,7 +129,14 @@ export function SeriesForm({ sites, series, initialSiteId = null }: SeriesFormPr
         description: form.description,
         intervalMs: form.intervalUnit === 'irregular' ? null : Math.round(Number(form.intervalCount) * UNITS[form.intervalUnit]),
         timeZone: form.timeZone,
-        csvMapping: { timeColumn: column(form.timeColumn), valueColumn: column(form.valueColumn), timeFormat: form.timeFormat },
+        // The form shows only some of the mapping (not the flag column or flag variable): keep the rest as stored.
+        csvMapping: {
+          ...series?.csvMapping,
+          timeColumn: column(form.timeColumn),
+          valueColumn: column(form.valueColumn),
+          timeFormat: form.timeFormat,
+          variable: form.variable.trim() || undefined,
+        },
         duplicatePolicy: form.duplicatePolicy,
         // The API replaces settings whole: keep what the form does not show.
         settings: {
@@ -265,6 +273,13 @@ export function SeriesForm({ sites, series, initialSiteId = null }: SeriesFormPr
               </option>
             ))}
           </select>
+        </Field>
+        <Field
+          label="netCDF variable"
+          hint="The variable a netCDF file feeds this series from; leave empty when its files hold one data variable."
+          error={error('csvMapping.variable')}
+        >
+          {text('variable')}
         </Field>
         <Field
           label="A reading that is already stored"

@@ -2,9 +2,21 @@ import type { Transaction } from 'sequelize';
 import { IngestRun, Mark, Series, writeTransaction, type Feed } from '@/models';
 import type { IngestSource } from '@/models/IngestRun';
 import { PROCESS_HOLDER } from '@/lib/db/leases';
-import { CsvFileError, type CsvInput } from '@/lib/intake/csv';
+import type { CsvInput } from '@/lib/intake/csv';
+import { netcdfBytes, type NetcdfSource } from '@/lib/intake/netcdf/format';
+import { collectNetcdfColumns } from '@/lib/intake/netcdf/read';
 import { collectCsvColumns, type CollectedRows } from '@/lib/intake/rows';
-import { finishRun, inputReport, previousApplication, storeCollected, summaryMessage, underNewRunLease, type IngestOutcome } from '@/lib/intake/pipeline';
+import {
+  finishRun,
+  inputReport,
+  isFileError,
+  previousApplication,
+  storeCollected,
+  summaryMessage,
+  timeReadingOf,
+  underNewRunLease,
+  type IngestOutcome,
+} from '@/lib/intake/pipeline';
 import { parseTime, type TimeFormat } from '@/lib/intake/time-formats';
 import { addMark } from '@/lib/marks/write';
 
@@ -29,7 +41,10 @@ export interface FeedOutcome {
 export interface FeedIngestRequest {
   feed: Feed;
   source: IngestSource;
-  csv: CsvInput;
+  /** the station file: CSV text, bytes or a stream; bytes with a netCDF signature are read as netCDF */
+  csv?: CsvInput;
+  /** a netCDF station file by path (a drop folder's), read instead of `csv` */
+  netcdf?: NetcdfSource;
   fileName?: string | null;
   contentHash?: string | null;
   actor?: { id: number } | null;
@@ -95,24 +110,27 @@ async function ingestUnderLease(request: FeedIngestRequest, key: string, started
     // Maintenance visits and sensor events by instant; a time that does not read is reported with the rows already.
     const events = new Map<number, string>();
     const zone = targets[0].series.timeZone;
+    const netcdf = request.netcdf ?? netcdfBytes(request.csv);
     try {
-      collected = await collectCsvColumns(request.csv, {
-        timeColumn: feed.timeColumn,
-        timeFormat: feed.timeFormat as TimeFormat,
-        header: true,
-        values: targets.map(({ column, series }) => ({ valueColumn: column, flagColumn: flagColumnOf(feed, column), zone: series.timeZone })),
-        eventColumn: feed.maintenanceColumn ?? undefined,
-        onEvent: (timeCell, note) => {
-          const time = parseTime(timeCell, feed.timeFormat as TimeFormat, zone);
-          if (time.ok && Number.isInteger(time.t)) events.set(time.t, note.slice(0, 2000));
-        },
-      });
+      collected = netcdf
+        ? await collectNetcdfFeed(netcdf, feed, targets)
+        : await collectCsvColumns(request.csv ?? '', {
+            timeColumn: feed.timeColumn,
+            timeFormat: feed.timeFormat as TimeFormat,
+            header: true,
+            values: targets.map(({ column, series }) => ({ valueColumn: column, flagColumn: flagColumnOf(feed, column), zone: series.timeZone })),
+            eventColumn: feed.maintenanceColumn ?? undefined,
+            onEvent: (timeCell, note) => {
+              const time = parseTime(timeCell, feed.timeFormat as TimeFormat, zone);
+              if (time.ok && Number.isInteger(time.t)) events.set(time.t, note.slice(0, 2000));
+            },
+          });
     } catch (error) {
-      if (!(error instanceof CsvFileError)) throw error;
+      if (!isFileError(error)) throw error;
       return done('rejected', error.message, await finishAll({ status: 'rejected', message: error.message, report: { fileError: error.code } }));
     }
     if (collected.every((rows) => rows.t.length === 0)) {
-      const outcomes = await Promise.all(runs.map((run, k) => rejectedRun(run, collected[k], started, feed.timeFormat)));
+      const outcomes = await Promise.all(runs.map((run, k) => rejectedRun(run, collected[k], started, timeReadingOf(collected[k], feed.timeFormat))));
       return done('rejected', `Nothing stored: no column had a usable row (first: ${collected[0].rejectedRows[0]?.reason ?? 'no rows'}).`, label(outcomes));
     }
     const outcomes = await writeTransaction(async (transaction) => {
@@ -120,7 +138,7 @@ async function ingestUnderLease(request: FeedIngestRequest, key: string, started
       for (let k = 0; k < targets.length; k++) {
         const rows = collected[k];
         if (rows.t.length === 0) {
-          results.push(await rejectedRun(runs[k], rows, started, feed.timeFormat, transaction));
+          results.push(await rejectedRun(runs[k], rows, started, timeReadingOf(rows, feed.timeFormat), transaction));
           continue;
         }
         results.push(
@@ -129,7 +147,7 @@ async function ingestUnderLease(request: FeedIngestRequest, key: string, started
             fileName: request.fileName,
             actorId: request.actor?.id ?? null,
             tokenId: null,
-            timeFormat: feed.timeFormat,
+            timeFormat: timeReadingOf(rows, feed.timeFormat),
           }),
         );
       }
@@ -171,6 +189,23 @@ async function markEvents(transaction: Transaction, seriesIds: number[], events:
     }
   }
   return added;
+}
+
+/**
+ * A netCDF station file through a feed: each mapped column names a variable, `flagColumns` its flag variable (by
+ * default the one its ancillary_variables name); times come from the file's CF time coordinate, so the feed's time
+ * column and format are not used, nor its maintenance column (notes on that are added to each series' report).
+ */
+async function collectNetcdfFeed(source: NetcdfSource, feed: Feed, targets: { column: string }[]): Promise<CollectedRows[]> {
+  const collected = await collectNetcdfColumns(
+    source,
+    targets.map(({ column }) => ({ variable: column, flagVariable: flagColumnOf(feed, column) })),
+  );
+  if (feed.maintenanceColumn) {
+    for (const rows of collected)
+      rows.notes.push(`The feed's maintenance column "${feed.maintenanceColumn}" is read from CSV files only; this netCDF file marked no maintenance.`);
+  }
+  return collected;
 }
 
 function flagColumnOf(feed: Feed, column: string): string | undefined {

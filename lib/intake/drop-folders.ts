@@ -6,6 +6,7 @@ import { dropDir } from '@/lib/runtime/config';
 import { withLease } from '@/lib/db/leases';
 import { slugSchema } from '@/lib/schemas/series';
 import { hashFile } from './content-hash';
+import { hasNetcdfExtension, netcdfFile, type NetcdfSource } from './netcdf/format';
 import { ingestObservations, sweepStaleRuns, type IngestOutcome } from './pipeline';
 
 /** Long enough for a million-row file; renewed every third of it while the file is worked on. */
@@ -15,11 +16,14 @@ function log(line: string): void {
   console.log(`[intake ${new Date().toISOString()}] ${line}`);
 }
 
-/** Regular `*.csv` files of a folder (symlinks and `.part` files are not; names come from readdir only). */
-function csvFilesIn(folder: string): string[] {
+/**
+ * Regular `*.csv` and netCDF (`*.nc`, `*.nc4`, `*.cdf`, `*.netcdf`) files of a folder (symlinks and `.part` files are
+ * not; names come from readdir only). The name only picks the files: their first bytes decide how they are read.
+ */
+function intakeFilesIn(folder: string): string[] {
   return fs
     .readdirSync(folder, { withFileTypes: true })
-    .filter((entry) => entry.isFile() && !entry.name.startsWith('.') && entry.name.toLowerCase().endsWith('.csv'))
+    .filter((entry) => entry.isFile() && !entry.name.startsWith('.') && (entry.name.toLowerCase().endsWith('.csv') || hasNetcdfExtension(entry.name)))
     .map((entry) => entry.name)
     .sort();
 }
@@ -70,6 +74,12 @@ function settle(folder: string, name: string, rejected: boolean, runId: number, 
   return path.join(path.basename(target), finalName);
 }
 
+/** A dropped file as the intake takes it: a netCDF file by path (its readers open it), a CSV as a stream. */
+function inputOf(file: string): { netcdf: NetcdfSource } | { csv: fs.ReadStream } {
+  const netcdf = netcdfFile(file);
+  return netcdf ? { netcdf } : { csv: fs.createReadStream(file) };
+}
+
 const unknownReported = new Set<string>();
 
 /**
@@ -93,7 +103,7 @@ export async function runDropIntake(options: { settleMs?: number } = {}): Promis
         unknownReported.add(what);
         continue;
       }
-      for (const name of csvFilesIn(folder)) candidates.push({ slug, feed, folder, name, stat: fs.statSync(path.join(folder, name)) });
+      for (const name of intakeFilesIn(folder)) candidates.push({ slug, feed, folder, name, stat: fs.statSync(path.join(folder, name)) });
     }
   };
   look(seriesFolders(), known, false);
@@ -115,12 +125,12 @@ export async function runDropIntake(options: { settleMs?: number } = {}): Promis
       let message: string;
       let movedTo: string | null = null;
       if (feed) {
-        const outcome = await ingestFeedFile({ feed: feeds.get(slug)!, source: 'drop', fileName: name, contentHash, csv: fs.createReadStream(file) });
+        const outcome = await ingestFeedFile({ feed: feeds.get(slug)!, source: 'drop', fileName: name, contentHash, ...inputOf(file) });
         ({ status, message } = outcome);
         if (status !== 'failed')
           movedTo = settle(folder, name, status === 'rejected', outcome.series[0]?.runId ?? 0, { file: name, ...outcome, finishedAt: finishedAt() });
       } else {
-        const outcome = await ingestObservations({ series: known.get(slug)!, source: 'drop', fileName: name, contentHash, csv: fs.createReadStream(file) });
+        const outcome = await ingestObservations({ series: known.get(slug)!, source: 'drop', fileName: name, contentHash, ...inputOf(file) });
         ({ status, message } = outcome);
         if (status !== 'failed')
           movedTo = settle(folder, name, status === 'rejected', outcome.runId, { file: name, series: slug, ...outcome, finishedAt: finishedAt() });
@@ -147,7 +157,7 @@ export async function listDropFolders(): Promise<DropFolderListing[]> {
   return seriesFolders().map(({ slug, folder }) => {
     const rejectedDir = path.join(folder, 'rejected');
     const rejected = fs.existsSync(rejectedDir)
-      ? csvFilesIn(rejectedDir)
+      ? intakeFilesIn(rejectedDir)
           .slice(-100)
           .reverse()
           .map((file) => {
@@ -159,6 +169,6 @@ export async function listDropFolders(): Promise<DropFolderListing[]> {
             }
           })
       : [];
-    return { slug, known: known.has(slug) && slugSchema.safeParse(slug).success, pending: csvFilesIn(folder), rejected };
+    return { slug, known: known.has(slug) && slugSchema.safeParse(slug).success, pending: intakeFilesIn(folder), rejected };
   });
 }

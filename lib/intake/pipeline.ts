@@ -8,11 +8,16 @@ import type { PushedObservation } from '@/lib/schemas/observation';
 import { CsvFileError, readCsv, type CsvInput, type CsvLayout } from './csv';
 import { collectCsvRows, collectPushedRows, type CollectedRows, type IntakeMapping, type RejectedRow } from './rows';
 import { classifyAgainstStored, conflictRejections, connectionOf, ROW_CONFLICT, ROW_DUPLICATE, ROW_NEW, writeRows } from './store';
-import { guessTimeFormat, type TimeFormat } from './time-formats';
+import { formatInstant, guessTimeFormat, type TimeFormat } from './time-formats';
 import { enqueueWebhookEvent } from '@/lib/webhooks/outbox';
 import { rejectedRunPayload } from '@/lib/webhooks/payloads';
 import { judgeIncoming } from '@/lib/quality/records';
 import { FLAG_LABELS, type QartodFlag } from '@/lib/quality/flags';
+import { NetcdfFileError } from './netcdf/errors';
+import { netcdfBytes, type NetcdfSource } from './netcdf/format';
+import { collectNetcdfRows } from './netcdf/read';
+import type { NetcdfLayout } from './netcdf/dataset';
+import type { PreviewSummary } from './run-record';
 
 /** A run's lease lives this long without renewal; a run whose holder died is marked failed once it has lapsed. */
 const RUN_LEASE_MS = 30_000;
@@ -24,8 +29,11 @@ export interface IngestRequest {
   fileName?: string | null;
   /** SHA-256 of the body as received; a body already applied to this series is recognised and not applied again. */
   contentHash?: string | null;
-  /** CSV text, a body's bytes or a byte/text stream (drop files are streamed), or pushed JSON points. */
+  /** CSV text, a body's bytes or a byte/text stream (drop files are streamed), or pushed JSON points. A body whose
+   * bytes carry a netCDF signature is read as netCDF. */
   csv?: CsvInput;
+  /** A netCDF file by path (a drop folder's), read instead of `csv`. */
+  netcdf?: NetcdfSource;
   points?: PushedObservation[];
   /** Overrides of the series' CSV mapping (the upload screen's choices). */
   mapping?: Partial<IntakeMapping>;
@@ -61,13 +69,27 @@ export function mappingFor(series: Series, overrides: Partial<IntakeMapping> = {
     delimiter: overrides.delimiter,
     header: overrides.header,
     flagColumn: overrides.flagColumn ?? base.flagColumn,
+    variable: overrides.variable ?? base.variable,
+    flagVariable: overrides.flagVariable ?? base.flagVariable,
   };
 }
 
-async function collect(request: Pick<IngestRequest, 'series' | 'csv' | 'points' | 'mapping'>): Promise<CollectedRows> {
+async function collect(request: Pick<IngestRequest, 'series' | 'csv' | 'netcdf' | 'points' | 'mapping'>): Promise<CollectedRows> {
   const mapping = mappingFor(request.series, request.mapping);
   if (request.points) return collectPushedRows(request.points, mapping.timeFormat, request.series.timeZone);
+  const netcdf = request.netcdf ?? netcdfBytes(request.csv);
+  if (netcdf) return collectNetcdfRows(netcdf, { variable: mapping.variable, flagVariable: mapping.flagVariable });
   return collectCsvRows(request.csv ?? '', mapping, request.series.timeZone);
+}
+
+/** A file-level problem of either reader: the input is refused whole with the reader's code and message. */
+export function isFileError(error: unknown): error is CsvFileError | NetcdfFileError {
+  return error instanceof CsvFileError || error instanceof NetcdfFileError;
+}
+
+/** How the times of collected rows were read, for the run's report: the series' time format, or a netCDF file's CF units. */
+export function timeReadingOf(rows: CollectedRows, timeFormat: string): string {
+  return rows.netcdf ? `CF units "${rows.netcdf.timeUnits}", ${rows.netcdf.calendar} calendar` : timeFormat;
 }
 
 function plural(n: number, word: string): string {
@@ -173,6 +195,7 @@ export function inputReport(rows: CollectedRows, timeFormat: string, rejectedRow
     rejectedTotal,
     notes: rows.notes,
     layout: describeLayout(rows.layout),
+    netcdf: rows.netcdf ?? null,
     stats: rows.stats,
     timeFormat,
     first: rows.t.length ? rows.t[0] : null,
@@ -272,10 +295,10 @@ async function ingestUnderLease(request: IngestRequest, key: string, started: nu
     try {
       rows = await collect(request);
     } catch (error) {
-      if (!(error instanceof CsvFileError)) throw error;
+      if (!isFileError(error)) throw error;
       return await finish(run, { status: 'rejected', message: error.message, report: { fileError: error.code } });
     }
-    const timeFormat = mappingFor(series, request.mapping).timeFormat;
+    const timeFormat = timeReadingOf(rows, mappingFor(series, request.mapping).timeFormat);
     if (rows.t.length === 0) {
       const counts = { rowsRead: rows.rowsRead, accepted: 0, duplicates: rows.duplicatesInInput, replaced: 0, rejected: rows.rejectedCount };
       return await finish(run, {
@@ -364,32 +387,28 @@ export interface PreviewRow {
 
 export interface IntakePreview {
   layout: (NonNullable<ReturnType<typeof describeLayout>> & { delimiterDetected: boolean; fieldCount: number }) | null;
+  /** a netCDF file: its format, the variable read and the others it offers, its time units; null for a CSV */
+  netcdf: NetcdfLayout | null;
   timeFormatGuess: TimeFormat | null;
   mapping: IntakeMapping;
   sample: PreviewRow[];
-  summary: {
-    rowsRead: number;
-    wouldAccept: number;
-    wouldBeDuplicates: number;
-    wouldReplace: number;
-    conflicts: number;
-    rejected: number;
-    rejectedRows: RejectedRow[];
-    first: number | null;
-    last: number | null;
-    notes: string[];
-  } | null;
-  fileError: { code: string; message: string } | null;
+  summary: PreviewSummary | null;
+  /** `variables`: a netCDF file's data variables, when the problem is which one to read */
+  fileError: { code: string; message: string; variables?: string[] } | null;
 }
 
 const PREVIEW_ROWS = 20;
 
 /**
- * What committing this CSV would do, with nothing stored: the detected layout, the first rows as read, a guess of
- * the time format, and the full validation and comparison summary under the given (or guessed) mapping.
+ * What committing this file would do, with nothing stored: for a CSV the detected layout, the first rows as read, a
+ * guess of the time format, and the full validation and comparison summary under the given (or guessed) mapping;
+ * for a netCDF file (told by its first bytes) its format, the variable read and the others on offer, the first
+ * rows as decoded, and the same summary.
  */
 export async function previewObservations(series: Series, csv: string | Uint8Array, overrides: Partial<IntakeMapping> = {}): Promise<IntakePreview> {
   await db();
+  const netcdf = netcdfBytes(csv);
+  if (netcdf) return previewNetcdf(series, netcdf, overrides);
   const sample: PreviewRow[] = [];
   let layout: CsvLayout | null = null;
   const timeIndex = typeof overrides.timeColumn === 'number' ? overrides.timeColumn : 0;
@@ -408,6 +427,7 @@ export async function previewObservations(series: Series, csv: string | Uint8Arr
     if (error.code !== 'header-only' && error.code !== 'no-data') {
       return {
         layout: null,
+        netcdf: null,
         timeFormatGuess: null,
         mapping: mappingFor(series, overrides),
         sample,
@@ -432,8 +452,33 @@ export async function previewObservations(series: Series, csv: string | Uint8Arr
     rows = await collectCsvRows(csv, mapping, series.timeZone);
   } catch (error) {
     if (!(error instanceof CsvFileError)) throw error;
-    return { layout: described, timeFormatGuess, mapping, sample, summary: null, fileError: { code: error.code, message: error.message } };
+    return { layout: described, netcdf: null, timeFormatGuess, mapping, sample, summary: null, fileError: { code: error.code, message: error.message } };
   }
+  return { layout: described, netcdf: null, timeFormatGuess, mapping, sample, summary: await previewSummary(series, rows), fileError: null };
+}
+
+async function previewNetcdf(series: Series, source: NetcdfSource, overrides: Partial<IntakeMapping>): Promise<IntakePreview> {
+  const mapping = mappingFor(series, overrides);
+  const base = { layout: null, timeFormatGuess: null, mapping };
+  let rows: CollectedRows;
+  try {
+    rows = await collectNetcdfRows(source, { variable: mapping.variable, flagVariable: mapping.flagVariable });
+  } catch (error) {
+    if (!(error instanceof NetcdfFileError)) throw error;
+    return { ...base, netcdf: null, sample: [], summary: null, fileError: { code: error.code, message: error.message, variables: error.variables } };
+  }
+  const sample: PreviewRow[] = [];
+  for (let i = 0; i < Math.min(PREVIEW_ROWS, rows.t.length); i++) {
+    sample.push({
+      line: rows.line[i],
+      fields: [formatInstant(rows.t[i]), String(rows.value[i]), ...(rows.sourceFlag ? [String(rows.sourceFlag[i] || '')] : [])],
+    });
+  }
+  return { ...base, netcdf: rows.netcdf ?? null, sample, summary: await previewSummary(series, rows), fileError: null };
+}
+
+/** The validation and comparison summary of collected rows against what the series stores; nothing is written. */
+async function previewSummary(series: Series, rows: CollectedRows): Promise<PreviewSummary> {
   const sequelize = await db();
   const classified = await sequelize.transaction({ type: Transaction.TYPES.DEFERRED }, (transaction) =>
     classifyAgainstStored(series.id, rows, connectionOf(transaction)),
@@ -449,22 +494,15 @@ export async function previewObservations(series: Series, csv: string | Uint8Arr
   const replace = series.duplicatePolicy === 'replace';
   const conflictRows = replace ? [] : conflictRejections(rows, classified);
   return {
-    layout: described,
-    timeFormatGuess,
-    mapping,
-    sample,
-    summary: {
-      rowsRead: rows.rowsRead,
-      wouldAccept,
-      wouldBeDuplicates: duplicates,
-      wouldReplace: replace ? conflicts : 0,
-      conflicts: replace ? 0 : conflicts,
-      rejected: rows.rejectedCount + conflictRows.length,
-      rejectedRows: [...rows.rejectedRows, ...conflictRows].sort((a, b) => a.line - b.line).slice(0, 200),
-      first: rows.t.length ? rows.t[0] : null,
-      last: rows.t.length ? rows.t[rows.t.length - 1] : null,
-      notes: rows.notes,
-    },
-    fileError: null,
+    rowsRead: rows.rowsRead,
+    wouldAccept,
+    wouldBeDuplicates: duplicates,
+    wouldReplace: replace ? conflicts : 0,
+    conflicts: replace ? 0 : conflicts,
+    rejected: rows.rejectedCount + conflictRows.length,
+    rejectedRows: [...rows.rejectedRows, ...conflictRows].sort((a, b) => a.line - b.line).slice(0, 200),
+    first: rows.t.length ? rows.t[0] : null,
+    last: rows.t.length ? rows.t[rows.t.length - 1] : null,
+    notes: rows.notes,
   };
 }

@@ -5,7 +5,7 @@ import { INTAKE_BODY_LIMIT } from './choices';
 import { contentHashOf } from './content-hash';
 
 export interface IntakeBody {
-  /** the CSV as sent: its bytes are decoded by the reader, which chooses and reports the encoding */
+  /** the file as sent: a CSV's bytes are decoded by the reader, which chooses and reports the encoding; bytes with a netCDF signature are read as netCDF */
   csv?: Uint8Array;
   points?: PushedObservation[];
   fileName: string | null;
@@ -26,7 +26,7 @@ function parseMapping(raw: string | null): UploadMapping {
 
 /**
  * Reads an intake body: `text/csv` (mapping as JSON in the `mapping` query parameter), `multipart/form-data` with a
- * `file` part and an optional `mapping` part, or — when `allowJson` — a JSON array of `{ time, value }`. 413 above
+ * `file` part (a CSV or a netCDF file) and an optional `mapping` part (for netCDF `{ "variable": … }`), or — when `allowJson` — a JSON array of `{ time, value }`. 413 above
  * INTAKE_BODY_LIMIT, 415 for any other content type.
  */
 export async function readIntakeBody(request: Request, options: { allowJson: boolean }): Promise<IntakeBody> {
@@ -37,12 +37,13 @@ export async function readIntakeBody(request: Request, options: { allowJson: boo
     return { csv: bytes, fileName: null, contentHash: contentHashOf(bytes), mapping: parseMapping(queryMapping) };
   }
   if (type.startsWith('multipart/form-data')) {
-    const raw = await readLimitedText(request, INTAKE_BODY_LIMIT + 64 * 1024);
-    const form = await new Response(raw, { headers: { 'content-type': request.headers.get('content-type')! } }).formData().catch(() => {
+    // Bytes, never text: a netCDF file (or a CSV in Windows-1252) would not survive decoding the body as UTF-8.
+    const raw = await readLimitedBytes(request, INTAKE_BODY_LIMIT + 64 * 1024);
+    const form = await new Response(new Uint8Array(raw), { headers: { 'content-type': request.headers.get('content-type')! } }).formData().catch(() => {
       throw new UnprocessableError('The multipart body could not be read.');
     });
     const file = form.get('file');
-    if (!file || typeof file === 'string') throw new UnprocessableError('Attach the CSV as the "file" part.', { file: ['Required.'] });
+    if (!file || typeof file === 'string') throw new UnprocessableError('Attach the CSV or netCDF file as the "file" part.', { file: ['Required.'] });
     if (file.size > INTAKE_BODY_LIMIT) throw new PayloadTooLargeError(INTAKE_BODY_LIMIT);
     const bytes = new Uint8Array(await file.arrayBuffer());
     const mappingPart = form.get('mapping');

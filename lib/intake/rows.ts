@@ -3,6 +3,7 @@ import type { Delimiter } from './choices';
 import { CsvFileError, readCsv, type CsvInput, type CsvLayout, type CsvStats } from './csv';
 import { MAX_ABS_TIME_MS, parseTime, type TimeFormat, type TimeReading } from './time-formats';
 import { FLAG_MISSING, isQartodFlag } from '@/lib/quality/flags';
+import type { NetcdfLayout } from './netcdf/dataset';
 
 /** How to read the time and value of each record; columns by header name or 0-based position. */
 export interface IntakeMapping {
@@ -14,6 +15,9 @@ export interface IntakeMapping {
   header?: boolean | 'auto';
   /** The column holding each value's QARTOD flag from the source (a station file's flag column); none when absent. */
   flagColumn?: string | number;
+  /** netCDF files: the variable to read and its QC flag variable (lib/intake/netcdf); CSV files ignore them. */
+  variable?: string;
+  flagVariable?: string;
 }
 
 /** A mapping that may also read plain numeric times (`number`): the command line's, since a stored series holds instants. */
@@ -46,6 +50,8 @@ export interface CollectedRows {
   notes: string[];
   layout: CsvLayout | null;
   stats: CsvStats | null;
+  /** Where the rows of a netCDF file came from (format, variables, time units); absent for CSV and pushes. */
+  netcdf?: NetcdfLayout;
 }
 
 /** Typed arrays that grow by doubling: a million rows cost 20 bytes each instead of an object each. */
@@ -113,6 +119,8 @@ class RowCollector {
   rejectedCount = 0;
   /** Rows the source flagged 9 (missing) with no value: expected gaps, neither stored nor rejected. */
   missing = 0;
+  /** How the note names such rows: a CSV's flag column says so; a netCDF file's fill values do. */
+  missingAre = 'flagged 9 (missing) without a value';
   hasFlags = false;
   readonly rejectedRows: RejectedRow[] = [];
   readonly notes: string[] = [];
@@ -174,7 +182,20 @@ class RowCollector {
       }
       if (time.offset !== undefined && this.offsets.size < 10) this.offsets.add(time.offset);
     }
-    const value = parseValue(valueCell);
+    this.store(line, time.t, parseValue(valueCell), flag, timeColumn, valueColumn);
+  }
+
+  /**
+   * A reading already decoded (a netCDF record): its instant or why it has none, its value (NaN with flag 9:
+   * missing) and its QARTOD flag (0: none given), judged from here on as a CSV row is.
+   */
+  addDecoded(line: number, t: number, timeProblem: string | undefined, value: number, flag: number, timeColumn: string, valueColumn: string): void {
+    this.rowsRead++;
+    if (timeProblem !== undefined) return this.reject(line, timeColumn, timeProblem);
+    this.store(line, t, value, flag, timeColumn, valueColumn);
+  }
+
+  private store(line: number, t: number, value: number | string, flag: number, timeColumn: string, valueColumn: string): void {
     if (flag === FLAG_MISSING && (typeof value === 'string' || Number.isNaN(value))) {
       this.missing++;
       return;
@@ -182,17 +203,17 @@ class RowCollector {
     if (typeof value === 'string') return this.reject(line, valueColumn, value);
     // A plain numeric time is no instant: only its value goes through the schema.
     if (this.format === 'number') {
-      if (Number.isFinite(value)) return this.columns.push(time.t, value, line, flag);
+      if (Number.isFinite(value)) return this.columns.push(t, value, line, flag);
       return this.reject(line, valueColumn, observationSchema.shape.value.safeParse(value).error?.issues[0].message ?? 'the value must be a number');
     }
     // What the schema accepts, decided without building its issue list for each of a million good rows.
-    if (Number.isFinite(value) && Number.isInteger(time.t) && Math.abs(time.t) <= MAX_ABS_TIME_MS) return this.columns.push(time.t, value, line, flag);
-    const checked = observationSchema.safeParse({ t: time.t, value });
+    if (Number.isFinite(value) && Number.isInteger(t) && Math.abs(t) <= MAX_ABS_TIME_MS) return this.columns.push(t, value, line, flag);
+    const checked = observationSchema.safeParse({ t, value });
     if (!checked.success) {
       const issue = checked.error.issues[0];
       return this.reject(line, issue.path[0] === 't' ? timeColumn : valueColumn, issue.message);
     }
-    this.columns.push(time.t, value, line, flag);
+    this.columns.push(t, value, line, flag);
   }
 
   finish(layout: CsvLayout | null, stats: CsvStats | null): CollectedRows {
@@ -201,7 +222,7 @@ class RowCollector {
     }
     if (this.missing)
       this.notes.push(
-        `${this.missing.toLocaleString('en-US')} row${this.missing === 1 ? ' was' : 's were'} flagged 9 (missing) without a value; they were skipped.`,
+        `${this.missing.toLocaleString('en-US')} row${this.missing === 1 ? ' was' : 's were'} ${this.missingAre}; ${this.missing === 1 ? 'it was' : 'they were'} skipped.`,
       );
     const unique = normalise(this.columns, this.notes, (line, reason) => this.reject(line, this.timeLabel, reason), this.format, this.hasFlags);
     return {
@@ -410,6 +431,55 @@ export async function collectCsvColumns(
     }
     return collector.finish(layout, stats);
   });
+}
+
+/** One variable of a netCDF file, decoded: instants (NaN where `timeProblems` says why), values (NaN: missing) and flags. */
+export interface DecodedReadings {
+  t: Float64Array;
+  timeProblems: Map<number, string>;
+  value: Float64Array;
+  /** QARTOD flag per reading (0: none given; 9 marks a missing reading); null when nothing is flagged */
+  flag: Uint8Array | null;
+  /** per-reading problems of the flag (a value not among the flag variable's), rejected as a CSV's off-scale flag is */
+  flagProblems: Map<number, string>;
+  timeLabel: string;
+  valueLabel: string;
+  /** the flag variable's name; null when the variable has none (then `flag` only marks missing readings) */
+  flagLabel: string | null;
+  /** what marks a missing reading (e.g. "_FillValue -999"), for the note counting them */
+  missingAre: string;
+  notes: string[];
+}
+
+/**
+ * Decoded readings → validated, sorted, unique rows, through the same collector as a CSV's cells, so a netCDF file
+ * is judged, de-duplicated and reported like any other input. `line` is the 1-based position along the time
+ * dimension. O(n log n) when out of order, else O(n).
+ */
+export function collectDecodedRows(readings: DecodedReadings, netcdf: NetcdfLayout): CollectedRows {
+  const collector = new RowCollector('epoch-milliseconds', 'UTC');
+  collector.timeLabel = readings.timeLabel;
+  collector.hasFlags = readings.flagLabel !== null;
+  collector.missingAre = `missing (${readings.missingAre}; QARTOD 9)`;
+  for (let i = 0; i < readings.t.length; i++) {
+    const flagProblem = readings.flagProblems.get(i);
+    if (flagProblem !== undefined) {
+      collector.rowsRead++;
+      collector.reject(i + 1, readings.flagLabel, flagProblem);
+      continue;
+    }
+    collector.addDecoded(
+      i + 1,
+      readings.t[i],
+      readings.timeProblems.get(i),
+      readings.value[i],
+      readings.flag?.[i] ?? 0,
+      readings.timeLabel,
+      readings.valueLabel,
+    );
+  }
+  collector.notes.push(...readings.notes);
+  return { ...collector.finish(null, null), netcdf };
 }
 
 /** Validates pushed JSON points; `line` in reports is the 1-based position in the array. */

@@ -1,5 +1,6 @@
-// Client-safe (type imports only): the intake screens and the workbench's quality panel import this shape.
+// Client-safe (type imports only): the intake screens and the workbench's quality panel import these shapes.
 import type { IngestSource, IngestStatus } from '@/models/IngestRun';
+import type { RejectedRow } from './rows';
 
 /** One ingest run as the API and the screens carry it (times as ISO 8601 strings); `presentRun` builds it. */
 export interface IngestRunRecord {
@@ -23,4 +24,18 @@ export interface IngestRunRecord {
   tokenId: number | null;
   startedAt: string;
   finishedAt: string | null;
+}
+
+/** What committing an upload would do (the preview's summary; `previewObservations` builds it); times in epoch ms. */
+export interface PreviewSummary {
+  rowsRead: number;
+  wouldAccept: number;
+  wouldBeDuplicates: number;
+  wouldReplace: number;
+  conflicts: number;
+  rejected: number;
+  rejectedRows: RejectedRow[];
+  first: number | null;
+  last: number | null;
+  notes: string[];
 }

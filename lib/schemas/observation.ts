@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import { MAX_ABS_TIME_MS } from '@/lib/intake/time-formats';
-import { TIME_FORMATS } from './series';
+import { netcdfVariableName, TIME_FORMATS } from './series';
 
 /**
  * One observation after its cells were read: a UTC instant in integer ms and a finite value. Every row of every
@@ -38,6 +38,9 @@ export const uploadMappingSchema = z
     timeFormat: z.enum(TIME_FORMATS),
     delimiter: z.enum([',', ';', '\t', '|']),
     header: z.boolean(),
+    /** netCDF files: the variable to read, and its QC flag variable. */
+    variable: netcdfVariableName,
+    flagVariable: netcdfVariableName,
   })
   .partial()
   .strict();

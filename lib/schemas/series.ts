@@ -43,12 +43,19 @@ export function uniqueSlug(name: string, taken: ReadonlySet<string>, fallback = 
 
 export const TIME_FORMATS = ['iso8601', 'date', 'epoch-seconds', 'epoch-milliseconds', 'decimal-year', 'age-years-bp', 'age-kyr-bp'] as const;
 
+/** A netCDF variable name (the NUG allows letters, digits, underscores and more; anything past 256 characters is no name). */
+export const netcdfVariableName = z.string().trim().min(1).max(256);
+
 export const csvMappingSchema = z.object({
   timeColumn: z.union([z.string().min(1).max(200), z.number().int().min(0)]).default(0),
   valueColumn: z.union([z.string().min(1).max(200), z.number().int().min(0)]).default(1),
   timeFormat: z.enum(TIME_FORMATS).default('iso8601'),
   /** A column holding each value's QARTOD flag from the source (1, 2, 3, 4 or 9); optional. */
   flagColumn: z.union([z.string().min(1).max(200), z.number().int().min(0)]).optional(),
+  /** The variable a netCDF file feeds the series from; optional when a file has only one data variable on its time dimension. */
+  variable: netcdfVariableName.optional(),
+  /** The QC flag variable of `variable` (CF flag_values/flag_meanings); by default the one its ancillary_variables name. */
+  flagVariable: netcdfVariableName.optional(),
 });
 
 function isTimeZone(zone: string): boolean {

@@ -128,3 +128,14 @@ async function launch(options: StartOptions, distDir: string, dataDir: string): 
     },
   };
 }
+
+/** Polls `probe` every quarter second until it gives a value; past the deadline fails with the app's recent output. */
+export async function waitFor<T>(app: RunningApp, what: string, probe: () => T | null | undefined | false, timeoutMs = 30_000): Promise<T> {
+  const deadline = Date.now() + timeoutMs;
+  for (;;) {
+    const value = probe();
+    if (value) return value;
+    if (Date.now() > deadline) throw new Error(`timed out waiting for ${what}\n${app.output().slice(-3000)}`);
+    await new Promise((r) => setTimeout(r, 250));
+  }
+}
