@@ -1,7 +1,7 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { DEMO_PASSWORD, startApp, type RunningApp } from '../support/app';
+import { DEMO_PASSWORD, startApp, waitFor, type RunningApp } from '../support/app';
 import { Session, signedIn } from '../support/session';
 
 let app: RunningApp;
@@ -12,16 +12,6 @@ let viewer: Session;
 const HOUR = 3_600_000;
 const T0 = Date.UTC(2025, 6, 1);
 const SERIES = ['pier-temp', 'pier-sal', 'pier-do', 'pier-turb'];
-
-async function waitFor<T>(what: string, probe: () => T | null | undefined | false, timeoutMs = 30_000): Promise<T> {
-  const deadline = Date.now() + timeoutMs;
-  for (;;) {
-    const value = probe();
-    if (value) return value;
-    if (Date.now() > deadline) throw new Error(`timed out waiting for ${what}\n${app.output().slice(-3000)}`);
-    await new Promise((r) => setTimeout(r, 250));
-  }
-}
 
 beforeAll(async () => {
   app = await startApp({ env: { INGEST_CRON: '*/1 * * * * *' } });
@@ -70,7 +60,7 @@ describe('station data through the API', () => {
     fs.writeFileSync(path.join(folder, 'pier.csv.part'), `${lines.join('\n')}\n`);
     fs.renameSync(path.join(folder, 'pier.csv.part'), path.join(folder, 'pier.csv'));
     const reportPath = path.join(folder, 'processed', 'pier.csv.report.json');
-    await waitFor('the feed report', () => fs.existsSync(reportPath));
+    await waitFor(app, 'the feed report', () => fs.existsSync(reportPath));
     const report = JSON.parse(fs.readFileSync(reportPath, 'utf8'));
     expect(report.series.map((s: { series: string; accepted: number }) => [s.series, s.accepted])).toEqual(SERIES.map((slug) => [slug, 12]));
 

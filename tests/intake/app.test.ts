@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import http from 'node:http';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { DEMO_PASSWORD, startApp, type RunningApp } from '../support/app';
+import { DEMO_PASSWORD, startApp, waitFor, type RunningApp } from '../support/app';
 import { Session, signedIn } from '../support/session';
 
 let app: RunningApp;
@@ -13,16 +13,6 @@ let drops: string;
 
 const csv = (start: number, n: number) =>
   `time,value\n${Array.from({ length: n }, (_, i) => `${new Date(start + i * 3_600_000).toISOString()},${i / 4}`).join('\n')}\n`;
-
-async function waitFor<T>(what: string, probe: () => T | null | undefined | false, timeoutMs = 20_000): Promise<T> {
-  const deadline = Date.now() + timeoutMs;
-  for (;;) {
-    const value = probe();
-    if (value) return value;
-    if (Date.now() > deadline) throw new Error(`timed out waiting for ${what}\n${app.output().slice(-3000)}`);
-    await new Promise((r) => setTimeout(r, 250));
-  }
-}
 
 /** Announces a body one byte over 50 MB and reads the answer before sending any of it (the server refuses on the header). */
 function declaredTooLarge(auth: string): Promise<number> {
@@ -84,12 +74,14 @@ describe('drop folders', () => {
     fs.writeFileSync(path.join(folder, 'good.csv'), good);
     fs.writeFileSync(path.join(folder, 'empty-header.csv'), 'time,value\n');
     const report = await waitFor(
+      app,
       'good.csv processed',
       () => fs.existsSync(path.join(folder, 'processed', 'good.csv.report.json')) && readReport(path.join(folder, 'processed', 'good.csv.report.json')),
     );
     expect(report).toMatchObject({ status: 'succeeded', rowsRead: 48, accepted: 48, duplicates: 0, rejected: 0 });
     expect(fs.existsSync(path.join(folder, 'processed', 'good.csv'))).toBe(true);
     const rejected = await waitFor(
+      app,
       'empty-header.csv rejected',
       () =>
         fs.existsSync(path.join(folder, 'rejected', 'empty-header.csv.report.json')) &&
@@ -99,6 +91,7 @@ describe('drop folders', () => {
 
     fs.writeFileSync(path.join(folder, 'good-copy.csv'), good);
     const again = await waitFor(
+      app,
       'good-copy.csv processed',
       () =>
         fs.existsSync(path.join(folder, 'processed', 'good-copy.csv.report.json')) && readReport(path.join(folder, 'processed', 'good-copy.csv.report.json')),
@@ -129,6 +122,7 @@ describe('drop folders', () => {
     expect(fs.existsSync(path.join(folder, 'late.csv.part'))).toBe(true);
     fs.renameSync(path.join(folder, 'late.csv.part'), path.join(folder, 'late.csv'));
     const report = await waitFor(
+      app,
       'late.csv processed',
       () => fs.existsSync(path.join(folder, 'processed', 'late.csv.report.json')) && readReport(path.join(folder, 'processed', 'late.csv.report.json')),
     );
