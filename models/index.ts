@@ -6,6 +6,7 @@ import { Site } from './Site';
 import { Observation } from './Observation';
 import { IngestRun } from './IngestRun';
 import { AnalysisSnapshot } from './AnalysisSnapshot';
+import { SeriesAnalysisState } from './SeriesAnalysisState';
 import { AlertRule } from './AlertRule';
 import { RuleEvaluation } from './RuleEvaluation';
 import { Alert } from './Alert';
@@ -106,6 +107,7 @@ const MODELS = [
   WebhookAttempt,
   ReportSchedule,
   Feed,
+  SeriesAnalysisState,
 ];
 
 /** Binds the models to this process's one Sequelize instance (idempotent) and returns it once it is ready. */
@@ -150,6 +152,7 @@ export {
   WebhookAttempt,
   ReportSchedule,
   Feed,
+  SeriesAnalysisState,
 };
 /**
  * `writeTransaction` of models/db.ts with the models bound first: a web worker's first request may be a write
