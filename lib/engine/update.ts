@@ -332,7 +332,8 @@ export async function updateAnalysis(
   const frame = analysisFrame(input, settings);
   const full = async (reason: string) => {
     const result = await analyseFrame(frame, settings, { parallel: options.parallel });
-    return { result, state: stateOf(frame, settings, result), how: { mode: 'full' as const, reason } };
+    // Switched off, nothing is kept: a state would only cost storage.
+    return { result, state: options.incremental === false ? null : stateOf(frame, settings, result), how: { mode: 'full' as const, reason } };
   };
   const blocker = incrementalBlocker(settings);
   if (blocker) return full(blocker);
