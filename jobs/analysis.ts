@@ -1,7 +1,8 @@
-import { AnalysisSnapshot, Series, db } from '@/models';
+import type { Transaction } from 'sequelize';
+import { AnalysisSnapshot, Lease, Series, db } from '@/models';
 import { config, cronSetting } from '@/lib/runtime/config';
-import { withLease } from '@/lib/db/leases';
-import { pruneSnapshotCurves, refreshSeriesAnalysis, unjudgedLatestSnapshots } from '@/lib/analysis/snapshot';
+import { PROCESS_HOLDER, withLease } from '@/lib/db/leases';
+import { ClaimLostError, pruneSnapshotCurves, refreshSeriesAnalysis, unjudgedLatestSnapshots } from '@/lib/analysis/snapshot';
 import { evaluateSnapshots } from '@/lib/alerts/evaluate';
 import type { ScheduledJob } from './types';
 
@@ -24,12 +25,23 @@ export async function runAnalysisCycle(): Promise<{ analysed: number; snapshots:
   const worker = async () => {
     while (next < due.length) {
       const { id } = due[next++];
-      const snapshot = await withLease(`analysis:${id}`, leaseMs, async () => {
+      const lease = `analysis:${id}`;
+      const snapshot = await withLease(lease, leaseMs, async () => {
         const series = await Series.findByPk(id);
         if (!series || !series.needsAnalysis) return null;
-        const result = await refreshSeriesAnalysis(series, { parallel: true, markAnalysed: { dataChangedAt: series.dataChangedAt } });
-        await pruneSnapshotCurves(id);
-        return result;
+        // Renewed in the snapshot's transaction: false once another scheduler took the lapsed lease over.
+        const stillClaimed = async (transaction: Transaction) => {
+          const [renewed] = await Lease.update({ expiresAt: Date.now() + leaseMs }, { where: { name: lease, holder: PROCESS_HOLDER }, transaction });
+          return renewed === 1;
+        };
+        try {
+          const result = await refreshSeriesAnalysis(series, { parallel: true, markAnalysed: { dataChangedAt: series.dataChangedAt, stillClaimed } });
+          await pruneSnapshotCurves(id);
+          return result;
+        } catch (error) {
+          if (error instanceof ClaimLostError) return null;
+          throw error;
+        }
       });
       if (snapshot) fresh.push(snapshot);
     }

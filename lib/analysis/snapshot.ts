@@ -86,6 +86,14 @@ export async function spanReadRange(
   return { range: { from: extent.last - points * intervalMs }, last: extent.last };
 }
 
+/** The scheduler's claim on a series lapsed before its analysis was stored; nothing was written. */
+export class ClaimLostError extends Error {
+  constructor(slug: string) {
+    super(`the claim on the analysis of ${slug} lapsed before it was stored`);
+    this.name = 'ClaimLostError';
+  }
+}
+
 /**
  * Runs the engine on a series as it stands and stores the outcome as a new snapshot, successful or not: an
  * error snapshot carries the engine's message (e.g. a gap longer than maxGap, a stretch since the last mark too
@@ -96,12 +104,15 @@ export async function spanReadRange(
  * The analysis continues from the series' kept state when that is exact (`updateAnalysis`, lib/engine/update.ts;
  * switched off by ANALYSIS_INCREMENTAL=0), and the provenance records which it was and why (`update`). The snapshot,
  * the state it leaves and, with `markAnalysed`, the cleared `needsAnalysis` flag (only if no data arrived since
- * `dataChangedAt` was read) are written in one transaction: a process killed before it commits leaves the series due,
+ * `dataChangedAt` was read) are written in one transaction, and only while `stillClaimed` holds: a process killed before it commits leaves the series due,
  * with no snapshot, so a data change is analysed once.
  */
 export async function refreshSeriesAnalysis(
   series: Series,
-  options: { parallel?: boolean; markAnalysed?: { dataChangedAt: Date | null } } = {},
+  options: {
+    parallel?: boolean;
+    markAnalysed?: { dataChangedAt: Date | null; stillClaimed?: (transaction: Transaction) => Promise<boolean> };
+  } = {},
 ): Promise<AnalysisSnapshot> {
   await db();
   const settings = analysisSettingsSchema.parse(series.settings ?? {});
@@ -151,6 +162,8 @@ export async function refreshSeriesAnalysis(
     };
   }
   return writeTransaction(async (transaction) => {
+    // A claim that lapsed while the engine ran (and another scheduler took) stores nothing: that one analyses it.
+    if (options.markAnalysed?.stillClaimed && !(await options.markAnalysed.stillClaimed(transaction))) throw new ClaimLostError(series.slug);
     const snapshot = await AnalysisSnapshot.create(
       { seriesId: series.id, settings, ...outcome, dataFrom, dataTo, durationMs: Math.round(performance.now() - started), provenance },
       { transaction },
