@@ -180,95 +180,65 @@ function frameFacts(frame: AnalysisFrame, settings: AnalysisSettings) {
   };
 }
 
+/** First index of sorted[] with sorted[i] ≥ y (strict: > y). O(log m). */
+function bound(sorted: Float64Array, y: number, strict: boolean): number {
+  let lo = 0,
+    hi = sorted.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >> 1;
+    if (sorted[mid] < y || (strict && sorted[mid] === y)) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo;
+}
+
+/** Σ over the tail's values y of #{prefix < y} − #{prefix > y}: the pairs (prefix, tail) of Kendall's S. O(k log m). */
+function crossS(sortedPrefix: Float64Array, tail: Float64Array): number {
+  let s = 0;
+  for (const y of tail) s += bound(sortedPrefix, y, false) - (sortedPrefix.length - bound(sortedPrefix, y, true));
+  return s;
+}
+
 /**
- * Kendall's S and tie sums of a sequence kept over its sorted values, so that values can be dropped from its end
- * and appended in O(log m) comparisons plus one block move each: a value y appended after m others adds
- * #{less} − #{greater} to S, one dropped from the end takes that away; ties through the count t of equal values,
- * n2 = Σ t(t−1)/2, v1 = Σ t(t−1)(2t+5). Source: Kendall (1945), Biometrika 33, 239–251 (S and its tie-corrected
- * variance); the sums as in lib/engine/kendall.ts.
+ * Kendall's τ_b, S and Var(S) of an indicator series whose values from position c on changed, from the S of the old
+ * series: S = S(prefix) + S(prefix, tail) + S(tail), so S_new = S_old − [S(prefix, old tail) + S(old tail)] +
+ * [S(prefix, new tail) + S(new tail)], the cross terms by binary search in the sorted prefix and the tails' own by
+ * kendallCounts; the tie sums n2 = Σ t(t−1)/2 and v1 = Σ t(t−1)(2t+5) from the merged sorted values. Then exactly as
+ * kendallTau(null, values) (no ties in time): τ_b = S/√(n0(n0 − n2)), Var(S) = [m(m−1)(2m+5) − v1]/18.
+ * Cost O(m log m) (one native sort of the prefix) + O(k log m) for tails of k values. Sources: Kendall (1945),
+ * Biometrika 33, 239–251; the sums as in lib/engine/kendall.ts (Knight 1966).
  */
-class TailKendall {
-  private sorted: Float64Array;
-  private m: number;
-  private n2 = 0;
-  private v1 = 0;
-
-  constructor(
-    values: Float64Array,
-    private s: number,
-    room: number,
-  ) {
-    const finite = finiteValues(values);
-    finite.sort();
-    this.m = finite.length;
-    this.sorted = new Float64Array(this.m + room);
-    this.sorted.set(finite);
-    for (let i = 0; i < this.m;) {
-      let j = i + 1;
-      while (j < this.m && this.sorted[j] === this.sorted[i]) j++;
-      const t = j - i;
-      this.n2 += (t * (t - 1)) / 2;
-      this.v1 += t * (t - 1) * (2 * t + 5);
-      i = j;
+function continuedKendall(old: Float64Array, oldS: number, values: Float64Array, c: number): { tau: number; s: number; varS: number } {
+  const prefix = finiteValues(old.subarray(0, c)).sort();
+  const oldTail = finiteValues(old.subarray(c));
+  const newTail = finiteValues(values.subarray(c));
+  const s = oldS - crossS(prefix, oldTail) - kendallCounts(null, oldTail).s + crossS(prefix, newTail) + kendallCounts(null, newTail).s;
+  const tail = newTail.slice().sort();
+  const m = prefix.length + tail.length;
+  let n2 = 0,
+    v1 = 0,
+    i = 0,
+    j = 0,
+    run = 0,
+    previous = Number.NaN;
+  const close = () => {
+    n2 += (run * (run - 1)) / 2;
+    v1 += run * (run - 1) * (2 * run + 5);
+  };
+  while (i < prefix.length || j < tail.length) {
+    const y = j >= tail.length || (i < prefix.length && prefix[i] <= tail[j]) ? prefix[i++] : tail[j++];
+    if (y === previous) run++;
+    else {
+      close();
+      run = 1;
+      previous = y;
     }
   }
-
-  /** first index with sorted[i] ≥ y (strict: > y) */
-  private bound(y: number, strict: boolean): number {
-    let lo = 0,
-      hi = this.m;
-    while (lo < hi) {
-      const mid = (lo + hi) >> 1;
-      if (this.sorted[mid] < y || (strict && this.sorted[mid] === y)) lo = mid + 1;
-      else hi = mid;
-    }
-    return lo;
-  }
-
-  private static v1Of(t: number): number {
-    return t * (t - 1) * (2 * t + 5);
-  }
-
-  /** Drops y, the last value of the sequence. */
-  dropLast(y: number): void {
-    const lower = this.bound(y, false);
-    const upper = this.bound(y, true);
-    const t = upper - lower;
-    this.s -= lower - (this.m - upper);
-    this.n2 -= t - 1;
-    this.v1 -= TailKendall.v1Of(t) - TailKendall.v1Of(t - 1);
-    this.sorted.copyWithin(lower, lower + 1, this.m);
-    this.m--;
-  }
-
-  append(y: number): void {
-    const lower = this.bound(y, false);
-    const upper = this.bound(y, true);
-    const t = upper - lower;
-    this.s += lower - (this.m - upper);
-    this.n2 += t;
-    this.v1 += TailKendall.v1Of(t + 1) - TailKendall.v1Of(t);
-    this.sorted.copyWithin(upper + 1, upper, this.m);
-    this.sorted[upper] = y;
-    this.m++;
-  }
-
-  /** τ_b, S and Var(S) exactly as kendallTau(null, values) (no ties in time). O(1). */
-  result(): { tau: number; s: number; varS: number } {
-    const m = this.m;
-    if (m < 3) return { tau: Number.NaN, s: this.s, varS: Number.NaN };
-    const n0 = (m * (m - 1)) / 2;
-    const denom = Math.sqrt(n0 * (n0 - this.n2));
-    return {
-      tau: denom > 0 ? Math.max(-1, Math.min(1, this.s / denom)) : Number.NaN,
-      s: this.s,
-      varS: (m * (m - 1) * (2 * m + 5) - this.v1) / 18,
-    };
-  }
-
-  get S(): number {
-    return this.s;
-  }
+  close();
+  if (m < 3) return { tau: Number.NaN, s, varS: Number.NaN };
+  const n0 = (m * (m - 1)) / 2;
+  const denom = Math.sqrt(n0 * (n0 - n2));
+  return { tau: denom > 0 ? Math.max(-1, Math.min(1, s / denom)) : Number.NaN, s, varS: (m * (m - 1) * (2 * m + 5) - v1) / 18 };
 }
 
 function sampleSd(values: Float64Array): number {
@@ -314,7 +284,7 @@ function continuationBlocker(frame: AnalysisFrame, settings: AnalysisSettings, p
  * stretch's start and the shifts can be checked; residuals from c = n_prev − R on are recomputed by detrending the
  * points from c − R on (O((2R + k) log)); the indicators of the windows ending at c or later are recomputed
  * (O(R + k + w)); each indicator's Kendall S drops the values of those windows from the end and appends the new ones
- * (TailKendall: O(m log m) to sort the kept values once, then O(log m) comparisons and one block move per value).
+ * (continuedKendall: one sort of the kept values, O(log m) per changed value).
  * τ, its p and every indicator value equal a full recomputation to rounding (tests/engine/update.test.ts: 1e-9).
  *
  * Surrogates cannot be updated: every surrogate is drawn for the whole record. The update keeps the surrogate taus
@@ -372,17 +342,13 @@ export async function updateAnalysis(
   const values: Partial<Record<IndicatorName, Float64Array>> = {};
   const companions: IndicatorCompanions = {};
   const kendallS: Record<string, number> = {};
-  const tallies: Record<string, ReturnType<TailKendall['result']>> = {};
+  const tallies: Record<string, ReturnType<typeof continuedKendall>> = {};
   for (const name of names) {
     values[name] = splice(previous.indicators[name], tail[name], start);
     const extra = tailCompanions[name];
     if (extra) companions[name] = Object.fromEntries(Object.entries(extra).map(([k, a]) => [k, splice(previous.companions[name][k], a, start)]));
-    const old = previous.indicators[name];
-    const tally = new TailKendall(old, previous.kendallS[name], n - c);
-    for (let i = nPrev - 1; i >= c; i--) if (Number.isFinite(old[i])) tally.dropLast(old[i]);
-    for (let i = c; i < n; i++) if (Number.isFinite(values[name]![i])) tally.append(values[name]![i]);
-    kendallS[name] = tally.S;
-    tallies[name] = tally.result();
+    tallies[name] = continuedKendall(previous.indicators[name], previous.kendallS[name], values[name]!, c);
+    kendallS[name] = tallies[name].s;
   }
   const reused = reusedTrends(values);
   const kendall: AnalysisResult['kendall'] = {};
