@@ -30,7 +30,7 @@ describe('two schedulers sharing the analysis cycle, one killed mid-cycle', () =
   let sink: SMTPServer;
   let sinkPort: number;
   const live: SchedulerProcess[] = [];
-  let seriesIds: number[] = [];
+  const seriesIds: number[] = [];
 
   const spawn = () => {
     const scheduler = startScheduler(
