@@ -46,7 +46,10 @@ export async function runAnalysisCycle(): Promise<{ analysed: number; snapshots:
       if (snapshot) fresh.push(snapshot);
     }
   };
-  await Promise.all(Array.from({ length: Math.min(settings.ANALYSIS_CONCURRENCY, due.length) }, worker));
+  // Every worker finishes before the cycle ends (a cycle never overlaps itself); the first failure is then raised.
+  const outcomes = await Promise.allSettled(Array.from({ length: Math.min(settings.ANALYSIS_CONCURRENCY, due.length) }, worker));
+  const failed = outcomes.find((o): o is PromiseRejectedResult => o.status === 'rejected');
+  if (failed) throw failed.reason;
   const freshIds = new Set(fresh.map((s) => s.id));
   const pending = (await unjudgedLatestSnapshots()).filter((s) => !freshIds.has(s.id));
   const judged = [...fresh, ...pending];
