@@ -1,18 +1,23 @@
-// Child process of cycle.bench.ts: one scheduler's analysis cycle (jobs/analysis.ts runAnalysisCycle) on the bench's
-// database. Connects and loads everything first, prints "ready", runs the cycle when told "go" on stdin (so several
-// children start together and their start-up is not timed), then prints one JSON line and exits.
+// Child process of cycle.bench.ts: a long-lived scheduler's analysis cycles (jobs/analysis.ts runAnalysisCycle) on the
+// bench's database. Connects and loads everything first, prints "ready", then runs one cycle per line on stdin (a JSON
+// object of environment settings for that cycle), printing one JSON line after each; exits when stdin closes.
+import readline from 'node:readline';
 import { db, closeDatabase } from '@/models';
 import { runAnalysisCycle } from '@/jobs/analysis';
 
 async function main() {
   await db();
   console.log('ready');
-  await new Promise<void>((resolve) => process.stdin.once('data', () => resolve()));
-  const t0 = performance.now();
-  const { analysed, snapshots } = await runAnalysisCycle();
-  const ms = performance.now() - t0;
-  const incremental = snapshots.filter((s) => s.provenance?.update?.mode === 'incremental').length;
-  console.log(JSON.stringify({ analysed, incremental, ms }));
+  for await (const line of readline.createInterface({ input: process.stdin })) {
+    const env = JSON.parse(line) as Record<string, string>;
+    Object.assign(process.env, env);
+    const t0 = performance.now();
+    const { analysed, snapshots } = await runAnalysisCycle();
+    const ms = performance.now() - t0;
+    for (const key of Object.keys(env)) delete process.env[key];
+    const incremental = snapshots.filter((s) => s.provenance?.update?.mode === 'incremental').length;
+    console.log(JSON.stringify({ analysed, incremental, ms }));
+  }
   await closeDatabase();
 }
 
