@@ -67,7 +67,7 @@ export interface UpdateMode {
   previousN?: number;
 }
 
-/** The honest rule for surrogates of an updated record (README, "Incremental analysis"). */
+/** The rule for surrogates of an updated record (DEVELOPERS.md, "Incremental analysis and parallel analysis"). */
 export interface NullRefresh {
   /** redraw (full recomputation) once this many points were added since the surrogates were drawn */
   points: number;
