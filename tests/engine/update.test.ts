@@ -100,6 +100,24 @@ describe('incremental analysis agrees with a full recomputation (1e-9)', () => {
     });
   }
 
+  it('indicator values with many ties (readings on a coarse scale): τ, its tie-corrected p and the skipped windows agree', async () => {
+    const settings = analysisSettingsSchema.parse({ detrend: 'none', window: '10 points', indicators: ['variance', 'ac1', 'sd'], shiftDetection: 'off' });
+    const rng = new RandomStream(31, 0);
+    const time = Float64Array.from({ length: 400 }, (_, i) => T0 + i * DAY);
+    const value = Float64Array.from({ length: 400 }, (_, i) => (i >= 200 && i < 215 ? 1 : Math.round(rng.uniform() * 3)));
+    const first = await updateAnalysis({ time: time.slice(0, 380), value: value.slice(0, 380), intervalMs: DAY }, settings, null, { parallel: false });
+    let state = first.state!;
+    for (const upTo of [381, 385, 400]) {
+      const input = { time: time.slice(0, upTo), value: value.slice(0, upTo), intervalMs: DAY };
+      const update = await updateAnalysis(input, settings, state, { parallel: false });
+      expect(update.how.mode).toBe('incremental');
+      const full = await runAnalysis(input, settings, { parallel: false });
+      expect(full.quality.windowsBelowCoverage + full.indicators.variance!.filter((v) => v === null).length).toBeGreaterThan(9);
+      expectSameAnalysis(update.result, full, settings, 'same');
+      state = update.state!;
+    }
+  });
+
   it('a new point after a missing day: the interpolated point and the new one are appended', async () => {
     const settings = analysisSettingsSchema.parse({ detrend: 'gaussian', bandwidth: '10 points', window: '40 points' });
     const r = record(300, 5);
