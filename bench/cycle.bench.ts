@@ -6,7 +6,8 @@
  * faster than full. The full size is 1e8 observations and, in full, about 10,000 core-seconds per cycle, beyond a
  * bench on a 2-core machine shared with other work: this bench runs CYCLE_SERIES series (default 16) of 10,000 points
  * and prints the 10,000-series figures as an EXTRAPOLATION (linear in the series count, which is what one lease per
- * series and no shared state between series make it), marked so in the table.
+ * series and no shared state between series make it), marked so in the table. The database is a fresh SQLite file in a
+ * temp DATA_DIR, or the one DATABASE_URL names (which must then be empty), inherited by the scheduler processes.
  */
 import { spawn } from 'node:child_process';
 import fs from 'node:fs';
