@@ -1,36 +1,55 @@
-import { Op } from 'sequelize';
-import { AnalysisSnapshot, Series, db } from '@/models';
-import { cronSetting } from '@/lib/runtime/config';
-import { withLease } from '@/lib/db/leases';
-import { pruneSnapshotCurves, refreshSeriesAnalysis, unjudgedLatestSnapshots } from '@/lib/analysis/snapshot';
+import type { Transaction } from 'sequelize';
+import { AnalysisSnapshot, Lease, Series, db } from '@/models';
+import { config, cronSetting } from '@/lib/runtime/config';
+import { PROCESS_HOLDER, withLease } from '@/lib/db/leases';
+import { ClaimLostError, pruneSnapshotCurves, refreshSeriesAnalysis, unjudgedLatestSnapshots } from '@/lib/analysis/snapshot';
 import { evaluateSnapshots } from '@/lib/alerts/evaluate';
 import type { ScheduledJob } from './types';
 
-/** Long enough for a large record with thousands of surrogates; the lease is renewed while the work runs. */
-const LEASE_MS = 10 * 60_000;
-
 /**
  * One analysis cycle: every series marked `needsAnalysis` gets a fresh snapshot, under a per-series lease so two
- * schedulers never analyse one series at once. The flag is cleared only if no data arrived while the engine ran
- * (dataChangedAt unchanged); otherwise the next cycle analyses again. All fresh snapshots, plus any latest
- * snapshot a rule has not judged yet (a crash before evaluation, a rule added since), are then judged together.
+ * schedulers never analyse one series at once; one scheduler analyses up to ANALYSIS_CONCURRENCY series at a time
+ * (their surrogates run in worker threads, their reads and writes overlap). A series is re-read under its lease and
+ * skipped if another scheduler analysed it meanwhile. The flag is cleared in the snapshot's own transaction, and only
+ * if no data arrived while the engine ran (dataChangedAt unchanged); otherwise the next cycle analyses again. All
+ * fresh snapshots, plus any latest snapshot a rule has not judged yet (a crash before evaluation, a rule added
+ * since, another scheduler's), are then judged together.
  */
 export async function runAnalysisCycle(): Promise<{ analysed: number; snapshots: AnalysisSnapshot[] }> {
   await db();
+  const settings = config();
+  const leaseMs = settings.ANALYSIS_LEASE_SECONDS * 1000;
   const due = await Series.findAll({ where: { needsAnalysis: true, retiredAt: null }, attributes: ['id'], order: [['id', 'ASC']] });
   const fresh: AnalysisSnapshot[] = [];
-  for (const { id } of due) {
-    const snapshot = await withLease(`analysis:${id}`, LEASE_MS, async () => {
-      const series = await Series.findByPk(id);
-      if (!series || !series.needsAnalysis) return null;
-      const seen = series.dataChangedAt;
-      const result = await refreshSeriesAnalysis(series, { parallel: true });
-      await Series.update({ needsAnalysis: false }, { where: { id, needsAnalysis: true, dataChangedAt: seen === null ? { [Op.is]: null } : seen } });
-      await pruneSnapshotCurves(id);
-      return result;
-    });
-    if (snapshot) fresh.push(snapshot);
-  }
+  let next = 0;
+  const worker = async () => {
+    while (next < due.length) {
+      const { id } = due[next++];
+      const lease = `analysis:${id}`;
+      const snapshot = await withLease(lease, leaseMs, async () => {
+        const series = await Series.findByPk(id);
+        if (!series || !series.needsAnalysis) return null;
+        // Renewed in the snapshot's transaction: false once another scheduler took the lapsed lease over.
+        const stillClaimed = async (transaction: Transaction) => {
+          const [renewed] = await Lease.update({ expiresAt: Date.now() + leaseMs }, { where: { name: lease, holder: PROCESS_HOLDER }, transaction });
+          return renewed === 1;
+        };
+        try {
+          const result = await refreshSeriesAnalysis(series, { parallel: true, markAnalysed: { dataChangedAt: series.dataChangedAt, stillClaimed } });
+          await pruneSnapshotCurves(id);
+          return result;
+        } catch (error) {
+          if (error instanceof ClaimLostError) return null;
+          throw error;
+        }
+      });
+      if (snapshot) fresh.push(snapshot);
+    }
+  };
+  // Every worker finishes before the cycle ends (a cycle never overlaps itself); the first failure is then raised.
+  const outcomes = await Promise.allSettled(Array.from({ length: Math.min(settings.ANALYSIS_CONCURRENCY, due.length) }, worker));
+  const failed = outcomes.find((o): o is PromiseRejectedResult => o.status === 'rejected');
+  if (failed) throw failed.reason;
   const freshIds = new Set(fresh.map((s) => s.id));
   const pending = (await unjudgedLatestSnapshots()).filter((s) => !freshIds.has(s.id));
   const judged = [...fresh, ...pending];

@@ -30,3 +30,4 @@ export { WebhookEndpoint } from './WebhookEndpoint';
 export { WebhookAttempt, WebhookDelivery } from './WebhookDelivery';
 export { ReportSchedule } from './ReportSchedule';
 export { Feed } from './Feed';
+export { SeriesAnalysisState } from './SeriesAnalysisState';

@@ -23,6 +23,14 @@ export function ProvenancePanel({ analyses }: { analyses: ProvenanceView[] }) {
             <dd className="break-all font-mono" data-testid="provenance-sha256">
               {p.dataSha256}
             </dd>
+            {p.update ? (
+              <>
+                <dt className="text-ink-soft">Computed</dt>
+                <dd data-testid="provenance-update">
+                  {p.update.mode === 'incremental' ? `updated from analysis #${p.update.basedOnSnapshot}` : 'in full'}: {p.update.reason}
+                </dd>
+              </>
+            ) : null}
             <dt className="text-ink-soft">Engine</dt>
             <dd>
               version {p.engineVersion}, seed {p.seed}

@@ -38,7 +38,14 @@ export function EvidenceTable({ rows }: { rows: EvidenceRow[] }) {
               </th>
               <td className={`${CELL_TIGHT} whitespace-nowrap`}>{formatDirection(row.direction)}</td>
               <td className={`${CELL_TIGHT} num whitespace-nowrap`}>{row.computed ? tauWithDirection(row.tau, row.direction) : 'not computed'}</td>
-              <td className={`${CELL_TIGHT} num whitespace-nowrap`}>{row.surrogates ? `${formatP(row.surrogateP)} (${row.surrogates})` : 'no surrogates'}</td>
+              <td className={`${CELL_TIGHT} num whitespace-nowrap`}>
+                {row.surrogates ? `${formatP(row.surrogateP)} (${row.surrogates})` : 'no surrogates'}
+                {row.surrogates > 0 && row.surrogatesDrawnBefore > 0 ? (
+                  <span className="block text-xs text-ink-soft" data-testid="surrogates-kept">
+                    surrogates drawn {row.surrogatesDrawnBefore} point{row.surrogatesDrawnBefore === 1 ? '' : 's'} ago
+                  </span>
+                ) : null}
+              </td>
               <td className={CELL_TIGHT}>
                 {row.rules.length === 0 ? (
                   <span className="text-ink-faint">none</span>

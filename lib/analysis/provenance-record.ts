@@ -21,6 +21,11 @@ export interface SnapshotProvenance {
   intervalMs: number | null;
   /** the marks given to the engine as breaks */
   breaks: { time: number; kind: 'tipping-point' | 'maintenance' }[];
+  /**
+   * How the numbers were computed (absent on snapshots stored before incremental analysis): a full recomputation, or
+   * an update of the analysis of snapshot `basedOnSnapshot` (lib/engine/update.ts), and why.
+   */
+  update?: { mode: 'full' | 'incremental'; reason: string; basedOnSnapshot: number | null };
 }
 
 /** The name a snapshot's download is saved under. */

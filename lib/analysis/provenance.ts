@@ -18,8 +18,20 @@ import { flagsLeftOutOf, loadObservations } from './observations';
 export function canonicalObservationsCsv(time: Float64Array, value: Float64Array): string {
   const lines = new Array<string>(time.length + 1);
   lines[0] = 'time,value';
-  for (let i = 0; i < time.length; i++) lines[i + 1] = `${formatInstant(time[i])},${String(value[i])}`;
+  for (let i = 0; i < time.length; i++) lines[i + 1] = `${instantText(time[i])},${String(value[i])}`;
   return `${lines.join('\n')}\n`;
+}
+
+/** Latest instant a Date holds (ECMA-262 §21.4.1.22, time values within ±8.64e15 ms). */
+const DATE_LIMIT_MS = 8.64e15;
+
+/**
+ * formatInstant's text, through the platform's Date.prototype.toISOString where that gives the same (whole
+ * milliseconds a Date holds: ISO 8601 with milliseconds, the expanded ±YYYYYY year outside 0000–9999, ECMA-262
+ * §21.4.4.36), about twice as fast on a long record; formatInstant itself elsewhere (deep time, fractions of a ms).
+ */
+function instantText(t: number): string {
+  return Number.isInteger(t) && Math.abs(t) <= DATE_LIMIT_MS ? new Date(t).toISOString() : formatInstant(t);
 }
 
 function sha256Hex(text: string): string {

@@ -1,14 +1,17 @@
-import { Op, QueryTypes, type Transaction } from 'sequelize';
+import { Op, QueryTypes, type InferCreationAttributes, type Transaction } from 'sequelize';
 import { sampleStandardDeviation } from 'simple-statistics';
-import { AnalysisSnapshot, Mark, WITHOUT_CHARTS, db, type Series } from '@/models';
+import { AnalysisSnapshot, Mark, Series, WITHOUT_CHARTS, db, writeTransaction } from '@/models';
 import { analysisSettingsSchema, type AnalysisSettings } from '@/lib/engine/settings';
-import { runAnalysis, summarizeAnalysis, type AnalysisInput, type AnalysisResult } from '@/lib/engine/analyze';
+import { summarizeAnalysis, type AnalysisInput, type AnalysisResult } from '@/lib/engine/analyze';
+import { NULL_REFRESH, updateAnalysis, type AnalysisState } from '@/lib/engine/update';
+import { config } from '@/lib/runtime/config';
 import { extentPoints } from '@/lib/engine/extent';
 import { curvesOf } from './curves';
 import { completeSavedView, viewFromSnapshot, type AnalysisView } from './view';
 import { AnalysisInputError } from '@/lib/engine/errors';
 import { provenanceOf } from './provenance';
 import { loadObservations, observationExtent, type ObservationRange } from './observations';
+import { keepAnalysisState, loadAnalysisState } from './state';
 
 /**
  * The spread of the surrogate taus of one indicator: `nullSd` is their sample standard deviation (n − 1), the
@@ -83,47 +86,72 @@ export async function spanReadRange(
   return { range: { from: extent.last - points * intervalMs }, last: extent.last };
 }
 
+/** The scheduler's claim on a series lapsed before its analysis was stored; nothing was written. */
+export class ClaimLostError extends Error {
+  constructor(slug: string) {
+    super(`the claim on the analysis of ${slug} lapsed before it was stored`);
+    this.name = 'ClaimLostError';
+  }
+}
+
 /**
  * Runs the engine on a series as it stands and stores the outcome as a new snapshot, successful or not: an
  * error snapshot carries the engine's message (e.g. a gap longer than maxGap, a stretch since the last mark too
  * short for the window) so the series page can say why there is no fresh evidence. Only the trailing span the
  * settings ask for is read from the database, and the marks inside it go to the engine as breaks, so the analysis
  * judges only the stretch since the last marked tipping point or maintenance break (or detected shift).
+ *
+ * The analysis continues from the series' kept state when that is exact (`updateAnalysis`, lib/engine/update.ts;
+ * switched off by ANALYSIS_INCREMENTAL=0), and the provenance records which it was and why (`update`). The snapshot,
+ * the state it leaves and, with `markAnalysed`, the cleared `needsAnalysis` flag (only if no data arrived since
+ * `dataChangedAt` was read) are written in one transaction, and only while `stillClaimed` holds: a process killed before it commits leaves the series due,
+ * with no snapshot, so a data change is analysed once.
  */
-export async function refreshSeriesAnalysis(series: Series, options: { parallel?: boolean } = {}): Promise<AnalysisSnapshot> {
+export async function refreshSeriesAnalysis(
+  series: Series,
+  options: {
+    parallel?: boolean;
+    markAnalysed?: { dataChangedAt: Date | null; stillClaimed?: (transaction: Transaction) => Promise<boolean> };
+  } = {},
+): Promise<AnalysisSnapshot> {
   await db();
   const settings = analysisSettingsSchema.parse(series.settings ?? {});
   const intervalMs = series.intervalMs === null ? undefined : Number(series.intervalMs);
   const started = performance.now();
   const { range, last } = await spanReadRange(series.id, settings, intervalMs);
-  const [observations, breaks] = await Promise.all([loadObservations(series.id, range), seriesBreaks(series.id, { from: range.from, to: last })]);
+  const incremental = config().ANALYSIS_INCREMENTAL;
+  const [observations, breaks, previous] = await Promise.all([
+    loadObservations(series.id, range),
+    seriesBreaks(series.id, { from: range.from, to: last }),
+    incremental ? loadAnalysisState(series.id) : null,
+  ]);
   const n = observations.time.length;
   const dataFrom = n ? observations.time[0] : null;
   const dataTo = n ? observations.time[n - 1] : null;
   const provenance = await provenanceOf(series.id, observations, settings, { intervalMs, breaks });
+  let outcome: Pick<InferCreationAttributes<AnalysisSnapshot>, 'summary' | 'curves' | 'chartView' | 'status' | 'error' | 'n'>;
+  let kept: AnalysisState | null | undefined;
   try {
-    const result = await runAnalysis({ ...observations, intervalMs, breaks }, settings, options);
+    const { result, state, how } = await updateAnalysis({ ...observations, intervalMs, breaks }, settings, previous?.state ?? null, {
+      parallel: options.parallel,
+      incremental,
+      refresh: { ...NULL_REFRESH, points: config().ANALYSIS_NULL_REFRESH_POINTS },
+    });
+    kept = state;
+    provenance.update = { mode: how.mode, reason: how.reason, basedOnSnapshot: how.mode === 'incremental' ? previous!.snapshotId : null };
     // Through JSON first, so the saved view is exactly the one the stored row's curves would give (NaN → null).
     const stored = JSON.parse(JSON.stringify({ summary: snapshotSummary(result), curves: curvesOf(result) }));
-    return await AnalysisSnapshot.create({
-      seriesId: series.id,
-      settings,
+    outcome = {
       summary: stored.summary,
       curves: stored.curves,
       chartView: viewFromSnapshot({ settings, ...stored }) as unknown as Record<string, unknown>,
       status: 'ok',
       error: null,
       n: result.n,
-      dataFrom,
-      dataTo,
-      durationMs: Math.round(performance.now() - started),
-      provenance,
-    });
+    };
   } catch (error) {
     if (!(error instanceof AnalysisInputError)) console.error(`[analysis] series ${series.slug} failed`, error);
-    return AnalysisSnapshot.create({
-      seriesId: series.id,
-      settings,
+    outcome = {
       summary: {},
       curves: null,
       chartView: null,
@@ -131,12 +159,26 @@ export async function refreshSeriesAnalysis(series: Series, options: { parallel?
       error:
         error instanceof AnalysisInputError ? error.message : `The analysis failed unexpectedly: ${error instanceof Error ? error.message : String(error)}`,
       n,
-      dataFrom,
-      dataTo,
-      durationMs: Math.round(performance.now() - started),
-      provenance,
-    });
+    };
   }
+  return writeTransaction(async (transaction) => {
+    // A claim that lapsed while the engine ran (and another scheduler took) stores nothing: that one analyses it.
+    if (options.markAnalysed?.stillClaimed && !(await options.markAnalysed.stillClaimed(transaction))) throw new ClaimLostError(series.slug);
+    const snapshot = await AnalysisSnapshot.create(
+      { seriesId: series.id, settings, ...outcome, dataFrom, dataTo, durationMs: Math.round(performance.now() - started), provenance },
+      { transaction },
+    );
+    // A failed analysis leaves the kept state as it was: the next one checks it against the record all the same.
+    if (kept !== undefined) await keepAnalysisState(series.id, snapshot.id, kept, transaction);
+    if (options.markAnalysed) {
+      const seen = options.markAnalysed.dataChangedAt;
+      await Series.update(
+        { needsAnalysis: false },
+        { where: { id: series.id, needsAnalysis: true, dataChangedAt: seen === null ? { [Op.is]: null } : seen }, transaction },
+      );
+    }
+    return snapshot;
+  });
 }
 
 /**

@@ -40,7 +40,13 @@ export interface AnalysisView {
   indicators: IndicatorName[];
   /** Kendall tau of each indicator's trend; p is descriptive only (it assumes independent values). */
   kendall: Partial<Record<IndicatorName, { tau: number | null; p: number | null; direction: TrendDirection }>>;
-  significance: Partial<Record<IndicatorName, { p: number | null; count: number; method: string; direction: TrendDirection; bins: HistogramBin[] }>>;
+  /**
+   * `pointsSinceDrawn`: how many points the record had gained since its surrogates were drawn (0 when drawn on this
+   * very record, or not recorded): an incremental analysis reads its τ against the surrogate taus of an earlier full one.
+   */
+  significance: Partial<
+    Record<IndicatorName, { p: number | null; count: number; method: string; direction: TrendDirection; bins: HistogramBin[]; pointsSinceDrawn?: number }>
+  >;
   sensitivity: (SensitivityResult & { chosen: { window: number; bandwidth: number | null } }) | null;
   quality: ViewQuality | null;
   /** detected abrupt shifts of level (time = first instant of the new level, UTC ms) */
@@ -119,7 +125,11 @@ export function buildView(
     significance?: Partial<
       Record<
         IndicatorName,
-        Omit<NonNullable<AnalysisSummary['significance'][IndicatorName]>, 'taus' | 'direction'> & { taus?: number[]; direction?: TrendDirection }
+        Omit<NonNullable<AnalysisSummary['significance'][IndicatorName]>, 'taus' | 'direction' | 'drawn'> & {
+          taus?: number[];
+          direction?: TrendDirection;
+          drawn?: { n: number; to: number };
+        }
       >
     >;
     sensitivity?: SensitivityResult | null;
@@ -148,6 +158,7 @@ export function buildView(
       method: s.method,
       direction: s.direction ?? UPPER_TAIL,
       bins: tauHistogram(taus, summary.kendall[name]?.tau ?? null),
+      pointsSinceDrawn: s.drawn ? summary.n - s.drawn.n : 0,
     };
   }
   // The grid's axes are fractions of the analysed stretch; a window or bandwidth given in points or as a duration

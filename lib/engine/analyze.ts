@@ -73,8 +73,17 @@ export interface AnalysisResult {
   /** Kendall tau of each indicator against time, with a descriptive normal-approximation p in the indicator's direction
    * (it assumes independent values, which overlapping windows are not: never a gate) */
   kendall: Partial<Record<IndicatorName, { tau: number | null; p: number | null; direction: TrendDirection }>>;
-  /** surrogate p in the indicator's direction (two-sided for two-sided indicators) */
-  significance: Partial<Record<IndicatorName, { p: number | null; count: number; method: SurrogateMethod; taus: number[]; direction: TrendDirection }>>;
+  /**
+   * surrogate p in the indicator's direction (two-sided for two-sided indicators); `drawn` says on which record the
+   * surrogates were drawn (its residual length n and last instant): this analysis's own in a full analysis, an
+   * earlier, shorter one when an incremental update kept the surrogate taus (lib/engine/update.ts)
+   */
+  significance: Partial<
+    Record<
+      IndicatorName,
+      { p: number | null; count: number; method: SurrogateMethod; taus: number[]; direction: TrendDirection; drawn: { n: number; to: number } }
+    >
+  >;
   sensitivity: SensitivityResult | null;
   quality: AnalysisQuality;
   caution: string;
@@ -167,6 +176,60 @@ function stretchStart(
  * (README, "Indicator definitions"). The returned arrays are the engine's own (never the caller's input).
  */
 export async function runAnalysis(input: AnalysisInput, settings: AnalysisSettings, options: { parallel?: boolean } = {}): Promise<AnalysisResult> {
+  return analyseFrame(analysisFrame(input, settings), settings, options);
+}
+
+/** runAnalysis from detrending on, for a frame already made (analysisFrame). */
+export async function analyseFrame(frame: AnalysisFrame, settings: AnalysisSettings, options: { parallel?: boolean } = {}): Promise<AnalysisResult> {
+  const { x, n, w, raw, dt, skip, stride, observed } = frame;
+  const names = settings.indicators;
+  const d = detrend(x, settings.detrend, { bandwidthPoints: frame.h, movingAverageWidth: settings.movingAverageWidth });
+  const companionValues: IndicatorCompanions = {};
+  const values = rollingIndicators(d.residual, w, names, { raw, dt, skip, stride, companions: companionValues });
+  const trends = indicatorTrends(values);
+  const kendall: AnalysisResult['kendall'] = {};
+  for (const name of names) kendall[name] = kendallEntry(name, trends[name]!);
+
+  const significance: AnalysisResult['significance'] = {};
+  if (settings.surrogates > 0) {
+    const job = prepareSurrogateJob(d.residual, raw, {
+      method: settings.surrogateMethod,
+      seed: settings.seed,
+      w,
+      dt,
+      indicators: [...names],
+      stride,
+      observed,
+      skip,
+    });
+    const { taus } = await computeSurrogateTaus(job, settings.surrogates, { parallel: options.parallel });
+    const drawn = { n, to: frame.time[frame.time.length - 1] };
+    for (const name of names) {
+      significance[name] = significanceEntry(name, kendall[name]!.tau, Array.from(taus[name]).filter(Number.isFinite), settings.surrogateMethod, drawn);
+    }
+  }
+
+  const sensitivity = settings.sensitivity
+    ? sensitivityGrid(x, x, {
+        detrend: settings.detrend,
+        movingAverageWidth: settings.movingAverageWidth,
+        bandwidth: frame.h / x.length,
+        indicators: [...names],
+        dt,
+        maxEvaluatedWindows: settings.maxEvaluatedWindows,
+      })
+    : null;
+  return assembleResult(frame, settings, { trend: d.trend, residual: d.residual, values, companions: companionValues, kendall, significance, sensitivity });
+}
+
+/**
+ * Everything an analysis fixes before detrending, shared by the full analysis and the incremental update
+ * (lib/engine/update.ts): the prepared record, its shifts, the analysed stretch `x` with its times, the smoother's h,
+ * the residual length n (x.length − 1 for `difference`), the window w, Δt, the observed mask and flat runs in residual
+ * positions, the unjudged windows and the per-window indicators' stride. Throws AnalysisInputError as runAnalysis
+ * documents. Cost O(n) plus the shift detector's (O(n)).
+ */
+export function analysisFrame(input: AnalysisInput, settings: AnalysisSettings) {
   const kind = input.timeKind ?? 'utc-ms';
   const prepared = prepareSeries(input, settings);
   const whole = prepared.value;
@@ -183,8 +246,8 @@ export async function runAnalysis(input: AnalysisInput, settings: AnalysisSettin
       : `the stretch from ${formatInstant(time[0], kind)} to ${formatInstant(time[time.length - 1], kind)} (${x.length} points) starts ${START_WORDS[cut.startsAfter]}`;
   if (x.length < MIN_WINDOW_POINTS) throw new AnalysisInputError(`the series has ${x.length} usable points; at least 8 are needed (${stretchWords()})`);
   const h = extentPoints(settings.bandwidth, x.length, prepared.interval, kind);
-  const d = detrend(x, settings.detrend, { bandwidthPoints: h, movingAverageWidth: settings.movingAverageWidth });
-  const n = d.residual.length;
+  const offset = settings.detrend === 'difference' ? 1 : 0;
+  const n = x.length - offset;
   let w: number;
   try {
     w = windowPoints(settings.window, n, prepared.interval, kind);
@@ -193,66 +256,59 @@ export async function runAnalysis(input: AnalysisInput, settings: AnalysisSettin
     throw e;
   }
   const dt = kind === 'utc-ms' ? prepared.interval / DAY_MS : prepared.interval;
-  const raw = x.subarray(d.offset);
+  const raw = x.subarray(offset);
   // A differenced residual is observed only when both of its points were.
   const observedStretch = prepared.observed.subarray(cut.index);
-  const observed = d.offset === 0 ? observedStretch : observedStretch.subarray(1).map((o, i) => o & observedStretch[i]);
-  const flat = prepared.flat
-    .map((r) => ({ start: Math.max(0, r.start - cut.index - d.offset), end: r.end - cut.index - d.offset }))
-    .filter((r) => r.end > r.start);
+  const observed = offset === 0 ? observedStretch : observedStretch.subarray(1).map((o, i) => o & observedStretch[i]);
+  const flat = prepared.flat.map((r) => ({ start: Math.max(0, r.start - cut.index - offset), end: r.end - cut.index - offset })).filter((r) => r.end > r.start);
   const { skip, belowCoverage } = unjudgedWindows(observed, flat, w, settings.minCoverage);
-  const names = settings.indicators;
   const stride = evaluationStride(n - w + 1, settings.maxEvaluatedWindows);
-  const companionValues: IndicatorCompanions = {};
-  const values = rollingIndicators(d.residual, w, names, { raw, dt, skip, stride, companions: companionValues });
+  return { kind, prepared, shifts, cut, x, time, h, offset, n, w, dt, raw, observedStretch, observed, skip, belowCoverage, stride };
+}
+
+export type AnalysisFrame = ReturnType<typeof analysisFrame>;
+
+/** An indicator's Kendall entry of a result: τ and the normal-approximation p in its direction. O(1). */
+export function kendallEntry(name: IndicatorName, t: { tau: number; s: number; varS: number }): AnalysisResult['kendall'][IndicatorName] & object {
+  const direction = INDICATOR_DIRECTIONS[name];
+  return { tau: finiteOrNull(t.tau), p: finiteOrNull(normalPInDirection(t.s / Math.sqrt(t.varS), direction)), direction };
+}
+
+/** An indicator's significance entry: the surrogate p of τ against the (finite) surrogate taus, in its direction. O(N). */
+export function significanceEntry(
+  name: IndicatorName,
+  tau: number | null,
+  taus: number[],
+  method: SurrogateMethod,
+  drawn: { n: number; to: number },
+): AnalysisResult['significance'][IndicatorName] & object {
+  const direction = INDICATOR_DIRECTIONS[name];
+  const { p, count } = surrogatePValue(tau ?? Number.NaN, Float64Array.from(taus), direction);
+  return { p, count, method, taus, direction, drawn };
+}
+
+/** The result of an analysis from its frame and the per-point arrays and statistics computed on it. O(n). */
+export function assembleResult(
+  frame: AnalysisFrame,
+  settings: AnalysisSettings,
+  parts: {
+    trend: Float64Array;
+    residual: Float64Array;
+    values: Partial<Record<IndicatorName, Float64Array>>;
+    companions: IndicatorCompanions;
+    kendall: AnalysisResult['kendall'];
+    significance: AnalysisResult['significance'];
+    sensitivity: SensitivityResult | null;
+  },
+): AnalysisResult {
+  const { kind, prepared, time, n, w, dt, h, raw, cut, observedStretch } = frame;
   const companions: AnalysisResult['companions'] = {};
-  for (const [name, byName] of Object.entries(companionValues) as [IndicatorName, Record<string, Float64Array>][]) {
+  for (const [name, byName] of Object.entries(parts.companions) as [IndicatorName, Record<string, Float64Array>][]) {
     companions[name] = Object.fromEntries(Object.entries(byName).map(([k, a]) => [k, toNullable(a)]));
   }
   const evaluatedEvery: AnalysisResult['evaluatedEvery'] = Object.fromEntries(
-    names.map((name) => [name, indicatorDefinition(name)!.kind === 'window' ? stride : 1]),
+    settings.indicators.map((name) => [name, indicatorDefinition(name)!.kind === 'window' ? frame.stride : 1]),
   );
-
-  const indicators = lazyIndicators(values);
-  const kendall: AnalysisResult['kendall'] = {};
-  const trends = indicatorTrends(values);
-  for (const name of names) {
-    const t = trends[name]!;
-    const direction = INDICATOR_DIRECTIONS[name];
-    kendall[name] = { tau: finiteOrNull(t.tau), p: finiteOrNull(normalPInDirection(t.s / Math.sqrt(t.varS), direction)), direction };
-  }
-
-  const significance: AnalysisResult['significance'] = {};
-  if (settings.surrogates > 0) {
-    const job = prepareSurrogateJob(d.residual, raw, {
-      method: settings.surrogateMethod,
-      seed: settings.seed,
-      w,
-      dt,
-      indicators: [...names],
-      stride,
-      observed,
-      skip,
-    });
-    const { taus } = await computeSurrogateTaus(job, settings.surrogates, { parallel: options.parallel });
-    for (const name of names) {
-      const direction = INDICATOR_DIRECTIONS[name];
-      const { p, count } = surrogatePValue(kendall[name]!.tau ?? Number.NaN, taus[name], direction);
-      significance[name] = { p, count, method: settings.surrogateMethod, taus: Array.from(taus[name]).filter(Number.isFinite), direction };
-    }
-  }
-
-  const sensitivity = settings.sensitivity
-    ? sensitivityGrid(x, x, {
-        detrend: settings.detrend,
-        movingAverageWidth: settings.movingAverageWidth,
-        bandwidth: h / x.length,
-        indicators: [...names],
-        dt,
-        maxEvaluatedWindows: settings.maxEvaluatedWindows,
-      })
-    : null;
-
   let seen = 0;
   for (const o of observedStretch) seen += o;
   return {
@@ -263,18 +319,27 @@ export async function runAnalysis(input: AnalysisInput, settings: AnalysisSettin
     dt,
     rateUnit: kind === 'utc-ms' ? 'per day' : 'per time unit',
     interval: prepared.interval,
-    shifts,
+    shifts: frame.shifts,
     stretch: { from: time[0], to: time[time.length - 1], startsAfter: cut.startsAfter },
-    series: { time: time.subarray(d.offset), value: raw, trend: d.trend, residual: d.residual },
-    indicators,
+    series: { time: time.subarray(frame.offset), value: raw, trend: parts.trend, residual: parts.residual },
+    indicators: lazyIndicators(parts.values),
     companions,
     evaluatedEvery,
-    kendall,
-    significance,
-    sensitivity,
-    quality: { ...prepared.quality, coverage: seen / observedStretch.length, windowsBelowCoverage: belowCoverage },
+    kendall: parts.kendall,
+    significance: parts.significance,
+    sensitivity: parts.sensitivity,
+    quality: { ...prepared.quality, coverage: seen / observedStretch.length, windowsBelowCoverage: frame.belowCoverage },
     caution: ANALYSIS_CAUTION,
   };
+}
+
+/** The indicator arrays of a result as typed arrays (NaN where none), without building the nullable copies. O(n) at most. */
+export function indicatorArrays(result: AnalysisResult): Partial<Record<IndicatorName, Float64Array>> {
+  const typed = rawIndicators.get(result.indicators);
+  if (typed) return typed;
+  return Object.fromEntries(
+    Object.entries(result.indicators).map(([name, values]) => [name, Float64Array.from(values!, (v) => (v === null ? Number.NaN : v))]),
+  ) as Partial<Record<IndicatorName, Float64Array>>;
 }
 
 /** The result without per-point arrays (JSON-friendly), plus the latest value of each indicator. O(n). */

@@ -193,20 +193,29 @@ export function mannKendall(values: Float64Array): MannKendallResult {
 export function indicatorTrends<K extends string>(values: Partial<Record<K, Float64Array>>): Partial<Record<K, KendallResult>> {
   const out: Partial<Record<string, KendallResult>> = {};
   const v = values as Partial<Record<string, Float64Array>>;
-  const sameDefined = (a: Float64Array, b: Float64Array) => {
-    for (let i = 0; i < a.length; i++) if (Number.isFinite(a[i]) !== Number.isFinite(b[i])) return false;
-    return true;
-  };
-  const reused: { name: string; base: string; sign: 1 | -1 }[] = [];
-  for (const name of Object.keys(v)) {
-    const of = indicatorDefinition(name)?.trendOf;
-    const base = of ? v[of.name] : undefined;
-    if (of && base && sameDefined(base, v[name]!)) reused.push({ name, base: of.name, sign: of.sign });
-    else out[name] = indicatorTrend(v[name]!);
-  }
-  for (const { name, base, sign } of reused) {
+  const reused = reusedTrends(v);
+  for (const name of Object.keys(v)) if (!reused.has(name)) out[name] = indicatorTrend(v[name]!);
+  for (const [name, { base, sign }] of reused) {
     const t = out[base]!;
     out[name] = sign === 1 ? t : { ...t, tau: -t.tau, s: -t.s };
   }
   return out as Partial<Record<K, KendallResult>>;
+}
+
+/**
+ * The indicators whose trend indicatorTrends takes from another (its `trendOf` base, present and defined at the same
+ * points), with the sign; shared with the incremental update so both publish the same τ. O(n) per such indicator.
+ */
+export function reusedTrends(values: Partial<Record<string, Float64Array>>): Map<string, { base: string; sign: 1 | -1 }> {
+  const sameDefined = (a: Float64Array, b: Float64Array) => {
+    for (let i = 0; i < a.length; i++) if (Number.isFinite(a[i]) !== Number.isFinite(b[i])) return false;
+    return true;
+  };
+  const reused = new Map<string, { base: string; sign: 1 | -1 }>();
+  for (const name of Object.keys(values)) {
+    const of = indicatorDefinition(name)?.trendOf;
+    const base = of ? values[of.name] : undefined;
+    if (of && base && sameDefined(base, values[name]!)) reused.set(name, { base: of.name, sign: of.sign });
+  }
+  return reused;
 }

@@ -87,6 +87,14 @@ const configSchema = z.object({
   DEMO_FEED_CRON: cron('30 */2 * * * *'),
   /** The freshness watch (data-late alerts open and close) and the due scheduled reports: every 5 minutes. */
   FRESHNESS_CRON: cron('*/5 * * * *'),
+  /** Series one scheduler analyses at once in a cycle (jobs/analysis.ts); each takes its own lease. */
+  ANALYSIS_CONCURRENCY: whole(2, 1, 64),
+  /** How long a scheduler's claim on a series' analysis lasts without renewal (renewed every third of it). */
+  ANALYSIS_LEASE_SECONDS: whole(600, 5),
+  /** Continue from the series' kept state where exact (lib/engine/update.ts); 0 recomputes every analysis in full. */
+  ANALYSIS_INCREMENTAL: flag(true),
+  /** An incremental analysis keeps the surrogate taus until this many points were added since they were drawn. */
+  ANALYSIS_NULL_REFRESH_POINTS: whole(100, 1),
   START_SCHEDULER: flag(true),
   /** Web processes sharing the port; unset = one per core (read by scripts/web.mjs after the start script validated it). */
   WEB_WORKERS: whole(1, 1, 256).optional(),

@@ -12,6 +12,8 @@ export interface EvidenceRow {
   surrogateP: number | null;
   /** surrogates behind the p; 0 when the series runs none */
   surrogates: number;
+  /** points the record gained since its surrogates were drawn (an incremental analysis keeps them; 0: drawn on this record) */
+  surrogatesDrawnBefore: number;
   computed: boolean;
   rules: { id: number; active: boolean; severity: string; standing: RuleStanding; outcome: string | null; rule: RuleStatus['rule'] }[];
 }
@@ -34,6 +36,7 @@ export function evidenceRows(view: Pick<AnalysisView, 'indicators' | 'kendall' |
       tau: kendall?.tau ?? null,
       surrogateP: significance?.p ?? null,
       surrogates: significance?.count ?? 0,
+      surrogatesDrawnBefore: significance?.pointsSinceDrawn ?? 0,
       computed: computed.includes(indicator),
       rules: statuses
         .filter((s) => s.rule.indicator === indicator)

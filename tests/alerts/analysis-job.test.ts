@@ -100,10 +100,11 @@ describe('the analysis cycle', () => {
     await releaseLease(`analysis:${series.id}`, 'other-scheduler');
 
     // Data arriving mid-analysis moves dataChangedAt; the flag must survive so the next cycle sees the new data.
+    // (The snapshot is written in one transaction with the flag; an intake committing meanwhile is simulated in it.)
     const original = series.dataChangedAt!;
     const moved = new Date(original.getTime() + 1000);
-    AnalysisSnapshot.addHook('beforeCreate', 'simulate-arrival', async () => {
-      await Series.update({ dataChangedAt: moved }, { where: { id: series.id } });
+    AnalysisSnapshot.addHook('beforeCreate', 'simulate-arrival', async (_snapshot, options) => {
+      await Series.update({ dataChangedAt: moved }, { where: { id: series.id }, transaction: options.transaction });
     });
     try {
       await runAnalysisCycle();

@@ -19,8 +19,11 @@ export interface SchedulerProcess {
   exited: Promise<number | null>;
 }
 
-/** A scheduler process of our own (`jobs/scheduler.ts`) on the app's DATA_DIR, delivering to the app's mail sink. */
-export function startScheduler(app: RunningApp, env: Record<string, string> = {}): SchedulerProcess {
+/**
+ * A scheduler process of our own (`jobs/scheduler.ts`) on the app's DATA_DIR, delivering to the app's mail sink. The
+ * rest of the environment is this process's, so a DATABASE_URL reaches the scheduler as it reached the test.
+ */
+export function startScheduler(app: Pick<RunningApp, 'dataDir' | 'mailSinkPort' | 'baseUrl'>, env: Record<string, string> = {}): SchedulerProcess {
   let output = '';
   const child = spawn(process.execPath, ['--import', 'tsx', path.join(ROOT, 'jobs/scheduler.ts')], {
     cwd: ROOT,
