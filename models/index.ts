@@ -28,6 +28,7 @@ import { WebhookEndpoint } from './WebhookEndpoint';
 import { WebhookAttempt, WebhookDelivery } from './WebhookDelivery';
 import { ReportSchedule } from './ReportSchedule';
 import { Feed } from './Feed';
+import { Reanalysis } from './Reanalysis';
 
 const initialised = new WeakSet<Sequelize>();
 
@@ -106,6 +107,7 @@ const MODELS = [
   WebhookAttempt,
   ReportSchedule,
   Feed,
+  Reanalysis,
 ];
 
 /** Binds the models to this process's one Sequelize instance (idempotent) and returns it once it is ready. */
@@ -150,6 +152,7 @@ export {
   WebhookAttempt,
   ReportSchedule,
   Feed,
+  Reanalysis,
 };
 /**
  * `writeTransaction` of models/db.ts with the models bound first: a web worker's first request may be a write

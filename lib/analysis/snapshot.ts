@@ -9,6 +9,7 @@ import { completeSavedView, viewFromSnapshot, type AnalysisView } from './view';
 import { AnalysisInputError } from '@/lib/engine/errors';
 import { provenanceOf } from './provenance';
 import { loadObservations, observationExtent, type ObservationRange } from './observations';
+import { currentDataVersion } from '@/lib/intake/data-versions';
 
 /**
  * The spread of the surrogate taus of one indicator: `nullSd` is their sample standard deviation (n − 1), the
@@ -75,38 +76,61 @@ export async function spanReadRange(
   seriesId: number,
   settings: AnalysisSettings,
   intervalMs: number | undefined,
+  version?: number,
 ): Promise<{ range: ObservationRange; last: number | null }> {
-  const extent = await observationExtent(seriesId);
-  if (settings.span === null || intervalMs === undefined || extent.first === null || extent.last === null) return { range: {}, last: extent.last };
+  const extent = await observationExtent(seriesId, version);
+  const pinned: ObservationRange = version === undefined ? {} : { version };
+  if (settings.span === null || intervalMs === undefined || extent.first === null || extent.last === null) return { range: pinned, last: extent.last };
   const recordPoints = Math.floor((extent.last - extent.first) / intervalMs) + 1;
   const points = Math.ceil(extentPoints(settings.span, recordPoints, intervalMs, 'utc-ms'));
-  return { range: { from: extent.last - points * intervalMs }, last: extent.last };
+  return { range: { ...pinned, from: extent.last - points * intervalMs }, last: extent.last };
 }
 
-/**
- * Runs the engine on a series as it stands and stores the outcome as a new snapshot, successful or not: an
- * error snapshot carries the engine's message (e.g. a gap longer than maxGap, a stretch since the last mark too
- * short for the window) so the series page can say why there is no fresh evidence. Only the trailing span the
- * settings ask for is read from the database, and the marks inside it go to the engine as breaks, so the analysis
- * judges only the stretch since the last marked tipping point or maintenance break (or detected shift).
- */
-export async function refreshSeriesAnalysis(series: Series, options: { parallel?: boolean } = {}): Promise<AnalysisSnapshot> {
-  await db();
-  const settings = analysisSettingsSchema.parse(series.settings ?? {});
+/** The engine's input read from a series' record: the observations of the span the settings reach, and the marks in it. */
+interface RecordInput {
+  observations: { time: Float64Array; value: Float64Array };
+  breaks: NonNullable<AnalysisInput['breaks']>;
+  range: ObservationRange;
+}
+
+/** Reads the span and its marks from the record as stored now, or as it stood at `version`. */
+async function readRecord(series: Series, settings: AnalysisSettings, version?: number): Promise<RecordInput> {
   const intervalMs = series.intervalMs === null ? undefined : Number(series.intervalMs);
-  const started = performance.now();
-  const { range, last } = await spanReadRange(series.id, settings, intervalMs);
+  const { range, last } = await spanReadRange(series.id, settings, intervalMs, version);
   const [observations, breaks] = await Promise.all([loadObservations(series.id, range), seriesBreaks(series.id, { from: range.from, to: last })]);
+  return { observations, breaks, range };
+}
+
+/** What one run of the engine on a record gives, as a snapshot or a re-analysis stores it. */
+export type RecordAnalysis = Pick<
+  AnalysisSnapshot,
+  'settings' | 'summary' | 'curves' | 'status' | 'error' | 'n' | 'dataFrom' | 'dataTo' | 'durationMs' | 'provenance'
+> & { chartView: Record<string, unknown> | null };
+
+/**
+ * Runs the engine on a record read by `readRecord`, successful or not: an error outcome carries the engine's
+ * message (e.g. a gap longer than maxGap, a stretch since the last mark too short for the window) so the page can
+ * say why there is no fresh evidence. The provenance names the data version the input is.
+ */
+async function analyseRecord(
+  series: Series,
+  settings: AnalysisSettings,
+  input: RecordInput,
+  dataVersion: number,
+  started: number,
+  options: { parallel?: boolean },
+): Promise<RecordAnalysis> {
+  const intervalMs = series.intervalMs === null ? undefined : Number(series.intervalMs);
+  const { observations, breaks } = input;
   const n = observations.time.length;
   const dataFrom = n ? observations.time[0] : null;
   const dataTo = n ? observations.time[n - 1] : null;
-  const provenance = await provenanceOf(series.id, observations, settings, { intervalMs, breaks });
+  const provenance = await provenanceOf(series.id, observations, settings, { intervalMs, breaks, dataVersion, version: input.range.version });
   try {
     const result = await runAnalysis({ ...observations, intervalMs, breaks }, settings, options);
     // Through JSON first, so the saved view is exactly the one the stored row's curves would give (NaN → null).
     const stored = JSON.parse(JSON.stringify({ summary: snapshotSummary(result), curves: curvesOf(result) }));
-    return await AnalysisSnapshot.create({
-      seriesId: series.id,
+    return {
       settings,
       summary: stored.summary,
       curves: stored.curves,
@@ -118,11 +142,10 @@ export async function refreshSeriesAnalysis(series: Series, options: { parallel?
       dataTo,
       durationMs: Math.round(performance.now() - started),
       provenance,
-    });
+    };
   } catch (error) {
     if (!(error instanceof AnalysisInputError)) console.error(`[analysis] series ${series.slug} failed`, error);
-    return AnalysisSnapshot.create({
-      seriesId: series.id,
+    return {
       settings,
       summary: {},
       curves: null,
@@ -135,8 +158,37 @@ export async function refreshSeriesAnalysis(series: Series, options: { parallel?
       dataTo,
       durationMs: Math.round(performance.now() - started),
       provenance,
-    });
+    };
   }
+}
+
+/**
+ * Runs the engine on a series as it stood at data version `version` (its values rebuilt from the stored rows and
+ * the earlier values reprocessing replaced), with the series' settings and marks as they are now. Nothing is stored.
+ */
+export async function analyseAtVersion(series: Series, version: number, options: { parallel?: boolean } = {}): Promise<RecordAnalysis> {
+  await db();
+  const settings = analysisSettingsSchema.parse(series.settings ?? {});
+  const started = performance.now();
+  return analyseRecord(series, settings, await readRecord(series, settings, version), version, started, options);
+}
+
+/**
+ * Runs the engine on a series as it stands and stores the outcome as a new snapshot, successful or not (see
+ * `analyseRecord`). Only the trailing span the settings ask for is read from the database, and the marks inside it
+ * go to the engine as breaks, so the analysis judges only the stretch since the last marked tipping point or
+ * maintenance break (or detected shift). The snapshot records the data version it read: the version is taken before
+ * the read, and when an intake run committed a newer one during the read, the record is read again as it stood at
+ * that version, so the recorded version is always exactly the data analysed.
+ */
+export async function refreshSeriesAnalysis(series: Series, options: { parallel?: boolean } = {}): Promise<AnalysisSnapshot> {
+  await db();
+  const settings = analysisSettingsSchema.parse(series.settings ?? {});
+  const started = performance.now();
+  const dataVersion = await currentDataVersion(series.id);
+  let input = await readRecord(series, settings);
+  if ((await currentDataVersion(series.id)) !== dataVersion) input = await readRecord(series, settings, dataVersion);
+  return AnalysisSnapshot.create({ seriesId: series.id, ...(await analyseRecord(series, settings, input, dataVersion, started, options)) });
 }
 
 /**

@@ -12,7 +12,9 @@ import { guessTimeFormat, type TimeFormat } from './time-formats';
 import { enqueueWebhookEvent } from '@/lib/webhooks/outbox';
 import { rejectedRunPayload } from '@/lib/webhooks/payloads';
 import { judgeIncoming } from '@/lib/quality/records';
-import { FLAG_LABELS, type QartodFlag } from '@/lib/quality/flags';
+import { FLAG_LABELS, setterName, type QartodFlag } from '@/lib/quality/flags';
+import type { PointFlags } from '@/lib/quality/run';
+import { recordDataVersion } from './data-versions';
 
 /** A run's lease lives this long without renewal; a run whose holder died is marked failed once it has lapsed. */
 const RUN_LEASE_MS = 30_000;
@@ -31,6 +33,8 @@ export interface IngestRequest {
   mapping?: Partial<IntakeMapping>;
   actor?: { id: number } | null;
   tokenId?: number | null;
+  /** why the data were sent (a reprocessing note); kept with the data version the run makes */
+  reason?: string | null;
 }
 
 export interface IngestOutcome {
@@ -50,6 +54,8 @@ export interface IngestOutcome {
   durationMs: number;
   /** How many of the points written carry each QARTOD flag, by its label (e.g. { pass: 98, fail: 2 }). */
   flagged: Record<string, number>;
+  /** the same counts per flag label split by what set the flag (a test's name, `source`, or `none`) */
+  flaggedBy: Record<string, Record<string, number>>;
 }
 
 export function mappingFor(series: Series, overrides: Partial<IntakeMapping> = {}): IntakeMapping {
@@ -163,6 +169,7 @@ export async function finishRun(run: IngestRun, started: number, fields: RunEnd,
     message: fields.message,
     durationMs,
     flagged: fields.flagged ?? {},
+    flaggedBy: fields.flaggedBy ?? {},
   };
 }
 
@@ -191,22 +198,24 @@ export async function storeCollected(
   rows: CollectedRows,
   run: IngestRun,
   started: number,
-  context: { source: IngestSource; fileName?: string | null; actorId: number | null; tokenId: number | null; timeFormat: string },
+  context: { source: IngestSource; fileName?: string | null; actorId: number | null; tokenId: number | null; timeFormat: string; reason?: string | null },
 ): Promise<IngestOutcome> {
   const classified = await classifyAgainstStored(series.id, rows, connectionOf(transaction));
   const replace = series.duplicatePolicy === 'replace';
   const quality = await judgeIncoming(transaction, series, rows);
   const { inserted, replaced } = await writeRows(transaction, series.id, rows, classified, replace, run.id, quality);
-  const flagged = flagCountsOfWritten(quality.flag, classified.kind, replace);
+  const { flagged, flaggedBy } = flagCountsOfWritten(quality, classified.kind, replace);
   let duplicates = rows.duplicatesInInput;
   for (let i = 0; i < classified.kind.length; i++) if (classified.kind[i] === ROW_DUPLICATE) duplicates++;
   const conflicts = replace ? [] : conflictRejections(rows, classified);
   const rejectedRows = [...rows.rejectedRows, ...conflicts].sort((a, b) => a.line - b.line).slice(0, 1000);
   const counts = { rowsRead: rows.rowsRead, accepted: inserted, duplicates, replaced, rejected: rows.rejectedCount + conflicts.length };
+  let dataVersion: number | null = null;
   if (inserted + replaced > 0) {
     const now = new Date();
     // The analysis job picks the series up from this mark; set with the data so neither exists without the other.
     await Series.update({ needsAnalysis: true, dataChangedAt: now }, { where: { id: series.id }, transaction });
+    dataVersion = await recordDataVersion(transaction, series.id, { runId: run.id, inserted, replaced, reason: context.reason ?? null });
   }
   await recordAudit(
     {
@@ -214,7 +223,7 @@ export async function storeCollected(
       action: `intake.${context.source}`,
       entity: 'series',
       entityId: series.id,
-      details: { runId: run.id, fileName: context.fileName ?? null, tokenId: context.tokenId, ...counts },
+      details: { runId: run.id, fileName: context.fileName ?? null, tokenId: context.tokenId, dataVersion, reason: context.reason ?? null, ...counts },
     },
     transaction,
   );
@@ -228,7 +237,7 @@ export async function storeCollected(
       notes: rows.notes,
       message: summaryMessage(counts),
       flagged,
-      report: { ...inputReport(rows, context.timeFormat, rejectedRows, counts.rejected), flagged },
+      report: { ...inputReport(rows, context.timeFormat, rejectedRows, counts.rejected), flagged, flaggedBy, dataVersion, reason: context.reason ?? null },
     },
     transaction,
   );
@@ -299,6 +308,7 @@ async function ingestUnderLease(request: IngestRequest, key: string, started: nu
         actorId: request.actor?.id ?? null,
         tokenId: request.tokenId ?? null,
         timeFormat,
+        reason: request.reason,
       });
     });
   } catch (error) {
@@ -313,15 +323,23 @@ async function ingestUnderLease(request: IngestRequest, key: string, started: nu
   }
 }
 
-function flagCountsOfWritten(flag: Uint8Array, kind: Uint8Array, replace: boolean): Record<string, number> {
-  const counts: Record<string, number> = {};
-  for (let i = 0; i < flag.length; i++) {
+/**
+ * How many of the points written carry each flag (by its label), and, per flag, which test set it (`source` for the
+ * file's own flag column, `none` where nothing judged the point): what the run report shows per series.
+ */
+function flagCountsOfWritten(quality: PointFlags, kind: Uint8Array, replace: boolean): Pick<IngestOutcome, 'flagged' | 'flaggedBy'> {
+  const flagged: Record<string, number> = {};
+  const flaggedBy: Record<string, Record<string, number>> = {};
+  for (let i = 0; i < quality.flag.length; i++) {
     if (kind[i] === ROW_NEW || (replace && kind[i] === ROW_CONFLICT)) {
-      const label = FLAG_LABELS[flag[i] as QartodFlag];
-      counts[label] = (counts[label] ?? 0) + 1;
+      const label = FLAG_LABELS[quality.flag[i] as QartodFlag];
+      const setter = setterName(quality.setter[i]) ?? 'none';
+      flagged[label] = (flagged[label] ?? 0) + 1;
+      const bySetter = (flaggedBy[label] ??= {});
+      bySetter[setter] = (bySetter[setter] ?? 0) + 1;
     }
   }
-  return counts;
+  return { flagged, flaggedBy };
 }
 
 function describeLayout(layout: CsvLayout | null) {

@@ -1,7 +1,7 @@
 import { PayloadTooLargeError, UnprocessableError, UnsupportedMediaTypeError } from '@/lib/http/errors';
 import { isJsonContentType, readLimitedBytes, readLimitedText } from '@/lib/http/body';
 import { pushedObservationsSchema, uploadMappingSchema, type PushedObservation, type UploadMapping } from '@/lib/schemas/observation';
-import { INTAKE_BODY_LIMIT } from './choices';
+import { INTAKE_BODY_LIMIT, MAX_REASON_LENGTH } from './choices';
 import { contentHashOf } from './content-hash';
 
 export interface IntakeBody {
@@ -11,6 +11,18 @@ export interface IntakeBody {
   fileName: string | null;
   contentHash: string;
   mapping: UploadMapping;
+  /** why the data were sent (a reprocessing note): the multipart `reason` part or the `reason` query parameter */
+  reason: string | null;
+}
+
+/** A sender's reason, trimmed; null when none was given, 422 when too long. */
+function parseReason(raw: FormDataEntryValue | string | null): string | null {
+  if (typeof raw !== 'string' || raw.trim() === '') return null;
+  const reason = raw.trim();
+  if (reason.length > MAX_REASON_LENGTH) {
+    throw new UnprocessableError('Some fields are not valid.', { reason: [`Give at most ${MAX_REASON_LENGTH} characters.`] });
+  }
+  return reason;
 }
 
 function parseMapping(raw: string | null): UploadMapping {
@@ -31,10 +43,12 @@ function parseMapping(raw: string | null): UploadMapping {
  */
 export async function readIntakeBody(request: Request, options: { allowJson: boolean }): Promise<IntakeBody> {
   const type = (request.headers.get('content-type') || '').toLowerCase();
-  const queryMapping = new URL(request.url).searchParams.get('mapping');
+  const query = new URL(request.url).searchParams;
+  const queryMapping = query.get('mapping');
+  const queryReason = parseReason(query.get('reason'));
   if (type.startsWith('text/csv') || type.startsWith('text/plain')) {
     const bytes = await readLimitedBytes(request, INTAKE_BODY_LIMIT);
-    return { csv: bytes, fileName: null, contentHash: contentHashOf(bytes), mapping: parseMapping(queryMapping) };
+    return { csv: bytes, fileName: null, contentHash: contentHashOf(bytes), mapping: parseMapping(queryMapping), reason: queryReason };
   }
   if (type.startsWith('multipart/form-data')) {
     const raw = await readLimitedText(request, INTAKE_BODY_LIMIT + 64 * 1024);
@@ -51,6 +65,7 @@ export async function readIntakeBody(request: Request, options: { allowJson: boo
       fileName: file.name || null,
       contentHash: contentHashOf(bytes),
       mapping: parseMapping(typeof mappingPart === 'string' ? mappingPart : queryMapping),
+      reason: parseReason(form.get('reason')) ?? queryReason,
     };
   }
   if (options.allowJson && isJsonContentType(request)) {
@@ -61,7 +76,7 @@ export async function readIntakeBody(request: Request, options: { allowJson: boo
     } catch {
       throw new UnprocessableError('The body is not valid JSON.');
     }
-    return { points: pushedObservationsSchema.parse(parsed), fileName: null, contentHash: contentHashOf(text), mapping: {} };
+    return { points: pushedObservationsSchema.parse(parsed), fileName: null, contentHash: contentHashOf(text), mapping: {}, reason: queryReason };
   }
   throw new UnsupportedMediaTypeError(options.allowJson ? 'text/csv, multipart/form-data or application/json' : 'text/csv or multipart/form-data');
 }

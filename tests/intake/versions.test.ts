@@ -9,6 +9,8 @@ const { createSeries } = await import('@/lib/series/registry');
 const { ingestObservations } = await import('@/lib/intake/pipeline');
 const { loadObservations } = await import('@/lib/analysis/observations');
 const { observationVersions } = await import('@/lib/intake/versions');
+const { currentDataVersion, listDataVersions } = await import('@/lib/intake/data-versions');
+const { Observation } = await import('@/models');
 
 beforeAll(async () => {
   await migrateUp();
@@ -36,5 +38,54 @@ describe('reprocessed data', () => {
     ]);
     expect(Number.isNaN(Date.parse(versions[0].replacedAt))).toBe(false);
     expect(await observationVersions(series.id, { from: T0 + 2 * DAY })).toHaveLength(1);
+  });
+
+  it('numbers a data version per run that stored something, with its reason, and rebuilds the record at each one', async () => {
+    // Hand-worked (common practice for versioned records: a value holds from the version that wrote it until the
+    // version that replaced it): v1 stores days 0-2, v2 replaces day 1 and appends day 3, a repeat changes nothing,
+    // v3 replaces day 1 again and day 3.
+    const lead = await User.create({ email: 'lead2@example.test', name: 'Lead Two', role: 'lead', passwordHash: 'not-used', active: true });
+    const series = await createSeries({ slug: 'lake-do', name: 'Lake oxygen', duplicatePolicy: 'replace' }, null);
+    expect(await currentDataVersion(series.id)).toBe(0);
+    const v1 = await ingestObservations({ series, source: 'drop', fileName: 'raw.csv', csv: csv([10, 20, 30]) });
+    const v2 = await ingestObservations({ series, source: 'upload', fileName: 'fix.csv', csv: csv([10, 21, 30, 40]), actor: lead, reason: 'drift corrected' });
+    const repeat = await ingestObservations({ series, source: 'upload', fileName: 'fix-again.csv', csv: csv([10, 21]), actor: lead });
+    expect(repeat).toMatchObject({ accepted: 0, replaced: 0 });
+    const v3 = await ingestObservations({
+      series,
+      source: 'push',
+      points: [
+        { time: new Date(T0 + DAY).toISOString(), value: 22 },
+        { time: new Date(T0 + 3 * DAY).toISOString(), value: 41 },
+      ],
+    });
+    expect(await currentDataVersion(series.id)).toBe(3);
+    const versions = await listDataVersions(series.id);
+    expect(versions.map((v) => [v.version, v.runId, v.inserted, v.replaced, v.reason, v.fileName, v.userName])).toEqual([
+      [3, v3.runId, 0, 2, null, null, null],
+      [2, v2.runId, 1, 1, 'drift corrected', 'fix.csv', 'Lead Two'],
+      [1, v1.runId, 3, 0, null, 'raw.csv', null],
+    ]);
+    const at = async (version: number | undefined) => {
+      const rows = await loadObservations(series.id, { version });
+      return [Array.from(rows.time, (t) => (t - T0) / DAY), Array.from(rows.value)];
+    };
+    expect(await at(0)).toEqual([[], []]);
+    expect(await at(1)).toEqual([
+      [0, 1, 2],
+      [10, 20, 30],
+    ]);
+    expect(await at(2)).toEqual([
+      [0, 1, 2, 3],
+      [10, 21, 30, 40],
+    ]);
+    expect(await at(3)).toEqual([
+      [0, 1, 2, 3],
+      [10, 22, 30, 41],
+    ]);
+    expect(await at(3)).toEqual(await at(undefined));
+    // A flag-only change is no new version: a failed point leaves every rebuilt version alike (documented).
+    await Observation.update({ flag: 4 }, { where: { seriesId: series.id, t: T0 + 2 * DAY } });
+    expect((await at(3))[1]).toEqual([10, 22, 41]);
   });
 });

@@ -43,6 +43,7 @@ export const POST = handle<{ slug: string }>(async (request, { params }) => {
     mapping: body.mapping,
     actor: writer.actor,
     tokenId: writer.tokenId,
+    reason: body.reason,
   });
   const rejected = outcome.rejectedRows.map(({ line, column, reason }) => ({ line, column, reason }));
   if (outcome.status === 'failed') throw new ServiceUnavailableError('The points could not be stored just now; nothing was stored. Send them again.');
@@ -58,6 +59,7 @@ export const POST = handle<{ slug: string }>(async (request, { params }) => {
     replaced: outcome.replaced,
     rejected,
     flagged: outcome.flagged,
+    flaggedBy: outcome.flaggedBy,
     message: outcome.message,
   });
 });

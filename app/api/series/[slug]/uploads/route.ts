@@ -20,6 +20,7 @@ export const POST = handle<{ slug: string }>(async (request, { params }) => {
     csv: body.csv,
     mapping: body.mapping,
     actor,
+    reason: body.reason,
   });
   if (outcome.status === 'failed') throw new ServiceUnavailableError('The file could not be stored just now; nothing was stored. Try again.');
   return NextResponse.json(outcome, { status: outcome.status === 'succeeded' ? 200 : 422 });
