@@ -237,6 +237,7 @@ export async function storeCollected(
       notes: rows.notes,
       message: summaryMessage(counts),
       flagged,
+      flaggedBy,
       report: { ...inputReport(rows, context.timeFormat, rejectedRows, counts.rejected), flagged, flaggedBy, dataVersion, reason: context.reason ?? null },
     },
     transaction,

@@ -40,7 +40,10 @@ beforeAll(async () => {
     null,
   );
   seriesId = series.id;
-  const values = [...simulateAr1({ n: N / 2, phi: 0.3, sigma: 1, mean: 12, seed: 5 }), ...simulateAr1({ n: N / 2 + 20, phi: 0.9, sigma: 1, mean: 12, seed: 6 })];
+  const values = [
+    ...simulateAr1({ n: N / 2, phi: 0.3, sigma: 1, mean: 12, seed: 5 }),
+    ...simulateAr1({ n: N / 2 + 20, phi: 0.9, sigma: 1, mean: 12, seed: 6 }),
+  ];
   for (const [from, to] of [
     [0, 300],
     [300, N],
@@ -102,7 +105,11 @@ describe('re-analysis on an earlier data version (reference: the snapshot stored
     expect(earlier.every((v) => v.replacedBy.userId === lead.id && v.replacedBy.fileName === 'reprocessed.csv')).toBe(true);
     const overview = await dataVersionsOverview((await Series.findByPk(seriesId))!);
     expect(overview.currentVersion).toBe(4);
-    expect(overview.versions.find((v) => v.version === 3)).toMatchObject({ replaced: 250, inserted: 0, reason: 'drift of the thermistor corrected by the provider' });
+    expect(overview.versions.find((v) => v.version === 3)).toMatchObject({
+      replaced: 250,
+      inserted: 0,
+      reason: 'drift of the thermistor corrected by the provider',
+    });
   });
 
   it('on version 2 gives exactly every tau and p of the analysis stored before the replacement, on the same data', async () => {
