@@ -5,14 +5,14 @@ import { useId, useState, type DragEvent } from 'react';
 import { Caution } from '@/components/Caution';
 import { SeriesPicker } from '@/components/SeriesPicker';
 import type { SeriesChoice } from '@/lib/series/registry';
-import { api } from '@/components/api';
+import { api, ApiError } from '@/components/api';
 import { formatLocal } from '@/lib/display/format';
 import { formatCount, type RejectedRow } from './api';
 import { RejectedRowsTable } from './RejectedRowsTable';
 import { Button } from '@/components/ui/Button';
 import { DataTable } from '@/components/ui/DataTable';
 import { CONTROL, Field } from '@/components/ui/Field';
-import { DELIMITER_LABELS, INTAKE_BODY_LIMIT, TIME_FORMAT_LABELS } from '@/lib/intake/choices';
+import { DELIMITER_LABELS, INTAKE_BODY_LIMIT, MAX_REASON_LENGTH, TIME_FORMAT_LABELS } from '@/lib/intake/choices';
 
 const TIME_FORMATS = Object.entries(TIME_FORMAT_LABELS);
 const DELIMITERS = Object.entries(DELIMITER_LABELS);
@@ -56,10 +56,11 @@ interface Outcome {
   rejected: number;
 }
 
-function send(slug: string, file: File, mapping: Partial<Mapping> | null, commit: boolean) {
+function send(slug: string, file: File, mapping: Partial<Mapping> | null, commit: boolean, reason = '') {
   const form = new FormData();
   form.append('file', file);
   if (mapping) form.append('mapping', JSON.stringify(mapping));
+  if (reason.trim()) form.append('reason', reason.trim());
   return api<Preview & Outcome>(`/api/series/${slug}/uploads${commit ? '' : '/preview'}`, { method: 'POST', body: form });
 }
 
@@ -74,6 +75,8 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
   const [mapping, setMapping] = useState<Mapping | null>(null);
   const [dragging, setDragging] = useState(false);
   const [sizeError, setSizeError] = useState<string | null>(null);
+  // Why the data are sent again (reprocessing): kept with the data version the commit makes.
+  const [reason, setReason] = useState('');
   // The picker gives slug and name; the series' own record gives the zone its times are shown in (README: every
   // time on screen in the series' zone). Until it arrives, times read in UTC, which the label then says.
   const zone = useQuery({
@@ -100,7 +103,7 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
     },
   });
   const commit = useMutation({
-    mutationFn: () => send(slug, file!, mapping, true),
+    mutationFn: () => send(slug, file!, mapping, true, reason),
     onSettled: () => {
       client.invalidateQueries({ queryKey: ['ingest-runs'] });
     },
@@ -283,6 +286,21 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
               report.
             </p>
           </div>
+          {summary.wouldReplace > 0 ? (
+            <Field
+              label="Why these values replace stored ones"
+              hint="Kept with the data version this commit makes; the replaced values stay on record as the earlier version."
+              error={commit.error instanceof ApiError ? (commit.error.fields?.reason?.[0] ?? null) : null}
+            >
+              <input
+                className={`${CONTROL} w-full max-w-xl`}
+                maxLength={MAX_REASON_LENGTH}
+                value={reason}
+                onChange={(event) => setReason(event.target.value)}
+                data-testid="upload-reason"
+              />
+            </Field>
+          ) : null}
           <Button
             variant="primary"
             size="lg"

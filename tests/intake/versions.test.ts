@@ -11,6 +11,9 @@ const { loadObservations } = await import('@/lib/analysis/observations');
 const { observationVersions } = await import('@/lib/intake/versions');
 const { currentDataVersion, listDataVersions } = await import('@/lib/intake/data-versions');
 const { Observation } = await import('@/models');
+const { readIntakeBody } = await import('@/lib/intake/request-body');
+const { MAX_REASON_LENGTH } = await import('@/lib/intake/choices');
+const { UnprocessableError } = await import('@/lib/http/errors');
 
 beforeAll(async () => {
   await migrateUp();
@@ -87,5 +90,32 @@ describe('reprocessed data', () => {
     // A flag-only change is no new version: a failed point leaves every rebuilt version alike (documented).
     await Observation.update({ flag: 4 }, { where: { seriesId: series.id, t: T0 + 2 * DAY } });
     expect((await at(3))[1]).toEqual([10, 22, 41]);
+  });
+
+  it('takes the reason for a delivery from the multipart `reason` part or the `reason` query parameter', async () => {
+    const form = new FormData();
+    form.set('file', new File(['time,value\n2024-01-01T00:00:00Z,1\n'], 'reprocessed.csv', { type: 'text/csv' }));
+    form.set('reason', '  calibration offset corrected  ');
+    const upload = await readIntakeBody(new Request('http://127.0.0.1/api/series/x/uploads', { method: 'POST', body: form }), { allowJson: false });
+    expect(upload.reason).toBe('calibration offset corrected');
+    const push = await readIntakeBody(
+      new Request('http://127.0.0.1/api/series/x/observations?reason=reprocessed%20v2', {
+        method: 'POST',
+        headers: { 'content-type': 'application/json' },
+        body: JSON.stringify([{ time: '2024-01-01T00:00:00Z', value: 1, flag: 1 }]),
+      }),
+      { allowJson: true },
+    );
+    expect(push.reason).toBe('reprocessed v2');
+    expect(push.points).toEqual([{ time: '2024-01-01T00:00:00Z', value: 1, flag: 1 }]);
+    const plain = await readIntakeBody(new Request('http://127.0.0.1/x', { method: 'POST', headers: { 'content-type': 'text/csv' }, body: 'a' }), {
+      allowJson: false,
+    });
+    expect(plain.reason).toBeNull();
+    const long = readIntakeBody(
+      new Request(`http://127.0.0.1/x?reason=${'r'.repeat(MAX_REASON_LENGTH + 1)}`, { method: 'POST', headers: { 'content-type': 'text/csv' }, body: 'a' }),
+      { allowJson: false },
+    );
+    await expect(long).rejects.toBeInstanceOf(UnprocessableError);
   });
 });
