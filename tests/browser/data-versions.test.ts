@@ -1,0 +1,97 @@
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { type Browser, type Page } from 'playwright-core';
+import { DEMO_PASSWORD, startApp, type RunningApp } from '../support/app';
+import { signedIn, type Session } from '../support/session';
+import { launchChromium, SHOTS } from '../support/browser';
+import type { DataVersionsOverview, ReanalysisRecord } from '@/lib/analysis/reanalysis-record';
+
+const SLUG = 'veskary-deep-temperature';
+
+let app: RunningApp;
+let browser: Browser;
+let page: Page;
+let lead: Session;
+let viewer: Session;
+
+describe('reprocessed data and re-analysis on an earlier version, in the started product and in Chromium', () => {
+  beforeAll(async () => {
+    app = await startApp({ demo: true, env: { ANALYSIS_CRON: '*/5 * * * * *' } });
+    browser = await launchChromium();
+    lead = await signedIn(app.baseUrl, 'lead@brinkwatch.test', DEMO_PASSWORD);
+    viewer = await signedIn(app.baseUrl, 'viewer@brinkwatch.test', DEMO_PASSWORD);
+    page = await (await browser.newContext({ viewport: { width: 1280, height: 900 } })).newPage();
+    await page.goto(`${app.baseUrl}/`);
+    await page.waitForURL(/\/signin/);
+    await page.getByLabel('E-mail').fill('lead@brinkwatch.test');
+    await page.getByLabel('Password').fill(DEMO_PASSWORD);
+    await page.getByRole('button', { name: 'Sign in' }).click();
+    await page.waitForURL(`${app.baseUrl}/`);
+  }, 240_000);
+
+  afterAll(async () => {
+    await browser?.close();
+    await app?.stop();
+  });
+
+  it('a reprocessing upload with a reason makes a data version; a pushed point keeps its flag', async () => {
+    const detail = await (await lead.fetch(`/api/series/${SLUG}`)).json();
+    const last = Number(detail.observations.last);
+    const interval = Number(detail.intervalMs);
+    expect((await lead.json(`/api/series/${SLUG}`, 'PATCH', { duplicatePolicy: 'replace' })).status).toBe(200);
+    const stored = await (await lead.fetch(`/api/series/${SLUG}/observations?from=${last - 2 * interval}&to=${last}`)).json();
+    const form = new FormData();
+    const csv = `time,value\n${stored.items.map((p: { time: string; value: number }) => `${p.time},${p.value + 0.25}`).join('\n')}\n`;
+    form.set('file', new File([csv], 'reprocessed.csv', { type: 'text/csv' }));
+    form.set('reason', 'offset of the logger corrected');
+    const upload = await lead.fetch(`/api/series/${SLUG}/uploads`, { method: 'POST', body: form });
+    expect(upload.status).toBe(200);
+    expect((await upload.json()).replaced).toBe(stored.items.length);
+    const push = await lead.fetch(`/api/series/${SLUG}/observations`, {
+      method: 'POST',
+      headers: { 'content-type': 'application/json' },
+      body: JSON.stringify([{ time: new Date(last + 1000 * interval).toISOString(), value: 4, flag: 3 }]),
+    });
+    expect(push.status).toBe(200);
+    expect((await push.json()).flaggedBy).toEqual({ suspect: { source: 1 } });
+    const overview: DataVersionsOverview = await (await viewer.fetch(`/api/series/${SLUG}/data-versions`)).json();
+    expect(overview.versions.find((v) => v.reason === 'offset of the logger corrected')).toMatchObject({
+      replaced: stored.items.length,
+      fileName: 'reprocessed.csv',
+    });
+  }, 60_000);
+
+  it('only a lead may re-analyse; a version the series has not reached is a 422 on the field', async () => {
+    expect((await viewer.json(`/api/series/${SLUG}/reanalyse`, 'POST', { version: 0 })).status).toBe(403);
+    const tooNew = await lead.json(`/api/series/${SLUG}/reanalyse`, 'POST', { version: 1_000_000 });
+    expect(tooNew.status).toBe(422);
+    expect((await tooNew.json()).fields.version[0]).toMatch(/data version/);
+    const redo = await lead.json(`/api/series/${SLUG}/reanalyse`, 'POST', { version: 0 });
+    expect(redo.status).toBe(201);
+    expect(((await redo.json()) as ReanalysisRecord).dataVersion).toBe(0);
+  }, 120_000);
+
+  it('the series page lists the versions and re-analyses on the version a lead picks', async () => {
+    const overview: DataVersionsOverview = await (await lead.fetch(`/api/series/${SLUG}/data-versions`)).json();
+    const reprocessing = overview.versions.find((v) => v.reason === 'offset of the logger corrected')!;
+    const before = reprocessing.version - 1;
+    await page.goto(`${app.baseUrl}/series/${SLUG}`);
+    const panel = page.getByTestId('data-versions');
+    await panel.locator('summary').click();
+    await panel.getByTestId('data-version-table').getByText('offset of the logger corrected').waitFor();
+    await panel.getByTestId('reanalyse-version').selectOption(String(before));
+    await panel.getByTestId('reanalyse-button').click();
+    await expect
+      .poll(
+        () =>
+          panel
+            .getByTestId('reanalysis')
+            .filter({ hasText: `on version ${before},` })
+            .count(),
+        { timeout: 120_000, interval: 1000 },
+      )
+      .toBeGreaterThan(0);
+    await panel.getByTestId('reanalysis-comparison').waitFor();
+    await panel.screenshot({ path: path.join(SHOTS, 'data-versions.png') });
+  }, 180_000);
+});
