@@ -33,6 +33,8 @@ export interface FeedIngestRequest {
   fileName?: string | null;
   contentHash?: string | null;
   actor?: { id: number } | null;
+  /** why the file was sent (a reprocessing note), kept with each series' data version */
+  reason?: string | null;
 }
 
 /**
@@ -130,6 +132,7 @@ async function ingestUnderLease(request: FeedIngestRequest, key: string, started
             actorId: request.actor?.id ?? null,
             tokenId: null,
             timeFormat: feed.timeFormat,
+            reason: request.reason,
           }),
         );
       }

@@ -11,7 +11,15 @@ export const POST = handle<{ slug: string }>(async (request, { params }) => {
   const actor = await requireRole('lead');
   const feed = await findFeedBySlug((await params).slug);
   const body = await readIntakeBody(request, { allowJson: false });
-  const outcome = await ingestFeedFile({ feed, source: 'upload', fileName: body.fileName, contentHash: body.contentHash, csv: body.csv!, actor });
+  const outcome = await ingestFeedFile({
+    feed,
+    source: 'upload',
+    fileName: body.fileName,
+    contentHash: body.contentHash,
+    csv: body.csv!,
+    actor,
+    reason: body.reason,
+  });
   if (outcome.status === 'failed') throw new ServiceUnavailableError('The file could not be stored just now; nothing was stored. Try again.');
   return NextResponse.json(outcome, { status: outcome.status === 'succeeded' ? 200 : 422 });
 });
