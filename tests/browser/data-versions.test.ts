@@ -27,7 +27,7 @@ describe('reprocessed data and re-analysis on an earlier version, in the started
     await page.getByLabel('Password').fill(DEMO_PASSWORD);
     await page.getByRole('button', { name: 'Sign in' }).click();
     await page.waitForURL(`${app.baseUrl}/`);
-  }, 240_000);
+  }, 600_000);
 
   afterAll(async () => {
     await browser?.close();
