@@ -3,7 +3,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { type Browser, type Page } from 'playwright-core';
 import { DEMO_PASSWORD, startApp, type RunningApp } from '../support/app';
 import { signedIn, type Session } from '../support/session';
-import { launchChromium, SHOTS } from '../support/browser';
+import { launchChromium, signInPage, SHOTS } from '../support/browser';
 import type { DataVersionsOverview, ReanalysisRecord } from '@/lib/analysis/reanalysis-record';
 
 const SLUG = 'veskary-deep-temperature';
@@ -21,12 +21,7 @@ describe('reprocessed data and re-analysis on an earlier version, in the started
     lead = await signedIn(app.baseUrl, 'lead@brinkwatch.test', DEMO_PASSWORD);
     viewer = await signedIn(app.baseUrl, 'viewer@brinkwatch.test', DEMO_PASSWORD);
     page = await (await browser.newContext({ viewport: { width: 1280, height: 900 } })).newPage();
-    await page.goto(`${app.baseUrl}/`);
-    await page.waitForURL(/\/signin/);
-    await page.getByLabel('E-mail').fill('lead@brinkwatch.test');
-    await page.getByLabel('Password').fill(DEMO_PASSWORD);
-    await page.getByRole('button', { name: 'Sign in' }).click();
-    await page.waitForURL(`${app.baseUrl}/`);
+    await signInPage(page, app.baseUrl, 'lead@brinkwatch.test', DEMO_PASSWORD);
   }, 600_000);
 
   afterAll(async () => {

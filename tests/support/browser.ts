@@ -30,3 +30,13 @@ export async function launchChromium(): Promise<Browser> {
 export async function shot(page: Page, name: string): Promise<void> {
   await page.screenshot({ path: path.join(SHOTS, `${name}.png`), fullPage: true });
 }
+
+/** Signs a page in through the sign-in page as `email` and waits for the overview. */
+export async function signInPage(page: Page, baseUrl: string, email: string, password: string): Promise<void> {
+  await page.goto(`${baseUrl}/`);
+  await page.waitForURL(/\/signin/);
+  await page.getByLabel('E-mail').fill(email);
+  await page.getByLabel('Password').fill(password);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.waitForURL(`${baseUrl}/`);
+}
