@@ -60,7 +60,7 @@ describe('reprocessed data and re-analysis on an earlier version, in the started
     expect((await viewer.json(`/api/series/${SLUG}/reanalyse`, 'POST', { version: 0 })).status).toBe(403);
     const tooNew = await lead.json(`/api/series/${SLUG}/reanalyse`, 'POST', { version: 1_000_000 });
     expect(tooNew.status).toBe(422);
-    expect((await tooNew.json()).fields.version[0]).toMatch(/data version/);
+    expect((await tooNew.json()).error.fields.version[0]).toMatch(/data version/);
     const redo = await lead.json(`/api/series/${SLUG}/reanalyse`, 'POST', { version: 0 });
     expect(redo.status).toBe(201);
     expect(((await redo.json()) as ReanalysisRecord).dataVersion).toBe(0);
