@@ -153,7 +153,7 @@ export function DataVersionsPanel({ slug, timeZone, canReanalyse }: { slug: stri
               >
                 <Field label="Data version" error={fieldError}>
                   <select
-                    className={`${CONTROL} w-56`}
+                    className={`${CONTROL} w-80`}
                     value={String(version)}
                     onChange={(event) => setChosen(event.target.value)}
                     data-testid="reanalyse-version"
