@@ -56,11 +56,18 @@ interface Outcome {
   rejected: number;
 }
 
-function send(slug: string, file: File, mapping: Partial<Mapping> | null, commit: boolean, reason = '') {
+/** A reprocessing upload replaces stored values whatever the series' duplicate policy, and says why. */
+interface Delivery {
+  reprocess: boolean;
+  reason?: string;
+}
+
+function send(slug: string, file: File, mapping: Partial<Mapping> | null, commit: boolean, delivery: Delivery) {
   const form = new FormData();
   form.append('file', file);
   if (mapping) form.append('mapping', JSON.stringify(mapping));
-  if (reason.trim()) form.append('reason', reason.trim());
+  if (delivery.reprocess) form.append('duplicatePolicy', 'replace');
+  if (delivery.reason?.trim()) form.append('reason', delivery.reason.trim());
   return api<Preview & Outcome>(`/api/series/${slug}/uploads${commit ? '' : '/preview'}`, { method: 'POST', body: form });
 }
 
@@ -77,6 +84,7 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
   const [sizeError, setSizeError] = useState<string | null>(null);
   // Why the data are sent again (reprocessing): kept with the data version the commit makes.
   const [reason, setReason] = useState('');
+  const [reprocess, setReprocess] = useState(false);
   // The picker gives slug and name; the series' own record gives the zone its times are shown in (README: every
   // time on screen in the series' zone). Until it arrives, times read in UTC, which the label then says.
   const zone = useQuery({
@@ -88,7 +96,7 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
   const timeZone = zone.data ?? 'UTC';
 
   const preview = useMutation({
-    mutationFn: (input: { file: File; mapping: Mapping | null }) => send(slug, input.file, input.mapping, false),
+    mutationFn: (input: { file: File; mapping: Mapping | null; reprocess: boolean }) => send(slug, input.file, input.mapping, false, input),
     onSuccess: (data, input) => {
       if (input.mapping || !data.layout) return;
       const header = data.layout.header;
@@ -103,7 +111,7 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
     },
   });
   const commit = useMutation({
-    mutationFn: () => send(slug, file!, mapping, true, reason),
+    mutationFn: () => send(slug, file!, mapping, true, { reprocess, reason }),
     onSettled: () => {
       client.invalidateQueries({ queryKey: ['ingest-runs'] });
     },
@@ -113,6 +121,7 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
     commit.reset();
     setMapping(null);
     setSizeError(null);
+    setReprocess(false);
     setFile(picked);
     if (!picked) return;
     if (picked.size > MAX_BYTES) {
@@ -121,13 +130,13 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
       );
       return;
     }
-    preview.mutate({ file: picked, mapping: null });
+    preview.mutate({ file: picked, mapping: null, reprocess: false });
   };
   const change = (patch: Partial<Mapping>) => {
     const next = { ...mapping!, ...patch };
     setMapping(next);
     commit.reset();
-    if (file) preview.mutate({ file, mapping: next });
+    if (file) preview.mutate({ file, mapping: next, reprocess });
   };
   const onDrop = (event: DragEvent<HTMLLabelElement>) => {
     event.preventDefault();
@@ -286,6 +295,21 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
               report.
             </p>
           </div>
+          {summary.conflicts > 0 || reprocess ? (
+            <label className="flex items-center gap-2">
+              <input
+                type="checkbox"
+                checked={reprocess}
+                data-testid="upload-reprocess"
+                onChange={(event) => {
+                  setReprocess(event.target.checked);
+                  commit.reset();
+                  if (file) preview.mutate({ file, mapping, reprocess: event.target.checked });
+                }}
+              />
+              These are reprocessed data: replace the stored values that differ (the stored ones are kept as an earlier version)
+            </label>
+          ) : null}
           {summary.wouldReplace > 0 ? (
             <Field
               label="Why these values replace stored ones"
@@ -304,7 +328,7 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
           <Button
             variant="primary"
             size="lg"
-            disabled={commit.isPending || summary.wouldAccept + summary.wouldReplace === 0 || commit.isSuccess}
+            disabled={commit.isPending || summary.wouldAccept + summary.wouldReplace === 0 || commit.isSuccess || (reprocess && !reason.trim())}
             onClick={() => commit.mutate()}
           >
             {commit.isPending ? 'Storing…' : `Commit ${formatCount(summary.wouldAccept + summary.wouldReplace)} points`}

@@ -4,7 +4,16 @@ import type { IngestSource } from '@/models/IngestRun';
 import { PROCESS_HOLDER } from '@/lib/db/leases';
 import { CsvFileError, type CsvInput } from '@/lib/intake/csv';
 import { collectCsvColumns, type CollectedRows } from '@/lib/intake/rows';
-import { finishRun, inputReport, previousApplication, storeCollected, summaryMessage, underNewRunLease, type IngestOutcome } from '@/lib/intake/pipeline';
+import {
+  finishRun,
+  inputReport,
+  previousApplication,
+  storeCollected,
+  summaryMessage,
+  underNewRunLease,
+  type DuplicatePolicy,
+  type IngestOutcome,
+} from '@/lib/intake/pipeline';
 import { parseTime, type TimeFormat } from '@/lib/intake/time-formats';
 import { addMark } from '@/lib/marks/write';
 
@@ -35,6 +44,8 @@ export interface FeedIngestRequest {
   actor?: { id: number } | null;
   /** why the file was sent (a reprocessing note), kept with each series' data version */
   reason?: string | null;
+  /** the file's duplicate policy instead of each series' own (a reprocessing upload) */
+  duplicatePolicy?: DuplicatePolicy | null;
 }
 
 /**
@@ -133,6 +144,7 @@ async function ingestUnderLease(request: FeedIngestRequest, key: string, started
             tokenId: null,
             timeFormat: feed.timeFormat,
             reason: request.reason,
+            duplicatePolicy: request.duplicatePolicy,
           }),
         );
       }

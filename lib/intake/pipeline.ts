@@ -35,6 +35,15 @@ export interface IngestRequest {
   tokenId?: number | null;
   /** why the data were sent (a reprocessing note); kept with the data version the run makes */
   reason?: string | null;
+  /** this delivery's duplicate policy instead of the series' (a lead's reprocessing upload replaces stored values) */
+  duplicatePolicy?: DuplicatePolicy | null;
+}
+
+export type DuplicatePolicy = 'reject' | 'replace';
+
+/** Whether a delivery replaces stored values that differ: its own policy when it names one, else the series'. */
+export function replacesStored(series: Pick<Series, 'duplicatePolicy'>, override?: DuplicatePolicy | null): boolean {
+  return (override ?? series.duplicatePolicy) === 'replace';
 }
 
 export interface IngestOutcome {
@@ -109,7 +118,7 @@ export async function previousApplication(seriesId: number, contentHash: string,
  * - Idempotent by content: a body whose hash was already applied to the series is recorded as such and not applied.
  * - Partial by row: bad rows are rejected and reported (line, column, reason) while the good rows are stored; an input
  *   with no usable row is 'rejected'. Same instant and value as stored = duplicate; different value = rejected, or
- *   replaced when the series' duplicate policy is 'replace'. Duplicate instants inside one input with different
+ *   replaced when the duplicate policy is 'replace' (the delivery's own, a lead's reprocessing upload, else the series'). Duplicate instants inside one input with different
  *   values are all rejected, whatever the policy: there is no telling which one is right.
  */
 export async function ingestObservations(request: IngestRequest): Promise<IngestOutcome> {
@@ -198,10 +207,18 @@ export async function storeCollected(
   rows: CollectedRows,
   run: IngestRun,
   started: number,
-  context: { source: IngestSource; fileName?: string | null; actorId: number | null; tokenId: number | null; timeFormat: string; reason?: string | null },
+  context: {
+    source: IngestSource;
+    fileName?: string | null;
+    actorId: number | null;
+    tokenId: number | null;
+    timeFormat: string;
+    reason?: string | null;
+    duplicatePolicy?: DuplicatePolicy | null;
+  },
 ): Promise<IngestOutcome> {
   const classified = await classifyAgainstStored(series.id, rows, connectionOf(transaction));
-  const replace = series.duplicatePolicy === 'replace';
+  const replace = replacesStored(series, context.duplicatePolicy);
   const quality = await judgeIncoming(transaction, series, rows);
   const { inserted, replaced } = await writeRows(transaction, series.id, rows, classified, replace, run.id, quality);
   const { flagged, flaggedBy } = flagCountsOfWritten(quality, classified.kind, replace);
@@ -310,6 +327,7 @@ async function ingestUnderLease(request: IngestRequest, key: string, started: nu
         tokenId: request.tokenId ?? null,
         timeFormat,
         reason: request.reason,
+        duplicatePolicy: request.duplicatePolicy,
       });
     });
   } catch (error) {
@@ -407,7 +425,12 @@ const PREVIEW_ROWS = 20;
  * What committing this CSV would do, with nothing stored: the detected layout, the first rows as read, a guess of
  * the time format, and the full validation and comparison summary under the given (or guessed) mapping.
  */
-export async function previewObservations(series: Series, csv: string | Uint8Array, overrides: Partial<IntakeMapping> = {}): Promise<IntakePreview> {
+export async function previewObservations(
+  series: Series,
+  csv: string | Uint8Array,
+  overrides: Partial<IntakeMapping> = {},
+  duplicatePolicy: DuplicatePolicy | null = null,
+): Promise<IntakePreview> {
   await db();
   const sample: PreviewRow[] = [];
   let layout: CsvLayout | null = null;
@@ -465,7 +488,7 @@ export async function previewObservations(series: Series, csv: string | Uint8Arr
     else if (kind === ROW_DUPLICATE) duplicates++;
     else if (kind === ROW_CONFLICT) conflicts++;
   }
-  const replace = series.duplicatePolicy === 'replace';
+  const replace = replacesStored(series, duplicatePolicy);
   const conflictRows = replace ? [] : conflictRejections(rows, classified);
   return {
     layout: described,

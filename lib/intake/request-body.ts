@@ -3,6 +3,7 @@ import { isJsonContentType, readLimitedBytes, readLimitedText } from '@/lib/http
 import { pushedObservationsSchema, uploadMappingSchema, type PushedObservation, type UploadMapping } from '@/lib/schemas/observation';
 import { INTAKE_BODY_LIMIT, MAX_REASON_LENGTH } from './choices';
 import { contentHashOf } from './content-hash';
+import type { DuplicatePolicy } from './pipeline';
 
 export interface IntakeBody {
   /** the CSV as sent: its bytes are decoded by the reader, which chooses and reports the encoding */
@@ -13,6 +14,40 @@ export interface IntakeBody {
   mapping: UploadMapping;
   /** why the data were sent (a reprocessing note): the multipart `reason` part or the `reason` query parameter */
   reason: string | null;
+  /**
+   * this delivery's duplicate policy (multipart `duplicatePolicy` part or query parameter): `replace` sends
+   * reprocessed data whose values replace the stored ones whatever the series' policy; null: the series' policy
+   */
+  duplicatePolicy: DuplicatePolicy | null;
+}
+
+function parsePolicy(raw: FormDataEntryValue | string | null): DuplicatePolicy | null {
+  if (typeof raw !== 'string' || raw === '') return null;
+  if (raw === 'replace' || raw === 'reject') return raw;
+  throw new UnprocessableError('Some fields are not valid.', { duplicatePolicy: ['Give "replace" or "reject".'] });
+}
+
+/**
+ * What a delivery that is to be stored carries besides its rows: its duplicate policy, the reason, and the content
+ * hash it is recognised by. A reprocessing upload (`replace`) must say why, since the reason is what the data
+ * version keeps beside the replaced values (422 on `reason` otherwise), and its hash names the policy: the same
+ * file first sent under the series' `reject` and then as reprocessed data is applied the second time too.
+ */
+export function storedDelivery(body: Pick<IntakeBody, 'duplicatePolicy' | 'reason' | 'contentHash'>): {
+  duplicatePolicy: DuplicatePolicy | null;
+  reason: string | null;
+  contentHash: string;
+} {
+  if (body.duplicatePolicy === 'replace' && !body.reason) {
+    throw new UnprocessableError('Some fields are not valid.', {
+      reason: ['Say why these values replace the stored ones (e.g. what reprocessing corrected).'],
+    });
+  }
+  return {
+    duplicatePolicy: body.duplicatePolicy,
+    reason: body.reason,
+    contentHash: body.duplicatePolicy ? `${body.contentHash}:${body.duplicatePolicy}` : body.contentHash,
+  };
 }
 
 /** A sender's reason, trimmed; null when none was given, 422 when too long. */
@@ -46,9 +81,17 @@ export async function readIntakeBody(request: Request, options: { allowJson: boo
   const query = new URL(request.url).searchParams;
   const queryMapping = query.get('mapping');
   const queryReason = parseReason(query.get('reason'));
+  const queryPolicy = parsePolicy(query.get('duplicatePolicy'));
   if (type.startsWith('text/csv') || type.startsWith('text/plain')) {
     const bytes = await readLimitedBytes(request, INTAKE_BODY_LIMIT);
-    return { csv: bytes, fileName: null, contentHash: contentHashOf(bytes), mapping: parseMapping(queryMapping), reason: queryReason };
+    return {
+      csv: bytes,
+      fileName: null,
+      contentHash: contentHashOf(bytes),
+      mapping: parseMapping(queryMapping),
+      reason: queryReason,
+      duplicatePolicy: queryPolicy,
+    };
   }
   if (type.startsWith('multipart/form-data')) {
     const raw = await readLimitedText(request, INTAKE_BODY_LIMIT + 64 * 1024);
@@ -66,6 +109,7 @@ export async function readIntakeBody(request: Request, options: { allowJson: boo
       contentHash: contentHashOf(bytes),
       mapping: parseMapping(typeof mappingPart === 'string' ? mappingPart : queryMapping),
       reason: parseReason(form.get('reason')) ?? queryReason,
+      duplicatePolicy: parsePolicy(form.get('duplicatePolicy')) ?? queryPolicy,
     };
   }
   if (options.allowJson && isJsonContentType(request)) {
@@ -76,7 +120,14 @@ export async function readIntakeBody(request: Request, options: { allowJson: boo
     } catch {
       throw new UnprocessableError('The body is not valid JSON.');
     }
-    return { points: pushedObservationsSchema.parse(parsed), fileName: null, contentHash: contentHashOf(text), mapping: {}, reason: queryReason };
+    return {
+      points: pushedObservationsSchema.parse(parsed),
+      fileName: null,
+      contentHash: contentHashOf(text),
+      mapping: {},
+      reason: queryReason,
+      duplicatePolicy: queryPolicy,
+    };
   }
   throw new UnsupportedMediaTypeError(options.allowJson ? 'text/csv, multipart/form-data or application/json' : 'text/csv or multipart/form-data');
 }

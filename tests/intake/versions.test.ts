@@ -11,7 +11,7 @@ const { loadObservations } = await import('@/lib/analysis/observations');
 const { observationVersions } = await import('@/lib/intake/versions');
 const { currentDataVersion, listDataVersions } = await import('@/lib/intake/data-versions');
 const { Observation } = await import('@/models');
-const { readIntakeBody } = await import('@/lib/intake/request-body');
+const { readIntakeBody, storedDelivery } = await import('@/lib/intake/request-body');
 const { MAX_REASON_LENGTH } = await import('@/lib/intake/choices');
 const { UnprocessableError } = await import('@/lib/http/errors');
 
@@ -117,5 +117,22 @@ describe('reprocessed data', () => {
       { allowJson: false },
     );
     await expect(long).rejects.toBeInstanceOf(UnprocessableError);
+  });
+
+  it('a reprocessing upload replaces stored values on a series whose policy rejects them, and must say why', async () => {
+    const series = await createSeries({ slug: 'lake-ph', name: 'Lake pH' }, null);
+    expect(series.duplicatePolicy).toBe('reject');
+    await ingestObservations({ series, source: 'drop', fileName: 'raw.csv', csv: csv([7.1, 7.2, 7.3]) });
+    const refused = await ingestObservations({ series, source: 'upload', fileName: 'fixed.csv', csv: csv([7.1, 7.25, 7.3]) });
+    expect(refused).toMatchObject({ replaced: 0, rejected: 1 });
+    expect(() => storedDelivery({ duplicatePolicy: 'replace', reason: null, contentHash: 'abc' })).toThrow(UnprocessableError);
+    const delivery = storedDelivery({ duplicatePolicy: 'replace', reason: 'pH electrode recalibrated', contentHash: 'abc' });
+    // The same file sent again as reprocessed data is a new delivery, not the one already applied under `reject`.
+    expect(delivery.contentHash).not.toBe('abc');
+    const reprocessed = await ingestObservations({ series, source: 'upload', fileName: 'fixed.csv', csv: csv([7.1, 7.25, 7.3]), ...delivery });
+    expect(reprocessed).toMatchObject({ status: 'succeeded', replaced: 1, rejected: 0 });
+    expect(Array.from((await loadObservations(series.id)).value)).toEqual([7.1, 7.25, 7.3]);
+    expect((await listDataVersions(series.id))[0]).toMatchObject({ version: 2, replaced: 1, reason: 'pH electrode recalibrated' });
+    expect(Array.from((await loadObservations(series.id, { version: 1 })).value)).toEqual([7.1, 7.2, 7.3]);
   });
 });

@@ -34,6 +34,12 @@ export const POST = handle<{ slug: string }>(async (request, { params }) => {
   const { slug } = await params;
   const writer = await requireIngestWriter(request, slug);
   const body = await readIntakeBody(request, { allowJson: true });
+  // A station's token must not overrule the series' duplicate policy; reprocessed data come as a lead's upload.
+  if (body.duplicatePolicy) {
+    throw new UnprocessableError('Some fields are not valid.', {
+      duplicatePolicy: ['A push keeps the series’ duplicate policy; send reprocessed data as an upload.'],
+    });
+  }
   const outcome = await ingestObservations({
     series: writer.series,
     source: 'push',
