@@ -29,15 +29,19 @@ describe('reprocessed data and re-analysis on an earlier version, in the started
     await app?.stop();
   });
 
-  it('a reprocessing upload with a reason makes a data version; a pushed point keeps its flag', async () => {
+  it('a reprocessing upload with a reason makes a data version (the series keeps its own policy); a pushed point keeps its flag', async () => {
     const detail = await (await lead.fetch(`/api/series/${SLUG}`)).json();
     const last = Number(detail.observations.last);
     const interval = Number(detail.intervalMs);
-    expect((await lead.json(`/api/series/${SLUG}`, 'PATCH', { duplicatePolicy: 'replace' })).status).toBe(200);
     const stored = await (await lead.fetch(`/api/series/${SLUG}/observations?from=${last - 2 * interval}&to=${last}`)).json();
     const form = new FormData();
     const csv = `time,value\n${stored.items.map((p: { time: string; value: number }) => `${p.time},${p.value + 0.25}`).join('\n')}\n`;
     form.set('file', new File([csv], 'reprocessed.csv', { type: 'text/csv' }));
+    // A reprocessing upload: the series keeps its policy (reject); this delivery replaces, and says why.
+    form.set('duplicatePolicy', 'replace');
+    const withoutReason = await lead.fetch(`/api/series/${SLUG}/uploads`, { method: 'POST', body: form });
+    expect(withoutReason.status).toBe(422);
+    expect((await withoutReason.json()).error.fields.reason).toBeDefined();
     form.set('reason', 'offset of the logger corrected');
     const upload = await lead.fetch(`/api/series/${SLUG}/uploads`, { method: 'POST', body: form });
     expect(upload.status).toBe(200);
@@ -48,6 +52,12 @@ describe('reprocessed data and re-analysis on an earlier version, in the started
       body: JSON.stringify([{ time: new Date(last + 1000 * interval).toISOString(), value: 4, flag: 3 }]),
     });
     expect(push.status).toBe(200);
+    const overruling = await lead.fetch(`/api/series/${SLUG}/observations?duplicatePolicy=replace`, {
+      method: 'POST',
+      headers: { 'content-type': 'application/json' },
+      body: JSON.stringify([{ time: new Date(last).toISOString(), value: 5 }]),
+    });
+    expect(overruling.status).toBe(422);
     expect((await push.json()).flaggedBy).toEqual({ suspect: { source: 1 } });
     const overview: DataVersionsOverview = await (await viewer.fetch(`/api/series/${SLUG}/data-versions`)).json();
     expect(overview.versions.find((v) => v.reason === 'offset of the logger corrected')).toMatchObject({
