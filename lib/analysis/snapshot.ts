@@ -179,7 +179,8 @@ export async function analyseAtVersion(series: Series, version: number, options:
  * go to the engine as breaks, so the analysis judges only the stretch since the last marked tipping point or
  * maintenance break (or detected shift). The snapshot records the data version it read: the version is taken before
  * the read, and when an intake run committed a newer one during the read, the record is read again as it stood at
- * that version, so the recorded version is always exactly the data analysed.
+ * that version, so the values analysed are always those of the recorded version (flags changed without new data
+ * make no version; see `rowsAtVersion`).
  */
 export async function refreshSeriesAnalysis(series: Series, options: { parallel?: boolean } = {}): Promise<AnalysisSnapshot> {
   await db();
