@@ -99,4 +99,34 @@ describe('reprocessed data and re-analysis on an earlier version, in the started
     await panel.getByTestId('reanalysis-comparison').waitFor();
     await panel.screenshot({ path: path.join(SHOTS, 'data-versions.png') });
   }, 180_000);
+
+  it('the Intake screen sends reprocessed data: tick, say why, commit (labels from components/intake/UploadPanel.tsx)', async () => {
+    const created = await lead.json('/api/series', 'POST', {
+      slug: 'reprocess-check',
+      name: 'Reprocess check',
+      intervalMs: 86_400_000,
+      csvMapping: { timeColumn: 'time', valueColumn: 'value', timeFormat: 'iso8601' },
+    });
+    expect(created.status).toBe(201);
+    const csvOf = (shift: number) =>
+      `time,value\n${Array.from({ length: 10 }, (_, i) => `${new Date(Date.UTC(2025, 0, 1 + i)).toISOString()},${(10 + i + (i >= 5 ? shift : 0)).toFixed(2)}`).join('\n')}\n`;
+    const raw = await lead.fetch('/api/series/reprocess-check/uploads', { method: 'POST', headers: { 'content-type': 'text/csv' }, body: csvOf(0) });
+    expect(raw.status).toBe(200);
+    await page.goto(`${app.baseUrl}/intake`);
+    const panel = page.getByTestId('upload-panel');
+    await panel.getByRole('combobox', { name: 'Series' }).fill('reprocess che');
+    await panel.getByRole('option', { name: /Reprocess check/ }).click();
+    await panel.locator('input[type="file"]').setInputFiles({ name: 'reprocessed-v2.csv', mimeType: 'text/csv', buffer: Buffer.from(csvOf(0.5)) });
+    await panel.getByTestId('validation-summary').waitFor({ timeout: 30_000 });
+    await panel.getByTestId('upload-reprocess').check();
+    await panel.getByText('5 would replace stored values').waitFor({ timeout: 30_000 });
+    const commit = panel.getByRole('button', { name: /^Commit 5 points/ });
+    await expect(commit.isDisabled()).resolves.toBe(true);
+    await panel.getByTestId('upload-reason').fill('second half re-derived from the corrected calibration');
+    await commit.click();
+    await expect.poll(() => panel.getByTestId('commit-outcome').textContent(), { timeout: 30_000 }).toMatch(/Run #\d+/);
+    await panel.screenshot({ path: path.join(SHOTS, 'upload-reprocess.png') });
+    const overview: DataVersionsOverview = await (await lead.fetch('/api/series/reprocess-check/data-versions')).json();
+    expect(overview.versions[0]).toMatchObject({ version: 2, replaced: 5, reason: 'second half re-derived from the corrected calibration' });
+  }, 120_000);
 });
