@@ -18,6 +18,7 @@ import * as webhooks from './0017-webhooks';
 import * as periodReports from './0018-period-reports';
 import * as stationData from './0019-station-data';
 import * as changeReasons from './0020-change-reasons';
+import * as dataVersions from './0021-data-versions';
 import * as analysisState from './0023-analysis-state';
 
 /**
@@ -42,6 +43,7 @@ const MIGRATIONS = [
   { name: '0018-period-reports', ...periodReports },
   { name: '0019-station-data', ...stationData },
   { name: '0020-change-reasons', ...changeReasons },
+  { name: '0021-data-versions', ...dataVersions },
   { name: '0023-analysis-state', ...analysisState },
 ];
 

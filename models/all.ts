@@ -31,3 +31,4 @@ export { WebhookAttempt, WebhookDelivery } from './WebhookDelivery';
 export { ReportSchedule } from './ReportSchedule';
 export { Feed } from './Feed';
 export { SeriesAnalysisState } from './SeriesAnalysisState';
+export { Reanalysis } from './Reanalysis';

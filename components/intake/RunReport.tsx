@@ -8,6 +8,8 @@ import type { NetcdfLayout } from '@/lib/intake/netcdf/dataset';
 import { RejectedRowsTable } from './RejectedRowsTable';
 import { StatusBadge } from './StatusBadge';
 import { Button } from '@/components/ui/Button';
+import { CELL_TIGHT, DataTable } from '@/components/ui/DataTable';
+import { SETTER_LABELS } from '@/lib/quality/flags';
 
 interface RunDetail extends RunSummary {
   report: {
@@ -17,7 +19,39 @@ interface RunDetail extends RunSummary {
     layout?: { delimiter: string; header: string[] | null; encoding: string } | null;
     timeFormat?: string;
     netcdf?: NetcdfLayout | null;
+    /** points written per QARTOD flag label */
+    flagged?: Record<string, number>;
+    /** the same per flag label and what set it (a test's name, `source`, `none`) */
+    flaggedBy?: Record<string, Record<string, number>>;
+    /** the series' data version this run made (null when it stored nothing) */
+    dataVersion?: number | null;
+    reason?: string | null;
   };
+}
+
+/** Flags in the order of the QARTOD scale, as the run report lists them. */
+const FLAG_ORDER = ['pass', 'suspect', 'fail', 'missing', 'not evaluated'];
+
+/** The run's points per flag and which test set them (the series' run; a feed file writes one run per series). */
+function FlagCounts({ report, runId }: { report: RunDetail['report']; runId: number }) {
+  const flagged = report.flagged ?? {};
+  const labels = [...FLAG_ORDER.filter((label) => label in flagged), ...Object.keys(flagged).filter((label) => !FLAG_ORDER.includes(label))];
+  if (labels.length === 0) return null;
+  return (
+    <DataTable caption={`Quality flags of the points run ${runId} wrote`} showCaption frame="plain" columns={['Flag', 'Points', 'Set by']} testId="run-flags">
+      {labels.map((label) => (
+        <tr key={label}>
+          <td className={CELL_TIGHT}>{label}</td>
+          <td className={`${CELL_TIGHT} font-mono`}>{formatCount(flagged[label])}</td>
+          <td className={CELL_TIGHT}>
+            {Object.entries(report.flaggedBy?.[label] ?? {})
+              .map(([setter, n]) => `${SETTER_LABELS[setter as keyof typeof SETTER_LABELS] ?? setter} ${formatCount(n)}`)
+              .join(' · ') || '–'}
+          </td>
+        </tr>
+      ))}
+    </DataTable>
+  );
 }
 
 export function RunReport({ runId, onClose }: { runId: number; onClose: () => void }) {
@@ -81,6 +115,12 @@ export function RunReport({ runId, onClose }: { runId: number; onClose: () => vo
               {query.data.report.netcdf.timeVariable}” in {query.data.report.netcdf.timeUnits} ({query.data.report.netcdf.calendar} calendar).
             </p>
           )}
+          {typeof query.data.report.dataVersion === 'number' ? (
+            <p data-testid="run-data-version">
+              Made data version {query.data.report.dataVersion} of the series{query.data.report.reason ? `; reason given: ${query.data.report.reason}` : ''}.
+            </p>
+          ) : null}
+          <FlagCounts report={query.data.report} runId={runId} />
           {query.data.report.notes?.map((note) => (
             <p key={note} className="rounded bg-watch-light px-2 py-1 text-watch">
               {note}

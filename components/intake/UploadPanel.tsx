@@ -5,14 +5,14 @@ import { useId, useState, type DragEvent } from 'react';
 import { Caution } from '@/components/Caution';
 import { SeriesPicker } from '@/components/SeriesPicker';
 import type { SeriesChoice } from '@/lib/series/registry';
-import { api } from '@/components/api';
+import { api, ApiError } from '@/components/api';
 import { formatLocal } from '@/lib/display/format';
 import { formatCount } from './api';
 import { RejectedRowsTable } from './RejectedRowsTable';
 import { Button } from '@/components/ui/Button';
 import { DataTable } from '@/components/ui/DataTable';
 import { CONTROL, Field } from '@/components/ui/Field';
-import { DELIMITER_LABELS, INTAKE_BODY_LIMIT, TIME_FORMAT_LABELS } from '@/lib/intake/choices';
+import { DELIMITER_LABELS, INTAKE_BODY_LIMIT, MAX_REASON_LENGTH, TIME_FORMAT_LABELS } from '@/lib/intake/choices';
 import type { NetcdfLayout } from '@/lib/intake/netcdf/dataset';
 import type { PreviewSummary } from '@/lib/intake/run-record';
 
@@ -48,10 +48,18 @@ interface Outcome {
   rejected: number;
 }
 
-function send(slug: string, file: File, mapping: Partial<Mapping> | { variable: string } | null, commit: boolean) {
+/** A reprocessing upload replaces stored values whatever the series' duplicate policy, and says why. */
+interface Delivery {
+  reprocess: boolean;
+  reason?: string;
+}
+
+function send(slug: string, file: File, mapping: Partial<Mapping> | { variable: string } | null, commit: boolean, delivery: Delivery) {
   const form = new FormData();
   form.append('file', file);
   if (mapping) form.append('mapping', JSON.stringify(mapping));
+  if (delivery.reprocess) form.append('duplicatePolicy', 'replace');
+  if (delivery.reason?.trim()) form.append('reason', delivery.reason.trim());
   return api<Preview & Outcome>(`/api/series/${slug}/uploads${commit ? '' : '/preview'}`, { method: 'POST', body: form });
 }
 
@@ -89,6 +97,9 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
   const [variable, setVariable] = useState<string | null>(null);
   const [dragging, setDragging] = useState(false);
   const [sizeError, setSizeError] = useState<string | null>(null);
+  // Why the data are sent again (reprocessing): kept with the data version the commit makes.
+  const [reason, setReason] = useState('');
+  const [reprocess, setReprocess] = useState(false);
   // The picker gives slug and name; the series' own record gives the zone its times are shown in (README: every
   // time on screen in the series' zone). Until it arrives, times read in UTC, which the label then says.
   const zone = useQuery({
@@ -100,7 +111,8 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
   const timeZone = zone.data ?? 'UTC';
 
   const preview = useMutation({
-    mutationFn: (input: { file: File; mapping: Mapping | { variable: string } | null }) => send(slug, input.file, input.mapping, false),
+    mutationFn: (input: { file: File; mapping: Mapping | { variable: string } | null; reprocess: boolean }) =>
+      send(slug, input.file, input.mapping, false, input),
     onSuccess: (data, input) => {
       if (data.netcdf) setVariable(data.netcdf.variable);
       if (input.mapping || !data.layout) return;
@@ -116,7 +128,7 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
     },
   });
   const commit = useMutation({
-    mutationFn: () => send(slug, file!, variable !== null ? { variable } : mapping, true),
+    mutationFn: () => send(slug, file!, variable !== null ? { variable } : mapping, true, { reprocess, reason }),
     onSettled: () => {
       client.invalidateQueries({ queryKey: ['ingest-runs'] });
     },
@@ -127,6 +139,7 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
     setMapping(null);
     setVariable(null);
     setSizeError(null);
+    setReprocess(false);
     setFile(picked);
     if (!picked) return;
     if (picked.size > MAX_BYTES) {
@@ -135,18 +148,18 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
       );
       return;
     }
-    preview.mutate({ file: picked, mapping: null });
+    preview.mutate({ file: picked, mapping: null, reprocess: false });
   };
   const change = (patch: Partial<Mapping>) => {
     const next = { ...mapping!, ...patch };
     setMapping(next);
     commit.reset();
-    if (file) preview.mutate({ file, mapping: next });
+    if (file) preview.mutate({ file, mapping: next, reprocess });
   };
   const chooseVariable = (name: string) => {
     setVariable(name);
     commit.reset();
-    if (file) preview.mutate({ file, mapping: { variable: name } });
+    if (file) preview.mutate({ file, mapping: { variable: name }, reprocess });
   };
   const onDrop = (event: DragEvent<HTMLLabelElement>) => {
     event.preventDefault();
@@ -322,10 +335,40 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
               report.
             </p>
           </div>
+          {summary.conflicts > 0 || reprocess ? (
+            <label className="flex items-center gap-2">
+              <input
+                type="checkbox"
+                checked={reprocess}
+                data-testid="upload-reprocess"
+                onChange={(event) => {
+                  setReprocess(event.target.checked);
+                  commit.reset();
+                  if (file) preview.mutate({ file, mapping, reprocess: event.target.checked });
+                }}
+              />
+              These are reprocessed data: replace the stored values that differ (the stored ones are kept as an earlier version)
+            </label>
+          ) : null}
+          {summary.wouldReplace > 0 ? (
+            <Field
+              label="Why these values replace stored ones"
+              hint="Kept with the data version this commit makes; the replaced values stay on record as the earlier version."
+              error={commit.error instanceof ApiError ? (commit.error.fields?.reason?.[0] ?? null) : null}
+            >
+              <input
+                className={`${CONTROL} w-full max-w-xl`}
+                maxLength={MAX_REASON_LENGTH}
+                value={reason}
+                onChange={(event) => setReason(event.target.value)}
+                data-testid="upload-reason"
+              />
+            </Field>
+          ) : null}
           <Button
             variant="primary"
             size="lg"
-            disabled={commit.isPending || summary.wouldAccept + summary.wouldReplace === 0 || commit.isSuccess}
+            disabled={commit.isPending || summary.wouldAccept + summary.wouldReplace === 0 || commit.isSuccess || (reprocess && !reason.trim())}
             onClick={() => commit.mutate()}
           >
             {commit.isPending ? 'Storing…' : `Commit ${formatCount(summary.wouldAccept + summary.wouldReplace)} points`}

@@ -19,6 +19,10 @@ export function ProvenancePanel({ analyses }: { analyses: ProvenanceView[] }) {
               {p.ingestRuns.length ? `ingest run${p.ingestRuns.length > 1 ? 's' : ''} ${p.ingestRuns.map((id) => `#${id}`).join(', ')}` : 'no recorded run'}
               {p.rowsWithoutRun ? ` and ${p.rowsWithoutRun.toLocaleString('en-GB')} rows stored before runs were recorded or seeded` : ''}
             </dd>
+            <dt className="text-ink-soft">Data version</dt>
+            <dd data-testid="provenance-data-version">
+              {p.dataVersion === undefined ? 'not recorded (analysed before data versions were counted)' : `${p.dataVersion} of the series’ record`}
+            </dd>
             <dt className="text-ink-soft">SHA-256</dt>
             <dd className="break-all font-mono" data-testid="provenance-sha256">
               {p.dataSha256}

@@ -9,6 +9,37 @@ export interface ObservationRange {
   from?: number;
   to?: number;
   limit?: number;
+  /** read the record as it stood at this data version (`rowsAtVersion`) instead of as it is stored now */
+  version?: number;
+}
+
+/**
+ * The rows of every series as they stood at data version `version` (lib/intake/data-versions.ts), as a subquery with
+ * the columns of `observations` that reads use (series_id, t, value, flag, ingest_run_id): a stored row whose
+ * writing run belongs to that version or an earlier one, and an earlier value (`observation_versions`) written by
+ * such a run and replaced by a later one. A run without a data version row counts as version 0 (rows stored before
+ * versions were counted, and seeded rows without a run, are part of every version). Exact because versions are
+ * numbered in commit order, so each instant's values hold over disjoint stretches of versions. Flags are those
+ * stored with each value: a flag changed without new data (a re-run of the tests, an analyst's override) is not a
+ * new version and shows in the rebuilt record too. SQLite pushes the caller's series and time bounds into both
+ * arms (the (series_id, t) key of observations, the (series_id, t) index of observation_versions).
+ */
+export function rowsAtVersion(version: number): string {
+  const v = Math.trunc(Number(version));
+  if (!Number.isFinite(v)) throw new Error('a data version is a whole number');
+  return `(SELECT o.series_id, o.t, o.value, o.flag, o.ingest_run_id FROM observations o
+      LEFT JOIN data_versions w ON w.series_id = o.series_id AND w.ingest_run_id = o.ingest_run_id
+      WHERE COALESCE(w.version, 0) <= ${v}
+    UNION ALL
+    SELECT p.series_id, p.t, p.value, p.flag, p.ingest_run_id FROM observation_versions p
+      LEFT JOIN data_versions w ON w.series_id = p.series_id AND w.ingest_run_id = p.ingest_run_id
+      LEFT JOIN data_versions r ON r.series_id = p.series_id AND r.ingest_run_id = p.replaced_by_run_id
+      WHERE COALESCE(w.version, 0) <= ${v} AND COALESCE(r.version, 0) > ${v})`;
+}
+
+/** The table (or rebuilt record) a read of the given range takes its rows from. */
+export function rowsOf(range: { version?: number }): string {
+  return range.version === undefined ? 'observations' : `${rowsAtVersion(range.version)} AS rebuilt`;
 }
 
 /** Rows packed into one string per query: bounds the string (about 3 MB) on records of millions of points. */
@@ -66,7 +97,7 @@ async function readPacked(connection: Database, seriesId: number, range: Observa
   const withFlag = leaveOut === null;
   const record = withFlag ? "t || ',' || CAST(value AS TEXT) || ',' || flag" : "t || ',' || CAST(value AS TEXT)";
   const sql = `SELECT COUNT(*) AS n, MAX(t) AS last, group_concat(${record}, ';' ORDER BY t) AS packed
-    FROM (SELECT t, value, flag FROM observations WHERE ${clauses.join(' AND ')} ORDER BY t LIMIT ?)`;
+    FROM (SELECT t, value, flag FROM ${rowsOf(range)} WHERE ${clauses.join(' AND ')} ORDER BY t LIMIT ?)`;
   const times: Float64Array[] = [];
   const values: Float64Array[] = [];
   const flags: Uint8Array[] = [];
@@ -115,11 +146,11 @@ function joined<A extends Float64Array | Uint8Array>(parts: A[], Kind: new (n: n
   return out;
 }
 
-/** Count, first and last instant of a series' record. */
-export async function observationExtent(seriesId: number): Promise<{ count: number; first: number | null; last: number | null }> {
+/** Count, first and last instant of a series' record (as it stood at `version` when one is given). */
+export async function observationExtent(seriesId: number, version?: number): Promise<{ count: number; first: number | null; last: number | null }> {
   const sequelize = await db();
   const [row] = await sequelize.query<{ count: number; first: number | null; last: number | null }>(
-    'SELECT COUNT(*) AS count, MIN(t) AS first, MAX(t) AS last FROM observations WHERE series_id = :seriesId',
+    `SELECT COUNT(*) AS count, MIN(t) AS first, MAX(t) AS last FROM ${rowsOf({ version })} WHERE series_id = :seriesId`,
     { replacements: { seriesId }, type: QueryTypes.SELECT },
   );
   return { count: Number(row.count), first: row.first === null ? null : Number(row.first), last: row.last === null ? null : Number(row.last) };

@@ -3,6 +3,11 @@
  * report show it as it is stored.
  */
 export interface SnapshotProvenance {
+  /**
+   * the series' data version the analysed rows are (lib/intake/data-versions.ts: one per intake run that stored new
+   * or replaced values); absent on analyses stored before versions were counted (migration 0021)
+   */
+  dataVersion?: number;
   /** SHA-256 (hex) of the analysed observations in the canonical form named by `canonicalForm` */
   dataSha256: string;
   /** how the observations were written before hashing; see `canonicalObservationsCsv` */

@@ -6,7 +6,7 @@ import { ENGINE_VERSION } from '@/lib/engine/version';
 import { formatInstant } from '@/lib/intake/time-formats';
 import { ConflictError, NotFoundError } from '@/lib/http/errors';
 import { analysisFileName, reproduceCommand, type SnapshotProvenance } from './provenance-record';
-import { flagsLeftOutOf, loadObservations } from './observations';
+import { flagsLeftOutOf, loadObservations, rowsOf } from './observations';
 
 /**
  * The canonical form of analysed observations, the text their SHA-256 is taken over: the header `time,value`, then
@@ -42,11 +42,11 @@ function sha256Hex(text: string): string {
  * Which ingest runs last wrote the analysed rows of [from, to] (the flags the analysis leaves out are left out here
  * too), and how many of them no recorded run wrote. One grouped scan.
  */
-async function contributingRuns(seriesId: number, from: number, to: number): Promise<{ ingestRuns: number[]; rowsWithoutRun: number }> {
+async function contributingRuns(seriesId: number, from: number, to: number, version?: number): Promise<{ ingestRuns: number[]; rowsWithoutRun: number }> {
   const sequelize = await db();
   const leftOut = await flagsLeftOutOf(seriesId);
   const groups = await sequelize.query<{ run: number | null; rows: number }>(
-    'SELECT ingest_run_id AS run, COUNT(*) AS rows FROM observations WHERE series_id = :seriesId AND t >= :from AND t <= :to AND flag NOT IN (:leftOut) GROUP BY ingest_run_id',
+    `SELECT ingest_run_id AS run, COUNT(*) AS rows FROM ${rowsOf({ version })} WHERE series_id = :seriesId AND t >= :from AND t <= :to AND flag NOT IN (:leftOut) GROUP BY ingest_run_id`,
     { replacements: { seriesId, from, to, leftOut }, type: QueryTypes.SELECT },
   );
   return {
@@ -58,16 +58,20 @@ async function contributingRuns(seriesId: number, from: number, to: number): Pro
   };
 }
 
-/** The provenance of an analysis about to be stored: the hash of exactly the observations the engine was given. */
+/**
+ * The provenance of an analysis about to be stored: the hash of exactly the observations the engine was given, and
+ * the data version they are (`version` when they were read as the record stood at an earlier one).
+ */
 export async function provenanceOf(
   seriesId: number,
   observations: { time: Float64Array; value: Float64Array },
   settings: AnalysisSettings,
-  input: { intervalMs: number | undefined; breaks: RecordBreak[] },
+  input: { intervalMs: number | undefined; breaks: RecordBreak[]; dataVersion: number; version?: number },
 ): Promise<SnapshotProvenance> {
   const n = observations.time.length;
-  const runs = n ? await contributingRuns(seriesId, observations.time[0], observations.time[n - 1]) : { ingestRuns: [], rowsWithoutRun: 0 };
+  const runs = n ? await contributingRuns(seriesId, observations.time[0], observations.time[n - 1], input.version) : { ingestRuns: [], rowsWithoutRun: 0 };
   return {
+    dataVersion: input.dataVersion,
     dataSha256: sha256Hex(canonicalObservationsCsv(observations.time, observations.value)),
     canonicalForm: 'brinkwatch-observations-csv-v1',
     rows: n,
@@ -91,7 +95,9 @@ export interface SnapshotDataDownload {
  * seed) as `# settings: {...}` and the engine's other inputs as `# input: {...}` (both applied by the command line,
  * so `brinkwatch analyze FILE --summary` reproduces the snapshot), the provenance, the command and the caution —
  * then the observations in the canonical form. When values in the analysed range were replaced after the
- * analysis, the rows served are today's and a `# warning:` line says they will not reproduce it (the hash tells).
+ * analysis, the rows are rebuilt as they stood at the data version the analysis read; for analyses stored before
+ * versions were counted (or flags changed since without new data), the rows served are today's and a `# warning:`
+ * line says they will not reproduce it (the hash tells).
  */
 export async function snapshotDataCsv(snapshotId: number): Promise<SnapshotDataDownload> {
   await db();
@@ -107,7 +113,8 @@ export async function snapshotDataCsv(snapshotId: number): Promise<SnapshotDataD
   const series = await Series.findByPk(snapshot.seriesId, { attributes: ['id', 'slug', 'name', 'timeZone'] });
   if (!series) throw new NotFoundError('Series');
   const provenance = snapshot.provenance;
-  const observations = await loadObservations(series.id, { from: Number(snapshot.dataFrom), to: Number(snapshot.dataTo) });
+  // The record as it stood at the analysed data version, so values replaced since do not change the download.
+  const observations = await loadObservations(series.id, { from: Number(snapshot.dataFrom), to: Number(snapshot.dataTo), version: provenance.dataVersion });
   const body = canonicalObservationsCsv(observations.time, observations.value);
   const matches = sha256Hex(body) === provenance.dataSha256;
   const fileName = analysisFileName(series.slug, snapshot.id);
@@ -124,7 +131,7 @@ export async function snapshotDataCsv(snapshotId: number): Promise<SnapshotDataD
     ...(matches
       ? []
       : [
-          '# warning: values in this range were replaced after the analysis; the rows below are today\u2019s and do not hash to dataSha256, so they will not reproduce its numbers',
+          '# warning: values or flags in this range changed after the analysis in a way no data version records; the rows below do not hash to dataSha256, so they will not reproduce its numbers',
         ]),
     `# caution: ${ANALYSIS_CAUTION}`,
   ];

@@ -1,4 +1,4 @@
-import { Op, QueryTypes, type InferCreationAttributes, type Transaction } from 'sequelize';
+import { Op, QueryTypes, type Transaction } from 'sequelize';
 import { sampleStandardDeviation } from 'simple-statistics';
 import { AnalysisSnapshot, Mark, Series, WITHOUT_CHARTS, db, writeTransaction } from '@/models';
 import { analysisSettingsSchema, type AnalysisSettings } from '@/lib/engine/settings';
@@ -12,6 +12,7 @@ import { AnalysisInputError } from '@/lib/engine/errors';
 import { provenanceOf } from './provenance';
 import { loadObservations, observationExtent, type ObservationRange } from './observations';
 import { keepAnalysisState, loadAnalysisState } from './state';
+import { currentDataVersion } from '@/lib/intake/data-versions';
 
 /**
  * The spread of the surrogate taus of one indicator: `nullSd` is their sample standard deviation (n − 1), the
@@ -78,12 +79,14 @@ export async function spanReadRange(
   seriesId: number,
   settings: AnalysisSettings,
   intervalMs: number | undefined,
+  version?: number,
 ): Promise<{ range: ObservationRange; last: number | null }> {
-  const extent = await observationExtent(seriesId);
-  if (settings.span === null || intervalMs === undefined || extent.first === null || extent.last === null) return { range: {}, last: extent.last };
+  const extent = await observationExtent(seriesId, version);
+  const pinned: ObservationRange = version === undefined ? {} : { version };
+  if (settings.span === null || intervalMs === undefined || extent.first === null || extent.last === null) return { range: pinned, last: extent.last };
   const recordPoints = Math.floor((extent.last - extent.first) / intervalMs) + 1;
   const points = Math.ceil(extentPoints(settings.span, recordPoints, intervalMs, 'utc-ms'));
-  return { range: { from: extent.last - points * intervalMs }, last: extent.last };
+  return { range: { ...pinned, from: extent.last - points * intervalMs }, last: extent.last };
 }
 
 /** The scheduler's claim on a series lapsed before its analysis was stored; nothing was written. */
@@ -94,18 +97,120 @@ export class ClaimLostError extends Error {
   }
 }
 
+/** The engine's input read from a series' record: the observations of the span the settings reach, and the marks in it. */
+interface RecordInput {
+  observations: { time: Float64Array; value: Float64Array };
+  breaks: NonNullable<AnalysisInput['breaks']>;
+  range: ObservationRange;
+}
+
+/** Reads the span and its marks from the record as stored now, or as it stood at `version`. */
+async function readRecord(series: Series, settings: AnalysisSettings, version?: number): Promise<RecordInput> {
+  const intervalMs = series.intervalMs === null ? undefined : Number(series.intervalMs);
+  const { range, last } = await spanReadRange(series.id, settings, intervalMs, version);
+  const [observations, breaks] = await Promise.all([loadObservations(series.id, range), seriesBreaks(series.id, { from: range.from, to: last })]);
+  return { observations, breaks, range };
+}
+
+/** What one run of the engine on a record gives, as a snapshot or a re-analysis stores it. */
+export type RecordAnalysis = Pick<
+  AnalysisSnapshot,
+  'settings' | 'summary' | 'curves' | 'status' | 'error' | 'n' | 'dataFrom' | 'dataTo' | 'durationMs' | 'provenance'
+> & { chartView: Record<string, unknown> | null };
+
 /**
- * Runs the engine on a series as it stands and stores the outcome as a new snapshot, successful or not: an
- * error snapshot carries the engine's message (e.g. a gap longer than maxGap, a stretch since the last mark too
- * short for the window) so the series page can say why there is no fresh evidence. Only the trailing span the
- * settings ask for is read from the database, and the marks inside it go to the engine as breaks, so the analysis
- * judges only the stretch since the last marked tipping point or maintenance break (or detected shift).
+ * Runs the engine on a record read by `readRecord`, successful or not: an error outcome carries the engine's
+ * message (e.g. a gap longer than maxGap, a stretch since the last mark too short for the window) so the page can
+ * say why there is no fresh evidence. The provenance names the data version the input is, and whether the numbers
+ * were continued from `previous` (the series' kept state, when `incremental` and exact: `updateAnalysis`,
+ * lib/engine/update.ts) or computed in full, and why. `kept` is the state to keep after a success (null: keep none),
+ * undefined after a failure, which leaves the kept state as it was.
+ */
+async function analyseRecord(
+  series: Series,
+  settings: AnalysisSettings,
+  input: RecordInput,
+  dataVersion: number,
+  started: number,
+  options: { parallel?: boolean; incremental: boolean; previous: { snapshotId: number; state: AnalysisState } | null },
+): Promise<RecordAnalysis & { kept?: AnalysisState | null }> {
+  const intervalMs = series.intervalMs === null ? undefined : Number(series.intervalMs);
+  const { observations, breaks } = input;
+  const n = observations.time.length;
+  const dataFrom = n ? observations.time[0] : null;
+  const dataTo = n ? observations.time[n - 1] : null;
+  const provenance = await provenanceOf(series.id, observations, settings, { intervalMs, breaks, dataVersion, version: input.range.version });
+  const { previous, incremental } = options;
+  try {
+    const { result, state, how } = await updateAnalysis({ ...observations, intervalMs, breaks }, settings, previous?.state ?? null, {
+      parallel: options.parallel,
+      incremental,
+      refresh: { ...NULL_REFRESH, points: config().ANALYSIS_NULL_REFRESH_POINTS },
+    });
+    provenance.update = { mode: how.mode, reason: how.reason, basedOnSnapshot: how.mode === 'incremental' ? previous!.snapshotId : null };
+    // Through JSON first, so the saved view is exactly the one the stored row's curves would give (NaN → null).
+    const stored = JSON.parse(JSON.stringify({ summary: snapshotSummary(result), curves: curvesOf(result) }));
+    return {
+      settings,
+      summary: stored.summary,
+      curves: stored.curves,
+      chartView: viewFromSnapshot({ settings, ...stored }) as unknown as Record<string, unknown>,
+      status: 'ok',
+      error: null,
+      n: result.n,
+      dataFrom,
+      dataTo,
+      durationMs: Math.round(performance.now() - started),
+      provenance,
+      kept: state,
+    };
+  } catch (error) {
+    if (!(error instanceof AnalysisInputError)) console.error(`[analysis] series ${series.slug} failed`, error);
+    return {
+      settings,
+      summary: {},
+      curves: null,
+      chartView: null,
+      status: 'error',
+      error:
+        error instanceof AnalysisInputError ? error.message : `The analysis failed unexpectedly: ${error instanceof Error ? error.message : String(error)}`,
+      n,
+      dataFrom,
+      dataTo,
+      durationMs: Math.round(performance.now() - started),
+      provenance,
+    };
+  }
+}
+
+/**
+ * Runs the engine on a series as it stood at data version `version` (its values rebuilt from the stored rows and
+ * the earlier values reprocessing replaced), with the series' settings and marks as they are now, always in full
+ * (a kept state belongs to the live record). Nothing is stored.
+ */
+export async function analyseAtVersion(series: Series, version: number, options: { parallel?: boolean } = {}): Promise<RecordAnalysis> {
+  await db();
+  const settings = analysisSettingsSchema.parse(series.settings ?? {});
+  const started = performance.now();
+  const input = await readRecord(series, settings, version);
+  // eslint-disable-next-line @typescript-eslint/no-unused-vars -- a re-analysis keeps no state
+  const { kept, ...analysis } = await analyseRecord(series, settings, input, version, started, { ...options, incremental: false, previous: null });
+  return analysis;
+}
+
+/**
+ * Runs the engine on a series as it stands and stores the outcome as a new snapshot, successful or not (see
+ * `analyseRecord`). Only the trailing span the settings ask for is read from the database, and the marks inside it
+ * go to the engine as breaks, so the analysis judges only the stretch since the last marked tipping point or
+ * maintenance break (or detected shift). The snapshot records the data version it read: the version is taken before
+ * the read, and when an intake run committed a newer one during the read, the record is read again as it stood at
+ * that version, so the values analysed are always those of the recorded version (flags changed without new data
+ * make no version; see `rowsAtVersion`).
  *
- * The analysis continues from the series' kept state when that is exact (`updateAnalysis`, lib/engine/update.ts;
- * switched off by ANALYSIS_INCREMENTAL=0), and the provenance records which it was and why (`update`). The snapshot,
- * the state it leaves and, with `markAnalysed`, the cleared `needsAnalysis` flag (only if no data arrived since
- * `dataChangedAt` was read) are written in one transaction, and only while `stillClaimed` holds: a process killed before it commits leaves the series due,
- * with no snapshot, so a data change is analysed once.
+ * The analysis continues from the series' kept state when that is exact (switched off by ANALYSIS_INCREMENTAL=0).
+ * The snapshot, the state it leaves and, with `markAnalysed`, the cleared `needsAnalysis` flag (only if no data
+ * arrived since `dataChangedAt` was read) are written in one transaction, and only while `stillClaimed` holds: a
+ * process killed before it commits leaves the series due, with no snapshot, so a data change is analysed once.
  */
 export async function refreshSeriesAnalysis(
   series: Series,
@@ -116,58 +221,16 @@ export async function refreshSeriesAnalysis(
 ): Promise<AnalysisSnapshot> {
   await db();
   const settings = analysisSettingsSchema.parse(series.settings ?? {});
-  const intervalMs = series.intervalMs === null ? undefined : Number(series.intervalMs);
   const started = performance.now();
-  const { range, last } = await spanReadRange(series.id, settings, intervalMs);
   const incremental = config().ANALYSIS_INCREMENTAL;
-  const [observations, breaks, previous] = await Promise.all([
-    loadObservations(series.id, range),
-    seriesBreaks(series.id, { from: range.from, to: last }),
-    incremental ? loadAnalysisState(series.id) : null,
-  ]);
-  const n = observations.time.length;
-  const dataFrom = n ? observations.time[0] : null;
-  const dataTo = n ? observations.time[n - 1] : null;
-  const provenance = await provenanceOf(series.id, observations, settings, { intervalMs, breaks });
-  let outcome: Pick<InferCreationAttributes<AnalysisSnapshot>, 'summary' | 'curves' | 'chartView' | 'status' | 'error' | 'n'>;
-  let kept: AnalysisState | null | undefined;
-  try {
-    const { result, state, how } = await updateAnalysis({ ...observations, intervalMs, breaks }, settings, previous?.state ?? null, {
-      parallel: options.parallel,
-      incremental,
-      refresh: { ...NULL_REFRESH, points: config().ANALYSIS_NULL_REFRESH_POINTS },
-    });
-    kept = state;
-    provenance.update = { mode: how.mode, reason: how.reason, basedOnSnapshot: how.mode === 'incremental' ? previous!.snapshotId : null };
-    // Through JSON first, so the saved view is exactly the one the stored row's curves would give (NaN → null).
-    const stored = JSON.parse(JSON.stringify({ summary: snapshotSummary(result), curves: curvesOf(result) }));
-    outcome = {
-      summary: stored.summary,
-      curves: stored.curves,
-      chartView: viewFromSnapshot({ settings, ...stored }) as unknown as Record<string, unknown>,
-      status: 'ok',
-      error: null,
-      n: result.n,
-    };
-  } catch (error) {
-    if (!(error instanceof AnalysisInputError)) console.error(`[analysis] series ${series.slug} failed`, error);
-    outcome = {
-      summary: {},
-      curves: null,
-      chartView: null,
-      status: 'error',
-      error:
-        error instanceof AnalysisInputError ? error.message : `The analysis failed unexpectedly: ${error instanceof Error ? error.message : String(error)}`,
-      n,
-    };
-  }
+  const dataVersion = await currentDataVersion(series.id);
+  const [read, previous] = await Promise.all([readRecord(series, settings), incremental ? loadAnalysisState(series.id) : null]);
+  const input = (await currentDataVersion(series.id)) !== dataVersion ? await readRecord(series, settings, dataVersion) : read;
+  const { kept, ...analysis } = await analyseRecord(series, settings, input, dataVersion, started, { parallel: options.parallel, incremental, previous });
   return writeTransaction(async (transaction) => {
     // A claim that lapsed while the engine ran (and another scheduler took) stores nothing: that one analyses it.
     if (options.markAnalysed?.stillClaimed && !(await options.markAnalysed.stillClaimed(transaction))) throw new ClaimLostError(series.slug);
-    const snapshot = await AnalysisSnapshot.create(
-      { seriesId: series.id, settings, ...outcome, dataFrom, dataTo, durationMs: Math.round(performance.now() - started), provenance },
-      { transaction },
-    );
+    const snapshot = await AnalysisSnapshot.create({ seriesId: series.id, ...analysis }, { transaction });
     // A failed analysis leaves the kept state as it was: the next one checks it against the record all the same.
     if (kept !== undefined) await keepAnalysisState(series.id, snapshot.id, kept, transaction);
     if (options.markAnalysed) {

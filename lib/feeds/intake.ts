@@ -15,6 +15,7 @@ import {
   summaryMessage,
   timeReadingOf,
   underNewRunLease,
+  type DuplicatePolicy,
   type IngestOutcome,
 } from '@/lib/intake/pipeline';
 import { parseTime, type TimeFormat } from '@/lib/intake/time-formats';
@@ -48,6 +49,10 @@ export interface FeedIngestRequest {
   fileName?: string | null;
   contentHash?: string | null;
   actor?: { id: number } | null;
+  /** why the file was sent (a reprocessing note), kept with each series' data version */
+  reason?: string | null;
+  /** the file's duplicate policy instead of each series' own (a reprocessing upload) */
+  duplicatePolicy?: DuplicatePolicy | null;
 }
 
 /**
@@ -148,6 +153,8 @@ async function ingestUnderLease(request: FeedIngestRequest, key: string, started
             actorId: request.actor?.id ?? null,
             tokenId: null,
             timeFormat: timeReadingOf(rows, feed.timeFormat),
+            reason: request.reason,
+            duplicatePolicy: request.duplicatePolicy,
           }),
         );
       }

@@ -19,3 +19,6 @@ export const TIME_FORMAT_LABELS: Record<TimeFormat, string> = {
   'age-years-bp': 'Age, years before 1950',
   'age-kyr-bp': 'Age, thousand years before 1950',
 };
+
+/** Longest reason a sender may give with a delivery (a reprocessing note), in characters. */
+export const MAX_REASON_LENGTH = 500;

@@ -12,7 +12,9 @@ import { formatInstant, guessTimeFormat, type TimeFormat } from './time-formats'
 import { enqueueWebhookEvent } from '@/lib/webhooks/outbox';
 import { rejectedRunPayload } from '@/lib/webhooks/payloads';
 import { judgeIncoming } from '@/lib/quality/records';
-import { FLAG_LABELS, type QartodFlag } from '@/lib/quality/flags';
+import { FLAG_LABELS, setterName, type QartodFlag } from '@/lib/quality/flags';
+import type { PointFlags } from '@/lib/quality/run';
+import { recordDataVersion } from './data-versions';
 import { NetcdfFileError } from './netcdf/errors';
 import { netcdfBytes, type NetcdfSource } from './netcdf/format';
 import { collectNetcdfRows } from './netcdf/read';
@@ -39,6 +41,17 @@ export interface IngestRequest {
   mapping?: Partial<IntakeMapping>;
   actor?: { id: number } | null;
   tokenId?: number | null;
+  /** why the data were sent (a reprocessing note); kept with the data version the run makes */
+  reason?: string | null;
+  /** this delivery's duplicate policy instead of the series' (a lead's reprocessing upload replaces stored values) */
+  duplicatePolicy?: DuplicatePolicy | null;
+}
+
+export type DuplicatePolicy = 'reject' | 'replace';
+
+/** Whether a delivery replaces stored values that differ: its own policy when it names one, else the series'. */
+export function replacesStored(series: Pick<Series, 'duplicatePolicy'>, override?: DuplicatePolicy | null): boolean {
+  return (override ?? series.duplicatePolicy) === 'replace';
 }
 
 export interface IngestOutcome {
@@ -58,6 +71,8 @@ export interface IngestOutcome {
   durationMs: number;
   /** How many of the points written carry each QARTOD flag, by its label (e.g. { pass: 98, fail: 2 }). */
   flagged: Record<string, number>;
+  /** the same counts per flag label split by what set the flag (a test's name, `source`, or `none`) */
+  flaggedBy: Record<string, Record<string, number>>;
 }
 
 export function mappingFor(series: Series, overrides: Partial<IntakeMapping> = {}): IntakeMapping {
@@ -125,7 +140,7 @@ export async function previousApplication(seriesId: number, contentHash: string,
  * - Idempotent by content: a body whose hash was already applied to the series is recorded as such and not applied.
  * - Partial by row: bad rows are rejected and reported (line, column, reason) while the good rows are stored; an input
  *   with no usable row is 'rejected'. Same instant and value as stored = duplicate; different value = rejected, or
- *   replaced when the series' duplicate policy is 'replace'. Duplicate instants inside one input with different
+ *   replaced when the duplicate policy is 'replace' (the delivery's own, a lead's reprocessing upload, else the series'). Duplicate instants inside one input with different
  *   values are all rejected, whatever the policy: there is no telling which one is right.
  */
 export async function ingestObservations(request: IngestRequest): Promise<IngestOutcome> {
@@ -185,6 +200,7 @@ export async function finishRun(run: IngestRun, started: number, fields: RunEnd,
     message: fields.message,
     durationMs,
     flagged: fields.flagged ?? {},
+    flaggedBy: fields.flaggedBy ?? {},
   };
 }
 
@@ -214,22 +230,32 @@ export async function storeCollected(
   rows: CollectedRows,
   run: IngestRun,
   started: number,
-  context: { source: IngestSource; fileName?: string | null; actorId: number | null; tokenId: number | null; timeFormat: string },
+  context: {
+    source: IngestSource;
+    fileName?: string | null;
+    actorId: number | null;
+    tokenId: number | null;
+    timeFormat: string;
+    reason?: string | null;
+    duplicatePolicy?: DuplicatePolicy | null;
+  },
 ): Promise<IngestOutcome> {
   const classified = await classifyAgainstStored(series.id, rows, connectionOf(transaction));
-  const replace = series.duplicatePolicy === 'replace';
+  const replace = replacesStored(series, context.duplicatePolicy);
   const quality = await judgeIncoming(transaction, series, rows);
   const { inserted, replaced } = await writeRows(transaction, series.id, rows, classified, replace, run.id, quality);
-  const flagged = flagCountsOfWritten(quality.flag, classified.kind, replace);
+  const { flagged, flaggedBy } = flagCountsOfWritten(quality, classified.kind, replace);
   let duplicates = rows.duplicatesInInput;
   for (let i = 0; i < classified.kind.length; i++) if (classified.kind[i] === ROW_DUPLICATE) duplicates++;
   const conflicts = replace ? [] : conflictRejections(rows, classified);
   const rejectedRows = [...rows.rejectedRows, ...conflicts].sort((a, b) => a.line - b.line).slice(0, 1000);
   const counts = { rowsRead: rows.rowsRead, accepted: inserted, duplicates, replaced, rejected: rows.rejectedCount + conflicts.length };
+  let dataVersion: number | null = null;
   if (inserted + replaced > 0) {
     const now = new Date();
     // The analysis job picks the series up from this mark; set with the data so neither exists without the other.
     await Series.update({ needsAnalysis: true, dataChangedAt: now }, { where: { id: series.id }, transaction });
+    dataVersion = await recordDataVersion(transaction, series.id, { runId: run.id, inserted, replaced, reason: context.reason ?? null });
   }
   await recordAudit(
     {
@@ -237,7 +263,7 @@ export async function storeCollected(
       action: `intake.${context.source}`,
       entity: 'series',
       entityId: series.id,
-      details: { runId: run.id, fileName: context.fileName ?? null, tokenId: context.tokenId, ...counts },
+      details: { runId: run.id, fileName: context.fileName ?? null, tokenId: context.tokenId, dataVersion, reason: context.reason ?? null, ...counts },
     },
     transaction,
   );
@@ -251,7 +277,8 @@ export async function storeCollected(
       notes: rows.notes,
       message: summaryMessage(counts),
       flagged,
-      report: { ...inputReport(rows, context.timeFormat, rejectedRows, counts.rejected), flagged },
+      flaggedBy,
+      report: { ...inputReport(rows, context.timeFormat, rejectedRows, counts.rejected), flagged, flaggedBy, dataVersion, reason: context.reason ?? null },
     },
     transaction,
   );
@@ -322,6 +349,8 @@ async function ingestUnderLease(request: IngestRequest, key: string, started: nu
         actorId: request.actor?.id ?? null,
         tokenId: request.tokenId ?? null,
         timeFormat,
+        reason: request.reason,
+        duplicatePolicy: request.duplicatePolicy,
       });
     });
   } catch (error) {
@@ -336,15 +365,23 @@ async function ingestUnderLease(request: IngestRequest, key: string, started: nu
   }
 }
 
-function flagCountsOfWritten(flag: Uint8Array, kind: Uint8Array, replace: boolean): Record<string, number> {
-  const counts: Record<string, number> = {};
-  for (let i = 0; i < flag.length; i++) {
+/**
+ * How many of the points written carry each flag (by its label), and, per flag, which test set it (`source` for the
+ * file's own flag column, `none` where nothing judged the point): what the run report shows per series.
+ */
+function flagCountsOfWritten(quality: PointFlags, kind: Uint8Array, replace: boolean): Pick<IngestOutcome, 'flagged' | 'flaggedBy'> {
+  const flagged: Record<string, number> = {};
+  const flaggedBy: Record<string, Record<string, number>> = {};
+  for (let i = 0; i < quality.flag.length; i++) {
     if (kind[i] === ROW_NEW || (replace && kind[i] === ROW_CONFLICT)) {
-      const label = FLAG_LABELS[flag[i] as QartodFlag];
-      counts[label] = (counts[label] ?? 0) + 1;
+      const label = FLAG_LABELS[quality.flag[i] as QartodFlag];
+      const setter = setterName(quality.setter[i]) ?? 'none';
+      flagged[label] = (flagged[label] ?? 0) + 1;
+      const bySetter = (flaggedBy[label] ??= {});
+      bySetter[setter] = (bySetter[setter] ?? 0) + 1;
     }
   }
-  return counts;
+  return { flagged, flaggedBy };
 }
 
 function describeLayout(layout: CsvLayout | null) {
@@ -405,10 +442,15 @@ const PREVIEW_ROWS = 20;
  * for a netCDF file (told by its first bytes) its format, the variable read and the others on offer, the first
  * rows as decoded, and the same summary.
  */
-export async function previewObservations(series: Series, csv: string | Uint8Array, overrides: Partial<IntakeMapping> = {}): Promise<IntakePreview> {
+export async function previewObservations(
+  series: Series,
+  csv: string | Uint8Array,
+  overrides: Partial<IntakeMapping> = {},
+  duplicatePolicy: DuplicatePolicy | null = null,
+): Promise<IntakePreview> {
   await db();
   const netcdf = netcdfBytes(csv);
-  if (netcdf) return previewNetcdf(series, netcdf, overrides);
+  if (netcdf) return previewNetcdf(series, netcdf, overrides, duplicatePolicy);
   const sample: PreviewRow[] = [];
   let layout: CsvLayout | null = null;
   const timeIndex = typeof overrides.timeColumn === 'number' ? overrides.timeColumn : 0;
@@ -454,10 +496,15 @@ export async function previewObservations(series: Series, csv: string | Uint8Arr
     if (!(error instanceof CsvFileError)) throw error;
     return { layout: described, netcdf: null, timeFormatGuess, mapping, sample, summary: null, fileError: { code: error.code, message: error.message } };
   }
-  return { layout: described, netcdf: null, timeFormatGuess, mapping, sample, summary: await previewSummary(series, rows), fileError: null };
+  return { layout: described, netcdf: null, timeFormatGuess, mapping, sample, summary: await previewSummary(series, rows, duplicatePolicy), fileError: null };
 }
 
-async function previewNetcdf(series: Series, source: NetcdfSource, overrides: Partial<IntakeMapping>): Promise<IntakePreview> {
+async function previewNetcdf(
+  series: Series,
+  source: NetcdfSource,
+  overrides: Partial<IntakeMapping>,
+  duplicatePolicy: DuplicatePolicy | null,
+): Promise<IntakePreview> {
   const mapping = mappingFor(series, overrides);
   const base = { layout: null, timeFormatGuess: null, mapping };
   let rows: CollectedRows;
@@ -474,11 +521,11 @@ async function previewNetcdf(series: Series, source: NetcdfSource, overrides: Pa
       fields: [formatInstant(rows.t[i]), String(rows.value[i]), ...(rows.sourceFlag ? [String(rows.sourceFlag[i] || '')] : [])],
     });
   }
-  return { ...base, netcdf: rows.netcdf ?? null, sample, summary: await previewSummary(series, rows), fileError: null };
+  return { ...base, netcdf: rows.netcdf ?? null, sample, summary: await previewSummary(series, rows, duplicatePolicy), fileError: null };
 }
 
-/** The validation and comparison summary of collected rows against what the series stores; nothing is written. */
-async function previewSummary(series: Series, rows: CollectedRows): Promise<PreviewSummary> {
+/** The validation and comparison summary of collected rows against what the series stores (replacing conflicts under `duplicatePolicy` or the series' own); nothing is written. */
+async function previewSummary(series: Series, rows: CollectedRows, duplicatePolicy: DuplicatePolicy | null): Promise<PreviewSummary> {
   const sequelize = await db();
   const classified = await sequelize.transaction({ type: Transaction.TYPES.DEFERRED }, (transaction) =>
     classifyAgainstStored(series.id, rows, connectionOf(transaction)),
@@ -491,7 +538,7 @@ async function previewSummary(series: Series, rows: CollectedRows): Promise<Prev
     else if (kind === ROW_DUPLICATE) duplicates++;
     else if (kind === ROW_CONFLICT) conflicts++;
   }
-  const replace = series.duplicatePolicy === 'replace';
+  const replace = replacesStored(series, duplicatePolicy);
   const conflictRows = replace ? [] : conflictRejections(rows, classified);
   return {
     rowsRead: rows.rowsRead,

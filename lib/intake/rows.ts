@@ -485,6 +485,18 @@ export function collectDecodedRows(readings: DecodedReadings, netcdf: NetcdfLayo
 /** Validates pushed JSON points; `line` in reports is the 1-based position in the array. */
 export function collectPushedRows(points: PushedObservation[], format: TimeFormat, zone: string): CollectedRows {
   const collector = new RowCollector(format, zone);
-  points.forEach((point, index) => collector.add(index + 1, point.time, point.value, 'time', 'value'));
+  // Flags are kept as a CSV flag column's are: when any point carries one, the points without one have none (0).
+  collector.hasFlags = points.some((point) => point.flag !== undefined && point.flag !== null);
+  points.forEach((point, index) =>
+    collector.add(
+      index + 1,
+      point.time,
+      point.value ?? '',
+      'time',
+      'value',
+      collector.hasFlags ? (point.flag === undefined || point.flag === null ? '' : String(point.flag)) : undefined,
+      'flag',
+    ),
+  );
   return collector.finish(null, null);
 }

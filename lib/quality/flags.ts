@@ -27,6 +27,18 @@ export const FLAG_LABELS: Record<QartodFlag, string> = {
 export const FLAG_SETTERS = ['source', 'gross-range', 'spike', 'rate-of-change', 'flat-line', 'sampling-interval', 'analyst'] as const;
 export type FlagSetter = (typeof FLAG_SETTERS)[number];
 
+/** What set a flag, in words (the test names as the QARTOD manuals give them); `none`: nothing judged the point. */
+export const SETTER_LABELS: Record<FlagSetter | 'none', string> = {
+  source: 'the source’s own flag',
+  'gross-range': 'gross range test',
+  spike: 'spike test',
+  'rate-of-change': 'rate of change test',
+  'flat-line': 'flat line test',
+  'sampling-interval': 'sampling interval test',
+  analyst: 'an analyst',
+  none: 'no test',
+};
+
 export function setterCode(setter: FlagSetter): number {
   return FLAG_SETTERS.indexOf(setter) + 1;
 }

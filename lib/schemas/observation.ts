@@ -22,10 +22,16 @@ export const observationSchema = z.object({
   }),
 });
 
-/** A pushed JSON point: time as ISO 8601 text or a number in the series' time format, value as a number or numeric text. */
+/**
+ * A pushed JSON point: time as ISO 8601 text or a number in the series' time format, value as a number or numeric
+ * text, and optionally the source's QARTOD flag (1, 2, 3, 4 or 9, as a number or text) as a CSV flag column gives
+ * it; a point flagged 9 (missing) may leave its value null. The flag's scale is checked per point with the other
+ * row checks, so a bad flag rejects its point (line = its position) rather than the whole body.
+ */
 const pushedObservationSchema = z.object({
   time: z.union([z.string().max(100), z.number()]),
-  value: z.union([z.number(), z.string().max(100)]),
+  value: z.union([z.number(), z.string().max(100), z.null()]),
+  flag: z.union([z.number(), z.string().max(20), z.null()]).optional(),
 });
 export const pushedObservationsSchema = z.array(pushedObservationSchema).min(1, 'Send at least one point.').max(2_000_000);
 export type PushedObservation = z.infer<typeof pushedObservationSchema>;

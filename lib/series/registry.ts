@@ -144,6 +144,8 @@ async function loadSeriesDetail(slug: string) {
       n: latest.n,
       dataFrom: latest.dataFrom === null ? null : Number(latest.dataFrom),
       dataTo: latest.dataTo === null ? null : Number(latest.dataTo),
+      /** the data version the analysis read (null when stored before versions were counted) */
+      dataVersion: latest.provenance?.dataVersion ?? null,
       summary: latest.summary,
     },
   };

@@ -9,6 +9,7 @@ const { createSeries } = await import('@/lib/series/registry');
 const { ingestObservations } = await import('@/lib/intake/pipeline');
 const { loadObservations, loadFlaggedObservations } = await import('@/lib/analysis/observations');
 const { rerunQuality, overrideFlags } = await import('@/lib/quality/records');
+const { fetchIngestRun } = await import('@/lib/intake/runs');
 const { runAnalysis, analysisSettingsSchema } = await import('@/lib/engine');
 
 beforeAll(async () => {
@@ -46,12 +47,45 @@ describe('quality flags at intake', () => {
     expect(outcome.rejectedRows[0]).toMatchObject({ line: 7, column: 'do_qc' });
     expect(outcome.notes.join(' ')).toContain('flagged 9 (missing)');
     expect(outcome.flagged).toEqual({ pass: 1, suspect: 1, fail: 1, 'not evaluated': 1 });
+    // The run report says what set each flag: the file's flag column, or nothing for the row without one.
+    expect(outcome.flaggedBy).toEqual({ pass: { source: 1 }, suspect: { source: 1 }, fail: { source: 1 }, 'not evaluated': { none: 1 } });
+    // …and the run-report API (GET /api/ingest-runs/{id}) hands both out with the run.
+    expect((await fetchIngestRun(outcome.runId)).report).toMatchObject({ flagged: outcome.flagged, flaggedBy: outcome.flaggedBy, dataVersion: 1 });
     const stored = await storedFlags(series.id);
     expect(stored.flag).toEqual([1, 3, 4, 2]);
     // 4 never enters the analysis; 3 does by default
     expect(Array.from((await loadObservations(series.id)).value)).toEqual([8.1, 8.2, 8.3]);
     await Series.update({ qc: { suspectInAnalysis: false } }, { where: { id: series.id } });
     expect(Array.from((await loadObservations(series.id)).value)).toEqual([8.1, 8.3]);
+  });
+
+  it('keeps the flags of pushed JSON points as a flag column does (same cases as the CSV above)', async () => {
+    const series = await createSeries({ slug: 'sonde-do-push', name: 'Sonde DO (pushed)' }, null);
+    const outcome = await ingestObservations({
+      series,
+      source: 'push',
+      points: [
+        { time: iso(0), value: 8.1, flag: 1 },
+        { time: iso(1), value: 8.2, flag: '3' },
+        { time: iso(2), value: 12.5, flag: 4 },
+        { time: iso(3), value: null, flag: 9 },
+        { time: iso(4), value: 8.3 },
+        { time: iso(5), value: 8.4, flag: 7 },
+        { time: iso(6), value: null },
+      ],
+    });
+    expect(outcome).toMatchObject({ status: 'succeeded', accepted: 4, rejected: 2 });
+    expect(outcome.rejectedRows.map((r) => [r.line, r.column])).toEqual([
+      [6, 'flag'],
+      [7, 'value'],
+    ]);
+    expect(outcome.notes.join(' ')).toContain('flagged 9 (missing)');
+    expect(outcome.flagged).toEqual({ pass: 1, suspect: 1, fail: 1, 'not evaluated': 1 });
+    expect((await storedFlags(series.id)).flag).toEqual([1, 3, 4, 2]);
+    expect(Array.from((await loadObservations(series.id)).value)).toEqual([8.1, 8.2, 8.3]);
+    // Points without any flag keep the former behaviour: no source flag at all.
+    const plain = await ingestObservations({ series, source: 'push', points: [{ time: iso(7), value: 8.5 }] });
+    expect(plain.flaggedBy).toEqual({ 'not evaluated': { none: 1 } });
   });
 
   it('flags a gross-range failure and a spike 4 and leaves them out of the analysis', async () => {
@@ -71,6 +105,12 @@ describe('quality flags at intake', () => {
     const text = `time,value\n${values.map((v, i) => `${iso(i)},${v}`).join('\n')}\n`;
     const outcome = await ingestObservations({ series, source: 'drop', csv: text });
     expect(outcome.status).toBe('succeeded');
+    // The run report names the test behind each failure: the gross range test for 99, the spike test for the rest.
+    expect(outcome.flaggedBy.fail['gross-range']).toBe(1);
+    expect(outcome.flaggedBy.fail.spike).toBeGreaterThanOrEqual(1);
+    for (const [label, bySetter] of Object.entries(outcome.flaggedBy)) {
+      expect(Object.values(bySetter).reduce((a, b) => a + b, 0)).toBe(outcome.flagged[label]);
+    }
     const stored = await storedFlags(series.id);
     expect(stored.flag[10]).toBe(4);
     expect(stored.flag[20]).toBe(4);

@@ -124,14 +124,22 @@ describe('an analysis records where its numbers came from and can be reproduced 
     }
   }, 180_000);
 
-  it('says so when values in the analysed range were replaced after the analysis', async () => {
+  it('still hands out the analysed rows after reprocessing replaced a value: they are rebuilt at the analysed data version', async () => {
     const series = (await Series.findByPk(seriesId))!;
     await series.update({ duplicatePolicy: 'replace' });
     const at = new Date(START + 500 * DAY).toISOString();
     expect((await ingestObservations({ series, source: 'upload', fileName: 'fix.csv', csv: `time,value\n${at},42\n` })).status).toBe('succeeded');
     const download = await snapshotDataCsv(snapshotId);
+    expect(download.matches).toBe(true);
+    expect(download.csv).not.toMatch(/^# warning:/m);
+    expect(download.csv).not.toContain(`${at},42\n`);
+  });
+
+  it('says so when a flag in the analysed range changed after the analysis without new data (no data version records that)', async () => {
+    await Observation.update({ flag: 4 }, { where: { seriesId, t: START + 450 * DAY } });
+    const download = await snapshotDataCsv(snapshotId);
     expect(download.matches).toBe(false);
-    expect(download.csv).toMatch(/^# warning: values in this range were replaced/m);
+    expect(download.csv).toMatch(/^# warning: values or flags in this range changed after the analysis/m);
   });
 
   it('lists only the runs whose rows were analysed: a run whose only row failed QC (flag 4) is not among them', async () => {

@@ -48,6 +48,8 @@ const EXPECTED: Record<string, Role | 'public' | 'token'> = {
   'GET /api/series/[slug]/observations/flags': 'viewer',
   'GET /api/series/[slug]/observations/versions': 'viewer',
   'POST /api/series/[slug]/qc/rerun': 'lead',
+  'GET /api/series/[slug]/data-versions': 'viewer',
+  'POST /api/series/[slug]/reanalyse': 'lead',
   'GET /api/feeds': 'viewer',
   'POST /api/feeds': 'lead',
   'POST /api/feeds/[slug]/uploads': 'lead',

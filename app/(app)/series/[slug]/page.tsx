@@ -12,6 +12,7 @@ import { LocalTime } from '@/components/LocalTime';
 import { ErrorNote } from '@/components/States';
 import { QualityPanel } from '@/components/workbench/QualityPanel';
 import { QcSettings } from '@/components/quality/QcSettings';
+import { DataVersionsPanel } from '@/components/workbench/DataVersionsPanel';
 import type { QcConfig } from '@/lib/schemas/quality';
 import { Workbench } from '@/components/workbench/Workbench';
 import { requireRole } from '@/lib/auth/guard';
@@ -89,6 +90,7 @@ export default async function SeriesPage({ params }: { params: Promise<{ slug: s
       />
       {canLead ? <WhoHears slug={series.slug} /> : null}
       <QcSettings slug={series.slug} initial={series.qc as QcConfig | null} canEdit={canLead} />
+      <DataVersionsPanel slug={series.slug} timeZone={series.timeZone} canReanalyse={canLead} />
       <BacktestPanel slug={series.slug} timeZone={series.timeZone} canRun={canLead} />
     </section>
   );

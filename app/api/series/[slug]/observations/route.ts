@@ -34,6 +34,12 @@ export const POST = handle<{ slug: string }>(async (request, { params }) => {
   const { slug } = await params;
   const writer = await requireIngestWriter(request, slug);
   const body = await readIntakeBody(request, { allowJson: true });
+  // A station's token must not overrule the series' duplicate policy; reprocessed data come as a lead's upload.
+  if (body.duplicatePolicy) {
+    throw new UnprocessableError('Some fields are not valid.', {
+      duplicatePolicy: ['A push keeps the series’ duplicate policy; send reprocessed data as an upload.'],
+    });
+  }
   const outcome = await ingestObservations({
     series: writer.series,
     source: 'push',
@@ -43,6 +49,7 @@ export const POST = handle<{ slug: string }>(async (request, { params }) => {
     mapping: body.mapping,
     actor: writer.actor,
     tokenId: writer.tokenId,
+    reason: body.reason,
   });
   const rejected = outcome.rejectedRows.map(({ line, column, reason }) => ({ line, column, reason }));
   if (outcome.status === 'failed') throw new ServiceUnavailableError('The points could not be stored just now; nothing was stored. Send them again.');
@@ -58,6 +65,7 @@ export const POST = handle<{ slug: string }>(async (request, { params }) => {
     replaced: outcome.replaced,
     rejected,
     flagged: outcome.flagged,
+    flaggedBy: outcome.flaggedBy,
     message: outcome.message,
   });
 });

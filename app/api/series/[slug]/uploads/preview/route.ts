@@ -11,5 +11,5 @@ export const POST = handle<{ slug: string }>(async (request, { params }) => {
   const { slug } = await params;
   const series = await findSeriesBySlug(slug);
   const body = await readIntakeBody(request, { allowJson: false });
-  return NextResponse.json({ fileName: body.fileName, ...(await previewObservations(series, body.csv!, body.mapping)) });
+  return NextResponse.json({ fileName: body.fileName, ...(await previewObservations(series, body.csv!, body.mapping, body.duplicatePolicy)) });
 });
