@@ -4,6 +4,7 @@ import { cronSetting } from '@/lib/runtime/config';
 import { withLease } from '@/lib/db/leases';
 import { pruneSnapshotCurves, refreshSeriesAnalysis, unjudgedLatestSnapshots } from '@/lib/analysis/snapshot';
 import { evaluateSnapshots } from '@/lib/alerts/evaluate';
+import { refreshSiteAnalyses } from '@/lib/sites/analysis';
 import type { ScheduledJob } from './types';
 
 /** Long enough for a large record with thousands of surrogates; the lease is renewed while the work runs. */
@@ -13,7 +14,8 @@ const LEASE_MS = 10 * 60_000;
  * One analysis cycle: every series marked `needsAnalysis` gets a fresh snapshot, under a per-series lease so two
  * schedulers never analyse one series at once. The flag is cleared only if no data arrived while the engine ran
  * (dataChangedAt unchanged); otherwise the next cycle analyses again. All fresh snapshots, plus any latest
- * snapshot a rule has not judged yet (a crash before evaluation, a rule added since), are then judged together.
+ * snapshot a rule has not judged yet (a crash before evaluation, a rule added since), are then judged together,
+ * and sites with a member newer than their site-level snapshot are analysed again (lib/sites/analysis.ts).
  */
 export async function runAnalysisCycle(): Promise<{ analysed: number; snapshots: AnalysisSnapshot[] }> {
   await db();
@@ -35,6 +37,8 @@ export async function runAnalysisCycle(): Promise<{ analysed: number; snapshots:
   const pending = (await unjudgedLatestSnapshots()).filter((s) => !freshIds.has(s.id));
   const judged = [...fresh, ...pending];
   if (judged.length) await evaluateSnapshots(judged);
+  // Sites whose member series got a new snapshot (this cycle or one that stopped early) get their site-level one.
+  await refreshSiteAnalyses();
   return { analysed: fresh.length, snapshots: fresh };
 }
 

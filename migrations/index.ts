@@ -17,6 +17,7 @@ import * as sites from './0015-sites';
 import * as webhooks from './0017-webhooks';
 import * as periodReports from './0018-period-reports';
 import * as stationData from './0019-station-data';
+import * as siteSnapshots from './0022-site-snapshots';
 
 /**
  * The ordered list of schema changes. Listed explicitly (not globbed) so the same list works in the Next.js server
@@ -39,6 +40,7 @@ const MIGRATIONS = [
   { name: '0017-webhooks', ...webhooks },
   { name: '0018-period-reports', ...periodReports },
   { name: '0019-station-data', ...stationData },
+  { name: '0022-site-snapshots', ...siteSnapshots },
 ];
 
 async function migrator(): Promise<Umzug<QueryInterface>> {

@@ -28,6 +28,7 @@ import { WebhookEndpoint } from './WebhookEndpoint';
 import { WebhookAttempt, WebhookDelivery } from './WebhookDelivery';
 import { ReportSchedule } from './ReportSchedule';
 import { Feed } from './Feed';
+import { SiteSnapshot } from './SiteSnapshot';
 
 const initialised = new WeakSet<Sequelize>();
 
@@ -73,6 +74,7 @@ function associate(): void {
   WebhookEndpoint.hasMany(WebhookDelivery, { foreignKey: 'endpointId', as: 'deliveries' });
   WebhookDelivery.belongsTo(WebhookEndpoint, { foreignKey: 'endpointId', as: 'endpoint' });
   WebhookDelivery.hasMany(WebhookAttempt, { foreignKey: 'deliveryId', as: 'attemptLog' });
+  Site.hasMany(SiteSnapshot, { foreignKey: 'siteId', as: 'snapshots' });
 }
 
 const MODELS = [
@@ -106,6 +108,7 @@ const MODELS = [
   WebhookAttempt,
   ReportSchedule,
   Feed,
+  SiteSnapshot,
 ];
 
 /** Binds the models to this process's one Sequelize instance (idempotent) and returns it once it is ready. */
@@ -150,6 +153,7 @@ export {
   WebhookAttempt,
   ReportSchedule,
   Feed,
+  SiteSnapshot,
 };
 /**
  * `writeTransaction` of models/db.ts with the models bound first: a web worker's first request may be a write
