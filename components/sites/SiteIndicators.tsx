@@ -69,7 +69,7 @@ export function SiteIndicators({ slug, timeZone, initial }: { slug: string; time
       </div>
     );
   const { summary } = view;
-  const stride = summary.evaluatedEvery > 1 ? `, every ${summary.evaluatedEvery}th window` : '';
+  const stride = summary.evaluatedEvery > 1 ? `, one window in ${summary.evaluatedEvery} evaluated` : '';
   return (
     <div className="space-y-3" data-testid="site-indicators">
       <p className="text-sm text-ink-soft">
