@@ -55,6 +55,8 @@ describe('site-level indicators, the restoring-rate band and the stride setting 
     const settings = { ...detail.settings, indicators: [...detail.settings.indicators, 'restoring-rate'], maxEvaluatedWindows: 60 };
     const saved = await lead.json(`/api/series/${SERIES}`, 'PATCH', { settings });
     expect(saved.status).toBe(200);
+    // which charts the series page shows is the reader's choice: the lead asks for the restoring rate's
+    expect((await lead.json('/api/account/preferences', 'PUT', { seriesCharts: ['record', 'restoring-rate'] })).status).toBe(200);
     await page.goto(`${app.baseUrl}/series/${SERIES}`);
     await expect
       .poll(
