@@ -176,8 +176,8 @@ export function AnalysisCharts({
                   },
                   ...(band
                     ? ([
-                        { key: band.upper, label: `+${SE_BAND_Z} SE`, color: 'ink-faint', width: 1, dashed: true, sparse },
-                        { key: band.lower, label: `−${SE_BAND_Z} SE`, color: 'ink-faint', width: 1, dashed: true, sparse },
+                        { key: band.upper, label: `+${SE_BAND_Z} SE`, color: 'ink-faint', width: 1, dashed: true, sparse, edge: true },
+                        { key: band.lower, label: `−${SE_BAND_Z} SE`, color: 'ink-faint', width: 1, dashed: true, sparse, edge: true },
                       ] as const)
                     : []),
                 ]}
