@@ -80,7 +80,8 @@ export function SiteIndicators({ slug, timeZone, initial }: { slug: string; time
             from <LocalTime t={view.dataFrom} timeZone={timeZone} /> to <LocalTime t={view.dataTo} timeZone={timeZone} />
           </>
         ) : null}
-        , windows of {summary.windowPoints} instants{stride}. Computed <LocalTime t={view.computedAt!} timeZone={timeZone} withZone />.
+        , each detrended as its own settings say; windows of {summary.windowPoints} instants{stride}. Computed{' '}
+        <LocalTime t={view.computedAt!} timeZone={timeZone} withZone />.
       </p>
       {leftOut}
       <DataTable

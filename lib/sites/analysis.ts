@@ -7,7 +7,8 @@ import { cachedRead } from '@/lib/db/read-cache';
 import { withLease } from '@/lib/db/leases';
 import { commonGrid } from '@/lib/engine/common-grid';
 import { AnalysisInputError } from '@/lib/engine/errors';
-import { SITE_INDICATORS, runSiteAnalysis, type SiteIndicatorName } from '@/lib/engine/site';
+import { analysisSettingsSchema } from '@/lib/engine/settings';
+import { SITE_INDICATORS, runSiteAnalysis, type ColumnDetrending, type SiteIndicatorName } from '@/lib/engine/site';
 import { seriesSettingsSchema } from '@/lib/schemas/series';
 import type { SiteAnalysisSummary, SiteAnalysisView, SiteCurves, SiteMember } from './analysis-shape';
 import { findSiteBySlug } from './registry';
@@ -23,8 +24,8 @@ export const SITE_SNAPSHOTS_KEPT = 20;
 const LEASE_MS = 10 * 60_000;
 
 /**
- * The settings of every site-level analysis: the live defaults a new series gets (window half the stretch,
- * bandwidth a tenth, 199 surrogates), with a span of SITE_SPAN_POINTS grid instants.
+ * The settings of every site-level analysis: the live defaults a new series gets (window half the stretch, 199
+ * surrogates), with a span of SITE_SPAN_POINTS grid instants; each series is detrended as its own settings say.
  */
 export function siteAnalysisSettings() {
   return seriesSettingsSchema.parse({ span: `${SITE_SPAN_POINTS} points` });
@@ -100,6 +101,10 @@ export async function refreshSiteAnalysis(siteId: number, basis: string): Promis
   );
   const grid = commonGrid(records, SITE_SPAN_POINTS);
   const used = candidates.map((c) => memberOf(c.series));
+  const detrending: ColumnDetrending[] = candidates.map((c) => {
+    const own = analysisSettingsSchema.parse(c.series.settings ?? {});
+    return { detrend: own.detrend, bandwidth: own.bandwidth, movingAverageWidth: own.movingAverageWidth };
+  });
   const n = grid.time.length;
   const dataFrom = n ? grid.time[0] : null;
   const dataTo = n ? grid.time[n - 1] : null;
@@ -109,7 +114,7 @@ export async function refreshSiteAnalysis(siteId: number, basis: string): Promis
     if (used.length < 2)
       throw new AnalysisInputError(`site-level indicators need at least two series with a declared interval and readings; this site has ${used.length}`);
     if (n === 0) throw new AnalysisInputError('the series of this site have no stretch of time in common');
-    const result = runSiteAnalysis({ values: grid.values, interval: grid.interval }, settings);
+    const result = runSiteAnalysis({ values: grid.values, interval: grid.interval, timeKind: 'utc-ms', detrending }, settings);
     // A differenced residual is one shorter: its indicators line up with the grid's last n − offset instants.
     const time = grid.time.subarray(n - result.n);
     const { indices } = thinnedIndices(result.n, CHART_POINTS);
@@ -133,7 +138,7 @@ export async function refreshSiteAnalysis(siteId: number, basis: string): Promis
     snapshot = await SiteSnapshot.create({
       siteId,
       basis,
-      settings,
+      settings: { ...settings, detrending },
       members,
       summary,
       curves: { time: indices.map((i) => time[i]), indicators },

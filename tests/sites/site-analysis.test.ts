@@ -12,6 +12,7 @@ const { runAnalysisCycle } = await import('@/jobs/analysis');
 const { dueSites, fetchSiteAnalysis, siteAnalysisSettings } = await import('@/lib/sites/analysis');
 const { commonGrid } = await import('@/lib/engine/common-grid');
 const { runSiteAnalysis } = await import('@/lib/engine/site');
+const { detrend } = await import('@/lib/engine/detrend');
 const { simulateAr1 } = await import('@/lib/demo/models');
 
 const HOUR = 3_600_000;
@@ -70,9 +71,16 @@ describe('site-level snapshots made by the scheduler', () => {
     const own1 = simulateAr1({ n, phi: 0.3, sigma: 0.5, seed: 32 });
     const own2 = simulateAr1({ n, phi: 0.3, sigma: 0.5, seed: 33 });
     const hours = Array.from({ length: n }, (_, i) => T0 + i * HOUR);
+    // each detrended its own way: the site analysis follows each series' settings
     const settings = { surrogates: 19, window: 0.25 };
-    const upper = await createSeries({ slug: 'upper', name: 'Upper sensor', intervalMs: HOUR, siteId: site.id, settings }, null);
-    const lower = await createSeries({ slug: 'lower', name: 'Lower sensor', intervalMs: 2 * HOUR, siteId: site.id, settings }, null);
+    const upper = await createSeries(
+      { slug: 'upper', name: 'Upper sensor', intervalMs: HOUR, siteId: site.id, settings: { ...settings, detrend: 'linear' } },
+      null,
+    );
+    const lower = await createSeries(
+      { slug: 'lower', name: 'Lower sensor', intervalMs: 2 * HOUR, siteId: site.id, settings: { ...settings, detrend: 'gaussian', bandwidth: 0.2 } },
+      null,
+    );
     await createSeries({ slug: 'spot', name: 'Spot samples', intervalMs: null, siteId: site.id }, null);
     const upperValues = Float64Array.from(common, (c, i) => 10 + c + own1[i]);
     const lowerValues = Float64Array.from(common, (c, i) => 4 + 0.5 * c + own2[i]);
@@ -98,12 +106,15 @@ describe('site-level snapshots made by the scheduler', () => {
     expect(first[0].status).toBe('ok');
     expect(await dueSites()).toEqual([]);
 
-    // Expected: the engine's site analysis (checked against numpy in tests/engine/site.test.ts) on the two records
-    // put on the two-hourly grid by hand: the upper sensor's own readings at even hours, the lower one as stored.
-    const expected = runSiteAnalysis(
-      { values: [upperValues.filter((_, i) => i % 2 === 0), lowerValues.filter((_, i) => i % 2 === 0)], interval: 2 * HOUR },
-      siteAnalysisSettings(),
-    );
+    // Expected: the engine's site analysis (checked against numpy in tests/engine/site.test.ts) of the two records
+    // put on the two-hourly grid by hand (the upper sensor's own readings at even hours, the lower one as stored),
+    // each detrended by hand as its settings say (linear; gaussian with a bandwidth of 0.2 × 300 instants).
+    const onGrid = [upperValues.filter((_, i) => i % 2 === 0), lowerValues.filter((_, i) => i % 2 === 0)];
+    const residuals = [
+      detrend(onGrid[0], 'linear', { bandwidthPoints: 60, movingAverageWidth: 11 }).residual,
+      detrend(onGrid[1], 'gaussian', { bandwidthPoints: 60, movingAverageWidth: 11 }).residual,
+    ];
+    const expected = runSiteAnalysis({ values: residuals }, { ...siteAnalysisSettings(), detrend: 'none' });
     const view = await fetchSiteAnalysis(siteSlug);
     expect(view.state).toBe('ok');
     expect(view.members.used.map((m) => m.slug)).toEqual(['upper', 'lower']);
