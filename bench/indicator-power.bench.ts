@@ -7,7 +7,9 @@
  * state neither makes the variance of the shocks depend on the state (what ch looks for) nor visits a second state
  * (what bimodality and the wells look for); they answer state-dependent noise and flickering, which this model does
  * not have. Measured (2 cores, seeds as below): variance, sd 40/40; cv 35/40; ac1 32/40; restoring-rate 31/40;
- * spectral-ratio 19/40; dfa 15/40; ch 1/40; bimodality and potential-wells 0/40.
+ * spectral-ratio 19/40; dfa 15/40; ch 1/40; bimodality and potential-wells 0/40. Site-level, three sensors reading the
+ * same fold approach (see `site`), 99 phase-coherent surrogates: pc1-variance 37/40, pc1-share 34/40, maf-ac1 24/40;
+ * with a stationary driver 1, 2 and 2 false alarms of 40 (the nominal level is tested in tests/engine/site.test.ts).
  */
 import { runAnalysis } from '../lib/engine/analyze';
 import { INDICATORS, type IndicatorName } from '../lib/engine/indicators';
