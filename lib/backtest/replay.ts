@@ -308,13 +308,7 @@ export function replayEvidence(
   const { ranks, size } = denseRanks(stream);
   const n = stream.length;
   const kendall = new IncrementalKendall(Math.max(1, size), (g.spanValues ?? n) + 1);
-  const idx: number[] = [];
-  const tau: number[] = [];
-  const p: number[] = [];
-  const level: number[] = [];
-  const count: number[] = [];
-  const cover: number[] = [];
-  const stuck: number[] = [];
+  const instants = evidenceCollector(g.offset, covered, inFlatRun);
   // residual indices of the values held, oldest first, so the trailing span can drop what falls out of it
   const held = new Int32Array(n);
   let head = 0;
@@ -333,25 +327,46 @@ export function replayEvidence(
     const k = e + g.offset;
     if ((k + 1) % g.every !== 0 && e !== n - 1) continue;
     if (kendall.length < g.warmup) continue;
-    const r = kendall.result();
-    idx.push(k);
-    tau.push(r.tau);
-    p.push(r.p);
-    level.push(stream[e]);
-    count.push(r.n);
-    cover.push(covered === null ? 1 : covered[e]);
-    stuck.push(inFlatRun === null ? 0 : inFlatRun[e]);
+    instants.add(e, kendall.result(), stream[e]);
   }
-  const index = Int32Array.from(idx);
+  return instants.evidence(time);
+}
+
+/**
+ * Gathers the judged instants of a replay, by residual index e (record index e + offset), into an Evidence: the
+ * trend's tau, p and count, the newest window's value, and whether that window is judged (`covered`, `inFlatRun`
+ * at e, when given). O(1) per instant.
+ */
+function evidenceCollector(offset: number, covered: Uint8Array | null, inFlatRun: Uint8Array | null) {
+  const idx: number[] = [];
+  const tau: number[] = [];
+  const p: number[] = [];
+  const level: number[] = [];
+  const count: number[] = [];
+  const cover: number[] = [];
+  const stuck: number[] = [];
   return {
-    index,
-    time: Float64Array.from(idx, (k) => time[k]),
-    tau: Float64Array.from(tau),
-    p: Float64Array.from(p),
-    level: Float64Array.from(level),
-    count: Int32Array.from(count),
-    ...(covered === null ? {} : { covered: Uint8Array.from(cover) }),
-    ...(inFlatRun === null ? {} : { inFlatRun: Uint8Array.from(stuck) }),
+    add(e: number, trend: { tau: number; p: number; n: number }, latest: number): void {
+      idx.push(e + offset);
+      tau.push(trend.tau);
+      p.push(trend.p);
+      level.push(latest);
+      count.push(trend.n);
+      cover.push(covered === null ? 1 : covered[e]);
+      stuck.push(inFlatRun === null ? 0 : inFlatRun[e]);
+    },
+    evidence(time: Float64Array): Evidence {
+      return {
+        index: Int32Array.from(idx),
+        time: Float64Array.from(idx, (k) => time[k]),
+        tau: Float64Array.from(tau),
+        p: Float64Array.from(p),
+        level: Float64Array.from(level),
+        count: Int32Array.from(count),
+        ...(covered === null ? {} : { covered: Uint8Array.from(cover) }),
+        ...(inFlatRun === null ? {} : { inFlatRun: Uint8Array.from(stuck) }),
+      };
+    },
   };
 }
 
@@ -386,13 +401,7 @@ export function stridedEvidence(
     }
     return values[end];
   };
-  const idx: number[] = [];
-  const tau: number[] = [];
-  const p: number[] = [];
-  const level: number[] = [];
-  const count: number[] = [];
-  const cover: number[] = [];
-  const stuck: number[] = [];
+  const instants = evidenceCollector(g.offset, covered, inFlatRun);
   for (let e = g.w - 1; e < n; e++) {
     const k = e + g.offset;
     if ((k + 1) % g.every !== 0 && e !== n - 1) continue;
@@ -401,25 +410,9 @@ export function stridedEvidence(
     const stride = evaluationStride(windows, g.maxEvaluatedWindows);
     const picked = new Float64Array(Math.ceil(windows / stride));
     for (let end = e, slot = picked.length - 1; slot >= 0; end -= stride, slot--) picked[slot] = windowValue(end);
-    const r = indicatorTrend(picked);
-    idx.push(k);
-    tau.push(r.tau);
-    p.push(r.p);
-    level.push(picked[picked.length - 1]);
-    count.push(r.n);
-    cover.push(covered === null ? 1 : covered[e]);
-    stuck.push(inFlatRun === null ? 0 : inFlatRun[e]);
+    instants.add(e, indicatorTrend(picked), picked[picked.length - 1]);
   }
-  return {
-    index: Int32Array.from(idx),
-    time: Float64Array.from(idx, (k) => time[k]),
-    tau: Float64Array.from(tau),
-    p: Float64Array.from(p),
-    level: Float64Array.from(level),
-    count: Int32Array.from(count),
-    ...(covered === null ? {} : { covered: Uint8Array.from(cover) }),
-    ...(inFlatRun === null ? {} : { inFlatRun: Uint8Array.from(stuck) }),
-  };
+  return instants.evidence(time);
 }
 
 /**
