@@ -12,6 +12,7 @@ import { DEFAULT_INDICATORS, INDICATORS, INDICATOR_NAMES } from '../lib/engine/i
 import { analysisSettingsSchema, MAX_EVALUATED_WINDOWS } from '../lib/engine/settings';
 import { computeSurrogateTaus } from '../lib/engine/surrogate-pool';
 import { prepareSurrogateJob } from '../lib/engine/surrogates';
+import { SITE_INDICATORS, runSiteAnalysis } from '../lib/engine/site';
 import type { BenchRow } from './index';
 
 export const title = 'engine';
@@ -133,6 +134,7 @@ async function eachIndicator(): Promise<BenchRow[]> {
       });
     }
   }
+  rows.push(...(await siteIndicators()));
   const n = 1e6;
   const x = series(n);
   const time = Float64Array.from({ length: n }, (_, i) => i);
@@ -157,5 +159,32 @@ async function eachIndicator(): Promise<BenchRow[]> {
     pass: constant < 2000,
     note: constantCost.join(', '),
   });
+  return rows;
+}
+
+/** Sensors of one site in the site-level bench rows. */
+const SITE_SERIES = 3;
+
+/**
+ * The site-level indicators (pc1-variance, pc1-share, maf-ac1 together: one eigen-decomposition serves all three)
+ * over three series at n = 1e5 and 1e6 on one grid: each column detrended (gaussian, bandwidth 0.1), windows of
+ * 0.5, evaluated at the default stride, no surrogates.
+ */
+async function siteIndicators(): Promise<BenchRow[]> {
+  const rows: BenchRow[] = [];
+  const settings = analysisSettingsSchema.parse({ window: 0.5, bandwidth: 0.1, detrend: 'gaussian', surrogates: 0 });
+  for (const n of [1e5, 1e6]) {
+    const values = Array.from({ length: SITE_SERIES }, (_, k) => series(n, k + 1));
+    const t = await timeIt(1, () => runSiteAnalysis({ values }, settings));
+    const w = Math.round(0.5 * n);
+    const stride = evaluationStride(n - w + 1, MAX_EVALUATED_WINDOWS);
+    rows.push({
+      case: `site indicators ${SITE_INDICATORS.map((d) => d.name).join(', ')} (${SITE_SERIES} series, window 0.5)`,
+      n,
+      value: t,
+      unit: 'ms',
+      note: `${Math.floor((n - w) / stride) + 1} windows evaluated (every ${stride}th), O(w·k² + k³) each, plus k detrendings`,
+    });
+  }
   return rows;
 }

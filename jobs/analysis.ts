@@ -4,6 +4,7 @@ import { config, cronSetting } from '@/lib/runtime/config';
 import { PROCESS_HOLDER, withLease } from '@/lib/db/leases';
 import { ClaimLostError, pruneSnapshotCurves, refreshSeriesAnalysis, unjudgedLatestSnapshots } from '@/lib/analysis/snapshot';
 import { evaluateSnapshots } from '@/lib/alerts/evaluate';
+import { refreshSiteAnalyses } from '@/lib/sites/analysis';
 import type { ScheduledJob } from './types';
 
 /**
@@ -13,7 +14,8 @@ import type { ScheduledJob } from './types';
  * skipped if another scheduler analysed it meanwhile. The flag is cleared in the snapshot's own transaction, and only
  * if no data arrived while the engine ran (dataChangedAt unchanged); otherwise the next cycle analyses again. All
  * fresh snapshots, plus any latest snapshot a rule has not judged yet (a crash before evaluation, a rule added
- * since, another scheduler's), are then judged together.
+ * since, another scheduler's), are then judged together. Sites with a member
+ * newer than their site-level snapshot are then analysed again (lib/sites/analysis.ts).
  */
 export async function runAnalysisCycle(): Promise<{ analysed: number; snapshots: AnalysisSnapshot[] }> {
   await db();
@@ -54,6 +56,8 @@ export async function runAnalysisCycle(): Promise<{ analysed: number; snapshots:
   const pending = (await unjudgedLatestSnapshots()).filter((s) => !freshIds.has(s.id));
   const judged = [...fresh, ...pending];
   if (judged.length) await evaluateSnapshots(judged);
+  // Sites whose member series got a new snapshot (this cycle or one that stopped early) get their site-level one.
+  await refreshSiteAnalyses();
   return { analysed: fresh.length, snapshots: fresh };
 }
 

@@ -19,6 +19,7 @@ import * as periodReports from './0018-period-reports';
 import * as stationData from './0019-station-data';
 import * as changeReasons from './0020-change-reasons';
 import * as dataVersions from './0021-data-versions';
+import * as siteSnapshots from './0022-site-snapshots';
 import * as analysisState from './0023-analysis-state';
 
 /**
@@ -44,6 +45,7 @@ const MIGRATIONS = [
   { name: '0019-station-data', ...stationData },
   { name: '0020-change-reasons', ...changeReasons },
   { name: '0021-data-versions', ...dataVersions },
+  { name: '0022-site-snapshots', ...siteSnapshots },
   { name: '0023-analysis-state', ...analysisState },
 ];
 

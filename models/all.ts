@@ -32,3 +32,4 @@ export { ReportSchedule } from './ReportSchedule';
 export { Feed } from './Feed';
 export { SeriesAnalysisState } from './SeriesAnalysisState';
 export { Reanalysis } from './Reanalysis';
+export { SiteSnapshot } from './SiteSnapshot';

@@ -17,6 +17,8 @@ export interface LineSpec {
   width?: number;
   /** an indicator computed at every k-th window only: its evaluations are joined and marked, gaps are not breaks */
   sparse?: boolean;
+  /** the edge of an uncertainty band: joined like its indicator, without marks at its points */
+  edge?: boolean;
 }
 
 export interface TimeChartProps {
@@ -265,7 +267,7 @@ export function TimeChart({
               stroke={colours[line.color]}
               strokeWidth={line.width ?? 1.5}
               strokeDasharray={line.dashed ? '6 3' : undefined}
-              dot={line.sparse ? { r: 2 } : false}
+              dot={line.sparse && !line.edge ? { r: 2 } : false}
               isAnimationActive={false}
               connectNulls={line.sparse ?? false}
             />

@@ -8,6 +8,9 @@ import { ErrorNote } from '@/components/States';
 import { Button } from '@/components/ui/Button';
 import { CONTROL, Field } from '@/components/ui/Field';
 import { ReasonField, reasonBody } from '@/components/ui/ReasonField';
+import { INDICATORS } from '@/lib/engine/indicators';
+import { MAX_EVALUATED_WINDOWS } from '@/lib/engine/settings';
+import { indicatorLabel } from '@/lib/display/analysis-labels';
 import { TIME_FORMAT_LABELS } from '@/lib/intake/choices';
 import { LIVE_SETTINGS_DEFAULTS, TIME_FORMATS, suggestSlug } from '@/lib/schemas/series';
 import type { SeriesRecord } from '@/lib/series/registry';
@@ -29,8 +32,16 @@ const column = (text: string) => (/^\d+$/.test(text.trim()) ? Number(text.trim()
 /** An extent box: a number is a fraction of the analysed stretch, else "<n> points" or an ISO 8601 duration. */
 const extent = (text: string) => (text.trim() !== '' && Number.isFinite(Number(text)) ? Number(text) : text.trim());
 
+/** What a setting the form offers is when a series has not set it: the live defaults, else the engine's. */
+const FORM_DEFAULTS = { ...LIVE_SETTINGS_DEFAULTS, maxEvaluatedWindows: MAX_EVALUATED_WINDOWS };
+
+/** The indicators computed from each window's residuals, which the stride setting thins. */
+const COSTLY_INDICATORS = INDICATORS.filter((d) => d.kind === 'window')
+  .map((d) => indicatorLabel(d.name))
+  .join(', ');
+
 /** The analysis settings the form offers, each with what its default means. The rest keep their stored values. */
-const SETTINGS_HELP: { key: 'window' | 'bandwidth' | 'span' | 'surrogates' | 'minCoverage'; label: string; help: string }[] = [
+const SETTINGS_HELP: { key: 'window' | 'bandwidth' | 'span' | 'surrogates' | 'minCoverage' | 'maxEvaluatedWindows'; label: string; help: string }[] = [
   {
     key: 'span',
     label: 'Span analysed',
@@ -55,6 +66,11 @@ const SETTINGS_HELP: { key: 'window' | 'bandwidth' | 'span' | 'surrogates' | 'mi
     key: 'minCoverage',
     label: 'Least coverage of a window',
     help: `Default ${LIVE_SETTINGS_DEFAULTS.minCoverage}: windows with less than 80 % observed (not filled) points are not judged.`,
+  },
+  {
+    key: 'maxEvaluatedWindows',
+    label: 'Most windows per costly indicator',
+    help: `Default ${MAX_EVALUATED_WINDOWS} (10 to 1,000,000): ${COSTLY_INDICATORS} are computed at no more than this many evenly spaced windows (always the latest), and their Kendall tau is taken over those. More windows cost more time per analysis; backtests replay at the same spacing.`,
   },
 ];
 
@@ -100,9 +116,10 @@ export function SeriesForm({ sites, series, initialSiteId = null }: SeriesFormPr
     variable: series?.csvMapping.variable ?? '',
     duplicatePolicy: series?.duplicatePolicy ?? 'reject',
     // A stored null (a span of the whole record) shows as an empty box, and is sent back as null.
-    ...(Object.fromEntries(
-      SETTINGS_HELP.map(({ key }) => [key, key in settings ? String(settings[key] ?? '') : String(LIVE_SETTINGS_DEFAULTS[key])]),
-    ) as Record<(typeof SETTINGS_HELP)[number]['key'], string>),
+    ...(Object.fromEntries(SETTINGS_HELP.map(({ key }) => [key, key in settings ? String(settings[key] ?? '') : String(FORM_DEFAULTS[key])])) as Record<
+      (typeof SETTINGS_HELP)[number]['key'],
+      string
+    >),
   }));
   const [form, setForm] = useState(initialForm);
   const [reason, setReason] = useState('');
@@ -146,6 +163,7 @@ export function SeriesForm({ sites, series, initialSiteId = null }: SeriesFormPr
           bandwidth: extent(form.bandwidth),
           surrogates: Number(form.surrogates),
           minCoverage: Number(form.minCoverage),
+          maxEvaluatedWindows: Number(form.maxEvaluatedWindows),
         },
       };
       return series

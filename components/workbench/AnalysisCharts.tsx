@@ -6,7 +6,8 @@ import { api } from '@/components/api';
 import { FLAG_SHAPES, type FlaggedPoint } from '@/lib/quality/flags';
 import { ChartFrame } from '@/components/charts/ChartFrame';
 import { TimeChart } from '@/components/charts/TimeChart';
-import { chartRows } from '@/lib/analysis/chart-rows';
+import { bandKeys, chartRows } from '@/lib/analysis/chart-rows';
+import { SE_BAND_Z } from '@/lib/analysis/curves';
 import type { AnalysisView } from '@/lib/analysis/view';
 import type { SeriesChart } from '@/lib/schemas/account';
 import { formatP } from '@/lib/display/format';
@@ -142,13 +143,24 @@ export function AnalysisCharts({
             </ChartFrame>
           );
         }
+        const sparse = (view.curves.evaluatedEvery?.[key] ?? 1) > 1;
+        const band = view.curves.bands?.[key] ? bandKeys(key) : null;
         return (
           <div key={key} id={idPrefix ? undefined : `chart-${key}`}>
             <ChartFrame
               title={`${indicatorLabel(key, 'title')} in a rolling window`}
               fileName={`${base}-${key}`}
               testId={`chart-${key}`}
-              legend={<span data-testid={`trend-${key}`}>{trendLegend(view, key)}</span>}
+              legend={
+                <>
+                  <span data-testid={`trend-${key}`}>{trendLegend(view, key)}</span>
+                  {band ? (
+                    <span className="block" data-testid={`band-${key}`}>
+                      {`Dashed lines: value ± ${SE_BAND_Z} standard errors of each window's estimate (a 95 % interval, normal approximation).`}
+                    </span>
+                  ) : null}
+                </>
+              }
             >
               <TimeChart
                 {...common}
@@ -157,11 +169,17 @@ export function AnalysisCharts({
                 lines={[
                   {
                     key,
-                    label: `${indicatorLabel(key)} (window of ${view.windowPoints} points${(view.curves.evaluatedEvery?.[key] ?? 1) > 1 ? `, every ${view.curves.evaluatedEvery![key]}th window` : ''})`,
+                    label: `${indicatorLabel(key)} (window of ${view.windowPoints} points${sparse ? `, every ${view.curves.evaluatedEvery![key]}th window` : ''})`,
                     color: 'tide',
                     width: 2,
-                    sparse: (view.curves.evaluatedEvery?.[key] ?? 1) > 1,
+                    sparse,
                   },
+                  ...(band
+                    ? ([
+                        { key: band.upper, label: `+${SE_BAND_Z} SE`, color: 'ink-faint', width: 1, dashed: true, sparse, edge: true },
+                        { key: band.lower, label: `−${SE_BAND_Z} SE`, color: 'ink-faint', width: 1, dashed: true, sparse, edge: true },
+                      ] as const)
+                    : []),
                 ]}
               />
             </ChartFrame>

@@ -177,6 +177,23 @@ export function TuningPanel({ draft, onChange, disabled }: { draft: AnalysisSett
           The live preview uses at most {PREVIEW_MAX_SURROGATES}; saved settings use the full number.
         </span>
       </label>
+      <label className="block text-sm font-medium">
+        Most windows per costly indicator
+        <input
+          type="number"
+          min={10}
+          max={1_000_000}
+          step={1}
+          value={draft.maxEvaluatedWindows}
+          className={field}
+          onChange={(e) => set('maxEvaluatedWindows', Math.min(1_000_000, Math.max(10, Math.round(Number(e.target.value) || 10))))}
+          data-testid="max-evaluated-windows-input"
+        />
+        <span className="mt-1 block text-xs font-normal text-ink-soft">
+          Indicators computed from each window&apos;s residuals (restoring rate, spectral ratio and the others beyond the moments) are evaluated at no more than
+          this many evenly spaced windows, always the latest; their Kendall tau is taken over those.
+        </span>
+      </label>
       <label className="flex items-center gap-2 text-sm">
         <input
           type="checkbox"

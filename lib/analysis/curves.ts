@@ -21,10 +21,24 @@ export interface SnapshotCurves {
    * the latest value computed in the thinned stretch each stands for. Absent on snapshots stored before.
    */
   evaluatedEvery?: Record<string, number>;
+  /**
+   * Indicators that carry a standard error (a `standardError` companion, e.g. the restoring rate): the value
+   * ± SE_BAND_Z·SE at each kept point, the chart's uncertainty band. Absent on snapshots stored before.
+   */
+  bands?: Record<string, { lower: (number | null)[]; upper: (number | null)[] }>;
   /** Surrogate taus per indicator, for the null-distribution histogram. */
   surrogateTaus: Record<string, number[]>;
   sensitivity: AnalysisResult['sensitivity'];
 }
+
+/**
+ * Half-width of the drawn standard-error band in standard errors: ±1.96·SE, the normal 95 % interval of each
+ * window's estimate (common practice; charts say so in their legend).
+ */
+export const SE_BAND_Z = 1.96;
+
+/** The companion that makes an indicator's band: its per-window standard error. */
+const STANDARD_ERROR = 'standardError';
 
 function finite(v: number): number | null {
   return Number.isFinite(v) ? v : null;
@@ -79,6 +93,16 @@ export function curvesOf(result: AnalysisResult, max = MAX_CURVE_POINTS): Snapsh
     if (every > 1) evaluatedEvery[name] = every;
     indicators[name] = thinIndicator(values!, indices, every);
   }
+  const bands: NonNullable<SnapshotCurves['bands']> = {};
+  for (const [name, byName] of Object.entries(result.companions)) {
+    const se = byName?.[STANDARD_ERROR];
+    const values = result.indicators[name as keyof typeof result.indicators];
+    if (!se || !values) continue;
+    const every = result.evaluatedEvery[name as keyof typeof result.evaluatedEvery] ?? 1;
+    // Both edges are finite exactly where value and SE are, so a sparse indicator's edges come from the same window.
+    const edge = (sign: number) => Array.from(values, (v, i) => (v === null || se[i] === null ? Number.NaN : v + sign * SE_BAND_Z * se[i]!));
+    bands[name] = { lower: thinIndicator(edge(-1), indices, every), upper: thinIndicator(edge(1), indices, every) };
+  }
   const surrogateTaus: SnapshotCurves['surrogateTaus'] = {};
   for (const [name, sig] of Object.entries(result.significance)) surrogateTaus[name] = sig!.taus;
   return {
@@ -89,6 +113,7 @@ export function curvesOf(result: AnalysisResult, max = MAX_CURVE_POINTS): Snapsh
     residual: pick(result.series.residual),
     indicators,
     ...(Object.keys(evaluatedEvery).length ? { evaluatedEvery } : {}),
+    ...(Object.keys(bands).length ? { bands } : {}),
     surrogateTaus,
     sensitivity: result.sensitivity,
   };

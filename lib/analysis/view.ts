@@ -78,6 +78,7 @@ export function thinCurves(curves: CurveSet, maxPoints = MAX_CURVE_POINTS): Curv
   const pick = <T>(a: T[]) => indices.map((i) => a[i]);
   const indicators: CurveSet['indicators'] = {};
   for (const [name, values] of Object.entries(curves.indicators)) indicators[name] = thinIndicator(values, indices, curves.evaluatedEvery?.[name]);
+  const bands = curves.bands && mapBands(curves.bands, (edge, name) => thinIndicator(edge, indices, curves.evaluatedEvery?.[name]));
   return {
     ...curves,
     stride: curves.stride * stride,
@@ -86,7 +87,13 @@ export function thinCurves(curves: CurveSet, maxPoints = MAX_CURVE_POINTS): Curv
     trend: pick(curves.trend),
     residual: pick(curves.residual),
     indicators,
+    ...(bands ? { bands } : {}),
   };
+}
+
+/** Each band's two edges through `f`. O(points). */
+function mapBands(bands: NonNullable<CurveSet['bands']>, f: (edge: (number | null)[], name: string) => (number | null)[]): NonNullable<CurveSet['bands']> {
+  return Object.fromEntries(Object.entries(bands).map(([name, { lower, upper }]) => [name, { lower: f(lower, name), upper: f(upper, name) }]));
 }
 
 /**
@@ -170,8 +177,11 @@ export function buildView(
   const { surrogateTaus: _taus, sensitivity: _grid, ...thinned } = curves;
   const indicatorCurves: CurveSet['indicators'] = {};
   for (const name of indicators) indicatorCurves[name] = forChart(curves.indicators[name]!);
+  const { bands: storedBands, ...unbanded } = thinned;
+  const shownBands = storedBands && Object.fromEntries(Object.entries(storedBands).filter(([name]) => indicators.includes(name as IndicatorName)));
   const chartCurves = {
-    ...thinned,
+    ...unbanded,
+    ...(shownBands && Object.keys(shownBands).length ? { bands: mapBands(shownBands, forChart) } : {}),
     value: forChart(thinned.value),
     trend: forChart(thinned.trend),
     residual: forChart(thinned.residual),

@@ -6,7 +6,9 @@ import { inverseRealFft, nextPowerOfTwo, realFft } from '@/lib/engine/fft';
 import { IncrementalKendall, SlidingMoments, denseRanks } from '@/lib/engine/incremental';
 import { spanPoints } from '@/lib/engine/prepare';
 import type { TimeKind } from '@/lib/engine/time-kind';
-import { MIN_WINDOW_POINTS, windowPoints } from '@/lib/engine/rolling';
+import { indicatorDefinition } from '@/lib/engine/indicators';
+import { indicatorTrend } from '@/lib/engine/kendall';
+import { MIN_WINDOW_POINTS, evaluationStride, windowPoints } from '@/lib/engine/rolling';
 import { DEFAULT_MIN_SEGMENT, detectShifts } from '@/lib/engine/shifts';
 import { INDICATOR_DIRECTIONS, orientedTau, trendDirectionOf, type RuleDirection, type TrendDirection } from '@/lib/engine/direction';
 import type { AnalysisSettings, IndicatorName } from '@/lib/engine/settings';
@@ -56,6 +58,8 @@ export interface ReplayGeometry {
   seed: number;
   /** share of observed (not interpolated) points a window needs to be judged */
   minCoverage: number;
+  /** per-window indicators are evaluated at no more than this many windows of the record available then (settings) */
+  maxEvaluatedWindows: number;
 }
 
 const DAY_MS = 86_400_000;
@@ -109,6 +113,7 @@ export function replayGeometry(settings: AnalysisSettings, recordPoints: number,
     surrogateMethod: settings.surrogateMethod,
     seed: settings.seed,
     minCoverage: settings.minCoverage,
+    maxEvaluatedWindows: settings.maxEvaluatedWindows,
   };
 }
 
@@ -303,13 +308,7 @@ export function replayEvidence(
   const { ranks, size } = denseRanks(stream);
   const n = stream.length;
   const kendall = new IncrementalKendall(Math.max(1, size), (g.spanValues ?? n) + 1);
-  const idx: number[] = [];
-  const tau: number[] = [];
-  const p: number[] = [];
-  const level: number[] = [];
-  const count: number[] = [];
-  const cover: number[] = [];
-  const stuck: number[] = [];
+  const instants = evidenceCollector(g.offset, covered, inFlatRun);
   // residual indices of the values held, oldest first, so the trailing span can drop what falls out of it
   const held = new Int32Array(n);
   let head = 0;
@@ -328,26 +327,92 @@ export function replayEvidence(
     const k = e + g.offset;
     if ((k + 1) % g.every !== 0 && e !== n - 1) continue;
     if (kendall.length < g.warmup) continue;
-    const r = kendall.result();
-    idx.push(k);
-    tau.push(r.tau);
-    p.push(r.p);
-    level.push(stream[e]);
-    count.push(r.n);
-    cover.push(covered === null ? 1 : covered[e]);
-    stuck.push(inFlatRun === null ? 0 : inFlatRun[e]);
+    instants.add(e, kendall.result(), stream[e]);
   }
-  const index = Int32Array.from(idx);
+  return instants.evidence(time);
+}
+
+/**
+ * Gathers the judged instants of a replay, by residual index e (record index e + offset), into an Evidence: the
+ * trend's tau, p and count, the newest window's value, and whether that window is judged (`covered`, `inFlatRun`
+ * at e, when given). O(1) per instant.
+ */
+function evidenceCollector(offset: number, covered: Uint8Array | null, inFlatRun: Uint8Array | null) {
+  const idx: number[] = [];
+  const tau: number[] = [];
+  const p: number[] = [];
+  const level: number[] = [];
+  const count: number[] = [];
+  const cover: number[] = [];
+  const stuck: number[] = [];
   return {
-    index,
-    time: Float64Array.from(idx, (k) => time[k]),
-    tau: Float64Array.from(tau),
-    p: Float64Array.from(p),
-    level: Float64Array.from(level),
-    count: Int32Array.from(count),
-    ...(covered === null ? {} : { covered: Uint8Array.from(cover) }),
-    ...(inFlatRun === null ? {} : { inFlatRun: Uint8Array.from(stuck) }),
+    add(e: number, trend: { tau: number; p: number; n: number }, latest: number): void {
+      idx.push(e + offset);
+      tau.push(trend.tau);
+      p.push(trend.p);
+      level.push(latest);
+      count.push(trend.n);
+      cover.push(covered === null ? 1 : covered[e]);
+      stuck.push(inFlatRun === null ? 0 : inFlatRun[e]);
+    },
+    evidence(time: Float64Array): Evidence {
+      return {
+        index: Int32Array.from(idx),
+        time: Float64Array.from(idx, (k) => time[k]),
+        tau: Float64Array.from(tau),
+        p: Float64Array.from(p),
+        level: Float64Array.from(level),
+        count: Int32Array.from(count),
+        ...(covered === null ? {} : { covered: Uint8Array.from(cover) }),
+        ...(inFlatRun === null ? {} : { inFlatRun: Uint8Array.from(stuck) }),
+      };
+    },
   };
+}
+
+/**
+ * Evidence of a per-window indicator (kind 'window') as the live analysis judges it at each instant: of the
+ * `count` windows of the record available then (of its trailing span when one is set), the analysis evaluates
+ * every s-th window counted back from the newest, s = evaluationStride(count, maxEvaluatedWindows), and takes the
+ * Kendall tau over those values (rollingIndicators and runAnalysis in lib/engine). The stride, and with it the
+ * windows evaluated, changes as the record grows, so each instant takes its own set; a window's value never
+ * changes once its point-in-time residuals are known, so each is computed at most once. Windows `covered` leaves
+ * out give no value, as there; instants with fewer than `warmup` windows are not judged. Cost O(steps · M log M),
+ * M ≤ maxEvaluatedWindows, plus the indicator's cost per window for each window some instant evaluates.
+ */
+export function stridedEvidence(
+  residual: Float64Array,
+  time: Float64Array,
+  name: IndicatorName,
+  g: Pick<ReplayGeometry, 'w' | 'dt' | 'offset' | 'spanValues' | 'warmup' | 'every' | 'maxEvaluatedWindows'>,
+  covered: Uint8Array | null = null,
+  inFlatRun: Uint8Array | null = null,
+): Evidence {
+  const definition = indicatorDefinition(name);
+  if (definition?.kind !== 'window') throw new RangeError(`${name} is not evaluated per window`);
+  const n = residual.length;
+  const values = new Float64Array(n);
+  const known = new Uint8Array(n);
+  const windowValue = (end: number): number => {
+    if (!known[end]) {
+      known[end] = 1;
+      const v = covered === null || covered[end] ? definition.evaluate(residual.subarray(end - g.w + 1, end + 1), g.dt).value : Number.NaN;
+      values[end] = Number.isFinite(v) ? v : Number.NaN;
+    }
+    return values[end];
+  };
+  const instants = evidenceCollector(g.offset, covered, inFlatRun);
+  for (let e = g.w - 1; e < n; e++) {
+    const k = e + g.offset;
+    if ((k + 1) % g.every !== 0 && e !== n - 1) continue;
+    const windows = g.spanValues === null ? e - g.w + 2 : Math.min(e - g.w + 2, g.spanValues);
+    if (windows < g.warmup) continue;
+    const stride = evaluationStride(windows, g.maxEvaluatedWindows);
+    const picked = new Float64Array(Math.ceil(windows / stride));
+    for (let end = e, slot = picked.length - 1; slot >= 0; end -= stride, slot--) picked[slot] = windowValue(end);
+    instants.add(e, indicatorTrend(picked), picked[picked.length - 1]);
+  }
+  return instants.evidence(time);
 }
 
 /**
@@ -512,8 +577,12 @@ function replayRecord(
     const flat = quality.flat.map((r) => ({ start: Math.max(0, r.start - g.offset), end: r.end - g.offset })).filter((r) => r.end > r.start);
     ({ covered, inFlatRun } = windowCoverage(own, flat, g));
   }
-  const stream = indicatorStream(residual, value.subarray(g.offset), rule.indicator, g, covered);
-  return { residual, evidence: replayEvidence(stream, time, g, covered, inFlatRun) };
+  // Per-window indicators are judged on the windows the live analysis evaluates (its stride), moment ones on all.
+  const evidence =
+    indicatorDefinition(rule.indicator)?.kind === 'window'
+      ? stridedEvidence(residual, time, rule.indicator, g, covered, inFlatRun)
+      : replayEvidence(indicatorStream(residual, value.subarray(g.offset), rule.indicator, g, covered), time, g, covered, inFlatRun);
+  return { residual, evidence };
 }
 
 function concat<T extends Float64Array | Int32Array | Uint8Array>(arrays: T[], Kind: { new (n: number): T }): T {
@@ -770,6 +839,8 @@ export function prefixSurrogateChecker(
       w: g.w,
       dt: g.dt,
       indicators: [rule.indicator],
+      // the live analysis's stride for the record available then (moment indicators ignore it)
+      stride: evaluationStride(len - g.w + 1, g.maxEvaluatedWindows),
       observed,
       skip,
     });

@@ -1,6 +1,7 @@
 import type { RuleDirection, TrendDirection } from '@/lib/engine/direction';
 import type { AnalysisResult } from '@/lib/engine/analyze';
 import type { AnalysisSettings, IndicatorName } from '@/lib/engine/settings';
+import type { SiteIndicatorName } from '@/lib/engine/site';
 import { formatTau } from './format';
 
 /**
@@ -10,9 +11,9 @@ import { formatTau } from './format';
 
 /**
  * Plain-language names of the indicators, as they read inside a sentence (mails, alert pages); keyed by the
- * engine's names, so a new indicator without a label fails the type check.
+ * engine's names (the series indicators and the site-level ones), so a new indicator without a label fails the type check.
  */
-export const INDICATOR_LABELS: Record<IndicatorName, string> = {
+export const INDICATOR_LABELS: Record<IndicatorName | SiteIndicatorName, string> = {
   variance: 'variance',
   sd: 'standard deviation',
   cv: 'coefficient of variation',
@@ -26,6 +27,9 @@ export const INDICATOR_LABELS: Record<IndicatorName, string> = {
   dfa: 'fluctuation exponent (DFA)',
   bimodality: 'bimodality coefficient',
   'potential-wells': 'wells of the fitted potential',
+  'pc1-variance': 'variance along the first principal component',
+  'pc1-share': 'share of variance along the first principal component',
+  'maf-ac1': 'lag-1 autocorrelation of the first maximum-autocorrelation factor',
 };
 
 /**
@@ -33,7 +37,7 @@ export const INDICATOR_LABELS: Record<IndicatorName, string> = {
  * know it; `title` starts it with a capital, as chart titles and form labels do.
  */
 export function indicatorLabel(name: string, form: 'sentence' | 'title' = 'sentence'): string {
-  const label = Object.hasOwn(INDICATOR_LABELS, name) ? INDICATOR_LABELS[name as IndicatorName] : name;
+  const label = Object.hasOwn(INDICATOR_LABELS, name) ? INDICATOR_LABELS[name as IndicatorName | SiteIndicatorName] : name;
   return form === 'title' ? label.charAt(0).toUpperCase() + label.slice(1) : label;
 }
 

@@ -8,6 +8,7 @@ import { indicatorTrend } from './kendall';
 import { RandomStream } from './random';
 import { evaluationStride, windowPoints } from './rolling';
 import type { AnalysisSettings } from './settings';
+import type { TimeKind } from './time-kind';
 import { surrogatePValue } from './surrogates';
 
 /**
@@ -128,15 +129,24 @@ export interface SiteAnalysisResult {
   significance: Partial<Record<SiteIndicatorName, { p: number | null; count: number; method: 'phase'; direction: TrendDirection }>>;
 }
 
+/** How one column is detrended: its own series' method, bandwidth and moving-average width. */
+export type ColumnDetrending = Pick<AnalysisSettings, 'detrend' | 'bandwidth' | 'movingAverageWidth'>;
+
 /**
  * Site-level analysis of k ≥ 2 series observed at every one of the same n regularly spaced instants: each column
- * detrended with the settings' method and bandwidth, windows of settings.window, the site indicators evaluated at
+ * detrended with its own method and bandwidth (`input.detrending`, one per column, as its series' settings say;
+ * the settings' own when absent; a bandwidth as a fraction of the n instants, "<n> points" or, with `timeKind`
+ * 'utc-ms', an ISO 8601 duration), the residuals aligned at their ends (a differenced column is one shorter, its
+ * first residual belonging to the second instant, so the others drop their first), windows of settings.window, the site indicators evaluated at
  * no more than settings.maxEvaluatedWindows windows, Kendall tau over those (normal p in the rising direction,
  * descriptive), and, with settings.surrogates > 0, the surrogate p against phase-coherent surrogates of the residual
  * matrix. Throws AnalysisInputError for fewer than two series, unequal lengths or a missing value. Cost
  * O(k·n log n + n/stride·(w·k² + k³)) plus N times that for N surrogates.
  */
-export function runSiteAnalysis(input: { values: readonly Float64Array[]; interval?: number }, settings: AnalysisSettings): SiteAnalysisResult {
+export function runSiteAnalysis(
+  input: { values: readonly Float64Array[]; interval?: number; timeKind?: TimeKind; detrending?: readonly ColumnDetrending[] },
+  settings: AnalysisSettings,
+): SiteAnalysisResult {
   const { values } = input;
   if (values.length < 2) throw new AnalysisInputError('site-level indicators need at least two series');
   const n = values[0].length;
@@ -146,9 +156,15 @@ export function runSiteAnalysis(input: { values: readonly Float64Array[]; interv
     if (missing >= 0)
       throw new AnalysisInputError(`series ${c + 1} has no value at point ${missing + 1}; site-level indicators need every series at every instant`);
   });
-  const h = extentPoints(settings.bandwidth, n, input.interval ?? Number.NaN, 'numeric');
-  const residuals = values.map((v) => detrend(v, settings.detrend, { bandwidthPoints: h, movingAverageWidth: settings.movingAverageWidth }).residual);
-  const m = residuals[0].length;
+  if (input.detrending && input.detrending.length !== values.length)
+    throw new AnalysisInputError(`${input.detrending.length} detrending choices for ${values.length} series: give one per series`);
+  const own = values.map((v, c) => {
+    const d = input.detrending?.[c] ?? settings;
+    const h = extentPoints(d.bandwidth, n, input.interval ?? Number.NaN, input.timeKind ?? 'numeric');
+    return detrend(v, d.detrend, { bandwidthPoints: h, movingAverageWidth: d.movingAverageWidth }).residual;
+  });
+  const m = Math.min(...own.map((r) => r.length));
+  const residuals = own.map((r) => r.subarray(r.length - m));
   const w = windowPoints(settings.window, m);
   const stride = evaluationStride(m - w + 1, settings.maxEvaluatedWindows);
   const observed = rollingSiteIndicators(residuals, w, stride);

@@ -1,9 +1,10 @@
 import { describe, expect, it } from 'vitest';
 import { DAY, days, rule } from './helpers';
 import { runBacktest } from '@/lib/backtest/run';
-import { pointInTimeResiduals, replayEvidence, replayGeometry, indicatorStream } from '@/lib/backtest/replay';
+import { alarmOnsets, pointInTimeResiduals, replayEvidence, replayGeometry, indicatorStream, stridedEvidence } from '@/lib/backtest/replay';
 import { simulateAr1 } from '@/lib/demo/models';
 import { buildDemoScenario } from '@/lib/demo/scenario';
+import { runAnalysis } from '@/lib/engine/analyze';
 import { detrend, gaussianSmooth, linearFit, movingAverage } from '@/lib/engine/detrend';
 import { indicatorTrend } from '@/lib/engine/kendall';
 import { rollingIndicators } from '@/lib/engine/rolling';
@@ -90,6 +91,50 @@ describe('replay evidence equals a full recomputation at each judged instant', (
       }
     }
   });
+});
+
+describe('per-window indicators are replayed at the stride the live analysis uses', () => {
+  // Source of the expected values: the live analysis itself (runAnalysis, lib/engine/analyze.ts) on each prefix the
+  // scheduler would have seen, with the same settings; the replay must judge the windows it evaluates, no others.
+  const n = 640;
+  const x = simulateAr1({ n, phi: 0.4, sigma: 1, seed: 11 }).map((v, i) => v * (1 + i / 400));
+  const t = days(n);
+  const every = 16;
+  for (const { indicator, span } of [
+    { indicator: 'restoring-rate', span: null },
+    { indicator: 'dfa', span: '300 points' },
+  ] as const) {
+    it(`${indicator}${span ? `, trailing span ${span}` : ''}: tau and the alarm onset equal the live analysis of every prefix`, async () => {
+      const settings = analysisSettingsSchema.parse({
+        detrend: 'none',
+        window: '64 points',
+        span,
+        indicators: [indicator],
+        surrogates: 0,
+        shiftDetection: 'off',
+        sensitivity: false,
+        maxEvaluatedWindows: 30,
+      });
+      const g = replayGeometry(settings, n, DAY, every);
+      const ev = stridedEvidence(x, t, indicator, g);
+      expect(ev.index.length).toBeGreaterThan(20);
+      const liveTau: number[] = [];
+      for (let s = 0; s < ev.index.length; s++) {
+        const k = ev.index[s];
+        const live = await runAnalysis({ time: t.subarray(0, k + 1), value: x.subarray(0, k + 1), intervalMs: DAY }, settings);
+        // the stride really thins the windows once the record holds more than 30 of them
+        if (k + 1 - g.w + 1 > 60) expect(live.evaluatedEvery[indicator]).toBeGreaterThan(1);
+        const tau = live.kendall[indicator]!.tau!;
+        liveTau.push(tau);
+        expect(Math.abs(ev.tau[s] - tau)).toBeLessThanOrEqual(1e-12);
+      }
+      // the first cycle at which a live rule (tau ≥ median of the taus seen, persistence 1) fires is the replay's onset
+      const threshold = [...liveTau].sort((a, b) => a - b)[Math.floor(liveTau.length / 2)];
+      const liveFirst = liveTau.findIndex((tau) => tau >= threshold);
+      const onsets = alarmOnsets(ev, rule({ indicator, minTau: threshold, persistence: 1 }), threshold).onsets;
+      expect(onsets[0].time).toBe(t[ev.index[liveFirst]]);
+    });
+  }
 });
 
 describe('backtest on a record from a model with a known fold', () => {

@@ -1,6 +1,7 @@
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
+import { detrend } from '@/lib/engine/detrend';
 import { dft } from '@/lib/engine/fft';
 import { binomialInterval } from './binomial';
 import { RandomStream } from '@/lib/engine/random';
@@ -87,6 +88,34 @@ describe('runSiteAnalysis', () => {
     const gap = Float64Array.from(columns[1]);
     gap[10] = Number.NaN;
     expect(() => runSiteAnalysis({ values: [columns[0], gap] }, settings)).toThrow(/no value at point 11/);
+  });
+});
+
+describe('runSiteAnalysis with each series detrended its own way', () => {
+  // Expected: the engine's detrend of each column by hand (its own checks against numpy are in detrend tests), the
+  // residuals aligned at their ends, then the site analysis of those residuals with no further detrending.
+  it('equals the analysis of the residuals each column’s own detrending gives, a differenced one aligned at the end', () => {
+    const rng = new RandomStream(23, 0);
+    const n = 400;
+    const columns = [0, 1, 2].map((k) => Float64Array.from({ length: n }, (_, i) => 0.01 * k * i + Math.sin(i / 40) + rng.normal()));
+    const settings = analysisSettingsSchema.parse({ surrogates: 9, maxEvaluatedWindows: 50, window: 0.4 });
+    const detrending = [
+      { detrend: 'linear', bandwidth: 0.1, movingAverageWidth: 11 },
+      { detrend: 'gaussian', bandwidth: '40 points', movingAverageWidth: 11 },
+      { detrend: 'difference', bandwidth: 0.1, movingAverageWidth: 11 },
+    ] as const;
+    const result = runSiteAnalysis({ values: columns, detrending }, settings);
+    const residuals = [
+      detrend(columns[0], 'linear', { bandwidthPoints: 40, movingAverageWidth: 11 }).residual.subarray(1),
+      detrend(columns[1], 'gaussian', { bandwidthPoints: 40, movingAverageWidth: 11 }).residual.subarray(1),
+      detrend(columns[2], 'difference', { bandwidthPoints: 40, movingAverageWidth: 11 }).residual,
+    ];
+    const expected = runSiteAnalysis({ values: residuals }, { ...settings, detrend: 'none' });
+    expect(result.n).toBe(n - 1);
+    expect(result.indicators).toEqual(expected.indicators);
+    expect(result.kendall).toEqual(expected.kendall);
+    expect(result.significance).toEqual(expected.significance);
+    expect(() => runSiteAnalysis({ values: columns, detrending: detrending.slice(1) }, settings)).toThrow(/one per series/);
   });
 });
 

@@ -42,6 +42,7 @@ const EXPECTED: Record<string, Role | 'public' | 'token'> = {
   'POST /api/sites': 'lead',
   'GET /api/sites/[slug]': 'viewer',
   'PATCH /api/sites/[slug]': 'lead',
+  'GET /api/sites/[slug]/analysis': 'viewer',
   'GET /api/series/[slug]/observations': 'viewer',
   'POST /api/series/[slug]/observations': 'token',
   'POST /api/series/[slug]/observations/flags': 'analyst',

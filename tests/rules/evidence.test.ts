@@ -57,6 +57,11 @@ describe('what the one-page report charts', () => {
     expect(reportIndicators(computed, [{ indicator: 'sd', active: false }])).toEqual(['sd']);
     expect(reportIndicators(computed, [])).toEqual(['ac1', 'variance']);
   });
+  it('the per-window indicators as any other, when rules watch them', () => {
+    const all = ['variance', 'ac1', 'restoring-rate', 'spectral-ratio', 'ch', 'dfa', 'bimodality', 'potential-wells'] as const;
+    const rules = all.slice(2).map((indicator) => ({ indicator, active: true }));
+    expect(reportIndicators(all, rules)).toEqual(all.slice(2));
+  });
   it('never an indicator the analysis does not compute', () => {
     expect(reportIndicators(['variance'], [{ indicator: 'kurtosis', active: true }])).toEqual(['variance']);
   });

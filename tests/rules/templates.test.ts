@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { RULE_TEMPLATES } from '@/lib/alerts/rule-templates';
 import { ruleCreateSchema } from '@/lib/schemas/rule';
 import { INDICATOR_DIRECTIONS } from '@/lib/engine/direction';
+import { INDICATOR_NAMES } from '@/lib/engine/settings';
 
 describe('rule templates', () => {
   it('each template is a rule the one rule schema accepts as it stands', () => {
@@ -31,5 +32,14 @@ describe('rule templates', () => {
   it('the templates the editor offers include lag-1 autocorrelation rising, variance rising and recovery rate falling', () => {
     const by = (indicator: string, direction: string) => RULE_TEMPLATES.some((t) => t.rule.indicator === indicator && t.rule.direction === direction);
     expect(by('ac1', 'rising') && by('variance', 'rising') && by('recovery', 'falling')).toBe(true);
+  });
+
+  it('a rule may watch every indicator the engine computes, the per-window ones included', () => {
+    const base = RULE_TEMPLATES[0].rule;
+    for (const indicator of INDICATOR_NAMES) {
+      const own = INDICATOR_DIRECTIONS[indicator];
+      const parsed = ruleCreateSchema.safeParse({ ...base, indicator, direction: own === 'two-sided' ? 'either' : own });
+      expect(parsed.success, `${indicator}: ${parsed.error?.message ?? ''}`).toBe(true);
+    }
   });
 });

@@ -5,6 +5,7 @@ import { LocalTime } from '@/components/LocalTime';
 import { OverviewTable } from '@/components/overview/OverviewTable';
 import { Empty, Panel } from '@/components/States';
 import { SiteForm } from '@/components/sites/SiteForm';
+import { SiteIndicators } from '@/components/sites/SiteIndicators';
 import { SiteMap } from '@/components/sites/SiteMap';
 import { buttonClass } from '@/components/ui/Button';
 import { CELL, DataTable } from '@/components/ui/DataTable';
@@ -13,6 +14,7 @@ import { roleAtLeast } from '@/lib/auth/roles';
 import { indicatorLabel } from '@/lib/display/analysis-labels';
 import { foundOr404 } from '@/lib/http/page';
 import { formatCoordinates, siteMap } from '@/lib/sites/map';
+import { fetchSiteAnalysis } from '@/lib/sites/analysis';
 import { fetchSitePage } from '@/lib/sites/page-data';
 
 export const metadata = { title: 'Site' };
@@ -20,7 +22,9 @@ export const metadata = { title: 'Site' };
 export default async function SitePage({ params }: { params: Promise<{ slug: string }> }) {
   const actor = await requireRole('viewer');
   const { slug } = await params;
-  const { site, series, openAlerts, generatedAt } = await foundOr404(() => fetchSitePage(slug, actor.id));
+  const [{ site, series, openAlerts, generatedAt }, siteAnalysis] = await foundOr404(() =>
+    Promise.all([fetchSitePage(slug, actor.id), fetchSiteAnalysis(slug)]),
+  );
   const canEdit = roleAtLeast(actor.role, 'lead');
   const placed = site.latitude !== null;
   return (
@@ -54,6 +58,9 @@ export default async function SitePage({ params }: { params: Promise<{ slug: str
         <div className="min-w-0 space-y-4">
           <Panel title="Series and their latest data" id="site-series">
             <OverviewTable rows={series} sites={[]} now={generatedAt} noSeries="No active series at this site." siteColumn={false} />
+          </Panel>
+          <Panel title="Indicators across the site's series" id="site-indicators">
+            <SiteIndicators slug={site.slug} timeZone={site.timeZone} initial={siteAnalysis} />
           </Panel>
           <Panel title="Open alerts" id="site-alerts">
             {openAlerts.length === 0 ? (

@@ -1,0 +1,79 @@
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { type Browser, type Page } from 'playwright-core';
+import { DEMO_PASSWORD, startApp, type RunningApp } from '../support/app';
+import { signedIn, type Session } from '../support/session';
+import { launchChromium, SHOTS } from '../support/browser';
+
+// The demo's mooring: a daily salinity contrast and an hourly deep temperature (lib/demo/scenario.ts).
+const SITE = 'veskary-sound-mooring';
+const SERIES = 'veskary-deep-temperature';
+
+let app: RunningApp;
+let browser: Browser;
+let page: Page;
+let lead: Session;
+
+describe('site-level indicators, the restoring-rate band and the stride setting in Chromium', () => {
+  beforeAll(async () => {
+    app = await startApp({ demo: true, env: { ANALYSIS_CRON: '*/5 * * * * *' } });
+    browser = await launchChromium();
+    lead = await signedIn(app.baseUrl, 'lead@brinkwatch.test', DEMO_PASSWORD);
+    page = await (await browser.newContext({ viewport: { width: 1280, height: 900 } })).newPage();
+    await page.goto(`${app.baseUrl}/`);
+    await page.waitForURL(/\/signin/);
+    await page.getByLabel('E-mail').fill('lead@brinkwatch.test');
+    await page.getByLabel('Password').fill(DEMO_PASSWORD);
+    await page.getByRole('button', { name: 'Sign in' }).click();
+    await page.waitForURL(`${app.baseUrl}/`);
+  }, 180_000);
+
+  afterAll(async () => {
+    await browser?.close();
+    await app?.stop();
+  });
+
+  it('the site page shows the indicators across its series, computed by the scheduler', async () => {
+    await expect
+      .poll(async () => (await (await lead.fetch(`/api/sites/${SITE}/analysis`)).json()).state, { timeout: 150_000, interval: 3000 })
+      .not.toBe('none');
+    const stored = await (await lead.fetch(`/api/sites/${SITE}/analysis`)).json();
+    expect(stored.error).toBeNull();
+    expect(stored.state).toBe('ok');
+    await page.goto(`${app.baseUrl}/sites/${SITE}`);
+    const panel = page.getByTestId('site-indicators');
+    await panel.waitFor();
+    for (const name of ['pc1-variance', 'pc1-share', 'maf-ac1']) {
+      await expect(page.getByTestId(`site-row-${name}`).textContent()).resolves.toMatch(/τ = .*tested rising/);
+      await page.getByTestId(`site-chart-${name}`).locator('.recharts-line').first().waitFor();
+    }
+    await panel.screenshot({ path: path.join(SHOTS, 'site-indicators.png') });
+  }, 200_000);
+
+  it('a series computing the restoring rate draws its ±1.96 SE band, and its settings offer the stride', async () => {
+    const detail = await (await lead.fetch(`/api/series/${SERIES}`)).json();
+    const settings = { ...detail.settings, indicators: [...detail.settings.indicators, 'restoring-rate'], maxEvaluatedWindows: 60 };
+    const saved = await lead.json(`/api/series/${SERIES}`, 'PATCH', { settings });
+    expect(saved.status).toBe(200);
+    // which charts the series page shows is the reader's choice: the lead asks for the restoring rate's
+    expect((await lead.json('/api/account/preferences', 'PUT', { seriesCharts: ['record', 'restoring-rate'] })).status).toBe(200);
+    await page.goto(`${app.baseUrl}/series/${SERIES}`);
+    await expect
+      .poll(
+        async () => {
+          await page.reload();
+          await page.waitForLoadState('networkidle');
+          return page.getByTestId('band-restoring-rate').count();
+        },
+        { timeout: 150_000, interval: 3000 },
+      )
+      .toBeGreaterThan(0);
+    await expect(page.getByTestId('band-restoring-rate').first().textContent()).resolves.toContain('± 1.96 standard errors');
+    const chart = page.getByTestId('chart-restoring-rate').first();
+    await expect(chart.locator('.recharts-line').count()).resolves.toBe(3);
+    await chart.screenshot({ path: path.join(SHOTS, 'restoring-rate-band.png') });
+
+    await page.goto(`${app.baseUrl}/series/${SERIES}/settings`);
+    await expect(page.getByLabel('Most windows per costly indicator').inputValue()).resolves.toBe('60');
+  }, 200_000);
+});
