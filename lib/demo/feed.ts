@@ -152,6 +152,7 @@ export type FeedOutcome =
   | 'written' // a file was renamed into the drop folder
   | 'sent' // the push API stored the points
   | 'waiting' // the last file is not taken in yet
+  | 'unanalysed' // the last delivery is taken in but not analysed yet
   | 'silent' // the intermittent logger holds its points back
   | 'up-to-date' // nothing due yet
   | 'unreachable' // the web server did not answer; the same points go next cycle
@@ -203,6 +204,10 @@ async function feedSeries(model: DemoFeedModel, now: number, baseUrl: string): P
   });
   const series = await Series.findOne({ where: { slug: model.slug } });
   if (!series || series.retiredAt) return report('not-there');
+  // Demo time runs ahead of the clock while a station catches up; holding the next delivery until the last one is
+  // analysed keeps one analysis (and one rule judgement) per delivered sample, however slow the scheduler is, as a
+  // real station's pace would.
+  if (series.needsAnalysis) return report('unanalysed');
   const extent = await observationExtent(series.id);
   if (extent.first === null || extent.last === null) return report('not-there');
   const folder = path.join(dropDir(), model.slug);

@@ -28,6 +28,11 @@ const INTERMITTENT = model('veskary-deep-temperature');
 const PUSH = model('kestrith-station-pressure');
 let closedUrl: string;
 
+/** What a finished analysis cycle leaves behind for the feed: no series due (the analysis itself is not under test). */
+async function analysed(): Promise<void> {
+  await Series.update({ needsAnalysis: false }, { where: {} });
+}
+
 async function recordEnd(slug: string) {
   const series = await Series.findOne({ where: { slug } });
   const extent = await observationExtent(series!.id);
@@ -175,8 +180,11 @@ describe('the demo feed, delivering', () => {
     expect(fs.readdirSync(folder)).toEqual(['demo-feed-20310515T000000Z.csv']);
   });
 
-  it('delivers each drop station its way, waits while its file is not taken in, and continues from what was stored', async () => {
+  it('delivers each drop station its way, waits while its file is not taken in or analysed, and continues from what was stored', async () => {
     const before = await recordEnd(DROP.slug);
+    // Seeding leaves every record due for analysis: the stations hold their deliveries until it is done.
+    expect((await runDemoFeed({ now: NOW.getTime(), baseUrl: closedUrl })).every((r) => r.outcome === 'unanalysed')).toBe(true);
+    await analysed();
     const reports = await runDemoFeed({ now: NOW.getTime(), baseUrl: closedUrl });
     expect(reports.map((r) => r.slug)).toEqual(DEMO_FEED_MODELS.map((m) => m.slug));
     const drop = reports.find((r) => r.slug === DROP.slug)!;
@@ -192,10 +200,14 @@ describe('the demo feed, delivering', () => {
     await runDropIntake({ settleMs: 0 });
     const after = await recordEnd(DROP.slug);
     expect(after).toEqual({ start: before.start, lastT: drop.points[0].t, lastValue: drop.points[0].value });
+    // Taken in, not yet analysed: still held.
+    expect((await runDemoFeed({ now: NOW.getTime(), baseUrl: closedUrl })).find((r) => r.slug === DROP.slug)!.outcome).toBe('unanalysed');
+    await analysed();
     const next = (await runDemoFeed({ now: NOW.getTime(), baseUrl: closedUrl })).find((r) => r.slug === DROP.slug)!;
     expect(next.outcome).toBe('written');
     expect(next.points.map((p) => p.t)).toEqual([after.lastT + DAY]);
     await runDropIntake({ settleMs: 0 });
+    await analysed();
     // Caught up with the clock: nothing more until the next day's sample is due.
     expect((await runDemoFeed({ now: NOW.getTime(), baseUrl: closedUrl })).find((r) => r.slug === DROP.slug)!.outcome).toBe('up-to-date');
     expect((await recordEnd(DROP.slug)).lastT).toBe(Date.UTC(2031, 4, 17));
