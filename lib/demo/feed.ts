@@ -1,12 +1,12 @@
 import fs from 'node:fs';
 import path from 'node:path';
-import { AppState, IngestToken, Observation, Series, db, writeTransaction } from '@/models';
+import { AnalysisSnapshot, AppState, IngestToken, Observation, Series, db, writeTransaction } from '@/models';
 import { RandomStream } from '@/lib/engine/random';
 import { config, dropDir } from '@/lib/runtime/config';
 import { readAppState } from '@/lib/db/app-state';
 import { observationExtent } from '@/lib/analysis/observations';
 import { issueIngestToken } from '@/lib/intake/tokens';
-import { DEMO_FEED_MODELS, DEMO_SEED, type DemoDelivery, type DemoFeedModel } from './scenario';
+import { DEMO_FEED_MODELS, DEMO_SEED, demoRecordEnd, type DemoDelivery, type DemoFeedModel } from './scenario';
 import { demoSeeded } from './seed';
 
 /**
@@ -152,7 +152,7 @@ export type FeedOutcome =
   | 'written' // a file was renamed into the drop folder
   | 'sent' // the push API stored the points
   | 'waiting' // the last file is not taken in yet
-  | 'unanalysed' // the last delivery is taken in but not analysed yet
+  | 'unanalysed' // the last delivery is taken in but not analysed yet (the seeded record does not count)
   | 'silent' // the intermittent logger holds its points back
   | 'up-to-date' // nothing due yet
   | 'unreachable' // the web server did not answer; the same points go next cycle
@@ -194,6 +194,12 @@ async function push(slug: string, points: FeedPoint[], token: string, baseUrl: s
   return 'refused';
 }
 
+/** The last instant the series' latest analysis saw, or the seeded record's end before any analysis. */
+async function analysedUpTo(series: Series): Promise<number> {
+  const latest = await AnalysisSnapshot.findOne({ where: { seriesId: series.id }, order: [['id', 'DESC']], attributes: ['dataTo'] });
+  return latest?.dataTo != null ? Number(latest.dataTo) : demoRecordEnd(series.createdAt, Number(series.intervalMs));
+}
+
 async function feedSeries(model: DemoFeedModel, now: number, baseUrl: string): Promise<FeedReport> {
   const report = (outcome: FeedOutcome, points: FeedPoint[] = [], withheld = 0): FeedReport => ({
     slug: model.slug,
@@ -204,12 +210,12 @@ async function feedSeries(model: DemoFeedModel, now: number, baseUrl: string): P
   });
   const series = await Series.findOne({ where: { slug: model.slug } });
   if (!series || series.retiredAt) return report('not-there');
-  // Demo time runs ahead of the clock while a station catches up; holding the next delivery until the last one is
-  // analysed keeps one analysis (and one rule judgement) per delivered sample, however slow the scheduler is, as a
-  // real station's pace would.
-  if (series.needsAnalysis) return report('unanalysed');
   const extent = await observationExtent(series.id);
   if (extent.first === null || extent.last === null) return report('not-there');
+  // Demo time runs ahead of the clock while a station catches up; holding the next delivery until the last one is
+  // analysed keeps one analysis (and one rule judgement) per delivered sample, however slow the scheduler is, as a
+  // real station's pace would. The seeded record itself does not hold the first delivery.
+  if (series.needsAnalysis && extent.last > (await analysedUpTo(series))) return report('unanalysed');
   const folder = path.join(dropDir(), model.slug);
   if (model.delivery !== 'push' && deliveryWaiting(folder)) return report('waiting');
   const last = await Observation.findOne({ where: { seriesId: series.id, t: extent.last }, attributes: ['value'] });
