@@ -23,7 +23,7 @@ const nextConfig = {
   // Types are checked by `tsc --noEmit` in the test suite (tests/typecheck.test.ts), once, for the whole tree.
   typescript: { ignoreBuildErrors: true, tsconfigPath: generatedTsconfig },
   distDir: process.env.NEXT_DIST_DIR || '.next',
-  serverExternalPackages: ['sequelize', 'sqlite3', 'umzug', 'smtp-server', 'nodemailer', 'bcryptjs'],
+  serverExternalPackages: ['sequelize', 'sqlite3', 'pg', 'pg-hstore', 'umzug', 'smtp-server', 'nodemailer', 'bcryptjs'],
   async headers() {
     return [
       { source: '/:path*', headers: securityHeaders },

@@ -1,11 +1,20 @@
 import fs from 'node:fs';
 import path from 'node:path';
+import pg from 'pg';
 import sqlite3, { type Database } from 'sqlite3';
 import { Sequelize, Transaction } from 'sequelize';
-import { busyTimeoutMs, config, databasePath } from '@/lib/runtime/config';
+import { busyTimeoutMs, config, databaseDialect, databaseLocation, databasePath } from '@/lib/runtime/config';
 import { closeReadCache } from '@/lib/db/read-cache';
 
 type Cached = { sequelize: Sequelize; path: string; ready: Promise<void> };
+
+/** PostgreSQL's advisory lock key that every write transaction takes, so writers queue as they do on SQLite. */
+const WRITE_LOCK_KEY = 4_212_031_733;
+
+// Counts, sums and BIGINT columns (instants in ms, ids) arrive from pg as strings; every one of them fits a double
+// exactly (instants and counts stay below 2^53), which is how SQLite hands them back too.
+pg.types.setTypeParser(pg.types.builtins.INT8, (value) => Number(value));
+pg.types.setTypeParser(pg.types.builtins.NUMERIC, (value) => Number(value));
 const globalCache = globalThis as unknown as { __brinkwatchDb?: Cached };
 
 interface RawSqliteConnection {
@@ -33,11 +42,33 @@ function applyBusyTimeout(sequelize: Sequelize): void {
   };
 }
 
-/** The one Sequelize instance of this process (cached on globalThis so dev reloads and test files share it per path). */
+function openPostgres(url: string): Cached {
+  const sequelize = new Sequelize(url, {
+    dialect: 'postgres',
+    dialectModule: pg,
+    logging: config().DB_LOG ? console.log : false,
+    define: { underscored: true },
+    pool: { max: 10, min: 0, idle: 10_000, acquire: 60_000 },
+  });
+  const ready = sequelize.query('SELECT 1').then(() => undefined);
+  // An unreachable server is reported by the caller's first query; the probe's own failure is not an unhandled one.
+  ready.catch(() => undefined);
+  return { sequelize, path: url, ready };
+}
+
+/**
+ * The one Sequelize instance of this process (cached on globalThis so dev reloads and test files share it per
+ * database): PostgreSQL when DATABASE_URL is set, else the SQLite file.
+ */
 export function getSequelize(): Sequelize {
-  const file = databasePath();
+  const location = databaseLocation();
   const cached = globalCache.__brinkwatchDb;
-  if (cached && cached.path === file) return cached.sequelize;
+  if (cached && cached.path === location) return cached.sequelize;
+  if (databaseDialect() === 'postgres') {
+    globalCache.__brinkwatchDb = openPostgres(location);
+    return globalCache.__brinkwatchDb.sequelize;
+  }
+  const file = databasePath();
   fs.mkdirSync(path.dirname(file), { recursive: true });
   const sequelize = new Sequelize({
     dialect: 'sqlite',
@@ -56,7 +87,7 @@ export function getSequelize(): Sequelize {
   return sequelize;
 }
 
-/** Resolves once the connection pragmas (WAL, synchronous) are set. */
+/** Resolves once the connection pragmas (WAL, synchronous) are set, or PostgreSQL answered. */
 export async function databaseReady(): Promise<Sequelize> {
   const sequelize = getSequelize();
   await globalCache.__brinkwatchDb!.ready;
@@ -75,11 +106,27 @@ export async function closeDatabase(): Promise<void> {
 
 /**
  * Runs `work` in an IMMEDIATE transaction: SQLite takes the write lock at BEGIN, so two writers queue on the busy
- * timeout instead of one failing on lock upgrade half-way through.
+ * timeout instead of one failing on lock upgrade half-way through. On PostgreSQL the same guarantee (what a write
+ * transaction read is still true when it commits, because no other write transaction runs meanwhile) comes from one
+ * transaction-scoped advisory lock every write transaction takes first (released at COMMIT or ROLLBACK).
  */
 export async function writeTransaction<T>(work: (transaction: Transaction) => Promise<T>): Promise<T> {
   const sequelize = await databaseReady();
-  return sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, work);
+  if (sequelize.getDialect() !== 'postgres') return sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, work);
+  return sequelize.transaction(async (transaction) => {
+    await sequelize.query(`SELECT pg_advisory_xact_lock(${WRITE_LOCK_KEY})`, { transaction });
+    return work(transaction);
+  });
+}
+
+/**
+ * Runs `work` in a read transaction that sees one moment of the database: SQLite's DEFERRED transaction (a read
+ * snapshot from its first read on), PostgreSQL's REPEATABLE READ (a snapshot from its first statement on).
+ */
+export async function readTransaction<T>(work: (transaction: Transaction) => Promise<T>): Promise<T> {
+  const sequelize = await databaseReady();
+  if (sequelize.getDialect() !== 'postgres') return sequelize.transaction({ type: Transaction.TYPES.DEFERRED }, work);
+  return sequelize.transaction({ isolationLevel: Transaction.ISOLATION_LEVELS.REPEATABLE_READ }, work);
 }
 
 /**

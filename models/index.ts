@@ -1,5 +1,5 @@
 import type { Sequelize, Transaction } from 'sequelize';
-import { databaseReady, getSequelize, writeTransaction as writeInTransaction } from './db';
+import { databaseReady, getSequelize, readTransaction as readInTransaction, writeTransaction as writeInTransaction } from './db';
 import { User } from './User';
 import { Series } from './Series';
 import { Site } from './Site';
@@ -158,6 +158,12 @@ export {
 export async function writeTransaction<T>(work: (transaction: Transaction) => Promise<T>): Promise<T> {
   await db();
   return writeInTransaction(work);
+}
+
+/** `readTransaction` of models/db.ts (one moment of the database) with the models bound first. */
+export async function readTransaction<T>(work: (transaction: Transaction) => Promise<T>): Promise<T> {
+  await db();
+  return readInTransaction(work);
 }
 
 export { closeDatabase } from './db';

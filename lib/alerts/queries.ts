@@ -1,4 +1,4 @@
-import { QueryTypes, Transaction } from 'sequelize';
+import { QueryTypes } from 'sequelize';
 import {
   ALERT_STATES,
   Alert,
@@ -11,6 +11,7 @@ import {
   Series,
   User,
   db,
+  readTransaction,
   type AlertKind,
   type AlertState,
 } from '@/models';
@@ -121,7 +122,7 @@ async function loadAlertQueue(query: AlertQueueQuery, actor: Pick<Actor, 'id'>, 
   const filter = where(query, actor, query.queue, now);
   // One read transaction, so the page and the counts see the same moment even while a scheduler in another
   // process opens an alert between the statements (else a count of 1 could stand beside an empty page).
-  const { rows, counts, total } = await sequelize.transaction({ type: Transaction.TYPES.DEFERRED }, async (transaction) => {
+  const { rows, counts, total } = await readTransaction(async (transaction) => {
     const rows = await sequelize.query<Record<string, unknown>>(
       `SELECT a.id, a.kind, a.state, a.severity, a.version, a.peak_tau, a.evaluation_count, a.dismiss_reason, a.created_at, a.updated_at, a.closed_at,
               a.shift_time, a.shift_size, a.data_last_at, a.data_back_at, s.id AS series_id, s.slug, s.name AS series_name, s.time_zone, r.id AS rule_id, r.indicator, r.direction AS rule_direction,

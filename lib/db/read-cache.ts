@@ -1,5 +1,6 @@
 import sqlite3, { type Database } from 'sqlite3';
-import { busyTimeoutMs, databasePath } from '@/lib/runtime/config';
+import { QueryTypes, type Sequelize } from 'sequelize';
+import { busyTimeoutMs, databaseDialect, databaseLocation, databasePath } from '@/lib/runtime/config';
 
 /**
  * Answers of hot reads (the overview, alert queues, the series workbench and detail, the series pickers, the
@@ -10,18 +11,28 @@ import { busyTimeoutMs, databasePath } from '@/lib/runtime/config';
  * on a connection of its own that never writes, so every commit anywhere — this web process, another one, the
  * scheduler, a script — is another connection's and shows. A read is stored under the version seen *before* it ran,
  * so an answer that raced a commit is dropped at the next request, never served after it. Cost: one PRAGMA per read.
+ *
+ * On PostgreSQL the version is the text of `pg_current_snapshot()` (PostgreSQL ≥ 13,
+ * https://www.postgresql.org/docs/current/functions-info.html#FUNCTIONS-PG-SNAPSHOT): xmin, xmax and the
+ * transactions in progress. A transaction that commits between two probes either was in progress at the first
+ * (and has left the list at the second) or had no id yet (and the second's xmax is past it), so equal texts mean
+ * no commit in between, on every server process and machine; read-only transactions take no id and change nothing.
+ * The probe is one round trip on the pool, as the PRAGMA is one on the probe connection.
  */
 
 const MAX_ENTRIES = 512;
 
+type Version = number | string;
+
 interface Entry {
-  version: number;
+  version: Version;
   value: Promise<unknown>;
 }
 
 interface State {
   path: string;
-  probe: Promise<Database>;
+  /** The SQLite probe connection; null on PostgreSQL, whose probe runs on the pool. */
+  probe: Promise<Database> | null;
   entries: Map<string, Entry>;
 }
 
@@ -36,25 +47,44 @@ function openProbe(file: string): Promise<Database> {
 }
 
 function state(): State {
-  const file = databasePath();
+  const location = databaseLocation();
   const current = holder.__brinkwatchReadCache;
-  if (current && current.path === file) return current;
-  if (current)
+  if (current && current.path === location) return current;
+  if (current?.probe)
     void current.probe.then(
       (c) => c.close(),
       () => undefined,
     );
+  if (databaseDialect() === 'postgres') {
+    holder.__brinkwatchReadCache = { path: location, probe: null, entries: new Map() };
+    return holder.__brinkwatchReadCache;
+  }
+  const file = databasePath();
   const probe = openProbe(file);
   // A failed open is retried on the next read rather than remembered.
   probe.catch(() => {
     if (holder.__brinkwatchReadCache?.probe === probe) holder.__brinkwatchReadCache = undefined;
   });
-  holder.__brinkwatchReadCache = { path: file, probe, entries: new Map() };
+  holder.__brinkwatchReadCache = { path: location, probe, entries: new Map() };
   return holder.__brinkwatchReadCache;
 }
 
+/** PostgreSQL's current snapshot as text (see above); null when it cannot be read. */
+async function snapshotVersion(): Promise<string | null> {
+  // Imported here: models/db.ts imports this module to close it.
+  const { getSequelize } = await import('@/models/db');
+  const sequelize: Sequelize = getSequelize();
+  try {
+    const [row] = await sequelize.query<{ v: string }>('SELECT pg_current_snapshot()::text AS v', { type: QueryTypes.SELECT });
+    return row?.v ?? null;
+  } catch {
+    return null;
+  }
+}
+
 /** The database's change counter as seen from the probe connection; null when it cannot be read (then nothing is cached). */
-async function dataVersion(current: State): Promise<number | null> {
+async function dataVersion(current: State): Promise<Version | null> {
+  if (!current.probe) return snapshotVersion();
   const connection = await current.probe.catch(() => null);
   if (!connection) return null;
   return new Promise((resolve) =>
@@ -92,7 +122,7 @@ export async function cachedRead<T>(key: string, load: () => Promise<T>): Promis
 export async function closeReadCache(): Promise<void> {
   const current = holder.__brinkwatchReadCache;
   holder.__brinkwatchReadCache = undefined;
-  if (!current) return;
+  if (!current?.probe) return;
   const connection = await current.probe.catch(() => null);
   if (connection) await new Promise<void>((resolve) => connection.close(() => resolve()));
 }

@@ -1,6 +1,6 @@
 import crypto from 'node:crypto';
 import { Op, Transaction } from 'sequelize';
-import { IngestRun, Series, db, writeTransaction } from '@/models';
+import { IngestRun, Series, db, readTransaction, writeTransaction } from '@/models';
 import type { IngestSource, IngestStatus } from '@/models/IngestRun';
 import { recordAudit } from '@/lib/audit';
 import { acquireLease, PROCESS_HOLDER, releaseLease, withLease } from '@/lib/db/leases';
@@ -434,10 +434,7 @@ export async function previewObservations(series: Series, csv: string | Uint8Arr
     if (!(error instanceof CsvFileError)) throw error;
     return { layout: described, timeFormatGuess, mapping, sample, summary: null, fileError: { code: error.code, message: error.message } };
   }
-  const sequelize = await db();
-  const classified = await sequelize.transaction({ type: Transaction.TYPES.DEFERRED }, (transaction) =>
-    classifyAgainstStored(series.id, rows, connectionOf(transaction)),
-  );
+  const classified = await readTransaction((transaction) => classifyAgainstStored(series.id, rows, connectionOf(transaction)));
   let wouldAccept = 0;
   let duplicates = rows.duplicatesInInput;
   let conflicts = 0;
