@@ -1,7 +1,7 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import pg from 'pg';
-import sqlite3, { type Database } from 'sqlite3';
+import sqlite3 from 'sqlite3';
 import { Sequelize, Transaction } from 'sequelize';
 import { busyTimeoutMs, config, databaseDialect, databaseLocation, databasePath } from '@/lib/runtime/config';
 import { closeReadCache } from '@/lib/db/read-cache';
@@ -127,19 +127,4 @@ export async function readTransaction<T>(work: (transaction: Transaction) => Pro
   const sequelize = await databaseReady();
   if (sequelize.getDialect() !== 'postgres') return sequelize.transaction({ type: Transaction.TYPES.DEFERRED }, work);
   return sequelize.transaction({ isolationLevel: Transaction.ISOLATION_LEVELS.REPEATABLE_READ }, work);
-}
-
-/**
- * The process's shared sqlite3 handle, for hot reads of many rows (observation ranges) where building a Sequelize
- * result per row costs more than the query itself.
- */
-export async function rawReadConnection(): Promise<Database> {
-  const sequelize = await databaseReady();
-  const manager = sequelize.connectionManager as unknown as { getConnection(options: { uuid: string }): Promise<Database> };
-  return manager.getConnection({ uuid: 'default' });
-}
-
-/** `Database#all` as a promise. */
-export function allRows<T>(connection: Database, sql: string, params: unknown[]): Promise<T[]> {
-  return new Promise((resolve, reject) => connection.all(sql, params, (error, rows) => (error ? reject(error) : resolve(rows as T[]))));
 }

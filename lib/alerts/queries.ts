@@ -18,7 +18,7 @@ import {
 import { NotFoundError } from '@/lib/http/errors';
 import type { Actor } from '@/lib/auth/roles';
 import { cachedRead } from '@/lib/db/read-cache';
-import { sqlDate } from '@/lib/db/sql-date';
+import { isoFromSqlDate, sqlDate } from '@/lib/db/sql-date';
 import { presentRules } from './rules';
 import { allowedActions } from './triage';
 import type { AlertQueue, AlertQueueQuery } from '@/lib/schemas/alert';
@@ -178,15 +178,11 @@ async function loadAlertQueue(query: AlertQueueQuery, actor: Pick<Actor, 'id'>, 
     },
     evaluationCount: Number(r.evaluation_count),
     dismissReason: r.dismiss_reason as string | null,
-    createdAt: toIso(r.created_at),
-    updatedAt: toIso(r.updated_at),
-    closedAt: r.closed_at === null ? null : toIso(r.closed_at),
+    createdAt: isoFromSqlDate(r.created_at),
+    updatedAt: isoFromSqlDate(r.updated_at),
+    closedAt: r.closed_at === null ? null : isoFromSqlDate(r.closed_at),
   }));
   return { items, total, counts, page: query.page, pageSize: query.pageSize } satisfies AlertQueuePage;
-}
-
-function toIso(value: unknown): string {
-  return new Date(String(value).replace(' +00:00', 'Z').replace(' ', 'T')).toISOString();
 }
 
 /** How a detail carries its evidence snapshots' charts: full curves (the API) or the saved chart views (the page). */

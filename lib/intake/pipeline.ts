@@ -7,7 +7,7 @@ import { acquireLease, PROCESS_HOLDER, releaseLease, withLease } from '@/lib/db/
 import type { PushedObservation } from '@/lib/schemas/observation';
 import { CsvFileError, readCsv, type CsvInput, type CsvLayout } from './csv';
 import { collectCsvRows, collectPushedRows, type CollectedRows, type IntakeMapping, type RejectedRow } from './rows';
-import { classifyAgainstStored, conflictRejections, connectionOf, ROW_CONFLICT, ROW_DUPLICATE, ROW_NEW, writeRows } from './store';
+import { classifyAgainstStored, conflictRejections, ROW_CONFLICT, ROW_DUPLICATE, ROW_NEW, writeRows } from './store';
 import { guessTimeFormat, type TimeFormat } from './time-formats';
 import { enqueueWebhookEvent } from '@/lib/webhooks/outbox';
 import { rejectedRunPayload } from '@/lib/webhooks/payloads';
@@ -193,7 +193,7 @@ export async function storeCollected(
   started: number,
   context: { source: IngestSource; fileName?: string | null; actorId: number | null; tokenId: number | null; timeFormat: string },
 ): Promise<IngestOutcome> {
-  const classified = await classifyAgainstStored(series.id, rows, connectionOf(transaction));
+  const classified = await classifyAgainstStored(series.id, rows, transaction);
   const replace = series.duplicatePolicy === 'replace';
   const quality = await judgeIncoming(transaction, series, rows);
   const { inserted, replaced } = await writeRows(transaction, series.id, rows, classified, replace, run.id, quality);
@@ -434,7 +434,7 @@ export async function previewObservations(series: Series, csv: string | Uint8Arr
     if (!(error instanceof CsvFileError)) throw error;
     return { layout: described, timeFormatGuess, mapping, sample, summary: null, fileError: { code: error.code, message: error.message } };
   }
-  const classified = await readTransaction((transaction) => classifyAgainstStored(series.id, rows, connectionOf(transaction)));
+  const classified = await readTransaction((transaction) => classifyAgainstStored(series.id, rows, transaction));
   let wouldAccept = 0;
   let duplicates = rows.duplicatesInInput;
   let conflicts = 0;
