@@ -1,7 +1,7 @@
 import { spawn, type ChildProcess } from 'node:child_process';
 import path from 'node:path';
 import { assertConfig, dataDir, databasePath } from '@/lib/runtime/config';
-import { ensureAuthSecret } from '@/lib/runtime/secret';
+import { ensureAuthSecret, shareAuthSecret } from '@/lib/runtime/secret';
 import { buildIfNeeded } from '@/lib/runtime/build';
 import { startMailSink } from '@/lib/mail/sink';
 import { migrateUp } from '@/migrations';
@@ -19,7 +19,6 @@ const log = (line: string) => console.log(`[brinkwatch] ${line}`);
 async function main(): Promise<void> {
   const settings = assertConfig((line) => log(line));
   process.env.DATA_DIR = dataDir();
-  process.env.NEXTAUTH_SECRET = ensureAuthSecret();
   const port = settings.PORT;
   const host = settings.HOST;
   process.env.NEXTAUTH_URL ||= `http://localhost:${port}`;
@@ -27,6 +26,8 @@ async function main(): Promise<void> {
 
   const applied = await migrateUp();
   if (applied.length) log(`applied migrations: ${applied.join(', ')}`);
+  await shareAuthSecret();
+  process.env.NEXTAUTH_SECRET = ensureAuthSecret();
   const seeded = await seedIfEmpty({ demo: settings.SEED_DEMO, password });
   await closeDatabase();
   if (seeded) log('seeded the demo network');
