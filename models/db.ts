@@ -114,6 +114,8 @@ export async function writeTransaction<T>(work: (transaction: Transaction) => Pr
   const sequelize = await databaseReady();
   if (sequelize.getDialect() !== 'postgres') return sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, work);
   return sequelize.transaction(async (transaction) => {
+    // The wait is bounded as SQLite's busy timeout bounds it; lib/http/handler.ts answers 503 on either.
+    await sequelize.query(`SET LOCAL lock_timeout = ${Number(busyTimeoutMs())}`, { transaction });
     await sequelize.query(`SELECT pg_advisory_xact_lock(${WRITE_LOCK_KEY})`, { transaction });
     return work(transaction);
   });
