@@ -9,7 +9,7 @@ import { closeReadCache } from '@/lib/db/read-cache';
 type Cached = { sequelize: Sequelize; path: string; ready: Promise<void> };
 
 /** PostgreSQL's advisory lock key that every write transaction takes, so writers queue as they do on SQLite. */
-const WRITE_LOCK_KEY = 4_212_031_733;
+export const WRITE_LOCK_KEY = 4_212_031_733;
 
 // Counts, sums and BIGINT columns (instants in ms, ids) arrive from pg as strings; every one of them fits a double
 // exactly (instants and counts stay below 2^53), which is how SQLite hands them back too.

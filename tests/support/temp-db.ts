@@ -69,7 +69,11 @@ export function databaseUrlFor(dataDir: string): string | undefined {
  * never share a database.
  */
 export function useTempDataDir(prefix = 'bw-test-'): string {
-  const dir = fs.mkdtempSync(path.join(os.tmpdir(), prefix));
+  return useDataDir(fs.mkdtempSync(path.join(os.tmpdir(), prefix)));
+}
+
+/** Points this test file's process at `dir` and its database (the one a product started on `dir` uses too). */
+export function useDataDir(dir: string): string {
   process.env.DATA_DIR = dir;
   delete process.env.DATABASE_PATH;
   const url = databaseUrlFor(dir);
