@@ -51,6 +51,15 @@ const POSTGRES_FILES = [
   'tests/screens/reads.test.ts',
   'tests/sites/registry.test.ts',
   'tests/webhooks/delivery.test.ts',
+  // Files that start the product (the same production build as the SQLite project: one per source digest).
+  'tests/backtest/api.test.ts',
+  'tests/feeds/app.test.ts',
+  'tests/intake/app.test.ts',
+  'tests/reliability/api-tokens.test.ts',
+  'tests/reliability/headers.test.ts',
+  'tests/reliability/role-matrix.test.ts',
+  'tests/sites/api.test.ts',
+  'tests/webhooks/api.test.ts',
 ];
 
 const postgresUrl = process.env.BRINKWATCH_TEST_POSTGRES_URL;

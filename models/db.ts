@@ -10,6 +10,8 @@ type Cached = { sequelize: Sequelize; path: string; ready: Promise<void> };
 
 /** PostgreSQL's advisory lock key that every write transaction takes, so writers queue as they do on SQLite. */
 export const WRITE_LOCK_KEY = 4_212_031_733;
+/** Tries at the write lock on PostgreSQL, as many as SQLite's busy retries. */
+const WRITE_LOCK_ATTEMPTS = 5;
 
 // Counts, sums and BIGINT columns (instants in ms, ids) arrive from pg as strings; every one of them fits a double
 // exactly (instants and counts stay below 2^53), which is how SQLite hands them back too.
@@ -113,12 +115,23 @@ export async function closeDatabase(): Promise<void> {
 export async function writeTransaction<T>(work: (transaction: Transaction) => Promise<T>): Promise<T> {
   const sequelize = await databaseReady();
   if (sequelize.getDialect() !== 'postgres') return sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, work);
-  return sequelize.transaction(async (transaction) => {
-    // The wait is bounded as SQLite's busy timeout bounds it; lib/http/handler.ts answers 503 on either.
-    await sequelize.query(`SET LOCAL lock_timeout = ${Number(busyTimeoutMs())}`, { transaction });
-    await sequelize.query(`SELECT pg_advisory_xact_lock(${WRITE_LOCK_KEY})`, { transaction });
-    return work(transaction);
-  });
+  // As SQLite's busy waits are retried (`retry` above), a wait for the write lock that timed out is tried again, up to
+  // the same number of times; only then, since nothing of `work` has run yet, is it safe to start over.
+  for (let attempt = 1; ; attempt++) {
+    let locked = false;
+    try {
+      return await sequelize.transaction(async (transaction) => {
+        // The wait is bounded as SQLite's busy timeout bounds it; lib/http/handler.ts answers 503 on either.
+        await sequelize.query(`SET LOCAL lock_timeout = ${Number(busyTimeoutMs())}`, { transaction });
+        await sequelize.query(`SELECT pg_advisory_xact_lock(${WRITE_LOCK_KEY})`, { transaction });
+        locked = true;
+        return work(transaction);
+      });
+    } catch (error) {
+      const timedOut = (error as { parent?: { code?: string } }).parent?.code === '55P03';
+      if (locked || !timedOut || attempt >= WRITE_LOCK_ATTEMPTS) throw error;
+    }
+  }
 }
 
 /**

@@ -78,7 +78,7 @@ export interface AlertQueuePage {
 function where(query: Omit<AlertQueueQuery, 'page' | 'pageSize' | 'sort'>, actor: Pick<Actor, 'id'>, queue: AlertQueue, now: number) {
   const states = query.state ? QUEUE_STATES[queue].filter((s) => s === query.state) : QUEUE_STATES[queue];
   // Every state = no condition, which leaves the planner free to walk the created_at index in order.
-  const clauses = [states.length === ALERT_STATES.length ? '1' : states.length ? `a.state IN (${states.map((s) => `'${s}'`).join(', ')})` : '0'];
+  const clauses = [states.length === ALERT_STATES.length ? 'TRUE' : states.length ? `a.state IN (${states.map((s) => `'${s}'`).join(', ')})` : 'FALSE'];
   const replacements: Record<string, unknown> = {};
   if (queue === 'mine') {
     clauses.push('a.assignee_id = :me');

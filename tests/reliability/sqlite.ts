@@ -1,5 +1,5 @@
 import path from 'node:path';
-import { Client } from 'pg';
+import { Client, types } from 'pg';
 import sqlite3 from 'sqlite3';
 import { databaseUrlFor } from '../support/temp-db';
 
@@ -26,6 +26,9 @@ function sqliteBackend(handle: sqlite3.Database): Backend {
     close: () => new Promise((resolve, reject) => handle.close((error) => (error ? reject(error) : resolve()))),
   };
 }
+
+// COUNT(*) and BIGINT columns as numbers, as SQLite answers them (and as the product reads them: models/db.ts).
+types.setTypeParser(types.builtins.INT8, (value) => Number(value));
 
 function postgresBackend(client: Client): Backend {
   let n = 0;
