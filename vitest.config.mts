@@ -53,11 +53,16 @@ const POSTGRES_FILES = [
   'tests/webhooks/delivery.test.ts',
   // Files that start the product (the same production build as the SQLite project: one per source digest).
   'tests/backtest/api.test.ts',
+  'tests/browser/registration.test.ts',
+  'tests/demo/live-feed.test.ts',
   'tests/feeds/app.test.ts',
+  'tests/foundation/server.test.ts',
   'tests/intake/app.test.ts',
+  'tests/reliability/accounts.test.ts',
   'tests/reliability/api-tokens.test.ts',
   'tests/reliability/headers.test.ts',
   'tests/reliability/role-matrix.test.ts',
+  'tests/rules/watchers.test.ts',
   'tests/sites/api.test.ts',
   'tests/webhooks/api.test.ts',
 ];
