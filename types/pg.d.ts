@@ -14,6 +14,7 @@ declare module 'pg' {
   export class Client implements PoolClient {
     constructor(connectionString?: string | { connectionString: string });
     connect(): Promise<void>;
+    on(event: 'error', listener: (error: Error) => void): this;
     end(): Promise<void>;
     query<R = Record<string, unknown>>(sql: string, values?: unknown[]): Promise<QueryResult<R>>;
   }

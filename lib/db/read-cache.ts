@@ -1,5 +1,5 @@
 import sqlite3, { type Database } from 'sqlite3';
-import { QueryTypes, type Sequelize } from 'sequelize';
+import { Client } from 'pg';
 import { busyTimeoutMs, databaseDialect, databaseLocation, databasePath } from '@/lib/runtime/config';
 
 /**
@@ -17,7 +17,7 @@ import { busyTimeoutMs, databaseDialect, databaseLocation, databasePath } from '
  * transactions in progress. A transaction that commits between two probes either was in progress at the first
  * (and has left the list at the second) or had no id yet (and the second's xmax is past it), so equal texts mean
  * no commit in between, on every server process and machine; read-only transactions take no id and change nothing.
- * The probe is one round trip on the pool, as the PRAGMA is one on the probe connection.
+ * The probe runs on a connection of its own, as on SQLite.
  */
 
 const MAX_ENTRIES = 512;
@@ -29,67 +29,81 @@ interface Entry {
   value: Promise<unknown>;
 }
 
+/** A connection of its own that reads the database's change marker; it never writes. */
+interface Probe {
+  version(): Promise<Version | null>;
+  close(): Promise<void>;
+}
+
 interface State {
   path: string;
-  /** The SQLite probe connection; null on PostgreSQL, whose probe runs on the pool. */
-  probe: Promise<Database> | null;
+  probe: Promise<Probe>;
   entries: Map<string, Entry>;
 }
 
 const holder = globalThis as unknown as { __brinkwatchReadCache?: State };
 
-function openProbe(file: string): Promise<Database> {
+function sqliteProbe(file: string): Promise<Probe> {
   return new Promise((resolve, reject) => {
     // Opened read-write only so SQLite can share the WAL index; this connection never writes.
-    const connection = new sqlite3.Database(file, sqlite3.OPEN_READWRITE, (error) => (error ? reject(error) : resolve(connection)));
+    const connection: Database = new sqlite3.Database(file, sqlite3.OPEN_READWRITE, (error) =>
+      error
+        ? reject(error)
+        : resolve({
+            version: () =>
+              new Promise((answer) =>
+                connection.get('PRAGMA data_version', (failure, row: { data_version: number } | undefined) =>
+                  answer(failure || !row ? null : Number(row.data_version)),
+                ),
+              ),
+            close: () => new Promise((closed) => connection.close(() => closed())),
+          }),
+    );
     connection.configure('busyTimeout', busyTimeoutMs());
   });
+}
+
+async function postgresProbe(url: string, forget: () => void): Promise<Probe> {
+  const client = new Client(url);
+  // A connection the server closed is replaced at the next read; meanwhile nothing is cached.
+  client.on('error', forget);
+  await client.connect();
+  return {
+    version: async () => {
+      try {
+        return (await client.query<{ v: string }>('SELECT pg_current_snapshot()::text AS v')).rows[0]?.v ?? null;
+      } catch {
+        forget();
+        return null;
+      }
+    },
+    close: () => client.end().catch(() => undefined),
+  };
 }
 
 function state(): State {
   const location = databaseLocation();
   const current = holder.__brinkwatchReadCache;
   if (current && current.path === location) return current;
-  if (current?.probe)
+  if (current)
     void current.probe.then(
-      (c) => c.close(),
+      (p) => p.close(),
       () => undefined,
     );
-  if (databaseDialect() === 'postgres') {
-    holder.__brinkwatchReadCache = { path: location, probe: null, entries: new Map() };
-    return holder.__brinkwatchReadCache;
-  }
-  const file = databasePath();
-  const probe = openProbe(file);
-  // A failed open is retried on the next read rather than remembered.
-  probe.catch(() => {
+  const forget = () => {
     if (holder.__brinkwatchReadCache?.probe === probe) holder.__brinkwatchReadCache = undefined;
-  });
+  };
+  const probe = databaseDialect() === 'postgres' ? postgresProbe(location, forget) : sqliteProbe(databasePath());
+  // A failed open is retried on the next read rather than remembered.
+  probe.catch(forget);
   holder.__brinkwatchReadCache = { path: location, probe, entries: new Map() };
   return holder.__brinkwatchReadCache;
 }
 
-/** PostgreSQL's current snapshot as text (see above); null when it cannot be read. */
-async function snapshotVersion(): Promise<string | null> {
-  // Imported here: models/db.ts imports this module to close it.
-  const { getSequelize } = await import('@/models/db');
-  const sequelize: Sequelize = getSequelize();
-  try {
-    const [row] = await sequelize.query<{ v: string }>('SELECT pg_current_snapshot()::text AS v', { type: QueryTypes.SELECT });
-    return row?.v ?? null;
-  } catch {
-    return null;
-  }
-}
-
-/** The database's change counter as seen from the probe connection; null when it cannot be read (then nothing is cached). */
+/** The database's change marker as seen from the probe connection; null when it cannot be read (then nothing is cached). */
 async function dataVersion(current: State): Promise<Version | null> {
-  if (!current.probe) return snapshotVersion();
-  const connection = await current.probe.catch(() => null);
-  if (!connection) return null;
-  return new Promise((resolve) =>
-    connection.get('PRAGMA data_version', (error, row: { data_version: number } | undefined) => resolve(error || !row ? null : Number(row.data_version))),
-  );
+  const probe = await current.probe.catch(() => null);
+  return probe ? probe.version() : null;
 }
 
 /**
@@ -122,7 +136,7 @@ export async function cachedRead<T>(key: string, load: () => Promise<T>): Promis
 export async function closeReadCache(): Promise<void> {
   const current = holder.__brinkwatchReadCache;
   holder.__brinkwatchReadCache = undefined;
-  if (!current?.probe) return;
-  const connection = await current.probe.catch(() => null);
-  if (connection) await new Promise<void>((resolve) => connection.close(() => resolve()));
+  if (!current) return;
+  const probe = await current.probe.catch(() => null);
+  if (probe) await probe.close();
 }
