@@ -55,6 +55,9 @@ const POSTGRES_FILES = [
   'tests/alerts/e2e.test.ts',
   'tests/backtest/api.test.ts',
   'tests/browser/registration.test.ts',
+  'tests/browser/reports.test.ts',
+  'tests/browser/rules.test.ts',
+  'tests/browser/screens.test.ts',
   'tests/demo/live-feed.test.ts',
   'tests/feeds/app.test.ts',
   'tests/foundation/server.test.ts',
@@ -70,6 +73,7 @@ const POSTGRES_FILES = [
   'tests/rules/watchers.test.ts',
   'tests/sites/api.test.ts',
   'tests/webhooks/api.test.ts',
+  'tests/webhooks/screen.test.ts',
 ];
 
 const postgresUrl = process.env.BRINKWATCH_TEST_POSTGRES_URL;
