@@ -54,10 +54,13 @@ const POSTGRES_FILES = [
   // Files that start the product (the same production build as the SQLite project: one per source digest).
   'tests/alerts/e2e.test.ts',
   'tests/backtest/api.test.ts',
+  'tests/browser/journey.test.ts',
+  'tests/browser/live-demo.test.ts',
   'tests/browser/registration.test.ts',
   'tests/browser/reports.test.ts',
   'tests/browser/rules.test.ts',
   'tests/browser/screens.test.ts',
+  'tests/browser/station-data.test.ts',
   'tests/demo/live-feed.test.ts',
   'tests/feeds/app.test.ts',
   'tests/foundation/server.test.ts',
