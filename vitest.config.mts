@@ -11,7 +11,8 @@ const ROOT = path.dirname(fileURLToPath(import.meta.url));
  * file gets a database of its own there (tests/support/temp-db.ts). Unit tests without a database run once. Not
  * listed: tests/alerts/migration-0007.test.ts and tests/backtest/migration-0009.test.ts, which upgrade SQLite
  * databases of an old schema (PostgreSQL is supported from the current schema on; migrations.test.ts runs every
- * migration up, down and up on it).
+ * migration up, down and up on it), and tests/reliability/backup.test.ts (SQLite's VACUUM INTO; PostgreSQL is
+ * backed up with pg_dump).
  */
 const POSTGRES_FILES = [
   // Files that use the database without starting the product.
