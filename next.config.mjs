@@ -24,7 +24,7 @@ const nextConfig = {
   typescript: { ignoreBuildErrors: true, tsconfigPath: generatedTsconfig },
   distDir: process.env.NEXT_DIST_DIR || '.next',
   // h5wasm (netCDF-4 intake) is an Emscripten build that loads its WebAssembly beside itself: Node loads it, unbundled.
-  serverExternalPackages: ['sequelize', 'sqlite3', 'umzug', 'smtp-server', 'nodemailer', 'bcryptjs', 'h5wasm'],
+  serverExternalPackages: ['sequelize', 'sqlite3', 'pg', 'pg-hstore', 'umzug', 'smtp-server', 'nodemailer', 'bcryptjs', 'h5wasm'],
   async headers() {
     return [
       { source: '/:path*', headers: securityHeaders },

@@ -1,5 +1,6 @@
 import cron from 'node-cron';
 import { assertConfig } from '@/lib/runtime/config';
+import { shareAuthSecret } from '@/lib/runtime/secret';
 import { migrateUp } from '@/migrations';
 import { closeDatabase } from '@/models';
 import { writeAppState } from '@/lib/db/app-state';
@@ -20,6 +21,7 @@ function log(message: string): void {
 async function main(): Promise<void> {
   assertConfig(log);
   await migrateUp();
+  await shareAuthSecret();
   const beat = () => writeAppState(SCHEDULER_HEARTBEAT_KEY, PROCESS_HOLDER).catch((e) => log(`heartbeat failed: ${e}`));
   await beat();
   const heartbeat = setInterval(beat, HEARTBEAT_MS);

@@ -1,4 +1,5 @@
 import { DataTypes, QueryTypes, type QueryInterface } from 'sequelize';
+import { isPostgres } from '@/lib/db/dialect';
 
 /**
  * Rules say which way they look, Kendall p stops being a gate, and alerts gain a kind.
@@ -24,7 +25,7 @@ import { DataTypes, QueryTypes, type QueryInterface } from 'sequelize';
  *
  * SQLite cannot drop NOT NULL from a column in place, so `alerts` is rebuilt by the procedure of
  * https://www.sqlite.org/lang_altertable.html#otheralter (foreign keys off, new table, copy, drop, rename, the
- * indexes re-created from their stored SQL, foreign-key check).
+ * indexes re-created from their stored SQL, foreign-key check). PostgreSQL alters the columns in place.
  */
 const MAX_KENDALL_KEY = 'migration-0007.max-kendall-p';
 
@@ -86,15 +87,21 @@ export async function up({ context: q }: { context: QueryInterface }): Promise<v
   await q.addColumn('rule_evaluations', 'direction', { type: DataTypes.STRING, allowNull: true });
   await s.query(`UPDATE rule_evaluations SET direction = 'rising'`);
 
-  await rebuildAlerts(
-    q,
-    (sql) => {
-      const relaxed = sql.replace(/(`rule_id` INTEGER) NOT NULL/, '$1');
-      if (relaxed === sql) throw new Error('alerts.rule_id definition not found');
-      return relaxed.replace(/\)\s*$/, ", `kind` VARCHAR(255) NOT NULL DEFAULT 'slowing-down', `shift_time` BIGINT, `shift_size` DOUBLE PRECISION)");
-    },
-    OLD_ALERT_COLUMNS,
-  );
+  if (isPostgres(s)) {
+    await s.query(
+      `ALTER TABLE alerts ALTER COLUMN rule_id DROP NOT NULL, ADD COLUMN kind VARCHAR(255) NOT NULL DEFAULT 'slowing-down', ADD COLUMN shift_time BIGINT, ADD COLUMN shift_size DOUBLE PRECISION`,
+    );
+  } else {
+    await rebuildAlerts(
+      q,
+      (sql) => {
+        const relaxed = sql.replace(/(`rule_id` INTEGER) NOT NULL/, '$1');
+        if (relaxed === sql) throw new Error('alerts.rule_id definition not found');
+        return relaxed.replace(/\)\s*$/, ", `kind` VARCHAR(255) NOT NULL DEFAULT 'slowing-down', `shift_time` BIGINT, `shift_size` DOUBLE PRECISION)");
+      },
+      OLD_ALERT_COLUMNS,
+    );
+  }
   await q.addIndex('alerts', ['series_id', 'shift_time'], { unique: true, name: 'alerts_one_per_shift', where: { kind: 'abrupt-shift' } });
 }
 
@@ -108,14 +115,18 @@ export async function down({ context: q }: { context: QueryInterface }): Promise
   await s.query(`UPDATE rule_evaluations SET alert_id = NULL WHERE alert_id IN (${shiftAlerts})`);
   await s.query(`DELETE FROM alerts WHERE kind = 'abrupt-shift'`);
   await q.removeIndex('alerts', 'alerts_one_per_shift');
-  await rebuildAlerts(
-    q,
-    (sql) =>
-      sql
-        .replace(/`rule_id` INTEGER(?! NOT NULL)/, '`rule_id` INTEGER NOT NULL')
-        .replace(/,\s*`kind` VARCHAR\(255\) NOT NULL DEFAULT 'slowing-down', `shift_time` BIGINT, `shift_size` DOUBLE PRECISION\)\s*$/, ')'),
-    OLD_ALERT_COLUMNS,
-  );
+  if (isPostgres(s)) {
+    await s.query('ALTER TABLE alerts DROP COLUMN kind, DROP COLUMN shift_time, DROP COLUMN shift_size, ALTER COLUMN rule_id SET NOT NULL');
+  } else {
+    await rebuildAlerts(
+      q,
+      (sql) =>
+        sql
+          .replace(/`rule_id` INTEGER(?! NOT NULL)/, '`rule_id` INTEGER NOT NULL')
+          .replace(/,\s*`kind` VARCHAR\(255\) NOT NULL DEFAULT 'slowing-down', `shift_time` BIGINT, `shift_size` DOUBLE PRECISION\)\s*$/, ')'),
+      OLD_ALERT_COLUMNS,
+    );
+  }
   // Native DROP COLUMN (SQLite ≥ 3.35) keeps the table's indexes, which a rebuild by the query interface would not.
   await s.query('ALTER TABLE rule_evaluations DROP COLUMN direction');
   const [saved] = await s.query<{ value: string }>('SELECT value FROM app_state WHERE key = :key', {

@@ -1,4 +1,5 @@
 import { type QueryInterface } from 'sequelize';
+import { jsonText, textJson } from '@/lib/db/dialect';
 
 /**
  * "Transition" named two things: an instant a lead marks on a record (a tipping point of the system, or a
@@ -26,7 +27,8 @@ const JSON_RENAMES: [table: string, column: string, from: string, to: string][] 
 async function renameInJson(q: QueryInterface, way: 'up' | 'down'): Promise<void> {
   for (const [table, column, before, after] of JSON_RENAMES) {
     const [from, to] = way === 'up' ? [before, after] : [after, before];
-    await q.sequelize.query(`UPDATE ${table} SET ${column} = REPLACE(${column}, :from, :to) WHERE ${column} LIKE :like`, {
+    const text = jsonText(q.sequelize, column);
+    await q.sequelize.query(`UPDATE ${table} SET ${column} = ${textJson(q.sequelize, `REPLACE(${text}, :from, :to)`)} WHERE ${text} LIKE :like`, {
       replacements: { from, to, like: `%${from}%` },
     });
   }

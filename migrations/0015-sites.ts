@@ -27,7 +27,7 @@ export async function up({ context: q }: { context: QueryInterface }): Promise<v
   const names = await s.query<{ site: string; time_zone: string }>(
     `SELECT site, time_zone FROM (
        SELECT TRIM(site) AS site, time_zone, ROW_NUMBER() OVER (PARTITION BY TRIM(site) ORDER BY COUNT(*) DESC, time_zone) AS rank
-       FROM series WHERE TRIM(site) <> '' GROUP BY TRIM(site), time_zone)
+       FROM series WHERE TRIM(site) <> '' GROUP BY TRIM(site), time_zone) AS ranked
      WHERE rank = 1 ORDER BY site`,
     { type: QueryTypes.SELECT },
   );

@@ -1,6 +1,9 @@
 import { Umzug, SequelizeStorage } from 'umzug';
 import type { QueryInterface } from 'sequelize';
+import pg from 'pg';
 import { db } from '@/models';
+import { isPostgres } from '@/lib/db/dialect';
+import { databaseLocation } from '@/lib/runtime/config';
 import * as initial from './0001-initial';
 import * as alertQueues from './0002-alert-queues-and-outbox-claims';
 import * as alertAge from './0003-alert-age-index';
@@ -64,8 +67,29 @@ async function migrator(): Promise<Umzug<QueryInterface>> {
  * the schema is current, so it is safe at every start.
  */
 export async function migrateUp(to?: string): Promise<string[]> {
-  const applied = await (await migrator()).up(to ? { to } : undefined);
-  return applied.map((m) => m.name);
+  return oneMigratorAtATime(async () => (await (await migrator()).up(to ? { to } : undefined)).map((m) => m.name));
+}
+
+/** PostgreSQL's session advisory lock key that a process applying migrations holds. */
+const MIGRATION_LOCK_KEY = 4_212_031_734;
+
+/**
+ * Every web node and scheduler applies pending migrations at start. On SQLite they share one machine and the write
+ * lock; on PostgreSQL several may start at once on several machines, so each holds a session advisory lock (on a
+ * connection of its own, since the pool's connections change hands) while it migrates, and the next finds nothing
+ * left to do.
+ */
+async function oneMigratorAtATime<T>(work: () => Promise<T>): Promise<T> {
+  const sequelize = await db();
+  if (!isPostgres(sequelize)) return work();
+  const client = new pg.Client(databaseLocation());
+  await client.connect();
+  try {
+    await client.query(`SELECT pg_advisory_lock(${MIGRATION_LOCK_KEY})`);
+    return await work();
+  } finally {
+    await client.end();
+  }
 }
 
 /** Reverts migrations down to (and excluding) `to`, or all of them. */

@@ -1,11 +1,22 @@
 import fs from 'node:fs';
 import path from 'node:path';
-import sqlite3, { type Database } from 'sqlite3';
+import pg from 'pg';
+import sqlite3 from 'sqlite3';
 import { Sequelize, Transaction } from 'sequelize';
-import { busyTimeoutMs, config, databasePath } from '@/lib/runtime/config';
+import { busyTimeoutMs, config, databaseDialect, databaseLocation, databasePath } from '@/lib/runtime/config';
 import { closeReadCache } from '@/lib/db/read-cache';
 
 type Cached = { sequelize: Sequelize; path: string; ready: Promise<void> };
+
+/** PostgreSQL's advisory lock key that every write transaction takes, so writers queue as they do on SQLite. */
+export const WRITE_LOCK_KEY = 4_212_031_733;
+/** Tries at the write lock on PostgreSQL, as many as SQLite's busy retries. */
+const WRITE_LOCK_ATTEMPTS = 5;
+
+// Counts, sums and BIGINT columns (instants in ms, ids) arrive from pg as strings; every one of them fits a double
+// exactly (instants and counts stay below 2^53), which is how SQLite hands them back too.
+pg.types.setTypeParser(pg.types.builtins.INT8, (value) => Number(value));
+pg.types.setTypeParser(pg.types.builtins.NUMERIC, (value) => Number(value));
 const globalCache = globalThis as unknown as { __brinkwatchDb?: Cached };
 
 interface RawSqliteConnection {
@@ -33,11 +44,33 @@ function applyBusyTimeout(sequelize: Sequelize): void {
   };
 }
 
-/** The one Sequelize instance of this process (cached on globalThis so dev reloads and test files share it per path). */
+function openPostgres(url: string): Cached {
+  const sequelize = new Sequelize(url, {
+    dialect: 'postgres',
+    dialectModule: pg,
+    logging: config().DB_LOG ? console.log : false,
+    define: { underscored: true },
+    pool: { max: 10, min: 0, idle: 10_000, acquire: 60_000 },
+  });
+  const ready = sequelize.query('SELECT 1').then(() => undefined);
+  // An unreachable server is reported by the caller's first query; the probe's own failure is not an unhandled one.
+  ready.catch(() => undefined);
+  return { sequelize, path: url, ready };
+}
+
+/**
+ * The one Sequelize instance of this process (cached on globalThis so dev reloads and test files share it per
+ * database): PostgreSQL when DATABASE_URL is set, else the SQLite file.
+ */
 export function getSequelize(): Sequelize {
-  const file = databasePath();
+  const location = databaseLocation();
   const cached = globalCache.__brinkwatchDb;
-  if (cached && cached.path === file) return cached.sequelize;
+  if (cached && cached.path === location) return cached.sequelize;
+  if (databaseDialect() === 'postgres') {
+    globalCache.__brinkwatchDb = openPostgres(location);
+    return globalCache.__brinkwatchDb.sequelize;
+  }
+  const file = databasePath();
   fs.mkdirSync(path.dirname(file), { recursive: true });
   const sequelize = new Sequelize({
     dialect: 'sqlite',
@@ -56,7 +89,7 @@ export function getSequelize(): Sequelize {
   return sequelize;
 }
 
-/** Resolves once the connection pragmas (WAL, synchronous) are set. */
+/** Resolves once the connection pragmas (WAL, synchronous) are set, or PostgreSQL answered. */
 export async function databaseReady(): Promise<Sequelize> {
   const sequelize = getSequelize();
   await globalCache.__brinkwatchDb!.ready;
@@ -75,24 +108,38 @@ export async function closeDatabase(): Promise<void> {
 
 /**
  * Runs `work` in an IMMEDIATE transaction: SQLite takes the write lock at BEGIN, so two writers queue on the busy
- * timeout instead of one failing on lock upgrade half-way through.
+ * timeout instead of one failing on lock upgrade half-way through. On PostgreSQL the same guarantee (what a write
+ * transaction read is still true when it commits, because no other write transaction runs meanwhile) comes from one
+ * transaction-scoped advisory lock every write transaction takes first (released at COMMIT or ROLLBACK).
  */
 export async function writeTransaction<T>(work: (transaction: Transaction) => Promise<T>): Promise<T> {
   const sequelize = await databaseReady();
-  return sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, work);
+  if (sequelize.getDialect() !== 'postgres') return sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, work);
+  // As SQLite's busy waits are retried (`retry` above), a wait for the write lock that timed out is tried again, up to
+  // the same number of times; only then, since nothing of `work` has run yet, is it safe to start over.
+  for (let attempt = 1; ; attempt++) {
+    let locked = false;
+    try {
+      return await sequelize.transaction(async (transaction) => {
+        // The wait is bounded as SQLite's busy timeout bounds it; lib/http/handler.ts answers 503 on either.
+        await sequelize.query(`SET LOCAL lock_timeout = ${Number(busyTimeoutMs())}`, { transaction });
+        await sequelize.query(`SELECT pg_advisory_xact_lock(${WRITE_LOCK_KEY})`, { transaction });
+        locked = true;
+        return work(transaction);
+      });
+    } catch (error) {
+      const timedOut = (error as { parent?: { code?: string } }).parent?.code === '55P03';
+      if (locked || !timedOut || attempt >= WRITE_LOCK_ATTEMPTS) throw error;
+    }
+  }
 }
 
 /**
- * The process's shared sqlite3 handle, for hot reads of many rows (observation ranges) where building a Sequelize
- * result per row costs more than the query itself.
+ * Runs `work` in a read transaction that sees one moment of the database: SQLite's DEFERRED transaction (a read
+ * snapshot from its first read on), PostgreSQL's REPEATABLE READ (a snapshot from its first statement on).
  */
-export async function rawReadConnection(): Promise<Database> {
+export async function readTransaction<T>(work: (transaction: Transaction) => Promise<T>): Promise<T> {
   const sequelize = await databaseReady();
-  const manager = sequelize.connectionManager as unknown as { getConnection(options: { uuid: string }): Promise<Database> };
-  return manager.getConnection({ uuid: 'default' });
-}
-
-/** `Database#all` as a promise. */
-export function allRows<T>(connection: Database, sql: string, params: unknown[]): Promise<T[]> {
-  return new Promise((resolve, reject) => connection.all(sql, params, (error, rows) => (error ? reject(error) : resolve(rows as T[]))));
+  if (sequelize.getDialect() !== 'postgres') return sequelize.transaction({ type: Transaction.TYPES.DEFERRED }, work);
+  return sequelize.transaction({ isolationLevel: Transaction.ISOLATION_LEVELS.REPEATABLE_READ }, work);
 }

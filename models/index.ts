@@ -1,5 +1,5 @@
 import type { Sequelize, Transaction } from 'sequelize';
-import { databaseReady, getSequelize, writeTransaction as writeInTransaction } from './db';
+import { databaseReady, getSequelize, readTransaction as readInTransaction, writeTransaction as writeInTransaction } from './db';
 import * as M from './all';
 
 const initialised = new WeakSet<Sequelize>();
@@ -69,6 +69,12 @@ export * from './all';
 export async function writeTransaction<T>(work: (transaction: Transaction) => Promise<T>): Promise<T> {
   await db();
   return writeInTransaction(work);
+}
+
+/** `readTransaction` of models/db.ts (one moment of the database) with the models bound first. */
+export async function readTransaction<T>(work: (transaction: Transaction) => Promise<T>): Promise<T> {
+  await db();
+  return readInTransaction(work);
 }
 
 export { closeDatabase } from './db';

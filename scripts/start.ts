@@ -1,7 +1,7 @@
 import { spawn, type ChildProcess } from 'node:child_process';
 import path from 'node:path';
-import { assertConfig, dataDir, databasePath } from '@/lib/runtime/config';
-import { ensureAuthSecret } from '@/lib/runtime/secret';
+import { assertConfig, config, dataDir, databaseDialect, databasePath } from '@/lib/runtime/config';
+import { ensureAuthSecret, shareAuthSecret } from '@/lib/runtime/secret';
 import { buildIfNeeded } from '@/lib/runtime/build';
 import { startMailSink } from '@/lib/mail/sink';
 import { migrateUp } from '@/migrations';
@@ -9,6 +9,12 @@ import { closeDatabase } from '@/models';
 import { DEMO_USERS, seedIfEmpty } from '@/lib/demo/seed';
 
 const ROOT = process.cwd();
+
+/** Where the PostgreSQL server is, without the credentials DATABASE_URL may carry. */
+function databaseHost(): string {
+  const url = new URL(config().DATABASE_URL!);
+  return `${url.host}${url.pathname}`;
+}
 const log = (line: string) => console.log(`[brinkwatch] ${line}`);
 
 /**
@@ -19,7 +25,6 @@ const log = (line: string) => console.log(`[brinkwatch] ${line}`);
 async function main(): Promise<void> {
   const settings = assertConfig((line) => log(line));
   process.env.DATA_DIR = dataDir();
-  process.env.NEXTAUTH_SECRET = ensureAuthSecret();
   const port = settings.PORT;
   const host = settings.HOST;
   process.env.NEXTAUTH_URL ||= `http://localhost:${port}`;
@@ -27,6 +32,8 @@ async function main(): Promise<void> {
 
   const applied = await migrateUp();
   if (applied.length) log(`applied migrations: ${applied.join(', ')}`);
+  await shareAuthSecret();
+  process.env.NEXTAUTH_SECRET = ensureAuthSecret();
   const seeded = await seedIfEmpty({ demo: settings.SEED_DEMO, password });
   await closeDatabase();
   if (seeded) log('seeded the demo network');
@@ -78,7 +85,7 @@ async function main(): Promise<void> {
   process.on('SIGINT', () => stop(0));
   process.on('SIGTERM', () => stop(0));
 
-  log(`database ${databasePath()}`);
+  log(`database ${databaseDialect() === 'postgres' ? `PostgreSQL ${databaseHost()}` : databasePath()}`);
   log(`open http://localhost:${port}  — demo accounts (password from DEMO_PASSWORD, default "brinkwatch-demo"):`);
   for (const user of DEMO_USERS) log(`  ${user.role.padEnd(8)} ${user.email}`);
 }

@@ -261,7 +261,7 @@ export async function fdrFamilyOutside(except: Set<number>): Promise<PortfolioEn
     `SELECT r.id AS rule_id, r.series_id, r.fdr_level,
        (SELECT e.surrogate_p FROM rule_evaluations e WHERE e.rule_id = r.id ORDER BY e.snapshot_id DESC LIMIT 1) AS surrogate_p
      FROM alert_rules r JOIN series s ON s.id = r.series_id AND s.retired_at IS NULL
-     WHERE r.active = 1 AND r.fdr_level IS NOT NULL`,
+     WHERE r.active AND r.fdr_level IS NOT NULL`,
     { type: QueryTypes.SELECT },
   );
   return rows

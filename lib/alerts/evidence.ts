@@ -1,5 +1,6 @@
 import { QueryTypes, type Transaction } from 'sequelize';
 import { AlertRule, AnalysisSnapshot, Series, WITHOUT_CHARTS, db, type Alert } from '@/models';
+import { jsonPath } from '@/lib/db/dialect';
 import { latestRuleCalibration, type RuleCalibration } from '@/lib/backtest/jobs';
 import type { AlertEvidence } from '@/lib/mail/templates';
 import { presentRule } from './rules';
@@ -129,11 +130,14 @@ export async function alertEvidence(alert: Alert, transaction?: Transaction): Pr
   return evidenceFrom(alert, series, rule, snapshot, alert.ruleId === null ? null : (calibrations.get(alert.ruleId) ?? null), taus);
 }
 
-/** Surrogate taus of one indicator kept in a snapshot's curves, read inside SQLite (no parse of the whole curves); null when pruned. */
+/** Surrogate taus of one indicator kept in a snapshot's curves, read inside the database (no parse of the whole curves); null when pruned. */
 export async function snapshotTaus(snapshotId: number, indicator: string, transaction?: Transaction): Promise<number[] | null> {
   const sequelize = await db();
-  const [row] = await sequelize.query<{ taus: string | null }>(`SELECT json_extract(curves, :path) AS taus FROM analysis_snapshots WHERE id = :id`, {
-    replacements: { id: snapshotId, path: `$.surrogateTaus.${indicator}` },
+  // The indicator's name goes into the path literal; names are identifiers from the engine's list.
+  if (!/^[A-Za-z0-9_-]+$/.test(indicator)) return null;
+  const taus = jsonPath(sequelize, 'curves', `$.surrogateTaus.${indicator}`);
+  const [row] = await sequelize.query<{ taus: string | null }>(`SELECT ${taus} AS taus FROM analysis_snapshots WHERE id = :id`, {
+    replacements: { id: snapshotId },
     type: QueryTypes.SELECT,
     transaction,
   });

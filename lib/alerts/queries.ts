@@ -1,4 +1,4 @@
-import { QueryTypes, Transaction } from 'sequelize';
+import { QueryTypes } from 'sequelize';
 import {
   ALERT_STATES,
   Alert,
@@ -11,13 +11,14 @@ import {
   Series,
   User,
   db,
+  readTransaction,
   type AlertKind,
   type AlertState,
 } from '@/models';
 import { NotFoundError } from '@/lib/http/errors';
 import type { Actor } from '@/lib/auth/roles';
 import { cachedRead } from '@/lib/db/read-cache';
-import { sqlDate } from '@/lib/db/sql-date';
+import { isoFromSqlDate, sqlDate } from '@/lib/db/sql-date';
 import { presentRules } from './rules';
 import { allowedActions } from './triage';
 import type { AlertQueue, AlertQueueQuery } from '@/lib/schemas/alert';
@@ -77,7 +78,7 @@ export interface AlertQueuePage {
 function where(query: Omit<AlertQueueQuery, 'page' | 'pageSize' | 'sort'>, actor: Pick<Actor, 'id'>, queue: AlertQueue, now: number) {
   const states = query.state ? QUEUE_STATES[queue].filter((s) => s === query.state) : QUEUE_STATES[queue];
   // Every state = no condition, which leaves the planner free to walk the created_at index in order.
-  const clauses = [states.length === ALERT_STATES.length ? '1' : states.length ? `a.state IN (${states.map((s) => `'${s}'`).join(', ')})` : '0'];
+  const clauses = [states.length === ALERT_STATES.length ? 'TRUE' : states.length ? `a.state IN (${states.map((s) => `'${s}'`).join(', ')})` : 'FALSE'];
   const replacements: Record<string, unknown> = {};
   if (queue === 'mine') {
     clauses.push('a.assignee_id = :me');
@@ -121,7 +122,7 @@ async function loadAlertQueue(query: AlertQueueQuery, actor: Pick<Actor, 'id'>, 
   const filter = where(query, actor, query.queue, now);
   // One read transaction, so the page and the counts see the same moment even while a scheduler in another
   // process opens an alert between the statements (else a count of 1 could stand beside an empty page).
-  const { rows, counts, total } = await sequelize.transaction({ type: Transaction.TYPES.DEFERRED }, async (transaction) => {
+  const { rows, counts, total } = await readTransaction(async (transaction) => {
     const rows = await sequelize.query<Record<string, unknown>>(
       `SELECT a.id, a.kind, a.state, a.severity, a.version, a.peak_tau, a.evaluation_count, a.dismiss_reason, a.created_at, a.updated_at, a.closed_at,
               a.shift_time, a.shift_size, a.data_last_at, a.data_back_at, s.id AS series_id, s.slug, s.name AS series_name, s.time_zone, r.id AS rule_id, r.indicator, r.direction AS rule_direction,
@@ -177,15 +178,11 @@ async function loadAlertQueue(query: AlertQueueQuery, actor: Pick<Actor, 'id'>, 
     },
     evaluationCount: Number(r.evaluation_count),
     dismissReason: r.dismiss_reason as string | null,
-    createdAt: toIso(r.created_at),
-    updatedAt: toIso(r.updated_at),
-    closedAt: r.closed_at === null ? null : toIso(r.closed_at),
+    createdAt: isoFromSqlDate(r.created_at),
+    updatedAt: isoFromSqlDate(r.updated_at),
+    closedAt: r.closed_at === null ? null : isoFromSqlDate(r.closed_at),
   }));
   return { items, total, counts, page: query.page, pageSize: query.pageSize } satisfies AlertQueuePage;
-}
-
-function toIso(value: unknown): string {
-  return new Date(String(value).replace(' +00:00', 'Z').replace(' ', 'T')).toISOString();
 }
 
 /** How a detail carries its evidence snapshots' charts: full curves (the API) or the saved chart views (the page). */

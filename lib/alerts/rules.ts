@@ -53,7 +53,7 @@ export async function presentRules(rules: AlertRule[]): Promise<RuleRecord[]> {
 async function fdrFamilySize(transaction?: Transaction): Promise<number> {
   const sequelize = await db();
   const [row] = await sequelize.query<{ m: number }>(
-    `SELECT COUNT(*) AS m FROM alert_rules r JOIN series s ON s.id = r.series_id AND s.retired_at IS NULL WHERE r.active = 1 AND r.fdr_level IS NOT NULL`,
+    `SELECT COUNT(*) AS m FROM alert_rules r JOIN series s ON s.id = r.series_id AND s.retired_at IS NULL WHERE r.active AND r.fdr_level IS NOT NULL`,
     { type: QueryTypes.SELECT, transaction },
   );
   return Number(row.m);

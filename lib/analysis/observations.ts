@@ -1,7 +1,7 @@
 import { QueryTypes } from 'sequelize';
 import { db } from '@/models';
-import type { Database } from 'sqlite3';
-import { allRows, rawReadConnection } from '@/models/db';
+import { rawSql, type RawSql } from '@/lib/db/raw';
+import { isPostgres } from '@/lib/db/dialect';
 import { qcConfigSchema } from '@/lib/schemas/quality';
 import { flagsLeftOut } from '@/lib/quality/flags';
 
@@ -57,18 +57,21 @@ const PACKED_ROWS = 100_000;
  * text that reads back as the same double (from memory, since its 3.43 rewrite of that conversion; the bundled
  * SQLite is 3.52), and ECMAScript's Number() reads decimal text correctly rounded (ECMA-262 §7.1.4.1.1), so every
  * stored double comes back bit for bit; tests/intake/pipeline.test.ts checks it on random bit patterns, so an
- * SQLite that did not would fail there. O(n).
+ * SQLite that did not would fail there. PostgreSQL packs the same string with `string_agg`; since its version 12 a
+ * double's text is the shortest that reads back exactly (extra_float_digits 1, the default:
+ * https://www.postgresql.org/docs/current/datatype-numeric.html#DATATYPE-FLOAT), which the same test checks there. O(n).
  */
 export async function loadObservations(seriesId: number, range: ObservationRange = {}): Promise<{ time: Float64Array; value: Float64Array }> {
-  const connection = await rawReadConnection();
-  const { time, value } = await readPacked(connection, seriesId, range, await flagsLeftOutOf(seriesId));
+  const { time, value } = await readPacked(await rawSql(), seriesId, range, await flagsLeftOutOf(seriesId));
   return { time, value };
 }
 
 /** The QARTOD flags an analysis of the series leaves out: fail and missing, and suspect unless its QC keeps them. */
 export async function flagsLeftOutOf(seriesId: number): Promise<number[]> {
-  const [series] = await allRows<{ qc: string | null }>(await rawReadConnection(), 'SELECT qc FROM series WHERE id = ?', [seriesId]);
-  const qc = series?.qc ? qcConfigSchema.safeParse(JSON.parse(series.qc)) : null;
+  const [series] = await (await rawSql()).all<{ qc: unknown }>('SELECT qc FROM series WHERE id = ?', [seriesId]);
+  // SQLite hands a JSON column back as its text, PostgreSQL's driver as the parsed value.
+  const stored = typeof series?.qc === 'string' ? JSON.parse(series.qc) : series?.qc;
+  const qc = stored ? qcConfigSchema.safeParse(stored) : null;
   return flagsLeftOut(qc?.success ? qc.data.suspectInAnalysis : true);
 }
 
@@ -77,12 +80,12 @@ export async function loadFlaggedObservations(
   seriesId: number,
   range: ObservationRange = {},
 ): Promise<{ time: Float64Array; value: Float64Array; flag: Uint8Array }> {
-  const { time, value, flag } = await readPacked(await rawReadConnection(), seriesId, range, null);
+  const { time, value, flag } = await readPacked(await rawSql(), seriesId, range, null);
   return { time, value, flag: flag! };
 }
 
-async function readPacked(connection: Database, seriesId: number, range: ObservationRange, leaveOut: number[] | null) {
-  const clauses = ['series_id = ?', 't > ?'];
+async function readPacked(connection: RawSql, seriesId: number, range: ObservationRange, leaveOut: number[] | null) {
+  const clauses = ['series_id = ?'];
   const bounds: unknown[] = [seriesId];
   if (range.from !== undefined) {
     clauses.push('t >= ?');
@@ -96,18 +99,22 @@ async function readPacked(connection: Database, seriesId: number, range: Observa
   if (leaveOut) clauses.push(`flag NOT IN (${leaveOut.map(Number).join(',')})`);
   const withFlag = leaveOut === null;
   const record = withFlag ? "t || ',' || CAST(value AS TEXT) || ',' || flag" : "t || ',' || CAST(value AS TEXT)";
-  const sql = `SELECT COUNT(*) AS n, MAX(t) AS last, group_concat(${record}, ';' ORDER BY t) AS packed
-    FROM (SELECT t, value, flag FROM ${rowsOf(range)} WHERE ${clauses.join(' AND ')} ORDER BY t LIMIT ?)`;
+  const concat = isPostgres(await db()) ? 'string_agg' : 'group_concat';
+  // The first page has no lower bound; each later one starts after the last instant of the one before (keyset paging).
+  const sql = (paging: boolean) => `SELECT COUNT(*) AS n, MAX(t) AS last, ${concat}(${record}, ';' ORDER BY t) AS packed
+    FROM (SELECT t, value, flag FROM ${rowsOf(range)} WHERE ${[...clauses, ...(paging ? ['t > ?'] : [])].join(' AND ')} ORDER BY t LIMIT ?) AS page`;
   const times: Float64Array[] = [];
   const values: Float64Array[] = [];
   const flags: Uint8Array[] = [];
   let total = 0;
-  // Keyset paging: each query starts after the last instant of the one before (first: before any instant).
-  let after = -Number.MAX_VALUE;
+  let after: number | null = null;
   for (;;) {
     const want = Math.min(PACKED_ROWS, range.limit === undefined ? PACKED_ROWS : range.limit - total);
     if (want <= 0) break;
-    const [chunk] = await allRows<{ n: number; last: number | null; packed: string | null }>(connection, sql, [bounds[0], after, ...bounds.slice(1), want]);
+    const [chunk]: { n: number; last: number | null; packed: string | null }[] = await connection.all(
+      sql(after !== null),
+      after === null ? [...bounds, want] : [...bounds, after, want],
+    );
     if (!chunk.n || chunk.packed === null) break;
     const records = chunk.packed.split(';');
     const time = new Float64Array(records.length);

@@ -7,6 +7,7 @@ import type { IndicatorName } from '@/lib/engine/settings';
 import { currentDataVersion, listDataVersions } from '@/lib/intake/data-versions';
 import { analyseAtVersion } from './snapshot';
 import type { DataVersionsOverview, IndicatorTrendLine, ReanalysisRecord } from './reanalysis-record';
+import { jsonPath } from '@/lib/db/dialect';
 
 /** Re-analyses listed per series, newest first. */
 const LISTED = 20;
@@ -32,8 +33,8 @@ export function trendLines(summary: Record<string, unknown>): IndicatorTrendLine
 async function liveSnapshotWithSameData(seriesId: number, version: number, sha256: string): Promise<number | null> {
   const sequelize = await db();
   const [row] = await sequelize.query<{ id: number }>(
-    `SELECT id FROM analysis_snapshots WHERE series_id = :seriesId AND json_extract(provenance, '$.dataVersion') = :version
-      AND json_extract(provenance, '$.dataSha256') = :sha256 ORDER BY id DESC LIMIT 1`,
+    `SELECT id FROM analysis_snapshots WHERE series_id = :seriesId AND ${jsonPath(sequelize, 'provenance', '$.dataVersion', 'bigint')} = :version
+      AND ${jsonPath(sequelize, 'provenance', '$.dataSha256')} = :sha256 ORDER BY id DESC LIMIT 1`,
     { replacements: { seriesId, version, sha256 }, type: QueryTypes.SELECT },
   );
   return row ? Number(row.id) : null;

@@ -290,7 +290,7 @@ export async function unjudgedLatestSnapshots(): Promise<AnalysisSnapshot[]> {
        SELECT (SELECT a.id FROM analysis_snapshots a WHERE a.series_id = s.id ORDER BY a.id DESC LIMIT 1) AS id, s.id AS series_id
        FROM series s WHERE s.retired_at IS NULL) latest
      JOIN analysis_snapshots snap ON snap.id = latest.id AND snap.status = 'ok'
-     WHERE EXISTS (SELECT 1 FROM alert_rules r WHERE r.series_id = latest.series_id AND r.active = 1
+     WHERE EXISTS (SELECT 1 FROM alert_rules r WHERE r.series_id = latest.series_id AND r.active
                    AND NOT EXISTS (SELECT 1 FROM rule_evaluations e WHERE e.rule_id = r.id AND e.snapshot_id = latest.id))`,
     { type: QueryTypes.SELECT },
   );

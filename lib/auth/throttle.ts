@@ -21,15 +21,33 @@ export async function isSignInLocked(keys: string[], now = Date.now()): Promise<
   return rows.some((row) => row.lockedUntil !== null && row.lockedUntil > now);
 }
 
+/**
+ * Counts one failure of `key` in one atomic upsert, so failures arriving at several web processes or machines at
+ * once are all counted (a read and a separate write would let two of them write the same count): a new key or a
+ * lapsed window starts at 1, else the count goes up by one, and reaching `limit` locks the key for the lock time.
+ */
 export async function recordSignInFailure(key: string, limit: number, now = Date.now()): Promise<void> {
-  await db();
-  const row = await SignInThrottle.findByPk(key);
-  if (!row || now - row.windowStartedAt > THROTTLE.windowMs) {
-    await SignInThrottle.upsert({ key, failures: 1, windowStartedAt: now, lockedUntil: limit <= 1 ? now + THROTTLE.lockMs : null });
-    return;
-  }
-  const failures = row.failures + 1;
-  await row.update({ failures, lockedUntil: failures >= limit ? now + THROTTLE.lockMs : row.lockedUntil });
+  const sequelize = await db();
+  const lapsed = 'sign_in_throttle.window_started_at < :windowStart';
+  await sequelize.query(
+    `INSERT INTO sign_in_throttle (key, failures, window_started_at, locked_until) VALUES (:key, 1, :now, :firstLock)
+     ON CONFLICT (key) DO UPDATE SET
+       failures = CASE WHEN ${lapsed} THEN 1 ELSE sign_in_throttle.failures + 1 END,
+       locked_until = CASE WHEN ${lapsed} THEN :firstLock
+                           WHEN sign_in_throttle.failures + 1 >= :limit THEN :lockedUntil
+                           ELSE sign_in_throttle.locked_until END,
+       window_started_at = CASE WHEN ${lapsed} THEN :now ELSE sign_in_throttle.window_started_at END`,
+    {
+      replacements: {
+        key,
+        now,
+        limit,
+        windowStart: now - THROTTLE.windowMs,
+        lockedUntil: now + THROTTLE.lockMs,
+        firstLock: limit <= 1 ? now + THROTTLE.lockMs : null,
+      },
+    },
+  );
 }
 
 export async function clearSignInFailures(key: string): Promise<void> {

@@ -21,9 +21,16 @@ export function zodFieldErrors(error: ZodError): Record<string, string[]> {
   return fields;
 }
 
+/**
+ * The database could not take the work in time: SQLite's busy timeout; on PostgreSQL the same wait bounded by
+ * `lock_timeout` (55P03, see writeTransaction), a deadlock or serialization failure the caller may retry (40P01,
+ * 40001), or no pool connection free in time.
+ */
 function isBusy(error: unknown): boolean {
-  const text = String((error as { message?: string })?.message ?? '') + String((error as { parent?: { code?: string } })?.parent?.code ?? '');
-  return /SQLITE_BUSY|database is locked/i.test(text);
+  const code = String((error as { parent?: { code?: string } })?.parent?.code ?? '');
+  if (['55P03', '40P01', '40001'].includes(code)) return true;
+  const text = String((error as { message?: string })?.message ?? '') + String((error as { name?: string })?.name ?? '') + code;
+  return /SQLITE_BUSY|database is locked|ConnectionAcquireTimeout/i.test(text);
 }
 
 /** Turns any thrown value into the JSON error contract; unknown errors are logged and never leak details. */

@@ -1,7 +1,6 @@
 import type { Transaction } from 'sequelize';
-import { allRows, rawReadConnection } from '@/models/db';
+import { rawSql } from '@/lib/db/raw';
 import { isoFromSqlDate, sqlDate } from '@/lib/db/sql-date';
-import { connectionOf } from './store';
 
 /** One data version of a series: the intake run that made it, what it changed and why. */
 export interface DataVersionRecord {
@@ -22,36 +21,36 @@ export interface DataVersionRecord {
 /**
  * Counts a new data version of the series for the run that just stored new or replaced values, inside that run's
  * write transaction: the next number after the series' highest, so versions follow the order in which runs
- * committed (SQLite lets one write transaction in at a time). Returns the version.
+ * committed (one write transaction at a time: SQLite's write lock, PostgreSQL's advisory write lock in models/db.ts). Returns the version.
  */
 export async function recordDataVersion(
   transaction: Transaction,
   seriesId: number,
   change: { runId: number; inserted: number; replaced: number; reason: string | null },
 ): Promise<number> {
-  const conn = connectionOf(transaction);
-  const [{ version }] = await allRows<{ version: number }>(
-    conn,
+  const [{ version }] = await (
+    await rawSql(transaction)
+  ).all<{ version: number }>(
     `INSERT INTO data_versions (series_id, version, ingest_run_id, inserted, replaced, reason, created_at)
     VALUES (?, (SELECT COALESCE(MAX(version), 0) + 1 FROM data_versions WHERE series_id = ?), ?, ?, ?, ?, ?) RETURNING version`,
     [seriesId, seriesId, change.runId, change.inserted, change.replaced, change.reason, sqlDate(Date.now())],
   );
-  return version;
+  return Number(version);
 }
 
 /** The series' current data version (0 when no versioned run stored anything yet). One index lookup. */
 export async function currentDataVersion(seriesId: number): Promise<number> {
-  const [{ version }] = await allRows<{ version: number | null }>(
-    await rawReadConnection(),
-    'SELECT MAX(version) AS version FROM data_versions WHERE series_id = ?',
-    [seriesId],
-  );
-  return version ?? 0;
+  const [{ version }] = await (
+    await rawSql()
+  ).all<{ version: number | null }>('SELECT MAX(version) AS version FROM data_versions WHERE series_id = ?', [seriesId]);
+  return version === null ? 0 : Number(version);
 }
 
 /** The series' data versions, newest first, at most `limit`, with the run's source, file and sender. */
 export async function listDataVersions(seriesId: number, limit = 100): Promise<DataVersionRecord[]> {
-  const rows = await allRows<{
+  const rows = await (
+    await rawSql()
+  ).all<{
     version: number;
     ingest_run_id: number;
     inserted: number;
@@ -64,7 +63,6 @@ export async function listDataVersions(seriesId: number, limit = 100): Promise<D
     user_name: string | null;
     token_id: number | null;
   }>(
-    await rawReadConnection(),
     `SELECT v.version, v.ingest_run_id, v.inserted, v.replaced, v.reason, v.created_at, r.source, r.file_name, r.user_id, u.name AS user_name, r.token_id
     FROM data_versions v LEFT JOIN ingest_runs r ON r.id = v.ingest_run_id LEFT JOIN users u ON u.id = r.user_id
     WHERE v.series_id = ? ORDER BY v.version DESC LIMIT ?`,

@@ -1,13 +1,13 @@
 import crypto from 'node:crypto';
 import { Op, Transaction } from 'sequelize';
-import { IngestRun, Series, db, writeTransaction } from '@/models';
+import { IngestRun, Series, db, readTransaction, writeTransaction } from '@/models';
 import type { IngestSource, IngestStatus } from '@/models/IngestRun';
 import { recordAudit } from '@/lib/audit';
 import { acquireLease, PROCESS_HOLDER, releaseLease, withLease } from '@/lib/db/leases';
 import type { PushedObservation } from '@/lib/schemas/observation';
 import { CsvFileError, readCsv, type CsvInput, type CsvLayout } from './csv';
 import { collectCsvRows, collectPushedRows, type CollectedRows, type IntakeMapping, type RejectedRow } from './rows';
-import { classifyAgainstStored, conflictRejections, connectionOf, ROW_CONFLICT, ROW_DUPLICATE, ROW_NEW, writeRows } from './store';
+import { classifyAgainstStored, conflictRejections, ROW_CONFLICT, ROW_DUPLICATE, ROW_NEW, writeRows } from './store';
 import { formatInstant, guessTimeFormat, type TimeFormat } from './time-formats';
 import { enqueueWebhookEvent } from '@/lib/webhooks/outbox';
 import { rejectedRunPayload } from '@/lib/webhooks/payloads';
@@ -240,7 +240,7 @@ export async function storeCollected(
     duplicatePolicy?: DuplicatePolicy | null;
   },
 ): Promise<IngestOutcome> {
-  const classified = await classifyAgainstStored(series.id, rows, connectionOf(transaction));
+  const classified = await classifyAgainstStored(series.id, rows, transaction);
   const replace = replacesStored(series, context.duplicatePolicy);
   const quality = await judgeIncoming(transaction, series, rows);
   const { inserted, replaced } = await writeRows(transaction, series.id, rows, classified, replace, run.id, quality);
@@ -526,10 +526,7 @@ async function previewNetcdf(
 
 /** The validation and comparison summary of collected rows against what the series stores (replacing conflicts under `duplicatePolicy` or the series' own); nothing is written. */
 async function previewSummary(series: Series, rows: CollectedRows, duplicatePolicy: DuplicatePolicy | null): Promise<PreviewSummary> {
-  const sequelize = await db();
-  const classified = await sequelize.transaction({ type: Transaction.TYPES.DEFERRED }, (transaction) =>
-    classifyAgainstStored(series.id, rows, connectionOf(transaction)),
-  );
+  const classified = await readTransaction((transaction) => classifyAgainstStored(series.id, rows, transaction));
   let wouldAccept = 0;
   let duplicates = rows.duplicatesInInput;
   let conflicts = 0;

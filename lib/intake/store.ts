@@ -1,12 +1,11 @@
 import type { Transaction } from 'sequelize';
-import type { Database, Statement } from 'sqlite3';
-import { allRows as all } from '@/models/db';
+import { rawSql, type RawSql } from '@/lib/db/raw';
 import type { PointFlags } from '@/lib/quality/run';
 import { setterName } from '@/lib/quality/flags';
 import { sqlDate } from '@/lib/db/sql-date';
 import type { CollectedRows, RejectedRow } from './rows';
 
-/** Rows per multi-row INSERT: 500 × 7 parameters stays far below SQLite's variable limit and amortises each call. */
+/** Rows per multi-row INSERT: 500 × 7 parameters stays far below SQLite's (and PostgreSQL's) parameter limit and amortises each call. */
 const INSERT_BATCH = 500;
 const COLUMNS = 7;
 const INSERT_SQL = (count: number) =>
@@ -17,25 +16,6 @@ export const ROW_NEW = 0;
 export const ROW_DUPLICATE = 1;
 export const ROW_REPLACE = 2;
 export const ROW_CONFLICT = 3;
-
-/** The raw sqlite3 handle of a Sequelize transaction: statements on it run inside that transaction. */
-export function connectionOf(transaction: Transaction): Database {
-  return (transaction as unknown as { connection: Database }).connection;
-}
-
-function prepare(conn: Database, sql: string): Promise<Statement> {
-  return new Promise((resolve, reject) => {
-    const statement = conn.prepare(sql, (error) => (error ? reject(error) : resolve(statement)));
-  });
-}
-
-function run(statement: Statement, params: unknown[]): Promise<void> {
-  return new Promise((resolve, reject) => statement.run(params, (error) => (error ? reject(error) : resolve())));
-}
-
-function finalize(statement: Statement): Promise<void> {
-  return new Promise((resolve) => statement.finalize(() => resolve()));
-}
 
 export interface Classified {
   kind: Uint8Array;
@@ -48,12 +28,13 @@ export interface Classified {
  * up by primary key in batches (O(n log N)). Runs on the transaction's connection when one is given, so the write
  * that follows sees exactly what was compared.
  */
-export async function classifyAgainstStored(seriesId: number, rows: CollectedRows, conn: Database): Promise<Classified> {
+export async function classifyAgainstStored(seriesId: number, rows: CollectedRows, transaction: Transaction): Promise<Classified> {
   const n = rows.t.length;
   const kind = new Uint8Array(n);
   const stored = new Float64Array(n);
   if (n === 0) return { kind, stored };
-  const [{ count }] = await all<{ count: number }>(conn, 'SELECT COUNT(*) AS count FROM observations WHERE series_id = ? AND t BETWEEN ? AND ?', [
+  const conn = await rawSql(transaction);
+  const [{ count }] = await conn.all<{ count: number }>('SELECT COUNT(*) AS count FROM observations WHERE series_id = ? AND t BETWEEN ? AND ?', [
     seriesId,
     rows.t[0],
     rows.t[n - 1],
@@ -67,8 +48,7 @@ export async function classifyAgainstStored(seriesId: number, rows: CollectedRow
     let i = 0;
     let after = rows.t[0] - 1;
     for (;;) {
-      const page = await all<{ t: number; value: number }>(
-        conn,
+      const page = await conn.all<{ t: number; value: number }>(
         'SELECT t, value FROM observations WHERE series_id = ? AND t > ? AND t <= ? ORDER BY t LIMIT ?',
         [seriesId, after, rows.t[n - 1], READ_PAGE],
       );
@@ -89,8 +69,7 @@ export async function classifyAgainstStored(seriesId: number, rows: CollectedRow
         index.set(rows.t[i], i);
         params.push(rows.t[i]);
       }
-      const found = await all<{ t: number; value: number }>(
-        conn,
+      const found = await conn.all<{ t: number; value: number }>(
         `SELECT t, value FROM observations WHERE series_id = ? AND t IN (${new Array(end - start).fill('?').join(',')})`,
         params,
       );
@@ -128,15 +107,13 @@ export async function writeRows(
   runId: number,
   quality: PointFlags,
 ): Promise<{ inserted: number; replaced: number }> {
-  const conn = connectionOf(transaction);
-  const full = await prepare(conn, INSERT_SQL(INSERT_BATCH));
-  const update = await prepare(
-    conn,
+  const conn: RawSql = await rawSql(transaction);
+  const full = await conn.prepare(INSERT_SQL(INSERT_BATCH));
+  const update = await conn.prepare(
     'UPDATE observations SET value = ?, ingest_run_id = ?, flag = ?, flag_test = ?, source_flag = ? WHERE series_id = ? AND t = ?',
   );
   // A replaced value is kept as an earlier version, naming the run that replaces it (reprocessed data stays traceable).
-  const keep = await prepare(
-    conn,
+  const keep = await conn.prepare(
     `INSERT INTO observation_versions (series_id, t, value, flag, flag_test, source_flag, ingest_run_id, replaced_by_run_id, replaced_at)
     SELECT series_id, t, value, flag, flag_test, source_flag, ingest_run_id, ?, ? FROM observations WHERE series_id = ? AND t = ?`,
   );
@@ -152,27 +129,22 @@ export async function writeRows(
         batch.push(seriesId, rows.t[i], rows.value[i], runId, quality.flag[i], setterName(quality.setter[i]), sourceFlag(i));
         inserted++;
         if (batch.length === INSERT_BATCH * COLUMNS) {
-          await run(full, batch);
+          await full.run(batch);
           batch.length = 0;
         }
       } else if (kind === ROW_CONFLICT && replace) {
-        await run(keep, [runId, now, seriesId, rows.t[i]]);
-        await run(update, [rows.value[i], runId, quality.flag[i], setterName(quality.setter[i]), sourceFlag(i), seriesId, rows.t[i]]);
+        await keep.run([runId, now, seriesId, rows.t[i]]);
+        await update.run([rows.value[i], runId, quality.flag[i], setterName(quality.setter[i]), sourceFlag(i), seriesId, rows.t[i]]);
         replaced++;
       }
     }
     if (batch.length) {
-      const rest = await prepare(conn, INSERT_SQL(batch.length / COLUMNS));
-      try {
-        await run(rest, batch);
-      } finally {
-        await finalize(rest);
-      }
+      await conn.run(INSERT_SQL(batch.length / COLUMNS), batch);
     }
   } finally {
-    await finalize(full);
-    await finalize(update);
-    await finalize(keep);
+    await full.finalize();
+    await update.finalize();
+    await keep.finalize();
   }
   return { inserted, replaced };
 }

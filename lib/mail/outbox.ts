@@ -21,14 +21,14 @@ export interface OutgoingMail {
  */
 export async function enqueueMail(mail: OutgoingMail, transaction?: Transaction): Promise<boolean> {
   const sequelize = await db();
-  // INSERT OR IGNORE rather than catching a unique error: inside a transaction a failed insert would abort it.
+  // ON CONFLICT DO NOTHING rather than catching a unique error: inside a transaction a failed insert would abort it.
   const [, changes] = await sequelize.query(
     `INSERT INTO mail_outbox (kind, dedupe_key, to_address, subject, text_body, html_body, status, attempts, next_attempt_at, created_at, updated_at)
      VALUES (:kind, :dedupeKey, :to, :subject, :text, :html, 'pending', 0, :now, :now, :now)
      ON CONFLICT(dedupe_key) DO NOTHING`,
     { replacements: { ...mail, now: sqlDate(Date.now()) }, transaction, type: QueryTypes.INSERT },
   );
-  // For an INSERT the SQLite dialect answers [lastID, changes].
+  // For an INSERT the SQLite dialect answers [lastID, changes], the PostgreSQL one [rows, rowCount].
   return Number(changes) > 0;
 }
 

@@ -1,5 +1,6 @@
 import crypto from 'node:crypto';
 import nodemailer from 'nodemailer';
+import { claimLock } from '@/lib/db/dialect';
 import { QueryTypes } from 'sequelize';
 import { db } from '@/models';
 import { mailFrom, mailRetryPolicy, smtpUrl } from '@/lib/runtime/config';
@@ -43,7 +44,7 @@ async function claimDue(claim: string, now: number): Promise<ClaimedRow[]> {
     `UPDATE mail_outbox SET status = 'sending', claimed_by = :claim, next_attempt_at = :until, updated_at = :nowIso
      WHERE id IN (
        SELECT id FROM mail_outbox WHERE status IN ('pending', 'sending') AND next_attempt_at <= :nowIso
-       ORDER BY next_attempt_at, id LIMIT :batch)
+       ORDER BY next_attempt_at, id LIMIT :batch${claimLock(sequelize)})
      RETURNING id, dedupe_key, to_address, subject, text_body, html_body, attempts`,
     {
       replacements: { claim, nowIso: sqlDate(now), until: sqlDate(now + CLAIM_TTL_MS), batch: BATCH },

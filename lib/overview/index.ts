@@ -4,6 +4,7 @@ import { INDICATOR_DIRECTIONS, orientedTau, type TrendDirection } from '@/lib/en
 import { INDICATOR_NAMES, type IndicatorName } from '@/lib/engine/settings';
 import { sparkline, sparkPath } from '@/lib/display/sparkline';
 import { cachedRead } from '@/lib/db/read-cache';
+import { isPostgres, jsonElements, jsonObjectOfPaths, jsonPath, jsonText } from '@/lib/db/dialect';
 
 import { freshnessOf, type Freshness } from '@/lib/alerts/lateness';
 
@@ -114,12 +115,19 @@ async function sparklines(rows: SeriesRow[]): Promise<Map<number, Spark>> {
   const missing = rows.filter((r) => r.snap_id !== null && !sparkCache.has(key(r)));
   if (missing.length) {
     const sequelize = await db();
+    // Per (snapshot, indicator) pair: that indicator's curve, else the first indicator of the snapshot's settings.
+    const [preferred, fallbackName] = isPostgres(sequelize)
+      ? [`(a.curves -> 'indicators' -> (p.value ->> 1))`, `(a.settings -> 'indicators' ->> 0)`]
+      : [`json_extract(a.curves, '$.indicators.' || json_extract(p.value, '$[1]'))`, `json_extract(a.settings, '$.indicators[0]')`];
+    const fallback = isPostgres(sequelize)
+      ? `(a.curves -> 'indicators' -> (a.settings -> 'indicators' ->> 0))`
+      : `json_extract(a.curves, '$.indicators.' || json_extract(a.settings, '$.indicators[0]'))`;
+    // Absent, not JSON null: PostgreSQL's -> gives SQL NULL only for an absent key, SQLite's json_type likewise.
+    const absent = isPostgres(sequelize) ? `${preferred} IS NULL` : `json_type(a.curves, '$.indicators.' || json_extract(p.value, '$[1]')) IS NULL`;
     const found = await sequelize.query<{ id: number; preferred: string | null; fallback_name: string | null; fallback: string | null }>(
-      `SELECT a.id, json_extract(a.curves, '$.indicators.' || json_extract(p.value, '$[1]')) AS preferred,
-         json_extract(a.settings, '$.indicators[0]') AS fallback_name,
-         CASE WHEN json_type(a.curves, '$.indicators.' || json_extract(p.value, '$[1]')) IS NULL
-              THEN json_extract(a.curves, '$.indicators.' || json_extract(a.settings, '$.indicators[0]')) END AS fallback
-       FROM json_each(:pairs) p JOIN analysis_snapshots a ON a.id = json_extract(p.value, '$[0]')`,
+      `SELECT a.id, ${jsonText(sequelize, preferred)} AS preferred, ${fallbackName} AS fallback_name,
+         CASE WHEN ${absent} THEN ${jsonText(sequelize, fallback)} END AS fallback
+       FROM ${jsonElements(sequelize, ':pairs', 'p', 'json')} JOIN analysis_snapshots a ON a.id = ${jsonPath(sequelize, 'p.value', '$[0]', 'bigint')}`,
       { type: QueryTypes.SELECT, replacements: { pairs: JSON.stringify(missing.map((r) => [r.snap_id, r.rule_indicator ?? ''])) } },
     );
     const byId = new Map(found.map((f) => [f.id, f]));
@@ -138,7 +146,7 @@ async function sparklines(rows: SeriesRow[]): Promise<Map<number, Spark>> {
 }
 
 const OPEN = OPEN_ALERT_STATES.map((s) => `'${s}'`).join(',');
-const SURROGATE_P = INDICATOR_NAMES.map((name) => `'${name}', json_extract(a.summary, '$.significance.${name}.p')`).join(', ');
+const SURROGATE_P = INDICATOR_NAMES.map((name): [string, string] => [name, `$.significance.${name}.p`]);
 
 /**
  * The morning view of the whole network. What is stored is the same for everyone and is answered from the read
@@ -185,12 +193,12 @@ async function loadOverview(): Promise<StoredOverview> {
          SELECT s.*,
            (SELECT MAX(t) FROM observations o WHERE o.series_id = s.id) AS last_t,
            (SELECT MAX(id) FROM analysis_snapshots x WHERE x.series_id = s.id AND x.status = 'ok') AS snap_id,
-           (SELECT indicator FROM alert_rules r WHERE r.series_id = s.id AND r.active = 1 ORDER BY r.id LIMIT 1) AS rule_indicator
+           (SELECT indicator FROM alert_rules r WHERE r.series_id = s.id AND r.active ORDER BY r.id LIMIT 1) AS rule_indicator
          FROM series s WHERE s.retired_at IS NULL)
        SELECT b.id, b.slug, b.name, b.site, st.slug AS site_slug, b.unit, b.time_zone, b.interval_ms, b.late_after_ms, b.last_t, b.snap_id, b.rule_indicator,
          a.created_at AS snap_created,
-         json_extract(a.summary, '$.kendall') AS kendall,
-         json_object(${SURROGATE_P}) AS surrogate_p
+         ${jsonPath(sequelize, 'a.summary', '$.kendall')} AS kendall,
+         ${jsonObjectOfPaths(sequelize, 'a.summary', SURROGATE_P)} AS surrogate_p
        FROM base b LEFT JOIN analysis_snapshots a ON a.id = b.snap_id LEFT JOIN sites st ON st.id = b.site_id
        ORDER BY b.name`,
       { type: QueryTypes.SELECT },
@@ -199,7 +207,7 @@ async function loadOverview(): Promise<StoredOverview> {
       `SELECT r.series_id, r.indicator, r.severity, e.passed, e.q_value
        FROM alert_rules r
        LEFT JOIN rule_evaluations e ON e.id = (SELECT id FROM rule_evaluations z WHERE z.rule_id = r.id ORDER BY z.snapshot_id DESC LIMIT 1)
-       WHERE r.active = 1 AND r.series_id IS NOT NULL
+       WHERE r.active AND r.series_id IS NOT NULL
        ORDER BY r.id`,
       { type: QueryTypes.SELECT },
     ),

@@ -1,10 +1,7 @@
-import type { Database } from 'sqlite3';
-import { rawReadConnection } from '@/models/db';
 import type { Transaction } from 'sequelize';
 import { Series, writeTransaction } from '@/models';
-import { allRows } from '@/models/db';
+import { rawSql, type RawSql } from '@/lib/db/raw';
 import { recordAudit } from '@/lib/audit';
-import { connectionOf } from '@/lib/intake/store';
 import { parseInstantParam } from '@/lib/intake/time-formats';
 import { UnprocessableError } from '@/lib/http/errors';
 import type { CollectedRows } from '@/lib/intake/rows';
@@ -57,20 +54,19 @@ function runOver(series: Series, rows: StoredRow[], tail?: CollectedRows): Point
 }
 
 /** Writes the flags that changed, leaving an analyst's overrides alone; returns how many rows changed. */
-async function updateChanged(conn: Database, seriesId: number, rows: StoredRow[], flags: PointFlags): Promise<number> {
+async function updateChanged(conn: RawSql, seriesId: number, rows: StoredRow[], flags: PointFlags): Promise<number> {
   let changed = 0;
-  for (let i = 0; i < rows.length; i++) {
-    const row = rows[i];
-    if (setterOf(row) === ANALYST) continue;
-    if (row.flag === flags.flag[i] && setterOf(row) === flags.setter[i]) continue;
-    await new Promise<void>((resolve, reject) =>
-      conn.run(
-        'UPDATE observations SET flag = ?, flag_test = ? WHERE series_id = ? AND t = ?',
-        [flags.flag[i], setterName(flags.setter[i]), seriesId, row.t],
-        (error) => (error ? reject(error) : resolve()),
-      ),
-    );
-    changed++;
+  const update = await conn.prepare('UPDATE observations SET flag = ?, flag_test = ? WHERE series_id = ? AND t = ?');
+  try {
+    for (let i = 0; i < rows.length; i++) {
+      const row = rows[i];
+      if (setterOf(row) === ANALYST) continue;
+      if (row.flag === flags.flag[i] && setterOf(row) === flags.setter[i]) continue;
+      await update.run([flags.flag[i], setterName(flags.setter[i]), seriesId, row.t]);
+      changed++;
+    }
+  } finally {
+    await update.finalize();
   }
   return changed;
 }
@@ -85,14 +81,13 @@ async function updateChanged(conn: Database, seriesId: number, rows: StoredRow[]
 export async function judgeIncoming(transaction: Transaction, series: Series, rows: CollectedRows): Promise<PointFlags> {
   const config = qcConfigOf(series);
   if (!config || rows.t.length === 0) return runQualityTests(rows.t, rows.value, null, { sourceFlag: rows.sourceFlag ?? undefined });
-  const conn = connectionOf(transaction);
+  const conn = await rawSql(transaction);
   // The spike test looks one reading back, the flat line REP_CNT_FAIL; the rate of change its whole period.
   const lookBack = Math.max(2, (config.flatLine?.fail ?? 0) + 1);
   const context = (
-    await allRows<StoredRow>(
-      conn,
+    await conn.all<StoredRow>(
       `SELECT t, value, flag, flag_test, source_flag FROM observations WHERE series_id = ? AND t < ?
-      AND (t >= ? OR t >= (SELECT MIN(t) FROM (SELECT t FROM observations WHERE series_id = ? AND t < ? ORDER BY t DESC LIMIT ?)))
+      AND (t >= ? OR t >= (SELECT MIN(t) FROM (SELECT t FROM observations WHERE series_id = ? AND t < ? ORDER BY t DESC LIMIT ?) AS latest))
       ORDER BY t DESC LIMIT ?`,
       [
         series.id,
@@ -123,14 +118,14 @@ export interface QualityRerun {
  */
 export async function rerunQuality(series: Series, actor: { id: number } | null): Promise<QualityRerun> {
   return writeTransaction(async (transaction) => {
-    const conn = connectionOf(transaction);
+    const conn = await rawSql(transaction);
     const rows: StoredRow[] = [];
-    let after = -Number.MAX_VALUE;
+    // Keyset paging from the first instant on: the first page has no lower bound.
+    let after: number | null = null;
     for (;;) {
-      const page = await allRows<StoredRow>(
-        conn,
-        'SELECT t, value, flag, flag_test, source_flag FROM observations WHERE series_id = ? AND t > ? ORDER BY t LIMIT ?',
-        [series.id, after, READ_PAGE],
+      const page: StoredRow[] = await conn.all<StoredRow>(
+        `SELECT t, value, flag, flag_test, source_flag FROM observations WHERE series_id = ?${after === null ? '' : ' AND t > ?'} ORDER BY t LIMIT ?`,
+        after === null ? [series.id, READ_PAGE] : [series.id, after, READ_PAGE],
       );
       for (const row of page) rows.push(row);
       if (page.length < READ_PAGE) break;
@@ -149,10 +144,8 @@ export async function rerunQuality(series: Series, actor: { id: number } | null)
 }
 
 /** How many of the series' points carry each flag, by its label. */
-async function flagCounts(conn: Database, seriesId: number): Promise<Record<string, number>> {
-  const rows = await allRows<{ flag: QartodFlag; n: number }>(conn, 'SELECT flag, COUNT(*) AS n FROM observations WHERE series_id = ? GROUP BY flag', [
-    seriesId,
-  ]);
+async function flagCounts(conn: RawSql, seriesId: number): Promise<Record<string, number>> {
+  const rows = await conn.all<{ flag: QartodFlag; n: number }>('SELECT flag, COUNT(*) AS n FROM observations WHERE series_id = ? GROUP BY flag', [seriesId]);
   return Object.fromEntries(rows.map((row) => [FLAG_LABELS[row.flag] ?? String(row.flag), row.n]));
 }
 
@@ -170,17 +163,9 @@ export async function overrideFlags(series: Series, override: FlagOverride, acto
   const input = { ...override, from: instant('from'), to: instant('to') };
   if (input.from > input.to) throw new UnprocessableError('Some fields are not valid.', { to: ['The end of the range is before its start.'] });
   return writeTransaction(async (transaction) => {
-    const conn = connectionOf(transaction);
-    const changed = await new Promise<number>((resolve, reject) =>
-      conn.run(
-        "UPDATE observations SET flag = ?, flag_test = 'analyst' WHERE series_id = ? AND t >= ? AND t <= ?",
-        [input.flag, series.id, input.from, input.to],
-        function done(this: { changes: number }, error: Error | null) {
-          if (error) reject(error);
-          else resolve(this.changes);
-        },
-      ),
-    );
+    const changed = await (
+      await rawSql(transaction)
+    ).run("UPDATE observations SET flag = ?, flag_test = 'analyst' WHERE series_id = ? AND t >= ? AND t <= ?", [input.flag, series.id, input.from, input.to]);
     if (changed) await Series.update({ needsAnalysis: true }, { where: { id: series.id }, transaction });
     await recordAudit(
       {
@@ -201,14 +186,13 @@ export async function overrideFlags(series: Series, override: FlagOverride, acto
  * there are): what the record chart marks. A range scan of the primary key. O(points in range).
  */
 export async function flaggedPoints(seriesId: number, from: number, to: number, limit: number): Promise<{ points: FlaggedPoint[]; total: number }> {
-  const conn = await rawReadConnection();
+  const conn = await rawSql();
   const [rows, [{ total }]] = await Promise.all([
-    allRows<{ t: number; value: number; flag: QartodFlag; flag_test: FlagSetter | null }>(
-      conn,
+    conn.all<{ t: number; value: number; flag: QartodFlag; flag_test: FlagSetter | null }>(
       'SELECT t, value, flag, flag_test FROM observations WHERE series_id = ? AND t >= ? AND t <= ? AND flag IN (3, 4, 9) ORDER BY t LIMIT ?',
       [seriesId, from, to, limit],
     ),
-    allRows<{ total: number }>(conn, 'SELECT COUNT(*) AS total FROM observations WHERE series_id = ? AND t >= ? AND t <= ? AND flag IN (3, 4, 9)', [
+    conn.all<{ total: number }>('SELECT COUNT(*) AS total FROM observations WHERE series_id = ? AND t >= ? AND t <= ? AND flag IN (3, 4, 9)', [
       seriesId,
       from,
       to,

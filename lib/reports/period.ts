@@ -6,6 +6,7 @@ import { lateAfterMs } from '@/lib/alerts/lateness';
 import { fetchSeriesOverview } from '@/lib/overview';
 import { indicatorLabel } from '@/lib/display/analysis-labels';
 import { sqlDate } from '@/lib/db/sql-date';
+import { jsonElements, jsonPath, jsonText } from '@/lib/db/dialect';
 import {
   completeness,
   durationSummary,
@@ -98,13 +99,14 @@ async function recordFacts(series: SeriesRow[], start: number, until: number): P
        (SELECT COUNT(*) FROM observations o WHERE o.series_id = s.value AND o.t >= :start AND o.t < :until) AS n,
        (SELECT MAX(t) FROM observations o WHERE o.series_id = s.value AND o.t < :start) AS before_t,
        (SELECT MAX(t) FROM observations o WHERE o.series_id = s.value AND o.t < :until) AS tail_t
-     FROM json_each(:ids) s`,
+     FROM ${jsonElements(sequelize, ':ids', 's', 'bigint')}`,
     { replacements: { ids: JSON.stringify(series.map((s) => s.id)), start, until }, type: QueryTypes.SELECT },
   );
   const byId = new Map(series.map((s) => [s.id, s]));
   const scope = edges.map((e) => [Number(e.id), allowanceOf(byId.get(Number(e.id))!), e.before_t === null ? start : Number(e.before_t)]);
   const gaps = await sequelize.query<{ series_id: number; prev: number; t: number }>(
-    `WITH scope AS (SELECT json_extract(value, '$[0]') AS id, json_extract(value, '$[1]') AS allowed, json_extract(value, '$[2]') AS from_t FROM json_each(:scope)),
+    `WITH scope AS (SELECT ${jsonPath(sequelize, 'e.value', '$[0]', 'bigint')} AS id, ${jsonPath(sequelize, 'e.value', '$[1]', 'double precision')} AS allowed,
+       ${jsonPath(sequelize, 'e.value', '$[2]', 'bigint')} AS from_t FROM ${jsonElements(sequelize, ':scope', 'e', 'json')}),
      o AS (SELECT o.series_id, o.t, LAG(o.t) OVER (PARTITION BY o.series_id ORDER BY o.t) AS prev, s.allowed
            FROM scope s JOIN observations o ON o.series_id = s.id AND o.t >= s.from_t AND o.t < :until)
      SELECT series_id, prev, t FROM o WHERE prev IS NOT NULL AND t - prev > allowed AND t > :start ORDER BY series_id, t`,
@@ -153,39 +155,41 @@ export async function buildPeriodReport(period: Period, site: string | null = nu
        LEFT JOIN alert_rules r ON r.id = a.rule_id
        LEFT JOIN alert_events d ON d.id = (SELECT e.id FROM alert_events e WHERE e.alert_id = a.id AND e.action IN ('confirm', 'dismiss') AND e.actor_id IS NOT NULL ORDER BY e.id LIMIT 1)
        LEFT JOIN users u ON u.id = d.actor_id
-       WHERE a.series_id IN (SELECT value FROM json_each(:ids)) AND a.created_at >= :start AND a.created_at < :end
+       WHERE a.series_id IN (SELECT ids.value FROM ${jsonElements(sequelize, ':ids', 'ids', 'bigint')}) AND a.created_at >= :start AND a.created_at < :end
        ORDER BY a.created_at, a.id`,
       { replacements: { ids: idList, start: sqlDate(start), end: sqlDate(end) }, type: QueryTypes.SELECT },
     ),
     sequelize.query<{ series_id: number; n: number }>(
       `SELECT series_id, COUNT(*) AS n FROM alerts
-       WHERE series_id IN (SELECT value FROM json_each(:ids)) AND created_at < :end AND (closed_at IS NULL OR closed_at >= :end)
+       WHERE series_id IN (SELECT ids.value FROM ${jsonElements(sequelize, ':ids', 'ids', 'bigint')}) AND created_at < :end AND (closed_at IS NULL OR closed_at >= :end)
        GROUP BY series_id`,
       { replacements: { ids: idList, end: sqlDate(end) }, type: QueryTypes.SELECT },
     ),
     sequelize.query<{ id: number; series_id: number; settings: string; reason: string | null; created_at: string; who: string | null; before: string | null }>(
-      `SELECT c.id, c.series_id, c.settings, c.reason, c.created_at, u.name AS who,
-         (SELECT p.settings FROM settings_changes p WHERE p.series_id = c.series_id AND p.id < c.id ORDER BY p.id DESC LIMIT 1) AS before
+      `SELECT c.id, c.series_id, ${jsonText(sequelize, 'c.settings')} AS settings, c.reason, c.created_at, u.name AS who,
+         (SELECT ${jsonText(sequelize, 'p.settings')} FROM settings_changes p WHERE p.series_id = c.series_id AND p.id < c.id ORDER BY p.id DESC LIMIT 1) AS before
        FROM settings_changes c LEFT JOIN users u ON u.id = c.changed_by
-       WHERE c.series_id IN (SELECT value FROM json_each(:ids)) AND c.created_at >= :start AND c.created_at < :end ORDER BY c.created_at, c.id`,
+       WHERE c.series_id IN (SELECT ids.value FROM ${jsonElements(sequelize, ':ids', 'ids', 'bigint')}) AND c.created_at >= :start AND c.created_at < :end ORDER BY c.created_at, c.id`,
       { replacements: { ids: idList, start: sqlDate(start), end: sqlDate(end) }, type: QueryTypes.SELECT },
     ),
     sequelize.query<{ action: string; entity_id: string; details: string; created_at: string; who: string | null; series_id: number | null }>(
-      `SELECT l.action, l.entity_id, l.details, l.created_at, u.name AS who,
-         CASE WHEN l.entity = 'series' THEN CAST(l.entity_id AS INTEGER) ELSE r.series_id END AS series_id
-       FROM audit_log l LEFT JOIN users u ON u.id = l.actor_id LEFT JOIN alert_rules r ON l.entity = 'alert_rule' AND r.id = CAST(l.entity_id AS INTEGER)
+      `SELECT l.action, l.entity_id, ${jsonText(sequelize, 'l.details')} AS details, l.created_at, u.name AS who,
+         CASE WHEN l.entity = 'series' THEN s.id ELSE r.series_id END AS series_id
+       FROM audit_log l LEFT JOIN users u ON u.id = l.actor_id
+         LEFT JOIN alert_rules r ON l.entity = 'alert_rule' AND CAST(r.id AS TEXT) = l.entity_id
+         LEFT JOIN series s ON l.entity = 'series' AND CAST(s.id AS TEXT) = l.entity_id
        WHERE (l.entity = 'alert_rule' AND l.action IN ('rule.create', 'rule.update', 'rule.threshold', 'rule.deactivate', 'rule.delete')
            OR l.entity = 'series' AND l.action = 'series.update')
          AND l.created_at >= :start AND l.created_at < :end ORDER BY l.created_at, l.id`,
       { replacements: { start: sqlDate(start), end: sqlDate(end) }, type: QueryTypes.SELECT },
     ),
     sequelize.query<{ id: number; series_id: number; indicator: string; severity: string }>(
-      `SELECT id, series_id, indicator, severity FROM alert_rules WHERE active = 1 AND series_id IN (SELECT value FROM json_each(:ids)) ORDER BY series_id, id`,
+      `SELECT id, series_id, indicator, severity FROM alert_rules WHERE active AND series_id IN (SELECT ids.value FROM ${jsonElements(sequelize, ':ids', 'ids', 'bigint')}) ORDER BY series_id, id`,
       { replacements: { ids: idList }, type: QueryTypes.SELECT },
     ),
     sequelize.query<{ series_id: number; kind: string; at: number; note: string; who: string | null }>(
       `SELECT m.series_id, m.kind, m.at, m.note, u.name AS who FROM marks m LEFT JOIN users u ON u.id = m.created_by
-       WHERE m.series_id IN (SELECT value FROM json_each(:ids)) AND m.at >= :start AND m.at < :end ORDER BY m.at`,
+       WHERE m.series_id IN (SELECT ids.value FROM ${jsonElements(sequelize, ':ids', 'ids', 'bigint')}) AND m.at >= :start AND m.at < :end ORDER BY m.at`,
       { replacements: { ids: idList, start, end }, type: QueryTypes.SELECT },
     ),
   ]);
@@ -220,7 +224,7 @@ export async function buildPeriodReport(period: Period, site: string | null = nu
 
   const late: LateStretch[] = [];
   const lateAlerts = await sequelize.query<{ id: number; series_id: number; data_last_at: number }>(
-    `SELECT id, series_id, data_last_at FROM alerts WHERE kind = 'data-late' AND series_id IN (SELECT value FROM json_each(:ids))`,
+    `SELECT id, series_id, data_last_at FROM alerts WHERE kind = 'data-late' AND series_id IN (SELECT ids.value FROM ${jsonElements(sequelize, ':ids', 'ids', 'bigint')})`,
     { replacements: { ids: idList }, type: QueryTypes.SELECT },
   );
   const lateAlertOf = new Map(lateAlerts.map((a) => [`${a.series_id}:${Number(a.data_last_at)}`, Number(a.id)]));

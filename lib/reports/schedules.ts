@@ -1,4 +1,5 @@
 import crypto from 'node:crypto';
+import { jsonElements } from '@/lib/db/dialect';
 import { QueryTypes } from 'sequelize';
 import { ReportSchedule, db, writeTransaction } from '@/models';
 import type { ReportCadence } from '@/models/ReportSchedule';
@@ -166,10 +167,13 @@ export async function sendDueReports(now = Date.now()): Promise<number> {
     const keys = schedule.recipients.map((r) => dedupeKey(schedule.id, period.from, r));
     const sent = new Set(
       (
-        await sequelize.query<{ dedupe_key: string }>('SELECT dedupe_key FROM mail_outbox WHERE dedupe_key IN (SELECT value FROM json_each(:keys))', {
-          replacements: { keys: JSON.stringify(keys) },
-          type: QueryTypes.SELECT,
-        })
+        await sequelize.query<{ dedupe_key: string }>(
+          `SELECT dedupe_key FROM mail_outbox WHERE dedupe_key IN (SELECT k.value FROM ${jsonElements(sequelize, ':keys', 'k')})`,
+          {
+            replacements: { keys: JSON.stringify(keys) },
+            type: QueryTypes.SELECT,
+          },
+        )
       ).map((r) => r.dedupe_key),
     );
     const waiting = schedule.recipients.filter((r) => !sent.has(dedupeKey(schedule.id, period.from, r)));

@@ -1,7 +1,7 @@
 import { Op } from 'sequelize';
 import { MailMessage, db } from '@/models';
 import { readAppState } from '@/lib/db/app-state';
-import { smtpConfigured } from '@/lib/runtime/config';
+import { databaseDialect, smtpConfigured } from '@/lib/runtime/config';
 
 export const SCHEDULER_HEARTBEAT_KEY = 'scheduler.heartbeat';
 /** The scheduler beats every 15 s; three missed beats and it counts as down. */
@@ -9,7 +9,8 @@ const HEARTBEAT_STALE_MS = 45_000;
 
 export interface HealthReport {
   ok: boolean;
-  db: { ok: boolean; error?: string };
+  /** `dialect` names the database in use (DATABASE_URL set: postgres). */
+  db: { ok: boolean; dialect: 'sqlite' | 'postgres'; error?: string };
   scheduler: { ok: boolean; lastBeatAt: string | null; holder: string | null };
   mail: { ok: boolean; transport: 'smtp' | 'local-sink'; pending: number; failed: number };
 }
@@ -17,6 +18,7 @@ export interface HealthReport {
 /** Each part's state; `ok` is the database's, since without it nothing else can be answered. */
 export async function fetchHealth(now = Date.now()): Promise<HealthReport> {
   const transport = smtpConfigured() ? 'smtp' : 'local-sink';
+  const dialect = databaseDialect();
   try {
     const sequelize = await db();
     await sequelize.query('SELECT 1');
@@ -28,7 +30,7 @@ export async function fetchHealth(now = Date.now()): Promise<HealthReport> {
     const lastBeat = beat ? beat.updatedAt.getTime() : null;
     return {
       ok: true,
-      db: { ok: true },
+      db: { ok: true, dialect },
       scheduler: {
         ok: lastBeat !== null && now - lastBeat < HEARTBEAT_STALE_MS,
         lastBeatAt: lastBeat === null ? null : new Date(lastBeat).toISOString(),
@@ -39,7 +41,7 @@ export async function fetchHealth(now = Date.now()): Promise<HealthReport> {
   } catch (error) {
     return {
       ok: false,
-      db: { ok: false, error: 'The database cannot be reached.' },
+      db: { ok: false, dialect, error: 'The database cannot be reached.' },
       scheduler: { ok: false, lastBeatAt: null, holder: null },
       mail: { ok: false, transport, pending: 0, failed: 0 },
     };

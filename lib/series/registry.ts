@@ -4,6 +4,7 @@ import { observationExtent } from '@/lib/analysis/observations';
 import { ConflictError, NotFoundError } from '@/lib/http/errors';
 import { recordAudit } from '@/lib/audit';
 import { cachedRead } from '@/lib/db/read-cache';
+import { isPostgres } from '@/lib/db/dialect';
 import type { Actor } from '@/lib/auth/roles';
 import { seriesCreateSchema, seriesUpdateSchema, type SeriesCreate, type SeriesCreateInput } from '@/lib/schemas/series';
 import { resolveSeriesSite } from '@/lib/sites/registry';
@@ -35,13 +36,15 @@ export type SeriesRecord = ReturnType<typeof presentSeries>;
 
 /**
  * Series by name. `find` keeps those whose name, slug or site contains it; SQLite's lower() folds ASCII letters
- * only, so other scripts match as typed. `instr` rather than LIKE, so `%` and `_` in a search are plain characters.
+ * only, so other scripts match as typed (PostgreSQL's folds every script). `instr` rather than LIKE, so `%` and `_` in a search are plain characters.
  */
 export async function listSeries(options: { includeRetired?: boolean; find?: string; limit?: number } = {}): Promise<Series[]> {
-  await db();
+  const sequelize = await db();
   const conditions: WhereOptions[] = options.includeRetired ? [] : [{ retiredAt: null }];
   const needle = options.find?.toLowerCase();
-  if (needle) conditions.push({ [Op.or]: ['name', 'slug', 'site'].map((column) => where(fn('instr', fn('lower', col(column)), needle), Op.gt, 0)) });
+  // PostgreSQL's name for instr (position of a substring, 0 when absent) is strpos.
+  const position = isPostgres(sequelize) ? 'strpos' : 'instr';
+  if (needle) conditions.push({ [Op.or]: ['name', 'slug', 'site'].map((column) => where(fn(position, fn('lower', col(column)), needle), Op.gt, 0)) });
   return Series.findAll({ where: { [Op.and]: conditions }, order: [['name', 'ASC']], limit: options.limit });
 }
 

@@ -1,6 +1,7 @@
 import { QueryTypes, type Transaction } from 'sequelize';
 import { db } from '@/models';
 import { sqlDate } from '@/lib/db/sql-date';
+import { jsonElements } from '@/lib/db/dialect';
 import type { WebhookEvent } from './events';
 import type { WebhookPayload } from './payloads';
 
@@ -15,7 +16,7 @@ export async function enqueueWebhookEvent(event: WebhookEvent, payload: WebhookP
   if (payload.event !== event) throw new Error(`webhook payload of ${payload.event} enqueued as ${event}`);
   const sequelize = await db();
   const endpoints = await sequelize.query<{ id: number }>(
-    `SELECT id FROM webhook_endpoints WHERE active = 1 AND EXISTS (SELECT 1 FROM json_each(webhook_endpoints.events) WHERE value = :event)`,
+    `SELECT id FROM webhook_endpoints WHERE active AND EXISTS (SELECT 1 FROM ${jsonElements(sequelize, 'webhook_endpoints.events', 'e')} WHERE e.value = :event)`,
     { replacements: { event }, transaction, type: QueryTypes.SELECT },
   );
   const body = JSON.stringify(payload);

@@ -1,5 +1,6 @@
 import crypto from 'node:crypto';
 import { Op, QueryTypes } from 'sequelize';
+import { claimLock } from '@/lib/db/dialect';
 import { WebhookAttempt, WebhookEndpoint, db, writeTransaction } from '@/models';
 import { PROCESS_HOLDER } from '@/lib/db/leases';
 import { sqlDate } from '@/lib/db/sql-date';
@@ -43,8 +44,8 @@ async function claimDue(claim: string, now: number): Promise<ClaimedDelivery[]> 
     `UPDATE webhook_deliveries SET status = 'sending', claimed_by = :claim, next_attempt_at = :until, updated_at = :nowIso
      WHERE id IN (
        SELECT d.id FROM webhook_deliveries d JOIN webhook_endpoints e ON e.id = d.endpoint_id
-       WHERE d.status IN ('pending', 'sending') AND d.next_attempt_at <= :nowIso AND e.active = 1
-       ORDER BY d.next_attempt_at, d.id LIMIT :batch)
+       WHERE d.status IN ('pending', 'sending') AND d.next_attempt_at <= :nowIso AND e.active
+       ORDER BY d.next_attempt_at, d.id LIMIT :batch${claimLock(sequelize, 'd')})
      RETURNING id, endpoint_id, event, idempotency_key, body, attempts`,
     { replacements: { claim, nowIso: sqlDate(now), until: sqlDate(now + WEBHOOK_CLAIM_TTL_MS), batch: BATCH }, type: QueryTypes.SELECT },
   );

@@ -11,12 +11,12 @@ import { foldRecord } from './fold';
 // The test process reads and writes the app's own database (WAL mode allows it), so it must point at the app's
 // DATA_DIR before anything opens a connection.
 const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'bw-alerts-e2e-'));
-process.env.DATA_DIR = dataDir;
-delete process.env.DATABASE_PATH;
+useDataDir(dataDir);
 
 import { startMailSink } from '@/lib/mail/sink';
 import { formatTau } from '@/lib/display/format';
 import { AnalysisSnapshot, MailMessage, RuleEvaluation, Series, closeDatabase, db } from '@/models';
+import { useDataDir } from '../support/temp-db';
 
 const mailbox = path.join(dataDir, 'mailbox');
 let smtpPort: number;

@@ -4,6 +4,7 @@ import { type Browser, type BrowserContext, type Page } from 'playwright-core';
 import { DEMO_PASSWORD, startApp, type RunningApp } from '../support/app';
 import { signedIn, type Session } from '../support/session';
 import { launchChromium, SHOTS, shot } from '../support/browser';
+import { useDataDir } from '../support/temp-db';
 
 const ROLES = ['admin', 'lead', 'analyst', 'viewer'] as const;
 type RoleName = (typeof ROLES)[number];
@@ -32,7 +33,7 @@ async function alertToTriage(): Promise<number> {
     if (body.items?.length) return body.items[0].id;
     await new Promise((r) => setTimeout(r, 2000));
   }
-  process.env.DATA_DIR = app.dataDir;
+  useDataDir(app.dataDir);
   const { db, Alert, AlertRule, AnalysisSnapshot, OPEN_ALERT_STATES } = await import('@/models');
   await db();
   const snapshot = await AnalysisSnapshot.findOne({ where: { status: 'ok' }, order: [['id', 'DESC']] });

@@ -4,14 +4,14 @@ import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startApp, type RunningApp } from '../support/app';
 import { readMailbox, waitFor } from '../mail/support';
+import { useDataDir } from '../support/temp-db';
 
 // The live demo as a newcomer starts it: the real start script (migrations, seed, web server, scheduler, local SMTP
 // stand-in) with the demo, the feed every 10 s instead of every 2 minutes and the other jobs every 5 s. The test
 // process reads the app's own database (WAL mode allows it), so it points at the app's DATA_DIR before anything
 // opens a connection. Every wait is bounded by the promise: five minutes from the start.
 const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'bw-live-feed-'));
-process.env.DATA_DIR = dataDir;
-delete process.env.DATABASE_PATH;
+useDataDir(dataDir);
 
 const { Alert, AlertRule, AnalysisSnapshot, IngestRun, Series, closeDatabase, db } = await import('@/models');
 const { Op, QueryTypes } = await import('sequelize');

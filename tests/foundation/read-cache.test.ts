@@ -1,7 +1,7 @@
 import { spawnSync } from 'node:child_process';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { useTempDataDir } from '../support/temp-db';
+import { testDialect, useTempDataDir } from '../support/temp-db';
 
 useTempDataDir('bw-read-cache-');
 
@@ -28,7 +28,9 @@ function counter() {
   return { read, loads: () => loads };
 }
 
-describe('read cache checked against PRAGMA data_version (https://sqlite.org/pragma.html#pragma_data_version)', () => {
+// SQLite: PRAGMA data_version (https://sqlite.org/pragma.html#pragma_data_version); PostgreSQL: pg_current_snapshot()
+// (https://www.postgresql.org/docs/current/functions-info.html#FUNCTIONS-PG-SNAPSHOT).
+describe(`read cache checked against the database's change marker (${testDialect()})`, () => {
   it('answers from memory while nothing is committed and reads again after a commit on this process', async () => {
     await db();
     await AppState.upsert({ key: 'probe', value: 'one', updatedAt: new Date() });
@@ -41,14 +43,18 @@ describe('read cache checked against PRAGMA data_version (https://sqlite.org/pra
     expect(loads()).toBe(2);
   });
 
-  it('sees a commit made by another process on the same file', async () => {
+  it('sees a commit made by another process on the same database', async () => {
     const { read, loads } = counter();
     const before = await read();
     const baseline = loads();
-    // A separate OS process writes with the sqlite3 package directly, as the scheduler would.
+    // A separate OS process writes with the driver directly, as the scheduler or another web node would.
+    const update = "UPDATE app_state SET value='from-elsewhere' WHERE key='probe'";
     const script =
-      `const s=require('sqlite3');const d=new s.Database(${JSON.stringify(databasePath())});d.configure('busyTimeout',5000);` +
-      `d.run("UPDATE app_state SET value='from-elsewhere' WHERE key='probe'",(e)=>{if(e)throw e;d.close();});`;
+      testDialect() === 'postgres'
+        ? `const {Client}=require('pg');const c=new Client(${JSON.stringify(process.env.DATABASE_URL)});` +
+          `c.connect().then(()=>c.query(${JSON.stringify(update)})).then(()=>c.end(),(e)=>{console.error(e);process.exit(1);});`
+        : `const s=require('sqlite3');const d=new s.Database(${JSON.stringify(databasePath())});d.configure('busyTimeout',5000);` +
+          `d.run(${JSON.stringify(update)},(e)=>{if(e)throw e;d.close();});`;
     const result = spawnSync(process.execPath, ['-e', script], { cwd: path.resolve(__dirname, '../..'), encoding: 'utf8' });
     expect(result.status, result.stderr).toBe(0);
     expect(before).not.toBe('from-elsewhere');

@@ -3,6 +3,7 @@ import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import { DEMO_PASSWORD, startApp, type RunningApp } from '../support/app';
 import { Session, signedIn } from '../support/session';
+import { databaseUrlFor, testDialect } from '../support/temp-db';
 
 const ROLES = ['viewer', 'analyst', 'lead', 'admin'] as const;
 
@@ -21,6 +22,7 @@ describe('the started product', () => {
     const body = await response.json();
     expect(body.ok).toBe(true);
     expect(body.db.ok).toBe(true);
+    expect(body.db.dialect).toBe(testDialect());
     expect(body).toHaveProperty('scheduler');
     expect(body).toHaveProperty('mail');
     expect(response.headers.get('x-powered-by')).toBeNull();
@@ -139,7 +141,7 @@ async function runInApp(app: RunningApp, body: string): Promise<string> {
   fs.writeFileSync(file, `${body}\n`);
   const result = spawnSync(process.execPath, ['--import', 'tsx', file], {
     cwd: root,
-    env: { ...process.env, DATA_DIR: app.dataDir, DATABASE_PATH: '' },
+    env: { ...process.env, DATA_DIR: app.dataDir, DATABASE_PATH: '', DATABASE_URL: databaseUrlFor(app.dataDir) ?? '' },
     encoding: 'utf8',
   });
   fs.rmSync(file);

@@ -3,7 +3,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { QueryTypes } from 'sequelize';
 import { beforeAll, describe, expect, it } from 'vitest';
-import { useTempDataDir } from '../support/temp-db';
+import { testDialect, useTempDataDir } from '../support/temp-db';
 
 const dataDir = useTempDataDir('bw-crash-');
 
@@ -55,14 +55,24 @@ describe('a crash in the middle of a large drop file', () => {
     proc.stdout.on('data', (d) => (out += d));
     proc.stderr.on('data', (d) => (out += d));
     const exited = new Promise((resolve) => proc.on('exit', resolve));
-    // Kill once the run exists and the write transaction has begun spilling pages into the WAL.
+    // Kill once the run exists and the write transaction has begun: on SQLite when it spills pages into the WAL, on
+    // PostgreSQL when another connection of this database is inside the observations' INSERTs.
     const wal = path.join(dataDir, 'brinkwatch.sqlite-wal');
     const baseline = fs.existsSync(wal) ? fs.statSync(wal).size : 0;
+    const writing = async () => {
+      if (testDialect() === 'sqlite') return (fs.existsSync(wal) ? fs.statSync(wal).size : 0) > baseline + 2 * 1024 * 1024;
+      const inserts = await (
+        await db()
+      ).query(
+        "SELECT 1 FROM pg_stat_activity WHERE datname = current_database() AND pid <> pg_backend_pid() AND xact_start IS NOT NULL AND query LIKE 'INSERT INTO observations %'",
+        { type: QueryTypes.SELECT },
+      );
+      return inserts.length > 0;
+    };
     const deadline = Date.now() + 60_000;
     for (;;) {
       const running = await IngestRun.count({ where: { status: 'running' } });
-      const walSize = fs.existsSync(wal) ? fs.statSync(wal).size : 0;
-      if (running === 1 && walSize > baseline + 2 * 1024 * 1024) break;
+      if (running === 1 && (await writing())) break;
       if (proc.exitCode !== null || Date.now() > deadline) throw new Error(`the child finished before it could be killed:\n${out}`);
       await new Promise((r) => setTimeout(r, 20));
     }

@@ -55,7 +55,7 @@ describe('two schedulers started at once on one DATA_DIR', () => {
     await waitFor(
       'analysis and mail to settle',
       async () => {
-        const pending = await raw.count('series', 'needs_analysis = 1');
+        const pending = await raw.count('series', 'needs_analysis');
         const unsent = await raw.count('mail_outbox', "status <> 'sent'");
         const alerts = await raw.count('alerts');
         return pending === 0 && unsent === 0 && alerts === SERIES.length;
@@ -89,7 +89,7 @@ describe('two schedulers started at once on one DATA_DIR', () => {
     }
 
     // No series analysed twice for the same data, and every snapshot judged exactly once by its rule.
-    const twice = await raw.all(`SELECT series_id, n, data_to, COUNT(*) AS c FROM analysis_snapshots GROUP BY series_id, n, data_to HAVING c > 1`);
+    const twice = await raw.all(`SELECT series_id, n, data_to, COUNT(*) AS c FROM analysis_snapshots GROUP BY series_id, n, data_to HAVING COUNT(*) > 1`);
     expect(twice).toEqual([]);
     const unjudged = await raw.all(`SELECT a.id FROM analysis_snapshots a JOIN alert_rules r ON r.series_id = a.series_id
                                     LEFT JOIN rule_evaluations e ON e.snapshot_id = a.id AND e.rule_id = r.id

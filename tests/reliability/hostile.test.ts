@@ -230,7 +230,7 @@ describe('hostile input against the started product', () => {
                     VALUES (${seriesId}, '{}', '{}', 'ok', 0, '2024-01-01 00:00:00.000 +00:00', '2024-01-01 00:00:00.000 +00:00')`);
     const snapshot = (await raw.get<{ id: number }>('SELECT MAX(id) AS id FROM analysis_snapshots'))!.id;
     await raw.exec(`INSERT INTO alert_rules (series_id, indicator, min_tau, persistence, severity, quiet_period_hours, active, level_direction, created_at, updated_at)
-                    VALUES (${seriesId}, 'ac1', 0.3, 1, 'watch', 0, 1, 'above', '2024-01-01 00:00:00.000 +00:00', '2024-01-01 00:00:00.000 +00:00')`);
+                    VALUES (${seriesId}, 'ac1', 0.3, 1, 'watch', 0, TRUE, 'above', '2024-01-01 00:00:00.000 +00:00', '2024-01-01 00:00:00.000 +00:00')`);
     const rule = (await raw.get<{ id: number }>('SELECT MAX(id) AS id FROM alert_rules'))!.id;
     await raw.exec(`INSERT INTO alerts (series_id, rule_id, state, severity, first_snapshot_id, latest_snapshot_id, evaluation_count, peak_tau, version, created_at, updated_at)
                     VALUES (${seriesId}, ${rule}, 'new', 'watch', ${snapshot}, ${snapshot}, 1, 0.5, 1, '2024-01-01 00:00:00.000 +00:00', '2024-01-01 00:00:00.000 +00:00')`);

@@ -2,16 +2,20 @@ import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import { DEMO_PASSWORD, startApp, type RunningApp } from '../support/app';
 import { signedIn, type Session } from '../support/session';
 import { RawDb } from './sqlite';
+import { WRITE_LOCK_KEY } from '@/models/db';
 
 const BUSY_TIMEOUT_MS = 200;
 
-/** Holds SQLite's write lock from a separate connection (as a long-running maintenance job would) for `ms`. */
+/**
+ * Holds the write lock from a separate connection (as a long-running maintenance job would) for `ms`: SQLite's
+ * own, or on PostgreSQL the advisory lock every write transaction of the product queues on (models/db.ts).
+ */
 async function holdWriteLock(dataDir: string, ms: number): Promise<{ released: Promise<void> }> {
   const locker = await RawDb.forDataDir(dataDir);
-  await locker.exec('BEGIN EXCLUSIVE');
+  await locker.exec(locker.dialect === 'postgres' ? `SELECT pg_advisory_lock(${WRITE_LOCK_KEY})` : 'BEGIN EXCLUSIVE');
   const released = (async () => {
     await new Promise((r) => setTimeout(r, ms));
-    await locker.exec('COMMIT');
+    await locker.exec(locker.dialect === 'postgres' ? `SELECT pg_advisory_unlock(${WRITE_LOCK_KEY})` : 'COMMIT');
     await locker.close();
   })();
   return { released };

@@ -2,6 +2,7 @@ import { spawn, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
 import type { RunningApp } from '../support/app';
+import { databaseUrlFor } from '../support/temp-db';
 
 const ROOT = path.resolve(__dirname, '../..');
 
@@ -31,6 +32,7 @@ export function startScheduler(app: Pick<RunningApp, 'dataDir' | 'mailSinkPort' 
       ...process.env,
       DATA_DIR: app.dataDir,
       DATABASE_PATH: '',
+      DATABASE_URL: databaseUrlFor(app.dataDir) ?? '',
       MAIL_SINK_PORT: String(app.mailSinkPort),
       SMTP_URL: '',
       NEXTAUTH_URL: app.baseUrl,

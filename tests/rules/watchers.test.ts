@@ -7,10 +7,10 @@ import { signedIn, type Session } from '../support/session';
 
 // The test reads the app's own database (WAL mode allows it) for the audit trail, so it points at the app's DATA_DIR first.
 const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'bw-watchers-'));
-process.env.DATA_DIR = dataDir;
-delete process.env.DATABASE_PATH;
+useDataDir(dataDir);
 
 import { AuditEntry, closeDatabase, db } from '@/models';
+import { useDataDir } from '../support/temp-db';
 
 let app: RunningApp;
 let lead: Session, analyst: Session, viewer: Session;

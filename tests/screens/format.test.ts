@@ -52,7 +52,7 @@ describe('service notices from the health report', () => {
   const NOW = Date.UTC(2026, 11, 2, 7, 0);
   const healthy: HealthReport = {
     ok: true,
-    db: { ok: true },
+    db: { ok: true, dialect: 'sqlite' },
     scheduler: { ok: true, lastBeatAt: new Date(NOW - 10_000).toISOString(), holder: 'host:1' },
     mail: { ok: true, transport: 'smtp', pending: 3, failed: 0 },
   };
@@ -73,7 +73,7 @@ describe('service notices from the health report', () => {
     ]);
     const down = {
       ok: false,
-      db: { ok: false, error: 'x' },
+      db: { ok: false, dialect: 'sqlite' as const, error: 'x' },
       scheduler: { ok: false, lastBeatAt: null, holder: null },
       mail: { ok: false, transport: 'smtp' as const, pending: 0, failed: 0 },
     };

@@ -1,6 +1,6 @@
 import { beforeAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
-import { useTempDataDir } from '../support/temp-db';
+import { testDialect, useTempDataDir } from '../support/temp-db';
 
 useTempDataDir('bw-sites-');
 
@@ -30,7 +30,9 @@ beforeAll(async () => {
 });
 
 describe('migration 0015: sites from the site names series carried', () => {
-  it('creates one site per distinct non-empty name, points series at it, and goes down and up again', async () => {
+  // A database at a schema before 0015 is a SQLite one: PostgreSQL is supported from the current schema on, and
+  // migrations.test.ts runs every migration up, down and up there.
+  it.runIf(testDialect() === 'sqlite')('creates one site per distinct non-empty name, points series at it, and goes down and up again', async () => {
     const sequelize = await db();
     await migrateDown('0015-sites');
     const insert = (slug: string, site: string, zone: string) =>

@@ -4,6 +4,7 @@ import net from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
 import { buildForDigest } from '@/lib/runtime/build';
+import { databaseUrlFor } from './temp-db';
 
 const ROOT = path.resolve(__dirname, '../..');
 
@@ -41,7 +42,8 @@ export const DEMO_PASSWORD = 'test-password-123';
 
 /**
  * Starts the real product (`scripts/start.ts`: migrations, seed, web server, scheduler, mail sink) on free
- * loopback ports and a temp DATA_DIR, and waits until /api/health answers.
+ * loopback ports and a temp DATA_DIR (and, in the PostgreSQL project, the database of that folder: `databaseUrlFor`),
+ * and waits until /api/health answers.
  */
 export async function startApp(options: StartOptions = {}): Promise<RunningApp> {
   const distDir = await buildForDigest();
@@ -68,6 +70,7 @@ async function launch(options: StartOptions, distDir: string, dataDir: string): 
       ...process.env,
       DATA_DIR: dataDir,
       DATABASE_PATH: '',
+      DATABASE_URL: databaseUrlFor(dataDir) ?? '',
       PORT: String(port),
       HOST: '127.0.0.1',
       NEXTAUTH_URL: `http://localhost:${port}`,
