@@ -171,9 +171,10 @@ describe('site-level snapshots made by the scheduler', () => {
   it('migration 0022 goes down and up again', async () => {
     await migrateDown('0019-station-data');
     const sequelize = await db();
-    const [tables] = await sequelize.query("SELECT name FROM sqlite_master WHERE type = 'table' AND name = 'site_snapshots'");
-    expect(tables).toEqual([]);
+    // The table list of either dialect (SQLite's schema table, PostgreSQL's information schema).
+    expect(await sequelize.getQueryInterface().showAllTables()).not.toContain('site_snapshots');
     await migrateUp();
+    expect(await sequelize.getQueryInterface().showAllTables()).toContain('site_snapshots');
     expect(await SiteSnapshot.count()).toBe(0);
   });
 });
