@@ -4,7 +4,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser } from 'playwright-core';
 import { DEMO_PASSWORD, startApp, type RunningApp } from '../support/app';
 import { signedIn, type Session } from '../support/session';
-import { launchChromium, shot } from '../support/browser';
+import { launchChromium, shot, signInPage } from '../support/browser';
 
 const FIXTURES = path.resolve(__dirname, '../../fixtures/netcdf');
 
@@ -28,12 +28,7 @@ describe('uploading a netCDF file on the Intake screen', () => {
   it('offers the variables of a file with several, previews the chosen one and commits it', async () => {
     const context = await browser.newContext({ viewport: { width: 1280, height: 900 } });
     const page = await context.newPage();
-    await page.goto(`${app.baseUrl}/`);
-    await page.waitForURL(/\/signin/);
-    await page.getByLabel('E-mail').fill('lead@brinkwatch.test');
-    await page.getByLabel('Password').fill(DEMO_PASSWORD);
-    await page.getByRole('button', { name: 'Sign in' }).click();
-    await page.waitForURL(`${app.baseUrl}/`);
+    await signInPage(page, app.baseUrl, 'lead');
     await page.goto(`${app.baseUrl}/intake`);
     const panel = page.getByTestId('upload-panel');
     await panel.getByRole('combobox', { name: 'Series' }).fill('browser netcdf');

@@ -3,7 +3,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { type Browser, type Page } from 'playwright-core';
 import { DEMO_PASSWORD, startApp, type RunningApp } from '../support/app';
 import { signedIn, type Session } from '../support/session';
-import { launchChromium, SHOTS } from '../support/browser';
+import { launchChromium, SHOTS, signInPage } from '../support/browser';
 
 // The demo's mooring: a daily salinity contrast and an hourly deep temperature (lib/demo/scenario.ts).
 const SITE = 'veskary-sound-mooring';
@@ -20,12 +20,7 @@ describe('site-level indicators, the restoring-rate band and the stride setting 
     browser = await launchChromium();
     lead = await signedIn(app.baseUrl, 'lead@brinkwatch.test', DEMO_PASSWORD);
     page = await (await browser.newContext({ viewport: { width: 1280, height: 900 } })).newPage();
-    await page.goto(`${app.baseUrl}/`);
-    await page.waitForURL(/\/signin/);
-    await page.getByLabel('E-mail').fill('lead@brinkwatch.test');
-    await page.getByLabel('Password').fill(DEMO_PASSWORD);
-    await page.getByRole('button', { name: 'Sign in' }).click();
-    await page.waitForURL(`${app.baseUrl}/`);
+    await signInPage(page, app.baseUrl, 'lead');
   }, 180_000);
 
   afterAll(async () => {
