@@ -63,16 +63,22 @@ describe(`read cache checked against the database's change marker (${testDialect
   });
 
   it('shares one load between concurrent misses and does not keep a failure', async () => {
-    let calls = 0;
-    const slow = () =>
-      cachedRead('shared', async () => {
-        calls++;
-        await new Promise((r) => setTimeout(r, 20));
-        return { calls };
-      });
-    const [a, b] = await Promise.all([slow(), slow()]);
-    expect(a).toBe(b);
-    expect(calls).toBe(1);
+    // Two misses share a load when they see the same change marker. PostgreSQL's marker is the whole server's
+    // snapshot, so other databases on a shared test server (other test files) may move it between the two probes:
+    // a few fresh keys are tried, and sharing must show on at least one (without it every try loads twice).
+    const shared: boolean[] = [];
+    for (let attempt = 0; attempt < 5 && !shared.includes(true); attempt++) {
+      let calls = 0;
+      const slow = () =>
+        cachedRead(`shared-${attempt}`, async () => {
+          calls++;
+          await new Promise((r) => setTimeout(r, 20));
+          return { calls };
+        });
+      const [a, b] = await Promise.all([slow(), slow()]);
+      shared.push(a === b && calls === 1);
+    }
+    expect(shared).toContain(true);
 
     let attempts = 0;
     const flaky = () =>
