@@ -349,10 +349,18 @@ function parseJson(text: string | null): Record<string, unknown> {
 function describeSettingsChange(before: string | null, after: string): string {
   // The first settings of a series are its starting point, not a change a reader weighs; the series page has them.
   if (before === null) return 'first settings of the series';
-  const next = parseJson(after);
-  const prev = parseJson(before);
-  const keys = [...new Set([...Object.keys(prev), ...Object.keys(next)])].filter((k) => JSON.stringify(prev[k]) !== JSON.stringify(next[k]));
-  return keys.map((k) => `${k} ${JSON.stringify(prev[k] ?? null)} → ${JSON.stringify(next[k] ?? null)}`).join('; ') || 'no effective change';
+  return differences(parseJson(before), parseJson(after)) || 'no effective change';
+}
+
+/** One changed field as the report prints it: `window 0.5 → 0.4`. */
+function changeText(key: string, before: unknown, after: unknown): string {
+  return `${key} ${JSON.stringify(before ?? null)} → ${JSON.stringify(after ?? null)}`;
+}
+
+/** Every field whose value differs between two objects, as `changeText`s joined by "; " (empty when none). */
+function differences(before: Record<string, unknown>, after: Record<string, unknown>): string {
+  const keys = [...new Set([...Object.keys(before), ...Object.keys(after)])].filter((k) => JSON.stringify(before[k]) !== JSON.stringify(after[k]));
+  return keys.map((k) => changeText(k, before[k], after[k])).join('; ');
 }
 
 /**
@@ -361,14 +369,11 @@ function describeSettingsChange(before: string | null, after: string): string {
  */
 function describeQcChange(details: Record<string, unknown>): Pick<ReportChange, 'what' | 'detail' | 'why'> | null {
   if (!Array.isArray(details.fields) || !details.fields.includes('qc')) return null;
-  const before = (details.qcBefore ?? {}) as Record<string, unknown> | null;
-  const after = (details.qcAfter ?? {}) as Record<string, unknown> | null;
-  const keys = [...new Set([...Object.keys(before ?? {}), ...Object.keys(after ?? {})])].filter(
-    (k) => JSON.stringify(before?.[k]) !== JSON.stringify(after?.[k]),
-  );
+  const before = (details.qcBefore ?? {}) as Record<string, unknown>;
+  const after = (details.qcAfter ?? {}) as Record<string, unknown>;
   return {
     what: 'quality-control limits changed',
-    detail: keys.map((k) => `${k} ${JSON.stringify(before?.[k] ?? null)} → ${JSON.stringify(after?.[k] ?? null)}`).join('; ') || 'QC tests switched off',
+    detail: differences(before, after) || 'QC tests switched off',
     why: typeof details.reason === 'string' ? details.reason : null,
   };
 }
@@ -393,7 +398,7 @@ function describeRuleChange(action: string, ruleId: number, details: Record<stri
   if (action === 'rule.update' && details.changes && typeof details.changes === 'object') {
     const before = (details.before ?? {}) as Record<string, unknown>;
     detail = Object.entries(details.changes as Record<string, unknown>)
-      .map(([k, v]) => `${k} ${JSON.stringify(before[k] ?? null)} → ${JSON.stringify(v)}`)
+      .map(([k, v]) => changeText(k, before[k], v))
       .join('; ');
   } else if (action === 'rule.threshold') detail = `threshold ${JSON.stringify(details.before ?? null)} → ${JSON.stringify(details.after ?? null)}`;
   else if (action === 'rule.create') detail = `${indicatorLabel(String(details.indicator ?? ''))}, min tau ${String(details.minTau ?? '?')}`;
