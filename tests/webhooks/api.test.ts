@@ -73,7 +73,12 @@ describe('webhooks API (real server)', () => {
     expect(delivery.headers['x-brinkwatch-signature']).toBe(expected);
     expect(delivery.headers['idempotency-key']).toBe(body.id);
 
-    const deliveries = await (await admin.fetch(`/api/webhooks/${id}/deliveries`)).json();
+    // The sender records the attempt once the receiver has answered, so the log may lag the receipt by a moment.
+    let deliveries = await (await admin.fetch(`/api/webhooks/${id}/deliveries`)).json();
+    while (deliveries.items[0]?.status === 'sending' && Date.now() < deadline) {
+      await new Promise((r) => setTimeout(r, 250));
+      deliveries = await (await admin.fetch(`/api/webhooks/${id}/deliveries`)).json();
+    }
     expect(deliveries.items[0]).toMatchObject({ event: 'intake.rejected', status: 'delivered', attempts: 1, attemptLog: [{ statusCode: 200, error: null }] });
     expect((await viewer.fetch(`/api/webhooks/${id}/deliveries`)).status).toBe(403);
 
