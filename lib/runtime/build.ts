@@ -113,7 +113,9 @@ export async function buildForDigest(): Promise<string> {
   const name = path.join('.next-builds', sourceDigest().slice(0, 16));
   for (const entry of fs.readdirSync(parent)) {
     const full = path.join(parent, entry);
-    if (full !== path.join(ROOT, name) && Date.now() - fs.statSync(full).mtimeMs > 60 * 60 * 1000) {
+    // Another test process may remove the same old folder between the listing and this look at it.
+    const stat = fs.statSync(full, { throwIfNoEntry: false });
+    if (stat && full !== path.join(ROOT, name) && Date.now() - stat.mtimeMs > 60 * 60 * 1000) {
       fs.rmSync(full, { recursive: true, force: true });
     }
   }
