@@ -49,6 +49,8 @@ stop() {
   local bin dir="${1:-${BRINKWATCH_TEST_POSTGRES_DIR:-}}"
   [ -n "$dir" ] && [ -d "$dir/data" ] || return 0
   bin=$(pg_bin)
+  # What the server itself complained of (not the routine FATALs of databases dropped WITH (FORCE)) outlives it.
+  grep -E "PANIC|too many clients|out of memory|could not fork|server process .* was terminated" "$dir/server.log" 2>/dev/null | tail -n 20 >&2 || true
   as_owner "$bin/pg_ctl" -D "$dir/data" -m fast -w stop >/dev/null 2>&1 || true
   rm -rf "$dir"
 }

@@ -104,6 +104,11 @@ async function launch(options: StartOptions, distDir: string, dataDir: string): 
     if (Date.now() > deadline) throw new Error(`app did not become healthy:\n${output}`);
     await new Promise((r) => setTimeout(r, 300));
   }
+  let stopping = false;
+  // A product that dies under a test leaves only "connection refused" behind; its own last words say why.
+  child.once('exit', (code, signal) => {
+    if (!stopping) console.error(`[test app on port ${port}] exited unexpectedly (${signal ?? code}); its last output:\n${output.slice(-6000)}`);
+  });
   return {
     baseUrl,
     port,
@@ -112,6 +117,7 @@ async function launch(options: StartOptions, distDir: string, dataDir: string): 
     process: child,
     output: () => output,
     stop: async () => {
+      stopping = true;
       if (child.exitCode !== null) return;
       const exited = new Promise((r) => child.once('exit', r));
       try {
