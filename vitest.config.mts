@@ -22,6 +22,7 @@ const POSTGRES_FILES = [
   'tests/alerts/lateness.test.ts',
   'tests/alerts/portfolio.test.ts',
   'tests/alerts/shifts.test.ts',
+  'tests/alerts/site-rules.test.ts',
   'tests/alerts/triage.test.ts',
   'tests/analysis/incremental-snapshot.test.ts',
   'tests/backtest/rule-calibration.test.ts',

@@ -5,6 +5,7 @@ import { PROCESS_HOLDER, withLease } from '@/lib/db/leases';
 import { ClaimLostError, pruneSnapshotCurves, refreshSeriesAnalysis, unjudgedLatestSnapshots } from '@/lib/analysis/snapshot';
 import { evaluateSnapshots } from '@/lib/alerts/evaluate';
 import { refreshSiteAnalyses } from '@/lib/sites/analysis';
+import { evaluateSiteRules } from '@/lib/alerts/site-rules';
 import type { ScheduledJob } from './types';
 
 /**
@@ -56,8 +57,10 @@ export async function runAnalysisCycle(): Promise<{ analysed: number; snapshots:
   const pending = (await unjudgedLatestSnapshots()).filter((s) => !freshIds.has(s.id));
   const judged = [...fresh, ...pending];
   if (judged.length) await evaluateSnapshots(judged);
-  // Sites whose member series got a new snapshot (this cycle or one that stopped early) get their site-level one.
+  // Sites whose member series got a new snapshot (this cycle or one that stopped early) get their site-level one,
+  // and site rules are judged on each site's latest (any not judged yet, as after a scheduler that died here).
   await refreshSiteAnalyses();
+  await evaluateSiteRules();
   return { analysed: fresh.length, snapshots: fresh };
 }
 

@@ -32,7 +32,7 @@ const MAX_KENDALL_KEY = 'migration-0007.max-kendall-p';
 const DIRECTION_BY_INDICATOR = `CASE indicator WHEN 'recovery' THEN 'falling' WHEN 'skewness' THEN 'either' WHEN 'kurtosis' THEN 'either' ELSE 'rising' END`;
 
 /** Rebuilds `alerts` with a CREATE statement derived from the current one by `edit`, keeping rows and indexes. */
-async function rebuildAlerts(q: QueryInterface, edit: (sql: string) => string, columns: string): Promise<void> {
+export async function rebuildAlerts(q: QueryInterface, edit: (sql: string) => string, columns: string): Promise<void> {
   const s = q.sequelize;
   const [table] = await s.query<{ sql: string }>(`SELECT sql FROM sqlite_master WHERE type = 'table' AND name = 'alerts'`, { type: QueryTypes.SELECT });
   const indexes = await s.query<{ sql: string }>(`SELECT sql FROM sqlite_master WHERE type = 'index' AND tbl_name = 'alerts' AND sql IS NOT NULL`, {

@@ -24,6 +24,7 @@ import * as changeReasons from './0020-change-reasons';
 import * as dataVersions from './0021-data-versions';
 import * as siteSnapshots from './0022-site-snapshots';
 import * as analysisState from './0023-analysis-state';
+import * as siteRules from './0024-site-rules';
 
 /**
  * The ordered list of schema changes. Listed explicitly (not globbed) so the same list works in the Next.js server
@@ -50,6 +51,7 @@ const MIGRATIONS = [
   { name: '0021-data-versions', ...dataVersions },
   { name: '0022-site-snapshots', ...siteSnapshots },
   { name: '0023-analysis-state', ...analysisState },
+  { name: '0024-site-rules', ...siteRules },
 ];
 
 async function migrator(): Promise<Umzug<QueryInterface>> {

@@ -3,16 +3,21 @@ import type { Severity } from './AlertRule';
 
 export const ALERT_STATES = ['new', 'acknowledged', 'escalated', 'confirmed', 'dismissed'] as const;
 export type AlertState = (typeof ALERT_STATES)[number];
-export const ALERT_KINDS = ['slowing-down', 'abrupt-shift', 'data-late'] as const;
+export const ALERT_KINDS = ['slowing-down', 'abrupt-shift', 'data-late', 'site-slowing-down'] as const;
 export type AlertKind = (typeof ALERT_KINDS)[number];
 export const OPEN_ALERT_STATES: readonly AlertState[] = ['new', 'acknowledged', 'escalated'];
 
 export class Alert extends Model<InferAttributes<Alert>, InferCreationAttributes<Alert>> {
   declare id: CreationOptional<number>;
-  declare seriesId: number;
+  /** The series the alert is on; null for a 'site-slowing-down' alert, which is on a site (siteId). */
+  declare seriesId: number | null;
+  /** The site of a 'site-slowing-down' alert (a rule on site-level indicators, migration 0024); null otherwise. */
+  declare siteId: CreationOptional<number | null>;
   /**
    * 'slowing-down' alerts come from a rule; 'abrupt-shift' alerts from the change-point detection (no rule);
-   * 'data-late' alerts from the freshness pass when a series falls silent (no rule; lib/alerts/lateness.ts).
+   * 'data-late' alerts from the freshness pass when a series falls silent (no rule; lib/alerts/lateness.ts);
+   * 'site-slowing-down' alerts from a rule on a site's site-level indicators (lib/alerts/site-rules.ts), whose
+   * snapshot ids name site snapshots.
    */
   declare kind: CreationOptional<AlertKind>;
   declare ruleId: number | null;
@@ -44,7 +49,8 @@ export class Alert extends Model<InferAttributes<Alert>, InferCreationAttributes
     Alert.init(
       {
         id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
-        seriesId: { type: DataTypes.INTEGER, allowNull: false },
+        seriesId: { type: DataTypes.INTEGER, allowNull: true },
+        siteId: { type: DataTypes.INTEGER, allowNull: true },
         kind: { type: DataTypes.STRING, allowNull: false, defaultValue: 'slowing-down', validate: { isIn: [[...ALERT_KINDS]] } },
         ruleId: { type: DataTypes.INTEGER, allowNull: true },
         shiftTime: {

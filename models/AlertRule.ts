@@ -16,6 +16,8 @@ export function defaultRuleDirection(indicator: string): RuleDirection {
 export class AlertRule extends Model<InferAttributes<AlertRule>, InferCreationAttributes<AlertRule>> {
   declare id: CreationOptional<number>;
   declare seriesId: number | null;
+  /** A rule on a site's site-level indicators (then seriesId is null); null for series rules and defaults. */
+  declare siteId: CreationOptional<number | null>;
   declare indicator: string;
   /** Which way the indicator's trend must go: minTau applies to tau seen in this direction (lib/engine/direction). */
   declare direction: CreationOptional<RuleDirection>;
@@ -40,6 +42,7 @@ export class AlertRule extends Model<InferAttributes<AlertRule>, InferCreationAt
       {
         id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
         seriesId: { type: DataTypes.INTEGER, allowNull: true },
+        siteId: { type: DataTypes.INTEGER, allowNull: true },
         indicator: { type: DataTypes.STRING, allowNull: false },
         direction: { type: DataTypes.STRING, allowNull: false, validate: { isIn: [[...RULE_DIRECTIONS]] } },
         minTau: { type: DataTypes.DOUBLE, allowNull: false },

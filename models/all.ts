@@ -33,3 +33,4 @@ export { Feed } from './Feed';
 export { SeriesAnalysisState } from './SeriesAnalysisState';
 export { Reanalysis } from './Reanalysis';
 export { SiteSnapshot } from './SiteSnapshot';
+export { SiteRuleEvaluation } from './SiteRuleEvaluation';

@@ -20,6 +20,7 @@ function associate(): void {
   M.Series.hasMany(M.Alert, { foreignKey: 'seriesId', as: 'alerts' });
   M.Alert.belongsTo(M.Series, { foreignKey: 'seriesId', as: 'series' });
   M.Alert.belongsTo(M.AlertRule, { foreignKey: 'ruleId', as: 'rule' });
+  M.Alert.belongsTo(M.Site, { foreignKey: 'siteId', as: 'site' });
   M.Alert.belongsTo(M.User, { foreignKey: 'assigneeId', as: 'assignee' });
   M.Alert.belongsTo(M.AnalysisSnapshot, { foreignKey: 'firstSnapshotId', as: 'firstSnapshot' });
   M.Alert.belongsTo(M.AnalysisSnapshot, { foreignKey: 'latestSnapshotId', as: 'latestSnapshot' });

@@ -18,13 +18,18 @@ import { indicatorLabel } from '@/lib/display/analysis-labels';
 import { tauWithDirection } from '@/lib/alerts/wording';
 import type { AlertListItem } from '@/lib/alerts/queries';
 
-const KIND_WORDS: Record<AlertListItem['kind'], string> = { 'slowing-down': 'slowing down', 'abrupt-shift': 'abrupt shift', 'data-late': 'data late' };
+const KIND_WORDS: Record<AlertListItem['kind'], string> = {
+  'slowing-down': 'slowing down',
+  'abrupt-shift': 'abrupt shift',
+  'data-late': 'data late',
+  'site-slowing-down': 'slowing down across a site',
+};
 
 export interface QueueFilters {
   queue: 'triage' | 'escalated' | 'mine' | 'closed';
   series: string;
   severity: '' | 'watch' | 'warning';
-  kind: '' | 'slowing-down' | 'abrupt-shift' | 'data-late';
+  kind: '' | AlertListItem['kind'];
   age: string;
   sort: 'newest' | 'oldest' | 'severity' | 'tau' | 'updated';
   page: number;
@@ -190,8 +195,8 @@ export function AlertQueue({
                 </span>
               </td>
               <td className={CELL}>
-                <Link href={`/series/${a.series.slug}`} className="hover:underline">
-                  {a.series.name}
+                <Link href={a.on.href} className="hover:underline">
+                  {a.on.name}
                 </Link>
               </td>
               <td className={CELL}>
@@ -203,11 +208,11 @@ export function AlertQueue({
               <td className={`num ${CELL} whitespace-nowrap`}>
                 {a.kind === 'data-late' ? (
                   <>
-                    no data since <LocalTime t={a.silence?.lastDataAt ?? null} timeZone={a.series.timeZone} />
+                    no data since <LocalTime t={a.silence?.lastDataAt ?? null} timeZone={a.on.timeZone} />
                     {a.silence?.backAt ? (
                       <>
                         {' '}
-                        · back <LocalTime t={a.silence.backAt} timeZone={a.series.timeZone} />
+                        · back <LocalTime t={a.silence.backAt} timeZone={a.on.timeZone} />
                       </>
                     ) : (
                       ''
@@ -215,7 +220,7 @@ export function AlertQueue({
                   </>
                 ) : a.kind === 'abrupt-shift' ? (
                   <>
-                    shift at <LocalTime t={a.shift?.time ?? null} timeZone={a.series.timeZone} />
+                    shift at <LocalTime t={a.shift?.time ?? null} timeZone={a.on.timeZone} />
                     {a.shift?.size !== null && a.shift?.size !== undefined ? ` · size ${formatValue(a.shift.size)}` : ''}
                   </>
                 ) : (
@@ -225,7 +230,7 @@ export function AlertQueue({
                 )}
               </td>
               <td className={CELL}>
-                <LocalTime t={a.createdAt} timeZone={a.series.timeZone} withZone />
+                <LocalTime t={a.createdAt} timeZone={a.on.timeZone} withZone />
               </td>
               <td className={CELL}>{a.assignee?.name ?? <span className="text-ink-faint">nobody</span>}</td>
             </tr>

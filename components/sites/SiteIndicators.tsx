@@ -35,11 +35,18 @@ export function SiteIndicators({ slug, timeZone, initial }: { slug: string; time
     initialData: initial,
     refetchInterval: 60_000,
   });
-  const curves = query.data?.curves ?? null;
-  const rows = useMemo(() => (curves ? siteRows(curves) : []), [curves]);
   if (query.isPending) return <Loading label="Loading the site-level indicators…" />;
   if (query.isError) return <ErrorNote error={query.error}>The site-level indicators could not be loaded.</ErrorNote>;
-  const view = query.data;
+  return <SiteIndicatorsView slug={slug} timeZone={timeZone} view={query.data} />;
+}
+
+/**
+ * One site-level snapshot as a table and charts: the live one on the site page, or the one a site alert rests on
+ * (then `only` names the rule's indicator, whose chart alone is drawn).
+ */
+export function SiteIndicatorsView({ slug, timeZone, view, only }: { slug: string; timeZone: string; view: SiteAnalysisView; only?: string }) {
+  const curves = view.curves;
+  const rows = useMemo(() => (curves ? siteRows(curves) : []), [curves]);
   const leftOut = view.members.leftOut.length ? (
     <p className="text-xs text-ink-soft" data-testid="site-left-out">
       Left out:{' '}
@@ -103,7 +110,7 @@ export function SiteIndicators({ slug, timeZone, initial }: { slug: string; time
           );
         })}
       </DataTable>
-      {SITE_INDICATORS.map((d) => (
+      {SITE_INDICATORS.filter((d) => !only || d.name === only).map((d) => (
         <ChartFrame
           key={d.name}
           title={`${indicatorLabel(d.name, 'title')} across the site's series`}

@@ -7,7 +7,8 @@ import { portfolioFdr, type PortfolioEntry } from './portfolio-fdr';
 import { enqueueMail } from '@/lib/mail/outbox';
 import { newAlertMail } from '@/lib/mail/templates';
 import { watchersOf } from '@/lib/mail/watches';
-import { evidenceFrom, indicatorFacts, snapshotTaus, type StoredSummary } from './evidence';
+import { evidenceFrom, snapshotTaus } from './evidence';
+import { indicatorFacts, type StoredSummary } from './facts';
 import { seriesBreaks } from '@/lib/analysis/snapshot';
 import { enqueueWebhookEvent } from '@/lib/webhooks/outbox';
 import { alertWebhookPayload } from '@/lib/webhooks/payloads';
@@ -134,18 +135,59 @@ export interface EvaluationReport {
   shifts: number[];
 }
 
+/**
+ * What an alert of a rule is on: a series (rule_evaluations) or a site (site_rule_evaluations, lib/alerts/site-rules.ts).
+ * `where` finds the rule's alerts there; `smallestP` is the smallest surrogate p an alert was raised or extended on.
+ */
+export interface AlertScope {
+  where: { seriesId: number } | { siteId: number };
+  smallestP: (alertId: number, transaction: Transaction) => Promise<number | null>;
+}
+
 /** The latest decided alert of a rule within its quiet period, with the smallest surrogate p it was raised on. */
-async function closedWithinQuietPeriod(rule: AlertRule, seriesId: number, now: Date, transaction: Transaction) {
+async function closedWithinQuietPeriod(rule: AlertRule, scope: AlertScope, now: Date, transaction: Transaction) {
   if (!(rule.quietPeriodHours > 0)) return null;
   const since = new Date(now.getTime() - rule.quietPeriodHours * 3_600_000);
   const closed = await Alert.findOne({
-    where: { seriesId, ruleId: rule.id, state: { [Op.in]: ['dismissed', 'confirmed'] }, closedAt: { [Op.gte]: since } },
+    where: { ...scope.where, ruleId: rule.id, state: { [Op.in]: ['dismissed', 'confirmed'] }, closedAt: { [Op.gte]: since } },
     order: [['closedAt', 'DESC']],
     transaction,
   });
   if (!closed) return null;
-  const smallest = (await RuleEvaluation.min('surrogateP', { where: { alertId: closed.id }, transaction })) as number | null;
-  return { alert: closed, surrogateP: smallest ?? null };
+  return { alert: closed, surrogateP: await scope.smallestP(closed.id, transaction) };
+}
+
+/**
+ * What a judgement does, inside the caller's transaction, for series and site rules alike: with the rule's
+ * persistence reached (`streak`), it adds evidence to the rule's open alert in `scope` (latest snapshot, count, peak
+ * oriented tau), or is held back by the quiet period after a decided alert unless clearly stronger, or opens an
+ * alert through `open`. Otherwise it is 'cannot-judge', 'not-met' or 'building'. O(1) queries.
+ */
+export async function actOnJudgement(args: {
+  rule: AlertRule;
+  judgement: Judgement;
+  streak: number;
+  scope: AlertScope;
+  snapshotId: number;
+  now: Date;
+  open: () => Promise<Alert>;
+  transaction: Transaction;
+}): Promise<{ result: EvaluationOutcome; alertId: number | null }> {
+  const { rule, judgement, streak, scope, snapshotId, now, transaction } = args;
+  if (!judgement.passed || streak < rule.persistence)
+    return { result: judgement.cannotJudge ? 'cannot-judge' : judgement.passed ? 'building' : 'not-met', alertId: null };
+  const open = await Alert.findOne({ where: { ...scope.where, ruleId: rule.id, state: { [Op.in]: [...OPEN_ALERT_STATES] } }, transaction });
+  if (open) {
+    const stronger = open.peakTau === null || (judgement.orientedTau !== null && judgement.orientedTau > open.peakTau);
+    await open.update(
+      { latestSnapshotId: snapshotId, evaluationCount: open.evaluationCount + 1, peakTau: stronger ? judgement.orientedTau : open.peakTau },
+      { transaction },
+    );
+    return { result: 'evidence-added', alertId: open.id };
+  }
+  const closed = await closedWithinQuietPeriod(rule, scope, now, transaction);
+  if (closed && !clearlyStronger(judgement, { peakTau: closed.alert.peakTau, surrogateP: closed.surrogateP })) return { result: 'quiet-period', alertId: null };
+  return { result: 'opened', alertId: (await args.open()).id };
 }
 
 async function mailWatchers(alert: Alert, series: Series, mail: ReturnType<typeof newAlertMail>, kind: string, transaction: Transaction) {
@@ -357,28 +399,16 @@ export async function evaluateSnapshots(snapshots: AnalysisSnapshot[], now = new
         transaction,
       });
       const streak = judgement.passed ? (previous?.passed ? previous.streak + 1 : 1) : 0;
-      let result: EvaluationOutcome = judgement.cannotJudge ? 'cannot-judge' : judgement.passed ? 'building' : 'not-met';
-      let alertId: number | null = null;
-      if (judgement.passed && streak >= rule.persistence) {
-        const open = await Alert.findOne({ where: { seriesId: series.id, ruleId: rule.id, state: { [Op.in]: [...OPEN_ALERT_STATES] } }, transaction });
-        if (open) {
-          const stronger = open.peakTau === null || (judgement.orientedTau !== null && judgement.orientedTau > open.peakTau);
-          await open.update(
-            { latestSnapshotId: snapshot.id, evaluationCount: open.evaluationCount + 1, peakTau: stronger ? judgement.orientedTau : open.peakTau },
-            { transaction },
-          );
-          result = 'evidence-added';
-          alertId = open.id;
-        } else {
-          const closed = await closedWithinQuietPeriod(rule, series.id, now, transaction);
-          if (closed && !clearlyStronger(judgement, { peakTau: closed.alert.peakTau, surrogateP: closed.surrogateP })) {
-            result = 'quiet-period';
-          } else {
-            alertId = (await openAlert(rule, series, snapshot, judgement, calibrations.get(rule.id) ?? null, taus, transaction)).id;
-            result = 'opened';
-          }
-        }
-      }
+      const { result, alertId } = await actOnJudgement({
+        rule,
+        judgement,
+        streak,
+        scope: seriesScope(series.id),
+        snapshotId: snapshot.id,
+        now,
+        open: () => openAlert(rule, series, snapshot, judgement, calibrations.get(rule.id) ?? null, taus, transaction),
+        transaction,
+      });
       await RuleEvaluation.create(
         {
           ruleId: rule.id,
@@ -393,7 +423,7 @@ export async function evaluateSnapshots(snapshots: AnalysisSnapshot[], now = new
           passed: judgement.passed,
           streak,
           alertId,
-          outcome: judgement.cannotJudge ? `cannot-judge: ${judgement.cannotJudge}` : judgement.passed ? result : `not-met: ${judgement.failed.join('; ')}`,
+          outcome: outcomeText(judgement, result),
         },
         { transaction },
       );
@@ -420,8 +450,22 @@ export async function evaluateSnapshots(snapshots: AnalysisSnapshot[], now = new
   return report;
 }
 
+/** How a judgement is kept in the evidence trail: the outcome, or why it failed or could not be judged. */
+export function outcomeText(judgement: Judgement, result: EvaluationOutcome): string {
+  if (judgement.cannotJudge) return `cannot-judge: ${judgement.cannotJudge}`;
+  return judgement.passed ? result : `not-met: ${judgement.failed.join('; ')}`;
+}
+
+/** A series rule's alerts, and the smallest surrogate p of an alert's evaluations. */
+function seriesScope(seriesId: number): AlertScope {
+  return {
+    where: { seriesId },
+    smallestP: async (alertId, transaction) => ((await RuleEvaluation.min('surrogateP', { where: { alertId }, transaction })) as number | null) ?? null,
+  };
+}
+
 /** A judgement with no numbers, for evidence that cannot be read at all (a failed analysis). */
-function emptyJudgement(rule: RuleThresholds): Judgement {
+export function emptyJudgement(rule: RuleThresholds): Judgement {
   return {
     direction: trendDirectionOf(rule.direction),
     tau: null,

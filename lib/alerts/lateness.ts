@@ -6,7 +6,7 @@ import { enqueueMail } from '@/lib/mail/outbox';
 import { enqueueWebhookEvent } from '@/lib/webhooks/outbox';
 import { dataLatePayload } from '@/lib/webhooks/payloads';
 import { dataBackMail, dataLateMail } from '@/lib/mail/templates';
-import { watchersOf } from '@/lib/mail/watches';
+import { watchersOfAlert } from '@/lib/mail/watches';
 
 /** How many sampling intervals may pass without new data before a series counts as late (common practice for loggers: one missed delivery is noise, three is a silence). */
 export const LATE_AFTER_INTERVALS = 3;
@@ -99,7 +99,7 @@ export async function checkFreshness(now = Date.now()): Promise<FreshnessReport>
 
 async function mailWatchers(alert: Alert, mail: { subject: string; text: string; html: string }, kind: string, transaction: Transaction): Promise<void> {
   // Digest readers hear of it in their next digest, which lists alerts opened or closed since the last one.
-  for (const user of await watchersOf(alert.seriesId, ['immediate'], transaction)) {
+  for (const user of await watchersOfAlert(alert, ['immediate'], transaction)) {
     await enqueueMail({ kind, dedupeKey: `${kind}:${alert.id}:user-${user.id}`, to: user.email, ...mail }, transaction);
   }
 }
@@ -177,7 +177,8 @@ async function closeReturned(alertId: number, now: number): Promise<boolean> {
       },
       transaction,
     );
-    const series = (await Series.findByPk(alert.seriesId, { transaction }))!;
+    // a data-late alert is always on a series
+    const series = (await Series.findByPk(alert.seriesId!, { transaction }))!;
     await mailWatchers(alert, dataBackMail({ alertId, series, lastDataAt: alert.dataLastAt, backAt }), 'alert-data-back', transaction);
     return true;
   });

@@ -9,6 +9,9 @@ import {
   NoteRevision,
   RuleEvaluation,
   Series,
+  Site,
+  SiteRuleEvaluation,
+  SiteSnapshot,
   User,
   db,
   readTransaction,
@@ -40,6 +43,23 @@ const ORDER: Record<AlertQueueQuery['sort'], string> = {
   updated: 'a.updated_at DESC, a.id DESC',
 };
 
+/** What an alert is on, for screens: a series, or the site of a site alert (rules on site-level indicators). */
+export interface AlertSubject {
+  kind: 'series' | 'site';
+  slug: string;
+  name: string;
+  href: string;
+  timeZone: string;
+}
+
+function subjectOf(
+  series: { slug: string; name: string; timeZone: string } | null,
+  site: { slug: string; name: string; timeZone: string } | null,
+): AlertSubject {
+  if (series) return { kind: 'series', slug: series.slug, name: series.name, href: `/series/${series.slug}`, timeZone: series.timeZone };
+  return { kind: 'site', slug: site!.slug, name: `site ${site!.name}`, href: `/sites/${site!.slug}`, timeZone: site!.timeZone };
+}
+
 export interface AlertListItem {
   id: number;
   state: AlertState;
@@ -47,7 +67,10 @@ export interface AlertListItem {
   version: number;
   /** 'slowing-down' (from a rule) or 'abrupt-shift' (from the change-point detection; no rule) */
   kind: AlertKind;
-  series: { id: number; slug: string; name: string; timeZone: string };
+  /** the series the alert is on; null for a site alert */
+  series: { id: number; slug: string; name: string; timeZone: string } | null;
+  /** what the alert is on, as a screen names and links it: its series, or a site alert's site */
+  on: AlertSubject;
   /** the rule and the direction it looks in; null for an abrupt-shift alert */
   rule: { id: number; indicator: string; direction: string } | null;
   /** the abrupt shift (epoch ms, level change); null for a slowing-down alert */
@@ -126,13 +149,17 @@ async function loadAlertQueue(query: AlertQueueQuery, actor: Pick<Actor, 'id'>, 
     const rows = await sequelize.query<Record<string, unknown>>(
       `SELECT a.id, a.kind, a.state, a.severity, a.version, a.peak_tau, a.evaluation_count, a.dismiss_reason, a.created_at, a.updated_at, a.closed_at,
               a.shift_time, a.shift_size, a.data_last_at, a.data_back_at, s.id AS series_id, s.slug, s.name AS series_name, s.time_zone, r.id AS rule_id, r.indicator, r.direction AS rule_direction,
-              u.id AS assignee_id, u.name AS assignee_name, e.tau, e.direction AS judged_direction, e.surrogate_p, e.kendall_p
+              u.id AS assignee_id, u.name AS assignee_name,
+              si.slug AS site_slug, si.name AS site_name, si.time_zone AS site_time_zone,
+              COALESCE(e.tau, se.tau) AS tau, COALESCE(e.direction, se.direction) AS judged_direction, COALESCE(e.surrogate_p, se.surrogate_p) AS surrogate_p, e.kendall_p
        FROM (SELECT a.id FROM alerts a WHERE ${filter.sql} ORDER BY ${ORDER[query.sort]} LIMIT :limit OFFSET :offset) page
        JOIN alerts a ON a.id = page.id
-       JOIN series s ON s.id = a.series_id
+       LEFT JOIN series s ON s.id = a.series_id
+       LEFT JOIN sites si ON si.id = a.site_id
        LEFT JOIN alert_rules r ON r.id = a.rule_id
        LEFT JOIN users u ON u.id = a.assignee_id
        LEFT JOIN rule_evaluations e ON e.rule_id = a.rule_id AND e.snapshot_id = a.latest_snapshot_id
+       LEFT JOIN site_rule_evaluations se ON se.rule_id = a.rule_id AND se.site_snapshot_id = a.latest_snapshot_id
        ORDER BY ${ORDER[query.sort]}`,
       { replacements: { ...filter.replacements, limit: query.pageSize, offset: (query.page - 1) * query.pageSize }, type: QueryTypes.SELECT, transaction },
     );
@@ -158,38 +185,91 @@ async function loadAlertQueue(query: AlertQueueQuery, actor: Pick<Actor, 'id'>, 
     }
     return { rows, counts, total };
   });
-  const items: AlertListItem[] = rows.map((r) => ({
-    id: Number(r.id),
-    state: r.state as AlertState,
-    severity: String(r.severity),
-    version: Number(r.version),
-    series: { id: Number(r.series_id), slug: String(r.slug), name: String(r.series_name), timeZone: String(r.time_zone) },
-    kind: (r.kind ?? 'slowing-down') as AlertKind,
-    rule: r.rule_id === null ? null : { id: Number(r.rule_id), indicator: String(r.indicator), direction: String(r.rule_direction) },
-    shift: r.shift_time === null ? null : { time: Number(r.shift_time), size: r.shift_size as number | null },
-    silence: r.data_last_at === null ? null : { lastDataAt: Number(r.data_last_at), backAt: r.data_back_at === null ? null : Number(r.data_back_at) },
-    assignee: r.assignee_id === null ? null : { id: Number(r.assignee_id), name: String(r.assignee_name) },
-    peakTau: r.peak_tau as number | null,
-    latest: {
-      tau: r.tau as number | null,
-      direction: (r.judged_direction ?? r.rule_direction ?? null) as string | null,
-      surrogateP: r.surrogate_p as number | null,
-      kendallP: r.kendall_p as number | null,
-    },
-    evaluationCount: Number(r.evaluation_count),
-    dismissReason: r.dismiss_reason as string | null,
-    createdAt: isoFromSqlDate(r.created_at),
-    updatedAt: isoFromSqlDate(r.updated_at),
-    closedAt: r.closed_at === null ? null : isoFromSqlDate(r.closed_at),
-  }));
+  const items: AlertListItem[] = rows.map((r) => {
+    const series = r.series_id === null ? null : { id: Number(r.series_id), slug: String(r.slug), name: String(r.series_name), timeZone: String(r.time_zone) };
+    const site = r.site_slug === null ? null : { slug: String(r.site_slug), name: String(r.site_name), timeZone: String(r.site_time_zone) };
+    return {
+      id: Number(r.id),
+      state: r.state as AlertState,
+      severity: String(r.severity),
+      version: Number(r.version),
+      series,
+      on: subjectOf(series, site),
+      kind: (r.kind ?? 'slowing-down') as AlertKind,
+      rule: r.rule_id === null ? null : { id: Number(r.rule_id), indicator: String(r.indicator), direction: String(r.rule_direction) },
+      shift: r.shift_time === null ? null : { time: Number(r.shift_time), size: r.shift_size as number | null },
+      silence: r.data_last_at === null ? null : { lastDataAt: Number(r.data_last_at), backAt: r.data_back_at === null ? null : Number(r.data_back_at) },
+      assignee: r.assignee_id === null ? null : { id: Number(r.assignee_id), name: String(r.assignee_name) },
+      peakTau: r.peak_tau as number | null,
+      latest: {
+        tau: r.tau as number | null,
+        direction: (r.judged_direction ?? r.rule_direction ?? null) as string | null,
+        surrogateP: r.surrogate_p as number | null,
+        kendallP: r.kendall_p as number | null,
+      },
+      evaluationCount: Number(r.evaluation_count),
+      dismissReason: r.dismiss_reason as string | null,
+      createdAt: isoFromSqlDate(r.created_at),
+      updatedAt: isoFromSqlDate(r.updated_at),
+      closedAt: r.closed_at === null ? null : isoFromSqlDate(r.closed_at),
+    };
+  });
   return { items, total, counts, page: query.page, pageSize: query.pageSize } satisfies AlertQueuePage;
 }
 
 /** How a detail carries its evidence snapshots' charts: full curves (the API) or the saved chart views (the page). */
 export type EvidenceCharts = 'curves' | 'views';
 
-function presentSnapshot(snapshot: AnalysisSnapshot | null, charts: EvidenceCharts) {
+/**
+ * The judgements an alert rests on, oldest first: of its series rule (snapshot ids of analysis snapshots) or of its
+ * site rule (site snapshot ids; no Kendall p or q-value there).
+ */
+async function alertEvaluations(alertId: number, onSite: boolean) {
+  if (onSite) {
+    const rows = await SiteRuleEvaluation.findAll({ where: { alertId }, order: [['siteSnapshotId', 'ASC']], limit: 500 });
+    return rows.map((e) => ({
+      snapshotId: e.siteSnapshotId,
+      direction: e.direction,
+      tau: e.tau,
+      kendallP: null,
+      surrogateP: e.surrogateP,
+      qValue: null,
+      level: e.level,
+      streak: e.streak,
+      outcome: e.outcome,
+      at: e.createdAt.toISOString(),
+    }));
+  }
+  const rows = await RuleEvaluation.findAll({ where: { alertId }, order: [['snapshotId', 'ASC']], limit: 500 });
+  return rows.map((e) => ({
+    snapshotId: e.snapshotId,
+    direction: e.direction ?? 'rising',
+    tau: e.tau,
+    kendallP: e.kendallP,
+    surrogateP: e.surrogateP,
+    qValue: e.qValue,
+    level: e.level,
+    streak: e.streak,
+    outcome: e.outcome,
+    at: e.createdAt.toISOString(),
+  }));
+}
+
+function presentSnapshot(snapshot: AnalysisSnapshot | SiteSnapshot | null, charts: EvidenceCharts) {
   if (!snapshot) return null;
+  if (snapshot instanceof SiteSnapshot)
+    return {
+      id: snapshot.id,
+      createdAt: snapshot.createdAt.toISOString(),
+      status: snapshot.status,
+      settings: snapshot.settings,
+      summary: snapshot.summary,
+      n: snapshot.n,
+      dataFrom: snapshot.dataFrom,
+      dataTo: snapshot.dataTo,
+      members: snapshot.members,
+      ...(charts === 'curves' ? { curves: snapshot.curves } : {}),
+    };
   return {
     id: snapshot.id,
     createdAt: snapshot.createdAt.toISOString(),
@@ -219,17 +299,23 @@ export async function fetchAlertDetail(id: number, actor?: Pick<Actor, 'role'>, 
   const alert = await Alert.findByPk(id, {
     include: [
       { model: Series, as: 'series' },
+      { model: Site, as: 'site' },
       { model: AlertRule, as: 'rule' },
       { model: User, as: 'assignee', attributes: ['id', 'name', 'email'] },
     ],
   });
   if (!alert) throw new NotFoundError('Alert');
-  const joined = alert as Alert & { series: Series; rule: AlertRule | null; assignee: User | null };
-  // Only the large column the answer carries is read: the curves or the chart view.
+  const joined = alert as Alert & { series: Series | null; site: Site | null; rule: AlertRule | null; assignee: User | null };
+  const onSite = joined.series === null;
+  // Only the large column the answer carries is read: the curves or the chart view (site snapshots have curves only).
   const snapshotAttributes = { exclude: [charts === 'curves' ? 'chartView' : 'curves'] };
+  const findSnapshot = (snapshotId: number) =>
+    onSite
+      ? SiteSnapshot.findByPk(snapshotId, charts === 'curves' ? {} : { attributes: { exclude: ['curves'] } })
+      : AnalysisSnapshot.findByPk(snapshotId, { attributes: snapshotAttributes });
   const [first, latest, events, notes, evaluations, rules] = await Promise.all([
-    AnalysisSnapshot.findByPk(alert.firstSnapshotId, { attributes: snapshotAttributes }),
-    alert.latestSnapshotId === alert.firstSnapshotId ? null : AnalysisSnapshot.findByPk(alert.latestSnapshotId, { attributes: snapshotAttributes }),
+    findSnapshot(alert.firstSnapshotId),
+    alert.latestSnapshotId === alert.firstSnapshotId ? null : findSnapshot(alert.latestSnapshotId),
     AlertEvent.findAll({ where: { alertId: id }, include: [{ model: User, as: 'actor', attributes: ['id', 'name'] }], order: [['id', 'ASC']] }),
     Note.findAll({
       where: { alertId: id },
@@ -239,7 +325,7 @@ export async function fetchAlertDetail(id: number, actor?: Pick<Actor, 'role'>, 
       ],
       order: [['id', 'ASC']],
     }),
-    RuleEvaluation.findAll({ where: { alertId: id }, order: [['snapshotId', 'ASC']], limit: 500 }),
+    alertEvaluations(id, onSite),
     joined.rule ? presentRules([joined.rule]) : Promise.resolve([]),
   ]);
   return {
@@ -257,31 +343,25 @@ export async function fetchAlertDetail(id: number, actor?: Pick<Actor, 'role'>, 
     createdAt: alert.createdAt.toISOString(),
     updatedAt: alert.updatedAt.toISOString(),
     closedAt: alert.closedAt?.toISOString() ?? null,
-    series: {
-      id: joined.series.id,
-      slug: joined.series.slug,
-      name: joined.series.name,
-      site: joined.series.site,
-      unit: joined.series.unit,
-      timeZone: joined.series.timeZone,
-    },
+    /** the series the alert is on; null for a site alert (then `site`) */
+    series: joined.series
+      ? {
+          id: joined.series.id,
+          slug: joined.series.slug,
+          name: joined.series.name,
+          site: joined.series.site,
+          unit: joined.series.unit,
+          timeZone: joined.series.timeZone,
+        }
+      : null,
+    site: joined.site ? { id: joined.site.id, slug: joined.site.slug, name: joined.site.name } : null,
+    on: subjectOf(joined.series, joined.site),
     rule: rules[0] ?? null,
     assignee: joined.assignee ? { id: joined.assignee.id, name: joined.assignee.name, email: joined.assignee.email } : null,
     evidence: {
       first: presentSnapshot(first, charts),
       latest: presentSnapshot(latest ?? first, charts),
-      evaluations: evaluations.map((e) => ({
-        snapshotId: e.snapshotId,
-        direction: e.direction ?? 'rising',
-        tau: e.tau,
-        kendallP: e.kendallP,
-        surrogateP: e.surrogateP,
-        qValue: e.qValue,
-        level: e.level,
-        streak: e.streak,
-        outcome: e.outcome,
-        at: e.createdAt.toISOString(),
-      })),
+      evaluations,
     },
     timeline: events.map((e) => {
       const by = (e as AlertEvent & { actor?: User | null }).actor;

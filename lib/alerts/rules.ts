@@ -1,5 +1,5 @@
 import { Op, QueryTypes, type Transaction } from 'sequelize';
-import { Alert, AlertRule, AnalysisSnapshot, BacktestJob, RuleEvaluation, Series, db, writeTransaction } from '@/models';
+import { Alert, AlertRule, AnalysisSnapshot, BacktestJob, RuleEvaluation, Series, SiteRuleEvaluation, db, writeTransaction } from '@/models';
 import { NotFoundError, UnprocessableError } from '@/lib/http/errors';
 import { recordAudit } from '@/lib/audit';
 import type { Actor } from '@/lib/auth/roles';
@@ -7,7 +7,7 @@ import { latestRuleCalibration, queueRuleCalibration, type RuleCalibration } fro
 import { analysisSettingsSchema } from '@/lib/engine/settings';
 import type { RuleDirection } from '@/lib/engine/direction';
 import { indicatorLabel } from '@/lib/display/analysis-labels';
-import { ruleCreateSchema, ruleUpdateSchema, type RuleCreateInput, type RuleFields, type RuleUpdate } from '@/lib/schemas/rule';
+import { ruleCreateSchema, ruleUpdateSchema, siteRuleUpdateSchema, type RuleCreateInput, type RuleFields, type RuleUpdate } from '@/lib/schemas/rule';
 
 /** What presentRule adds beyond the stored fields. */
 export interface RuleContext {
@@ -152,10 +152,10 @@ const CALIBRATED_FIELDS = [
   'active',
 ] as const;
 
-/** Rules of one series, or the defaults for new series when `seriesId` is null. */
+/** Rules of one series, or the defaults for new series when `seriesId` is null (site rules are neither). */
 export async function listRules(seriesId: number | null): Promise<AlertRule[]> {
   await db();
-  return AlertRule.findAll({ where: { seriesId }, order: [['id', 'ASC']] });
+  return AlertRule.findAll({ where: seriesId === null ? { seriesId, siteId: null } : { seriesId }, order: [['id', 'ASC']] });
 }
 
 /**
@@ -182,11 +182,16 @@ export async function createRule(seriesId: number | null, input: RuleCreateInput
   });
 }
 
-export async function updateRule(id: number, input: RuleUpdate, actor: Pick<Actor, 'id'>): Promise<AlertRule> {
-  const { reason = null, ...changes } = ruleUpdateSchema.parse(input);
+/**
+ * Changes a rule, validating `input` by the rule's kind (ruleUpdateSchema, or siteRuleUpdateSchema for a site rule),
+ * re-checking judgeability when the criteria change and queueing a new calibration when the procedure changed.
+ */
+export async function updateRule(id: number, input: unknown, actor: Pick<Actor, 'id'>): Promise<AlertRule> {
   return writeTransaction(async (transaction) => {
     const rule = await AlertRule.findByPk(id, { transaction });
     if (!rule) throw new NotFoundError('Rule');
+    // A site rule keeps to the site-level indicators and the limits of siteRuleUpdateSchema.
+    const { reason = null, ...changes } = (rule.siteId === null ? ruleUpdateSchema : siteRuleUpdateSchema).parse(input) as RuleUpdate;
     const before = presentRule(rule);
     const after = { indicator: rule.indicator as RuleFields['indicator'], maxSurrogateP: rule.maxSurrogateP, fdrLevel: rule.fdrLevel, ...changes };
     // Checked when the criteria change or the rule is switched on; switching an unjudgeable rule off is always allowed.
@@ -213,6 +218,7 @@ export async function deleteRule(id: number, actor: Pick<Actor, 'id'>): Promise<
       await rule.update({ active: false }, { transaction });
     } else {
       await RuleEvaluation.destroy({ where: { ruleId: id }, transaction });
+      await SiteRuleEvaluation.destroy({ where: { ruleId: id }, transaction });
       await BacktestJob.destroy({ where: { ruleId: id }, transaction });
       await rule.destroy({ transaction });
     }
@@ -227,7 +233,7 @@ export async function deleteRule(id: number, actor: Pick<Actor, 'id'>): Promise<
 /** How a rule stands on its series after its latest judgement. */
 export type RuleStanding = 'met' | 'building' | 'not-met' | 'cannot-judge' | 'not-yet-judged';
 
-function standingOf(evaluation: Pick<RuleEvaluation, 'passed' | 'outcome'> | null): RuleStanding {
+export function standingOf(evaluation: Pick<RuleEvaluation, 'outcome'> | null): RuleStanding {
   if (!evaluation) return 'not-yet-judged';
   if (evaluation.outcome.startsWith('cannot-judge')) return 'cannot-judge';
   if (evaluation.outcome.startsWith('not-met')) return 'not-met';

@@ -6,7 +6,7 @@ import type { Actor } from '@/lib/auth/roles';
 import { sqlDate } from '@/lib/db/sql-date';
 import { enqueueMail } from '@/lib/mail/outbox';
 import { escalationMail, signOffMail } from '@/lib/mail/templates';
-import { watchersOf } from '@/lib/mail/watches';
+import { watchersOfAlert } from '@/lib/mail/watches';
 import { triageActionSchema, type DismissReason, type TriageActionInput, type TriageAction } from '@/lib/schemas/alert';
 import { alertEvidence } from './evidence';
 import { enqueueWebhookEvent } from '@/lib/webhooks/outbox';
@@ -148,7 +148,7 @@ export async function applyTriageAction(alertId: number, input: TriageActionInpu
       const [mail, recipients, kind] =
         command.action === 'escalate'
           ? [escalationMail(evidence, actor.name, note), await activeLeads(transaction), 'alert-escalated']
-          : [signOffMail(evidence, actor.name, note), await watchersOf(alert.seriesId, ['immediate', 'digest'], transaction), 'alert-confirmed'];
+          : [signOffMail(evidence, actor.name, note), await watchersOfAlert(alert, ['immediate', 'digest'], transaction), 'alert-confirmed'];
       for (const user of recipients) {
         await enqueueMail({ kind, dedupeKey: `${kind}:${alert.id}:event-${event.id}:user-${user.id}`, to: user.email, ...mail }, transaction);
       }

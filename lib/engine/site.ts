@@ -1,3 +1,4 @@
+import { sampleStandardDeviation } from 'simple-statistics';
 import { detrend } from './detrend';
 import { normalPInDirection, type TrendDirection } from './direction';
 import { generalizedEigenvalues, symmetricEigenvalues } from './eigen';
@@ -125,8 +126,8 @@ export interface SiteAnalysisResult {
   evaluatedEvery: number;
   indicators: Record<SiteIndicatorName, (number | null)[]>;
   kendall: Record<SiteIndicatorName, { tau: number | null; p: number | null; direction: TrendDirection }>;
-  /** phase-coherent surrogate p (rising), when settings.surrogates > 0 */
-  significance: Partial<Record<SiteIndicatorName, { p: number | null; count: number; method: 'phase'; direction: TrendDirection }>>;
+  /** phase-coherent surrogate p (rising) and the sample sd (n − 1) of the finite surrogate taus, when settings.surrogates > 0 */
+  significance: Partial<Record<SiteIndicatorName, { p: number | null; count: number; method: 'phase'; direction: TrendDirection; nullSd: number | null }>>;
 }
 
 /** How one column is detrended: its own series' method, bandwidth and moving-average width. */
@@ -186,8 +187,16 @@ export function runSiteAnalysis(
       const rolled = rollingSiteIndicators(coherentPhaseSurrogate(spectra, settings.seed, s), w, stride);
       for (const d of SITE_INDICATORS) nullTaus[d.name][s] = indicatorTrend(rolled[d.name]).tau;
     }
-    for (const d of SITE_INDICATORS)
-      significance[d.name] = { ...surrogatePValue(taus[d.name], nullTaus[d.name], d.direction), method: 'phase', direction: d.direction };
+    for (const d of SITE_INDICATORS) {
+      const finite = Array.from(nullTaus[d.name]).filter(Number.isFinite);
+      significance[d.name] = {
+        ...surrogatePValue(taus[d.name], nullTaus[d.name], d.direction),
+        method: 'phase',
+        direction: d.direction,
+        // the null spread of tau, which a rule's quiet period measures "clearly stronger" evidence in
+        nullSd: finite.length >= 2 ? sampleStandardDeviation(finite) : null,
+      };
+    }
   }
   return { n: m, windowPoints: w, evaluatedEvery: stride, indicators, kendall, significance };
 }

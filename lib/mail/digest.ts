@@ -1,5 +1,5 @@
 import { Op } from 'sequelize';
-import { Alert, AlertRule, MailMessage, RuleEvaluation, Series, User, Watch, db, writeTransaction } from '@/models';
+import { Alert, AlertRule, MailMessage, RuleEvaluation, Series, Site, SiteRuleEvaluation, User, Watch, db, writeTransaction } from '@/models';
 import { enqueueMail } from './outbox';
 import { digestMail, type DigestEntry } from './templates';
 
@@ -22,10 +22,20 @@ export async function enqueueDigests(now = new Date()): Promise<number> {
     if (!user || !user.active) continue;
     const previous = await MailMessage.findOne({ where: { kind: 'digest', dedupeKey: { [Op.like]: `digest:${userId}:%` } }, order: [['id', 'DESC']] });
     const since = previous ? previous.createdAt : new Date(now.getTime() - DAY_MS);
+    // Site alerts reach the people who follow any series of the site.
+    const siteIds = [...new Set((await Series.findAll({ where: { id: { [Op.in]: seriesIds } }, attributes: ['siteId'] })).map((s) => s.siteId))].filter(
+      (id): id is number => id !== null,
+    );
     const alerts = await Alert.findAll({
-      where: { seriesId: { [Op.in]: seriesIds }, [Op.or]: [{ createdAt: { [Op.gt]: since } }, { closedAt: { [Op.gt]: since } }] },
+      where: {
+        [Op.and]: [
+          { [Op.or]: [{ seriesId: { [Op.in]: seriesIds } }, { siteId: { [Op.in]: siteIds } }] },
+          { [Op.or]: [{ createdAt: { [Op.gt]: since } }, { closedAt: { [Op.gt]: since } }] },
+        ],
+      },
       include: [
         { model: Series, as: 'series', attributes: ['name'] },
+        { model: Site, as: 'site', attributes: ['name'] },
         { model: AlertRule, as: 'rule', attributes: ['indicator', 'direction'] },
       ],
       order: [['id', 'ASC']],
@@ -34,13 +44,19 @@ export async function enqueueDigests(now = new Date()): Promise<number> {
     if (!alerts.length) continue;
     const entries: DigestEntry[] = [];
     for (const alert of alerts) {
-      const evaluation = alert.ruleId === null ? null : await RuleEvaluation.findOne({ where: { ruleId: alert.ruleId, snapshotId: alert.latestSnapshotId } });
-      const joined = alert as Alert & { series?: Series; rule?: AlertRule };
+      const onSite = alert.kind === 'site-slowing-down';
+      const evaluation =
+        alert.ruleId === null
+          ? null
+          : onSite
+            ? await SiteRuleEvaluation.findOne({ where: { ruleId: alert.ruleId, siteSnapshotId: alert.latestSnapshotId } })
+            : await RuleEvaluation.findOne({ where: { ruleId: alert.ruleId, snapshotId: alert.latestSnapshotId } });
+      const joined = alert as Alert & { series?: Series | null; site?: Site | null; rule?: AlertRule };
       entries.push({
         alertId: alert.id,
-        seriesName: joined.series?.name ?? `series ${alert.seriesId}`,
+        seriesName: joined.series?.name ?? (joined.site ? `site ${joined.site.name}` : `alert ${alert.id}`),
         kind: alert.kind,
-        indicator: alert.kind === 'slowing-down' ? (joined.rule?.indicator ?? '') : null,
+        indicator: alert.kind === 'slowing-down' || onSite ? (joined.rule?.indicator ?? '') : null,
         direction: evaluation?.direction ?? joined.rule?.direction ?? null,
         severity: alert.severity,
         state: alert.state,

@@ -67,9 +67,12 @@ ${parts.unsubscribe ? `<p style="font-size:12px;color:#52606d;margin-top:12px"><
 /** What an alert message says about the evidence; built by lib/alerts from the alert, its rule (if any) and snapshot. */
 export interface AlertEvidence {
   alertId: number;
-  kind: 'slowing-down' | 'abrupt-shift' | 'data-late';
+  kind: 'slowing-down' | 'abrupt-shift' | 'data-late' | 'site-slowing-down';
   severity: 'watch' | 'warning';
+  /** what the alert is on: its series, or for a site alert the site itself (name "site …", slug the site's) */
   series: { name: string; slug: string; site: string; timeZone: string };
+  /** a site alert's member series, by name, analysed together; null for an alert on one series */
+  siteMembers?: string[] | null;
   /** the rule's indicator; null for an abrupt-shift alert */
   indicator: string | null;
   /** the direction the rule looks in (tau and surrogate p are judged in it) */
@@ -135,7 +138,9 @@ function describeRule(r: NonNullable<AlertEvidence['rule']>): string {
 }
 
 function evidenceRows(e: AlertEvidence): Row[] {
-  const series: Row = ['Series', `${e.series.name} (${e.series.slug})${e.series.site ? `, ${e.series.site}` : ''}`];
+  const series: Row = e.siteMembers
+    ? ['Site', `${e.series.site} (${e.series.slug}): ${e.siteMembers.join(', ')} analysed together`]
+    : ['Series', `${e.series.name} (${e.series.slug})${e.series.site ? `, ${e.series.site}` : ''}`];
   const span: Row = ['Data span', `${formatUtc(e.dataFrom)} to ${formatUtc(e.dataTo)} (${e.n} points analysed)`];
   if (e.kind === 'data-late') {
     return [
@@ -190,7 +195,11 @@ export function newAlertMail(e: AlertEvidence): RenderedMail {
     ],
     rows: evidenceRows(e),
     link: { href: alertLink(e.alertId), label: 'Open the alert' },
-    outro: ['You receive this because you watch this series with immediate mail. Change it on the series page.'],
+    outro: [
+      e.siteMembers
+        ? 'You receive this because you watch a series of this site with immediate mail. Change it on the series page.'
+        : 'You receive this because you watch this series with immediate mail. Change it on the series page.',
+    ],
     caution: true,
   });
 }

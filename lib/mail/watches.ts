@@ -1,5 +1,5 @@
 import { Op, type Transaction } from 'sequelize';
-import { Series, User, Watch, db, writeTransaction } from '@/models';
+import { Series, User, Watch, db, writeTransaction, type Alert } from '@/models';
 import type { WatchMode } from '@/models/Watch';
 import type { Actor, Role } from '@/lib/auth/roles';
 import { UnprocessableError } from '@/lib/http/errors';
@@ -72,9 +72,25 @@ export async function listWatches(actor: Pick<Actor, 'id'>) {
   });
 }
 
-/** Active users watching a series in one of `modes`. */
-export async function watchersOf(seriesId: number, modes: WatchMode[], transaction?: Transaction): Promise<User[]> {
+/** Active users watching a series (or any of several) in one of `modes`, each once. */
+export async function watchersOf(seriesId: number | number[], modes: WatchMode[], transaction?: Transaction): Promise<User[]> {
   const watches = await Watch.findAll({ where: { seriesId, mode: { [Op.in]: modes } }, attributes: ['userId'], transaction });
   if (!watches.length) return [];
   return User.findAll({ where: { id: { [Op.in]: watches.map((w) => w.userId) }, active: true }, order: [['id', 'ASC']], transaction });
+}
+
+/**
+ * Who hears of an alert: the watchers of its series, or for a site alert the watchers of any active series of the
+ * site (a site has no watch list of its own; its series' watchers are the people who follow it).
+ */
+export async function watchersOfAlert(alert: Pick<Alert, 'seriesId' | 'siteId'>, modes: WatchMode[], transaction?: Transaction): Promise<User[]> {
+  if (alert.seriesId !== null) return watchersOf(alert.seriesId, modes, transaction);
+  const members = await Series.findAll({ where: { siteId: alert.siteId, retiredAt: null }, attributes: ['id'], transaction });
+  return members.length
+    ? watchersOf(
+        members.map((m) => m.id),
+        modes,
+        transaction,
+      )
+    : [];
 }

@@ -118,12 +118,18 @@ async function sparklines(rows: SeriesRow[]): Promise<Map<number, Spark>> {
     // Per (snapshot, indicator) pair: that indicator's curve, else the first indicator of the snapshot's settings.
     const [preferred, fallbackName] = isPostgres(sequelize)
       ? [`(a.curves -> 'indicators' -> (p.value ->> 1))`, `(a.settings -> 'indicators' ->> 0)`]
-      : [`json_extract(a.curves, '$.indicators.' || json_extract(p.value, '$[1]'))`, `json_extract(a.settings, '$.indicators[0]')`];
+      : // A series without a rule asks for indicator '': '$.indicators.' is no JSON path to SQLite, so that case is NULL.
+        [
+          `CASE WHEN json_extract(p.value, '$[1]') <> '' THEN json_extract(a.curves, '$.indicators.' || json_extract(p.value, '$[1]')) END`,
+          `json_extract(a.settings, '$.indicators[0]')`,
+        ];
     const fallback = isPostgres(sequelize)
       ? `(a.curves -> 'indicators' -> (a.settings -> 'indicators' ->> 0))`
       : `json_extract(a.curves, '$.indicators.' || json_extract(a.settings, '$.indicators[0]'))`;
     // Absent, not JSON null: PostgreSQL's -> gives SQL NULL only for an absent key, SQLite's json_type likewise.
-    const absent = isPostgres(sequelize) ? `${preferred} IS NULL` : `json_type(a.curves, '$.indicators.' || json_extract(p.value, '$[1]')) IS NULL`;
+    const absent = isPostgres(sequelize)
+      ? `${preferred} IS NULL`
+      : `(json_extract(p.value, '$[1]') = '' OR json_type(a.curves, '$.indicators.' || json_extract(p.value, '$[1]')) IS NULL)`;
     const found = await sequelize.query<{ id: number; preferred: string | null; fallback_name: string | null; fallback: string | null }>(
       `SELECT a.id, ${jsonText(sequelize, preferred)} AS preferred, ${fallbackName} AS fallback_name,
          CASE WHEN ${absent} THEN ${jsonText(sequelize, fallback)} END AS fallback

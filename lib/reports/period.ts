@@ -48,7 +48,10 @@ interface SeriesRow {
 interface AlertRow {
   id: number;
   kind: string;
-  series_id: number;
+  /** null for a site alert (then site_slug and site_name) */
+  series_id: number | null;
+  site_slug: string | null;
+  site_name: string | null;
   severity: string;
   state: string;
   created_at: string;
@@ -72,7 +75,8 @@ const hours = (ms: number) => Math.round((ms / HOUR) * 100) / 100;
 function alertSubject(row: AlertRow): string {
   if (row.kind === 'abrupt-shift') return `abrupt shift${row.shift_time !== null ? ` at ${iso(Number(row.shift_time))}` : ''}`;
   if (row.kind === 'data-late') return `data late since ${row.data_last_at !== null ? iso(Number(row.data_last_at)) : '?'}`;
-  return row.indicator ? indicatorLabel(row.indicator) : 'rule deleted';
+  if (!row.indicator) return 'rule deleted';
+  return row.kind === 'site-slowing-down' ? `${indicatorLabel(row.indicator)} across the site's series` : indicatorLabel(row.indicator);
 }
 
 const allowanceOf = (s: SeriesRow) =>
@@ -148,14 +152,17 @@ export async function buildPeriodReport(period: Period, site: string | null = nu
   const [overview, alerts, openAtEnd, settingsChanges, ruleChanges, rules, marks] = await Promise.all([
     fetchSeriesOverview(null, now),
     sequelize.query<AlertRow>(
-      `SELECT a.id, a.kind, a.series_id, a.severity, a.state, a.created_at, a.shift_time, a.shift_size, a.data_last_at, r.indicator,
+      `SELECT a.id, a.kind, a.series_id, si.slug AS site_slug, si.name AS site_name, a.severity, a.state, a.created_at, a.shift_time, a.shift_size, a.data_last_at, r.indicator,
          d.action AS decision_action, d.created_at AS decided_at, u.name AS decided_by, d.reason AS decision_reason, d.detail AS decision_note,
          (SELECT x.created_at FROM alert_events x WHERE x.alert_id = a.id AND x.action = 'data-returned' AND x.to_state = 'dismissed' ORDER BY x.id LIMIT 1) AS returned_at
        FROM alerts a
+       LEFT JOIN sites si ON si.id = a.site_id
        LEFT JOIN alert_rules r ON r.id = a.rule_id
        LEFT JOIN alert_events d ON d.id = (SELECT e.id FROM alert_events e WHERE e.alert_id = a.id AND e.action IN ('confirm', 'dismiss') AND e.actor_id IS NOT NULL ORDER BY e.id LIMIT 1)
        LEFT JOIN users u ON u.id = d.actor_id
-       WHERE a.series_id IN (SELECT ids.value FROM ${jsonElements(sequelize, ':ids', 'ids', 'bigint')}) AND a.created_at >= :start AND a.created_at < :end
+       WHERE (a.series_id IN (SELECT ids.value FROM ${jsonElements(sequelize, ':ids', 'ids', 'bigint')})
+              OR a.site_id IN (SELECT x.site_id FROM series x WHERE x.id IN (SELECT ids.value FROM ${jsonElements(sequelize, ':ids', 'ids', 'bigint')})))
+         AND a.created_at >= :start AND a.created_at < :end
        ORDER BY a.created_at, a.id`,
       { replacements: { ids: idList, start: sqlDate(start), end: sqlDate(end) }, type: QueryTypes.SELECT },
     ),
@@ -198,15 +205,16 @@ export async function buildPeriodReport(period: Period, site: string | null = nu
   const openEnd = new Map(openAtEnd.map((r) => [Number(r.series_id), Number(r.n)]));
 
   const reportAlerts: ReportAlert[] = alerts.map((a) => {
-    const s = bySeries.get(Number(a.series_id))!;
+    // A site alert is on the site's series together: named by its site.
+    const s = a.series_id === null ? null : bySeries.get(Number(a.series_id))!;
     const opened = new Date(a.created_at).getTime();
     const decidedAt = a.decided_at ?? a.returned_at;
     return {
       id: Number(a.id),
       kind: a.kind,
-      seriesSlug: s.slug,
-      seriesName: s.name,
-      site: s.site,
+      seriesSlug: s?.slug ?? '',
+      seriesName: s?.name ?? `site ${a.site_name}`,
+      site: s?.site ?? a.site_name ?? '',
       severity: a.severity,
       subject: alertSubject(a),
       openedAt: iso(opened),

@@ -2,6 +2,7 @@ import { z } from 'zod';
 import { changeReasonSchema } from './change-reason';
 import { INDICATOR_NAMES } from '@/lib/engine/settings';
 import { RULE_DIRECTIONS, defaultRuleDirection } from '@/models/AlertRule';
+import { SITE_INDICATORS } from '@/lib/engine/site';
 
 const probability = z.number().gt(0).max(1);
 
@@ -42,23 +43,23 @@ const ruleShape = {
   active: z.boolean(),
 };
 
+/** The defaults creation fills in, shared by series and site rules. */
+const creationDefaults = {
+  maxSurrogateP: ruleShape.maxSurrogateP.default(null),
+  maxKendallP: ruleShape.maxKendallP.default(null),
+  levelThreshold: ruleShape.levelThreshold.default(null),
+  levelDirection: ruleShape.levelDirection.default('above'),
+  persistence: ruleShape.persistence.default(1),
+  severity: ruleShape.severity.default('watch'),
+  quietPeriodHours: ruleShape.quietPeriodHours.default(0),
+  active: ruleShape.active.default(true),
+  /** why the rule is added; kept in its audit entry */
+  reason: changeReasonSchema.optional(),
+};
+
 /** One schema per entity: creation fills defaults (direction from the indicator), updates take any subset. */
 export const ruleCreateSchema = z
-  .object({
-    ...ruleShape,
-    direction: ruleShape.direction.optional(),
-    maxSurrogateP: ruleShape.maxSurrogateP.default(null),
-    maxKendallP: ruleShape.maxKendallP.default(null),
-    levelThreshold: ruleShape.levelThreshold.default(null),
-    levelDirection: ruleShape.levelDirection.default('above'),
-    persistence: ruleShape.persistence.default(1),
-    severity: ruleShape.severity.default('watch'),
-    quietPeriodHours: ruleShape.quietPeriodHours.default(0),
-    fdrLevel: ruleShape.fdrLevel.default(null),
-    active: ruleShape.active.default(true),
-    /** why the rule is added; kept in its audit entry */
-    reason: changeReasonSchema.optional(),
-  })
+  .object({ ...ruleShape, ...creationDefaults, direction: ruleShape.direction.optional(), fdrLevel: ruleShape.fdrLevel.default(null) })
   .strict()
   .transform((rule) => ({ ...rule, direction: rule.direction ?? defaultRuleDirection(rule.indicator) }));
 /** `reason`: why the rule changed, kept in its audit entry and shown in period reports. */
@@ -66,6 +67,9 @@ export const ruleUpdateSchema = z
   .object({ ...ruleShape, reason: changeReasonSchema })
   .partial()
   .strict();
+
+/** Body of PATCH /api/rules/{id}: an object, checked field by field by ruleUpdateSchema or siteRuleUpdateSchema once the rule is known. */
+export const ruleChangesBodySchema = z.record(z.string(), z.unknown());
 
 export type RuleCreateInput = z.input<typeof ruleCreateSchema>;
 export type RuleFields = z.output<typeof ruleCreateSchema>;
@@ -76,3 +80,27 @@ export type RuleUpdate = z.output<typeof ruleUpdateSchema>;
  * a stored rule, that rule's id (it leaves the false-discovery family so the draft takes its place).
  */
 export const rulePreviewSchema = z.object({ rule: ruleCreateSchema, replacing: z.number().int().positive().nullable().default(null) }).strict();
+
+const SITE_INDICATOR_NAMES = SITE_INDICATORS.map((d) => d.name) as [(typeof SITE_INDICATORS)[number]['name'], ...(typeof SITE_INDICATORS)[number]['name'][]];
+
+/**
+ * A rule on a site's site-level indicators (lib/alerts/site-rules.ts). The same thresholds as a series rule, with
+ * two limits: the site snapshot keeps the surrogate p only in the indicators' own direction (all rise under slowing
+ * down), so a site rule looks that way; and false-discovery control spans the series rules' family, so a site rule
+ * is judged on its own surrogate p.
+ */
+const siteRuleShape = {
+  ...ruleShape,
+  indicator: z.enum(SITE_INDICATOR_NAMES),
+  direction: z.literal('rising', { error: 'A site rule looks for a rising trend: every site-level indicator rises under slowing down.' }),
+  fdrLevel: z.null({ error: 'False-discovery control spans the series rules; a site rule is judged on its own surrogate p (maxSurrogateP).' }),
+};
+
+export const siteRuleCreateSchema = z
+  .object({ ...siteRuleShape, ...creationDefaults, direction: siteRuleShape.direction.default('rising'), fdrLevel: siteRuleShape.fdrLevel.default(null) })
+  .strict();
+export const siteRuleUpdateSchema = z
+  .object({ ...siteRuleShape, reason: changeReasonSchema })
+  .partial()
+  .strict();
+export type SiteRuleCreateInput = z.input<typeof siteRuleCreateSchema>;

@@ -86,7 +86,7 @@ export async function findSeriesBySlug(slug: string): Promise<Series> {
 
 /** Copies the default rules (series null) onto a freshly created series, inside its creation transaction. */
 async function applyDefaultRules(seriesId: number, transaction: Transaction): Promise<number> {
-  const defaults = await AlertRule.findAll({ where: { seriesId: null, active: true }, transaction });
+  const defaults = await AlertRule.findAll({ where: { seriesId: null, siteId: null, active: true }, transaction });
   for (const rule of defaults) {
     const { id: _id, createdAt: _c, updatedAt: _u, seriesId: _s, ...fields } = rule.get({ plain: true });
     await AlertRule.create({ ...fields, seriesId }, { transaction });

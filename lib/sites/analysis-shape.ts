@@ -24,8 +24,11 @@ export interface SiteAnalysisSummary {
   /** grid instants left out before the analysed stretch because some member had no reading near them */
   dropped: number;
   kendall: Record<SiteIndicatorName, { tau: number | null; p: number | null; direction: TrendDirection }>;
-  /** phase-coherent surrogate p in the indicator's direction (absent without surrogates) */
-  significance: Partial<Record<SiteIndicatorName, { p: number | null; count: number; method: 'phase'; direction: TrendDirection }>>;
+  /**
+   * phase-coherent surrogate p in the indicator's direction (absent without surrogates); nullSd, the spread of the
+   * surrogate taus, is absent on snapshots made before site rules
+   */
+  significance: Partial<Record<SiteIndicatorName, { p: number | null; count: number; method: 'phase'; direction: TrendDirection; nullSd?: number | null }>>;
   /** the value of the newest evaluated window */
   latest: Record<SiteIndicatorName, number | null>;
 }

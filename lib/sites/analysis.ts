@@ -1,5 +1,5 @@
 import { Op, QueryTypes } from 'sequelize';
-import { Series, SiteSnapshot, db } from '@/models';
+import { Alert, Series, SiteSnapshot, db } from '@/models';
 import { thinIndicator, thinnedIndices } from '@/lib/analysis/curves';
 import { loadObservations, observationExtent } from '@/lib/analysis/observations';
 import { CHART_POINTS } from '@/lib/analysis/view';
@@ -18,7 +18,7 @@ import { findSiteBySlug } from './registry';
  * a series ('1000 points'), so a site is judged over as many instants as each of its series.
  */
 export const SITE_SPAN_POINTS = 1000;
-/** Site snapshots kept per site; older ones are deleted (the site page shows the latest). */
+/** Site snapshots kept per site; older ones are deleted (the site page shows the latest) unless an alert rests on them. */
 export const SITE_SNAPSHOTS_KEPT = 20;
 /** As the series analysis lease: long enough for hundreds of surrogates of a dozen series. */
 const LEASE_MS = 10 * 60_000;
@@ -170,7 +170,10 @@ export async function refreshSiteAnalysis(siteId: number, basis: string): Promis
     });
   }
   const keep = await SiteSnapshot.findAll({ where: { siteId }, attributes: ['id'], order: [['id', 'DESC']], limit: SITE_SNAPSHOTS_KEPT });
-  await SiteSnapshot.destroy({ where: { siteId, id: { [Op.notIn]: keep.map((k) => k.id) } } });
+  // The snapshots an alert rests on are its evidence and stay however old.
+  const evidence = await Alert.findAll({ where: { siteId }, attributes: ['firstSnapshotId', 'latestSnapshotId'] });
+  const kept = [...keep.map((k) => k.id), ...evidence.flatMap((a) => [a.firstSnapshotId, a.latestSnapshotId])];
+  await SiteSnapshot.destroy({ where: { siteId, id: { [Op.notIn]: kept } } });
   return snapshot;
 }
 

@@ -5,6 +5,7 @@ import { cachedRead } from '@/lib/db/read-cache';
 import { isoFromSqlDate } from '@/lib/db/sql-date';
 import type { SiteRecord } from '@/lib/schemas/site';
 import { findSiteBySlug, presentSite } from './registry';
+import { siteRuleStatuses, type SiteRuleStatus } from '@/lib/alerts/site-rules';
 
 export interface SiteAlert {
   id: number;
@@ -12,7 +13,8 @@ export interface SiteAlert {
   severity: string;
   kind: string;
   indicator: string | null;
-  series: { slug: string; name: string; timeZone: string };
+  /** null for an alert on the site's series together (a rule on site-level indicators) */
+  series: { slug: string; name: string; timeZone: string } | null;
   createdAt: string;
 }
 
@@ -21,6 +23,8 @@ export interface SitePage {
   /** the site's active series as the overview shows them (state, latest data and its freshness, trends) */
   series: OverviewRow[];
   openAlerts: SiteAlert[];
+  /** the rules on the site-level indicators, each with its latest judgement */
+  siteRules: SiteRuleStatus[];
   generatedAt: number;
 }
 
@@ -37,14 +41,14 @@ async function openAlertsOfSite(siteId: number): Promise<SiteAlert[]> {
       severity: string;
       kind: string | null;
       indicator: string | null;
-      slug: string;
-      name: string;
-      time_zone: string;
+      slug: string | null;
+      name: string | null;
+      time_zone: string | null;
       created_at: string;
     }>(
       `SELECT a.id, a.state, a.severity, a.kind, r.indicator, s.slug, s.name, s.time_zone, a.created_at
-       FROM alerts a JOIN series s ON s.id = a.series_id LEFT JOIN alert_rules r ON r.id = a.rule_id
-       WHERE s.site_id = :siteId AND s.retired_at IS NULL AND a.state IN (${OPEN})
+       FROM alerts a LEFT JOIN series s ON s.id = a.series_id LEFT JOIN alert_rules r ON r.id = a.rule_id
+       WHERE (s.site_id = :siteId AND s.retired_at IS NULL OR a.site_id = :siteId) AND a.state IN (${OPEN})
        ORDER BY CASE a.severity WHEN 'warning' THEN 0 ELSE 1 END, a.created_at DESC, a.id DESC LIMIT :limit`,
       { type: QueryTypes.SELECT, replacements: { siteId, limit: SITE_ALERTS_SHOWN } },
     );
@@ -54,7 +58,7 @@ async function openAlertsOfSite(siteId: number): Promise<SiteAlert[]> {
       severity: r.severity,
       kind: r.kind ?? 'slowing-down',
       indicator: r.indicator,
-      series: { slug: r.slug, name: r.name, timeZone: r.time_zone },
+      series: r.slug === null ? null : { slug: r.slug, name: r.name!, timeZone: r.time_zone! },
       createdAt: isoFromSqlDate(r.created_at),
     }));
   });
@@ -66,7 +70,7 @@ async function openAlertsOfSite(siteId: number): Promise<SiteAlert[]> {
  */
 export async function fetchSitePage(slug: string, actorId: number | null, now = Date.now()): Promise<SitePage> {
   const site = await findSiteBySlug(slug);
-  const [overview, openAlerts] = await Promise.all([fetchSeriesOverview(actorId, now), openAlertsOfSite(site.id)]);
+  const [overview, openAlerts, siteRules] = await Promise.all([fetchSeriesOverview(actorId, now), openAlertsOfSite(site.id), siteRuleStatuses(site.id)]);
   const series = overview.rows.filter((row) => row.siteSlug === site.slug);
-  return { site: presentSite(site, series.length), series, openAlerts, generatedAt: now };
+  return { site: presentSite(site, series.length), series, openAlerts, siteRules, generatedAt: now };
 }

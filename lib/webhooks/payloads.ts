@@ -20,10 +20,13 @@ export interface WebhookPayload {
   text: string;
   url: string;
   severity?: 'watch' | 'warning';
-  series: { slug: string; name: string; site: string };
+  /** the series an event is about; null for an alert on a whole site (then `site` names it) */
+  series: { slug: string; name: string; site: string } | null;
+  /** a site alert's site and the member series analysed together */
+  site?: { slug: string; name: string; members: string[] };
   alert?: {
     id: number;
-    kind: 'slowing-down' | 'abrupt-shift' | 'data-late';
+    kind: 'slowing-down' | 'abrupt-shift' | 'data-late' | 'site-slowing-down';
     /** the state the event left the alert in */
     state: string;
     severity: 'watch' | 'warning';
@@ -103,7 +106,7 @@ export function alertWebhookPayload(
     text: oneLine(`Brinkwatch ${what}. ${url}`),
     url,
     severity: e.severity,
-    series: seriesPart(e),
+    ...(e.siteMembers ? { series: null, site: { slug: e.series.slug, name: e.series.site, members: e.siteMembers } } : { series: seriesPart(e) }),
     alert: {
       id: e.alertId,
       kind: e.kind,

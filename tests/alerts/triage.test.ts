@@ -66,7 +66,7 @@ describe('the triage policy', () => {
     const id = await freshAlert();
     const { series } = await fetchAlertDetail(id);
     const watcher = await makeUser('viewer');
-    await watch(watcher, series, 'digest');
+    await watch(watcher, series!, 'digest');
 
     const ack = await acknowledgeAlert(id, analyst);
     expect(ack).toMatchObject({ state: 'acknowledged', assigneeId: analyst.id, version: 2 });

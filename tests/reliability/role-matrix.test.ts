@@ -43,6 +43,8 @@ const EXPECTED: Record<string, Role | 'public' | 'token'> = {
   'GET /api/sites/[slug]': 'viewer',
   'PATCH /api/sites/[slug]': 'lead',
   'GET /api/sites/[slug]/analysis': 'viewer',
+  'GET /api/sites/[slug]/rules': 'viewer',
+  'POST /api/sites/[slug]/rules': 'lead',
   'GET /api/series/[slug]/observations': 'viewer',
   'POST /api/series/[slug]/observations': 'token',
   'POST /api/series/[slug]/observations/flags': 'analyst',

@@ -2,6 +2,7 @@ import Link from 'next/link';
 import { AlertActions } from '@/components/alerts/AlertActions';
 import { AlertNotes } from '@/components/alerts/AlertNotes';
 import { EvidenceCharts } from '@/components/alerts/EvidenceCharts';
+import { SiteIndicatorsView } from '@/components/sites/SiteIndicators';
 import { ProvenancePanel } from '@/components/provenance/ProvenancePanel';
 import { AlertStateBadge, SeverityBadge } from '@/components/Badges';
 import { Caution } from '@/components/Caution';
@@ -35,8 +36,8 @@ const SHOWS_STATE = new Set(['open', 'assign', 'reopen', 'evaluate']);
 export default async function AlertPage({ params }: { params: Promise<{ id: string }> }) {
   const actor = await requireRole('viewer');
   const { id: raw } = await params;
-  const { detail, firstView, latestView, marks, colleagues, provenance } = await foundOr404(async () => fetchAlertPage(idParam(raw, 'Alert'), actor));
-  const tz = detail.series.timeZone;
+  const { detail, firstView, latestView, siteView, marks, colleagues, provenance } = await foundOr404(async () => fetchAlertPage(idParam(raw, 'Alert'), actor));
+  const tz = detail.on.timeZone;
   const lastEval = detail.evidence.evaluations[detail.evidence.evaluations.length - 1];
   const rule = detail.rule;
   return (
@@ -52,8 +53,8 @@ export default async function AlertPage({ params }: { params: Promise<{ id: stri
           Alert #{detail.id}:{' '}
           {rule ? `${indicatorLabel(rule.indicator)} ${DIRECTION_WORDS[rule.direction]}` : detail.kind === 'data-late' ? 'data late' : 'abrupt shift of level'}{' '}
           on{' '}
-          <Link href={`/series/${detail.series.slug}`} className="text-tide hover:underline">
-            {detail.series.name}
+          <Link href={detail.on.href} className="text-tide hover:underline">
+            {detail.on.name}
           </Link>
         </h1>
         <SeverityBadge severity={detail.severity} />
@@ -87,7 +88,9 @@ export default async function AlertPage({ params }: { params: Promise<{ id: stri
                 <dd>{detail.evaluationCount}</dd>
                 <dt className="text-ink-soft">False alarms</dt>
                 <dd className="sm:col-span-3" data-testid="rule-calibration">
-                  {describeCalibration(rule.calibration)}
+                  {detail.site
+                    ? 'not calibrated: a backtest replays one series, and this rule is on the site’s series together'
+                    : describeCalibration(rule.calibration)}
                 </dd>
               </dl>
             ) : detail.silence ? (
@@ -112,18 +115,24 @@ export default async function AlertPage({ params }: { params: Promise<{ id: stri
                   <LocalTime t={detail.shift?.time ?? null} timeZone={tz} withZone />
                 </dd>
                 <dt className="text-ink-soft">Size</dt>
-                <dd>{detail.shift?.size === null || detail.shift?.size === undefined ? 'not given' : formatValue(detail.shift.size, detail.series.unit)}</dd>
+                <dd>{detail.shift?.size === null || detail.shift?.size === undefined ? 'not given' : formatValue(detail.shift.size, detail.series?.unit)}</dd>
                 <dt className="text-ink-soft">After it</dt>
                 <dd>indicators are computed on the stretch after the shift only</dd>
               </dl>
             )}
-            <EvidenceCharts
-              first={firstView}
-              latest={latestView ?? firstView}
-              indicator={rule?.indicator ?? null}
-              series={{ slug: detail.series.slug, name: detail.series.name, unit: detail.series.unit, timeZone: tz }}
-              marks={detail.shift ? [...marks, { at: detail.shift.time, note: 'abrupt shift (this alert)' }] : marks}
-            />
+            {detail.series ? (
+              <EvidenceCharts
+                first={firstView}
+                latest={latestView ?? firstView}
+                indicator={rule?.indicator ?? null}
+                series={{ slug: detail.series.slug, name: detail.series.name, unit: detail.series.unit, timeZone: tz }}
+                marks={detail.shift ? [...marks, { at: detail.shift.time, note: 'abrupt shift (this alert)' }] : marks}
+              />
+            ) : siteView && detail.site ? (
+              <SiteIndicatorsView slug={detail.site.slug} timeZone={tz} view={siteView} only={rule?.indicator} />
+            ) : (
+              <Empty>The site analysis this alert rests on is no longer stored.</Empty>
+            )}
           </Panel>
           <Panel title="Notes" id="notes">
             <AlertNotes alertId={detail.id} notes={detail.notes} canWrite={roleAtLeast(actor.role, 'analyst')} timeZone={tz} />

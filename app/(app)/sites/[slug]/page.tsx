@@ -7,6 +7,7 @@ import { Empty, Panel } from '@/components/States';
 import { SiteForm } from '@/components/sites/SiteForm';
 import { SiteIndicators } from '@/components/sites/SiteIndicators';
 import { SiteMap } from '@/components/sites/SiteMap';
+import { SiteRules } from '@/components/sites/SiteRules';
 import { buttonClass } from '@/components/ui/Button';
 import { CELL, DataTable } from '@/components/ui/DataTable';
 import { requireRole } from '@/lib/auth/guard';
@@ -22,7 +23,7 @@ export const metadata = { title: 'Site' };
 export default async function SitePage({ params }: { params: Promise<{ slug: string }> }) {
   const actor = await requireRole('viewer');
   const { slug } = await params;
-  const [{ site, series, openAlerts, generatedAt }, siteAnalysis] = await foundOr404(() =>
+  const [{ site, series, openAlerts, generatedAt, siteRules }, siteAnalysis] = await foundOr404(() =>
     Promise.all([fetchSitePage(slug, actor.id), fetchSiteAnalysis(slug)]),
   );
   const canEdit = roleAtLeast(actor.role, 'lead');
@@ -62,6 +63,9 @@ export default async function SitePage({ params }: { params: Promise<{ slug: str
           <Panel title="Indicators across the site's series" id="site-indicators">
             <SiteIndicators slug={site.slug} timeZone={site.timeZone} initial={siteAnalysis} />
           </Panel>
+          <Panel title="Rules on the indicators across the site's series" id="site-rules">
+            <SiteRules slug={site.slug} canEdit={canEdit} initial={siteRules} />
+          </Panel>
           <Panel title="Open alerts" id="site-alerts">
             {openAlerts.length === 0 ? (
               <Empty>No open alerts at this site.</Empty>
@@ -75,9 +79,13 @@ export default async function SitePage({ params }: { params: Promise<{ slug: str
                       </Link>
                     </td>
                     <td className={CELL}>
-                      <Link href={`/series/${alert.series.slug}`} className="hover:underline">
-                        {alert.series.name}
-                      </Link>
+                      {alert.series ? (
+                        <Link href={`/series/${alert.series.slug}`} className="hover:underline">
+                          {alert.series.name}
+                        </Link>
+                      ) : (
+                        'all series together'
+                      )}
                     </td>
                     <td className={CELL}>
                       <SeverityBadge severity={alert.severity} />
@@ -86,7 +94,7 @@ export default async function SitePage({ params }: { params: Promise<{ slug: str
                       <AlertStateBadge state={alert.state} />
                     </td>
                     <td className={CELL}>
-                      <LocalTime t={alert.createdAt} timeZone={alert.series.timeZone} />
+                      <LocalTime t={alert.createdAt} timeZone={alert.series?.timeZone ?? site.timeZone} />
                     </td>
                   </tr>
                 ))}

@@ -3,13 +3,14 @@ import { requireRole } from '@/lib/auth/guard';
 import { handle } from '@/lib/http/handler';
 import { readJson } from '@/lib/http/body';
 import { idParam } from '@/lib/http/params';
-import { ruleUpdateSchema } from '@/lib/schemas/rule';
+import { ruleChangesBodySchema } from '@/lib/schemas/rule';
 import { deleteRule, presentRules, updateRule } from '@/lib/alerts/rules';
 
 export const PATCH = handle<{ id: string }>(async (request, { params }) => {
   const actor = await requireRole('lead');
   const id = idParam((await params).id, 'Rule');
-  const changes = await readJson(request, ruleUpdateSchema);
+  // Validated by the rule's kind in updateRule: a site rule takes the site-level indicators.
+  const changes = await readJson(request, ruleChangesBodySchema);
   return NextResponse.json((await presentRules([await updateRule(id, changes, actor)]))[0]);
 });
 
