@@ -45,6 +45,38 @@ describe('site-level indicators, the restoring-rate band and the stride setting 
     await panel.screenshot({ path: path.join(SHOTS, 'site-indicators.png') });
   }, 200_000);
 
+  it('a lead puts a rule on a site indicator from the site page; the scheduler judges it and opens an alert on the site', async () => {
+    await page.goto(`${app.baseUrl}/sites/${SITE}`);
+    const form = page.getByTestId('site-rule-form');
+    await form.waitFor();
+    await page.getByTestId('site-rule-indicator').selectOption('pc1-variance');
+    // τ ≥ −1 is met by any defined trend, and no surrogate test: the check is of the screens and the procedure
+    await form.getByLabel('Kendall τ at least (rising)').fill('-1');
+    await form.getByLabel('Surrogate p at most').fill('');
+    await form.getByTestId('change-reason').fill('watching the mooring as a whole');
+    await form.getByRole('button', { name: 'Add the rule' }).click();
+    const rows = page.getByTestId('site-rules').locator('tbody tr');
+    await expect.poll(() => rows.count(), { timeout: 20_000 }).toBe(1);
+    // the scheduler judges the site's latest snapshot for a rule that has not judged it yet, within a cycle or two
+    const alertLink = rows.first().getByRole('link', { name: /^#\d+/ });
+    await expect
+      .poll(
+        async () => {
+          await page.reload();
+          await page.waitForLoadState('networkidle');
+          return alertLink.count();
+        },
+        { timeout: 120_000, interval: 3000 },
+      )
+      .toBe(1);
+    await expect(rows.first().getByTestId('site-rule-standing').textContent()).resolves.toMatch(/^met/);
+    await page.getByTestId('site-rules').screenshot({ path: path.join(SHOTS, 'site-rules.png') });
+    await alertLink.click();
+    await expect(page.getByRole('heading', { level: 1 }).textContent()).resolves.toMatch(/on site /);
+    await page.getByTestId('site-chart-pc1-variance').locator('.recharts-line').first().waitFor();
+    await expect(page.getByTestId('site-chart-maf-ac1').count()).resolves.toBe(0);
+  }, 200_000);
+
   it('a series computing the restoring rate draws its ±1.96 SE band, and its settings offer the stride', async () => {
     const detail = await (await lead.fetch(`/api/series/${SERIES}`)).json();
     const settings = { ...detail.settings, indicators: [...detail.settings.indicators, 'restoring-rate'], maxEvaluatedWindows: 60 };
