@@ -61,7 +61,7 @@ export function SiteRules({ slug, canEdit, initial }: { slug: string; canEdit: b
               </td>
               <td className={CELL} data-testid="site-rule-standing">
                 {STANDING_WORDS[standing]}
-                {latest && latest.tau !== null ? ` (τ ${formatTauDirection(latest.tau, 'rising')}, p ${formatP(latest.surrogateP)})` : ''}
+                {latest && latest.tau !== null ? ` (${formatTauDirection(latest.tau, 'rising')}, surrogate p ${formatP(latest.surrogateP)})` : ''}
                 {latest && standing === 'cannot-judge' ? `: ${latest.outcome.replace(/^cannot-judge: /, '')}` : ''}
               </td>
               <td className={CELL}>
