@@ -225,29 +225,26 @@ export type EvidenceCharts = 'curves' | 'views';
  * site rule (site snapshot ids; no Kendall p or q-value there).
  */
 async function alertEvaluations(alertId: number, onSite: boolean) {
-  if (onSite) {
-    const rows = await SiteRuleEvaluation.findAll({ where: { alertId }, order: [['siteSnapshotId', 'ASC']], limit: 500 });
-    return rows.map((e) => ({
-      snapshotId: e.siteSnapshotId,
-      direction: e.direction,
-      tau: e.tau,
-      kendallP: null,
-      surrogateP: e.surrogateP,
-      qValue: null,
-      level: e.level,
-      streak: e.streak,
-      outcome: e.outcome,
-      at: e.createdAt.toISOString(),
-    }));
-  }
-  const rows = await RuleEvaluation.findAll({ where: { alertId }, order: [['snapshotId', 'ASC']], limit: 500 });
-  return rows.map((e) => ({
-    snapshotId: e.snapshotId,
+  const rows = onSite
+    ? (await SiteRuleEvaluation.findAll({ where: { alertId }, order: [['siteSnapshotId', 'ASC']], limit: 500 })).map((e) => ({
+        e,
+        snapshotId: e.siteSnapshotId,
+        kendallP: null,
+        qValue: null,
+      }))
+    : (await RuleEvaluation.findAll({ where: { alertId }, order: [['snapshotId', 'ASC']], limit: 500 })).map((e) => ({
+        e,
+        snapshotId: e.snapshotId,
+        kendallP: e.kendallP,
+        qValue: e.qValue,
+      }));
+  return rows.map(({ e, snapshotId, kendallP, qValue }) => ({
+    snapshotId,
     direction: e.direction ?? 'rising',
     tau: e.tau,
-    kendallP: e.kendallP,
+    kendallP,
     surrogateP: e.surrogateP,
-    qValue: e.qValue,
+    qValue,
     level: e.level,
     streak: e.streak,
     outcome: e.outcome,
