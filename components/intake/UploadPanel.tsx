@@ -12,6 +12,7 @@ import { RejectedRowsTable } from './RejectedRowsTable';
 import { Button } from '@/components/ui/Button';
 import { DataTable } from '@/components/ui/DataTable';
 import { CONTROL, Field } from '@/components/ui/Field';
+import { SelectField } from '@/components/ui/SelectField';
 import { DELIMITER_LABELS, INTAKE_BODY_LIMIT, MAX_REASON_LENGTH, TIME_FORMAT_LABELS } from '@/lib/intake/choices';
 import type { NetcdfLayout } from '@/lib/intake/netcdf/dataset';
 import type { PreviewSummary } from '@/lib/intake/run-record';
@@ -169,6 +170,7 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
 
   const data = preview.data;
   const columns = data?.layout ? Array.from({ length: Math.max(data.layout.fieldCount, 1) }, (_, i) => data.layout!.header?.[i] || `Column ${i + 1}`) : [];
+  const columnChoices = columns.map((name, i) => [i, name] as const);
   const summary = data?.summary;
 
   if (!hasSeries) return <p className="text-sm text-ink-soft">Register a series before uploading data.</p>;
@@ -268,42 +270,10 @@ export function UploadPanel({ hasSeries }: { hasSeries: boolean }) {
           </p>
           <fieldset className="grid gap-3 text-sm sm:grid-cols-5">
             <legend className="sr-only">Column mapping</legend>
-            <Field label="Time column">
-              <select value={mapping.timeColumn} onChange={(e) => change({ timeColumn: Number(e.target.value) })} className={CONTROL}>
-                {columns.map((c, i) => (
-                  <option key={i} value={i}>
-                    {c}
-                  </option>
-                ))}
-              </select>
-            </Field>
-            <Field label="Value column">
-              <select value={mapping.valueColumn} onChange={(e) => change({ valueColumn: Number(e.target.value) })} className={CONTROL}>
-                {columns.map((c, i) => (
-                  <option key={i} value={i}>
-                    {c}
-                  </option>
-                ))}
-              </select>
-            </Field>
-            <Field label="Time format">
-              <select value={mapping.timeFormat} onChange={(e) => change({ timeFormat: e.target.value })} className={CONTROL}>
-                {TIME_FORMATS.map(([value, label]) => (
-                  <option key={value} value={value}>
-                    {label}
-                  </option>
-                ))}
-              </select>
-            </Field>
-            <Field label="Delimiter">
-              <select value={mapping.delimiter} onChange={(e) => change({ delimiter: e.target.value })} className={CONTROL}>
-                {DELIMITERS.map(([value, label]) => (
-                  <option key={label} value={value}>
-                    {label}
-                  </option>
-                ))}
-              </select>
-            </Field>
+            <SelectField label="Time column" value={mapping.timeColumn} options={columnChoices} onChange={(v) => change({ timeColumn: Number(v) })} />
+            <SelectField label="Value column" value={mapping.valueColumn} options={columnChoices} onChange={(v) => change({ valueColumn: Number(v) })} />
+            <SelectField label="Time format" value={mapping.timeFormat} options={TIME_FORMATS} onChange={(v) => change({ timeFormat: v })} />
+            <SelectField label="Delimiter" value={mapping.delimiter} options={DELIMITERS} onChange={(v) => change({ delimiter: v })} />
             <label className="flex items-center gap-2 self-end pb-1">
               <input type="checkbox" checked={mapping.header} onChange={(e) => change({ header: e.target.checked })} /> First line is a header
             </label>
