@@ -16,6 +16,7 @@ import { describeCalibration, kendallPLabel, tauThreshold, tauWithDirection } fr
 import { idParam } from '@/lib/http/params';
 import { foundOr404 } from '@/lib/http/page';
 import { roleAtLeast } from '@/lib/auth/roles';
+import { Breadcrumb } from '@/components/ui/Breadcrumb';
 
 export const metadata = { title: 'Alert' };
 
@@ -42,12 +43,7 @@ export default async function AlertPage({ params }: { params: Promise<{ id: stri
   const rule = detail.rule;
   return (
     <section className="space-y-4">
-      <nav aria-label="Breadcrumb" className="text-sm text-ink-soft">
-        <Link href="/alerts" className="text-tide hover:underline">
-          Alerts
-        </Link>{' '}
-        / #{detail.id}
-      </nav>
+      <Breadcrumb trail={[{ href: '/alerts', label: 'Alerts' }]} here={`#${detail.id}`} />
       <header className="flex flex-wrap items-center gap-3">
         <h1 className="text-xl font-semibold">
           Alert #{detail.id}:{' '}

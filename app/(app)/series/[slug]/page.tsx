@@ -19,6 +19,7 @@ import { requireRole } from '@/lib/auth/guard';
 import { fetchWorkbench } from '@/lib/series/workbench';
 import { roleAtLeast } from '@/lib/auth/roles';
 import { foundOr404 } from '@/lib/http/page';
+import { Breadcrumb } from '@/components/ui/Breadcrumb';
 
 export const metadata = { title: 'Series' };
 
@@ -31,12 +32,7 @@ export default async function SeriesPage({ params }: { params: Promise<{ slug: s
   const canLead = roleAtLeast(actor.role, 'lead');
   return (
     <section className="space-y-4">
-      <nav aria-label="Breadcrumb" className="text-sm text-ink-soft">
-        <Link href="/" className="text-tide hover:underline">
-          Overview
-        </Link>{' '}
-        / {series.name}
-      </nav>
+      <Breadcrumb trail={[{ href: '/', label: 'Overview' }]} here={series.name} />
       <header className="flex flex-wrap items-baseline gap-x-4 gap-y-1">
         <h1 className="text-xl font-semibold">{series.name}</h1>
         <span className="text-sm text-ink-soft">

@@ -4,6 +4,7 @@ import { SeriesForm } from '@/components/series-forms/SeriesForm';
 import { requireRole } from '@/lib/auth/guard';
 import { roleAtLeast } from '@/lib/auth/roles';
 import { listSites } from '@/lib/sites/registry';
+import { Breadcrumb } from '@/components/ui/Breadcrumb';
 
 export const metadata = { title: 'Register a series' };
 
@@ -13,12 +14,7 @@ export default async function NewSeriesPage({ searchParams }: { searchParams: Pr
   const [sites, { site }] = await Promise.all([listSites(), searchParams]);
   return (
     <section className="max-w-4xl space-y-4">
-      <nav aria-label="Breadcrumb" className="text-sm text-ink-soft">
-        <Link href="/" className="text-tide hover:underline">
-          Overview
-        </Link>{' '}
-        / Register a series
-      </nav>
+      <Breadcrumb trail={[{ href: '/', label: 'Overview' }]} here="Register a series" />
       <div className="flex flex-wrap items-baseline gap-3">
         <h1 className="text-xl font-semibold">Register a series</h1>
         <Link href="/series/bulk" className="text-sm text-tide hover:underline">

@@ -17,6 +17,7 @@ import { foundOr404 } from '@/lib/http/page';
 import { formatCoordinates, siteMap } from '@/lib/sites/map';
 import { fetchSiteAnalysis } from '@/lib/sites/analysis';
 import { fetchSitePage } from '@/lib/sites/page-data';
+import { Breadcrumb } from '@/components/ui/Breadcrumb';
 
 export const metadata = { title: 'Site' };
 
@@ -30,12 +31,7 @@ export default async function SitePage({ params }: { params: Promise<{ slug: str
   const placed = site.latitude !== null;
   return (
     <section className="space-y-4">
-      <nav aria-label="Breadcrumb" className="text-sm text-ink-soft">
-        <Link href="/sites" className="text-tide hover:underline">
-          Sites
-        </Link>{' '}
-        / {site.name}
-      </nav>
+      <Breadcrumb trail={[{ href: '/sites', label: 'Sites' }]} here={site.name} />
       <header className="flex flex-wrap items-baseline gap-x-4 gap-y-1">
         <h1 className="text-xl font-semibold">{site.name}</h1>
         <span className="text-sm text-ink-soft">

@@ -1,4 +1,3 @@
-import Link from 'next/link';
 import { Panel } from '@/components/States';
 import { RetireControl } from '@/components/series-forms/RetireControl';
 import { RoleNeeded } from '@/components/series-forms/RoleNeeded';
@@ -8,6 +7,7 @@ import { roleAtLeast } from '@/lib/auth/roles';
 import { foundOr404 } from '@/lib/http/page';
 import { findSeriesBySlug, presentSeries } from '@/lib/series/registry';
 import { listSites } from '@/lib/sites/registry';
+import { Breadcrumb } from '@/components/ui/Breadcrumb';
 
 export const metadata = { title: 'Series settings' };
 
@@ -19,16 +19,13 @@ export default async function SeriesSettingsPage({ params }: { params: Promise<{
   const sites = await listSites();
   return (
     <section className="max-w-4xl space-y-4">
-      <nav aria-label="Breadcrumb" className="text-sm text-ink-soft">
-        <Link href="/" className="text-tide hover:underline">
-          Overview
-        </Link>{' '}
-        /{' '}
-        <Link href={`/series/${series.slug}`} className="text-tide hover:underline">
-          {series.name}
-        </Link>{' '}
-        / Settings
-      </nav>
+      <Breadcrumb
+        trail={[
+          { href: '/', label: 'Overview' },
+          { href: `/series/${series.slug}`, label: series.name },
+        ]}
+        here="Settings"
+      />
       <h1 className="text-xl font-semibold">
         Settings of {series.name}
         {series.retired ? ' (retired)' : ''}
