@@ -275,6 +275,9 @@ export function indicatorStream(
 }
 
 /** Evidence at each replay instant. */
+/** The per-instant columns every Evidence has, sliced and joined column by column (the optional ones on their own). */
+const EVIDENCE_COLUMNS = ['index', 'time', 'tau', 'p', 'level', 'count'] as const;
+
 export interface Evidence {
   /** record index of the newest point at each judged instant */
   index: Int32Array;
@@ -618,16 +621,11 @@ function evidenceBetween(ev: Evidence, lo: number, hi: number): Evidence {
   while (a < ev.index.length && ev.index[a] < lo) a++;
   let z = a;
   while (z < ev.index.length && ev.index[z] < hi) z++;
-  return {
-    index: ev.index.subarray(a, z),
-    time: ev.time.subarray(a, z),
-    tau: ev.tau.subarray(a, z),
-    p: ev.p.subarray(a, z),
-    level: ev.level.subarray(a, z),
-    count: ev.count.subarray(a, z),
-    ...(ev.covered ? { covered: ev.covered.subarray(a, z) } : {}),
-    ...(ev.inFlatRun ? { inFlatRun: ev.inFlatRun.subarray(a, z) } : {}),
-  };
+  const out = {} as Evidence;
+  for (const column of EVIDENCE_COLUMNS) (out as unknown as Record<string, Int32Array | Float64Array>)[column] = ev[column].subarray(a, z);
+  if (ev.covered) out.covered = ev.covered.subarray(a, z);
+  if (ev.inFlatRun) out.inFlatRun = ev.inFlatRun.subarray(a, z);
+  return out;
 }
 
 /**
@@ -673,33 +671,12 @@ export function replayStretches(
   }
   const lengths = parts.map((e) => e.index.length);
   const from = Int32Array.from(lengths.flatMap((k, i) => new Array<number>(k).fill(froms[i])));
-  const evidence: Evidence = {
-    index: concat(
-      parts.map((e) => e.index),
-      Int32Array,
-    ),
-    time: concat(
-      parts.map((e) => e.time),
-      Float64Array,
-    ),
-    tau: concat(
-      parts.map((e) => e.tau),
-      Float64Array,
-    ),
-    p: concat(
-      parts.map((e) => e.p),
-      Float64Array,
-    ),
-    level: concat(
-      parts.map((e) => e.level),
-      Float64Array,
-    ),
-    count: concat(
-      parts.map((e) => e.count),
-      Int32Array,
-    ),
-    from,
-  };
+  const evidence = { from } as Evidence;
+  for (const column of EVIDENCE_COLUMNS)
+    (evidence as unknown as Record<string, Int32Array | Float64Array>)[column] = concat(
+      parts.map((e) => e[column]),
+      (column === 'index' || column === 'count' ? Int32Array : Float64Array) as { new (n: number): Int32Array | Float64Array },
+    );
   if (parts.some((e) => e.covered))
     evidence.covered = concat(
       parts.map((e) => e.covered ?? new Uint8Array(e.index.length).fill(1)),
