@@ -36,8 +36,11 @@ const MAX_REQUESTS = Number(process.env.LOAD_MAX_REQUESTS || 30_000);
  */
 const THINK_TIMES = (process.env.LOAD_THINK_MS || '0,1000').split(',').map(Number);
 
-const DATABASES = (process.env.LOAD_DATABASES || 'sqlite,postgres').split(',') as Database[];
 type Database = 'sqlite' | 'postgres';
+const DATABASES = (process.env.LOAD_DATABASES || 'sqlite,postgres').split(',').map((name): Database => {
+  if (name !== 'sqlite' && name !== 'postgres') throw new Error(`LOAD_DATABASES: "${name}" is neither sqlite nor postgres`);
+  return name;
+});
 
 /** Cores counted for "per core": what Node reports this process may use (the web tier starts one worker per such core). */
 const CORES = os.availableParallelism();
@@ -199,20 +202,14 @@ async function runScenario(database: Database, sessions: Session[], thinkMs: num
       pass ? 'pass' : 'FAIL',
     ]);
   }
-  const widths = head.map((h, i) => Math.max(h.length, ...rows.map((r) => r[i].length)));
-  const line = (cells: string[]) =>
-    cells
-      .map((cell, i) => (i >= 1 && i <= 6 ? cell.padStart(widths[i]) : cell.padEnd(widths[i])))
-      .join('  ')
-      .trimEnd();
-  console.log(
+  printTable(
     `\nload on ${database}: ${CLIENTS} clients (think time ${thinkMs} ms), ${total} requests in ${elapsed.toFixed(1)} s (${(total / elapsed).toFixed(0)} req/s), ` +
       `${SERIES} series, ${SERIES * OBSERVATIONS_PER_SERIES} observations, ${SERIES * RULES_PER_SERIES * ALERTS_PER_RULE} alerts; ` +
       `${CORES} cores, ${WEB_WORKERS} web workers, Node ${process.version}`,
+    head,
+    rows,
+    [1, 6],
   );
-  console.log(line(head));
-  console.log(widths.map((w) => '-'.repeat(w)).join('  '));
-  for (const row of rows) console.log(line(row));
   if (!thinkMs) {
     const meanCost = ENDPOINTS.reduce((sum, e) => sum + alone.get(e.name)!, 0) / ENDPOINTS.length;
     console.log(
@@ -288,9 +285,16 @@ async function main(): Promise<number> {
       continue;
     }
     const server = postgresServer();
+    // Interrupted (Ctrl-C reaches the child too), the throwaway server is still stopped and its folder removed.
+    const interrupted = () => {
+      server.stop();
+      process.exit(130);
+    };
+    process.once('SIGINT', interrupted);
     try {
       results.push(...(await runChild(database, server.env)));
     } finally {
+      process.off('SIGINT', interrupted);
       server.stop();
     }
   }
@@ -319,17 +323,25 @@ function printSummary(results: ScenarioResult[]): void {
       r.pass ? 'pass' : 'FAIL',
     ];
   });
-  const widths = head.map((h, i) => Math.max(h.length, ...rows.map((r) => r[i].length)));
-  const line = (cells: string[]) =>
-    cells
-      .map((cell, i) => (i >= 2 && i <= 8 ? cell.padStart(widths[i]) : cell.padEnd(widths[i])))
-      .join('  ')
-      .trimEnd();
-  console.log(
+  printTable(
     `\nload summary: ${CLIENTS} signed-in clients, ${SECONDS} s per scenario on loopback; every endpoint pooled. ` +
       `Cores = os.availableParallelism() = ${CORES}; the server ran ${WEB_WORKERS} web workers (WEB_WORKERS, default one per core); ` +
       `the load generator, and on PostgreSQL the database server, share those cores.`,
+    head,
+    rows,
+    [2, 8],
   );
+}
+
+/** A title, then the table in aligned columns; the columns from `numbers[0]` to `numbers[1]` are right-aligned. */
+function printTable(title: string, head: string[], rows: string[][], numbers: [number, number]): void {
+  const widths = head.map((h, i) => Math.max(h.length, ...rows.map((r) => r[i].length)));
+  const line = (cells: string[]) =>
+    cells
+      .map((cell, i) => (i >= numbers[0] && i <= numbers[1] ? cell.padStart(widths[i]) : cell.padEnd(widths[i])))
+      .join('  ')
+      .trimEnd();
+  console.log(title);
   console.log(line(head));
   console.log(widths.map((w) => '-'.repeat(w)).join('  '));
   for (const row of rows) console.log(line(row));

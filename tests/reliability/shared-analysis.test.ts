@@ -115,8 +115,8 @@ describe('two schedulers and two web processes on one database, one scheduler ki
     );
 
   /**
-   * Reads through both web processes, one after another on each, until `stop`: the alert queue and a series. Every
-   * answer must be 200, and neither process may ever show fewer alerts than it showed before (a node serving a
+   * Reads through both web processes, one after another on each, until the returned stop is called: the alert queue
+   * and a series. Every answer must be 200, and neither process may ever show fewer alerts than it showed before (a node serving a
    * stale cache, or a snapshot older than the last commit, would).
    */
   const readBothWhile = () => {
@@ -127,14 +127,18 @@ describe('two schedulers and two web processes on one database, one scheduler ki
       let seen = 0;
       for (let i = 0; running; i++) {
         const pathname = i % 2 ? `/api/series/shared-${i % SERIES}` : '/api/alerts?queue=all&pageSize=100';
-        const response = await sessions[w].fetch(pathname);
-        const body = await response.text();
-        answered++;
-        if (response.status !== 200) failures.push(`${web.baseUrl}${pathname}: ${response.status} ${body.slice(0, 200)}`);
-        else if (i % 2 === 0) {
-          const total = (JSON.parse(body) as { items: unknown[] }).items.length;
-          if (total < seen) failures.push(`${web.baseUrl} showed ${total} alerts after ${seen}`);
-          seen = Math.max(seen, total);
+        try {
+          const response = await sessions[w].fetch(pathname);
+          const body = await response.text();
+          answered++;
+          if (response.status !== 200) failures.push(`${web.baseUrl}${pathname}: ${response.status} ${body.slice(0, 200)}`);
+          else if (i % 2 === 0) {
+            const total = (JSON.parse(body) as { items: unknown[] }).items.length;
+            if (total < seen) failures.push(`${web.baseUrl} showed ${total} alerts after ${seen}`);
+            seen = Math.max(seen, total);
+          }
+        } catch (error) {
+          failures.push(`${web.baseUrl}${pathname}: ${String(error)}`);
         }
         await new Promise((r) => setTimeout(r, 100));
       }
