@@ -43,10 +43,15 @@ export async function generatePortfolio(dataDir: string, password: string, shape
   const { sqlDate } = await import('@/lib/db/sql-date');
   const { INDICATOR_NAMES } = await import('@/lib/engine/settings');
   const { DISMISS_REASONS } = await import('@/lib/schemas/alert');
+  const { isPostgres } = await import('@/lib/db/dialect');
 
   await migrateUp();
   await seedIfEmpty({ demo: false, password });
   const sequelize = await db();
+  // The few forms the two databases spell differently (the rest is written once: TRUE/FALSE, CAST AS BIGINT).
+  const postgres = isPostgres(sequelize);
+  const threeDigits = (column: string) => (postgres ? `lpad(${column}::text, 3, '0')` : `printf('%03d', ${column})`);
+  const uniform = postgres ? 'random()' : '(abs(random()) % 100000) / 100000.0';
   const now = Date.now();
   const end = Math.floor(now / DAY_MS) * DAY_MS;
   const start = end - (OBSERVATIONS_PER_SERIES - 1) * DAY_MS;
@@ -60,16 +65,16 @@ export async function generatePortfolio(dataDir: string, password: string, shape
       `WITH RECURSIVE k(i) AS (SELECT 1 UNION ALL SELECT i + 1 FROM k WHERE i < :n)
        INSERT INTO series (slug, name, site, unit, description, interval_ms, time_zone, csv_mapping, settings, duplicate_policy,
                            needs_analysis, data_changed_at, created_at, updated_at)
-       SELECT printf('portfolio-%03d', i), printf('Station %03d', i), printf('Site %d', i % 40), 'm', '', :interval, 'UTC',
-              :mapping, :settings, 'reject', 0, :stamp, :stamp, :stamp FROM k`,
+       SELECT 'portfolio-' || ${threeDigits('i')}, 'Station ' || ${threeDigits('i')}, 'Site ' || (i % 40), 'm', '', :interval, 'UTC',
+              :mapping, :settings, 'reject', FALSE, :stamp, :stamp, :stamp FROM k`,
       { n: SERIES, interval: DAY_MS, mapping: JSON.stringify(defaults.csvMapping), settings: JSON.stringify(defaults.settings), stamp },
     );
-    // An AR(1)-like walk per series would need a loop; a seasonal term plus uniform noise from SQLite's random()
+    // An AR(1)-like walk per series would need a loop; a seasonal term plus uniform noise from the database's random()
     // gives every series a different, non-constant record, which is all page latency depends on.
     await q(
       `WITH RECURSIVE k(i) AS (SELECT 0 UNION ALL SELECT i + 1 FROM k WHERE i < :last)
        INSERT INTO observations (series_id, t, value)
-       SELECT s.id, :start + k.i * :day, 10.0 + (k.i % 365) / 365.0 + (abs(random()) % 100000) / 100000.0
+       SELECT s.id, :start + k.i * CAST(:day AS BIGINT), 10.0 + (k.i % 365) / 365.0 + ${uniform}
        FROM series s CROSS JOIN k`,
       { last: OBSERVATIONS_PER_SERIES - 1, start, day: DAY_MS },
     );
@@ -88,7 +93,7 @@ export async function generatePortfolio(dataDir: string, password: string, shape
     for (const [k, indicator] of indicators.entries()) {
       await q(
         `INSERT INTO alert_rules (series_id, indicator, min_tau, persistence, severity, quiet_period_hours, active, level_direction, created_at, updated_at)
-         SELECT id, :indicator, 0.3, 1, :severity, 0, 1, 'above', :stamp, :stamp FROM series ORDER BY id`,
+         SELECT id, :indicator, 0.3, 1, :severity, 0, TRUE, 'above', :stamp, :stamp FROM series ORDER BY id`,
         { indicator, severity: k % 2 ? 'watch' : 'warning', stamp: sqlDate(start) },
       );
     }
@@ -105,7 +110,7 @@ export async function generatePortfolio(dataDir: string, password: string, shape
     );
     await q(
       `INSERT INTO rule_evaluations (rule_id, series_id, snapshot_id, tau, kendall_p, surrogate_p, passed, streak, outcome, created_at, updated_at)
-       SELECT r.id, r.series_id, a.id, 0.45, 0.001, 0.02, 1, 1, 'open', a.created_at, a.created_at
+       SELECT r.id, r.series_id, a.id, 0.45, 0.001, 0.02, TRUE, 1, 'open', a.created_at, a.created_at
        FROM alert_rules r JOIN analysis_snapshots a ON a.series_id = r.series_id`,
     );
   });
