@@ -87,7 +87,7 @@ export interface SiteEvaluationReport {
  * index of site_rule_evaluations; a pair already judged, by this or another scheduler, is passed over), so a
  * scheduler that died between computing a site snapshot and judging it is made good by the next cycle. Each pair
  * is judged in its own transaction with the alert it opens or extends and the mail and webhook it queues. A failed
- * site computation is recorded as cannot-judge and breaks the streak. Two queries plus O(1) per rule.
+ * site computation is recorded as cannot-judge and breaks the streak. Four queries plus O(1) per rule judged.
  */
 export async function evaluateSiteRules(now = new Date()): Promise<SiteEvaluationReport> {
   const report: SiteEvaluationReport = { evaluated: 0, opened: [], updated: [] };
@@ -105,10 +105,16 @@ export async function evaluateSiteRules(now = new Date()): Promise<SiteEvaluatio
     attributes: { exclude: ['curves'] },
   });
   const snapshotOf = new Map(snapshots.map((s) => [s.siteId, s]));
+  // Pairs judged already are passed over before taking the write lock; the check inside the transaction settles races.
+  const judged = await SiteRuleEvaluation.findAll({
+    where: { ruleId: { [Op.in]: rules.map((r) => r.id) }, siteSnapshotId: { [Op.in]: snapshots.map((s) => s.id) } },
+    attributes: ['ruleId', 'siteSnapshotId'],
+  });
+  const done = new Set(judged.map((e) => `${e.ruleId}:${e.siteSnapshotId}`));
   for (const rule of rules) {
     const snapshot = snapshotOf.get(rule.siteId!);
     const site = siteById.get(rule.siteId!);
-    if (!snapshot || !site) continue;
+    if (!snapshot || !site || done.has(`${rule.id}:${snapshot.id}`)) continue;
     const judgement: Judgement =
       snapshot.status === 'ok'
         ? judgeRule(rule, siteSummaryForRules(snapshot.summary as SiteAnalysisSummary, snapshot.dataTo))
