@@ -142,9 +142,11 @@ export function AlertQueue({
         <Field label="Kind" tone="filter">
           <select className={CONTROL} value={filters.kind} onChange={(e) => update({ kind: e.target.value as QueueFilters['kind'] })}>
             <option value="">Any kind</option>
-            <option value="slowing-down">Slowing down</option>
-            <option value="abrupt-shift">Abrupt shift</option>
-            <option value="data-late">Data late</option>
+            {Object.entries(KIND_WORDS).map(([kind, words]) => (
+              <option key={kind} value={kind}>
+                {words[0].toUpperCase() + words.slice(1)}
+              </option>
+            ))}
           </select>
         </Field>
         <Field label="Age" tone="filter">
