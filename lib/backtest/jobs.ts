@@ -83,6 +83,10 @@ export async function requestBacktest(ruleId: number, request: BacktestRequest, 
   await db();
   const rule = await AlertRule.findByPk(ruleId);
   if (!rule) throw new NotFoundError('Rule');
+  if (rule.siteId !== null)
+    throw new UnprocessableError('A site rule judges the site’s series together; a backtest replays one series, so it cannot replay this rule.', {
+      _: ['site rules have no backtest'],
+    });
   let seriesId = rule.seriesId;
   if (request.series !== undefined) {
     const series = await findSeriesBySlug(request.series);

@@ -19,6 +19,7 @@ const { setWatch } = await import('@/lib/mail/watches');
 const { fetchSitePage } = await import('@/lib/sites/page-data');
 const { alertQueueSchema } = await import('@/lib/schemas/alert');
 const { simulateAr1 } = await import('@/lib/demo/models');
+const { requestBacktest } = await import('@/lib/backtest/jobs');
 
 const HOUR = 3_600_000;
 const T0 = Date.UTC(2024, 0, 1);
@@ -74,6 +75,8 @@ describe('rules on the site-level indicators', () => {
     // 199 surrogates give p ≥ 1/200, so p ≤ 0.001 can never hold: judged, not met
     const never = await createSiteRule(siteId, { indicator: 'maf-ac1', minTau: -1, maxSurrogateP: 0.001 }, lead);
     expect((await listRules(null)).map((r) => r.id)).not.toContain(rule.id);
+    // a backtest replays one series, which a site rule is not on
+    await expect(requestBacktest(rule.id, { series: 'upper' } as never, lead)).rejects.toThrow(/replays one series/);
 
     await runAnalysisCycle();
     const first = await SiteSnapshot.findOne({ where: { siteId }, order: [['id', 'DESC']] });
