@@ -3,7 +3,7 @@ import { QueryTypes } from 'sequelize';
 import { AnalysisSnapshot, Series, db } from '@/models';
 import { ANALYSIS_CAUTION, type AnalysisSettings, type RecordBreak } from '@/lib/engine';
 import { ENGINE_VERSION } from '@/lib/engine/version';
-import { formatInstant } from '@/lib/intake/time-formats';
+import { civilFromDays, formatInstant } from '@/lib/intake/time-formats';
 import { ConflictError, NotFoundError } from '@/lib/http/errors';
 import { analysisFileName, reproduceCommand, type SnapshotProvenance } from './provenance-record';
 import { flagsLeftOutOf, loadObservations, rowsOf } from './observations';
@@ -16,26 +16,83 @@ import { flagsLeftOutOf, loadObservations, rowsOf } from './observations';
  * UTF-8. It is also the body of the download, so `grep -v '^#' FILE | sha256sum` checks a download. O(n).
  */
 export function canonicalObservationsCsv(time: Float64Array, value: Float64Array): string {
-  const lines = new Array<string>(time.length + 1);
-  lines[0] = 'time,value';
-  for (let i = 0; i < time.length; i++) lines[i + 1] = `${instantText(time[i])},${String(value[i])}`;
-  return `${lines.join('\n')}\n`;
+  return canonicalObservationsBytes(time, value).toString('utf8');
 }
 
-/** Latest instant a Date holds (ECMA-262 §21.4.1.22, time values within ±8.64e15 ms). */
-const DATE_LIMIT_MS = 8.64e15;
+const DAY_MS = 86_400_000;
+const [HYPHEN, T, COLON, POINT, Z, COMMA, NEWLINE] = Array.from('-T:.Z,\n', (c) => c.charCodeAt(0));
 
 /**
- * formatInstant's text, through the platform's Date.prototype.toISOString where that gives the same (whole
- * milliseconds a Date holds: ISO 8601 with milliseconds, the expanded ±YYYYYY year outside 0000–9999, ECMA-262
- * §21.4.4.36), about twice as fast on a long record; formatInstant itself elsewhere (deep time, fractions of a ms).
+ * canonicalObservationsCsv's text as its UTF-8 bytes, which is what the hash reads. Written byte by byte into one
+ * buffer, about twice as fast on a long record as joining a string per line (measured on 10,000 daily points) (every analysis hashes its whole
+ * record): a whole-millisecond instant in the years 0000–9999 digit by digit from its civil date (`civilFromDays`,
+ * once per day), any other instant by formatInstant; the value's Number::toString is ASCII. O(n).
  */
-function instantText(t: number): string {
-  return Number.isInteger(t) && Math.abs(t) <= DATE_LIMIT_MS ? new Date(t).toISOString() : formatInstant(t);
+export function canonicalObservationsBytes(time: Float64Array, value: Float64Array): Buffer {
+  let out = Buffer.allocUnsafe(16 + time.length * 50);
+  let at = out.write('time,value\n', 0, 'utf8');
+  const room = (bytes: number) => {
+    if (at + bytes <= out.length) return;
+    const larger = Buffer.allocUnsafe(Math.max(2 * out.length, at + bytes));
+    out.copy(larger, 0, 0, at);
+    out = larger;
+  };
+  // Two decimal digits of 0 ≤ v < 100 and one character, each written in place.
+  const pair = (v: number) => {
+    out[at++] = 48 + ((v / 10) | 0);
+    out[at++] = 48 + (v % 10);
+  };
+  const byte = (code: number) => (out[at++] = code);
+  let day = Number.NaN;
+  let civil: [number, number, number] = [0, 0, 0];
+  for (let i = 0; i < time.length; i++) {
+    const t = time[i];
+    const text = String(value[i]);
+    const days = Math.floor(t / DAY_MS);
+    if (days !== day) {
+      day = days;
+      civil = civilFromDays(days);
+    }
+    const [year, month, date] = civil;
+    if (Number.isInteger(t) && year >= 0 && year <= 9999) {
+      room(26 + text.length);
+      let rest = t - days * DAY_MS;
+      const hour = Math.floor(rest / 3_600_000);
+      rest -= hour * 3_600_000;
+      const minute = Math.floor(rest / 60_000);
+      rest -= minute * 60_000;
+      const second = Math.floor(rest / 1000);
+      pair((year / 100) | 0);
+      pair(year % 100);
+      byte(HYPHEN);
+      pair(month);
+      byte(HYPHEN);
+      pair(date);
+      byte(T);
+      pair(hour);
+      byte(COLON);
+      pair(minute);
+      byte(COLON);
+      pair(second);
+      byte(POINT);
+      const milli = rest - second * 1000;
+      byte(48 + ((milli / 100) | 0));
+      pair(milli % 100);
+      byte(Z);
+    } else {
+      const instant = formatInstant(t);
+      room(Buffer.byteLength(instant, 'utf8') + 2 + text.length);
+      at += out.write(instant, at, 'utf8');
+    }
+    byte(COMMA);
+    for (let k = 0; k < text.length; k++) out[at++] = text.charCodeAt(k);
+    byte(NEWLINE);
+  }
+  return out.subarray(0, at);
 }
 
-function sha256Hex(text: string): string {
-  return createHash('sha256').update(text, 'utf8').digest('hex');
+function sha256Hex(data: string | Buffer): string {
+  return createHash('sha256').update(data).digest('hex');
 }
 
 /**
@@ -72,7 +129,7 @@ export async function provenanceOf(
   const runs = n ? await contributingRuns(seriesId, observations.time[0], observations.time[n - 1], input.version) : { ingestRuns: [], rowsWithoutRun: 0 };
   return {
     dataVersion: input.dataVersion,
-    dataSha256: sha256Hex(canonicalObservationsCsv(observations.time, observations.value)),
+    dataSha256: sha256Hex(canonicalObservationsBytes(observations.time, observations.value)),
     canonicalForm: 'brinkwatch-observations-csv-v1',
     rows: n,
     ...runs,
