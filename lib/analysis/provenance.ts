@@ -20,7 +20,7 @@ export function canonicalObservationsCsv(time: Float64Array, value: Float64Array
 }
 
 const DAY_MS = 86_400_000;
-const [HYPHEN, T, COLON, POINT, Z, COMMA, NEWLINE] = Array.from('-T:.Z,\n', (c) => c.charCodeAt(0));
+const [ZERO, HYPHEN, T, COLON, POINT, Z, COMMA, NEWLINE] = Array.from('0-T:.Z,\n', (c) => c.charCodeAt(0));
 
 /**
  * canonicalObservationsCsv's text as its UTF-8 bytes, which is what the hash reads. Written byte by byte into one
@@ -31,18 +31,6 @@ const [HYPHEN, T, COLON, POINT, Z, COMMA, NEWLINE] = Array.from('-T:.Z,\n', (c) 
 export function canonicalObservationsBytes(time: Float64Array, value: Float64Array): Buffer {
   let out = Buffer.allocUnsafe(16 + time.length * 50);
   let at = out.write('time,value\n', 0, 'utf8');
-  const room = (bytes: number) => {
-    if (at + bytes <= out.length) return;
-    const larger = Buffer.allocUnsafe(Math.max(2 * out.length, at + bytes));
-    out.copy(larger, 0, 0, at);
-    out = larger;
-  };
-  // Two decimal digits of 0 ≤ v < 100 and one character, each written in place.
-  const pair = (v: number) => {
-    out[at++] = 48 + ((v / 10) | 0);
-    out[at++] = 48 + (v % 10);
-  };
-  const byte = (code: number) => (out[at++] = code);
   let day = Number.NaN;
   let civil: [number, number, number] = [0, 0, 0];
   for (let i = 0; i < time.length; i++) {
@@ -54,41 +42,51 @@ export function canonicalObservationsBytes(time: Float64Array, value: Float64Arr
       civil = civilFromDays(days);
     }
     const [year, month, date] = civil;
-    if (Number.isInteger(t) && year >= 0 && year <= 9999) {
-      room(26 + text.length);
+    const fast = Number.isInteger(t) && year >= 0 && year <= 9999;
+    const instant = fast ? '' : formatInstant(t);
+    const bytes = (fast ? 24 : Buffer.byteLength(instant, 'utf8')) + 2 + text.length;
+    if (at + bytes > out.length) {
+      const larger = Buffer.allocUnsafe(Math.max(2 * out.length, at + bytes));
+      out.copy(larger, 0, 0, at);
+      out = larger;
+    }
+    if (fast) {
       let rest = t - days * DAY_MS;
       const hour = Math.floor(rest / 3_600_000);
       rest -= hour * 3_600_000;
       const minute = Math.floor(rest / 60_000);
       rest -= minute * 60_000;
       const second = Math.floor(rest / 1000);
-      pair((year / 100) | 0);
-      pair(year % 100);
-      byte(HYPHEN);
-      pair(month);
-      byte(HYPHEN);
-      pair(date);
-      byte(T);
-      pair(hour);
-      byte(COLON);
-      pair(minute);
-      byte(COLON);
-      pair(second);
-      byte(POINT);
       const milli = rest - second * 1000;
-      byte(48 + ((milli / 100) | 0));
-      pair(milli % 100);
-      byte(Z);
-    } else {
-      const instant = formatInstant(t);
-      room(Buffer.byteLength(instant, 'utf8') + 2 + text.length);
-      at += out.write(instant, at, 'utf8');
-    }
-    byte(COMMA);
+      at = twoDigits(out, at, Math.floor(year / 100));
+      at = twoDigits(out, at, year % 100);
+      out[at++] = HYPHEN;
+      at = twoDigits(out, at, month);
+      out[at++] = HYPHEN;
+      at = twoDigits(out, at, date);
+      out[at++] = T;
+      at = twoDigits(out, at, hour);
+      out[at++] = COLON;
+      at = twoDigits(out, at, minute);
+      out[at++] = COLON;
+      at = twoDigits(out, at, second);
+      out[at++] = POINT;
+      out[at++] = ZERO + Math.floor(milli / 100);
+      at = twoDigits(out, at, milli % 100);
+      out[at++] = Z;
+    } else at += out.write(instant, at, 'utf8');
+    out[at++] = COMMA;
     for (let k = 0; k < text.length; k++) out[at++] = text.charCodeAt(k);
-    byte(NEWLINE);
+    out[at++] = NEWLINE;
   }
   return out.subarray(0, at);
+}
+
+/** Writes the two decimal digits of 0 ≤ v < 100 at `at`; returns the position after them. */
+function twoDigits(out: Buffer, at: number, v: number): number {
+  out[at] = ZERO + Math.floor(v / 10);
+  out[at + 1] = ZERO + (v % 10);
+  return at + 2;
 }
 
 function sha256Hex(data: string | Buffer): string {
