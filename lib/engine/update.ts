@@ -59,8 +59,11 @@ export interface AnalysisState {
   companions: Record<string, Record<string, Float64Array>>;
   /** each indicator's values at the last R residual positions (R = detrendReach), the ones an update recomputes */
   tails: Record<string, Float64Array>;
-  /** Kendall's S (concordant − discordant pairs) of each indicator's finite values in time order */
-  kendallS: Record<string, number>;
+  /**
+   * Kendall's S (concordant − discordant pairs) of each indicator's finite values in time order; null for one whose
+   * τ an update took from the indicator it is a monotone transform of (reusedTrends), so its own S was not counted
+   */
+  kendallS: Record<string, number | null>;
   /** the surrogate taus kept, with the record they were drawn on and each indicator's τ then */
   surrogates: {
     method: SurrogateMethod;
@@ -154,7 +157,7 @@ function stateOf(frame: AnalysisFrame, settings: AnalysisSettings, result: Analy
   for (const [name, byName] of Object.entries(result.companions)) {
     companions[name] = Object.fromEntries(Object.entries(byName!).map(([k, a]) => [k, toTyped(a)]));
   }
-  const kendallS: Record<string, number> = {};
+  const kendallS: Record<string, number | null> = {};
   for (const name of settings.indicators) kendallS[name] = kendallCounts(null, finiteValues(indicators[name]!)).s;
   const reach = detrendReach(settings, frame.h);
   const skipCovered = keptWindows(frame.n, reach, frame.w);
@@ -382,14 +385,19 @@ export async function updateAnalysis(
     const extra = tailCompanions[name];
     if (extra) companions[name] = Object.fromEntries(Object.entries(extra).map(([k, a]) => [k, splice(previous.companions[name][k], a, start)]));
   }
-  const kendallS: Record<string, number> = {};
+  // An indicator whose τ is its base's (sd of variance, recovery of ac1) needs no count of its own now; a later update
+  // that cannot reuse it counts its S afresh (continuedKendall from an empty prefix), the same integer.
+  const reused = reusedTrends(values);
+  const none = new Float64Array(0);
+  const kendallS: Record<string, number | null> = {};
   const tallies: Record<string, ReturnType<typeof continuedKendall>> = {};
   for (const name of names) {
     const now = values[name]!;
-    tallies[name] = continuedKendall(now.subarray(0, c), previous.tails[name], previous.kendallS[name], now.subarray(c));
-    kendallS[name] = tallies[name].s;
+    const oldS = previous.kendallS[name];
+    if (reused.has(name)) kendallS[name] = null;
+    else if (oldS === null) kendallS[name] = (tallies[name] = continuedKendall(none, none, 0, now)).s;
+    else kendallS[name] = (tallies[name] = continuedKendall(now.subarray(0, c), previous.tails[name], oldS, now.subarray(c))).s;
   }
-  const reused = reusedTrends(values);
   const kendall: AnalysisResult['kendall'] = {};
   for (const name of names) {
     const via = reused.get(name);

@@ -118,6 +118,21 @@ describe('incremental analysis agrees with a full recomputation (1e-9)', () => {
     }
   });
 
+  it('an indicator whose S was not counted (its τ was taken from its base) is counted afresh, to the same τ', async () => {
+    const settings = analysisSettingsSchema.parse({ detrend: 'gaussian', bandwidth: '12 points', window: '60 points', indicators: ['variance', 'sd', 'ac1'] });
+    const r = record(420, 23);
+    const first = await updateAnalysis(prefix(r, 400), settings, null, { parallel: false });
+    const update = await updateAnalysis(prefix(r, 401), settings, first.state, { parallel: false });
+    expect(update.state!.kendallS.sd).toBeNull();
+    expect(update.state!.kendallS.variance).toEqual(expect.any(Number));
+    // As when reuse stops (recovery once ac1 ≤ 0 somewhere): ac1 has no S kept and must be counted afresh.
+    const withoutS = { ...update.state!, kendallS: { ...update.state!.kendallS, ac1: null } };
+    const next = await updateAnalysis(prefix(r, 403), settings, withoutS, { parallel: false });
+    expect(next.how.mode).toBe('incremental');
+    expectSameAnalysis(next.result, await runAnalysis(prefix(r, 403), settings, { parallel: false }), settings, 'same');
+    expect(next.state!.kendallS.ac1).toBe((await updateAnalysis(prefix(r, 403), settings, update.state, { parallel: false })).state!.kendallS.ac1);
+  });
+
   it('a new point after a missing day: the interpolated point and the new one are appended', async () => {
     const settings = analysisSettingsSchema.parse({ detrend: 'gaussian', bandwidth: '10 points', window: '40 points' });
     const r = record(300, 5);
