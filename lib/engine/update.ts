@@ -5,13 +5,13 @@ import {
   assembleResult,
   kendallEntry,
   significanceEntry,
-  indicatorArrays,
   type AnalysisFrame,
   type AnalysisInput,
   type AnalysisResult,
   type StretchStart,
 } from './analyze';
 import { detrend, GAUSS_REACH, residualAbout } from './detrend';
+import { indicatorArrays } from './indicator-arrays';
 import { indicatorDefinition } from './indicators';
 import { kendallCounts, reusedTrends } from './kendall';
 import { rollingIndicators, type IndicatorCompanions } from './rolling';
