@@ -3,7 +3,7 @@ import { QueryTypes } from 'sequelize';
 import { AnalysisSnapshot, Series, db } from '@/models';
 import { ANALYSIS_CAUTION, type AnalysisSettings, type RecordBreak } from '@/lib/engine';
 import { ENGINE_VERSION } from '@/lib/engine/version';
-import { civilFromDays, formatInstant } from '@/lib/intake/time-formats';
+import { civilFromDays, clockOf, formatInstant } from '@/lib/intake/time-formats';
 import { ConflictError, NotFoundError } from '@/lib/http/errors';
 import { analysisFileName, reproduceCommand, type SnapshotProvenance } from './provenance-record';
 import { flagsLeftOutOf, loadObservations, rowsOf } from './observations';
@@ -19,14 +19,14 @@ export function canonicalObservationsCsv(time: Float64Array, value: Float64Array
   return canonicalObservationsBytes(time, value).toString('utf8');
 }
 
-const DAY_MS = 86_400_000;
 const [ZERO, HYPHEN, T, COLON, POINT, Z, COMMA, NEWLINE] = Array.from('0-T:.Z,\n', (c) => c.charCodeAt(0));
 
 /**
- * canonicalObservationsCsv's text as its UTF-8 bytes, which is what the hash reads. Written byte by byte into one
- * buffer, about twice as fast on a long record as joining a string per line (measured on 10,000 daily points) (every analysis hashes its whole
- * record): a whole-millisecond instant in the years 0000–9999 digit by digit from its civil date (`civilFromDays`,
- * once per day), any other instant by formatInstant; the value's Number::toString is ASCII. O(n).
+ * canonicalObservationsCsv's text as its UTF-8 bytes, which is what the hash reads. Every analysis hashes its whole
+ * record, so the bytes are written one by one into one buffer, about twice as fast as joining a string per line
+ * (measured on 10,000 daily points): a whole-millisecond instant in the years 0000–9999 digit by digit from its civil
+ * date (`civilFromDays`, once per day) and time of day (`clockOf`, as formatInstant), any other instant by
+ * formatInstant; the value's Number::toString is ASCII. O(n).
  */
 export function canonicalObservationsBytes(time: Float64Array, value: Float64Array): Buffer {
   let out = Buffer.allocUnsafe(16 + time.length * 50);
@@ -36,7 +36,7 @@ export function canonicalObservationsBytes(time: Float64Array, value: Float64Arr
   for (let i = 0; i < time.length; i++) {
     const t = time[i];
     const text = String(value[i]);
-    const days = Math.floor(t / DAY_MS);
+    const { days, hour, minute, second, milli } = clockOf(t);
     if (days !== day) {
       day = days;
       civil = civilFromDays(days);
@@ -51,13 +51,6 @@ export function canonicalObservationsBytes(time: Float64Array, value: Float64Arr
       out = larger;
     }
     if (fast) {
-      let rest = t - days * DAY_MS;
-      const hour = Math.floor(rest / 3_600_000);
-      rest -= hour * 3_600_000;
-      const minute = Math.floor(rest / 60_000);
-      rest -= minute * 60_000;
-      const second = Math.floor(rest / 1000);
-      const milli = rest - second * 1000;
       at = twoDigits(out, at, Math.floor(year / 100));
       at = twoDigits(out, at, year % 100);
       out[at++] = HYPHEN;
