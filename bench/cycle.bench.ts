@@ -29,6 +29,8 @@ interface ChildResult {
   analysed: number;
   incremental: number;
   ms: number;
+  /** CPU time of the process during the cycle, all threads */
+  cpuMs: number;
 }
 
 /** Scheduler processes (bench/cycle-child.ts) kept running across cycles, as a scheduler is. */
@@ -69,12 +71,13 @@ async function schedulers(dataDir: string, processes: number) {
   for (const c of children) while ((await c.nextLine()) !== 'ready');
   return {
     /** One cycle in every process at once; the wall time is from the start to the last answer. */
-    async cycle(env: Record<string, string> = {}): Promise<{ ms: number; analysed: number; incremental: number }> {
+    async cycle(env: Record<string, string> = {}): Promise<{ ms: number; cpuMs: number; analysed: number; incremental: number }> {
       const t0 = performance.now();
       for (const c of children) c.child.stdin.write(`${JSON.stringify(env)}\n`);
       const results = (await Promise.all(children.map((c) => c.nextLine()))).map((l) => JSON.parse(l) as ChildResult);
       return {
         ms: performance.now() - t0,
+        cpuMs: results.reduce((sum, r) => sum + r.cpuMs, 0),
         analysed: results.reduce((sum, r) => sum + r.analysed, 0),
         incremental: results.reduce((sum, r) => sum + r.incremental, 0),
       };
@@ -136,12 +139,14 @@ export async function run(): Promise<BenchRow[]> {
     await newPoint();
     await set.cycle();
     const incrementalTimes: number[] = [];
+    const incrementalCpu: number[] = [];
     let updated = 0;
     for (let k = 0; k < 3; k++) {
       await newPoint();
       const incremental = await set.cycle();
       if (incremental.analysed !== SERIES) throw new Error(`an incremental cycle analysed ${incremental.analysed} of ${SERIES} series`);
       incrementalTimes.push(incremental.ms);
+      incrementalCpu.push(incremental.cpuMs);
       updated = incremental.incremental;
     }
     // Full: surrogates redrawn at every new point (ANALYSIS_NULL_REFRESH_POINTS=1) is a full recomputation that, like
@@ -164,6 +169,7 @@ export async function run(): Promise<BenchRow[]> {
       note: `${note}; median of 3; ${updated} of ${SERIES} updated incrementally`,
     });
     const speedUp = full.ms / incremental;
+    const cpuIncremental = median(incrementalCpu);
     rows.push({
       case: `incremental speed-up, ${who}`,
       n: SERIES,
@@ -172,6 +178,20 @@ export async function run(): Promise<BenchRow[]> {
       target: '≥ 10×',
       pass: speedUp >= 10,
       note: 'full ÷ incremental wall time',
+    });
+    rows.push({
+      case: `incremental CPU time per series, ${who}`,
+      n: SERIES,
+      value: cpuIncremental / SERIES,
+      unit: 'ms',
+      note: `CPU of the scheduler processes (all threads) ÷ series; full: ${(full.cpuMs / SERIES).toFixed(0)} ms per series`,
+    });
+    rows.push({
+      case: `incremental CPU saving, ${who}`,
+      n: SERIES,
+      value: full.cpuMs / cpuIncremental,
+      unit: '×',
+      note: 'full ÷ incremental CPU time: less swayed by other work on a shared machine than the wall times',
     });
   }
   rows.push({

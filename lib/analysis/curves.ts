@@ -1,4 +1,6 @@
 import type { AnalysisResult } from '@/lib/engine/analyze';
+import { indicatorArrays } from '@/lib/engine/indicator-arrays';
+import type { IndicatorName } from '@/lib/engine/settings';
 
 /**
  * The per-point curves an analysis keeps for its charts, thinned to a bounded number of points. Pure; shared by
@@ -86,21 +88,24 @@ export function thinIndicator(values: ArrayLike<number | null | undefined>, indi
 export function curvesOf(result: AnalysisResult, max = MAX_CURVE_POINTS): SnapshotCurves {
   const { stride, indices } = thinnedIndices(result.series.time.length, max);
   const pick = (source: ArrayLike<number>) => indices.map((i) => finite(source[i]));
+  // The typed arrays (NaN where none), not the result's nullable copies, which a snapshot would build only to thin.
+  const typed = indicatorArrays(result);
   const indicators: SnapshotCurves['indicators'] = {};
   const evaluatedEvery: Record<string, number> = {};
-  for (const [name, values] of Object.entries(result.indicators)) {
-    const every = result.evaluatedEvery[name as keyof typeof result.evaluatedEvery] ?? 1;
+  for (const name of Object.keys(result.indicators) as IndicatorName[]) {
+    const every = result.evaluatedEvery[name] ?? 1;
     if (every > 1) evaluatedEvery[name] = every;
-    indicators[name] = thinIndicator(values!, indices, every);
+    indicators[name] = every > 1 ? thinIndicator(typed[name]!, indices, every) : pick(typed[name]!);
   }
   const bands: NonNullable<SnapshotCurves['bands']> = {};
-  for (const [name, byName] of Object.entries(result.companions)) {
+  for (const [name, byName] of Object.entries(result.companions) as [IndicatorName, Record<string, (number | null)[]>][]) {
     const se = byName?.[STANDARD_ERROR];
-    const values = result.indicators[name as keyof typeof result.indicators];
+    const values = typed[name];
     if (!se || !values) continue;
-    const every = result.evaluatedEvery[name as keyof typeof result.evaluatedEvery] ?? 1;
-    // Both edges are finite exactly where value and SE are, so a sparse indicator's edges come from the same window.
-    const edge = (sign: number) => Array.from(values, (v, i) => (v === null || se[i] === null ? Number.NaN : v + sign * SE_BAND_Z * se[i]!));
+    const every = result.evaluatedEvery[name] ?? 1;
+    // Both edges are finite exactly where value and SE are (NaN where either is none), so a sparse indicator's edges
+    // come from the same window.
+    const edge = (sign: number) => Array.from(values, (v, i) => (se[i] === null ? Number.NaN : v + sign * SE_BAND_Z * se[i]!));
     bands[name] = { lower: thinIndicator(edge(-1), indices, every), upper: thinIndicator(edge(1), indices, every) };
   }
   const surrogateTaus: SnapshotCurves['surrogateTaus'] = {};

@@ -99,9 +99,14 @@ async function readPacked(connection: RawSql, seriesId: number, range: Observati
   if (leaveOut) clauses.push(`flag NOT IN (${leaveOut.map(Number).join(',')})`);
   const withFlag = leaveOut === null;
   const record = withFlag ? "t || ',' || CAST(value AS TEXT) || ',' || flag" : "t || ',' || CAST(value AS TEXT)";
-  const concat = isPostgres(await db()) ? 'string_agg' : 'group_concat';
+  const postgres = isPostgres(await db());
+  const concat = postgres ? 'string_agg' : 'group_concat';
   // The first page has no lower bound; each later one starts after the last instant of the one before (keyset paging).
-  const sql = (paging: boolean) => `SELECT COUNT(*) AS n, MAX(t) AS last, ${concat}(${record}, ';' ORDER BY t) AS packed
+  // SQLite concatenates the page's rows in the order its subquery gives them, but only an ORDER BY inside the
+  // aggregate promises that order, and that one sorts the page again (two thirds of the read of 10,000 rows). So
+  // SQLite's page is read without it and checked: instants strictly increasing (they are unique per series), else
+  // read again with it.
+  const sql = (paging: boolean, sorted: boolean) => `SELECT COUNT(*) AS n, MAX(t) AS last, ${concat}(${record}, ';'${sorted ? ' ORDER BY t' : ''}) AS packed
     FROM (SELECT t, value, flag FROM ${rowsOf(range)} WHERE ${[...clauses, ...(paging ? ['t > ?'] : [])].join(' AND ')} ORDER BY t LIMIT ?) AS page`;
   const times: Float64Array[] = [];
   const values: Float64Array[] = [];
@@ -111,35 +116,48 @@ async function readPacked(connection: RawSql, seriesId: number, range: Observati
   for (;;) {
     const want = Math.min(PACKED_ROWS, range.limit === undefined ? PACKED_ROWS : range.limit - total);
     if (want <= 0) break;
-    const [chunk]: { n: number; last: number | null; packed: string | null }[] = await connection.all(
-      sql(after !== null),
-      after === null ? [...bounds, want] : [...bounds, after, want],
-    );
-    if (!chunk.n || chunk.packed === null) break;
-    const records = chunk.packed.split(';');
-    const time = new Float64Array(records.length);
-    const value = new Float64Array(records.length);
-    const flag = withFlag ? new Uint8Array(records.length) : null;
-    for (let i = 0; i < records.length; i++) {
-      const text = records[i];
-      const comma = text.indexOf(',');
-      time[i] = Number(text.slice(0, comma));
-      if (flag) {
-        const second = text.lastIndexOf(',');
-        value[i] = Number(text.slice(comma + 1, second));
-        flag[i] = Number(text.slice(second + 1));
-      } else {
-        value[i] = Number(text.slice(comma + 1));
-      }
-    }
+    const page = async (sorted: boolean) => {
+      const [chunk]: { n: number; last: number | null; packed: string | null }[] = await connection.all(
+        sql(after !== null, sorted),
+        after === null ? [...bounds, want] : [...bounds, after, want],
+      );
+      return chunk.n && chunk.packed !== null ? { ...unpackPage(chunk.packed, withFlag), last: chunk.last } : null;
+    };
+    let chunk = await page(postgres);
+    if (chunk && !chunk.increasing) chunk = await page(true);
+    if (!chunk) break;
+    const { time, value, flag } = chunk;
     times.push(time);
     values.push(value);
     if (flag) flags.push(flag);
-    total += records.length;
+    total += time.length;
     after = Number(chunk.last);
-    if (records.length < want) break;
+    if (time.length < want) break;
   }
   return { time: joined(times, Float64Array, total), value: joined(values, Float64Array, total), flag: withFlag ? joined(flags, Uint8Array, total) : null };
+}
+
+/** The rows of one packed page (`t,value[,flag];…`) as typed arrays, and whether its instants strictly increase. O(rows). */
+export function unpackPage(packed: string, withFlag: boolean) {
+  const records = packed.split(';');
+  const time = new Float64Array(records.length);
+  const value = new Float64Array(records.length);
+  const flag = withFlag ? new Uint8Array(records.length) : null;
+  let increasing = true;
+  for (let i = 0; i < records.length; i++) {
+    const text = records[i];
+    const comma = text.indexOf(',');
+    time[i] = Number(text.slice(0, comma));
+    if (i > 0 && !(time[i] > time[i - 1])) increasing = false;
+    if (flag) {
+      const second = text.lastIndexOf(',');
+      value[i] = Number(text.slice(comma + 1, second));
+      flag[i] = Number(text.slice(second + 1));
+    } else {
+      value[i] = Number(text.slice(comma + 1));
+    }
+  }
+  return { time, value, flag, increasing };
 }
 
 function joined<A extends Float64Array | Uint8Array>(parts: A[], Kind: new (n: number) => A, total: number): A {

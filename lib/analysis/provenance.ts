@@ -3,7 +3,7 @@ import { QueryTypes } from 'sequelize';
 import { AnalysisSnapshot, Series, db } from '@/models';
 import { ANALYSIS_CAUTION, type AnalysisSettings, type RecordBreak } from '@/lib/engine';
 import { ENGINE_VERSION } from '@/lib/engine/version';
-import { formatInstant } from '@/lib/intake/time-formats';
+import { civilFromDays, clockOf, formatInstant } from '@/lib/intake/time-formats';
 import { ConflictError, NotFoundError } from '@/lib/http/errors';
 import { analysisFileName, reproduceCommand, type SnapshotProvenance } from './provenance-record';
 import { flagsLeftOutOf, loadObservations, rowsOf } from './observations';
@@ -16,26 +16,74 @@ import { flagsLeftOutOf, loadObservations, rowsOf } from './observations';
  * UTF-8. It is also the body of the download, so `grep -v '^#' FILE | sha256sum` checks a download. O(n).
  */
 export function canonicalObservationsCsv(time: Float64Array, value: Float64Array): string {
-  const lines = new Array<string>(time.length + 1);
-  lines[0] = 'time,value';
-  for (let i = 0; i < time.length; i++) lines[i + 1] = `${instantText(time[i])},${String(value[i])}`;
-  return `${lines.join('\n')}\n`;
+  return canonicalObservationsBytes(time, value).toString('utf8');
 }
 
-/** Latest instant a Date holds (ECMA-262 §21.4.1.22, time values within ±8.64e15 ms). */
-const DATE_LIMIT_MS = 8.64e15;
+const [ZERO, HYPHEN, T, COLON, POINT, Z, COMMA, NEWLINE] = Array.from('0-T:.Z,\n', (c) => c.charCodeAt(0));
 
 /**
- * formatInstant's text, through the platform's Date.prototype.toISOString where that gives the same (whole
- * milliseconds a Date holds: ISO 8601 with milliseconds, the expanded ±YYYYYY year outside 0000–9999, ECMA-262
- * §21.4.4.36), about twice as fast on a long record; formatInstant itself elsewhere (deep time, fractions of a ms).
+ * canonicalObservationsCsv's text as its UTF-8 bytes, which is what the hash reads. Every analysis hashes its whole
+ * record, so the bytes are written one by one into one buffer, about twice as fast as joining a string per line
+ * (measured on 10,000 daily points): a whole-millisecond instant in the years 0000–9999 digit by digit from its civil
+ * date (`civilFromDays`, once per day) and time of day (`clockOf`, as formatInstant), any other instant by
+ * formatInstant; the value's Number::toString is ASCII. O(n).
  */
-function instantText(t: number): string {
-  return Number.isInteger(t) && Math.abs(t) <= DATE_LIMIT_MS ? new Date(t).toISOString() : formatInstant(t);
+export function canonicalObservationsBytes(time: Float64Array, value: Float64Array): Buffer {
+  let out = Buffer.allocUnsafe(16 + time.length * 50);
+  let at = out.write('time,value\n', 0, 'utf8');
+  let day = Number.NaN;
+  let civil: [number, number, number] = [0, 0, 0];
+  for (let i = 0; i < time.length; i++) {
+    const t = time[i];
+    const text = String(value[i]);
+    const { days, hour, minute, second, milli } = clockOf(t);
+    if (days !== day) {
+      day = days;
+      civil = civilFromDays(days);
+    }
+    const [year, month, date] = civil;
+    const fast = Number.isInteger(t) && year >= 0 && year <= 9999;
+    const instant = fast ? '' : formatInstant(t);
+    const bytes = (fast ? 24 : Buffer.byteLength(instant, 'utf8')) + 2 + text.length;
+    if (at + bytes > out.length) {
+      const larger = Buffer.allocUnsafe(Math.max(2 * out.length, at + bytes));
+      out.copy(larger, 0, 0, at);
+      out = larger;
+    }
+    if (fast) {
+      at = twoDigits(out, at, Math.floor(year / 100));
+      at = twoDigits(out, at, year % 100);
+      out[at++] = HYPHEN;
+      at = twoDigits(out, at, month);
+      out[at++] = HYPHEN;
+      at = twoDigits(out, at, date);
+      out[at++] = T;
+      at = twoDigits(out, at, hour);
+      out[at++] = COLON;
+      at = twoDigits(out, at, minute);
+      out[at++] = COLON;
+      at = twoDigits(out, at, second);
+      out[at++] = POINT;
+      out[at++] = ZERO + Math.floor(milli / 100);
+      at = twoDigits(out, at, milli % 100);
+      out[at++] = Z;
+    } else at += out.write(instant, at, 'utf8');
+    out[at++] = COMMA;
+    for (let k = 0; k < text.length; k++) out[at++] = text.charCodeAt(k);
+    out[at++] = NEWLINE;
+  }
+  return out.subarray(0, at);
 }
 
-function sha256Hex(text: string): string {
-  return createHash('sha256').update(text, 'utf8').digest('hex');
+/** Writes the two decimal digits of 0 ≤ v < 100 at `at`; returns the position after them. */
+function twoDigits(out: Buffer, at: number, v: number): number {
+  out[at] = ZERO + Math.floor(v / 10);
+  out[at + 1] = ZERO + (v % 10);
+  return at + 2;
+}
+
+function sha256Hex(data: string | Buffer): string {
+  return createHash('sha256').update(data).digest('hex');
 }
 
 /**
@@ -72,7 +120,7 @@ export async function provenanceOf(
   const runs = n ? await contributingRuns(seriesId, observations.time[0], observations.time[n - 1], input.version) : { ingestRuns: [], rowsWithoutRun: 0 };
   return {
     dataVersion: input.dataVersion,
-    dataSha256: sha256Hex(canonicalObservationsCsv(observations.time, observations.value)),
+    dataSha256: sha256Hex(canonicalObservationsBytes(observations.time, observations.value)),
     canonicalForm: 'brinkwatch-observations-csv-v1',
     rows: n,
     ...runs,

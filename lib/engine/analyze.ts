@@ -8,6 +8,7 @@ import { formatInstant, prepareSeries, type PreparationQuality } from './prepare
 import type { TimeKind } from './time-kind';
 import { detectShifts } from './shifts';
 import { indicatorDefinition } from './indicators';
+import { lazyIndicators, toNullable, typedIndicators } from './indicator-arrays';
 import { evaluationStride, MIN_WINDOW_POINTS, rollingIndicators, windowPoints, type IndicatorCompanions } from './rolling';
 import { sensitivityGrid, type SensitivityResult } from './sensitivity';
 import { computeSurrogateTaus } from './surrogate-pool';
@@ -98,30 +99,6 @@ const DAY_MS = 86_400_000;
 
 function finiteOrNull(v: number): number | null {
   return Number.isFinite(v) ? v : null;
-}
-
-function toNullable(a: Float64Array): (number | null)[] {
-  const out = new Array<number | null>(a.length);
-  for (let i = 0; i < a.length; i++) out[i] = Number.isFinite(a[i]) ? a[i] : null;
-  return out;
-}
-
-/** The typed indicator arrays behind each result, for summaries that need no per-point copies. */
-const rawIndicators = new WeakMap<object, Partial<Record<IndicatorName, Float64Array>>>();
-
-/**
- * Indicator arrays as (number | null)[] built on first read and cached: a million-point array of boxed
- * numbers costs ~100 ms and ~24 MB, which a summary-only caller should not pay. Enumerable getters, so
- * JSON.stringify, spreading and Object.entries see ordinary arrays.
- */
-function lazyIndicators(values: Partial<Record<IndicatorName, Float64Array>>): AnalysisResult['indicators'] {
-  const out: AnalysisResult['indicators'] = {};
-  for (const name of Object.keys(values) as IndicatorName[]) {
-    let cache: (number | null)[] | undefined;
-    Object.defineProperty(out, name, { enumerable: true, get: () => (cache ??= toNullable(values[name]!)) });
-  }
-  rawIndicators.set(out, values);
-  return out;
 }
 
 const START_WORDS: Record<StretchStart, string> = {
@@ -333,20 +310,11 @@ export function assembleResult(
   };
 }
 
-/** The indicator arrays of a result as typed arrays (NaN where none), without building the nullable copies. O(n) at most. */
-export function indicatorArrays(result: AnalysisResult): Partial<Record<IndicatorName, Float64Array>> {
-  const typed = rawIndicators.get(result.indicators);
-  if (typed) return typed;
-  return Object.fromEntries(
-    Object.entries(result.indicators).map(([name, values]) => [name, Float64Array.from(values!, (v) => (v === null ? Number.NaN : v))]),
-  ) as Partial<Record<IndicatorName, Float64Array>>;
-}
-
 /** The result without per-point arrays (JSON-friendly), plus the latest value of each indicator. O(n). */
 export function summarizeAnalysis(result: AnalysisResult): AnalysisSummary {
   const { series, indicators, companions, ...rest } = result;
   const latest: AnalysisSummary['latest'] = {};
-  const typed = rawIndicators.get(indicators);
+  const typed = typedIndicators(indicators);
   for (const name of Object.keys(indicators) as IndicatorName[]) {
     const vals: ArrayLike<number | null> = typed?.[name] ?? indicators[name]!;
     let i = vals.length - 1;

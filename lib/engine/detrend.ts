@@ -309,19 +309,29 @@ export function linearDetrend(x: Float64Array): Detrended {
  */
 export function detrend(x: Float64Array, method: DetrendMethod, opts: { bandwidthPoints: number; movingAverageWidth: number }): Detrended {
   const n = x.length;
-  if (method === 'difference') {
-    const trend = x.slice(0, n - 1);
-    const residual = new Float64Array(n - 1);
-    for (let i = 0; i < n - 1; i++) residual[i] = x[i + 1] - x[i];
-    return { offset: 1, trend, residual };
-  }
+  if (method === 'difference') return { offset: 1, trend: x.slice(0, n - 1), residual: residualAbout(x, x, method) };
   if (method === 'linear') return linearDetrend(x);
   let trend: Float64Array;
   if (method === 'none') trend = new Float64Array(n);
   else if (method === 'gaussian') trend = gaussianSmooth(x, opts.bandwidthPoints);
   else if (method === 'local-linear') trend = localLinearSmooth(x, opts.bandwidthPoints);
   else trend = movingAverage(x, opts.movingAverageWidth);
-  const residual = new Float64Array(n);
-  for (let i = 0; i < n; i++) residual[i] = x[i] - trend[i];
-  return { offset: 0, trend, residual };
+  return { offset: 0, trend, residual: residualAbout(x, trend, method) };
+}
+
+/**
+ * The residuals `detrend` forms from x and its trend, the same doubles: x_i − trend_i, or x_{i+1} − x_i for
+ * `difference` (the trend unused). Not for `linear`, whose residuals come from centred quantities (linearDetrend).
+ * Lets an incremental update keep only the trend (lib/engine/update.ts). O(n).
+ */
+export function residualAbout(x: Float64Array, trend: Float64Array, method: DetrendMethod): Float64Array {
+  if (method === 'linear') throw new RangeError('linear residuals are not x − trend; see linearDetrend');
+  if (method === 'difference') {
+    const residual = new Float64Array(x.length - 1);
+    for (let i = 0; i < x.length - 1; i++) residual[i] = x[i + 1] - x[i];
+    return residual;
+  }
+  const residual = new Float64Array(x.length);
+  for (let i = 0; i < x.length; i++) residual[i] = x[i] - trend[i];
+  return residual;
 }

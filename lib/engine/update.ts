@@ -5,26 +5,34 @@ import {
   assembleResult,
   kendallEntry,
   significanceEntry,
-  indicatorArrays,
   type AnalysisFrame,
   type AnalysisInput,
   type AnalysisResult,
   type StretchStart,
 } from './analyze';
-import { detrend, GAUSS_REACH } from './detrend';
+import { detrend, GAUSS_REACH, residualAbout } from './detrend';
+import { indicatorArrays } from './indicator-arrays';
 import { indicatorDefinition } from './indicators';
 import { kendallCounts, reusedTrends } from './kendall';
 import { rollingIndicators, type IndicatorCompanions } from './rolling';
 import type { AnalysisSettings, IndicatorName, SurrogateMethod } from './settings';
 import { ENGINE_VERSION } from './version';
 
+/** The layout of AnalysisState; a state of another layout is not continued (a full recomputation replaces it). */
+export const STATE_FORMAT = 2 as const;
+
 /**
  * What an analysis keeps so that the next one, on the same record with points appended, can update instead of
  * recomputing: the facts the update must find unchanged (engine version, settings, stretch start, interval,
- * shifts, window, bandwidth, a digest of the analysed values already seen) and the per-point arrays and sums it
- * continues from. Memory O(n · indicators + N · indicators) for N surrogates.
+ * shifts, window, bandwidth, a digest of the analysed values already seen) and what it continues from. Only what
+ * cannot be rebuilt exactly and cheaply from the record is kept: the trend (the residuals are x − trend, the moment
+ * indicators a sliding pass over them, both O(n) and the same doubles), the per-window indicators (O(w) or more per
+ * window), the last values of each indicator that a new point can change (what Kendall's S drops), the S and the
+ * surrogate taus. Memory O(n + n · per-window indicators + R · indicators + N · indicators) for N surrogates and
+ * the detrending reach R (about 0.14 MB for 10,000 points and the seven default indicators; DEVELOPERS.md).
  */
 export interface AnalysisState {
+  format: typeof STATE_FORMAT;
   engineVersion: string;
   /** the settings as JSON (key order as parsed) */
   settingsKey: string;
@@ -42,12 +50,20 @@ export interface AnalysisState {
   skipCovered: number;
   /** SHA-256 of the stretch's values, its observed mask and those skip flags */
   prefixDigest: string;
+  /** residual points analysed */
+  n: number;
+  /** the trend at each residual position (detrend's; `residualAbout` gives the residuals back) */
   trend: Float64Array;
-  residual: Float64Array;
-  indicators: Record<string, Float64Array>;
+  /** per-window indicators (kind 'window') at each residual position, and their companions */
+  windowIndicators: Record<string, Float64Array>;
   companions: Record<string, Record<string, Float64Array>>;
-  /** Kendall's S (concordant − discordant pairs) of each indicator's finite values in time order */
-  kendallS: Record<string, number>;
+  /** each indicator's values at the last R residual positions (R = detrendReach), the ones an update recomputes */
+  tails: Record<string, Float64Array>;
+  /**
+   * Kendall's S (concordant − discordant pairs) of each indicator's finite values in time order; null for one whose
+   * τ an update took from the indicator it is a monotone transform of (reusedTrends), so its own S was not counted
+   */
+  kendallS: Record<string, number | null>;
   /** the surrogate taus kept, with the record they were drawn on and each indicator's τ then */
   surrogates: {
     method: SurrogateMethod;
@@ -136,21 +152,21 @@ function finiteValues(values: Float64Array): Float64Array {
 function stateOf(frame: AnalysisFrame, settings: AnalysisSettings, result: AnalysisResult): AnalysisState | null {
   if (incrementalBlocker(settings) !== null) return null;
   if (frame.stride > 1 && settings.indicators.some((name) => indicatorDefinition(name)!.kind === 'window')) return null;
-  const indicators = indicatorArrays(result);
+  const indicators = indicatorArrays(result) as Record<string, Float64Array>;
   const companions: AnalysisState['companions'] = {};
   for (const [name, byName] of Object.entries(result.companions)) {
     companions[name] = Object.fromEntries(Object.entries(byName!).map(([k, a]) => [k, toTyped(a)]));
   }
-  const kendallS: Record<string, number> = {};
+  const kendallS: Record<string, number | null> = {};
   for (const name of settings.indicators) kendallS[name] = kendallCounts(null, finiteValues(indicators[name]!)).s;
-  const skipCovered = keptWindows(frame.n, detrendReach(settings, frame.h), frame.w);
+  const reach = detrendReach(settings, frame.h);
+  const skipCovered = keptWindows(frame.n, reach, frame.w);
   return {
     ...frameFacts(frame, settings),
     skipCovered,
     prefixDigest: digestOf(frame, frame.x.length, skipCovered),
     trend: result.series.trend,
-    residual: result.series.residual,
-    indicators: indicators as Record<string, Float64Array>,
+    ...keptIndicators(settings, indicators, frame.n - reach),
     companions,
     kendallS,
     surrogates:
@@ -166,8 +182,18 @@ function stateOf(frame: AnalysisFrame, settings: AnalysisSettings, result: Analy
   };
 }
 
+/** The indicator arrays a state keeps: the per-window indicators whole, every indicator's values from `tailFrom` on. O(n). */
+function keptIndicators(settings: AnalysisSettings, values: Record<string, Float64Array>, tailFrom: number) {
+  const windowNames = settings.indicators.filter((name) => indicatorDefinition(name)!.kind === 'window');
+  return {
+    windowIndicators: Object.fromEntries(windowNames.map((name) => [name, values[name]])),
+    tails: Object.fromEntries(settings.indicators.map((name) => [name, values[name].slice(Math.max(0, tailFrom))])),
+  };
+}
+
 function frameFacts(frame: AnalysisFrame, settings: AnalysisSettings) {
   return {
+    format: STATE_FORMAT,
     engineVersion: ENGINE_VERSION,
     settingsKey: JSON.stringify(settings),
     interval: frame.prepared.interval,
@@ -177,6 +203,7 @@ function frameFacts(frame: AnalysisFrame, settings: AnalysisSettings) {
     w: frame.w,
     h: settings.detrend === 'gaussian' || settings.detrend === 'local-linear' ? frame.h : null,
     xLength: frame.x.length,
+    n: frame.n,
   };
 }
 
@@ -200,18 +227,23 @@ function crossS(sortedPrefix: Float64Array, tail: Float64Array): number {
 }
 
 /**
- * Kendall's τ_b, S and Var(S) of an indicator series whose values from position c on changed, from the S of the old
- * series: S = S(prefix) + S(prefix, tail) + S(tail), so S_new = S_old − [S(prefix, old tail) + S(old tail)] +
- * [S(prefix, new tail) + S(new tail)], the cross terms by binary search in the sorted prefix and the tails' own by
+ * Kendall's τ_b, S and Var(S) of an indicator series whose values after `prefix` changed from `oldTail` to `newTail`,
+ * from the S of the old series: S = S(prefix) + S(prefix, tail) + S(tail), so S_new = S_old − [S(prefix, old tail) +
+ * S(old tail)] + [S(prefix, new tail) + S(new tail)], the cross terms by binary search in the sorted prefix and the tails' own by
  * kendallCounts; the tie sums n2 = Σ t(t−1)/2 and v1 = Σ t(t−1)(2t+5) from the merged sorted values. Then exactly as
  * kendallTau(null, values) (no ties in time): τ_b = S/√(n0(n0 − n2)), Var(S) = [m(m−1)(2m+5) − v1]/18.
  * Cost O(m log m) (one native sort of the prefix) + O(k log m) for tails of k values. Sources: Kendall (1945),
  * Biometrika 33, 239–251; the sums as in lib/engine/kendall.ts (Knight 1966).
  */
-function continuedKendall(old: Float64Array, oldS: number, values: Float64Array, c: number): { tau: number; s: number; varS: number } {
-  const prefix = finiteValues(old.subarray(0, c)).sort();
-  const oldTail = finiteValues(old.subarray(c));
-  const newTail = finiteValues(values.subarray(c));
+function continuedKendall(
+  prefixValues: Float64Array,
+  oldTailValues: Float64Array,
+  oldS: number,
+  newTailValues: Float64Array,
+): { tau: number; s: number; varS: number } {
+  const prefix = finiteValues(prefixValues).sort();
+  const oldTail = finiteValues(oldTailValues);
+  const newTail = finiteValues(newTailValues);
   const s = oldS - crossS(prefix, oldTail) - kendallCounts(null, oldTail).s + crossS(prefix, newTail) + kendallCounts(null, newTail).s;
   const tail = newTail.slice().sort();
   const m = prefix.length + tail.length;
@@ -259,6 +291,7 @@ function sampleSd(values: Float64Array): number {
  */
 function continuationBlocker(frame: AnalysisFrame, settings: AnalysisSettings, previous: AnalysisState): string | null {
   const facts = frameFacts(frame, settings);
+  if (previous.format !== facts.format) return 'the kept state is of an earlier layout';
   if (previous.engineVersion !== facts.engineVersion) return `the engine changed (${previous.engineVersion} → ${facts.engineVersion})`;
   if (previous.settingsKey !== facts.settingsKey) return 'the settings changed';
   if (previous.stretchFrom !== facts.stretchFrom || previous.startsAfter !== facts.startsAfter || previous.interval !== facts.interval)
@@ -269,7 +302,7 @@ function continuationBlocker(frame: AnalysisFrame, settings: AnalysisSettings, p
   if (frame.stride > 1 && settings.indicators.some((name) => indicatorDefinition(name)!.kind === 'window'))
     return 'per-window indicators are evaluated at evenly spaced windows that move with every new point (maxEvaluatedWindows)';
   const reach = detrendReach(settings, frame.h);
-  if (previous.residual.length - reach < 1 || previous.xLength - 1 < reach) return 'the stretch analysed before was shorter than the detrending reach';
+  if (previous.n - reach < 1 || previous.xLength - 1 < reach) return 'the stretch analysed before was shorter than the detrending reach';
   if (digestOf(frame, previous.xLength, previous.skipCovered) !== previous.prefixDigest)
     return 'values already analysed changed (replaced data, quality flags, or interpolation of a closed gap)';
   return null;
@@ -314,7 +347,7 @@ export async function updateAnalysis(
 
   const { x, n, w, dt, raw, skip } = frame;
   const names = settings.indicators;
-  const nPrev = previous.residual.length;
+  const nPrev = previous.n;
   const reach = detrendReach(settings, frame.h);
   const c = nPrev - reach;
   const from = Math.max(0, c - reach);
@@ -325,32 +358,46 @@ export async function updateAnalysis(
     out.set(tail.subarray(c - tailFrom), c);
     return out;
   };
-  const residual = splice(previous.residual, segment.residual, from);
   const trend = splice(previous.trend, segment.trend, from);
+  // x − trend at every position: the kept residuals before c (x there is unchanged, by the digest), the segment's after.
+  const residual = residualAbout(x, trend, settings.detrend);
 
-  // Windows from a block boundary of windowMoments (⌈w/4⌉), so the recomputed ones are anchored as a full pass anchors them.
+  // Moment indicators in one sliding pass over the residuals, O(n): each window's value depends only on the residuals
+  // from its block boundary (windowMoments re-anchors every ⌈w/4⌉ windows) to its end, which before c are the ones it
+  // was computed from, so this gives the kept values exactly and the ones a new point reaches afresh.
+  const momentNames = names.filter((name) => indicatorDefinition(name)!.kind === 'moments');
+  const windowNames = names.filter((name) => indicatorDefinition(name)!.kind === 'window');
+  const values: Partial<Record<IndicatorName, Float64Array>> = rollingIndicators(residual, w, momentNames, { raw, dt, skip, stride: 1 });
+  // Per-window indicators cost O(w) or more per window: only the windows ending at c or later, from a block boundary.
   const block = Math.max(1, Math.ceil(w / 4));
   const start = Math.floor(Math.max(0, c - w + 1) / block) * block;
   const tailCompanions: IndicatorCompanions = {};
-  const tail = rollingIndicators(residual.subarray(start), w, names, {
+  const tail = rollingIndicators(residual.subarray(start), w, windowNames, {
     raw: raw.subarray(start),
     dt,
     skip: skip.subarray(start),
     stride: 1,
     companions: tailCompanions,
   });
-  const values: Partial<Record<IndicatorName, Float64Array>> = {};
   const companions: IndicatorCompanions = {};
-  const kendallS: Record<string, number> = {};
-  const tallies: Record<string, ReturnType<typeof continuedKendall>> = {};
-  for (const name of names) {
-    values[name] = splice(previous.indicators[name], tail[name], start);
+  for (const name of windowNames) {
+    values[name] = splice(previous.windowIndicators[name], tail[name], start);
     const extra = tailCompanions[name];
     if (extra) companions[name] = Object.fromEntries(Object.entries(extra).map(([k, a]) => [k, splice(previous.companions[name][k], a, start)]));
-    tallies[name] = continuedKendall(previous.indicators[name], previous.kendallS[name], values[name]!, c);
-    kendallS[name] = tallies[name].s;
   }
+  // An indicator whose τ is its base's (sd of variance, recovery of ac1) needs no count of its own now; a later update
+  // that cannot reuse it counts its S afresh (continuedKendall from an empty prefix), the same integer.
   const reused = reusedTrends(values);
+  const none = new Float64Array(0);
+  const kendallS: Record<string, number | null> = {};
+  const tallies: Record<string, ReturnType<typeof continuedKendall>> = {};
+  for (const name of names) {
+    const now = values[name]!;
+    const oldS = previous.kendallS[name];
+    if (reused.has(name)) kendallS[name] = null;
+    else if (oldS === null) kendallS[name] = (tallies[name] = continuedKendall(none, none, 0, now)).s;
+    else kendallS[name] = (tallies[name] = continuedKendall(now.subarray(0, c), previous.tails[name], oldS, now.subarray(c))).s;
+  }
   const kendall: AnalysisResult['kendall'] = {};
   for (const name of names) {
     const via = reused.get(name);
@@ -386,8 +433,7 @@ export async function updateAnalysis(
     skipCovered,
     prefixDigest: digestOf(frame, x.length, skipCovered),
     trend,
-    residual,
-    indicators: values as Record<string, Float64Array>,
+    ...keptIndicators(settings, values as Record<string, Float64Array>, n - reach),
     companions,
     kendallS,
     surrogates: kept,

@@ -70,17 +70,23 @@ export function decimalYearToMs(decimalYear: number): number {
   return Math.round(start + (decimalYear - year) * length);
 }
 
-/** Formats an instant as ISO 8601 UTC with millisecond precision; years outside 0000–9999 use the expanded ±YYYYYY form. */
-export function formatInstant(ms: number): string {
+/** An instant's UTC day (days since 1970-01-01) and its time of day; `milli` keeps any fraction of a millisecond. O(1). */
+export function clockOf(ms: number): { days: number; hour: number; minute: number; second: number; milli: number } {
   const days = Math.floor(ms / DAY_MS);
-  const [year, month, day] = civilFromDays(days);
   let rest = ms - days * DAY_MS;
   const hour = Math.floor(rest / 3_600_000);
   rest -= hour * 3_600_000;
   const minute = Math.floor(rest / 60_000);
   rest -= minute * 60_000;
   const second = Math.floor(rest / 1000);
-  const milli = Math.round(rest - second * 1000);
+  return { days, hour, minute, second, milli: rest - second * 1000 };
+}
+
+/** Formats an instant as ISO 8601 UTC with millisecond precision; years outside 0000–9999 use the expanded ±YYYYYY form. */
+export function formatInstant(ms: number): string {
+  const { days, hour, minute, second, milli: exact } = clockOf(ms);
+  const [year, month, day] = civilFromDays(days);
+  const milli = Math.round(exact);
   const yearText = year >= 0 && year <= 9999 ? String(year).padStart(4, '0') : (year < 0 ? '-' : '+') + String(Math.abs(year)).padStart(6, '0');
   const two = (n: number) => String(n).padStart(2, '0');
   return `${yearText}-${two(month)}-${two(day)}T${two(hour)}:${two(minute)}:${two(second)}.${String(milli).padStart(3, '0')}Z`;

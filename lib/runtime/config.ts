@@ -4,8 +4,8 @@ import { z } from 'zod';
 
 /**
  * Runtime configuration: every environment variable Brinkwatch reads, parsed by one zod schema. Each is optional
- * and listed with its default in `.env.example` and the README. The environment is read again on every call (a
- * parse costs microseconds) so tests can point a process at a temp DATA_DIR; `assertConfig` runs at the start of
+ * and listed with its default in `.env.example` and the README. The environment is read again on every call (the
+ * parse is remembered for the values it was made from: `config`) so tests can point a process at a temp DATA_DIR; `assertConfig` runs at the start of
  * `npm start` and of the scheduler, so a bad value stops the start with a message naming the variable instead of
  * surfacing later as a NaN timeout or a cron job that never runs.
  */
@@ -113,16 +113,32 @@ export type Config = z.output<typeof configSchema>;
 /** A configuration value the process cannot run with; the message names every bad variable. */
 export class ConfigError extends Error {}
 
-/** The parsed environment. Throws ConfigError naming each bad variable. O(number of variables). */
-export function config(env: Record<string, string | undefined> = process.env): Config {
+/** The variables the schema reads, in a fixed order: the key a parse is remembered by. */
+const CONFIG_KEYS = Object.keys(configSchema.shape) as (keyof typeof configSchema.shape)[];
+
+/** The last successful parse and the values it was made from. */
+let remembered: { values: (string | undefined)[]; config: Readonly<Config> } | null = null;
+
+/**
+ * The parsed environment. Throws ConfigError naming each bad variable. The parse (the cron expressions' validation
+ * above all, about 0.1 ms, on every database call of a cycle) is remembered with the values of the variables the
+ * schema reads: a call whose values all equal the last successful parse's returns that result (frozen, since it is
+ * shared), so a process or test that changes a variable sees the change at its next call. O(number of variables).
+ */
+export function config(env: Record<string, string | undefined> = process.env): Readonly<Config> {
+  const values = CONFIG_KEYS.map((key) => env[key]);
+  if (remembered && values.every((value, i) => value === remembered!.values[i])) return remembered.config;
   const parsed = configSchema.safeParse(env);
-  if (parsed.success) return parsed.data;
+  if (parsed.success) {
+    remembered = { values, config: Object.freeze(parsed.data) };
+    return remembered.config;
+  }
   const lines = parsed.error.issues.map((issue) => `${String(issue.path[0])} ${issue.message}`);
   throw new ConfigError(`Bad configuration: ${lines.join('; ')}`);
 }
 
 /** Called first by the start script and the scheduler: prints what is wrong and exits 1 on a bad value. */
-export function assertConfig(log: (line: string) => void = console.error): Config {
+export function assertConfig(log: (line: string) => void = console.error): Readonly<Config> {
   try {
     return config();
   } catch (error) {

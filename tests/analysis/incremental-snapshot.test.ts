@@ -101,7 +101,7 @@ describe('snapshots of a growing record', () => {
     const { state } = (await loadAnalysisState(series.id))!;
     const again = unpackState(packState(state));
     expect(again).toEqual(state);
-    expect(Buffer.from(again.residual.buffer).equals(Buffer.from(state.residual.buffer))).toBe(true);
+    expect(Buffer.from(again.trend.buffer).equals(Buffer.from(state.trend.buffer))).toBe(true);
     expect(Object.keys(again.companions['restoring-rate'])).toEqual(['standardError']);
   });
 });

@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { runAnalysis, type AnalysisResult } from '@/lib/engine/analyze';
 import { RandomStream } from '@/lib/engine/random';
 import { analysisSettingsSchema, type AnalysisSettings } from '@/lib/engine/settings';
-import { incrementalBlocker, updateAnalysis, type AnalysisState } from '@/lib/engine/update';
+import { incrementalBlocker, STATE_FORMAT, updateAnalysis, type AnalysisState } from '@/lib/engine/update';
 
 const DAY = 86_400_000;
 const T0 = Date.UTC(2001, 0, 1);
@@ -116,6 +116,31 @@ describe('incremental analysis agrees with a full recomputation (1e-9)', () => {
       expectSameAnalysis(update.result, full, settings, 'same');
       state = update.state!;
     }
+  });
+
+  it('an indicator whose S was not counted (its τ was taken from its base) is counted afresh, to the same τ', async () => {
+    const settings = analysisSettingsSchema.parse({ detrend: 'gaussian', bandwidth: '12 points', window: '60 points', indicators: ['variance', 'sd', 'ac1'] });
+    const r = record(420, 23);
+    const first = await updateAnalysis(prefix(r, 400), settings, null, { parallel: false });
+    const update = await updateAnalysis(prefix(r, 401), settings, first.state, { parallel: false });
+    expect(update.state!.kendallS.sd).toBeNull();
+    expect(update.state!.kendallS.variance).toEqual(expect.any(Number));
+    // As when reuse stops (recovery once ac1 ≤ 0 somewhere): ac1 has no S kept and must be counted afresh.
+    const withoutS = { ...update.state!, kendallS: { ...update.state!.kendallS, ac1: null } };
+    const next = await updateAnalysis(prefix(r, 403), settings, withoutS, { parallel: false });
+    expect(next.how.mode).toBe('incremental');
+    expectSameAnalysis(next.result, await runAnalysis(prefix(r, 403), settings, { parallel: false }), settings, 'same');
+    expect(next.state!.kendallS.ac1).toBe((await updateAnalysis(prefix(r, 403), settings, update.state, { parallel: false })).state!.kendallS.ac1);
+  });
+
+  it('a state of an earlier layout is not continued: a full recomputation, saying so, leaves one of this layout', async () => {
+    const settings = analysisSettingsSchema.parse({ detrend: 'none', window: '40 points' });
+    const r = record(300, 8);
+    const first = await updateAnalysis(prefix(r, 280), settings, null, { parallel: false });
+    const earlier = { ...first.state!, format: 1 } as unknown as AnalysisState;
+    const update = await updateAnalysis(prefix(r, 281), settings, earlier, { parallel: false });
+    expect(update.how).toMatchObject({ mode: 'full', reason: expect.stringMatching(/earlier layout/) });
+    expect(update.state!.format).toBe(STATE_FORMAT);
   });
 
   it('a new point after a missing day: the interpolated point and the new one are appended', async () => {

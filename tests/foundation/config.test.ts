@@ -46,6 +46,21 @@ describe('configuration', () => {
     expect(() => config({ BCRYPT_COST: '4' })).toThrow(/BCRYPT_COST/);
   });
 
+  it('remembers a parse for the same values and sees every change of a value it reads', () => {
+    const env: Record<string, string | undefined> = { PORT: '3100', ANALYSIS_INCREMENTAL: '1' };
+    const first = config(env);
+    expect(config({ ...env, UNRELATED_VARIABLE: 'x' })).toBe(first);
+    env.ANALYSIS_INCREMENTAL = '0';
+    expect(config(env).ANALYSIS_INCREMENTAL).toBe(false);
+    delete env.PORT;
+    expect(config(env).PORT).toBe(3000);
+    env.PORT = 'eighty';
+    expect(() => config(env)).toThrow(/PORT/);
+    env.PORT = '3100';
+    expect(config(env).ANALYSIS_INCREMENTAL).toBe(false);
+    expect(Object.isFrozen(config(env))).toBe(true);
+  });
+
   it('stops the scheduler at start with a message naming the variable', () => {
     const run = spawnSync(process.execPath, ['--import', 'tsx', 'jobs/scheduler.ts'], {
       cwd: ROOT,

@@ -8,7 +8,7 @@ const { IngestRun, Series, db } = await import('@/models');
 const { createSeries } = await import('@/lib/series/registry');
 const { ingestObservations, previewObservations, sweepStaleRuns } = await import('@/lib/intake/pipeline');
 const { contentHashOf } = await import('@/lib/intake/content-hash');
-const { loadObservations } = await import('@/lib/analysis/observations');
+const { loadObservations, unpackPage } = await import('@/lib/analysis/observations');
 const { acquireLease } = await import('@/lib/db/leases');
 
 beforeAll(async () => {
@@ -209,6 +209,7 @@ describe('loadObservations', () => {
     );
     const all = await loadObservations(series.id);
     expect(all.time.length).toBe(n);
+    expect(all.time.every((t, i) => i === 0 || t > all.time[i - 1])).toBe(true);
     expect([all.time[0], all.time[99_999], all.time[100_000], all.time[n - 1]]).toEqual([0, 99_999_000, 100_000_000, (n - 1) * 1000]);
     expect([all.value[100_000], all.value[n - 1]]).toEqual([100_000 * 0.5 - 7, (n - 1) * 0.5 - 7]);
     const part = await loadObservations(series.id, { from: 50_000_000, to: 210_000_000, limit: 150_000 });
@@ -216,4 +217,10 @@ describe('loadObservations', () => {
     expect([part.time[0], part.time[149_999]]).toEqual([50_000_000, 199_999_000]);
     expect((await loadObservations(series.id, { from: 240_000_500 })).time.length).toBe(n - 240_001);
   }, 60_000);
+
+  it('notices a packed page whose instants do not strictly increase, which is then read again in order', () => {
+    expect(unpackPage('1000,1.5;2000,-2;3000,0.25', false)).toMatchObject({ increasing: true, time: Float64Array.of(1000, 2000, 3000) });
+    expect(unpackPage('2000,-2;1000,1.5;3000,0.25', false).increasing).toBe(false);
+    expect(unpackPage('1000,1.5,1;1000,-2,4', true)).toMatchObject({ increasing: false, flag: Uint8Array.of(1, 4) });
+  });
 });

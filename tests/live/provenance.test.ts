@@ -11,11 +11,12 @@ const { migrateUp } = await import('@/migrations');
 const { AnalysisSnapshot, Observation, Series, User, closeDatabase, db } = await import('@/models');
 const { createSeries } = await import('@/lib/series/registry');
 const { refreshSeriesAnalysis } = await import('@/lib/analysis/snapshot');
-const { snapshotDataCsv, canonicalObservationsCsv } = await import('@/lib/analysis/provenance');
+const { snapshotDataCsv, canonicalObservationsBytes, canonicalObservationsCsv } = await import('@/lib/analysis/provenance');
 const { ingestObservations } = await import('@/lib/intake/pipeline');
 const { createMark } = await import('@/lib/marks/write');
 const { simulateAr1 } = await import('@/lib/demo/models');
 const { ENGINE_VERSION } = await import('@/lib/engine/version');
+const { RandomStream } = await import('@/lib/engine/random');
 
 const ROOT = path.resolve(__dirname, '../..');
 const DAY = 86_400_000;
@@ -161,5 +162,16 @@ describe('an analysis records where its numbers came from and can be reproduced 
     expect(canonicalObservationsCsv(Float64Array.of(0, Date.UTC(-12000, 0, 1)), Float64Array.of(0.1 + 0.2, -1e-7))).toBe(
       'time,value\n1970-01-01T00:00:00.000Z,0.30000000000000004\n-012000-01-01T00:00:00.000Z,-1e-7\n',
     );
+  });
+
+  it('writes every instant a Date holds as the platform writes it (ECMA-262 Date.prototype.toISOString), and hashes those bytes', () => {
+    const rng = new RandomStream(41, 0);
+    const limit = 8.64e15;
+    const edges = [0, -1, 1, Date.UTC(0, 0, 1) - 1, Date.UTC(9999, 11, 31, 23, 59, 59, 999), Date.UTC(9999, 11, 31, 23, 59, 59, 999) + 1, -limit, limit];
+    const time = Float64Array.from({ length: 5000 }, (_, i) => (i < edges.length ? edges[i] : Math.round((rng.uniform() * 2 - 1) * (i % 2 ? limit : 4e12))));
+    const value = Float64Array.from(time, () => (rng.uniform() - 0.5) * 10 ** Math.floor(rng.uniform() * 40 - 20));
+    const expected = `time,value\n${Array.from(time, (t, i) => `${new Date(t).toISOString()},${String(value[i])}\n`).join('')}`;
+    expect(canonicalObservationsCsv(time, value)).toBe(expected);
+    expect(canonicalObservationsBytes(time, value).equals(Buffer.from(expected, 'utf8'))).toBe(true);
   });
 });
