@@ -38,7 +38,7 @@ export async function runAnalysisCycle(): Promise<{ analysed: number; snapshots:
           return renewed === 1;
         };
         try {
-          const result = await refreshSeriesAnalysis(series, { parallel: true, markAnalysed: { dataChangedAt: series.dataChangedAt, stillClaimed } });
+          const result = await refreshSeriesAnalysis(series, { parallel: true, markAnalysed: { stillClaimed } });
           await pruneSnapshotCurves(id);
           return result;
         } catch (error) {

@@ -1,6 +1,6 @@
 import { Op, QueryTypes, type Transaction } from 'sequelize';
 import { sampleStandardDeviation } from 'simple-statistics';
-import { AnalysisSnapshot, Mark, Series, WITHOUT_CHARTS, db, writeTransaction } from '@/models';
+import { AnalysisSnapshot, Mark, Series, WITHOUT_CHARTS, db, readTransaction, writeTransaction } from '@/models';
 import { analysisSettingsSchema, type AnalysisSettings } from '@/lib/engine/settings';
 import { summarizeAnalysis, type AnalysisInput, type AnalysisResult } from '@/lib/engine/analyze';
 import { NULL_REFRESH, updateAnalysis, type AnalysisState } from '@/lib/engine/update';
@@ -209,21 +209,28 @@ export async function analyseAtVersion(series: Series, version: number, options:
  *
  * The analysis continues from the series' kept state when that is exact (switched off by ANALYSIS_INCREMENTAL=0).
  * The snapshot, the state it leaves and, with `markAnalysed`, the cleared `needsAnalysis` flag (only if no data
- * arrived since `dataChangedAt` was read) are written in one transaction, and only while `stillClaimed` holds: a
+ * arrived since `dataChangedAt` was read, with the data version, at the start) are written in one transaction, and only while `stillClaimed` holds: a
  * process killed before it commits leaves the series due, with no snapshot, so a data change is analysed once.
  */
 export async function refreshSeriesAnalysis(
-  series: Series,
+  claimed: Series,
   options: {
     parallel?: boolean;
-    markAnalysed?: { dataChangedAt: Date | null; stillClaimed?: (transaction: Transaction) => Promise<boolean> };
+    markAnalysed?: { stillClaimed?: (transaction: Transaction) => Promise<boolean> };
   } = {},
 ): Promise<AnalysisSnapshot> {
   await db();
+  // The series row (settings, dataChangedAt) and the data version are read at one moment: a change committed
+  // before it is in both, so the flag clears once for it; one committed after leaves dataChangedAt moved and the
+  // series due. Read at different moments, an intake landing between them would be analysed here yet leave the
+  // series due, and the same data would be analysed twice.
+  const { series, dataVersion } = await readTransaction(async (transaction) => ({
+    series: (await Series.findByPk(claimed.id, { transaction })) ?? claimed,
+    dataVersion: await currentDataVersion(claimed.id, transaction),
+  }));
   const settings = analysisSettingsSchema.parse(series.settings ?? {});
   const started = performance.now();
   const incremental = config().ANALYSIS_INCREMENTAL;
-  const dataVersion = await currentDataVersion(series.id);
   const [read, previous] = await Promise.all([readRecord(series, settings), incremental ? loadAnalysisState(series.id) : null]);
   const input = (await currentDataVersion(series.id)) !== dataVersion ? await readRecord(series, settings, dataVersion) : read;
   const { kept, ...analysis } = await analyseRecord(series, settings, input, dataVersion, started, { parallel: options.parallel, incremental, previous });
@@ -234,7 +241,7 @@ export async function refreshSeriesAnalysis(
     // A failed analysis leaves the kept state as it was: the next one checks it against the record all the same.
     if (kept !== undefined) await keepAnalysisState(series.id, snapshot.id, kept, transaction);
     if (options.markAnalysed) {
-      const seen = options.markAnalysed.dataChangedAt;
+      const seen = series.dataChangedAt;
       await Series.update(
         { needsAnalysis: false },
         { where: { id: series.id, needsAnalysis: true, dataChangedAt: seen === null ? { [Op.is]: null } : seen }, transaction },

@@ -39,9 +39,9 @@ export async function recordDataVersion(
 }
 
 /** The series' current data version (0 when no versioned run stored anything yet). One index lookup. */
-export async function currentDataVersion(seriesId: number): Promise<number> {
+export async function currentDataVersion(seriesId: number, transaction?: Transaction): Promise<number> {
   const [{ version }] = await (
-    await rawSql()
+    await rawSql(transaction)
   ).all<{ version: number | null }>('SELECT MAX(version) AS version FROM data_versions WHERE series_id = ?', [seriesId]);
   return version === null ? 0 : Number(version);
 }

@@ -50,7 +50,7 @@ describe('snapshots of a growing record', () => {
     expect((await loadAnalysisState(series.id))!.snapshotId).toBe(first.id);
 
     await store(series, rows(400, 401, 1));
-    const next = await refreshSeriesAnalysis(series, { parallel: false, markAnalysed: { dataChangedAt: series.dataChangedAt } });
+    const next = await refreshSeriesAnalysis(series, { parallel: false, markAnalysed: {} });
     expect(next.provenance!.update).toMatchObject({ mode: 'incremental', basedOnSnapshot: first.id });
     await series.reload();
     expect(series.needsAnalysis).toBe(false);
