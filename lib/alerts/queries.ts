@@ -254,20 +254,7 @@ async function alertEvaluations(alertId: number, onSite: boolean) {
 
 function presentSnapshot(snapshot: AnalysisSnapshot | SiteSnapshot | null, charts: EvidenceCharts) {
   if (!snapshot) return null;
-  if (snapshot instanceof SiteSnapshot)
-    return {
-      id: snapshot.id,
-      createdAt: snapshot.createdAt.toISOString(),
-      status: snapshot.status,
-      settings: snapshot.settings,
-      summary: snapshot.summary,
-      n: snapshot.n,
-      dataFrom: snapshot.dataFrom,
-      dataTo: snapshot.dataTo,
-      members: snapshot.members,
-      ...(charts === 'curves' ? { curves: snapshot.curves } : {}),
-    };
-  return {
+  const common = {
     id: snapshot.id,
     createdAt: snapshot.createdAt.toISOString(),
     status: snapshot.status,
@@ -276,8 +263,10 @@ function presentSnapshot(snapshot: AnalysisSnapshot | SiteSnapshot | null, chart
     n: snapshot.n,
     dataFrom: snapshot.dataFrom === null ? null : Number(snapshot.dataFrom),
     dataTo: snapshot.dataTo === null ? null : Number(snapshot.dataTo),
-    ...(charts === 'curves' ? { curves: snapshot.curves } : { chartView: snapshot.chartView }),
   };
+  // A site snapshot names its member series and has curves but no saved chart view.
+  if (snapshot instanceof SiteSnapshot) return { ...common, members: snapshot.members, ...(charts === 'curves' ? { curves: snapshot.curves } : {}) };
+  return { ...common, ...(charts === 'curves' ? { curves: snapshot.curves } : { chartView: snapshot.chartView }) };
 }
 
 /**
