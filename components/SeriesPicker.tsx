@@ -65,10 +65,14 @@ export function SeriesPicker({
   }
   /** Enter before the matches of the typed text arrived: ask for them now and take the first, unless typing went on. */
   function chooseFirstMatchOf(find: string) {
-    void queryClient.fetchQuery(findQuery(find)).then((data) => {
-      const first = data.items[0];
-      if (first && typed.current.trim() === find) choose({ slug: first.slug, name: first.name });
-    });
+    queryClient.fetchQuery(findQuery(find)).then(
+      (data) => {
+        const first = data.items[0];
+        if (first && typed.current.trim() === find) choose({ slug: first.slug, name: first.name });
+      },
+      // the list says the search failed; Enter then chooses nothing
+      () => undefined,
+    );
   }
   function onKeyDown(event: React.KeyboardEvent<HTMLInputElement>) {
     if (event.key === 'ArrowDown' || event.key === 'ArrowUp') {
@@ -77,8 +81,11 @@ export function SeriesPicker({
       if (items.length) setActive((active + (event.key === 'ArrowDown' ? 1 : items.length - 1)) % items.length);
     } else if (event.key === 'Enter' && open) {
       event.preventDefault();
-      if (current && items[active]) choose(items[active]);
-      else if (!current) chooseFirstMatchOf(text.trim());
+      // The shown matches are those of the typed text only once its answer is in: after the pause and before the
+      // answer, the list is empty and Enter fetches the matches itself.
+      if (current && matches.data) {
+        if (items[active]) choose(items[active]);
+      } else chooseFirstMatchOf(text.trim());
     } else if (event.key === 'Escape') {
       setOpen(false);
     }
