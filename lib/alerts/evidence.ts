@@ -56,12 +56,11 @@ export function evidenceFrom(
 /** Loads what `evidenceFrom` needs for an existing alert, using its latest snapshot (a site alert's: siteAlertEvidence). */
 export async function alertEvidence(alert: Alert, transaction?: Transaction): Promise<AlertEvidence> {
   if (alert.seriesId === null) return siteAlertEvidence(alert, transaction);
-  const [series, rule, snapshot, calibrations] = await Promise.all([
-    Series.findByPk(alert.seriesId, { transaction }),
-    alert.ruleId === null ? null : AlertRule.findByPk(alert.ruleId, { transaction }),
-    AnalysisSnapshot.findByPk(alert.latestSnapshotId, { transaction, attributes: WITHOUT_CHARTS }),
-    alert.ruleId === null ? new Map<number, RuleCalibration>() : latestRuleCalibration([alert.ruleId]),
-  ]);
+  // One after another: inside a transaction they share one connection, which takes one statement at a time.
+  const series = await Series.findByPk(alert.seriesId, { transaction });
+  const rule = alert.ruleId === null ? null : await AlertRule.findByPk(alert.ruleId, { transaction });
+  const snapshot = await AnalysisSnapshot.findByPk(alert.latestSnapshotId, { transaction, attributes: WITHOUT_CHARTS });
+  const calibrations = alert.ruleId === null ? new Map<number, RuleCalibration>() : await latestRuleCalibration([alert.ruleId]);
   if (!series || (alert.ruleId !== null && !rule) || !snapshot) throw new Error(`alert ${alert.id} lost its series, rule or snapshot`);
   const taus =
     rule && indicatorFacts((snapshot.summary ?? {}) as StoredSummary, rule.indicator, trendDirectionOf(rule.direction)).needsTaus

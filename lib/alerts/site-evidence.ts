@@ -62,11 +62,10 @@ export function siteEvidenceFrom(alert: Pick<Alert, 'id' | 'severity'>, site: Si
 
 /** Loads what `siteEvidenceFrom` needs for an existing site alert, using its latest site snapshot. */
 export async function siteAlertEvidence(alert: Alert, transaction?: Transaction): Promise<AlertEvidence> {
-  const [site, rule, snapshot] = await Promise.all([
-    Site.findByPk(alert.siteId ?? undefined, { transaction }),
-    AlertRule.findByPk(alert.ruleId ?? undefined, { transaction }),
-    SiteSnapshot.findByPk(alert.latestSnapshotId, { transaction, attributes: { exclude: ['curves'] } }),
-  ]);
+  // One after another: inside a transaction they share one connection, which takes one statement at a time.
+  const site = await Site.findByPk(alert.siteId ?? undefined, { transaction });
+  const rule = await AlertRule.findByPk(alert.ruleId ?? undefined, { transaction });
+  const snapshot = await SiteSnapshot.findByPk(alert.latestSnapshotId, { transaction, attributes: { exclude: ['curves'] } });
   if (!site || !rule || !snapshot) throw new Error(`site alert ${alert.id} lost its site, rule or site snapshot`);
   return siteEvidenceFrom(alert, site, rule, snapshot);
 }
