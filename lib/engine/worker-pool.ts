@@ -10,6 +10,8 @@ export class CancelledError extends Error {
 
 /** What a worker thread posts back: progress within its range (items done), then its result once. */
 export interface RangeMessage<T> {
+  /** the range it answers (a kept thread takes one range after another) */
+  job: number;
   progress?: number;
   result?: T;
 }
@@ -47,7 +49,7 @@ export interface RangePoolOptions<Task, T> {
  * or `parallel` is false. A worker that fails to start or crashes has its range computed inline instead, so the
  * results are those of the inline path whenever each item depends only on the task and its own index.
  * Returns each range's result with the bounds, and how many ranges worker threads computed.
- * Cost: the work's own / threads, plus one thread start per range. Common practice (static block partition of
+ * Cost: the work's own / threads, plus a thread start the first time a thread is needed (threads are kept). Common practice (static block partition of
  * independent tasks).
  */
 export async function runRanges<Task, T>(options: RangePoolOptions<Task, T>): Promise<{ parts: T[]; bounds: number[]; workers: number }> {
@@ -86,50 +88,105 @@ export async function runRanges<Task, T>(options: RangePoolOptions<Task, T>): Pr
   return { parts, bounds, workers };
 }
 
+/**
+ * Threads kept between runs, idle, per worker module. A thread is started once and then takes range after range:
+ * starting and ending a thread for every range ended isolates while V8 could still be compiling for them on a
+ * background thread, which aborted the whole process now and then (Node's "NodePlatform::ForIsolate" assertion).
+ * Idle threads are unref'd, so they never keep a process alive; a thread that failed or was stopped is not kept.
+ */
+const idle = new Map<string, import('node:worker_threads').Worker[]>();
+let nextJob = 1;
+
+async function takeThread(url: URL) {
+  const kept = idle.get(url.href)?.pop();
+  if (kept) {
+    kept.ref();
+    return kept;
+  }
+  const { Worker } = await import('node:worker_threads');
+  const worker = new Worker(url);
+  // An idle thread that fails leaves the pool; its error is the running job's to report, if there is one.
+  worker.on('error', () => undefined);
+  worker.once('exit', () => {
+    const list = idle.get(url.href);
+    const at = list?.indexOf(worker) ?? -1;
+    if (at >= 0) list!.splice(at, 1);
+  });
+  return worker;
+}
+
+function keepThread(url: URL, worker: import('node:worker_threads').Worker): void {
+  const list = idle.get(url.href) ?? [];
+  // more idle threads than cores are never all needed at once
+  if (list.length >= os.availableParallelism()) {
+    void worker.terminate();
+    return;
+  }
+  worker.unref();
+  list.push(worker);
+  idle.set(url.href, list);
+}
+
 async function inWorker<Task, T>(url: URL, data: RangeData<Task>, onDone: (done: number) => void, signal?: AbortSignal): Promise<T> {
   if (signal?.aborted) throw new CancelledError();
-  const { Worker } = await import('node:worker_threads');
+  const worker = await takeThread(url);
+  const job = nextJob++;
   return new Promise((resolve, reject) => {
-    const worker = new Worker(url, { workerData: data });
+    const finish = () => {
+      signal?.removeEventListener('abort', abort);
+      worker.off('message', onMessage);
+      worker.off('error', onError);
+      worker.off('exit', onExit);
+    };
     const abort = () => {
+      finish();
       void worker.terminate();
       reject(new CancelledError());
     };
-    signal?.addEventListener('abort', abort, { once: true });
-    worker.on('message', (m: RangeMessage<T>) => {
+    const onMessage = (m: RangeMessage<T>) => {
+      if (m.job !== job) return;
       if (m.progress !== undefined) onDone(m.progress);
       if (m.result !== undefined) {
-        signal?.removeEventListener('abort', abort);
+        finish();
         onDone(data.to - data.from);
+        keepThread(url, worker);
         resolve(m.result);
-        void worker.terminate();
       }
-    });
-    worker.once('error', (error) => {
-      signal?.removeEventListener('abort', abort);
+    };
+    const onError = (error: Error) => {
+      finish();
+      void worker.terminate();
       reject(error);
-    });
-    worker.once('exit', (code) => {
-      if (code !== 0 && !signal?.aborted) reject(new Error(`worker thread exited with code ${code}`));
-    });
+    };
+    const onExit = (code: number) => {
+      finish();
+      reject(new Error(`worker thread exited with code ${code}`));
+    };
+    signal?.addEventListener('abort', abort, { once: true });
+    worker.on('message', onMessage);
+    worker.once('error', onError);
+    worker.once('exit', onExit);
+    worker.postMessage({ ...data, job } satisfies RangeData<Task> & { job: number });
   });
 }
 
 /**
- * The worker side of `runRanges`: computes the range in `workerData` and posts the result back with its typed
- * arrays' buffers transferred (not copied). `compute` may report progress, posted every `progressEvery` items.
+ * The worker side of `runRanges`: takes ranges (`RangeData` with a job number) as messages for as long as the
+ * thread lives, computes each and posts the result back with its typed arrays' buffers transferred (not copied).
+ * `compute` may report progress, posted every `progressEvery` items.
  */
 export async function answerRange<Task, T extends { [K in keyof T]: Float64Array }>(
   compute: (task: Task, from: number, to: number, onEach: (done: number) => void) => T,
   progressEvery = 5,
 ): Promise<void> {
-  const { parentPort, workerData } = await import('node:worker_threads');
-  const { task, from, to } = workerData as RangeData<Task>;
-  const result = compute(task, from, to, (done) => {
-    if (done % progressEvery === 0) parentPort!.postMessage({ progress: done } satisfies RangeMessage<T>);
+  const { parentPort } = await import('node:worker_threads');
+  parentPort!.on('message', ({ task, from, to, job }: RangeData<Task> & { job: number }) => {
+    const result = compute(task, from, to, (done) => {
+      if (done % progressEvery === 0) parentPort!.postMessage({ job, progress: done } satisfies RangeMessage<T>);
+    });
+    parentPort!.postMessage(
+      { job, result } satisfies RangeMessage<T>,
+      Object.values<Float64Array>(result).map((a) => a.buffer as ArrayBuffer),
+    );
   });
-  parentPort!.postMessage(
-    { result } satisfies RangeMessage<T>,
-    Object.values<Float64Array>(result).map((a) => a.buffer as ArrayBuffer),
-  );
 }
