@@ -15,7 +15,10 @@ const chartName = (key: SeriesChart) => (key === 'record' ? 'Record and trend' :
  * series and in every browser they sign in from.
  */
 export function ChartChooser({ available, chosen, onChange }: { available: SeriesChart[]; chosen: SeriesChart[]; onChange: (charts: SeriesChart[]) => void }) {
+  // One save at a time, in the order made: quick clicks sent side by side could reach the server out of order and
+  // leave an older choice stored.
   const save = useMutation({
+    scope: { id: 'series-charts' },
     mutationFn: (seriesCharts: SeriesChart[]) => api<Preferences>('/api/account/preferences', { method: 'PUT', body: { seriesCharts } }),
   });
   const apply = (next: SeriesChart[]) => {
