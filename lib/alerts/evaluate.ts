@@ -4,9 +4,8 @@ import { createAlert } from './open';
 import { latestRuleCalibration, type RuleCalibration } from '@/lib/backtest/jobs';
 import { trendDirectionOf, type TrendDirection } from '@/lib/engine/direction';
 import { portfolioFdr, type PortfolioEntry } from './portfolio-fdr';
-import { enqueueMail } from '@/lib/mail/outbox';
 import { newAlertMail } from '@/lib/mail/templates';
-import { watchersOf } from '@/lib/mail/watches';
+import { mailAlertWatchers } from '@/lib/mail/watches';
 import { evidenceFrom, snapshotTaus } from './evidence';
 import { indicatorFacts, type StoredSummary } from './facts';
 import { seriesBreaks } from '@/lib/analysis/snapshot';
@@ -190,10 +189,38 @@ export async function actOnJudgement(args: {
   return { result: 'opened', alertId: (await args.open()).id };
 }
 
-async function mailWatchers(alert: Alert, series: Series, mail: ReturnType<typeof newAlertMail>, kind: string, transaction: Transaction) {
-  for (const user of await watchersOf(series.id, ['immediate'], transaction)) {
-    await enqueueMail({ kind, dedupeKey: `${kind}:${alert.id}:user-${user.id}`, to: user.email, ...mail }, transaction);
-  }
+/**
+ * Where one kind of rule keeps its judgements (series rules in rule_evaluations, site rules in
+ * site_rule_evaluations), for one rule and snapshot: whether that pair is judged already, the rule's judgement on
+ * the snapshot before, and how the new one is written.
+ */
+export interface JudgementTrail {
+  judged(transaction: Transaction): Promise<boolean>;
+  previous(transaction: Transaction): Promise<{ passed: boolean; streak: number } | null>;
+  write(entry: { streak: number; alertId: number | null; outcome: string }, transaction: Transaction): Promise<unknown>;
+}
+
+/**
+ * Judges a rule on one snapshot exactly once, in one write transaction: null for a pair judged already (by this or
+ * another scheduler); otherwise the streak continues the previous judgement's when both passed, the judgement is
+ * acted on (actOnJudgement), and the evaluation is written with the alert it opened or extended, so a crash never
+ * leaves an alert without its evaluation or the other way round. O(1) queries.
+ */
+export async function judgeOnce(
+  args: Omit<Parameters<typeof actOnJudgement>[0], 'streak' | 'transaction' | 'open'> & {
+    open: (transaction: Transaction) => Promise<Alert>;
+    trail: JudgementTrail;
+  },
+): Promise<{ result: EvaluationOutcome; alertId: number | null } | null> {
+  const { trail, judgement, open } = args;
+  return writeTransaction(async (transaction) => {
+    if (await trail.judged(transaction)) return null;
+    const previous = await trail.previous(transaction);
+    const streak = judgement.passed ? (previous?.passed ? previous.streak + 1 : 1) : 0;
+    const acted = await actOnJudgement({ ...args, streak, open: () => open(transaction), transaction });
+    await trail.write({ streak, alertId: acted.alertId, outcome: outcomeText(judgement, acted.result) }, transaction);
+    return acted;
+  });
 }
 
 async function openAlert(
@@ -221,7 +248,7 @@ async function openAlert(
     transaction,
   );
   const evidence = evidenceFrom(alert, series, rule, snapshot, calibration, taus);
-  await mailWatchers(alert, series, newAlertMail(evidence), 'alert-new', transaction);
+  await mailAlertWatchers(alert, newAlertMail(evidence), 'alert-new', transaction);
   await enqueueWebhookEvent('alert.opened', alertWebhookPayload('alert.opened', evidence, null, alert.createdAt), transaction);
   return alert;
 }
@@ -287,7 +314,7 @@ async function openShiftAlert(series: Series, snapshot: AnalysisSnapshot): Promi
       transaction,
     );
     const evidence = evidenceFrom(alert, series, null, snapshot, null);
-    await mailWatchers(alert, series, newAlertMail(evidence), 'alert-shift', transaction);
+    await mailAlertWatchers(alert, newAlertMail(evidence), 'alert-shift', transaction);
     await enqueueWebhookEvent('alert.abrupt-shift', alertWebhookPayload('alert.abrupt-shift', evidence, null, alert.createdAt), transaction);
     return alert.id;
   });
@@ -390,44 +417,35 @@ export async function evaluateSnapshots(snapshots: AnalysisSnapshot[], now = new
       snapshot.status === 'ok'
         ? judgeRule(rule, snapshot.summary as StoredSummary, qOf(index), taus)
         : { ...emptyJudgement(rule), cannotJudge: `the analysis failed: ${snapshot.error ?? 'no reason given'}` };
-    const outcome = await writeTransaction(async (transaction) => {
-      const seen = await RuleEvaluation.findOne({ where: { ruleId: rule.id, snapshotId: snapshot.id }, attributes: ['id'], transaction });
-      if (seen) return null;
-      const previous = await RuleEvaluation.findOne({
-        where: { ruleId: rule.id, snapshotId: { [Op.lt]: snapshot.id } },
-        order: [['snapshotId', 'DESC']],
-        transaction,
-      });
-      const streak = judgement.passed ? (previous?.passed ? previous.streak + 1 : 1) : 0;
-      const { result, alertId } = await actOnJudgement({
-        rule,
-        judgement,
-        streak,
-        scope: seriesScope(series.id),
-        snapshotId: snapshot.id,
-        now,
-        open: () => openAlert(rule, series, snapshot, judgement, calibrations.get(rule.id) ?? null, taus, transaction),
-        transaction,
-      });
-      await RuleEvaluation.create(
-        {
-          ruleId: rule.id,
-          seriesId: series.id,
-          snapshotId: snapshot.id,
-          direction: rule.direction,
-          tau: judgement.tau,
-          kendallP: judgement.kendallP,
-          surrogateP: judgement.surrogateP,
-          qValue: judgement.qValue,
-          level: judgement.level,
-          passed: judgement.passed,
-          streak,
-          alertId,
-          outcome: outcomeText(judgement, result),
-        },
-        { transaction },
-      );
-      return { result, alertId };
+    const outcome = await judgeOnce({
+      rule,
+      judgement,
+      scope: seriesScope(series.id),
+      snapshotId: snapshot.id,
+      now,
+      open: (transaction) => openAlert(rule, series, snapshot, judgement, calibrations.get(rule.id) ?? null, taus, transaction),
+      trail: {
+        judged: async (transaction) => (await RuleEvaluation.count({ where: { ruleId: rule.id, snapshotId: snapshot.id }, transaction })) > 0,
+        previous: (transaction) =>
+          RuleEvaluation.findOne({ where: { ruleId: rule.id, snapshotId: { [Op.lt]: snapshot.id } }, order: [['snapshotId', 'DESC']], transaction }),
+        write: (entry, transaction) =>
+          RuleEvaluation.create(
+            {
+              ruleId: rule.id,
+              seriesId: series.id,
+              snapshotId: snapshot.id,
+              direction: rule.direction,
+              tau: judgement.tau,
+              kendallP: judgement.kendallP,
+              surrogateP: judgement.surrogateP,
+              qValue: judgement.qValue,
+              level: judgement.level,
+              passed: judgement.passed,
+              ...entry,
+            },
+            { transaction },
+          ),
+      },
     });
     if (!outcome) {
       report.skipped++;

@@ -1,12 +1,11 @@
-import { Op, QueryTypes, type Transaction } from 'sequelize';
+import { Op, QueryTypes } from 'sequelize';
 import { Alert, AlertEvent, Series, db, writeTransaction, OPEN_ALERT_STATES } from '@/models';
 import { recordAudit } from '@/lib/audit';
 import { createAlert } from './open';
-import { enqueueMail } from '@/lib/mail/outbox';
 import { enqueueWebhookEvent } from '@/lib/webhooks/outbox';
 import { dataLatePayload } from '@/lib/webhooks/payloads';
 import { dataBackMail, dataLateMail } from '@/lib/mail/templates';
-import { watchersOfAlert } from '@/lib/mail/watches';
+import { mailAlertWatchers } from '@/lib/mail/watches';
 
 /** How many sampling intervals may pass without new data before a series counts as late (common practice for loggers: one missed delivery is noise, three is a silence). */
 export const LATE_AFTER_INTERVALS = 3;
@@ -97,13 +96,6 @@ export async function checkFreshness(now = Date.now()): Promise<FreshnessReport>
   return report;
 }
 
-async function mailWatchers(alert: Alert, mail: { subject: string; text: string; html: string }, kind: string, transaction: Transaction): Promise<void> {
-  // Digest readers hear of it in their next digest, which lists alerts opened or closed since the last one.
-  for (const user of await watchersOfAlert(alert, ['immediate'], transaction)) {
-    await enqueueMail({ kind, dedupeKey: `${kind}:${alert.id}:user-${user.id}`, to: user.email, ...mail }, transaction);
-  }
-}
-
 async function openLateAlert(seriesId: number, lastDataAt: number, snapshotId: number, now: number): Promise<number | null> {
   return writeTransaction(async (transaction) => {
     // Re-read inside the write lock: another scheduler may have opened it since the pass's query.
@@ -133,7 +125,7 @@ async function openLateAlert(seriesId: number, lastDataAt: number, snapshotId: n
       },
       transaction,
     );
-    await mailWatchers(alert, dataLateMail({ alertId: alert.id, series, lastDataAt, lateAfterMs: allowed, now }), 'alert-data-late', transaction);
+    await mailAlertWatchers(alert, dataLateMail({ alertId: alert.id, series, lastDataAt, lateAfterMs: allowed, now }), 'alert-data-late', transaction);
     await enqueueWebhookEvent(
       'data.late',
       dataLatePayload({ alertId: alert.id, lastDataAt, lateAfterMs: allowed }, { slug: series.slug, name: series.name, site: series.site }, new Date(now)),
@@ -179,7 +171,7 @@ async function closeReturned(alertId: number, now: number): Promise<boolean> {
     );
     // a data-late alert is always on a series
     const series = (await Series.findByPk(alert.seriesId!, { transaction }))!;
-    await mailWatchers(alert, dataBackMail({ alertId, series, lastDataAt: alert.dataLastAt, backAt }), 'alert-data-back', transaction);
+    await mailAlertWatchers(alert, dataBackMail({ alertId, series, lastDataAt: alert.dataLastAt, backAt }), 'alert-data-back', transaction);
     return true;
   });
 }

@@ -3,14 +3,13 @@ import { Alert, AlertRule, Site, SiteRuleEvaluation, SiteSnapshot, db, writeTran
 import { NotFoundError } from '@/lib/http/errors';
 import { recordAudit } from '@/lib/audit';
 import type { Actor } from '@/lib/auth/roles';
-import { enqueueMail } from '@/lib/mail/outbox';
 import { newAlertMail } from '@/lib/mail/templates';
-import { watchersOfAlert } from '@/lib/mail/watches';
+import { mailAlertWatchers } from '@/lib/mail/watches';
 import { enqueueWebhookEvent } from '@/lib/webhooks/outbox';
 import { alertWebhookPayload } from '@/lib/webhooks/payloads';
 import { siteRuleCreateSchema, type SiteRuleCreateInput } from '@/lib/schemas/rule';
 import type { SiteAnalysisSummary } from '@/lib/sites/analysis-shape';
-import { actOnJudgement, emptyJudgement, judgeRule, outcomeText, type AlertScope, type Judgement } from './evaluate';
+import { emptyJudgement, judgeOnce, judgeRule, type AlertScope, type Judgement } from './evaluate';
 import { createAlert } from './open';
 import { presentRule, standingOf } from './rules';
 import { siteEvidenceFrom, siteSummaryForRules } from './site-evidence';
@@ -68,10 +67,7 @@ async function openSiteAlert(rule: AlertRule, site: Site, snapshot: SiteSnapshot
     transaction,
   );
   const evidence = siteEvidenceFrom(alert, site, rule, snapshot);
-  const mail = newAlertMail(evidence);
-  for (const user of await watchersOfAlert(alert, ['immediate'], transaction)) {
-    await enqueueMail({ kind: 'alert-new', dedupeKey: `alert-new:${alert.id}:user-${user.id}`, to: user.email, ...mail }, transaction);
-  }
+  await mailAlertWatchers(alert, newAlertMail(evidence), 'alert-new', transaction);
   await enqueueWebhookEvent('alert.opened', alertWebhookPayload('alert.opened', evidence, null, alert.createdAt), transaction);
   return alert;
 }
@@ -119,42 +115,37 @@ export async function evaluateSiteRules(now = new Date()): Promise<SiteEvaluatio
       snapshot.status === 'ok'
         ? judgeRule(rule, siteSummaryForRules(snapshot.summary as SiteAnalysisSummary, snapshot.dataTo))
         : { ...emptyJudgement(rule), cannotJudge: `the site analysis could not run: ${snapshot.error ?? 'no reason given'}` };
-    const outcome = await writeTransaction(async (transaction) => {
-      const seen = await SiteRuleEvaluation.findOne({ where: { ruleId: rule.id, siteSnapshotId: snapshot.id }, attributes: ['id'], transaction });
-      if (seen) return null;
-      const previous = await SiteRuleEvaluation.findOne({
-        where: { ruleId: rule.id, siteSnapshotId: { [Op.lt]: snapshot.id } },
-        order: [['siteSnapshotId', 'DESC']],
-        transaction,
-      });
-      const streak = judgement.passed ? (previous?.passed ? previous.streak + 1 : 1) : 0;
-      const acted = await actOnJudgement({
-        rule,
-        judgement,
-        streak,
-        scope: siteScope(site.id),
-        snapshotId: snapshot.id,
-        now,
-        open: () => openSiteAlert(rule, site, snapshot, judgement, transaction),
-        transaction,
-      });
-      await SiteRuleEvaluation.create(
-        {
-          ruleId: rule.id,
-          siteId: site.id,
-          siteSnapshotId: snapshot.id,
-          direction: rule.direction,
-          tau: judgement.tau,
-          surrogateP: judgement.surrogateP,
-          level: judgement.level,
-          passed: judgement.passed,
-          streak,
-          alertId: acted.alertId,
-          outcome: outcomeText(judgement, acted.result),
-        },
-        { transaction },
-      );
-      return acted;
+    const outcome = await judgeOnce({
+      rule,
+      judgement,
+      scope: siteScope(site.id),
+      snapshotId: snapshot.id,
+      now,
+      open: (transaction) => openSiteAlert(rule, site, snapshot, judgement, transaction),
+      trail: {
+        judged: async (transaction) => (await SiteRuleEvaluation.count({ where: { ruleId: rule.id, siteSnapshotId: snapshot.id }, transaction })) > 0,
+        previous: (transaction) =>
+          SiteRuleEvaluation.findOne({
+            where: { ruleId: rule.id, siteSnapshotId: { [Op.lt]: snapshot.id } },
+            order: [['siteSnapshotId', 'DESC']],
+            transaction,
+          }),
+        write: (entry, transaction) =>
+          SiteRuleEvaluation.create(
+            {
+              ruleId: rule.id,
+              siteId: site.id,
+              siteSnapshotId: snapshot.id,
+              direction: rule.direction,
+              tau: judgement.tau,
+              surrogateP: judgement.surrogateP,
+              level: judgement.level,
+              passed: judgement.passed,
+              ...entry,
+            },
+            { transaction },
+          ),
+      },
     });
     if (!outcome) continue;
     report.evaluated++;

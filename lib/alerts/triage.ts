@@ -4,9 +4,8 @@ import { ConflictError, ForbiddenError, NotFoundError, UnprocessableError } from
 import { recordAudit } from '@/lib/audit';
 import type { Actor } from '@/lib/auth/roles';
 import { sqlDate } from '@/lib/db/sql-date';
-import { enqueueMail } from '@/lib/mail/outbox';
 import { escalationMail, signOffMail } from '@/lib/mail/templates';
-import { watchersOfAlert } from '@/lib/mail/watches';
+import { mailEach, watchersOfAlert } from '@/lib/mail/watches';
 import { triageActionSchema, type DismissReason, type TriageActionInput, type TriageAction } from '@/lib/schemas/alert';
 import { alertEvidence } from './evidence';
 import { enqueueWebhookEvent } from '@/lib/webhooks/outbox';
@@ -149,9 +148,7 @@ export async function applyTriageAction(alertId: number, input: TriageActionInpu
         command.action === 'escalate'
           ? [escalationMail(evidence, actor.name, note), await activeLeads(transaction), 'alert-escalated']
           : [signOffMail(evidence, actor.name, note), await watchersOfAlert(alert, ['immediate', 'digest'], transaction), 'alert-confirmed'];
-      for (const user of recipients) {
-        await enqueueMail({ kind, dedupeKey: `${kind}:${alert.id}:event-${event.id}:user-${user.id}`, to: user.email, ...mail }, transaction);
-      }
+      await mailEach(recipients, kind, `${alert.id}:event-${event.id}`, mail, transaction);
     }
     return { id: alert.id, state: to, version: updated[0].version, assigneeId, eventId: event.id };
   });

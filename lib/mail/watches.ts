@@ -4,6 +4,8 @@ import type { WatchMode } from '@/models/Watch';
 import type { Actor, Role } from '@/lib/auth/roles';
 import { UnprocessableError } from '@/lib/http/errors';
 import { recordAudit } from '@/lib/audit';
+import { enqueueMail } from '@/lib/mail/outbox';
+import type { RenderedMail } from '@/lib/mail/templates';
 
 /**
  * Sets one user's mail preference for one series ('none' keeps the row, so the choice is remembered): the signed-in
@@ -93,4 +95,33 @@ export async function watchersOfAlert(alert: Pick<Alert, 'seriesId' | 'siteId'>,
         transaction,
       )
     : [];
+}
+
+/**
+ * Queues `mail` to each of `recipients` in the caller's transaction, once per person and event: the dedupe key is
+ * `${kind}:${event}:user-${id}`, so a repeated call (another scheduler, a retry) queues nothing more. O(recipients).
+ */
+export async function mailEach(
+  recipients: Pick<User, 'id' | 'email'>[],
+  kind: string,
+  event: string,
+  mail: RenderedMail,
+  transaction: Transaction,
+): Promise<void> {
+  for (const user of recipients) {
+    await enqueueMail({ kind, dedupeKey: `${kind}:${event}:user-${user.id}`, to: user.email, ...mail }, transaction);
+  }
+}
+
+/**
+ * Mails the people who hear of an alert at once (watchersOfAlert, mode 'immediate'); digest readers hear of it in
+ * their next digest, which lists alerts opened or closed since the last one.
+ */
+export async function mailAlertWatchers(
+  alert: Pick<Alert, 'id' | 'seriesId' | 'siteId'>,
+  mail: RenderedMail,
+  kind: string,
+  transaction: Transaction,
+): Promise<void> {
+  await mailEach(await watchersOfAlert(alert, ['immediate'], transaction), kind, String(alert.id), mail, transaction);
 }
