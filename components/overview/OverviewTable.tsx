@@ -11,7 +11,7 @@ import { DataTable } from '@/components/ui/DataTable';
 import { CONTROL, Field } from '@/components/ui/Field';
 import { formatDirection, indicatorLabel } from '@/lib/display/analysis-labels';
 import { formatAge, formatP, formatTau } from '@/lib/display/format';
-import type { OverviewRow, SeriesState } from '@/lib/overview';
+import type { OverviewRow, SeriesState, SiteAlertGroup } from '@/lib/overview';
 import { SiteNameSelect } from '@/components/sites/SiteNameSelect';
 
 type SortKey = 'name' | 'site' | 'lastData' | 'state' | 'tau';
@@ -89,6 +89,16 @@ function SiteName({ row }: { row: OverviewRow }) {
   );
 }
 
+/** In a site's heading: how many alerts are open on its site-level indicators, linked to the site page. */
+function SiteAlertNote({ group }: { group: SiteAlertGroup | undefined }) {
+  if (!group) return null;
+  return (
+    <Link href={`/sites/${group.siteSlug}#site-indicators`} className="ml-2 text-xs font-normal text-warning hover:underline" data-testid="site-alert-note">
+      · {group.count} site {group.count === 1 ? 'alert' : 'alerts'} open
+    </Link>
+  );
+}
+
 /**
  * The network's series, filtered, sorted and (with more than one site) optionally grouped by site: each group
  * under a heading row naming its site, in the chosen order within it. The site page shows its own rows here too.
@@ -96,12 +106,15 @@ function SiteName({ row }: { row: OverviewRow }) {
 export function OverviewTable({
   rows,
   sites,
+  siteAlerts = [],
   now,
   noSeries,
   siteColumn = true,
 }: {
   rows: OverviewRow[];
   sites: string[];
+  /** open site-level alerts, named in their site's heading when grouped */
+  siteAlerts?: SiteAlertGroup[];
   now: number;
   /** what to say when there are no rows at all */
   noSeries?: ReactNode;
@@ -239,6 +252,7 @@ export function OverviewTable({
                 <tr className="border-t border-rule bg-paper" data-site-group={row.siteSlug ?? ''}>
                   <th scope="colgroup" colSpan={siteColumn ? 6 : 5} className="px-3 py-1.5 text-left font-semibold">
                     {row.site ? <SiteName row={row} /> : 'No site'} <span className="font-normal text-ink-soft">· {groupSizes.get(row.site)} series</span>
+                    <SiteAlertNote group={siteAlerts.find((g) => g.siteSlug === row.siteSlug)} />
                   </th>
                 </tr>
               ) : null}

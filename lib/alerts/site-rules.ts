@@ -27,14 +27,14 @@ export async function listSiteRules(siteId: number): Promise<AlertRule[]> {
   return AlertRule.findAll({ where: { siteId }, order: [['id', 'ASC']] });
 }
 
-/** Adds a rule on a site's site-level indicators (siteRuleCreateSchema), audited with its reason. */
-export async function createSiteRule(siteId: number, input: SiteRuleCreateInput, actor: Pick<Actor, 'id'>): Promise<AlertRule> {
+/** Adds a rule on a site's site-level indicators (siteRuleCreateSchema), audited with its reason (actor null: the demo seed). */
+export async function createSiteRule(siteId: number, input: SiteRuleCreateInput, actor: Pick<Actor, 'id'> | null): Promise<AlertRule> {
   const { reason, ...fields } = siteRuleCreateSchema.parse(input);
   return writeTransaction(async (transaction) => {
     if (!(await Site.findByPk(siteId, { transaction, attributes: ['id'] }))) throw new NotFoundError('Site');
-    const rule = await AlertRule.create({ ...fields, seriesId: null, siteId, createdBy: actor.id }, { transaction });
+    const rule = await AlertRule.create({ ...fields, seriesId: null, siteId, createdBy: actor?.id ?? null }, { transaction });
     await recordAudit(
-      { actorId: actor.id, action: 'rule.create', entity: 'alert_rule', entityId: rule.id, details: { siteId, ...fields, reason: reason ?? null } },
+      { actorId: actor?.id ?? null, action: 'rule.create', entity: 'alert_rule', entityId: rule.id, details: { siteId, ...fields, reason: reason ?? null } },
       transaction,
     );
     return rule;

@@ -1,5 +1,6 @@
 import { analysisSettingsSchema, type AnalysisSettings, type IndicatorName } from '@/lib/engine/settings';
 import type { SeriesCreateInput } from '@/lib/schemas/series';
+import type { SiteRuleCreateInput } from '@/lib/schemas/rule';
 import { RandomStream } from '@/lib/engine/random';
 import {
   cessiDynamics,
@@ -153,6 +154,26 @@ const SLOWING_DOWN_RULES: DemoRule[] = [
  * surrogates (the Kendall p assumes independent values, which overlapping windows are not, so it gates nothing).
  */
 const HIGH_MEMORY_RULE = rule({ indicator: 'ac1', minTau: 0.3, maxSurrogateP: 0.05, levelThreshold: 0.9, severity: 'watch', quietPeriodHours: 48 });
+
+/**
+ * The rule the demo sets on a site's site-level indicators: at the fen plot the sedge biomass nears its fold while
+ * the water table is a stationary control, so the memory of the slowest-changing combination of the two (maf-ac1)
+ * is watched for a rise against surrogates, as a lead would watch a sonde or logger array.
+ */
+export const DEMO_SITE_RULES: readonly { site: string; rule: SiteRuleCreateInput }[] = [
+  {
+    site: DEMO_SITES.fen,
+    rule: {
+      indicator: 'maf-ac1',
+      minTau: 0.4,
+      maxSurrogateP: 0.05,
+      persistence: 2,
+      severity: 'watch',
+      quietPeriodHours: 72,
+      reason: 'Demo: the plot’s sensors watched together for slowing down.',
+    },
+  },
+];
 
 /** Controls carry the same rules as the watched records, so a firing on them shows the false-alarm rate. */
 const CONTROL_RULES: DemoRule[] = [SLOWING_DOWN_RULES[0], rule({ indicator: 'sd', minTau: 0.4, maxSurrogateP: 0.05, severity: 'watch', quietPeriodHours: 48 })];

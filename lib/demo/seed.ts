@@ -4,7 +4,8 @@ import { readAppState, writeAppState } from '@/lib/db/app-state';
 import { recordAudit } from '@/lib/audit';
 import { createSeries } from '@/lib/series/registry';
 import { suggestSlug } from '@/lib/schemas/series';
-import { DEMO_SITE_PLACES, buildDemoScenario, type DemoSeries } from './scenario';
+import { createSiteRule } from '@/lib/alerts/site-rules';
+import { DEMO_SITE_PLACES, DEMO_SITE_RULES, buildDemoScenario, type DemoSeries } from './scenario';
 
 /** The four demo accounts, one per role; all share the password given at start (DEMO_PASSWORD). */
 export const DEMO_USERS: readonly { email: string; name: string; role: Role }[] = [
@@ -70,8 +71,8 @@ async function fillSeries(series: Series, demo: DemoSeries, actorId: number | nu
 }
 
 /**
- * Seeds the demo network (lib/demo/scenario.ts) with records ending just before now (demoRecordEnd): each series through
- * `createSeries`, then its observations, rules, marks and watches in one transaction per series.
+ * Seeds the demo network (lib/demo/scenario.ts) with records ending just before now (demoRecordEnd): the sites and
+ * their site rules, each series through `createSeries`, then its observations, rules, marks and watches in one transaction per series.
  * Resumable: a series whose registry entry exists but holds no observations (a crash between the two
  * transactions) is filled now; a filled one is left alone. Returns what this call added.
  */
@@ -85,6 +86,10 @@ export async function seedDemoScenario(actorId: number | null): Promise<{ series
   for (const place of DEMO_SITE_PLACES) {
     if (await Site.findOne({ where: { name: place.name } })) continue;
     await Site.create({ slug: suggestSlug(place.name), ...place });
+  }
+  for (const { site: name, rule } of DEMO_SITE_RULES) {
+    const site = await Site.findOne({ where: { name }, attributes: ['id'] });
+    if (site && !(await AlertRule.count({ where: { siteId: site.id } }))) await createSiteRule(site.id, rule, actorId === null ? null : { id: actorId });
   }
   for (const demo of buildDemoScenario(new Date())) {
     let series = await Series.findOne({ where: { slug: demo.input.slug } });

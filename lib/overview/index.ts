@@ -57,10 +57,19 @@ export interface QueueCounts {
   open: number;
 }
 
+/** The open alerts on a site's site-level indicators (rules on the site, not on one of its series). */
+export interface SiteAlertGroup {
+  site: string;
+  siteSlug: string;
+  count: number;
+  severity: 'watch' | 'warning';
+}
+
 export interface SeriesOverview {
   rows: OverviewRow[];
   queues: QueueCounts;
   sites: string[];
+  siteAlerts: SiteAlertGroup[];
   generatedAt: number;
 }
 
@@ -174,6 +183,7 @@ export async function fetchSeriesOverview(actorId: number | null = null, now = D
     rows: stored.rows.map((row) => ({ ...row, freshness: freshnessOf(row.lastDataAt, row.intervalMs, now, row.lateAfterMs) })),
     queues,
     sites: stored.sites,
+    siteAlerts: stored.siteAlerts,
     generatedAt: now,
   };
 }
@@ -181,19 +191,20 @@ export async function fetchSeriesOverview(actorId: number | null = null, now = D
 interface StoredOverview {
   rows: Omit<OverviewRow, 'freshness'>[];
   sites: string[];
+  siteAlerts: SiteAlertGroup[];
   alertGroups: AlertCountRow[];
 }
 
 /**
- * Three aggregate queries run in parallel (series with their last observation and latest snapshot; active rules
- * with their latest evaluation; open alerts grouped by series, severity, state and assignee), each using an index
- * per series or rule, so the cost grows with the number of series and rules, not with observations or alerts.
+ * Four aggregate queries run in parallel (series with their last observation and latest snapshot; active rules
+ * with their latest evaluation; open alerts grouped by series, severity, state and assignee; open site alerts by
+ * site and severity), each using an index per series, rule or site, so the cost grows with the number of series and rules, not with observations or alerts.
  * Only the pieces of the snapshot JSON the table shows are extracted in SQL; sparklines come from the snapshot
  * curves once per snapshot (see `sparklines`).
  */
 async function loadOverview(): Promise<StoredOverview> {
   const sequelize = await db();
-  const [series, rules, alerts] = await Promise.all([
+  const [series, rules, alerts, siteAlertRows] = await Promise.all([
     sequelize.query<SeriesRow>(
       `WITH base AS (
          SELECT s.*,
@@ -222,7 +233,23 @@ async function loadOverview(): Promise<StoredOverview> {
        FROM alerts WHERE state IN (${OPEN}) GROUP BY series_id, severity, state, assignee_id`,
       { type: QueryTypes.SELECT },
     ),
+    sequelize.query<{ site: string; site_slug: string; severity: 'watch' | 'warning'; n: number }>(
+      `SELECT st.name AS site, st.slug AS site_slug, a.severity, COUNT(*) AS n
+       FROM alerts a JOIN sites st ON st.id = a.site_id
+       WHERE a.series_id IS NULL AND a.state IN (${OPEN}) GROUP BY st.name, st.slug, a.severity`,
+      { type: QueryTypes.SELECT },
+    ),
   ]);
+  const siteAlertsBySlug = new Map<string, SiteAlertGroup>();
+  for (const row of siteAlertRows) {
+    const current = siteAlertsBySlug.get(row.site_slug);
+    siteAlertsBySlug.set(row.site_slug, {
+      site: row.site,
+      siteSlug: row.site_slug,
+      count: (current?.count ?? 0) + Number(row.n),
+      severity: current?.severity === 'warning' || row.severity === 'warning' ? 'warning' : 'watch',
+    });
+  }
 
   const sparks = await sparklines(series);
   const rulesBySeries = new Map<number, RuleRow[]>();
@@ -287,5 +314,6 @@ async function loadOverview(): Promise<StoredOverview> {
     };
   });
   const sites = [...new Set(rows.map((r) => r.site).filter(Boolean))].sort();
-  return { rows, sites, alertGroups: alerts };
+  const siteAlerts = [...siteAlertsBySlug.values()].sort((a, b) => a.site.localeCompare(b.site));
+  return { rows, sites, siteAlerts, alertGroups: alerts };
 }

@@ -17,6 +17,7 @@ const { acknowledgeAlert, dismissAlert } = await import('@/lib/alerts/triage');
 const { newAlertMail } = await import('@/lib/mail/templates');
 const { setWatch } = await import('@/lib/mail/watches');
 const { fetchSitePage } = await import('@/lib/sites/page-data');
+const { fetchSeriesOverview } = await import('@/lib/overview');
 const { alertQueueSchema } = await import('@/lib/schemas/alert');
 const { simulateAr1 } = await import('@/lib/demo/models');
 const { requestBacktest } = await import('@/lib/backtest/jobs');
@@ -120,6 +121,10 @@ describe('rules on the site-level indicators', () => {
     expect(page.openAlerts.map((a) => [a.id, a.series])).toEqual([[alert.id, null]]);
     const statuses = await siteRuleStatuses(siteId);
     expect(statuses.find((s) => s.rule.id === rule.id)).toMatchObject({ standing: 'met', openAlert: { id: alert.id } });
+    // the overview, whose rows are series, names the site with its open site alert and counts it in the queues
+    const overview = await fetchSeriesOverview(lead.id);
+    expect(overview.siteAlerts).toEqual([{ site: 'Mooring', siteSlug: 'mooring', count: 1, severity: rule.severity }]);
+    expect(overview.queues).toMatchObject({ open: 1, triage: 1 });
 
     // more passing evidence extends the open alert rather than opening another
     await deliver(6, 43);

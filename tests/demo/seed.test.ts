@@ -7,7 +7,7 @@ process.env.BCRYPT_COST = '10';
 const { migrateUp } = await import('@/migrations');
 const { AlertRule, AppState, Observation, Series, SettingsChange, Mark, Site, User, Watch, closeDatabase, db } = await import('@/models');
 const { verifyPassword } = await import('@/lib/auth/password');
-const { DEMO_SITE_PLACES, buildDemoScenario } = await import('@/lib/demo/scenario');
+const { DEMO_SITE_PLACES, DEMO_SITE_RULES, buildDemoScenario } = await import('@/lib/demo/scenario');
 const { DEMO_USERS, seedDemoScenario, seedIfEmpty } = await import('@/lib/demo/seed');
 
 const PASSWORD = 'demo-seed-test-pw';
@@ -32,7 +32,7 @@ const FULL = {
   users: 4,
   series: expected.length,
   observations: expectedObservations,
-  rules: expected.reduce((sum, s) => sum + s.rules.length, 0),
+  rules: expected.reduce((sum, s) => sum + s.rules.length, 0) + DEMO_SITE_RULES.length,
   marks: expected.reduce((sum, s) => sum + s.marks.length, 0),
   watches: 2 * expected.length,
 };
@@ -95,6 +95,12 @@ describe('seedIfEmpty', () => {
       [...DEMO_SITE_PLACES].sort((a, b) => a.name.localeCompare(b.name)).map((place) => [place.name, place.latitude, place.longitude]),
     );
     expect(await Series.count({ where: { siteId: null } })).toBe(0);
+    // and the site rule on the site-level indicators sits on its site, looking for a rise
+    for (const { site: name, rule } of DEMO_SITE_RULES) {
+      const site = await Site.findOne({ where: { name } });
+      const stored = await AlertRule.findAll({ where: { siteId: site!.id }, raw: true });
+      expect(stored.map((r) => [r.indicator, r.direction, r.seriesId, r.createdBy])).toEqual([[rule.indicator, 'rising', null, lead!.id]]);
+    }
     expect(await AppState.findByPk('seed.completed')).not.toBeNull();
   });
 

@@ -1,6 +1,7 @@
 import { Caution } from '@/components/Caution';
 import { OverviewTable } from '@/components/overview/OverviewTable';
 import { QueueCounts } from '@/components/overview/QueueCounts';
+import { SiteAlerts } from '@/components/overview/SiteAlerts';
 import Link from 'next/link';
 import { requireRole } from '@/lib/auth/guard';
 import { roleAtLeast } from '@/lib/auth/roles';
@@ -27,7 +28,8 @@ export default async function OverviewPage() {
       </div>
       <Caution />
       <QueueCounts counts={overview.queues} />
-      <OverviewTable rows={overview.rows} sites={overview.sites} now={overview.generatedAt} />
+      <SiteAlerts groups={overview.siteAlerts} />
+      <OverviewTable rows={overview.rows} sites={overview.sites} siteAlerts={overview.siteAlerts} now={overview.generatedAt} />
     </section>
   );
 }
