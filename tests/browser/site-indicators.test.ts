@@ -75,6 +75,12 @@ describe('site-level indicators, the restoring-rate band and the stride setting 
     await expect(page.getByRole('heading', { level: 1 }).textContent()).resolves.toMatch(/on site /);
     await page.getByTestId('site-chart-pc1-variance').locator('.recharts-line').first().waitFor();
     await expect(page.getByTestId('site-chart-maf-ac1').count()).resolves.toBe(0);
+    // the overview, whose rows are series, names the site with its open site alert and leads to the site page
+    await page.goto(`${app.baseUrl}/`);
+    const strip = page.getByTestId('overview-site-alerts');
+    await expect(strip.locator(`[data-site="${SITE}"]`).textContent()).resolves.toMatch(/Veskary Sound Mooring\s*1 open alert on the site-level indicators/);
+    await strip.getByRole('link', { name: 'Veskary Sound Mooring' }).click();
+    await page.waitForURL(`**/sites/${SITE}#site-indicators`);
   }, 200_000);
 
   it('a series computing the restoring rate draws its ±1.96 SE band, and its settings offer the stride', async () => {
