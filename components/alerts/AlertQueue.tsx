@@ -8,26 +8,22 @@ import { api } from '@/components/api';
 import { AlertStateBadge, SeverityBadge } from '@/components/Badges';
 import { LocalTime } from '@/components/LocalTime';
 import { SeriesPicker } from '@/components/SeriesPicker';
+import { SiteNameSelect } from '@/components/sites/SiteNameSelect';
 import type { SeriesChoice } from '@/lib/series/registry';
 import { Empty, ErrorNote, Loading } from '@/components/States';
 import { CELL, DataTable } from '@/components/ui/DataTable';
 import { CONTROL, Field } from '@/components/ui/Field';
 import { Pager, pageCount } from '@/components/ui/Pager';
 import { formatP, formatValue } from '@/lib/display/format';
-import { indicatorLabel } from '@/lib/display/analysis-labels';
+import { ALERT_KIND_WORDS, indicatorLabel } from '@/lib/display/analysis-labels';
 import { tauWithDirection } from '@/lib/alerts/wording';
 import type { AlertListItem } from '@/lib/alerts/queries';
-
-const KIND_WORDS: Record<AlertListItem['kind'], string> = {
-  'slowing-down': 'slowing down',
-  'abrupt-shift': 'abrupt shift',
-  'data-late': 'data late',
-  'site-slowing-down': 'slowing down across a site',
-};
 
 export interface QueueFilters {
   queue: 'triage' | 'escalated' | 'mine' | 'closed';
   series: string;
+  /** a site's slug */
+  site: string;
   severity: '' | 'watch' | 'warning';
   kind: '' | AlertListItem['kind'];
   age: string;
@@ -68,6 +64,7 @@ const PAGE_SIZE = 25;
 function queueSearch(f: QueueFilters): string {
   const params = new URLSearchParams({ queue: f.queue, sort: f.sort, page: String(f.page), pageSize: String(PAGE_SIZE) });
   if (f.series) params.set('series', f.series);
+  if (f.site) params.set('site', f.site);
   if (f.severity) params.set('severity', f.severity);
   if (f.kind) params.set('kind', f.kind);
   if (f.age) params.set('age', f.age);
@@ -79,10 +76,13 @@ export function AlertQueue({
   initialFilters,
   initialPage,
   initialSeries,
+  sites,
 }: {
   initialFilters: QueueFilters;
   initialPage: QueuePage | null;
   initialSeries: SeriesChoice | null;
+  /** the sites to filter by, slug and name */
+  sites: { slug: string; name: string }[];
 }) {
   const router = useRouter();
   const pathname = usePathname();
@@ -132,6 +132,17 @@ export function AlertQueue({
             update({ series: choice?.slug ?? '' });
           }}
         />
+        {sites.length ? (
+          <Field label="Site" tone="filter">
+            <SiteNameSelect
+              sites={sites.map((s) => ({ value: s.slug, label: s.name }))}
+              value={filters.site}
+              onChange={(site) => update({ site })}
+              anyLabel="All sites"
+              testId="alert-site-filter"
+            />
+          </Field>
+        ) : null}
         <Field label="Severity" tone="filter">
           <select className={CONTROL} value={filters.severity} onChange={(e) => update({ severity: e.target.value as QueueFilters['severity'] })}>
             <option value="">Any severity</option>
@@ -142,7 +153,7 @@ export function AlertQueue({
         <Field label="Kind" tone="filter">
           <select className={CONTROL} value={filters.kind} onChange={(e) => update({ kind: e.target.value as QueueFilters['kind'] })}>
             <option value="">Any kind</option>
-            {Object.entries(KIND_WORDS).map(([kind, words]) => (
+            {Object.entries(ALERT_KIND_WORDS).map(([kind, words]) => (
               <option key={kind} value={kind}>
                 {words[0].toUpperCase() + words.slice(1)}
               </option>
@@ -178,7 +189,7 @@ export function AlertQueue({
       ) : !data ? (
         <Loading />
       ) : data.items.length === 0 ? (
-        <Empty>No alerts in this queue{filters.series || filters.severity || filters.kind || filters.age ? ' with these filters' : ''}.</Empty>
+        <Empty>No alerts in this queue{filters.series || filters.site || filters.severity || filters.kind || filters.age ? ' with these filters' : ''}.</Empty>
       ) : (
         <DataTable
           caption={`Alerts in the ${filters.queue} queue`}
@@ -190,10 +201,10 @@ export function AlertQueue({
             <tr key={a.id} data-alert={a.id}>
               <td className={CELL}>
                 <Link href={`/alerts/${a.id}`} className="font-medium text-tide hover:underline">
-                  #{a.id} {a.rule ? indicatorLabel(a.rule.indicator) : KIND_WORDS[a.kind]}
+                  #{a.id} {a.rule ? indicatorLabel(a.rule.indicator) : ALERT_KIND_WORDS[a.kind]}
                 </Link>
                 <span className="block text-xs text-ink-soft" data-kind={a.kind}>
-                  {KIND_WORDS[a.kind]}
+                  {ALERT_KIND_WORDS[a.kind]}
                 </span>
               </td>
               <td className={CELL}>

@@ -3,8 +3,9 @@
 import { CONTROL } from '@/components/ui/Field';
 
 /**
- * A menu of site names with a first choice for "no site in particular" (all sites, the whole network), as the
- * overview's filter, the period report's scope and a report schedule's scope all ask. `''` is that first choice.
+ * A menu of sites with a first choice for "no site in particular" (all sites, the whole network), as the
+ * overview's filter, the period report's scope, a report schedule's scope and the alert queue's filter all ask.
+ * `''` is that first choice. A site is its name, or a value with its label (the queue filters by slug).
  */
 export function SiteNameSelect({
   sites,
@@ -13,7 +14,7 @@ export function SiteNameSelect({
   anyLabel,
   testId,
 }: {
-  sites: readonly string[];
+  sites: readonly (string | { value: string; label: string })[];
   value: string;
   onChange: (site: string) => void;
   anyLabel: string;
@@ -22,11 +23,14 @@ export function SiteNameSelect({
   return (
     <select className={CONTROL} value={value} onChange={(e) => onChange(e.target.value)} data-testid={testId}>
       <option value="">{anyLabel}</option>
-      {sites.map((s) => (
-        <option key={s} value={s}>
-          {s}
-        </option>
-      ))}
+      {sites.map((s) => {
+        const { value: key, label } = typeof s === 'string' ? { value: s, label: s } : s;
+        return (
+          <option key={key} value={key}>
+            {label}
+          </option>
+        );
+      })}
     </select>
   );
 }

@@ -111,6 +111,13 @@ function where(query: Omit<AlertQueueQuery, 'page' | 'pageSize' | 'sort'>, actor
     clauses.push('a.series_id = (SELECT id FROM series WHERE slug = :slug)');
     replacements.slug = query.series;
   }
+  if (query.site) {
+    // Its own alerts (site rules) and those of its series, retired ones included: their alerts stay on record.
+    clauses.push(
+      '(a.site_id = (SELECT id FROM sites WHERE slug = :site) OR a.series_id IN (SELECT id FROM series WHERE site_id = (SELECT id FROM sites WHERE slug = :site)))',
+    );
+    replacements.site = query.site;
+  }
   if (query.kind) {
     clauses.push('a.kind = :kind');
     replacements.kind = query.kind;

@@ -2,12 +2,21 @@ import type { RuleDirection, TrendDirection } from '@/lib/engine/direction';
 import type { AnalysisResult } from '@/lib/engine/analyze';
 import type { AnalysisSettings, IndicatorName } from '@/lib/engine/settings';
 import type { SiteIndicatorName } from '@/lib/engine/site';
+import type { AlertKind } from '@/models/Alert';
 import { formatTau } from './format';
 
 /**
  * Words for the direction an indicator's trend is tested in and for where an analysed stretch starts, shared by
  * the charts, the tuning panel and the quality panel so every screen says them alike. Pure; browser-safe.
  */
+
+/** What each kind of alert is, in a few words, as queues, the site page and mails name an alert without an indicator. */
+export const ALERT_KIND_WORDS: Record<AlertKind, string> = {
+  'slowing-down': 'slowing down',
+  'abrupt-shift': 'abrupt shift',
+  'data-late': 'data late',
+  'site-slowing-down': 'slowing down across a site',
+};
 
 /**
  * Plain-language names of the indicators, as they read inside a sentence (mails, alert pages); keyed by the

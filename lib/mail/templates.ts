@@ -1,7 +1,7 @@
 import { ANALYSIS_CAUTION } from '@/lib/engine/analyze';
 import { formatAge, formatP, formatUtc, formatValue } from '@/lib/display/format';
 import { publicBaseUrl } from '@/lib/runtime/config';
-import { DIRECTION_WORDS, describeExtent, indicatorLabel } from '@/lib/display/analysis-labels';
+import { ALERT_KIND_WORDS, DIRECTION_WORDS, describeExtent, indicatorLabel } from '@/lib/display/analysis-labels';
 import { describeCalibration, kendallPLabel, tauThreshold, tauWithDirection, type CalibrationLine } from '@/lib/alerts/wording';
 
 /** A rendered message: the same content as plain text and as self-contained HTML (no remote images, no scripts). */
@@ -290,7 +290,7 @@ export function digestMail(input: { name: string; since: Date; entries: DigestEn
     rows: input.entries.map((e) => [
       `#${e.alertId} ${e.seriesName}`,
       e.indicator === null
-        ? `${e.severity}, ${e.kind === 'data-late' ? 'data late' : 'abrupt shift'}, ${e.state} — ${alertLink(e.alertId)}`
+        ? `${e.severity}, ${ALERT_KIND_WORDS[e.kind]}, ${e.state} — ${alertLink(e.alertId)}`
         : `${e.severity}, ${indicatorLabel(e.indicator)}, tau ${tauWithDirection(e.tau, e.direction)}, surrogate p ${formatP(e.surrogateP)}, ${e.state} — ${alertLink(e.alertId)}`,
     ]),
     link: { href: `${publicBaseUrl()}/alerts`, label: 'Open the alert queues' },

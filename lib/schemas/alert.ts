@@ -41,6 +41,8 @@ export const alertQueueSchema = z.object({
   queue: z.enum(ALERT_QUEUES).default('triage'),
   state: z.enum(ALERT_STATES).optional(),
   series: z.string().max(64).optional(),
+  /** a site's slug: the alerts on the site itself and on any of its series */
+  site: z.string().max(64).optional(),
   severity: z.enum(['watch', 'warning']).optional(),
   /** 'slowing-down' (rule alerts) or 'abrupt-shift' */
   kind: z.enum(ALERT_KINDS).optional(),

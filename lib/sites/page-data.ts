@@ -1,5 +1,6 @@
 import { QueryTypes } from 'sequelize';
 import { OPEN_ALERT_STATES, db } from '@/models';
+import type { AlertKind } from '@/models/Alert';
 import { fetchSeriesOverview, type OverviewRow } from '@/lib/overview';
 import { cachedRead } from '@/lib/db/read-cache';
 import { isoFromSqlDate } from '@/lib/db/sql-date';
@@ -11,7 +12,7 @@ export interface SiteAlert {
   id: number;
   state: string;
   severity: string;
-  kind: string;
+  kind: AlertKind;
   indicator: string | null;
   /** null for an alert on the site's series together (a rule on site-level indicators) */
   series: { slug: string; name: string; timeZone: string } | null;
@@ -56,7 +57,7 @@ async function openAlertsOfSite(siteId: number): Promise<SiteAlert[]> {
       id: Number(r.id),
       state: r.state,
       severity: r.severity,
-      kind: r.kind ?? 'slowing-down',
+      kind: (r.kind ?? 'slowing-down') as AlertKind,
       indicator: r.indicator,
       series: r.slug === null ? null : { slug: r.slug, name: r.name!, timeZone: r.time_zone! },
       createdAt: isoFromSqlDate(r.created_at),

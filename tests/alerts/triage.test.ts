@@ -4,7 +4,9 @@ import { useTempDataDir } from '../support/temp-db';
 useTempDataDir();
 
 import { migrateUp } from '@/migrations';
-import { AlertEvent, AuditEntry, MailMessage, NoteRevision, db, ROLES, ALERT_STATES, roleAtLeast } from '@/models';
+import { AlertEvent, AuditEntry, MailMessage, NoteRevision, db, writeTransaction, ROLES, ALERT_STATES, roleAtLeast } from '@/models';
+import { createAlert } from '@/lib/alerts/open';
+import { createSite } from '@/lib/sites/registry';
 import { ConflictError, ForbiddenError } from '@/lib/http/errors';
 import { evaluateSnapshots } from '@/lib/alerts/evaluate';
 import {
@@ -182,5 +184,45 @@ describe('queues', () => {
     expect((await q({ queue: 'triage', age: '>1d' })).total).toBe(0);
     expect((await q({ queue: 'triage', age: '1d' })).total).toBe(2);
     expect(triage.items.find((i) => i.rule?.indicator === 'ac1')!.latest).toEqual({ tau: 0.6, direction: 'rising', surrogateP: 0.01, kendallP: 0.001 });
+  });
+
+  it("filters by site: the site's own alerts and those of its series, not another site's", async () => {
+    const here = await createSite({ slug: 'filter-here', name: 'Here' }, lead);
+    const there = await createSite({ slug: 'filter-there', name: 'There' }, lead);
+    const opened: Record<string, number> = {};
+    for (const [slug, site] of [
+      ['here-series', here],
+      ['there-series', there],
+    ] as const) {
+      const series = await makeSeries(slug);
+      await series.update({ siteId: site.id });
+      await makeRule(series, lead);
+      opened[slug] = (await evaluateSnapshots([await makeSnapshot(series, { tau: 0.6, surrogateP: 0.01 })])).opened[0];
+    }
+    // an alert on the site itself, as a site rule opens it (the rule and its site snapshot are not needed to list it)
+    const onSite = await writeTransaction((transaction) =>
+      createAlert(
+        {
+          fields: {
+            seriesId: null,
+            siteId: here.id,
+            ruleId: null,
+            kind: 'site-slowing-down',
+            severity: 'watch',
+            firstSnapshotId: 1,
+            latestSnapshotId: 1,
+            peakTau: 0.5,
+          },
+          detail: 'site alert for the filter',
+          audit: {},
+        },
+        transaction,
+      ),
+    );
+    const ids = async (site: string) =>
+      (await fetchAlertQueue(alertQueueSchema.parse({ queue: 'triage', site, sort: 'oldest' }), other)).items.map((i) => i.id);
+    expect(await ids('filter-here')).toEqual([opened['here-series'], onSite.id]);
+    expect(await ids('filter-there')).toEqual([opened['there-series']]);
+    expect(await ids('no-such-site')).toEqual([]);
   });
 });

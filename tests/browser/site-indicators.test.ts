@@ -81,6 +81,13 @@ describe('site-level indicators, the restoring-rate band and the stride setting 
     await expect(strip.locator(`[data-site="${SITE}"]`).textContent()).resolves.toMatch(/Veskary Sound Mooring\s*1 open alert on the site-level indicators/);
     await strip.getByRole('link', { name: 'Veskary Sound Mooring' }).click();
     await page.waitForURL(`**/sites/${SITE}#site-indicators`);
+    // the alert queue filtered by the site lists the site alert, kept in the address
+    await page.goto(`${app.baseUrl}/alerts`);
+    await page.getByTestId('alert-site-filter').selectOption(SITE);
+    await page.waitForURL(`**/alerts?*site=${SITE}*`);
+    await expect.poll(async () => page.locator('[data-kind="site-slowing-down"]').count(), { timeout: 20_000 }).toBe(1);
+    const listed = (await (await lead.fetch(`/api/alerts?queue=triage&site=${SITE}`)).json()).items as { on: { kind: string } }[];
+    expect(listed.filter((item) => item.on.kind === 'site')).toHaveLength(1);
   }, 200_000);
 
   it('a series computing the restoring rate draws its ±1.96 SE band, and its settings offer the stride', async () => {

@@ -12,7 +12,7 @@ import { buttonClass } from '@/components/ui/Button';
 import { CELL, DataTable } from '@/components/ui/DataTable';
 import { requireRole } from '@/lib/auth/guard';
 import { roleAtLeast } from '@/lib/auth/roles';
-import { indicatorLabel } from '@/lib/display/analysis-labels';
+import { ALERT_KIND_WORDS, indicatorLabel } from '@/lib/display/analysis-labels';
 import { foundOr404 } from '@/lib/http/page';
 import { formatCoordinates, siteMap } from '@/lib/sites/map';
 import { fetchSiteAnalysis } from '@/lib/sites/analysis';
@@ -62,7 +62,15 @@ export default async function SitePage({ params }: { params: Promise<{ slug: str
           <Panel title="Rules on the indicators across the site's series" id="site-rules">
             <SiteRules slug={site.slug} canEdit={canEdit} initial={siteRules} />
           </Panel>
-          <Panel title="Open alerts" id="site-alerts">
+          <Panel
+            title="Open alerts"
+            id="site-alerts"
+            actions={
+              <Link href={`/alerts?queue=closed&site=${site.slug}`} className="text-sm text-tide hover:underline" data-testid="site-alerts-closed">
+                Decided alerts at this site
+              </Link>
+            }
+          >
             {openAlerts.length === 0 ? (
               <Empty>No open alerts at this site.</Empty>
             ) : (
@@ -71,7 +79,7 @@ export default async function SitePage({ params }: { params: Promise<{ slug: str
                   <tr key={alert.id}>
                     <td className={CELL}>
                       <Link href={`/alerts/${alert.id}`} className="text-tide hover:underline">
-                        #{alert.id} {alert.indicator ? indicatorLabel(alert.indicator) : 'abrupt shift of level'}
+                        #{alert.id} {alert.indicator ? indicatorLabel(alert.indicator) : ALERT_KIND_WORDS[alert.kind]}
                       </Link>
                     </td>
                     <td className={CELL}>
