@@ -7,6 +7,15 @@ import type { AlertEvidence } from '@/lib/mail/templates';
 import type { WebhookEvent } from './events';
 
 /**
+ * An event's id: what it is about (the event, the alert or run, the timeline entry) and when it happened, to the
+ * millisecond. The database ids alone would come round again after a restore from backup or on a new installation
+ * sending to the same receiver, which would then skip a new event as one already handled.
+ */
+function eventId(subject: string, occurredAt: Date): string {
+  return `${subject}@${occurredAt.toISOString()}`;
+}
+
+/**
  * What every delivery's JSON body holds. Shaped for any chat or ticket tool without naming one: `title` is a
  * ticket's subject, `text` one line a chat tool can post as it is, `url` the page to open; the structured parts
  * (`series`, `alert`, `run`) are there for tools that map fields. `id` is also the `Idempotency-Key` header.
@@ -99,7 +108,7 @@ export function alertWebhookPayload(
     'alert.decided': `Alert #${e.alertId} on ${subject} (${headline}) ${decision}${change?.reason ? ` as ${change.reason}` : ''} by ${change?.by ?? 'someone'}`,
   }[event];
   return {
-    id: change ? `${event}:alert-${e.alertId}:event-${change.eventId}` : `${event}:alert-${e.alertId}`,
+    id: eventId(change ? `${event}:alert-${e.alertId}:event-${change.eventId}` : `${event}:alert-${e.alertId}`, occurredAt),
     event,
     occurredAt: occurredAt.toISOString(),
     title,
@@ -139,7 +148,7 @@ export function rejectedRunPayload(run: RejectedRun, series: { slug: string; nam
   const url = `${publicBaseUrl()}/intake`;
   const file = run.fileName ? ` (${run.fileName})` : '';
   return {
-    id: `intake.rejected:run-${run.id}`,
+    id: eventId(`intake.rejected:run-${run.id}`, occurredAt),
     event: 'intake.rejected',
     occurredAt: occurredAt.toISOString(),
     title: `Ingest run #${run.id} rejected: ${series.name}`,
@@ -159,7 +168,7 @@ export function dataLatePayload(
   const url = `${publicBaseUrl()}/alerts/${late.alertId}`;
   const hours = Math.round(late.lateAfterMs / 360_000) / 10;
   return {
-    id: `data.late:alert-${late.alertId}`,
+    id: eventId(`data.late:alert-${late.alertId}`, occurredAt),
     event: 'data.late',
     occurredAt: occurredAt.toISOString(),
     title: `Data late: ${series.name} (alert #${late.alertId})`,

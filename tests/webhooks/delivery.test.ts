@@ -185,11 +185,21 @@ describe('each event reaches the receiver once, signed', () => {
     const again = rejectedRunPayload(
       { id: rejected.runId, source: 'upload', fileName: 'bad.csv', rowsRead: 1, rejected: 1, message: 'again' },
       series,
-      new Date(),
+      new Date(byEvent('intake.rejected')[0].occurredAt),
     );
     expect(await writeTransaction((t) => enqueueWebhookEvent('intake.rejected', again, t))).toBe(0);
     expect(await deliverDueWebhooks()).toMatchObject({ claimed: 0 });
     expect(receiver.take()).toEqual([]);
+  });
+
+  it('names each event by what it is about and when it occurred: a run or alert id issued again after a restore is a new event', () => {
+    const run = { id: 7, source: 'drop', fileName: 'a.csv', rowsRead: 1, rejected: 1, message: 'no time column' };
+    const series = { slug: 's', name: 'S', site: '' };
+    const at = new Date('2026-01-01T00:00:00Z');
+    expect(rejectedRunPayload(run, series, at).id).toBe('intake.rejected:run-7@2026-01-01T00:00:00.000Z');
+    // the same event enqueued twice keeps one key (the outbox's dedupe); the same run id a millisecond later does not
+    expect(rejectedRunPayload(run, series, new Date(at)).id).toBe(rejectedRunPayload(run, series, at).id);
+    expect(rejectedRunPayload(run, series, new Date(at.getTime() + 1)).id).not.toBe(rejectedRunPayload(run, series, at).id);
   });
 
   it('queues nothing when the change that caused the event is rolled back', async () => {
@@ -233,7 +243,10 @@ describe('a receiver that was down gets what it missed, once', () => {
     await receiver.start();
     expect(await deliverDueWebhooks(t0 + 30_000)).toMatchObject({ claimed: 2, delivered: 2 });
     const got = receiver.take();
-    expect(got.map((d) => JSON.parse(d.raw).id).sort()).toEqual([`alert.opened:alert-${opened}`, `intake.rejected:run-${rejected.runId}`].sort());
+    const ids = got.map((d) => JSON.parse(d.raw) as { id: string; occurredAt: string });
+    expect(ids.map((b) => b.id.replace(/@.*$/, '')).sort()).toEqual([`alert.opened:alert-${opened}`, `intake.rejected:run-${rejected.runId}`].sort());
+    // an id ends with the instant the event occurred, so a restore from backup that issues the same alert id again makes a new one
+    expect(ids.every((b) => b.id.endsWith(`@${b.occurredAt}`))).toBe(true);
     expect(got.every((d) => validSignature(secret, d))).toBe(true);
     expect(await deliverDueWebhooks(t0 + 3_600_000)).toMatchObject({ claimed: 0 });
     expect(receiver.take()).toEqual([]);
