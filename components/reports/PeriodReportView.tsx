@@ -212,10 +212,18 @@ export function PeriodReportView({ report }: { report: PeriodReport }) {
         rowKey={(c) => c.ruleId}
         columns={[
           { header: 'Rule', rowHeader: true, cell: (c) => `#${c.ruleId}` },
-          { header: 'Series', cell: (c) => c.seriesSlug },
+          { header: 'Series', cell: (c) => c.seriesSlug || `all of site ${c.siteSlug}` },
           { header: 'Indicator', cell: (c) => c.indicator },
           { header: 'Severity', cell: (c) => c.severity },
-          { header: 'False alarms per year', cell: (c) => (c.falseAlarmsPerYear === null ? 'not calibrated yet' : c.falseAlarmsPerYear.toPrecision(3)) },
+          {
+            header: 'False alarms per year',
+            cell: (c) =>
+              c.siteSlug !== null
+                ? 'none for a site rule (backtests replay one series)'
+                : c.falseAlarmsPerYear === null
+                  ? 'not calibrated yet'
+                  : c.falseAlarmsPerYear.toPrecision(3),
+          },
           { header: 'Interval', cell: (c) => (c.interval ? `${c.interval[0].toPrecision(3)}–${c.interval[1].toPrecision(3)}` : '–') },
           { header: 'Calibrated', cell: (c) => when(c.calibratedAt) },
         ]}

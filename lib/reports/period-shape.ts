@@ -140,7 +140,10 @@ export interface ReportChange {
 
 export interface ReportCalibration {
   ruleId: number;
+  /** '' for a rule on a site's site-level indicators (then `siteSlug`) */
   seriesSlug: string;
+  /** the site of a site rule, which carries no calibration: backtests replay one series */
+  siteSlug: string | null;
   indicator: string;
   severity: string;
   falseAlarmsPerYear: number | null;
@@ -238,7 +241,7 @@ const HEADERS: Record<ReportTable, string[]> = {
   ],
   late: ['seriesSlug', 'seriesName', 'lastDataAt', 'backAt', 'silentHours', 'alertId'],
   changes: ['at', 'who', 'seriesSlug', 'what', 'detail', 'why'],
-  calibrations: ['ruleId', 'seriesSlug', 'indicator', 'severity', 'falseAlarmsPerYear', 'interval', 'calibratedAt'],
+  calibrations: ['ruleId', 'seriesSlug', 'siteSlug', 'indicator', 'severity', 'falseAlarmsPerYear', 'interval', 'calibratedAt'],
   marks: ['seriesSlug', 'kind', 'at', 'note', 'by'],
 };
 

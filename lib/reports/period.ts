@@ -190,8 +190,12 @@ export async function buildPeriodReport(period: Period, site: string | null = nu
          AND l.created_at >= :start AND l.created_at < :end ORDER BY l.created_at, l.id`,
       { replacements: { start: sqlDate(start), end: sqlDate(end) }, type: QueryTypes.SELECT },
     ),
-    sequelize.query<{ id: number; series_id: number; indicator: string; severity: string }>(
-      `SELECT id, series_id, indicator, severity FROM alert_rules WHERE active AND series_id IN (SELECT ids.value FROM ${jsonElements(sequelize, ':ids', 'ids', 'bigint')}) ORDER BY series_id, id`,
+    // The series' rules, then the rules on their sites' site-level indicators.
+    sequelize.query<{ id: number; series_id: number | null; site_slug: string | null; indicator: string; severity: string }>(
+      `SELECT r.id, r.series_id, st.slug AS site_slug, r.indicator, r.severity FROM alert_rules r LEFT JOIN sites st ON st.id = r.site_id
+       WHERE r.active AND (r.series_id IN (SELECT ids.value FROM ${jsonElements(sequelize, ':ids', 'ids', 'bigint')})
+         OR r.site_id IN (SELECT x.site_id FROM series x WHERE x.id IN (SELECT ids.value FROM ${jsonElements(sequelize, ':ids', 'ids', 'bigint')})))
+       ORDER BY CASE WHEN r.series_id IS NULL THEN 1 ELSE 0 END, r.series_id, r.id`,
       { replacements: { ids: idList }, type: QueryTypes.SELECT },
     ),
     sequelize.query<{ series_id: number; kind: string; at: number; note: string; who: string | null }>(
@@ -322,7 +326,8 @@ export async function buildPeriodReport(period: Period, site: string | null = nu
       const c = calibrations.get(Number(r.id));
       return {
         ruleId: Number(r.id),
-        seriesSlug: bySeries.get(Number(r.series_id))!.slug,
+        seriesSlug: r.series_id === null ? '' : bySeries.get(Number(r.series_id))!.slug,
+        siteSlug: r.series_id === null ? r.site_slug : null,
         indicator: indicatorLabel(r.indicator),
         severity: r.severity,
         falseAlarmsPerYear: c?.falseAlarmsPerYear ?? null,

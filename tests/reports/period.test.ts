@@ -8,7 +8,9 @@ import { migrateUp } from '@/migrations';
 import { Alert, AlertEvent, AuditEntry, Mark, Observation, SettingsChange, db } from '@/models';
 import { recordAudit } from '@/lib/audit';
 import { buildPeriodReport } from '@/lib/reports/period';
-import { updateSeries } from '@/lib/series/registry';
+import { createSeries, updateSeries } from '@/lib/series/registry';
+import { createSite } from '@/lib/sites/registry';
+import { createSiteRule } from '@/lib/alerts/site-rules';
 import { completeness, durationSummary, periodBounds, periodContaining, periodLabel, periodReportCsv, previousPeriod } from '@/lib/reports/period-shape';
 import { makeRule, makeSeries, makeSnapshot, makeUser } from '../alerts/helpers';
 
@@ -199,6 +201,7 @@ describe('period report on a small seeded network', () => {
       {
         ruleId: rule.id,
         seriesSlug: 'north-oxygen',
+        siteSlug: null,
         indicator: expect.any(String),
         severity: rule.severity,
         falseAlarmsPerYear: null,
@@ -251,6 +254,33 @@ describe('period report on a small seeded network', () => {
     expect(periodReportCsv(await buildPeriodReport({ from: '2020-01-01', to: '2020-01-31' }, null, NOW), 'alerts').split('\r\n')[0]).toBe(
       parsed.meta.fields!.join(','),
     );
+  });
+
+  it("lists a site rule among the rules of its site's reports, saying it carries no calibration", async () => {
+    const lead = await makeUser('lead', 'Site Lead');
+    const site = await createSite({ slug: 'west-mooring', name: 'West Mooring' }, lead);
+    for (const slug of ['west-upper', 'west-lower']) await createSeries({ slug, name: slug, intervalMs: DAY, siteId: site.id }, null);
+    const rule = await createSiteRule(site.id, { indicator: 'maf-ac1', minTau: 0.3, maxSurrogateP: 0.05 }, lead);
+    const west = await buildPeriodReport(JANUARY, 'west-mooring', NOW);
+    expect(west.calibrations).toEqual([
+      {
+        ruleId: rule.id,
+        seriesSlug: '',
+        siteSlug: 'west-mooring',
+        indicator: expect.any(String),
+        severity: rule.severity,
+        falseAlarmsPerYear: null,
+        interval: null,
+        calibratedAt: null,
+      },
+    ]);
+    // after the series rules in the network's report, and in no other site's
+    const network = await buildPeriodReport(JANUARY, null, NOW);
+    expect(network.calibrations.at(-1)).toMatchObject({ ruleId: rule.id, siteSlug: 'west-mooring' });
+    expect(network.calibrations.slice(0, -1).every((c) => c.siteSlug === null)).toBe(true);
+    expect((await buildPeriodReport(JANUARY, 'North Basin', NOW)).calibrations.map((c) => c.ruleId)).not.toContain(rule.id);
+    const csv = Papa.parse<Record<string, string>>(periodReportCsv(west, 'calibrations').trim(), { header: true });
+    expect(csv.data).toEqual([expect.objectContaining({ ruleId: String(rule.id), seriesSlug: '', siteSlug: 'west-mooring', falseAlarmsPerYear: '' })]);
   });
 
   it('counts a silence that began before the period and still runs at its end', async () => {
