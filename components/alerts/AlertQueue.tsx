@@ -195,7 +195,7 @@ export function AlertQueue({
           caption={`Alerts in the ${filters.queue} queue`}
           testId="alert-table"
           className="min-w-[680px]"
-          columns={['Alert', 'Series', 'Severity', 'State', 'Latest evidence', 'Opened', 'Assigned']}
+          columns={['Alert', 'Series or site', 'Severity', 'State', 'Latest evidence', 'Opened', 'Assigned']}
         >
           {data.items.map((a) => (
             <tr key={a.id} data-alert={a.id}>

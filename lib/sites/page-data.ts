@@ -1,7 +1,7 @@
 import { QueryTypes } from 'sequelize';
-import { OPEN_ALERT_STATES, db } from '@/models';
+import { OPEN_ALERT_STATES, Site, db } from '@/models';
 import type { AlertKind } from '@/models/Alert';
-import { fetchSeriesOverview, type OverviewRow } from '@/lib/overview';
+import { fetchSeriesOverview, type OverviewRow, type SiteAlertGroup } from '@/lib/overview';
 import { cachedRead } from '@/lib/db/read-cache';
 import { isoFromSqlDate } from '@/lib/db/sql-date';
 import type { SiteRecord } from '@/lib/schemas/site';
@@ -74,4 +74,15 @@ export async function fetchSitePage(slug: string, actorId: number | null, now = 
   const [overview, openAlerts, siteRules] = await Promise.all([fetchSeriesOverview(actorId, now), openAlertsOfSite(site.id), siteRuleStatuses(site.id)]);
   const series = overview.rows.filter((row) => row.siteSlug === site.slug);
   return { site: presentSite(site, series.length), series, openAlerts, siteRules, generatedAt: now };
+}
+
+/**
+ * The site a series belongs to, as the series page names it: its slug and name, and the alerts open on the site's
+ * site-level indicators (from the overview's cached read, so both screens agree). Null for a series without a site.
+ */
+export async function siteOfSeries(siteId: number | null): Promise<{ slug: string; name: string; openSiteAlerts: SiteAlertGroup | null } | null> {
+  if (siteId === null) return null;
+  const [site, overview] = await Promise.all([Site.findByPk(siteId, { attributes: ['slug', 'name'] }), fetchSeriesOverview()]);
+  if (!site) return null;
+  return { slug: site.slug, name: site.name, openSiteAlerts: overview.siteAlerts.find((group) => group.siteSlug === site.slug) ?? null };
 }

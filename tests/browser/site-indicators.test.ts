@@ -75,10 +75,17 @@ describe('site-level indicators, the restoring-rate band and the stride setting 
     await expect(page.getByRole('heading', { level: 1 }).textContent()).resolves.toMatch(/on site /);
     await page.getByTestId('site-chart-pc1-variance').locator('.recharts-line').first().waitFor();
     await expect(page.getByTestId('site-chart-maf-ac1').count()).resolves.toBe(0);
+    // a member series' page says so and links its site
+    await page.goto(`${app.baseUrl}/series/${SERIES}`);
+    await expect(page.getByTestId('series-site-alert').textContent()).resolves.toMatch(
+      /An alert is open on the indicators across the series of Veskary Sound Mooring/,
+    );
+    await expect(page.getByTestId('series-site').getAttribute('href')).resolves.toBe(`/sites/${SITE}`);
     // the overview, whose rows are series, names the site with its open site alert and leads to the site page
     await page.goto(`${app.baseUrl}/`);
     const strip = page.getByTestId('overview-site-alerts');
     await expect(strip.locator(`[data-site="${SITE}"]`).textContent()).resolves.toMatch(/Veskary Sound Mooring\s*1 open alert on the site-level indicators/);
+    await strip.screenshot({ path: path.join(SHOTS, 'overview-site-alerts.png') });
     await strip.getByRole('link', { name: 'Veskary Sound Mooring' }).click();
     await page.waitForURL(`**/sites/${SITE}#site-indicators`);
     // the alert queue filtered by the site lists the site alert, kept in the address
@@ -86,6 +93,7 @@ describe('site-level indicators, the restoring-rate band and the stride setting 
     await page.getByTestId('alert-site-filter').selectOption(SITE);
     await page.waitForURL(`**/alerts?*site=${SITE}*`);
     await expect.poll(async () => page.locator('[data-kind="site-slowing-down"]').count(), { timeout: 20_000 }).toBe(1);
+    await page.screenshot({ path: path.join(SHOTS, 'alerts-one-site.png') });
     const listed = (await (await lead.fetch(`/api/alerts?queue=triage&site=${SITE}`)).json()).items as { on: { kind: string } }[];
     expect(listed.filter((item) => item.on.kind === 'site')).toHaveLength(1);
   }, 200_000);

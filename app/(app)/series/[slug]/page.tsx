@@ -20,6 +20,7 @@ import { fetchWorkbench } from '@/lib/series/workbench';
 import { roleAtLeast } from '@/lib/auth/roles';
 import { foundOr404 } from '@/lib/http/page';
 import { Breadcrumb } from '@/components/ui/Breadcrumb';
+import { siteOfSeries } from '@/lib/sites/page-data';
 
 export const metadata = { title: 'Series' };
 
@@ -28,7 +29,7 @@ export default async function SeriesPage({ params }: { params: Promise<{ slug: s
   const { slug } = await params;
   const bench = await foundOr404(() => fetchWorkbench(slug));
   const { series } = bench;
-  const [statuses, preferences] = await Promise.all([ruleStatuses(series.id), readPreferences(actor)]);
+  const [statuses, preferences, site] = await Promise.all([ruleStatuses(series.id), readPreferences(actor), siteOfSeries(series.siteId)]);
   const canLead = roleAtLeast(actor.role, 'lead');
   return (
     <section className="space-y-4">
@@ -36,7 +37,14 @@ export default async function SeriesPage({ params }: { params: Promise<{ slug: s
       <header className="flex flex-wrap items-baseline gap-x-4 gap-y-1">
         <h1 className="text-xl font-semibold">{series.name}</h1>
         <span className="text-sm text-ink-soft">
-          {series.site || 'No site'} · {series.unit || 'no unit'} · times in {series.timeZone}
+          {site ? (
+            <Link href={`/sites/${site.slug}`} className="hover:underline" data-testid="series-site">
+              {site.name}
+            </Link>
+          ) : (
+            series.site || 'No site'
+          )}{' '}
+          · {series.unit || 'no unit'} · times in {series.timeZone}
         </span>
         {bench.snapshot ? (
           <span className="text-sm text-ink-soft">
@@ -51,6 +59,15 @@ export default async function SeriesPage({ params }: { params: Promise<{ slug: s
       </header>
       {series.description ? <p className="max-w-3xl text-sm text-ink-soft">{series.description}</p> : null}
       <Caution />
+      {site?.openSiteAlerts ? (
+        <p role="note" className="rounded-md border border-warning/40 bg-warning-light px-3 py-2 text-sm" data-testid="series-site-alert">
+          {site.openSiteAlerts.count === 1 ? 'An alert is' : `${site.openSiteAlerts.count} alerts are`} open on the indicators across the series of{' '}
+          <Link href={`/sites/${site.slug}#site-rules`} className="font-medium text-tide hover:underline">
+            {site.name}
+          </Link>
+          , the site of this series.
+        </p>
+      ) : null}
       {bench.snapshot?.status === 'error' ? (
         <ErrorNote>The latest analysis run failed: {bench.snapshot.error}. The charts show the last successful one.</ErrorNote>
       ) : null}
