@@ -44,6 +44,7 @@ const POSTGRES_FILES = [
   'tests/intake/versions.test.ts',
   'tests/live/provenance.test.ts',
   'tests/live/reanalysis.test.ts',
+  'tests/live/site-provenance.test.ts',
   'tests/live/snapshot.test.ts',
   'tests/mail/digest.test.ts',
   'tests/mail/outbox.test.ts',

@@ -25,6 +25,7 @@ import * as dataVersions from './0021-data-versions';
 import * as siteSnapshots from './0022-site-snapshots';
 import * as analysisState from './0023-analysis-state';
 import * as siteRules from './0024-site-rules';
+import * as siteSnapshotProvenance from './0025-site-snapshot-provenance';
 
 /**
  * The ordered list of schema changes. Listed explicitly (not globbed) so the same list works in the Next.js server
@@ -52,6 +53,7 @@ const MIGRATIONS = [
   { name: '0022-site-snapshots', ...siteSnapshots },
   { name: '0023-analysis-state', ...analysisState },
   { name: '0024-site-rules', ...siteRules },
+  { name: '0025-site-snapshot-provenance', ...siteSnapshotProvenance },
 ];
 
 async function migrator(): Promise<Umzug<QueryInterface>> {

@@ -1,5 +1,6 @@
 import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize';
 import type { SiteAnalysisSummary, SiteCurves, SiteMember } from '@/lib/sites/analysis-shape';
+import type { SiteGrid, SiteSnapshotProvenance } from '@/lib/sites/provenance-record';
 
 /** The site-level indicators of a site's series at one moment (lib/sites/analysis.ts; migration 0022). */
 export class SiteSnapshot extends Model<InferAttributes<SiteSnapshot>, InferCreationAttributes<SiteSnapshot>> {
@@ -13,6 +14,9 @@ export class SiteSnapshot extends Model<InferAttributes<SiteSnapshot>, InferCrea
   /** empty for a failed computation */
   declare summary: SiteAnalysisSummary | Record<string, never>;
   declare curves: SiteCurves | null;
+  /** the common grid analysed (migration 0025); null for a failed computation and for snapshots stored before */
+  declare grid: SiteGrid | null;
+  declare provenance: SiteSnapshotProvenance | null;
   declare status: CreationOptional<'ok' | 'error'>;
   declare error: string | null;
   declare n: CreationOptional<number>;
@@ -40,6 +44,8 @@ export class SiteSnapshot extends Model<InferAttributes<SiteSnapshot>, InferCrea
         members: { type: DataTypes.JSON, allowNull: false },
         summary: { type: DataTypes.JSON, allowNull: false },
         curves: { type: DataTypes.JSON, allowNull: true },
+        grid: { type: DataTypes.JSON, allowNull: true },
+        provenance: { type: DataTypes.JSON, allowNull: true },
         status: { type: DataTypes.STRING, allowNull: false, defaultValue: 'ok' },
         error: { type: DataTypes.TEXT, allowNull: true },
         n: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },

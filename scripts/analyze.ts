@@ -18,6 +18,8 @@
  * strings otherwise (±YYYYYY years outside 0000–9999).
  * A file that starts with `# settings: {...}` and `# input: {"intervalMs", "breaks"}` lines (an analysis's download,
  * GET /api/snapshots/{id}/data.csv) is analysed with those settings, interval and breaks; options override them.
+ * With --multivariate, a `# site: {"detrending", "intervalMs"}` line (a site analysis's download,
+ * GET /api/site-snapshots/{id}/data.csv) gives each column's own detrending and the grid step.
  */
 import { readFileSync } from 'node:fs';
 import { ZodError } from 'zod';
@@ -150,6 +152,8 @@ interface FileHeader {
   settings: Record<string, unknown>;
   intervalMs?: number;
   breaks: { time: string; kind: 'tipping-point' | 'maintenance' }[];
+  /** a site analysis's download: each column's detrending, and the grid step */
+  site?: { detrending?: unknown; intervalMs?: unknown };
 }
 
 /**
@@ -165,7 +169,7 @@ function fileHeader(bytes: Buffer): FileHeader {
     .split(/\r?\n/);
   for (const line of head) {
     if (!line.startsWith('#')) break;
-    const match = /^#\s*(settings|input):\s*(\{.*\})\s*$/.exec(line);
+    const match = /^#\s*(settings|input|site):\s*(\{.*\})\s*$/.exec(line);
     if (!match) continue;
     let parsed: unknown;
     try {
@@ -174,6 +178,7 @@ function fileHeader(bytes: Buffer): FileHeader {
       throw new CliInputError(`the file's "# ${match[1]}:" line is not valid JSON`);
     }
     if (match[1] === 'settings') header.settings = parsed as Record<string, unknown>;
+    else if (match[1] === 'site') header.site = parsed as FileHeader['site'];
     else {
       const input = parsed as { intervalMs?: unknown; breaks?: unknown };
       if (typeof input.intervalMs === 'number') header.intervalMs = input.intervalMs;
@@ -327,7 +332,13 @@ function toJson(result: AnalysisResult, summary: boolean, numericTime: boolean):
  * The site-level analysis of several value columns (--multivariate --value a,b,c): each column read as a single
  * series is, and every column must have a value at every instant of the first (same times, same order).
  */
-async function siteJson(bytes: Buffer, opts: Record<string, string>, settings: ReturnType<typeof settingsFrom>, summary: boolean): Promise<unknown> {
+async function siteJson(
+  bytes: Buffer,
+  opts: Record<string, string>,
+  settings: ReturnType<typeof settingsFrom>,
+  site: FileHeader['site'],
+  summary: boolean,
+): Promise<unknown> {
   const names = (opts.value ?? '')
     .split(',')
     .map((v) => v.trim())
@@ -343,7 +354,28 @@ async function siteJson(bytes: Buffer, opts: Record<string, string>, settings: R
         `line ${t.lines[differs] ?? first.lines[differs]}, column "${t.valueName}": every value column needs a value at every instant of column "${first.valueName}"`,
       );
   }
-  const result: SiteAnalysisResult = runSiteAnalysis({ values: tables.map((t) => t.value) }, settings);
+  const detrending = site?.detrending;
+  if (detrending !== undefined && detrending !== null && (!Array.isArray(detrending) || detrending.length !== names.length))
+    throw new CliInputError(
+      `the file's "# site:" line gives detrending for ${Array.isArray(detrending) ? detrending.length : 'no'} columns, not ${names.length}`,
+    );
+  const interval = numberOption(opts, 'interval-ms') ?? (typeof site?.intervalMs === 'number' ? site.intervalMs : undefined);
+  const result: SiteAnalysisResult = runSiteAnalysis(
+    {
+      values: tables.map((t) => t.value),
+      timeKind: first.numericTime ? 'numeric' : 'utc-ms',
+      ...(interval === undefined ? {} : { interval }),
+      ...(Array.isArray(detrending)
+        ? {
+            detrending: detrending.map((d) => {
+              const { detrend, bandwidth, movingAverageWidth } = analysisSettingsSchema.parse(d);
+              return { detrend, bandwidth, movingAverageWidth };
+            }),
+          }
+        : {}),
+    },
+    settings,
+  );
   return { series: names, ...(summary ? { ...result, indicators: undefined } : result) };
 }
 
@@ -358,7 +390,7 @@ async function main(): Promise<number> {
     const header = fileHeader(bytes);
     const settings = settingsFrom(args.opts, args.flags, header.settings);
     if (args.flags.has('multivariate')) {
-      process.stdout.write(`${JSON.stringify(await siteJson(bytes, args.opts, settings, args.flags.has('summary')))}\n`);
+      process.stdout.write(`${JSON.stringify(await siteJson(bytes, args.opts, settings, header.site, args.flags.has('summary')))}\n`);
       return 0;
     }
     table = await readTable(bytes, args.opts);

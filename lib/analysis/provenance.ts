@@ -82,7 +82,8 @@ function twoDigits(out: Buffer, at: number, v: number): number {
   return at + 2;
 }
 
-function sha256Hex(data: string | Buffer): string {
+/** SHA-256 of text or bytes, as lowercase hex. */
+export function sha256Hex(data: string | Buffer): string {
   return createHash('sha256').update(data).digest('hex');
 }
 

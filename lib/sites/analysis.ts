@@ -12,6 +12,8 @@ import { SITE_INDICATORS, runSiteAnalysis, type ColumnDetrending, type SiteIndic
 import { seriesSettingsSchema } from '@/lib/schemas/series';
 import type { SiteAnalysisSummary, SiteAnalysisView, SiteCurves, SiteMember } from './analysis-shape';
 import { findSiteBySlug } from './registry';
+import { siteProvenanceOf } from './provenance';
+import { currentDataVersion } from '@/lib/intake/data-versions';
 
 /**
  * Grid instants a site-level analysis takes, counted back from the members' common end: the live default span of
@@ -93,11 +95,16 @@ export async function refreshSiteAnalysis(siteId: number, basis: string): Promis
   const step = Math.max(0, ...candidates.map((c) => c.interval));
   const end = Math.min(...candidates.map((c) => c.last));
   // the span back from the common end, plus two of each member's own intervals for the interpolation at its edge
+  // Each record's data version is read before the record, so a version recorded never claims data the grid lacks.
   const records = await Promise.all(
-    candidates.map(async (c) => ({
-      ...(await loadObservations(c.series.id, { from: end - SITE_SPAN_POINTS * step - 2 * c.interval, to: end + 2 * c.interval })),
-      interval: c.interval,
-    })),
+    candidates.map(async (c) => {
+      const dataVersion = await currentDataVersion(c.series.id);
+      return {
+        ...(await loadObservations(c.series.id, { from: end - SITE_SPAN_POINTS * step - 2 * c.interval, to: end + 2 * c.interval })),
+        interval: c.interval,
+        dataVersion,
+      };
+    }),
   );
   const grid = commonGrid(records, SITE_SPAN_POINTS);
   const used = candidates.map((c) => memberOf(c.series));
@@ -135,6 +142,11 @@ export async function refreshSiteAnalysis(siteId: number, basis: string): Promis
       significance: result.significance,
       latest,
     };
+    const kept = siteProvenanceOf(
+      grid,
+      candidates.map((c, k) => ({ slug: c.series.slug, dataVersion: records[k].dataVersion })),
+      settings.seed,
+    );
     snapshot = await SiteSnapshot.create({
       siteId,
       basis,
@@ -142,6 +154,8 @@ export async function refreshSiteAnalysis(siteId: number, basis: string): Promis
       members,
       summary,
       curves: { time: indices.map((i) => time[i]), indicators },
+      grid: kept.grid,
+      provenance: kept.provenance,
       status: 'ok',
       error: null,
       n: result.n,
@@ -158,6 +172,8 @@ export async function refreshSiteAnalysis(siteId: number, basis: string): Promis
       members,
       summary: {},
       curves: null,
+      grid: null,
+      provenance: null,
       status: 'error',
       error:
         error instanceof AnalysisInputError

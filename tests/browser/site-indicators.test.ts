@@ -75,6 +75,16 @@ describe('site-level indicators, the restoring-rate band and the stride setting 
     await expect(page.getByRole('heading', { level: 1 }).textContent()).resolves.toMatch(/on site /);
     await page.getByTestId('site-chart-pc1-variance').locator('.recharts-line').first().waitFor();
     await expect(page.getByTestId('site-chart-maf-ac1').count()).resolves.toBe(0);
+    // a reviewer is handed the grid the site analysis saw and the command that recomputes it
+    await expect(page.getByTestId('provenance-command').first().textContent()).resolves.toMatch(/^brinkwatch analyze .*--multivariate --value .* --summary$/);
+    const href = await page
+      .getByRole('link', { name: /^Download the analysed data/ })
+      .first()
+      .getAttribute('href');
+    const download = await lead.fetch(href!);
+    expect(download.status).toBe(200);
+    expect(download.headers.get('x-brinkwatch-data-matches')).toBe('true');
+    expect(await download.text()).toMatch(/^# site: \{"detrending":/m);
     // a member series' page says so and links its site
     await page.goto(`${app.baseUrl}/series/${SERIES}`);
     await expect(page.getByTestId('series-site-alert').textContent()).resolves.toMatch(

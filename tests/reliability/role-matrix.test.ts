@@ -70,6 +70,7 @@ const EXPECTED: Record<string, Role | 'public' | 'token'> = {
   'POST /api/account/tokens': 'viewer',
   'DELETE /api/account/tokens/[id]': 'viewer',
   'GET /api/snapshots/[id]/data.csv': 'viewer',
+  'GET /api/site-snapshots/[id]/data.csv': 'viewer',
   'POST /api/series/[slug]/marks': 'lead',
   'DELETE /api/marks/[id]': 'lead',
   'POST /api/series/[slug]/rules/preview': 'analyst',

@@ -3,7 +3,7 @@ import { AlertActions } from '@/components/alerts/AlertActions';
 import { AlertNotes } from '@/components/alerts/AlertNotes';
 import { EvidenceCharts } from '@/components/alerts/EvidenceCharts';
 import { SiteIndicatorsView } from '@/components/sites/SiteIndicators';
-import { ProvenancePanel } from '@/components/provenance/ProvenancePanel';
+import { ProvenancePanel, SiteProvenancePanel } from '@/components/provenance/ProvenancePanel';
 import { AlertStateBadge, SeverityBadge } from '@/components/Badges';
 import { Caution } from '@/components/Caution';
 import { LocalTime } from '@/components/LocalTime';
@@ -37,7 +37,9 @@ const SHOWS_STATE = new Set(['open', 'assign', 'reopen', 'evaluate']);
 export default async function AlertPage({ params }: { params: Promise<{ id: string }> }) {
   const actor = await requireRole('viewer');
   const { id: raw } = await params;
-  const { detail, firstView, latestView, siteView, marks, colleagues, provenance } = await foundOr404(async () => fetchAlertPage(idParam(raw, 'Alert'), actor));
+  const { detail, firstView, latestView, siteView, marks, colleagues, provenance, siteProvenance } = await foundOr404(async () =>
+    fetchAlertPage(idParam(raw, 'Alert'), actor),
+  );
   const tz = detail.on.timeZone;
   const lastEval = detail.evidence.evaluations[detail.evidence.evaluations.length - 1];
   const rule = detail.rule;
@@ -142,7 +144,7 @@ export default async function AlertPage({ params }: { params: Promise<{ id: stri
             <AlertActions alertId={detail.id} version={detail.version} actions={detail.allowedActions} users={colleagues} />
           </Panel>
           <Panel title="Reproduce the evidence" id="provenance">
-            <ProvenancePanel analyses={provenance} />
+            {detail.series ? <ProvenancePanel analyses={provenance} /> : <SiteProvenancePanel analyses={siteProvenance} />}
           </Panel>
           <Panel title="Timeline" id="timeline">
             {detail.timeline.length === 0 ? (
