@@ -3,6 +3,7 @@ import { mkdtempSync, readFileSync, statSync, utimesSync, writeFileSync } from '
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
+import { brinkwatch } from '../support/cli';
 
 const root = path.resolve(__dirname, '../..');
 const dir = mkdtempSync(path.join(tmpdir(), 'bw-bin-'));
@@ -18,7 +19,7 @@ for (let i = 0; i < 400; i++) {
 }
 writeFileSync(file, `${lines.join('\n')}\n`);
 
-const viaBin = (args: string[]) => spawnSync(process.execPath, [path.join(root, 'bin/brinkwatch.mjs'), ...args], { cwd: root, encoding: 'utf8' });
+const viaBin = brinkwatch;
 const viaSource = (args: string[]) =>
   spawnSync(path.join(root, 'node_modules/.bin/tsx'), [path.join(root, 'scripts/analyze.ts'), ...args], { cwd: root, encoding: 'utf8' });
 

@@ -1,4 +1,4 @@
-import { spawnSync } from 'node:child_process';
+import { brinkwatch } from '../support/cli';
 import { createHash } from 'node:crypto';
 import { mkdtempSync, writeFileSync } from 'node:fs';
 import os from 'node:os';
@@ -18,7 +18,6 @@ const { simulateAr1 } = await import('@/lib/demo/models');
 const { ENGINE_VERSION } = await import('@/lib/engine/version');
 const { RandomStream } = await import('@/lib/engine/random');
 
-const ROOT = path.resolve(__dirname, '../..');
 const DAY = 86_400_000;
 const START = Date.UTC(2024, 0, 1);
 const N = 700;
@@ -102,11 +101,7 @@ describe('an analysis records where its numbers came from and can be reproduced 
     const dir = mkdtempSync(path.join(os.tmpdir(), 'bw-reproduce-'));
     const file = path.join(dir, download.fileName);
     writeFileSync(file, download.csv);
-    const run = spawnSync(process.execPath, [path.join(ROOT, 'bin/brinkwatch.mjs'), 'analyze', file, '--summary'], {
-      encoding: 'utf8',
-      cwd: ROOT,
-      timeout: 120_000,
-    });
+    const run = brinkwatch(['analyze', file, '--summary']);
     expect(run.stderr).toBe('');
     expect(run.status).toBe(0);
     const cli = JSON.parse(run.stdout) as { kendall: Record<string, { tau: number; p: number }>; significance: Record<string, { p: number }> };

@@ -1,4 +1,4 @@
-import { spawnSync } from 'node:child_process';
+import { brinkwatch } from '../support/cli';
 import { createHash } from 'node:crypto';
 import { mkdtempSync, writeFileSync } from 'node:fs';
 import os from 'node:os';
@@ -18,7 +18,6 @@ const { siteSnapshotDataCsv, canonicalGridCsv } = await import('@/lib/sites/prov
 const { simulateAr1 } = await import('@/lib/demo/models');
 const { ENGINE_VERSION } = await import('@/lib/engine/version');
 
-const ROOT = path.resolve(__dirname, '../..');
 const HOUR = 3_600_000;
 const T0 = Date.UTC(2025, 2, 1);
 const N = 400;
@@ -91,11 +90,7 @@ describe('provenance of a site analysis', () => {
     writeFileSync(file, download.csv);
     const command = /^# reproduce: brinkwatch (.*?) {3}/m.exec(download.csv)![1].split(' ');
     expect(command).toEqual(['analyze', download.fileName, '--multivariate', '--value', 'chain-2m,chain-8m', '--summary']);
-    const run = spawnSync(process.execPath, [path.join(ROOT, 'bin/brinkwatch.mjs'), 'analyze', file, ...command.slice(2)], {
-      encoding: 'utf8',
-      cwd: ROOT,
-      timeout: 120_000,
-    });
+    const run = brinkwatch(['analyze', file, ...command.slice(2)]);
     expect(run.stderr).toBe('');
     expect(run.status).toBe(0);
     const cli = JSON.parse(run.stdout) as { kendall: Record<string, { tau: number; p: number }>; significance: Record<string, { p: number }> };
@@ -110,11 +105,7 @@ describe('provenance of a site analysis', () => {
     // the # site: line is what makes them reproduce: without it each column takes the settings' detrending, and a tau moves
     const bare = path.join(dir, 'without-site-line.csv');
     writeFileSync(bare, download.csv.replace(/^# site: .*\n/m, ''));
-    const plain = spawnSync(process.execPath, [path.join(ROOT, 'bin/brinkwatch.mjs'), 'analyze', bare, ...command.slice(2)], {
-      encoding: 'utf8',
-      cwd: ROOT,
-      timeout: 120_000,
-    });
+    const plain = brinkwatch(['analyze', bare, ...command.slice(2)]);
     expect(plain.status).toBe(0);
     const moved = JSON.parse(plain.stdout) as typeof cli;
     expect(Math.max(...names.map((name) => Math.abs(moved.kendall[name].tau - summary.kendall[name].tau)))).toBeGreaterThan(1e-6);

@@ -1,6 +1,7 @@
 import { NextResponse } from 'next/server';
 import { requireRole } from '@/lib/auth/guard';
 import { handle } from '@/lib/http/handler';
+import { csvDownload } from '@/lib/http/csv-download';
 import { readQuery } from '@/lib/http/body';
 import { periodReportQuerySchema } from '@/lib/schemas/report';
 import { buildPeriodReport } from '@/lib/reports/period';
@@ -12,7 +13,5 @@ export const GET = handle(async (request) => {
   const query = readQuery(request, periodReportQuerySchema);
   const report = await buildPeriodReport({ from: query.from, to: query.to }, query.site ?? null);
   if (query.format === 'json') return NextResponse.json(report);
-  return new Response(periodReportCsv(report, query.table), {
-    headers: { 'Content-Type': 'text/csv; charset=utf-8', 'Content-Disposition': `attachment; filename="${periodCsvName(report, query.table)}"` },
-  });
+  return csvDownload(periodReportCsv(report, query.table), periodCsvName(report, query.table));
 });

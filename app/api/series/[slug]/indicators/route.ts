@@ -1,6 +1,7 @@
 import { NextResponse } from 'next/server';
 import { requireRole } from '@/lib/auth/guard';
 import { handle } from '@/lib/http/handler';
+import { csvDownload } from '@/lib/http/csv-download';
 import { readJson, readQuery } from '@/lib/http/body';
 import { findSeriesBySlug } from '@/lib/series/registry';
 import { buildIndicatorTable, indicatorTableCsv, type IndicatorTable } from '@/lib/reports/indicator-export';
@@ -8,9 +9,8 @@ import { analysisRequestSchema, indicatorExportQuerySchema } from '@/lib/schemas
 
 function respond(table: IndicatorTable, format: 'csv' | 'json'): Response {
   const name = `${table.series.slug}-indicators.${format}`;
-  const disposition = `attachment; filename="${name}"`;
-  if (format === 'json') return NextResponse.json(table, { headers: { 'content-disposition': disposition } });
-  return new Response(indicatorTableCsv(table), { headers: { 'content-type': 'text/csv; charset=utf-8', 'content-disposition': disposition } });
+  if (format === 'json') return NextResponse.json(table, { headers: { 'content-disposition': `attachment; filename="${name}"` } });
+  return csvDownload(indicatorTableCsv(table), name);
 }
 
 /** GET (viewer+): the indicator table of the latest snapshot, `?format=csv|json`. */

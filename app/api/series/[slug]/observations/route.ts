@@ -2,6 +2,7 @@ import { NextResponse } from 'next/server';
 import { requireRole } from '@/lib/auth/guard';
 import { requireIngestWriter } from '@/lib/intake/writer';
 import { handle } from '@/lib/http/handler';
+import { csvDownload } from '@/lib/http/csv-download';
 import { readQuery } from '@/lib/http/body';
 import { ServiceUnavailableError, UnprocessableError } from '@/lib/http/errors';
 import { observationQuerySchema } from '@/lib/schemas/observation';
@@ -20,9 +21,7 @@ export const GET = handle<{ slug: string }>(async (request, { params }) => {
   const series = await findSeriesBySlug(slug);
   const range = { ...queryRange(query, series.timeZone), limit: query.limit };
   if (query.format === 'csv') {
-    return new Response(observationsCsvStream(series.id, range), {
-      headers: { 'content-type': 'text/csv; charset=utf-8', 'content-disposition': `attachment; filename="${series.slug}.csv"` },
-    });
+    return csvDownload(observationsCsvStream(series.id, range), `${series.slug}.csv`);
   }
   const { time, value, flag } = await loadFlaggedObservations(series.id, { ...range, limit: range.limit ?? 100_000 });
   const items = new Array(time.length);
