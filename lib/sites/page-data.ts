@@ -1,5 +1,5 @@
 import { QueryTypes } from 'sequelize';
-import { OPEN_ALERT_STATES, Site, db } from '@/models';
+import { Alert, OPEN_ALERT_STATES, Site, db } from '@/models';
 import type { AlertKind } from '@/models/Alert';
 import { fetchSeriesOverview, type OverviewRow, type SiteAlertGroup } from '@/lib/overview';
 import { cachedRead } from '@/lib/db/read-cache';
@@ -78,11 +78,17 @@ export async function fetchSitePage(slug: string, actorId: number | null, now = 
 
 /**
  * The site a series belongs to, as the series page names it: its slug and name, and the alerts open on the site's
- * site-level indicators (from the overview's cached read, so both screens agree). Null for a series without a site.
+ * site-level indicators, counted as the overview counts them. Null for a series without a site. Two small lookups.
  */
 export async function siteOfSeries(siteId: number | null): Promise<{ slug: string; name: string; openSiteAlerts: SiteAlertGroup | null } | null> {
   if (siteId === null) return null;
-  const [site, overview] = await Promise.all([Site.findByPk(siteId, { attributes: ['slug', 'name'] }), fetchSeriesOverview()]);
+  const [site, open] = await Promise.all([
+    Site.findByPk(siteId, { attributes: ['slug', 'name'] }),
+    Alert.findAll({ where: { siteId, seriesId: null, state: [...OPEN_ALERT_STATES] }, attributes: ['severity'] }),
+  ]);
   if (!site) return null;
-  return { slug: site.slug, name: site.name, openSiteAlerts: overview.siteAlerts.find((group) => group.siteSlug === site.slug) ?? null };
+  const openSiteAlerts: SiteAlertGroup | null = open.length
+    ? { site: site.name, siteSlug: site.slug, count: open.length, severity: open.some((a) => a.severity === 'warning') ? 'warning' : 'watch' }
+    : null;
+  return { slug: site.slug, name: site.name, openSiteAlerts };
 }

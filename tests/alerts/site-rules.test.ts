@@ -16,7 +16,7 @@ const { alertEvidence } = await import('@/lib/alerts/evidence');
 const { acknowledgeAlert, dismissAlert } = await import('@/lib/alerts/triage');
 const { newAlertMail } = await import('@/lib/mail/templates');
 const { setWatch } = await import('@/lib/mail/watches');
-const { fetchSitePage } = await import('@/lib/sites/page-data');
+const { fetchSitePage, siteOfSeries } = await import('@/lib/sites/page-data');
 const { fetchSeriesOverview } = await import('@/lib/overview');
 const { alertQueueSchema } = await import('@/lib/schemas/alert');
 const { simulateAr1 } = await import('@/lib/demo/models');
@@ -94,6 +94,7 @@ describe('rules on the site-level indicators', () => {
     // judged once: another pass over the same snapshot (a second scheduler) adds nothing
     expect((await evaluateSiteRules()).evaluated).toBe(0);
     expect(await Alert.count()).toBe(0);
+    expect((await siteOfSeries(siteId))?.openSiteAlerts).toBeNull();
 
     await deliver(6, 42);
     await runAnalysisCycle();
@@ -125,6 +126,8 @@ describe('rules on the site-level indicators', () => {
     const overview = await fetchSeriesOverview(lead.id);
     expect(overview.siteAlerts).toEqual([{ site: 'Mooring', siteSlug: 'mooring', count: 1, severity: rule.severity }]);
     expect(overview.queues).toMatchObject({ open: 1, triage: 1 });
+    // and a member series' page says the same of its site
+    expect(await siteOfSeries(siteId)).toEqual({ slug: 'mooring', name: 'Mooring', openSiteAlerts: overview.siteAlerts[0] });
 
     // more passing evidence extends the open alert rather than opening another
     await deliver(6, 43);
