@@ -1,4 +1,5 @@
 import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize';
+import { judgementColumns } from './RuleEvaluation';
 
 /** Every judgement of a site rule on a site snapshot, kept as the evidence trail whether or not it fired (migration 0024). */
 export class SiteRuleEvaluation extends Model<InferAttributes<SiteRuleEvaluation>, InferCreationAttributes<SiteRuleEvaluation>> {
@@ -21,20 +22,10 @@ export class SiteRuleEvaluation extends Model<InferAttributes<SiteRuleEvaluation
   static initModel(sequelize: Sequelize): void {
     SiteRuleEvaluation.init(
       {
-        id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
-        ruleId: { type: DataTypes.INTEGER, allowNull: false },
+        ...judgementColumns(),
         siteId: { type: DataTypes.INTEGER, allowNull: false },
         siteSnapshotId: { type: DataTypes.INTEGER, allowNull: false },
         direction: { type: DataTypes.STRING, allowNull: false },
-        tau: { type: DataTypes.DOUBLE, allowNull: true },
-        surrogateP: { type: DataTypes.DOUBLE, allowNull: true },
-        level: { type: DataTypes.DOUBLE, allowNull: true },
-        passed: { type: DataTypes.BOOLEAN, allowNull: false },
-        streak: { type: DataTypes.INTEGER, allowNull: false },
-        alertId: { type: DataTypes.INTEGER, allowNull: true },
-        outcome: { type: DataTypes.STRING, allowNull: false, defaultValue: '' },
-        createdAt: DataTypes.DATE,
-        updatedAt: DataTypes.DATE,
       },
       { sequelize, tableName: 'site_rule_evaluations' },
     );

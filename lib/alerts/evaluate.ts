@@ -162,7 +162,7 @@ async function closedWithinQuietPeriod(rule: AlertRule, scope: AlertScope, now: 
  * oriented tau), or is held back by the quiet period after a decided alert unless clearly stronger, or opens an
  * alert through `open`. Otherwise it is 'cannot-judge', 'not-met' or 'building'. O(1) queries.
  */
-export async function actOnJudgement(args: {
+async function actOnJudgement(args: {
   rule: AlertRule;
   judgement: Judgement;
   streak: number;
@@ -469,7 +469,7 @@ export async function evaluateSnapshots(snapshots: AnalysisSnapshot[], now = new
 }
 
 /** How a judgement is kept in the evidence trail: the outcome, or why it failed or could not be judged. */
-export function outcomeText(judgement: Judgement, result: EvaluationOutcome): string {
+function outcomeText(judgement: Judgement, result: EvaluationOutcome): string {
   if (judgement.cannotJudge) return `cannot-judge: ${judgement.cannotJudge}`;
   return judgement.passed ? result : `not-met: ${judgement.failed.join('; ')}`;
 }

@@ -1,5 +1,5 @@
 import { Op, type Transaction } from 'sequelize';
-import { Alert, AlertRule, Site, SiteRuleEvaluation, SiteSnapshot, db, writeTransaction } from '@/models';
+import { Alert, AlertRule, OPEN_ALERT_STATES, Site, SiteRuleEvaluation, SiteSnapshot, db, writeTransaction } from '@/models';
 import { NotFoundError } from '@/lib/http/errors';
 import { recordAudit } from '@/lib/audit';
 import type { Actor } from '@/lib/auth/roles';
@@ -17,7 +17,7 @@ import { siteEvidenceFrom, siteSummaryForRules } from './site-evidence';
 /**
  * Rules on a site's site-level indicators (pc1-variance, pc1-share, maf-ac1): set by a lead on the site page,
  * judged by the scheduler on each new site snapshot with the same `judgeRule`, persistence, quiet period and
- * one-open-alert-per-rule as series rules (actOnJudgement), opening 'site-slowing-down' alerts that are triaged
+ * one-open-alert-per-rule as series rules (judgeOnce), opening 'site-slowing-down' alerts that are triaged
  * like any other and mailed to the watchers of the site's series.
  */
 
@@ -160,7 +160,7 @@ export async function siteRuleStatuses(siteId: number) {
   const rules = await listSiteRules(siteId);
   const [latest, open] = await Promise.all([
     Promise.all(rules.map((r) => SiteRuleEvaluation.findOne({ where: { ruleId: r.id }, order: [['siteSnapshotId', 'DESC']] }))),
-    Alert.findAll({ where: { siteId, state: { [Op.in]: ['new', 'acknowledged', 'escalated'] } }, attributes: ['id', 'ruleId', 'state'] }),
+    Alert.findAll({ where: { siteId, state: { [Op.in]: [...OPEN_ALERT_STATES] } }, attributes: ['id', 'ruleId', 'state'] }),
   ]);
   return rules.map((rule, i) => {
     const e = latest[i];

@@ -195,6 +195,16 @@ interface StoredOverview {
   alertGroups: AlertCountRow[];
 }
 
+interface OpenCount {
+  count: number;
+  severity: 'watch' | 'warning';
+}
+
+/** A running count of open alerts with one more group of `n` added: the severity is the worst seen, warning over watch. */
+function addOpen(current: OpenCount | undefined, severity: 'watch' | 'warning', n: number): OpenCount {
+  return { count: (current?.count ?? 0) + n, severity: current?.severity === 'warning' || severity === 'warning' ? 'warning' : 'watch' };
+}
+
 /**
  * Four aggregate queries run in parallel (series with their last observation and latest snapshot; active rules
  * with their latest evaluation; open alerts grouped by series, severity, state and assignee; open site alerts by
@@ -243,26 +253,14 @@ async function loadOverview(): Promise<StoredOverview> {
   const siteAlertsBySlug = new Map<string, SiteAlertGroup>();
   for (const row of siteAlertRows) {
     const current = siteAlertsBySlug.get(row.site_slug);
-    siteAlertsBySlug.set(row.site_slug, {
-      site: row.site,
-      siteSlug: row.site_slug,
-      count: (current?.count ?? 0) + Number(row.n),
-      severity: current?.severity === 'warning' || row.severity === 'warning' ? 'warning' : 'watch',
-    });
+    siteAlertsBySlug.set(row.site_slug, { site: row.site, siteSlug: row.site_slug, ...addOpen(current, row.severity, Number(row.n)) });
   }
 
   const sparks = await sparklines(series);
   const rulesBySeries = new Map<number, RuleRow[]>();
   for (const rule of rules) rulesBySeries.set(rule.series_id, [...(rulesBySeries.get(rule.series_id) ?? []), rule]);
-  const openBySeries = new Map<number, { count: number; severity: 'watch' | 'warning' }>();
-  for (const row of alerts) {
-    const n = Number(row.n);
-    const current = openBySeries.get(row.series_id);
-    openBySeries.set(row.series_id, {
-      count: (current?.count ?? 0) + n,
-      severity: current?.severity === 'warning' || row.severity === 'warning' ? 'warning' : 'watch',
-    });
-  }
+  const openBySeries = new Map<number, OpenCount>();
+  for (const row of alerts) openBySeries.set(row.series_id, addOpen(openBySeries.get(row.series_id), row.severity, Number(row.n)));
 
   const rows = series.map((s): StoredOverview['rows'][number] => {
     const kendall = (s.kendall ? JSON.parse(s.kendall) : {}) as Record<string, { tau: number | null; p: number | null; direction?: TrendDirection }>;
